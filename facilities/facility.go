@@ -1,0 +1,136 @@
+package facilities
+
+// Facility describes one wind or water tunnel as the API and the catalog carry it.
+// All numbers are SI (m, m², Pa, K, m/s, N, N·m). Optional limits are pointers: nil
+// means "no limit". A field's `unit` tag names its SI unit; the API's decoder uses it
+// to accept unit strings such as "2.5 bar". A unit tag on a struct-typed field applies
+// to the untagged float fields inside it (Range.Min and Range.Max).
+type Facility struct {
+	// ID is the catalog key, lower case letters, digits and dashes ("tsw-1").
+	ID string `json:"id"`
+	// Name is a human-readable name.
+	Name string `json:"name"`
+	// Version is the catalog version of this record; 0 for a facility given inline.
+	Version int `json:"version,omitempty"`
+	// Medium is the test medium: air, nitrogen, water or a custom ideal gas.
+	Medium Medium `json:"medium"`
+	// TestSection is the size and wall type of the test section.
+	TestSection TestSection `json:"test_section"`
+	// Mach is the free-stream Mach number range; nil when the facility states only speeds.
+	Mach *Range `json:"mach,omitempty"`
+	// Speed is the free-stream speed range in m/s; nil when only Mach is stated.
+	Speed *Range `json:"speed,omitempty" unit:"m/s"`
+	// StagnationPressure is the stagnation (total) pressure range in Pa; Min = Max
+	// means fixed, as in an atmospheric tunnel.
+	StagnationPressure Range `json:"stagnation_pressure" unit:"Pa"`
+	// StagnationTemperature is the stagnation (total) temperature range in K.
+	StagnationTemperature Range `json:"stagnation_temperature" unit:"K"`
+	// MaxDynamicPressure is the largest free-stream dynamic pressure in Pa; nil: no limit.
+	MaxDynamicPressure *float64 `json:"max_dynamic_pressure,omitempty" unit:"Pa"`
+	// MaxReynoldsPerMeter is the largest unit Reynolds number in 1/m; nil: no limit.
+	MaxReynoldsPerMeter *float64 `json:"max_reynolds_per_meter,omitempty" unit:"1/m"`
+	// MaxSpanFraction is the largest model span as a fraction of the test-section width.
+	MaxSpanFraction *float64 `json:"max_span_fraction,omitempty"`
+	// MaxBlockage is the largest model frontal area over test-section area (0.05 = 5 %).
+	MaxBlockage *float64 `json:"max_blockage,omitempty"`
+	// LiftInterferenceFactor is the boundary-correction factor δ of the lift
+	// interference Δα = δ·(S/C)·C_L; nil: 0.125 closed walls, −0.125 open jet
+	// (Glauert's values for a circular section, from memory).
+	LiftInterferenceFactor *float64 `json:"lift_interference_factor,omitempty"`
+	// CondensationPeakMach is the local peak Mach number over the model used by the
+	// condensation check of condensable media; nil: 1.4 (common practice).
+	CondensationPeakMach *float64 `json:"condensation_peak_mach,omitempty"`
+	// Balances are the force balances the facility can fit.
+	Balances []Balance `json:"balances,omitempty"`
+	// Operations are the times used to estimate a test's schedule; nil: no schedule.
+	Operations *Operations `json:"operations,omitempty"`
+}
+
+// Range is a closed interval [Min, Max]; Min = Max means a fixed value. Its unit is
+// the unit of the field that holds it.
+type Range struct {
+	Min float64 `json:"min"`
+	Max float64 `json:"max"`
+}
+
+// Fixed reports whether the range is a single value.
+func (r Range) Fixed() bool { return r.Min == r.Max }
+
+// Contains reports whether v lies in [Min, Max].
+func (r Range) Contains(v float64) bool { return v >= r.Min && v <= r.Max }
+
+// Wall types of a test section.
+const (
+	WallsClosed  = "closed"
+	WallsOpen    = "open"
+	WallsSlotted = "slotted"
+	WallsPorous  = "porous"
+)
+
+// TestSection is the size of the test section in metres and its wall type.
+type TestSection struct {
+	Width  float64 `json:"width" unit:"m"`
+	Height float64 `json:"height" unit:"m"`
+	Length float64 `json:"length" unit:"m"`
+	// Area is the cross-section area in m²; nil: Width·Height.
+	Area *float64 `json:"area,omitempty" unit:"m^2"`
+	// Walls is one of "closed", "open", "slotted", "porous".
+	Walls string `json:"walls"`
+}
+
+// CrossSection returns the test-section cross-section area in m².
+func (t TestSection) CrossSection() float64 {
+	if t.Area != nil {
+		return *t.Area
+	}
+	return t.Width * t.Height
+}
+
+// Balance is a force balance with its rated loads.
+type Balance struct {
+	ID   string `json:"id"`
+	Name string `json:"name,omitempty"`
+	// Limits are the rated loads of each component; a nil component is unlimited.
+	Limits Limits `json:"limits"`
+	// Combined are gauge rows: |Σ coefficient·load| ≤ limit, coefficients in SI.
+	Combined []CombinedLimit `json:"combined,omitempty"`
+	// SafetyFactor divides every rating: a plan keeps utilisation ≤ 1/SafetyFactor.
+	SafetyFactor float64 `json:"safety_factor"`
+}
+
+// Limits are a balance's rated loads: forces in N, moments in N·m, body axes.
+type Limits struct {
+	Normal         *float64 `json:"normal,omitempty" unit:"N"`
+	Axial          *float64 `json:"axial,omitempty" unit:"N"`
+	Side           *float64 `json:"side,omitempty" unit:"N"`
+	RollingMoment  *float64 `json:"rolling_moment,omitempty" unit:"N*m"`
+	PitchingMoment *float64 `json:"pitching_moment,omitempty" unit:"N*m"`
+	YawingMoment   *float64 `json:"yawing_moment,omitempty" unit:"N*m"`
+}
+
+// Load component names, as used in Limits, CombinedLimit.Coefficients and the API.
+const (
+	ComponentNormal         = "normal"
+	ComponentAxial          = "axial"
+	ComponentSide           = "side"
+	ComponentRollingMoment  = "rolling_moment"
+	ComponentPitchingMoment = "pitching_moment"
+	ComponentYawingMoment   = "yawing_moment"
+)
+
+// CombinedLimit is a gauge row of a balance: |Σ Coefficients[c]·load[c]| ≤ Limit.
+// Coefficients are SI (a force coefficient is dimensionless, a moment coefficient
+// in 1/m when the row is in N).
+type CombinedLimit struct {
+	Name         string             `json:"name"`
+	Coefficients map[string]float64 `json:"coefficients"`
+	Limit        float64            `json:"limit"`
+}
+
+// Operations are the facility's timing figures for the schedule estimate.
+type Operations struct {
+	SecondsPerPoint             float64 `json:"seconds_per_point"`
+	MinutesPerRun               float64 `json:"minutes_per_run"`
+	MinutesPerPressureChange    float64 `json:"minutes_per_pressure_change"`
+	MinutesPerTemperatureChange float64 `json:"minutes_per_temperature_change"`
+}
