@@ -1,0 +1,154 @@
+#!/usr/bin/env python3
+"""Plan three demo aircraft in two demo facilities each through the scalematch API.
+
+Standard library only. Prints one row per plan and flags every plan whose balance
+would run above 80 % of its rated load. Exits 1 when the service answers with an
+error (an RFC 9457 problem) or cannot be reached.
+
+All figures are estimates only: the facility's approved limits, procedures and
+licensed engineering judgement govern.
+
+    python3 plan_demo.py --url http://127.0.0.1:8080
+"""
+
+import argparse
+import json
+import sys
+import urllib.error
+import urllib.request
+
+# Full-scale aircraft of the invented demo world (docs: scenario). Lengths in m,
+# areas in m²; lift and moment slopes per radian, zero-lift angle in degrees.
+AIRCRAFT = {
+    "Orrin J20": {
+        "flight": {"altitude": "12500 m", "mach": 0.80},
+        "article": {
+            "reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0,
+            "frontal_area": 5.5, "wetted_area": 290,
+            "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3,
+                     "cd_min": 0.021, "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055,
+                     "cm_zero": 0.02, "cm_slope": -1.1},
+        },
+    },
+    "Velmar T70": {
+        "flight": {"altitude": "7600 m", "mach": 0.50},
+        "article": {
+            "reference_length": 2.25, "reference_area": 61, "span": 27.0, "length": 27.2,
+            "frontal_area": 9.0, "wetted_area": 380,
+            "aero": {"lift_slope": 5.4, "zero_lift_alpha": -2.0, "cl_max": 1.5,
+                     "cd_min": 0.026, "cl_at_cd_min": 0.20, "induced_drag_factor": 0.040,
+                     "cm_zero": 0.05, "cm_slope": -0.9},
+        },
+    },
+    "Pellin P2": {
+        "flight": {"altitude": "2400 m", "true_airspeed": "72 m/s"},
+        "article": {
+            "reference_length": 1.45, "reference_area": 12.5, "span": 8.8, "length": 7.4,
+            "frontal_area": 1.9, "wetted_area": 42,
+            "aero": {"lift_slope": 5.2, "zero_lift_alpha": -2.5, "cl_max": 1.6,
+                     "cd_min": 0.028, "cl_at_cd_min": 0.10, "induced_drag_factor": 0.050,
+                     "cm_zero": 0.04, "cm_slope": -0.8},
+        },
+    },
+}
+
+# Which facilities suit which aircraft: the jet in the transonic and the cryogenic
+# tunnel, the turboprop in the transonic and the pressurised low-speed tunnel, the
+# trainer in the two low-speed tunnels.
+PLANS = [
+    ("Orrin J20", "tsw-1"), ("Orrin J20", "cn2-05"),
+    ("Velmar T70", "tsw-1"), ("Velmar T70", "plp-3"),
+    ("Pellin P2", "lsw-2"), ("Pellin P2", "plp-3"),
+]
+
+UTILISATION_FLAG = 0.80
+
+
+class ServiceError(Exception):
+    """The service answered with a problem, or could not be reached."""
+
+
+def post(url, body):
+    """POST body as JSON to url and return the decoded JSON answer."""
+    req = urllib.request.Request(
+        url, data=json.dumps(body).encode("utf-8"), method="POST",
+        headers={"Content-Type": "application/json", "Accept": "application/json"})
+    try:
+        with urllib.request.urlopen(req, timeout=60) as resp:
+            return json.load(resp)
+    except urllib.error.HTTPError as e:
+        raw = e.read().decode("utf-8", "replace")
+        try:
+            p = json.loads(raw)
+        except ValueError:
+            raise ServiceError(f"HTTP {e.code}: {raw.strip()}") from None
+        msg = f"HTTP {p.get('status', e.code)} {p.get('title', '')}: {p.get('detail', '')}"
+        for fe in p.get("errors") or []:
+            msg += f"\n  {fe.get('field') or '(body)'}: {fe.get('message')}"
+        if p.get("limits"):
+            msg += "\n  limits: " + ", ".join(p["limits"])
+        raise ServiceError(msg) from None
+    except (urllib.error.URLError, OSError) as e:
+        raise ServiceError(f"cannot reach {url}: {e}") from None
+
+
+def plan_request(aircraft, facility_id):
+    a = AIRCRAFT[aircraft]
+    return {
+        "flight": a["flight"],
+        "article": a["article"],
+        "facility_id": facility_id,
+        "model": {"scale_min": 0.01, "scale_max": 0.5},
+        "alpha": {"from": -4, "to": 16, "step": 1},
+        "objective": {"priority": ["mach", "reynolds"], "mach_tolerance": 0.005},
+    }
+
+
+def scale_ratio(s):
+    return f"1:{1 / s:.1f}" if s > 0 else "-"
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--url", default="http://127.0.0.1:8080",
+                    help="base URL of the scalematch service (default %(default)s)")
+    args = ap.parse_args(argv)
+    base = args.url.rstrip("/")
+
+    header = ("aircraft", "facility", "scale", "test M", "p0 kPa", "Re ratio",
+              "balance %", "binding")
+    fmt = "{:<11} {:<8} {:>8} {:>7} {:>7} {:>9} {:>10}  {}"
+    print(fmt.format(*header))
+    flagged = []
+    for aircraft, facility_id in PLANS:
+        try:
+            p = post(base + "/v1/plans", plan_request(aircraft, facility_id))
+        except ServiceError as e:
+            print(f"{aircraft} in {facility_id}: {e}", file=sys.stderr)
+            return 1
+        loads = p.get("loads") or {}
+        util = loads.get("max_utilization")
+        binding = ", ".join(b["constraint"] for b in p.get("binding") or []) or "-"
+        print(fmt.format(
+            aircraft, facility_id, scale_ratio(p["model"]["scale"]),
+            f"{p['test']['mach']:.3f}", f"{p['test']['stagnation_pressure'] / 1000:.1f}",
+            f"{p['mismatch']['reynolds_ratio']:.3f}",
+            "-" if util is None else f"{100 * util:.1f}", binding))
+        if util is not None and util > UTILISATION_FLAG:
+            flagged.append((aircraft, facility_id, loads.get("balance_id"), util, loads.get("limiting")))
+    if flagged:
+        print()
+        for aircraft, facility_id, balance, util, limiting in flagged:
+            where = ""
+            if limiting:
+                where = f" ({limiting.get('component')} at alpha {limiting.get('alpha')} deg)"
+            print(f"CHECK: {aircraft} in {facility_id}: balance {balance} at {100 * util:.1f} % "
+                  f"of its rating{where}, above {100 * UTILISATION_FLAG:.0f} %")
+    print()
+    print("Estimates only: the facility's approved limits, procedures and licensed "
+          "engineering judgement govern.")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
