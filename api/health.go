@@ -1,0 +1,88 @@
+package api
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"net/http"
+	"time"
+
+	"github.com/gin-gonic/gin"
+	"github.com/prometheus/client_golang/prometheus/promhttp"
+)
+
+// readyTimeout bounds the store's answer to the readiness probe.
+const readyTimeout = 2 * time.Second
+
+// Health is the answer of GET /healthz and GET /readyz.
+type Health struct {
+	// Status is "ok" (/healthz) or "ready" (/readyz).
+	Status string `json:"status" example:"ok"`
+	// Store is "ok" when the catalog store answered; only on /readyz.
+	Store string `json:"store,omitempty" example:"ok"`
+}
+
+func (s *Server) registerOperations() {
+	s.engine.GET("/healthz", s.healthz)
+	s.engine.GET("/readyz", s.readyz)
+	s.engine.GET("/metrics", s.metricsHandler())
+}
+
+// metricsHandler serves the registry's metrics.
+//
+//	@Summary		Metrics
+//	@Description	Prometheus text format: request counts and latency by route template and status, requests in flight, planner time, Go runtime and process figures.
+//	@Tags			operations
+//	@Produce		plain
+//	@Success		200	{string}	string	"Prometheus text exposition format"
+//	@Router			/metrics [get]
+func (s *Server) metricsHandler() gin.HandlerFunc {
+	return gin.WrapH(promhttp.HandlerFor(s.cfg.Registry, promhttp.HandlerOpts{ErrorLog: promLogger{s}}))
+}
+
+// healthz says the process serves.
+//
+//	@Summary		Liveness
+//	@Description	200 whenever the process serves requests; it does not touch the store.
+//	@Tags			operations
+//	@Produce		json
+//	@Success		200	{object}	Health
+//	@Router			/healthz [get]
+func (s *Server) healthz(c *gin.Context) {
+	c.JSON(http.StatusOK, Health{Status: "ok"})
+}
+
+// readyz says whether the store answers.
+//
+//	@Summary		Readiness
+//	@Description	200 when the catalog store answers a ping within 2 s, 503 otherwise.
+//	@Tags			operations
+//	@Produce		json
+//	@Success		200	{object}	Health
+//	@Failure		503	{object}	Problem
+//	@Router			/readyz [get]
+func (s *Server) readyz(c *gin.Context) {
+	if s.cfg.Catalog == nil {
+		s.writeProblem(c, kindUnavailable.problem(c, "no store is configured"))
+		return
+	}
+	ctx, cancel := context.WithTimeout(c.Request.Context(), readyTimeout)
+	defer cancel()
+	if err := s.cfg.Catalog.Ping(ctx); err != nil {
+		detail := "the store does not answer"
+		if errors.Is(err, context.DeadlineExceeded) {
+			detail = "the store did not answer within " + readyTimeout.String()
+		}
+		s.logger(c).Warn("store not ready", "error", err.Error())
+		s.writeProblem(c, kindUnavailable.problem(c, detail))
+		return
+	}
+	c.JSON(http.StatusOK, Health{Status: "ready", Store: "ok"})
+}
+
+// promLogger passes promhttp's errors to the service's log.
+type promLogger struct{ s *Server }
+
+func (l promLogger) Println(v ...any) {
+	l.s.log.Error("metrics", "error", fmt.Sprint(v...))
+}

@@ -1,0 +1,186 @@
+package api
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"net/http"
+
+	"github.com/gin-gonic/gin"
+
+	"scalematch/atmosphere"
+	"scalematch/facilities"
+)
+
+// ContentTypeProblem is the media type of error responses (RFC 9457).
+const ContentTypeProblem = "application/problem+json"
+
+// Problem is an error response: RFC 9457 problem details with two extensions,
+// Errors (every bad field by its JSON path) and RequestID.
+//
+// Type is a relative URI, "/problems/" followed by one of these kinds, each always
+// with the same status and title:
+//
+//	invalid-input          400  the request is malformed or a field is out of range
+//	unauthorized           401  a write needs a bearer token (WWW-Authenticate: Bearer)
+//	forbidden              403  the token may not do this, or writes are switched off
+//	not-found              404  no such facility, plan or route
+//	method-not-allowed     405  the route exists but not for this method
+//	conflict               409  the id exists already
+//	precondition-failed    412  If-Match names a version that is no longer current
+//	body-too-large         413  the request body is larger than BodyLimit
+//	unprocessable          422  the input is valid but no plan satisfies the hard limits
+//	precondition-required  428  a change needs If-Match
+//	internal               500  a fault of the service; the log has the details
+//	unavailable            503  the store does not answer, or the request ran out of time
+type Problem struct {
+	// Type identifies the kind of problem: "/problems/invalid-input" and so on.
+	Type string `json:"type" example:"/problems/invalid-input"`
+	// Title is the kind's short, fixed summary.
+	Title string `json:"title" example:"Invalid input"`
+	// Status is the HTTP status code.
+	Status int `json:"status" example:"400"`
+	// Detail explains this occurrence.
+	Detail string `json:"detail,omitempty" example:"2 fields are invalid"`
+	// Instance is the request path of this occurrence.
+	Instance string `json:"instance,omitempty" example:"/v1/plans"`
+	// Errors names every bad field by its JSON path ("flight.altitude",
+	// "balances[1].limits.normal"); "" names the body as a whole.
+	Errors []facilities.FieldError `json:"errors,omitempty"`
+	// Limits names the limits that conflict, for unprocessable.
+	Limits []string `json:"limits,omitempty"`
+	// RequestID is the request's X-Request-ID, to find the request in the log.
+	RequestID string `json:"request_id,omitempty" example:"3f2a9c0e5b7d41e8a6c2d9f01b3e7a54"`
+}
+
+// problemKind is one row of the table in Problem's doc comment.
+type problemKind struct {
+	status int
+	slug   string
+	title  string
+}
+
+var (
+	kindInvalid              = problemKind{http.StatusBadRequest, "invalid-input", "Invalid input"}
+	kindUnauthorized         = problemKind{http.StatusUnauthorized, "unauthorized", "Authentication required"}
+	kindForbidden            = problemKind{http.StatusForbidden, "forbidden", "Forbidden"}
+	kindNotFound             = problemKind{http.StatusNotFound, "not-found", "Not found"}
+	kindMethodNotAllowed     = problemKind{http.StatusMethodNotAllowed, "method-not-allowed", "Method not allowed"}
+	kindConflict             = problemKind{http.StatusConflict, "conflict", "Conflict"}
+	kindPreconditionFailed   = problemKind{http.StatusPreconditionFailed, "precondition-failed", "Precondition failed"}
+	kindBodyTooLarge         = problemKind{http.StatusRequestEntityTooLarge, "body-too-large", "Request body too large"}
+	kindUnprocessable        = problemKind{http.StatusUnprocessableEntity, "unprocessable", "No feasible plan"}
+	kindPreconditionRequired = problemKind{http.StatusPreconditionRequired, "precondition-required", "Precondition required"}
+	kindInternal             = problemKind{http.StatusInternalServerError, "internal", "Internal error"}
+	kindUnavailable          = problemKind{http.StatusServiceUnavailable, "unavailable", "Service unavailable"}
+)
+
+// codeKinds maps each domain error code to its problem kind: the one place where
+// codes become statuses.
+var codeKinds = map[facilities.Code]problemKind{
+	facilities.CodeInvalid:              kindInvalid,
+	facilities.CodeNotFound:             kindNotFound,
+	facilities.CodeConflict:             kindConflict,
+	facilities.CodeUnprocessable:        kindUnprocessable,
+	facilities.CodeUnauthorized:         kindUnauthorized,
+	facilities.CodeForbidden:            kindForbidden,
+	facilities.CodePreconditionFailed:   kindPreconditionFailed,
+	facilities.CodePreconditionRequired: kindPreconditionRequired,
+}
+
+func (k problemKind) problem(c *gin.Context, detail string) Problem {
+	return Problem{
+		Type:      "/problems/" + k.slug,
+		Title:     k.title,
+		Status:    k.status,
+		Detail:    detail,
+		Instance:  c.Request.URL.Path,
+		RequestID: RequestID(c.Request.Context()),
+	}
+}
+
+// problem maps err to the problem the client sees:
+//
+//	*facilities.Error                      by its Code (table in Problem's comment)
+//	atmosphere.ErrRange                    400
+//	*http.MaxBytesError                    413
+//	context.DeadlineExceeded               503
+//	anything else                          500 "internal error", logged in full
+//
+// Handlers that embed a problem in a larger answer (the plan batch) call it directly;
+// the others call fail.
+func (s *Server) problem(c *gin.Context, err error) Problem {
+	var de *facilities.Error
+	var mbe *http.MaxBytesError
+	switch {
+	case errors.As(err, &de):
+		k, ok := codeKinds[de.Code]
+		if !ok {
+			break
+		}
+		detail := de.Message
+		if detail == "" && len(de.Fields) == 0 {
+			detail = de.Error()
+		}
+		if detail == "" {
+			detail = countFields(len(de.Fields))
+		}
+		p := k.problem(c, detail)
+		p.Errors = de.Fields
+		p.Limits = de.Limits
+		return p
+	case errors.Is(err, atmosphere.ErrRange):
+		return kindInvalid.problem(c, err.Error())
+	case errors.As(err, &mbe):
+		return kindBodyTooLarge.problem(c, fmt.Sprintf("the request body is larger than %d bytes", mbe.Limit))
+	case errors.Is(err, context.DeadlineExceeded):
+		s.logger(c).Warn("request ran out of time", "error", err.Error())
+		return kindUnavailable.problem(c, "the request ran out of time; try again")
+	}
+	s.logger(c).Error("internal error", "error", err.Error())
+	return kindInternal.problem(c, "internal error")
+}
+
+func countFields(n int) string {
+	if n == 1 {
+		return "1 field is invalid"
+	}
+	return fmt.Sprintf("%d fields are invalid", n)
+}
+
+// fail answers the request with the problem for err and stops the handler chain.
+func (s *Server) fail(c *gin.Context, err error) {
+	s.writeProblem(c, s.problem(c, err))
+}
+
+// writeProblem writes p as application/problem+json and stops the handler chain.
+func (s *Server) writeProblem(c *gin.Context, p Problem) {
+	if p.Status == http.StatusUnauthorized {
+		c.Header("WWW-Authenticate", `Bearer realm="scalematch"`)
+	}
+	c.Abort()
+	c.Render(p.Status, problemRender{p})
+}
+
+// noRoute answers paths that no route serves.
+func (s *Server) noRoute(c *gin.Context) {
+	s.writeProblem(c, kindNotFound.problem(c, fmt.Sprintf("no route %s %s", c.Request.Method, c.Request.URL.Path)))
+}
+
+// noMethod answers a known path asked with a method it does not serve.
+func (s *Server) noMethod(c *gin.Context) {
+	s.writeProblem(c, kindMethodNotAllowed.problem(c, fmt.Sprintf("%s is not served on %s", c.Request.Method, c.Request.URL.Path)))
+}
+
+// problemRender writes a Problem as application/problem+json.
+type problemRender struct{ p Problem }
+
+func (r problemRender) Render(w http.ResponseWriter) error {
+	r.WriteContentType(w)
+	return json.NewEncoder(w).Encode(r.p)
+}
+
+func (r problemRender) WriteContentType(w http.ResponseWriter) {
+	w.Header().Set("Content-Type", ContentTypeProblem)
+}

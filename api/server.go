@@ -1,0 +1,159 @@
+package api
+
+import (
+	"context"
+	"errors"
+	"log/slog"
+	"net"
+	"net/http"
+	"time"
+
+	"github.com/gin-gonic/gin"
+	"github.com/prometheus/client_golang/prometheus"
+
+	"scalematch/facilities"
+)
+
+// @title						scalematch
+// @version					1
+// @description				Plans scale-model tests in wind and water tunnels: model scale and test conditions that best match a flight's Reynolds and Mach numbers within a facility's limits, the remaining mismatch, the Reynolds effect on drag and the balance loads over the angle-of-attack sweep.
+// @description				Every number is SI (m, m², kg, s, K, Pa, N, N·m, kg/m³, Pa·s, m/s); angles are degrees. Any dimensional input may instead be a string with a unit ("35000 ft", "2.5 bar", "15 degC"); a model scale may be a ratio ("1:16").
+// @description				Errors are RFC 9457 problem details (application/problem+json) whose "type" is a relative URI /problems/{kind}; the kinds are listed under the Problem schema.
+// @description				All loads and limits are estimates only: the facility's approved limits, procedures and licensed engineering judgement govern.
+// @BasePath					/
+// @accept						json
+// @produce					json
+// @securityDefinitions.apikey	WriteToken
+// @in							header
+// @name						Authorization
+// @description				"Bearer <token>": a write token configured in SCALEMATCH_WRITE_TOKENS; needed only to change the catalog.
+
+// BodyLimit is the largest request body the service reads, in bytes (1 MiB); a
+// larger body is answered with 413.
+const BodyLimit = 1 << 20
+
+// Config is what the service needs from its caller; main builds it.
+type Config struct {
+	// Catalog is the facility catalog and plan store.
+	Catalog facilities.Catalog
+	// WriteTokens maps each bearer token allowed to change the catalog to the name
+	// recorded in the audit trail. Empty: every catalog change is refused (403).
+	WriteTokens map[string]facilities.Actor
+	// Registry receives the service's metrics; nil: a new registry of its own, served
+	// at /metrics.
+	Registry *prometheus.Registry
+	// Logger receives one JSON line per request; nil: slog.Default().
+	Logger *slog.Logger
+}
+
+// Server is the HTTP service. Build it with New; it is safe for concurrent use.
+type Server struct {
+	cfg     Config
+	engine  *gin.Engine
+	log     *slog.Logger
+	metrics *metrics
+}
+
+// New builds the service: the gin router in release mode with the request-id,
+// logging, metrics, panic-recovery and body-limit middleware, the operations
+// endpoints (/healthz, /readyz, /metrics, /openapi.json, /docs/) and the /v1 routes.
+// It fails only when the metrics cannot be registered on cfg.Registry.
+func New(cfg Config) (*Server, error) {
+	if cfg.Logger == nil {
+		cfg.Logger = slog.Default()
+	}
+	if cfg.Registry == nil {
+		cfg.Registry = prometheus.NewRegistry()
+	}
+	m, err := newMetrics(cfg.Registry)
+	if err != nil {
+		return nil, err
+	}
+	gin.SetMode(gin.ReleaseMode)
+	e := gin.New()
+	e.HandleMethodNotAllowed = true
+	e.RedirectTrailingSlash = false
+	e.RedirectFixedPath = false
+	e.ContextWithFallback = true
+	s := &Server{cfg: cfg, engine: e, log: cfg.Logger, metrics: m}
+	e.Use(s.requestID, s.observe, s.recoverPanic, s.limitBody)
+	e.NoRoute(s.noRoute)
+	e.NoMethod(s.noMethod)
+	s.registerOperations()
+	s.registerDocs()
+	s.routes()
+	return s, nil
+}
+
+// Handler returns the service as an http.Handler.
+func (s *Server) Handler() http.Handler { return s.engine }
+
+// routes registers every route. Each group of endpoints lives in its own file:
+// planning.go (atmosphere, conditions, plans, batch, loads, groups, envelope) and
+// catalog.go (facility catalog, versions, stored plans).
+func (s *Server) routes() {
+	v1 := s.engine.Group("/v1")
+	s.registerPlanning(v1)
+	s.registerCatalog(v1)
+}
+
+// Server limits. The write timeout bounds the slowest plan batch; the idle timeout
+// closes kept-alive connections nobody uses.
+const (
+	readHeaderTimeout = 5 * time.Second
+	readTimeout       = 30 * time.Second
+	writeTimeout      = 120 * time.Second
+	idleTimeout       = 120 * time.Second
+	maxHeaderBytes    = 64 << 10
+	// ShutdownGrace is how long a shutdown waits for in-flight requests to finish
+	// before it closes their connections.
+	ShutdownGrace = 30 * time.Second
+)
+
+// ListenAndServe listens on the TCP address addr and serves until ctx is done,
+// then drains in-flight requests (for at most ShutdownGrace) and returns. It does
+// not close cfg.Catalog: the caller that opened the store closes it afterwards.
+func (s *Server) ListenAndServe(ctx context.Context, addr string) error {
+	var lc net.ListenConfig
+	ln, err := lc.Listen(ctx, "tcp", addr)
+	if err != nil {
+		return err
+	}
+	return s.Serve(ctx, ln)
+}
+
+// Serve serves on ln until ctx is done, then shuts down gracefully as
+// ListenAndServe does. It closes ln.
+func (s *Server) Serve(ctx context.Context, ln net.Listener) error {
+	hs := &http.Server{
+		Handler:           s.engine,
+		ReadHeaderTimeout: readHeaderTimeout,
+		ReadTimeout:       readTimeout,
+		WriteTimeout:      writeTimeout,
+		IdleTimeout:       idleTimeout,
+		MaxHeaderBytes:    maxHeaderBytes,
+		ErrorLog:          slog.NewLogLogger(s.log.Handler(), slog.LevelWarn),
+		BaseContext:       func(net.Listener) context.Context { return context.WithoutCancel(ctx) },
+	}
+	served := make(chan error, 1)
+	go func() { served <- hs.Serve(ln) }()
+	s.log.Info("listening", "addr", ln.Addr().String())
+	select {
+	case err := <-served:
+		return err
+	case <-ctx.Done():
+	}
+	s.log.Info("shutting down: draining in-flight requests", "grace", ShutdownGrace.String())
+	sctx, cancel := context.WithTimeout(context.Background(), ShutdownGrace)
+	defer cancel()
+	err := hs.Shutdown(sctx)
+	if serr := <-served; serr != nil && !errors.Is(serr, http.ErrServerClosed) {
+		err = errors.Join(err, serr)
+	}
+	if err != nil {
+		hs.Close()
+		return err
+	}
+	s.log.Info("stopped")
+	return nil
+}
