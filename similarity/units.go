@@ -294,9 +294,9 @@ func (p *unitParser) term(depth int) Unit {
 			return Unit{}
 		}
 		p.pos++
-	case c == '1':
+	case c >= '0' && c <= '9' || c == '.':
 		p.pos++
-		if p.pos < len(p.s) && p.s[p.pos] >= '0' && p.s[p.pos] <= '9' || p.pos < len(p.s) && p.s[p.pos] == '.' {
+		if c != '1' || p.pos < len(p.s) && (p.s[p.pos] >= '0' && p.s[p.pos] <= '9' || p.s[p.pos] == '.') {
 			p.fail(ErrSyntax, "has a number inside the unit; only 1 is allowed, as in 1/s")
 			return Unit{}
 		}

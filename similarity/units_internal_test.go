@@ -1,0 +1,31 @@
+package similarity
+
+import (
+	"os"
+	"strings"
+	"testing"
+)
+
+// TestUnitTableCovered makes sure that every unit name of the table is checked
+// against GNU units: each must appear alone in the fixture's quantity column.
+func TestUnitTableCovered(t *testing.T) {
+	b, err := os.ReadFile("../testdata/reference/units/factors.tsv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := map[string]bool{}
+	for _, line := range strings.Split(string(b), "\n") {
+		if line == "" || strings.HasPrefix(line, "#") {
+			continue
+		}
+		q, _, _ := strings.Cut(line, "\t")
+		if _, unit, ok := strings.Cut(q, " "); ok {
+			seen[unit] = true
+		}
+	}
+	for name := range unitTable {
+		if !seen[name] {
+			t.Errorf("unit %q is not in factors.tsv: add it to testdata/reference/units/gen.sh and regenerate", name)
+		}
+	}
+}
