@@ -91,7 +91,6 @@ func (s State) Airspeeds(kind SpeedKind, value float64) (Airspeeds, error) {
 	if !(a > 0 && p > 0 && rho > 0) {
 		return Airspeeds{}, fmt.Errorf("atmosphere: state has no positive speed of sound, pressure and density; build it with At: %w", ErrRange)
 	}
-	maxRatio := impactRatio(MaxMach, Gamma)
 	var m float64
 	switch kind {
 	case Mach:
@@ -110,12 +109,12 @@ func (s State) Airspeeds(kind SpeedKind, value float64) (Airspeeds, error) {
 		}
 		m = value * math.Sqrt(SeaLevelDensity/rho) / a
 	case CalibratedAirspeed:
-		maxCAS := SeaLevelSpeedOfSound * machFromImpact(maxRatio*p/SeaLevelPressure, Gamma)
-		if err := checkSpeed(kind, value, maxCAS); err != nil {
-			return Airspeeds{}, err
+		x := SeaLevelPressure * impactRatio(value/SeaLevelSpeedOfSound, Gamma) / p // qc/p
+		maxRatio := impactRatio(MaxMach, Gamma)
+		if !(value >= 0 && x <= maxRatio*(1+1e-12)) { // the edge itself, give or take rounding, is in range
+			return Airspeeds{}, checkSpeed(kind, value, SeaLevelSpeedOfSound*machFromImpact(maxRatio*p/SeaLevelPressure, Gamma))
 		}
-		qc := SeaLevelPressure * impactRatio(value/SeaLevelSpeedOfSound, Gamma)
-		m = math.Min(machFromImpact(qc/p, Gamma), MaxMach)
+		m = math.Min(machFromImpact(x, Gamma), MaxMach)
 	default:
 		return Airspeeds{}, fmt.Errorf("atmosphere: unknown speed kind %d", int(kind))
 	}
