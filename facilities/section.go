@@ -1,0 +1,244 @@
+package facilities
+
+import (
+	"fmt"
+	"math"
+
+	"scalematch/atmosphere"
+)
+
+// MaxSettingMach is the highest free-stream Mach number a Setting may give, as
+// atmosphere.MaxMach.
+const MaxSettingMach = atmosphere.MaxMach
+
+// DefaultCondensationPeakMach is the local peak Mach number over the model that the
+// condensation check assumes when the facility gives none (common practice).
+const DefaultCondensationPeakMach = 1.4
+
+// settingMessage introduces the field errors of a bad Setting.
+const settingMessage = "test-section setting is invalid"
+
+// State returns the test-section state at setting s (physics.md §4).
+//
+// Gas media: the free-stream Mach number is s.Mach or, when s.Mach is 0, the one
+// s.Speed gives at the stagnation temperature (closed form below). With the
+// isentropic relations of NACA Report 1135 for the medium's γ:
+//
+//	T = T0/(1 + (γ−1)/2·M²), p = p0/(T0/T)^(γ/(γ−1))
+//	ρ = p/(Z·R·T), a = √(γ·R·T), V = M·a, q = ½·ρ·V², Re/m = ρ·V/μ(T)
+//
+// with Z from Peng–Robinson for nitrogen and 1 for the ideal gases. A speed V
+// becomes M² = V²/(γ·R·T0 − (γ−1)/2·V²).
+//
+// Water (incompressible): s.Speed is the speed and s.Mach must be 0; T = T0,
+// ρ and μ from WaterDensity and WaterViscosity, static p = p0 − q, Mach 0 and
+// SpeedOfSound 0 (the model has no compressibility), Z = 1.
+//
+// Bad settings give a *Error with CodeInvalid naming every bad field ("mach",
+// "speed", "stagnation_pressure", "stagnation_temperature", or "medium" when the
+// facility's medium is unusable) with the allowed range: pressures and temperatures
+// must be positive and finite, Mach from 0 to MaxSettingMach, speed 0 or more (and,
+// in a gas, below the limiting expansion speed √(2γRT0/(γ−1))); nitrogen must not
+// be below saturation in the free stream; water must be 0–150 °C with p > 0 after
+// the dynamic pressure. The facility's own ranges are not checked here: see
+// Violations. State does not allocate when it succeeds.
+func (f *Facility) State(s Setting) (State, error) {
+	if f.Medium.IsLiquid() {
+		return f.waterState(s)
+	}
+	m := f.Medium
+	gamma, r := m.Gamma(), m.GasConstant()
+	var errs []FieldError
+	switch m.Kind {
+	case MediumAir, MediumNitrogen:
+	case MediumGas:
+		errs = gasFieldErrors(m.Gas, errs)
+	default:
+		errs = append(errs, unknownMediumError(m.Kind))
+	}
+	errs = checkStagnation(s, errs)
+	if !(s.Mach >= 0 && s.Mach <= MaxSettingMach) {
+		errs = append(errs, FieldError{Field: "mach", Message: fmt.Sprintf("%g is outside 0 to %g", s.Mach, MaxSettingMach)})
+	}
+	if !(s.Speed >= 0) || math.IsInf(s.Speed, 1) {
+		errs = append(errs, FieldError{Field: "speed", Message: fmt.Sprintf("%g m/s: must be 0 m/s or more and finite", s.Speed)})
+	}
+	if s.Mach > 0 && s.Speed > 0 {
+		errs = append(errs, FieldError{Field: "speed", Message: "give mach or speed, not both"})
+	}
+	if len(errs) > 0 {
+		return State{}, Invalid(settingMessage, errs)
+	}
+
+	t0, p0 := s.StagnationTemperature, s.StagnationPressure
+	mach := s.Mach
+	if mach == 0 && s.Speed > 0 {
+		den := gamma*r*t0 - 0.5*(gamma-1)*s.Speed*s.Speed
+		if den > 0 {
+			mach = s.Speed / math.Sqrt(den)
+		}
+		if !(den > 0) || mach > MaxSettingMach {
+			vmax := math.Sqrt(2 * gamma * r * t0 / (gamma - 1))
+			return State{}, Invalid(settingMessage, []FieldError{{Field: "speed", Message: fmt.Sprintf(
+				"%g m/s is outside 0 to %.4g m/s, the speed of Mach %g at a stagnation temperature of %g K (limiting expansion speed %.4g m/s)",
+				s.Speed, speedAtMach(MaxSettingMach, gamma, r, t0), MaxSettingMach, t0, vmax)}})
+		}
+	}
+
+	tr := atmosphere.TemperatureRatio(mach, gamma)
+	t := t0 / tr
+	p := p0 / atmosphere.PressureRatio(mach, gamma)
+	if m.Kind == MediumNitrogen {
+		if margin := nitrogenMargin(m, t, p); margin < 0 {
+			return State{}, Invalid(settingMessage, []FieldError{{Field: "stagnation_temperature", Message: fmt.Sprintf(
+				"%g K gives a free stream of %.4g K at %.4g Pa, below nitrogen's saturation temperature %.4g K there: raise the stagnation temperature or lower the Mach number or pressure",
+				t0, t, p, t/(1+margin))}})
+		}
+	}
+	z := m.Compressibility(t, p)
+	rho := p / (z * r * t)
+	a := math.Sqrt(gamma * r * t)
+	v := mach * a
+	mu := m.Viscosity(t)
+	return State{
+		Mach:                  mach,
+		Speed:                 v,
+		StagnationPressure:    p0,
+		StagnationTemperature: t0,
+		Static: Static{
+			Temperature:     t,
+			Pressure:        p,
+			Density:         rho,
+			Viscosity:       mu,
+			SpeedOfSound:    a,
+			Compressibility: z,
+		},
+		DynamicPressure:  0.5 * rho * v * v,
+		ReynoldsPerMeter: rho * v / mu,
+	}, nil
+}
+
+// speedAtMach returns the free-stream speed in m/s of an ideal gas at Mach number
+// mach and stagnation temperature t0 in K: M·√(γ·R·T0/(1 + (γ−1)/2·M²)).
+func speedAtMach(mach, gamma, r, t0 float64) float64 {
+	return mach * math.Sqrt(gamma*r*t0/atmosphere.TemperatureRatio(mach, gamma))
+}
+
+// checkStagnation appends the errors of a setting's stagnation pressure and
+// temperature, which must be positive and finite, to errs.
+func checkStagnation(s Setting, errs []FieldError) []FieldError {
+	if !(s.StagnationPressure > 0) || math.IsInf(s.StagnationPressure, 1) {
+		errs = append(errs, FieldError{Field: "stagnation_pressure", Message: fmt.Sprintf("%g Pa: must be above 0 Pa and finite", s.StagnationPressure)})
+	}
+	if !(s.StagnationTemperature > 0) || math.IsInf(s.StagnationTemperature, 1) {
+		errs = append(errs, FieldError{Field: "stagnation_temperature", Message: fmt.Sprintf("%g K: must be above 0 K and finite", s.StagnationTemperature)})
+	}
+	return errs
+}
+
+// waterState is State for water.
+func (f *Facility) waterState(s Setting) (State, error) {
+	var errs []FieldError
+	errs = checkStagnation(s, errs)
+	if s.Mach != 0 {
+		errs = append(errs, FieldError{Field: "mach", Message: "water facilities take a speed: Mach is not a setting in water"})
+	}
+	if !(s.Speed >= 0) || math.IsInf(s.Speed, 1) {
+		errs = append(errs, FieldError{Field: "speed", Message: fmt.Sprintf("%g m/s: must be 0 m/s or more and finite", s.Speed)})
+	}
+	if t0 := s.StagnationTemperature; t0 > 0 && !(t0 >= WaterMinTemperature && t0 <= WaterMaxTemperature) {
+		errs = append(errs, FieldError{Field: "stagnation_temperature", Message: fmt.Sprintf(
+			"%g K is outside %g to %g K (0 to 150 °C), the range of the water model", t0, WaterMinTemperature, WaterMaxTemperature)})
+	}
+	if len(errs) > 0 {
+		return State{}, Invalid(settingMessage, errs)
+	}
+	t, v := s.StagnationTemperature, s.Speed
+	rho := WaterDensity(t)
+	mu := WaterViscosity(t, rho)
+	q := 0.5 * rho * v * v
+	p := s.StagnationPressure - q
+	if !(p > 0) {
+		return State{}, Invalid(settingMessage, []FieldError{{Field: "speed", Message: fmt.Sprintf(
+			"%g m/s gives a dynamic pressure of %.4g Pa, more than the stagnation pressure %g Pa: the static pressure would not be positive",
+			v, q, s.StagnationPressure)}})
+	}
+	return State{
+		Speed:                 v,
+		StagnationPressure:    s.StagnationPressure,
+		StagnationTemperature: t,
+		Static: Static{
+			Temperature:     t,
+			Pressure:        p,
+			Density:         rho,
+			Viscosity:       mu,
+			Compressibility: 1,
+		},
+		DynamicPressure:  q,
+		ReynoldsPerMeter: rho * v / mu,
+	}, nil
+}
+
+// condensationPeakMach returns the facility's local peak Mach number for the
+// condensation check, DefaultCondensationPeakMach when it gives none.
+func (f *Facility) condensationPeakMach() float64 {
+	if f.CondensationPeakMach != nil {
+		return *f.CondensationPeakMach
+	}
+	return DefaultCondensationPeakMach
+}
+
+// CondensationMargin returns how far the flow at state st stays from condensing,
+// T_local/T_sat(p_local) − 1, at the worse of two places: the free stream
+// (st.Static), and a local isentropic expansion over the model from the same
+// stagnation state (st.StagnationPressure, st.StagnationTemperature) to the
+// facility's CondensationPeakMach (DefaultCondensationPeakMach when nil). The rule
+// (common practice): the flow must not reach saturation, so a negative margin means
+// it condenses and 0 sits on the line. At pressures at or above the critical
+// pressure, T_sat is taken as the critical temperature.
+//
+// Media without a saturation line in the model (air, custom gases, water) give
+// +Inf, as does a state with no positive stagnation pressure and temperature.
+// CondensationMargin does not allocate.
+func (f *Facility) CondensationMargin(st State) float64 {
+	m := f.Medium
+	if m.Kind != MediumNitrogen || !(st.StagnationTemperature > 0 && st.StagnationPressure > 0) {
+		return math.Inf(1)
+	}
+	free := nitrogenMargin(m, st.Static.Temperature, st.Static.Pressure)
+	peak := f.condensationPeakMach()
+	gamma := m.Gamma()
+	tl := st.StagnationTemperature / atmosphere.TemperatureRatio(peak, gamma)
+	pl := st.StagnationPressure / atmosphere.PressureRatio(peak, gamma)
+	return math.Min(free, nitrogenMargin(m, tl, pl))
+}
+
+// nitrogenMargin returns T/T_sat(p) − 1 for nitrogen at temperature T in K and
+// pressure p in Pa; +Inf when p ≤ 0, and T/Tc − 1 at or above the critical pressure.
+func nitrogenMargin(m Medium, t, p float64) float64 {
+	if !(p > 0) {
+		return math.Inf(1)
+	}
+	tsat, _ := m.SaturationTemperature(p)
+	return t/tsat - 1
+}
+
+// Warnings returns the model warnings that apply to state st, for the API to show:
+// an extrapolated viscosity (nitrogen below 100 K), and a nitrogen state within 5 %
+// of saturation, where the Peng–Robinson density and the two-point saturation line
+// are least accurate. Empty (nil) when none apply.
+func (f *Facility) Warnings(st State) []string {
+	var w []string
+	if msg := f.Medium.ViscosityWarning(st.Static.Temperature); msg != "" {
+		w = append(w, msg)
+	}
+	if margin := f.CondensationMargin(st); margin >= 0 && margin < nearSaturation {
+		w = append(w, fmt.Sprintf(
+			"the flow comes within %.1f %% of nitrogen's saturation temperature (free stream or local Mach %g): density and the saturation line are least accurate there (about ±2 %%)",
+			100*margin, f.condensationPeakMach()))
+	}
+	return w
+}
+
+// nearSaturation is the condensation margin below which Warnings flags a state.
+const nearSaturation = 0.05

@@ -1,0 +1,377 @@
+package facilities
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+)
+
+// Bounds that Validate applies beyond the physics (sanity limits on a facility
+// record, in SI units).
+const (
+	// MaxIDLength is the longest facility or balance id, in bytes.
+	MaxIDLength = 64
+	// MaxNameLength is the longest facility, balance or gauge-row name, in bytes.
+	MaxNameLength = 200
+	// MaxSectionSize is the largest test-section width, height or length in m.
+	MaxSectionSize = 100.0
+	// MaxStagnationPressure is the largest stagnation pressure a facility may state, Pa.
+	MaxStagnationPressure = 1e8
+	// MaxStagnationTemperature is the largest stagnation temperature a facility may
+	// state, K.
+	MaxStagnationTemperature = 5000.0
+	// NitrogenTriplePointTemperature is the lowest temperature in K a nitrogen
+	// facility may state: below it nitrogen is solid (63.151 K, Span et al. 2000;
+	// from memory).
+	NitrogenTriplePointTemperature = 63.151
+)
+
+// invalidFacility introduces the field errors of a bad facility.
+const invalidFacility = "facility is invalid"
+
+// Validate checks every field of the facility and returns a *Error with CodeInvalid
+// that lists every problem at once, each with its JSON path ("test_section.width",
+// "balances[1].limits.normal", "stagnation_pressure.max") and the allowed range, or
+// nil when the facility is sound. It checks:
+//   - id: 1–64 characters of lower-case letters, digits and single inner dashes;
+//     name at most 200 characters; version 0 or more;
+//   - medium: a known kind; a custom gas's constants in range (see
+//     GasProperties), none given for the named media;
+//   - test_section: width, height and length above 0 and up to 100 m, area above 0
+//     when given, walls one of closed, open, slotted, porous;
+//   - mach and speed: at least one (water: speed only), each 0 ≤ min ≤ max, Mach at
+//     most MaxSettingMach;
+//   - stagnation_pressure and stagnation_temperature: 0 < min ≤ max, finite, within
+//     MaxStagnationPressure and MaxStagnationTemperature; water 0–150 °C; nitrogen
+//     above its triple point;
+//   - optional limits above 0: max_dynamic_pressure, max_reynolds_per_meter,
+//     max_span_fraction (at most 1), max_blockage (below 1);
+//     lift_interference_factor from −1 to 1; condensation_peak_mach above 0 and up
+//     to MaxSettingMach;
+//   - balances: ids present, well formed and unique; every given limit above 0;
+//     safety_factor at least 1; combined rows with unique names, known component
+//     names, finite coefficients not all 0, and a limit above 0;
+//   - operations: every time 0 or more and finite.
+func (f *Facility) Validate() error {
+	var e []FieldError
+	add := func(field, format string, args ...any) {
+		e = append(e, FieldError{Field: field, Message: fmt.Sprintf(format, args...)})
+	}
+
+	if msg := idProblem(f.ID); msg != "" {
+		add("id", "%s", msg)
+	}
+	if len(f.Name) > MaxNameLength {
+		add("name", "is %d characters long; at most %d", len(f.Name), MaxNameLength)
+	}
+	if f.Version < 0 {
+		add("version", "%d: must be 0 or more", f.Version)
+	}
+
+	// Medium.
+	switch f.Medium.Kind {
+	case MediumAir, MediumNitrogen, MediumWater:
+		if f.Medium.Gas != nil {
+			add("medium.gas", "gas constants are given only for a custom gas, not for %s", f.Medium.Kind)
+		}
+	case MediumGas:
+		e = gasFieldErrors(f.Medium.Gas, e)
+	default:
+		e = append(e, unknownMediumError(f.Medium.Kind))
+	}
+	liquid := f.Medium.IsLiquid()
+
+	// Test section.
+	ts := f.TestSection
+	positiveUpTo(&e, "test_section.width", ts.Width, MaxSectionSize, "m")
+	positiveUpTo(&e, "test_section.height", ts.Height, MaxSectionSize, "m")
+	positiveUpTo(&e, "test_section.length", ts.Length, MaxSectionSize, "m")
+	if ts.Area != nil {
+		positiveUpTo(&e, "test_section.area", *ts.Area, MaxSectionSize*MaxSectionSize, "m²")
+	}
+	switch ts.Walls {
+	case WallsClosed, WallsOpen, WallsSlotted, WallsPorous:
+	default:
+		add("test_section.walls", "%q: must be one of %q, %q, %q, %q", ts.Walls, WallsClosed, WallsOpen, WallsSlotted, WallsPorous)
+	}
+
+	// Speed envelope.
+	switch {
+	case f.Mach == nil && f.Speed == nil && liquid:
+		add("speed", "is required for a water facility (in m/s)")
+	case f.Mach == nil && f.Speed == nil:
+		add("mach", "give a Mach range, a speed range (speed), or both")
+	}
+	if f.Mach != nil {
+		if liquid {
+			add("mach", "water facilities state a speed range: Mach is not a setting in water")
+		} else {
+			rangeWithin(&e, "mach", *f.Mach, 0, MaxSettingMach, true, "")
+		}
+	}
+	if f.Speed != nil {
+		rangeWithin(&e, "speed", *f.Speed, 0, math.Inf(1), true, "m/s")
+	}
+
+	// Stagnation conditions.
+	rangeWithin(&e, "stagnation_pressure", f.StagnationPressure, 0, MaxStagnationPressure, false, "Pa")
+	tLo, tHi, tLoIncl := 0.0, MaxStagnationTemperature, false
+	switch f.Medium.Kind {
+	case MediumWater:
+		tLo, tHi, tLoIncl = WaterMinTemperature, WaterMaxTemperature, true
+	case MediumNitrogen:
+		tLo = NitrogenTriplePointTemperature
+	}
+	rangeWithin(&e, "stagnation_temperature", f.StagnationTemperature, tLo, tHi, tLoIncl, "K")
+
+	// Optional limits.
+	if f.MaxDynamicPressure != nil {
+		positiveUpTo(&e, "max_dynamic_pressure", *f.MaxDynamicPressure, math.Inf(1), "Pa")
+	}
+	if f.MaxReynoldsPerMeter != nil {
+		positiveUpTo(&e, "max_reynolds_per_meter", *f.MaxReynoldsPerMeter, math.Inf(1), "1/m")
+	}
+	if f.MaxSpanFraction != nil {
+		positiveUpTo(&e, "max_span_fraction", *f.MaxSpanFraction, 1, "")
+	}
+	if v := f.MaxBlockage; v != nil && !(*v > 0 && *v < 1) {
+		add("max_blockage", "%g: must be above 0 and below 1 (a fraction of the test-section area)", *v)
+	}
+	if v := f.LiftInterferenceFactor; v != nil && !(*v >= -1 && *v <= 1) {
+		add("lift_interference_factor", "%g is outside -1 to 1", *v)
+	}
+	if f.CondensationPeakMach != nil {
+		positiveUpTo(&e, "condensation_peak_mach", *f.CondensationPeakMach, MaxSettingMach, "")
+	}
+
+	// Balances.
+	seen := make(map[string]int, len(f.Balances))
+	for i, b := range f.Balances {
+		p := fmt.Sprintf("balances[%d]", i)
+		if msg := idProblem(b.ID); msg != "" {
+			add(p+".id", "%s", msg)
+		} else if j, dup := seen[b.ID]; dup {
+			add(p+".id", "%q is also the id of balances[%d]: ids must be unique", b.ID, j)
+		} else {
+			seen[b.ID] = i
+		}
+		if len(b.Name) > MaxNameLength {
+			add(p+".name", "is %d characters long; at most %d", len(b.Name), MaxNameLength)
+		}
+		for _, c := range limitComponents(&b.Limits) {
+			if c.v != nil {
+				unit := "N"
+				if strings.HasSuffix(c.name, "_moment") {
+					unit = "N·m"
+				}
+				positiveUpTo(&e, p+".limits."+c.name, *c.v, math.Inf(1), unit)
+			}
+		}
+		if !(b.SafetyFactor >= 1) || math.IsInf(b.SafetyFactor, 1) {
+			add(p+".safety_factor", "%g: must be 1 or more and finite", b.SafetyFactor)
+		}
+		rows := make(map[string]int, len(b.Combined))
+		for j, row := range b.Combined {
+			rp := fmt.Sprintf("%s.combined[%d]", p, j)
+			switch {
+			case row.Name == "":
+				add(rp+".name", "is required")
+			case len(row.Name) > MaxNameLength:
+				add(rp+".name", "is %d characters long; at most %d", len(row.Name), MaxNameLength)
+			default:
+				if k, dup := rows[row.Name]; dup {
+					add(rp+".name", "%q is also the name of combined[%d]: names must be unique within a balance", row.Name, k)
+				} else {
+					rows[row.Name] = j
+				}
+			}
+			if len(row.Coefficients) == 0 {
+				add(rp+".coefficients", "give at least one component coefficient")
+			}
+			names := make([]string, 0, len(row.Coefficients))
+			for name := range row.Coefficients {
+				names = append(names, name)
+			}
+			slices.Sort(names)
+			nonzero := false
+			for _, name := range names {
+				c := row.Coefficients[name]
+				if !knownComponent(name) {
+					add(rp+".coefficients."+name, "unknown component: want one of %s", strings.Join(componentNames[:], ", "))
+					continue
+				}
+				if math.IsNaN(c) || math.IsInf(c, 0) {
+					add(rp+".coefficients."+name, "%g: must be finite", c)
+					continue
+				}
+				nonzero = nonzero || c != 0
+			}
+			if len(row.Coefficients) > 0 && !nonzero {
+				add(rp+".coefficients", "at least one coefficient must be a finite non-zero number")
+			}
+			positiveUpTo(&e, rp+".limit", row.Limit, math.Inf(1), "")
+		}
+	}
+
+	// Operations.
+	if op := f.Operations; op != nil {
+		nonNegative(&e, "operations.seconds_per_point", op.SecondsPerPoint, "s")
+		nonNegative(&e, "operations.minutes_per_run", op.MinutesPerRun, "min")
+		nonNegative(&e, "operations.minutes_per_pressure_change", op.MinutesPerPressureChange, "min")
+		nonNegative(&e, "operations.minutes_per_temperature_change", op.MinutesPerTemperatureChange, "min")
+	}
+	return Invalid(invalidFacility, e)
+}
+
+// componentNames lists the load components in the order of Limits.
+var componentNames = [...]string{
+	ComponentNormal, ComponentAxial, ComponentSide,
+	ComponentRollingMoment, ComponentPitchingMoment, ComponentYawingMoment,
+}
+
+// knownComponent reports whether name is one of the load component names.
+func knownComponent(name string) bool {
+	return slices.Contains(componentNames[:], name)
+}
+
+// namedLimit pairs a component name with its rated load.
+type namedLimit struct {
+	name string
+	v    *float64
+}
+
+// limitComponents returns the components of l with their names, in componentNames
+// order.
+func limitComponents(l *Limits) [6]namedLimit {
+	return [6]namedLimit{
+		{ComponentNormal, l.Normal}, {ComponentAxial, l.Axial}, {ComponentSide, l.Side},
+		{ComponentRollingMoment, l.RollingMoment}, {ComponentPitchingMoment, l.PitchingMoment},
+		{ComponentYawingMoment, l.YawingMoment},
+	}
+}
+
+// idProblem says what is wrong with a facility or balance id, or returns "".
+func idProblem(id string) string {
+	if id == "" {
+		return "is required"
+	}
+	if len(id) > MaxIDLength {
+		return fmt.Sprintf("is %d characters long; at most %d", len(id), MaxIDLength)
+	}
+	for i := 0; i < len(id); i++ {
+		c := id[i]
+		ok := c >= 'a' && c <= 'z' || c >= '0' && c <= '9' ||
+			c == '-' && i > 0 && i < len(id)-1 && id[i-1] != '-'
+		if !ok {
+			return fmt.Sprintf("%q: use lower-case letters, digits and single dashes between them", id)
+		}
+	}
+	return ""
+}
+
+// unknownMediumError reports an unknown medium kind.
+func unknownMediumError(kind string) FieldError {
+	return FieldError{Field: "medium", Message: fmt.Sprintf(
+		"unknown medium %q: want %q, %q, %q or a custom gas", kind, MediumAir, MediumNitrogen, MediumWater)}
+}
+
+// Allowed ranges of a custom gas's constants (Validate and State).
+const (
+	gasMinMolarMass   = 1e-3 // kg/mol
+	gasMaxMolarMass   = 1.0  // kg/mol
+	gasMaxGamma       = 5.0 / 3
+	gasMaxViscosity   = 1e-3   // Pa·s
+	gasMaxTemperature = 5000.0 // K
+)
+
+// gasFieldErrors appends the problems of a custom gas's constants, with paths under
+// "medium.gas", to dst. It does not allocate when there are none.
+func gasFieldErrors(g *GasProperties, dst []FieldError) []FieldError {
+	if g == nil {
+		return append(dst, FieldError{Field: "medium.gas", Message: "a custom gas needs its constants"})
+	}
+	if !(g.MolarMass >= gasMinMolarMass && g.MolarMass <= gasMaxMolarMass) {
+		dst = append(dst, FieldError{Field: "medium.gas.molar_mass", Message: fmt.Sprintf(
+			"%g kg/mol is outside %g to %g kg/mol", g.MolarMass, gasMinMolarMass, gasMaxMolarMass)})
+	}
+	if !(g.Gamma > 1 && g.Gamma <= gasMaxGamma) {
+		dst = append(dst, FieldError{Field: "medium.gas.gamma", Message: fmt.Sprintf(
+			"%g: must be above 1 and at most 5/3", g.Gamma)})
+	}
+	if !(g.ViscosityReference > 0 && g.ViscosityReference <= gasMaxViscosity) {
+		dst = append(dst, FieldError{Field: "medium.gas.viscosity_reference", Message: fmt.Sprintf(
+			"%g Pa·s: must be above 0 and at most %g Pa·s", g.ViscosityReference, gasMaxViscosity)})
+	}
+	if !(g.TemperatureReference > 0 && g.TemperatureReference <= gasMaxTemperature) {
+		dst = append(dst, FieldError{Field: "medium.gas.temperature_reference", Message: fmt.Sprintf(
+			"%g K: must be above 0 and at most %g K", g.TemperatureReference, gasMaxTemperature)})
+	}
+	if !(g.SutherlandConstant >= 0 && g.SutherlandConstant <= gasMaxTemperature) {
+		dst = append(dst, FieldError{Field: "medium.gas.sutherland_constant", Message: fmt.Sprintf(
+			"%g K is outside 0 to %g K", g.SutherlandConstant, gasMaxTemperature)})
+	}
+	return dst
+}
+
+// withUnit formats v with a unit when there is one.
+func withUnit(v float64, unit string) string {
+	if unit == "" {
+		return fmt.Sprintf("%g", v)
+	}
+	return fmt.Sprintf("%g %s", v, unit)
+}
+
+// positiveUpTo appends an error unless 0 < v ≤ hi (hi may be +Inf, meaning finite).
+func positiveUpTo(e *[]FieldError, field string, v, hi float64, unit string) {
+	if v > 0 && v <= hi && !math.IsInf(v, 1) {
+		return
+	}
+	msg := withUnit(v, unit) + ": must be above 0"
+	if !math.IsInf(hi, 1) {
+		msg += " and at most " + withUnit(hi, unit)
+	} else {
+		msg += " and finite"
+	}
+	*e = append(*e, FieldError{Field: field, Message: msg})
+}
+
+// nonNegative appends an error unless v is 0 or more and finite.
+func nonNegative(e *[]FieldError, field string, v float64, unit string) {
+	if v >= 0 && !math.IsInf(v, 1) {
+		return
+	}
+	*e = append(*e, FieldError{Field: field, Message: withUnit(v, unit) + ": must be 0 or more and finite"})
+}
+
+// rangeWithin appends errors for a range whose ends must lie in [lo, hi] (lo
+// excluded unless loIncl; hi may be +Inf, meaning finite) with Min ≤ Max. A reversed
+// range is reported on field.min.
+func rangeWithin(e *[]FieldError, field string, r Range, lo, hi float64, loIncl bool, unit string) {
+	ok := func(v float64) bool {
+		above := v > lo || loIncl && v == lo
+		return above && v <= hi && !math.IsInf(v, 1)
+	}
+	allowed := ""
+	switch {
+	case math.IsInf(hi, 1) && loIncl:
+		allowed = withUnit(lo, unit) + " or more and finite"
+	case math.IsInf(hi, 1):
+		allowed = "above " + withUnit(lo, unit) + " and finite"
+	case loIncl:
+		allowed = "from " + withUnit(lo, unit) + " to " + withUnit(hi, unit)
+	default:
+		allowed = "above " + withUnit(lo, unit) + " and at most " + withUnit(hi, unit)
+	}
+	minOK, maxOK := ok(r.Min), ok(r.Max)
+	if !minOK {
+		*e = append(*e, FieldError{Field: field + ".min", Message: withUnit(r.Min, unit) + ": must be " + allowed})
+	}
+	if !maxOK {
+		*e = append(*e, FieldError{Field: field + ".max", Message: withUnit(r.Max, unit) + ": must be " + allowed})
+	}
+	if minOK && maxOK && r.Min > r.Max {
+		*e = append(*e, FieldError{Field: field + ".min", Message: fmt.Sprintf(
+			"%s is above %s.max (%s)", withUnit(r.Min, unit), field, withUnit(r.Max, unit))})
+	}
+}
