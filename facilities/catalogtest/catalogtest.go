@@ -1,0 +1,827 @@
+// Package catalogtest is the shared test suite that every facilities.Catalog
+// engine must pass: versions and optimistic concurrency, deletion with history kept,
+// byte-exact idempotent plan records, concurrent writers and writes that fail midway.
+package catalogtest
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"reflect"
+	"sync"
+	"sync/atomic"
+	"testing"
+	"time"
+
+	"scalematch/facilities"
+)
+
+// Run runs the suite. open must return a new, empty store for each call (the suite
+// calls it once per subtest) and arrange for it to be closed and removed when t
+// ends; the suite does not close it.
+func Run(t *testing.T, open func(t *testing.T) facilities.Catalog) {
+	tests := []struct {
+		name string
+		fn   func(*testing.T, facilities.Catalog)
+	}{
+		{"Empty", testEmpty},
+		{"CreateRead", testCreateRead},
+		{"CreateConflict", testCreateConflict},
+		{"List", testList},
+		{"Update", testUpdate},
+		{"Delete", testDelete},
+		{"Recreate", testRecreate},
+		{"Versions", testVersions},
+		{"NotFound", testNotFound},
+		{"Plans", testPlans},
+		{"PlanIdempotent", testPlanIdempotent},
+		{"ConcurrentUpdates", testConcurrentUpdates},
+		{"ConcurrentCreates", testConcurrentCreates},
+		{"ConcurrentPlans", testConcurrentPlans},
+		{"CancelledContext", testCancelledContext},
+		{"FailMidway", testFailMidway},
+		{"Seed", testSeed},
+		{"SeedDisabled", testSeedDisabled},
+		{"Ping", testPing},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			tt.fn(t, open(t))
+		})
+	}
+}
+
+// demo returns a demo facility by id, failing the test when it is missing.
+func demo(t *testing.T, id string) facilities.Facility {
+	t.Helper()
+	f, ok := facilities.DemoFacility(id)
+	if !ok {
+		t.Fatalf("demo facility %q missing", id)
+	}
+	return f
+}
+
+func ptr(v float64) *float64 { return &v }
+
+// sameFacility compares two facilities by their canonical JSON, ignoring Version.
+func sameFacility(t *testing.T, got, want facilities.Facility) {
+	t.Helper()
+	a, err := facilities.CanonicalJSON(got)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := facilities.CanonicalJSON(want)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(a, b) {
+		t.Errorf("facility differs:\n got %s\nwant %s", a, b)
+	}
+}
+
+func wantCode(t *testing.T, err error, code facilities.Code) {
+	t.Helper()
+	if got := facilities.ErrorCode(err); got != code {
+		t.Errorf("error = %v (code %q), want code %q", err, got, code)
+	}
+}
+
+func mustCreate(t *testing.T, c facilities.Catalog, f facilities.Facility, by facilities.Actor) facilities.Facility {
+	t.Helper()
+	out, err := c.CreateFacility(context.Background(), f, by)
+	if err != nil {
+		t.Fatalf("CreateFacility(%s): %v", f.ID, err)
+	}
+	return out
+}
+
+func testEmpty(t *testing.T, c facilities.Catalog) {
+	fs, err := c.Facilities(context.Background())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(fs) != 0 {
+		t.Errorf("a new store lists %d facilities, want 0", len(fs))
+	}
+}
+
+func testCreateRead(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	in := demo(t, "tsw-1")
+	in.Version = 42 // the store owns versions: a caller's value is ignored
+	got := mustCreate(t, c, in, "facility-staff")
+	if got.Version != 1 {
+		t.Errorf("created version = %d, want 1", got.Version)
+	}
+	read, err := c.Facility(ctx, "tsw-1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if read.Version != 1 {
+		t.Errorf("read version = %d, want 1", read.Version)
+	}
+	sameFacility(t, read, in)
+	v1, err := c.FacilityVersion(ctx, "tsw-1", 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v1.Version != 1 {
+		t.Errorf("FacilityVersion(1).Version = %d, want 1", v1.Version)
+	}
+	sameFacility(t, v1, in)
+}
+
+func testCreateConflict(t *testing.T, c facilities.Catalog) {
+	f := demo(t, "lsw-2")
+	mustCreate(t, c, f, "a")
+	_, err := c.CreateFacility(context.Background(), f, "b")
+	wantCode(t, err, facilities.CodeConflict)
+	vs, err := c.Versions(context.Background(), f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(vs) != 1 {
+		t.Errorf("a refused create left %d versions, want 1", len(vs))
+	}
+}
+
+func testList(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	for _, id := range []string{"wtn-04", "cn2-05", "lsw-2"} {
+		mustCreate(t, c, demo(t, id), "a")
+	}
+	fs, err := c.Facilities(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ids []string
+	for _, f := range fs {
+		ids = append(ids, f.ID)
+		if f.Version != 1 {
+			t.Errorf("%s listed at version %d, want 1", f.ID, f.Version)
+		}
+	}
+	if want := []string{"cn2-05", "lsw-2", "wtn-04"}; !reflect.DeepEqual(ids, want) {
+		t.Errorf("listed %q, want %q (ordered by id)", ids, want)
+	}
+}
+
+func testUpdate(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	f := mustCreate(t, c, demo(t, "lsw-2"), "alice")
+	f.MaxDynamicPressure = ptr(4200)
+	f.Balances[0].Limits.Normal = ptr(8500)
+	got, err := c.UpdateFacility(ctx, f, 1, "bob")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Version != 2 {
+		t.Errorf("updated version = %d, want 2", got.Version)
+	}
+	read, err := c.Facility(ctx, f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if read.Version != 2 || *read.MaxDynamicPressure != 4200 || *read.Balances[0].Limits.Normal != 8500 {
+		t.Errorf("read back version %d, q_max %v, normal %v; want 2, 4200, 8500",
+			read.Version, *read.MaxDynamicPressure, *read.Balances[0].Limits.Normal)
+	}
+
+	// A second editor still holding version 1 must not overwrite the change.
+	other := demo(t, "lsw-2")
+	other.Name = "stale edit"
+	_, err = c.UpdateFacility(ctx, other, 1, "carol")
+	wantCode(t, err, facilities.CodePreconditionFailed)
+	read, err = c.Facility(ctx, f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if read.Version != 2 || read.Name == "stale edit" {
+		t.Errorf("a stale update changed the record: version %d, name %q", read.Version, read.Name)
+	}
+	// An If-Match ahead of the store is stale too.
+	_, err = c.UpdateFacility(ctx, other, 3, "carol")
+	wantCode(t, err, facilities.CodePreconditionFailed)
+
+	// The first version stays as it was.
+	v1, err := c.FacilityVersion(ctx, f.ID, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameFacility(t, v1, demo(t, "lsw-2"))
+}
+
+func testDelete(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	f := mustCreate(t, c, demo(t, "cn2-05"), "alice")
+	mustCreate(t, c, demo(t, "wtn-04"), "alice")
+	plan := facilities.PlanRecord{ID: "p-before-delete", FacilityID: f.ID, FacilityVersion: 1, Body: []byte(`{"id":"p-before-delete"}`)}
+	if _, err := c.SavePlan(ctx, plan); err != nil {
+		t.Fatal(err)
+	}
+
+	wantCode(t, c.DeleteFacility(ctx, f.ID, 2, "bob"), facilities.CodePreconditionFailed)
+	if err := c.DeleteFacility(ctx, f.ID, 1, "bob"); err != nil {
+		t.Fatal(err)
+	}
+	_, err := c.Facility(ctx, f.ID)
+	wantCode(t, err, facilities.CodeNotFound)
+	fs, err := c.Facilities(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(fs) != 1 || fs[0].ID != "wtn-04" {
+		t.Errorf("after deleting cn2-05 the list is %v, want only wtn-04", fs)
+	}
+	// History and plans stay readable.
+	v1, err := c.FacilityVersion(ctx, f.ID, 1)
+	if err != nil {
+		t.Fatalf("FacilityVersion of a deleted facility: %v", err)
+	}
+	sameFacility(t, v1, demo(t, "cn2-05"))
+	p, err := c.Plan(ctx, plan.ID)
+	if err != nil {
+		t.Fatalf("plan of a deleted facility: %v", err)
+	}
+	if !bytes.Equal(p.Body, plan.Body) {
+		t.Errorf("plan body %q, want %q", p.Body, plan.Body)
+	}
+	vs, err := c.Versions(ctx, f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(vs) != 2 || vs[1].Action != "delete" || vs[1].By != "bob" || vs[1].Version != 2 || vs[1].Facility != nil {
+		t.Errorf("history after delete = %+v, want a second entry: delete by bob, version 2, no facility", vs)
+	}
+	// The deletion itself has no facility to read.
+	_, err = c.FacilityVersion(ctx, f.ID, 2)
+	wantCode(t, err, facilities.CodeNotFound)
+	// Changing or deleting a deleted facility finds nothing.
+	_, err = c.UpdateFacility(ctx, f, 2, "bob")
+	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, c.DeleteFacility(ctx, f.ID, 2, "bob"), facilities.CodeNotFound)
+}
+
+func testRecreate(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	f := mustCreate(t, c, demo(t, "plp-3"), "alice")
+	if err := c.DeleteFacility(ctx, f.ID, 1, "alice"); err != nil {
+		t.Fatal(err)
+	}
+	again := demo(t, "plp-3")
+	again.Name = "rebuilt pressurised tunnel"
+	got, err := c.CreateFacility(ctx, again, "dave")
+	if err != nil {
+		t.Fatalf("creating a deleted id again: %v", err)
+	}
+	if got.Version != 3 {
+		t.Errorf("re-created version = %d, want 3 (numbers continue after the deletion)", got.Version)
+	}
+	read, err := c.Facility(ctx, f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if read.Version != 3 || read.Name != again.Name {
+		t.Errorf("read version %d name %q, want 3 %q", read.Version, read.Name, again.Name)
+	}
+	vs, err := c.Versions(ctx, f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var actions []string
+	for _, v := range vs {
+		actions = append(actions, v.Action)
+	}
+	if want := []string{"create", "delete", "create"}; !reflect.DeepEqual(actions, want) {
+		t.Errorf("actions %q, want %q", actions, want)
+	}
+}
+
+func testVersions(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	start := time.Now().Add(-time.Minute)
+	f := mustCreate(t, c, demo(t, "tsw-1"), "alice")
+	f.Balances[1].Limits.PitchingMoment = ptr(2400)
+	f.Balances[1].SafetyFactor = 2
+	f, err := c.UpdateFacility(ctx, f, 1, "bob")
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.Name = "transonic tunnel, rebuilt"
+	f.MaxReynoldsPerMeter = ptr(40e6)
+	if _, err := c.UpdateFacility(ctx, f, 2, "carol"); err != nil {
+		t.Fatal(err)
+	}
+	vs, err := c.Versions(ctx, f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []struct {
+		version int
+		by      facilities.Actor
+		action  string
+		fields  []string
+	}{
+		{1, "alice", "create", nil}, // fields: every top-level field, checked below
+		{2, "bob", "update", []string{"balances[1].limits.pitching_moment", "balances[1].safety_factor"}},
+		{3, "carol", "update", []string{"max_reynolds_per_meter", "name"}},
+	}
+	if len(vs) != len(want) {
+		t.Fatalf("got %d versions, want %d", len(vs), len(want))
+	}
+	for i, w := range want {
+		v := vs[i]
+		if v.Version != w.version || v.By != w.by || v.Action != w.action {
+			t.Errorf("version %d: got (%d, %q, %q), want (%d, %q, %q)", i, v.Version, v.By, v.Action, w.version, w.by, w.action)
+		}
+		if w.fields != nil && !reflect.DeepEqual(v.Fields, w.fields) {
+			t.Errorf("version %d changed fields %q, want %q", v.Version, v.Fields, w.fields)
+		}
+		if v.Facility == nil || v.Facility.Version != w.version {
+			t.Errorf("version %d carries facility %+v, want the record at that version", v.Version, v.Facility)
+		}
+		if v.At.Before(start) || v.At.After(time.Now().Add(time.Minute)) {
+			t.Errorf("version %d recorded at %v, not around now", v.Version, v.At)
+		}
+		if i > 0 && v.At.Before(vs[i-1].At) {
+			t.Errorf("version %d recorded before version %d", v.Version, vs[i-1].Version)
+		}
+	}
+	for _, field := range []string{"id", "name", "medium", "test_section", "balances"} {
+		found := false
+		for _, got := range vs[0].Fields {
+			found = found || got == field
+		}
+		if !found {
+			t.Errorf("creation fields %q lack %q", vs[0].Fields, field)
+		}
+	}
+	if vs[1].Facility != nil && *vs[1].Facility.Balances[1].Limits.PitchingMoment != 2400 {
+		t.Errorf("version 2 pitching-moment limit = %v N·m, want 2400", *vs[1].Facility.Balances[1].Limits.PitchingMoment)
+	}
+}
+
+func testNotFound(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	mustCreate(t, c, demo(t, "lsw-2"), "a")
+	_, err := c.Facility(ctx, "no-such")
+	wantCode(t, err, facilities.CodeNotFound)
+	_, err = c.FacilityVersion(ctx, "no-such", 1)
+	wantCode(t, err, facilities.CodeNotFound)
+	_, err = c.FacilityVersion(ctx, "lsw-2", 2)
+	wantCode(t, err, facilities.CodeNotFound)
+	_, err = c.FacilityVersion(ctx, "lsw-2", 0)
+	wantCode(t, err, facilities.CodeNotFound)
+	_, err = c.Versions(ctx, "no-such")
+	wantCode(t, err, facilities.CodeNotFound)
+	missing := demo(t, "tsw-1")
+	_, err = c.UpdateFacility(ctx, missing, 1, "a")
+	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, c.DeleteFacility(ctx, "no-such", 1, "a"), facilities.CodeNotFound)
+	_, err = c.Plan(ctx, "no-such-plan")
+	wantCode(t, err, facilities.CodeNotFound)
+	_, err = c.CreateFacility(ctx, facilities.Facility{}, "a")
+	wantCode(t, err, facilities.CodeInvalid)
+	_, err = c.SavePlan(ctx, facilities.PlanRecord{Body: []byte(`{}`)})
+	wantCode(t, err, facilities.CodeInvalid)
+}
+
+func testPlans(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	mustCreate(t, c, demo(t, "tsw-1"), "a")
+	bodies := map[string][]byte{
+		"spacing":   []byte("{\n  \"id\": \"spacing\",\n  \"mismatch\": {\"reynolds_ratio\": 0.2500}\n}\n"),
+		"unicode":   []byte(`{"id":"unicode","note":"Re ≈ 3×10⁶, ΔM = 0.005 \u00e9"}`),
+		"key-order": []byte(`{"z":1,"a":2,"id":"key-order","big":12345678901234567890}`),
+		"empty":     {},
+	}
+	created := time.Date(2031, 4, 2, 9, 30, 0, 123456000, time.UTC)
+	for id, body := range bodies {
+		rec := facilities.PlanRecord{ID: id, FacilityID: "tsw-1", FacilityVersion: 1, CreatedAt: created, Body: body}
+		saved, err := c.SavePlan(ctx, rec)
+		if err != nil {
+			t.Fatalf("SavePlan(%s): %v", id, err)
+		}
+		if !bytes.Equal(saved.Body, body) {
+			t.Errorf("SavePlan(%s) returned body %q, want %q", id, saved.Body, body)
+		}
+	}
+	for id, body := range bodies {
+		p, err := c.Plan(ctx, id)
+		if err != nil {
+			t.Fatalf("Plan(%s): %v", id, err)
+		}
+		if !bytes.Equal(p.Body, body) {
+			t.Errorf("Plan(%s) body %q, want %q byte for byte", id, p.Body, body)
+		}
+		if p.ID != id || p.FacilityID != "tsw-1" || p.FacilityVersion != 1 || !p.CreatedAt.Equal(created) {
+			t.Errorf("Plan(%s) = {%q %q %d %v}, want {%q tsw-1 1 %v}", id, p.ID, p.FacilityID, p.FacilityVersion, p.CreatedAt, id, created)
+		}
+	}
+	// A plan against an inline facility has no catalog id; a zero time is set.
+	before := time.Now().Add(-time.Minute)
+	p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "inline", Body: []byte(`{}`)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.CreatedAt.Before(before) || p.CreatedAt.After(time.Now().Add(time.Minute)) {
+		t.Errorf("a zero CreatedAt was stored as %v, want about now", p.CreatedAt)
+	}
+}
+
+func testPlanIdempotent(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	first := facilities.PlanRecord{ID: "p1", FacilityID: "tsw-1", FacilityVersion: 1,
+		CreatedAt: time.Date(2031, 1, 1, 0, 0, 0, 0, time.UTC), Body: []byte(`{"id":"p1","n":1}`)}
+	if _, err := c.SavePlan(ctx, first); err != nil {
+		t.Fatal(err)
+	}
+	second := facilities.PlanRecord{ID: "p1", FacilityID: "tsw-1", FacilityVersion: 2,
+		CreatedAt: time.Date(2032, 1, 1, 0, 0, 0, 0, time.UTC), Body: []byte(`{"id":"p1","n":2}`)}
+	got, err := c.SavePlan(ctx, second)
+	if err != nil {
+		t.Fatalf("saving a plan id again: %v", err)
+	}
+	for name, p := range map[string]facilities.PlanRecord{"second save": got} {
+		if !bytes.Equal(p.Body, first.Body) || p.FacilityVersion != 1 || !p.CreatedAt.Equal(first.CreatedAt) {
+			t.Errorf("%s returned %q v%d at %v, want the first record", name, p.Body, p.FacilityVersion, p.CreatedAt)
+		}
+	}
+	read, err := c.Plan(ctx, "p1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(read.Body, first.Body) {
+		t.Errorf("stored body %q, want the first %q", read.Body, first.Body)
+	}
+}
+
+// testConcurrentUpdates runs writers that each read, change and write back one
+// counter with If-Match, retrying on a stale version. Every version must have
+// exactly one winner and the counter must show every acknowledged increment.
+func testConcurrentUpdates(t *testing.T, c facilities.Catalog) {
+	const writers, each = 6, 5
+	ctx := context.Background()
+	f := demo(t, "lsw-2")
+	f.Operations.SecondsPerPoint = 0
+	mustCreate(t, c, f, "a")
+
+	var mu sync.Mutex
+	winners := map[int]int{} // version → writer
+	var stale atomic.Int64
+	var wg sync.WaitGroup
+	errs := make(chan error, writers)
+	for w := 0; w < writers; w++ {
+		wg.Add(1)
+		go func(w int) {
+			defer wg.Done()
+			for done := 0; done < each; {
+				cur, err := c.Facility(ctx, f.ID)
+				if err != nil {
+					errs <- err
+					return
+				}
+				cur.Operations.SecondsPerPoint++
+				got, err := c.UpdateFacility(ctx, cur, cur.Version, facilities.Actor(fmt.Sprintf("writer-%d", w)))
+				if facilities.ErrorCode(err) == facilities.CodePreconditionFailed {
+					stale.Add(1)
+					continue
+				}
+				if err != nil {
+					errs <- err
+					return
+				}
+				mu.Lock()
+				if prev, dup := winners[got.Version]; dup {
+					errs <- fmt.Errorf("version %d acknowledged to writers %d and %d", got.Version, prev, w)
+				}
+				winners[got.Version] = w
+				mu.Unlock()
+				done++
+			}
+		}(w)
+	}
+	wg.Wait()
+	close(errs)
+	for err := range errs {
+		t.Error(err)
+	}
+	final, err := c.Facility(ctx, f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := 1 + writers*each; final.Version != want || len(winners) != writers*each {
+		t.Errorf("final version %d with %d winners, want %d and %d", final.Version, len(winners), want, writers*each)
+	}
+	if got := final.Operations.SecondsPerPoint; got != writers*each {
+		t.Errorf("counter = %v after %d acknowledged increments: an update was lost", got, writers*each)
+	}
+	vs, err := c.Versions(ctx, f.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, v := range vs[1:] {
+		if w, ok := winners[v.Version]; !ok || v.By != facilities.Actor(fmt.Sprintf("writer-%d", w)) {
+			t.Errorf("version %d recorded by %q, acknowledged to writer %d", v.Version, v.By, w)
+		}
+	}
+	t.Logf("%d stale attempts refused", stale.Load())
+}
+
+func testConcurrentCreates(t *testing.T, c facilities.Catalog) {
+	const writers = 6
+	ctx := context.Background()
+	var wins, conflicts atomic.Int64
+	var wg sync.WaitGroup
+	for w := 0; w < writers; w++ {
+		wg.Add(1)
+		go func(w int) {
+			defer wg.Done()
+			f := demo(t, "wtn-04")
+			f.Name = fmt.Sprintf("writer %d", w)
+			_, err := c.CreateFacility(ctx, f, facilities.Actor(f.Name))
+			switch facilities.ErrorCode(err) {
+			case "":
+				if err != nil {
+					t.Errorf("writer %d: %v", w, err)
+					return
+				}
+				wins.Add(1)
+			case facilities.CodeConflict:
+				conflicts.Add(1)
+			default:
+				t.Errorf("writer %d: %v", w, err)
+			}
+		}(w)
+	}
+	wg.Wait()
+	if wins.Load() != 1 || conflicts.Load() != writers-1 {
+		t.Errorf("%d creates won and %d conflicted, want 1 and %d", wins.Load(), conflicts.Load(), writers-1)
+	}
+	vs, err := c.Versions(ctx, "wtn-04")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(vs) != 1 {
+		t.Errorf("%d versions after concurrent creates, want 1", len(vs))
+	}
+}
+
+func testConcurrentPlans(t *testing.T, c facilities.Catalog) {
+	const writers = 6
+	ctx := context.Background()
+	got := make([][]byte, writers)
+	var wg sync.WaitGroup
+	for w := 0; w < writers; w++ {
+		wg.Add(1)
+		go func(w int) {
+			defer wg.Done()
+			p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "same", Body: []byte(fmt.Sprintf(`{"writer":%d}`, w))})
+			if err != nil {
+				t.Errorf("writer %d: %v", w, err)
+				return
+			}
+			got[w] = p.Body
+		}(w)
+	}
+	wg.Wait()
+	stored, err := c.Plan(ctx, "same")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for w, b := range got {
+		if b != nil && !bytes.Equal(b, stored.Body) {
+			t.Errorf("writer %d was answered %q, but the store keeps %q", w, b, stored.Body)
+		}
+	}
+}
+
+func testCancelledContext(t *testing.T, c facilities.Catalog) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := c.CreateFacility(ctx, demo(t, "lsw-2"), "a"); err == nil {
+		t.Error("CreateFacility with a cancelled context succeeded")
+	}
+	if _, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "p", Body: []byte(`{}`)}); err == nil {
+		t.Error("SavePlan with a cancelled context succeeded")
+	}
+	bg := context.Background()
+	_, err := c.Facility(bg, "lsw-2")
+	wantCode(t, err, facilities.CodeNotFound)
+	_, err = c.Plan(bg, "p")
+	wantCode(t, err, facilities.CodeNotFound)
+}
+
+// cutContext is a context that cancels itself at its n-th look (Err or Done), so a
+// write is cut at a different point inside its transaction for each n.
+type cutContext struct {
+	context.Context
+	cancel context.CancelFunc
+	left   atomic.Int64
+}
+
+func newCut(n int64) *cutContext {
+	ctx, cancel := context.WithCancel(context.Background())
+	c := &cutContext{Context: ctx, cancel: cancel}
+	c.left.Store(n)
+	return c
+}
+
+func (c *cutContext) look() {
+	if c.left.Add(-1) < 0 {
+		c.cancel()
+	}
+}
+
+func (c *cutContext) Done() <-chan struct{} { c.look(); return c.Context.Done() }
+func (c *cutContext) Err() error            { c.look(); return c.Context.Err() }
+
+// snapshot is everything the suite can see of one facility and one plan.
+type snapshot struct {
+	version  int
+	body     string
+	versions int
+	lastBody string
+	plan     string
+}
+
+func take(t *testing.T, c facilities.Catalog, id, planID string) snapshot {
+	t.Helper()
+	ctx := context.Background()
+	var s snapshot
+	f, err := c.Facility(ctx, id)
+	if err != nil && facilities.ErrorCode(err) != facilities.CodeNotFound {
+		t.Fatal(err)
+	}
+	if err == nil {
+		s.version = f.Version
+		b, _ := facilities.CanonicalJSON(f)
+		s.body = string(b)
+	}
+	vs, err := c.Versions(ctx, id)
+	if err != nil && facilities.ErrorCode(err) != facilities.CodeNotFound {
+		t.Fatal(err)
+	}
+	s.versions = len(vs)
+	if len(vs) > 0 && vs[len(vs)-1].Facility != nil {
+		b, _ := facilities.CanonicalJSON(*vs[len(vs)-1].Facility)
+		s.lastBody = string(b)
+	}
+	p, err := c.Plan(ctx, planID)
+	if err != nil && facilities.ErrorCode(err) != facilities.CodeNotFound {
+		t.Fatal(err)
+	}
+	s.plan = string(p.Body)
+	return s
+}
+
+// testFailMidway cuts writes at every point the store looks at its context, from
+// before the transaction starts to after it commits. Each cut must leave either
+// the whole write or nothing: never a version row without its facility, a
+// facility at a version with no row, or a half-stored plan. A write that returned
+// no error must be there.
+func testFailMidway(t *testing.T, c facilities.Catalog) {
+	base := demo(t, "tsw-1")
+	mustCreate(t, c, base, "a")
+	type write struct {
+		name string
+		do   func(ctx context.Context, s snapshot) error
+		// after is the state the whole write leaves, given the state before.
+		after func(s snapshot) snapshot
+	}
+	var n int
+	writes := []write{
+		{"update", func(ctx context.Context, s snapshot) error {
+			f := base
+			n++
+			f.Name = fmt.Sprintf("edit %d", n)
+			_, err := c.UpdateFacility(ctx, f, s.version, "cutter")
+			return err
+		}, nil},
+		{"save plan", func(ctx context.Context, s snapshot) error {
+			n++
+			_, err := c.SavePlan(ctx, facilities.PlanRecord{ID: fmt.Sprintf("cut-%d", n), FacilityID: base.ID,
+				FacilityVersion: s.version, Body: []byte(fmt.Sprintf(`{"n":%d}`, n))})
+			return err
+		}, nil},
+		{"delete", func(ctx context.Context, s snapshot) error {
+			return c.DeleteFacility(ctx, base.ID, s.version, "cutter")
+		}, nil},
+	}
+	for _, w := range writes {
+		t.Run(w.name, func(t *testing.T) {
+			for cut := int64(0); ; cut++ {
+				if cut > 500 {
+					t.Fatal("the write never completed within 500 looks at its context")
+				}
+				planID := fmt.Sprintf("cut-%d", n+1)
+				before := take(t, c, base.ID, planID)
+				err := w.do(newCut(cut), before)
+				after := take(t, c, base.ID, planID)
+				changed := after != before
+				switch w.name {
+				case "update":
+					if changed && (after.version != before.version+1 || after.versions != before.versions+1 || after.body != after.lastBody) {
+						t.Fatalf("cut %d left a torn update: before %+v after %+v", cut, before, after)
+					}
+				case "save plan":
+					if changed && (after.plan == "" || after.version != before.version || after.versions != before.versions) {
+						t.Fatalf("cut %d left a torn plan save: before %+v after %+v", cut, before, after)
+					}
+				case "delete":
+					if changed && (after.version != 0 || after.versions != before.versions+1) {
+						t.Fatalf("cut %d left a torn delete: before %+v after %+v", cut, before, after)
+					}
+				}
+				if err == nil && !changed {
+					t.Fatalf("cut %d: the write was acknowledged but is not in the store", cut)
+				}
+				if err != nil && !errors.Is(err, context.Canceled) && facilities.ErrorCode(err) == "" {
+					t.Logf("cut %d: %v", cut, err)
+				}
+				if err == nil {
+					t.Logf("the write completed after %d cuts", cut)
+					return
+				}
+			}
+		})
+	}
+}
+
+// testSeed checks the once-only seed of stores that implement facilities.Seeder.
+func testSeed(t *testing.T, c facilities.Catalog) {
+	s, ok := c.(facilities.Seeder)
+	if !ok {
+		t.Skipf("%T does not record seeds", c)
+	}
+	ctx := context.Background()
+	seeded, err := facilities.SeedDemo(ctx, c, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !seeded {
+		t.Fatal("the first start of an empty store was not seeded")
+	}
+	fs, err := c.Facilities(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(fs) != len(facilities.Demo()) {
+		t.Errorf("seeded %d facilities, want %d", len(fs), len(facilities.Demo()))
+	}
+	vs, err := c.Versions(ctx, fs[0].ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if vs[0].By != facilities.SeedActor {
+		t.Errorf("seed recorded as by %q, want %q", vs[0].By, facilities.SeedActor)
+	}
+	for _, f := range fs {
+		if err := c.DeleteFacility(ctx, f.ID, f.Version, "staff"); err != nil {
+			t.Fatal(err)
+		}
+	}
+	again, err := s.SeedOnce(ctx, facilities.Demo(), facilities.SeedActor)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fs, err = c.Facilities(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if again || len(fs) != 0 {
+		t.Errorf("a second start seeded again (%v) and lists %d facilities; deleted demo facilities must stay deleted", again, len(fs))
+	}
+}
+
+// testSeedDisabled checks that a first start without the demo catalog (--no-demo)
+// is recorded too, so a later start with it does not fill a store in use.
+func testSeedDisabled(t *testing.T, c facilities.Catalog) {
+	if _, ok := c.(facilities.Seeder); !ok {
+		t.Skipf("%T does not record seeds", c)
+	}
+	ctx := context.Background()
+	for i, demo := range []bool{false, true} {
+		seeded, err := facilities.SeedDemo(ctx, c, demo)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if seeded {
+			t.Errorf("start %d (demo %v) seeded the demo catalog, want no seed", i+1, demo)
+		}
+	}
+	fs, err := c.Facilities(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(fs) != 0 {
+		t.Errorf("%d facilities after a first start with --no-demo, want 0", len(fs))
+	}
+}
+
+func testPing(t *testing.T, c facilities.Catalog) {
+	if err := c.Ping(context.Background()); err != nil {
+		t.Errorf("Ping: %v", err)
+	}
+}
