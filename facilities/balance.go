@@ -1,0 +1,634 @@
+package facilities
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+)
+
+// standardGravity is g0 in m/s² (the 1976 standard atmosphere's value), used for
+// the model's weight.
+const standardGravity = 9.80665
+
+// ErrNoBalance is returned when a load check is asked of a facility with no balance.
+var ErrNoBalance = errors.New("facilities: the facility has no balance")
+
+// Coefficients are the aerodynamic coefficients of one test-matrix point, based on
+// the model's reference area S and reference length c. Lift C_L and drag C_D are in
+// wind axes (their plane is the model's plane of symmetry); the pitching moment C_m
+// is about the moment reference centre, positive nose-up; side force C_Y (positive
+// to starboard), rolling moment C_l (positive starboard wing down) and yawing moment
+// C_n (positive nose to starboard) are in body axes. Zero values are zero loads.
+type Coefficients struct {
+	CL float64 `json:"cl"`
+	CD float64 `json:"cd"`
+	Cm float64 `json:"cm"`
+	CY float64 `json:"cy"`
+	Cl float64 `json:"cl_roll"`
+	Cn float64 `json:"cn"`
+}
+
+// Point is one point of the test matrix: its angles of attack and sideslip in
+// degrees (geometric, in the test section), its coefficients, and the wall
+// correction's q_c/q at this point (0 means 1: no correction).
+type Point struct {
+	Alpha float64 `json:"alpha"`
+	Beta  float64 `json:"beta"`
+	Coefficients
+	DynamicPressureFactor float64 `json:"dynamic_pressure_factor"`
+}
+
+// Load is a set of the six balance components in body axes, indexed by the
+// Index* constants: forces in N, moments in N·m (or, for Point.Body, the
+// corresponding coefficients). Signs: normal force up (towards the model's top),
+// axial force aft, side force to starboard; rolling moment starboard wing down,
+// pitching moment nose-up, yawing moment nose to starboard (docs/axes.md).
+type Load [6]float64
+
+// Indices of the components of a Load.
+const (
+	IndexNormal = iota
+	IndexAxial
+	IndexSide
+	IndexRollingMoment
+	IndexPitchingMoment
+	IndexYawingMoment
+)
+
+// ComponentName returns the API name of Load component i ("normal", ...), or ""
+// when i is out of range.
+func ComponentName(i int) string {
+	switch i {
+	case IndexNormal:
+		return ComponentNormal
+	case IndexAxial:
+		return ComponentAxial
+	case IndexSide:
+		return ComponentSide
+	case IndexRollingMoment:
+		return ComponentRollingMoment
+	case IndexPitchingMoment:
+		return ComponentPitchingMoment
+	case IndexYawingMoment:
+		return ComponentYawingMoment
+	}
+	return ""
+}
+
+// componentIndex returns the Load index of an API component name, or −1.
+func componentIndex(name string) int {
+	for i := range 6 {
+		if ComponentName(i) == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// Body returns the point's coefficients in body axes: normal, axial and side force,
+// rolling, pitching and yawing moment about the moment reference centre. Lift and
+// drag are rotated from wind axes by α and β (wind-to-body rotation, e.g. Etkin &
+// Reid, Dynamics of Flight, 1996):
+//
+//	C_N = C_L·cos α + C_D·sin α·cos β
+//	C_A = C_D·cos α·cos β − C_L·sin α
+//	C_Y,body = C_Y − C_D·sin β
+//
+// C_Y, C_l, C_n are taken as given in body axes. At β = 0 these are physics.md §8.
+func (p Point) Body() Load {
+	sa, ca := math.Sincos(p.Alpha * math.Pi / 180)
+	sb, cb := math.Sincos(p.Beta * math.Pi / 180)
+	return Load{
+		IndexNormal:         p.CL*ca + p.CD*sa*cb,
+		IndexAxial:          p.CD*ca*cb - p.CL*sa,
+		IndexSide:           p.CY - p.CD*sb,
+		IndexRollingMoment:  p.Cl,
+		IndexPitchingMoment: p.Cm,
+		IndexYawingMoment:   p.Cn,
+	}
+}
+
+// Offset is a position in the model's plane of symmetry relative to the balance
+// moment centre, in metres: X positive forward, Z positive up (body axes).
+type Offset struct {
+	X float64 `json:"x" unit:"m"`
+	Z float64 `json:"z" unit:"m"`
+}
+
+// Installation is how the model sits on the balance.
+type Installation struct {
+	// BalanceID names the balance; "": choose the balance with the highest peak
+	// utilisation that still respects its safety factor.
+	BalanceID string `json:"balance_id,omitempty"`
+	// BalanceOffset is the moment reference centre minus the balance moment centre,
+	// in m; zero: they coincide. When the planner chooses the scale, the offset is
+	// the same physical distance on every candidate model.
+	BalanceOffset Offset `json:"balance_offset" unit:"m"`
+	// ModelMass is the mass of the model (metric part, on the balance) in kg; 0:
+	// weight left out of the check, with a warning. When the planner chooses the
+	// scale the same mass is used for every candidate model.
+	ModelMass float64 `json:"model_mass,omitempty" unit:"kg"`
+	// CGOffset is the model's centre of gravity minus the balance moment centre, in m.
+	CGOffset Offset `json:"cg_offset" unit:"m"`
+}
+
+// AeroLoads returns the aerodynamic loads at the balance moment centre for body-axis
+// coefficients body (from Point.Body), where qS is the dynamic pressure felt by the
+// model times its reference area (N) and qSc that times its reference length (N·m),
+// and off is the moment reference centre minus the balance moment centre. Forces
+// are qS times their coefficients; moments are carried to the balance centre
+// (physics.md §8):
+//
+//	l_bal = l_ref + Y·Δz
+//	m_bal = m_ref + N·Δx + A·Δz
+//	n_bal = n_ref + Y·Δx
+func AeroLoads(body Load, qS, qSc float64, off Offset) Load {
+	n := qS * body[IndexNormal]
+	a := qS * body[IndexAxial]
+	y := qS * body[IndexSide]
+	return Load{
+		IndexNormal:         n,
+		IndexAxial:          a,
+		IndexSide:           y,
+		IndexRollingMoment:  qSc*body[IndexRollingMoment] + y*off.Z,
+		IndexPitchingMoment: qSc*body[IndexPitchingMoment] + n*off.X + a*off.Z,
+		IndexYawingMoment:   qSc*body[IndexYawingMoment] + y*off.X,
+	}
+}
+
+// WeightLoads returns the loads at the balance moment centre from the model's weight
+// W = m·g0 acting at its centre of gravity, at angle of attack alphaDeg (degrees):
+//
+//	N_w = −W·cos α,  A_w = +W·sin α,  m_w = N_w·x_cg + A_w·z_cg
+//
+// (physics.md §8). The sideslip is taken as not tilting the weight (exact at β = 0).
+// It returns zero loads when ModelMass is 0.
+func (in Installation) WeightLoads(alphaDeg float64) Load {
+	if in.ModelMass == 0 {
+		return Load{}
+	}
+	w := in.ModelMass * standardGravity
+	sa, ca := math.Sincos(alphaDeg * math.Pi / 180)
+	n := -w * ca
+	a := w * sa
+	return Load{
+		IndexNormal:         n,
+		IndexAxial:          a,
+		IndexPitchingMoment: n*in.CGOffset.X + a*in.CGOffset.Z,
+	}
+}
+
+// rating is one row of a balance's limits: a single component (index ≥ 0) or a
+// combined gauge row (index −1, coefficients coef).
+type rating struct {
+	name    string
+	index   int
+	coef    Load
+	limit   float64 // rated load
+	allowed float64 // limit / safety factor
+}
+
+func (r *rating) value(l *Load) float64 {
+	if r.index >= 0 {
+		return l[r.index]
+	}
+	var s float64
+	for i, c := range r.coef {
+		s += c * l[i]
+	}
+	return s
+}
+
+// Ratings are a balance's limits compiled for fast checks. Build them with
+// Balance.Ratings; the zero value limits nothing.
+type Ratings struct {
+	rows []rating
+	// SafetyFactor divides every rated load.
+	SafetyFactor float64
+}
+
+// Ratings compiles the balance's limits. A safety factor of 0 is taken as 1; one
+// below 1, a non-positive rated load or an unknown component name in a combined
+// row is an error naming the field under "balance".
+func (b *Balance) Ratings() (Ratings, error) { return b.ratings("balance") }
+
+func (b *Balance) ratings(path string) (Ratings, error) {
+	var fe []FieldError
+	sf := b.SafetyFactor
+	switch {
+	case sf == 0:
+		sf = 1
+	case !(sf >= 1) || math.IsInf(sf, 0):
+		fe = append(fe, FieldError{path + ".safety_factor", fmt.Sprintf("must be at least 1, got %g", sf)})
+	}
+	rs := Ratings{SafetyFactor: sf}
+	single := [6]*float64{b.Limits.Normal, b.Limits.Axial, b.Limits.Side,
+		b.Limits.RollingMoment, b.Limits.PitchingMoment, b.Limits.YawingMoment}
+	for i, l := range single {
+		if l == nil {
+			continue
+		}
+		if !(*l > 0) || math.IsInf(*l, 0) {
+			fe = append(fe, FieldError{path + ".limits." + ComponentName(i), fmt.Sprintf("must be a positive finite load, got %g", *l)})
+			continue
+		}
+		rs.rows = append(rs.rows, rating{name: ComponentName(i), index: i, limit: *l, allowed: *l / sf})
+	}
+	for j, c := range b.Combined {
+		p := fmt.Sprintf("%s.combined[%d]", path, j)
+		r := rating{name: c.Name, index: -1, limit: c.Limit, allowed: c.Limit / sf}
+		if r.name == "" {
+			r.name = fmt.Sprintf("combined[%d]", j)
+		}
+		if !(c.Limit > 0) || math.IsInf(c.Limit, 0) {
+			fe = append(fe, FieldError{p + ".limit", fmt.Sprintf("must be a positive finite load, got %g", c.Limit)})
+		}
+		keys := make([]string, 0, len(c.Coefficients))
+		for k := range c.Coefficients {
+			keys = append(keys, k)
+		}
+		sort.Strings(keys)
+		for _, k := range keys {
+			i := componentIndex(k)
+			v := c.Coefficients[k]
+			switch {
+			case i < 0:
+				fe = append(fe, FieldError{p + ".coefficients." + k, "unknown component: want normal, axial, side, rolling_moment, pitching_moment or yawing_moment"})
+			case math.IsNaN(v) || math.IsInf(v, 0):
+				fe = append(fe, FieldError{p + ".coefficients." + k, "must be finite"})
+			default:
+				r.coef[i] = v
+			}
+		}
+		rs.rows = append(rs.rows, r)
+	}
+	if err := Invalid("balance limits are not usable", fe); err != nil {
+		return Ratings{}, err
+	}
+	return rs, nil
+}
+
+// Utilization returns the largest |load|/rating over the components and combined
+// rows, and the index of the row that gives it (−1 when nothing is limited).
+func (rs *Ratings) Utilization(l *Load) (u float64, row int) {
+	row = -1
+	for i := range rs.rows {
+		r := &rs.rows[i]
+		if v := math.Abs(r.value(l)) / r.limit; v > u || row < 0 {
+			u, row = v, i
+		}
+	}
+	return u, row
+}
+
+// RowName returns the name of row i: a component name or a combined row's name.
+func (rs *Ratings) RowName(i int) string {
+	if i < 0 || i >= len(rs.rows) {
+		return ""
+	}
+	return rs.rows[i].name
+}
+
+// MaxDynamicPressure returns the largest free-stream dynamic pressure q in Pa at
+// which the load q·perQ + weight stays within every rating over the safety factor,
+// and the row that sets it. Loads are affine in q, so each row is solved exactly:
+// with u = row(perQ), w = row(weight) and allowed = rating/SafetyFactor,
+//
+//	q_max = (allowed − sign(u)·w)/|u|
+//
+// It returns 0 when the weight alone exceeds a row, and +Inf (row −1) when no row
+// grows with q.
+func (rs *Ratings) MaxDynamicPressure(perQ, weight *Load) (q float64, row int) {
+	q, row = math.Inf(1), -1
+	for i := range rs.rows {
+		r := &rs.rows[i]
+		w := r.value(weight)
+		if math.Abs(w) > r.allowed {
+			return 0, i
+		}
+		u := r.value(perQ)
+		if u == 0 {
+			continue
+		}
+		qi := (r.allowed - math.Copysign(1, u)*w) / math.Abs(u)
+		if qi < q {
+			q, row = qi, i
+		}
+	}
+	return q, row
+}
+
+// LoadCase is the input of a balance load check: a model at test scale in the test
+// section, its installation and its test matrix with coefficients and wall
+// corrections.
+type LoadCase struct {
+	// ReferenceArea is the model's reference area S in m².
+	ReferenceArea float64
+	// ReferenceLength is the model's reference length c in m (moment coefficients).
+	ReferenceLength float64
+	// Installation places the model on the balance.
+	Installation Installation
+	// Points is the test matrix.
+	Points []Point
+}
+
+// LoadPoint is the loads of one test point at the balance moment centre, body axes,
+// wall corrections and weight included: forces in N, moments in N·m, angles in
+// degrees. Utilization is the largest |load|/rating of the point (not divided by
+// the safety factor); Limiting names the component or gauge row that gives it.
+type LoadPoint struct {
+	Alpha           float64 `json:"alpha"`
+	Beta            float64 `json:"beta"`
+	DynamicPressure float64 `json:"dynamic_pressure"`
+	Normal          float64 `json:"normal"`
+	Axial           float64 `json:"axial"`
+	Side            float64 `json:"side"`
+	PitchingMoment  float64 `json:"pitching_moment"`
+	RollingMoment   float64 `json:"rolling_moment"`
+	YawingMoment    float64 `json:"yawing_moment"`
+	Utilization     float64 `json:"utilization"`
+	Limiting        string  `json:"limiting,omitempty"`
+}
+
+// Limiting names a component (or gauge row) and the test point where it binds.
+type Limiting struct {
+	Component string  `json:"component"`
+	Alpha     float64 `json:"alpha"`
+	Beta      float64 `json:"beta"`
+}
+
+// LoadReport is the load check of one balance over the test matrix.
+type LoadReport struct {
+	// BalanceID names the balance.
+	BalanceID string `json:"balance_id"`
+	// SafetyFactor is the balance's safety factor (0 taken as 1).
+	SafetyFactor float64 `json:"safety_factor"`
+	// AllowedUtilization is 1/SafetyFactor.
+	AllowedUtilization float64 `json:"allowed_utilization"`
+	// DynamicPressure is the free-stream dynamic pressure checked, in Pa.
+	DynamicPressure float64 `json:"dynamic_pressure"`
+	// Points are the loads of every test point.
+	Points []LoadPoint `json:"points"`
+	// MaxUtilization is the largest point utilisation.
+	MaxUtilization float64 `json:"max_utilization"`
+	// WithinLimits reports MaxUtilization ≤ AllowedUtilization.
+	WithinLimits bool `json:"within_limits"`
+	// Limiting is the component and point of MaxUtilization.
+	Limiting Limiting `json:"limiting"`
+	// MaxSafeDynamicPressure is the free-stream dynamic pressure in Pa at which the
+	// worst point reaches AllowedUtilization; 0 when the weight alone exceeds it;
+	// +Inf (JSON null) when no rated load grows with q.
+	MaxSafeDynamicPressure float64 `json:"max_safe_dynamic_pressure"`
+	// MaxSafeLimiting is the component and point that set MaxSafeDynamicPressure.
+	MaxSafeLimiting Limiting `json:"max_safe_limiting"`
+	// WeightIncluded reports whether the model's weight is in the loads.
+	WeightIncluded bool `json:"weight_included"`
+	// Warnings are notes on the check's inputs.
+	Warnings []string `json:"warnings,omitempty"`
+}
+
+// MarshalJSON writes the report, with an unbounded MaxSafeDynamicPressure as null.
+func (r LoadReport) MarshalJSON() ([]byte, error) {
+	type plain LoadReport
+	v := struct {
+		plain
+		MaxSafe *float64 `json:"max_safe_dynamic_pressure"`
+	}{plain: plain(r)}
+	if !math.IsInf(r.MaxSafeDynamicPressure, 0) {
+		v.MaxSafe = &r.MaxSafeDynamicPressure
+	}
+	return json.Marshal(v)
+}
+
+// validate checks the case's numbers, naming fields by their request paths.
+func (lc *LoadCase) validate(q float64) error {
+	var fe []FieldError
+	finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+	if !(lc.ReferenceArea > 0) || !finite(lc.ReferenceArea) {
+		fe = append(fe, FieldError{"article.reference_area", "model reference area must be positive"})
+	}
+	if !(lc.ReferenceLength > 0) || !finite(lc.ReferenceLength) {
+		fe = append(fe, FieldError{"article.reference_length", "model reference length must be positive"})
+	}
+	in := lc.Installation
+	if !(in.ModelMass >= 0) || !finite(in.ModelMass) {
+		fe = append(fe, FieldError{"installation.model_mass", fmt.Sprintf("must be 0 or a positive mass in kg, got %g", in.ModelMass)})
+	}
+	for _, o := range []struct {
+		name string
+		v    float64
+	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
+		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
+		if !finite(o.v) {
+			fe = append(fe, FieldError{"installation." + o.name, "must be a finite length in m"})
+		}
+	}
+	if !(q >= 0) || !finite(q) {
+		fe = append(fe, FieldError{"test.dynamic_pressure", fmt.Sprintf("must be a non-negative dynamic pressure in Pa, got %g", q)})
+	}
+	if len(lc.Points) == 0 {
+		fe = append(fe, FieldError{"alpha", "the test matrix has no points"})
+	}
+	return Invalid("load check", fe)
+}
+
+// Affine returns the loads of point i at the balance as perQ·q + weight, where q is
+// the free-stream dynamic pressure: perQ holds the aerodynamic loads per pascal of
+// free-stream q (the point's wall correction q_c/q included), weight the model's
+// weight.
+func (lc *LoadCase) Affine(i int) (perQ, weight Load) {
+	p := lc.Points[i]
+	f := p.DynamicPressureFactor
+	if f == 0 {
+		f = 1
+	}
+	qS := f * lc.ReferenceArea
+	perQ = AeroLoads(p.Body(), qS, qS*lc.ReferenceLength, lc.Installation.BalanceOffset)
+	weight = lc.Installation.WeightLoads(p.Alpha)
+	return perQ, weight
+}
+
+// Check returns the loads of every test point on balance b at free-stream dynamic
+// pressure q (Pa), the utilisation of each point, the worst point, and the largest
+// safe free-stream dynamic pressure. Bad input is a *Error naming the field.
+func (lc *LoadCase) Check(b *Balance, q float64) (LoadReport, error) {
+	return lc.check(b, q, "balance")
+}
+
+func (lc *LoadCase) check(b *Balance, q float64, path string) (LoadReport, error) {
+	if err := lc.validate(q); err != nil {
+		return LoadReport{}, err
+	}
+	rs, err := b.ratings(path)
+	if err != nil {
+		return LoadReport{}, err
+	}
+	r := LoadReport{
+		BalanceID:              b.ID,
+		SafetyFactor:           rs.SafetyFactor,
+		AllowedUtilization:     1 / rs.SafetyFactor,
+		DynamicPressure:        q,
+		Points:                 make([]LoadPoint, len(lc.Points)),
+		MaxSafeDynamicPressure: math.Inf(1),
+		WeightIncluded:         lc.Installation.ModelMass > 0,
+	}
+	if !r.WeightIncluded {
+		r.Warnings = append(r.Warnings, "model_mass not given: the model's weight is left out of the balance loads")
+	}
+	worst := -1
+	for i, p := range lc.Points {
+		perQ, weight := lc.Affine(i)
+		var l Load
+		for k := range l {
+			l[k] = q*perQ[k] + weight[k]
+		}
+		u, row := rs.Utilization(&l)
+		f := p.DynamicPressureFactor
+		if f == 0 {
+			f = 1
+		}
+		r.Points[i] = LoadPoint{
+			Alpha: p.Alpha, Beta: p.Beta, DynamicPressure: q * f,
+			Normal: l[IndexNormal], Axial: l[IndexAxial], Side: l[IndexSide],
+			RollingMoment: l[IndexRollingMoment], PitchingMoment: l[IndexPitchingMoment],
+			YawingMoment: l[IndexYawingMoment],
+			Utilization:  u, Limiting: rs.RowName(row),
+		}
+		if worst < 0 || u > r.MaxUtilization {
+			worst, r.MaxUtilization = i, u
+			r.Limiting = Limiting{rs.RowName(row), p.Alpha, p.Beta}
+		}
+		if qs, row := rs.MaxDynamicPressure(&perQ, &weight); qs < r.MaxSafeDynamicPressure {
+			r.MaxSafeDynamicPressure = qs
+			r.MaxSafeLimiting = Limiting{rs.RowName(row), p.Alpha, p.Beta}
+		}
+	}
+	r.WithinLimits = r.MaxUtilization <= r.AllowedUtilization*(1+1e-12)
+	return r, nil
+}
+
+// CheckAll returns the load check of every balance of facility f, in the
+// facility's order; ErrNoBalance when it has none.
+func (lc *LoadCase) CheckAll(f *Facility, q float64) ([]LoadReport, error) {
+	if len(f.Balances) == 0 {
+		return nil, ErrNoBalance
+	}
+	out := make([]LoadReport, len(f.Balances))
+	for i := range f.Balances {
+		r, err := lc.check(&f.Balances[i], q, fmt.Sprintf("facility.balances[%d]", i))
+		if err != nil {
+			return nil, err
+		}
+		out[i] = r
+	}
+	return out, nil
+}
+
+// BalanceChoice is the balance a load check settled on, with the reason in a
+// sentence for the plan, and the checks of every balance considered.
+type BalanceChoice struct {
+	Report LoadReport
+	Reason string
+	All    []LoadReport
+}
+
+// ChooseBalance checks the installation's named balance, or, when none is named,
+// picks among the facility's balances the one with the highest peak utilisation
+// that still keeps every point at or under 1/safety factor: the most heavily used
+// balance that is safe resolves the loads best. A named balance that does not exist
+// is a CodeInvalid error on installation.balance_id; no balance that can carry the
+// loads is a CodeUnprocessable error naming the "balance" limit; a facility without
+// balances is ErrNoBalance.
+func (lc *LoadCase) ChooseBalance(f *Facility, q float64) (BalanceChoice, error) {
+	if id := lc.Installation.BalanceID; id != "" {
+		for i := range f.Balances {
+			if f.Balances[i].ID != id {
+				continue
+			}
+			r, err := lc.check(&f.Balances[i], q, fmt.Sprintf("facility.balances[%d]", i))
+			if err != nil {
+				return BalanceChoice{}, err
+			}
+			return BalanceChoice{Report: r, Reason: fmt.Sprintf("balance %s as requested", id), All: []LoadReport{r}}, nil
+		}
+		ids := make([]string, len(f.Balances))
+		for i, b := range f.Balances {
+			ids[i] = b.ID
+		}
+		return BalanceChoice{}, &Error{Code: CodeInvalid, Message: "unknown balance",
+			Fields: []FieldError{{"installation.balance_id", fmt.Sprintf("facility %s has no balance %q; it has: %s", f.ID, id, strings.Join(ids, ", "))}}}
+	}
+	all, err := lc.CheckAll(f, q)
+	if err != nil {
+		return BalanceChoice{}, err
+	}
+	best := -1
+	for i, r := range all {
+		if r.WithinLimits && (best < 0 || r.MaxUtilization > all[best].MaxUtilization) {
+			best = i
+		}
+	}
+	if best < 0 {
+		parts := make([]string, len(all))
+		for i, r := range all {
+			parts[i] = fmt.Sprintf("%s reaches %.0f %% of its %s rating at α %.4g° (allowed %.0f %%)",
+				r.BalanceID, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
+		}
+		return BalanceChoice{All: all}, &Error{Code: CodeUnprocessable,
+			Message: "no balance of facility " + f.ID + " can carry the loads: " + strings.Join(parts, "; "),
+			Limits:  []string{ConstraintBalance}}
+	}
+	r := all[best]
+	reason := fmt.Sprintf("balance %s chosen: at %.0f %% peak utilisation (%s at α %.4g°, allowed %.0f %%) it is the most heavily used balance that keeps every point within its safety factor, so it resolves the loads best",
+		r.BalanceID, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
+	if len(all) == 1 {
+		reason = fmt.Sprintf("balance %s chosen: the facility's only balance, at %.0f %% peak utilisation (allowed %.0f %%)",
+			r.BalanceID, 100*r.MaxUtilization, 100*r.AllowedUtilization)
+	}
+	return BalanceChoice{Report: r, Reason: reason, All: all}, nil
+}
+
+// CautionFraction is the share of the allowed utilisation (1/safety factor) above
+// which a load answer carries a caution naming the component and point (80 %).
+const CautionFraction = 0.8
+
+// pressureCautionAbove is the stagnation pressure in Pa above which a facility is
+// treated as a pressure vessel in the cautions: 0.5 bar above a standard
+// atmosphere, a common threshold of pressure-equipment rules (common practice).
+const pressureCautionAbove = 101325 + 50000
+
+// cryogenicBelow is the stagnation temperature in K below which a facility is
+// treated as cryogenic in the cautions (common practice).
+const cryogenicBelow = 200
+
+// Cautions returns the cautions that go with every load answer for facility f and
+// the given load reports: the standing caution that these are estimates, a caution
+// for every report whose worst point exceeds CautionFraction of its allowed
+// utilisation (naming the component and angle), and the facility's cautions on
+// pressure vessels and cryogenic nitrogen when they apply.
+func Cautions(f *Facility, reports ...LoadReport) []string {
+	out := []string{
+		"These loads are engineering estimates from a simplified aerodynamic model, not a clearance to run: the facility's approved balance ratings, the model's stress analysis, the facility's operating procedures and the judgement of a licensed engineer govern.",
+	}
+	for _, r := range reports {
+		if r.MaxUtilization > CautionFraction*r.AllowedUtilization {
+			out = append(out, fmt.Sprintf("Balance %s: %s reaches %.0f %% of its rating at α %.4g°, β %.4g° (%.0f %% of the %.0f %% allowed by the safety factor %.3g); confirm the estimate with a stepped approach in dynamic pressure and live load monitoring.",
+				r.BalanceID, r.Limiting.Component, 100*r.MaxUtilization, r.Limiting.Alpha, r.Limiting.Beta,
+				100*r.MaxUtilization/r.AllowedUtilization, 100*r.AllowedUtilization, r.SafetyFactor))
+		}
+	}
+	if f == nil {
+		return out
+	}
+	if f.StagnationPressure.Max > pressureCautionAbove {
+		out = append(out, fmt.Sprintf("Facility %s is a pressure vessel (stagnation pressure up to %.0f kPa): only its certified pressure limits and its pressurisation procedures apply; access to the circuit and model changes need it vented first.",
+			f.ID, f.StagnationPressure.Max/1000))
+	}
+	if f.Medium.Kind == MediumNitrogen || (f.Medium.Kind != MediumWater && f.StagnationTemperature.Min > 0 && f.StagnationTemperature.Min < cryogenicBelow) {
+		out = append(out, fmt.Sprintf("Facility %s runs on nitrogen, possibly cryogenic: nitrogen displaces oxygen without warning and cold gas and surfaces burn; follow the facility's oxygen monitoring, confined-space and warm-up procedures, and check the model's materials and balance calibration at the test temperature.", f.ID))
+	}
+	return out
+}

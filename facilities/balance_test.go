@@ -1,0 +1,462 @@
+package facilities_test
+
+import (
+	"encoding/json"
+	"errors"
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+
+	"scalematch/facilities"
+)
+
+func ptr(v float64) *float64 { return &v }
+
+// sixComponent is a balance like ext-6c of the demo world, with its gauge row.
+func sixComponent() facilities.Balance {
+	return facilities.Balance{
+		ID: "six",
+		Limits: facilities.Limits{Normal: ptr(9000), Axial: ptr(1500), Side: ptr(4000),
+			RollingMoment: ptr(900), PitchingMoment: ptr(1200), YawingMoment: ptr(900)},
+		Combined: []facilities.CombinedLimit{{Name: "forward gauge",
+			Coefficients: map[string]float64{"normal": 0.5, "pitching_moment": 4.0}, Limit: 6000}},
+		SafetyFactor: 1.5,
+	}
+}
+
+func onePoint(alpha float64, c facilities.Coefficients) []facilities.Point {
+	return []facilities.Point{{Alpha: alpha, Coefficients: c}}
+}
+
+// TestLoadsSigns checks the sign conventions of docs/axes.md on cases worked by hand
+// (S = 1 m², c = 1 m unless noted; g0 = 9.80665 m/s²).
+func TestLoadsSigns(t *testing.T) {
+	cases := []struct {
+		name string
+		lc   facilities.LoadCase
+		q    float64
+		want facilities.LoadPoint
+		tol  float64
+	}{{
+		// Pure lift at α = 0 with the moment reference centre 0.1 m ahead of the
+		// balance: N = 1000 N; m = N·Δx = +100 N·m, nose-up.
+		name: "normal force ahead is nose-up",
+		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: facilities.Installation{BalanceOffset: facilities.Offset{X: 0.1}},
+			Points:       onePoint(0, facilities.Coefficients{CL: 1})},
+		q:    1000,
+		want: facilities.LoadPoint{Normal: 1000, PitchingMoment: 100},
+		tol:  1e-9,
+	}, {
+		// Pure drag at α = 0 with the reference centre 0.2 m above the balance:
+		// A = 50 N aft; m = A·Δz = +10 N·m (drag above the centre pitches nose-up).
+		name: "axial force above is nose-up",
+		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: facilities.Installation{BalanceOffset: facilities.Offset{Z: 0.2}},
+			Points:       onePoint(0, facilities.Coefficients{CD: 0.05})},
+		q:    1000,
+		want: facilities.LoadPoint{Axial: 50, PitchingMoment: 10},
+		tol:  1e-9,
+	}, {
+		// Lift at α = 90°: the lift points along −x body, so A = −L = −1000 N, N = 0.
+		name: "lift at 90 degrees is forward axial",
+		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+			Points: onePoint(90, facilities.Coefficients{CL: 1})},
+		q:    1000,
+		want: facilities.LoadPoint{Alpha: 90, Axial: -1000},
+		tol:  1e-9,
+	}, {
+		// Weight alone at α = 0: W = 10 kg·9.80665 = 98.0665 N down, N = −98.0665 N;
+		// CG 0.2 m ahead: m = −98.0665·0.2 = −19.6133 N·m, nose-down.
+		name: "weight at alpha 0",
+		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: facilities.Installation{ModelMass: 10, CGOffset: facilities.Offset{X: 0.2, Z: 0.1}},
+			Points:       onePoint(0, facilities.Coefficients{CL: 1, CD: 1})},
+		q:    0,
+		want: facilities.LoadPoint{Normal: -98.0665, PitchingMoment: -19.6133},
+		tol:  1e-9,
+	}, {
+		// Weight alone at α = 90° (nose up, vertical): A = +98.0665 N (aft along the
+		// body); CG 0.1 m above the balance: m = A·z = +9.80665 N·m.
+		name: "weight at alpha 90",
+		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: facilities.Installation{ModelMass: 10, CGOffset: facilities.Offset{X: 0.2, Z: 0.1}},
+			Points:       onePoint(90, facilities.Coefficients{})},
+		q:    0,
+		want: facilities.LoadPoint{Alpha: 90, Axial: 98.0665, PitchingMoment: 9.80665},
+		tol:  1e-9,
+	}, {
+		// Side force ahead of and above the balance: Y = 200 N to starboard,
+		// n = Y·Δx = +60 N·m (nose to starboard), l = Y·Δz = +20 N·m (starboard down).
+		name: "side force transfer",
+		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: facilities.Installation{BalanceOffset: facilities.Offset{X: 0.3, Z: 0.1}},
+			Points:       onePoint(0, facilities.Coefficients{CY: 0.2})},
+		q:    1000,
+		want: facilities.LoadPoint{Side: 200, YawingMoment: 60, RollingMoment: 20},
+		tol:  1e-9,
+	}, {
+		// Drag at β = 10°: A = D·cos β = 984.808 N, Y = −D·sin β = −173.648 N.
+		name: "drag in sideslip",
+		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+			Points: []facilities.Point{{Beta: 10, Coefficients: facilities.Coefficients{CD: 1}}}},
+		q:    1000,
+		want: facilities.LoadPoint{Beta: 10, Axial: 984.807753, Side: -173.648178},
+		tol:  1e-6,
+	}, {
+		// Wall correction: q_c = 1.1·q, so N = 1.1·1000 N and the point's q is 1100 Pa.
+		name: "corrected dynamic pressure",
+		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+			Points: []facilities.Point{{Coefficients: facilities.Coefficients{CL: 1}, DynamicPressureFactor: 1.1}}},
+		q:    1000,
+		want: facilities.LoadPoint{Normal: 1100},
+		tol:  1e-9,
+	}}
+	b := sixComponent()
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r, err := c.lc.Check(&b, c.q)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := r.Points[0]
+			for _, f := range []struct {
+				name      string
+				got, want float64
+			}{
+				{"normal", got.Normal, c.want.Normal}, {"axial", got.Axial, c.want.Axial},
+				{"side", got.Side, c.want.Side}, {"rolling", got.RollingMoment, c.want.RollingMoment},
+				{"pitching", got.PitchingMoment, c.want.PitchingMoment}, {"yawing", got.YawingMoment, c.want.YawingMoment},
+			} {
+				if math.Abs(f.got-f.want) > c.tol {
+					t.Errorf("%s = %.9g, want %.9g", f.name, f.got, f.want)
+				}
+			}
+			if c.want.DynamicPressure != 0 && got.DynamicPressure != c.want.DynamicPressure {
+				t.Errorf("point q = %g, want %g", got.DynamicPressure, c.want.DynamicPressure)
+			}
+		})
+	}
+}
+
+// TestGaugeRowBinds: N = 6000 N (67 % of 9000) and m = 800 N·m (67 % of 1200), but
+// the forward gauge 0.5·N + 4·m = 3000 + 3200 = 6200 N against 6000 N is 103 %.
+func TestGaugeRowBinds(t *testing.T) {
+	b := sixComponent()
+	lc := facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+		Points: onePoint(0, facilities.Coefficients{CL: 6, Cm: 0.8})}
+	r, err := lc.Check(&b, 1000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Limiting.Component != "forward gauge" {
+		t.Errorf("limiting = %q, want the forward gauge", r.Limiting.Component)
+	}
+	if want := 6200.0 / 6000; math.Abs(r.MaxUtilization-want) > 1e-12 {
+		t.Errorf("utilisation = %.12g, want %.12g", r.MaxUtilization, want)
+	}
+	if r.WithinLimits {
+		t.Error("within limits at 103 % of a gauge rating, want not")
+	}
+	// The gauge reaches 6000/1.5 = 4000 N at q = 4000/6.2 Pa.
+	if want := 4000 / 6.2; math.Abs(r.MaxSafeDynamicPressure-want) > 1e-9 || r.MaxSafeLimiting.Component != "forward gauge" {
+		t.Errorf("max safe q = %.12g by %q, want %.12g by the forward gauge", r.MaxSafeDynamicPressure, r.MaxSafeLimiting.Component, want)
+	}
+}
+
+// randomCase builds a seeded random load case over a 21-point α sweep.
+func randomCase(rng *rand.Rand, scale float64, weight bool) facilities.LoadCase {
+	lc := facilities.LoadCase{ReferenceArea: 85 * scale * scale, ReferenceLength: 3.9 * scale,
+		Installation: facilities.Installation{
+			BalanceOffset: facilities.Offset{X: scale * (rng.Float64() - 0.5), Z: scale * (rng.Float64() - 0.5) * 0.2},
+		}}
+	if weight {
+		lc.Installation.ModelMass = 5 + 40*rng.Float64()
+		lc.Installation.CGOffset = facilities.Offset{X: 0.1 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)}
+	}
+	for i := range 21 {
+		a := -4 + float64(i)
+		cl := 5.6 * (a + 1.5) * math.Pi / 180
+		lc.Points = append(lc.Points, facilities.Point{Alpha: a, Beta: 4 * (rng.Float64() - 0.5), Coefficients: facilities.Coefficients{
+			CL: cl, CD: 0.024 + 0.042*(cl-0.15)*(cl-0.15), Cm: 0.03 - 0.9*a*math.Pi/180,
+			CY: 0.05 * (rng.Float64() - 0.5), Cl: 0.01 * (rng.Float64() - 0.5), Cn: 0.01 * (rng.Float64() - 0.5)}})
+	}
+	return lc
+}
+
+// TestLoadsScale: with weight and wall corrections off, forces scale exactly with
+// q·s² and moments with q·s³ (offsets scaled with the model).
+func TestLoadsScale(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	b := sixComponent()
+	for trial := range 50 {
+		s := 0.02 + 0.2*rng.Float64()
+		k := 0.1 + 10*rng.Float64()
+		q := 1000 + 50000*rng.Float64()
+		seed := rng.Uint64()
+		a := randomCase(rand.New(rand.NewPCG(seed, 3)), s, false)
+		c := randomCase(rand.New(rand.NewPCG(seed, 3)), k*s, false)
+		ra, err := a.Check(&b, q)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rb, err := c.Check(&b, 2*q)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := range ra.Points {
+			pa, pb := ra.Points[i], rb.Points[i]
+			for _, f := range []struct {
+				name   string
+				a, b   float64
+				factor float64
+			}{
+				{"normal", pa.Normal, pb.Normal, 2 * k * k},
+				{"axial", pa.Axial, pb.Axial, 2 * k * k},
+				{"side", pa.Side, pb.Side, 2 * k * k},
+				{"rolling", pa.RollingMoment, pb.RollingMoment, 2 * k * k * k},
+				{"pitching", pa.PitchingMoment, pb.PitchingMoment, 2 * k * k * k},
+				{"yawing", pa.YawingMoment, pb.YawingMoment, 2 * k * k * k},
+			} {
+				if math.Abs(f.a*f.factor-f.b) > 1e-12*math.Abs(f.b)+1e-9 {
+					t.Fatalf("trial %d α %g: %s %.15g × %.15g ≠ %.15g", trial, pa.Alpha, f.name, f.a, f.factor, f.b)
+				}
+			}
+		}
+	}
+}
+
+// TestMaxSafeDynamicPressure: at the reported q the worst point sits exactly at
+// 1/safety factor, with weight included.
+func TestMaxSafeDynamicPressure(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	b := sixComponent()
+	for trial := range 100 {
+		lc := randomCase(rng, 0.03+0.1*rng.Float64(), trial%2 == 0)
+		r, err := lc.Check(&b, 1000)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !(r.MaxSafeDynamicPressure > 0) || math.IsInf(r.MaxSafeDynamicPressure, 0) {
+			t.Fatalf("trial %d: max safe q = %g", trial, r.MaxSafeDynamicPressure)
+		}
+		at, err := lc.Check(&b, r.MaxSafeDynamicPressure)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Abs(at.MaxUtilization-1/1.5) > 1e-9 {
+			t.Errorf("trial %d: utilisation at max safe q %g = %.12g, want %.12g", trial, r.MaxSafeDynamicPressure, at.MaxUtilization, 1/1.5)
+		}
+		if at.Limiting != r.MaxSafeLimiting {
+			t.Errorf("trial %d: limiting at max safe q %+v, reported %+v", trial, at.Limiting, r.MaxSafeLimiting)
+		}
+	}
+}
+
+func TestWeightAloneBreaks(t *testing.T) {
+	b := facilities.Balance{ID: "small", Limits: facilities.Limits{Normal: ptr(100)}, SafetyFactor: 2}
+	// W = 12 kg·9.80665 = 117.7 N, above 100/2 = 50 N allowed.
+	lc := facilities.LoadCase{ReferenceArea: 0.1, ReferenceLength: 0.2,
+		Installation: facilities.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
+	r, err := lc.Check(&b, 10)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.MaxSafeDynamicPressure != 0 || r.WithinLimits {
+		t.Errorf("max safe q = %g, within %v; want 0, false", r.MaxSafeDynamicPressure, r.WithinLimits)
+	}
+}
+
+func TestUnlimitedJSON(t *testing.T) {
+	b := facilities.Balance{ID: "free"}
+	lc := facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1, Points: onePoint(0, facilities.Coefficients{CL: 1})}
+	r, err := lc.Check(&b, 1000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !math.IsInf(r.MaxSafeDynamicPressure, 1) {
+		t.Fatalf("max safe q = %g with no ratings, want +Inf", r.MaxSafeDynamicPressure)
+	}
+	out, err := json.Marshal(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(out), `"max_safe_dynamic_pressure":null`) || strings.Count(string(out), "max_safe_dynamic_pressure\"") != 1 {
+		t.Errorf("JSON %s: want one max_safe_dynamic_pressure, null", out)
+	}
+	if !strings.Contains(string(out), "model_mass not given") {
+		t.Errorf("JSON %s: want the warning that weight is left out", out)
+	}
+}
+
+func TestLoadErrors(t *testing.T) {
+	good := func() facilities.LoadCase {
+		return facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1, Points: onePoint(0, facilities.Coefficients{CL: 1})}
+	}
+	cases := []struct {
+		name  string
+		mod   func(*facilities.LoadCase, *facilities.Balance)
+		q     float64
+		field string
+	}{
+		{"negative mass", func(l *facilities.LoadCase, _ *facilities.Balance) { l.Installation.ModelMass = -1 }, 1, "installation.model_mass"},
+		{"NaN offset", func(l *facilities.LoadCase, _ *facilities.Balance) { l.Installation.CGOffset.X = math.NaN() }, 1, "installation.cg_offset.x"},
+		{"zero area", func(l *facilities.LoadCase, _ *facilities.Balance) { l.ReferenceArea = 0 }, 1, "article.reference_area"},
+		{"negative q", func(*facilities.LoadCase, *facilities.Balance) {}, -5, "test.dynamic_pressure"},
+		{"no points", func(l *facilities.LoadCase, _ *facilities.Balance) { l.Points = nil }, 1, "alpha"},
+		{"unknown gauge component", func(_ *facilities.LoadCase, b *facilities.Balance) {
+			b.Combined[0].Coefficients["lift"] = 1
+		}, 1, "balance.combined[0].coefficients.lift"},
+		{"safety factor below 1", func(_ *facilities.LoadCase, b *facilities.Balance) { b.SafetyFactor = 0.5 }, 1, "balance.safety_factor"},
+		{"zero rating", func(_ *facilities.LoadCase, b *facilities.Balance) { b.Limits.Axial = ptr(0) }, 1, "balance.limits.axial"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			lc, b := good(), sixComponent()
+			c.mod(&lc, &b)
+			_, err := lc.Check(&b, c.q)
+			var e *facilities.Error
+			if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
+				t.Fatalf("error %v, want a CodeInvalid *facilities.Error", err)
+			}
+			found := false
+			for _, f := range e.Fields {
+				found = found || f.Field == c.field
+			}
+			if !found {
+				t.Errorf("fields %+v, want %q", e.Fields, c.field)
+			}
+		})
+	}
+}
+
+// TestChooseBalance uses the demo facility lsw-2 (ext-6c and int-a, both with a
+// safety factor of 1.5).
+func TestChooseBalance(t *testing.T) {
+	f, ok := facilities.DemoFacility("lsw-2")
+	if !ok {
+		t.Fatal("demo facility lsw-2 missing")
+	}
+	lc := facilities.LoadCase{ReferenceArea: 0.3, ReferenceLength: 0.25,
+		Points: []facilities.Point{{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.2, CD: 0.03}},
+			{Alpha: 12, Coefficients: facilities.Coefficients{CL: 1.2, CD: 0.08, Cm: -0.1}}}}
+	cases := []struct {
+		name    string
+		q       float64
+		id      string
+		want    string
+		code    facilities.Code
+		inWords string
+	}{
+		// N ≈ 1.2·q·0.3: at q = 2000 Pa, about 730 N: int-a (4000 N) is used more and safe.
+		{"small loads pick the finer balance", 2000, "", "int-a", "", "most heavily used"},
+		// At 9000 Pa int-a's normal rating is exceeded over its safety factor.
+		{"large loads pick the stronger balance", 9000, "", "ext-6c", "", "most heavily used"},
+		{"named balance", 2000, "ext-6c", "ext-6c", "", "as requested"},
+		{"unknown balance", 2000, "nope", "", facilities.CodeInvalid, ""},
+		{"nothing carries it", 200000, "", "", facilities.CodeUnprocessable, ""},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			lc.Installation.BalanceID = c.id
+			ch, err := lc.ChooseBalance(&f, c.q)
+			if c.code != "" {
+				if facilities.ErrorCode(err) != c.code {
+					t.Fatalf("error %v, want code %s", err, c.code)
+				}
+				return
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if ch.Report.BalanceID != c.want || !strings.Contains(ch.Reason, c.inWords) {
+				t.Errorf("chose %s (%s), want %s", ch.Report.BalanceID, ch.Reason, c.want)
+			}
+		})
+	}
+	if _, err := lc.CheckAll(&facilities.Facility{}, 1000); !errors.Is(err, facilities.ErrNoBalance) {
+		t.Errorf("no balances: error %v, want ErrNoBalance", err)
+	}
+}
+
+func TestCautions(t *testing.T) {
+	hot := facilities.LoadReport{BalanceID: "b", SafetyFactor: 1.5, AllowedUtilization: 1 / 1.5,
+		MaxUtilization: 0.6, Limiting: facilities.Limiting{Component: "pitching_moment", Alpha: 14}}
+	cool := hot
+	cool.MaxUtilization = 0.3
+	cases := []struct {
+		name     string
+		facility string
+		report   facilities.LoadReport
+		want     []string
+		count    int
+	}{
+		{"atmospheric, light loads", "lsw-2", cool, []string{"estimates"}, 1},
+		{"atmospheric, near the limit", "lsw-2", hot, []string{"pitching_moment", "α 14°"}, 2},
+		{"pressurised", "plp-3", cool, []string{"pressure vessel"}, 2},
+		{"cryogenic nitrogen", "cn2-05", cool, []string{"pressure vessel", "nitrogen"}, 3},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			f, ok := facilities.DemoFacility(c.facility)
+			if !ok {
+				t.Fatalf("demo facility %s missing", c.facility)
+			}
+			got := facilities.Cautions(&f, c.report)
+			joined := strings.Join(got, " | ")
+			if len(got) != c.count {
+				t.Errorf("%d cautions %q, want %d", len(got), joined, c.count)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(joined, w) {
+					t.Errorf("cautions %q lack %q", joined, w)
+				}
+			}
+		})
+	}
+}
+
+func benchCase(n int) facilities.LoadCase {
+	lc := randomCase(rand.New(rand.NewPCG(3, 5)), 0.05, true)
+	lc.Points = lc.Points[:min(n, len(lc.Points))]
+	return lc
+}
+
+func BenchmarkCheck21(b *testing.B) {
+	lc := benchCase(21)
+	bal := sixComponent()
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := lc.Check(&bal, 20000); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkRatingsMaxDynamicPressure21(b *testing.B) {
+	lc := benchCase(21)
+	bal := sixComponent()
+	rs, err := bal.Ratings()
+	if err != nil {
+		b.Fatal(err)
+	}
+	perQ := make([]facilities.Load, 21)
+	weight := make([]facilities.Load, 21)
+	for i := range perQ {
+		perQ[i], weight[i] = lc.Affine(i)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		q := math.Inf(1)
+		for i := range perQ {
+			qi, _ := rs.MaxDynamicPressure(&perQ[i], &weight[i])
+			q = min(q, qi)
+		}
+		if q <= 0 {
+			b.Fatal(q)
+		}
+	}
+}

@@ -1,0 +1,67 @@
+package facilities_test
+
+import (
+	"errors"
+	"math"
+	"testing"
+
+	"scalematch/facilities"
+)
+
+// TestScheduleTest works the demo operations figures by hand (20 s a point, 10 min a
+// run, 30 min a pressure change, 90 min a temperature change; cn2-05: 240 min).
+func TestScheduleTest(t *testing.T) {
+	cases := []struct {
+		name     string
+		facility string
+		test     facilities.Test
+		want     facilities.Schedule
+	}{{
+		// 21 points: 7 min; 1 run: 10 min; atmospheric p0 and T0 inside the resting
+		// state's 2 K: no change. 17 min = 0.28333 h.
+		name: "atmospheric single sweep", facility: "lsw-2",
+		test: facilities.Test{AlphaPoints: 21, Conditions: []facilities.Condition{{95500, 289}}},
+		want: facilities.Schedule{Points: 21, Runs: 1, Hours: 17.0 / 60},
+	}, {
+		// 3 β runs of 21 points: 63 points = 21 min, 30 min of runs; from rest
+		// (115 kPa, 288.15 K) to 300 kPa and 150 K: 30 + 240 min. 321 min = 5.35 h.
+		name: "cryogenic, three sideslip runs", facility: "cn2-05",
+		test: facilities.Test{AlphaPoints: 21, BetaValues: 3, Conditions: []facilities.Condition{{300000, 150}}},
+		want: facilities.Schedule{Points: 63, Runs: 3, PressureChanges: 1, TemperatureChanges: 1, Hours: 321.0 / 60},
+	}, {
+		// Two pressures at one temperature: rest 101.325 kPa → 200 kPa → 101 kPa is
+		// two changes; 290 K is within 2 K of the resting 288.15 K, so no temperature
+		// change. 42 points = 14 min, 2 runs = 20 min, 60 min of changes: 94 min.
+		name: "pressure sweep", facility: "plp-3",
+		test: facilities.Test{AlphaPoints: 21, Conditions: []facilities.Condition{{200000, 290}, {101000, 290}}},
+		want: facilities.Schedule{Points: 42, Runs: 2, PressureChanges: 2, Hours: 94.0 / 60},
+	}}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			f, ok := facilities.DemoFacility(c.facility)
+			if !ok {
+				t.Fatalf("demo facility %s missing", c.facility)
+			}
+			got, err := facilities.ScheduleTest(&f, c.test)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got.Points != c.want.Points || got.Runs != c.want.Runs ||
+				got.PressureChanges != c.want.PressureChanges || got.TemperatureChanges != c.want.TemperatureChanges ||
+				math.Abs(got.Hours-c.want.Hours) > 1e-12 {
+				t.Errorf("schedule %+v, want %+v", got, c.want)
+			}
+		})
+	}
+}
+
+func TestScheduleErrors(t *testing.T) {
+	f, _ := facilities.DemoFacility("lsw-2")
+	if _, err := facilities.ScheduleTest(&f, facilities.Test{AlphaPoints: -1}); facilities.ErrorCode(err) != facilities.CodeInvalid {
+		t.Errorf("negative points: %v, want CodeInvalid", err)
+	}
+	f.Operations = nil
+	if _, err := facilities.ScheduleTest(&f, facilities.Test{AlphaPoints: 3}); !errors.Is(err, facilities.ErrNoOperations) {
+		t.Errorf("no operations: %v, want ErrNoOperations", err)
+	}
+}
