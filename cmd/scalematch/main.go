@@ -37,6 +37,7 @@ func newRootCmd() *cobra.Command {
 	}
 	// Each command lives in its own file and is added here, one line each.
 	root.AddCommand(
+		newAtmosphereCmd(),
 	// commands
 	)
 	return root

@@ -1,0 +1,119 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"math"
+	"strings"
+	"testing"
+
+	"scalematch/atmosphere"
+)
+
+func TestAtmosphereCommandTable(t *testing.T) {
+	cases := []struct {
+		name string
+		args []string
+		want []string // lines or fragments the table must hold
+	}{
+		{"tropopause SI", []string{"atmosphere", "--altitude", "11000"}, []string{
+			"U.S. Standard Atmosphere 1976, standard day\n",
+			"geometric altitude     11000.0 m\n",
+			"temperature            216.774 K (-56.38 °C)\n", // 288.15 − 0.0065·10981.0
+			"pressure               22700 Pa\n",
+			"density                0.364802 kg/m³\n",
+			"speed of sound         295.154 m/s\n",
+		}},
+		{"FL350 hot day US", []string{"atmosphere", "--pressure-altitude", "10668", "--delta-isa", "10", "--units", "us"}, []string{
+			"standard day +10 K",
+			"35000 ft\n", // 10668 m / 0.3048 m/ft
+			"23842.3 Pa",
+			"497.957 psf (7.04063 inHg)", // 23842.3/47.8803 and /3386.389
+			"411.854 °R",                 // (218.808 + 10) K · 1.8
+			"994.869 ft/s",
+		}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var out, errOut bytes.Buffer
+			if err := run(c.args, strings.NewReader(""), &out, &errOut); err != nil {
+				t.Fatalf("run: %v (stderr %q)", err, errOut.String())
+			}
+			for _, w := range c.want {
+				if !strings.Contains(out.String(), w) {
+					t.Errorf("output lacks %q:\n%s", w, out.String())
+				}
+			}
+		})
+	}
+}
+
+func TestAtmosphereCommandJSON(t *testing.T) {
+	var out bytes.Buffer
+	if err := run([]string{"atmosphere", "--altitude", "11000", "--delta-isa", "-15", "--json"}, strings.NewReader(""), &out, &bytes.Buffer{}); err != nil {
+		t.Fatal(err)
+	}
+	// Exactly the names of GET /v1/atmosphere, nothing more.
+	var fields map[string]float64
+	if err := json.Unmarshal(out.Bytes(), &fields); err != nil {
+		t.Fatalf("%v in %s", err, out.String())
+	}
+	names := []string{"altitude", "geopotential_altitude", "pressure_altitude", "delta_isa", "temperature",
+		"pressure", "density", "speed_of_sound", "viscosity", "kinematic_viscosity"}
+	if len(fields) != len(names) {
+		t.Errorf("%d fields, want %d: %s", len(fields), len(names), out.String())
+	}
+	want, err := atmosphere.At(11000, -15)
+	if err != nil {
+		t.Fatal(err)
+	}
+	wantJSON, _ := json.Marshal(want)
+	if got := strings.TrimSpace(out.String()); got != string(wantJSON) {
+		t.Errorf("JSON\n%s\nwant\n%s", got, wantJSON)
+	}
+	for _, n := range names {
+		if _, ok := fields[n]; !ok {
+			t.Errorf("no %q in %s", n, out.String())
+		}
+	}
+	if math.Abs(fields["temperature"]-(216.77351270445553-15)) > 1e-9 {
+		t.Errorf("temperature %v, want the standard 216.7735 K less 15 K", fields["temperature"])
+	}
+}
+
+func TestAtmosphereCommandErrors(t *testing.T) {
+	cases := []struct {
+		name    string
+		args    []string
+		want    string
+		inRange bool // the error wraps atmosphere.ErrRange
+	}{
+		{"no altitude", []string{"atmosphere"}, "give --altitude", false},
+		{"both altitudes", []string{"atmosphere", "--altitude", "1", "--pressure-altitude", "1"}, "only one of", false},
+		{"above 86 km", []string{"atmosphere", "--altitude", "90000"}, "outside -5000 m to 86000 m", true},
+		{"NaN altitude", []string{"atmosphere", "--altitude", "NaN"}, "altitude NaN", true},
+		{"too cold", []string{"atmosphere", "--altitude", "0", "--delta-isa", "-150"}, "delta_isa -150 K is outside -100 K to 100 K", true},
+		{"bad units", []string{"atmosphere", "--altitude", "0", "--units", "imperial"}, `--units "imperial": want si or us`, false},
+		{"not a number", []string{"atmosphere", "--altitude", "high"}, `invalid argument "high"`, false},
+		{"stray argument", []string{"atmosphere", "--altitude", "0", "extra"}, "unknown command", false},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var out bytes.Buffer
+			err := run(c.args, strings.NewReader(""), &out, &bytes.Buffer{})
+			if err == nil {
+				t.Fatalf("no error; output %s", out.String())
+			}
+			if !strings.Contains(err.Error(), c.want) {
+				t.Errorf("error %q does not say %q", err, c.want)
+			}
+			if got := errors.Is(err, atmosphere.ErrRange); got != c.inRange {
+				t.Errorf("errors.Is(err, ErrRange) = %v, want %v", got, c.inRange)
+			}
+			if out.Len() != 0 {
+				t.Errorf("printed %q on error", out.String())
+			}
+		})
+	}
+}
