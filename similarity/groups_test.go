@@ -1,0 +1,446 @@
+package similarity_test
+
+import (
+	"encoding/json"
+	"errors"
+	"math/big"
+	"math/rand/v2"
+	"strconv"
+	"strings"
+	"testing"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
+)
+
+func mustDim(t testing.TB, s string) similarity.Dimension {
+	t.Helper()
+	d, err := similarity.ParseDimension(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return d
+}
+
+func vars(t testing.TB, nameDim ...string) []similarity.Variable {
+	t.Helper()
+	var out []similarity.Variable
+	for i := 0; i < len(nameDim); i += 2 {
+		out = append(out, similarity.Variable{Name: nameDim[i], Dim: mustDim(t, nameDim[i+1])})
+	}
+	return out
+}
+
+func TestGroups(t *testing.T) {
+	cases := []struct {
+		name      string
+		vars      []similarity.Variable
+		repeating []string
+		rank      int
+		want      []string // Group.String of each group, in order
+		known     []string
+	}{
+		{
+			// physics.md §5: the textbook force on a body, ρ, V, L repeating.
+			name:      "force on a body",
+			vars:      vars(t, "R", "M L T^-2", "rho", "M L^-3", "V", "L T^-1", "L", "L", "mu", "M L^-1 T^-1"),
+			repeating: []string{"rho", "V", "L"},
+			rank:      3,
+			want:      []string{"R rho^-1 V^-2 L^-2", "mu rho^-1 V^-1 L^-1"},
+			known:     []string{"force coefficient", "Reynolds number"},
+		},
+		{
+			name:  "force on a body, automatic choice",
+			vars:  vars(t, "R", "M L T^-2", "rho", "M L^-3", "V", "L T^-1", "L", "L", "mu", "M L^-1 T^-1"),
+			rank:  3,
+			want:  []string{"R rho^-1 V^-2 L^-2", "mu rho^-1 V^-1 L^-1"},
+			known: []string{"force coefficient", "Reynolds number"},
+		},
+		{
+			// White, Fluid Mechanics, ch. 5 (from memory): Δp in a pipe depends on
+			// ρ, V, d, μ, the roughness ε and the length ℓ; Δp/(ρV²) = f(Re, ε/d, ℓ/d).
+			name:      "pipe pressure drop with roughness",
+			vars:      vars(t, "dp", "M L^-1 T^-2", "rho", "M L^-3", "V", "L T^-1", "d", "L", "mu", "M L^-1 T^-1", "eps", "L", "ell", "L"),
+			repeating: []string{"rho", "V", "d"},
+			rank:      3,
+			want:      []string{"dp rho^-1 V^-2", "mu rho^-1 V^-1 d^-1", "eps d^-1", "ell d^-1"},
+			known:     []string{"pressure coefficient", "Reynolds number", "", ""},
+		},
+		{
+			// White, Fluid Mechanics, ch. 5 (from memory): the period of a pendulum
+			// depends on its length, its mass and g; T·√(g/L) is a constant (2π for small
+			// swings), and the mass drops out.
+			name:  "pendulum period",
+			vars:  vars(t, "T", "T", "L", "L", "m", "M", "g", "L T^-2"),
+			rank:  3,
+			want:  []string{"T L^-1/2 g^1/2"},
+			known: []string{""},
+		},
+		{
+			// Froude number with g: fractional exponents are exact.
+			name:      "Froude number",
+			vars:      vars(t, "V", "L T^-1", "g", "L T^-2", "L", "L"),
+			repeating: []string{"g", "L"},
+			rank:      2,
+			want:      []string{"V g^-1/2 L^-1/2"},
+			known:     []string{"Froude number"},
+		},
+		{
+			name:  "Mach and Reynolds with subscripts",
+			vars:  vars(t, "D", "M L T^-2", "rho_inf", "M L^-3", "V_inf", "L T^-1", "c", "L", "mu_inf", "M L^-1 T^-1", "a_inf", "L T^-1"),
+			rank:  3,
+			want:  []string{"D rho_inf^-1 V_inf^-2 c^-2", "mu_inf rho_inf^-1 V_inf^-1 c^-1", "a_inf V_inf^-1"},
+			known: []string{"force coefficient", "Reynolds number", "Mach number"},
+		},
+		{
+			name:  "kinematic viscosity",
+			vars:  vars(t, "nu", "L^2 T^-1", "V", "L T^-1", "L", "L"),
+			rank:  2,
+			want:  []string{"nu V^-1 L^-1"},
+			known: []string{"Reynolds number"},
+		},
+		{
+			name:  "vortex shedding",
+			vars:  vars(t, "f", "T^-1", "V", "L T^-1", "d", "L"),
+			rank:  2,
+			want:  []string{"f V^-1 d"},
+			known: []string{"Strouhal number"},
+		},
+		{
+			name:  "droplet",
+			vars:  vars(t, "sigma", "M T^-2", "rho", "M L^-3", "V", "L T^-1", "d", "L"),
+			rank:  3,
+			want:  []string{"sigma rho^-1 V^-2 d^-1"},
+			known: []string{"Weber number"},
+		},
+		{
+			name:  "propeller",
+			vars:  vars(t, "n", "T^-1", "V", "L T^-1", "D", "L"),
+			rank:  2,
+			want:  []string{"n V^-1 D"},
+			known: []string{"advance ratio"},
+		},
+		{
+			// An angular frequency ω gives ωD/V = 2π·St: not named.
+			name:  "angular frequency is not a Strouhal number",
+			vars:  vars(t, "omega", "T^-1", "V", "L T^-1", "D", "L"),
+			rank:  2,
+			want:  []string{"omega V^-1 D"},
+			known: []string{""},
+		},
+		{
+			// Right dimensions, unknown names: not named.
+			name:  "unrecognised names",
+			vars:  vars(t, "Q", "M L T^-2", "k", "M L^-3", "w", "L T^-1", "z", "L", "eta2x", "M L^-1 T^-1"),
+			rank:  3,
+			want:  []string{"Q k^-1 w^-2 z^-2", "eta2x k^-1 w^-1 z^-1"},
+			known: []string{"", ""},
+		},
+		{
+			// Same names, a length where the speed should be: not a Mach number.
+			name:  "sound speed with the wrong partner",
+			vars:  vars(t, "a", "L T^-1", "V", "L T^-1", "x", "L", "t", "T"),
+			rank:  2,
+			want:  []string{"a V^-1", "t V x^-1"},
+			known: []string{"Mach number", ""},
+		},
+		{
+			name:  "dimensionless variable is its own group",
+			vars:  vars(t, "alpha", "dimensionless", "V", "L T^-1", "L", "L"),
+			rank:  2,
+			want:  []string{"alpha"},
+			known: []string{""},
+		},
+		{
+			name: "no groups when n equals r",
+			vars: vars(t, "rho", "M L^-3", "V", "L T^-1", "L", "L"),
+			rank: 3,
+		},
+		{
+			name: "no variables",
+			rank: 0,
+		},
+		{
+			// Heat transfer: temperature is a fourth base dimension; the groups are
+			// the Nusselt, Reynolds and Péclet numbers.
+			name:      "temperature enters",
+			vars:      vars(t, "h", "M T^-3 Θ^-1", "k", "M L T^-3 Θ^-1", "rho", "M L^-3", "V", "L T^-1", "L", "L", "mu", "M L^-1 T^-1", "cp", "L^2 T^-2 Θ^-1"),
+			repeating: []string{"rho", "V", "L", "k"},
+			rank:      4,
+			want:      []string{"h L k^-1", "mu rho^-1 V^-1 L^-1", "cp rho V L k^-1"},
+			known:     []string{"", "Reynolds number", ""},
+		},
+		{
+			// k/(μ·c_p) is the Prandtl number: k, μ, c_p are not independent.
+			name:  "dependent set of four",
+			vars:  vars(t, "k", "M L T^-3 Θ^-1", "mu", "M L^-1 T^-1", "cp", "L^2 T^-2 Θ^-1", "L", "L"),
+			rank:  3,
+			want:  []string{"k mu^-1 cp^-1"},
+			known: []string{""},
+		},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			res, err := similarity.Groups(c.vars, c.repeating)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if res.Rank != c.rank {
+				t.Errorf("rank %d, want %d", res.Rank, c.rank)
+			}
+			if len(res.Groups) != len(c.want) {
+				t.Fatalf("%d groups %v, want %d %v", len(res.Groups), res.Groups, len(c.want), c.want)
+			}
+			if len(res.Repeating) != res.Rank {
+				t.Errorf("repeating %v, want %d of them", res.Repeating, res.Rank)
+			}
+			for i, g := range res.Groups {
+				if g.String() != c.want[i] {
+					t.Errorf("group %d = %s, want %s", i, g, c.want[i])
+				}
+				if g.KnownAs != c.known[i] {
+					t.Errorf("group %d (%s) known as %q, want %q", i, g, g.KnownAs, c.known[i])
+				}
+				checkDimensionless(t, c.vars, g)
+			}
+		})
+	}
+}
+
+func TestGroupsErrors(t *testing.T) {
+	base := vars(t, "R", "M L T^-2", "rho", "M L^-3", "V", "L T^-1", "L", "L", "mu", "M L^-1 T^-1")
+	many := make([]similarity.Variable, similarity.MaxVariables+1)
+	for i := range many {
+		many[i] = similarity.Variable{Name: "x" + strconv.Itoa(i), Dim: similarity.DimLength}
+	}
+	cases := []struct {
+		name      string
+		vars      []similarity.Variable
+		repeating []string
+		field     string
+		msg       string
+	}{
+		{"empty name", append(vars(t, " ", "L"), base...), nil, "variables[0].name", "empty"},
+		{"duplicate name", append(base, similarity.Variable{Name: "V", Dim: similarity.DimVelocity}), nil, "variables[5].name", "variables[2]"},
+		{"unknown repeating", base, []string{"rho", "U", "L"}, "repeating[1]", `"U" is not one of the variables`},
+		{"repeating twice", base, []string{"rho", "V", "V"}, "repeating[2]", "twice"},
+		{"too few repeating", base, []string{"rho", "V"}, "repeating", "rank 3, so exactly 3"},
+		{"too many repeating", base, []string{"rho", "V", "L", "mu"}, "repeating", "exactly 3"},
+		{"dependent repeating", append(vars(t, "U", "L T^-1"), base...), []string{"rho", "V", "U"}, "repeating", "rho, V, U are not dimensionally independent"},
+		{"too many variables", many, nil, "variables", "at most 64"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := similarity.Groups(c.vars, c.repeating)
+			var fe *facilities.Error
+			if !errors.As(err, &fe) || fe.Code != facilities.CodeInvalid {
+				t.Fatalf("error %v, want a *facilities.Error with code invalid", err)
+			}
+			found := false
+			for _, f := range fe.Fields {
+				if f.Field == c.field && strings.Contains(f.Message, c.msg) {
+					found = true
+				}
+			}
+			if !found {
+				t.Errorf("fields %+v, want %s: ...%s...", fe.Fields, c.field, c.msg)
+			}
+		})
+	}
+}
+
+// checkDimensionless verifies Σ exponent·dimension = 0 exactly.
+func checkDimensionless(t *testing.T, vs []similarity.Variable, g similarity.Group) {
+	t.Helper()
+	dim := map[string]similarity.Dimension{}
+	for _, v := range vs {
+		dim[v.Name] = v.Dim
+	}
+	var sum [4]big.Rat
+	for _, e := range g.Exponents {
+		d := dim[e.Name]
+		for b := range sum {
+			x := new(big.Rat).SetFrac64(e.Power.Num()*int64(d[b]), e.Power.Den())
+			sum[b].Add(&sum[b], x)
+		}
+	}
+	for b := range sum {
+		if sum[b].Sign() != 0 {
+			t.Errorf("group %s is not dimensionless: base %d exponent %s", g, b, sum[b].RatString())
+		}
+	}
+}
+
+// ratRank is an exact rank for the property test, written independently of the
+// package's elimination.
+func ratRank(rows [][]*big.Rat) int {
+	if len(rows) == 0 {
+		return 0
+	}
+	r := 0
+	for c := 0; c < len(rows[0]) && r < len(rows); c++ {
+		p := -1
+		for i := r; i < len(rows); i++ {
+			if rows[i][c].Sign() != 0 {
+				p = i
+				break
+			}
+		}
+		if p < 0 {
+			continue
+		}
+		rows[r], rows[p] = rows[p], rows[r]
+		for i := r + 1; i < len(rows); i++ {
+			f := new(big.Rat).Quo(rows[i][c], rows[r][c])
+			for k := c; k < len(rows[i]); k++ {
+				rows[i][k] = new(big.Rat).Sub(rows[i][k], new(big.Rat).Mul(f, rows[r][k]))
+			}
+		}
+		r++
+	}
+	return r
+}
+
+// TestGroupsProperties draws random problems (seeded) and checks the Π theorem's
+// promises: n − r groups, each dimensionless with one non-repeating variable at
+// exponent 1, and the groups independent (their exponent matrix has rank n − r).
+func TestGroupsProperties(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1914, 345))
+	for trial := 0; trial < 500; trial++ {
+		n := 1 + rng.IntN(9)
+		vs := make([]similarity.Variable, n)
+		dimRows := make([][]*big.Rat, 4)
+		for i := range vs {
+			var d similarity.Dimension
+			for b := range d {
+				if rng.IntN(3) > 0 {
+					d[b] = int8(rng.IntN(7) - 3)
+				}
+			}
+			vs[i] = similarity.Variable{Name: "q" + strconv.Itoa(i), Dim: d}
+		}
+		for b := range dimRows {
+			for i := range vs {
+				dimRows[b] = append(dimRows[b], big.NewRat(int64(vs[i].Dim[b]), 1))
+			}
+		}
+		r := ratRank(dimRows)
+		res, err := similarity.Groups(vs, nil)
+		if err != nil {
+			t.Fatalf("trial %d %v: %v", trial, vs, err)
+		}
+		if res.Rank != r {
+			t.Fatalf("trial %d: rank %d, want %d", trial, res.Rank, r)
+		}
+		if len(res.Groups) != n-r {
+			t.Fatalf("trial %d: %d groups, want n − r = %d", trial, len(res.Groups), n-r)
+		}
+		isRep := map[string]bool{}
+		for _, name := range res.Repeating {
+			isRep[name] = true
+		}
+		rows := make([][]*big.Rat, len(res.Groups))
+		for gi, g := range res.Groups {
+			checkDimensionless(t, vs, g)
+			nonRep := 0
+			for _, e := range g.Exponents {
+				if !isRep[e.Name] {
+					nonRep++
+					if e.Power != similarity.Int(1) {
+						t.Errorf("trial %d: group %s: non-repeating %s has exponent %s", trial, g, e.Name, e.Power)
+					}
+				}
+			}
+			if nonRep != 1 {
+				t.Errorf("trial %d: group %s has %d non-repeating variables", trial, g, nonRep)
+			}
+			rows[gi] = make([]*big.Rat, n)
+			for i, v := range vs {
+				p := g.Power(v.Name)
+				rows[gi][i] = big.NewRat(p.Num(), p.Den())
+			}
+		}
+		if got := ratRank(rows); got != n-r {
+			t.Errorf("trial %d: groups have rank %d, want %d", trial, got, n-r)
+		}
+		// The chosen repeating variables, given back explicitly, give the same groups.
+		again, err := similarity.Groups(vs, res.Repeating)
+		if err != nil {
+			t.Fatalf("trial %d: with repeating %v: %v", trial, res.Repeating, err)
+		}
+		for gi := range again.Groups {
+			if again.Groups[gi].String() != res.Groups[gi].String() {
+				t.Errorf("trial %d: %s vs %s", trial, again.Groups[gi], res.Groups[gi])
+			}
+		}
+	}
+}
+
+func TestGroupJSON(t *testing.T) {
+	res, err := similarity.Groups(vars(t, "V", "L T^-1", "g", "L T^-2", "L", "L"), []string{"g", "L"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := json.Marshal(res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	const want = `{"rank":2,"repeating":["g","L"],"groups":[{"exponents":{"V":1,"g":"-1/2","L":"-1/2"},"known_as":"Froude number"}]}`
+	if string(b) != want {
+		t.Errorf("JSON\n  %s\nwant\n  %s", b, want)
+	}
+	var back similarity.GroupsResult
+	if err := json.Unmarshal(b, &back); err != nil {
+		t.Fatal(err)
+	}
+	if back.Groups[0].String() != res.Groups[0].String() || back.Groups[0].KnownAs != "Froude number" {
+		t.Errorf("round trip %+v", back)
+	}
+	if got := res.Groups[0].Integer().String(); got != "V^2 g^-1 L^-1" {
+		t.Errorf("Integer() = %s", got)
+	}
+}
+
+func TestRational(t *testing.T) {
+	cases := []struct {
+		in   string
+		want string
+		json string
+		f    float64
+	}{
+		{"3", "3", "3", 3},
+		{"-1/2", "-1/2", `"-1/2"`, -0.5},
+		{"2/-4", "", "", 0},
+		{"4/6", "2/3", `"2/3"`, 2.0 / 3},
+		{"+3/4", "3/4", `"3/4"`, 0.75},
+		{"0/5", "0", "0", 0},
+		{"1/0", "", "", 0},
+		{"x", "", "", 0},
+	}
+	for _, c := range cases {
+		t.Run(c.in, func(t *testing.T) {
+			r, err := similarity.ParseRational(c.in)
+			if c.want == "" {
+				if err == nil || !errors.Is(err, similarity.ErrRational) {
+					t.Fatalf("ParseRational(%q) = %v, %v; want ErrRational", c.in, r, err)
+				}
+				return
+			}
+			if err != nil || r.String() != c.want || r.Float64() != c.f {
+				t.Fatalf("ParseRational(%q) = %v (%g), %v; want %s", c.in, r, r.Float64(), err, c.want)
+			}
+			b, _ := json.Marshal(r)
+			if string(b) != c.json {
+				t.Errorf("JSON %s, want %s", b, c.json)
+			}
+			var back similarity.Rational
+			if err := json.Unmarshal(b, &back); err != nil || back != r {
+				t.Errorf("round trip %v, %v", back, err)
+			}
+		})
+	}
+	var zero similarity.Rational
+	if zero.Den() != 1 || zero.String() != "0" || zero.Sign() != 0 {
+		t.Errorf("zero value %v/%v", zero.Num(), zero.Den())
+	}
+}
