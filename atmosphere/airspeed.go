@@ -114,10 +114,11 @@ func (s State) Airspeeds(kind SpeedKind, value float64) (Airspeeds, error) {
 		if !(value >= 0 && x <= maxRatio*(1+1e-12)) { // the edge itself, give or take rounding, is in range
 			return Airspeeds{}, checkSpeed(kind, value, SeaLevelSpeedOfSound*machFromImpact(maxRatio*p/SeaLevelPressure, Gamma))
 		}
-		m = math.Min(machFromImpact(x, Gamma), MaxMach)
+		m = machFromImpact(x, Gamma)
 	default:
 		return Airspeeds{}, fmt.Errorf("atmosphere: unknown speed kind %d", int(kind))
 	}
+	m = math.Min(m, MaxMach) // a speed at the edge may round to a hair above it
 	v := m * a
 	qc := p * impactRatio(m, Gamma)
 	return Airspeeds{
@@ -131,9 +132,9 @@ func (s State) Airspeeds(kind SpeedKind, value float64) (Airspeeds, error) {
 }
 
 // checkSpeed checks that a speed in m/s is finite and between zero and max, the
-// speed of Mach MaxMach at this state.
+// speed of Mach MaxMach at this state, give or take rounding.
 func checkSpeed(kind SpeedKind, v, max float64) error {
-	if v >= 0 && v <= max {
+	if v >= 0 && v <= max*(1+1e-12) {
 		return nil
 	}
 	return &RangeError{Quantity: strings.ReplaceAll(kind.String(), "_", " "), Value: v, Min: 0, Max: max, Unit: "m/s",

@@ -121,11 +121,12 @@ def check():
             for n, (lo, ln) in enumerate(zip(old, new)):
                 fo, fn = lo.split(","), ln.split(",")
                 if len(fo) != len(fn) or not all(same(a, b) for a, b in zip(fo, fn)):
-                    print("%s: row %d differs:\n  committed %s\n  now       %s" % (name, n, lo, ln))
+                    line = len(old_comments) + n + 1
+                    print("%s:%d differs:\n  committed %s\n  now       %s" % (name, line, lo, ln))
                     failed = True
                     break
             else:
-                print("%s: %d rows agree" % (name, len(new)))
+                print("%s: %d lines of data agree" % (name, len(new)))
     return 1 if failed else 0
 
 
