@@ -135,6 +135,29 @@ type Installation struct {
 	CGOffset Offset `json:"cg_offset" unit:"m"`
 }
 
+// Validate checks the installation's numbers and returns a *Error (CodeInvalid)
+// naming each bad field under "installation", or nil.
+func (in Installation) Validate() error {
+	return Invalid("invalid installation", in.fieldErrors())
+}
+
+func (in Installation) fieldErrors() []FieldError {
+	var fe []FieldError
+	if !(in.ModelMass >= 0) || math.IsInf(in.ModelMass, 0) {
+		fe = append(fe, FieldError{"installation.model_mass", fmt.Sprintf("must be 0 or a positive mass in kg, got %g", in.ModelMass)})
+	}
+	for _, o := range []struct {
+		name string
+		v    float64
+	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
+		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
+		if math.IsNaN(o.v) || math.IsInf(o.v, 0) {
+			fe = append(fe, FieldError{"installation." + o.name, "must be a finite length in m"})
+		}
+	}
+	return fe
+}
+
 // AeroLoads returns the aerodynamic loads at the balance moment centre for body-axis
 // coefficients body (from Point.Body), where qS is the dynamic pressure felt by the
 // model times its reference area (N) and qSc that times its reference length (N·m),
@@ -292,30 +315,48 @@ func (rs *Ratings) RowName(i int) string {
 	return rs.rows[i].name
 }
 
-// MaxDynamicPressure returns the largest free-stream dynamic pressure q in Pa at
-// which the load q·perQ + weight stays within every rating over the safety factor,
-// and the row that sets it. Loads are affine in q, so each row is solved exactly:
-// with u = row(perQ), w = row(weight) and allowed = rating/SafetyFactor,
+// Rows returns the number of rated rows: limited components, then combined rows.
+func (rs *Ratings) Rows() int { return len(rs.rows) }
+
+// Row returns row i's value of load l: the component, or Σ coefficient·load for a
+// combined row.
+func (rs *Ratings) Row(i int, l *Load) float64 { return rs.rows[i].value(l) }
+
+// Allowed returns row i's rated load divided by the safety factor.
+func (rs *Ratings) Allowed(i int) float64 { return rs.rows[i].allowed }
+
+// SafeDynamicPressure returns the largest dynamic pressure q ≥ 0 with
+// |q·u + w| ≤ allowed, for a load row that is affine in q (u per pascal, w the part
+// that does not grow with q, such as weight):
 //
 //	q_max = (allowed − sign(u)·w)/|u|
 //
-// It returns 0 when the weight alone exceeds a row, and +Inf (row −1) when no row
+// It returns 0 when |w| > allowed already, and +Inf when u = 0.
+func SafeDynamicPressure(u, w, allowed float64) float64 {
+	if math.Abs(w) > allowed {
+		return 0
+	}
+	if u == 0 {
+		return math.Inf(1)
+	}
+	return (allowed - math.Copysign(1, u)*w) / math.Abs(u)
+}
+
+// MaxDynamicPressure returns the largest free-stream dynamic pressure q in Pa at
+// which the load q·perQ + weight stays within every rating over the safety factor,
+// and the row that sets it; each row is solved exactly by SafeDynamicPressure. It
+// returns 0 when the weight alone exceeds a row, and +Inf (row −1) when no row
 // grows with q.
 func (rs *Ratings) MaxDynamicPressure(perQ, weight *Load) (q float64, row int) {
 	q, row = math.Inf(1), -1
 	for i := range rs.rows {
 		r := &rs.rows[i]
-		w := r.value(weight)
-		if math.Abs(w) > r.allowed {
-			return 0, i
-		}
-		u := r.value(perQ)
-		if u == 0 {
-			continue
-		}
-		qi := (r.allowed - math.Copysign(1, u)*w) / math.Abs(u)
+		qi := SafeDynamicPressure(r.value(perQ), r.value(weight), r.allowed)
 		if qi < q {
 			q, row = qi, i
+		}
+		if qi == 0 {
+			break
 		}
 	}
 	return q, row
@@ -413,19 +454,7 @@ func (lc *LoadCase) validate(q float64) error {
 	if !(lc.ReferenceLength > 0) || !finite(lc.ReferenceLength) {
 		fe = append(fe, FieldError{"article.reference_length", "model reference length must be positive"})
 	}
-	in := lc.Installation
-	if !(in.ModelMass >= 0) || !finite(in.ModelMass) {
-		fe = append(fe, FieldError{"installation.model_mass", fmt.Sprintf("must be 0 or a positive mass in kg, got %g", in.ModelMass)})
-	}
-	for _, o := range []struct {
-		name string
-		v    float64
-	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
-		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
-		if !finite(o.v) {
-			fe = append(fe, FieldError{"installation." + o.name, "must be a finite length in m"})
-		}
-	}
+	fe = append(fe, lc.Installation.fieldErrors()...)
 	if !(q >= 0) || !finite(q) {
 		fe = append(fe, FieldError{"test.dynamic_pressure", fmt.Sprintf("must be a non-negative dynamic pressure in Pa, got %g", q)})
 	}

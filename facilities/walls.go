@@ -54,6 +54,20 @@ func WakeBlockage(refArea, area, cd, mach float64) float64 {
 	return refArea / (4 * area) * cd * (1 + 0.4*m2) / b
 }
 
+// BlockageFactors returns the blockage of a model of frontal area frontalArea and
+// reference area refArea (m², model scale) in facility f at Mach number mach: the
+// solid blockage ε_sb, the wake blockage per unit drag coefficient ε_wb/C_D, and
+// whether a blockage correction applies at all (closed walls below M 1 only; an
+// open jet, slotted and porous walls get none). Both factors are proportional to
+// the areas. It allocates nothing.
+func BlockageFactors(f *Facility, frontalArea, refArea, mach float64) (solid, wakePerCD float64, applied bool) {
+	c := f.TestSection.CrossSection()
+	if f.TestSection.Walls != WallsClosed || mach >= 1 || !(c > 0) {
+		return 0, 0, false
+	}
+	return SolidBlockage(frontalArea, c, mach), WakeBlockage(refArea, c, 1, mach), true
+}
+
 // Walls is the wall-correction model of one model in one test section at one Mach
 // number. Build it with NewWalls. The blockage ε = SolidBlockage + WakePerCD·C_D
 // gives the corrected speed V_c = V·(1+ε) and dynamic pressure q_c = q·(1+ε)²;
@@ -103,14 +117,12 @@ func NewWalls(f *Facility, frontalArea, refArea, mach float64) Walls {
 	if f.LiftInterferenceFactor != nil {
 		w.Delta = *f.LiftInterferenceFactor
 	}
+	w.SolidBlockage, w.WakePerCD, w.Applied = BlockageFactors(f, frontalArea, refArea, mach)
 	switch w.Kind {
 	case WallsClosed:
 		if mach >= 1 {
 			w.Warnings = append(w.Warnings, fmt.Sprintf("closed-wall blockage corrections do not apply at M %.3g ≥ 1: none applied", mach))
 		} else {
-			w.Applied = true
-			w.SolidBlockage = SolidBlockage(frontalArea, c, mach)
-			w.WakePerCD = WakeBlockage(refArea, c, 1, mach)
 			if mach > WallMachCaution {
 				w.Warnings = append(w.Warnings, fmt.Sprintf("closed-wall corrections above M %.2g are unreliable (M = %.3g): treat the corrected loads with caution", WallMachCaution, mach))
 			}

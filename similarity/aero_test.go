@@ -1,0 +1,229 @@
+package similarity_test
+
+import (
+	"errors"
+	"math"
+	"strings"
+	"testing"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
+)
+
+// orrin is the Orrin J20 estimate of the demo world (scenario.md).
+func orrin() similarity.Aero {
+	return similarity.Aero{LiftSlope: 5.0, ZeroLiftAlpha: -1.5, CLMax: 1.3, CDMin: 0.021,
+		CLAtCDMin: 0.15, InducedDragFactor: 0.055, CmZero: 0.02, CmSlope: -1.1}
+}
+
+// TestParametric works the physics.md §6 model by hand for the Orrin J20:
+//
+//	α = 4°:   C_L = 5.0·(5.5°·π/180) = 0.47996554;  C_D = 0.021 + 0.055·(0.47996554 − 0.15)²
+//	          = 0.026988249;  C_m = 0.02 − 1.1·(4°·π/180) = −0.056794487
+//	α = 16°:  5.0·17.5°·π/180 = 1.527 > 1.3, held: C_L = 1.3, C_D = 0.021 + 0.055·1.15²
+//	          = 0.0937375;  C_m = 0.02 − 1.1·(16°·π/180) = −0.28717795
+//	α = −20°: 5.0·(−18.5°)·π/180 = −1.614, held at −1.3
+func TestParametric(t *testing.T) {
+	cases := []struct {
+		name    string
+		alpha   float64
+		want    similarity.Coefficients
+		stalled bool
+		tol     float64
+	}{
+		{"linear range", 4, similarity.Coefficients{CL: 0.47996554, CD: 0.026988249, Cm: -0.056794487}, false, 1e-8},
+		{"zero lift", -1.5, similarity.Coefficients{CL: 0, CD: 0.021 + 0.055*0.15*0.15, Cm: 0.02 + 1.1*1.5*math.Pi/180}, false, 1e-12},
+		{"past the stall", 16, similarity.Coefficients{CL: 1.3, CD: 0.0937375, Cm: -0.28717795}, true, 1e-8},
+		{"negative stall", -20, similarity.Coefficients{CL: -1.3, CD: 0.021 + 0.055*1.45*1.45, Cm: 0.02 + 1.1*20*math.Pi/180}, true, 1e-12},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			got, stalled, err := orrin().Coefficients(c.alpha, 0)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if stalled != c.stalled {
+				t.Errorf("stalled = %v, want %v", stalled, c.stalled)
+			}
+			for _, f := range [][3]float64{{got.CL, c.want.CL}, {got.CD, c.want.CD}, {got.Cm, c.want.Cm}} {
+				if math.Abs(f[0]-f[1]) > c.tol {
+					t.Errorf("got %+v, want %+v", got, c.want)
+					break
+				}
+			}
+		})
+	}
+}
+
+func table() similarity.Aero {
+	return similarity.Aero{Table: []similarity.AeroPoint{
+		{Alpha: 10, Beta: 0, CL: 1.0, CD: 0.06, Cm: -0.1},
+		{Alpha: 0, Beta: 0, CL: 0.2, CD: 0.02, Cm: 0.0},
+		{Alpha: 0, Beta: 5, CL: 0.18, CD: 0.025, Cm: 0.01, CY: -0.1, Cl: -0.01, Cn: 0.02},
+		{Alpha: 10, Beta: 5, CL: 0.9, CD: 0.07, Cm: -0.08, CY: -0.12, Cl: -0.03, Cn: 0.03},
+	}}
+}
+
+func TestTable(t *testing.T) {
+	cases := []struct {
+		name        string
+		alpha, beta float64
+		want        similarity.Coefficients
+	}{
+		{"row", 10, 0, similarity.Coefficients{CL: 1.0, CD: 0.06, Cm: -0.1}},
+		// Halfway in α at β = 0: means of the two rows.
+		{"alpha midpoint", 5, 0, similarity.Coefficients{CL: 0.6, CD: 0.04, Cm: -0.05}},
+		// α 2.5 (a quarter of the α interval), β 2.5 (half the β interval):
+		// C_L at β 0: 0.2 + 0.25·0.8 = 0.4; at β 5: 0.18 + 0.25·0.72 = 0.36; mean 0.38.
+		// C_m at β 0: 0.25·(−0.1) = −0.025; at β 5: 0.01 + 0.25·(−0.09) = −0.0125.
+		{"bilinear", 2.5, 2.5, similarity.Coefficients{CL: 0.38, CD: 0.5*(0.03) + 0.5*(0.036250), Cm: 0.5*(-0.025) + 0.5*(-0.0125),
+			CY: 0.5 * (-0.105), Cl: 0.5 * (-0.015), Cn: 0.5 * 0.0225}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			got, stalled, err := table().Coefficients(c.alpha, c.beta)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if stalled {
+				t.Error("a table is never stalled")
+			}
+			g := [6]float64{got.CL, got.CD, got.Cm, got.CY, got.Cl, got.Cn}
+			w := [6]float64{c.want.CL, c.want.CD, c.want.Cm, c.want.CY, c.want.Cl, c.want.Cn}
+			for i := range g {
+				if math.Abs(g[i]-w[i]) > 1e-12 {
+					t.Fatalf("got %+v, want %+v", got, c.want)
+				}
+			}
+		})
+	}
+	for _, c := range []struct {
+		name        string
+		alpha, beta float64
+	}{{"alpha above", 12, 0}, {"alpha below", -1, 0}, {"beta above", 5, 6}} {
+		if _, _, err := table().Coefficients(c.alpha, c.beta); !errors.Is(err, similarity.ErrOutsideTable) {
+			t.Errorf("%s: error %v, want ErrOutsideTable", c.name, err)
+		}
+	}
+}
+
+func fieldsOf(t *testing.T, err error) []string {
+	t.Helper()
+	var e *facilities.Error
+	if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
+		t.Fatalf("error %v, want a CodeInvalid *facilities.Error", err)
+	}
+	var out []string
+	for _, f := range e.Fields {
+		out = append(out, f.Field)
+	}
+	return out
+}
+
+func TestAeroValidate(t *testing.T) {
+	cases := []struct {
+		name string
+		mod  func(*similarity.Aero)
+		want string
+	}{
+		{"zero cl_max", func(a *similarity.Aero) { a.CLMax = 0 }, "article.aero.cl_max"},
+		{"slope per degree mistaken", func(a *similarity.Aero) { a.LiftSlope = 95 }, "article.aero.lift_slope"},
+		{"NaN drag", func(a *similarity.Aero) { a.CDMin = math.NaN() }, "article.aero.cd_min"},
+		{"negative K", func(a *similarity.Aero) { a.InducedDragFactor = -0.1 }, "article.aero.induced_drag_factor"},
+		{"table single row", func(a *similarity.Aero) { a.Table = []similarity.AeroPoint{{Alpha: 1, CL: 0.1, CD: 0.02}} }, "article.aero.table[0].alpha"},
+		{"table negative drag", func(a *similarity.Aero) {
+			a.Table = []similarity.AeroPoint{{Alpha: 0, CD: 0.02}, {Alpha: 4, CD: -0.01}}
+		}, "article.aero.table[1].cd"},
+		{"table duplicate alpha", func(a *similarity.Aero) {
+			a.Table = []similarity.AeroPoint{{Alpha: 0, CD: 0.02}, {Alpha: 0, CD: 0.03}}
+		}, "article.aero.table[0].alpha"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			a := orrin()
+			c.mod(&a)
+			got := fieldsOf(t, a.Validate())
+			if !contains(got, c.want) {
+				t.Errorf("fields %q, want %q", got, c.want)
+			}
+		})
+	}
+	if err := orrin().Validate(); err != nil {
+		t.Errorf("valid estimate: %v", err)
+	}
+	if fs := fieldsOf(t, (similarity.Aero{}).Validate()); len(fs) < 3 {
+		t.Errorf("zero estimate: fields %q, want lift_slope, cl_max, cd_min at least", fs)
+	}
+}
+
+func contains(list []string, s string) bool {
+	for _, v := range list {
+		if v == s {
+			return true
+		}
+	}
+	return false
+}
+
+func TestSweep(t *testing.T) {
+	cases := []struct {
+		name        string
+		s           similarity.Sweep
+		n           int
+		first, last float64
+		field       string
+	}{
+		{"plan default", similarity.Sweep{From: -4, To: 16, Step: 1}, 21, -4, 16, ""},
+		{"tenths reach the end", similarity.Sweep{From: 0, To: 1, Step: 0.1}, 11, 0, 1, ""},
+		{"end not on a step", similarity.Sweep{From: 0, To: 10, Step: 3}, 4, 0, 9, ""},
+		{"single angle", similarity.Sweep{From: 2, To: 2, Step: 1}, 1, 2, 2, ""},
+		{"largest allowed", similarity.Sweep{From: -100, To: 100, Step: 0.1}, 2001, -100, 100, ""},
+		{"too many", similarity.Sweep{From: -100, To: 100.1, Step: 0.1}, 0, 0, 0, "alpha.step"},
+		{"zero step", similarity.Sweep{From: 0, To: 10}, 0, 0, 0, "alpha.step"},
+		{"reversed", similarity.Sweep{From: 10, To: 0, Step: 1}, 0, 0, 0, "alpha.to"},
+		{"beyond 180", similarity.Sweep{From: -200, To: 0, Step: 1}, 0, 0, 0, "alpha.from"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			got, err := c.s.Angles("alpha")
+			if c.field != "" {
+				if fs := fieldsOf(t, err); !contains(fs, c.field) {
+					t.Errorf("fields %q, want %q", fs, c.field)
+				}
+				return
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(got) != c.n || math.Abs(got[0]-c.first) > 1e-12 || math.Abs(got[len(got)-1]-c.last) > 1e-12 {
+				t.Errorf("%d angles %g … %g, want %d, %g … %g", len(got), got[0], got[len(got)-1], c.n, c.first, c.last)
+			}
+		})
+	}
+}
+
+func TestMatrix(t *testing.T) {
+	mx, err := orrin().Matrix(similarity.Sweep{From: -4, To: 16, Step: 2}, &similarity.Sweep{From: -4, To: 4, Step: 4})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if mx.AlphaPoints != 11 || mx.BetaValues != 3 || len(mx.Points) != 33 {
+		t.Fatalf("matrix %d α × %d β = %d points, want 11 × 3 = 33", mx.AlphaPoints, mx.BetaValues, len(mx.Points))
+	}
+	if p := mx.Points[11]; p.Alpha != -4 || p.Beta != 0 {
+		t.Errorf("point 11 at α %g β %g, want the second run's first point α −4 β 0", p.Alpha, p.Beta)
+	}
+	// C_L = 1.3 at α ≥ 1.3/(5·π/180) − 1.5 = 13.4°: α 14 and 16 in each of 3 runs.
+	if mx.Stalled != 6 || len(mx.Warnings) != 1 || !strings.Contains(mx.Warnings[0], "α 14° to 16°") {
+		t.Errorf("stalled %d, warnings %q; want 6 and one naming α 14° to 16°", mx.Stalled, mx.Warnings)
+	}
+	if _, err := table().Matrix(similarity.Sweep{From: 0, To: 12, Step: 2}, nil); !contains(fieldsOf(t, err), "alpha") {
+		t.Errorf("sweep beyond the table: %v, want a field error on alpha", err)
+	}
+	if _, err := table().Matrix(similarity.Sweep{From: 0, To: 10, Step: 2}, &similarity.Sweep{From: 0, To: 10, Step: 5}); !contains(fieldsOf(t, err), "beta") {
+		t.Errorf("β beyond the table: %v, want a field error on beta", err)
+	}
+	if _, err := orrin().Matrix(similarity.Sweep{From: -10, To: 10, Step: 0.1}, &similarity.Sweep{From: 0, To: 20, Step: 1}); !contains(fieldsOf(t, err), "beta") {
+		t.Errorf("201 × 21 points: %v, want a field error on beta", err)
+	}
+}
