@@ -1,0 +1,109 @@
+package similarity
+
+import (
+	"fmt"
+	"math"
+
+	"scalematch/facilities"
+)
+
+// TradePoint is one point of a trade curve or envelope: the highest Reynolds number
+// a given model reaches at one test Mach number (speed in water) within every limit,
+// the setting that reaches it, and the limit that stops it going higher.
+type TradePoint struct {
+	// Mach is the test Mach number (0 in water).
+	Mach float64 `json:"mach"`
+	// Speed is the test speed in m/s.
+	Speed float64 `json:"speed"`
+	// Reynolds is the highest Reynolds number on the model's reference length; 0 when
+	// no setting at this Mach number (speed) is within the limits.
+	Reynolds float64 `json:"reynolds"`
+	// ReynoldsPerMeter is the unit Reynolds number in 1/m at that setting.
+	ReynoldsPerMeter float64 `json:"reynolds_per_meter"`
+	// StagnationPressure in Pa at that setting.
+	StagnationPressure float64 `json:"stagnation_pressure"`
+	// StagnationTemperature in K at that setting.
+	StagnationTemperature float64 `json:"stagnation_temperature"`
+	// DynamicPressure in Pa at that setting.
+	DynamicPressure float64 `json:"dynamic_pressure"`
+	// Limit names the constraint that caps the Reynolds number here, or, when
+	// Reynolds is 0, the one that rules this Mach number (speed) out.
+	Limit string `json:"limit"`
+}
+
+// trade returns the trade curve of the chosen model at scale s: n points evenly
+// spread over the facility's Mach (speed) range.
+func (sv *solver) trade(s float64, n int) []TradePoint {
+	pts := make([]TradePoint, n)
+	for i := range pts {
+		u := sv.uLo
+		if n > 1 {
+			u += (sv.uHi - sv.uLo) * float64(i) / float64(n-1)
+		}
+		pts[i] = sv.tradePoint(u, s)
+	}
+	return pts
+}
+
+// tradePoint is one point of trade.
+func (sv *solver) tradePoint(u, s float64) TradePoint {
+	tp := TradePoint{Mach: u}
+	if sv.liquid {
+		tp.Mach, tp.Speed = 0, u
+	}
+	c := sv.prepare(u)
+	x := sv.atTarget(&c, s, math.Inf(1))
+	if !x.ok {
+		tp.Limit = x.fail
+		if sv.liquid {
+			return tp
+		}
+		if st, err := sv.state(u, sv.f.StagnationPressure.Min, sv.f.StagnationTemperature.Max); err == nil {
+			tp.Speed = st.Speed
+		}
+		return tp
+	}
+	tp.Speed = x.v
+	tp.Reynolds = x.r * s * sv.L
+	tp.ReynoldsPerMeter = x.r
+	tp.StagnationPressure = x.p0
+	tp.StagnationTemperature = x.t0
+	tp.DynamicPressure = x.q
+	tp.Limit = x.capHi
+	return tp
+}
+
+// Envelope returns the highest Reynolds number the facility reaches on a model of
+// reference length referenceLength (m) at each of n test Mach numbers (speeds in
+// water) evenly spread over its range, within every facility limit (no model-size
+// or balance limit), with the limit that caps each. n below 2 means 41. Errors are
+// *facilities.Error: CodeInvalid for a bad facility or length, CodeUnprocessable
+// when the facility's Mach and speed ranges do not overlap.
+func Envelope(f *facilities.Facility, referenceLength float64, n int) ([]TradePoint, error) {
+	if f == nil {
+		return nil, facilities.Invalid("no facility", []facilities.FieldError{{Field: "facility", Message: "a facility is required"}})
+	}
+	if !(referenceLength > 0) || math.IsInf(referenceLength, 0) {
+		return nil, facilities.Invalid("invalid reference length", []facilities.FieldError{{Field: "reference_length",
+			Message: fmt.Sprintf("%g m must be a positive, finite length", referenceLength)}})
+	}
+	if err := f.Validate(); err != nil {
+		return nil, err
+	}
+	if n < 2 {
+		n = 41
+	}
+	sv := &solver{f: f, L: referenceLength, liquid: f.Medium.IsLiquid(), loadScale: 1,
+		art: &Article{ReferenceLength: referenceLength}}
+	sv.qmax, sv.remax = math.Inf(1), math.Inf(1)
+	if f.MaxDynamicPressure != nil {
+		sv.qmax = *f.MaxDynamicPressure
+	}
+	if f.MaxReynoldsPerMeter != nil {
+		sv.remax = *f.MaxReynoldsPerMeter
+	}
+	if err := sv.setURange(); err != nil {
+		return nil, err
+	}
+	return sv.trade(1, n), nil
+}

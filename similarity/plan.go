@@ -1,0 +1,316 @@
+package similarity
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"scalematch/facilities"
+)
+
+// Similarity groups an objective can name.
+const (
+	GroupReynolds = "reynolds"
+	GroupMach     = "mach"
+	GroupFroude   = "froude"
+)
+
+// DefaultMachTolerance is the Mach-number band half-width of the default priority
+// objective: |ΔM| ≤ 0.005 counts as matched.
+const DefaultMachTolerance = 0.005
+
+// DefaultScaleMin is the smallest scale the planner considers when the request sets
+// no lower bound (a free or open-ended model): 1:1000.
+const DefaultScaleMin = 1e-3
+
+// maxScale is the largest scale a request may give: a model a hundred times its
+// full-scale article is a request error, not a plan.
+const maxScale = 100.0
+
+// Model is the request's choice of model size: a fixed Scale, a range
+// [ScaleMin, ScaleMax], or a list of Scales of models that exist. Scale is model
+// length over full-scale length. The zero value means any scale from
+// DefaultScaleMin up to what the test section allows. A missing ScaleMin of a range
+// is DefaultScaleMin; a missing ScaleMax is the test section's limit.
+type Model struct {
+	Scale    *float64  `json:"scale,omitempty" unit:"scale"`
+	ScaleMin *float64  `json:"scale_min,omitempty" unit:"scale"`
+	ScaleMax *float64  `json:"scale_max,omitempty" unit:"scale"`
+	Scales   []float64 `json:"scales,omitempty" unit:"scale"`
+}
+
+// Validate checks that at most one form is given and every scale lies in (0, 100].
+// It returns a *facilities.Error with CodeInvalid naming each bad field, or nil.
+func (m *Model) Validate() error {
+	var fe []facilities.FieldError
+	add := func(field, msg string) {
+		fe = append(fe, facilities.FieldError{Field: "model." + field, Message: msg})
+	}
+	forms := 0
+	if m.Scale != nil {
+		forms++
+	}
+	if m.ScaleMin != nil || m.ScaleMax != nil {
+		forms++
+	}
+	if len(m.Scales) > 0 {
+		forms++
+	}
+	if forms > 1 {
+		add("scale", "give only one of scale, scale_min/scale_max and scales")
+	}
+	check := func(field string, v float64) {
+		if !(v > 0 && v <= maxScale) {
+			add(field, fmt.Sprintf("scale %g is outside (0, %g]", v, maxScale))
+		}
+	}
+	if m.Scale != nil {
+		check("scale", *m.Scale)
+	}
+	if m.ScaleMin != nil {
+		check("scale_min", *m.ScaleMin)
+	}
+	if m.ScaleMax != nil {
+		check("scale_max", *m.ScaleMax)
+	}
+	if m.ScaleMin != nil && m.ScaleMax != nil && *m.ScaleMin > *m.ScaleMax {
+		add("scale_min", fmt.Sprintf("scale_min %g is above scale_max %g", *m.ScaleMin, *m.ScaleMax))
+	}
+	for i, s := range m.Scales {
+		check(fmt.Sprintf("scales[%d]", i), s)
+	}
+	return facilities.Invalid("invalid model", fe)
+}
+
+// Objective says what the plan optimises. Either Priority, a list of groups met in
+// order (the Mach number within ±MachTolerance, the others as closely as the
+// facility allows), or Weights, a weight per group for the sum
+//
+//	Σ w·(ln(test/flight))²
+//
+// Ties go to the lowest dynamic pressure in both. The zero value is the priority
+// ["mach", "reynolds"] with MachTolerance DefaultMachTolerance; for a water
+// facility, which never targets the Mach number, it is ["reynolds"].
+type Objective struct {
+	// Priority lists groups (GroupReynolds, GroupMach, GroupFroude) in order of
+	// importance; nil: the default.
+	Priority []string `json:"priority,omitempty"`
+	// MachTolerance is the half-width of the Mach band that counts as matched;
+	// nil: DefaultMachTolerance.
+	MachTolerance *float64 `json:"mach_tolerance,omitempty"`
+	// Weights maps groups to non-negative weights; when not empty it replaces
+	// Priority.
+	Weights map[string]float64 `json:"weights,omitempty"`
+}
+
+// Validate checks group names, weights and the tolerance. It returns a
+// *facilities.Error with CodeInvalid naming each bad field, or nil.
+func (o *Objective) Validate() error {
+	var fe []facilities.FieldError
+	add := func(field, msg string) {
+		fe = append(fe, facilities.FieldError{Field: "objective." + field, Message: msg})
+	}
+	known := func(g string) bool { return g == GroupReynolds || g == GroupMach || g == GroupFroude }
+	if len(o.Priority) > 0 && len(o.Weights) > 0 {
+		add("weights", "give either priority or weights, not both")
+	}
+	seen := map[string]bool{}
+	for i, g := range o.Priority {
+		switch {
+		case !known(g):
+			add(fmt.Sprintf("priority[%d]", i), fmt.Sprintf("unknown group %q: want reynolds, mach or froude", g))
+		case seen[g]:
+			add(fmt.Sprintf("priority[%d]", i), fmt.Sprintf("group %q is listed twice", g))
+		}
+		seen[g] = true
+	}
+	if o.Priority != nil && len(o.Priority) == 0 && len(o.Weights) == 0 {
+		add("priority", "the priority list is empty")
+	}
+	positive := false
+	keys := make([]string, 0, len(o.Weights))
+	for g := range o.Weights {
+		keys = append(keys, g)
+	}
+	sort.Strings(keys)
+	for _, g := range keys {
+		w := o.Weights[g]
+		switch {
+		case !known(g):
+			add("weights."+g, fmt.Sprintf("unknown group %q: want reynolds, mach or froude", g))
+		case !(w >= 0) || math.IsInf(w, 0):
+			add("weights."+g, fmt.Sprintf("weight %g must be a finite number ≥ 0", w))
+		case w > 0:
+			positive = true
+		}
+	}
+	if len(o.Weights) > 0 && !positive {
+		add("weights", "at least one weight must be above zero")
+	}
+	if o.MachTolerance != nil && !(*o.MachTolerance >= 0 && *o.MachTolerance <= 1) {
+		add("mach_tolerance", fmt.Sprintf("%g is outside 0 to 1", *o.MachTolerance))
+	}
+	return facilities.Invalid("invalid objective", fe)
+}
+
+// Problem is one planning problem: a resolved flight, the full-scale article, the
+// facility, the model choice and the objective. Flight must come from
+// Flight.Resolve on the article's reference length.
+type Problem struct {
+	// Flight is the full-scale condition to match.
+	Flight FlightState
+	// Article is the full-scale test article; its reference length, span and frontal
+	// area size the model.
+	Article *Article
+	// Facility is the tunnel; it is not modified.
+	Facility *facilities.Facility
+	// Model is the choice of model size; the zero value leaves it free.
+	Model Model
+	// Objective is what to optimise; the zero value is the default priority.
+	Objective Objective
+	// LoadLimit, when not nil, caps the dynamic pressure for each scale (the balance's
+	// rated loads); the plan honours it like any facility limit.
+	LoadLimit LoadLimit
+}
+
+// Settings tune the planner. The zero value is sensible: a 41-point trade curve and
+// a Reynolds gain for every binding limit.
+type Settings struct {
+	// TradePoints is the number of points of the trade curve; 0: 41; negative: none.
+	TradePoints int
+	// NoGains skips the re-solves that give each binding limit's Reynolds gain.
+	NoGains bool
+}
+
+// ModelSize is the chosen model's size: scale and the model-scale dimensions.
+type ModelSize struct {
+	// Scale is model length over full-scale length.
+	Scale float64 `json:"scale"`
+	// ReferenceLength is the model's reference chord in m.
+	ReferenceLength float64 `json:"reference_length"`
+	// ReferenceArea is the model's reference area in m².
+	ReferenceArea float64 `json:"reference_area"`
+	// Span is the model's span in m.
+	Span float64 `json:"span"`
+	// FrontalArea is the model's frontal area in m².
+	FrontalArea float64 `json:"frontal_area"`
+	// Blockage is FrontalArea over the test-section area (0.01 = 1 %).
+	Blockage float64 `json:"blockage"`
+}
+
+// Test is the chosen test condition: the facility state plus the model's Reynolds
+// number on its reference length.
+type Test struct {
+	facilities.State
+	// Reynolds is ρ·V·l/μ on the model's reference length l.
+	Reynolds float64 `json:"reynolds"`
+	// Froude is V/√(g0·l) on the model's reference length l.
+	Froude float64 `json:"froude"`
+}
+
+// Mismatch compares the test with the flight.
+type Mismatch struct {
+	// ReynoldsRatio is Re_test/Re_flight.
+	ReynoldsRatio float64 `json:"reynolds_ratio"`
+	// MachDifference is M_test − M_flight.
+	MachDifference float64 `json:"mach_difference"`
+	// FroudeRatio is Fr_test/Fr_flight, reported for water facilities and for
+	// objectives naming froude; 0 otherwise.
+	FroudeRatio float64 `json:"froude_ratio,omitempty"`
+}
+
+// Binding is one limit the plan sits on. Value and Limit are in the limit's own SI
+// unit (scale limits in model scale, blockage as a fraction, condensation as the
+// margin in K to saturation).
+type Binding struct {
+	// Constraint is a facilities.Constraint* name or the load limit's Name().
+	Constraint string `json:"constraint"`
+	// Value is the plan's value of the constrained quantity.
+	Value float64 `json:"value"`
+	// Limit is the limit it sits on.
+	Limit float64 `json:"limit"`
+	// ReynoldsGainPerPercent is the change of the test Reynolds number, in per cent,
+	// when this one limit is relaxed by 1 % and the problem solved again (a maximum
+	// raised by 1 %, a minimum lowered by 1 %). Zero when the re-solve gains
+	// nothing, e.g. because the flight's Reynolds number is already met.
+	ReynoldsGainPerPercent float64 `json:"reynolds_gain_per_percent"`
+}
+
+// Stats are the planner's work counts.
+type Stats struct {
+	// Evaluations is the number of test-section states computed.
+	Evaluations int `json:"evaluations"`
+	// Solves is the number of full optimisations: one, plus one per binding gain.
+	Solves int `json:"solves"`
+}
+
+// Result is a plan: the model, the test condition, how well it matches the flight,
+// what limits it, and the trade curve.
+type Result struct {
+	// Flight is the full-scale condition.
+	Flight FlightState `json:"flight"`
+	// Model is the chosen model size.
+	Model ModelSize `json:"model"`
+	// Setting is what the operator sets.
+	Setting facilities.Setting `json:"-"`
+	// Test is the chosen test condition.
+	Test Test `json:"test"`
+	// Mismatch compares test and flight.
+	Mismatch Mismatch `json:"mismatch"`
+	// Binding lists every limit the plan sits on, with its Reynolds gain.
+	Binding []Binding `json:"binding"`
+	// Trade is the best Reynolds number reachable at each test Mach number (speed in
+	// water) across the facility's range for the chosen model.
+	Trade []TradePoint `json:"trade_curve,omitempty"`
+	// Warnings are notes on the request and the result.
+	Warnings []string `json:"warnings"`
+	// Cautions remind the reader that loads, pressures and cryogenic conditions are
+	// estimates.
+	Cautions []string `json:"cautions,omitempty"`
+	// Stats are the planner's work counts.
+	Stats Stats `json:"statistics"`
+}
+
+// Plan chooses the model scale and the test Mach number (speed in water),
+// stagnation pressure and stagnation temperature that bring the test's similarity
+// groups closest to the flight's within every limit of the facility, the model
+// choice and p.LoadLimit; see docs/planner.md. A nil s means the zero Settings.
+//
+// Bad input gives a *facilities.Error with CodeInvalid; a problem no plan can
+// satisfy gives CodeUnprocessable with Limits naming the conflicting limits.
+func Plan(p *Problem, s *Settings) (*Result, error) {
+	if s == nil {
+		s = &Settings{}
+	}
+	sv, err := newSolver(p)
+	if err != nil {
+		return nil, err
+	}
+	best, err := sv.solve()
+	if err != nil {
+		return nil, err
+	}
+	res := sv.result(best)
+	res.Stats.Solves = 1
+	if !s.NoGains {
+		for i := range res.Binding {
+			g, n, err := sv.gain(res.Binding[i].Constraint, best)
+			res.Stats.Evaluations += n
+			res.Stats.Solves++
+			if err == nil {
+				res.Binding[i].ReynoldsGainPerPercent = g
+			}
+		}
+	}
+	if n := s.TradePoints; n >= 0 {
+		if n == 0 {
+			n = 41
+		}
+		if n == 1 {
+			n = 2
+		}
+		res.Trade = sv.trade(best.s, n)
+	}
+	res.Stats.Evaluations += sv.evals
+	return res, nil
+}

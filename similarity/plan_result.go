@@ -1,0 +1,151 @@
+package similarity
+
+import (
+	"fmt"
+	"math"
+
+	"scalematch/atmosphere"
+	"scalematch/facilities"
+)
+
+// bindTol is the relative distance within which a plan counts as sitting on a limit.
+const bindTol = 1e-6
+
+// result builds the plan from the best candidate.
+func (sv *solver) result(x cand) *Result {
+	f := sv.f
+	set := facilities.Setting{StagnationPressure: x.p0, StagnationTemperature: x.t0}
+	if sv.liquid {
+		set.Speed = x.u
+	} else {
+		set.Mach = x.u
+	}
+	st, err := f.State(set)
+	sv.evals++
+	if err != nil {
+		// The search only returns settings it has evaluated; keep its figures.
+		st = facilities.State{Mach: set.Mach, Speed: x.v, StagnationPressure: x.p0, StagnationTemperature: x.t0,
+			DynamicPressure: x.q, ReynoldsPerMeter: x.r}
+	}
+	s, a := x.s, sv.art
+	l := s * a.ReferenceLength
+	res := &Result{
+		Flight: sv.fl,
+		Model: ModelSize{
+			Scale:           s,
+			ReferenceLength: l,
+			ReferenceArea:   s * s * a.ReferenceArea,
+			Span:            s * a.Span,
+			FrontalArea:     s * s * a.FrontalArea,
+			Blockage:        s * s * a.FrontalArea / f.TestSection.CrossSection(),
+		},
+		Setting: set,
+		Test: Test{
+			State:    st,
+			Reynolds: st.ReynoldsPerMeter * l,
+			Froude:   st.Speed / math.Sqrt(atmosphere.G0*l),
+		},
+		Warnings: append([]string{}, sv.warnings...),
+	}
+	res.Mismatch = Mismatch{
+		ReynoldsRatio:  res.Test.Reynolds / sv.fl.Reynolds,
+		MachDifference: st.Mach - sv.fl.Mach,
+	}
+	if sv.liquid || sv.froudeMatters() {
+		res.Mismatch.FroudeRatio = res.Test.Froude / sv.fl.Froude
+	}
+	res.Binding = sv.bindings(x, st)
+	res.Warnings = append(res.Warnings, sv.notes(x, st, res)...)
+	res.Cautions = sv.cautions(st)
+	return res
+}
+
+// bindings lists the limits the plan sits on.
+func (sv *solver) bindings(x cand, st facilities.State) []Binding {
+	f := sv.f
+	bs := []Binding{}
+	on := func(name string, v, lim float64) {
+		if math.Abs(v-lim) <= bindTol*math.Abs(lim) {
+			bs = append(bs, Binding{Constraint: name, Value: v, Limit: lim})
+		}
+	}
+	if sv.kind == scaleRange {
+		width := f.TestSection.Width
+		on(facilities.ConstraintSpan, x.s*sv.art.Span/width, sv.spanFraction())
+		if f.MaxBlockage != nil {
+			on(facilities.ConstraintBlockage, x.s*x.s*sv.art.FrontalArea/f.TestSection.CrossSection(), *f.MaxBlockage)
+		}
+		if m := sv.p.Model; m.ScaleMax != nil {
+			on(facilities.ConstraintScaleMax, x.s, *m.ScaleMax)
+		}
+		if m := sv.p.Model; m.ScaleMin != nil {
+			on(facilities.ConstraintScaleMin, x.s, *m.ScaleMin)
+		}
+	}
+	if f.Mach != nil && !sv.liquid {
+		on(facilities.ConstraintMachMin, st.Mach, f.Mach.Min)
+		on(facilities.ConstraintMachMax, st.Mach, f.Mach.Max)
+	}
+	if f.Speed != nil && f.Speed.Min < f.Speed.Max {
+		on(facilities.ConstraintSpeedMin, st.Speed, f.Speed.Min)
+		on(facilities.ConstraintSpeedMax, st.Speed, f.Speed.Max)
+	}
+	if !sv.liquid && !f.StagnationPressure.Fixed() {
+		on(facilities.ConstraintPressureMin, st.StagnationPressure, f.StagnationPressure.Min)
+		on(facilities.ConstraintPressureMax, st.StagnationPressure, f.StagnationPressure.Max)
+	}
+	if !f.StagnationTemperature.Fixed() {
+		on(facilities.ConstraintTempMin, st.StagnationTemperature, f.StagnationTemperature.Min)
+		on(facilities.ConstraintTempMax, st.StagnationTemperature, f.StagnationTemperature.Max)
+	}
+	if f.MaxDynamicPressure != nil {
+		on(facilities.ConstraintDynamic, st.DynamicPressure, *f.MaxDynamicPressure)
+	}
+	if f.MaxReynoldsPerMeter != nil {
+		on(facilities.ConstraintReynoldsUnit, st.ReynoldsPerMeter, *f.MaxReynoldsPerMeter)
+	}
+	if sv.load != nil {
+		if qb := sv.load.MaxDynamicPressure(x.s, st); !math.IsInf(qb, 1) {
+			on(sv.loadName, st.DynamicPressure, qb)
+		}
+	}
+	if m := f.CondensationMargin(st); !math.IsInf(m, 1) && math.Abs(m) <= 1e-7 {
+		bs = append(bs, Binding{Constraint: facilities.ConstraintCondensation, Value: m, Limit: 0})
+	}
+	sortBindings(bs)
+	return bs
+}
+
+// notes returns the plan's warnings.
+func (sv *solver) notes(x cand, st facilities.State, res *Result) []string {
+	var w []string
+	if !sv.liquid && math.Abs(res.Mismatch.MachDifference) > sv.obj.tol*(1+1e-9) && !sv.obj.weighted && sv.obj.levels[0] == gMach {
+		w = append(w, fmt.Sprintf("the flight Mach number %.4g is out of the facility's reach: the nearest usable is %.4g", sv.fl.Mach, st.Mach))
+	}
+	if r := res.Mismatch.ReynoldsRatio; r < 0.999 {
+		w = append(w, fmt.Sprintf("the model reaches %.3g of the flight Reynolds number (%.4g against %.4g): expect a Reynolds-number effect on drag and maximum lift",
+			r, res.Test.Reynolds, sv.fl.Reynolds))
+	} else if r > 1.001 {
+		w = append(w, fmt.Sprintf("the test Reynolds number is %.3g times the flight's: the facility cannot go lower with the allowed models", r))
+	}
+	if sv.liquid {
+		w = append(w, "water: the Mach number is not matched and cavitation is not checked; the stagnation pressure is held at its maximum")
+	}
+	w = append(w, sv.f.Warnings(st)...)
+	return w
+}
+
+// cautions returns the safety reminders that fit the plan.
+func (sv *solver) cautions(st facilities.State) []string {
+	c := []string{"These figures are estimates. The facility's approved limits, its operating procedures and licensed engineering judgement govern every test."}
+	if !sv.liquid && st.StagnationPressure > 1.05*atmosphere.SeaLevelPressure {
+		c = append(c, fmt.Sprintf("The circuit runs pressurised (%.4g kPa stagnation pressure): check the pressure vessel's approved rating.", st.StagnationPressure/1000))
+	}
+	if sv.f.Medium.Kind == facilities.MediumNitrogen && st.StagnationTemperature < 200 {
+		c = append(c, "Cryogenic nitrogen: asphyxiation and cold-burn hazards; follow the facility's oxygen-monitoring and access procedures.")
+	}
+	if sv.load != nil {
+		c = append(c, "The balance limit is an estimate from the aerodynamic model: confirm loads against the balance's calibration before running.")
+	}
+	return c
+}

@@ -1,0 +1,359 @@
+package similarity
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"scalematch/facilities"
+)
+
+// invPhi is 1/φ, the golden-section ratio.
+var invPhi = (math.Sqrt(5) - 1) / 2
+
+// maxGrid is the most grid points golden takes.
+const maxGrid = 17
+
+// interval is a closed range of the test Mach number (speed in water).
+type interval struct{ a, b float64 }
+
+// evalU returns the best candidate over the model scales at Mach number (speed) u.
+func (sv *solver) evalU(u float64) cand {
+	c := sv.prepare(u)
+	if !c.ok {
+		return cand{u: u, fail: c.fail, k: worst}
+	}
+	switch sv.kind {
+	case scaleFixed:
+		return sv.at(&c, sv.scales[0])
+	case scaleList:
+		var best cand
+		best.k = worst
+		for _, s := range sv.scales {
+			if x := sv.at(&c, s); x.ok && (!best.ok || x.k.less(best.k)) {
+				best = x
+			} else if !best.ok && best.fail == "" {
+				best.fail = x.fail
+			}
+		}
+		return best
+	}
+	if sv.froudeMatters() {
+		return sv.golden(func(ls float64) cand { return sv.at(&c, math.Exp(ls)) },
+			math.Log(sv.sLo), math.Log(sv.sHi), 9, 1e-10)
+	}
+	return sv.rangeS(&c)
+}
+
+// rangeS finds the best scale in [sLo, sHi] at one Mach number when only the
+// Reynolds number depends on the scale. Without a load limit the dynamic pressure
+// does not depend on the scale and Re ∝ scale, so the largest model is best (and
+// the same Re costs the least q on it). A load limit lowers the q ceiling as the
+// model grows (forces ∝ q·s², moments ∝ q·s³): Re then rises with s up to the
+// knee where the load limit starts to cap Re/m and, past it, falls as s·q_max(s)
+// falls; the search finds the knee by a root on the load limit alone.
+func (sv *solver) rangeS(c *uctx) cand {
+	x := sv.at(c, sv.sHi)
+	if x.ok && (sv.load == nil || x.capHi != sv.loadName) {
+		return sv.shrink(c, x)
+	}
+	lo := sv.at(c, sv.sLo)
+	if !lo.ok {
+		return lo
+	}
+	sk := sv.sLo
+	if lo.capHi != sv.loadName {
+		// The knee: the load limit's q ceiling falls to the q of the best setting
+		// within the facility's own limits.
+		qNeed := c.nat.q
+		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, c.stB) - qNeed }, sv.sLo, sv.sHi, false)
+	}
+	xk := sv.at(c, sk)
+	if !xk.ok {
+		return lo
+	}
+	re := func(x cand) float64 { return x.rhi * x.s * sv.L }
+	if re(xk) >= sv.fl.Reynolds*(1-1e-12) {
+		// The flight's Re is reachable at the knee: the largest model that still
+		// reaches it needs the least q.
+		s := sv.rootHi(func(s float64) float64 {
+			y := sv.at(c, s)
+			if !y.ok {
+				return -1
+			}
+			return re(y)/sv.fl.Reynolds - 1
+		}, sk, sv.sHi, false)
+		return sv.shrink(c, sv.at(c, s))
+	}
+	if x2 := sv.at(c, sk*(1+1e-7)); x2.ok && x2.k.less(xk.k) {
+		// Unusual load limit: Re still rises past the knee.
+		g := sv.golden(func(ls float64) cand { return sv.at(c, math.Exp(ls)) }, math.Log(sk), math.Log(sv.sHi), 5, 1e-10)
+		if g.ok && g.k.less(xk.k) {
+			return g
+		}
+	}
+	return xk
+}
+
+// shrink returns a smaller model when x overshoots the flight's Reynolds number even
+// at the lowest Re/m: the scale that meets it exactly.
+func (sv *solver) shrink(c *uctx, x cand) cand {
+	if !x.ok || x.r > x.rlo || x.rlo*x.s*sv.L <= sv.fl.Reynolds {
+		return x
+	}
+	s := math.Max(sv.fl.Reynolds/(sv.L*x.rlo), sv.sLo)
+	if y := sv.at(c, s); y.ok && !x.k.less(y.k) {
+		return y
+	}
+	return x
+}
+
+// golden minimises the key of eval over [a, b]: a grid of n points, then a
+// golden-section search in the bracket around the best of them, to tol relative of
+// the interval's scale. It returns the best candidate seen.
+func (sv *solver) golden(eval func(float64) cand, a, b float64, n int, tol float64) cand {
+	best := eval(a)
+	if b <= a {
+		return best
+	}
+	var xsArr [maxGrid]float64
+	var ksArr [maxGrid]cand
+	n = min(max(n, 3), maxGrid)
+	xs, ks := xsArr[:n], ksArr[:n]
+	ibest := 0
+	for i := range xs {
+		xs[i] = a + (b-a)*float64(i)/float64(n-1)
+		if i == 0 {
+			ks[i] = best
+			continue
+		}
+		ks[i] = eval(xs[i])
+		if ks[i].k.less(ks[ibest].k) {
+			ibest = i
+		}
+	}
+	best = ks[ibest]
+	lo, hi := xs[max(ibest-1, 0)], xs[min(ibest+1, n-1)]
+	eps := tol * math.Max(math.Max(math.Abs(a), math.Abs(b)), b-a)
+	x1 := hi - invPhi*(hi-lo)
+	x2 := lo + invPhi*(hi-lo)
+	f1, f2 := eval(x1), eval(x2)
+	for hi-lo > eps {
+		if f1.k.less(f2.k) {
+			if f1.k.less(best.k) {
+				best = f1
+			}
+			hi, x2, f2 = x2, x1, f1
+			x1 = hi - invPhi*(hi-lo)
+			f1 = eval(x1)
+		} else {
+			if f2.k.less(best.k) {
+				best = f2
+			}
+			lo, x1, f1 = x1, x2, f2
+			x2 = lo + invPhi*(hi-lo)
+			f2 = eval(x2)
+		}
+	}
+	for _, f := range [...]cand{f1, f2} {
+		if f.k.less(best.k) {
+			best = f
+		}
+	}
+	return best
+}
+
+// feasibleU returns the intervals of test Mach number (speed) at which some model
+// of the allowed scales can run, and the limits that rule out the rest.
+func (sv *solver) feasibleU() ([]interval, []string) {
+	var fails []string
+	ok := func(u float64) bool {
+		c := sv.prepare(u)
+		if !c.ok {
+			fails = append(fails, c.fail)
+			return false
+		}
+		x := sv.at(&c, sv.sLo)
+		if !x.ok {
+			fails = append(fails, x.fail)
+		}
+		return x.ok
+	}
+	if sv.uHi <= sv.uLo {
+		if ok(sv.uLo) {
+			return []interval{{sv.uLo, sv.uLo}}, nil
+		}
+		return nil, fails
+	}
+	const n = 9
+	var xs [n]float64
+	var oks [n]bool
+	for i := range xs {
+		xs[i] = sv.uLo + (sv.uHi-sv.uLo)*float64(i)/(n-1)
+		oks[i] = ok(xs[i])
+	}
+	edge := func(good, bad float64) float64 {
+		for i := 0; i < 60 && math.Abs(good-bad) > 1e-12*sv.uHi; i++ {
+			m := 0.5 * (good + bad)
+			if ok(m) {
+				good = m
+			} else {
+				bad = m
+			}
+		}
+		return good
+	}
+	var ivs []interval
+	for i := 0; i < n; i++ {
+		if !oks[i] {
+			continue
+		}
+		j := i
+		for j+1 < n && oks[j+1] {
+			j++
+		}
+		a, b := xs[i], xs[j]
+		if i > 0 {
+			a = edge(xs[i], xs[i-1])
+		}
+		if j < n-1 {
+			b = edge(xs[j], xs[j+1])
+		}
+		ivs = append(ivs, interval{a, b})
+		i = j
+	}
+	return ivs, fails
+}
+
+// solve finds the best plan.
+func (sv *solver) solve() (cand, error) {
+	ivs, fails := sv.feasibleU()
+	if len(ivs) == 0 {
+		what := "Mach number"
+		if sv.liquid {
+			what = "speed"
+		}
+		return cand{}, unprocessable(fmt.Sprintf("no %s in the facility's range can run a model of the allowed size within its limits", what), fails...)
+	}
+	tolU := 1e-9
+	best := cand{k: worst}
+	consider := func(x cand) {
+		if x.ok && (!best.ok || x.k.less(best.k)) {
+			best = x
+		}
+	}
+	if sv.machFirst() {
+		lo, hi := sv.fl.Mach-sv.obj.tol, sv.fl.Mach+sv.obj.tol
+		var band []interval
+		for _, iv := range ivs {
+			if a, b := math.Max(iv.a, lo), math.Min(iv.b, hi); a <= b {
+				band = append(band, interval{a, b})
+			}
+		}
+		if len(band) == 0 {
+			// The band is out of reach: the nearest reachable Mach number.
+			d := math.Inf(1)
+			var near []float64
+			for _, iv := range ivs {
+				for _, u := range [...]float64{iv.a, iv.b} {
+					du := math.Max(0, math.Max(lo-u, u-hi))
+					switch {
+					case du < d-1e-12:
+						d, near = du, []float64{u}
+					case du <= d+1e-12:
+						near = append(near, u)
+					}
+				}
+			}
+			for _, u := range near {
+				consider(sv.evalU(u))
+			}
+		}
+		for _, iv := range band {
+			consider(sv.golden(sv.evalU, iv.a, iv.b, 3, tolU))
+		}
+	} else {
+		for _, iv := range ivs {
+			consider(sv.golden(sv.evalU, iv.a, iv.b, 17, tolU))
+			if !sv.liquid && sv.fl.Mach >= iv.a && sv.fl.Mach <= iv.b {
+				consider(sv.evalU(sv.fl.Mach))
+			}
+		}
+	}
+	if !best.ok {
+		return cand{}, unprocessable("no plan satisfies the facility's limits", fails...)
+	}
+	return best, nil
+}
+
+// relaxed returns a copy of the solver with the named limit relaxed by 1 %: a
+// maximum raised, a minimum lowered.
+func (sv *solver) relaxed(name string) (*solver, bool) {
+	f := *sv.f
+	p := *sv.p
+	r := *sv
+	r.f, r.p, r.evals, r.warnings = &f, &p, 0, nil
+	up := func(v float64) *float64 { v *= 1.01; return &v }
+	rng := func(x *facilities.Range, lower bool) *facilities.Range {
+		y := *x
+		if lower {
+			y.Min *= 0.99
+		} else {
+			y.Max *= 1.01
+		}
+		return &y
+	}
+	switch name {
+	case facilities.ConstraintSpan:
+		f.MaxSpanFraction = up(sv.spanFraction())
+	case facilities.ConstraintBlockage:
+		f.MaxBlockage = up(*sv.f.MaxBlockage)
+	case facilities.ConstraintScaleMax:
+		p.Model.ScaleMax = up(*sv.p.Model.ScaleMax)
+	case facilities.ConstraintScaleMin:
+		v := *sv.p.Model.ScaleMin * 0.99
+		p.Model.ScaleMin = &v
+	case facilities.ConstraintMachMin, facilities.ConstraintMachMax:
+		f.Mach = rng(sv.f.Mach, name == facilities.ConstraintMachMin)
+	case facilities.ConstraintSpeedMin, facilities.ConstraintSpeedMax:
+		f.Speed = rng(sv.f.Speed, name == facilities.ConstraintSpeedMin)
+	case facilities.ConstraintPressureMin, facilities.ConstraintPressureMax:
+		f.StagnationPressure = *rng(&sv.f.StagnationPressure, name == facilities.ConstraintPressureMin)
+	case facilities.ConstraintTempMin, facilities.ConstraintTempMax:
+		f.StagnationTemperature = *rng(&sv.f.StagnationTemperature, name == facilities.ConstraintTempMin)
+	case facilities.ConstraintDynamic:
+		f.MaxDynamicPressure = up(*sv.f.MaxDynamicPressure)
+	case facilities.ConstraintReynoldsUnit:
+		f.MaxReynoldsPerMeter = up(*sv.f.MaxReynoldsPerMeter)
+	case facilities.ConstraintCondensation:
+		r.condMin = sv.condMin - 0.01
+	case sv.loadName:
+		r.loadScale = sv.loadScale * 1.01
+	default:
+		return nil, false
+	}
+	if err := r.setLimits(); err != nil {
+		return nil, false
+	}
+	return &r, true
+}
+
+// gain re-solves with the named limit relaxed by 1 % and returns the change of the
+// test Reynolds number in per cent, and the states computed.
+func (sv *solver) gain(name string, best cand) (float64, int, error) {
+	r, ok := sv.relaxed(name)
+	if !ok {
+		return 0, 0, fmt.Errorf("similarity: limit %q cannot be relaxed", name)
+	}
+	b2, err := r.solve()
+	if err != nil {
+		return 0, r.evals, err
+	}
+	re := best.r * best.s
+	return 100 * (b2.r*b2.s/re - 1), r.evals, nil
+}
+
+// sortBindings orders a binding list by constraint name for stable output.
+func sortBindings(bs []Binding) {
+	sort.Slice(bs, func(i, j int) bool { return bs[i].Constraint < bs[j].Constraint })
+}

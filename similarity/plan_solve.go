@@ -1,0 +1,847 @@
+package similarity
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"scalematch/facilities"
+)
+
+// Scale choices.
+const (
+	scaleFixed = iota
+	scaleList
+	scaleRange
+)
+
+// Objective group indices.
+const (
+	gReynolds = iota
+	gMach
+	gFroude
+)
+
+var groupIndex = map[string]int{GroupReynolds: gReynolds, GroupMach: gMach, GroupFroude: gFroude}
+
+// levelTol is the tolerance within which two objective levels count as equal, so
+// that the next level (finally the dynamic pressure) decides.
+const levelTol = 1e-11
+
+// objective is the validated objective in index form.
+type objective struct {
+	weighted bool
+	levels   []int      // priority order
+	w        [3]float64 // weights
+	tol      float64    // Mach band half-width
+}
+
+// key orders candidate plans: lexicographically by the levels, then by q.
+type key struct {
+	v [3]float64
+	q float64
+}
+
+// less reports whether a is a strictly better plan than b.
+func (a key) less(b key) bool {
+	for i := range a.v {
+		if a.v[i] < b.v[i]-levelTol {
+			return true
+		}
+		if a.v[i] > b.v[i]+levelTol {
+			return false
+		}
+	}
+	return a.q < b.q*(1-1e-12)
+}
+
+// worst is the key of an infeasible point.
+var worst = key{v: [3]float64{math.Inf(1), math.Inf(1), math.Inf(1)}, q: math.Inf(1)}
+
+// uctx is what the planner knows at one test Mach number (speed in water),
+// independent of the model scale.
+type uctx struct {
+	ok   bool
+	fail string // the limit that makes this Mach number infeasible
+	u    float64
+
+	ta, tb float64 // usable stagnation-temperature range, K
+	pa     float64 // lowest stagnation pressure, Pa
+	pTop   float64 // highest usable p0 before any q ceiling, Pa
+	capTop string  // the limit that sets pTop
+	k      float64 // dynamic pressure per Pa of p0 (ideal gas) or q itself (water)
+	stB    facilities.State
+	rlo    float64 // lowest Re/m
+	ra     float64 // Re/m at (pa, ta)
+	linear bool    // q and Re/m ∝ p0 along the T0 floor (ideal gas, no condensation)
+	cond   bool    // condensation sets the T0 floor somewhere in [pa, pTop]
+	nat    top     // the highest usable Re/m within the facility's own limits
+
+	// Water only.
+	rNat   float64
+	capNat string
+}
+
+// top is the setting of the highest usable Re/m at one Mach number under a
+// dynamic-pressure ceiling.
+type top struct {
+	p, t float64 // p0 in Pa, T0 in K
+	r    float64 // Re/m
+	q    float64 // dynamic pressure in Pa
+	cap  string  // the limit that stops Re/m rising
+	// edge: even p0 at its minimum needs T0 above the floor to keep q under the
+	// ceiling (real-gas nitrogen, whose q = γ·p·M²/(2Z) grows as it cools); p0 is
+	// then pinned at its minimum and T0 is the free variable from t up.
+	edge bool
+}
+
+// cand is a full candidate at (u, s): the test setting and its figures.
+type cand struct {
+	ok    bool
+	fail  string
+	u, s  float64
+	p0    float64
+	t0    float64
+	r     float64 // Re/m
+	rhi   float64 // highest Re/m usable at this scale
+	rlo   float64
+	q     float64
+	v     float64 // speed, m/s
+	capHi string  // what limits rhi
+	k     key
+}
+
+// solver holds one planning problem in the form the search needs. Relaxed copies
+// of it give the binding gains.
+type solver struct {
+	p      *Problem
+	f      *facilities.Facility
+	fl     FlightState
+	art    *Article
+	L      float64
+	liquid bool
+	obj    objective
+
+	load      LoadLimit
+	loadName  string
+	loadScale float64
+	condMin   float64
+	qmax      float64
+	remax     float64
+
+	kind     int
+	scales   []float64
+	sLo, sHi float64
+	sLoName  string
+	sHiName  string
+
+	uLo, uHi float64
+
+	evals    int
+	warnings []string
+}
+
+// newSolver validates the problem and sets up the search.
+func newSolver(p *Problem) (*solver, error) {
+	if p == nil || p.Facility == nil || p.Article == nil {
+		return nil, facilities.Invalid("incomplete problem", []facilities.FieldError{{Field: "facility", Message: "a problem needs a flight, an article and a facility"}})
+	}
+	sv := &solver{p: p, f: p.Facility, fl: p.Flight, art: p.Article, L: p.Article.ReferenceLength,
+		loadScale: 1, load: p.LoadLimit}
+	if err := sv.checkInput(); err != nil {
+		return nil, err
+	}
+	sv.liquid = sv.f.Medium.IsLiquid()
+	if sv.load != nil {
+		sv.loadName = sv.load.Name()
+		if sv.loadName == "" {
+			sv.loadName = facilities.ConstraintBalance
+		}
+	}
+	sv.setObjective()
+	if err := sv.setLimits(); err != nil {
+		return nil, err
+	}
+	return sv, nil
+}
+
+// checkInput validates the parts of the problem the planner reads.
+func (sv *solver) checkInput() error {
+	if err := sv.f.Validate(); err != nil {
+		return err
+	}
+	var fe []facilities.FieldError
+	pos := func(field string, v float64, unit string) {
+		if !(v > 0) || math.IsInf(v, 0) {
+			fe = append(fe, facilities.FieldError{Field: "article." + field, Message: fmt.Sprintf("%g %s must be positive and finite", v, unit)})
+		}
+	}
+	pos("reference_length", sv.art.ReferenceLength, "m")
+	pos("span", sv.art.Span, "m")
+	pos("frontal_area", sv.art.FrontalArea, "m²")
+	pos("reference_area", sv.art.ReferenceArea, "m²")
+	if err := facilities.Invalid("invalid article", fe); err != nil {
+		return err
+	}
+	if !(sv.fl.Reynolds > 0 && sv.fl.Mach > 0 && sv.fl.TrueAirspeed > 0) || sv.fl.ReferenceLength != sv.L {
+		return facilities.Invalid("invalid flight condition", []facilities.FieldError{{Field: "flight",
+			Message: "the flight must be resolved (Flight.Resolve) on the article's reference length"}})
+	}
+	if err := sv.p.Model.Validate(); err != nil {
+		return err
+	}
+	return sv.p.Objective.Validate()
+}
+
+// setObjective turns the request's objective into index form and notes what it
+// cannot honour.
+func (sv *solver) setObjective() {
+	o := sv.p.Objective
+	sv.obj.tol = DefaultMachTolerance
+	if o.MachTolerance != nil {
+		sv.obj.tol = *o.MachTolerance
+	}
+	if len(o.Weights) > 0 {
+		sv.obj.weighted = true
+		for g, w := range o.Weights {
+			sv.obj.w[groupIndex[g]] = w
+		}
+		if sv.liquid && sv.obj.w[gMach] > 0 {
+			sv.obj.w[gMach] = 0
+			sv.warnings = append(sv.warnings, "the Mach number is not a target in a water facility: its weight is ignored")
+		}
+		if sv.obj.w == [3]float64{} {
+			sv.obj.w[gReynolds] = 1
+		}
+		return
+	}
+	prio := o.Priority
+	if prio == nil {
+		prio = []string{GroupMach, GroupReynolds}
+		if sv.liquid {
+			prio = []string{GroupReynolds}
+		}
+	}
+	for _, g := range prio {
+		if sv.liquid && g == GroupMach {
+			if o.Priority != nil {
+				sv.warnings = append(sv.warnings, "the Mach number is not a target in a water facility: it is left out of the priority list")
+			}
+			continue
+		}
+		sv.obj.levels = append(sv.obj.levels, groupIndex[g])
+	}
+	if len(sv.obj.levels) == 0 {
+		sv.obj.levels = []int{gReynolds}
+	}
+}
+
+// froudeMatters reports whether the objective looks at the Froude number.
+func (sv *solver) froudeMatters() bool {
+	if sv.obj.weighted {
+		return sv.obj.w[gFroude] > 0
+	}
+	for _, g := range sv.obj.levels {
+		if g == gFroude {
+			return true
+		}
+	}
+	return false
+}
+
+// machFirst reports whether the first priority is the Mach number.
+func (sv *solver) machFirst() bool {
+	return !sv.obj.weighted && !sv.liquid && sv.obj.levels[0] == gMach
+}
+
+// unprocessable returns the 422 error of an infeasible problem.
+func unprocessable(msg string, limits ...string) error {
+	seen := map[string]bool{}
+	var ls []string
+	for _, l := range limits {
+		if l != "" && !seen[l] {
+			seen[l] = true
+			ls = append(ls, l)
+		}
+	}
+	sort.Strings(ls)
+	return &facilities.Error{Code: facilities.CodeUnprocessable, Message: msg, Limits: ls}
+}
+
+// spanFraction returns the facility's span limit as a fraction of the width; a
+// model wider than the test section never fits, so nil is 1.
+func (sv *solver) spanFraction() float64 {
+	if sv.f.MaxSpanFraction != nil {
+		return *sv.f.MaxSpanFraction
+	}
+	return 1
+}
+
+// geomScale returns the largest scale the test section takes and the limit that
+// sets it.
+func (sv *solver) geomScale() (float64, string) {
+	s := sv.spanFraction() * sv.f.TestSection.Width / sv.art.Span
+	name := facilities.ConstraintSpan
+	if b := sv.f.MaxBlockage; b != nil {
+		if sb := math.Sqrt(*b * sv.f.TestSection.CrossSection() / sv.art.FrontalArea); sb < s {
+			s, name = sb, facilities.ConstraintBlockage
+		}
+	}
+	return s, name
+}
+
+// setLimits fixes the scale set, the dynamic-pressure and Re/m ceilings and the
+// range of the test Mach number (speed in water).
+func (sv *solver) setLimits() error {
+	f := sv.f
+	sv.qmax, sv.remax = math.Inf(1), math.Inf(1)
+	if f.MaxDynamicPressure != nil {
+		sv.qmax = *f.MaxDynamicPressure
+	}
+	if f.MaxReynoldsPerMeter != nil {
+		sv.remax = *f.MaxReynoldsPerMeter
+	}
+	sg, gname := sv.geomScale()
+	m := sv.p.Model
+	const slack = 1 + 1e-12
+	switch {
+	case m.Scale != nil:
+		sv.kind = scaleFixed
+		if *m.Scale > sg*slack {
+			return unprocessable(fmt.Sprintf("a model at scale %.4g does not fit the test section: the largest is %.4g", *m.Scale, sg),
+				gname, "model.scale")
+		}
+		sv.scales = []float64{*m.Scale}
+		sv.sLo, sv.sHi = *m.Scale, *m.Scale
+	case len(m.Scales) > 0:
+		sv.kind = scaleList
+		for _, s := range m.Scales {
+			if s > sg*slack {
+				sv.warnings = append(sv.warnings, fmt.Sprintf("the model at scale %.4g does not fit the test section (%s allows up to %.4g): left out", s, gname, sg))
+				continue
+			}
+			sv.scales = append(sv.scales, s)
+		}
+		if len(sv.scales) == 0 {
+			return unprocessable(fmt.Sprintf("none of the listed models fits the test section: the largest scale is %.4g", sg), gname, "model.scales")
+		}
+		sort.Float64s(sv.scales)
+		sv.sLo, sv.sHi = sv.scales[0], sv.scales[len(sv.scales)-1]
+	default:
+		sv.kind = scaleRange
+		sv.sLo, sv.sLoName = DefaultScaleMin, ""
+		if m.ScaleMin != nil {
+			sv.sLo, sv.sLoName = *m.ScaleMin, facilities.ConstraintScaleMin
+		} else if sv.sLo > sg {
+			sv.sLo = 1e-3 * sg
+		}
+		sv.sHi, sv.sHiName = sg, gname
+		if m.ScaleMax != nil && *m.ScaleMax < sg {
+			sv.sHi, sv.sHiName = *m.ScaleMax, facilities.ConstraintScaleMax
+		}
+		if sv.sLo > sv.sHi {
+			return unprocessable(fmt.Sprintf("no model between scale %.4g and %.4g fits the test section: the largest is %.4g", sv.sLo, sv.sHi, sg),
+				gname, facilities.ConstraintScaleMin)
+		}
+	}
+	return sv.setURange()
+}
+
+// setURange sets the search range of the test Mach number (gas) or speed (water).
+func (sv *solver) setURange() error {
+	f := sv.f
+	if sv.liquid {
+		if f.Speed == nil {
+			return unprocessable("a water facility needs a speed range", facilities.ConstraintSpeedMin, facilities.ConstraintSpeedMax)
+		}
+		sv.uLo, sv.uHi = f.Speed.Min, f.Speed.Max
+		return nil
+	}
+	lo, hi := 0.0, facilities.MaxSettingMach
+	if f.Mach != nil {
+		lo, hi = f.Mach.Min, f.Mach.Max
+	}
+	if f.Speed != nil {
+		// The lowest Mach number comes with the lowest speed at the highest T0, the
+		// highest with the highest speed at the lowest T0.
+		pa := f.StagnationPressure.Max
+		if st, err := f.State(facilities.Setting{Speed: f.Speed.Min, StagnationPressure: pa, StagnationTemperature: f.StagnationTemperature.Max}); err == nil {
+			lo = math.Max(lo, st.Mach)
+		}
+		if st, err := f.State(facilities.Setting{Speed: f.Speed.Max, StagnationPressure: pa, StagnationTemperature: f.StagnationTemperature.Min}); err == nil {
+			hi = math.Min(hi, st.Mach)
+		}
+		sv.evals += 2
+	}
+	if !(lo <= hi) || hi <= 0 {
+		return unprocessable("the facility's Mach and speed ranges do not overlap at any stagnation temperature",
+			facilities.ConstraintMachMin, facilities.ConstraintMachMax, facilities.ConstraintSpeedMin, facilities.ConstraintSpeedMax)
+	}
+	sv.uLo, sv.uHi = math.Max(lo, 1e-6), hi
+	return nil
+}
+
+// state returns the facility state at u, p0, T0; err reports an unusable setting
+// (for nitrogen: the free stream at saturation).
+func (sv *solver) state(u, p0, t0 float64) (facilities.State, error) {
+	sv.evals++
+	set := facilities.Setting{StagnationPressure: p0, StagnationTemperature: t0}
+	if sv.liquid {
+		set.Speed = u
+	} else {
+		set.Mach = u
+	}
+	return sv.f.State(set)
+}
+
+// margin returns the condensation margin at u, p0, T0 less the allowed minimum:
+// ≥ 0 is usable. An unusable state counts as −1.
+func (sv *solver) margin(u, p0, t0 float64) float64 {
+	st, err := sv.state(u, p0, t0)
+	if err != nil {
+		return -1
+	}
+	return sv.f.CondensationMargin(st) - sv.condMin
+}
+
+// loadQ returns the load limit's dynamic-pressure ceiling at scale s and state st.
+func (sv *solver) loadQ(s float64, st facilities.State) float64 {
+	if sv.load == nil {
+		return math.Inf(1)
+	}
+	return sv.loadScale * sv.load.MaxDynamicPressure(s, st)
+}
+
+// prepare works out everything at test Mach number (speed) u that does not depend
+// on the model scale.
+func (sv *solver) prepare(u float64) uctx {
+	if sv.liquid {
+		return sv.prepareWater(u)
+	}
+	f := sv.f
+	c := uctx{u: u}
+	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
+	pa, pb := f.StagnationPressure.Min, f.StagnationPressure.Max
+	c.pa = pa
+	stB, err := sv.state(u, pa, tb)
+	if err != nil {
+		c.fail = facilities.ConstraintCondensation
+		if f.Medium.Kind != facilities.MediumNitrogen {
+			c.fail = facilities.ConstraintMachMax
+		}
+		return c
+	}
+	if f.Speed != nil {
+		// At a fixed Mach number V ∝ √T0 (a = √(γRT), T = T0/(1+(γ−1)/2·M²)).
+		vb := stB.Speed
+		tlo := tb * sq(f.Speed.Min/vb)
+		thi := tb * sq(f.Speed.Max/vb)
+		if tlo > tb*(1+1e-12) {
+			c.fail = facilities.ConstraintSpeedMin
+			return c
+		}
+		if thi < ta*(1-1e-12) {
+			c.fail = facilities.ConstraintSpeedMax
+			return c
+		}
+		ta = math.Max(ta, tlo)
+		if thi < tb {
+			tb = thi
+			if stB, err = sv.state(u, pa, tb); err != nil {
+				c.fail = facilities.ConstraintCondensation
+				return c
+			}
+		}
+	}
+	c.ta, c.tb, c.stB = ta, tb, stB
+	c.k = stB.DynamicPressure / pa
+	c.rlo = stB.ReynoldsPerMeter
+	if c.rlo > sv.remax*(1+1e-12) {
+		c.fail = facilities.ConstraintReynoldsUnit
+		return c
+	}
+	if stB.DynamicPressure > sv.qmax*(1+1e-12) {
+		c.fail = facilities.ConstraintDynamic
+		return c
+	}
+	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
+	if f.Medium.Kind == facilities.MediumNitrogen {
+		if sv.f.CondensationMargin(stB) < sv.condMin {
+			c.fail = facilities.ConstraintCondensation
+			return c
+		}
+		if sv.margin(u, pb, ta) < 0 {
+			c.cond = true
+			if sv.margin(u, pb, tb) < 0 {
+				// Above some p0 even the warmest usable T0 condenses.
+				c.pTop = sv.rootHi(func(p float64) float64 { return sv.margin(u, p, tb) }, pa, pb, false)
+				c.capTop = facilities.ConstraintCondensation
+			}
+		}
+	}
+	stA := stB
+	if ta != tb {
+		if stA, err = sv.state(u, pa, sv.tfloor(&c, pa)); err != nil {
+			c.fail = facilities.ConstraintCondensation
+			return c
+		}
+	}
+	c.ra = stA.ReynoldsPerMeter
+	c.linear = !c.cond && f.Medium.Compressibility(stA.Static.Temperature, stA.Static.Pressure) == 1 &&
+		f.Medium.Compressibility(stB.Static.Temperature, stB.Static.Pressure) == 1
+	c.nat = sv.top(&c, sv.qmax, facilities.ConstraintDynamic)
+	c.ok = true
+	return c
+}
+
+// qcurve returns the dynamic pressure at p0 on the T0 floor.
+func (sv *solver) qcurve(c *uctx, p0 float64) float64 {
+	if c.linear {
+		return c.k * p0
+	}
+	st, err := sv.state(c.u, p0, sv.tfloor(c, p0))
+	if err != nil {
+		return math.Inf(1)
+	}
+	return st.DynamicPressure
+}
+
+// top returns the setting of the highest Re/m at c's Mach number with the dynamic
+// pressure at most qc (the ceiling named name). Re/m rises with p0 and falls with
+// T0, so it lies on the T0 floor at the highest p0 the limits allow; and on a q
+// ceiling Re/m = 2q/(V·μ) is highest at the lowest T0. The caller has checked that
+// q at (pa, tb) is within qc.
+func (sv *solver) top(c *uctx, qc float64, name string) top {
+	t := top{p: c.pTop, cap: c.capTop}
+	if qTop := sv.qcurve(c, c.pTop); qTop > qc {
+		switch {
+		case c.linear:
+			t.p, t.cap = qc/c.k, name
+		case sv.qcurve(c, c.pa) <= qc:
+			t.p = sv.rootHi(func(p float64) float64 { return qc - sv.qcurve(c, p) }, c.pa, c.pTop, false)
+			t.cap = name
+		default:
+			t.p, t.cap, t.edge = c.pa, name, true
+			t.t = sv.rootHi(func(x float64) float64 {
+				st, err := sv.state(c.u, c.pa, x)
+				if err != nil {
+					return -1
+				}
+				return qc - st.DynamicPressure
+			}, sv.tfloor(c, c.pa), c.tb, true)
+		}
+	}
+	if !t.edge {
+		t.t = sv.tfloor(c, t.p)
+	}
+	st, err := sv.state(c.u, t.p, t.t)
+	if err != nil {
+		t.r, t.q = 0, math.Inf(1)
+		return t
+	}
+	t.r, t.q = st.ReynoldsPerMeter, st.DynamicPressure
+	if t.r > sv.remax {
+		// The Re/m ceiling: the lowest p0 (then T0) that reaches it.
+		t.cap, t.r = facilities.ConstraintReynoldsUnit, sv.remax
+		t.p, t.t = sv.solveR(c, t, sv.remax)
+		t.q = sv.qAt(c, t.p, t.t)
+	}
+	return t
+}
+
+// qAt returns the dynamic pressure at c's Mach number, p0 and T0.
+func (sv *solver) qAt(c *uctx, p0, t0 float64) float64 {
+	if c.linear {
+		return c.k * p0
+	}
+	st, err := sv.state(c.u, p0, t0)
+	if err != nil {
+		return math.Inf(1)
+	}
+	return st.DynamicPressure
+}
+
+// solveR returns the lowest-q setting with Re/m = r (≤ tp.r) at c's Mach number:
+// p0 as low as possible on the T0 floor, then T0 raised at the lowest p0. With
+// q = ½·Re/m·μ·V, at a fixed Re/m the coolest gas needs the least q.
+func (sv *solver) solveR(c *uctx, tp top, r float64) (p0, t0 float64) {
+	rAt := func(p, t float64) float64 {
+		st, err := sv.state(c.u, p, t)
+		if err != nil {
+			return 0
+		}
+		return st.ReynoldsPerMeter
+	}
+	warm := func(lo float64) float64 {
+		return sv.rootHi(func(t float64) float64 { return r - rAt(c.pa, t) }, lo, c.tb, true)
+	}
+	if tp.edge {
+		return c.pa, warm(tp.t)
+	}
+	ra := c.ra
+	if c.cond {
+		ra = sv.rcurve(c, c.pa)
+	}
+	if r < ra {
+		return c.pa, warm(sv.tfloor(c, c.pa))
+	}
+	switch {
+	case r >= tp.r:
+		p0 = tp.p
+	case c.linear:
+		p0 = math.Min(c.pa*r/c.ra, tp.p)
+	default:
+		p0 = sv.rootHi(func(p float64) float64 { return sv.rcurve(c, p) - r }, c.pa, tp.p, true)
+	}
+	return p0, sv.tfloor(c, p0)
+}
+
+// prepareWater is prepare for water: u is the speed, p0 is held at its maximum
+// (the most margin against cavitation; nothing else depends on it), and the
+// stagnation temperature is the free variable: warmer water is less viscous, so
+// Re/m rises with T0, and slightly lighter, so q falls.
+func (sv *solver) prepareWater(u float64) uctx {
+	f := sv.f
+	c := uctx{u: u, pa: f.StagnationPressure.Max, pTop: f.StagnationPressure.Max}
+	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
+	stB, err := sv.state(u, c.pa, tb)
+	if err != nil {
+		c.fail = facilities.ConstraintSpeedMax
+		return c
+	}
+	stA, err := sv.state(u, c.pa, ta)
+	if err != nil {
+		c.fail = facilities.ConstraintSpeedMax
+		return c
+	}
+	c.ta, c.tb, c.stB = ta, tb, stB
+	c.k = stB.DynamicPressure
+	if stB.DynamicPressure > sv.qmax*(1+1e-12) {
+		c.fail = facilities.ConstraintDynamic
+		return c
+	}
+	if stA.DynamicPressure > sv.qmax {
+		c.ta = sv.rootHi(func(t float64) float64 { return sv.qmax - sv.waterQ(u, c.pa, t) }, ta, tb, true)
+		if stA, err = sv.state(u, c.pa, c.ta); err != nil {
+			c.fail = facilities.ConstraintSpeedMax
+			return c
+		}
+	}
+	c.ra, c.rlo = stA.ReynoldsPerMeter, stA.ReynoldsPerMeter
+	if c.rlo > sv.remax*(1+1e-12) {
+		c.fail = facilities.ConstraintReynoldsUnit
+		return c
+	}
+	c.rNat, c.capNat = stB.ReynoldsPerMeter, facilities.ConstraintTempMax
+	if c.rNat > sv.remax {
+		c.rNat, c.capNat = sv.remax, facilities.ConstraintReynoldsUnit
+	}
+	c.ok = true
+	return c
+}
+
+// waterQ is the dynamic pressure of water at speed u and T0 t.
+func (sv *solver) waterQ(u, p0, t float64) float64 {
+	st, err := sv.state(u, p0, t)
+	if err != nil {
+		return math.Inf(1)
+	}
+	return st.DynamicPressure
+}
+
+// waterR is Re/m of water at speed u and T0 t.
+func (sv *solver) waterR(u, p0, t float64) float64 {
+	st, err := sv.state(u, p0, t)
+	if err != nil {
+		return math.Inf(1)
+	}
+	return st.ReynoldsPerMeter
+}
+
+// tfloor returns the lowest usable stagnation temperature at p0: the facility's (or
+// the speed range's) floor, or the condensation line above it.
+func (sv *solver) tfloor(c *uctx, p0 float64) float64 {
+	if !c.cond || sv.margin(c.u, p0, c.ta) >= 0 {
+		return c.ta
+	}
+	return sv.rootHi(func(t float64) float64 { return sv.margin(c.u, p0, t) }, c.ta, c.tb, true)
+}
+
+// rcurve returns Re/m at p0 on the T0 floor (gas), the highest Re/m at that p0.
+func (sv *solver) rcurve(c *uctx, p0 float64) float64 {
+	if c.linear {
+		return c.ra * p0 / c.pa
+	}
+	st, err := sv.state(c.u, p0, sv.tfloor(c, p0))
+	if err != nil {
+		return 0
+	}
+	return st.ReynoldsPerMeter
+}
+
+// at returns the candidate at Mach number (speed) u and scale s whose Reynolds
+// number comes closest to the flight's, at the lowest dynamic pressure.
+func (sv *solver) at(c *uctx, s float64) cand {
+	return sv.atTarget(c, s, sv.fl.Reynolds/(s*sv.L))
+}
+
+// atTarget is at for a target Re/m: the candidate closest to it (in ratio) at the
+// lowest q.
+func (sv *solver) atTarget(c *uctx, s, target float64) cand {
+	x := cand{u: c.u, s: s}
+	if !c.ok {
+		x.fail, x.k = c.fail, worst
+		return x
+	}
+	if sv.liquid {
+		return sv.atWater(c, s, target)
+	}
+	tp := c.nat
+	if sv.load != nil {
+		if qb := sv.loadQ(s, c.stB); qb < tp.q {
+			if qb < c.stB.DynamicPressure*(1-1e-12) {
+				x.fail, x.k = sv.loadName, worst
+				return x
+			}
+			tp = sv.top(c, qb, sv.loadName)
+		}
+	}
+	x.rhi, x.rlo, x.capHi = tp.r, c.rlo, tp.cap
+	r := math.Min(math.Max(target, c.rlo), tp.r)
+	x.r = r
+	if r >= tp.r {
+		x.p0, x.t0, x.q = tp.p, tp.t, tp.q
+	} else {
+		x.p0, x.t0 = sv.solveR(c, tp, r)
+		x.q = sv.qAt(c, x.p0, x.t0)
+	}
+	x.v = c.stB.Speed * math.Sqrt(x.t0/c.tb)
+	x.ok = true
+	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v)
+	return x
+}
+
+// atWater is atTarget for water.
+func (sv *solver) atWater(c *uctx, s, target float64) cand {
+	x := cand{u: c.u, s: s, p0: c.pa}
+	rhi, capHi, tHi := c.rNat, c.capNat, c.tb
+	if rhi < math.Inf(1) && capHi == facilities.ConstraintReynoldsUnit {
+		tHi = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.u, c.pa, t) }, c.ta, c.tb, false)
+	}
+	if sv.load != nil {
+		qb := sv.loadQ(s, c.stB)
+		qt := sv.waterQ(c.u, c.pa, tHi)
+		if qb < qt*(1-1e-12) {
+			x.fail, x.k = sv.loadName, worst
+			return x
+		}
+		if qa := sv.waterQ(c.u, c.pa, c.ta); qb < qa {
+			lo := sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.u, c.pa, t) }, c.ta, tHi, true)
+			c2 := *c
+			c2.ta = lo
+			c2.ra = sv.waterR(c.u, c.pa, lo)
+			c2.rlo = c2.ra
+			c = &c2
+		}
+	}
+	x.rhi, x.rlo, x.capHi = rhi, c.rlo, capHi
+	r := math.Min(math.Max(target, c.rlo), rhi)
+	switch {
+	case r <= c.rlo:
+		x.t0 = c.ta
+	case r >= rhi:
+		x.t0 = tHi
+	default:
+		x.t0 = sv.rootHi(func(t float64) float64 { return sv.waterR(c.u, c.pa, t) - r }, c.ta, tHi, true)
+		if x.t0 > tHi {
+			x.t0 = tHi
+		}
+	}
+	x.r = r
+	x.q = sv.waterQ(c.u, c.pa, x.t0)
+	x.v = c.u
+	x.ok = true
+	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v)
+	return x
+}
+
+// keyOf returns the objective key of a candidate at u and scale s with Re/m r,
+// dynamic pressure q and speed v in m/s.
+func (sv *solver) keyOf(u, s, r, q, v float64) key {
+	lnRe := math.Log(s * sv.L * r / sv.fl.Reynolds)
+	dM := 0.0
+	if !sv.liquid {
+		dM = u - sv.fl.Mach
+	}
+	// Fr_test/Fr_flight = (V/√(g·s·L))/(V_f/√(g·L)) = V/(V_f·√s).
+	lnFr := math.Log(v / (sv.fl.TrueAirspeed * math.Sqrt(s)))
+	k := key{q: q}
+	if sv.obj.weighted {
+		lnM := 0.0
+		if !sv.liquid {
+			lnM = math.Log(u / sv.fl.Mach)
+		}
+		k.v[0] = sv.obj.w[gReynolds]*lnRe*lnRe + sv.obj.w[gMach]*lnM*lnM + sv.obj.w[gFroude]*lnFr*lnFr
+		return k
+	}
+	for i, g := range sv.obj.levels {
+		switch g {
+		case gMach:
+			k.v[i] = math.Max(0, math.Abs(dM)-sv.obj.tol)
+		case gReynolds:
+			k.v[i] = math.Abs(lnRe)
+		case gFroude:
+			k.v[i] = math.Abs(lnFr)
+		}
+	}
+	return k
+}
+
+// rootHi finds where a monotone g changes sign in [lo, hi] by the Illinois variant
+// of regula falsi and returns a point on the usable side g ≥ 0 within 1e-13 relative
+// of the crossing. increasing says g rises with x (the usable side lies toward hi);
+// otherwise it lies toward lo. When g does not change sign, the usable endpoint is
+// returned, or, when neither is usable, the endpoint nearer to being usable.
+func (sv *solver) rootHi(g func(float64) float64, lo, hi float64, increasing bool) float64 {
+	if !increasing {
+		x := sv.rootHi(func(x float64) float64 { return g(lo + hi - x) }, lo, hi, true)
+		return math.Min(math.Max(lo+hi-x, lo), hi)
+	}
+	fa := g(lo)
+	if fa >= 0 {
+		return lo
+	}
+	fb := g(hi)
+	if fb < 0 {
+		return hi
+	}
+	a, b := lo, hi
+	side := 0
+	for i := 0; i < 200 && b-a > 1e-13*math.Max(math.Abs(a), math.Abs(b)); i++ {
+		x := (a*fb - b*fa) / (fb - fa)
+		if !(x > a && x < b) {
+			x = 0.5 * (a + b)
+		}
+		fx := g(x)
+		if fx == 0 {
+			return x
+		}
+		if fx < 0 {
+			a, fa = x, fx
+			if side == -1 {
+				fb *= 0.5
+			}
+			side = -1
+		} else {
+			b, fb = x, fx
+			if side == 1 {
+				fa *= 0.5
+			}
+			side = 1
+		}
+	}
+	return b
+}
+
+// sq returns x².
+func sq(x float64) float64 { return x * x }
