@@ -174,7 +174,7 @@ func (m Medium) SaturationPressure(T float64) (float64, bool) {
 	if m.Kind != MediumNitrogen || !(T > 0) || T > NitrogenCriticalTemperature {
 		return 0, false
 	}
-	return standardPressure * math.Exp(nitrogenClausiusB()*(1/NitrogenBoilingTemperature-1/T)), true
+	return standardPressure * math.Exp(nitrogenClausiusB*(1/NitrogenBoilingTemperature-1/T)), true
 }
 
 // SaturationTemperature returns the saturation temperature in K at pressure p in Pa
@@ -188,15 +188,13 @@ func (m Medium) SaturationTemperature(p float64) (float64, bool) {
 	if p >= NitrogenCriticalPressure {
 		return NitrogenCriticalTemperature, false
 	}
-	return 1 / (1/NitrogenBoilingTemperature - math.Log(p/standardPressure)/nitrogenClausiusB()), true
+	return 1 / (1/NitrogenBoilingTemperature - math.Log(p/standardPressure)/nitrogenClausiusB), true
 }
 
-// nitrogenClausiusB returns the slope B in K of nitrogen's two-point
-// Clausius–Clapeyron line, ln p against −1/T.
-func nitrogenClausiusB() float64 {
-	return math.Log(NitrogenCriticalPressure/standardPressure) /
-		(1/NitrogenBoilingTemperature - 1/NitrogenCriticalTemperature)
-}
+// nitrogenClausiusB is the slope B in K of nitrogen's two-point Clausius–Clapeyron
+// line, ln p against −1/T: ln(p_c/p_b)/(1/T_b − 1/T_c) with the constants above
+// (TestNitrogenSaturation checks both ends of the line).
+const nitrogenClausiusB = 701.9739241428215
 
 // Peng–Robinson constants Ω_a and Ω_b: the exact solution of the critical conditions
 // (∂p/∂v = ∂²p/∂v² = 0 at Tc, pc), which Peng & Robinson (1976) print rounded as

@@ -1,0 +1,159 @@
+package facilities_test
+
+import (
+	"errors"
+	"math"
+	"slices"
+	"testing"
+
+	"scalematch/facilities"
+)
+
+func TestValidateDemo(t *testing.T) {
+	for _, f := range facilities.Demo() {
+		t.Run(f.ID, func(t *testing.T) {
+			if err := f.Validate(); err != nil {
+				t.Errorf("demo facility is invalid: %v", err)
+			}
+		})
+	}
+}
+
+func fp(v float64) *float64 { return &v }
+
+// validationFields returns the field paths of a Validate error, failing the test
+// when it is not a *facilities.Error with CodeInvalid.
+func validationFields(t *testing.T, err error) []string {
+	t.Helper()
+	if err == nil {
+		return nil
+	}
+	var e *facilities.Error
+	if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
+		t.Fatalf("error %v: want a *facilities.Error with CodeInvalid", err)
+	}
+	var got []string
+	for _, f := range e.Fields {
+		if f.Message == "" {
+			t.Errorf("%s: empty message", f.Field)
+		}
+		got = append(got, f.Field)
+	}
+	return got
+}
+
+func TestValidateBadFacilities(t *testing.T) {
+	tests := []struct {
+		name   string
+		id     string // demo facility to start from
+		modify func(f *facilities.Facility)
+		want   []string
+	}{
+		{"missing id", "lsw-2", func(f *facilities.Facility) { f.ID = "" }, []string{"id"}},
+		{"upper-case id", "lsw-2", func(f *facilities.Facility) { f.ID = "LSW-2" }, []string{"id"}},
+		{"double dash id", "lsw-2", func(f *facilities.Facility) { f.ID = "lsw--2" }, []string{"id"}},
+		{"trailing dash id", "lsw-2", func(f *facilities.Facility) { f.ID = "lsw-" }, []string{"id"}},
+		{"negative version", "lsw-2", func(f *facilities.Facility) { f.Version = -1 }, []string{"version"}},
+		{"unknown medium", "lsw-2", func(f *facilities.Facility) { f.Medium.Kind = "helium" }, []string{"medium"}},
+		{"gas constants on air", "lsw-2", func(f *facilities.Facility) { f.Medium.Gas = &facilities.GasProperties{} }, []string{"medium.gas"}},
+		{"custom gas without constants", "lsw-2", func(f *facilities.Facility) { f.Medium = facilities.Medium{Kind: facilities.MediumGas} }, []string{"medium.gas"}},
+		{"custom gas bad gamma", "lsw-2", func(f *facilities.Facility) {
+			f.Medium = facilities.Medium{Kind: facilities.MediumGas, Gas: &facilities.GasProperties{
+				MolarMass: 0.04, Gamma: 1.8, ViscosityReference: 2e-5, TemperatureReference: 273, SutherlandConstant: -1}}
+		}, []string{"medium.gas.gamma", "medium.gas.sutherland_constant"}},
+		{"zero width", "lsw-2", func(f *facilities.Facility) { f.TestSection.Width = 0 }, []string{"test_section.width"}},
+		{"NaN height", "lsw-2", func(f *facilities.Facility) { f.TestSection.Height = math.NaN() }, []string{"test_section.height"}},
+		{"huge length", "lsw-2", func(f *facilities.Facility) { f.TestSection.Length = 1000 }, []string{"test_section.length"}},
+		{"negative area", "lsw-2", func(f *facilities.Facility) { f.TestSection.Area = fp(-1) }, []string{"test_section.area"}},
+		{"unknown walls", "lsw-2", func(f *facilities.Facility) { f.TestSection.Walls = "mesh" }, []string{"test_section.walls"}},
+		{"no mach and no speed", "lsw-2", func(f *facilities.Facility) { f.Speed = nil }, []string{"mach"}},
+		{"water without speed", "wtn-04", func(f *facilities.Facility) { f.Speed = nil }, []string{"speed"}},
+		{"water with mach", "wtn-04", func(f *facilities.Facility) { f.Mach = &facilities.Range{Min: 0, Max: 0.01} }, []string{"mach"}},
+		{"mach reversed", "tsw-1", func(f *facilities.Facility) { f.Mach = &facilities.Range{Min: 1.15, Max: 0.2} }, []string{"mach.min"}},
+		{"mach above 5", "tsw-1", func(f *facilities.Facility) { f.Mach.Max = 6 }, []string{"mach.max"}},
+		{"negative speed", "lsw-2", func(f *facilities.Facility) { f.Speed.Min = -5 }, []string{"speed.min"}},
+		{"infinite speed", "lsw-2", func(f *facilities.Facility) { f.Speed.Max = math.Inf(1) }, []string{"speed.max"}},
+		{"zero pressure", "lsw-2", func(f *facilities.Facility) { f.StagnationPressure = facilities.Range{} }, []string{"stagnation_pressure.min", "stagnation_pressure.max"}},
+		{"pressure reversed", "plp-3", func(f *facilities.Facility) { f.StagnationPressure = facilities.Range{Min: 4e5, Max: 1e5} }, []string{"stagnation_pressure.min"}},
+		{"temperature reversed", "plp-3", func(f *facilities.Facility) { f.StagnationTemperature = facilities.Range{Min: 313, Max: 288} }, []string{"stagnation_temperature.min"}},
+		{"water too hot", "wtn-04", func(f *facilities.Facility) { f.StagnationTemperature.Max = 430 }, []string{"stagnation_temperature.max"}},
+		{"nitrogen below its triple point", "cn2-05", func(f *facilities.Facility) { f.StagnationTemperature.Min = 60 }, []string{"stagnation_temperature.min"}},
+		{"zero max q", "lsw-2", func(f *facilities.Facility) { f.MaxDynamicPressure = fp(0) }, []string{"max_dynamic_pressure"}},
+		{"negative max Re/m", "lsw-2", func(f *facilities.Facility) { f.MaxReynoldsPerMeter = fp(-1) }, []string{"max_reynolds_per_meter"}},
+		{"span fraction above 1", "lsw-2", func(f *facilities.Facility) { f.MaxSpanFraction = fp(1.2) }, []string{"max_span_fraction"}},
+		{"blockage 1", "lsw-2", func(f *facilities.Facility) { f.MaxBlockage = fp(1) }, []string{"max_blockage"}},
+		{"lift interference 2", "lsw-2", func(f *facilities.Facility) { f.LiftInterferenceFactor = fp(2) }, []string{"lift_interference_factor"}},
+		{"zero peak Mach", "cn2-05", func(f *facilities.Facility) { f.CondensationPeakMach = fp(0) }, []string{"condensation_peak_mach"}},
+		{"balance without id", "lsw-2", func(f *facilities.Facility) { f.Balances[1].ID = "" }, []string{"balances[1].id"}},
+		{"duplicate balance id", "lsw-2", func(f *facilities.Facility) { f.Balances[1].ID = f.Balances[0].ID }, []string{"balances[1].id"}},
+		{"zero normal limit", "lsw-2", func(f *facilities.Facility) { f.Balances[1].Limits.Normal = fp(0) }, []string{"balances[1].limits.normal"}},
+		{"negative yawing moment limit", "lsw-2", func(f *facilities.Facility) { f.Balances[0].Limits.YawingMoment = fp(-900) }, []string{"balances[0].limits.yawing_moment"}},
+		{"safety factor below 1", "lsw-2", func(f *facilities.Facility) { f.Balances[0].SafetyFactor = 0.9 }, []string{"balances[0].safety_factor"}},
+		{"safety factor missing", "lsw-2", func(f *facilities.Facility) { f.Balances[1].SafetyFactor = 0 }, []string{"balances[1].safety_factor"}},
+		{"combined row unknown component", "lsw-2", func(f *facilities.Facility) {
+			f.Balances[0].Combined[0].Coefficients = map[string]float64{"normal": 0.5, "pitch": 4}
+		}, []string{"balances[0].combined[0].coefficients.pitch"}},
+		{"combined row all zero", "lsw-2", func(f *facilities.Facility) {
+			f.Balances[0].Combined[0].Coefficients = map[string]float64{"normal": 0}
+		}, []string{"balances[0].combined[0].coefficients"}},
+		{"combined row no coefficients, no limit, no name", "lsw-2", func(f *facilities.Facility) {
+			f.Balances[0].Combined[0] = facilities.CombinedLimit{}
+		}, []string{"balances[0].combined[0].name", "balances[0].combined[0].coefficients", "balances[0].combined[0].limit"}},
+		{"combined rows with one name", "lsw-2", func(f *facilities.Facility) {
+			f.Balances[0].Combined = append(f.Balances[0].Combined, f.Balances[0].Combined[0])
+		}, []string{"balances[0].combined[1].name"}},
+		{"negative operations", "lsw-2", func(f *facilities.Facility) {
+			f.Operations.SecondsPerPoint = -1
+			f.Operations.MinutesPerTemperatureChange = math.NaN()
+		}, []string{"operations.seconds_per_point", "operations.minutes_per_temperature_change"}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			f := mustDemo(t, tc.id)
+			tc.modify(&f)
+			got := validationFields(t, f.Validate())
+			if !slices.Equal(got, tc.want) {
+				t.Errorf("fields %q, want %q", got, tc.want)
+			}
+		})
+	}
+}
+
+// TestValidateEverythingAtOnce: a facility with a problem in every part reports all
+// of them in one error, in field order.
+func TestValidateEverythingAtOnce(t *testing.T) {
+	f := facilities.Facility{
+		ID:                    "Bad Id",
+		Medium:                facilities.Medium{Kind: "plasma"},
+		TestSection:           facilities.TestSection{Width: -1, Height: 0, Length: 2, Walls: "glass"},
+		Mach:                  &facilities.Range{Min: -1, Max: 9},
+		StagnationPressure:    facilities.Range{Min: 2e5, Max: 1e5},
+		StagnationTemperature: facilities.Range{Min: 0, Max: 300},
+		MaxDynamicPressure:    fp(-5),
+		MaxSpanFraction:       fp(0),
+		Balances: []facilities.Balance{
+			{ID: "b", Limits: facilities.Limits{Axial: fp(-1)}, SafetyFactor: 1.5},
+			{ID: "b", SafetyFactor: 0.5, Combined: []facilities.CombinedLimit{
+				{Name: "row", Coefficients: map[string]float64{"lift": 1, "normal": math.Inf(1)}, Limit: 0},
+			}},
+		},
+		Operations: &facilities.Operations{MinutesPerRun: -10},
+	}
+	want := []string{
+		"id", "medium",
+		"test_section.width", "test_section.height", "test_section.walls",
+		"mach.min", "mach.max",
+		"stagnation_pressure.min", "stagnation_temperature.min",
+		"max_dynamic_pressure", "max_span_fraction",
+		"balances[0].limits.axial",
+		"balances[1].id", "balances[1].safety_factor",
+		"balances[1].combined[0].coefficients.lift", "balances[1].combined[0].coefficients.normal",
+		"balances[1].combined[0].coefficients", "balances[1].combined[0].limit",
+		"operations.minutes_per_run",
+	}
+	err := f.Validate()
+	got := validationFields(t, err)
+	if !slices.Equal(got, want) {
+		t.Errorf("fields\n%q\nwant\n%q", got, want)
+	}
+}

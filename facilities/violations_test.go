@@ -1,0 +1,106 @@
+package facilities_test
+
+import (
+	"encoding/json"
+	"slices"
+	"testing"
+
+	"scalematch/facilities"
+)
+
+// TestViolations triggers each constraint with a targeted setting and checks the
+// exact list of constraints reported.
+func TestViolations(t *testing.T) {
+	tests := []struct {
+		name   string
+		id     string
+		modify func(f *facilities.Facility)
+		set    facilities.Setting
+		want   []string
+	}{
+		{"inside every limit", "tsw-1", nil, facilities.Setting{Mach: 0.8, StagnationPressure: 150000, StagnationTemperature: 310}, nil},
+		{"Mach below", "tsw-1", nil, facilities.Setting{Mach: 0.1, StagnationPressure: 150000, StagnationTemperature: 310},
+			[]string{facilities.ConstraintMachMin}},
+		// M 1.2 at 100 kPa: q = 0.7·p·M² ≈ 41 kPa, under the 60 kPa limit.
+		{"Mach above", "tsw-1", nil, facilities.Setting{Mach: 1.2, StagnationPressure: 100000, StagnationTemperature: 310},
+			[]string{facilities.ConstraintMachMax}},
+		{"speed below", "lsw-2", nil, facilities.Setting{Speed: 3, StagnationPressure: 95500, StagnationTemperature: 300},
+			[]string{facilities.ConstraintSpeedMin}},
+		// 95 m/s: q ≈ ½·1.1·95² ≈ 5 kPa, also above the 4.5 kPa limit.
+		{"speed above", "lsw-2", nil, facilities.Setting{Speed: 95, StagnationPressure: 95500, StagnationTemperature: 300},
+			[]string{facilities.ConstraintSpeedMax, facilities.ConstraintDynamic}},
+		{"pressure below", "tsw-1", nil, facilities.Setting{Mach: 0.5, StagnationPressure: 40000, StagnationTemperature: 310},
+			[]string{facilities.ConstraintPressureMin}},
+		{"pressure above", "plp-3", nil, facilities.Setting{Mach: 0.1, StagnationPressure: 500000, StagnationTemperature: 300},
+			[]string{facilities.ConstraintPressureMax}},
+		{"temperature below", "tsw-1", nil, facilities.Setting{Mach: 0.5, StagnationPressure: 150000, StagnationTemperature: 290},
+			[]string{facilities.ConstraintTempMin}},
+		{"temperature above", "wtn-04", nil, facilities.Setting{Speed: 1, StagnationPressure: 101000, StagnationTemperature: 310},
+			[]string{facilities.ConstraintTempMax}},
+		// M 1.1 at 220 kPa: p ≈ 103 kPa, q ≈ 87 kPa > 60 kPa.
+		{"dynamic pressure", "tsw-1", nil, facilities.Setting{Mach: 1.1, StagnationPressure: 220000, StagnationTemperature: 310},
+			[]string{facilities.ConstraintDynamic}},
+		{"Reynolds number per metre", "tsw-1", func(f *facilities.Facility) { f.MaxReynoldsPerMeter = fp(1.5e7) },
+			facilities.Setting{Mach: 0.8, StagnationPressure: 150000, StagnationTemperature: 310},
+			[]string{facilities.ConstraintReynoldsUnit}},
+		// cn2-05 at 450 kPa: the local expansion to M 1.4 condenses below about
+		// 112 K whatever the free-stream Mach; 111 K is inside the 110 K floor. At
+		// M 0.5, q ≈ 66 kPa stays under the 80 kPa limit (at M 0.8 it would not).
+		{"condensation", "cn2-05", nil, facilities.Setting{Mach: 0.5, StagnationPressure: 450000, StagnationTemperature: 111},
+			[]string{facilities.ConstraintCondensation}},
+		{"condensation, q and the temperature floor", "cn2-05", nil, facilities.Setting{Mach: 0.8, StagnationPressure: 450000, StagnationTemperature: 105},
+			[]string{facilities.ConstraintTempMin, facilities.ConstraintDynamic, facilities.ConstraintCondensation}},
+		{"no condensation at low pressure", "cn2-05", nil, facilities.Setting{Mach: 0.8, StagnationPressure: 115000, StagnationTemperature: 110}, nil},
+		{"on the limits", "plp-3", nil, facilities.Setting{Mach: 0.33, StagnationPressure: 100000 * (1 - 1e-12), StagnationTemperature: 313}, nil},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			f := mustDemo(t, tc.id)
+			if tc.modify != nil {
+				tc.modify(&f)
+			}
+			st, err := f.State(tc.set)
+			if err != nil {
+				t.Fatal(err)
+			}
+			v := f.Violations(st)
+			if v == nil {
+				t.Fatal("Violations returned nil, want a non-nil (possibly empty) list")
+			}
+			var got []string
+			for _, x := range v {
+				got = append(got, x.Constraint)
+				if x.Message == "" {
+					t.Errorf("%s: empty message", x.Constraint)
+				}
+			}
+			if !slices.Equal(got, tc.want) {
+				t.Errorf("constraints %q, want %q (%+v)", got, tc.want, v)
+			}
+		})
+	}
+}
+
+func TestViolationsEncodeEmptyList(t *testing.T) {
+	f := mustDemo(t, "tsw-1")
+	st, err := f.State(facilities.Setting{Mach: 0.8, StagnationPressure: 150000, StagnationTemperature: 310})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := json.Marshal(f.Violations(st))
+	if err != nil || string(b) != "[]" {
+		t.Errorf("encoded %s, %v; want []", b, err)
+	}
+}
+
+func TestViolationValues(t *testing.T) {
+	f := mustDemo(t, "tsw-1")
+	st, err := f.State(facilities.Setting{Mach: 1.1, StagnationPressure: 220000, StagnationTemperature: 310})
+	if err != nil {
+		t.Fatal(err)
+	}
+	v := f.Violations(st)
+	if len(v) != 1 || v[0].Value != st.DynamicPressure || v[0].Limit != 60000 {
+		t.Errorf("violations %+v: want one at q %g Pa against 60000 Pa", v, st.DynamicPressure)
+	}
+}
