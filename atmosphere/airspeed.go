@@ -121,14 +121,19 @@ func (s State) Airspeeds(kind SpeedKind, value float64) (Airspeeds, error) {
 	m = math.Min(m, MaxMach) // a speed at the edge may round to a hair above it
 	v := m * a
 	qc := p * impactRatio(m, Gamma)
-	return Airspeeds{
+	out := Airspeeds{
 		Mach:            m,
 		True:            v,
-		Calibrated:      SeaLevelSpeedOfSound * machFromImpact(qc/SeaLevelPressure, Gamma),
 		Equivalent:      v * math.Sqrt(rho/SeaLevelDensity),
 		DynamicPressure: 0.5 * rho * v * v,
 		ImpactPressure:  qc,
-	}, nil
+	}
+	if kind == CalibratedAirspeed {
+		out.Calibrated = value // already solved for; no second inverse
+	} else {
+		out.Calibrated = SeaLevelSpeedOfSound * machFromImpact(qc/SeaLevelPressure, Gamma)
+	}
+	return out, nil
 }
 
 // checkSpeed checks that a speed in m/s is finite and between zero and max, the

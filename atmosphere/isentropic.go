@@ -66,7 +66,7 @@ func logPitot(mach, gamma float64) float64 {
 
 // machFromImpact returns the Mach number at which qc/p equals x ≥ 0, the inverse of
 // impactRatio: in closed form below Mach 1, by safeguarded Newton iteration on
-// ln((p+qc)/p) above it, to a relative step of 1e-15.
+// ln((p+qc)/p) above it; the result is good to about 1e-14 relative.
 func machFromImpact(x, gamma float64) float64 {
 	lf := math.Log1p(x)
 	if lf <= logPitot(1, gamma) {
@@ -80,7 +80,9 @@ func machFromImpact(x, gamma float64) float64 {
 	for logPitot(hi, gamma) < lf {
 		lo, hi = hi, 2*hi
 	}
-	m := math.Sqrt(math.Exp(lf - logPitot(1, gamma)))
+	// Large-M asymptote: (p+qc)/p → C·M², C = ((γ+1)/2)^(γ/(γ−1))·((γ+1)/(2γ))^(1/(γ−1)).
+	lc := (gamma*math.Log(0.5*(gamma+1)) + math.Log((gamma+1)/(2*gamma))) / (gamma - 1)
+	m := math.Exp(0.5 * (lf - lc))
 	if m <= lo || m >= hi {
 		m = 0.5 * (lo + hi)
 	}
@@ -97,7 +99,9 @@ func machFromImpact(x, gamma float64) float64 {
 		if next <= lo || next >= hi {
 			next = 0.5 * (lo + hi)
 		}
-		if math.Abs(next-m) <= 1e-15*m {
+		// Newton converges quadratically: once a step is below 1e-13, what error
+		// remains comes from rounding in the logarithms.
+		if math.Abs(next-m) <= 1e-13*m {
 			return next
 		}
 		m = next
