@@ -217,7 +217,7 @@ func (cv canvas) vline(x, y0, y1 int, c color.RGBA) {
 // square pen).
 func (cv canvas) line(x0, y0, x1, y1 float64, width int, c color.RGBA) {
 	ix0, iy0, ix1, iy1 := int(math.Round(x0)), int(math.Round(y0)), int(math.Round(x1)), int(math.Round(y1))
-	dx, dy := abs(ix1-ix0), -abs(iy1-iy0)
+	dx, dy := iabs(ix1-ix0), -iabs(iy1-iy0)
 	sx, sy := 1, 1
 	if ix0 > ix1 {
 		sx = -1
@@ -248,7 +248,7 @@ func (cv canvas) line(x0, y0, x1, y1 float64, width int, c color.RGBA) {
 	}
 }
 
-func abs(v int) int {
+func iabs(v int) int {
 	if v < 0 {
 		return -v
 	}

@@ -5,5 +5,15 @@ import "github.com/gin-gonic/gin"
 // registerPlanning registers the planning endpoints on the /v1 group: atmosphere,
 // conditions, plans, the plan batch, loads, groups and the facility envelope charts.
 func (s *Server) registerPlanning(v1 *gin.RouterGroup) {
-	_ = v1
+	v1.GET("/atmosphere", s.getAtmosphere)
+	v1.POST("/conditions", s.postConditions)
+	v1.POST("/plans", s.postPlan)
+	v1.POST("/plans/batch", s.postPlanBatch)
+	v1.POST("/loads", s.postLoads)
+	v1.POST("/groups", s.postGroups)
+	v1.GET("/facilities/:id/envelope.svg", s.getEnvelopeSVG)
+	v1.GET("/facilities/:id/envelope.png", s.getEnvelopePNG)
 }
+
+// planner returns the composition over the configured catalog.
+func (s *Server) planner() *Planner { return &Planner{Catalog: s.cfg.Catalog} }

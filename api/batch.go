@@ -1,0 +1,106 @@
+package api
+
+import (
+	"encoding/json"
+	"fmt"
+	"net/http"
+	"runtime"
+	"sync"
+
+	"github.com/gin-gonic/gin"
+)
+
+// MaxBatch is the largest number of plan requests one POST /v1/plans/batch takes.
+const MaxBatch = 1000
+
+// batchBody is the batch as first decoded: each request kept raw, so that a bad
+// item fails alone with its own problem.
+type batchBody struct {
+	Requests []json.RawMessage `json:"requests"`
+}
+
+// batchItem is one result as written: the plan's exact bytes, or a problem.
+type batchItem struct {
+	Plan  json.RawMessage `json:"plan,omitempty"`
+	Error *Problem        `json:"error,omitempty"`
+}
+
+// postPlanBatch answers POST /v1/plans/batch.
+//
+//	@Summary		Plan many tests at once
+//	@Description	Up to 1000 plan requests, each exactly as POST /v1/plans takes it (SI numbers or strings with units), planned concurrently. The results are in the order of the requests; each is {"plan": …} with the plan exactly as POST /v1/plans would answer it, or {"error": problem} with the status that request would have got on its own. The batch itself fails (400) only when it is not {"requests": [...]} or has more than 1000 items.
+//	@Tags			planning
+//	@Accept			json
+//	@Produce		json
+//	@Param			request	body		BatchRequest	true	"requests: a list of plan requests"
+//	@Success		200		{object}	BatchResponse
+//	@Failure		400		{object}	Problem	"not a batch, or more than 1000 requests"
+//	@Failure		413		{object}	Problem	"body too large"
+//	@Router			/v1/plans/batch [post]
+func (s *Server) postPlanBatch(c *gin.Context) {
+	var b batchBody
+	if !s.decodeBody(c, &b) {
+		return
+	}
+	switch {
+	case b.Requests == nil:
+		s.fail(c, (fieldErrors{{Field: "requests", Message: "required: a list of plan requests"}}).err())
+		return
+	case len(b.Requests) > MaxBatch:
+		s.fail(c, (fieldErrors{{Field: "requests", Message: fmt.Sprintf("%d requests: at most %d per batch", len(b.Requests), MaxBatch)}}).err())
+		return
+	}
+	p := s.planner()
+	ctx := c.Request.Context()
+	out := make([]batchItem, len(b.Requests))
+	var mu sync.Mutex // guards s.problem's use of c (logging and request id)
+	each(len(b.Requests), func(i int) {
+		var req PlanRequest
+		// A bad item's problem names its fields as POST /v1/plans would; its
+		// position in the results says which item it is.
+		err := Decode(b.Requests[i], &req)
+		if err == nil {
+			var body []byte
+			body, err = s.timedPlan(ctx, p, &req)
+			if err == nil {
+				out[i].Plan = body
+				return
+			}
+		}
+		mu.Lock()
+		pr := s.problem(c, err)
+		mu.Unlock()
+		out[i].Error = &pr
+	})
+	c.JSON(http.StatusOK, struct {
+		Results []batchItem `json:"results"`
+	}{out})
+}
+
+// each calls fn(i) for i in [0, n) on a bounded pool of runtime.GOMAXPROCS(0)
+// goroutines and returns when all calls have.
+func each(n int, fn func(i int)) {
+	workers := min(runtime.GOMAXPROCS(0), n)
+	if workers <= 1 {
+		for i := range n {
+			fn(i)
+		}
+		return
+	}
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				fn(i)
+			}
+		}()
+	}
+	for i := range n {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+}

@@ -1,0 +1,434 @@
+package api
+
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
+)
+
+// Planner is the composition behind the planning endpoints and the command line:
+// it validates a request, resolves the facility, runs the physics packages and
+// assembles the answer. The zero value plans against the embedded demo catalog.
+// It is safe for concurrent use.
+type Planner struct {
+	// Catalog resolves facility_id; nil: the demo facilities (facilities.Demo).
+	Catalog facilities.Catalog
+}
+
+// fieldErrors collects the field problems of one request.
+type fieldErrors []facilities.FieldError
+
+func (fe *fieldErrors) add(field, format string, args ...any) {
+	*fe = append(*fe, facilities.FieldError{Field: field, Message: fmt.Sprintf(format, args...)})
+}
+
+// merge appends the field errors of err, each path prefixed by prefix (with a dot
+// between when both are non-empty), and reports whether err was a CodeInvalid
+// domain error. Other errors are left to the caller.
+func (fe *fieldErrors) merge(prefix string, err error) bool {
+	de, ok := err.(*facilities.Error)
+	if !ok || de.Code != facilities.CodeInvalid {
+		return false
+	}
+	if len(de.Fields) == 0 {
+		fe.add(prefix, "%s", de.Message)
+		return true
+	}
+	for _, f := range de.Fields {
+		*fe = append(*fe, facilities.FieldError{Field: joinPath(prefix, f.Field), Message: f.Message})
+	}
+	return true
+}
+
+// err returns the collected problems as one CodeInvalid error, or nil.
+func (fe fieldErrors) err() error {
+	if len(fe) == 0 {
+		return nil
+	}
+	return &facilities.Error{Code: facilities.CodeInvalid, Message: countFields(len(fe)), Fields: fe}
+}
+
+// joinPath joins JSON paths: "facility" + "balances[0].id", or "" + "x" = "x".
+func joinPath(prefix, path string) string {
+	switch {
+	case prefix == "":
+		return path
+	case path == "":
+		return prefix
+	case strings.HasPrefix(path, "["):
+		return prefix + path
+	}
+	return prefix + "." + path
+}
+
+// facility resolves a request's facility: the inline one (validated, its errors
+// under "facility."), or the one facility_id names in the catalog (the demo
+// catalog when none is configured). Problems with the choice itself are added to
+// fe; a facility_id that names nothing is a CodeNotFound error, returned only when
+// fe is otherwise empty so that a 400 lists every bad field first.
+func (p *Planner) facility(ctx context.Context, inline *facilities.Facility, id string, fe *fieldErrors) (*facilities.Facility, error) {
+	switch {
+	case inline != nil && id != "":
+		fe.add("facility_id", "give facility or facility_id, not both")
+		return nil, nil
+	case inline == nil && id == "":
+		fe.add("facility_id", "give facility_id (a catalog id such as \"tsw-1\") or an inline facility")
+		return nil, nil
+	case inline != nil:
+		f := *inline
+		f.Version = 0
+		if err := f.Validate(); err != nil {
+			if !fe.merge("facility", err) {
+				return nil, err
+			}
+			return nil, nil
+		}
+		return &f, nil
+	}
+	if p.Catalog == nil {
+		f, ok := facilities.DemoFacility(id)
+		if !ok {
+			return nil, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("facility %q not found", id)}
+		}
+		return &f, nil
+	}
+	f, err := p.Catalog.Facility(ctx, id)
+	if err != nil {
+		return nil, err
+	}
+	return &f, nil
+}
+
+// planID returns the id of a plan: the first 20 hex digits of the SHA-256 of the
+// canonical JSON of the decoded request, the facility's id and its catalog version.
+// The same request against the same facility version gets the same id; a changed
+// facility gets a new one.
+func planID(kind string, req any, f *facilities.Facility) (string, error) {
+	b, err := json.Marshal(req)
+	if err != nil {
+		return "", err
+	}
+	h := sha256.New()
+	fmt.Fprintf(h, "scalematch/v1 %s\n", kind)
+	h.Write(b)
+	fmt.Fprintf(h, "\n%s@%d\n", f.ID, f.Version)
+	if f.Version == 0 {
+		// An inline facility: its content is part of the request already.
+		fb, err := json.Marshal(f)
+		if err != nil {
+			return "", err
+		}
+		h.Write(fb)
+	}
+	return hex.EncodeToString(h.Sum(nil))[:20], nil
+}
+
+// isFinite reports whether v is neither NaN nor infinite.
+func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// balanceLimit is the planner's load limit for one balance, or for the most
+// permissive of a facility's balances when the request names none: the largest
+// free-stream dynamic pressure at which every point of the test matrix stays within
+// the balance's ratings over its safety factor (facilities.Ratings.MaxDynamicPressure),
+// with the model, its wall corrections and its weight at the candidate scale.
+type balanceLimit struct {
+	f        *facilities.Facility
+	article  *similarity.Article
+	install  facilities.Installation
+	points   []facilities.Point
+	ratings  []facilities.Ratings
+	balances []string
+}
+
+func newBalanceLimit(f *facilities.Facility, a *similarity.Article, in facilities.Installation, pts []facilities.Point) (*balanceLimit, error) {
+	bl := &balanceLimit{f: f, article: a, install: in, points: pts}
+	for i := range f.Balances {
+		b := &f.Balances[i]
+		if in.BalanceID != "" && b.ID != in.BalanceID {
+			continue
+		}
+		rs, err := b.Ratings()
+		if err != nil {
+			return nil, prefixInvalid(fmt.Sprintf("facility.balances[%d]", i), "balance", err)
+		}
+		bl.ratings = append(bl.ratings, rs)
+		bl.balances = append(bl.balances, b.ID)
+	}
+	return bl, nil
+}
+
+// prefixInvalid rewrites the field paths of a CodeInvalid error that start with
+// old to start with prefix instead.
+func prefixInvalid(prefix, old string, err error) error {
+	de, ok := err.(*facilities.Error)
+	if !ok || de.Code != facilities.CodeInvalid {
+		return err
+	}
+	cp := *de
+	cp.Fields = make([]facilities.FieldError, len(de.Fields))
+	for i, f := range de.Fields {
+		cp.Fields[i] = facilities.FieldError{Field: prefix + strings.TrimPrefix(f.Field, old), Message: f.Message}
+	}
+	return &cp
+}
+
+// Name is the constraint's name in the binding list.
+func (bl *balanceLimit) Name() string { return facilities.ConstraintBalance }
+
+// MaxDynamicPressure implements similarity.LoadLimit.
+func (bl *balanceLimit) MaxDynamicPressure(scale float64, st facilities.State) float64 {
+	lc := bl.loadCase(scale, st.Mach)
+	best := 0.0
+	for i := range bl.ratings {
+		q := math.Inf(1)
+		for j := range lc.Points {
+			perQ, w := lc.Affine(j)
+			if qj, _ := bl.ratings[i].MaxDynamicPressure(&perQ, &w); qj < q {
+				q = qj
+			}
+		}
+		best = math.Max(best, q)
+	}
+	return best
+}
+
+// loadCase is the load case of a model of the given scale at free-stream Mach
+// number mach, wall corrections applied to a copy of the points.
+func (bl *balanceLimit) loadCase(scale, mach float64) *facilities.LoadCase {
+	a := bl.article
+	s2 := scale * scale
+	w := facilities.NewWalls(bl.f, a.FrontalArea*s2, a.ReferenceArea*s2, mach)
+	pts := append([]facilities.Point(nil), bl.points...)
+	w.Apply(pts)
+	return &facilities.LoadCase{
+		ReferenceArea:   a.ReferenceArea * s2,
+		ReferenceLength: a.ReferenceLength * scale,
+		Installation:    bl.install,
+		Points:          pts,
+	}
+}
+
+// checkArticle adds the problems of the article's geometry and estimate to fe.
+func checkArticle(a *similarity.Article, fe *fieldErrors) {
+	pos := func(field string, v float64, unit string) {
+		if !(v > 0) || math.IsInf(v, 0) {
+			fe.add("article."+field, "%g: must be a positive, finite %s", v, unit)
+		}
+	}
+	pos("reference_length", a.ReferenceLength, "length in m")
+	pos("reference_area", a.ReferenceArea, "area in m²")
+	pos("span", a.Span, "length in m")
+	pos("frontal_area", a.FrontalArea, "area in m²")
+	pos("wetted_area", a.WettedArea, "area in m²")
+	if !(a.Length >= 0) || math.IsInf(a.Length, 0) {
+		fe.add("article.length", "%g: must be 0 (unknown) or a positive length in m", a.Length)
+	}
+	if !(a.FormFactor >= 0) || math.IsInf(a.FormFactor, 0) {
+		fe.add("article.form_factor", "%g: must be 0 (taken as 1) or positive", a.FormFactor)
+	}
+	if err := a.Aero.Validate(); err != nil {
+		fe.merge("", err)
+	}
+}
+
+// checkInstallation adds the problems of an installation in facility f (nil when
+// unresolved) to fe.
+func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *fieldErrors) {
+	if !(in.ModelMass >= 0) || math.IsInf(in.ModelMass, 0) {
+		fe.add("installation.model_mass", "%g: must be 0 (weight left out) or a positive mass in kg", in.ModelMass)
+	}
+	for _, o := range []struct {
+		name string
+		v    float64
+	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
+		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
+		if !isFinite(o.v) || math.Abs(o.v) > 100 {
+			fe.add("installation."+o.name, "%g: must be a finite length in m, at most 100 m either way", o.v)
+		}
+	}
+	if f == nil || in.BalanceID == "" {
+		return
+	}
+	ids := make([]string, len(f.Balances))
+	for i, b := range f.Balances {
+		if b.ID == in.BalanceID {
+			return
+		}
+		ids[i] = b.ID
+	}
+	if len(ids) == 0 {
+		fe.add("installation.balance_id", "facility %s has no balances", f.ID)
+		return
+	}
+	fe.add("installation.balance_id", "facility %s has no balance %q; it has: %s", f.ID, in.BalanceID, strings.Join(ids, ", "))
+}
+
+// Plan validates a plan request, plans it and assembles the answer. Bad input is a
+// *facilities.Error with CodeInvalid naming every bad field; an unknown facility
+// CodeNotFound; a problem no plan can satisfy CodeUnprocessable naming the limits.
+// The answer's ID is set; nothing is stored.
+func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, error) {
+	var fe fieldErrors
+	f, err := p.facility(ctx, req.Facility, req.FacilityID, &fe)
+	if err := notFoundOrFail(err, &fe, "facility_id"); err != nil {
+		return nil, err
+	}
+	if err := req.Flight.Validate(); err != nil && !fe.merge("", err) {
+		return nil, err
+	}
+	checkArticle(&req.Article, &fe)
+	if err := req.Model.Validate(); err != nil && !fe.merge("", err) {
+		return nil, err
+	}
+	if err := req.Objective.Validate(); err != nil && !fe.merge("", err) {
+		return nil, err
+	}
+	checkInstallation(&req.Installation, f, &fe)
+	mx, err := req.Article.Aero.Matrix(req.Alpha, req.Beta)
+	if err != nil && !fe.merge("", err) {
+		return nil, err
+	}
+	if err := fe.err(); err != nil {
+		return nil, err
+	}
+	flight, err := req.Flight.Resolve(req.Article.ReferenceLength)
+	if err != nil {
+		return nil, err
+	}
+	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective}
+	var bl *balanceLimit
+	if len(f.Balances) > 0 {
+		if bl, err = newBalanceLimit(f, &req.Article, req.Installation, mx.Points); err != nil {
+			return nil, err
+		}
+		prob.LoadLimit = bl
+	}
+	res, err := similarity.Plan(prob, nil)
+	if err != nil {
+		return nil, err
+	}
+	out := &PlanResponse{
+		FacilityID:      f.ID,
+		FacilityVersion: f.Version,
+		Flight:          res.Flight,
+		Model:           res.Model,
+		Test:            res.Test,
+		Mismatch:        res.Mismatch,
+		Binding:         res.Binding,
+		TradeCurve:      res.Trade,
+		Warnings:        append([]string{}, res.Warnings...),
+		Cautions:        append([]string{}, res.Cautions...),
+	}
+	if out.Binding == nil {
+		out.Binding = []similarity.Binding{}
+	}
+	if out.TradeCurve == nil {
+		out.TradeCurve = []similarity.TradePoint{}
+	}
+	out.Warnings = append(out.Warnings, mx.Warnings...)
+	out.Warnings = append(out.Warnings, f.Warnings(res.Test.State)...)
+	out.Corrections, out.Loads, err = loadsAt(f, &req.Article, req.Installation, mx, res.Model.Scale, res.Test.State, &out.Warnings)
+	if err != nil {
+		return nil, err
+	}
+	if len(f.Balances) == 0 {
+		out.Warnings = append(out.Warnings, fmt.Sprintf("facility %s lists no balance: no load check", f.ID))
+	}
+	sch, err := facilities.ScheduleTest(f, facilities.Test{AlphaPoints: mx.AlphaPoints, BetaValues: mx.BetaValues,
+		Conditions: []facilities.Condition{{StagnationPressure: res.Test.StagnationPressure, StagnationTemperature: res.Test.StagnationTemperature}}})
+	switch {
+	case err == nil:
+		out.Schedule = &sch
+	case errors.Is(err, facilities.ErrNoOperations):
+		out.Warnings = append(out.Warnings, "the facility gives no operations figures: no schedule")
+	default:
+		return nil, err
+	}
+	if out.Loads != nil {
+		out.Cautions = appendCautions(out.Cautions, f, *out.Loads)
+	} else {
+		out.Cautions = appendCautions(out.Cautions, f)
+	}
+	medium := f.Medium.Kind
+	re, err := similarity.ReynoldsEffect(&req.Article, res.Flight.Reynolds, res.Flight.Mach, res.Test.Reynolds, res.Test.Mach, medium)
+	if err != nil {
+		return nil, err
+	}
+	out.ReynoldsEffects = &re
+	if out.ID, err = planID("plan", req, f); err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// appendCautions adds the cautions of facility f and its load reports
+// (facilities.Cautions), once each.
+func appendCautions(c []string, f *facilities.Facility, reports ...facilities.LoadReport) []string {
+	for _, s := range facilities.Cautions(f, reports...) {
+		if !slices.Contains(c, s) {
+			c = append(c, s)
+		}
+	}
+	return c
+}
+
+// loadsAt computes the wall corrections of a model of the given scale at test state
+// st and the balance check of the matrix: the named balance or the automatic
+// choice. Notes are added to warnings. Loads is nil when the facility has no
+// balance.
+func loadsAt(f *facilities.Facility, a *similarity.Article, in facilities.Installation, mx similarity.Matrix, scale float64, st facilities.State, warnings *[]string) (facilities.Corrections, *facilities.LoadReport, error) {
+	s2 := scale * scale
+	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)
+	pts := append([]facilities.Point(nil), mx.Points...)
+	w.Apply(pts)
+	corr := w.Summary(pts)
+	*warnings = append(*warnings, w.Warnings...)
+	if len(f.Balances) == 0 {
+		return corr, nil, nil
+	}
+	lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * scale, Installation: in, Points: pts}
+	ch, err := lc.ChooseBalance(f, st.DynamicPressure)
+	if err != nil {
+		return corr, nil, err
+	}
+	if in.BalanceID == "" {
+		*warnings = append(*warnings, ch.Reason)
+	}
+	*warnings = append(*warnings, ch.Report.Warnings...)
+	return corr, &ch.Report, nil
+}
+
+// PlanJSON plans req and returns the answer's JSON exactly as POST /v1/plans sends
+// it. With a catalog the plan is stored under its id; when that id is stored
+// already, the stored bytes are returned, so a repeated request is answered byte
+// for byte as the first time.
+func (p *Planner) PlanJSON(ctx context.Context, req *PlanRequest) ([]byte, error) {
+	resp, err := p.Plan(ctx, req)
+	if err != nil {
+		return nil, err
+	}
+	body, err := json.Marshal(resp)
+	if err != nil {
+		return nil, err
+	}
+	if p.Catalog == nil {
+		return body, nil
+	}
+	rec, err := p.Catalog.SavePlan(ctx, facilities.PlanRecord{ID: resp.ID, FacilityID: resp.FacilityID, FacilityVersion: resp.FacilityVersion, Body: body})
+	if err != nil {
+		return nil, err
+	}
+	if len(rec.Body) > 0 {
+		return rec.Body, nil
+	}
+	return body, nil
+}

@@ -1,0 +1,44 @@
+package api
+
+import (
+	"context"
+	"net/http"
+	"time"
+
+	"github.com/gin-gonic/gin"
+)
+
+// postPlan answers POST /v1/plans.
+//
+//	@Summary		Plan a scale-model test
+//	@Description	Chooses the model scale and the test Mach number (speed in water, m/s), stagnation pressure (Pa) and stagnation temperature (K) that best match the flight's Reynolds and Mach numbers within the facility's limits and the balance's rated loads. The answer gives the flight (speeds m/s, dynamic pressure Pa, Reynolds number on the full-scale reference length), the model (scale, lengths m, areas m², blockage fraction), the test state, the mismatch (Re_test/Re_flight, M_test − M_flight), every binding limit with the Reynolds gain in per cent for one more per cent of it, wall corrections, balance loads over the α sweep (N, N·m, at the balance moment centre, weight included when model_mass is given), the Reynolds effect on skin-friction drag (drag counts), a schedule (hours), warnings and cautions. The same request gets the same id and, when a store is configured, byte-identical answers; GET /v1/plans/{id} returns it later. Inputs are SI numbers or strings with units; a scale may be "1:16".
+//	@Tags			planning
+//	@Accept			json
+//	@Produce		json
+//	@Param			request	body		PlanRequest	true	"flight, article, facility or facility_id, model, installation, alpha (degrees), objective"
+//	@Success		200		{object}	PlanResponse
+//	@Failure		400		{object}	Problem	"bad input: every bad field named by its JSON path"
+//	@Failure		404		{object}	Problem	"facility_id names no facility"
+//	@Failure		413		{object}	Problem	"body too large"
+//	@Failure		422		{object}	Problem	"no plan satisfies the hard limits; limits names those that conflict"
+//	@Router			/v1/plans [post]
+func (s *Server) postPlan(c *gin.Context) {
+	var req PlanRequest
+	if !s.decodeBody(c, &req) {
+		return
+	}
+	body, err := s.timedPlan(c.Request.Context(), s.planner(), &req)
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.Data(http.StatusOK, "application/json; charset=utf-8", body)
+}
+
+// timedPlan plans req, stores it, and records the planner's time in the metrics.
+func (s *Server) timedPlan(ctx context.Context, p *Planner, req *PlanRequest) ([]byte, error) {
+	t := time.Now()
+	body, err := p.PlanJSON(ctx, req)
+	s.observePlanner(time.Since(t))
+	return body, err
+}

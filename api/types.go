@@ -1,0 +1,263 @@
+package api
+
+import (
+	"bytes"
+	"encoding/json"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
+)
+
+// ConditionsRequest is the body of POST /v1/conditions: a facility (inline, or by
+// its catalog id) and the settings at which to compute its test-section state.
+type ConditionsRequest struct {
+	// Facility is the facility given inline; give this or FacilityID.
+	Facility *facilities.Facility `json:"facility,omitempty"`
+	// FacilityID names a facility of the catalog ("tsw-1"); give this or Facility.
+	FacilityID string `json:"facility_id,omitempty" example:"tsw-1"`
+	TestSettings
+}
+
+// TestSettings are the settings of a test section: one of Mach and Speed, and the
+// stagnation pressure and temperature. A stagnation value may be left out when the
+// facility fixes it (range min = max, as in an atmospheric tunnel).
+type TestSettings struct {
+	// Mach is the free-stream Mach number (dimensionless); nil when Speed is given.
+	// Not used in water.
+	Mach *float64 `json:"mach,omitempty" example:"0.8"`
+	// Speed is the free-stream speed in m/s (or a string such as "250 kt"); nil when
+	// Mach is given.
+	Speed *float64 `json:"speed,omitempty" unit:"m/s" example:"60"`
+	// StagnationPressure is the stagnation (total) pressure in Pa (or "2.2 bar").
+	StagnationPressure *float64 `json:"stagnation_pressure,omitempty" unit:"Pa" example:"150000"`
+	// StagnationTemperature is the stagnation (total) temperature in K (or "40 degC").
+	StagnationTemperature *float64 `json:"stagnation_temperature,omitempty" unit:"K" example:"310"`
+}
+
+// ConditionsResponse is the answer of POST /v1/conditions: the test-section state
+// (mach; speed m/s; stagnation_pressure Pa; stagnation_temperature K; static
+// temperature K, pressure Pa, density kg/m³, viscosity Pa·s, speed_of_sound m/s,
+// compressibility; dynamic_pressure Pa; reynolds_per_meter 1/m) and the facility
+// limits the settings break (an empty list when none).
+type ConditionsResponse struct {
+	facilities.State
+	// Violations are the facility limits these settings break; empty, never null,
+	// when none.
+	Violations []facilities.Violation `json:"violations"`
+	// Warnings are notes on the accuracy of the medium's model at this state.
+	Warnings []string `json:"warnings"`
+	// Cautions are the safety cautions of the facility's medium and pressure.
+	Cautions []string `json:"cautions"`
+}
+
+// GroupsRequest is the body of POST /v1/groups: the variables of a problem and,
+// optionally, the repeating variables to build the groups from.
+type GroupsRequest struct {
+	// Variables are the physical quantities the problem depends on.
+	Variables []GroupVariable `json:"variables"`
+	// Repeating names the variables that appear in every group; empty: chosen
+	// automatically.
+	Repeating []string `json:"repeating,omitempty"`
+}
+
+// GroupVariable is one variable of a Buckingham Π analysis: a name and either a
+// unit ("N", "kg/m^3", "Pa*s") or a dimension over M L T Θ ("M L^-1 T^-1").
+type GroupVariable struct {
+	// Name is the variable's name, used in the groups' exponents.
+	Name string `json:"name" example:"rho"`
+	// Unit is the variable's unit; give this or Dimensions.
+	Unit string `json:"unit,omitempty" example:"kg/m^3"`
+	// Dimensions is the variable's dimension, base symbols M, L, T, Θ (or K) with
+	// integer powers; give this or Unit.
+	Dimensions string `json:"dimensions,omitempty" example:"M L^-3"`
+}
+
+// GroupsResponse is the answer of POST /v1/groups: the rank of the dimension matrix,
+// the repeating variables used, and the n − rank independent dimensionless groups,
+// each {"exponents": {name: exponent}, "known_as": "..."} with exponents as small
+// integers (JSON numbers) or exact fractions (strings such as "1/2").
+type GroupsResponse = similarity.GroupsResult
+
+// BatchRequest is the body of POST /v1/plans/batch: up to MaxBatch plan requests.
+type BatchRequest struct {
+	// Requests are the plan requests, each as POST /v1/plans takes it.
+	Requests []PlanRequest `json:"requests"`
+}
+
+// BatchResponse is the answer of POST /v1/plans/batch: one result per request, in
+// the order of the requests.
+type BatchResponse struct {
+	Results []BatchResult `json:"results"`
+}
+
+// BatchResult is the outcome of one request of a batch: exactly one of Plan (the
+// plan, as POST /v1/plans answers it) and Error (a problem with the status the
+// request would have got on its own).
+type BatchResult struct {
+	Plan  *PlanResponse `json:"plan,omitempty"`
+	Error *Problem      `json:"error,omitempty"`
+}
+
+// PlanRequest is the body of POST /v1/plans (and each item of a batch). Every
+// dimensional number is SI or a string with a unit; a scale may be "1:16".
+type PlanRequest struct {
+	// Flight is the full-scale flight condition: one altitude (m), an optional
+	// delta_isa (K), one speed (mach, or true/calibrated/equivalent airspeed in m/s).
+	Flight similarity.Flight `json:"flight"`
+	// Article is the full-scale test article: lengths in m, areas in m², and its
+	// aerodynamic estimate (slopes per radian, angles in degrees).
+	Article similarity.Article `json:"article"`
+	// Facility is the facility given inline; give this or FacilityID.
+	Facility *facilities.Facility `json:"facility,omitempty"`
+	// FacilityID names a facility of the catalog ("tsw-1"); give this or Facility.
+	FacilityID string `json:"facility_id,omitempty" example:"tsw-1"`
+	// Model is the model size: scale, scale_min/scale_max, or scales (model length
+	// over full-scale length; numbers or "1:16"); absent: any scale that fits.
+	Model similarity.Model `json:"model"`
+	// Installation places the model on the balance: balance_id ("" lets the planner
+	// choose), offsets in m at model scale, model_mass in kg.
+	Installation facilities.Installation `json:"installation"`
+	// Alpha is the angle-of-attack sweep in degrees: from, to, step (at most 2001
+	// points).
+	Alpha similarity.Sweep `json:"alpha"`
+	// Beta is an optional sideslip sweep in degrees, one run per angle; nil: β = 0.
+	Beta *similarity.Sweep `json:"beta,omitempty"`
+	// Objective is what to match: a priority list of groups with a Mach tolerance,
+	// or weights.
+	Objective similarity.Objective `json:"objective"`
+}
+
+// PlanResponse is the answer of POST /v1/plans: the plan and everything it implies.
+// Numbers are SI: m, m², Pa, K, m/s, N, N·m; angles in degrees.
+type PlanResponse struct {
+	// ID identifies the plan; the same request against the same facility version
+	// gets the same id. GET /v1/plans/{id} returns the stored answer.
+	ID string `json:"id" example:"5d1c0a7e93b2f4a81c6e"`
+	// FacilityID names the facility planned in ("" for an inline facility without id).
+	FacilityID string `json:"facility_id" example:"tsw-1"`
+	// FacilityVersion is the catalog version of the facility used; 0 when inline or
+	// from the built-in demo catalog.
+	FacilityVersion int `json:"facility_version"`
+	// Flight is the full-scale flight state: Mach, Reynolds number on the full-scale
+	// reference length, airspeeds in m/s, dynamic pressure in Pa, static state.
+	Flight similarity.FlightState `json:"flight"`
+	// Model is the chosen model: scale, reference length m, reference area m², span m,
+	// frontal area m², blockage (fraction of the test-section area).
+	Model similarity.ModelSize `json:"model"`
+	// Test is the test condition: Mach, speed m/s, stagnation pressure Pa and
+	// temperature K, static state, dynamic pressure Pa, Reynolds number on the model
+	// and per metre (1/m).
+	Test similarity.Test `json:"test"`
+	// Mismatch is Re_test/Re_flight and M_test − M_flight.
+	Mismatch similarity.Mismatch `json:"mismatch"`
+	// Binding lists every limit the plan sits on, with the Reynolds gain in per cent
+	// that one more per cent of it would buy.
+	Binding []similarity.Binding `json:"binding"`
+	// Corrections are the wall corrections at the test condition (dimensionless
+	// factors; lift interference in degrees).
+	Corrections facilities.Corrections `json:"corrections"`
+	// Loads is the balance load check over the α sweep at the test condition: forces
+	// in N and moments in N·m at the balance moment centre, wall corrections and
+	// weight included; null when the facility has no balance.
+	Loads *facilities.LoadReport `json:"loads"`
+	// ReynoldsEffects estimates the skin-friction drag change from the Reynolds
+	// mismatch (drag counts, 1 count = 0.0001) and whether to trip the boundary layer.
+	ReynoldsEffects *similarity.ReynoldsEffects `json:"reynolds_effects"`
+	// Schedule estimates the test's time; null when the facility gives no operations
+	// figures.
+	Schedule *facilities.Schedule `json:"schedule"`
+	// TradeCurve is the best Reynolds number reachable at each test Mach number (speed
+	// in m/s in water) across the facility's range for the chosen model.
+	TradeCurve []similarity.TradePoint `json:"trade_curve"`
+	// Warnings are notes on the request, the models used and the result.
+	Warnings []string `json:"warnings"`
+	// Cautions are the safety cautions: estimates only; the facility's approved
+	// limits, procedures and licensed engineering judgement govern.
+	Cautions []string `json:"cautions"`
+}
+
+// LoadsRequest is the body of POST /v1/loads: as a plan request, but with the
+// model's scale and the test settings given rather than searched.
+type LoadsRequest struct {
+	// Flight is optional here: when given, the answer compares the test with it.
+	Flight *similarity.Flight `json:"flight,omitempty"`
+	// Article is the full-scale test article, as in a plan request.
+	Article similarity.Article `json:"article"`
+	// Facility is the facility given inline; give this or FacilityID.
+	Facility *facilities.Facility `json:"facility,omitempty"`
+	// FacilityID names a facility of the catalog; give this or Facility.
+	FacilityID string `json:"facility_id,omitempty" example:"tsw-1"`
+	// Model gives the model's scale: {"scale": s} (a number or "1:16").
+	Model LoadsModel `json:"model"`
+	// Installation places the model on the balance; without balance_id every
+	// balance of the facility is checked.
+	Installation facilities.Installation `json:"installation"`
+	// Alpha is the angle-of-attack sweep in degrees.
+	Alpha similarity.Sweep `json:"alpha"`
+	// Beta is an optional sideslip sweep in degrees; nil: β = 0.
+	Beta *similarity.Sweep `json:"beta,omitempty"`
+	// Test is the test setting: mach or speed (m/s), stagnation pressure (Pa) and
+	// temperature (K).
+	Test TestSettings `json:"test"`
+}
+
+// LoadsModel is the model of a load check: its scale, model length over full-scale
+// length.
+type LoadsModel struct {
+	Scale *float64 `json:"scale" unit:"scale" example:"0.0625"`
+}
+
+// LoadsResponse is the answer of POST /v1/loads. Loads is one load report when the
+// request names a balance, and a list of reports, one per balance of the facility,
+// when it does not.
+type LoadsResponse struct {
+	// FacilityID names the facility.
+	FacilityID string `json:"facility_id"`
+	// Model is the model's size at the given scale.
+	Model similarity.ModelSize `json:"model"`
+	// Test is the test state at the given settings.
+	Test similarity.Test `json:"test"`
+	// Flight and Mismatch compare the test with the flight when one was given.
+	Flight   *similarity.FlightState `json:"flight,omitempty"`
+	Mismatch *similarity.Mismatch    `json:"mismatch,omitempty"`
+	// Violations are the facility limits the settings break; empty when none.
+	Violations []facilities.Violation `json:"violations"`
+	// Corrections are the wall corrections at the test condition.
+	Corrections facilities.Corrections `json:"corrections"`
+	// Loads is a load report (object) or a list of them (array).
+	Loads LoadsValue `json:"loads" swaggertype:"object"`
+	// Warnings are notes on the inputs and models.
+	Warnings []string `json:"warnings"`
+	// Cautions are the safety cautions.
+	Cautions []string `json:"cautions"`
+}
+
+// LoadsValue holds the loads of a load check: One when a balance was named, else
+// All, one report per balance. In JSON it is an object or an array.
+type LoadsValue struct {
+	One *facilities.LoadReport
+	All []facilities.LoadReport
+}
+
+// MarshalJSON writes One as an object, or All as an array.
+func (v LoadsValue) MarshalJSON() ([]byte, error) {
+	if v.One != nil {
+		return json.Marshal(v.One)
+	}
+	if v.All == nil {
+		return []byte("[]"), nil
+	}
+	return json.Marshal(v.All)
+}
+
+// UnmarshalJSON reads an object into One or an array into All.
+func (v *LoadsValue) UnmarshalJSON(b []byte) error {
+	b = bytes.TrimSpace(b)
+	if len(b) > 0 && b[0] == '[' {
+		v.One = nil
+		return json.Unmarshal(b, &v.All)
+	}
+	v.All = nil
+	v.One = new(facilities.LoadReport)
+	return json.Unmarshal(b, v.One)
+}
