@@ -12,8 +12,11 @@ import (
 var ErrRange = errors.New("out of range")
 
 // RangeError says which input was out of range and what range is allowed. It wraps
-// ErrRange. Quantity is a plain-language name ("altitude", "calibrated airspeed");
-// Unit is the SI unit of Value, Min and Max, empty for a dimensionless quantity.
+// ErrRange. Quantity names the input, one of "altitude", "pressure altitude",
+// "delta_isa", "static pressure", "Mach number", "true airspeed", "calibrated
+// airspeed" and "equivalent airspeed"; callers may rely on these names to point at
+// the bad field. Unit is the SI unit of Value, Min and Max, empty for a
+// dimensionless quantity.
 type RangeError struct {
 	Quantity string
 	Value    float64
