@@ -60,10 +60,11 @@ type layer struct {
 }
 
 // layers are the seven layers of the 1976 standard up to 84 852 m' (86 km). The
-// base pressures are chained from 101 325 Pa by basePressures' formula and printed
-// to full double precision; TestBasePressures recomputes the chain and checks them
-// and their rounding to the standard's published values 22 632.06, 5 474.889,
-// 868.0187, 110.9063, 66.93887 and 3.956420 Pa.
+// base pressures are chained from 101 325 Pa with the standard's pressure equations
+// 33a/33b (as the function standard evaluates them) and written to full double
+// precision, so that At does no chaining; TestBasePressures recomputes the chain,
+// checks them to 1e-15, and checks their rounding to the standard's published values
+// 22 632.06, 5 474.889, 868.0187, 110.9063, 66.93887 and 3.956420 Pa.
 var layers = [...]layer{
 	{0, 288.15, -0.0065, 101325},
 	{11000, 216.65, 0, 22632.063973462911},
