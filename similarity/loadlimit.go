@@ -44,7 +44,10 @@ type balanceRows struct {
 	allowed []float64 // per row, rating/safety factor
 	force   []float64 // row value per unit q_c·S (forces, and their moments about the balance centre)
 	moment  []float64 // row value per unit q_c·S·c (aerodynamic moments about the reference centre)
-	weight  []float64 // row value of the weight loads
+	up      []float64 // allowed − w: the margin left by the weight w for a load growing with q
+	down    []float64 // allowed + w: the same for a load falling with q
+	// weightBreaks is set when the weight alone exceeds a row's allowance.
+	weightBreaks bool
 }
 
 var _ LoadLimit = (*BalanceLimit)(nil)
@@ -100,16 +103,20 @@ func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installati
 			br.allowed[j] = rs.Allowed(j)
 		}
 		n := len(mx.Points) * br.rows
-		br.force, br.moment, br.weight = make([]float64, n), make([]float64, n), make([]float64, n)
+		br.force, br.moment = make([]float64, n), make([]float64, n)
+		br.up, br.down = make([]float64, n), make([]float64, n)
 		for i, p := range mx.Points {
 			body := p.Body()
 			force := facilities.AeroLoads(body, 1, 0, in.BalanceOffset)
 			moment := facilities.AeroLoads(body, 0, 1, in.BalanceOffset)
 			weight := in.WeightLoads(p.Alpha)
 			for j := range br.rows {
-				br.force[i*br.rows+j] = rs.Row(j, &force)
-				br.moment[i*br.rows+j] = rs.Row(j, &moment)
-				br.weight[i*br.rows+j] = rs.Row(j, &weight)
+				k := i*br.rows + j
+				w := rs.Row(j, &weight)
+				br.force[k] = rs.Row(j, &force)
+				br.moment[k] = rs.Row(j, &moment)
+				br.up[k], br.down[k] = br.allowed[j]-w, br.allowed[j]+w
+				br.weightBreaks = br.weightBreaks || facilities.SafeDynamicPressure(0, w, br.allowed[j]) == 0
 			}
 		}
 		l.balances = append(l.balances, br)
@@ -164,10 +171,14 @@ func (l *BalanceLimit) best(scale, mach float64) (k int, q float64) {
 }
 
 // maxQ is the largest q keeping every point and row of one balance within its
-// allowance; the rows are affine in q and each is solved exactly by
-// facilities.SafeDynamicPressure.
+// allowance. Each row is affine in q and solved exactly as in
+// facilities.SafeDynamicPressure, q = (allowed − sign(u)·w)/|u|; the minimum over
+// rows is found by comparing the fractions crosswise, with one division per call.
 func (br *balanceRows) maxQ(cd []float64, solid, wake, qS, qSc float64) float64 {
-	q := math.Inf(1)
+	if br.weightBreaks {
+		return 0
+	}
+	num, den := 1.0, 0.0 // +Inf
 	n := br.rows
 	for i, c := range cd {
 		e := 1 + solid + wake*c
@@ -175,18 +186,23 @@ func (br *balanceRows) maxQ(cd []float64, solid, wake, qS, qSc float64) float64 
 		a, m := f*qS, f*qSc
 		force := br.force[i*n : i*n+n]
 		moment := br.moment[i*n : i*n+n]
-		weight := br.weight[i*n : i*n+n]
-		for j, al := range br.allowed {
-			qi := facilities.SafeDynamicPressure(a*force[j]+m*moment[j], weight[j], al)
-			if qi < q {
-				if qi == 0 {
-					return 0
-				}
-				q = qi
+		up := br.up[i*n : i*n+n]
+		down := br.down[i*n : i*n+n]
+		for j := range force {
+			u := a*force[j] + m*moment[j]
+			r := up[j]
+			if u < 0 {
+				u, r = -u, down[j]
+			}
+			if r*den < num*u {
+				num, den = r, u
 			}
 		}
 	}
-	return q
+	if den == 0 {
+		return math.Inf(1)
+	}
+	return num / den
 }
 
 // LoadEstimate is the load answer of a plan or a load check at one model scale and

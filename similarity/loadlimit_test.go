@@ -1,0 +1,221 @@
+package similarity_test
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
+)
+
+func demo(t testing.TB, id string) *facilities.Facility {
+	t.Helper()
+	f, ok := facilities.DemoFacility(id)
+	if !ok {
+		t.Fatalf("demo facility %s missing", id)
+	}
+	return &f
+}
+
+// pellin is the Pellin P2 trainer of the demo world.
+func pellin() *similarity.Article {
+	return &similarity.Article{ReferenceLength: 1.45, ReferenceArea: 12.5, Span: 8.8, Length: 7.4,
+		FrontalArea: 1.9, WettedArea: 42, Aero: similarity.Aero{LiftSlope: 5.2, ZeroLiftAlpha: -2.5,
+			CLMax: 1.6, CDMin: 0.028, CLAtCDMin: 0.10, InducedDragFactor: 0.050, CmZero: 0.04, CmSlope: -0.8}}
+}
+
+var sweep = similarity.Sweep{From: -4, To: 16, Step: 1}
+
+// bisect finds the largest free-stream q at which the full load check (wall
+// corrections applied at the scale) stays within the balance's allowance.
+func bisect(t *testing.T, art *similarity.Article, f *facilities.Facility, in facilities.Installation, mx similarity.Matrix, scale, mach float64) float64 {
+	t.Helper()
+	ok := func(q float64) bool {
+		est, err := similarity.EstimateLoads(art, f, in, scale, facilities.State{Mach: mach, DynamicPressure: q}, mx)
+		if err != nil {
+			if facilities.ErrorCode(err) == facilities.CodeUnprocessable {
+				return false
+			}
+			t.Fatal(err)
+		}
+		return est.Report.WithinLimits
+	}
+	if !ok(0) {
+		return 0
+	}
+	lo, hi := 0.0, 1.0
+	for ok(hi) {
+		lo, hi = hi, 2*hi
+	}
+	for hi-lo > 1e-11*hi {
+		if mid := (lo + hi) / 2; ok(mid) {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
+}
+
+// TestLoadLimitAgreesWithBisection: MaxDynamicPressure against a brute-force
+// bisection on q through the full load check, at seeded random scales, Mach numbers
+// and installations, for a named balance and for the best of all balances.
+func TestLoadLimitAgreesWithBisection(t *testing.T) {
+	rng := rand.New(rand.NewPCG(2024, 6))
+	art := pellin()
+	mx, err := art.Aero.Matrix(sweep, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := demo(t, "lsw-2")
+	for trial := range 24 {
+		in := facilities.Installation{
+			BalanceOffset: facilities.Offset{X: 0.05 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)},
+			CGOffset:      facilities.Offset{X: 0.1 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)},
+			ModelMass:     60 * rng.Float64(),
+		}
+		if trial%3 != 0 {
+			in.BalanceID = f.Balances[trial%2].ID
+		}
+		scale := 0.05 + 0.2*rng.Float64()
+		mach := 0.25 * rng.Float64()
+		ll, err := similarity.NewLoadLimit(art, f, in, mx)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := ll.MaxDynamicPressure(scale, facilities.State{Mach: mach, DynamicPressure: 123})
+		want := bisect(t, art, f, in, mx, scale, mach)
+		if math.Abs(got-want) > 1e-9*want+1e-9 {
+			t.Errorf("trial %d (%q, s %.4f, M %.3f, m %.1f kg): q = %.12g, bisection %.12g", trial, in.BalanceID, scale, mach, in.ModelMass, got, want)
+		}
+	}
+}
+
+func TestLoadLimitCases(t *testing.T) {
+	art := pellin()
+	mx, err := art.Aero.Matrix(sweep, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := demo(t, "lsw-2")
+	st := facilities.State{Mach: 0.2}
+	heavy, err := similarity.NewLoadLimit(art, f, facilities.Installation{BalanceID: "int-a", ModelMass: 500}, mx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// 500 kg weighs 4903 N, more than int-a's 4000 N normal rating over 1.5.
+	if q := heavy.MaxDynamicPressure(0.1, st); q != 0 {
+		t.Errorf("weight over the rating: q = %g, want 0", q)
+	}
+	any, err := similarity.NewLoadLimit(art, f, facilities.Installation{}, mx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if any.Name() != facilities.ConstraintBalance {
+		t.Errorf("name %q", any.Name())
+	}
+	// The external balance is the stronger, so it carries the most at every scale.
+	if id, q := any.Balance(0.1, st); id != "ext-6c" || !(q > 0) {
+		t.Errorf("best balance %s at q %g, want ext-6c", id, q)
+	}
+	// Forces grow with s², so the ceiling falls as the model grows (no weight).
+	if q1, q2 := any.MaxDynamicPressure(0.1, st), any.MaxDynamicPressure(0.2, st); !(q2 < q1/3.9) {
+		t.Errorf("q at 0.1 = %g, at 0.2 = %g: want a fall of about 4 or more", q1, q2)
+	}
+	for _, s := range []float64{0, -1, math.NaN()} {
+		if q := any.MaxDynamicPressure(s, st); q != 0 {
+			t.Errorf("scale %g: q = %g, want 0", s, q)
+		}
+	}
+	if _, err := similarity.NewLoadLimit(art, f, facilities.Installation{BalanceID: "nope"}, mx); !contains(fieldsOf(t, err), "installation.balance_id") {
+		t.Errorf("unknown balance: %v", err)
+	}
+	if _, err := similarity.NewLoadLimit(art, &facilities.Facility{ID: "bare"}, facilities.Installation{}, mx); err != facilities.ErrNoBalance {
+		t.Errorf("no balances: %v, want ErrNoBalance", err)
+	}
+	if n := testing.AllocsPerRun(100, func() { any.MaxDynamicPressure(0.1, st) }); n != 0 {
+		t.Errorf("MaxDynamicPressure allocates %g times a call, want 0", n)
+	}
+}
+
+func TestEstimateLoads(t *testing.T) {
+	art := pellin()
+	mx, err := art.Aero.Matrix(sweep, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := demo(t, "lsw-2")
+	st := facilities.State{Mach: 0.2, DynamicPressure: 2500}
+	est, err := similarity.EstimateLoads(art, f, facilities.Installation{ModelMass: 20}, 0.15, st, mx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if est.Report == nil || len(est.All) != 2 || est.Reason == "" || len(est.Cautions) == 0 {
+		t.Fatalf("estimate %+v: want a report, two balances, a reason and cautions", est)
+	}
+	c := est.Corrections
+	if !c.Applied || !(c.DynamicPressureFactor > 1) || !(c.LiftInterference > 0) {
+		t.Errorf("corrections %+v: want closed-wall blockage and a positive Δα", c)
+	}
+	// The point of largest C_D carries the summary's q factor: its q is q·factor.
+	maxQ := 0.0
+	for _, p := range est.Report.Points {
+		maxQ = math.Max(maxQ, p.DynamicPressure)
+	}
+	if math.Abs(maxQ-2500*c.DynamicPressureFactor) > 1e-9 {
+		t.Errorf("largest point q %g, want %g", maxQ, 2500*c.DynamicPressureFactor)
+	}
+	// Too much q for either balance: 422 with every balance's check kept.
+	est, err = similarity.EstimateLoads(art, f, facilities.Installation{}, 0.15, facilities.State{Mach: 0.2, DynamicPressure: 60000}, mx)
+	if facilities.ErrorCode(err) != facilities.CodeUnprocessable || len(est.All) != 2 || est.Report != nil {
+		t.Errorf("overload: error %v, %d checks, report %v; want unprocessable, 2, nil", err, len(est.All), est.Report)
+	}
+}
+
+func benchLimit(b *testing.B, points int) {
+	art := pellin()
+	mx, err := art.Aero.Matrix(similarity.Sweep{From: -4, To: -4 + float64(points-1), Step: 1}, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	ll, err := similarity.NewLoadLimit(art, demo(b, "lsw-2"), facilities.Installation{BalanceID: "ext-6c", ModelMass: 20}, mx)
+	if err != nil {
+		b.Fatal(err)
+	}
+	st := facilities.State{Mach: 0.2}
+	b.ReportAllocs()
+	b.ResetTimer()
+	s := 0.1
+	for b.Loop() {
+		if q := ll.MaxDynamicPressure(s, st); !(q > 0) {
+			b.Fatal(q)
+		}
+	}
+}
+
+func BenchmarkLoadLimit(b *testing.B) {
+	for _, c := range []struct {
+		name   string
+		points int
+	}{{"21points", 21}, {"101points", 101}} {
+		b.Run(c.name, func(b *testing.B) { benchLimit(b, c.points) })
+	}
+}
+
+func BenchmarkEstimateLoads21(b *testing.B) {
+	art := pellin()
+	mx, err := art.Aero.Matrix(sweep, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f := demo(b, "lsw-2")
+	st := facilities.State{Mach: 0.2, DynamicPressure: 2500}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := similarity.EstimateLoads(art, f, facilities.Installation{ModelMass: 20}, 0.15, st, mx); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
