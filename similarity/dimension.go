@@ -239,7 +239,7 @@ func firstRune(s string) (rune, int) { return utf8.DecodeRuneInString(s) }
 // parsePower reads an optional power ("^-1", "^(2)", "²") at the start of s with the
 // unit parser's rules; the power is 1 when there is none.
 func parsePower(s string) (p int, rest string, ok bool, msg string) {
-	up := unitParser{s: s}
+	up := unitParser{s: s, maxPow: maxExponent}
 	pw, found := up.power()
 	if up.err != "" {
 		return 0, s, false, up.err

@@ -192,6 +192,15 @@ type unitParser struct {
 	pos  int
 	err  string
 	kind error
+	// maxPow bounds a power's magnitude; 0 means maxPower.
+	maxPow int
+}
+
+func (p *unitParser) powerLimit() int {
+	if p.maxPow > 0 {
+		return p.maxPow
+	}
+	return maxPower
 }
 
 func (p *unitParser) fail(kind error, msg string) {
@@ -373,7 +382,7 @@ func (p *unitParser) power() (pw int, ok bool) {
 	start := p.pos
 	v := 0
 	for p.pos < len(p.s) && p.s[p.pos] >= '0' && p.s[p.pos] <= '9' {
-		if v <= maxPower {
+		if v <= p.powerLimit() {
 			v = v*10 + int(p.s[p.pos]-'0')
 		}
 		p.pos++
@@ -389,8 +398,8 @@ func (p *unitParser) power() (pw int, ok bool) {
 		}
 		p.pos++
 	}
-	if v > maxPower {
-		p.fail(ErrRange, "has a power beyond ±"+strconv.Itoa(maxPower))
+	if v > p.powerLimit() {
+		p.fail(ErrRange, "has a power beyond ±"+strconv.Itoa(p.powerLimit()))
 		return 0, false
 	}
 	if neg {
@@ -433,7 +442,7 @@ func (p *unitParser) superscript() int {
 		if d < 0 {
 			break
 		}
-		if v <= maxPower {
+		if v <= p.powerLimit() {
 			v = v*10 + d
 		}
 		digits++
@@ -443,8 +452,8 @@ func (p *unitParser) superscript() int {
 		p.fail(ErrSyntax, "has a superscript sign without digits")
 		return 0
 	}
-	if v > maxPower {
-		p.fail(ErrRange, "has a power beyond ±"+strconv.Itoa(maxPower))
+	if v > p.powerLimit() {
+		p.fail(ErrRange, "has a power beyond ±"+strconv.Itoa(p.powerLimit()))
 		return 0
 	}
 	if neg {

@@ -315,6 +315,8 @@ func TestDimension(t *testing.T) {
 		{"any order, star separators", "T^-2*M*L^-1", similarity.DimPressure, "M L^-1 T^-2"},
 		{"superscripts", "M L⁻³", similarity.DimDensity, "M L^-3"},
 		{"glued", "ML^-3", similarity.DimDensity, "M L^-3"},
+		// Found by FuzzParseQuantity: "0W^7" has exponents beyond a unit's power limit.
+		{"large exponents", "M^7 L^14 T^-21", similarity.Dimension{7, 14, -21, 0}, "M^7 L^14 T^-21"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
