@@ -109,7 +109,8 @@ type State struct {
 //
 //	H = r0·z/(r0 + z),  r0 = R0
 //
-// (U.S. Standard Atmosphere 1976, eq. 18). Zero maps to zero.
+// (U.S. Standard Atmosphere 1976, eq. 18; equation number from memory). Zero maps
+// to zero.
 func Geopotential(z float64) float64 {
 	return R0 * z / (R0 + z)
 }
@@ -126,7 +127,7 @@ func Geometric(h float64) float64 {
 //
 //	μ = β·T^1.5/(T + S)
 //
-// with T in K, β in kg/(m·s·K^0.5) and S in K. For air the 1976 standard (eq. 51)
+// with T in K, β in kg/(m·s·K^0.5) and S in K. For air the 1976 standard (eq. 51, from memory)
 // uses β = SutherlandBeta and S = SutherlandS. T must be positive; zero T gives zero.
 func Sutherland(T, beta, S float64) float64 {
 	return beta * T * math.Sqrt(T) / (T + S)
@@ -138,9 +139,10 @@ func Sutherland(T, beta, S float64) float64 {
 // -100 K to +100 K; otherwise the error wraps ErrRange and names the allowed range.
 //
 // Source: U.S. Standard Atmosphere, 1976, equations 23 (temperature), 33a/33b
-// (pressure), 42 (density), 50 (speed of sound) and 51 (viscosity). Temperature is
-// the molecular-scale temperature; between 80 and 86 km the standard's kinetic
-// temperature is lower by under 0.05 %, which this model ignores.
+// (pressure), 42 (density), 50 (speed of sound) and 51 (viscosity); equation
+// numbers from memory. Temperature is the molecular-scale temperature; between 80
+// and 86 km the standard's kinetic temperature is lower by under 0.05 %, which this
+// model ignores.
 func At(z, deltaISA float64) (State, error) {
 	if err := checkRange("altitude", z, MinAltitude, MaxAltitude, "m"); err != nil {
 		return State{}, err
