@@ -460,3 +460,25 @@ func BenchmarkRatingsMaxDynamicPressure21(b *testing.B) {
 		}
 	}
 }
+
+func TestSafeDynamicPressure(t *testing.T) {
+	cases := []struct {
+		name             string
+		u, w, allowed, q float64
+	}{
+		// |q·2 + 10| ≤ 100: q = (100 − 10)/2 = 45.
+		{"growing, weight same sign", 2, 10, 100, 45},
+		// |q·2 − 10| ≤ 100: q = (100 + 10)/2 = 55.
+		{"growing, weight opposite", 2, -10, 100, 55},
+		// |−2·q − 10| ≤ 100: q = (100 − 10)/2 = 45.
+		{"falling, weight same sign", -2, -10, 100, 45},
+		{"weight at the limit", 2, 100, 100, 0},
+		{"weight beyond", 2, -101, 100, 0},
+		{"no aerodynamic load", 0, 10, 100, math.Inf(1)},
+	}
+	for _, c := range cases {
+		if got := facilities.SafeDynamicPressure(c.u, c.w, c.allowed); got != c.q {
+			t.Errorf("%s: q = %g, want %g", c.name, got, c.q)
+		}
+	}
+}
