@@ -1,0 +1,376 @@
+package api_test
+
+import (
+	"bytes"
+	"encoding/json"
+	"io"
+	"log/slog"
+	"net/http"
+	"net/http/httptest"
+	"strings"
+	"testing"
+
+	"scalematch/api"
+)
+
+// j20Plan is the Orrin J20 of the demo world (docs: scenario) in tsw-1 at cruise.
+const j20Plan = `{
+  "flight": {"altitude": "12500 m", "mach": 0.80},
+  "article": {"reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0,
+    "frontal_area": 5.5, "wetted_area": 290,
+    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021,
+      "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}},
+  "facility_id": "tsw-1",
+  "model": {"scale_min": 0.01, "scale_max": 0.5},
+  "installation": {"balance_id": "int-b1", "model_mass": 20},
+  "alpha": {"from": -4, "to": 16, "step": 1}
+}`
+
+func newServer(t testing.TB) *httptest.Server {
+	t.Helper()
+	s, err := api.New(api.Config{Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ts := httptest.NewServer(s.Handler())
+	t.Cleanup(ts.Close)
+	return ts
+}
+
+func post(t testing.TB, ts *httptest.Server, path, body string) (int, []byte) {
+	t.Helper()
+	resp, err := http.Post(ts.URL+path, "application/json", strings.NewReader(body))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer resp.Body.Close()
+	b, err := io.ReadAll(resp.Body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return resp.StatusCode, b
+}
+
+// problem is the part of a problem response the tests read.
+type problem struct {
+	Type   string `json:"type"`
+	Status int    `json:"status"`
+	Errors []struct {
+		Field string `json:"field"`
+	} `json:"errors"`
+	Limits []string `json:"limits"`
+}
+
+func fields(p problem) []string {
+	var out []string
+	for _, e := range p.Errors {
+		out = append(out, e.Field)
+	}
+	return out
+}
+
+func TestPlanErrors(t *testing.T) {
+	ts := newServer(t)
+	cases := []struct {
+		name   string
+		body   string
+		status int
+		fields []string // every one must be named
+		limits []string
+	}{
+		{"many bad fields at once",
+			strings.Replace(strings.Replace(strings.Replace(j20Plan, `"mach": 0.80`, `"mach": -1`, 1),
+				`"span": 19.0`, `"span": "19 kg"`, 1), `"step": 1`, `"step": 0`, 1),
+			400, []string{"article.span"}, nil},
+		{"validation after decoding lists every field",
+			strings.Replace(strings.Replace(j20Plan, `"mach": 0.80`, `"mach": -1`, 1), `"step": 1`, `"step": 0`, 1),
+			400, []string{"flight.mach", "alpha.step"}, nil},
+		{"unknown field", strings.Replace(j20Plan, `"facility_id"`, `"facilty_id"`, 1), 400, []string{"facilty_id"}, nil},
+		{"unknown facility", strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1), 404, nil, nil},
+		{"unknown balance", strings.Replace(j20Plan, `"int-b1"`, `"int-zz"`, 1), 400, []string{"installation.balance_id"}, nil},
+		{"infeasible: the model cannot fit", strings.Replace(j20Plan, `"scale_min": 0.01, "scale_max": 0.5`, `"scale": 0.5`, 1), 422, nil, nil},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, b := post(t, ts, "/v1/plans", tc.body)
+			if code != tc.status {
+				t.Fatalf("status %d, want %d: %s", code, tc.status, b)
+			}
+			var p problem
+			if err := json.Unmarshal(b, &p); err != nil {
+				t.Fatal(err)
+			}
+			got := fields(p)
+			for _, f := range tc.fields {
+				if !contains(got, f) {
+					t.Errorf("fields %v do not name %q", got, f)
+				}
+			}
+			if tc.status == 422 && len(p.Limits) == 0 {
+				t.Errorf("422 without limits: %s", b)
+			}
+		})
+	}
+}
+
+func contains(list []string, s string) bool {
+	for _, v := range list {
+		if v == s {
+			return true
+		}
+	}
+	return false
+}
+
+func TestPlanRepeatable(t *testing.T) {
+	ts := newServer(t)
+	c1, b1 := post(t, ts, "/v1/plans", j20Plan)
+	// The same request written differently (unit strings, key order) is the same plan.
+	alt := strings.Replace(j20Plan, `"reference_length": 2.6`, `"reference_length": "260 cm"`, 1)
+	c2, b2 := post(t, ts, "/v1/plans", alt)
+	if c1 != 200 || c2 != 200 {
+		t.Fatalf("status %d, %d", c1, c2)
+	}
+	if !bytes.Equal(b1, b2) {
+		t.Errorf("the same plan answered differently:\n%s\n%s", b1, b2)
+	}
+}
+
+func TestPlanTooLarge(t *testing.T) {
+	ts := newServer(t)
+	code, _ := post(t, ts, "/v1/plans", `{"flight": "`+strings.Repeat("x", api.BodyLimit)+`"}`)
+	if code != http.StatusRequestEntityTooLarge {
+		t.Errorf("status %d, want 413", code)
+	}
+}
+
+func TestBatch(t *testing.T) {
+	ts := newServer(t)
+	bad := strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1)
+	code, b := post(t, ts, "/v1/plans/batch", `{"requests": [`+j20Plan+`,`+bad+`,`+j20Plan+`,{"flight": 3}]}`)
+	if code != 200 {
+		t.Fatalf("status %d: %s", code, b)
+	}
+	var out struct {
+		Results []struct {
+			Plan  json.RawMessage `json:"plan"`
+			Error *problem        `json:"error"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal(b, &out); err != nil {
+		t.Fatal(err)
+	}
+	want := []int{200, 404, 200, 400}
+	if len(out.Results) != len(want) {
+		t.Fatalf("%d results, want %d", len(out.Results), len(want))
+	}
+	_, single := post(t, ts, "/v1/plans", j20Plan)
+	for i, r := range out.Results {
+		switch {
+		case want[i] == 200 && (r.Plan == nil || r.Error != nil):
+			t.Errorf("result %d: want a plan", i)
+		case want[i] == 200 && !bytes.Equal(r.Plan, single):
+			t.Errorf("result %d differs from the single plan", i)
+		case want[i] != 200 && (r.Error == nil || r.Error.Status != want[i]):
+			t.Errorf("result %d: want a problem with status %d, got %+v", i, want[i], r.Error)
+		}
+	}
+	code, b = post(t, ts, "/v1/plans/batch", `{"requests": [`+strings.Repeat(`{},`, api.MaxBatch)+`{}]}`)
+	var p problem
+	json.Unmarshal(b, &p)
+	if code != 400 || !contains(fields(p), "requests") {
+		t.Errorf("oversized batch: status %d, fields %v", code, fields(p))
+	}
+}
+
+const j20Loads = `{
+  "article": {"reference_length": 2.6, "reference_area": 50, "span": 19.0,
+    "frontal_area": 5.5, "wetted_area": 290,
+    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021,
+      "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}},
+  "facility_id": "tsw-1",
+  "model": {"scale": "1:30"},
+  "installation": {BALANCE "model_mass": 20},
+  "alpha": {"from": -4, "to": 16, "step": 2},
+  "test": {"mach": 0.8, "stagnation_pressure": "1.5 bar", "stagnation_temperature": 310}
+}`
+
+func TestLoadsObjectOrList(t *testing.T) {
+	ts := newServer(t)
+	cases := []struct {
+		name    string
+		balance string
+		list    int // 0: one object
+	}{
+		{"named balance gives an object", `"balance_id": "int-b2",`, 0},
+		{"no balance gives a list over the facility's balances", ``, 2},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, b := post(t, ts, "/v1/loads", strings.Replace(j20Loads, "BALANCE", tc.balance, 1))
+			if code != 200 {
+				t.Fatalf("status %d: %s", code, b)
+			}
+			var out struct {
+				Loads json.RawMessage `json:"loads"`
+			}
+			json.Unmarshal(b, &out)
+			if tc.list == 0 {
+				var one map[string]any
+				if err := json.Unmarshal(out.Loads, &one); err != nil || one["balance_id"] != "int-b2" {
+					t.Errorf("want one object for int-b2, got %s", out.Loads)
+				}
+				return
+			}
+			var list []map[string]any
+			if err := json.Unmarshal(out.Loads, &list); err != nil || len(list) != tc.list {
+				t.Errorf("want a list of %d, got %s", tc.list, out.Loads)
+			}
+		})
+	}
+}
+
+func TestConditions(t *testing.T) {
+	ts := newServer(t)
+	cases := []struct {
+		name       string
+		body       string
+		status     int
+		violations []string
+	}{
+		{"within limits", `{"facility_id": "tsw-1", "mach": 0.8, "stagnation_pressure": 150000, "stagnation_temperature": 310}`, 200, []string{}},
+		{"above q", `{"facility_id": "tsw-1", "mach": 1.1, "stagnation_pressure": "2.2 bar", "stagnation_temperature": 310}`, 200, []string{"max_dynamic_pressure"}},
+		{"fixed pressure may be left out", `{"facility_id": "lsw-2", "speed": "100 kt", "stagnation_temperature": 293}`, 200, []string{}},
+		{"missing settings", `{"facility_id": "tsw-1"}`, 400, nil},
+		{"unknown facility", `{"facility_id": "xx-9", "mach": 0.5, "stagnation_pressure": 1e5, "stagnation_temperature": 300}`, 404, nil},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			code, b := post(t, ts, "/v1/conditions", tc.body)
+			if code != tc.status {
+				t.Fatalf("status %d, want %d: %s", code, tc.status, b)
+			}
+			if code != 200 {
+				return
+			}
+			var out struct {
+				Violations []struct {
+					Constraint string `json:"constraint"`
+				} `json:"violations"`
+			}
+			if !bytes.Contains(b, []byte(`"violations":[`)) {
+				t.Errorf("violations is not a list: %s", b)
+			}
+			json.Unmarshal(b, &out)
+			var got []string
+			for _, v := range out.Violations {
+				got = append(got, v.Constraint)
+			}
+			for _, w := range tc.violations {
+				if !contains(got, w) {
+					t.Errorf("violations %v lack %s", got, w)
+				}
+			}
+		})
+	}
+}
+
+func TestGroups(t *testing.T) {
+	ts := newServer(t)
+	// The textbook case of physics.md §5 (Buckingham 1914): R(ρ, V, L, μ) has rank 3 and
+	// two groups, R·ρ^-1·V^-2·L^-2 and μ·ρ^-1·V^-1·L^-1.
+	code, b := post(t, ts, "/v1/groups", `{"variables": [{"name": "R", "unit": "N"}, {"name": "rho", "unit": "kg/m^3"},
+		{"name": "V", "unit": "m/s"}, {"name": "L", "unit": "m"}, {"name": "mu", "dimensions": "M L^-1 T^-1"}],
+		"repeating": ["rho", "V", "L"]}`)
+	if code != 200 {
+		t.Fatalf("status %d: %s", code, b)
+	}
+	var out struct {
+		Rank   int `json:"rank"`
+		Groups []struct {
+			Exponents map[string]any `json:"exponents"`
+		} `json:"groups"`
+	}
+	json.Unmarshal(b, &out)
+	if out.Rank != 3 || len(out.Groups) != 2 {
+		t.Fatalf("rank %d, %d groups: %s", out.Rank, len(out.Groups), b)
+	}
+	if e := out.Groups[0].Exponents; e["R"] != 1.0 || e["rho"] != -1.0 || e["V"] != -2.0 || e["L"] != -2.0 {
+		t.Errorf("first group %v", e)
+	}
+	code, _ = post(t, ts, "/v1/groups", `{"variables": [{"name": "x", "unit": "furlongs^"}]}`)
+	if code != 400 {
+		t.Errorf("bad unit: status %d", code)
+	}
+}
+
+func TestAtmosphere(t *testing.T) {
+	ts := newServer(t)
+	cases := []struct {
+		name   string
+		query  string
+		status int
+		temp   float64 // K
+	}{
+		// U.S. Standard Atmosphere 1976 table (physics.md §1, from memory).
+		{"sea level", "altitude=0", 200, 288.15},
+		{"isothermal layer in feet", "altitude=50000+ft", 200, 216.65},
+		{"hot day", "altitude=0&delta_isa=15", 200, 303.15},
+		{"pressure altitude", "pressure_altitude=11000", 200, 216.65},
+		{"missing", "", 400, 0},
+		{"too high", "altitude=90000", 400, 0},
+		{"wrong unit", "altitude=3+bar", 400, 0},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			resp, err := http.Get(ts.URL + "/v1/atmosphere?" + tc.query)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer resp.Body.Close()
+			if resp.StatusCode != tc.status {
+				t.Fatalf("status %d, want %d", resp.StatusCode, tc.status)
+			}
+			if tc.status != 200 {
+				return
+			}
+			var st struct {
+				Temperature float64 `json:"temperature"`
+			}
+			json.NewDecoder(resp.Body).Decode(&st)
+			if d := st.Temperature - tc.temp; d > 1e-3 || d < -1e-3 {
+				t.Errorf("temperature %.6g K, want %.6g K (tolerance 1e-3 K)", st.Temperature, tc.temp)
+			}
+		})
+	}
+}
+
+func TestEnvelope(t *testing.T) {
+	ts := newServer(t)
+	cases := []struct {
+		name, path, ctype, prefix string
+		status                    int
+	}{
+		{"svg", "/v1/facilities/tsw-1/envelope.svg?reference_length=0.0847&flight_mach=0.8&flight_reynolds=1.24e7", "image/svg+xml", "<svg", 200},
+		{"png", "/v1/facilities/cn2-05/envelope.png?reference_length=0.05", "image/png", "\x89PNG", 200},
+		{"water", "/v1/facilities/wtn-04/envelope.svg?reference_length=0.1", "image/svg+xml", "<svg", 200},
+		{"missing length", "/v1/facilities/tsw-1/envelope.svg", "", "", 400},
+		{"unknown facility", "/v1/facilities/nope/envelope.png?reference_length=1", "", "", 404},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			resp, err := http.Get(ts.URL + tc.path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer resp.Body.Close()
+			b, _ := io.ReadAll(resp.Body)
+			if resp.StatusCode != tc.status {
+				t.Fatalf("status %d, want %d: %s", resp.StatusCode, tc.status, b)
+			}
+			if tc.status == 200 && (resp.Header.Get("Content-Type") != tc.ctype || !bytes.HasPrefix(b, []byte(tc.prefix))) {
+				t.Errorf("content type %q, starts %q", resp.Header.Get("Content-Type"), b[:min(8, len(b))])
+			}
+		})
+	}
+}
