@@ -71,7 +71,7 @@ func TestViscosity(t *testing.T) {
 		{"nitrogen at 300 K", mNitrogen, 300, 17.9e-6, 0.02},
 		{"custom gas at its reference", mArgon, 273.15, 2.125e-5, 1e-12},
 		// IAPWS 2008 at 20 °C and 0.101325 MPa: 1001.6 µPa·s (python3-iapws, see
-		// testdata/reference/mWater).
+		// testdata/reference/water).
 		{"water at 20 °C", mWater, 293.15, 1.0016e-3, 1e-3},
 	}
 	for _, tc := range tests {

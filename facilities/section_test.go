@@ -66,14 +66,21 @@ func TestStateIdentities(t *testing.T) {
 		set  facilities.Setting
 		tol  float64 // relative
 	}{
-		{"mAir, transonic", "tsw-1", facilities.Setting{Mach: 0.85, StagnationPressure: 120000, StagnationTemperature: 310}, 1e-12},
-		{"mAir, low speed", "plp-3", facilities.Setting{Mach: 0.2, StagnationPressure: 400000, StagnationTemperature: 300}, 1e-12},
-		{"mNitrogen, cold", "cn2-05", facilities.Setting{Mach: 0.8, StagnationPressure: 300000, StagnationTemperature: 130}, 1e-12},
-		{"mNitrogen, warm", "cn2-05", facilities.Setting{Mach: 0.3, StagnationPressure: 200000, StagnationTemperature: 300}, 1e-12},
+		{"air, transonic", "tsw-1", facilities.Setting{Mach: 0.85, StagnationPressure: 120000, StagnationTemperature: 310}, 1e-12},
+		{"air, low speed", "plp-3", facilities.Setting{Mach: 0.2, StagnationPressure: 400000, StagnationTemperature: 300}, 1e-12},
+		{"nitrogen, cold", "cn2-05", facilities.Setting{Mach: 0.8, StagnationPressure: 300000, StagnationTemperature: 130}, 1e-12},
+		{"nitrogen, warm", "cn2-05", facilities.Setting{Mach: 0.3, StagnationPressure: 200000, StagnationTemperature: 300}, 1e-12},
+		{"custom gas (argon) in tsw-1", "tsw-1/argon", facilities.Setting{Mach: 1.1, StagnationPressure: 150000, StagnationTemperature: 310}, 1e-12},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			f := mustDemo(t, tc.id)
+			var f facilities.Facility
+			if tc.id == "tsw-1/argon" {
+				f = mustDemo(t, "tsw-1")
+				f.Medium = mArgon
+			} else {
+				f = mustDemo(t, tc.id)
+			}
 			st, err := f.State(tc.set)
 			if err != nil {
 				t.Fatal(err)
