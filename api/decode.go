@@ -14,6 +14,8 @@ import (
 	"strings"
 	"sync"
 
+	"github.com/gin-gonic/gin"
+
 	"scalematch/facilities"
 	"scalematch/similarity"
 )
@@ -461,4 +463,23 @@ func collectFields(t reflect.Type, fs *fieldSet, visiting map[reflect.Type]bool)
 	for _, et := range embedded {
 		collectFields(et, fs, visiting)
 	}
+}
+
+// decodeBody reads the request body (at most BodyLimit bytes) into dst with Decode.
+// On failure it answers the request with the problem (400 for bad input, 413 for a
+// body too large) and returns false; the handler then just returns.
+func (s *Server) decodeBody(c *gin.Context, dst any) bool {
+	if c.Request.Body == nil {
+		s.fail(c, bodyError("the body is empty: want a JSON object"))
+		return false
+	}
+	body, err := io.ReadAll(c.Request.Body)
+	if err == nil {
+		err = Decode(body, dst)
+	}
+	if err != nil {
+		s.fail(c, err)
+		return false
+	}
+	return true
 }

@@ -1,0 +1,336 @@
+package api_test
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"io"
+	"log/slog"
+	"net/http"
+	"net/http/httptest"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/prometheus/client_golang/prometheus"
+
+	"scalematch/api"
+	"scalematch/facilities"
+)
+
+// fakeCatalog answers Ping with err after delay; its other methods are not used by
+// these tests (the embedded nil interface would panic if they were).
+type fakeCatalog struct {
+	facilities.Catalog
+	err   error
+	delay time.Duration
+}
+
+func (f fakeCatalog) Ping(ctx context.Context) error {
+	select {
+	case <-time.After(f.delay):
+		return f.err
+	case <-ctx.Done():
+		return ctx.Err()
+	}
+}
+
+// lockedBuffer is a log sink that concurrent requests may share.
+type lockedBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+func (l *lockedBuffer) Write(p []byte) (int, error) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.Write(p)
+}
+
+func (l *lockedBuffer) String() string {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.String()
+}
+
+type testServer struct {
+	*httptest.Server
+	log *lockedBuffer
+}
+
+func newTestServer(t *testing.T, cat facilities.Catalog) testServer {
+	t.Helper()
+	logs := &lockedBuffer{}
+	s, err := api.New(api.Config{
+		Catalog:  cat,
+		Registry: prometheus.NewRegistry(),
+		Logger:   slog.New(slog.NewJSONHandler(logs, nil)),
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ts := httptest.NewServer(s.Handler())
+	t.Cleanup(ts.Close)
+	return testServer{ts, logs}
+}
+
+func (ts testServer) do(t *testing.T, method, path string, body io.Reader, header map[string]string) (*http.Response, []byte) {
+	t.Helper()
+	req, err := http.NewRequest(method, ts.URL+path, body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k, v := range header {
+		req.Header.Set(k, v)
+	}
+	resp, err := ts.Client().Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer resp.Body.Close()
+	b, err := io.ReadAll(resp.Body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return resp, b
+}
+
+func decodeProblem(t *testing.T, resp *http.Response, body []byte) api.Problem {
+	t.Helper()
+	if ct := resp.Header.Get("Content-Type"); ct != api.ContentTypeProblem {
+		t.Errorf("Content-Type %q, want %q", ct, api.ContentTypeProblem)
+	}
+	var p api.Problem
+	if err := json.Unmarshal(body, &p); err != nil {
+		t.Fatalf("problem body %s: %v", body, err)
+	}
+	if p.Status != resp.StatusCode {
+		t.Errorf("problem status %d, response status %d", p.Status, resp.StatusCode)
+	}
+	if p.RequestID == "" || p.RequestID != resp.Header.Get(api.HeaderRequestID) {
+		t.Errorf("problem request_id %q, header %q", p.RequestID, resp.Header.Get(api.HeaderRequestID))
+	}
+	return p
+}
+
+func TestHealthz(t *testing.T) {
+	ts := newTestServer(t, nil)
+	resp, body := ts.do(t, "GET", "/healthz", nil, nil)
+	if resp.StatusCode != 200 || strings.TrimSpace(string(body)) != `{"status":"ok"}` {
+		t.Errorf("GET /healthz: %d %s", resp.StatusCode, body)
+	}
+}
+
+func TestReadyz(t *testing.T) {
+	tests := []struct {
+		name    string
+		cat     facilities.Catalog
+		status  int
+		body    string // the JSON body for 200, a fragment of the detail otherwise
+		maxTime time.Duration
+	}{
+		{"store up", fakeCatalog{}, 200, `{"status":"ready","store":"ok"}`, time.Second},
+		{"store down", fakeCatalog{err: errors.New("connection refused")}, 503, "does not answer", time.Second},
+		{"store hangs", fakeCatalog{delay: time.Minute}, 503, "did not answer within 2s", 10 * time.Second},
+		{"no store", nil, 503, "no store", time.Second},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if tc.maxTime > time.Second && testing.Short() {
+				t.Skip("waits for the readiness timeout")
+			}
+			ts := newTestServer(t, tc.cat)
+			start := time.Now()
+			resp, body := ts.do(t, "GET", "/readyz", nil, nil)
+			if d := time.Since(start); d > tc.maxTime {
+				t.Errorf("took %v, want under %v", d, tc.maxTime)
+			}
+			if resp.StatusCode != tc.status {
+				t.Fatalf("status %d, want %d: %s", resp.StatusCode, tc.status, body)
+			}
+			if tc.status == 200 {
+				if strings.TrimSpace(string(body)) != tc.body {
+					t.Errorf("body %s, want %s", body, tc.body)
+				}
+				return
+			}
+			p := decodeProblem(t, resp, body)
+			if p.Type != "/problems/unavailable" || !strings.Contains(p.Detail, tc.body) {
+				t.Errorf("problem %+v, want unavailable with %q", p, tc.body)
+			}
+			if strings.Contains(string(body), "connection refused") {
+				t.Errorf("the store's error leaks to the client: %s", body)
+			}
+		})
+	}
+}
+
+func TestRequestID(t *testing.T) {
+	tests := []struct {
+		name     string
+		incoming string
+		echoed   bool
+	}{
+		{"sane id echoed", "run-42.a_b:c", true},
+		{"none: generated", "", false},
+		{"too long: replaced", strings.Repeat("a", 65), false},
+		{"space: replaced", "abc def", false},
+		{"non-ASCII: replaced", "r\u00e9sum\u00e9", false},
+		{"log injection: replaced", `x","status":200`, false},
+	}
+	ts := newTestServer(t, nil)
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			h := map[string]string{}
+			if tc.incoming != "" {
+				h[api.HeaderRequestID] = tc.incoming
+			}
+			resp, _ := ts.do(t, "GET", "/healthz", nil, h)
+			got := resp.Header.Get(api.HeaderRequestID)
+			if tc.echoed && got != tc.incoming {
+				t.Errorf("got %q, want the incoming %q", got, tc.incoming)
+			}
+			if !tc.echoed && (got == tc.incoming || len(got) != 32) {
+				t.Errorf("got %q, want a new 32-hex-digit id", got)
+			}
+			if !strings.Contains(ts.log.String(), `"request_id":"`+got+`"`) {
+				t.Errorf("no log line carries request id %q", got)
+			}
+		})
+	}
+}
+
+func TestRequestLog(t *testing.T) {
+	ts := newTestServer(t, nil)
+	ts.do(t, "GET", "/healthz", nil, map[string]string{api.HeaderRequestID: "log-check"})
+	var line map[string]any
+	for l := range strings.SplitSeq(strings.TrimSpace(ts.log.String()), "\n") {
+		if strings.Contains(l, `"log-check"`) {
+			if err := json.Unmarshal([]byte(l), &line); err != nil {
+				t.Fatalf("log line %s: %v", l, err)
+			}
+		}
+	}
+	want := map[string]any{"msg": "request", "method": "GET", "route": "/healthz", "status": 200.0, "request_id": "log-check"}
+	for k, v := range want {
+		if line[k] != v {
+			t.Errorf("log %s = %v, want %v (line %v)", k, line[k], v, line)
+		}
+	}
+	if _, ok := line["duration_ms"].(float64); !ok {
+		t.Errorf("log line has no duration_ms: %v", line)
+	}
+}
+
+func TestUnknownRoutes(t *testing.T) {
+	tests := []struct {
+		name, method, path string
+		status             int
+		typ                string
+		allow              string
+	}{
+		{"unknown path", "GET", "/v1/nowhere", 404, "/problems/not-found", ""},
+		{"root", "GET", "/", 404, "/problems/not-found", ""},
+		{"trailing slash is not redirected", "GET", "/healthz/", 404, "/problems/not-found", ""},
+		{"wrong method", "DELETE", "/healthz", 405, "/problems/method-not-allowed", "GET"},
+	}
+	ts := newTestServer(t, nil)
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			resp, body := ts.do(t, tc.method, tc.path, nil, nil)
+			if resp.StatusCode != tc.status {
+				t.Fatalf("status %d, want %d: %s", resp.StatusCode, tc.status, body)
+			}
+			p := decodeProblem(t, resp, body)
+			if p.Type != tc.typ || p.Instance != tc.path {
+				t.Errorf("problem %+v, want type %s instance %s", p, tc.typ, tc.path)
+			}
+			if got := resp.Header.Get("Allow"); tc.allow != "" && !strings.Contains(got, tc.allow) {
+				t.Errorf("Allow %q, want it to name %s", got, tc.allow)
+			}
+		})
+	}
+}
+
+func TestBodyLimitDeclared(t *testing.T) {
+	ts := newTestServer(t, nil)
+	big := bytes.NewReader(make([]byte, api.BodyLimit+1))
+	resp, body := ts.do(t, "POST", "/v1/plans", big, map[string]string{"Content-Type": "application/json"})
+	if resp.StatusCode != http.StatusRequestEntityTooLarge {
+		t.Fatalf("status %d, want 413: %s", resp.StatusCode, body)
+	}
+	p := decodeProblem(t, resp, body)
+	if p.Type != "/problems/body-too-large" {
+		t.Errorf("type %q", p.Type)
+	}
+}
+
+func TestMetrics(t *testing.T) {
+	ts := newTestServer(t, nil)
+	ts.do(t, "GET", "/healthz", nil, nil)
+	ts.do(t, "GET", "/healthz", nil, nil)
+	ts.do(t, "GET", "/no/such/thing", nil, nil)
+	resp, body := ts.do(t, "GET", "/metrics", nil, nil)
+	if resp.StatusCode != 200 {
+		t.Fatalf("GET /metrics: %d", resp.StatusCode)
+	}
+	text := string(body)
+	for _, want := range []string{
+		`scalematch_http_requests_total{method="GET",route="/healthz",status="200"} 2`,
+		`scalematch_http_requests_total{method="GET",route="unmatched",status="404"} 1`,
+		`scalematch_http_request_duration_seconds_count{method="GET",route="/healthz",status="200"} 2`,
+		`scalematch_http_request_duration_seconds_bucket{method="GET",route="/healthz",status="200",le="+Inf"} 2`,
+		"# TYPE scalematch_planner_duration_seconds histogram",
+		"scalematch_http_requests_in_flight 1",
+		"go_goroutines",
+	} {
+		if !strings.Contains(text, want) {
+			t.Errorf("metrics lack %q", want)
+		}
+	}
+	if strings.Contains(text, "/no/such/thing") {
+		t.Error("an unmatched path became a label value")
+	}
+}
+
+func TestTwoServersShareARegistry(t *testing.T) {
+	reg := prometheus.NewRegistry()
+	for i := range 2 {
+		if _, err := api.New(api.Config{Registry: reg}); err != nil {
+			t.Fatalf("server %d: %v", i, err)
+		}
+	}
+}
+
+func TestOpenAPI(t *testing.T) {
+	ts := newTestServer(t, nil)
+	resp, body := ts.do(t, "GET", "/openapi.json", nil, nil)
+	if resp.StatusCode != 200 {
+		t.Fatalf("GET /openapi.json: %d", resp.StatusCode)
+	}
+	var doc struct {
+		Swagger string                    `json:"swagger"`
+		Paths   map[string]map[string]any `json:"paths"`
+	}
+	if err := json.Unmarshal(body, &doc); err != nil {
+		t.Fatal(err)
+	}
+	for _, p := range []string{"/healthz", "/readyz", "/metrics", "/openapi.json"} {
+		if _, ok := doc.Paths[p]["get"]; !ok {
+			t.Errorf("document lacks GET %s", p)
+		}
+	}
+	resp, body = ts.do(t, "GET", "/docs/", nil, nil)
+	if resp.StatusCode != 200 || !strings.HasPrefix(resp.Header.Get("Content-Type"), "text/html") {
+		t.Fatalf("GET /docs/: %d %s", resp.StatusCode, resp.Header.Get("Content-Type"))
+	}
+	page := string(body)
+	if !strings.Contains(page, `fetch("/openapi.json")`) {
+		t.Error("the page does not read /openapi.json")
+	}
+	if strings.Contains(page, "https://") || strings.Contains(page, "http://") {
+		t.Error("the page refers to something outside the binary")
+	}
+}
