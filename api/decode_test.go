@@ -22,7 +22,7 @@ type decodeTarget struct {
 		Mach     *float64 `json:"mach,omitempty"`
 		Speed    float64  `json:"true_airspeed,omitempty" unit:"m/s"`
 	} `json:"flight"`
-	Article  *similarity.Article `json:"article,omitempty"`
+	Article  *similarity.Article  `json:"article,omitempty"`
 	Facility *facilities.Facility `json:"facility,omitempty"`
 	Model    struct {
 		Scale  float64   `json:"scale,omitempty" unit:"scale"`
