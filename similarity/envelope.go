@@ -107,3 +107,38 @@ func Envelope(f *facilities.Facility, referenceLength float64, n int) ([]TradePo
 	}
 	return sv.trade(1, n), nil
 }
+
+// LowestStagnationTemperature returns the lowest stagnation temperature in K the
+// facility can use at free-stream Mach number mach and stagnation pressure p0 (Pa),
+// and the limit that sets it: the facility's floor (ConstraintTempMin), the speed
+// range (ConstraintSpeedMin), or the condensation rule (ConstraintCondensation) of a
+// condensable medium. Cooling a gas raises its Reynolds number per metre, so this is
+// the temperature a Reynolds-hungry plan runs at. Gas media only; errors are
+// *facilities.Error (CodeUnprocessable when no temperature in range is usable).
+func LowestStagnationTemperature(f *facilities.Facility, mach, p0 float64) (float64, string, error) {
+	if f == nil || f.Medium.IsLiquid() {
+		return 0, "", facilities.Invalid("not a gas facility", []facilities.FieldError{{Field: "facility.medium", Message: "a gas facility is required"}})
+	}
+	if err := f.Validate(); err != nil {
+		return 0, "", err
+	}
+	if !(mach > 0 && mach <= facilities.MaxSettingMach) || !(p0 > 0) || math.IsInf(p0, 0) {
+		return 0, "", facilities.Invalid("invalid setting", []facilities.FieldError{{Field: "mach",
+			Message: fmt.Sprintf("Mach %g and p0 %g Pa: need 0 < M ≤ %g and a positive pressure", mach, p0, facilities.MaxSettingMach)}})
+	}
+	fc := *f
+	fc.StagnationPressure = facilities.Range{Min: p0, Max: p0}
+	sv := &solver{f: &fc, loadScale: 1, qmax: math.Inf(1), remax: math.Inf(1)}
+	c := sv.prepare(mach)
+	if !c.ok && c.fail != facilities.ConstraintDynamic && c.fail != facilities.ConstraintReynoldsUnit {
+		return 0, "", unprocessable(fmt.Sprintf("no stagnation temperature is usable at Mach %g and %g Pa", mach, p0), c.fail)
+	}
+	t := sv.tfloor(&c, p0)
+	switch {
+	case c.cond && t > c.ta:
+		return t, facilities.ConstraintCondensation, nil
+	case c.ta > f.StagnationTemperature.Min:
+		return t, facilities.ConstraintSpeedMin, nil
+	}
+	return t, facilities.ConstraintTempMin, nil
+}

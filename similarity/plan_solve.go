@@ -542,8 +542,8 @@ func (sv *solver) top(c *uctx, qc float64, name string) top {
 	t.r, t.q = st.ReynoldsPerMeter, st.DynamicPressure
 	if t.r > sv.remax {
 		// The Re/m ceiling: the lowest p0 (then T0) that reaches it.
-		t.cap, t.r = facilities.ConstraintReynoldsUnit, sv.remax
 		t.p, t.t = sv.solveR(c, t, sv.remax)
+		t.cap, t.r = facilities.ConstraintReynoldsUnit, sv.remax
 		t.q = sv.qAt(c, t.p, t.t)
 	}
 	return t
