@@ -238,6 +238,12 @@ type Ratings struct {
 // row is an error naming the field under "balance".
 func (b *Balance) Ratings() (Ratings, error) { return b.ratings("balance") }
 
+// BalanceRatings compiles the limits of the facility's i-th balance, naming bad
+// fields under "facility.balances[i]".
+func (f *Facility) BalanceRatings(i int) (Ratings, error) {
+	return f.Balances[i].ratings(fmt.Sprintf("facility.balances[%d]", i))
+}
+
 func (b *Balance) ratings(path string) (Ratings, error) {
 	var fe []FieldError
 	sf := b.SafetyFactor

@@ -94,9 +94,9 @@ func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installati
 			continue
 		}
 		found = true
-		rs, err := b.Ratings()
+		rs, err := f.BalanceRatings(k)
 		if err != nil {
-			return nil, fmt.Errorf("facility %s balance %s: %w", f.ID, b.ID, err)
+			return nil, err
 		}
 		br := balanceRows{id: b.ID, rows: rs.Rows(), allowed: make([]float64, rs.Rows())}
 		for j := range br.allowed {

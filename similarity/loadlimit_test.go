@@ -219,3 +219,17 @@ func BenchmarkEstimateLoads21(b *testing.B) {
 		}
 	}
 }
+
+func TestLoadLimitBadRating(t *testing.T) {
+	art := pellin()
+	mx, err := art.Aero.Matrix(sweep, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := demo(t, "lsw-2")
+	f.Balances[1].SafetyFactor = 0.8
+	_, err = similarity.NewLoadLimit(art, f, facilities.Installation{}, mx)
+	if fs := fieldsOf(t, err); !contains(fs, "facility.balances[1].safety_factor") {
+		t.Errorf("fields %q, want facility.balances[1].safety_factor", fs)
+	}
+}
