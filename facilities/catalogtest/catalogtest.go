@@ -676,6 +676,27 @@ func take(t *testing.T, c facilities.Catalog, id, planID string) snapshot {
 	return s
 }
 
+// settle returns the state after a write. A write cut while its commit was on the
+// wire may still land after the caller gave up, so after an error it waits until
+// two looks 50 ms apart agree.
+func settle(t *testing.T, c facilities.Catalog, id, planID string, err error) snapshot {
+	t.Helper()
+	s := take(t, c, id, planID)
+	if err == nil {
+		return s
+	}
+	for range 40 {
+		time.Sleep(50 * time.Millisecond)
+		next := take(t, c, id, planID)
+		if next == s {
+			return s
+		}
+		s = next
+	}
+	t.Fatalf("the store did not settle within 2 s after a cut write")
+	return s
+}
+
 // testFailMidway cuts writes at every point the store looks at its context, from
 // before the transaction starts to after it commits. Each cut must leave either
 // the whole write or nothing: never a version row without its facility, a
@@ -718,7 +739,7 @@ func testFailMidway(t *testing.T, c facilities.Catalog) {
 				planID := fmt.Sprintf("cut-%d", n+1)
 				before := take(t, c, base.ID, planID)
 				err := w.do(newCut(cut), before)
-				after := take(t, c, base.ID, planID)
+				after := settle(t, c, base.ID, planID, err)
 				changed := after != before
 				switch w.name {
 				case "update":
@@ -740,8 +761,9 @@ func testFailMidway(t *testing.T, c facilities.Catalog) {
 				if err != nil && !errors.Is(err, context.Canceled) && facilities.ErrorCode(err) == "" {
 					t.Logf("cut %d: %v", cut, err)
 				}
-				if err == nil {
-					t.Logf("the write completed after %d cuts", cut)
+				if changed {
+					// Done: acknowledged, or landed although the caller was cut off.
+					t.Logf("the write landed after %d cuts (error: %v)", cut, err)
 					return
 				}
 			}
