@@ -27,25 +27,26 @@ const maxExponent = 60
 // dimensionless groups (see Rational).
 type Dimension [4]int8
 
-// Common dimensions.
+// Common dimensions, named for messages, tests and callers. They are values to read,
+// never to assign.
 var (
-	Dimensionless     = Dimension{}
-	DimLength         = Dimension{0, 1, 0, 0}
-	DimArea           = Dimension{0, 2, 0, 0}
-	DimMass           = Dimension{1, 0, 0, 0}
-	DimTime           = Dimension{0, 0, 1, 0}
-	DimTemperature    = Dimension{0, 0, 0, 1}
-	DimVelocity       = Dimension{0, 1, -1, 0}
-	DimAcceleration   = Dimension{0, 1, -2, 0}
-	DimForce          = Dimension{1, 1, -2, 0}
-	DimPressure       = Dimension{1, -1, -2, 0}
-	DimEnergy         = Dimension{1, 2, -2, 0}
-	DimPower          = Dimension{1, 2, -3, 0}
-	DimDensity        = Dimension{1, -3, 0, 0}
-	DimViscosity      = Dimension{1, -1, -1, 0}
-	DimKinematicVisc  = Dimension{0, 2, -1, 0}
-	DimFrequency      = Dimension{0, 0, -1, 0}
-	DimSurfaceTension = Dimension{1, 0, -2, 0}
+	Dimensionless     = Dimension{}             // Dimensionless is a pure number (or a plane angle).
+	DimLength         = Dimension{0, 1, 0, 0}   // DimLength is L (m).
+	DimArea           = Dimension{0, 2, 0, 0}   // DimArea is L^2 (m²).
+	DimMass           = Dimension{1, 0, 0, 0}   // DimMass is M (kg).
+	DimTime           = Dimension{0, 0, 1, 0}   // DimTime is T (s).
+	DimTemperature    = Dimension{0, 0, 0, 1}   // DimTemperature is Θ (K).
+	DimVelocity       = Dimension{0, 1, -1, 0}  // DimVelocity is L T^-1 (m/s).
+	DimAcceleration   = Dimension{0, 1, -2, 0}  // DimAcceleration is L T^-2 (m/s²).
+	DimForce          = Dimension{1, 1, -2, 0}  // DimForce is M L T^-2 (N).
+	DimPressure       = Dimension{1, -1, -2, 0} // DimPressure is M L^-1 T^-2 (Pa).
+	DimEnergy         = Dimension{1, 2, -2, 0}  // DimEnergy is M L^2 T^-2 (J, and N·m of a moment).
+	DimPower          = Dimension{1, 2, -3, 0}  // DimPower is M L^2 T^-3 (W).
+	DimDensity        = Dimension{1, -3, 0, 0}  // DimDensity is M L^-3 (kg/m³).
+	DimViscosity      = Dimension{1, -1, -1, 0} // DimViscosity is M L^-1 T^-1 (Pa·s), dynamic viscosity.
+	DimKinematicVisc  = Dimension{0, 2, -1, 0}  // DimKinematicVisc is L^2 T^-1 (m²/s), kinematic viscosity.
+	DimFrequency      = Dimension{0, 0, -1, 0}  // DimFrequency is T^-1 (Hz, 1/s).
+	DimSurfaceTension = Dimension{1, 0, -2, 0}  // DimSurfaceTension is M T^-2 (N/m).
 )
 
 var baseSymbols = [4]string{"M", "L", "T", "Θ"}

@@ -17,14 +17,14 @@ const MaxVariables = 64
 // Variable is one physical quantity of a problem: its name (as the caller writes it,
 // "rho", "V", "mu") and its dimension.
 type Variable struct {
-	Name string
-	Dim  Dimension
+	Name string    // Name identifies the variable in the groups; unique, not empty.
+	Dim  Dimension // Dim is its dimension; the zero value makes it its own group.
 }
 
 // Exponent is the power of one variable in a dimensionless group.
 type Exponent struct {
-	Name  string
-	Power Rational
+	Name  string   // Name is the variable's name.
+	Power Rational // Power is its exact exponent, never 0 in a Group.
 }
 
 // Group is one dimensionless group, the product of its variables raised to their

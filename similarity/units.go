@@ -48,10 +48,10 @@ const (
 // the SI, but only angle fields accept them, and their SI unit is the radian. The
 // zero value is not a usable unit (Factor 0).
 type Unit struct {
-	Factor float64
-	Offset float64
-	Dim    Dimension
-	Angle  bool
+	Factor float64   // Factor multiplies a value in this unit to give SI.
+	Offset float64   // Offset is added after Factor, in SI units (K); 0 but for degC, degF.
+	Dim    Dimension // Dim is the unit's dimension.
+	Angle  bool      // Angle marks rad and deg.
 }
 
 // unitTable holds the units by name. Product, quotient and power forms (N*m, m/s,
@@ -147,6 +147,7 @@ type UnitError struct {
 	kind   error
 }
 
+// Error returns Reason.
 func (e *UnitError) Error() string { return e.Reason }
 
 // Unwrap returns the sentinel error that classifies e.
