@@ -120,6 +120,8 @@ table() {
 1 poise|Pa*s|poise|Pa s
 1 cP|Pa*s|centipoise|Pa s
 1 centipoise|Pa*s|centipoise|Pa s
+1 lbf*s/ft^2|Pa*s|lbf s/ft^2|Pa s
+1 ft/s^2|m/s^2|ft/s^2|m/s^2
 1 1/s|1/s|1/s|1/s
 1 Hz|1/s|Hz|1/s
 1 rpm|1/s|rpm|turn/s
