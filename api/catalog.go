@@ -1,11 +1,351 @@
 package api
 
 import (
+	"crypto/sha256"
+	"crypto/subtle"
+	"errors"
+	"fmt"
+	"net/http"
+	"strconv"
+	"strings"
+
 	"github.com/gin-gonic/gin"
+
+	"scalematch/facilities"
 )
+
+// Catalog response headers.
+const (
+	// HeaderFacilityID names the catalog facility a stored plan was made against.
+	HeaderFacilityID = "Scalematch-Facility-Id"
+	// HeaderFacilityVersion names the facility version a stored plan used.
+	HeaderFacilityVersion = "Scalematch-Facility-Version"
+)
+
+// FacilityList is the answer of GET /v1/facilities.
+type FacilityList struct {
+	// Facilities are the current, not deleted facilities ordered by id, each with
+	// its version.
+	Facilities []facilities.Facility `json:"facilities"`
+}
+
+// FacilityHistory is the answer of GET /v1/facilities/{id}/versions.
+type FacilityHistory struct {
+	// ID is the facility's id.
+	ID string `json:"id" example:"tsw-1"`
+	// Versions lists every change, oldest first: version, time (RFC 3339, UTC), the
+	// write token's name, the action, the JSON paths that changed and the record as
+	// of that version (absent for a deletion).
+	Versions []facilities.Change `json:"versions"`
+}
 
 // registerCatalog registers the facility catalog, its version history and the
 // stored-plan routes under /v1.
 func (s *Server) registerCatalog(v1 *gin.RouterGroup) {
-	_ = v1
+	v1.GET("/facilities", s.listFacilities)
+	v1.GET("/facilities/:id", s.getFacility)
+	v1.GET("/facilities/:id/versions", s.getFacilityVersions)
+	v1.POST("/facilities", s.createFacility)
+	v1.PUT("/facilities/:id", s.updateFacility)
+	v1.DELETE("/facilities/:id", s.deleteFacility)
+	v1.GET("/plans/:id", s.getPlan)
+}
+
+// listFacilities answers GET /v1/facilities.
+//
+//	@Summary		List the facility catalog
+//	@Description	Every current facility, ordered by id, with its catalog version. All figures SI: test-section sizes m, areas m², speeds m/s, pressures Pa, temperatures K, Reynolds number per metre 1/m, balance forces N and moments N·m.
+//	@Tags			catalog
+//	@Produce		json
+//	@Success		200	{object}	FacilityList
+//	@Failure		503	{object}	Problem	"the store did not answer in time"
+//	@Router			/v1/facilities [get]
+func (s *Server) listFacilities(c *gin.Context) {
+	fs, err := s.cfg.Catalog.Facilities(c.Request.Context())
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, FacilityList{Facilities: fs})
+}
+
+// getFacility answers GET /v1/facilities/{id}.
+//
+//	@Summary		Read one facility
+//	@Description	The current version of a facility, with the version as a strong ETag ("3"); send it back as If-Match to change or delete the facility. All figures SI: m, m², m/s, Pa, K, 1/m, N, N·m.
+//	@Tags			catalog
+//	@Produce		json
+//	@Param			id	path		string	true	"facility id"	example(tsw-1)
+//	@Success		200	{object}	facilities.Facility
+//	@Header			200	{string}	ETag	"the facility's version, quoted"
+//	@Failure		404	{object}	Problem	"no such facility, or it was deleted"
+//	@Router			/v1/facilities/{id} [get]
+func (s *Server) getFacility(c *gin.Context) {
+	f, err := s.cfg.Catalog.Facility(c.Request.Context(), c.Param("id"))
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.Header("ETag", etag(f.Version))
+	c.JSON(http.StatusOK, f)
+}
+
+// getFacilityVersions answers GET /v1/facilities/{id}/versions.
+//
+//	@Summary		A facility's history
+//	@Description	Every change of a facility, oldest first, deleted facilities included: version, time (UTC), who (the write token's name), action (create, update, delete), the JSON paths that changed (e.g. balances[0].limits.normal, in N) and the record as of that version in SI units.
+//	@Tags			catalog
+//	@Produce		json
+//	@Param			id	path		string	true	"facility id"	example(tsw-1)
+//	@Success		200	{object}	FacilityHistory
+//	@Failure		404	{object}	Problem	"the id was never in the catalog"
+//	@Router			/v1/facilities/{id}/versions [get]
+func (s *Server) getFacilityVersions(c *gin.Context) {
+	id := c.Param("id")
+	vs, err := s.cfg.Catalog.Versions(c.Request.Context(), id)
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, FacilityHistory{ID: id, Versions: vs})
+}
+
+// createFacility answers POST /v1/facilities.
+//
+//	@Summary		Add a facility
+//	@Description	Stores a new facility as version 1 (a deleted id continues its version numbers). Numbers are SI (m, m², m/s, Pa, K, 1/m, N, N·m) or strings with units ("2.5 bar", "400 lbf"). Every invalid field is named at once. Needs a write token; the token's name is recorded as the author. Limits entered here are what plans check balances against: the facility's approved limits and procedures govern.
+//	@Tags			catalog
+//	@Accept			json
+//	@Produce		json
+//	@Security		WriteToken
+//	@Param			facility	body		facilities.Facility	true	"the facility"
+//	@Success		201			{object}	facilities.Facility
+//	@Header			201			{string}	ETag		"the new version, quoted"
+//	@Header			201			{string}	Location	"/v1/facilities/{id}"
+//	@Failure		400			{object}	Problem	"invalid fields, each named by its JSON path"
+//	@Failure		401			{object}	Problem	"no bearer token"
+//	@Failure		403			{object}	Problem	"the token is not allowed, or no write tokens are configured"
+//	@Failure		409			{object}	Problem	"the id exists"
+//	@Router			/v1/facilities [post]
+func (s *Server) createFacility(c *gin.Context) {
+	by, ok := s.writer(c)
+	if !ok {
+		return
+	}
+	var f facilities.Facility
+	if !s.decodeBody(c, &f) {
+		return
+	}
+	f.Version = 0
+	if err := f.Validate(); err != nil {
+		s.fail(c, err)
+		return
+	}
+	out, err := s.cfg.Catalog.CreateFacility(c.Request.Context(), f, by)
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.Header("ETag", etag(out.Version))
+	c.Header("Location", "/v1/facilities/"+out.ID)
+	c.JSON(http.StatusCreated, out)
+}
+
+// updateFacility answers PUT /v1/facilities/{id}.
+//
+//	@Summary		Change a facility
+//	@Description	Replaces a facility with the body when If-Match names its current version (the ETag of GET); the answer carries the new version. Without If-Match: 428; with a version that is no longer current (someone else changed it): 412, so two people cannot silently overwrite each other's balance limits. The body's id must equal the path's or be absent. Numbers are SI (m, m², m/s, Pa, K, 1/m, N, N·m) or strings with units. Needs a write token. The facility's approved limits and procedures govern over anything entered here.
+//	@Tags			catalog
+//	@Accept			json
+//	@Produce		json
+//	@Security		WriteToken
+//	@Param			id			path		string				true	"facility id"	example(tsw-1)
+//	@Param			If-Match	header		string				true	"the current version's ETag, e.g. \"3\""
+//	@Param			facility	body		facilities.Facility	true	"the whole facility"
+//	@Success		200			{object}	facilities.Facility
+//	@Header			200			{string}	ETag	"the new version, quoted"
+//	@Failure		400			{object}	Problem	"invalid fields, each named by its JSON path"
+//	@Failure		401			{object}	Problem	"no bearer token"
+//	@Failure		403			{object}	Problem	"the token is not allowed, or no write tokens are configured"
+//	@Failure		404			{object}	Problem	"no such facility"
+//	@Failure		412			{object}	Problem	"If-Match is not the current version"
+//	@Failure		428			{object}	Problem	"If-Match is missing"
+//	@Router			/v1/facilities/{id} [put]
+func (s *Server) updateFacility(c *gin.Context) {
+	by, ok := s.writer(c)
+	if !ok {
+		return
+	}
+	ifMatch, err := ifMatchVersion(c.GetHeader("If-Match"))
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	var f facilities.Facility
+	if !s.decodeBody(c, &f) {
+		return
+	}
+	id := c.Param("id")
+	var fields []facilities.FieldError
+	switch {
+	case f.ID == "":
+		f.ID = id
+	case f.ID != id:
+		fields = append(fields, facilities.FieldError{Field: "id",
+			Message: fmt.Sprintf("%q differs from the path's %q: leave it out or make it equal", f.ID, id)})
+	}
+	if f.Version != 0 && f.Version != ifMatch {
+		fields = append(fields, facilities.FieldError{Field: "version",
+			Message: fmt.Sprintf("%d differs from If-Match's %d: leave it out or make it equal", f.Version, ifMatch)})
+	}
+	f.Version = 0
+	if err := f.Validate(); err != nil {
+		var de *facilities.Error
+		if !errors.As(err, &de) {
+			s.fail(c, err)
+			return
+		}
+		fields = append(fields, de.Fields...)
+	}
+	if err := facilities.Invalid("the facility is invalid", fields); err != nil {
+		s.fail(c, err)
+		return
+	}
+	out, err := s.cfg.Catalog.UpdateFacility(c.Request.Context(), f, ifMatch, by)
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.Header("ETag", etag(out.Version))
+	c.JSON(http.StatusOK, out)
+}
+
+// deleteFacility answers DELETE /v1/facilities/{id}.
+//
+//	@Summary		Delete a facility
+//	@Description	Marks a facility deleted when If-Match names its current version. Its history and the plans made against it stay readable; the id may be created again later. Without If-Match: 428; with a stale version: 412. Needs a write token.
+//	@Tags			catalog
+//	@Security		WriteToken
+//	@Param			id			path	string	true	"facility id"	example(tsw-1)
+//	@Param			If-Match	header	string	true	"the current version's ETag, e.g. \"3\""
+//	@Success		204
+//	@Failure		400	{object}	Problem	"malformed If-Match"
+//	@Failure		401	{object}	Problem	"no bearer token"
+//	@Failure		403	{object}	Problem	"the token is not allowed, or no write tokens are configured"
+//	@Failure		404	{object}	Problem	"no such facility"
+//	@Failure		412	{object}	Problem	"If-Match is not the current version"
+//	@Failure		428	{object}	Problem	"If-Match is missing"
+//	@Router			/v1/facilities/{id} [delete]
+func (s *Server) deleteFacility(c *gin.Context) {
+	by, ok := s.writer(c)
+	if !ok {
+		return
+	}
+	ifMatch, err := ifMatchVersion(c.GetHeader("If-Match"))
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	if err := s.cfg.Catalog.DeleteFacility(c.Request.Context(), c.Param("id"), ifMatch, by); err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
+}
+
+// getPlan answers GET /v1/plans/{id}.
+//
+//	@Summary		Read a stored plan
+//	@Description	The plan exactly as POST /v1/plans first answered it, byte for byte (SI units throughout: m, m², m/s, Pa, K, N, N·m; angles in degrees). Scalematch-Facility-Id and Scalematch-Facility-Version name the catalog facility version it used (absent for a facility given inline). Loads are estimates: the facility's approved limits, procedures and licensed engineering judgement govern.
+//	@Tags			planning
+//	@Produce		json
+//	@Param			id	path		string	true	"plan id"
+//	@Success		200	{object}	PlanResponse
+//	@Header			200	{string}	Scalematch-Facility-Id		"catalog facility id"
+//	@Header			200	{integer}	Scalematch-Facility-Version	"catalog facility version"
+//	@Failure		404	{object}	Problem	"no plan with this id is stored"
+//	@Router			/v1/plans/{id} [get]
+func (s *Server) getPlan(c *gin.Context) {
+	p, err := s.cfg.Catalog.Plan(c.Request.Context(), c.Param("id"))
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	if p.FacilityID != "" {
+		c.Header(HeaderFacilityID, p.FacilityID)
+		c.Header(HeaderFacilityVersion, strconv.Itoa(p.FacilityVersion))
+	}
+	if !p.CreatedAt.IsZero() {
+		c.Header("Last-Modified", p.CreatedAt.UTC().Format(http.TimeFormat))
+	}
+	c.Data(http.StatusOK, "application/json; charset=utf-8", p.Body)
+}
+
+// etag is the strong entity tag of a catalog version (RFC 9110 §8.8.3).
+func etag(version int) string { return `"` + strconv.Itoa(version) + `"` }
+
+// ifMatchVersion reads the catalog version from an If-Match header (RFC 9110
+// §13.1.1). Missing: CodePreconditionRequired. "*" is refused the same way, since
+// it would overwrite whatever is current. A weak tag or one that names no version
+// can never match strongly: CodePreconditionFailed. Anything else not a single
+// entity tag: CodeInvalid.
+func ifMatchVersion(h string) (int, error) {
+	h = strings.TrimSpace(h)
+	switch {
+	case h == "":
+		return 0, &facilities.Error{Code: facilities.CodePreconditionRequired,
+			Message: `a change needs If-Match with the facility's current ETag (GET /v1/facilities/{id}), e.g. If-Match: "3"`}
+	case h == "*":
+		return 0, &facilities.Error{Code: facilities.CodePreconditionRequired,
+			Message: `If-Match: * would overwrite whatever is current; send the facility's ETag, e.g. If-Match: "3"`}
+	}
+	weak := strings.HasPrefix(h, "W/")
+	tag := strings.TrimPrefix(h, "W/")
+	if len(tag) < 2 || tag[0] != '"' || tag[len(tag)-1] != '"' || strings.ContainsAny(tag[1:len(tag)-1], `",`) {
+		return 0, facilities.Invalid("bad If-Match header", []facilities.FieldError{{Field: "If-Match",
+			Message: fmt.Sprintf("%q is not one entity tag: want the ETag of GET, e.g. \"3\"", h)}})
+	}
+	v, err := strconv.Atoi(tag[1 : len(tag)-1])
+	if weak || err != nil || v < 1 {
+		return 0, &facilities.Error{Code: facilities.CodePreconditionFailed,
+			Message: fmt.Sprintf("If-Match %s matches no version of this facility: send the strong ETag of GET, e.g. \"3\"", h)}
+	}
+	return v, nil
+}
+
+// writer checks the request's bearer token against the configured write tokens
+// and returns the token's name for the audit trail. Every configured token is
+// compared, in constant time on SHA-256 digests, so neither the match's position
+// nor a token's length shows in the answer time. No token (or another scheme):
+// 401 with WWW-Authenticate: Bearer; an unknown token, or none configured: 403.
+// On failure it answers the request and returns false.
+func (s *Server) writer(c *gin.Context) (facilities.Actor, bool) {
+	if len(s.cfg.WriteTokens) == 0 {
+		s.fail(c, &facilities.Error{Code: facilities.CodeForbidden,
+			Message: "catalog changes are switched off: the service has no write tokens (SCALEMATCH_WRITE_TOKENS)"})
+		return "", false
+	}
+	scheme, token, _ := strings.Cut(strings.TrimSpace(c.GetHeader("Authorization")), " ")
+	token = strings.TrimSpace(token)
+	if !strings.EqualFold(scheme, "Bearer") || token == "" {
+		s.fail(c, &facilities.Error{Code: facilities.CodeUnauthorized,
+			Message: "catalog changes need Authorization: Bearer <write token>"})
+		return "", false
+	}
+	got := sha256.Sum256([]byte(token))
+	var by facilities.Actor
+	found := 0
+	for t, name := range s.cfg.WriteTokens {
+		want := sha256.Sum256([]byte(t))
+		eq := subtle.ConstantTimeCompare(got[:], want[:])
+		if eq == 1 {
+			by = name
+		}
+		found |= eq
+	}
+	if found == 0 {
+		s.fail(c, &facilities.Error{Code: facilities.CodeForbidden, Message: "this token may not change the catalog"})
+		return "", false
+	}
+	return by, true
 }
