@@ -1,0 +1,347 @@
+package api_test
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"io"
+	"log/slog"
+	"net/http"
+	"net/http/httptest"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"scalematch/api"
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
+)
+
+// catalogServer serves a seeded SQLite catalog with the given write tokens.
+func catalogServer(t *testing.T, tokens map[string]facilities.Actor) (*httptest.Server, *sqlite.DB) {
+	t.Helper()
+	ctx := context.Background()
+	db, err := sqlite.Open(ctx, filepath.Join(t.TempDir(), sqlite.FileName))
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { db.Close() })
+	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
+		t.Fatal(err)
+	}
+	s, err := api.New(api.Config{Catalog: db, WriteTokens: tokens, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ts := httptest.NewServer(s.Handler())
+	t.Cleanup(ts.Close)
+	return ts, db
+}
+
+type catalogReply struct {
+	status int
+	header http.Header
+	body   []byte
+}
+
+func catalogCall(t *testing.T, ts *httptest.Server, method, path string, header map[string]string, body string) catalogReply {
+	t.Helper()
+	var r io.Reader
+	if body != "" {
+		r = strings.NewReader(body)
+	}
+	req, err := http.NewRequest(method, ts.URL+path, r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if body != "" {
+		req.Header.Set("Content-Type", "application/json")
+	}
+	for k, v := range header {
+		req.Header.Set(k, v)
+	}
+	resp, err := ts.Client().Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer resp.Body.Close()
+	b, err := io.ReadAll(resp.Body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return catalogReply{resp.StatusCode, resp.Header, b}
+}
+
+func facilityJSON(t *testing.T, id string, edit func(*facilities.Facility)) string {
+	t.Helper()
+	f, ok := facilities.DemoFacility("lsw-2")
+	if !ok {
+		t.Fatal("demo facility lsw-2 missing")
+	}
+	f.ID = id
+	if edit != nil {
+		edit(&f)
+	}
+	b, err := json.Marshal(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(b)
+}
+
+// TestCatalogWriteAccess sends every write route without a token, with a wrong
+// token, with a right one, and to a service with no tokens configured.
+func TestCatalogWriteAccess(t *testing.T) {
+	const secret = "s3cret-token-of-facility-staff"
+	tokens := map[string]facilities.Actor{secret: "facility-staff", "another-token": "other"}
+	type route struct {
+		name, method, path string
+		ifMatch            string
+		body               func(t *testing.T) string
+		success            int
+	}
+	routes := []route{
+		{"create", http.MethodPost, "/v1/facilities", "", func(t *testing.T) string { return facilityJSON(t, "new-1", nil) }, http.StatusCreated},
+		{"update", http.MethodPut, "/v1/facilities/lsw-2", `"1"`, func(t *testing.T) string {
+			return facilityJSON(t, "lsw-2", func(f *facilities.Facility) { f.Name = "renamed" })
+		}, http.StatusOK},
+		{"delete", http.MethodDelete, "/v1/facilities/wtn-04", `"1"`, func(*testing.T) string { return "" }, http.StatusNoContent},
+	}
+	auths := []struct {
+		name   string
+		tokens map[string]facilities.Actor
+		header string
+		want   int // 0: the route's success status
+	}{
+		{"no token", tokens, "", http.StatusUnauthorized},
+		{"another scheme", tokens, "Basic " + secret, http.StatusUnauthorized},
+		{"empty bearer", tokens, "Bearer ", http.StatusUnauthorized},
+		{"wrong token", tokens, "Bearer not-the-token", http.StatusForbidden},
+		{"token prefix", tokens, "Bearer " + secret[:10], http.StatusForbidden},
+		{"right token", tokens, "Bearer " + secret, 0},
+		{"scheme in lower case", tokens, "bearer " + secret, 0},
+		{"none configured, no token", nil, "", http.StatusForbidden},
+		{"none configured, some token", nil, "Bearer " + secret, http.StatusForbidden},
+	}
+	for _, rt := range routes {
+		for _, a := range auths {
+			t.Run(rt.name+"/"+a.name, func(t *testing.T) {
+				ts, db := catalogServer(t, a.tokens)
+				h := map[string]string{}
+				if a.header != "" {
+					h["Authorization"] = a.header
+				}
+				if rt.ifMatch != "" {
+					h["If-Match"] = rt.ifMatch
+				}
+				r := catalogCall(t, ts, rt.method, rt.path, h, rt.body(t))
+				want := a.want
+				if want == 0 {
+					want = rt.success
+				}
+				if r.status != want {
+					t.Fatalf("status %d, want %d; body %s", r.status, want, r.body)
+				}
+				if want == http.StatusUnauthorized && !strings.HasPrefix(r.header.Get("WWW-Authenticate"), "Bearer") {
+					t.Errorf("401 without WWW-Authenticate: Bearer (got %q)", r.header.Get("WWW-Authenticate"))
+				}
+				if want >= 400 {
+					if ct := r.header.Get("Content-Type"); ct != api.ContentTypeProblem {
+						t.Errorf("Content-Type %q, want %s", ct, api.ContentTypeProblem)
+					}
+					if bytes.Contains(r.body, []byte(secret)) {
+						t.Error("the problem repeats the token")
+					}
+				}
+				// The audit names the token's name, never the token.
+				id := strings.TrimPrefix(rt.path, "/v1/facilities/")
+				if rt.name == "create" {
+					id = "new-1"
+				}
+				vs, err := db.Versions(context.Background(), id)
+				if a.want != 0 {
+					if rt.name == "create" && facilities.ErrorCode(err) != facilities.CodeNotFound {
+						t.Errorf("a refused create left history %v, %v", vs, err)
+					}
+					if rt.name != "create" && (err != nil || len(vs) != 1) {
+						t.Errorf("a refused %s changed the history: %d versions, %v", rt.name, len(vs), err)
+					}
+					return
+				}
+				if err != nil {
+					t.Fatal(err)
+				}
+				last := vs[len(vs)-1]
+				if last.By != "facility-staff" {
+					t.Errorf("change recorded as by %q, want the token's name facility-staff", last.By)
+				}
+			})
+		}
+	}
+}
+
+// TestCatalogETags checks the version-as-ETag handshake: 428 without If-Match, 412
+// with a stale one, success with the current one.
+func TestCatalogETags(t *testing.T) {
+	auth := map[string]string{"Authorization": "Bearer tok"}
+	with := func(kv ...string) map[string]string {
+		h := map[string]string{"Authorization": "Bearer tok"}
+		for i := 0; i+1 < len(kv); i += 2 {
+			h[kv[i]] = kv[i+1]
+		}
+		return h
+	}
+	ts, _ := catalogServer(t, map[string]facilities.Actor{"tok": "staff"})
+
+	r := catalogCall(t, ts, http.MethodGet, "/v1/facilities/lsw-2", nil, "")
+	if r.status != http.StatusOK || r.header.Get("ETag") != `"1"` {
+		t.Fatalf("GET: status %d ETag %q, want 200 \"1\"", r.status, r.header.Get("ETag"))
+	}
+	edit := facilityJSON(t, "lsw-2", func(f *facilities.Facility) { f.Balances[0].Limits.Normal = catalogPtr(8000) })
+
+	tests := []struct {
+		name     string
+		method   string
+		header   map[string]string
+		body     string
+		want     int
+		wantETag string
+	}{
+		{"put without If-Match", http.MethodPut, auth, edit, http.StatusPreconditionRequired, ""},
+		{"put with If-Match *", http.MethodPut, with("If-Match", "*"), edit, http.StatusPreconditionRequired, ""},
+		{"put with a version ahead", http.MethodPut, with("If-Match", `"5"`), edit, http.StatusPreconditionFailed, ""},
+		{"put with a weak tag", http.MethodPut, with("If-Match", `W/"1"`), edit, http.StatusPreconditionFailed, ""},
+		{"put with a malformed tag", http.MethodPut, with("If-Match", `1`), edit, http.StatusBadRequest, ""},
+		{"put with the current version", http.MethodPut, with("If-Match", `"1"`), edit, http.StatusOK, `"2"`},
+		{"put again with the old version", http.MethodPut, with("If-Match", `"1"`), edit, http.StatusPreconditionFailed, ""},
+		{"delete without If-Match", http.MethodDelete, auth, "", http.StatusPreconditionRequired, ""},
+		{"delete with a stale version", http.MethodDelete, with("If-Match", `"1"`), "", http.StatusPreconditionFailed, ""},
+		{"delete with the current version", http.MethodDelete, with("If-Match", `"2"`), "", http.StatusNoContent, ""},
+		{"put after delete", http.MethodPut, with("If-Match", `"3"`), edit, http.StatusNotFound, ""},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			r := catalogCall(t, ts, tt.method, "/v1/facilities/lsw-2", tt.header, tt.body)
+			if r.status != tt.want {
+				t.Fatalf("status %d, want %d; body %s", r.status, tt.want, r.body)
+			}
+			if tt.wantETag != "" && r.header.Get("ETag") != tt.wantETag {
+				t.Errorf("ETag %q, want %q", r.header.Get("ETag"), tt.wantETag)
+			}
+		})
+	}
+
+	r = catalogCall(t, ts, http.MethodGet, "/v1/facilities/lsw-2/versions", nil, "")
+	var h api.FacilityHistory
+	if err := json.Unmarshal(r.body, &h); err != nil || r.status != http.StatusOK {
+		t.Fatalf("versions: %d %s %v", r.status, r.body, err)
+	}
+	if len(h.Versions) != 3 || h.Versions[1].By != "staff" || len(h.Versions[1].Fields) != 1 ||
+		h.Versions[1].Fields[0] != "balances[0].limits.normal" || h.Versions[2].Action != "delete" {
+		t.Errorf("history %+v, want seed, update of balances[0].limits.normal by staff, delete", h.Versions)
+	}
+}
+
+func catalogPtr(v float64) *float64 { return &v }
+
+func TestCatalogCreateAndValidate(t *testing.T) {
+	ts, _ := catalogServer(t, map[string]facilities.Actor{"tok": "staff"})
+	auth := map[string]string{"Authorization": "Bearer tok"}
+
+	r := catalogCall(t, ts, http.MethodPost, "/v1/facilities", auth, facilityJSON(t, "lsw-3", func(f *facilities.Facility) { f.Version = 9 }))
+	if r.status != http.StatusCreated || r.header.Get("Location") != "/v1/facilities/lsw-3" || r.header.Get("ETag") != `"1"` {
+		t.Fatalf("create: %d Location %q ETag %q; %s", r.status, r.header.Get("Location"), r.header.Get("ETag"), r.body)
+	}
+	// Units in strings are accepted and stored in SI.
+	withUnits := strings.Replace(facilityJSON(t, "lsw-4", nil), `"max_dynamic_pressure":4500`, `"max_dynamic_pressure":"45 hPa"`, 1)
+	r = catalogCall(t, ts, http.MethodPost, "/v1/facilities", auth, withUnits)
+	if r.status != http.StatusCreated {
+		t.Fatalf("create with a unit string: %d %s", r.status, r.body)
+	}
+	var f facilities.Facility
+	if err := json.Unmarshal(r.body, &f); err != nil || f.MaxDynamicPressure == nil || *f.MaxDynamicPressure != 4500 {
+		t.Errorf("45 hPa stored as %v Pa (%v), want 4500", f.MaxDynamicPressure, err)
+	}
+
+	tests := []struct {
+		name       string
+		method     string
+		path       string
+		header     map[string]string
+		body       string
+		want       int
+		wantFields []string
+	}{
+		{"create an existing id", http.MethodPost, "/v1/facilities", auth, facilityJSON(t, "lsw-2", nil), http.StatusConflict, nil},
+		{"create with an unknown field", http.MethodPost, "/v1/facilities", auth,
+			strings.Replace(facilityJSON(t, "x-1", nil), `"name"`, `"nmae"`, 1), http.StatusBadRequest, nil},
+		{"create invalid: every field named", http.MethodPost, "/v1/facilities", auth, facilityJSON(t, "Bad Id", func(f *facilities.Facility) {
+			f.TestSection.Width = -1
+			f.Balances[0].SafetyFactor = 0.5
+		}), http.StatusBadRequest, []string{"id", "test_section.width", "balances[0].safety_factor"}},
+		{"update with another id", http.MethodPut, "/v1/facilities/lsw-2", map[string]string{"Authorization": "Bearer tok", "If-Match": `"1"`},
+			facilityJSON(t, "tsw-1", func(f *facilities.Facility) { f.TestSection.Height = 0 }), http.StatusBadRequest, []string{"id", "test_section.height"}},
+		{"update without an id", http.MethodPut, "/v1/facilities/lsw-2", map[string]string{"Authorization": "Bearer tok", "If-Match": `"1"`},
+			strings.Replace(facilityJSON(t, "lsw-2", nil), `"id":"lsw-2",`, ``, 1), http.StatusOK, nil},
+		{"read unknown", http.MethodGet, "/v1/facilities/nope", nil, "", http.StatusNotFound, nil},
+		{"versions unknown", http.MethodGet, "/v1/facilities/nope/versions", nil, "", http.StatusNotFound, nil},
+		{"plan unknown", http.MethodGet, "/v1/plans/nope", nil, "", http.StatusNotFound, nil},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			r := catalogCall(t, ts, tt.method, tt.path, tt.header, tt.body)
+			if r.status != tt.want {
+				t.Fatalf("status %d, want %d; %s", r.status, tt.want, r.body)
+			}
+			if tt.wantFields == nil {
+				return
+			}
+			var p api.Problem
+			if err := json.Unmarshal(r.body, &p); err != nil {
+				t.Fatal(err)
+			}
+			for _, want := range tt.wantFields {
+				found := false
+				for _, e := range p.Errors {
+					found = found || e.Field == want
+				}
+				if !found {
+					t.Errorf("problem names %v, lacks %q", p.Errors, want)
+				}
+			}
+		})
+	}
+
+	r = catalogCall(t, ts, http.MethodGet, "/v1/facilities", nil, "")
+	var list api.FacilityList
+	if err := json.Unmarshal(r.body, &list); err != nil || r.status != http.StatusOK {
+		t.Fatalf("list: %d %v", r.status, err)
+	}
+	if n := len(facilities.Demo()) + 2; len(list.Facilities) != n {
+		t.Errorf("listed %d facilities, want %d", len(list.Facilities), n)
+	}
+}
+
+func TestStoredPlan(t *testing.T) {
+	ts, db := catalogServer(t, nil)
+	body := []byte("{\"id\":\"p-7\",\n \"mismatch\": {\"reynolds_ratio\": 0.2500}}\n")
+	created := time.Date(2031, 5, 6, 7, 8, 9, 0, time.UTC)
+	if _, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "p-7", FacilityID: "tsw-1", FacilityVersion: 1, CreatedAt: created, Body: body}); err != nil {
+		t.Fatal(err)
+	}
+	r := catalogCall(t, ts, http.MethodGet, "/v1/plans/p-7", nil, "")
+	if r.status != http.StatusOK || !bytes.Equal(r.body, body) {
+		t.Fatalf("status %d body %q, want 200 %q byte for byte", r.status, r.body, body)
+	}
+	for k, want := range map[string]string{
+		api.HeaderFacilityID:      "tsw-1",
+		api.HeaderFacilityVersion: "1",
+		"Last-Modified":           "Tue, 06 May 2031 07:08:09 GMT",
+		"Content-Type":            "application/json; charset=utf-8",
+	} {
+		if got := r.header.Get(k); got != want {
+			t.Errorf("%s = %q, want %q", k, got, want)
+		}
+	}
+}
