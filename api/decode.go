@@ -3,6 +3,7 @@ package api
 import (
 	"bytes"
 	"encoding"
+	"encoding/base64"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -72,8 +73,11 @@ func Decode(body []byte, dst any) error {
 	if _, err := dec.Token(); err != io.EOF {
 		return bodyError("there is data after the JSON value")
 	}
+	// The walk fills a copy, so that dst is changed only when all is well.
+	fresh := reflect.New(rv.Elem().Type()).Elem()
+	fresh.Set(rv.Elem())
 	w := walker{}
-	tree = w.walk(tree, rv.Elem().Type(), "", "")
+	w.walk(tree, fresh, "", "")
 	if len(w.errs) > 0 {
 		msg := countFields(len(w.errs) + w.dropped)
 		if w.dropped > 0 {
@@ -81,27 +85,7 @@ func Decode(body []byte, dst any) error {
 		}
 		return &facilities.Error{Code: facilities.CodeInvalid, Message: msg, Fields: w.errs}
 	}
-	raw := body
-	if w.changed {
-		var err error
-		if raw, err = json.Marshal(tree); err != nil {
-			return bodyError(err.Error())
-		}
-	}
-	// The walk has checked every key and type; this strict pass fills dst with
-	// encoding/json's semantics and catches whatever the walk did not foresee.
-	fresh := reflect.New(rv.Elem().Type())
-	fresh.Elem().Set(rv.Elem())
-	sd := json.NewDecoder(bytes.NewReader(raw))
-	sd.DisallowUnknownFields()
-	if err := sd.Decode(fresh.Interface()); err != nil {
-		var ute *json.UnmarshalTypeError
-		if errors.As(err, &ute) {
-			return fieldError(ute.Field, fmt.Sprintf("want %s, got a JSON %s", ute.Type, ute.Value))
-		}
-		return bodyError(err.Error())
-	}
-	rv.Elem().Set(fresh.Elem())
+	rv.Elem().Set(fresh)
 	return nil
 }
 
@@ -124,12 +108,11 @@ func syntaxMessage(err error) string {
 	return "the body is not valid JSON: " + err.Error()
 }
 
-// walker walks a decoded JSON tree alongside a Go type, rewrites unit strings into
-// numbers and collects problems.
+// walker walks a decoded JSON tree alongside a settable Go value, converts unit
+// strings, stores what fits and collects the problems.
 type walker struct {
 	errs    []facilities.FieldError
 	dropped int
-	changed bool
 }
 
 func (w *walker) add(path, msg string) {
@@ -173,152 +156,259 @@ var (
 	textUnmarshaler = reflect.TypeFor[encoding.TextUnmarshaler]()
 )
 
-// walk checks v against t and returns v with unit strings replaced by numbers.
-// unit is the unit tag in force ("" none).
-func (w *walker) walk(v any, t reflect.Type, unit, path string) any {
+// walk stores the JSON value v in dst, a settable value. unit is the unit tag in
+// force ("" none). JSON null sets pointers, slices, maps and interfaces to nil and
+// leaves other kinds as they are.
+func (w *walker) walk(v any, dst reflect.Value, unit, path string) {
+	t := dst.Type()
 	if v == nil {
-		return nil
+		switch t.Kind() {
+		case reflect.Pointer, reflect.Slice, reflect.Map, reflect.Interface:
+			dst.SetZero()
+		}
+		return
 	}
-	for t.Kind() == reflect.Pointer && !t.Implements(jsonUnmarshaler) && !t.Implements(textUnmarshaler) {
-		t = t.Elem()
+	if t.Kind() == reflect.Pointer {
+		// Copy on write: a pointer dst already holds may be shared with the caller's
+		// value, which must not change unless Decode succeeds.
+		p := reflect.New(t.Elem())
+		if !dst.IsNil() {
+			p.Elem().Set(dst.Elem())
+		}
+		dst.Set(p)
+		w.walk(v, p.Elem(), unit, path)
+		return
 	}
-	pt := t // the pointer type whose methods decode t
-	if t.Kind() != reflect.Pointer {
-		pt = reflect.PointerTo(t)
-	}
-	switch {
-	case pt.Implements(jsonUnmarshaler):
+	if pt := reflect.PointerTo(t); pt.Implements(jsonUnmarshaler) {
 		raw, err := json.Marshal(v)
 		if err == nil {
-			err = reflect.New(pt.Elem()).Interface().(json.Unmarshaler).UnmarshalJSON(raw)
+			err = dst.Addr().Interface().(json.Unmarshaler).UnmarshalJSON(raw)
 		}
 		if err != nil {
 			w.add(path, err.Error())
 		}
-		return v
-	case pt.Implements(textUnmarshaler):
+		return
+	} else if pt.Implements(textUnmarshaler) {
 		s, ok := v.(string)
 		if !ok {
 			w.add(path, "want a string, got "+jsonKind(v))
-			return v
+			return
 		}
-		if err := reflect.New(pt.Elem()).Interface().(encoding.TextUnmarshaler).UnmarshalText([]byte(s)); err != nil {
+		if err := dst.Addr().Interface().(encoding.TextUnmarshaler).UnmarshalText([]byte(s)); err != nil {
 			w.add(path, err.Error())
 		}
-		return v
+		return
 	}
 	switch t.Kind() {
 	case reflect.Bool:
-		if _, ok := v.(bool); !ok {
+		b, ok := v.(bool)
+		if !ok {
 			w.add(path, "want true or false, got "+jsonKind(v))
+			return
 		}
+		dst.SetBool(b)
 	case reflect.String:
-		if _, ok := v.(string); !ok {
+		s, ok := v.(string)
+		if !ok {
 			w.add(path, "want a string, got "+jsonKind(v))
+			return
 		}
+		dst.SetString(s)
 	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64:
 		n, ok := v.(json.Number)
 		if !ok {
 			w.add(path, "want an integer, got "+jsonKind(v))
-			break
+			return
 		}
-		if _, err := strconv.ParseInt(string(n), 10, t.Bits()); err != nil {
+		i, err := strconv.ParseInt(string(n), 10, t.Bits())
+		if err != nil {
 			w.add(path, fmt.Sprintf("want an integer from %d to %d, got %s", int64(-1)<<(t.Bits()-1), uint64(1)<<(t.Bits()-1)-1, n))
+			return
 		}
+		dst.SetInt(i)
 	case reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64, reflect.Uintptr:
 		n, ok := v.(json.Number)
 		if !ok {
 			w.add(path, "want an integer, got "+jsonKind(v))
-			break
+			return
 		}
-		if _, err := strconv.ParseUint(string(n), 10, t.Bits()); err != nil {
+		u, err := strconv.ParseUint(string(n), 10, t.Bits())
+		if err != nil {
 			w.add(path, fmt.Sprintf("want an integer from 0 to %d, got %s", uint64(math.MaxUint64)>>(64-t.Bits()), n))
+			return
 		}
+		dst.SetUint(u)
 	case reflect.Float32, reflect.Float64:
-		return w.float(v, t.Bits(), unit, path)
+		if f, ok := w.float(v, t.Bits(), unit, path); ok {
+			dst.SetFloat(f)
+		}
 	case reflect.Struct:
-		return w.object(v, t, unit, path)
-	case reflect.Slice, reflect.Array:
-		if t.Kind() == reflect.Slice && t.Elem().Kind() == reflect.Uint8 {
-			if _, ok := v.(string); !ok {
+		w.object(v, dst, unit, path)
+	case reflect.Slice:
+		if t.Elem().Kind() == reflect.Uint8 {
+			s, ok := v.(string)
+			if !ok {
 				w.add(path, "want a base64 string, got "+jsonKind(v))
+				return
 			}
-			break
+			b, err := base64.StdEncoding.DecodeString(s)
+			if err != nil {
+				w.add(path, "want a base64 string: "+err.Error())
+				return
+			}
+			dst.SetBytes(b)
+			return
 		}
 		a, ok := v.([]any)
 		if !ok {
 			w.add(path, "want an array, got "+jsonKind(v))
-			break
+			return
 		}
-		if t.Kind() == reflect.Array && len(a) > t.Len() {
-			w.add(path, fmt.Sprintf("want at most %d elements, got %d", t.Len(), len(a)))
-			break
-		}
+		s := reflect.MakeSlice(t, len(a), len(a))
 		for i, e := range a {
-			a[i] = w.walk(e, t.Elem(), unit, joinIndex(path, i))
+			w.walk(e, s.Index(i), unit, joinIndex(path, i))
+		}
+		dst.Set(s)
+	case reflect.Array:
+		a, ok := v.([]any)
+		if !ok {
+			w.add(path, "want an array, got "+jsonKind(v))
+			return
+		}
+		if len(a) > t.Len() {
+			w.add(path, fmt.Sprintf("want at most %d elements, got %d", t.Len(), len(a)))
+			return
+		}
+		dst.SetZero()
+		for i, e := range a {
+			w.walk(e, dst.Index(i), unit, joinIndex(path, i))
 		}
 	case reflect.Map:
-		m, ok := v.(map[string]any)
-		if !ok {
-			w.add(path, "want an object, got "+jsonKind(v))
-			break
-		}
-		keys := make([]string, 0, len(m))
-		for k := range m {
-			keys = append(keys, k)
-		}
-		sort.Strings(keys)
-		for _, k := range keys {
-			if !w.mapKey(k, t.Key(), joinKey(path, k)) {
-				continue
-			}
-			m[k] = w.walk(m[k], t.Elem(), unit, joinKey(path, k))
-		}
+		w.mapValue(v, dst, unit, path)
 	case reflect.Interface:
-		// Any JSON value; encoding/json checks what remains.
+		if t.NumMethod() > 0 {
+			w.add(path, "this field cannot be set from JSON")
+			return
+		}
+		if x, ok := w.plain(v, path); ok {
+			dst.Set(reflect.ValueOf(&x).Elem())
+		}
 	default:
 		w.add(path, "this field cannot be set from JSON")
 	}
-	return v
 }
 
-// mapKey checks that k can be a key of type kt.
-func (w *walker) mapKey(k string, kt reflect.Type, path string) bool {
+// mapValue stores a JSON object in a map, into a copy of the map dst holds.
+func (w *walker) mapValue(v any, dst reflect.Value, unit, path string) {
+	m, ok := v.(map[string]any)
+	if !ok {
+		w.add(path, "want an object, got "+jsonKind(v))
+		return
+	}
+	t := dst.Type()
+	nm := reflect.MakeMapWithSize(t, dst.Len()+len(m))
+	if !dst.IsNil() {
+		iter := dst.MapRange()
+		for iter.Next() {
+			nm.SetMapIndex(iter.Key(), iter.Value())
+		}
+	}
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	for _, k := range keys {
+		kp := joinKey(path, k)
+		key, ok := w.mapKey(k, t.Key(), kp)
+		if !ok {
+			continue
+		}
+		elem := reflect.New(t.Elem()).Elem()
+		w.walk(m[k], elem, unit, kp)
+		nm.SetMapIndex(key, elem)
+	}
+	dst.Set(nm)
+}
+
+// mapKey converts an object key to a map key of type kt.
+func (w *walker) mapKey(k string, kt reflect.Type, path string) (reflect.Value, bool) {
+	key := reflect.New(kt).Elem()
 	var err error
 	switch {
 	case reflect.PointerTo(kt).Implements(textUnmarshaler):
-		err = reflect.New(kt).Interface().(encoding.TextUnmarshaler).UnmarshalText([]byte(k))
+		err = key.Addr().Interface().(encoding.TextUnmarshaler).UnmarshalText([]byte(k))
 	case kt.Kind() == reflect.String:
+		key.SetString(k)
 	case kt.Kind() >= reflect.Int && kt.Kind() <= reflect.Int64:
-		_, err = strconv.ParseInt(k, 10, kt.Bits())
+		var i int64
+		if i, err = strconv.ParseInt(k, 10, kt.Bits()); err == nil {
+			key.SetInt(i)
+		}
 	case kt.Kind() >= reflect.Uint && kt.Kind() <= reflect.Uintptr:
-		_, err = strconv.ParseUint(k, 10, kt.Bits())
+		var u uint64
+		if u, err = strconv.ParseUint(k, 10, kt.Bits()); err == nil {
+			key.SetUint(u)
+		}
 	default:
 		err = errors.New("this key type cannot be set from JSON")
 	}
 	if err != nil {
 		w.add(path, "bad key: "+err.Error())
-		return false
+		return key, false
 	}
-	return true
+	return key, true
 }
 
-// float checks a number, or converts a unit string, for a float field of the given
-// size in bits.
-func (w *walker) float(v any, bits int, unit, path string) any {
+// plain converts a decoded JSON value to what encoding/json stores in an any:
+// float64 numbers, map[string]any, []any, string, bool.
+func (w *walker) plain(v any, path string) (any, bool) {
 	switch x := v.(type) {
 	case json.Number:
-		if _, err := strconv.ParseFloat(string(x), bits); err != nil {
+		f, err := strconv.ParseFloat(string(x), 64)
+		if err != nil {
 			w.add(path, fmt.Sprintf("the number %s is out of range", x))
+			return nil, false
 		}
-		return v
+		return f, true
+	case map[string]any:
+		ok := true
+		for k, e := range x {
+			var eok bool
+			x[k], eok = w.plain(e, joinKey(path, k))
+			ok = ok && eok
+		}
+		return x, ok
+	case []any:
+		ok := true
+		for i, e := range x {
+			var eok bool
+			x[i], eok = w.plain(e, joinIndex(path, i))
+			ok = ok && eok
+		}
+		return x, ok
+	}
+	return v, true
+}
+
+// float reads a number, or converts a unit string, for a float field of the given
+// size in bits.
+func (w *walker) float(v any, bits int, unit, path string) (float64, bool) {
+	switch x := v.(type) {
+	case json.Number:
+		f, err := strconv.ParseFloat(string(x), bits)
+		if err != nil {
+			w.add(path, fmt.Sprintf("the number %s is out of range", x))
+			return 0, false
+		}
+		return f, true
 	case string:
 		var f float64
 		var err error
 		switch unit {
 		case "", UnitNone:
 			w.add(path, "want a number, got a string")
-			return v
+			return 0, false
 		case UnitScale:
 			f, err = parseScale(x)
 		default:
@@ -326,14 +416,13 @@ func (w *walker) float(v any, bits int, unit, path string) any {
 		}
 		if err != nil {
 			w.add(path, err.Error())
-			return v
+			return 0, false
 		}
 		if math.IsNaN(f) || math.IsInf(f, 0) || (bits == 32 && math.Abs(f) > math.MaxFloat32) {
 			w.add(path, fmt.Sprintf("%q is out of range", x))
-			return v
+			return 0, false
 		}
-		w.changed = true
-		return json.Number(strconv.FormatFloat(f, 'g', -1, bits))
+		return f, true
 	}
 	switch unit {
 	case "", UnitNone:
@@ -343,7 +432,7 @@ func (w *walker) float(v any, bits int, unit, path string) any {
 	default:
 		w.add(path, fmt.Sprintf("want a number (in %s) or a string with a unit, got %s", unit, jsonKind(v)))
 	}
-	return v
+	return 0, false
 }
 
 // parseScale reads a model scale "a:b" (a/b, both positive and finite).
@@ -359,14 +448,14 @@ func parseScale(s string) (float64, error) {
 	return 0, fmt.Errorf(`scale %q: want a number or a ratio of two positive numbers such as "1:16"`, s)
 }
 
-// object checks a JSON object against struct type t.
-func (w *walker) object(v any, t reflect.Type, unit, path string) any {
+// object stores a JSON object in struct dst.
+func (w *walker) object(v any, dst reflect.Value, unit, path string) {
 	m, ok := v.(map[string]any)
 	if !ok {
 		w.add(path, "want an object, got "+jsonKind(v))
-		return v
+		return
 	}
-	fields := structFields(t)
+	fields := structFields(dst.Type())
 	seen := 0
 	for _, f := range fields.list {
 		fv, ok := m[f.name]
@@ -378,7 +467,12 @@ func (w *walker) object(v any, t reflect.Type, unit, path string) any {
 		if !f.tagged {
 			u = unit
 		}
-		m[f.name] = w.walk(fv, f.typ, u, joinKey(path, f.name))
+		fp := joinKey(path, f.name)
+		if fd, ok := fieldAlloc(dst, f.index); ok && fd.CanSet() {
+			w.walk(fv, fd, u, fp)
+		} else {
+			w.add(fp, "this field cannot be set from JSON")
+		}
 	}
 	if seen < len(m) {
 		var unknown []string
@@ -392,13 +486,33 @@ func (w *walker) object(v any, t reflect.Type, unit, path string) any {
 			w.add(joinKey(path, k), "unknown field")
 		}
 	}
-	return v
+}
+
+// fieldAlloc returns the field of v at index, allocating embedded struct pointers on
+// the way (copying any they already point to); false when an embedded pointer is to
+// an unexported type and cannot be allocated.
+func fieldAlloc(v reflect.Value, index []int) (reflect.Value, bool) {
+	for i, x := range index {
+		if i > 0 && v.Kind() == reflect.Pointer {
+			if !v.CanSet() {
+				return v, false
+			}
+			p := reflect.New(v.Type().Elem())
+			if !v.IsNil() {
+				p.Elem().Set(v.Elem())
+			}
+			v.Set(p)
+			v = p.Elem()
+		}
+		v = v.Field(x)
+	}
+	return v, true
 }
 
 // field is one JSON-visible field of a struct, with embedded structs flattened.
 type field struct {
 	name   string
-	typ    reflect.Type
+	index  []int // as reflect.Value.FieldByIndex takes it
 	unit   string
 	tagged bool
 }
@@ -417,19 +531,23 @@ func structFields(t reflect.Type) *fieldSet {
 		return fs.(*fieldSet)
 	}
 	fs := &fieldSet{byName: map[string]int{}}
-	collectFields(t, fs, map[reflect.Type]bool{})
+	collectFields(t, nil, fs, map[reflect.Type]bool{})
 	actual, _ := fieldCache.LoadOrStore(t, fs)
 	return actual.(*fieldSet)
 }
 
 // collectFields adds t's fields to fs; fields of embedded structs follow the
 // outer ones and never shadow them.
-func collectFields(t reflect.Type, fs *fieldSet, visiting map[reflect.Type]bool) {
+func collectFields(t reflect.Type, prefix []int, fs *fieldSet, visiting map[reflect.Type]bool) {
 	if visiting[t] {
 		return
 	}
 	visiting[t] = true
-	var embedded []reflect.Type
+	type embed struct {
+		t     reflect.Type
+		index []int
+	}
+	var embedded []embed
 	for i := 0; i < t.NumField(); i++ {
 		sf := t.Field(i)
 		tag, hasTag := sf.Tag.Lookup("json")
@@ -437,13 +555,14 @@ func collectFields(t reflect.Type, fs *fieldSet, visiting map[reflect.Type]bool)
 		if name == "-" && tag == "-" {
 			continue
 		}
+		index := append(append([]int(nil), prefix...), i)
 		if sf.Anonymous && name == "" {
 			et := sf.Type
 			if et.Kind() == reflect.Pointer {
 				et = et.Elem()
 			}
 			if et.Kind() == reflect.Struct {
-				embedded = append(embedded, et)
+				embedded = append(embedded, embed{et, index})
 				continue
 			}
 		}
@@ -458,10 +577,10 @@ func collectFields(t reflect.Type, fs *fieldSet, visiting map[reflect.Type]bool)
 		}
 		unit, tagged := sf.Tag.Lookup("unit")
 		fs.byName[name] = len(fs.list)
-		fs.list = append(fs.list, field{name: name, typ: sf.Type, unit: unit, tagged: tagged})
+		fs.list = append(fs.list, field{name: name, index: index, unit: unit, tagged: tagged})
 	}
-	for _, et := range embedded {
-		collectFields(et, fs, visiting)
+	for _, e := range embedded {
+		collectFields(e.t, e.index, fs, visiting)
 	}
 }
 

@@ -1,0 +1,47 @@
+package api_test
+
+import (
+	"os"
+	"testing"
+
+	"scalematch/api"
+)
+
+// BenchmarkDecode decodes the load test's plan request (the Orrin J20 in tsw-1, a
+// 21-point α sweep, unit strings in four fields) and, for comparison, the same
+// request with every value already SI, which takes the decoder's fast path.
+func BenchmarkDecode(b *testing.B) {
+	withUnits, err := os.ReadFile("testdata/load/plan-orrin-j20-tsw-1.json")
+	if err != nil {
+		b.Fatal(err)
+	}
+	siOnly := []byte(`{"flight":{"altitude":12500,"mach":0.8},
+		"article":{"reference_length":2.6,"reference_area":50,"span":19,"length":20,"frontal_area":5.5,"wetted_area":290,
+		"aero":{"lift_slope":5,"zero_lift_alpha":-1.5,"cl_max":1.3,"cd_min":0.021,"cl_at_cd_min":0.15,"induced_drag_factor":0.055,"cm_zero":0.02,"cm_slope":-1.1}},
+		"facility_id":"tsw-1","model":{"scale_min":0.016666666666666666,"scale_max":0.1},
+		"installation":{"balance_id":"int-b1","balance_offset":{"x":0,"z":0},"model_mass":20,"cg_offset":{"x":-0.02,"z":0}},
+		"alpha":{"from":-4,"to":16,"step":1},"objective":{"priority":["mach","reynolds"],"mach_tolerance":0.005}}`)
+	for _, bc := range []struct {
+		name string
+		body []byte
+	}{
+		{"plan/units", withUnits},
+		{"plan/si", siOnly},
+	} {
+		b.Run(bc.name, func(b *testing.B) {
+			var req api.PlanRequest
+			if err := api.Decode(bc.body, &req); err != nil {
+				b.Fatal(err)
+			}
+			b.ReportAllocs()
+			b.SetBytes(int64(len(bc.body)))
+			b.ResetTimer()
+			for b.Loop() {
+				var req api.PlanRequest
+				if err := api.Decode(bc.body, &req); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
