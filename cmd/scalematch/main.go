@@ -38,6 +38,7 @@ func newRootCmd() *cobra.Command {
 	// Each command lives in its own file and is added here, one line each.
 	root.AddCommand(
 		newAtmosphereCmd(),
+		newServeCmd(),
 	// commands
 	)
 	return root
