@@ -135,88 +135,6 @@ func planID(kind string, req any, f *facilities.Facility) (string, error) {
 // isFinite reports whether v is neither NaN nor infinite.
 func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-// balanceLimit is the planner's load limit for one balance, or for the most
-// permissive of a facility's balances when the request names none: the largest
-// free-stream dynamic pressure at which every point of the test matrix stays within
-// the balance's ratings over its safety factor (facilities.Ratings.MaxDynamicPressure),
-// with the model, its wall corrections and its weight at the candidate scale.
-type balanceLimit struct {
-	f        *facilities.Facility
-	article  *similarity.Article
-	install  facilities.Installation
-	points   []facilities.Point
-	ratings  []facilities.Ratings
-	balances []string
-}
-
-func newBalanceLimit(f *facilities.Facility, a *similarity.Article, in facilities.Installation, pts []facilities.Point) (*balanceLimit, error) {
-	bl := &balanceLimit{f: f, article: a, install: in, points: pts}
-	for i := range f.Balances {
-		b := &f.Balances[i]
-		if in.BalanceID != "" && b.ID != in.BalanceID {
-			continue
-		}
-		rs, err := b.Ratings()
-		if err != nil {
-			return nil, prefixInvalid(fmt.Sprintf("facility.balances[%d]", i), "balance", err)
-		}
-		bl.ratings = append(bl.ratings, rs)
-		bl.balances = append(bl.balances, b.ID)
-	}
-	return bl, nil
-}
-
-// prefixInvalid rewrites the field paths of a CodeInvalid error that start with
-// old to start with prefix instead.
-func prefixInvalid(prefix, old string, err error) error {
-	de, ok := err.(*facilities.Error)
-	if !ok || de.Code != facilities.CodeInvalid {
-		return err
-	}
-	cp := *de
-	cp.Fields = make([]facilities.FieldError, len(de.Fields))
-	for i, f := range de.Fields {
-		cp.Fields[i] = facilities.FieldError{Field: prefix + strings.TrimPrefix(f.Field, old), Message: f.Message}
-	}
-	return &cp
-}
-
-// Name is the constraint's name in the binding list.
-func (bl *balanceLimit) Name() string { return facilities.ConstraintBalance }
-
-// MaxDynamicPressure implements similarity.LoadLimit.
-func (bl *balanceLimit) MaxDynamicPressure(scale float64, st facilities.State) float64 {
-	lc := bl.loadCase(scale, st.Mach)
-	best := 0.0
-	for i := range bl.ratings {
-		q := math.Inf(1)
-		for j := range lc.Points {
-			perQ, w := lc.Affine(j)
-			if qj, _ := bl.ratings[i].MaxDynamicPressure(&perQ, &w); qj < q {
-				q = qj
-			}
-		}
-		best = math.Max(best, q)
-	}
-	return best
-}
-
-// loadCase is the load case of a model of the given scale at free-stream Mach
-// number mach, wall corrections applied to a copy of the points.
-func (bl *balanceLimit) loadCase(scale, mach float64) *facilities.LoadCase {
-	a := bl.article
-	s2 := scale * scale
-	w := facilities.NewWalls(bl.f, a.FrontalArea*s2, a.ReferenceArea*s2, mach)
-	pts := append([]facilities.Point(nil), bl.points...)
-	w.Apply(pts)
-	return &facilities.LoadCase{
-		ReferenceArea:   a.ReferenceArea * s2,
-		ReferenceLength: a.ReferenceLength * scale,
-		Installation:    bl.install,
-		Points:          pts,
-	}
-}
-
 // checkArticle adds the problems of the article's geometry and estimate to fe.
 func checkArticle(a *similarity.Article, fe *fieldErrors) {
 	pos := func(field string, v float64, unit string) {
@@ -305,12 +223,12 @@ func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, er
 		return nil, err
 	}
 	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective}
-	var bl *balanceLimit
 	if len(f.Balances) > 0 {
-		if bl, err = newBalanceLimit(f, &req.Article, req.Installation, mx.Points); err != nil {
+		ll, err := similarity.NewLoadLimit(&req.Article, f, req.Installation, mx)
+		if err != nil {
 			return nil, err
 		}
-		prob.LoadLimit = bl
+		prob.LoadLimit = ll
 	}
 	res, err := similarity.Plan(prob, nil)
 	if err != nil {
