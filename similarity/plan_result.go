@@ -63,7 +63,7 @@ func (sv *solver) result(x cand) *Result {
 // bindings lists the limits the plan sits on.
 func (sv *solver) bindings(x cand, st facilities.State) []Binding {
 	f := sv.f
-	bs := []Binding{}
+	bs := make([]Binding, 0, 8)
 	on := func(name string, v, lim float64) {
 		if math.Abs(v-lim) <= bindTol*math.Abs(lim) {
 			bs = append(bs, Binding{Constraint: name, Value: v, Limit: lim})

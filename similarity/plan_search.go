@@ -3,7 +3,8 @@ package similarity
 import (
 	"fmt"
 	"math"
-	"sort"
+	"slices"
+	"strings"
 
 	"scalematch/facilities"
 )
@@ -66,7 +67,7 @@ func (sv *solver) rangeS(c *uctx) cand {
 		// The knee: the load limit's q ceiling falls to the q of the best setting
 		// within the facility's own limits.
 		qNeed := c.nat.q
-		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, c.stB) - qNeed }, sv.sLo, sv.sHi, false)
+		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, c.stRef) - qNeed }, sv.sLo, sv.sHi, false)
 	}
 	xk := sv.at(c, sk)
 	if !xk.ok {
@@ -98,7 +99,7 @@ func (sv *solver) rangeS(c *uctx) cand {
 // shrink returns a smaller model when x overshoots the flight's Reynolds number even
 // at the lowest Re/m: the scale that meets it exactly.
 func (sv *solver) shrink(c *uctx, x cand) cand {
-	if !x.ok || x.r > x.rlo || x.rlo*x.s*sv.L <= sv.fl.Reynolds {
+	if !x.ok || x.rlo < 0 || x.r > x.rlo || x.rlo*x.s*sv.L <= sv.fl.Reynolds {
 		return x
 	}
 	s := math.Max(sv.fl.Reynolds/(sv.L*x.rlo), sv.sLo)
@@ -133,8 +134,20 @@ func (sv *solver) golden(eval func(float64) cand, a, b float64, n int, tol float
 		}
 	}
 	best = ks[ibest]
-	lo, hi := xs[max(ibest-1, 0)], xs[min(ibest+1, n-1)]
 	eps := tol * math.Max(math.Max(math.Abs(a), math.Abs(b)), b-a)
+	// At an end of the interval, one step inside tells: for a unimodal key, no
+	// improvement there means the end is the optimum.
+	switch ibest {
+	case 0:
+		if e := eval(a + eps); !e.k.less(best.k) {
+			return best
+		}
+	case n - 1:
+		if e := eval(b - eps); !e.k.less(best.k) {
+			return best
+		}
+	}
+	lo, hi := xs[max(ibest-1, 0)], xs[min(ibest+1, n-1)]
 	x1 := hi - invPhi*(hi-lo)
 	x2 := lo + invPhi*(hi-lo)
 	f1, f2 := eval(x1), eval(x2)
@@ -355,5 +368,5 @@ func (sv *solver) gain(name string, best cand) (float64, int, error) {
 
 // sortBindings orders a binding list by constraint name for stable output.
 func sortBindings(bs []Binding) {
-	sort.Slice(bs, func(i, j int) bool { return bs[i].Constraint < bs[j].Constraint })
+	slices.SortFunc(bs, func(a, b Binding) int { return strings.Compare(a.Constraint, b.Constraint) })
 }

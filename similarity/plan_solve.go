@@ -65,13 +65,15 @@ type uctx struct {
 	fail string // the limit that makes this Mach number infeasible
 	u    float64
 
-	ta, tb float64 // usable stagnation-temperature range, K
-	pa     float64 // lowest stagnation pressure, Pa
-	pTop   float64 // highest usable p0 before any q ceiling, Pa
-	capTop string  // the limit that sets pTop
-	k      float64 // dynamic pressure per Pa of p0 (ideal gas) or q itself (water)
-	stB    facilities.State
-	rlo    float64 // lowest Re/m
+	ta, tb float64          // usable stagnation-temperature range, K
+	pa     float64          // lowest stagnation pressure, Pa
+	pTop   float64          // highest usable p0 before any q ceiling, Pa
+	capTop string           // the limit that sets pTop
+	k      float64          // dynamic pressure per Pa of p0 (ideal gas) or q itself (water)
+	stRef  facilities.State // a usable state at (pa, tRef): its speed scales as √T0
+	tRef   float64
+	rlo    float64 // lowest Re/m, at (pa, tb), once rloOK
+	rloOK  bool
 	ra     float64 // Re/m at (pa, ta)
 	linear bool    // q and Re/m ∝ p0 along the T0 floor (ideal gas, no condensation)
 	cond   bool    // condensation sets the T0 floor somewhere in [pa, pTop]
@@ -167,8 +169,14 @@ func newSolver(p *Problem) (*solver, error) {
 
 // checkInput validates the parts of the problem the planner reads.
 func (sv *solver) checkInput() error {
-	if err := sv.f.Validate(); err != nil {
-		return err
+	if !plannable(sv.f) {
+		// Validate names every bad field; it is only called when something the
+		// planner relies on is off, since it is the costlier check.
+		if err := sv.f.Validate(); err != nil {
+			return err
+		}
+		return facilities.Invalid("invalid facility", []facilities.FieldError{{Field: "facility",
+			Message: "the facility lacks a usable test section, pressure or temperature range"}})
 	}
 	var fe []facilities.FieldError
 	pos := func(field string, v float64, unit string) {
@@ -191,6 +199,34 @@ func (sv *solver) checkInput() error {
 		return err
 	}
 	return sv.p.Objective.Validate()
+}
+
+// plannable reports whether the facility has what the planner divides by and
+// searches over: a test section of positive size, positive ordered stagnation
+// ranges, ordered Mach and speed ranges, positive optional limits, and a known
+// medium with positive constants.
+func plannable(f *facilities.Facility) bool {
+	pos := func(v float64) bool { return v > 0 && !math.IsInf(v, 1) }
+	rng := func(r *facilities.Range, strict bool) bool {
+		return r == nil || (r.Min >= 0 && r.Min <= r.Max && !math.IsInf(r.Max, 1) && (!strict || r.Min > 0))
+	}
+	opt := func(v *float64) bool { return v == nil || pos(*v) }
+	m := f.Medium
+	switch m.Kind {
+	case facilities.MediumAir, facilities.MediumNitrogen, facilities.MediumWater:
+	case facilities.MediumGas:
+		if g := m.Gas; g == nil || !pos(g.MolarMass) || !pos(g.Gamma) || g.Gamma <= 1 || !pos(g.ViscosityReference) ||
+			!pos(g.TemperatureReference) || !(g.SutherlandConstant >= 0) {
+			return false
+		}
+	default:
+		return false
+	}
+	ts := f.TestSection
+	return pos(ts.Width) && pos(ts.Height) && pos(ts.CrossSection()) &&
+		rng(&f.StagnationPressure, true) && rng(&f.StagnationTemperature, true) &&
+		rng(f.Mach, false) && rng(f.Speed, false) && (f.Mach != nil || f.Speed != nil) &&
+		opt(f.MaxDynamicPressure) && opt(f.MaxReynoldsPerMeter) && opt(f.MaxSpanFraction) && opt(f.MaxBlockage)
 }
 
 // setObjective turns the request's objective into index form and notes what it
@@ -418,6 +454,9 @@ func (sv *solver) prepare(u float64) uctx {
 	if sv.liquid {
 		return sv.prepareWater(u)
 	}
+	if sv.f.Medium.Kind != facilities.MediumNitrogen {
+		return sv.prepareIdeal(u)
+	}
 	f := sv.f
 	c := uctx{u: u}
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
@@ -453,9 +492,9 @@ func (sv *solver) prepare(u float64) uctx {
 			}
 		}
 	}
-	c.ta, c.tb, c.stB = ta, tb, stB
+	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stB, tb
 	c.k = stB.DynamicPressure / pa
-	c.rlo = stB.ReynoldsPerMeter
+	c.rlo, c.rloOK = stB.ReynoldsPerMeter, true
 	if c.rlo > sv.remax*(1+1e-12) {
 		c.fail = facilities.ConstraintReynoldsUnit
 		return c
@@ -492,6 +531,73 @@ func (sv *solver) prepare(u float64) uctx {
 	c.nat = sv.top(&c, sv.qmax, facilities.ConstraintDynamic)
 	c.ok = true
 	return c
+}
+
+// prepareIdeal is prepare for an ideal gas (Z = 1): at a fixed Mach number q and
+// Re/m are proportional to p0, q does not depend on T0, and Re/m is highest at the
+// lowest T0, so one state at (pa, ta) gives the rest in closed form. The state at
+// (pa, tb), the lowest Re/m, is computed only when needed (lowR).
+func (sv *solver) prepareIdeal(u float64) uctx {
+	f := sv.f
+	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
+	pa, pb := f.StagnationPressure.Min, f.StagnationPressure.Max
+	c := uctx{u: u, pa: pa}
+	stA, err := sv.state(u, pa, ta)
+	if err != nil {
+		c.fail = facilities.ConstraintMachMax
+		return c
+	}
+	if f.Speed != nil {
+		// At a fixed Mach number V ∝ √T0 (a = √(γRT), T = T0/(1+(γ−1)/2·M²)).
+		va := stA.Speed
+		tlo := ta * sq(f.Speed.Min/va)
+		thi := ta * sq(f.Speed.Max/va)
+		if tlo > tb*(1+1e-12) {
+			c.fail = facilities.ConstraintSpeedMin
+			return c
+		}
+		if thi < ta*(1-1e-12) {
+			c.fail = facilities.ConstraintSpeedMax
+			return c
+		}
+		tb = math.Min(tb, thi)
+		if tlo > ta {
+			ta = tlo
+			if stA, err = sv.state(u, pa, ta); err != nil {
+				c.fail = facilities.ConstraintSpeedMin
+				return c
+			}
+		}
+	}
+	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stA, ta
+	c.k = stA.DynamicPressure / pa
+	if stA.DynamicPressure > sv.qmax*(1+1e-12) {
+		c.fail = facilities.ConstraintDynamic
+		return c
+	}
+	c.ra = stA.ReynoldsPerMeter
+	if !math.IsInf(sv.remax, 1) && sv.lowR(&c) > sv.remax*(1+1e-12) {
+		c.fail = facilities.ConstraintReynoldsUnit
+		return c
+	}
+	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
+	c.linear = true
+	c.nat = sv.top(&c, sv.qmax, facilities.ConstraintDynamic)
+	c.ok = true
+	return c
+}
+
+// lowR returns the lowest Re/m at c's Mach number, at (pa, tb).
+func (sv *solver) lowR(c *uctx) float64 {
+	if !c.rloOK {
+		c.rlo, c.rloOK = c.ra, true
+		if c.tb != c.ta {
+			if st, err := sv.state(c.u, c.pa, c.tb); err == nil {
+				c.rlo = st.ReynoldsPerMeter
+			}
+		}
+	}
+	return c.rlo
 }
 
 // qcurve returns the dynamic pressure at p0 on the T0 floor.
@@ -534,12 +640,16 @@ func (sv *solver) top(c *uctx, qc float64, name string) top {
 	if !t.edge {
 		t.t = sv.tfloor(c, t.p)
 	}
-	st, err := sv.state(c.u, t.p, t.t)
-	if err != nil {
-		t.r, t.q = 0, math.Inf(1)
-		return t
+	if c.linear {
+		t.r, t.q = c.ra*t.p/c.pa, c.k*t.p
+	} else {
+		st, err := sv.state(c.u, t.p, t.t)
+		if err != nil {
+			t.r, t.q = 0, math.Inf(1)
+			return t
+		}
+		t.r, t.q = st.ReynoldsPerMeter, st.DynamicPressure
 	}
-	t.r, t.q = st.ReynoldsPerMeter, st.DynamicPressure
 	if t.r > sv.remax {
 		// The Re/m ceiling: the lowest p0 (then T0) that reaches it.
 		t.p, t.t = sv.solveR(c, t, sv.remax)
@@ -614,7 +724,8 @@ func (sv *solver) prepareWater(u float64) uctx {
 		c.fail = facilities.ConstraintSpeedMax
 		return c
 	}
-	c.ta, c.tb, c.stB = ta, tb, stB
+	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stB, tb
+	c.rloOK = true
 	c.k = stB.DynamicPressure
 	if stB.DynamicPressure > sv.qmax*(1+1e-12) {
 		c.fail = facilities.ConstraintDynamic
@@ -698,16 +809,21 @@ func (sv *solver) atTarget(c *uctx, s, target float64) cand {
 	}
 	tp := c.nat
 	if sv.load != nil {
-		if qb := sv.loadQ(s, c.stB); qb < tp.q {
-			if qb < c.stB.DynamicPressure*(1-1e-12) {
+		if qb := sv.loadQ(s, c.stRef); qb < tp.q {
+			if qb < c.k*c.pa*(1-1e-12) {
 				x.fail, x.k = sv.loadName, worst
 				return x
 			}
 			tp = sv.top(c, qb, sv.loadName)
 		}
 	}
-	x.rhi, x.rlo, x.capHi = tp.r, c.rlo, tp.cap
-	r := math.Min(math.Max(target, c.rlo), tp.r)
+	x.rhi, x.rlo, x.capHi = tp.r, -1, tp.cap
+	r := target
+	if target < c.ra || !c.linear {
+		x.rlo = sv.lowR(c)
+		r = math.Max(r, x.rlo)
+	}
+	r = math.Min(r, tp.r)
 	x.r = r
 	if r >= tp.r {
 		x.p0, x.t0, x.q = tp.p, tp.t, tp.q
@@ -715,7 +831,7 @@ func (sv *solver) atTarget(c *uctx, s, target float64) cand {
 		x.p0, x.t0 = sv.solveR(c, tp, r)
 		x.q = sv.qAt(c, x.p0, x.t0)
 	}
-	x.v = c.stB.Speed * math.Sqrt(x.t0/c.tb)
+	x.v = c.stRef.Speed * math.Sqrt(x.t0/c.tRef)
 	x.ok = true
 	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v)
 	return x
@@ -729,7 +845,7 @@ func (sv *solver) atWater(c *uctx, s, target float64) cand {
 		tHi = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.u, c.pa, t) }, c.ta, c.tb, false)
 	}
 	if sv.load != nil {
-		qb := sv.loadQ(s, c.stB)
+		qb := sv.loadQ(s, c.stRef)
 		qt := sv.waterQ(c.u, c.pa, tHi)
 		if qb < qt*(1-1e-12) {
 			x.fail, x.k = sv.loadName, worst

@@ -1,0 +1,62 @@
+package similarity_test
+
+import (
+	"testing"
+
+	"scalematch/similarity"
+)
+
+// benchProblem is the Orrin J20 at cruise in tsw-1, with an optional synthetic
+// balance limit (q·s² ≤ 60 N-equivalent, which binds).
+func benchProblem(b *testing.B, load similarity.LoadLimit) *similarity.Problem {
+	fs := planFlight(b, &orrinJ20, 12500, 0.8, 0)
+	return &similarity.Problem{Flight: fs, Article: &orrinJ20, Facility: planDemo(b, "tsw-1"), LoadLimit: load}
+}
+
+// BenchmarkPlan times a full plan (search, binding gains, 41-point trade curve).
+// Goal: under 100 µs and 50 allocations a plan.
+func BenchmarkPlan(b *testing.B) {
+	cases := []struct {
+		name string
+		load similarity.LoadLimit
+		set  *similarity.Settings
+	}{
+		{"tsw-1", nil, nil},
+		{"tsw-1/balance", quadLoad{K: 1, Limit: 60}, nil},
+		{"tsw-1/search-only", nil, &similarity.Settings{TradePoints: -1, NoGains: true}},
+	}
+	for _, c := range cases {
+		b.Run(c.name, func(b *testing.B) {
+			p := benchProblem(b, c.load)
+			b.ReportAllocs()
+			b.ResetTimer()
+			for i := 0; i < b.N; i++ {
+				if _, err := similarity.Plan(p, c.set); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkReference times the brute-force reference on the same problem at a grid
+// that matches the planner's search to 0.1 % in Reynolds number (checked once
+// before timing), for comparison with BenchmarkPlan/tsw-1/search-only.
+func BenchmarkReference(b *testing.B) {
+	p := benchProblem(b, nil)
+	sc := &scenario{name: "bench", p: *p}
+	res, err := similarity.Plan(p, &similarity.Settings{TradePoints: -1, NoGains: true})
+	if err != nil {
+		b.Fatal(err)
+	}
+	ref := reference(sc, 25, 13, 7, 14)
+	pk := objectiveKey(sc, res.Test.Reynolds, res.Test.Mach, res.Test.Froude)
+	if d := ref.key.levels[1] - pk.levels[1]; ref.key.levels[0] > 1e-9 || d > 1e-3 {
+		b.Fatalf("reference grid too coarse: %.3g worse in ln Re", d)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		reference(sc, 25, 13, 7, 14)
+	}
+}
