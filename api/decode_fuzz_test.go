@@ -1,0 +1,100 @@
+package api_test
+
+import (
+	"errors"
+	"math"
+	"os"
+	"reflect"
+	"testing"
+
+	"scalematch/api"
+	"scalematch/facilities"
+)
+
+// finiteFloats reports the path of the first non-finite float in v, or "".
+func finiteFloats(v reflect.Value, path string) string {
+	switch v.Kind() {
+	case reflect.Float32, reflect.Float64:
+		if math.IsNaN(v.Float()) || math.IsInf(v.Float(), 0) {
+			return path
+		}
+	case reflect.Pointer, reflect.Interface:
+		if !v.IsNil() {
+			return finiteFloats(v.Elem(), path)
+		}
+	case reflect.Struct:
+		for i := 0; i < v.NumField(); i++ {
+			if v.Type().Field(i).IsExported() {
+				if p := finiteFloats(v.Field(i), path+"."+v.Type().Field(i).Name); p != "" {
+					return p
+				}
+			}
+		}
+	case reflect.Slice, reflect.Array:
+		for i := 0; i < v.Len(); i++ {
+			if p := finiteFloats(v.Index(i), path+"[]"); p != "" {
+				return p
+			}
+		}
+	case reflect.Map:
+		iter := v.MapRange()
+		for iter.Next() {
+			if p := finiteFloats(iter.Value(), path+"{}"); p != "" {
+				return p
+			}
+		}
+	}
+	return ""
+}
+
+// FuzzDecode decodes random bodies into the plan request and a facility. Decode
+// must not panic; it either succeeds with every float finite, or fails with a
+// *facilities.Error of CodeInvalid naming at least one field, leaves dst alone and
+// says the same thing when asked twice.
+func FuzzDecode(f *testing.F) {
+	if b, err := os.ReadFile("testdata/load/plan-orrin-j20-tsw-1.json"); err == nil {
+		f.Add(b)
+	}
+	for _, s := range []string{
+		`{"flight":{"altitude":"35000 ft","mach":0.78},"model":{"scale":"1:16"}}`,
+		`{"facility":{"id":"x","medium":{"gas":{"gamma":1.4}},"stagnation_pressure":{"min":"1 bar","max":"2 bar"},"balances":[{"id":"b","limits":{"normal":"400 lbf"}}]}}`,
+		`{"flight":{"delta_isa":"18 degF"},"alpha":{"from":"-0.1 rad","to":16,"step":1}}`,
+		`{"model":{"scales":["1:0",-1,"x:y",1e400]}}`,
+		`{"article":{"aero":{"cl_maks":1,"table":[{"alpha":1,"cl":"2"}]}}}`,
+		`{"objective":{"weights":{"reynolds":1,"mach":"2 m"}}}`,
+		`{} {}`, `[]`, `null`, `"x"`, ``,
+	} {
+		f.Add([]byte(s))
+	}
+	f.Fuzz(func(t *testing.T, body []byte) {
+		var req api.PlanRequest
+		req.FacilityID = "before"
+		err := api.Decode(body, &req)
+		if err == nil {
+			if p := finiteFloats(reflect.ValueOf(req), "req"); p != "" {
+				t.Fatalf("non-finite float at %s from %q", p, body)
+			}
+			return
+		}
+		var de *facilities.Error
+		if !errors.As(err, &de) || de.Code != facilities.CodeInvalid || len(de.Fields) == 0 {
+			t.Fatalf("error %T %v is not an invalid-input error with fields", err, err)
+		}
+		for _, fe := range de.Fields {
+			if fe.Message == "" {
+				t.Fatalf("empty message at %q", fe.Field)
+			}
+		}
+		if req.FacilityID != "before" {
+			t.Fatalf("dst changed on error: facility_id %q", req.FacilityID)
+		}
+		var again api.PlanRequest
+		err2 := api.Decode(body, &again)
+		if err2 == nil || err2.Error() != err.Error() {
+			t.Fatalf("second decode says %v, first said %v", err2, err)
+		}
+
+		var fac facilities.Facility
+		_ = api.Decode(body, &fac) // must not panic
+	})
+}

@@ -1,0 +1,240 @@
+// Command loadtest measures how many plans per second a scalematch server answers,
+// against how many health checks per second the same server answers in the same
+// run, so the planner's cost shows apart from the HTTP stack's.
+//
+// Run it against a server on this machine (loopback addresses only):
+//
+//	scalematch serve --addr 127.0.0.1:8080 &
+//	go run ./api/loadtest -url http://127.0.0.1:8080 -duration 20s -concurrency 4
+//
+// or let it start its own server in-process, on a temporary SQLite store seeded
+// with the demo facilities:
+//
+//	go run ./api/loadtest -serve -duration 20s
+//
+// The plan request is the Orrin J20 in tsw-1 with a 21-point α sweep
+// (api/testdata/load/plan-orrin-j20-tsw-1.json; -plan names another). Half of the
+// duration goes to POST /v1/plans, half to GET /healthz. It prints requests per
+// second, latency percentiles and the count of answers that were not 200.
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"log/slog"
+	"net"
+	"net/http"
+	"net/url"
+	"os"
+	"slices"
+	"sync"
+	"time"
+
+	"github.com/prometheus/client_golang/prometheus"
+
+	"scalematch/api"
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
+)
+
+func main() {
+	if err := run(os.Args[1:], os.Stdout); err != nil {
+		fmt.Fprintln(os.Stderr, "loadtest:", err)
+		os.Exit(1)
+	}
+}
+
+// maxDuration bounds a run.
+const maxDuration = 10 * time.Minute
+
+func run(args []string, out io.Writer) error {
+	fs := flag.NewFlagSet("loadtest", flag.ContinueOnError)
+	base := fs.String("url", "http://127.0.0.1:8080", "base URL of the server (loopback only)")
+	serve := fs.Bool("serve", false, "start a server in-process on 127.0.0.1 instead of using -url")
+	duration := fs.Duration("duration", 20*time.Second, "total run time, split evenly between plans and health checks")
+	concurrency := fs.Int("concurrency", 4, "requests in flight at once")
+	planFile := fs.String("plan", "api/testdata/load/plan-orrin-j20-tsw-1.json", "plan request body")
+	if err := fs.Parse(args); err != nil {
+		return err
+	}
+	if *duration <= 0 || *duration > maxDuration {
+		return fmt.Errorf("-duration %v: want more than 0 and at most %v", *duration, maxDuration)
+	}
+	if *concurrency < 1 || *concurrency > 256 {
+		return fmt.Errorf("-concurrency %d: want 1 to 256", *concurrency)
+	}
+	plan, err := os.ReadFile(*planFile)
+	if err != nil {
+		return err
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	if *serve {
+		addr, stop, err := startServer(ctx)
+		if err != nil {
+			return err
+		}
+		defer stop()
+		*base = "http://" + addr
+	}
+	if err := checkLoopback(*base); err != nil {
+		return err
+	}
+	client := &http.Client{
+		Timeout:   30 * time.Second,
+		Transport: &http.Transport{MaxIdleConnsPerHost: *concurrency, MaxConnsPerHost: *concurrency},
+	}
+	// One plan first, so that a wrong request or facility fails at once.
+	if status, body, err := once(client, *base, "POST", "/v1/plans", plan); err != nil {
+		return err
+	} else if status != http.StatusOK {
+		return fmt.Errorf("POST /v1/plans answered %d: %s", status, body)
+	}
+	half := *duration / 2
+	fmt.Fprintf(out, "server %s, %d in flight, %v each\n", *base, *concurrency, half)
+	for _, p := range []struct {
+		name, method, path string
+		body               []byte
+	}{
+		{"plans   POST /v1/plans", "POST", "/v1/plans", plan},
+		{"health  GET /healthz  ", "GET", "/healthz", nil},
+	} {
+		r := hammer(client, *base, p.method, p.path, p.body, *concurrency, half)
+		fmt.Fprintf(out, "%s  %8.1f /s  %7d requests  %d not 200  latency p50 %v  p90 %v  p99 %v\n",
+			p.name, float64(r.n)/r.elapsed.Seconds(), r.n, r.failed,
+			r.percentile(0.50), r.percentile(0.90), r.percentile(0.99))
+	}
+	return nil
+}
+
+// checkLoopback refuses a base URL whose host is not a loopback address.
+func checkLoopback(base string) error {
+	u, err := url.Parse(base)
+	if err != nil {
+		return err
+	}
+	if u.Scheme != "http" && u.Scheme != "https" {
+		return fmt.Errorf("-url %q: want http:// or https://", base)
+	}
+	ips, err := net.LookupIP(u.Hostname())
+	if err != nil {
+		return err
+	}
+	for _, ip := range ips {
+		if !ip.IsLoopback() {
+			return fmt.Errorf("-url %q: %s is not a loopback address; this tool loads local servers only", base, ip)
+		}
+	}
+	return nil
+}
+
+// startServer serves the API on 127.0.0.1 with a temporary SQLite store holding the
+// demo facilities; stop shuts it down and removes the store.
+func startServer(ctx context.Context) (addr string, stop func(), err error) {
+	dir, err := os.MkdirTemp("", "scalematch-load-")
+	if err != nil {
+		return "", nil, err
+	}
+	db, err := sqlite.Open(ctx, sqlite.Path(dir))
+	if err != nil {
+		os.RemoveAll(dir)
+		return "", nil, err
+	}
+	cleanup := func() { db.Close(); os.RemoveAll(dir) }
+	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
+		cleanup()
+		return "", nil, err
+	}
+	srv, err := api.New(api.Config{Catalog: db, Registry: prometheus.NewRegistry(),
+		Logger: slog.New(slog.NewJSONHandler(io.Discard, nil))})
+	if err != nil {
+		cleanup()
+		return "", nil, err
+	}
+	ln, err := net.Listen("tcp", "127.0.0.1:0")
+	if err != nil {
+		cleanup()
+		return "", nil, err
+	}
+	sctx, cancel := context.WithCancel(ctx)
+	done := make(chan error, 1)
+	go func() { done <- srv.Serve(sctx, ln) }()
+	return ln.Addr().String(), func() { cancel(); <-done; cleanup() }, nil
+}
+
+func once(c *http.Client, base, method, path string, body []byte) (int, []byte, error) {
+	var r io.Reader
+	if body != nil {
+		r = bytes.NewReader(body)
+	}
+	req, err := http.NewRequest(method, base+path, r)
+	if err != nil {
+		return 0, nil, err
+	}
+	if body != nil {
+		req.Header.Set("Content-Type", "application/json")
+	}
+	resp, err := c.Do(req)
+	if err != nil {
+		return 0, nil, err
+	}
+	defer resp.Body.Close()
+	b, err := io.ReadAll(resp.Body)
+	return resp.StatusCode, b, err
+}
+
+type result struct {
+	n, failed int
+	elapsed   time.Duration
+	latencies []time.Duration // sorted
+}
+
+// percentile returns the latency below which the fraction q of requests finished.
+func (r result) percentile(q float64) time.Duration {
+	if len(r.latencies) == 0 {
+		return 0
+	}
+	i := int(q * float64(len(r.latencies)-1))
+	return r.latencies[i].Round(time.Microsecond)
+}
+
+// hammer sends the request from `workers` goroutines for d.
+func hammer(c *http.Client, base, method, path string, body []byte, workers int, d time.Duration) result {
+	var mu sync.Mutex
+	var res result
+	var wg sync.WaitGroup
+	start := time.Now()
+	deadline := start.Add(d)
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var lat []time.Duration
+			failed := 0
+			for time.Now().Before(deadline) {
+				t := time.Now()
+				status, _, err := once(c, base, method, path, body)
+				lat = append(lat, time.Since(t))
+				if err != nil || status != http.StatusOK {
+					failed++
+					if errors.Is(err, context.Canceled) {
+						break
+					}
+				}
+			}
+			mu.Lock()
+			res.latencies = append(res.latencies, lat...)
+			res.failed += failed
+			mu.Unlock()
+		}()
+	}
+	wg.Wait()
+	res.elapsed = time.Since(start)
+	res.n = len(res.latencies)
+	slices.Sort(res.latencies)
+	return res
+}

@@ -1,0 +1,70 @@
+package main
+
+import (
+	"bytes"
+	"regexp"
+	"strings"
+	"testing"
+)
+
+func TestCheckLoopback(t *testing.T) {
+	tests := []struct {
+		url string
+		ok  bool
+	}{
+		{"http://127.0.0.1:8080", true},
+		{"http://[::1]:8080", true},
+		{"http://localhost:8080", true},
+		{"http://192.0.2.10:8080", false}, // TEST-NET-1 (RFC 5737): never loopback
+		{"ftp://127.0.0.1", false},
+	}
+	for _, tc := range tests {
+		t.Run(tc.url, func(t *testing.T) {
+			if err := checkLoopback(tc.url); (err == nil) != tc.ok {
+				t.Errorf("checkLoopback(%q) = %v, want ok %v", tc.url, err, tc.ok)
+			}
+		})
+	}
+}
+
+func TestRunInProcess(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a short load test")
+	}
+	var out bytes.Buffer
+	err := run([]string{"-serve", "-duration", "600ms", "-concurrency", "2", "-plan", "../testdata/load/plan-orrin-j20-tsw-1.json"}, &out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{"plans", "health"} {
+		re := regexp.MustCompile(name + `.*?(\d+\.\d) /s .* (\d+) not 200`)
+		m := re.FindStringSubmatch(out.String())
+		if m == nil {
+			t.Fatalf("no %s line in:\n%s", name, out.String())
+		}
+		if m[1] == "0.0" || m[2] != "0" {
+			t.Errorf("%s: rate %s /s, %s failures; want a rate and none", name, m[1], m[2])
+		}
+	}
+	if strings.Count(out.String(), "\n") != 3 {
+		t.Errorf("want 3 lines:\n%s", out.String())
+	}
+}
+
+func TestRunRefusesBadFlags(t *testing.T) {
+	tests := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"-duration", "0s"}, "-duration"},
+		{[]string{"-duration", "1h"}, "-duration"},
+		{[]string{"-concurrency", "0"}, "-concurrency"},
+		{[]string{"-url", "http://192.0.2.10:8080", "-duration", "1s"}, "not a loopback address"},
+	}
+	for _, tc := range tests {
+		args := append(tc.args, "-plan", "../testdata/load/plan-orrin-j20-tsw-1.json")
+		if err := run(args, &bytes.Buffer{}); err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("run(%v) = %v, want an error about %s", args, err, tc.want)
+		}
+	}
+}
