@@ -39,6 +39,7 @@ func newRootCmd() *cobra.Command {
 	root.AddCommand(
 		newAtmosphereCmd(),
 		newServeCmd(),
+		newFacilitiesCmd(),
 	// commands
 	)
 	return root

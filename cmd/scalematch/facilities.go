@@ -1,0 +1,216 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/spf13/cobra"
+
+	"scalematch/api"
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
+)
+
+// facilitiesOptions are the facilities command's settings.
+type facilitiesOptions struct {
+	data     string
+	jsonOut  bool
+	database string // SCALEMATCH_DATABASE_URL
+}
+
+func newFacilitiesCmd() *cobra.Command {
+	var o facilitiesOptions
+	cmd := &cobra.Command{
+		Use:   "facilities [list | show ID]",
+		Short: "List the facility catalog or show one facility",
+		Long: `List the facility catalog (the default) or show one facility with its balances.
+
+The catalog is the store under --data when one exists there (or PostgreSQL when
+SCALEMATCH_DATABASE_URL is set), else the built-in demo catalog. Tables are in SI
+units (m, m/s, Pa, K, N, N·m); --json prints exactly what GET /v1/facilities or
+GET /v1/facilities/{id} would return.`,
+		Args: cobra.MaximumNArgs(2),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if err := flagsFromEnv(cmd.Flags(), os.LookupEnv); err != nil {
+				return err
+			}
+			o.database = os.Getenv(envDatabaseURL)
+			return runFacilities(cmd.Context(), o, args, cmd.OutOrStdout())
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&o.data, "data", "./scalematch-data", "directory of the SQLite catalog")
+	f.BoolVar(&o.jsonOut, "json", false, "print JSON as the API returns it")
+	return cmd
+}
+
+// demoCatalog answers the facilities command from the built-in demo facilities.
+type demoCatalog struct{}
+
+func (demoCatalog) Facilities(context.Context) ([]facilities.Facility, error) {
+	return facilities.Demo(), nil
+}
+
+func (demoCatalog) Facility(_ context.Context, id string) (facilities.Facility, error) {
+	if f, ok := facilities.DemoFacility(id); ok {
+		return f, nil
+	}
+	return facilities.Facility{}, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no facility %q in the demo catalog", id)}
+}
+
+// facilityReader is the part of a catalog the facilities command reads.
+type facilityReader interface {
+	Facilities(ctx context.Context) ([]facilities.Facility, error)
+	Facility(ctx context.Context, id string) (facilities.Facility, error)
+}
+
+// openReader opens the store the command reads and says which it is; close is nil
+// for the demo catalog.
+func openReader(ctx context.Context, o facilitiesOptions) (facilityReader, string, func() error, error) {
+	if o.database != "" {
+		db, where, err := openStore(ctx, o.database, o.data)
+		if err != nil {
+			return nil, "", nil, err
+		}
+		return db, where, db.Close, nil
+	}
+	path := sqlite.Path(o.data)
+	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
+		return demoCatalog{}, "demo catalog", nil, nil
+	} else if err != nil {
+		return nil, "", nil, err
+	}
+	db, err := sqlite.Open(ctx, path)
+	if err != nil {
+		return nil, "", nil, err
+	}
+	return db, "sqlite " + path, db.Close, nil
+}
+
+func runFacilities(ctx context.Context, o facilitiesOptions, args []string, w io.Writer) (err error) {
+	action := "list"
+	if len(args) > 0 {
+		action = args[0]
+	}
+	switch {
+	case action == "list" && len(args) <= 1:
+	case action == "show" && len(args) == 2:
+	default:
+		return fmt.Errorf("facilities: want \"list\" or \"show ID\", got %q", strings.Join(args, " "))
+	}
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	cat, where, closeFn, err := openReader(ctx, o)
+	if err != nil {
+		return err
+	}
+	if closeFn != nil {
+		defer func() { err = errors.Join(err, closeFn()) }()
+	}
+	if action == "list" {
+		fs, err := cat.Facilities(ctx)
+		if err != nil {
+			return err
+		}
+		if o.jsonOut {
+			return writeJSON(w, api.FacilityList{Facilities: fs})
+		}
+		return listTable(w, fs, where)
+	}
+	f, err := cat.Facility(ctx, args[1])
+	if err != nil {
+		return err
+	}
+	if o.jsonOut {
+		return writeJSON(w, f)
+	}
+	return showTable(w, f, where)
+}
+
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
+}
+
+// rangeText writes a range as "min–max" with the given scale and precision, or
+// one value when fixed; "-" when absent.
+func rangeText(r *facilities.Range, scale float64, prec int) string {
+	if r == nil {
+		return "-"
+	}
+	lo := strconv.FormatFloat(r.Min*scale, 'f', prec, 64)
+	if r.Fixed() {
+		return lo
+	}
+	return lo + "–" + strconv.FormatFloat(r.Max*scale, 'f', prec, 64)
+}
+
+func optText(v *float64, scale float64, prec int) string {
+	if v == nil {
+		return "-"
+	}
+	return strconv.FormatFloat(*v*scale, 'f', prec, 64)
+}
+
+func listTable(w io.Writer, fs []facilities.Facility, where string) error {
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintf(tw, "# %s: %d facilities\n", where, len(fs))
+	fmt.Fprintln(tw, "ID\tVERSION\tMEDIUM\tSECTION W×H (m)\tWALLS\tMACH\tSPEED (m/s)\tp0 (kPa)\tT0 (K)\tq max (kPa)\tBALANCES")
+	for _, f := range fs {
+		var ids []string
+		for _, b := range f.Balances {
+			ids = append(ids, b.ID)
+		}
+		fmt.Fprintf(tw, "%s\t%d\t%s\t%.2f × %.2f\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
+			f.ID, f.Version, f.Medium.Kind, f.TestSection.Width, f.TestSection.Height, f.TestSection.Walls,
+			rangeText(f.Mach, 1, 2), rangeText(f.Speed, 1, 1), rangeText(&f.StagnationPressure, 1e-3, 1),
+			rangeText(&f.StagnationTemperature, 1, 0), optText(f.MaxDynamicPressure, 1e-3, 1), strings.Join(ids, ", "))
+	}
+	return tw.Flush()
+}
+
+func showTable(w io.Writer, f facilities.Facility, where string) error {
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintf(tw, "# %s\n", where)
+	rows := [][2]string{
+		{"id", f.ID},
+		{"version", strconv.Itoa(f.Version)},
+		{"name", f.Name},
+		{"medium", f.Medium.Kind},
+		{"test section (m)", fmt.Sprintf("%.3g wide × %.3g high × %.3g long, %s walls, %.4g m²",
+			f.TestSection.Width, f.TestSection.Height, f.TestSection.Length, f.TestSection.Walls, f.TestSection.CrossSection())},
+		{"Mach", rangeText(f.Mach, 1, 3)},
+		{"speed (m/s)", rangeText(f.Speed, 1, 2)},
+		{"stagnation pressure (Pa)", rangeText(&f.StagnationPressure, 1, 0)},
+		{"stagnation temperature (K)", rangeText(&f.StagnationTemperature, 1, 2)},
+		{"max dynamic pressure (Pa)", optText(f.MaxDynamicPressure, 1, 0)},
+		{"max Reynolds number per metre (1/m)", optText(f.MaxReynoldsPerMeter, 1, 0)},
+		{"max span fraction", optText(f.MaxSpanFraction, 1, 3)},
+		{"max blockage", optText(f.MaxBlockage, 1, 3)},
+	}
+	for _, r := range rows {
+		fmt.Fprintf(tw, "%s\t%s\n", r[0], r[1])
+	}
+	fmt.Fprintln(tw)
+	fmt.Fprintln(tw, "BALANCE\tNORMAL (N)\tAXIAL (N)\tSIDE (N)\tROLL (N·m)\tPITCH (N·m)\tYAW (N·m)\tSAFETY FACTOR\tCOMBINED ROWS")
+	for _, b := range f.Balances {
+		l := b.Limits
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%.2f\t%d\n", b.ID,
+			optText(l.Normal, 1, 0), optText(l.Axial, 1, 0), optText(l.Side, 1, 0),
+			optText(l.RollingMoment, 1, 0), optText(l.PitchingMoment, 1, 0), optText(l.YawingMoment, 1, 0),
+			b.SafetyFactor, len(b.Combined))
+	}
+	fmt.Fprintln(tw)
+	fmt.Fprintln(tw, "Ratings as recorded in the catalog; the facility's approved limits and procedures govern.")
+	return tw.Flush()
+}
