@@ -96,13 +96,13 @@ func machFromImpact(x, gamma float64) float64 {
 		m2 := m * m
 		slope := 2 * gamma * (2*m2 - 1) / (m * (2*gamma*m2 - gamma + 1))
 		next := m - g/slope
-		if next <= lo || next >= hi {
-			next = 0.5 * (lo + hi)
-		}
 		// Newton converges quadratically: once a step is below 1e-13, what error
 		// remains comes from rounding in the logarithms.
 		if math.Abs(next-m) <= 1e-13*m {
 			return next
+		}
+		if next <= lo || next >= hi {
+			next = 0.5 * (lo + hi)
 		}
 		m = next
 	}
