@@ -1,0 +1,74 @@
+package sqlite_test
+
+import (
+	"context"
+	"fmt"
+	"path/filepath"
+	"testing"
+
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
+)
+
+func benchDB(b *testing.B) *sqlite.DB {
+	b.Helper()
+	db, err := sqlite.Open(context.Background(), filepath.Join(b.TempDir(), sqlite.FileName))
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Cleanup(func() { db.Close() })
+	if _, err := facilities.SeedDemo(context.Background(), db, true); err != nil {
+		b.Fatal(err)
+	}
+	return db
+}
+
+// BenchmarkFacility is the catalog's share of planning against a stored facility:
+// reading its current version (goal: well under 1 ms).
+func BenchmarkFacility(b *testing.B) {
+	db := benchDB(b)
+	ctx := context.Background()
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := db.Facility(ctx, "tsw-1"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkCreateFacility measures durable creates (synchronous=FULL: each one
+// waits for its fsync).
+func BenchmarkCreateFacility(b *testing.B) {
+	db := benchDB(b)
+	ctx := context.Background()
+	f, _ := facilities.DemoFacility("tsw-1")
+	b.ReportAllocs()
+	b.ResetTimer()
+	i := 0
+	for b.Loop() {
+		f.ID = fmt.Sprintf("bench-%d", i)
+		i++
+		if _, err := db.CreateFacility(ctx, f, "bench"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkUpdateFacility measures durable updates with If-Match and change diffs.
+func BenchmarkUpdateFacility(b *testing.B) {
+	db := benchDB(b)
+	ctx := context.Background()
+	f, err := db.Facility(ctx, "tsw-1")
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		f.Operations.SecondsPerPoint++
+		if f, err = db.UpdateFacility(ctx, f, f.Version, "bench"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
