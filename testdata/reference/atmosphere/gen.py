@@ -126,7 +126,7 @@ def check():
                     failed = True
                     break
             else:
-                print("%s: %d lines of data agree" % (name, len(new)))
+                print("%s: column header and %d rows agree" % (name, len(new) - 1))
     return 1 if failed else 0
 
 
