@@ -40,6 +40,9 @@ func newRootCmd() *cobra.Command {
 		newAtmosphereCmd(),
 		newServeCmd(),
 		newFacilitiesCmd(),
+		newPlanCmd(),
+		newLoadsCmd(),
+		newGroupsCmd(),
 	// commands
 	)
 	return root

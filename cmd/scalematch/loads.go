@@ -1,0 +1,119 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"text/tabwriter"
+
+	"github.com/spf13/cobra"
+
+	"scalematch/api"
+	"scalematch/facilities"
+)
+
+func newLoadsCmd() *cobra.Command {
+	var o computeOptions
+	cmd := &cobra.Command{
+		Use:   "loads FILE|-",
+		Short: "Check balance loads at given test conditions (the JSON of POST /v1/loads)",
+		Long: `Check the balance loads of a model of given scale at given test settings: read a
+load request, the JSON body POST /v1/loads takes, from FILE or, for "-", from
+standard input. Nothing is optimised.
+
+facility_id resolves against the service's SQLite catalog under --data when that
+directory holds one, else against the built-in demo facilities.
+
+By default a table: the model, the test state, the facility limits the settings
+break, the wall corrections, and for the named balance (or every balance of the
+facility when installation.balance_id is absent) the loads at every angle of
+attack with their utilisation. --units us adds U.S. customary units beside the SI
+ones. --json prints exactly the body POST /v1/loads returns.
+
+Loads and limits are estimates only: the facility's approved limits, procedures
+and licensed engineering judgement govern.`,
+		Example: `  scalematch loads check.json
+  scalematch loads --json - < check.json`,
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			body, err := o.start(cmd, args[0])
+			if err != nil {
+				return err
+			}
+			var req api.LoadsRequest
+			if err := api.Decode(body, &req); err != nil {
+				return explain(err)
+			}
+			ctx := cmd.Context()
+			p, closeCatalog, err := o.planner(ctx)
+			if err != nil {
+				return err
+			}
+			resp, err := p.Loads(ctx, &req)
+			if cerr := closeCatalog(); err == nil && cerr != nil {
+				return cerr
+			}
+			if err != nil {
+				return explain(err)
+			}
+			if o.json {
+				return writeAPIJSON(o.stdout, resp)
+			}
+			return writeLoadCheck(o.stdout, resp, o.units == "us")
+		},
+	}
+	o.bind(cmd, true, "POST /v1/loads")
+	return cmd
+}
+
+// writeLoadCheck prints the answer of a load check as a table.
+func writeLoadCheck(w io.Writer, r *api.LoadsResponse, us bool) error {
+	u := units{us}
+	fmt.Fprintf(w, "Load check: facility %s\n", r.FacilityID)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	row := func(name, format string, args ...any) {
+		fmt.Fprintf(tw, "  %s\t"+format+"\n", append([]any{name}, args...)...)
+	}
+
+	m := r.Model
+	section(w, "Model")
+	row("scale", "1:%.4g (%.5g)", 1/m.Scale, m.Scale)
+	row("reference length", "%s", u.q(m.ReferenceLength, "m", 4))
+	row("reference area", "%s", u.q(m.ReferenceArea, "m²", 4))
+	row("span", "%s", u.q(m.Span, "m", 4))
+	row("blockage", "%.3g %% of the test section", 100*m.Blockage)
+	tw.Flush()
+
+	section(w, "Test")
+	writeTest(row, u, r.Test.State, r.Test.Reynolds)
+	tw.Flush()
+
+	if r.Flight != nil && r.Mismatch != nil {
+		section(w, "Against the flight")
+		row("flight Mach number", "%.4f", r.Flight.Mach)
+		row("flight Reynolds number", "%.4g", r.Flight.Reynolds)
+		row("Re test / Re flight", "%.4g", r.Mismatch.ReynoldsRatio)
+		row("M test - M flight", "%+.4f", r.Mismatch.MachDifference)
+		tw.Flush()
+	}
+
+	section(w, "Facility limits broken")
+	if len(r.Violations) == 0 {
+		fmt.Fprintln(w, "  none")
+	}
+	for _, v := range r.Violations {
+		fmt.Fprintf(w, "  - %s: %s\n", v.Constraint, v.Message)
+	}
+
+	writeCorrections(w, row, r.Corrections)
+	tw.Flush()
+
+	reports := r.Loads.All
+	if r.Loads.One != nil {
+		reports = []facilities.LoadReport{*r.Loads.One}
+	}
+	for _, rep := range reports {
+		writeLoads(w, u, rep)
+	}
+	writeNotes(w, r.Warnings, r.Cautions)
+	return nil
+}

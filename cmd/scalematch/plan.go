@@ -1,0 +1,480 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/spf13/cobra"
+
+	"scalematch/api"
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
+)
+
+// knotMS is the international knot in m/s (1852 m per hour, NIST SP 811).
+const knotMS = 1852.0 / 3600
+
+// computeOptions are the flags shared by plan, loads and groups.
+type computeOptions struct {
+	data   string
+	json   bool
+	units  string
+	stdin  io.Reader
+	stdout io.Writer
+}
+
+// bind adds the shared flags to cmd; withData adds --data (groups needs no catalog).
+func (o *computeOptions) bind(cmd *cobra.Command, withData bool, jsonOf string) {
+	f := cmd.Flags()
+	if withData {
+		f.StringVar(&o.data, "data", "./scalematch-data", "directory of the service's SQLite catalog; facility ids resolve against it when it holds one, else against the demo catalog")
+	}
+	f.BoolVar(&o.json, "json", false, "print exactly the JSON body that "+jsonOf+" returns")
+	f.StringVar(&o.units, "units", "si", "units of the table: si, or us to add U.S. customary units beside them")
+}
+
+// start checks the flags, reads SCALEMATCH_<FLAG> for flags not given, and reads
+// the request body from the file named by arg, or standard input for "-".
+func (o *computeOptions) start(cmd *cobra.Command, arg string) ([]byte, error) {
+	if err := flagsFromEnv(cmd.Flags(), os.LookupEnv); err != nil {
+		return nil, err
+	}
+	if o.units != "si" && o.units != "us" {
+		return nil, fmt.Errorf("--units %q: want si or us", o.units)
+	}
+	o.stdin, o.stdout = cmd.InOrStdin(), cmd.OutOrStdout()
+	var r io.Reader
+	if arg == "-" {
+		r = o.stdin
+	} else {
+		f, err := os.Open(arg)
+		if err != nil {
+			return nil, err
+		}
+		defer f.Close()
+		r = f
+	}
+	// The service reads at most api.BodyLimit bytes; so does the command line, so
+	// that both accept the same requests.
+	b, err := io.ReadAll(io.LimitReader(r, api.BodyLimit+1))
+	if err != nil {
+		return nil, err
+	}
+	if len(b) > api.BodyLimit {
+		return nil, fmt.Errorf("%s: the request is larger than %d bytes, the service's limit", arg, api.BodyLimit)
+	}
+	return b, nil
+}
+
+// planner returns the composition the service uses, over the SQLite catalog under
+// o.data when that directory holds one, else over the demo catalog, and a function
+// that closes the catalog. The command line never writes to the catalog: a plan
+// already stored under its id is answered with the stored bytes, as the service
+// would, and a new plan is not stored.
+func (o *computeOptions) planner(ctx context.Context) (*api.Planner, func() error, error) {
+	none := func() error { return nil }
+	if o.data == "" {
+		return &api.Planner{}, none, nil
+	}
+	path := sqlite.Path(o.data)
+	if _, err := os.Stat(path); errors.Is(err, os.ErrNotExist) {
+		return &api.Planner{}, none, nil
+	} else if err != nil {
+		return nil, none, err
+	}
+	db, err := sqlite.Open(ctx, path)
+	if err != nil {
+		return nil, none, fmt.Errorf("opening the catalog %s: %w", path, err)
+	}
+	return &api.Planner{Catalog: readOnlyPlans{db}}, db.Close, nil
+}
+
+// readOnlyPlans is a catalog whose SavePlan stores nothing: it returns the record
+// already stored under the id when there is one, else the record as given.
+type readOnlyPlans struct{ facilities.Catalog }
+
+// SavePlan returns the stored record with p's id, or p when none is stored.
+func (c readOnlyPlans) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities.PlanRecord, error) {
+	rec, err := c.Catalog.Plan(ctx, p.ID)
+	if facilities.ErrorCode(err) == facilities.CodeNotFound {
+		return p, nil
+	}
+	return rec, err
+}
+
+// problemError is a domain error written for a person: its message, then each bad
+// field by JSON path and each conflicting limit on a line of its own.
+type problemError struct{ e *facilities.Error }
+
+var problemTitles = map[facilities.Code]string{
+	facilities.CodeInvalid:       "invalid input",
+	facilities.CodeNotFound:      "not found",
+	facilities.CodeUnprocessable: "no feasible plan",
+}
+
+func (p problemError) Error() string {
+	var b strings.Builder
+	title := problemTitles[p.e.Code]
+	if title == "" {
+		title = string(p.e.Code)
+	}
+	b.WriteString(title)
+	if p.e.Message != "" {
+		b.WriteString(": ")
+		b.WriteString(p.e.Message)
+	}
+	for _, f := range p.e.Fields {
+		field := f.Field
+		if field == "" {
+			field = "(body)"
+		}
+		fmt.Fprintf(&b, "\n  %s: %s", field, f.Message)
+	}
+	if len(p.e.Limits) > 0 {
+		fmt.Fprintf(&b, "\n  conflicting limits: %s", strings.Join(p.e.Limits, ", "))
+	}
+	return b.String()
+}
+
+func (p problemError) Unwrap() error { return p.e }
+
+// explain returns err, a domain error in its chain written out field by field.
+func explain(err error) error {
+	var de *facilities.Error
+	if errors.As(err, &de) {
+		return problemError{de}
+	}
+	return err
+}
+
+func newPlanCmd() *cobra.Command {
+	var o computeOptions
+	cmd := &cobra.Command{
+		Use:   "plan FILE|-",
+		Short: "Plan a scale-model test from a plan request (the JSON of POST /v1/plans)",
+		Long: `Plan a scale-model test: read a plan request, the JSON body POST /v1/plans takes
+(numbers in SI or strings with units such as "35000 ft", scales such as "1:16"),
+from FILE or, for "-", from standard input, and print the plan.
+
+facility_id resolves against the service's SQLite catalog under --data when that
+directory holds one, else against the built-in demo facilities. Nothing is
+written to the catalog.
+
+By default a table: flight, model, test condition, mismatch, the binding limits
+with the Reynolds gain of one more per cent of each, wall corrections, the balance
+loads at every angle of attack with their utilisation, the Reynolds effects on
+drag, the schedule, warnings and cautions. --units us adds U.S. customary units
+beside the SI ones. --json prints exactly the body POST /v1/plans returns.
+
+Loads and limits are estimates only: the facility's approved limits, procedures
+and licensed engineering judgement govern.`,
+		Example: `  scalematch plan request.json
+  scalematch plan --units us - < request.json
+  scalematch plan --json --data ./scalematch-data request.json`,
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			body, err := o.start(cmd, args[0])
+			if err != nil {
+				return err
+			}
+			var req api.PlanRequest
+			if err := api.Decode(body, &req); err != nil {
+				return explain(err)
+			}
+			ctx := cmd.Context()
+			p, closeCatalog, err := o.planner(ctx)
+			if err != nil {
+				return err
+			}
+			err = o.plan(ctx, p, &req)
+			if cerr := closeCatalog(); err == nil {
+				err = cerr
+			}
+			return err
+		},
+	}
+	o.bind(cmd, true, "POST /v1/plans")
+	return cmd
+}
+
+// plan plans req with p and prints the table or the service's JSON.
+func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.PlanRequest) error {
+	if o.json {
+		b, err := p.PlanJSON(ctx, req)
+		if err != nil {
+			return explain(err)
+		}
+		_, err = o.stdout.Write(b)
+		return err
+	}
+	resp, err := p.Plan(ctx, req)
+	if err != nil {
+		return explain(err)
+	}
+	return writePlan(o.stdout, resp, o.units == "us")
+}
+
+// units formats quantities in SI and, when us is set, in U.S. customary units
+// beside them (NIST SP 811 conversion factors, as the atmosphere command uses).
+type units struct{ us bool }
+
+// q formats v in SI unit unit, with its U.S. customary equivalent when u.us and
+// the unit has one; digits is the number of significant digits.
+func (u units) q(v float64, unit string, digits int) string {
+	s := fmt.Sprintf("%.*g %s", digits, v, unit)
+	if math.IsInf(v, 1) {
+		return "unlimited"
+	}
+	if !u.us {
+		return s
+	}
+	var c float64
+	var cu string
+	switch unit {
+	case "m":
+		c, cu = v/footM, "ft"
+	case "m²":
+		c, cu = v/(footM*footM), "ft²"
+	case "m/s":
+		c, cu = v/knotMS, "kt"
+	case "Pa":
+		c, cu = v/psfPa, "psf"
+	case "N":
+		c, cu = v/poundForceN, "lbf"
+	case "N·m":
+		c, cu = v/(poundForceN*footM), "lbf·ft"
+	case "K":
+		c, cu = v*rankinePerK, "°R"
+	case "kg/m³":
+		c, cu = v*footM*footM*footM/slugKg, "slug/ft³"
+	case "1/m":
+		c, cu = v*footM, "1/ft"
+	case "kg":
+		c, cu = v/poundKg, "lb"
+	default:
+		return s
+	}
+	return fmt.Sprintf("%s (%.*g %s)", s, digits, c, cu)
+}
+
+// bindingUnits gives the SI unit of each binding constraint's value.
+var bindingUnits = map[string]string{
+	facilities.ConstraintSpeedMin:     "m/s",
+	facilities.ConstraintSpeedMax:     "m/s",
+	facilities.ConstraintPressureMin:  "Pa",
+	facilities.ConstraintPressureMax:  "Pa",
+	facilities.ConstraintTempMin:      "K",
+	facilities.ConstraintTempMax:      "K",
+	facilities.ConstraintDynamic:      "Pa",
+	facilities.ConstraintReynoldsUnit: "1/m",
+	facilities.ConstraintCondensation: "K",
+	facilities.ConstraintBalance:      "Pa",
+}
+
+// section starts a block of the table: a blank line and its heading.
+func section(w io.Writer, title string) { fmt.Fprintf(w, "\n%s\n", title) }
+
+// writePlan prints a plan as a table.
+func writePlan(w io.Writer, r *api.PlanResponse, us bool) error {
+	u := units{us}
+	where := "demo catalog"
+	switch {
+	case r.FacilityVersion > 0:
+		where = fmt.Sprintf("catalog version %d", r.FacilityVersion)
+	case r.FacilityID == "":
+		where = "inline facility"
+	}
+	fmt.Fprintf(w, "Plan %s: facility %s (%s)\n", r.ID, r.FacilityID, where)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	row := func(name, format string, args ...any) {
+		fmt.Fprintf(tw, "  %s\t"+format+"\n", append([]any{name}, args...)...)
+	}
+	flush := func() { tw.Flush() }
+
+	fl := r.Flight
+	section(w, "Flight")
+	row("Mach number", "%.4f", fl.Mach)
+	row("Reynolds number", "%.4g on %s", fl.Reynolds, u.q(fl.ReferenceLength, "m", 4))
+	row("true airspeed", "%s", u.q(fl.TrueAirspeed, "m/s", 4))
+	row("calibrated airspeed", "%s", u.q(fl.CalibratedAirspeed, "m/s", 4))
+	row("equivalent airspeed", "%s", u.q(fl.EquivalentAirspeed, "m/s", 4))
+	row("dynamic pressure", "%s", u.q(fl.DynamicPressure, "Pa", 5))
+	writeStatic(row, u, fl.Static)
+	flush()
+
+	m := r.Model
+	section(w, "Model")
+	row("scale", "1:%.4g (%.5g)", 1/m.Scale, m.Scale)
+	row("reference length", "%s", u.q(m.ReferenceLength, "m", 4))
+	row("reference area", "%s", u.q(m.ReferenceArea, "m²", 4))
+	row("span", "%s", u.q(m.Span, "m", 4))
+	row("frontal area", "%s", u.q(m.FrontalArea, "m²", 4))
+	row("blockage", "%.3g %% of the test section", 100*m.Blockage)
+	flush()
+
+	section(w, "Test")
+	writeTest(row, u, r.Test.State, r.Test.Reynolds)
+	flush()
+
+	section(w, "Mismatch")
+	row("Re test / Re flight", "%.4g", r.Mismatch.ReynoldsRatio)
+	row("M test - M flight", "%+.4f", r.Mismatch.MachDifference)
+	if r.Mismatch.FroudeRatio != 0 {
+		row("Fr test / Fr flight", "%.4g", r.Mismatch.FroudeRatio)
+	}
+	flush()
+
+	section(w, "Binding limits (Reynolds gain for 1 % more of each)")
+	if len(r.Binding) == 0 {
+		fmt.Fprintln(w, "  none: the flight's numbers are reached within every limit")
+	}
+	for _, b := range r.Binding {
+		unit := bindingUnits[b.Constraint]
+		val, lim := fmt.Sprintf("%.5g", b.Value), fmt.Sprintf("%.5g", b.Limit)
+		if unit != "" {
+			val, lim = u.q(b.Value, unit, 5), u.q(b.Limit, unit, 5)
+		}
+		row(b.Constraint, "%s at limit %s\t%+.3g %%", val, lim, b.ReynoldsGainPerPercent)
+	}
+	flush()
+
+	writeCorrections(w, row, r.Corrections)
+	flush()
+
+	if r.Loads != nil {
+		writeLoads(w, u, *r.Loads)
+	}
+
+	if re := r.ReynoldsEffects; re != nil {
+		section(w, "Reynolds effects (skin friction, "+re.Line+")")
+		row("skin friction, flight", "%.4g (turbulent)", re.SkinFrictionFlight)
+		row("skin friction, test", "%.4g natural transition, %.4g tripped", re.SkinFrictionTest, re.SkinFrictionTestTripped)
+		row("drag difference", "%+.1f counts natural, %+.1f counts tripped", re.DeltaCDCounts, re.DeltaCDCountsTripped)
+		row("laminar run", "%.2g of length on the model, %.2g in flight", re.NaturalTransitionFraction, re.FlightTransitionFraction)
+		trips := "no"
+		if re.TripsRecommended {
+			trips = "yes"
+		}
+		row("trips recommended", "%s", trips)
+		flush()
+	}
+
+	if s := r.Schedule; s != nil {
+		section(w, "Schedule")
+		row("points", "%d in %d run(s)", s.Points, s.Runs)
+		row("condition changes", "%d pressure, %d temperature", s.PressureChanges, s.TemperatureChanges)
+		row("time", "%.3g h", s.Hours)
+		flush()
+	}
+	writeNotes(w, r.Warnings, r.Cautions)
+	return tw.Flush()
+}
+
+// writeStatic adds the static state's rows.
+func writeStatic(row func(string, string, ...any), u units, s facilities.Static) {
+	row("static temperature", "%s", u.q(s.Temperature, "K", 5))
+	row("static pressure", "%s", u.q(s.Pressure, "Pa", 5))
+	row("density", "%s", u.q(s.Density, "kg/m³", 4))
+}
+
+// writeTest adds the rows of a test-section state and the model's Reynolds number.
+func writeTest(row func(string, string, ...any), u units, st facilities.State, reynolds float64) {
+	row("Mach number", "%.4f", st.Mach)
+	row("speed", "%s", u.q(st.Speed, "m/s", 4))
+	row("stagnation pressure", "%s", u.q(st.StagnationPressure, "Pa", 5))
+	row("stagnation temperature", "%s", u.q(st.StagnationTemperature, "K", 5))
+	row("dynamic pressure", "%s", u.q(st.DynamicPressure, "Pa", 5))
+	row("Reynolds number", "%.4g on the model", reynolds)
+	row("unit Reynolds number", "%s", u.q(st.ReynoldsPerMeter, "1/m", 4))
+	writeStatic(row, u, st.Static)
+}
+
+// writeCorrections adds the wall corrections' section.
+func writeCorrections(w io.Writer, row func(string, string, ...any), c facilities.Corrections) {
+	section(w, "Wall corrections ("+c.Walls+" walls)")
+	if !c.Applied {
+		fmt.Fprintln(w, "  no blockage correction applied")
+	}
+	row("blockage", "solid %.3g, wake %.3g, total %.3g", c.SolidBlockage, c.WakeBlockage, c.Blockage)
+	row("q_c/q", "%.4f", c.DynamicPressureFactor)
+	row("lift interference", "%+.3g° at α %.3g° (δ %.3g)", c.LiftInterference+0, c.LiftInterferenceAlpha, c.LiftInterferenceFactor)
+}
+
+// writeLoads prints one balance's load check: a line per test point.
+func writeLoads(w io.Writer, u units, r facilities.LoadReport) {
+	section(w, fmt.Sprintf("Loads on balance %s at q %s (safety factor %.3g: at most %.1f %% of any rating)",
+		r.BalanceID, u.q(r.DynamicPressure, "Pa", 5), r.SafetyFactor, 100*r.AllowedUtilization))
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	force, moment := "N", "N·m"
+	fconv, mconv := 1.0, 1.0
+	if u.us {
+		force, moment = "lbf", "lbf·ft"
+		fconv, mconv = 1/poundForceN, 1/(poundForceN*footM)
+	}
+	side := false
+	for _, p := range r.Points {
+		side = side || p.Beta != 0 || p.Side != 0 || p.RollingMoment != 0 || p.YawingMoment != 0
+	}
+	head := []string{"α °", "β °", "normal " + force, "axial " + force, "pitching " + moment}
+	if side {
+		head = append(head, "side "+force, "rolling "+moment, "yawing "+moment)
+	}
+	head = append(head, "use %", "limiting")
+	fmt.Fprintf(tw, "  %s\t\n", strings.Join(head, "\t"))
+	for _, p := range r.Points {
+		cells := []string{fmt.Sprintf("%.4g", p.Alpha), fmt.Sprintf("%.4g", p.Beta),
+			fmt.Sprintf("%.1f", p.Normal*fconv), fmt.Sprintf("%.1f", p.Axial*fconv), fmt.Sprintf("%.2f", p.PitchingMoment*mconv)}
+		if side {
+			cells = append(cells, fmt.Sprintf("%.1f", p.Side*fconv), fmt.Sprintf("%.2f", p.RollingMoment*mconv), fmt.Sprintf("%.2f", p.YawingMoment*mconv))
+		}
+		mark := ""
+		if p.Utilization > r.AllowedUtilization {
+			mark = " !"
+		}
+		cells = append(cells, fmt.Sprintf("%.1f%s", 100*p.Utilization, mark), p.Limiting)
+		fmt.Fprintf(tw, "  %s\t\n", strings.Join(cells, "\t"))
+	}
+	tw.Flush()
+	verdict := "within its safety factor"
+	if !r.WithinLimits {
+		verdict = "ABOVE what its safety factor allows: do not run the points marked !"
+	}
+	fmt.Fprintf(w, "  worst %.1f %% (%s at α %.4g°), %s; weight %s\n", 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha,
+		verdict, map[bool]string{true: "included", false: "left out"}[r.WeightIncluded])
+	fmt.Fprintf(w, "  largest safe dynamic pressure %s (%s at α %.4g°)\n", u.q(r.MaxSafeDynamicPressure, "Pa", 5),
+		r.MaxSafeLimiting.Component, r.MaxSafeLimiting.Alpha)
+}
+
+// writeNotes prints the warnings and cautions as lists.
+func writeNotes(w io.Writer, warnings, cautions []string) {
+	for _, l := range []struct {
+		title string
+		items []string
+	}{{"Warnings", warnings}, {"Cautions", cautions}} {
+		if len(l.items) == 0 {
+			continue
+		}
+		section(w, l.title)
+		for _, s := range l.items {
+			fmt.Fprintf(w, "  - %s\n", s)
+		}
+	}
+}
+
+// writeAPIJSON writes v as json.Marshal does, which is how the service's handlers
+// write their answers (no indentation, no trailing newline).
+func writeAPIJSON(w io.Writer, v any) error {
+	b, err := json.Marshal(v)
+	if err != nil {
+		return err
+	}
+	_, err = w.Write(b)
+	return err
+}
