@@ -373,9 +373,14 @@ func (w *walker) plain(v any, path string) (any, bool) {
 		return f, true
 	case map[string]any:
 		ok := true
-		for k, e := range x {
+		keys := make([]string, 0, len(x))
+		for k := range x {
+			keys = append(keys, k)
+		}
+		sort.Strings(keys) // errors in a stable order
+		for _, k := range keys {
 			var eok bool
-			x[k], eok = w.plain(e, joinKey(path, k))
+			x[k], eok = w.plain(x[k], joinKey(path, k))
 			ok = ok && eok
 		}
 		return x, ok

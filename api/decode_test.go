@@ -303,3 +303,19 @@ func ExampleDecode() {
 	// scale: scale "1:0": want a number or a ratio of two positive numbers such as "1:16"
 	// presure: unknown field
 }
+
+func TestDecodeAnyFieldErrorsInOrder(t *testing.T) {
+	body := []byte(`{"extra":{"d":1e999,"b":[1,2e999],"a":-1e999,"c":"fine"}}`)
+	want := []string{"extra.a", "extra.b[1]", "extra.d"}
+	for i := range 20 {
+		var d decodeTarget
+		fields := fieldsOf(t, api.Decode(body, &d))
+		var got []string
+		for _, f := range fields {
+			got = append(got, f.Field)
+		}
+		if !reflect.DeepEqual(got, want) {
+			t.Fatalf("try %d: paths %v, want %v", i, got, want)
+		}
+	}
+}
