@@ -1,0 +1,312 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"io"
+	"log/slog"
+	"net/http"
+	"net/http/httptest"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"scalematch/api"
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
+)
+
+// j20Plan is the Orrin J20 of the demo world in tsw-1 at cruise, 21 α points.
+const j20Plan = `{
+  "flight": {"altitude": "12500 m", "mach": 0.80},
+  "article": {"reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0,
+    "frontal_area": 5.5, "wetted_area": 290,
+    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021,
+      "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}},
+  "facility_id": "tsw-1",
+  "model": {"scale_min": 0.01, "scale_max": 0.5},
+  "installation": {"balance_id": "int-b1", "model_mass": 20},
+  "alpha": {"from": -4, "to": 16, "step": 1}
+}`
+
+// j20Loads is a load check of a 1:30 Orrin J20 in tsw-1 on every balance.
+const j20Loads = `{
+  "article": {"reference_length": 2.6, "reference_area": 50, "span": 19.0,
+    "frontal_area": 5.5, "wetted_area": 290,
+    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021,
+      "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}},
+  "facility_id": "tsw-1",
+  "model": {"scale": "1:30"},
+  "installation": {"model_mass": 20},
+  "alpha": {"from": -4, "to": 16, "step": 2},
+  "test": {"mach": 0.8, "stagnation_pressure": "1.5 bar", "stagnation_temperature": 310}
+}`
+
+const dragGroups = `{"variables": [{"name": "R", "unit": "N"}, {"name": "rho", "unit": "kg/m^3"},
+  {"name": "V", "unit": "m/s"}, {"name": "L", "unit": "m"}, {"name": "mu", "unit": "Pa*s"}],
+  "repeating": ["rho", "V", "L"]}`
+
+// runCmd runs the command line with stdin and returns stdout and the error.
+func runCmd(t *testing.T, stdin string, args ...string) (string, error) {
+	t.Helper()
+	var out, errOut bytes.Buffer
+	err := run(args, strings.NewReader(stdin), &out, &errOut)
+	return out.String(), err
+}
+
+// writeFile writes body to a file in a new temporary directory and returns its path.
+func writeFile(t *testing.T, name, body string) string {
+	t.Helper()
+	p := filepath.Join(t.TempDir(), name)
+	if err := os.WriteFile(p, []byte(body), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// postBody answers body at path from a service over catalog c (nil: the demo
+// facilities) and returns the status and the body.
+func postBody(t *testing.T, c facilities.Catalog, path, body string) (int, []byte) {
+	t.Helper()
+	s, err := api.New(api.Config{Catalog: c, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec := httptest.NewRecorder()
+	s.Handler().ServeHTTP(rec, httptest.NewRequest(http.MethodPost, path, strings.NewReader(body)))
+	return rec.Code, rec.Body.Bytes()
+}
+
+func TestPlanCommandTable(t *testing.T) {
+	file := writeFile(t, "j20.json", j20Plan)
+	noStore := t.TempDir()
+	cases := []struct {
+		name  string
+		args  []string
+		stdin string
+		want  []string
+	}{
+		{"SI from a file", []string{"plan", "--data", noStore, file}, "", []string{
+			"facility tsw-1 (demo catalog)",
+			"\nFlight\n", "\nModel\n", "\nTest\n", "\nMismatch\n",
+			"Binding limits", "balance ", "max_dynamic_pressure", "+0.499 %",
+			"Loads on balance int-b1 at q 60000 Pa (safety factor 1.5: at most 66.7 % of any rating)",
+			"worst 66.7 % (axial at α 16°)",
+			"Reynolds effects", "trips recommended", "\nSchedule\n", "\nWarnings\n", "\nCautions\n",
+			"estimates",
+		}},
+		{"US from stdin", []string{"plan", "--data", noStore, "--units", "us", "-"}, j20Plan, []string{
+			"ft)", "kt)", "psf)", "°R)", "ft²)", "slug/ft³)", "normal lbf", "pitching lbf·ft",
+			// 60 000 Pa / 47.880259 Pa/psf (NIST SP 811)
+			"60000 Pa (1253.1 psf)",
+		}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			out, err := runCmd(t, c.stdin, c.args...)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(out, w) {
+					t.Errorf("output lacks %q:\n%s", w, out)
+				}
+			}
+		})
+	}
+}
+
+// TestCommandJSONIsTheServiceBody checks --json against the service's answer to the
+// same request, byte for byte.
+func TestCommandJSONIsTheServiceBody(t *testing.T) {
+	noStore := t.TempDir()
+	cases := []struct {
+		name, cmd, path, body string
+	}{
+		{"plan", "plan", "/v1/plans", j20Plan},
+		{"plan with unit strings", "plan", "/v1/plans", strings.Replace(j20Plan, `"span": 19.0`, `"span": "19 m"`, 1)},
+		{"loads, every balance", "loads", "/v1/loads", j20Loads},
+		{"loads, one balance", "loads", "/v1/loads", strings.Replace(j20Loads, `{"model_mass": 20}`, `{"balance_id": "int-b2", "model_mass": 20}`, 1)},
+		{"groups", "groups", "/v1/groups", dragGroups},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, want := postBody(t, nil, c.path, c.body)
+			if code != http.StatusOK {
+				t.Fatalf("service: status %d: %s", code, want)
+			}
+			args := []string{c.cmd, "--json", "-"}
+			if c.cmd != "groups" {
+				args = append(args, "--data", noStore)
+			}
+			out, err := runCmd(t, c.body, args...)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if out != string(want) {
+				t.Errorf("--json differs from the service's body:\n%s\n%s", out, want)
+			}
+		})
+	}
+}
+
+// TestPlanCommandStore checks that facility ids resolve against the store under
+// --data, that a plan stored by the service is answered with its stored bytes, and
+// that the command line stores nothing.
+func TestPlanCommandStore(t *testing.T) {
+	ctx := context.Background()
+	dir := t.TempDir()
+	db, err := sqlite.Open(ctx, sqlite.Path(dir))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
+		t.Fatal(err)
+	}
+	f, _ := facilities.DemoFacility("tsw-1")
+	f.ID, f.Name = "tsw-1x", "transonic tunnel, store-only copy"
+	if _, err := db.CreateFacility(ctx, f, "test"); err != nil {
+		t.Fatal(err)
+	}
+	stored := strings.Replace(j20Plan, `"tsw-1"`, `"tsw-1x"`, 1)
+	code, want := postBody(t, db, "/v1/plans", stored)
+	if code != http.StatusOK {
+		t.Fatalf("service: status %d: %s", code, want)
+	}
+
+	out, err := runCmd(t, "", "plan", "--json", "--data", dir, writeFile(t, "x.json", stored))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if out != string(want) {
+		t.Errorf("--json differs from the stored plan:\n%s\n%s", out, want)
+	}
+	out, err = runCmd(t, "", "plan", "--data", dir, writeFile(t, "x.json", stored))
+	if err != nil || !strings.Contains(out, "facility tsw-1x (catalog version 1)") {
+		t.Errorf("table: %v\n%s", err, out)
+	}
+	// Without the store the id names nothing.
+	if _, err := runCmd(t, stored, "plan", "--data", t.TempDir(), "-"); facilities.ErrorCode(err) != facilities.CodeNotFound {
+		t.Errorf("without the store: %v, want not found", err)
+	}
+	// A new plan is answered but not stored.
+	fresh := strings.Replace(stored, `"step": 1`, `"step": 2`, 1)
+	out, err = runCmd(t, fresh, "plan", "--json", "--data", dir, "-")
+	if err != nil {
+		t.Fatal(err)
+	}
+	id := out[strings.Index(out, `"id":"`)+6:]
+	id = id[:strings.IndexByte(id, '"')]
+	if _, err := db.Plan(ctx, id); facilities.ErrorCode(err) != facilities.CodeNotFound {
+		t.Errorf("plan %s: %v, want it not stored", id, err)
+	}
+}
+
+func TestCommandErrors(t *testing.T) {
+	noStore := t.TempDir()
+	cases := []struct {
+		name  string
+		args  []string
+		stdin string
+		code  facilities.Code // "" when not a domain error
+		want  []string        // fragments of the message
+	}{
+		{"bad fields are each named", []string{"plan", "--data", noStore, "-"},
+			strings.NewReplacer(`"12500 m"`, `"12500 kg"`, `"span": 19.0`, `"span": "19 s"`).Replace(j20Plan),
+			facilities.CodeInvalid, []string{"invalid input", "\n  flight.altitude: ", "\n  article.span: "}},
+		{"out-of-range values are each named", []string{"plan", "--data", noStore, "-"},
+			strings.NewReplacer(`"12500 m"`, `"99000 m"`, `"span": 19.0`, `"span": -1`).Replace(j20Plan),
+			facilities.CodeInvalid, []string{"\n  flight.altitude: ", "\n  article.span: "}},
+		{"unknown field", []string{"plan", "--data", noStore, "-"}, strings.Replace(j20Plan, `"cl_max"`, `"cl_maks"`, 1),
+			facilities.CodeInvalid, []string{"article.aero.cl_maks"}},
+		{"broken JSON", []string{"loads", "--data", noStore, "-"}, `{"article": `,
+			facilities.CodeInvalid, []string{"(body): "}},
+		{"unknown facility", []string{"plan", "--data", noStore, "-"}, strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1),
+			facilities.CodeNotFound, []string{"not found", "no-such"}},
+		{"no feasible plan", []string{"plan", "--data", noStore, "-"}, strings.Replace(j20Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scale": 0.2}`, 1),
+			facilities.CodeUnprocessable, []string{"no feasible plan", "conflicting limits: "}},
+		{"groups without variables", []string{"groups", "-"}, `{"variables": []}`,
+			facilities.CodeInvalid, []string{"\n  variables: "}},
+		{"bad units flag", []string{"plan", "--units", "imperial", "-"}, j20Plan, "", []string{"--units"}},
+		{"missing file", []string{"loads", filepath.Join(noStore, "none.json")}, "", "", []string{"none.json"}},
+		{"no argument", []string{"groups"}, "", "", []string{"arg"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			out, err := runCmd(t, c.stdin, c.args...)
+			if err == nil {
+				t.Fatalf("no error; output:\n%s", out)
+			}
+			if got := facilities.ErrorCode(err); got != c.code {
+				t.Errorf("code %q, want %q (%v)", got, c.code, err)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(err.Error(), w) {
+					t.Errorf("error lacks %q:\n%v", w, err)
+				}
+			}
+			if out != "" {
+				t.Errorf("stdout not empty on error: %q", out)
+			}
+		})
+	}
+}
+
+func TestLoadsAndGroupsCommandTables(t *testing.T) {
+	noStore := t.TempDir()
+	cases := []struct {
+		name  string
+		args  []string
+		stdin string
+		want  []string
+	}{
+		{"loads on every balance", []string{"loads", "--data", noStore, "-"}, j20Loads, []string{
+			"Load check: facility tsw-1", "Loads on balance int-b1", "Loads on balance int-b2",
+			"Facility limits broken\n  none\n", "\nCautions\n",
+		}},
+		{"loads US", []string{"loads", "--data", noStore, "--units", "us", "-"}, j20Loads, []string{"axial lbf", "psf)"}},
+		{"groups", []string{"groups", "-"}, dragGroups, []string{
+			"rank 3; repeating variables: rho, V, L\n",
+			"Π1 = R rho^-1 V^-2 L^-2  (force coefficient)\n",
+			"Π2 = mu rho^-1 V^-1 L^-1",
+		}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			out, err := runCmd(t, c.stdin, c.args...)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(out, w) {
+					t.Errorf("output lacks %q:\n%s", w, out)
+				}
+			}
+		})
+	}
+}
+
+// TestExamplesPlan plans every example request under examples/.
+func TestExamplesPlan(t *testing.T) {
+	files, err := filepath.Glob(filepath.Join("..", "..", "examples", "*.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(files) == 0 {
+		t.Skip("no examples/*.json yet")
+	}
+	noStore := t.TempDir()
+	for _, f := range files {
+		t.Run(filepath.Base(f), func(t *testing.T) {
+			out, err := runCmd(t, "", "plan", "--data", noStore, f)
+			if err != nil {
+				t.Fatalf("%v", err)
+			}
+			if !strings.Contains(out, "\nBinding limits") {
+				t.Errorf("no plan printed:\n%s", out)
+			}
+		})
+	}
+}
