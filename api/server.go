@@ -18,7 +18,7 @@ import (
 // @version					1
 // @description				Plans scale-model tests in wind and water tunnels: model scale and test conditions that best match a flight's Reynolds and Mach numbers within a facility's limits, the remaining mismatch, the Reynolds effect on drag and the balance loads over the angle-of-attack sweep.
 // @description				Every number is SI (m, m², kg, s, K, Pa, N, N·m, kg/m³, Pa·s, m/s); angles are degrees. Any dimensional input may instead be a string with a unit ("35000 ft", "2.5 bar", "15 degC"); a model scale may be a ratio ("1:16").
-// @description				Errors are RFC 9457 problem details (application/problem+json) whose "type" is a relative URI /problems/{kind}; the kinds are listed under the Problem schema.
+// @description				Errors are RFC 9457 problem details (application/problem+json) whose "type" is a relative URI /problems/{kind}, one kind per status: invalid-input 400, unauthorized 401 (WWW-Authenticate: Bearer), forbidden 403, not-found 404, method-not-allowed 405, conflict 409, precondition-failed 412, body-too-large 413 (bodies are limited to 1 MiB), unprocessable 422 (with "limits"), precondition-required 428, internal 500, unavailable 503. Every problem carries the request_id also sent as the X-Request-ID header.
 // @description				All loads and limits are estimates only: the facility's approved limits, procedures and licensed engineering judgement govern.
 // @BasePath					/
 // @accept						json
