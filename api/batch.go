@@ -72,9 +72,41 @@ func (s *Server) postPlanBatch(c *gin.Context) {
 		mu.Unlock()
 		out[i].Error = &pr
 	})
-	c.JSON(http.StatusOK, struct {
-		Results []batchItem `json:"results"`
-	}{out})
+	body, err := batchJSON(out)
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.Data(http.StatusOK, "application/json; charset=utf-8", body)
+}
+
+// batchJSON writes {"results": [...]} with each plan's bytes as they are: they are
+// json.Marshal's compact output already (or the stored copy of it), so they are
+// not scanned and compacted again as encoding/json does with a json.RawMessage.
+func batchJSON(items []batchItem) ([]byte, error) {
+	n := len(`{"results":[]}`)
+	for _, it := range items {
+		n += len(`{"plan":},`) + len(it.Plan)
+	}
+	b := make([]byte, 0, n)
+	b = append(b, `{"results":[`...)
+	for i, it := range items {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		if it.Plan != nil {
+			b = append(b, `{"plan":`...)
+			b = append(b, it.Plan...)
+			b = append(b, '}')
+			continue
+		}
+		e, err := json.Marshal(batchItem{Error: it.Error})
+		if err != nil {
+			return nil, err
+		}
+		b = append(b, e...)
+	}
+	return append(b, `]}`...), nil
 }
 
 // each calls fn(i) for i in [0, n) on a bounded pool of runtime.GOMAXPROCS(0)

@@ -10,6 +10,7 @@ import (
 	"math"
 	"slices"
 	"strings"
+	"sync"
 
 	"scalematch/facilities"
 	"scalematch/similarity"
@@ -95,7 +96,7 @@ func (p *Planner) facility(ctx context.Context, inline *facilities.Facility, id 
 		return &f, nil
 	}
 	if p.Catalog == nil {
-		f, ok := facilities.DemoFacility(id)
+		f, ok := demoFacilities()[id]
 		if !ok {
 			return nil, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("facility %q not found", id)}
 		}
@@ -107,6 +108,18 @@ func (p *Planner) facility(ctx context.Context, inline *facilities.Facility, id 
 	}
 	return &f, nil
 }
+
+// demoFacilities returns the embedded demo facilities by id, decoded once
+// (facilities.Demo decodes its JSON on every call, a third of a plan's time). The
+// map and the facilities in it are never changed: callers get copies of the
+// structs and only read what their pointers and slices share.
+var demoFacilities = sync.OnceValue(func() map[string]facilities.Facility {
+	m := map[string]facilities.Facility{}
+	for _, f := range facilities.Demo() {
+		m[f.ID] = f
+	}
+	return m
+})
 
 // planID returns the id of a plan: the first 20 hex digits of the SHA-256 of the
 // canonical JSON of the decoded request, the facility's id and its catalog version.

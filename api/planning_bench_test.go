@@ -1,0 +1,70 @@
+package api_test
+
+import (
+	"io"
+	"log/slog"
+	"net/http"
+	"net/http/httptest"
+	"strconv"
+	"strings"
+	"testing"
+
+	"scalematch/api"
+)
+
+// benchHandler returns the full handler stack of a service over the demo catalog,
+// logging nowhere.
+func benchHandler(b *testing.B) http.Handler {
+	b.Helper()
+	s, err := api.New(api.Config{Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	if err != nil {
+		b.Fatal(err)
+	}
+	return s.Handler()
+}
+
+// benchPost posts body to path through h b.N times and checks every answer is 200.
+func benchPost(b *testing.B, h http.Handler, path, body string) {
+	b.Helper()
+	b.ReportAllocs()
+	b.SetBytes(int64(len(body)))
+	b.ResetTimer()
+	for range b.N {
+		rec := httptest.NewRecorder()
+		h.ServeHTTP(rec, httptest.NewRequest(http.MethodPost, path, strings.NewReader(body)))
+		if rec.Code != http.StatusOK {
+			b.Fatalf("status %d: %s", rec.Code, rec.Body)
+		}
+	}
+}
+
+// BenchmarkPlanEndpoint is POST /v1/plans of the Orrin J20 in tsw-1, 21 α points,
+// through the whole handler stack (request id, metrics, decoding, planning with
+// the balance limit, loads, encoding).
+func BenchmarkPlanEndpoint(b *testing.B) {
+	benchPost(b, benchHandler(b), "/v1/plans", j20Plan)
+}
+
+// batchBody returns a batch of n plan requests: the Orrin J20 in tsw-1 at n
+// different flight Mach numbers from 0.60 to 0.89.
+func batchBody(n int) string {
+	var sb strings.Builder
+	sb.WriteString(`{"requests": [`)
+	for i := range n {
+		if i > 0 {
+			sb.WriteByte(',')
+		}
+		mach := 0.60 + 0.29*float64(i)/float64(max(n-1, 1))
+		sb.WriteString(strings.Replace(j20Plan, `"mach": 0.80`, `"mach": `+strconvFloat(mach), 1))
+	}
+	sb.WriteString(`]}`)
+	return sb.String()
+}
+
+func strconvFloat(v float64) string { return strconv.FormatFloat(v, 'f', 6, 64) }
+
+// BenchmarkBatch1000 is POST /v1/plans/batch of 1000 plan requests through the
+// whole handler stack; the goal on a 2-core machine is under 0.5 s per batch.
+func BenchmarkBatch1000(b *testing.B) {
+	benchPost(b, benchHandler(b), "/v1/plans/batch", batchBody(1000))
+}
