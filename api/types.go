@@ -94,8 +94,11 @@ type BatchResponse struct {
 // plan, as POST /v1/plans answers it) and Error (a problem with the status the
 // request would have got on its own).
 type BatchResult struct {
-	Plan  *PlanResponse `json:"plan,omitempty"`
-	Error *Problem      `json:"error,omitempty"`
+	// Plan is the plan, as POST /v1/plans answers it (SI units); absent on error.
+	Plan *PlanResponse `json:"plan,omitempty"`
+	// Error is the problem this request would have got on its own; absent when
+	// planned.
+	Error *Problem `json:"error,omitempty"`
 }
 
 // PlanRequest is the body of POST /v1/plans (and each item of a batch). Every
@@ -204,6 +207,8 @@ type LoadsRequest struct {
 // LoadsModel is the model of a load check: its scale, model length over full-scale
 // length.
 type LoadsModel struct {
+	// Scale is model length over full-scale length (dimensionless): a number or a
+	// ratio such as "1:16". Required.
 	Scale *float64 `json:"scale" unit:"scale" example:"0.0625"`
 }
 
@@ -213,18 +218,25 @@ type LoadsModel struct {
 type LoadsResponse struct {
 	// FacilityID names the facility.
 	FacilityID string `json:"facility_id"`
-	// Model is the model's size at the given scale.
+	// Model is the model's size at the given scale: lengths in m, areas in m²,
+	// blockage as a fraction of the test-section area.
 	Model similarity.ModelSize `json:"model"`
-	// Test is the test state at the given settings.
+	// Test is the test state at the given settings: Mach, speed m/s, stagnation
+	// pressure Pa and temperature K, static state, dynamic pressure Pa, Reynolds
+	// number on the model and per metre (1/m).
 	Test similarity.Test `json:"test"`
-	// Flight and Mismatch compare the test with the flight when one was given.
-	Flight   *similarity.FlightState `json:"flight,omitempty"`
-	Mismatch *similarity.Mismatch    `json:"mismatch,omitempty"`
+	// Flight is the full-scale flight state (speeds m/s, dynamic pressure Pa,
+	// Reynolds number on the full-scale reference length) when one was given.
+	Flight *similarity.FlightState `json:"flight,omitempty"`
+	// Mismatch is Re_test/Re_flight and M_test − M_flight when a flight was given.
+	Mismatch *similarity.Mismatch `json:"mismatch,omitempty"`
 	// Violations are the facility limits the settings break; empty when none.
 	Violations []facilities.Violation `json:"violations"`
 	// Corrections are the wall corrections at the test condition.
 	Corrections facilities.Corrections `json:"corrections"`
-	// Loads is a load report (object) or a list of them (array).
+	// Loads is a load report (object) or a list of them (array): forces in N,
+	// moments in N·m at the balance moment centre, utilisation as a fraction of the
+	// rating, largest safe dynamic pressure in Pa.
 	Loads LoadsValue `json:"loads" swaggertype:"object"`
 	// Warnings are notes on the inputs and models.
 	Warnings []string `json:"warnings"`

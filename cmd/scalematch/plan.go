@@ -218,7 +218,7 @@ func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.Plan
 	if err != nil {
 		return explain(err)
 	}
-	return writePlan(o.stdout, resp, o.units == "us")
+	return writePlan(o.stdout, resp, o.units == "us", req.Facility != nil)
 }
 
 // units formats quantities in SI and, when us is set, in U.S. customary units
@@ -281,15 +281,16 @@ var bindingUnits = map[string]string{
 // section starts a block of the table: a blank line and its heading.
 func section(w io.Writer, title string) { fmt.Fprintf(w, "\n%s\n", title) }
 
-// writePlan prints a plan as a table.
-func writePlan(w io.Writer, r *api.PlanResponse, us bool) error {
+// writePlan prints a plan as a table; inline says the request gave its facility
+// inline rather than by catalog id.
+func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 	u := units{us}
 	where := "demo catalog"
 	switch {
+	case inline:
+		where = "given inline"
 	case r.FacilityVersion > 0:
 		where = fmt.Sprintf("catalog version %d", r.FacilityVersion)
-	case r.FacilityID == "":
-		where = "inline facility"
 	}
 	fmt.Fprintf(w, "Plan %s: facility %s (%s)\n", r.ID, r.FacilityID, where)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
