@@ -50,7 +50,7 @@ func (s *Server) postPlanBatch(c *gin.Context) {
 		s.fail(c, (fieldErrors{{Field: "requests", Message: fmt.Sprintf("%d requests: at most %d per batch", len(b.Requests), MaxBatch)}}).err())
 		return
 	}
-	p := s.planner()
+	p := s.planner().Batch()
 	ctx := c.Request.Context()
 	out := make([]batchItem, len(b.Requests))
 	var mu sync.Mutex // guards s.problem's use of c (logging and request id)

@@ -23,6 +23,43 @@ import (
 type Planner struct {
 	// Catalog resolves facility_id; nil: the demo facilities (facilities.Demo).
 	Catalog facilities.Catalog
+
+	// memo, when set (by Batch), keeps each catalog facility read once.
+	memo *facilityMemo
+}
+
+// Batch returns a planner over the same catalog that reads each catalog facility
+// once, the first time a request names it, and answers every later request from
+// that copy: every plan of a batch then uses one version of each facility, and a
+// batch of 1000 plans in one facility reads the store once, not 1000 times.
+func (p *Planner) Batch() *Planner {
+	return &Planner{Catalog: p.Catalog, memo: &facilityMemo{m: map[string]*memoEntry{}}}
+}
+
+// facilityMemo holds the catalog facilities a batch has read, by id.
+type facilityMemo struct {
+	mu sync.Mutex
+	m  map[string]*memoEntry
+}
+
+// memoEntry is one id's lookup, done once.
+type memoEntry struct {
+	once sync.Once
+	f    facilities.Facility
+	err  error
+}
+
+// get returns the catalog's facility id, reading it once per memo.
+func (fm *facilityMemo) get(ctx context.Context, c facilities.Catalog, id string) (facilities.Facility, error) {
+	fm.mu.Lock()
+	e, ok := fm.m[id]
+	if !ok {
+		e = &memoEntry{}
+		fm.m[id] = e
+	}
+	fm.mu.Unlock()
+	e.once.Do(func() { e.f, e.err = c.Facility(ctx, id) })
+	return e.f, e.err
 }
 
 // fieldErrors collects the field problems of one request.
@@ -102,7 +139,13 @@ func (p *Planner) facility(ctx context.Context, inline *facilities.Facility, id 
 		}
 		return &f, nil
 	}
-	f, err := p.Catalog.Facility(ctx, id)
+	var f facilities.Facility
+	var err error
+	if p.memo != nil {
+		f, err = p.memo.get(ctx, p.Catalog, id)
+	} else {
+		f, err = p.Catalog.Facility(ctx, id)
+	}
 	if err != nil {
 		return nil, err
 	}

@@ -2,13 +2,19 @@ package api_test
 
 import (
 	"context"
+	"io"
+	"log/slog"
 	"math"
+	"net/http"
+	"net/http/httptest"
 	"slices"
 	"strings"
+	"sync/atomic"
 	"testing"
 
 	"scalematch/api"
 	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
 	"scalematch/similarity"
 )
 
@@ -80,6 +86,62 @@ func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 			q := ll.MaxDynamicPressure(resp.Model.Scale, resp.Test.State)
 			if math.Abs(q/r.MaxSafeDynamicPressure-1) > 1e-9 {
 				t.Errorf("load limit %.10g Pa, report's safe q %.10g Pa", q, r.MaxSafeDynamicPressure)
+			}
+		})
+	}
+}
+
+// countingCatalog counts the facility reads of a catalog.
+type countingCatalog struct {
+	facilities.Catalog
+	reads atomic.Int64
+}
+
+func (c *countingCatalog) Facility(ctx context.Context, id string) (facilities.Facility, error) {
+	c.reads.Add(1)
+	return c.Catalog.Facility(ctx, id)
+}
+
+// TestBatchReadsEachFacilityOnce checks that a batch reads each catalog facility
+// once however many of its requests name it, and that single plans read it each
+// time.
+func TestBatchReadsEachFacilityOnce(t *testing.T) {
+	ctx := context.Background()
+	db, err := sqlite.Open(ctx, sqlite.Path(t.TempDir()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
+		t.Fatal(err)
+	}
+	cat := &countingCatalog{Catalog: db}
+	s, err := api.New(api.Config{Catalog: cat, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	if err != nil {
+		t.Fatal(err)
+	}
+	cn2 := strings.NewReplacer(`"tsw-1"`, `"cn2-05"`, `"int-b1"`, `"int-k"`).Replace(j20Plan)
+	missing := strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1)
+	cases := []struct {
+		name  string
+		path  string
+		body  string
+		reads int64
+	}{
+		{"batch of five in two facilities and one unknown twice", "/v1/plans/batch",
+			`{"requests": [` + strings.Join([]string{j20Plan, cn2, j20Plan, missing, missing, j20Plan, cn2}, ",") + `]}`, 3},
+		{"single plan", "/v1/plans", j20Plan, 1},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			cat.reads.Store(0)
+			rec := httptest.NewRecorder()
+			s.Handler().ServeHTTP(rec, httptest.NewRequest(http.MethodPost, tc.path, strings.NewReader(tc.body)))
+			if rec.Code != http.StatusOK {
+				t.Fatalf("status %d: %s", rec.Code, rec.Body)
+			}
+			if got := cat.reads.Load(); got != tc.reads {
+				t.Errorf("%d facility reads, want %d", got, tc.reads)
 			}
 		})
 	}
