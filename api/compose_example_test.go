@@ -1,0 +1,39 @@
+package api_test
+
+import (
+	"context"
+	"fmt"
+
+	"scalematch/api"
+)
+
+// ExamplePlanner_Plan plans the Orrin J20 of the demo world at cruise (M 0.80 at
+// 12 500 m) in the transonic demo tunnel tsw-1 on balance int-b1, as POST /v1/plans
+// and `scalematch plan` do.
+func ExamplePlanner_Plan() {
+	var req api.PlanRequest
+	if err := api.Decode([]byte(j20Plan), &req); err != nil {
+		fmt.Println(err)
+		return
+	}
+	var p api.Planner // the demo catalog
+	plan, err := p.Plan(context.Background(), &req)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("scale 1:%.4g, test M %.4g at q %.4g Pa\n", 1/plan.Model.Scale, plan.Test.Mach, plan.Test.DynamicPressure)
+	fmt.Printf("Re test/flight %.4g\n", plan.Mismatch.ReynoldsRatio)
+	for _, b := range plan.Binding {
+		fmt.Printf("binding %s: %+.3g %% Re per 1 %%\n", b.Constraint, b.ReynoldsGainPerPercent)
+	}
+	fmt.Printf("balance %s at %.4g of its rating (%s at α %g°), %.4g allowed\n", plan.Loads.BalanceID,
+		plan.Loads.MaxUtilization, plan.Loads.Limiting.Component, plan.Loads.Limiting.Alpha, plan.Loads.AllowedUtilization)
+	// Output:
+	// scale 1:30.69, test M 0.795 at q 6e+04 Pa
+	// Re test/flight 0.1866
+	// binding balance: +0.499 % Re per 1 %
+	// binding max_dynamic_pressure: +0.499 % Re per 1 %
+	// binding stagnation_temperature_min: +1.31 % Re per 1 %
+	// balance int-b1 at 0.6667 of its rating (axial at α 16°), 0.6667 allowed
+}
