@@ -308,8 +308,8 @@ func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, er
 	if out.TradeCurve == nil {
 		out.TradeCurve = []similarity.TradePoint{}
 	}
-	out.Warnings = append(out.Warnings, mx.Warnings...)
-	out.Warnings = append(out.Warnings, f.Warnings(res.Test.State)...)
+	out.Warnings = appendUnique(out.Warnings, mx.Warnings...)
+	out.Warnings = appendUnique(out.Warnings, f.Warnings(res.Test.State)...)
 	out.Corrections, out.Loads, err = loadsAt(f, &req.Article, req.Installation, mx, res.Model.Scale, res.Test.State, &out.Warnings)
 	if err != nil {
 		return nil, err
@@ -347,12 +347,17 @@ func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, er
 // appendCautions adds the cautions of facility f and its load reports
 // (facilities.Cautions), once each.
 func appendCautions(c []string, f *facilities.Facility, reports ...facilities.LoadReport) []string {
-	for _, s := range facilities.Cautions(f, reports...) {
-		if !slices.Contains(c, s) {
-			c = append(c, s)
+	return appendUnique(c, facilities.Cautions(f, reports...)...)
+}
+
+// appendUnique appends the notes of add that list does not hold yet, in order.
+func appendUnique(list []string, add ...string) []string {
+	for _, s := range add {
+		if !slices.Contains(list, s) {
+			list = append(list, s)
 		}
 	}
-	return c
+	return list
 }
 
 // loadsAt computes the wall corrections of a model of the given scale at test state

@@ -105,7 +105,11 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 			return nil, err
 		}
 		out.Flight = &fl
-		out.Mismatch = &similarity.Mismatch{ReynoldsRatio: out.Test.Reynolds / fl.Reynolds, MachDifference: st.Mach - fl.Mach}
+		out.Mismatch = &similarity.Mismatch{ReynoldsRatio: out.Test.Reynolds / fl.Reynolds}
+		if !f.Medium.IsLiquid() {
+			d := st.Mach - fl.Mach
+			out.Mismatch.MachDifference = &d
+		}
 	}
 	out.Warnings = append(out.Warnings, f.Warnings(st)...)
 	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)

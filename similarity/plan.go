@@ -212,8 +212,9 @@ type Test struct {
 type Mismatch struct {
 	// ReynoldsRatio is Re_test/Re_flight.
 	ReynoldsRatio float64 `json:"reynolds_ratio"`
-	// MachDifference is M_test − M_flight.
-	MachDifference float64 `json:"mach_difference"`
+	// MachDifference is M_test − M_flight; nil (JSON null) in water, where the Mach
+	// number is not a similarity target.
+	MachDifference *float64 `json:"mach_difference"`
 	// FroudeRatio is Fr_test/Fr_flight, reported for water facilities and for
 	// objectives naming froude; 0 otherwise.
 	FroudeRatio float64 `json:"froude_ratio,omitempty"`
@@ -264,8 +265,8 @@ type Result struct {
 	Trade []TradePoint `json:"trade_curve,omitempty"`
 	// Warnings are notes on the request and the result.
 	Warnings []string `json:"warnings"`
-	// Cautions remind the reader that loads, pressures and cryogenic conditions are
-	// estimates.
+	// Cautions are the facility's standing safety cautions (facilities.Cautions): the
+	// figures are estimates, pressure vessels, cryogenic nitrogen.
 	Cautions []string `json:"cautions,omitempty"`
 	// Stats are the planner's work counts.
 	Stats Stats `json:"statistics"`

@@ -48,15 +48,18 @@ func (sv *solver) result(x cand) *Result {
 		Warnings: append([]string{}, sv.warnings...),
 	}
 	res.Mismatch = Mismatch{
-		ReynoldsRatio:  res.Test.Reynolds / sv.fl.Reynolds,
-		MachDifference: st.Mach - sv.fl.Mach,
+		ReynoldsRatio: res.Test.Reynolds / sv.fl.Reynolds,
+	}
+	if !sv.liquid {
+		d := st.Mach - sv.fl.Mach
+		res.Mismatch.MachDifference = &d
 	}
 	if sv.liquid || sv.froudeMatters() {
 		res.Mismatch.FroudeRatio = res.Test.Froude / sv.fl.Froude
 	}
 	res.Binding = sv.bindings(x, st)
 	res.Warnings = append(res.Warnings, sv.notes(x, st, res)...)
-	res.Cautions = sv.cautions(st)
+	res.Cautions = facilities.Cautions(sv.f)
 	return res
 }
 
@@ -119,7 +122,7 @@ func (sv *solver) bindings(x cand, st facilities.State) []Binding {
 // notes returns the plan's warnings.
 func (sv *solver) notes(x cand, st facilities.State, res *Result) []string {
 	var w []string
-	if !sv.liquid && math.Abs(res.Mismatch.MachDifference) > sv.obj.tol*(1+1e-9) && !sv.obj.weighted && sv.obj.levels[0] == gMach {
+	if !sv.liquid && math.Abs(*res.Mismatch.MachDifference) > sv.obj.tol*(1+1e-9) && !sv.obj.weighted && sv.obj.levels[0] == gMach {
 		w = append(w, fmt.Sprintf("the flight Mach number %.4g is out of the facility's reach: the nearest usable is %.4g", sv.fl.Mach, st.Mach))
 	}
 	if r := res.Mismatch.ReynoldsRatio; r < 0.999 {
@@ -133,19 +136,4 @@ func (sv *solver) notes(x cand, st facilities.State, res *Result) []string {
 	}
 	w = append(w, sv.f.Warnings(st)...)
 	return w
-}
-
-// cautions returns the safety reminders that fit the plan.
-func (sv *solver) cautions(st facilities.State) []string {
-	c := []string{"These figures are estimates. The facility's approved limits, its operating procedures and licensed engineering judgement govern every test."}
-	if !sv.liquid && st.StagnationPressure > 1.05*atmosphere.SeaLevelPressure {
-		c = append(c, fmt.Sprintf("The circuit runs pressurised (%.4g kPa stagnation pressure): check the pressure vessel's approved rating.", st.StagnationPressure/1000))
-	}
-	if sv.f.Medium.Kind == facilities.MediumNitrogen && st.StagnationTemperature < 200 {
-		c = append(c, "Cryogenic nitrogen: asphyxiation and cold-burn hazards; follow the facility's oxygen-monitoring and access procedures.")
-	}
-	if sv.load != nil {
-		c = append(c, "The balance limit is an estimate from the aerodynamic model: confirm loads against the balance's calibration before running.")
-	}
-	return c
 }

@@ -93,7 +93,7 @@ func TestPlanAndStoredPlan(t *testing.T) {
 		t.Fatalf("loads: %+v; want int-b1 with 21 points", p.Loads)
 	}
 	// Mach is matched within the default tolerance of 0.005.
-	if d := math.Abs(p.Mismatch.MachDifference); d > 0.005+1e-9 {
+	if d := math.Abs(*p.Mismatch.MachDifference); d > 0.005+1e-9 {
 		t.Errorf("|ΔM| = %.4g, above the 0.005 tolerance", d)
 	}
 	if !slices.ContainsFunc(p.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintDynamic }) {

@@ -92,7 +92,11 @@ func writeLoadCheck(w io.Writer, r *api.LoadsResponse, us bool) error {
 		row("flight Mach number", "%.4f", r.Flight.Mach)
 		row("flight Reynolds number", "%.4g", r.Flight.Reynolds)
 		row("Re test / Re flight", "%.4g", r.Mismatch.ReynoldsRatio)
-		row("M test - M flight", "%+.4f", r.Mismatch.MachDifference)
+		if d := r.Mismatch.MachDifference; d != nil {
+			row("M test - M flight", "%+.4f", *d)
+		} else {
+			row("M test - M flight", "%s", "not a target in water")
+		}
 		tw.Flush()
 	}
 

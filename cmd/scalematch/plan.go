@@ -326,7 +326,11 @@ func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 
 	section(w, "Mismatch")
 	row("Re test / Re flight", "%.4g", r.Mismatch.ReynoldsRatio)
-	row("M test - M flight", "%+.4f", r.Mismatch.MachDifference)
+	if d := r.Mismatch.MachDifference; d != nil {
+		row("M test - M flight", "%+.4f", *d)
+	} else {
+		row("M test - M flight", "%s", "not a target in water")
+	}
 	if r.Mismatch.FroudeRatio != 0 {
 		row("Fr test / Fr flight", "%.4g", r.Mismatch.FroudeRatio)
 	}
