@@ -646,7 +646,7 @@ const cryogenicBelow = 200
 // pressure vessels and cryogenic nitrogen when they apply.
 func Cautions(f *Facility, reports ...LoadReport) []string {
 	out := []string{
-		"These loads are engineering estimates from a simplified aerodynamic model, not a clearance to run: the facility's approved balance ratings, the model's stress analysis, the facility's operating procedures and the judgement of a licensed engineer govern.",
+		"These figures are engineering estimates from simplified published models, not a clearance to run: the facility's approved limits and balance ratings, the model's stress analysis, the facility's operating procedures and the judgement of a licensed engineer govern.",
 	}
 	for _, r := range reports {
 		if r.MaxUtilization > CautionFraction*r.AllowedUtilization {
