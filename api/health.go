@@ -62,10 +62,6 @@ func (s *Server) healthz(c *gin.Context) {
 //	@Failure		503	{object}	Problem
 //	@Router			/readyz [get]
 func (s *Server) readyz(c *gin.Context) {
-	if s.cfg.Catalog == nil {
-		s.writeProblem(c, kindUnavailable.problem(c, "no store is configured"))
-		return
-	}
 	ctx, cancel := context.WithTimeout(c.Request.Context(), readyTimeout)
 	defer cancel()
 	if err := s.cfg.Catalog.Ping(ctx); err != nil {

@@ -34,7 +34,8 @@ const BodyLimit = 1 << 20
 
 // Config is what the service needs from its caller; main builds it.
 type Config struct {
-	// Catalog is the facility catalog and plan store.
+	// Catalog is the facility catalog and plan store; nil: facilities.DemoCatalog,
+	// the embedded demo facilities read-only, with no plans kept.
 	Catalog facilities.Catalog
 	// WriteTokens maps each bearer token allowed to change the catalog to the name
 	// recorded in the audit trail. Empty: every catalog change is refused (403).
@@ -64,6 +65,9 @@ func New(cfg Config) (*Server, error) {
 	}
 	if cfg.Registry == nil {
 		cfg.Registry = prometheus.NewRegistry()
+	}
+	if cfg.Catalog == nil {
+		cfg.Catalog = facilities.DemoCatalog{}
 	}
 	m, err := newMetrics(cfg.Registry)
 	if err != nil {
