@@ -1,0 +1,456 @@
+package api_test
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+	"log/slog"
+	"math"
+	"net/http"
+	"net/http/httptest"
+	"strconv"
+	"strings"
+	"testing"
+
+	"scalematch/api"
+	"scalematch/facilities"
+)
+
+// matrixAircraft is one aircraft of the demo world (docs: scenario.md, "Aircraft"),
+// with its geometry, aerodynamic estimate and cruise exactly as listed there.
+type matrixAircraft struct {
+	name    string
+	article string // the plan request's "article" object
+	flight  string // the plan request's "flight" object: the listed cruise
+}
+
+// matrixAircrafts are the four demo aircraft. Geometry in m and m², lift and moment
+// slopes per radian, zero-lift α in degrees (scenario.md).
+var matrixAircrafts = []matrixAircraft{
+	{"Velmar T70",
+		`{"reference_length": 2.25, "reference_area": 61, "span": 27.0, "length": 27.2, "frontal_area": 9.0, "wetted_area": 380,
+		  "aero": {"lift_slope": 5.4, "zero_lift_alpha": -2.0, "cl_max": 1.5, "cd_min": 0.026, "cl_at_cd_min": 0.20,
+		           "induced_drag_factor": 0.040, "cm_zero": 0.05, "cm_slope": -0.9}}`,
+		`{"altitude": 7600, "mach": 0.50}`},
+	{"Orrin J20",
+		`{"reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0, "frontal_area": 5.5, "wetted_area": 290,
+		  "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021, "cl_at_cd_min": 0.15,
+		           "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}}`,
+		`{"altitude": 12500, "mach": 0.80}`},
+	{"Pellin P2",
+		`{"reference_length": 1.45, "reference_area": 12.5, "span": 8.8, "length": 7.4, "frontal_area": 1.9, "wetted_area": 42,
+		  "aero": {"lift_slope": 5.2, "zero_lift_alpha": -2.5, "cl_max": 1.6, "cd_min": 0.028, "cl_at_cd_min": 0.10,
+		           "induced_drag_factor": 0.050, "cm_zero": 0.04, "cm_slope": -0.8}}`,
+		`{"altitude": 2400, "true_airspeed": 72}`},
+	{"Quill U4",
+		`{"reference_length": 0.38, "reference_area": 1.25, "span": 3.3, "length": 1.9, "frontal_area": 0.09, "wetted_area": 3.6,
+		  "aero": {"lift_slope": 5.0, "zero_lift_alpha": -3.0, "cl_max": 1.3, "cd_min": 0.030, "cl_at_cd_min": 0.30,
+		           "induced_drag_factor": 0.045, "cm_zero": 0.06, "cm_slope": -0.6}}`,
+		`{"altitude": 1200, "true_airspeed": 32}`},
+}
+
+// matrixFacility is one demo facility of the matrix with the mass of the model
+// planned in it: the same physical model mass whatever scale the planner picks
+// (facilities.Installation). The masses are hand estimates of a metric model
+// sized for each section, well inside each balance's normal rating on their own:
+// 40 kg is 392 N against ext-6c's 6000 N and int-a's 2667 N allowed; 2 kg in
+// water is 19.6 N against hyd-s's 133 N allowed (ratings over 1.5, scenario.md).
+type matrixFacility struct {
+	id       string
+	mass     float64 // kg
+	balances int     // number of balances the facility lists (scenario.md)
+	water    bool
+}
+
+var matrixFacilities = []matrixFacility{
+	{"lsw-2", 40, 2, false},
+	{"plp-3", 60, 1, false},
+	{"tsw-1", 20, 2, false},
+	{"cn2-05", 8, 1, false},
+	{"wtn-04", 2, 1, true},
+}
+
+// matrixInfeasible lists the combinations expected to answer 422. None: the
+// request leaves the scale free (model {}), down to the planner's 1:1000, and
+// every demo aircraft fits every section at a small enough scale. The largest
+// span, the Velmar T70's 27 m, needs a scale of at most 0.8 × 0.4 m / 27 m
+// = 0.0119 in wtn-04 and 0.65 × 0.5 m / 27 m = 0.0120 in cn2-05 (span rules of
+// scenario.md), both far above 1:1000; at such scales the aerodynamic loads are
+// small and each model's weight alone (the masses above) stays under every
+// rating over its safety factor, so some q > 0 is always safe on the balance.
+var matrixInfeasible = map[string]bool{}
+
+// matrixServer is the service over the embedded demo catalog.
+func matrixServer(t *testing.T) *httptest.Server {
+	t.Helper()
+	s, err := api.New(api.Config{Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ts := httptest.NewServer(s.Handler())
+	t.Cleanup(ts.Close)
+	return ts
+}
+
+// matrixPost posts body to path and returns the status, content type and body.
+func matrixPost(t *testing.T, ts *httptest.Server, path, body string) (int, string, []byte) {
+	t.Helper()
+	resp, err := http.Post(ts.URL+path, "application/json", strings.NewReader(body))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer resp.Body.Close()
+	b, err := io.ReadAll(resp.Body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return resp.StatusCode, resp.Header.Get("Content-Type"), b
+}
+
+// matrixFinite walks a JSON document and returns the path of the first number
+// that is not a finite float64, or of a string spelling NaN or infinity; "" when
+// every number is finite.
+func matrixFinite(t *testing.T, body []byte) string {
+	t.Helper()
+	dec := json.NewDecoder(bytes.NewReader(body))
+	dec.UseNumber()
+	var v any
+	if err := dec.Decode(&v); err != nil {
+		t.Fatalf("answer is not JSON: %v: %s", err, body)
+	}
+	var walk func(v any, path string) string
+	walk = func(v any, path string) string {
+		switch x := v.(type) {
+		case json.Number:
+			f, err := strconv.ParseFloat(string(x), 64)
+			if err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
+				return path
+			}
+		case string:
+			switch strings.ToLower(strings.TrimLeft(x, "+-")) {
+			case "nan", "inf", "infinity":
+				return path
+			}
+		case []any:
+			for i, e := range x {
+				if p := walk(e, fmt.Sprintf("%s[%d]", path, i)); p != "" {
+					return p
+				}
+			}
+		case map[string]any:
+			for k, e := range x {
+				if p := walk(e, path+"."+k); p != "" {
+					return p
+				}
+			}
+		}
+		return ""
+	}
+	return walk(v, "$")
+}
+
+// matrixAlphas are the 21 angles of the sweep −4° to 16° by 1°, in degrees.
+func matrixAlphas() []float64 {
+	out := make([]float64, 21)
+	for i := range out {
+		out[i] = -4 + float64(i)
+	}
+	return out
+}
+
+// matrixPlanBody is the plan request of one aircraft in one facility: cruise,
+// any scale, the planner's choice of balance, the default objective.
+func matrixPlanBody(a matrixAircraft, f matrixFacility) string {
+	return fmt.Sprintf(`{"flight": %s, "article": %s, "facility_id": %q, "model": {},
+  "installation": {"model_mass": %g}, "alpha": {"from": -4, "to": 16, "step": 1}}`, a.flight, a.article, f.id, f.mass)
+}
+
+// checkMatrixReport checks one balance's load report over the 21-point sweep: every
+// point present at its α, each at or under 1/safety factor (1e-9 relative) when
+// within is set, the worst point and the safe dynamic pressure consistent.
+func checkMatrixReport(t *testing.T, r *facilities.LoadReport, q float64, within bool) {
+	t.Helper()
+	alphas := matrixAlphas()
+	if len(r.Points) != len(alphas) {
+		t.Fatalf("balance %s: %d load points, want %d", r.BalanceID, len(r.Points), len(alphas))
+	}
+	if r.SafetyFactor != 1.5 || math.Abs(r.AllowedUtilization-1/1.5) > 1e-12 {
+		t.Errorf("balance %s: safety factor %g, allowed %g; every demo balance has 1.5 (scenario.md)", r.BalanceID, r.SafetyFactor, r.AllowedUtilization)
+	}
+	worst := 0.0
+	for i, p := range r.Points {
+		if math.Abs(p.Alpha-alphas[i]) > 1e-9 {
+			t.Errorf("balance %s: point %d at α %g°, want %g°", r.BalanceID, i, p.Alpha, alphas[i])
+		}
+		if !(p.Utilization >= 0) || p.Limiting == "" {
+			t.Errorf("balance %s α %g°: utilisation %g on %q", r.BalanceID, p.Alpha, p.Utilization, p.Limiting)
+		}
+		if within && p.Utilization > r.AllowedUtilization*(1+1e-9) {
+			t.Errorf("balance %s α %g°: utilisation %.9g above the allowed %.9g (%s)", r.BalanceID, p.Alpha, p.Utilization, r.AllowedUtilization, p.Limiting)
+		}
+		worst = math.Max(worst, p.Utilization)
+	}
+	if math.Abs(worst-r.MaxUtilization) > 1e-12*worst || r.Limiting.Component == "" {
+		t.Errorf("balance %s: max utilisation %g on %q, the points' largest is %g", r.BalanceID, r.MaxUtilization, r.Limiting.Component, worst)
+	}
+	if r.WithinLimits != within {
+		t.Errorf("balance %s: within limits %v, want %v", r.BalanceID, r.WithinLimits, within)
+	}
+	if math.Abs(r.DynamicPressure-q) > 1e-9*q {
+		t.Errorf("balance %s: checked at q %g Pa, the test is at %g Pa", r.BalanceID, r.DynamicPressure, q)
+	}
+	// Loads are affine in q, so a check within its limits at q has its largest safe
+	// q at or above q, and one beyond them below it.
+	if ms := r.MaxSafeDynamicPressure; math.IsInf(ms, 0) || math.IsNaN(ms) || (within && ms < q*(1-1e-9)) || (!within && ms > q*(1+1e-9)) {
+		t.Errorf("balance %s: max safe dynamic pressure %g Pa against the test's %g Pa (within limits %v)", r.BalanceID, ms, q, within)
+	}
+	if !r.WeightIncluded {
+		t.Errorf("balance %s: the model's weight is left out though model_mass is given", r.BalanceID)
+	}
+}
+
+// matrixEstimatesCaution is a phrase of the standing caution every load answer
+// carries (facilities.Cautions): the loads are engineering estimates.
+const matrixEstimatesCaution = "engineering estimates"
+
+func hasCaution(cs []string, phrase string) bool {
+	for _, c := range cs {
+		if strings.Contains(c, phrase) {
+			return true
+		}
+	}
+	return false
+}
+
+// TestDemoMatrix plans every demo aircraft in every demo facility through the HTTP
+// handler and checks each answer: a plan whose loads, corrections, Reynolds effects,
+// schedule, warnings and cautions are all present and finite, with every load point
+// at or under 1/safety factor; or a 422 naming the conflicting limits where one is
+// expected. Then it asks POST /v1/loads at each plan's test state, with the plan's
+// balance named (one object, equal to the plan's loads) and without (a list, one
+// report per balance of the facility).
+func TestDemoMatrix(t *testing.T) {
+	ts := matrixServer(t)
+	for _, a := range matrixAircrafts {
+		for _, f := range matrixFacilities {
+			name := a.name + " in " + f.id
+			t.Run(strings.ReplaceAll(name, " ", "_"), func(t *testing.T) {
+				code, ctype, body := matrixPost(t, ts, "/v1/plans", matrixPlanBody(a, f))
+				if p := matrixFinite(t, body); p != "" {
+					t.Fatalf("non-finite number at %s: %s", p, body)
+				}
+				if matrixInfeasible[name] {
+					checkMatrixProblem(t, code, ctype, body)
+					return
+				}
+				if code != http.StatusOK {
+					t.Fatalf("status %d, want a plan: %s", code, body)
+				}
+				plan := checkMatrixPlan(t, f, body)
+				var binds []string
+				for _, b := range plan.Binding {
+					binds = append(binds, b.Constraint)
+				}
+				t.Logf("scale 1:%.4g, M %.4g, q %.4g Pa, Re ratio %.4g; balance %s at %.4g (%s at α %g°); binding %v",
+					1/plan.Model.Scale, plan.Test.Mach, plan.Test.DynamicPressure, plan.Mismatch.ReynoldsRatio,
+					plan.Loads.BalanceID, plan.Loads.MaxUtilization, plan.Loads.Limiting.Component, plan.Loads.Limiting.Alpha, binds)
+				checkMatrixLoads(t, ts, a, f, plan)
+			})
+		}
+	}
+}
+
+// checkMatrixProblem checks a 422 answer: an RFC 9457 problem naming the limits.
+func checkMatrixProblem(t *testing.T, code int, ctype string, body []byte) {
+	t.Helper()
+	if code != http.StatusUnprocessableEntity {
+		t.Fatalf("status %d, want 422: %s", code, body)
+	}
+	if !strings.HasPrefix(ctype, "application/problem+json") {
+		t.Errorf("content type %q, want application/problem+json", ctype)
+	}
+	var p api.Problem
+	if err := json.Unmarshal(body, &p); err != nil {
+		t.Fatal(err)
+	}
+	if p.Status != 422 || len(p.Limits) == 0 || p.Detail == "" {
+		t.Errorf("422 problem without status, detail or limits: %s", body)
+	}
+}
+
+// checkMatrixPlan checks one plan answer and returns it decoded.
+func checkMatrixPlan(t *testing.T, f matrixFacility, body []byte) *api.PlanResponse {
+	t.Helper()
+	var raw map[string]json.RawMessage
+	if err := json.Unmarshal(body, &raw); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"id", "flight", "model", "test", "mismatch", "binding", "corrections", "loads",
+		"reynolds_effects", "schedule", "warnings", "cautions"} {
+		if v, ok := raw[k]; !ok || string(v) == "null" {
+			t.Errorf("plan has no %q", k)
+		}
+	}
+	var plan api.PlanResponse
+	if err := json.Unmarshal(body, &plan); err != nil {
+		t.Fatal(err)
+	}
+	if plan.Loads == nil || plan.ReynoldsEffects == nil || plan.Schedule == nil {
+		t.Fatalf("plan lacks loads, Reynolds effects or schedule: %s", body)
+	}
+	checkMatrixReport(t, plan.Loads, plan.Test.DynamicPressure, true)
+	if plan.Loads.MaxUtilization > plan.Loads.AllowedUtilization*(1+1e-9) {
+		t.Errorf("plan loads balance %s to %.9g of its rating, above the %.9g allowed", plan.Loads.BalanceID, plan.Loads.MaxUtilization, plan.Loads.AllowedUtilization)
+	}
+	// The reads of the plan that must stay physical: a positive scale, test
+	// Reynolds number and dynamic pressure; a q_c/q of at least 1 (blockage only
+	// speeds the flow up, physics.md §7) or exactly 1 where no correction applies.
+	if !(plan.Model.Scale > 0) || !(plan.Test.Reynolds > 0) || !(plan.Test.DynamicPressure > 0) {
+		t.Errorf("scale %g, test Re %g, q %g Pa", plan.Model.Scale, plan.Test.Reynolds, plan.Test.DynamicPressure)
+	}
+	fac, ok := facilities.DemoFacility(f.id)
+	if !ok {
+		t.Fatalf("no demo facility %s", f.id)
+	}
+	if lim := *fac.MaxSpanFraction * fac.TestSection.Width; plan.Model.Span > lim*(1+1e-9) {
+		t.Errorf("model span %g m above the %g m the section allows", plan.Model.Span, lim)
+	}
+	if plan.Model.Blockage > *fac.MaxBlockage*(1+1e-9) {
+		t.Errorf("blockage %g above the %g allowed", plan.Model.Blockage, *fac.MaxBlockage)
+	}
+	if c := plan.Corrections; c.Walls == "" || c.DynamicPressureFactor < 1 {
+		t.Errorf("corrections %+v", c)
+	}
+	// 21 α points at one condition (no β sweep): the schedule counts them and takes
+	// some time.
+	if plan.Schedule.Points != 21 || !(plan.Schedule.Hours > 0) {
+		t.Errorf("schedule %+v, want 21 points and hours > 0", plan.Schedule)
+	}
+	if !hasCaution(plan.Cautions, matrixEstimatesCaution) {
+		t.Errorf("cautions %q lack the estimates caution", plan.Cautions)
+	}
+	if plan.Warnings == nil {
+		t.Errorf("warnings is null, want a list")
+	}
+	if f.water != (plan.Mismatch.MachDifference == nil) {
+		t.Errorf("mach difference %v in a water facility %v", plan.Mismatch.MachDifference, f.water)
+	}
+	if re := plan.ReynoldsEffects; !(re.SkinFrictionFlight > 0 && re.SkinFrictionTest > 0) ||
+		!(re.NaturalTransitionFraction >= 0 && re.NaturalTransitionFraction <= 1) {
+		t.Errorf("Reynolds effects %+v", re)
+	}
+	return &plan
+}
+
+// checkMatrixLoads asks POST /v1/loads at the plan's scale and test state, with the
+// plan's balance named and with none.
+func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f matrixFacility, plan *api.PlanResponse) {
+	t.Helper()
+	speed := fmt.Sprintf(`"mach": %s`, strconv.FormatFloat(plan.Test.Mach, 'g', -1, 64))
+	if f.water {
+		speed = fmt.Sprintf(`"speed": %s`, strconv.FormatFloat(plan.Test.Speed, 'g', -1, 64))
+	}
+	body := func(balance string) string {
+		return fmt.Sprintf(`{"article": %s, "facility_id": %q, "model": {"scale": %s},
+  "installation": {%s"model_mass": %g}, "alpha": {"from": -4, "to": 16, "step": 1},
+  "test": {%s, "stagnation_pressure": %s, "stagnation_temperature": %s}}`,
+			a.article, f.id, strconv.FormatFloat(plan.Model.Scale, 'g', -1, 64), balance, f.mass, speed,
+			strconv.FormatFloat(plan.Test.StagnationPressure, 'g', -1, 64),
+			strconv.FormatFloat(plan.Test.StagnationTemperature, 'g', -1, 64))
+	}
+	t.Run("loads_named", func(t *testing.T) {
+		code, _, b := matrixPost(t, ts, "/v1/loads", body(fmt.Sprintf(`"balance_id": %q, `, plan.Loads.BalanceID)))
+		if p := matrixFinite(t, b); p != "" {
+			t.Fatalf("non-finite number at %s: %s", p, b)
+		}
+		if code != http.StatusOK {
+			t.Fatalf("status %d: %s", code, b)
+		}
+		var raw struct {
+			Loads json.RawMessage `json:"loads"`
+		}
+		if err := json.Unmarshal(b, &raw); err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.HasPrefix(bytes.TrimSpace(raw.Loads), []byte("{")) {
+			t.Fatalf("loads with balance_id is not one object: %s", raw.Loads)
+		}
+		var out api.LoadsResponse
+		if err := json.Unmarshal(b, &out); err != nil {
+			t.Fatal(err)
+		}
+		r := out.Loads.One
+		if r == nil || r.BalanceID != plan.Loads.BalanceID {
+			t.Fatalf("loads %+v, want balance %s", r, plan.Loads.BalanceID)
+		}
+		// The same model at the same state: the same test q (1e-9) and the same
+		// loads, point by point, as the plan's (1e-9 relative to the point's largest).
+		if math.Abs(out.Test.DynamicPressure-plan.Test.DynamicPressure) > 1e-9*plan.Test.DynamicPressure {
+			t.Errorf("q %g Pa, the plan's %g Pa", out.Test.DynamicPressure, plan.Test.DynamicPressure)
+		}
+		checkMatrixReport(t, r, out.Test.DynamicPressure, true)
+		for i, p := range r.Points {
+			w := plan.Loads.Points[i]
+			got := []float64{p.Normal, p.Axial, p.Side, p.PitchingMoment, p.RollingMoment, p.YawingMoment, p.Utilization}
+			want := []float64{w.Normal, w.Axial, w.Side, w.PitchingMoment, w.RollingMoment, w.YawingMoment, w.Utilization}
+			scale := 0.0
+			for _, v := range want {
+				scale = math.Max(scale, math.Abs(v))
+			}
+			for k := range got {
+				if math.Abs(got[k]-want[k]) > 1e-9*scale+1e-12 {
+					t.Errorf("α %g° component %d: %.12g, the plan's %.12g", p.Alpha, k, got[k], want[k])
+				}
+			}
+		}
+		if len(out.Violations) != 0 {
+			t.Errorf("the plan's own state breaks facility limits: %+v", out.Violations)
+		}
+		if !hasCaution(out.Cautions, matrixEstimatesCaution) {
+			t.Errorf("cautions %q lack the estimates caution", out.Cautions)
+		}
+	})
+	t.Run("loads_all", func(t *testing.T) {
+		code, _, b := matrixPost(t, ts, "/v1/loads", body(""))
+		if p := matrixFinite(t, b); p != "" {
+			t.Fatalf("non-finite number at %s: %s", p, b)
+		}
+		if code != http.StatusOK {
+			t.Fatalf("status %d: %s", code, b)
+		}
+		var raw struct {
+			Loads json.RawMessage `json:"loads"`
+		}
+		if err := json.Unmarshal(b, &raw); err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.HasPrefix(bytes.TrimSpace(raw.Loads), []byte("[")) {
+			t.Fatalf("loads without balance_id is not a list: %s", raw.Loads)
+		}
+		var out api.LoadsResponse
+		if err := json.Unmarshal(b, &out); err != nil {
+			t.Fatal(err)
+		}
+		if len(out.Loads.All) != f.balances {
+			t.Fatalf("%d reports, want one per balance of %s (%d)", len(out.Loads.All), f.id, f.balances)
+		}
+		found := false
+		for i := range out.Loads.All {
+			r := &out.Loads.All[i]
+			checkMatrixReport(t, r, out.Test.DynamicPressure, r.MaxUtilization <= r.AllowedUtilization*(1+1e-12))
+			if r.BalanceID == plan.Loads.BalanceID {
+				found = true
+				if !r.WithinLimits || math.Abs(r.MaxUtilization-plan.Loads.MaxUtilization) > 1e-9*plan.Loads.MaxUtilization {
+					t.Errorf("balance %s in the list: %.9g (within %v), the plan's %.9g", r.BalanceID, r.MaxUtilization, r.WithinLimits, plan.Loads.MaxUtilization)
+				}
+			}
+		}
+		if !found {
+			t.Errorf("the list has no report of the plan's balance %s", plan.Loads.BalanceID)
+		}
+		if !hasCaution(out.Cautions, matrixEstimatesCaution) {
+			t.Errorf("cautions %q lack the estimates caution", out.Cautions)
+		}
+	})
+}
