@@ -1,6 +1,10 @@
 package api
 
-import "github.com/gin-gonic/gin"
+import (
+	"github.com/gin-gonic/gin"
+
+	"scalematch/facilities"
+)
 
 // registerPlanning registers the planning endpoints on the /v1 group: atmosphere,
 // conditions, plans, the plan batch, loads, groups and the facility envelope charts.
@@ -15,5 +19,11 @@ func (s *Server) registerPlanning(v1 *gin.RouterGroup) {
 	v1.GET("/facilities/:id/envelope.png", s.getEnvelopePNG)
 }
 
-// planner returns the composition over the configured catalog.
-func (s *Server) planner() *Planner { return &Planner{Catalog: s.cfg.Catalog} }
+// planner returns the composition over the configured catalog. The read-only demo
+// catalog is passed as nil, so the composition uses its decoded-once demo table.
+func (s *Server) planner() *Planner {
+	if _, demo := s.cfg.Catalog.(facilities.DemoCatalog); demo {
+		return &Planner{}
+	}
+	return &Planner{Catalog: s.cfg.Catalog}
+}
