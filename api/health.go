@@ -25,6 +25,9 @@ type Health struct {
 func (s *Server) registerOperations() {
 	s.engine.GET("/healthz", s.healthz)
 	s.engine.GET("/readyz", s.readyz)
+	// Load balancers often probe with HEAD: same status, no body.
+	s.engine.HEAD("/healthz", s.healthz)
+	s.engine.HEAD("/readyz", s.readyz)
 	s.engine.GET("/metrics", s.metricsHandler())
 }
 

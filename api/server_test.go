@@ -335,3 +335,13 @@ func TestOpenAPI(t *testing.T) {
 		t.Error("the page refers to something outside the binary")
 	}
 }
+
+func TestHeadProbes(t *testing.T) {
+	ts := newTestServer(t, fakeCatalog{})
+	for _, path := range []string{"/healthz", "/readyz"} {
+		resp, body := ts.do(t, "HEAD", path, nil, nil)
+		if resp.StatusCode != 200 || len(body) != 0 {
+			t.Errorf("HEAD %s: %d with %d body bytes, want 200 and none", path, resp.StatusCode, len(body))
+		}
+	}
+}
