@@ -9,6 +9,7 @@ import (
 	"math"
 	"net/http"
 	"net/http/httptest"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -453,4 +454,64 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 			t.Errorf("cautions %q lack the estimates caution", out.Cautions)
 		}
 	})
+}
+
+// TestDemoMatrixInfeasible asks every demo aircraft in every demo facility for two
+// plans no facility can give, and checks that each is a 422 problem naming the
+// limits that conflict: a fixed model scale 2 % above the largest the test section
+// takes (the span rule or the blockage rule, whichever is tighter: scenario.md),
+// and a model so heavy that its weight alone, at α = 0, is 10 % above the normal
+// rating over the safety factor of the facility's strongest balance.
+func TestDemoMatrixInfeasible(t *testing.T) {
+	ts := matrixServer(t)
+	const g0 = 9.80665 // m/s², standard gravity (U.S. Standard Atmosphere, 1976)
+	for _, a := range matrixAircrafts {
+		var art struct {
+			Span        float64 `json:"span"`
+			FrontalArea float64 `json:"frontal_area"`
+		}
+		if err := json.Unmarshal([]byte(a.article), &art); err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range matrixFacilities {
+			fac, ok := facilities.DemoFacility(f.id)
+			if !ok {
+				t.Fatalf("no demo facility %s", f.id)
+			}
+			sSpan := *fac.MaxSpanFraction * fac.TestSection.Width / art.Span
+			sBlock := math.Sqrt(*fac.MaxBlockage * fac.TestSection.CrossSection() / art.FrontalArea)
+			geom, limit := sSpan, facilities.ConstraintSpan
+			if sBlock < sSpan {
+				geom, limit = sBlock, facilities.ConstraintBlockage
+			}
+			heavy := 0.0
+			for _, b := range fac.Balances {
+				heavy = math.Max(heavy, 1.1**b.Limits.Normal/(b.SafetyFactor*g0))
+			}
+			cases := []struct {
+				name, body, limit string
+			}{
+				{"too_large", strings.Replace(matrixPlanBody(a, f), `"model": {}`,
+					fmt.Sprintf(`"model": {"scale": %s}`, strconv.FormatFloat(1.02*geom, 'g', -1, 64)), 1), limit},
+				{"too_heavy", strings.Replace(matrixPlanBody(a, f), fmt.Sprintf(`"model_mass": %g`, f.mass),
+					fmt.Sprintf(`"model_mass": %s`, strconv.FormatFloat(heavy, 'g', -1, 64)), 1), facilities.ConstraintBalance},
+			}
+			for _, tc := range cases {
+				t.Run(strings.ReplaceAll(a.name, " ", "_")+"_in_"+f.id+"/"+tc.name, func(t *testing.T) {
+					code, ctype, body := matrixPost(t, ts, "/v1/plans", tc.body)
+					if p := matrixFinite(t, body); p != "" {
+						t.Fatalf("non-finite number at %s: %s", p, body)
+					}
+					checkMatrixProblem(t, code, ctype, body)
+					var p api.Problem
+					if err := json.Unmarshal(body, &p); err != nil {
+						t.Fatal(err)
+					}
+					if !slices.Contains(p.Limits, tc.limit) {
+						t.Errorf("limits %q do not name %s: %s", p.Limits, tc.limit, p.Detail)
+					}
+				})
+			}
+		}
+	}
 }
