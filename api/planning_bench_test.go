@@ -91,3 +91,52 @@ func BenchmarkBatch1000Store(b *testing.B) {
 	}
 	benchPost(b, s.Handler(), "/v1/plans/batch", batchBody(1000))
 }
+
+// storeHandler returns the full handler stack of a service over a fresh SQLite
+// catalog seeded with the demo facilities, logging nowhere.
+func storeHandler(b *testing.B) http.Handler {
+	b.Helper()
+	ctx := context.Background()
+	db, err := sqlite.Open(ctx, sqlite.Path(b.TempDir()))
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Cleanup(func() { db.Close() })
+	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
+		b.Fatal(err)
+	}
+	s, err := api.New(api.Config{Catalog: db, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	if err != nil {
+		b.Fatal(err)
+	}
+	return s.Handler()
+}
+
+// BenchmarkPlanEndpointStore is POST /v1/plans of the Orrin J20 in tsw-1 against an
+// SQLite catalog, as the service runs: the first request plans and stores it, every
+// later one is the same request and is answered with the stored bytes after its
+// decoding, validation and id.
+func BenchmarkPlanEndpointStore(b *testing.B) {
+	benchPost(b, storeHandler(b), "/v1/plans", j20Plan)
+}
+
+// BenchmarkPlannerPlan is the composition behind POST /v1/plans without HTTP,
+// decoding or encoding: the Orrin J20 in tsw-1 with a 21-point α sweep on balance
+// int-b1 of the demo catalog (validation, the load limit from the real balance,
+// the planner, wall corrections, balance loads, schedule, Reynolds effects, id).
+// Goal: under 300 µs a plan.
+func BenchmarkPlannerPlan(b *testing.B) {
+	var req api.PlanRequest
+	if err := api.Decode([]byte(j20Plan), &req); err != nil {
+		b.Fatal(err)
+	}
+	var p api.Planner
+	ctx := context.Background()
+	b.ReportAllocs()
+	b.ResetTimer()
+	for range b.N {
+		if _, err := p.Plan(ctx, &req); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

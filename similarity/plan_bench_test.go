@@ -3,6 +3,7 @@ package similarity_test
 import (
 	"testing"
 
+	"scalematch/facilities"
 	"scalematch/similarity"
 )
 
@@ -58,5 +59,42 @@ func BenchmarkReference(b *testing.B) {
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		reference(sc, 25, 13, 7, 14)
+	}
+}
+
+// BenchmarkPlanWithBalance21 times what a plan request costs at the similarity
+// level with a real balance: the Orrin J20 at cruise in tsw-1 on its balance int-b1
+// (model mass 20 kg) over a 21-point α sweep (−4° to 16°): the test matrix, the
+// load limit built from the balance's ratings, the plan, and the loads at the
+// chosen scale and test state (wall corrections and the balance check).
+// Goal: under 300 µs.
+func BenchmarkPlanWithBalance21(b *testing.B) {
+	f := planDemo(b, "tsw-1")
+	art := orrinJ20
+	// The J20's estimate as the load-test request gives it
+	// (api/testdata/load/plan-orrin-j20-tsw-1.json).
+	art.Aero = similarity.Aero{LiftSlope: 5.0, ZeroLiftAlpha: -1.5, CLMax: 1.3, CDMin: 0.021, CLAtCDMin: 0.15,
+		InducedDragFactor: 0.055, CmZero: 0.02, CmSlope: -1.1}
+	fs := planFlight(b, &art, 12500, 0.8, 0)
+	in := facilities.Installation{BalanceID: "int-b1", ModelMass: 20}
+	sweep := similarity.Sweep{From: -4, To: 16, Step: 1}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		mx, err := art.Aero.Matrix(sweep, nil)
+		if err != nil {
+			b.Fatal(err)
+		}
+		ll, err := similarity.NewLoadLimit(&art, f, in, mx)
+		if err != nil {
+			b.Fatal(err)
+		}
+		res, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &art, Facility: f, LoadLimit: ll}, nil)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if _, err := similarity.EstimateLoads(&art, f, in, res.Model.Scale, res.Test.State, mx); err != nil {
+			b.Fatal(err)
+		}
 	}
 }
