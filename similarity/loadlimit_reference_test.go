@@ -1,0 +1,460 @@
+package similarity_test
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"testing"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
+)
+
+// The planner with a real balance (similarity.NewLoadLimit over a 21-point α sweep)
+// against a brute-force search written without the planner or its load-limit hook:
+// at the plan's Mach number and stagnation temperature, a dense log-grid over
+// model scale × stagnation pressure, then a pattern search around the best point,
+// with every candidate checked from the definitions: the test-section state, the
+// facility's limits (facilities.Violations), nitrogen condensation, the test
+// section's span and blockage rules, and the full balance check
+// (facilities.LoadCase.Check with the wall corrections applied at the candidate's
+// scale and Mach number, weight included).
+
+// llrSweep is the α sweep of every case: −4° to 16° by 1°, 21 points.
+var llrSweep = similarity.Sweep{From: -4, To: 16, Step: 1}
+
+// llrCase is one planning problem with a real balance.
+type llrCase struct {
+	name     string
+	art      *similarity.Article
+	flight   similarity.Flight
+	facility string
+	in       facilities.Installation
+	model    similarity.Model
+	// bind, when set, asks that the balance be among the plan's binding limits.
+	bind bool
+	// row, when not empty, is the rated row the plan's worst load point sits on.
+	row string
+}
+
+// llrFixture is a case made ready: the facility, the resolved flight, the matrix.
+type llrFixture struct {
+	c  *llrCase
+	f  *facilities.Facility
+	fl similarity.FlightState
+	mx similarity.Matrix
+}
+
+func llrPrepare(t *testing.T, c *llrCase) *llrFixture {
+	t.Helper()
+	f, ok := facilities.DemoFacility(c.facility)
+	if !ok {
+		t.Fatalf("no demo facility %s", c.facility)
+	}
+	fl, err := c.flight.Resolve(c.art.ReferenceLength)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mx, err := c.art.Aero.Matrix(llrSweep, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mx.Points) != 21 {
+		t.Fatalf("%d matrix points, want 21", len(mx.Points))
+	}
+	return &llrFixture{c: c, f: &f, fl: fl, mx: mx}
+}
+
+// geomMax is the largest scale the test section takes: span ≤ fraction·width and
+// frontal area ≤ max blockage·section area (scenario.md), and the model's own
+// scale_max.
+func (x *llrFixture) geomMax() float64 {
+	f, a := x.f, x.c.art
+	s := math.Inf(1)
+	if f.MaxSpanFraction != nil {
+		s = *f.MaxSpanFraction * f.TestSection.Width / a.Span
+	}
+	if f.MaxBlockage != nil {
+		s = math.Min(s, math.Sqrt(*f.MaxBlockage*f.TestSection.Width*f.TestSection.Height/a.FrontalArea))
+	}
+	if x.c.model.ScaleMax != nil {
+		s = math.Min(s, *x.c.model.ScaleMax)
+	}
+	return s
+}
+
+// geomMin is the smallest scale the request allows: scale_min, else the planner's
+// documented default 1:1000 (similarity.DefaultScaleMin).
+func (x *llrFixture) geomMin() float64 {
+	if x.c.model.ScaleMin != nil {
+		return *x.c.model.ScaleMin
+	}
+	return 1e-3
+}
+
+// loadCheck runs the full balance check of a model of scale s at state st: wall
+// corrections from the section at st's Mach number, then LoadCase.Check on the
+// named balance, or, when none is named, on every balance (the case is carried
+// when any one of them carries it, as the planner's choice of balance promises).
+// It returns the carrying report, or ok false.
+func (x *llrFixture) loadCheck(t *testing.T, s float64, st facilities.State) (facilities.LoadReport, bool) {
+	a := x.c.art
+	s2 := s * s
+	w := facilities.NewWalls(x.f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)
+	pts := slices.Clone(x.mx.Points)
+	w.Apply(pts)
+	lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * s,
+		Installation: x.c.in, Points: pts}
+	var best facilities.LoadReport
+	found := false
+	for i := range x.f.Balances {
+		b := &x.f.Balances[i]
+		if x.c.in.BalanceID != "" && b.ID != x.c.in.BalanceID {
+			continue
+		}
+		r, err := lc.Check(b, st.DynamicPressure)
+		if err != nil {
+			t.Fatalf("load check at s %g, q %g: %v", s, st.DynamicPressure, err)
+		}
+		if r.WithinLimits && (!found || r.MaxUtilization > best.MaxUtilization) {
+			best, found = r, true
+		}
+	}
+	return best, found
+}
+
+// llrPoint is one candidate of the brute-force search.
+type llrPoint struct {
+	s, p0 float64
+	re, q float64
+	ok    bool
+}
+
+// evaluate checks one candidate from the definitions; infeasible candidates are
+// not ok.
+func (x *llrFixture) evaluate(t *testing.T, s, p0, mach, t0 float64) llrPoint {
+	pt := llrPoint{s: s, p0: p0}
+	if s > x.geomMax()*(1+1e-12) || s < x.geomMin()*(1-1e-12) {
+		return pt
+	}
+	st, err := x.f.State(facilities.Setting{Mach: mach, StagnationPressure: p0, StagnationTemperature: t0})
+	if err != nil || len(x.f.Violations(st)) > 0 || x.f.CondensationMargin(st) < 0 {
+		return pt
+	}
+	if _, ok := x.loadCheck(t, s, st); !ok {
+		return pt
+	}
+	// Wind off: the model sits on the balance at every α with its weight alone
+	// (physics.md §8: the balance physically carries it), so the check at q = 0
+	// must pass too.
+	off := st
+	off.DynamicPressure = 0
+	if _, ok := x.loadCheck(t, s, off); !ok {
+		return pt
+	}
+	pt.re = st.ReynoldsPerMeter * s * x.c.art.ReferenceLength
+	pt.q = st.DynamicPressure
+	pt.ok = true
+	return pt
+}
+
+// better reports whether a is closer to the flight Reynolds number than b (in
+// |ln Re_test/Re_flight|), ties going to the lower dynamic pressure, as api.md's
+// priority objective orders plans at one Mach number.
+func (x *llrFixture) better(a, b llrPoint) bool {
+	if !a.ok {
+		return false
+	}
+	if !b.ok {
+		return true
+	}
+	da, db := math.Abs(math.Log(a.re/x.fl.Reynolds)), math.Abs(math.Log(b.re/x.fl.Reynolds))
+	if da != db {
+		return da < db-1e-13
+	}
+	return a.q < b.q
+}
+
+// brute searches scale × stagnation pressure at Mach number mach and stagnation
+// temperature t0. First a log-grid of ns scales by np pressures over the allowed
+// ranges; then, around the best grid point, zooming scans in scale (21 scales over
+// ±2 cells, the cell shrinking fivefold each round), each scale with its best
+// pressure found by bisection. Bisection is exact here because at one scale, Mach
+// number and T0 the feasible pressures form one interval from the facility's
+// minimum up: q, Re/m and the condensation risk all grow with p0, and the balance
+// loads are affine in q, so with the wind-off check passing, |q·u + w| ≤ allowed
+// holds from q = 0 up to one largest q.
+func (x *llrFixture) brute(t *testing.T, mach, t0 float64, ns, np int) llrPoint {
+	sLo, sHi := x.geomMin(), x.geomMax()
+	pLo, pHi := x.f.StagnationPressure.Min, x.f.StagnationPressure.Max
+	if sHi < sLo {
+		return llrPoint{}
+	}
+	logs := func(lo, hi float64, n int) []float64 {
+		if hi <= lo || n < 2 {
+			return []float64{lo}
+		}
+		out := make([]float64, n)
+		for i := range out {
+			out[i] = lo * math.Pow(hi/lo, float64(i)/float64(n-1))
+		}
+		out[n-1] = hi
+		return out
+	}
+	var best llrPoint
+	for _, s := range logs(sLo, sHi, ns) {
+		for _, p0 := range logs(pLo, pHi, np) {
+			if pt := x.evaluate(t, s, p0, mach, t0); x.better(pt, best) {
+				best = pt
+			}
+		}
+	}
+	if !best.ok || sHi == sLo {
+		if best.ok {
+			best = x.bestPressure(t, best.s, mach, t0)
+		}
+		return best
+	}
+	h := math.Log(sHi/sLo) / float64(ns-1)
+	for range 12 {
+		c := best.s
+		for k := -10; k <= 10; k++ {
+			s := math.Min(math.Max(c*math.Exp(float64(k)*h/5), sLo), sHi)
+			if pt := x.bestPressure(t, s, mach, t0); x.better(pt, best) {
+				best = pt
+			}
+		}
+		h /= 5
+	}
+	return best
+}
+
+// bestPressure returns the best feasible candidate at scale s over the facility's
+// stagnation pressures: the largest feasible p0 (bisection to 1e-12 relative), or,
+// when that overshoots the flight Reynolds number, the p0 that meets it.
+func (x *llrFixture) bestPressure(t *testing.T, s, mach, t0 float64) llrPoint {
+	pLo, pHi := x.f.StagnationPressure.Min, x.f.StagnationPressure.Max
+	lo := x.evaluate(t, s, pLo, mach, t0)
+	if !lo.ok || pHi <= pLo {
+		return lo
+	}
+	top := x.evaluate(t, s, pHi, mach, t0)
+	if !top.ok {
+		a, b := pLo, pHi // a feasible, b not
+		for b-a > 1e-12*b {
+			m := (a + b) / 2
+			if pt := x.evaluate(t, s, m, mach, t0); pt.ok {
+				a, top = m, pt
+			} else {
+				b = m
+			}
+		}
+		if !top.ok {
+			top = lo
+		}
+	}
+	if top.re <= x.fl.Reynolds || lo.re >= x.fl.Reynolds {
+		if x.better(lo, top) {
+			return lo
+		}
+		return top
+	}
+	a, b := lo.p0, top.p0 // Re below the flight's at a, above at b
+	mid := top
+	for b-a > 1e-12*b {
+		m := (a + b) / 2
+		mid = x.evaluate(t, s, m, mach, t0)
+		if mid.re < x.fl.Reynolds {
+			a = m
+		} else {
+			b = m
+		}
+	}
+	return mid
+}
+
+// llrCheck plans case c and checks the plan against the brute-force search and the
+// full load check at its answer. Re within 0.5 %: the search's grid and the
+// planner's tolerances are both far finer, so a larger gap is a planner (or
+// load-limit) error, not round-off.
+func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bool) {
+	t.Helper()
+	x := llrPrepare(t, c)
+	ll, err := similarity.NewLoadLimit(c.art, x.f, c.in, x.mx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	prob := &similarity.Problem{Flight: x.fl, Article: c.art, Facility: x.f, Model: c.model, LoadLimit: ll}
+	res, err := similarity.Plan(prob, &similarity.Settings{TradePoints: -1, NoGains: true})
+	if err != nil {
+		var de *facilities.Error
+		if !errors.As(err, &de) || de.Code != facilities.CodeUnprocessable {
+			t.Fatalf("planner: %v", err)
+		}
+		// The planner says no plan exists: the search must find none either, at the
+		// flight Mach number brought into the facility's range, at both ends of the
+		// temperature range.
+		m := x.fl.Mach
+		if x.f.Mach != nil {
+			m = math.Min(math.Max(m, x.f.Mach.Min), x.f.Mach.Max)
+		}
+		for _, t0 := range []float64{x.f.StagnationTemperature.Min, x.f.StagnationTemperature.Max} {
+			if ref := x.brute(t, m, t0, ns, np); ref.ok {
+				t.Fatalf("planner: %v; but at M %.4g, T0 %g K the search finds s %.6g, p0 %.6g Pa, Re %.6g", err, m, t0, ref.s, ref.p0, ref.re)
+			}
+		}
+		return 0, false
+	}
+	st := res.Test.State
+	s := res.Model.Scale
+	// Every point at the plan's answer at or under 1/safety factor, by the full check.
+	r, ok := x.loadCheck(t, s, st)
+	if !ok {
+		t.Fatalf("the plan (s %.6g, q %.6g Pa) overloads the balance", s, st.DynamicPressure)
+	}
+	for _, p := range r.Points {
+		if p.Utilization > r.AllowedUtilization*(1+1e-9) {
+			t.Errorf("α %g°: %s at %.9g of its rating, above %.9g", p.Alpha, p.Limiting, p.Utilization, r.AllowedUtilization)
+		}
+	}
+	if v := x.f.Violations(st); len(v) > 0 {
+		t.Errorf("the plan breaks facility limits: %+v", v)
+	}
+	if c.bind && !slices.ContainsFunc(res.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintBalance }) {
+		t.Errorf("balance not among the binding limits %+v", res.Binding)
+	}
+	if c.row != "" && (r.Limiting.Component != c.row || math.Abs(r.MaxUtilization/r.AllowedUtilization-1) > 1e-6) {
+		t.Errorf("worst point on %s at %.6g of the allowed, want %s at the limit", r.Limiting.Component, r.MaxUtilization/r.AllowedUtilization, c.row)
+	}
+	ref := x.brute(t, st.Mach, st.StagnationTemperature, ns, np)
+	if !ref.ok {
+		t.Fatalf("the search finds no feasible model at M %.6g, T0 %.6g K; the plan has s %.6g, p0 %.6g Pa", st.Mach, st.StagnationTemperature, s, st.StagnationPressure)
+	}
+	rel := res.Test.Reynolds/ref.re - 1
+	t.Logf("plan s %.6g, M %.4g, p0 %.6g Pa, q %.6g Pa, Re %.6g; %s at α %g° %.4g of the allowed; search s %.6g, p0 %.6g Pa, Re %.6g",
+		s, st.Mach, st.StagnationPressure, st.DynamicPressure, res.Test.Reynolds, r.Limiting.Component, r.Limiting.Alpha,
+		r.MaxUtilization/r.AllowedUtilization, ref.s, ref.p0, ref.re)
+	if math.Abs(rel) > 5e-3 {
+		t.Errorf("plan Re %.6g (s %.6g, p0 %.6g Pa, q %.6g Pa); search Re %.6g (s %.6g, p0 %.6g Pa, q %.6g Pa): %+.3g %%",
+			res.Test.Reynolds, s, st.StagnationPressure, st.DynamicPressure, ref.re, ref.s, ref.p0, ref.q, 100*rel)
+	}
+	return rel, true
+}
+
+// llrAero is the aerodynamic estimate of a demo aircraft (scenario.md): lift slope
+// per rad, zero-lift α in degrees, C_Lmax, C_Dmin, C_L at C_Dmin, K, C_m0, C_mα per rad.
+func llrAero(v ...float64) similarity.Aero {
+	return similarity.Aero{LiftSlope: v[0], ZeroLiftAlpha: v[1], CLMax: v[2], CDMin: v[3], CLAtCDMin: v[4],
+		InducedDragFactor: v[5], CmZero: v[6], CmSlope: v[7]}
+}
+
+func llrFloat(v float64) *float64 { return &v }
+
+// TestLoadLimitPlanAgainstSearch covers the named demo cases.
+func TestLoadLimitPlanAgainstSearch(t *testing.T) {
+	// Demo aircraft, full scale (scenario.md).
+	j20 := &similarity.Article{ReferenceLength: 2.6, ReferenceArea: 50, Span: 19.0, Length: 20.0, FrontalArea: 5.5, WettedArea: 290,
+		Aero: llrAero(5.0, -1.5, 1.3, 0.021, 0.15, 0.055, 0.02, -1.1)}
+	t70 := &similarity.Article{ReferenceLength: 2.25, ReferenceArea: 61, Span: 27.0, Length: 27.2, FrontalArea: 9.0, WettedArea: 380,
+		Aero: llrAero(5.4, -2.0, 1.5, 0.026, 0.20, 0.040, 0.05, -0.9)}
+	p2 := &similarity.Article{ReferenceLength: 1.45, ReferenceArea: 12.5, Span: 8.8, Length: 7.4, FrontalArea: 1.9, WettedArea: 42,
+		Aero: llrAero(5.2, -2.5, 1.6, 0.028, 0.10, 0.050, 0.04, -0.8)}
+	cases := []llrCase{
+		// int-b1's axial rating (1200 N/1.5 = 800 N) caps q on the span-limited J20
+		// at α 16°, so the balance binds (the planning example of api/ shows it
+		// binding beside q_max).
+		{name: "Orrin J20 tsw-1 int-b1", art: j20, flight: similarity.Flight{Altitude: llrFloat(12500), Mach: llrFloat(0.80)},
+			facility: "tsw-1", in: facilities.Installation{BalanceID: "int-b1", ModelMass: 20}, bind: true},
+		// int-c's axial rating binds on the Velmar at M 0.33 (the pressurised
+		// tunnel's top Mach number): the plan sits on q_max and the balance.
+		{name: "Velmar T70 plp-3 int-c", art: t70, flight: similarity.Flight{Altitude: llrFloat(7600), Mach: llrFloat(0.50)},
+			facility: "plp-3", in: facilities.Installation{BalanceID: "int-c", ModelMass: 80}, bind: true},
+		// The forward gauge 0.5·N + 4 m⁻¹·m ≤ 6000 N/1.5 = 4000 N of ext-6c. With the
+		// moment reference 0.25 m ahead of the balance centre the normal force adds
+		// N·0.25 m to the pitching moment. Hand estimate at the Pellin's cruise Mach
+		// number (q ≈ 3.2 kPa) on the span-limited model (scale 0.2455, S = 0.753 m²,
+		// c = 0.356 m), at α 16° where C_L is capped at 1.6, C_D ≈ 0.14, C_m ≈ −0.18
+		// (physics.md §6, §8): N ≈ 1.58·3200·0.753 − 30 kg·g·cos 16° ≈ 3800 − 280
+		// = 3520 N (59 % of the 6000 N allowed), m ≈ −157 + 3800·0.25 ≈ 790 N·m (99 %
+		// of 800 N·m), gauge ≈ 1760 + 3170 ≈ 4930 N (123 % of 4000 N): the gauge row
+		// binds before any single component. The plan moves to the low edge of the
+		// Mach tolerance band and takes a smaller model until the gauge holds.
+		{name: "Pellin P2 lsw-2 ext-6c forward gauge", art: p2, flight: similarity.Flight{Altitude: llrFloat(2400), TrueAirspeed: llrFloat(72)},
+			facility: "lsw-2", in: facilities.Installation{BalanceID: "ext-6c", ModelMass: 30, BalanceOffset: facilities.Offset{X: 0.25}},
+			bind: true, row: "forward gauge"},
+	}
+	for i := range cases {
+		c := &cases[i]
+		t.Run(c.name, func(t *testing.T) {
+			rel, ok := llrCheck(t, c, 161, 81)
+			if !ok {
+				t.Fatalf("no plan")
+			}
+			t.Logf("plan Re / search Re − 1 = %+.2e", rel)
+		})
+	}
+}
+
+// llrRandomCase draws a random article, flight, installation and model choice in
+// one of the gas facilities.
+func llrRandomCase(rng *rand.Rand, i int) *llrCase {
+	ids := []string{"lsw-2", "plp-3", "tsw-1", "cn2-05"}
+	id := ids[i%len(ids)]
+	f, _ := facilities.DemoFacility(id)
+	u := func(lo, hi float64) float64 { return lo + (hi-lo)*rng.Float64() }
+	span := u(1, 30)
+	art := &similarity.Article{ReferenceLength: span / u(4, 10), Span: span, ReferenceArea: span * span / u(6, 10),
+		FrontalArea: span * span * u(0.005, 0.03), WettedArea: span * span * u(0.6, 1.2),
+		Aero: similarity.Aero{LiftSlope: u(4.5, 6), ZeroLiftAlpha: u(-3, 0), CLMax: u(1.1, 1.7), CDMin: u(0.018, 0.035),
+			CLAtCDMin: u(0, 0.3), InducedDragFactor: u(0.035, 0.06), CmZero: u(-0.05, 0.08), CmSlope: u(-1.3, -0.4)}}
+	c := &llrCase{name: fmt.Sprintf("%02d-%s", i, id), art: art, facility: id}
+	c.flight.Altitude = llrFloat(u(0, 12000))
+	if id == "lsw-2" || id == "plp-3" {
+		c.flight.Mach = llrFloat(u(0.1, 0.5))
+	} else {
+		c.flight.Mach = llrFloat(u(0.3, 0.95))
+	}
+	// The weight alone at most a third of the weakest rated normal force of the
+	// facility over its safety factor, so that most cases have a plan.
+	wmax := math.Inf(1)
+	for _, b := range f.Balances {
+		wmax = math.Min(wmax, *b.Limits.Normal/b.SafetyFactor)
+	}
+	size := math.Min(f.TestSection.Width, f.TestSection.Height)
+	c.in = facilities.Installation{
+		BalanceOffset: facilities.Offset{X: size * u(-0.05, 0.05), Z: size * u(-0.01, 0.01)},
+		CGOffset:      facilities.Offset{X: size * u(-0.05, 0.05), Z: size * u(-0.01, 0.01)},
+		ModelMass:     u(0, wmax/3/9.80665),
+	}
+	if k := rng.IntN(len(f.Balances) + 1); k < len(f.Balances) {
+		c.in.BalanceID = f.Balances[k].ID
+	}
+	if rng.IntN(3) == 0 {
+		g := 0.65 * f.TestSection.Width / span
+		c.model.ScaleMin, c.model.ScaleMax = llrFloat(g*u(0.05, 0.3)), llrFloat(g*u(0.4, 1.5))
+	}
+	return c
+}
+
+// TestLoadLimitPlanAgainstSearchRandom runs 50 seeded random articles and
+// installations across the four gas facilities.
+func TestLoadLimitPlanAgainstSearchRandom(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 2026))
+	planned, worst := 0, 0.0
+	for i := range 50 {
+		c := llrRandomCase(rng, i)
+		t.Run(c.name, func(t *testing.T) {
+			rel, ok := llrCheck(t, c, 81, 41)
+			if ok {
+				planned++
+				worst = math.Max(worst, math.Abs(rel))
+			}
+		})
+	}
+	t.Logf("50 cases: %d planned; largest |plan Re / search Re − 1| = %.2e", planned, worst)
+	if planned < 40 {
+		t.Errorf("only %d of 50 random cases have a plan: the draw no longer exercises the load limit", planned)
+	}
+}
