@@ -40,6 +40,16 @@ type Catalog interface {
 	Close() error
 }
 
+// VersionReader is implemented by catalogs that can report a facility's current
+// version more cheaply than reading the whole record, so that a caller keeping
+// decoded copies of facility versions (which never change once stored) can check
+// that its copy is current with one small query.
+type VersionReader interface {
+	// CurrentVersion returns the current version of a facility; CodeNotFound when it
+	// does not exist or was deleted.
+	CurrentVersion(ctx context.Context, id string) (int, error)
+}
+
 // Actor names who made a change: the name configured for a write token, never the
 // token itself.
 type Actor string

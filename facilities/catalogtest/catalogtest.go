@@ -39,6 +39,9 @@ func Run(t *testing.T, open func(t *testing.T) facilities.Catalog) {
 		{"ConcurrentUpdates", testConcurrentUpdates},
 		{"ConcurrentCreates", testConcurrentCreates},
 		{"ConcurrentPlans", testConcurrentPlans},
+		{"ConcurrentDistinctPlans", testConcurrentDistinctPlans},
+		{"ConcurrentIdenticalPlans", testConcurrentIdenticalPlans},
+		{"ConcurrentPlansCancelled", testConcurrentPlansCancelled},
 		{"CancelledContext", testCancelledContext},
 		{"FailMidway", testFailMidway},
 		{"Seed", testSeed},
@@ -593,6 +596,127 @@ func testConcurrentPlans(t *testing.T, c facilities.Catalog) {
 	for w, b := range got {
 		if b != nil && !bytes.Equal(b, stored.Body) {
 			t.Errorf("writer %d was answered %q, but the store keeps %q", w, b, stored.Body)
+		}
+	}
+}
+
+// testConcurrentDistinctPlans saves many different plans at once, as the writers of
+// a busy service or a batch do (a store may commit them together): every writer
+// is answered with its own record, and every record is stored byte for byte.
+func testConcurrentDistinctPlans(t *testing.T, c facilities.Catalog) {
+	const writers = 64
+	ctx := context.Background()
+	got := make([]facilities.PlanRecord, writers)
+	var wg sync.WaitGroup
+	for w := range writers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: fmt.Sprintf("distinct-%02d", w), FacilityID: "tsw-1",
+				FacilityVersion: w%3 + 1, Body: []byte(fmt.Sprintf(`{"writer":%d}`, w))})
+			if err != nil {
+				t.Errorf("writer %d: %v", w, err)
+				return
+			}
+			got[w] = p
+		}()
+	}
+	wg.Wait()
+	for w := range writers {
+		id, body := fmt.Sprintf("distinct-%02d", w), fmt.Sprintf(`{"writer":%d}`, w)
+		if got[w].ID != id || string(got[w].Body) != body || got[w].FacilityVersion != w%3+1 {
+			t.Errorf("writer %d was answered %s %q version %d, want %s %q version %d",
+				w, got[w].ID, got[w].Body, got[w].FacilityVersion, id, body, w%3+1)
+		}
+		stored, err := c.Plan(ctx, id)
+		if err != nil {
+			t.Errorf("plan %s acknowledged but not stored: %v", id, err)
+			continue
+		}
+		if string(stored.Body) != body || stored.FacilityID != "tsw-1" || stored.FacilityVersion != w%3+1 ||
+			!stored.CreatedAt.Equal(got[w].CreatedAt) {
+			t.Errorf("plan %s stored as %q %s@%d at %v, answered %q at %v",
+				id, stored.Body, stored.FacilityID, stored.FacilityVersion, stored.CreatedAt, body, got[w].CreatedAt)
+		}
+	}
+}
+
+// testConcurrentIdenticalPlans saves one id from many writers at once, with
+// different bodies, and again after it is stored: one of the bodies is kept, and
+// every writer, early or late, is answered with exactly that record.
+func testConcurrentIdenticalPlans(t *testing.T, c facilities.Catalog) {
+	const writers = 48
+	ctx := context.Background()
+	got := make([]facilities.PlanRecord, 2*writers)
+	for round := range 2 {
+		var wg sync.WaitGroup
+		for w := range writers {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				i := round*writers + w
+				p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "identical", FacilityID: "lsw-2", FacilityVersion: 1,
+					Body: []byte(fmt.Sprintf(`{"writer":%d}`, i))})
+				if err != nil {
+					t.Errorf("writer %d: %v", i, err)
+					return
+				}
+				got[i] = p
+			}()
+		}
+		wg.Wait()
+	}
+	stored, err := c.Plan(ctx, "identical")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var first int
+	if _, err := fmt.Sscanf(string(stored.Body), `{"writer":%d}`, &first); err != nil || first >= writers {
+		t.Errorf("stored body %q is not one of the first round's", stored.Body)
+	}
+	for i, p := range got {
+		if !bytes.Equal(p.Body, stored.Body) || !p.CreatedAt.Equal(stored.CreatedAt) {
+			t.Errorf("writer %d was answered %q at %v, but the store keeps %q at %v", i, p.Body, p.CreatedAt, stored.Body, stored.CreatedAt)
+		}
+	}
+}
+
+// testConcurrentPlansCancelled saves plans from many writers while some of them
+// give up at once: a writer that gets no error must find its plan stored, one that
+// gets an error must get its context's, and the others are not disturbed.
+func testConcurrentPlansCancelled(t *testing.T, c facilities.Catalog) {
+	const writers = 40
+	bg := context.Background()
+	errs := make([]error, writers)
+	var wg sync.WaitGroup
+	for w := range writers {
+		ctx, cancel := context.WithCancel(bg)
+		if w%4 == 0 {
+			cancel()
+		}
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			defer cancel()
+			if w%4 == 1 {
+				go cancel() // gives up while the others queue and commit
+			}
+			_, errs[w] = c.SavePlan(ctx, facilities.PlanRecord{ID: fmt.Sprintf("maybe-%02d", w), Body: []byte(fmt.Sprintf(`{"w":%d}`, w))})
+		}()
+	}
+	wg.Wait()
+	for w, err := range errs {
+		id := fmt.Sprintf("maybe-%02d", w)
+		stored, perr := c.Plan(bg, id)
+		switch {
+		case err == nil && perr != nil:
+			t.Errorf("writer %d was acknowledged but %s is not stored: %v", w, id, perr)
+		case err == nil && string(stored.Body) != fmt.Sprintf(`{"w":%d}`, w):
+			t.Errorf("writer %d: stored %q", w, stored.Body)
+		case err != nil && !errors.Is(err, context.Canceled):
+			t.Errorf("writer %d: %v, want success or its context's error", w, err)
+		case err != nil && w%4 > 1:
+			t.Errorf("writer %d was never cancelled but failed: %v", w, err)
 		}
 	}
 }

@@ -36,6 +36,11 @@ type DB struct {
 	w    *sql.DB // the one writer connection
 	r    *sql.DB // readers (WAL lets them run beside the writer)
 
+	// Prepared reads on r, the ones every plan request makes.
+	facilityStmt, versionStmt, planStmt *sql.Stmt
+	// plans commits SavePlan calls in groups (plans.go).
+	plans committer
+
 	now func() time.Time
 	// beforeCommit, when set by a test of this package, runs after a write's
 	// statements and before its commit; an error aborts the write.
@@ -44,6 +49,7 @@ type DB struct {
 
 var _ facilities.Catalog = (*DB)(nil)
 var _ facilities.Seeder = (*DB)(nil)
+var _ facilities.VersionReader = (*DB)(nil)
 
 // Path returns the catalog file inside the data directory dir.
 func Path(dir string) string { return filepath.Join(dir, FileName) }
@@ -84,6 +90,15 @@ func Open(ctx context.Context, path string) (*DB, error) {
 	r.SetMaxOpenConns(4)
 	r.SetMaxIdleConns(4)
 	db.r = r
+	for _, ps := range []struct {
+		stmt  **sql.Stmt
+		query string
+	}{{&db.facilityStmt, facilityQuery}, {&db.versionStmt, versionQuery}, {&db.planStmt, planQuery}} {
+		if *ps.stmt, err = r.PrepareContext(ctx, ps.query); err != nil {
+			db.Close()
+			return nil, fmt.Errorf("sqlite: preparing reads of %s: %w", path, err)
+		}
+	}
 	if err := db.Ping(ctx); err != nil {
 		db.Close()
 		return nil, err
@@ -166,7 +181,13 @@ func (db *DB) Ping(ctx context.Context) error {
 
 // Close closes the store; a WAL checkpoint runs as the last connection closes.
 func (db *DB) Close() error {
+	db.closePlans()
 	var errs []error
+	for _, st := range []*sql.Stmt{db.facilityStmt, db.versionStmt, db.planStmt} {
+		if st != nil {
+			errs = append(errs, st.Close())
+		}
+	}
 	if db.r != nil {
 		errs = append(errs, db.r.Close())
 	}
@@ -206,9 +227,7 @@ func (db *DB) Facilities(ctx context.Context) ([]facilities.Facility, error) {
 func (db *DB) Facility(ctx context.Context, id string) (facilities.Facility, error) {
 	var version int
 	var body string
-	err := db.r.QueryRowContext(ctx, `SELECT f.version, v.body FROM facilities f
-		JOIN facility_versions v ON v.facility_id = f.id AND v.version = f.version
-		WHERE f.id = ? AND f.deleted = 0`, id).Scan(&version, &body)
+	err := db.facilityStmt.QueryRowContext(ctx, id).Scan(&version, &body)
 	if errors.Is(err, sql.ErrNoRows) {
 		return facilities.Facility{}, notFound(id)
 	}
@@ -217,6 +236,26 @@ func (db *DB) Facility(ctx context.Context, id string) (facilities.Facility, err
 	}
 	return decodeFacility(body, version)
 }
+
+const facilityQuery = `SELECT f.version, v.body FROM facilities f
+	JOIN facility_versions v ON v.facility_id = f.id AND v.version = f.version
+	WHERE f.id = ? AND f.deleted = 0`
+
+// CurrentVersion returns the current version of a facility without reading its
+// record (one indexed row); CodeNotFound when it does not exist or was deleted.
+func (db *DB) CurrentVersion(ctx context.Context, id string) (int, error) {
+	var version int
+	err := db.versionStmt.QueryRowContext(ctx, id).Scan(&version)
+	if errors.Is(err, sql.ErrNoRows) {
+		return 0, notFound(id)
+	}
+	if err != nil {
+		return 0, fmt.Errorf("sqlite: reading the version of facility %q: %w", id, err)
+	}
+	return version, nil
+}
+
+const versionQuery = `SELECT version FROM facilities WHERE id = ? AND deleted = 0`
 
 // FacilityVersion returns one stored version of a facility, deleted or not. The
 // version recording a deletion has no facility and is CodeNotFound.
@@ -408,37 +447,11 @@ func (db *DB) Versions(ctx context.Context, id string) ([]facilities.Change, err
 	return out, nil
 }
 
-// SavePlan stores a plan record; a second save of the same id returns the first.
-// A zero CreatedAt is set to the time of the first save.
-func (db *DB) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities.PlanRecord, error) {
-	if p.ID == "" {
-		return facilities.PlanRecord{}, facilities.Invalid("plan record", []facilities.FieldError{{Field: "id", Message: "must not be empty"}})
-	}
-	if p.CreatedAt.IsZero() {
-		p.CreatedAt = db.now()
-	}
-	var out facilities.PlanRecord
-	err := db.tx(ctx, "save_plan", func(tx *sql.Tx) error {
-		if _, err := tx.ExecContext(ctx, `INSERT INTO plans (id, facility_id, facility_version, body, created_us)
-			VALUES (?, ?, ?, ?, ?) ON CONFLICT (id) DO NOTHING`,
-			p.ID, p.FacilityID, p.FacilityVersion, nonNil(p.Body), p.CreatedAt.UnixMicro()); err != nil {
-			return err
-		}
-		var err error
-		out, err = scanPlan(tx.QueryRowContext(ctx, planQuery, p.ID))
-		return err
-	})
-	if err != nil {
-		return facilities.PlanRecord{}, wrap("saving plan", p.ID, err)
-	}
-	return out, nil
-}
-
 const planQuery = `SELECT id, facility_id, facility_version, body, created_us FROM plans WHERE id = ?`
 
 // Plan returns a stored plan record.
 func (db *DB) Plan(ctx context.Context, id string) (facilities.PlanRecord, error) {
-	p, err := scanPlan(db.r.QueryRowContext(ctx, planQuery, id))
+	p, err := scanPlan(db.planStmt.QueryRowContext(ctx, id))
 	if errors.Is(err, sql.ErrNoRows) {
 		return facilities.PlanRecord{}, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no stored plan %q", id)}
 	}

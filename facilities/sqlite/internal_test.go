@@ -3,8 +3,10 @@ package sqlite
 import (
 	"context"
 	"errors"
+	"fmt"
 	"path/filepath"
 	"testing"
+	"time"
 
 	"scalematch/facilities"
 )
@@ -95,5 +97,93 @@ func TestDurabilitySettings(t *testing.T) {
 				t.Errorf("writer PRAGMA %s = %s, want %s", tt.pragma, got, tt.want)
 			}
 		})
+	}
+}
+
+// TestGroupCommit holds the first plan's transaction open until many more
+// SavePlan calls have queued, then checks that they were written together in one
+// more transaction, and that a failure of a group's transaction fails every call
+// in that group and stores none of them.
+func TestGroupCommit(t *testing.T) {
+	const queued = 20
+	tests := []struct {
+		name       string
+		secondErr  error // what the second group's commit hook returns
+		wantStored int
+	}{
+		{"commits", nil, 1 + queued},
+		{"fails together", errors.New("injected failure"), 1},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			ctx := context.Background()
+			db := openInternal(t)
+			release := make(chan struct{})
+			entered := make(chan struct{})
+			calls := 0
+			db.beforeCommit = func(op string) error {
+				calls++ // the committer runs one group at a time
+				if calls == 1 {
+					close(entered)
+					<-release
+					return nil
+				}
+				return tt.secondErr
+			}
+			first := make(chan error, 1)
+			go func() {
+				_, err := db.SavePlan(ctx, facilities.PlanRecord{ID: "first", Body: []byte(`{}`)})
+				first <- err
+			}()
+			<-entered
+			errs := make(chan error, queued)
+			for i := range queued {
+				go func() {
+					_, err := db.SavePlan(ctx, facilities.PlanRecord{ID: fmt.Sprintf("queued-%d", i), Body: []byte(`{}`)})
+					errs <- err
+				}()
+			}
+			// Wait until all of them are queued behind the held transaction.
+			for {
+				db.plans.mu.Lock()
+				n := len(db.plans.queue)
+				db.plans.mu.Unlock()
+				if n == queued {
+					break
+				}
+				time.Sleep(time.Millisecond)
+			}
+			close(release)
+			if err := <-first; err != nil {
+				t.Fatalf("first plan: %v", err)
+			}
+			for range queued {
+				err := <-errs
+				if !errors.Is(err, tt.secondErr) || (tt.secondErr == nil) != (err == nil) {
+					t.Errorf("queued plan: error %v, want %v", err, tt.secondErr)
+				}
+			}
+			if g, r := db.plans.groups.Load(), db.plans.records.Load(); g != 2 || r != 1+queued {
+				t.Errorf("%d records in %d transactions, want %d in 2", r, g, 1+queued)
+			}
+			var stored int
+			if err := db.r.QueryRowContext(ctx, "SELECT count(*) FROM plans").Scan(&stored); err != nil {
+				t.Fatal(err)
+			}
+			if stored != tt.wantStored {
+				t.Errorf("%d plans stored, want %d", stored, tt.wantStored)
+			}
+		})
+	}
+}
+
+// TestSavePlanAfterClose checks that a closed store refuses plans with an error.
+func TestSavePlanAfterClose(t *testing.T) {
+	db := openInternal(t)
+	if err := db.Close(); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "late", Body: []byte(`{}`)}); !errors.Is(err, errClosed) {
+		t.Errorf("SavePlan after Close: %v, want %v", err, errClosed)
 	}
 }
