@@ -439,11 +439,18 @@ func llrRandomCase(rng *rand.Rand, i int) *llrCase {
 }
 
 // TestLoadLimitPlanAgainstSearchRandom runs 50 seeded random articles and
-// installations across the four gas facilities.
+// installations across the four gas facilities (the first 12 under -short). Some
+// draws put a model so heavy on the balance that its weight alone, wind off,
+// exceeds a rating at some α (the axial one at α 16° in cn2-05, mostly): those
+// must be 422 answers that the search confirms.
 func TestLoadLimitPlanAgainstSearchRandom(t *testing.T) {
+	n := 50
+	if testing.Short() {
+		n = 12
+	}
 	rng := rand.New(rand.NewPCG(7, 2026))
 	planned, worst := 0, 0.0
-	for i := range 50 {
+	for i := range n {
 		c := llrRandomCase(rng, i)
 		t.Run(c.name, func(t *testing.T) {
 			rel, ok := llrCheck(t, c, 81, 41)
@@ -453,8 +460,8 @@ func TestLoadLimitPlanAgainstSearchRandom(t *testing.T) {
 			}
 		})
 	}
-	t.Logf("50 cases: %d planned; largest |plan Re / search Re − 1| = %.2e", planned, worst)
-	if planned < 40 {
-		t.Errorf("only %d of 50 random cases have a plan: the draw no longer exercises the load limit", planned)
+	t.Logf("%d cases: %d planned; largest |plan Re / search Re − 1| = %.2e", n, planned, worst)
+	if planned < n*4/5 {
+		t.Errorf("only %d of %d random cases have a plan: the draw no longer exercises the load limit", planned, n)
 	}
 }
