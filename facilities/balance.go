@@ -421,7 +421,9 @@ type LoadReport struct {
 	Points []LoadPoint `json:"points"`
 	// MaxUtilization is the largest point utilisation.
 	MaxUtilization float64 `json:"max_utilization"`
-	// WithinLimits reports MaxUtilization ≤ AllowedUtilization.
+	// WithinLimits reports MaxUtilization ≤ AllowedUtilization and that the wind-off
+	// loads (the model's weight alone, which the balance carries at every q on the
+	// way up) stay within it too: DynamicPressure ≤ MaxSafeDynamicPressure.
 	WithinLimits bool `json:"within_limits"`
 	// Limiting is the component and point of MaxUtilization.
 	Limiting Limiting `json:"limiting"`
@@ -541,7 +543,12 @@ func (lc *LoadCase) check(b *Balance, q float64, path string) (LoadReport, error
 			r.MaxSafeLimiting = Limiting{rs.RowName(row), p.Alpha, p.Beta}
 		}
 	}
-	r.WithinLimits = r.MaxUtilization <= r.AllowedUtilization*(1+1e-12)
+	r.WithinLimits = r.MaxUtilization <= r.AllowedUtilization*(1+1e-12) &&
+		q <= r.MaxSafeDynamicPressure*(1+1e-12)
+	if r.MaxSafeDynamicPressure == 0 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("the model's weight alone loads %s beyond %.0f %% of its rating at α %.4g°: the balance carries it wind-off and on the way to the test's dynamic pressure",
+			r.MaxSafeLimiting.Component, 100*r.AllowedUtilization, r.MaxSafeLimiting.Alpha))
+	}
 	return r, nil
 }
 

@@ -482,3 +482,33 @@ func TestSafeDynamicPressure(t *testing.T) {
 		}
 	}
 }
+
+// TestWeightCancelledByLiftIsNotSafe: the wind-on load can cancel an overweight
+// model's wind-off load, but the balance carries the weight alone before the tunnel
+// starts and on the way up to the test's q (physics.md §8), so the check must fail.
+// Worked by hand: W = 12 kg·9.80665 = 117.68 N, normal rating 100 N over a safety
+// factor of 2 allows 50 N; at α = 0, N = q·S·C_L − W = 0 at q = 117.68/(0.1·0.5)
+// = 2353.6 Pa.
+func TestWeightCancelledByLiftIsNotSafe(t *testing.T) {
+	b := facilities.Balance{ID: "small", Limits: facilities.Limits{Normal: ptr(100)}, SafetyFactor: 2}
+	lc := facilities.LoadCase{ReferenceArea: 0.1, ReferenceLength: 0.2,
+		Installation: facilities.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
+	q := 12 * 9.80665 / (0.1 * 0.5)
+	r, err := lc.Check(&b, q)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.MaxUtilization > 1e-9 {
+		t.Fatalf("wind-on utilisation %g, want 0 at the cancelling q", r.MaxUtilization)
+	}
+	if r.WithinLimits || r.MaxSafeDynamicPressure != 0 {
+		t.Errorf("within %v, max safe q %g; want false and 0: the weight alone is over the rating", r.WithinLimits, r.MaxSafeDynamicPressure)
+	}
+	found := false
+	for _, w := range r.Warnings {
+		found = found || strings.Contains(w, "weight alone")
+	}
+	if !found {
+		t.Errorf("no warning about the weight alone in %q", r.Warnings)
+	}
+}
