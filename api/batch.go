@@ -6,6 +6,7 @@ import (
 	"net/http"
 	"runtime"
 	"sync"
+	"time"
 
 	"github.com/gin-gonic/gin"
 )
@@ -54,24 +55,44 @@ func (s *Server) postPlanBatch(c *gin.Context) {
 	ctx := c.Request.Context()
 	out := make([]batchItem, len(b.Requests))
 	var mu sync.Mutex // guards s.problem's use of c (logging and request id)
-	each(len(b.Requests), func(i int) {
-		var req PlanRequest
-		// A bad item's problem names its fields as POST /v1/plans would; its
-		// position in the results says which item it is.
-		err := Decode(b.Requests[i], &req)
-		if err == nil {
-			var body []byte
-			body, err = s.timedPlan(ctx, p, &req)
-			if err == nil {
-				out[i].Plan = body
-				return
-			}
-		}
+	fail := func(i int, err error) {
 		mu.Lock()
 		pr := s.problem(c, err)
 		mu.Unlock()
 		out[i].Error = &pr
+	}
+	// The workers plan; each new plan is then stored by a goroutine of its own, so
+	// that the store can commit many of them together (group commit) while the
+	// workers plan on. The answer waits for every save.
+	var saves sync.WaitGroup
+	each(len(b.Requests), func(i int) {
+		var req PlanRequest
+		// A bad item's problem names its fields as POST /v1/plans would; its
+		// position in the results says which item it is.
+		if err := Decode(b.Requests[i], &req); err != nil {
+			fail(i, err)
+			return
+		}
+		t := time.Now()
+		pj, err := p.planJSON(ctx, &req)
+		s.observePlanner(time.Since(t))
+		switch {
+		case err != nil:
+			fail(i, err)
+		case pj.stored:
+			out[i].Plan = pj.body
+		default:
+			saves.Go(func() {
+				body, err := p.save(ctx, pj)
+				if err != nil {
+					fail(i, err)
+					return
+				}
+				out[i].Plan = body
+			})
+		}
 	})
+	saves.Wait()
 	body, err := batchJSON(out)
 	if err != nil {
 		s.fail(c, err)

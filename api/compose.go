@@ -26,6 +26,10 @@ type Planner struct {
 
 	// memo, when set (by Batch), keeps each catalog facility read once.
 	memo *facilityMemo
+	// cache, when set (by the Server), keeps decoded facility versions between
+	// requests; stored, the bodies of plans stored already (plancache.go).
+	cache  *facilityCache
+	stored *storedPlans
 }
 
 // Batch returns a planner over the same catalog that reads each catalog facility
@@ -33,7 +37,7 @@ type Planner struct {
 // that copy: every plan of a batch then uses one version of each facility, and a
 // batch of 1000 plans in one facility reads the store once, not 1000 times.
 func (p *Planner) Batch() *Planner {
-	return &Planner{Catalog: p.Catalog, memo: &facilityMemo{m: map[string]*memoEntry{}}}
+	return &Planner{Catalog: p.Catalog, memo: &facilityMemo{m: map[string]*memoEntry{}}, cache: p.cache, stored: p.stored}
 }
 
 // facilityMemo holds the catalog facilities a batch has read, by id.
@@ -49,8 +53,9 @@ type memoEntry struct {
 	err  error
 }
 
-// get returns the catalog's facility id, reading it once per memo.
-func (fm *facilityMemo) get(ctx context.Context, c facilities.Catalog, id string) (facilities.Facility, error) {
+// get returns the catalog's facility id, reading it once per memo (through the
+// service's facility cache fc when there is one).
+func (fm *facilityMemo) get(ctx context.Context, c facilities.Catalog, fc *facilityCache, id string) (facilities.Facility, error) {
 	fm.mu.Lock()
 	e, ok := fm.m[id]
 	if !ok {
@@ -58,7 +63,7 @@ func (fm *facilityMemo) get(ctx context.Context, c facilities.Catalog, id string
 		fm.m[id] = e
 	}
 	fm.mu.Unlock()
-	e.once.Do(func() { e.f, e.err = c.Facility(ctx, id) })
+	e.once.Do(func() { e.f, e.err = fc.get(ctx, c, id) })
 	return e.f, e.err
 }
 
@@ -142,9 +147,9 @@ func (p *Planner) facility(ctx context.Context, inline *facilities.Facility, id 
 	var f facilities.Facility
 	var err error
 	if p.memo != nil {
-		f, err = p.memo.get(ctx, p.Catalog, id)
+		f, err = p.memo.get(ctx, p.Catalog, p.cache, id)
 	} else {
-		f, err = p.Catalog.Facility(ctx, id)
+		f, err = p.cache.get(ctx, p.Catalog, id)
 	}
 	if err != nil {
 		return nil, err
@@ -251,6 +256,27 @@ func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *
 // CodeNotFound; a problem no plan can satisfy CodeUnprocessable naming the limits.
 // The answer's ID is set; nothing is stored.
 func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, error) {
+	pr, err := p.prepare(ctx, req)
+	if err != nil {
+		return nil, err
+	}
+	return pr.plan()
+}
+
+// preparedPlan is a plan request that passed validation, with its facility, flight
+// state and test matrix resolved and its id computed: everything up to the
+// optimisation.
+type preparedPlan struct {
+	req    *PlanRequest
+	f      *facilities.Facility
+	flight similarity.FlightState
+	mx     similarity.Matrix
+	id     string
+}
+
+// prepare validates req, resolves its facility, flight and test matrix and
+// computes the plan's id; errors are those of Plan.
+func (p *Planner) prepare(ctx context.Context, req *PlanRequest) (*preparedPlan, error) {
 	var fe fieldErrors
 	f, err := p.facility(ctx, req.Facility, req.FacilityID, &fe)
 	if err := notFoundOrFail(err, &fe, "facility_id"); err != nil {
@@ -278,6 +304,17 @@ func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, er
 	if err != nil {
 		return nil, err
 	}
+	id, err := planID("plan", req, f)
+	if err != nil {
+		return nil, err
+	}
+	return &preparedPlan{req: req, f: f, flight: flight, mx: mx, id: id}, nil
+}
+
+// plan runs the planner on a prepared request and assembles the answer.
+func (pp *preparedPlan) plan() (*PlanResponse, error) {
+	req, f, flight, mx := pp.req, pp.f, pp.flight, pp.mx
+	var err error
 	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective}
 	if len(f.Balances) > 0 {
 		ll, err := similarity.NewLoadLimit(&req.Article, f, req.Installation, mx)
@@ -338,9 +375,7 @@ func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, er
 		return nil, err
 	}
 	out.ReynoldsEffects = &re
-	if out.ID, err = planID("plan", req, f); err != nil {
-		return nil, err
-	}
+	out.ID = pp.id
 	return out, nil
 }
 
@@ -391,23 +426,57 @@ func loadsAt(f *facilities.Facility, a *similarity.Article, in facilities.Instal
 // already, the stored bytes are returned, so a repeated request is answered byte
 // for byte as the first time.
 func (p *Planner) PlanJSON(ctx context.Context, req *PlanRequest) ([]byte, error) {
-	resp, err := p.Plan(ctx, req)
+	pj, err := p.planJSON(ctx, req)
+	if err != nil || pj.stored {
+		return pj.body, err
+	}
+	return p.save(ctx, pj)
+}
+
+// plannedJSON is a plan's answer as JSON, with what its record needs.
+type plannedJSON struct {
+	id, facilityID  string
+	facilityVersion int
+	body            []byte
+	// stored: nothing is left to save; body is the stored record's, or the
+	// planner has no catalog.
+	stored bool
+}
+
+// planJSON validates req and computes its id; when the service holds that plan as
+// stored it answers with the stored bytes, else it plans and encodes the answer,
+// which is stored when the planner has a catalog (save).
+func (p *Planner) planJSON(ctx context.Context, req *PlanRequest) (plannedJSON, error) {
+	pr, err := p.prepare(ctx, req)
+	if err != nil {
+		return plannedJSON{}, err
+	}
+	pj := plannedJSON{id: pr.id, facilityID: pr.f.ID, facilityVersion: pr.f.Version}
+	if pj.body, pj.stored = p.stored.get(pr.id); pj.stored {
+		return pj, nil
+	}
+	resp, err := pr.plan()
+	if err != nil {
+		return plannedJSON{}, err
+	}
+	if pj.body, err = json.Marshal(resp); err != nil {
+		return plannedJSON{}, err
+	}
+	pj.stored = p.Catalog == nil
+	return pj, nil
+}
+
+// save stores a planned answer and returns the stored bytes: the first record of
+// its id, which is the answer itself unless an equal request was stored before.
+func (p *Planner) save(ctx context.Context, pj plannedJSON) ([]byte, error) {
+	rec, err := p.Catalog.SavePlan(ctx, facilities.PlanRecord{ID: pj.id, FacilityID: pj.facilityID, FacilityVersion: pj.facilityVersion, Body: pj.body})
 	if err != nil {
 		return nil, err
 	}
-	body, err := json.Marshal(resp)
-	if err != nil {
-		return nil, err
-	}
-	if p.Catalog == nil {
-		return body, nil
-	}
-	rec, err := p.Catalog.SavePlan(ctx, facilities.PlanRecord{ID: resp.ID, FacilityID: resp.FacilityID, FacilityVersion: resp.FacilityVersion, Body: body})
-	if err != nil {
-		return nil, err
-	}
+	body := pj.body
 	if len(rec.Body) > 0 {
-		return rec.Body, nil
+		body = rec.Body
 	}
+	p.stored.put(pj.id, body)
 	return body, nil
 }

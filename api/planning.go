@@ -25,5 +25,5 @@ func (s *Server) planner() *Planner {
 	if _, demo := s.cfg.Catalog.(facilities.DemoCatalog); demo {
 		return &Planner{}
 	}
-	return &Planner{Catalog: s.cfg.Catalog}
+	return &Planner{Catalog: s.cfg.Catalog, cache: s.facilities, stored: s.plans}
 }

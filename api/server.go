@@ -53,6 +53,10 @@ type Server struct {
 	engine  *gin.Engine
 	log     *slog.Logger
 	metrics *metrics
+	// facilities and plans keep decoded facility versions and stored plan bodies
+	// between requests (plancache.go).
+	facilities *facilityCache
+	plans      *storedPlans
 }
 
 // New builds the service: the gin router in release mode with the request-id,
@@ -79,7 +83,8 @@ func New(cfg Config) (*Server, error) {
 	e.RedirectTrailingSlash = false
 	e.RedirectFixedPath = false
 	e.ContextWithFallback = true
-	s := &Server{cfg: cfg, engine: e, log: cfg.Logger, metrics: m}
+	s := &Server{cfg: cfg, engine: e, log: cfg.Logger, metrics: m,
+		facilities: newFacilityCache(), plans: newStoredPlans(storedPlanBytes)}
 	e.Use(s.requestID, s.observe, s.recoverPanic, s.limitBody)
 	e.NoRoute(s.noRoute)
 	e.NoMethod(s.noMethod)

@@ -1,0 +1,117 @@
+package api
+
+import (
+	"context"
+	"sync"
+
+	"scalematch/facilities"
+)
+
+// maxCachedFacilities bounds the facility versions a facilityCache keeps; past it
+// the cache starts again empty.
+const maxCachedFacilities = 1024
+
+// facilityCache keeps the newest decoded version of each catalog facility a
+// service has read. A stored version never changes, so a copy is good for as long
+// as the catalog says that version is current; each lookup asks the catalog for
+// the current version (one small indexed read, facilities.VersionReader) and reads
+// and decodes the record only when it has changed. A plan therefore always uses,
+// and records, a version that was current when the request was planned, also when
+// several replicas share one database.
+//
+// The facilities handed out share their pointers and slices with the cache: the
+// planner only reads them, as it does the decoded-once demo table.
+type facilityCache struct {
+	mu sync.RWMutex
+	m  map[string]facilities.Facility
+}
+
+func newFacilityCache() *facilityCache {
+	return &facilityCache{m: map[string]facilities.Facility{}}
+}
+
+// get returns the current version of facility id in catalog c. A catalog that
+// cannot report versions cheaply is read every time.
+func (fc *facilityCache) get(ctx context.Context, c facilities.Catalog, id string) (facilities.Facility, error) {
+	vr, ok := c.(facilities.VersionReader)
+	if fc == nil || !ok {
+		return c.Facility(ctx, id)
+	}
+	v, err := vr.CurrentVersion(ctx, id)
+	if err != nil {
+		return facilities.Facility{}, err
+	}
+	fc.mu.RLock()
+	f, ok := fc.m[id]
+	fc.mu.RUnlock()
+	if ok && f.Version == v {
+		return f, nil
+	}
+	if f, err = c.Facility(ctx, id); err != nil {
+		return facilities.Facility{}, err
+	}
+	fc.mu.Lock()
+	if cur, ok := fc.m[id]; !ok || cur.Version < f.Version {
+		if !ok && len(fc.m) >= maxCachedFacilities {
+			clear(fc.m)
+		}
+		fc.m[id] = f
+	}
+	fc.mu.Unlock()
+	return f, nil
+}
+
+// storedPlanBytes bounds the bodies a storedPlans keeps, in bytes (32 MiB, about
+// 1600 plans of a 21-point sweep).
+const storedPlanBytes = 32 << 20
+
+// storedPlans keeps the bodies of plans this service has stored (or found stored)
+// by id, oldest dropped first past storedPlanBytes. A stored plan never changes and
+// its id covers the whole decoded request and the facility version, so a request
+// whose id is here is answered with these bytes, exactly as the store would, after
+// it has been decoded and validated and its id computed; a request never seen is
+// always planned.
+type storedPlans struct {
+	mu    sync.Mutex
+	m     map[string][]byte
+	order []string // ids, oldest first
+	size  int
+	limit int
+}
+
+func newStoredPlans(limit int) *storedPlans {
+	return &storedPlans{m: map[string][]byte{}, limit: limit}
+}
+
+// get returns the stored body of plan id, if it is kept.
+func (sp *storedPlans) get(id string) ([]byte, bool) {
+	if sp == nil {
+		return nil, false
+	}
+	sp.mu.Lock()
+	b, ok := sp.m[id]
+	sp.mu.Unlock()
+	return b, ok
+}
+
+// put keeps body, the stored record of plan id; callers never change it.
+func (sp *storedPlans) put(id string, body []byte) {
+	if sp == nil || len(body) > sp.limit {
+		return
+	}
+	sp.mu.Lock()
+	defer sp.mu.Unlock()
+	if _, ok := sp.m[id]; ok {
+		return
+	}
+	sp.m[id] = body
+	sp.order = append(sp.order, id)
+	sp.size += len(body)
+	for sp.size > sp.limit {
+		old := sp.order[0]
+		sp.order[0] = ""
+		sp.order = sp.order[1:]
+		sp.size -= len(sp.m[old])
+		delete(sp.m, old)
+	}
+}

@@ -1,0 +1,195 @@
+package api_test
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"log/slog"
+	"net/http"
+	"net/http/httptest"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+
+	"scalematch/api"
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
+)
+
+// replicas serves n services over one seeded SQLite file, as replicas over one
+// shared database do: each has its own facility and plan caches.
+func replicas(t *testing.T, n int) ([]*httptest.Server, *sqlite.DB) {
+	t.Helper()
+	ctx := context.Background()
+	path := filepath.Join(t.TempDir(), sqlite.FileName)
+	var out []*httptest.Server
+	var first *sqlite.DB
+	for i := range n {
+		db, err := sqlite.Open(ctx, path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Cleanup(func() { db.Close() })
+		if i == 0 {
+			first = db
+			if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
+				t.Fatal(err)
+			}
+		}
+		s, err := api.New(api.Config{Catalog: db, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+		if err != nil {
+			t.Fatal(err)
+		}
+		ts := httptest.NewServer(s.Handler())
+		t.Cleanup(ts.Close)
+		out = append(out, ts)
+	}
+	return out, first
+}
+
+// planHead is the part of a plan the tests compare.
+type planHead struct {
+	ID              string `json:"id"`
+	FacilityVersion int    `json:"facility_version"`
+	Test            struct {
+		DynamicPressure float64 `json:"dynamic_pressure"`
+	} `json:"test"`
+}
+
+func planOK(t *testing.T, ts *httptest.Server, body string) ([]byte, planHead) {
+	t.Helper()
+	status, b := post(t, ts, "/v1/plans", body)
+	if status != http.StatusOK {
+		t.Fatalf("POST /v1/plans: %d %s", status, b)
+	}
+	var h planHead
+	if err := json.Unmarshal(b, &h); err != nil {
+		t.Fatal(err)
+	}
+	return b, h
+}
+
+// TestPlanUsesCurrentFacilityVersion changes a facility behind a replica's back
+// (through another replica's store) between two equal plan requests: the second
+// plan must use and record the new version, never a cached old one, and each
+// replica must answer a stored plan byte for byte as it was first answered.
+func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
+	rs, db := replicas(t, 2)
+	a, b := rs[0], rs[1]
+	first, h1 := planOK(t, a, j20Plan)
+	if h1.FacilityVersion != 1 {
+		t.Fatalf("first plan used tsw-1 version %d, want 1", h1.FacilityVersion)
+	}
+	again, _ := planOK(t, a, j20Plan)
+	other, _ := planOK(t, b, j20Plan)
+	if !bytes.Equal(again, first) || !bytes.Equal(other, first) {
+		t.Fatal("a repeated request was not answered byte for byte as the first")
+	}
+
+	ctx := context.Background()
+	f, err := db.Facility(ctx, "tsw-1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	q := 40000.0 // below the 60 kPa the first plan sat on
+	f.MaxDynamicPressure = &q
+	if _, err := db.UpdateFacility(ctx, f, f.Version, "test"); err != nil {
+		t.Fatal(err)
+	}
+	for name, ts := range map[string]*httptest.Server{"same replica": a, "other replica": b} {
+		_, h2 := planOK(t, ts, j20Plan)
+		if h2.FacilityVersion != 2 || h2.ID == h1.ID || h2.Test.DynamicPressure > q*(1+1e-9) {
+			t.Errorf("%s after the update: version %d id %s q %.6g Pa; want version 2, a new id, q ≤ %g Pa",
+				name, h2.FacilityVersion, h2.ID, h2.Test.DynamicPressure, q)
+		}
+	}
+	if err := db.DeleteFacility(ctx, "tsw-1", 2, "test"); err != nil {
+		t.Fatal(err)
+	}
+	if status, body := post(t, a, "/v1/plans", j20Plan); status != http.StatusNotFound {
+		t.Errorf("plan in a deleted facility: %d %s, want 404", status, body)
+	}
+}
+
+// TestStoredPlanStillValidated sends requests whose valid form is stored already:
+// decoding and validation still run, so a bad field is a 400 as ever.
+func TestStoredPlanStillValidated(t *testing.T) {
+	rs, _ := replicas(t, 1)
+	planOK(t, rs[0], j20Plan)
+	tests := []struct {
+		name, body, field string
+	}{
+		{"unknown field", strings.Replace(j20Plan, `"alpha":`, `"alpah": 1, "alpha":`, 1), "alpah"},
+		{"bad balance", strings.Replace(j20Plan, `"int-b1"`, `"int-b9"`, 1), "installation.balance_id"},
+		{"trailing data", j20Plan + "{}", ""},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			status, body := post(t, rs[0], "/v1/plans", tt.body)
+			if status != http.StatusBadRequest || !bytes.Contains(body, []byte(`"field":"`+tt.field+`"`)) {
+				t.Errorf("%d %s, want 400 naming %q", status, body, tt.field)
+			}
+		})
+	}
+}
+
+// TestBatchStoresEveryPlan posts a batch of distinct plans, one repeated, to one
+// replica and reads each back from the other: every plan is stored, and the stored
+// bytes are those the batch answered.
+func TestBatchStoresEveryPlan(t *testing.T) {
+	rs, _ := replicas(t, 2)
+	var sb strings.Builder
+	sb.WriteString(`{"requests":[`)
+	const n = 40
+	for i := range n {
+		if i > 0 {
+			sb.WriteByte(',')
+		}
+		mach := 0.60 + 0.005*float64(i%(n-1)) // the last repeats the first
+		sb.WriteString(strings.Replace(j20Plan, `"mach": 0.80`, fmt.Sprintf(`"mach": %.3f`, mach), 1))
+	}
+	sb.WriteString(`]}`)
+	status, body := post(t, rs[0], "/v1/plans/batch", sb.String())
+	if status != http.StatusOK {
+		t.Fatalf("batch: %d %s", status, body)
+	}
+	var out struct {
+		Results []struct {
+			Plan  json.RawMessage `json:"plan"`
+			Error json.RawMessage `json:"error"`
+		} `json:"results"`
+	}
+	if err := json.Unmarshal(body, &out); err != nil || len(out.Results) != n {
+		t.Fatalf("batch answer: %v, %d results", err, len(out.Results))
+	}
+	if !bytes.Equal(out.Results[0].Plan, out.Results[n-1].Plan) {
+		t.Error("two equal requests in one batch were answered differently")
+	}
+	var wg sync.WaitGroup
+	for i, r := range out.Results {
+		if r.Error != nil {
+			t.Errorf("item %d: %s", i, r.Error)
+			continue
+		}
+		var h planHead
+		if err := json.Unmarshal(r.Plan, &h); err != nil {
+			t.Fatal(err)
+		}
+		wg.Go(func() {
+			resp, err := http.Get(rs[1].URL + "/v1/plans/" + h.ID)
+			if err != nil {
+				t.Error(err)
+				return
+			}
+			defer resp.Body.Close()
+			got, _ := io.ReadAll(resp.Body)
+			if resp.StatusCode != http.StatusOK || !bytes.Equal(got, r.Plan) {
+				t.Errorf("item %d: stored plan %s: %d, equal to the batch's %v", i, h.ID, resp.StatusCode, bytes.Equal(got, r.Plan))
+			}
+		})
+	}
+	wg.Wait()
+}
