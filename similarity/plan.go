@@ -243,6 +243,12 @@ type Stats struct {
 	Evaluations int `json:"evaluations"`
 	// Solves is the number of full optimisations: one, plus one per binding gain.
 	Solves int `json:"solves"`
+	// RefineEvaluations is the number of objective evaluations (each a candidate at
+	// one Mach number or speed and scale) of the Nelder–Mead refinement
+	// (gonum/optimize) that follows the structured search of a weighted objective
+	// over a scale range, summed over all solves; 0: it did not run. Their states
+	// are counted in Evaluations too.
+	RefineEvaluations int `json:"refine_evaluations,omitempty"`
 }
 
 // Result is a plan: the model, the test condition, how well it matches the flight,
@@ -313,5 +319,6 @@ func Plan(p *Problem, s *Settings) (*Result, error) {
 		res.Trade = sv.trade(best.s, n)
 	}
 	res.Stats.Evaluations += sv.evals
+	res.Stats.RefineEvaluations = sv.polishEvals
 	return res, nil
 }

@@ -296,7 +296,7 @@ func (sv *solver) solve() (cand, error) {
 	if !best.ok {
 		return cand{}, unprocessable("no plan satisfies the facility's limits", fails...)
 	}
-	return best, nil
+	return sv.polish(best, ivs), nil
 }
 
 // relaxed returns a copy of the solver with the named limit relaxed by 1 %: a
@@ -305,7 +305,7 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	f := *sv.f
 	p := *sv.p
 	r := *sv
-	r.f, r.p, r.evals, r.warnings = &f, &p, 0, nil
+	r.f, r.p, r.evals, r.warnings, r.polishEvals = &f, &p, 0, nil, 0
 	up := func(v float64) *float64 { v *= 1.01; return &v }
 	rng := func(x *facilities.Range, lower bool) *facilities.Range {
 		y := *x
@@ -359,6 +359,7 @@ func (sv *solver) gain(name string, best cand) (float64, int, error) {
 		return 0, 0, fmt.Errorf("similarity: limit %q cannot be relaxed", name)
 	}
 	b2, err := r.solve()
+	sv.polishEvals += r.polishEvals
 	if err != nil {
 		return 0, r.evals, err
 	}

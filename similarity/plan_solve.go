@@ -141,6 +141,12 @@ type solver struct {
 
 	evals    int
 	warnings []string
+
+	// noPolish skips the joint refinement of a weighted objective (polish), for
+	// the tests that compare the structured search alone with it.
+	noPolish bool
+	// polishEvals counts the refinement's objective evaluations.
+	polishEvals int
 }
 
 // newSolver validates the problem and sets up the search.

@@ -1,0 +1,156 @@
+package similarity
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/optimize"
+)
+
+// polishEvals bounds the objective evaluations of one joint refinement, the
+// starting simplex included.
+const polishEvals = 200
+
+// polishStep is the starting simplex's edge in the unit box of the refinement: half
+// a cell of the structured search's 17-point Mach (speed) grid.
+const polishStep = 1.0 / 32
+
+// polishConverge is the refinement's function tolerance: it stops when the best
+// objective value has not fallen by more than 1e-9 relative (or 1e-14 absolute, for
+// an objective near zero) over 12 successive simplex iterations.
+func polishConverge() *optimize.FunctionConverge {
+	return &optimize.FunctionConverge{Absolute: 1e-6 * levelTol, Relative: 1e-9, Iterations: 12}
+}
+
+// polish refines the structured search's best candidate x of a weighted objective
+// jointly in the test Mach number (speed in water) u and the log of the model scale
+// ln s, by the Nelder–Mead simplex method of gonum/optimize:
+//
+//	Nelder, J.A., Mead, R. (1965) A simplex method for function minimization.
+//	The Computer Journal 7(4), 308–313; the adaptive parameters of Gao, F., Han, L.
+//	(2012) Computational Optimization and Applications 51(1), 259–277.
+//
+// The weighted sum Σ w·(ln(test/flight))² is smooth in (u, ln s) inside the
+// feasible region, while the structured search nests a golden section over ln s
+// inside a grid and golden section over u; the simplex moves both at once from the
+// structured optimum. It works in the unit box over u's feasible interval holding
+// x.u and [ln sLo, ln sHi]: a point outside the box is projected onto it and pays
+// the squared distance, so that the simplex returns. Every point is evaluated
+// through prepare and at, which honour every facility limit, the scale range and
+// the load limit exactly; an infeasible point scores +Inf. The best candidate seen
+// by the solver's lexicographic key (weighted sum, then the lowest q) is returned,
+// so the result is never worse than x. It runs only for a weighted objective over a
+// scale range: a priority objective, a fixed scale and a list of scales leave x as
+// it is.
+func (sv *solver) polish(x cand, ivs []interval) cand {
+	if sv.noPolish || !sv.obj.weighted || !x.ok {
+		return x
+	}
+	ua, ub := x.u, x.u
+	for _, iv := range ivs {
+		if x.u >= iv.a && x.u <= iv.b {
+			ua, ub = iv.a, iv.b
+			break
+		}
+	}
+	la, lb := math.Log(sv.sLo), math.Log(sv.sHi)
+	// The free coordinates: u when its interval has width, ln s when the range has.
+	var lo, hi [2]float64
+	var isU [2]bool
+	dim := 0
+	if ub > ua {
+		lo[dim], hi[dim], isU[dim] = ua, ub, true
+		dim++
+	}
+	if sv.kind == scaleRange && lb > la {
+		lo[dim], hi[dim] = la, lb
+		dim++
+	}
+	if dim == 0 {
+		return x
+	}
+
+	best := x
+	n := 0
+	// The key's tie-break folded in at the scale of its tolerance: along a plateau
+	// of the weighted sum (a match the facility can meet at many settings) the
+	// simplex moves toward lower q, and elsewhere the term is below levelTol.
+	q0 := x.q
+	// eval scores a point z of the unit box (or beyond it).
+	eval := func(z []float64) float64 {
+		u, s, d2 := x.u, x.s, 0.0
+		for i := range dim {
+			zi := z[i]
+			switch {
+			case zi < 0:
+				d2 += zi * zi
+				zi = 0
+			case zi > 1:
+				d2 += (zi - 1) * (zi - 1)
+				zi = 1
+			}
+			// The ends exactly, so that a limit met at an end is met to the bit.
+			v := lo[i] + zi*(hi[i]-lo[i])
+			switch zi {
+			case 0:
+				v = lo[i]
+			case 1:
+				v = hi[i]
+			}
+			if isU[i] {
+				u = v
+			} else {
+				s = math.Exp(v)
+				switch zi {
+				case 0:
+					s = sv.sLo
+				case 1:
+					s = sv.sHi
+				}
+			}
+		}
+		n++
+		c := sv.prepare(u)
+		y := sv.at(&c, s)
+		if !y.ok || math.IsNaN(y.k.v[0]) {
+			return math.Inf(1)
+		}
+		if y.k.less(best.k) {
+			best = y
+		}
+		return y.k.v[0] + levelTol*y.q/q0 + d2
+	}
+
+	// The starting simplex: x and one step along each free coordinate, inward.
+	z0 := make([]float64, dim)
+	for i := range dim {
+		v := math.Log(x.s)
+		if isU[i] {
+			v = x.u
+		}
+		z0[i] = math.Min(math.Max((v-lo[i])/(hi[i]-lo[i]), 0), 1)
+	}
+	f0 := x.k.v[0] + levelTol
+	verts := make([][]float64, dim+1)
+	vals := make([]float64, dim+1)
+	verts[0], vals[0] = z0, f0
+	for i := range dim {
+		v := append([]float64(nil), z0...)
+		if v[i] > 0.5 {
+			v[i] -= polishStep
+		} else {
+			v[i] += polishStep
+		}
+		verts[i+1], vals[i+1] = v, eval(v)
+	}
+	nm := &optimize.NelderMead{InitialVertices: verts, InitialValues: vals}
+	settings := &optimize.Settings{
+		InitValues:      &optimize.Location{F: f0},
+		FuncEvaluations: polishEvals - n,
+		Converger:       polishConverge(),
+	}
+	// The error reports only why the simplex stopped (the evaluation bound, or a
+	// start the method rejects); the best candidate seen stands either way.
+	_, _ = optimize.Minimize(optimize.Problem{Func: eval}, z0, settings, nm)
+	sv.polishEvals += n
+	return best
+}
