@@ -3,7 +3,6 @@ package api
 import (
 	"encoding/json"
 	"fmt"
-	"net/http"
 	"runtime"
 	"sync"
 	"time"
@@ -98,7 +97,7 @@ func (s *Server) postPlanBatch(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	c.Data(http.StatusOK, "application/json; charset=utf-8", body)
+	writeJSON(c, body)
 }
 
 // batchJSON writes {"results": [...]} with each plan's bytes as they are: they are

@@ -142,6 +142,7 @@ func (s *Server) createFacility(c *gin.Context) {
 		return
 	}
 	out, err := s.cfg.Catalog.CreateFacility(c.Request.Context(), f, by)
+	s.facilities.forget(f.ID)
 	if err != nil {
 		s.fail(c, err)
 		return
@@ -212,6 +213,7 @@ func (s *Server) updateFacility(c *gin.Context) {
 		return
 	}
 	out, err := s.cfg.Catalog.UpdateFacility(c.Request.Context(), f, ifMatch, by)
+	s.facilities.forget(f.ID)
 	if err != nil {
 		s.fail(c, err)
 		return
@@ -246,7 +248,9 @@ func (s *Server) deleteFacility(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	if err := s.cfg.Catalog.DeleteFacility(c.Request.Context(), c.Param("id"), ifMatch, by); err != nil {
+	err = s.cfg.Catalog.DeleteFacility(c.Request.Context(), c.Param("id"), ifMatch, by)
+	s.facilities.forget(c.Param("id"))
+	if err != nil {
 		s.fail(c, err)
 		return
 	}
@@ -278,7 +282,7 @@ func (s *Server) getPlan(c *gin.Context) {
 	if !p.CreatedAt.IsZero() {
 		c.Header("Last-Modified", p.CreatedAt.UTC().Format(http.TimeFormat))
 	}
-	c.Data(http.StatusOK, "application/json; charset=utf-8", p.Body)
+	writeJSON(c, p.Body)
 }
 
 // etag is the strong entity tag of a catalog version (RFC 9110 §8.8.3).

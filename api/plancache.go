@@ -3,6 +3,7 @@ package api
 import (
 	"context"
 	"sync"
+	"time"
 
 	"scalematch/facilities"
 )
@@ -11,54 +12,79 @@ import (
 // the cache starts again empty.
 const maxCachedFacilities = 1024
 
+// DefaultFacilityRecheck is how long a service plans with a cached facility
+// version before it asks the catalog again whether that version is still current
+// (Config.FacilityRecheck).
+const DefaultFacilityRecheck = 50 * time.Millisecond
+
 // facilityCache keeps the newest decoded version of each catalog facility a
 // service has read. A stored version never changes, so a copy is good for as long
-// as the catalog says that version is current; each lookup asks the catalog for
-// the current version (one small indexed read, facilities.VersionReader) and reads
-// and decodes the record only when it has changed. A plan therefore always uses,
-// and records, a version that was current when the request was planned, also when
-// several replicas share one database.
+// as the catalog says that version is current. The cache asks the catalog for the
+// current version (one small indexed read, facilities.VersionReader) when its last
+// answer is older than recheck, and reads and decodes the record only when the
+// version has changed. A change made through this service (forget) is seen by the
+// next request; one made by another replica within recheck. Every plan records the
+// version it was planned with.
 //
 // The facilities handed out share their pointers and slices with the cache: the
 // planner only reads them, as it does the decoded-once demo table.
 type facilityCache struct {
-	mu sync.RWMutex
-	m  map[string]facilities.Facility
+	recheck time.Duration // ≤ 0: ask on every lookup
+	mu      sync.RWMutex
+	m       map[string]cachedFacility
 }
 
-func newFacilityCache() *facilityCache {
-	return &facilityCache{m: map[string]facilities.Facility{}}
+// cachedFacility is a facility version and when the catalog last said it was
+// current.
+type cachedFacility struct {
+	f       facilities.Facility
+	checked time.Time
 }
 
-// get returns the current version of facility id in catalog c. A catalog that
-// cannot report versions cheaply is read every time.
+func newFacilityCache(recheck time.Duration) *facilityCache {
+	return &facilityCache{recheck: recheck, m: map[string]cachedFacility{}}
+}
+
+// get returns the current version of facility id in catalog c (as of at most
+// recheck ago). A catalog that cannot report versions cheaply is read every time.
 func (fc *facilityCache) get(ctx context.Context, c facilities.Catalog, id string) (facilities.Facility, error) {
 	vr, ok := c.(facilities.VersionReader)
 	if fc == nil || !ok {
 		return c.Facility(ctx, id)
 	}
+	fc.mu.RLock()
+	e, ok := fc.m[id]
+	fc.mu.RUnlock()
+	if ok && time.Since(e.checked) < fc.recheck {
+		return e.f, nil
+	}
+	now := time.Now()
 	v, err := vr.CurrentVersion(ctx, id)
 	if err != nil {
 		return facilities.Facility{}, err
 	}
-	fc.mu.RLock()
-	f, ok := fc.m[id]
-	fc.mu.RUnlock()
-	if ok && f.Version == v {
-		return f, nil
-	}
-	if f, err = c.Facility(ctx, id); err != nil {
-		return facilities.Facility{}, err
+	if !ok || e.f.Version != v {
+		if e.f, err = c.Facility(ctx, id); err != nil {
+			return facilities.Facility{}, err
+		}
 	}
 	fc.mu.Lock()
-	if cur, ok := fc.m[id]; !ok || cur.Version < f.Version {
+	if cur, ok := fc.m[id]; !ok || cur.f.Version < e.f.Version || (cur.f.Version == e.f.Version && cur.checked.Before(now)) {
 		if !ok && len(fc.m) >= maxCachedFacilities {
 			clear(fc.m)
 		}
-		fc.m[id] = f
+		fc.m[id] = cachedFacility{f: e.f, checked: now}
 	}
 	fc.mu.Unlock()
-	return f, nil
+	return e.f, nil
+}
+
+// forget drops facility id, so that the next lookup asks the catalog; the
+// service's catalog handlers call it on every change they make.
+func (fc *facilityCache) forget(id string) {
+	fc.mu.Lock()
+	delete(fc.m, id)
+	fc.mu.Unlock()
 }
 
 // storedPlanBytes bounds the bodies a storedPlans keeps, in bytes (32 MiB, about

@@ -13,6 +13,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"time"
 
 	"scalematch/api"
 	"scalematch/facilities"
@@ -20,8 +21,9 @@ import (
 )
 
 // replicas serves n services over one seeded SQLite file, as replicas over one
-// shared database do: each has its own facility and plan caches.
-func replicas(t *testing.T, n int) ([]*httptest.Server, *sqlite.DB) {
+// shared database do: each has its own store connections and its own facility
+// and plan caches, with the given facility recheck interval.
+func replicas(t *testing.T, n int, recheck time.Duration) ([]*httptest.Server, *sqlite.DB) {
 	t.Helper()
 	ctx := context.Background()
 	path := filepath.Join(t.TempDir(), sqlite.FileName)
@@ -39,7 +41,8 @@ func replicas(t *testing.T, n int) ([]*httptest.Server, *sqlite.DB) {
 				t.Fatal(err)
 			}
 		}
-		s, err := api.New(api.Config{Catalog: db, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+		s, err := api.New(api.Config{Catalog: db, Logger: slog.New(slog.NewTextHandler(io.Discard, nil)), FacilityRecheck: recheck,
+			WriteTokens: map[string]facilities.Actor{"tok": "tester"}})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -72,12 +75,13 @@ func planOK(t *testing.T, ts *httptest.Server, body string) ([]byte, planHead) {
 	return b, h
 }
 
-// TestPlanUsesCurrentFacilityVersion changes a facility behind a replica's back
-// (through another replica's store) between two equal plan requests: the second
-// plan must use and record the new version, never a cached old one, and each
-// replica must answer a stored plan byte for byte as it was first answered.
+// TestPlanUsesCurrentFacilityVersion changes a facility behind the replicas'
+// backs (straight in the shared store) between two equal plan requests: with the
+// version asked for on every plan, the second plan must use and record the new
+// version, never a cached old one; and each replica must answer a stored plan byte
+// for byte as it was first answered.
 func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
-	rs, db := replicas(t, 2)
+	rs, db := replicas(t, 2, -1)
 	a, b := rs[0], rs[1]
 	first, h1 := planOK(t, a, j20Plan)
 	if h1.FacilityVersion != 1 {
@@ -110,14 +114,47 @@ func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 		t.Fatal(err)
 	}
 	if status, body := post(t, a, "/v1/plans", j20Plan); status != http.StatusNotFound {
-		t.Errorf("plan in a deleted facility: %d %s, want 404", status, body)
+		t.Errorf("plan in a deleted facility: %d %.200s, want 404", status, body)
+	}
+}
+
+// TestFacilityRecheck runs two replicas with the default recheck interval: a
+// change made through one replica is planned with by that replica at once, and by
+// the other once the interval has passed; until then the other plans with, and
+// records, the version it has.
+func TestFacilityRecheck(t *testing.T) {
+	rs, _ := replicas(t, 2, 0)
+	a, b := rs[0], rs[1]
+	planOK(t, a, j20Plan)
+	asked := time.Now() // b asks for the version after this
+	planOK(t, b, j20Plan)
+	r := catalogCall(t, a, http.MethodGet, "/v1/facilities/tsw-1", nil, "")
+	var f facilities.Facility
+	if err := json.Unmarshal(r.body, &f); err != nil {
+		t.Fatal(err)
+	}
+	f.Name += " (edited)"
+	body, _ := json.Marshal(f)
+	r = catalogCall(t, a, http.MethodPut, "/v1/facilities/tsw-1", map[string]string{"Authorization": "Bearer tok", "If-Match": `"1"`}, string(body))
+	if r.status != http.StatusOK {
+		t.Fatalf("PUT: %d %s", r.status, r.body)
+	}
+	if _, h := planOK(t, a, j20Plan); h.FacilityVersion != 2 {
+		t.Errorf("the replica that made the change planned with version %d, want 2", h.FacilityVersion)
+	}
+	if _, h := planOK(t, b, j20Plan); h.FacilityVersion != 1 && time.Since(asked) < api.DefaultFacilityRecheck {
+		t.Errorf("the other replica planned with version %d within the recheck interval, want its cached 1", h.FacilityVersion)
+	}
+	time.Sleep(api.DefaultFacilityRecheck + 10*time.Millisecond)
+	if _, h := planOK(t, b, j20Plan); h.FacilityVersion != 2 {
+		t.Errorf("the other replica planned with version %d after the recheck interval, want 2", h.FacilityVersion)
 	}
 }
 
 // TestStoredPlanStillValidated sends requests whose valid form is stored already:
 // decoding and validation still run, so a bad field is a 400 as ever.
 func TestStoredPlanStillValidated(t *testing.T) {
-	rs, _ := replicas(t, 1)
+	rs, _ := replicas(t, 1, 0)
 	planOK(t, rs[0], j20Plan)
 	tests := []struct {
 		name, body, field string
@@ -140,7 +177,7 @@ func TestStoredPlanStillValidated(t *testing.T) {
 // replica and reads each back from the other: every plan is stored, and the stored
 // bytes are those the batch answered.
 func TestBatchStoresEveryPlan(t *testing.T) {
-	rs, _ := replicas(t, 2)
+	rs, _ := replicas(t, 2, 0)
 	var sb strings.Builder
 	sb.WriteString(`{"requests":[`)
 	const n = 40

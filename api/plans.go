@@ -3,6 +3,7 @@ package api
 import (
 	"context"
 	"net/http"
+	"strconv"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -32,6 +33,14 @@ func (s *Server) postPlan(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
+	writeJSON(c, body)
+}
+
+// writeJSON answers 200 with body, JSON the handler has encoded, and its
+// Content-Length: a body larger than net/http's buffer would otherwise go out
+// chunked, in more writes.
+func writeJSON(c *gin.Context, body []byte) {
+	c.Header("Content-Length", strconv.Itoa(len(body)))
 	c.Data(http.StatusOK, "application/json; charset=utf-8", body)
 }
 

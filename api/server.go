@@ -45,6 +45,12 @@ type Config struct {
 	Registry *prometheus.Registry
 	// Logger receives one JSON line per request; nil: slog.Default().
 	Logger *slog.Logger
+	// FacilityRecheck is how long the planner uses a cached catalog facility before
+	// it asks the catalog whether its version is still current: a change made
+	// through another replica is planned with after at most this long (a change
+	// through this service at once), and every plan records the facility version it
+	// used. 0: DefaultFacilityRecheck; negative: ask on every plan.
+	FacilityRecheck time.Duration
 }
 
 // Server is the HTTP service. Build it with New; it is safe for concurrent use.
@@ -84,7 +90,7 @@ func New(cfg Config) (*Server, error) {
 	e.RedirectFixedPath = false
 	e.ContextWithFallback = true
 	s := &Server{cfg: cfg, engine: e, log: cfg.Logger, metrics: m,
-		facilities: newFacilityCache(), plans: newStoredPlans(storedPlanBytes)}
+		facilities: newFacilityCache(recheck(cfg.FacilityRecheck)), plans: newStoredPlans(storedPlanBytes)}
 	e.Use(s.requestID, s.observe, s.recoverPanic, s.limitBody)
 	e.NoRoute(s.noRoute)
 	e.NoMethod(s.noMethod)
@@ -92,6 +98,14 @@ func New(cfg Config) (*Server, error) {
 	s.registerDocs()
 	s.routes()
 	return s, nil
+}
+
+// recheck returns the facility recheck interval Config.FacilityRecheck asks for.
+func recheck(d time.Duration) time.Duration {
+	if d == 0 {
+		return DefaultFacilityRecheck
+	}
+	return d
 }
 
 // Handler returns the service as an http.Handler.

@@ -13,14 +13,27 @@
 //	go run ./api/loadtest -serve -duration 20s
 //
 // The plan request is the Orrin J20 in tsw-1 with a 21-point α sweep
-// (api/testdata/load/plan-orrin-j20-tsw-1.json; -plan names another). Half of the
-// duration goes to POST /v1/plans, half to GET /healthz. It prints requests per
-// second, latency percentiles and the count of answers that were not 200.
+// (api/testdata/load/plan-orrin-j20-tsw-1.json; -plan names another). The duration
+// is shared evenly by three phases on the same server:
+//
+//   - repeated: POST /v1/plans of that one request; after the first it is a stored
+//     plan, which the service answers with the stored bytes after decoding and
+//     validating the request and computing its id;
+//   - distinct: POST /v1/plans with the flight altitude raised by 0.1 mm per
+//     request, so that every request is a new plan that is planned and stored
+//     (-vary=false leaves this phase out);
+//   - health: GET /healthz, the HTTP stack alone.
+//
+// It prints requests per second, latency percentiles and the count of answers that
+// were not 200 for each phase, and each plan phase's rate as a percentage of the
+// health checks'. -cpuprofile writes a CPU profile of the whole run (with -serve,
+// server and load generator together).
 package main
 
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
@@ -30,8 +43,12 @@ import (
 	"net/http"
 	"net/url"
 	"os"
+	"runtime/pprof"
 	"slices"
+	"strconv"
+	"strings"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/prometheus/client_golang/prometheus"
@@ -58,6 +75,8 @@ func run(args []string, out io.Writer) error {
 	duration := fs.Duration("duration", 20*time.Second, "total run time, split evenly between plans and health checks")
 	concurrency := fs.Int("concurrency", 4, "requests in flight at once")
 	planFile := fs.String("plan", "api/testdata/load/plan-orrin-j20-tsw-1.json", "plan request body")
+	vary := fs.Bool("vary", true, "also send distinct plan requests (the flight altitude raised by 0.1 mm each)")
+	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile of the run to this file")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
@@ -70,6 +89,23 @@ func run(args []string, out io.Writer) error {
 	plan, err := os.ReadFile(*planFile)
 	if err != nil {
 		return err
+	}
+	var distinct *varied
+	if *vary {
+		if distinct, err = newVaried(plan); err != nil {
+			return fmt.Errorf("-plan %s: %w", *planFile, err)
+		}
+	}
+	if *cpuProfile != "" {
+		f, err := os.Create(*cpuProfile)
+		if err != nil {
+			return err
+		}
+		defer f.Close()
+		if err := pprof.StartCPUProfile(f); err != nil {
+			return err
+		}
+		defer pprof.StopCPUProfile()
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
@@ -85,8 +121,12 @@ func run(args []string, out io.Writer) error {
 		return err
 	}
 	client := &http.Client{
-		Timeout:   30 * time.Second,
-		Transport: &http.Transport{MaxIdleConnsPerHost: *concurrency, MaxConnsPerHost: *concurrency},
+		Timeout: 30 * time.Second,
+		// Buffers that take a whole plan answer (about 20 kB) in one read, so that the
+		// load generator, which shares the machine with an in-process server, spends
+		// as little as it can.
+		Transport: &http.Transport{MaxIdleConnsPerHost: *concurrency, MaxConnsPerHost: *concurrency,
+			ReadBufferSize: 64 << 10, WriteBufferSize: 16 << 10},
 	}
 	// One plan first, so that a wrong request or facility fails at once.
 	if status, body, err := once(client, *base, "POST", "/v1/plans", plan); err != nil {
@@ -94,21 +134,94 @@ func run(args []string, out io.Writer) error {
 	} else if status != http.StatusOK {
 		return fmt.Errorf("POST /v1/plans answered %d: %s", status, body)
 	}
-	half := *duration / 2
-	fmt.Fprintf(out, "server %s, %d in flight, %v each\n", *base, *concurrency, half)
-	for _, p := range []struct {
-		name, method, path string
-		body               []byte
-	}{
-		{"plans   POST /v1/plans", "POST", "/v1/plans", plan},
-		{"health  GET /healthz  ", "GET", "/healthz", nil},
-	} {
-		r := hammer(client, *base, p.method, p.path, p.body, *concurrency, half)
+	phases := []phase{{name: "repeated  POST /v1/plans", method: "POST", path: "/v1/plans", body: fixed(plan)}}
+	if distinct != nil {
+		phases = append(phases, phase{name: "distinct  POST /v1/plans", method: "POST", path: "/v1/plans", body: distinct.next})
+	}
+	phases = append(phases, phase{name: "health    GET /healthz  ", method: "GET", path: "/healthz", body: fixed(nil)})
+	each := *duration / time.Duration(len(phases))
+	fmt.Fprintf(out, "server %s, %d in flight, %v each\n", *base, *concurrency, each)
+	rates := make([]float64, len(phases))
+	for i, p := range phases {
+		r := hammer(client, *base, p.method, p.path, p.body, *concurrency, each)
+		rates[i] = float64(r.n) / r.elapsed.Seconds()
 		fmt.Fprintf(out, "%s  %8.1f /s  %7d requests  %d not 200  latency p50 %v  p90 %v  p99 %v\n",
-			p.name, float64(r.n)/r.elapsed.Seconds(), r.n, r.failed,
+			p.name, rates[i], r.n, r.failed,
 			r.percentile(0.50), r.percentile(0.90), r.percentile(0.99))
 	}
+	health := rates[len(rates)-1]
+	fmt.Fprintf(out, "plans per health check: repeated %.1f %%", 100*rates[0]/health)
+	if distinct != nil {
+		fmt.Fprintf(out, ", distinct %.1f %%", 100*rates[1]/health)
+	}
+	fmt.Fprintln(out)
 	return nil
+}
+
+// phase is one part of a run: a request sent over and over.
+type phase struct {
+	name, method, path string
+	// body returns the body of the next request (nil: none).
+	body func() []byte
+}
+
+// fixed returns a body function that always gives b.
+func fixed(b []byte) func() []byte { return func() []byte { return b } }
+
+// varied makes distinct plan requests from one: the same request with the flight
+// altitude raised by 0.1 mm more on each, so every request is a new plan.
+type varied struct {
+	prefix, suffix []byte
+	altitude       float64 // m
+	n              atomic.Int64
+}
+
+// altitudeMark stands for the altitude while the request is re-encoded.
+const altitudeMark = "\x00altitude\x00"
+
+// newVaried reads the plan request body: its flight.altitude must be a number in m
+// or a string "<number> m".
+func newVaried(body []byte) (*varied, error) {
+	var req map[string]any
+	if err := json.Unmarshal(body, &req); err != nil {
+		return nil, err
+	}
+	flight, ok := req["flight"].(map[string]any)
+	if !ok {
+		return nil, errors.New("no flight object to vary")
+	}
+	v := &varied{}
+	switch alt := flight["altitude"].(type) {
+	case float64:
+		v.altitude = alt
+	case string:
+		num, ok := strings.CutSuffix(strings.TrimSpace(alt), " m")
+		f, err := strconv.ParseFloat(num, 64)
+		if !ok || err != nil {
+			return nil, fmt.Errorf("flight.altitude %q: want a number or \"<number> m\" to vary", alt)
+		}
+		v.altitude = f
+	default:
+		return nil, errors.New("flight.altitude is missing: want a number or \"<number> m\" to vary")
+	}
+	flight["altitude"] = altitudeMark
+	b, err := json.Marshal(req)
+	if err != nil {
+		return nil, err
+	}
+	mark, _ := json.Marshal(altitudeMark)
+	i := bytes.Index(b, mark)
+	v.prefix, v.suffix = b[:i], b[i+len(mark):]
+	return v, nil
+}
+
+// next returns the next distinct request.
+func (v *varied) next() []byte {
+	alt := v.altitude + 1e-4*float64(v.n.Add(1))
+	b := make([]byte, 0, len(v.prefix)+len(v.suffix)+24)
+	b = append(b, v.prefix...)
+	b = strconv.AppendFloat(b, alt, 'f', -1, 64)
+	return append(b, v.suffix...)
 }
 
 // checkLoopback refuses a base URL whose host is not a loopback address.
@@ -202,8 +315,8 @@ func (r result) percentile(q float64) time.Duration {
 	return r.latencies[i].Round(time.Microsecond)
 }
 
-// hammer sends the request from `workers` goroutines for d.
-func hammer(c *http.Client, base, method, path string, body []byte, workers int, d time.Duration) result {
+// hammer sends requests with the bodies body gives from `workers` goroutines for d.
+func hammer(c *http.Client, base, method, path string, body func() []byte, workers int, d time.Duration) result {
 	var mu sync.Mutex
 	var res result
 	var wg sync.WaitGroup
@@ -217,7 +330,7 @@ func hammer(c *http.Client, base, method, path string, body []byte, workers int,
 			failed := 0
 			for time.Now().Before(deadline) {
 				t := time.Now()
-				status, _, err := once(c, base, method, path, body)
+				status, _, err := once(c, base, method, path, body())
 				lat = append(lat, time.Since(t))
 				if err != nil || status != http.StatusOK {
 					failed++

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"regexp"
 	"strings"
 	"testing"
@@ -36,7 +37,7 @@ func TestRunInProcess(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, name := range []string{"plans", "health"} {
+	for _, name := range []string{"repeated", "distinct", "health"} {
 		re := regexp.MustCompile(name + `.*?(\d+\.\d) /s .* (\d+) not 200`)
 		m := re.FindStringSubmatch(out.String())
 		if m == nil {
@@ -46,8 +47,45 @@ func TestRunInProcess(t *testing.T) {
 			t.Errorf("%s: rate %s /s, %s failures; want a rate and none", name, m[1], m[2])
 		}
 	}
-	if strings.Count(out.String(), "\n") != 3 {
-		t.Errorf("want 3 lines:\n%s", out.String())
+	if !regexp.MustCompile(`plans per health check: repeated \d+\.\d %, distinct \d+\.\d %\n`).MatchString(out.String()) {
+		t.Errorf("no ratio line in:\n%s", out.String())
+	}
+	if strings.Count(out.String(), "\n") != 5 {
+		t.Errorf("want 5 lines:\n%s", out.String())
+	}
+}
+
+func TestVaried(t *testing.T) {
+	tests := []struct {
+		name, body string
+		want       []string // the first requests' flight altitudes, as sent
+		err        bool
+	}{
+		{"number", `{"flight":{"altitude":11000,"mach":0.8},"x":[1]}`, []string{"11000.0001", "11000.0002"}, false},
+		{"metres", `{"flight":{"mach":0.8,"altitude":"12500 m"}}`, []string{"12500.0001", "12500.0002"}, false},
+		{"feet", `{"flight":{"altitude":"41000 ft"}}`, nil, true},
+		{"pressure altitude", `{"flight":{"pressure_altitude":"11 km"}}`, nil, true},
+		{"no flight", `{"facility_id":"tsw-1"}`, nil, true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			v, err := newVaried([]byte(tc.body))
+			if (err != nil) != tc.err {
+				t.Fatalf("newVaried: %v, want error %v", err, tc.err)
+			}
+			for _, want := range tc.want {
+				var req struct {
+					Flight map[string]json.RawMessage `json:"flight"`
+				}
+				b := v.next()
+				if err := json.Unmarshal(b, &req); err != nil {
+					t.Fatalf("%s: %v", b, err)
+				}
+				if got := string(req.Flight["altitude"]); got != want || req.Flight["mach"] == nil && strings.Contains(tc.body, "mach") {
+					t.Errorf("%s: altitude %s, want %s and the rest as given", b, got, want)
+				}
+			}
+		})
 	}
 }
 
