@@ -7,12 +7,16 @@ import (
 )
 
 // polishEvals bounds the objective evaluations of one joint refinement, the
-// starting simplex included.
+// starting simplex and the tries on the bounds included.
 const polishEvals = 200
 
 // polishStep is the starting simplex's edge in the unit box of the refinement: half
 // a cell of the structured search's 17-point Mach (speed) grid.
 const polishStep = 1.0 / 32
+
+// polishSnap is the distance in the unit box within which the refined point is
+// tried on the bound it approaches.
+const polishSnap = 1e-4
 
 // polishConverge is the refinement's function tolerance: it stops when the best
 // objective value has not fallen by more than 1e-9 relative (or 1e-14 absolute, for
@@ -75,8 +79,9 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 	// of the weighted sum (a match the facility can meet at many settings) the
 	// simplex moves toward lower q, and elsewhere the term is below levelTol.
 	q0 := x.q
-	// eval scores a point z of the unit box (or beyond it).
-	eval := func(z []float64) float64 {
+	// at returns the candidate at point z of the unit box (projected onto it) and
+	// the squared distance of z from the box.
+	at := func(z []float64) (cand, float64) {
 		u, s, d2 := x.u, x.s, 0.0
 		for i := range dim {
 			zi := z[i]
@@ -110,7 +115,11 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 		}
 		n++
 		c := sv.prepare(u)
-		y := sv.at(&c, s)
+		return sv.at(&c, s), d2
+	}
+	// eval scores a point z of the unit box (or beyond it) for the simplex.
+	eval := func(z []float64) float64 {
+		y, d2 := at(z)
 		if !y.ok || math.IsNaN(y.k.v[0]) {
 			return math.Inf(1)
 		}
@@ -120,15 +129,21 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 		return y.k.v[0] + levelTol*y.q/q0 + d2
 	}
 
-	// The starting simplex: x and one step along each free coordinate, inward.
-	z0 := make([]float64, dim)
-	for i := range dim {
-		v := math.Log(x.s)
-		if isU[i] {
-			v = x.u
+	// zOf returns candidate y's point in the unit box.
+	zOf := func(y cand) []float64 {
+		z := make([]float64, dim)
+		for i := range dim {
+			v := math.Log(y.s)
+			if isU[i] {
+				v = y.u
+			}
+			z[i] = math.Min(math.Max((v-lo[i])/(hi[i]-lo[i]), 0), 1)
 		}
-		z0[i] = math.Min(math.Max((v-lo[i])/(hi[i]-lo[i]), 0), 1)
+		return z
 	}
+
+	// The starting simplex: x and one step along each free coordinate, inward.
+	z0 := zOf(x)
 	f0 := x.k.v[0] + levelTol
 	verts := make([][]float64, dim+1)
 	vals := make([]float64, dim+1)
@@ -145,12 +160,30 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 	nm := &optimize.NelderMead{InitialVertices: verts, InitialValues: vals}
 	settings := &optimize.Settings{
 		InitValues:      &optimize.Location{F: f0},
-		FuncEvaluations: polishEvals - n,
+		FuncEvaluations: polishEvals - n - dim, // dim: the tries on the bounds
 		Converger:       polishConverge(),
 	}
 	// The error reports only why the simplex stopped (the evaluation bound, or a
 	// start the method rejects); the best candidate seen stands either way.
 	_, _ = optimize.Minimize(optimize.Problem{Func: eval}, z0, settings, nm)
+	// The simplex approaches a bound it should sit on (a span limit, the top of the
+	// speed range) only to within its last step: try each coordinate at the bound it
+	// is within polishSnap of, so that a binding limit binds exactly and is listed.
+	for i := range dim {
+		z := zOf(best)
+		switch {
+		case z[i] < polishSnap && z[i] > 0:
+			z[i] = 0
+		case z[i] > 1-polishSnap && z[i] < 1:
+			z[i] = 1
+		default:
+			continue
+		}
+		// A tie by the key goes to the point on the bound (never one worse than x).
+		if y, _ := at(z); y.ok && !best.k.less(y.k) && !x.k.less(y.k) {
+			best = y
+		}
+	}
 	sv.polishEvals += n
 	return best
 }

@@ -21,22 +21,31 @@ func PlanSearch(p *Problem, refine bool) (*Result, error) {
 }
 
 // RefineFrom runs the joint refinement alone on p from test Mach number (speed in
-// water) u and scale s, which must be a feasible plan, and returns its plan.
-func RefineFrom(p *Problem, u, s float64) (*Result, error) {
+// water) u and scale s, and returns the plans at the start and after the
+// refinement. A start that is not a feasible plan is an error.
+func RefineFrom(p *Problem, u, s float64) (start, refined *Result, err error) {
 	sv, err := newSolver(p)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	ivs, fails := sv.feasibleU()
 	if len(ivs) == 0 {
-		return nil, unprocessable("no feasible Mach number or speed", fails...)
+		return nil, nil, unprocessable("no feasible Mach number or speed", fails...)
+	}
+	inside := false
+	for _, iv := range ivs {
+		inside = inside || u >= iv.a && u <= iv.b
+	}
+	if !inside || s < sv.sLo || s > sv.sHi {
+		return nil, nil, unprocessable("the start is outside the facility's range or the scale range")
 	}
 	c := sv.prepare(u)
 	x := sv.at(&c, s)
 	if !x.ok {
-		return nil, unprocessable("the start is not feasible", x.fail)
+		return nil, nil, unprocessable("the start is not a feasible plan", x.fail)
 	}
-	res := sv.result(sv.polish(x, ivs))
-	res.Stats.RefineEvaluations = sv.polishEvals
-	return res, nil
+	start = sv.result(x)
+	refined = sv.result(sv.polish(x, ivs))
+	refined.Stats.RefineEvaluations = sv.polishEvals
+	return start, refined, nil
 }
