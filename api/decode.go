@@ -597,7 +597,16 @@ func (s *Server) decodeBody(c *gin.Context, dst any) bool {
 		s.fail(c, bodyError("the body is empty: want a JSON object"))
 		return false
 	}
-	body, err := io.ReadAll(c.Request.Body)
+	var body []byte
+	var err error
+	if n := c.Request.ContentLength; n > 0 && n <= BodyLimit {
+		// One allocation of the declared size (net/http's body reader stops there
+		// and fails a shorter body with io.ErrUnexpectedEOF, as io.ReadAll would).
+		body = make([]byte, n)
+		_, err = io.ReadFull(c.Request.Body, body)
+	} else {
+		body, err = io.ReadAll(c.Request.Body)
+	}
 	if err == nil {
 		err = Decode(body, dst)
 	}

@@ -14,7 +14,8 @@
 //
 // The plan request is the Orrin J20 in tsw-1 with a 21-point α sweep
 // (api/testdata/load/plan-orrin-j20-tsw-1.json; -plan names another). The duration
-// is shared evenly by three phases on the same server:
+// is shared evenly by three phases on the same server, which take turns in slices
+// of about half a second:
 //
 //   - repeated: POST /v1/plans of that one request; after the first it is a stored
 //     plan, which the service answers with the stored bytes after decoding and
@@ -141,9 +142,19 @@ func run(args []string, out io.Writer) error {
 	phases = append(phases, phase{name: "health    GET /healthz  ", method: "GET", path: "/healthz", body: fixed(nil)})
 	each := *duration / time.Duration(len(phases))
 	fmt.Fprintf(out, "server %s, %d in flight, %v each\n", *base, *concurrency, each)
+	// The phases take turns in slices of about half a second, so that whatever
+	// else runs on the machine meanwhile weighs on each of them alike.
+	rounds := max(1, int(each/(500*time.Millisecond)))
+	results := make([]result, len(phases))
+	for range rounds {
+		for i, p := range phases {
+			results[i].add(hammer(client, *base, p.method, p.path, p.body, *concurrency, each/time.Duration(rounds)))
+		}
+	}
 	rates := make([]float64, len(phases))
 	for i, p := range phases {
-		r := hammer(client, *base, p.method, p.path, p.body, *concurrency, each)
+		r := results[i]
+		slices.Sort(r.latencies)
 		rates[i] = float64(r.n) / r.elapsed.Seconds()
 		fmt.Fprintf(out, "%s  %8.1f /s  %7d requests  %d not 200  latency p50 %v  p90 %v  p99 %v\n",
 			p.name, rates[i], r.n, r.failed,
@@ -300,10 +311,41 @@ func once(c *http.Client, base, method, path string, body []byte) (int, []byte, 
 	return resp.StatusCode, b, err
 }
 
+// send sends one request and reads its answer to the end, keeping nothing of it
+// but the status.
+func send(c *http.Client, base, method, path string, body []byte) (int, error) {
+	var r io.Reader
+	if body != nil {
+		r = bytes.NewReader(body)
+	}
+	req, err := http.NewRequest(method, base+path, r)
+	if err != nil {
+		return 0, err
+	}
+	if body != nil {
+		req.Header.Set("Content-Type", "application/json")
+	}
+	resp, err := c.Do(req)
+	if err != nil {
+		return 0, err
+	}
+	defer resp.Body.Close()
+	_, err = io.Copy(io.Discard, resp.Body)
+	return resp.StatusCode, err
+}
+
 type result struct {
 	n, failed int
 	elapsed   time.Duration
-	latencies []time.Duration // sorted
+	latencies []time.Duration // sorted before percentile is called
+}
+
+// add adds the requests and time of another run to r.
+func (r *result) add(o result) {
+	r.n += o.n
+	r.failed += o.failed
+	r.elapsed += o.elapsed
+	r.latencies = append(r.latencies, o.latencies...)
 }
 
 // percentile returns the latency below which the fraction q of requests finished.
@@ -330,7 +372,7 @@ func hammer(c *http.Client, base, method, path string, body func() []byte, worke
 			failed := 0
 			for time.Now().Before(deadline) {
 				t := time.Now()
-				status, _, err := once(c, base, method, path, body())
+				status, err := send(c, base, method, path, body())
 				lat = append(lat, time.Since(t))
 				if err != nil || status != http.StatusOK {
 					failed++
@@ -348,6 +390,5 @@ func hammer(c *http.Client, base, method, path string, body func() []byte, worke
 	wg.Wait()
 	res.elapsed = time.Since(start)
 	res.n = len(res.latencies)
-	slices.Sort(res.latencies)
 	return res
 }
