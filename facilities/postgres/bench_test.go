@@ -3,6 +3,8 @@ package postgres_test
 import (
 	"context"
 	"fmt"
+	"strings"
+	"sync/atomic"
 	"testing"
 
 	"scalematch/facilities"
@@ -67,5 +69,42 @@ func BenchmarkUpdateFacility(b *testing.B) {
 		if f, err = db.UpdateFacility(ctx, f, f.Version, "bench"); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// BenchmarkSavePlan measures durable plan saves of new ids, one caller at a time
+// and from 16 callers at once per core (group commit: the calls that queue while
+// one transaction commits share the next).
+func BenchmarkSavePlan(b *testing.B) {
+	body := []byte(`{"plan":"` + strings.Repeat("x", 18000) + `"}`)
+	for _, c := range []struct {
+		name        string
+		parallelism int
+	}{{"serial", 0}, {"parallel-16", 16}} {
+		b.Run(c.name, func(b *testing.B) {
+			db := benchDB(b)
+			ctx := context.Background()
+			var n atomic.Int64
+			save := func() {
+				id := fmt.Sprintf("plan-%d", n.Add(1))
+				if _, err := db.SavePlan(ctx, facilities.PlanRecord{ID: id, FacilityID: "tsw-1", FacilityVersion: 1, Body: body}); err != nil {
+					b.Error(err)
+				}
+			}
+			b.ReportAllocs()
+			b.ResetTimer()
+			if c.parallelism == 0 {
+				for b.Loop() {
+					save()
+				}
+				return
+			}
+			b.SetParallelism(c.parallelism)
+			b.RunParallel(func(pb *testing.PB) {
+				for pb.Next() {
+					save()
+				}
+			})
+		})
 	}
 }

@@ -31,7 +31,9 @@ const migrationLock = "scalematch.migrate."
 // and for use by several processes over one database.
 type DB struct {
 	pool *pgxpool.Pool
-	now  func() time.Time
+	// plans commits SavePlan calls in groups (plans.go).
+	plans committer
+	now   func() time.Time
 	// beforeCommit, when set by a test of this package, runs after a write's
 	// statements and before its commit; an error aborts the write.
 	beforeCommit func(op string) error
@@ -39,6 +41,21 @@ type DB struct {
 
 var _ facilities.Catalog = (*DB)(nil)
 var _ facilities.Seeder = (*DB)(nil)
+var _ facilities.VersionReader = (*DB)(nil)
+
+// CurrentVersion returns the current version of a facility without reading its
+// record (one indexed row); CodeNotFound when it does not exist or was deleted.
+func (db *DB) CurrentVersion(ctx context.Context, id string) (int, error) {
+	var version int
+	err := db.pool.QueryRow(ctx, `SELECT version FROM facilities WHERE id = $1 AND NOT deleted`, id).Scan(&version)
+	if errors.Is(err, pgx.ErrNoRows) {
+		return 0, notFound(id)
+	}
+	if err != nil {
+		return 0, fmt.Errorf("postgres: reading the version of facility %q: %w", id, err)
+	}
+	return version, nil
+}
 
 // Open connects to the database at url (postgres://user@host:port/db?...; a
 // search_path parameter selects a schema) and applies any migrations it has not
@@ -154,6 +171,7 @@ func (db *DB) Ping(ctx context.Context) error {
 
 // Close closes every connection of the pool.
 func (db *DB) Close() error {
+	db.closePlans()
 	db.pool.Close()
 	return nil
 }
@@ -396,36 +414,6 @@ func (db *DB) Versions(ctx context.Context, id string) ([]facilities.Change, err
 }
 
 const planQuery = `SELECT id, facility_id, facility_version, body, created_at FROM plans WHERE id = $1`
-
-// SavePlan stores a plan record; a second save of the same id returns the first.
-// A zero CreatedAt is set to the time of the first save.
-func (db *DB) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities.PlanRecord, error) {
-	if p.ID == "" {
-		return facilities.PlanRecord{}, facilities.Invalid("plan record", []facilities.FieldError{{Field: "id", Message: "must not be empty"}})
-	}
-	if p.CreatedAt.IsZero() {
-		p.CreatedAt = db.now()
-	}
-	body := p.Body
-	if body == nil {
-		body = []byte{}
-	}
-	var out facilities.PlanRecord
-	err := db.tx(ctx, "save_plan", func(tx pgx.Tx) error {
-		if _, err := tx.Exec(ctx, `INSERT INTO plans (id, facility_id, facility_version, body, created_at)
-			VALUES ($1, $2, $3, $4, $5) ON CONFLICT (id) DO NOTHING`,
-			p.ID, p.FacilityID, p.FacilityVersion, body, p.CreatedAt); err != nil {
-			return err
-		}
-		var err error
-		out, err = scanPlan(tx.QueryRow(ctx, planQuery, p.ID))
-		return err
-	})
-	if err != nil {
-		return facilities.PlanRecord{}, wrap("saving plan", p.ID, err)
-	}
-	return out, nil
-}
 
 // Plan returns a stored plan record.
 func (db *DB) Plan(ctx context.Context, id string) (facilities.PlanRecord, error) {
