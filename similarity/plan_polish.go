@@ -19,8 +19,9 @@ const polishStep = 1.0 / 32
 const polishSnap = 1e-4
 
 // polishConverge is the refinement's function tolerance: it stops when the best
-// objective value has not fallen by more than 1e-9 relative (or 1e-14 absolute, for
-// an objective near zero) over 12 successive simplex iterations.
+// objective value has not fallen by more than 1e-9 relative (or 1e-17 absolute, a
+// millionth of the key's tie tolerance, for an objective near zero, where the q
+// tie-break term still guides the simplex) over 12 successive simplex iterations.
 func polishConverge() *optimize.FunctionConverge {
 	return &optimize.FunctionConverge{Absolute: 1e-6 * levelTol, Relative: 1e-9, Iterations: 12}
 }
@@ -37,14 +38,15 @@ func polishConverge() *optimize.FunctionConverge {
 // feasible region, while the structured search nests a golden section over ln s
 // inside a grid and golden section over u; the simplex moves both at once from the
 // structured optimum. It works in the unit box over u's feasible interval holding
-// x.u and [ln sLo, ln sHi]: a point outside the box is projected onto it and pays
-// the squared distance, so that the simplex returns. Every point is evaluated
-// through prepare and at, which honour every facility limit, the scale range and
-// the load limit exactly; an infeasible point scores +Inf. The best candidate seen
-// by the solver's lexicographic key (weighted sum, then the lowest q) is returned,
-// so the result is never worse than x. It runs only for a weighted objective over a
-// scale range: a priority objective, a fixed scale and a list of scales leave x as
-// it is.
+// x.u and [ln sLo, ln sHi] (u alone at x.s for a fixed scale or a list): a point
+// outside the box is projected onto it and pays the squared distance, so that the
+// simplex returns. Every point is evaluated through prepare and at, which honour
+// every facility limit, the scale range and the load limit exactly; an infeasible
+// point scores +Inf. The simplex minimises the weighted sum plus levelTol·q/q(x),
+// the key's q tie-break at the scale of its tolerance, so that on a plateau of the
+// sum it moves toward lower q. The best candidate seen by the solver's
+// lexicographic key (weighted sum, then the lowest q) is returned, so the result is
+// never worse than x. A priority objective leaves x as it is.
 func (sv *solver) polish(x cand, ivs []interval) cand {
 	if sv.noPolish || !sv.obj.weighted || !x.ok {
 		return x
