@@ -131,8 +131,10 @@ func (c *envelopeChart) segments() [][2]int {
 	return out
 }
 
+// formatTick writes a tick value without the floating-point noise of the tick
+// arithmetic (0.6000000000000001 is written 0.6).
 func formatTick(v float64) string {
-	return strconv.FormatFloat(v, 'f', -1, 64)
+	return strconv.FormatFloat(v, 'g', 10, 64)
 }
 
 // svg renders the chart as a standalone SVG document.
