@@ -183,7 +183,11 @@ func (c *envelopeChart) svg() []byte {
 		x, y := a.px(m.X), a.py(m.Y)
 		f(`<path d="M%.1f %.1fL%.1f %.1fM%.1f %.1fL%.1f %.1f" stroke="#b2182b" stroke-width="2.5"/>`+"\n",
 			x-7, y-7, x+7, y+7, x-7, y+7, x+7, y-7)
-		f(`<text x="%.1f" y="%.1f" fill="#b2182b">%s</text>`+"\n", x+10, y-8, html.EscapeString(m.Label))
+		anchor, lx := "start", x+10
+		if x > float64(plotRight)-160 {
+			anchor, lx = "end", x-10 // near the right edge: label to the left of the mark
+		}
+		f(`<text x="%.1f" y="%.1f" fill="#b2182b" text-anchor="%s">%s</text>`+"\n", lx, y-8, anchor, html.EscapeString(m.Label))
 	}
 	f("</svg>\n")
 	return b.Bytes()
@@ -393,7 +397,11 @@ func (c *envelopeChart) png() ([]byte, error) {
 		x, y := a.px(m.X), a.py(m.Y)
 		cv.line(x-7, y-7, x+7, y+7, 3, colMark)
 		cv.line(x-7, y+7, x+7, y-7, 3, colMark)
-		cv.text(int(x)+12, int(y)-16, m.Label, colMark)
+		lx := int(x) + 12
+		if w := textWidth(m.Label); lx+w > chartWidth-4 {
+			lx = int(x) - 12 - w // near the right edge: label to the left of the mark
+		}
+		cv.text(lx, int(y)-16, m.Label, colMark)
 	}
 	var b bytes.Buffer
 	if err := png.Encode(&b, cv.RGBA); err != nil {
