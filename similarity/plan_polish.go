@@ -18,12 +18,20 @@ const polishStep = 1.0 / 32
 // tried on the bound it approaches.
 const polishSnap = 1e-4
 
+// polishTie is the weight of the q tie-break in the refinement's objective: the
+// simplex minimises the weighted sum plus polishTie·q/q(start), so that along a
+// plateau of the sum (a match the facility meets at many settings) it moves toward
+// lower q, while elsewhere the term is too small to outweigh a real change of the
+// sum. The planner's own order (key.less) compares exactly; this weight only
+// steers the simplex.
+const polishTie = 1e-11
+
 // polishConverge is the refinement's function tolerance: it stops when the best
 // objective value has not fallen by more than 1e-9 relative (or 1e-17 absolute, a
-// millionth of the key's tie tolerance, for an objective near zero, where the q
+// millionth of the q tie-break's weight, for an objective near zero, where the
 // tie-break term still guides the simplex) over 12 successive simplex iterations.
 func polishConverge() *optimize.FunctionConverge {
-	return &optimize.FunctionConverge{Absolute: 1e-6 * levelTol, Relative: 1e-9, Iterations: 12}
+	return &optimize.FunctionConverge{Absolute: 1e-6 * polishTie, Relative: 1e-9, Iterations: 12}
 }
 
 // polish refines the structured search's best candidate x of a weighted objective
@@ -42,8 +50,8 @@ func polishConverge() *optimize.FunctionConverge {
 // outside the box is projected onto it and pays the squared distance, so that the
 // simplex returns. Every point is evaluated through prepare and at, which honour
 // every facility limit, the scale range and the load limit exactly; an infeasible
-// point scores +Inf. The simplex minimises the weighted sum plus levelTol·q/q(x),
-// the key's q tie-break at the scale of its tolerance, so that on a plateau of the
+// point scores +Inf. The simplex minimises the weighted sum plus polishTie·q/q(x),
+// the key's q tie-break at a small weight, so that on a plateau of the
 // sum it moves toward lower q. The best candidate seen by the solver's
 // lexicographic key (weighted sum, then the lowest q) is returned, so the result is
 // never worse than x. A priority objective leaves x as it is.
@@ -77,9 +85,9 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 
 	best := x
 	n := 0
-	// The key's tie-break folded in at the scale of its tolerance: along a plateau
-	// of the weighted sum (a match the facility can meet at many settings) the
-	// simplex moves toward lower q, and elsewhere the term is below levelTol.
+	// The key's tie-break folded in at the weight polishTie: along a plateau of the
+	// weighted sum (a match the facility can meet at many settings) the simplex
+	// moves toward lower q, and elsewhere the term is below polishTie.
 	q0 := x.q
 	// at returns the candidate at point z of the unit box (projected onto it) and
 	// the squared distance of z from the box.
@@ -128,7 +136,7 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 		if y.k.less(best.k) {
 			best = y
 		}
-		return y.k.v[0] + levelTol*y.q/q0 + d2
+		return y.k.v[0] + polishTie*y.q/q0 + d2
 	}
 
 	// zOf returns candidate y's point in the unit box.
@@ -146,7 +154,7 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 
 	// The starting simplex: x and one step along each free coordinate, inward.
 	z0 := zOf(x)
-	f0 := x.k.v[0] + levelTol
+	f0 := x.k.v[0] + polishTie
 	verts := make([][]float64, dim+1)
 	vals := make([]float64, dim+1)
 	verts[0], vals[0] = z0, f0

@@ -78,8 +78,10 @@ func waterFroudeProblem(t testing.TB) *similarity.Problem {
 		Objective: similarity.Objective{Weights: map[string]float64{"reynolds": 1, "froude": 4}}}
 }
 
-// refineTie is the planner's tie tolerance on the weighted sum (levelTol): two plans
-// whose sums differ by less are ordered by their dynamic pressure.
+// refineTie is these tests' tolerance on the weighted sum recomputed from a plan's
+// reported figures, which carry rounding the planner's own exact key does not see:
+// two plans whose recomputed sums differ by less are ordered by their dynamic
+// pressure.
 const refineTie = 1e-11
 
 // TestRefineNeverWorse runs the structured search alone and followed by the joint
@@ -219,8 +221,9 @@ func TestRefinePlateau(t *testing.T) {
 		got, want float64
 		tol       float64 // relative
 	}{
-		// The tie tolerance of the weighted sum (1e-11) allows ln(Re ratio) up to
-		// about 3e-6, and the Mach number and q move with it.
+		// The refinement starts at the plateau's end (the structured search finds
+		// it, TestSearchPlateauLowestQ) and keeps the best point by the exact key;
+		// these tolerances leave room for its convergence tolerance.
 		{"scale", r.Model.Scale, s, 1e-6},
 		{"Mach number", r.Test.Mach, want.Mach, 1e-5},
 		{"stagnation pressure, Pa", r.Test.StagnationPressure, p0, 1e-5},

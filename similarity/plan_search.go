@@ -256,7 +256,7 @@ func (sv *solver) solve() (cand, error) {
 		}
 	}
 	if sv.machFirst() {
-		lo, hi := sv.fl.Mach-sv.obj.tol, sv.fl.Mach+sv.obj.tol
+		lo, hi := sv.machBand()
 		var band []interval
 		for _, iv := range ivs {
 			if a, b := math.Max(iv.a, lo), math.Min(iv.b, hi); a <= b {

@@ -24,10 +24,6 @@ const (
 
 var groupIndex = map[string]int{GroupReynolds: gReynolds, GroupMach: gMach, GroupFroude: gFroude}
 
-// levelTol is the tolerance within which two objective levels count as equal, so
-// that the next level (finally the dynamic pressure) decides.
-const levelTol = 1e-11
-
 // objective is the validated objective in index form.
 type objective struct {
 	weighted bool
@@ -36,23 +32,33 @@ type objective struct {
 	tol      float64    // Mach band half-width
 }
 
-// key orders candidate plans: lexicographically by the levels, then by q.
+// key orders candidate plans: lexicographically by the objective levels v (each
+// ≥ 0, 0 when matched), then by the dynamic pressure q in Pa. The levels and q are
+// never NaN (keyOf), so less is a strict weak ordering.
 type key struct {
 	v [3]float64
 	q float64
 }
 
-// less reports whether a is a strictly better plan than b.
+// less reports whether a is a strictly better plan than b: the first level that
+// differs decides, and when all levels are equal the lower q does. Every
+// comparison is exact, which makes less a strict weak ordering (irreflexive and
+// transitive, with transitive ties), as the golden-section search and the
+// best-so-far selections need. A tolerance on a level would not be: a chain of
+// candidates, each within the tolerance of the previous one and each with a lower
+// q, would count every step as a tie won on q while the level crept past the
+// tolerance, so that the last of them was "better" than the first by the chain
+// and worse by a direct comparison. The places where the objective is flat by
+// construction, and where the order must fall through to q, are exact zeros
+// instead (keyOf): the Mach band (|ΔM| within the tolerance), and a Reynolds
+// number that meets the flight's because the setting was solved for it.
 func (a key) less(b key) bool {
 	for i := range a.v {
-		if a.v[i] < b.v[i]-levelTol {
-			return true
-		}
-		if a.v[i] > b.v[i]+levelTol {
-			return false
+		if a.v[i] != b.v[i] {
+			return a.v[i] < b.v[i]
 		}
 	}
-	return a.q < b.q*(1-1e-12)
+	return a.q < b.q
 }
 
 // worst is the key of an infeasible point.
@@ -289,6 +295,13 @@ func (sv *solver) froudeMatters() bool {
 		}
 	}
 	return false
+}
+
+// machBand returns the ends of the Mach band that counts as matched, M ± tol.
+// The search and the key both take the band from here, so that they agree to the
+// bit on its ends.
+func (sv *solver) machBand() (lo, hi float64) {
+	return sv.fl.Mach - sv.obj.tol, sv.fl.Mach + sv.obj.tol
 }
 
 // machFirst reports whether the first priority is the Mach number.
@@ -839,7 +852,7 @@ func (sv *solver) atTarget(c *uctx, s, target float64) cand {
 	}
 	x.v = c.stRef.Speed * math.Sqrt(x.t0/c.tRef)
 	x.ok = true
-	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v)
+	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v, r == target)
 	return x
 }
 
@@ -883,17 +896,30 @@ func (sv *solver) atWater(c *uctx, s, target float64) cand {
 	x.q = sv.waterQ(c.u, c.pa, x.t0)
 	x.v = c.u
 	x.ok = true
-	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v)
+	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v, r == target)
 	return x
 }
 
 // keyOf returns the objective key of a candidate at u and scale s with Re/m r,
-// dynamic pressure q and speed v in m/s.
-func (sv *solver) keyOf(u, s, r, q, v float64) key {
-	lnRe := math.Log(s * sv.L * r / sv.fl.Reynolds)
+// dynamic pressure q and speed v in m/s. met says that r is the flight's Re/m at
+// this scale by construction (the setting was solved for the target, not capped
+// by a limit): the Reynolds term is then exactly 0, so that every such candidate
+// ties on it and the next level, finally q, decides. Computed, ln(s·l·r/Re) would
+// be a rounding error of about 1e-16 of either sign instead. Terms of zero weight
+// are left out, so that an infinite logarithm (Re/m 0 at a failed state) never
+// makes a NaN.
+func (sv *solver) keyOf(u, s, r, q, v float64, met bool) key {
+	lnRe := 0.0
+	if !met {
+		lnRe = math.Log(s * sv.L * r / sv.fl.Reynolds)
+	}
+	// The distance of u outside the Mach band [M−tol, M+tol], with the band's ends
+	// computed as solve computes them, so that u on an end (where the search puts
+	// it) is inside by construction and scores exactly 0: |u − M| − tol would
+	// leave a rounding error of either sign there.
 	dM := 0.0
-	if !sv.liquid {
-		dM = u - sv.fl.Mach
+	if lo, hi := sv.machBand(); !sv.liquid {
+		dM = math.Max(0, math.Max(lo-u, u-hi))
 	}
 	// Fr_test/Fr_flight = (V/√(g·s·L))/(V_f/√(g·L)) = V/(V_f·√s).
 	lnFr := math.Log(v / (sv.fl.TrueAirspeed * math.Sqrt(s)))
@@ -903,13 +929,17 @@ func (sv *solver) keyOf(u, s, r, q, v float64) key {
 		if !sv.liquid {
 			lnM = math.Log(u / sv.fl.Mach)
 		}
-		k.v[0] = sv.obj.w[gReynolds]*lnRe*lnRe + sv.obj.w[gMach]*lnM*lnM + sv.obj.w[gFroude]*lnFr*lnFr
+		for i, l := range [3]float64{gReynolds: lnRe, gMach: lnM, gFroude: lnFr} {
+			if w := sv.obj.w[i]; w > 0 {
+				k.v[0] += w * l * l
+			}
+		}
 		return k
 	}
 	for i, g := range sv.obj.levels {
 		switch g {
 		case gMach:
-			k.v[i] = math.Max(0, math.Abs(dM)-sv.obj.tol)
+			k.v[i] = dM
 		case gReynolds:
 			k.v[i] = math.Abs(lnRe)
 		case gFroude:
