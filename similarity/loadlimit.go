@@ -48,6 +48,10 @@ type balanceRows struct {
 	down    []float64 // allowed + w: the same for a load falling with q
 	// weightBreaks is set when the weight alone exceeds a row's allowance.
 	weightBreaks bool
+	// live lists, in the order above, the elements i·rows + j that can set the
+	// ceiling at some scale and Mach number, and livePoint their points i; maxQ
+	// visits only these (prune).
+	live, livePoint []int32
 }
 
 var _ LoadLimit = (*BalanceLimit)(nil)
@@ -119,6 +123,7 @@ func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installati
 				br.weightBreaks = br.weightBreaks || facilities.SafeDynamicPressure(0, w, br.allowed[j]) == 0
 			}
 		}
+		br.prune(l.cd)
 		l.balances = append(l.balances, br)
 	}
 	if !found {
@@ -174,35 +179,192 @@ func (l *BalanceLimit) best(scale, mach float64) (k int, q float64) {
 // allowance. Each row is affine in q and solved exactly as in
 // facilities.SafeDynamicPressure, q = (allowed − sign(u)·w)/|u|; the minimum over
 // rows is found by comparing the fractions crosswise, with one division per call.
+//
+// Only the live elements are visited, in their order and with the same
+// arithmetic as a visit of every element, so the result is the same to the bit
+// (prune explains why).
 func (br *balanceRows) maxQ(cd []float64, solid, wake, qS, qSc float64) float64 {
 	if br.weightBreaks {
 		return 0
 	}
 	num, den := 1.0, 0.0 // +Inf
-	n := br.rows
-	for i, c := range cd {
-		e := 1 + solid + wake*c
-		f := e * e
-		a, m := f*qS, f*qSc
-		force := br.force[i*n : i*n+n]
-		moment := br.moment[i*n : i*n+n]
-		up := br.up[i*n : i*n+n]
-		down := br.down[i*n : i*n+n]
-		for j := range force {
-			u := a*force[j] + m*moment[j]
-			r := up[j]
-			if u < 0 {
-				u, r = -u, down[j]
-			}
-			if r*den < num*u {
-				num, den = r, u
-			}
+	pt := int32(-1)
+	var a, m float64
+	for x, k := range br.live {
+		if i := br.livePoint[x]; i != pt {
+			pt = i
+			e := 1 + solid + wake*cd[i]
+			f := e * e
+			a, m = f*qS, f*qSc
+		}
+		u := a*br.force[k] + m*br.moment[k]
+		r := br.up[k]
+		if u < 0 {
+			u, r = -u, br.down[k]
+		}
+		if r*den < num*u {
+			num, den = r, u
 		}
 	}
 	if den == 0 {
 		return math.Inf(1)
 	}
 	return num / den
+}
+
+// pruneMargin is the relative margin, in units of the elements' load scale, by
+// which an element must fall below another at every scale before prune drops it:
+// a thousand times the rounding of maxQ's arithmetic (a few units in 1e-16), so
+// that the dropped element is never the minimum, nor within rounding of it.
+const pruneMargin = 2e-12
+
+// pruneSamples are the values of t = c·s (reference length times scale, m) at
+// which prune takes the strongest elements as the candidates that may dominate
+// the others; they only choose candidates, the dominance itself is proved for
+// every t > 0.
+var pruneSamples = [...]float64{0, 1e-3, 1e-2, 0.03, 0.1, 0.3, 1, 10}
+
+// prune sets live: the elements that can set the ceiling. Element k's load per
+// unit of q is f_i·q·S·(F_k + t·M_k) with F_k = force[k], M_k = moment[k],
+// t = c·s > 0, and f_i = (1 + ε_sb + ε_wb/C_D·C_D,i)² the wall correction of its
+// point i; its ceiling is r_k/|load|, r_k = up[k] or down[k] by the load's sign.
+// So k never sets the ceiling when another element d has, for every t > 0,
+//
+//	g_d(t) − g_k(t) > pruneMargin·(h_d(t) + h_k(t)),   g = |F + t·M|/r,
+//	h = (|F| + t·|M|)/min(up, down) ≥ g,
+//
+// and f_d ≥ f_k at every scale and Mach number: the same point, or C_D,d ≥ C_D,k
+// ≥ 0 (both blockage factors are ≥ 0, so f grows with C_D, and rounding keeps that
+// order). Both sides are piecewise linear in t with their kinks where F + t·M
+// changes sign, so checking the kinks, t = 0 and the slope beyond the last kink
+// proves it for all t. Rounding in maxQ moves each g by at most about 1e-15·h,
+// far inside the margin, so d's computed ceiling is below k's by at least 1e-12
+// relative, and the scan over the remaining elements picks the same element, with
+// the same arithmetic, as the scan over all. Elements whose r is not positive
+// (a weight exactly at a rating) are always kept and never used to drop others.
+func (br *balanceRows) prune(cd []float64) {
+	n := len(br.force)
+	br.live, br.livePoint = make([]int32, 0, n), make([]int32, 0, n)
+	keepAll := br.weightBreaks
+	for k := 0; k < n && !keepAll; k++ {
+		keepAll = math.IsNaN(br.force[k]) || math.IsNaN(br.moment[k])
+	}
+	if keepAll {
+		for k := range n {
+			br.live = append(br.live, int32(k))
+			br.livePoint = append(br.livePoint, int32(k/br.rows))
+		}
+		return
+	}
+	usable := func(k int) bool { return br.up[k] > 0 && br.down[k] > 0 }
+	// The candidates: the element with the largest g at each sample t and the one
+	// with the steepest rise in t, among the usable ones.
+	var cands [len(pruneSamples) + 1]int
+	nc := 0
+	add := func(k int) {
+		if k < 0 {
+			return
+		}
+		for _, c := range cands[:nc] {
+			if c == k {
+				return
+			}
+		}
+		cands[nc] = k
+		nc++
+	}
+	for _, t := range pruneSamples {
+		best, bg := -1, 0.0
+		for k := range n {
+			if g := br.g(k, t); usable(k) && g > bg {
+				best, bg = k, g
+			}
+		}
+		add(best)
+	}
+	best, bs := -1, 0.0
+	for k := range n {
+		if sl := br.slope(k); usable(k) && sl > bs {
+			best, bs = k, sl
+		}
+	}
+	add(best)
+	for k := range n {
+		i := k / br.rows
+		dropped := false
+		for _, d := range cands[:nc] {
+			j := d / br.rows
+			if d != k && (i == j || (cd[j] >= cd[i] && cd[i] >= 0)) && usable(k) && br.dominates(d, k) {
+				dropped = true
+				break
+			}
+		}
+		if !dropped {
+			br.live = append(br.live, int32(k))
+			br.livePoint = append(br.livePoint, int32(i))
+		}
+	}
+}
+
+// g returns element k's |F + t·M|/r at t (prune).
+func (br *balanceRows) g(k int, t float64) float64 {
+	v := br.force[k] + t*br.moment[k]
+	if v < 0 {
+		return -v / br.down[k]
+	}
+	return v / br.up[k]
+}
+
+// h returns element k's (|F| + t·|M|)/min(up, down) at t (prune).
+func (br *balanceRows) h(k int, t float64) float64 {
+	return (math.Abs(br.force[k]) + t*math.Abs(br.moment[k])) / math.Min(br.up[k], br.down[k])
+}
+
+// slope returns the rate of rise in t of element k's g for large t (prune).
+func (br *balanceRows) slope(k int) float64 {
+	m := br.moment[k]
+	switch {
+	case m > 0:
+		return m / br.up[k]
+	case m < 0:
+		return -m / br.down[k]
+	}
+	return 0
+}
+
+// dominates reports whether element d's g exceeds element k's by more than
+// pruneMargin·(h_d + h_k) at every t > 0 (prune).
+func (br *balanceRows) dominates(d, k int) bool {
+	gap := func(t float64) float64 {
+		return br.g(d, t) - br.g(k, t) - pruneMargin*(br.h(d, t)+br.h(k, t))
+	}
+	// At t = 0 the gap must be positive, or exactly 0 because neither element has a
+	// part that does not grow with t (then the slope decides near 0).
+	last := 0.0
+	if g0 := gap(0); !(g0 > 0) && !(br.force[d] == 0 && br.force[k] == 0) {
+		return false
+	}
+	for _, x := range [2]int{d, k} {
+		if f, m := br.force[x], br.moment[x]; m != 0 {
+			if t := -f / m; t > 0 {
+				if !(gap(t) > 0) {
+					return false
+				}
+				last = math.Max(last, t)
+			}
+		}
+	}
+	// Beyond the last kink both sides are linear: the gap must not fall.
+	rise := br.slope(d) - br.slope(k) - pruneMargin*(math.Abs(br.moment[d])/math.Min(br.up[d], br.down[d])+
+		math.Abs(br.moment[k])/math.Min(br.up[k], br.down[k]))
+	if br.moment[d] == 0 && br.moment[k] == 0 {
+		rise = 0
+	}
+	if !(rise >= 0) {
+		return false
+	}
+	// Without a kink the gap is linear from t = 0: it must start positive or rise.
+	return last > 0 || gap(0) > 0 || rise > 0
 }
 
 // LoadEstimate is the load answer of a plan or a load check at one model scale and
