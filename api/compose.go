@@ -1,6 +1,7 @@
 package api
 
 import (
+	"bytes"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -459,11 +460,48 @@ func (p *Planner) planJSON(ctx context.Context, req *PlanRequest) (plannedJSON, 
 	if err != nil {
 		return plannedJSON{}, err
 	}
-	if pj.body, err = json.Marshal(resp); err != nil {
+	if pj.body, err = marshalPlan(resp); err != nil {
 		return plannedJSON{}, err
 	}
 	pj.stored = p.Catalog == nil
 	return pj, nil
+}
+
+// loadsNull is how a plan answer without a load report writes it, between the
+// fields before and after it.
+var loadsNull = []byte(`,"loads":null,`)
+
+// marshalPlan returns json.Marshal(resp), byte for byte, faster: encoding/json
+// checks and compacts the output of every json.Marshaler again, byte by byte, and
+// for the load report (facilities.LoadReport.MarshalJSON, most of an answer's
+// figures) that second pass cost more than writing it. So the answer is encoded
+// without its report ("loads":null, which no other field of an answer writes:
+// strings escape their quotes) and the report's own encoding, which is compact
+// JSON written as encoding/json writes it, is put in its place. Should the
+// answer ever hold that text more than once, it is encoded the plain way.
+func marshalPlan(resp *PlanResponse) ([]byte, error) {
+	if resp.Loads == nil {
+		return json.Marshal(resp)
+	}
+	rest := *resp
+	rest.Loads = nil
+	b, err := json.Marshal(&rest)
+	if err != nil {
+		return nil, err
+	}
+	i := bytes.Index(b, loadsNull)
+	if i < 0 || bytes.Count(b, loadsNull[1:len(loadsNull)-1]) != 1 {
+		return json.Marshal(resp)
+	}
+	lb, err := resp.Loads.MarshalJSON()
+	if err != nil {
+		return json.Marshal(resp) // the same error, as encoding/json reports it
+	}
+	head := i + len(`,"loads":`)
+	out := make([]byte, 0, len(b)-len("null")+len(lb))
+	out = append(out, b[:head]...)
+	out = append(out, lb...)
+	return append(out, b[head+len("null"):]...), nil
 }
 
 // save stores a planned answer and returns the stored bytes: the first record of

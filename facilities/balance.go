@@ -5,8 +5,11 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"reflect"
 	"sort"
+	"strconv"
 	"strings"
+	"unicode/utf8"
 )
 
 // standardGravity is g0 in m/s² (the 1976 standard atmosphere's value), used for
@@ -440,16 +443,176 @@ type LoadReport struct {
 }
 
 // MarshalJSON writes the report, with an unbounded MaxSafeDynamicPressure as null.
+// The fields come in their declaration order (LoadPoint's and Limiting's too) and
+// max_safe_dynamic_pressure last, each written exactly as encoding/json writes it;
+// the report is written directly rather than through reflection because a plan's
+// answer spends more time encoding its load points than computing them. A NaN or
+// an infinite figure (other than MaxSafeDynamicPressure) is an error, as in
+// encoding/json.
 func (r LoadReport) MarshalJSON() ([]byte, error) {
-	type plain LoadReport
-	v := struct {
-		plain
-		MaxSafe *float64 `json:"max_safe_dynamic_pressure"`
-	}{plain: plain(r)}
-	if !math.IsInf(r.MaxSafeDynamicPressure, 0) {
-		v.MaxSafe = &r.MaxSafeDynamicPressure
+	w := jsonWriter{b: make([]byte, 0, 512+256*len(r.Points))}
+	w.raw(`{"balance_id":`)
+	w.str(r.BalanceID)
+	w.raw(`,"safety_factor":`)
+	w.float(r.SafetyFactor)
+	w.raw(`,"allowed_utilization":`)
+	w.float(r.AllowedUtilization)
+	w.raw(`,"dynamic_pressure":`)
+	w.float(r.DynamicPressure)
+	w.raw(`,"points":`)
+	if r.Points == nil {
+		w.raw("null")
+	} else {
+		w.raw("[")
+		for i := range r.Points {
+			if i > 0 {
+				w.raw(",")
+			}
+			p := &r.Points[i]
+			w.raw(`{"alpha":`)
+			w.float(p.Alpha)
+			w.raw(`,"beta":`)
+			w.float(p.Beta)
+			w.raw(`,"dynamic_pressure":`)
+			w.float(p.DynamicPressure)
+			w.raw(`,"normal":`)
+			w.float(p.Normal)
+			w.raw(`,"axial":`)
+			w.float(p.Axial)
+			w.raw(`,"side":`)
+			w.float(p.Side)
+			w.raw(`,"pitching_moment":`)
+			w.float(p.PitchingMoment)
+			w.raw(`,"rolling_moment":`)
+			w.float(p.RollingMoment)
+			w.raw(`,"yawing_moment":`)
+			w.float(p.YawingMoment)
+			w.raw(`,"utilization":`)
+			w.float(p.Utilization)
+			if p.Limiting != "" {
+				w.raw(`,"limiting":`)
+				w.str(p.Limiting)
+			}
+			w.raw("}")
+		}
+		w.raw("]")
 	}
-	return json.Marshal(v)
+	w.raw(`,"max_utilization":`)
+	w.float(r.MaxUtilization)
+	if r.WithinLimits {
+		w.raw(`,"within_limits":true`)
+	} else {
+		w.raw(`,"within_limits":false`)
+	}
+	w.raw(`,"limiting":`)
+	w.limiting(r.Limiting)
+	w.raw(`,"max_safe_limiting":`)
+	w.limiting(r.MaxSafeLimiting)
+	if r.WeightIncluded {
+		w.raw(`,"weight_included":true`)
+	} else {
+		w.raw(`,"weight_included":false`)
+	}
+	if len(r.Warnings) > 0 {
+		w.raw(`,"warnings":[`)
+		for i, s := range r.Warnings {
+			if i > 0 {
+				w.raw(",")
+			}
+			w.str(s)
+		}
+		w.raw("]")
+	}
+	w.raw(`,"max_safe_dynamic_pressure":`)
+	if math.IsInf(r.MaxSafeDynamicPressure, 0) {
+		w.raw("null")
+	} else {
+		w.float(r.MaxSafeDynamicPressure)
+	}
+	w.raw("}")
+	if w.err != nil {
+		return nil, w.err
+	}
+	return w.b, nil
+}
+
+// jsonWriter appends JSON values to b exactly as encoding/json.Marshal writes them
+// (strings with HTML escaping, floats in its two formats); err holds the first
+// value it cannot write.
+type jsonWriter struct {
+	b   []byte
+	err error
+}
+
+// raw appends s as it is.
+func (w *jsonWriter) raw(s string) { w.b = append(w.b, s...) }
+
+// limiting appends a Limiting.
+func (w *jsonWriter) limiting(l Limiting) {
+	w.raw(`{"component":`)
+	w.str(l.Component)
+	w.raw(`,"alpha":`)
+	w.float(l.Alpha)
+	w.raw(`,"beta":`)
+	w.float(l.Beta)
+	w.raw("}")
+}
+
+// float appends f as encoding/json does: the shortest representation that reads
+// back as f, in 'f' format, or 'e' format below 1e-6 and from 1e21 in magnitude
+// with a one-digit negative exponent written without its leading zero.
+func (w *jsonWriter) float(f float64) {
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		if w.err == nil {
+			w.err = &json.UnsupportedValueError{Value: reflect.ValueOf(f), Str: strconv.FormatFloat(f, 'g', -1, 64)}
+		}
+		w.raw("null")
+		return
+	}
+	format := byte('f')
+	if a := math.Abs(f); a != 0 && (a < 1e-6 || a >= 1e21) {
+		format = 'e'
+	}
+	w.b = strconv.AppendFloat(w.b, f, format, -1, 64)
+	if n := len(w.b); format == 'e' && n >= 4 && w.b[n-4] == 'e' && w.b[n-3] == '-' && w.b[n-2] == '0' {
+		w.b[n-2] = w.b[n-1]
+		w.b = w.b[:n-1]
+	}
+}
+
+// str appends s as a JSON string. Printable ASCII other than the characters
+// encoding/json escapes (", \, <, >, &) and valid UTF-8 other than U+2028 and
+// U+2029 are copied; a string with anything else is handed to encoding/json.
+func (w *jsonWriter) str(s string) {
+	for i := 0; i < len(s); {
+		c := s[i]
+		if c < utf8.RuneSelf {
+			if c < 0x20 || c == '"' || c == '\\' || c == '<' || c == '>' || c == '&' {
+				w.strSlow(s)
+				return
+			}
+			i++
+			continue
+		}
+		r, size := utf8.DecodeRuneInString(s[i:])
+		if (r == utf8.RuneError && size == 1) || r == '\u2028' || r == '\u2029' {
+			w.strSlow(s)
+			return
+		}
+		i += size
+	}
+	w.b = append(w.b, '"')
+	w.b = append(w.b, s...)
+	w.b = append(w.b, '"')
+}
+
+// strSlow appends s through encoding/json.
+func (w *jsonWriter) strSlow(s string) {
+	q, err := json.Marshal(s)
+	if err != nil && w.err == nil {
+		w.err = err
+	}
+	w.b = append(w.b, q...)
 }
 
 // validate checks the case's numbers, naming fields by their request paths.
