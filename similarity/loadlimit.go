@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 
 	"scalematch/facilities"
 )
@@ -222,7 +223,7 @@ const pruneMargin = 2e-12
 // which prune takes the strongest elements as the candidates that may dominate
 // the others; they only choose candidates, the dominance itself is proved for
 // every t > 0.
-var pruneSamples = [...]float64{0, 1e-3, 1e-2, 0.03, 0.1, 0.3, 1, 10}
+var pruneSamples = [...]float64{0, 0.01, 0.1, 1}
 
 // prune sets live: the elements that can set the ceiling. Element k's load per
 // unit of q is f_i·q·S·(F_k + t·M_k) with F_k = force[k], M_k = moment[k],
@@ -237,11 +238,12 @@ var pruneSamples = [...]float64{0, 1e-3, 1e-2, 0.03, 0.1, 0.3, 1, 10}
 // ≥ 0 (both blockage factors are ≥ 0, so f grows with C_D, and rounding keeps that
 // order). Both sides are piecewise linear in t with their kinks where F + t·M
 // changes sign, so checking the kinks, t = 0 and the slope beyond the last kink
-// proves it for all t. Rounding in maxQ moves each g by at most about 1e-15·h,
-// far inside the margin, so d's computed ceiling is below k's by at least 1e-12
-// relative, and the scan over the remaining elements picks the same element, with
-// the same arithmetic, as the scan over all. Elements whose r is not positive
-// (a weight exactly at a rating) are always kept and never used to drop others.
+// proves it for all t. Rounding in maxQ (and in this check) moves each g by at
+// most about 1e-15·h, far inside the margin, so d's computed ceiling is below k's
+// by at least 1e-12 relative, and the scan over the remaining elements picks the
+// same element, with the same arithmetic, as the scan over all. Elements whose r
+// is not positive (a weight exactly at a rating) are always kept and never used to
+// drop others.
 func (br *balanceRows) prune(cd []float64) {
 	n := len(br.force)
 	br.live, br.livePoint = make([]int32, 0, n), make([]int32, 0, n)
@@ -256,19 +258,20 @@ func (br *balanceRows) prune(cd []float64) {
 		}
 		return
 	}
-	usable := func(k int) bool { return br.up[k] > 0 && br.down[k] > 0 }
+	pr := pruner{f: br.force, m: br.moment, inv: make([]float64, 3*n)}
+	for k := range n {
+		if up, down := br.up[k], br.down[k]; up > 0 && down > 0 {
+			pr.inv[3*k], pr.inv[3*k+1], pr.inv[3*k+2] = 1/up, 1/down, 1/math.Min(up, down)
+		}
+	}
+	usable := func(k int) bool { return pr.inv[3*k] > 0 }
 	// The candidates: the element with the largest g at each sample t and the one
 	// with the steepest rise in t, among the usable ones.
 	var cands [len(pruneSamples) + 1]int
 	nc := 0
 	add := func(k int) {
-		if k < 0 {
+		if k < 0 || slices.Contains(cands[:nc], k) {
 			return
-		}
-		for _, c := range cands[:nc] {
-			if c == k {
-				return
-			}
 		}
 		cands[nc] = k
 		nc++
@@ -276,7 +279,7 @@ func (br *balanceRows) prune(cd []float64) {
 	for _, t := range pruneSamples {
 		best, bg := -1, 0.0
 		for k := range n {
-			if g := br.g(k, t); usable(k) && g > bg {
+			if g := pr.g(k, t); usable(k) && g > bg {
 				best, bg = k, g
 			}
 		}
@@ -284,7 +287,7 @@ func (br *balanceRows) prune(cd []float64) {
 	}
 	best, bs := -1, 0.0
 	for k := range n {
-		if sl := br.slope(k); usable(k) && sl > bs {
+		if sl := pr.slope(k); usable(k) && sl > bs {
 			best, bs = k, sl
 		}
 	}
@@ -293,8 +296,7 @@ func (br *balanceRows) prune(cd []float64) {
 		i := k / br.rows
 		dropped := false
 		for _, d := range cands[:nc] {
-			j := d / br.rows
-			if d != k && (i == j || (cd[j] >= cd[i] && cd[i] >= 0)) && usable(k) && br.dominates(d, k) {
+			if j := d / br.rows; d != k && usable(k) && (i == j || (cd[j] >= cd[i] && cd[i] >= 0)) && pr.dominates(d, k) {
 				dropped = true
 				break
 			}
@@ -306,65 +308,73 @@ func (br *balanceRows) prune(cd []float64) {
 	}
 }
 
-// g returns element k's |F + t·M|/r at t (prune).
-func (br *balanceRows) g(k int, t float64) float64 {
-	v := br.force[k] + t*br.moment[k]
+// pruner holds prune's figures per element k: F and M, and in inv[3k:3k+3] the
+// reciprocals of up, down and min(up, down) (0: not usable).
+type pruner struct {
+	f, m, inv []float64
+}
+
+// g returns element k's |F + t·M|/r at t.
+func (p *pruner) g(k int, t float64) float64 {
+	v := p.f[k] + t*p.m[k]
 	if v < 0 {
-		return -v / br.down[k]
+		return -v * p.inv[3*k+1]
 	}
-	return v / br.up[k]
+	return v * p.inv[3*k]
 }
 
-// h returns element k's (|F| + t·|M|)/min(up, down) at t (prune).
-func (br *balanceRows) h(k int, t float64) float64 {
-	return (math.Abs(br.force[k]) + t*math.Abs(br.moment[k])) / math.Min(br.up[k], br.down[k])
+// h returns element k's (|F| + t·|M|)/min(up, down) at t.
+func (p *pruner) h(k int, t float64) float64 {
+	return (math.Abs(p.f[k]) + t*math.Abs(p.m[k])) * p.inv[3*k+2]
 }
 
-// slope returns the rate of rise in t of element k's g for large t (prune).
-func (br *balanceRows) slope(k int) float64 {
-	m := br.moment[k]
+// slope returns the rate of rise in t of element k's g for large t.
+func (p *pruner) slope(k int) float64 {
+	m := p.m[k]
 	switch {
 	case m > 0:
-		return m / br.up[k]
+		return m * p.inv[3*k]
 	case m < 0:
-		return -m / br.down[k]
+		return -m * p.inv[3*k+1]
 	}
 	return 0
 }
 
+// gap returns g_d − g_k − pruneMargin·(h_d + h_k) at t.
+func (p *pruner) gap(d, k int, t float64) float64 {
+	return p.g(d, t) - p.g(k, t) - pruneMargin*(p.h(d, t)+p.h(k, t))
+}
+
 // dominates reports whether element d's g exceeds element k's by more than
-// pruneMargin·(h_d + h_k) at every t > 0 (prune).
-func (br *balanceRows) dominates(d, k int) bool {
-	gap := func(t float64) float64 {
-		return br.g(d, t) - br.g(k, t) - pruneMargin*(br.h(d, t)+br.h(k, t))
-	}
+// pruneMargin·(h_d + h_k) at every t > 0.
+func (p *pruner) dominates(d, k int) bool {
 	// At t = 0 the gap must be positive, or exactly 0 because neither element has a
 	// part that does not grow with t (then the slope decides near 0).
-	last := 0.0
-	if g0 := gap(0); !(g0 > 0) && !(br.force[d] == 0 && br.force[k] == 0) {
+	g0 := p.gap(d, k, 0)
+	if !(g0 > 0) && !(p.f[d] == 0 && p.f[k] == 0) {
 		return false
 	}
+	// Beyond the last kink both sides are linear: the gap must not fall.
+	rise := 0.0
+	if p.m[d] != 0 || p.m[k] != 0 {
+		rise = p.slope(d) - p.slope(k) - pruneMargin*(math.Abs(p.m[d])*p.inv[3*d+2]+math.Abs(p.m[k])*p.inv[3*k+2])
+		if !(rise >= 0) {
+			return false
+		}
+	}
+	kinked := false
 	for _, x := range [2]int{d, k} {
-		if f, m := br.force[x], br.moment[x]; m != 0 {
+		if f, m := p.f[x], p.m[x]; m != 0 {
 			if t := -f / m; t > 0 {
-				if !(gap(t) > 0) {
+				if !(p.gap(d, k, t) > 0) {
 					return false
 				}
-				last = math.Max(last, t)
+				kinked = true
 			}
 		}
 	}
-	// Beyond the last kink both sides are linear: the gap must not fall.
-	rise := br.slope(d) - br.slope(k) - pruneMargin*(math.Abs(br.moment[d])/math.Min(br.up[d], br.down[d])+
-		math.Abs(br.moment[k])/math.Min(br.up[k], br.down[k]))
-	if br.moment[d] == 0 && br.moment[k] == 0 {
-		rise = 0
-	}
-	if !(rise >= 0) {
-		return false
-	}
 	// Without a kink the gap is linear from t = 0: it must start positive or rise.
-	return last > 0 || gap(0) > 0 || rise > 0
+	return kinked || g0 > 0 || rise > 0
 }
 
 // LoadEstimate is the load answer of a plan or a load check at one model scale and
