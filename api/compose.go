@@ -366,9 +366,9 @@ func (pp *preparedPlan) plan() (*PlanResponse, error) {
 		return nil, err
 	}
 	if out.Loads != nil {
-		out.Cautions = appendCautions(out.Cautions, f, *out.Loads)
-	} else {
-		out.Cautions = appendCautions(out.Cautions, f)
+		// The plan's cautions are facilities.Cautions(f) already: only the load
+		// report's caution can be new, so the facility's are not written again.
+		out.Cautions = appendUnique(out.Cautions, facilities.Cautions(nil, *out.Loads)...)
 	}
 	medium := f.Medium.Kind
 	re, err := similarity.ReynoldsEffect(&req.Article, res.Flight.Reynolds, res.Flight.Mach, res.Test.Reynolds, res.Test.Mach, medium)

@@ -239,22 +239,40 @@ type Ratings struct {
 // Ratings compiles the balance's limits. A safety factor of 0 is taken as 1; one
 // below 1, a non-positive rated load or an unknown component name in a combined
 // row is an error naming the field under "balance".
-func (b *Balance) Ratings() (Ratings, error) { return b.ratings("balance") }
+func (b *Balance) Ratings() (Ratings, error) { return b.ratings(-1) }
 
 // BalanceRatings compiles the limits of the facility's i-th balance, naming bad
 // fields under "facility.balances[i]".
 func (f *Facility) BalanceRatings(i int) (Ratings, error) {
-	return f.Balances[i].ratings(fmt.Sprintf("facility.balances[%d]", i))
+	return f.Balances[i].ratings(i)
 }
 
-func (b *Balance) ratings(path string) (Ratings, error) {
+// balancePath returns the JSON path of a facility's i-th balance, or "balance" for
+// i < 0 (a balance on its own).
+func balancePath(i int) string {
+	if i < 0 {
+		return "balance"
+	}
+	return fmt.Sprintf("facility.balances[%d]", i)
+}
+
+// ratings compiles the limits of the balance at balancePath(idx); the path is
+// written only when there is an error to name.
+func (b *Balance) ratings(idx int) (Ratings, error) {
 	var fe []FieldError
+	path := ""
+	at := func(field string) string {
+		if path == "" {
+			path = balancePath(idx)
+		}
+		return path + field
+	}
 	sf := b.SafetyFactor
 	switch {
 	case sf == 0:
 		sf = 1
 	case !(sf >= 1) || math.IsInf(sf, 0):
-		fe = append(fe, FieldError{path + ".safety_factor", fmt.Sprintf("must be at least 1, got %g", sf)})
+		fe = append(fe, FieldError{at(".safety_factor"), fmt.Sprintf("must be at least 1, got %g", sf)})
 	}
 	rs := Ratings{SafetyFactor: sf}
 	single := [6]*float64{b.Limits.Normal, b.Limits.Axial, b.Limits.Side,
@@ -264,19 +282,19 @@ func (b *Balance) ratings(path string) (Ratings, error) {
 			continue
 		}
 		if !(*l > 0) || math.IsInf(*l, 0) {
-			fe = append(fe, FieldError{path + ".limits." + ComponentName(i), fmt.Sprintf("must be a positive finite load, got %g", *l)})
+			fe = append(fe, FieldError{at(".limits." + ComponentName(i)), fmt.Sprintf("must be a positive finite load, got %g", *l)})
 			continue
 		}
 		rs.rows = append(rs.rows, rating{name: ComponentName(i), index: i, limit: *l, allowed: *l / sf})
 	}
 	for j, c := range b.Combined {
-		p := fmt.Sprintf("%s.combined[%d]", path, j)
+		p := func(field string) string { return at(fmt.Sprintf(".combined[%d]", j) + field) }
 		r := rating{name: c.Name, index: -1, limit: c.Limit, allowed: c.Limit / sf}
 		if r.name == "" {
 			r.name = fmt.Sprintf("combined[%d]", j)
 		}
 		if !(c.Limit > 0) || math.IsInf(c.Limit, 0) {
-			fe = append(fe, FieldError{p + ".limit", fmt.Sprintf("must be a positive finite load, got %g", c.Limit)})
+			fe = append(fe, FieldError{p(".limit"), fmt.Sprintf("must be a positive finite load, got %g", c.Limit)})
 		}
 		keys := make([]string, 0, len(c.Coefficients))
 		for k := range c.Coefficients {
@@ -288,9 +306,9 @@ func (b *Balance) ratings(path string) (Ratings, error) {
 			v := c.Coefficients[k]
 			switch {
 			case i < 0:
-				fe = append(fe, FieldError{p + ".coefficients." + k, "unknown component: want normal, axial, side, rolling_moment, pitching_moment or yawing_moment"})
+				fe = append(fe, FieldError{p(".coefficients." + k), "unknown component: want normal, axial, side, rolling_moment, pitching_moment or yawing_moment"})
 			case math.IsNaN(v) || math.IsInf(v, 0):
-				fe = append(fe, FieldError{p + ".coefficients." + k, "must be finite"})
+				fe = append(fe, FieldError{p(".coefficients." + k), "must be finite"})
 			default:
 				r.coef[i] = v
 			}
@@ -655,14 +673,14 @@ func (lc *LoadCase) Affine(i int) (perQ, weight Load) {
 // pressure q (Pa), the utilisation of each point, the worst point, and the largest
 // safe free-stream dynamic pressure. Bad input is a *Error naming the field.
 func (lc *LoadCase) Check(b *Balance, q float64) (LoadReport, error) {
-	return lc.check(b, q, "balance")
+	return lc.check(b, q, -1)
 }
 
-func (lc *LoadCase) check(b *Balance, q float64, path string) (LoadReport, error) {
+func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 	if err := lc.validate(q); err != nil {
 		return LoadReport{}, err
 	}
-	rs, err := b.ratings(path)
+	rs, err := b.ratings(idx)
 	if err != nil {
 		return LoadReport{}, err
 	}
@@ -723,7 +741,7 @@ func (lc *LoadCase) CheckAll(f *Facility, q float64) ([]LoadReport, error) {
 	}
 	out := make([]LoadReport, len(f.Balances))
 	for i := range f.Balances {
-		r, err := lc.check(&f.Balances[i], q, fmt.Sprintf("facility.balances[%d]", i))
+		r, err := lc.check(&f.Balances[i], q, i)
 		if err != nil {
 			return nil, err
 		}
@@ -753,7 +771,7 @@ func (lc *LoadCase) ChooseBalance(f *Facility, q float64) (BalanceChoice, error)
 			if f.Balances[i].ID != id {
 				continue
 			}
-			r, err := lc.check(&f.Balances[i], q, fmt.Sprintf("facility.balances[%d]", i))
+			r, err := lc.check(&f.Balances[i], q, i)
 			if err != nil {
 				return BalanceChoice{}, err
 			}

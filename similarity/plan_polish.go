@@ -59,6 +59,12 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 	if sv.noPolish || !sv.obj.weighted || !x.ok {
 		return x
 	}
+	return sv.refine(x, ivs)
+}
+
+// refine is polish's refinement itself. It is a function of its own because its
+// closures keep x on the heap, which a plan that is not refined need not pay for.
+func (sv *solver) refine(x cand, ivs []interval) cand {
 	ua, ub := x.u, x.u
 	for _, iv := range ivs {
 		if x.u >= iv.a && x.u <= iv.b {
