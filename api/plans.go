@@ -24,16 +24,30 @@ import (
 //	@Failure		422		{object}	Problem	"no plan satisfies the hard limits; limits names those that conflict"
 //	@Router			/v1/plans [post]
 func (s *Server) postPlan(c *gin.Context) {
+	p := s.planner()
+	ctx := c.Request.Context()
+	if a, ok := p.Catalog.(planAnnouncer); ok {
+		var done func()
+		ctx, done = a.ExpectPlan(ctx)
+		defer done()
+	}
 	var req PlanRequest
 	if !s.decodeBody(c, &req) {
 		return
 	}
-	body, err := s.timedPlan(c.Request.Context(), s.planner(), &req)
+	body, err := s.timedPlan(ctx, p, &req)
 	if err != nil {
 		s.fail(c, err)
 		return
 	}
 	writeJSON(c, body)
+}
+
+// planAnnouncer is a catalog whose group commits gather more plans when told
+// that one is on its way (sqlite.DB.ExpectPlan): postPlan announces its plan
+// before decoding the request, so that concurrent requests share one commit.
+type planAnnouncer interface {
+	ExpectPlan(ctx context.Context) (context.Context, func())
 }
 
 // writeJSON answers 200 with body, JSON the handler has encoded, and its

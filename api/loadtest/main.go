@@ -25,9 +25,11 @@
 //     (-vary=false leaves this phase out);
 //   - health: GET /healthz, the HTTP stack alone.
 //
-// It prints requests per second, latency percentiles and the count of answers that
-// were not 200 for each phase, and each plan phase's rate as a percentage of the
-// health checks'. -cpuprofile writes a CPU profile of the whole run (with -serve,
+// It prints requests per second, latency percentiles, the count of answers that
+// were not 200 and the process's CPU time per request (with -serve, server and
+// load generator together) for each phase, and each plan phase's rate as a percentage of the
+// health checks'; with -serve also how many group commits stored the distinct
+// plans and how many records each held on average. -cpuprofile writes a CPU profile of the whole run (with -serve,
 // server and load generator together).
 package main
 
@@ -50,6 +52,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"syscall"
 	"time"
 
 	"github.com/prometheus/client_golang/prometheus"
@@ -110,13 +113,15 @@ func run(args []string, out io.Writer) error {
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
+	var store *sqlite.DB
 	if *serve {
-		addr, stop, err := startServer(ctx)
+		addr, stop, db, err := startServer(ctx)
 		if err != nil {
 			return err
 		}
 		defer stop()
 		*base = "http://" + addr
+		store = db
 	}
 	if err := checkLoopback(*base); err != nil {
 		return err
@@ -146,9 +151,21 @@ func run(args []string, out io.Writer) error {
 	// else runs on the machine meanwhile weighs on each of them alike.
 	rounds := max(1, int(each/(500*time.Millisecond)))
 	results := make([]result, len(phases))
+	var groups, records int64 // the distinct phase's group commits (-serve)
 	for range rounds {
 		for i, p := range phases {
-			results[i].add(hammer(client, *base, p.method, p.path, p.body, *concurrency, each/time.Duration(rounds)))
+			var g0, r0 int64
+			if store != nil {
+				g0, r0 = store.PlanGroups()
+			}
+			c0 := cpuTime()
+			r := hammer(client, *base, p.method, p.path, p.body, *concurrency, each/time.Duration(rounds))
+			r.cpu = cpuTime() - c0
+			results[i].add(r)
+			if store != nil && distinct != nil && i == 1 {
+				g1, r1 := store.PlanGroups()
+				groups, records = groups+g1-g0, records+r1-r0
+			}
 		}
 	}
 	rates := make([]float64, len(phases))
@@ -156,9 +173,9 @@ func run(args []string, out io.Writer) error {
 		r := results[i]
 		slices.Sort(r.latencies)
 		rates[i] = float64(r.n) / r.elapsed.Seconds()
-		fmt.Fprintf(out, "%s  %8.1f /s  %7d requests  %d not 200  latency p50 %v  p90 %v  p99 %v\n",
+		fmt.Fprintf(out, "%s  %8.1f /s  %7d requests  %d not 200  latency p50 %v  p90 %v  p99 %v  CPU %.0f µs/request\n",
 			p.name, rates[i], r.n, r.failed,
-			r.percentile(0.50), r.percentile(0.90), r.percentile(0.99))
+			r.percentile(0.50), r.percentile(0.90), r.percentile(0.99), r.cpuPerRequest())
 	}
 	health := rates[len(rates)-1]
 	fmt.Fprintf(out, "plans per health check: repeated %.1f %%", 100*rates[0]/health)
@@ -166,6 +183,10 @@ func run(args []string, out io.Writer) error {
 		fmt.Fprintf(out, ", distinct %.1f %%", 100*rates[1]/health)
 	}
 	fmt.Fprintln(out)
+	if groups > 0 {
+		fmt.Fprintf(out, "distinct plans stored in %d group commits, %.2f records each on average\n",
+			groups, float64(records)/float64(groups))
+	}
 	return nil
 }
 
@@ -258,36 +279,36 @@ func checkLoopback(base string) error {
 
 // startServer serves the API on 127.0.0.1 with a temporary SQLite store holding the
 // demo facilities; stop shuts it down and removes the store.
-func startServer(ctx context.Context) (addr string, stop func(), err error) {
+func startServer(ctx context.Context) (addr string, stop func(), db *sqlite.DB, err error) {
 	dir, err := os.MkdirTemp("", "scalematch-load-")
 	if err != nil {
-		return "", nil, err
+		return "", nil, nil, err
 	}
-	db, err := sqlite.Open(ctx, sqlite.Path(dir))
+	db, err = sqlite.Open(ctx, sqlite.Path(dir))
 	if err != nil {
 		os.RemoveAll(dir)
-		return "", nil, err
+		return "", nil, nil, err
 	}
 	cleanup := func() { db.Close(); os.RemoveAll(dir) }
 	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
 		cleanup()
-		return "", nil, err
+		return "", nil, nil, err
 	}
 	srv, err := api.New(api.Config{Catalog: db, Registry: prometheus.NewRegistry(),
 		Logger: slog.New(slog.NewJSONHandler(io.Discard, nil))})
 	if err != nil {
 		cleanup()
-		return "", nil, err
+		return "", nil, nil, err
 	}
 	ln, err := net.Listen("tcp", "127.0.0.1:0")
 	if err != nil {
 		cleanup()
-		return "", nil, err
+		return "", nil, nil, err
 	}
 	sctx, cancel := context.WithCancel(ctx)
 	done := make(chan error, 1)
 	go func() { done <- srv.Serve(sctx, ln) }()
-	return ln.Addr().String(), func() { cancel(); <-done; cleanup() }, nil
+	return ln.Addr().String(), func() { cancel(); <-done; cleanup() }, db, nil
 }
 
 func once(c *http.Client, base, method, path string, body []byte) (int, []byte, error) {
@@ -337,6 +358,9 @@ func send(c *http.Client, base, method, path string, body []byte) (int, error) {
 type result struct {
 	n, failed int
 	elapsed   time.Duration
+	// cpu is the CPU time (user and system) this process spent during the run:
+	// the load generator's, and with -serve the server's too.
+	cpu       time.Duration
 	latencies []time.Duration // sorted before percentile is called
 }
 
@@ -345,7 +369,27 @@ func (r *result) add(o result) {
 	r.n += o.n
 	r.failed += o.failed
 	r.elapsed += o.elapsed
+	r.cpu += o.cpu
 	r.latencies = append(r.latencies, o.latencies...)
+}
+
+// cpuPerRequest returns the process's CPU time per request in µs (0 without
+// requests).
+func (r result) cpuPerRequest() float64 {
+	if r.n == 0 {
+		return 0
+	}
+	return float64(r.cpu.Microseconds()) / float64(r.n)
+}
+
+// cpuTime returns the CPU time, user and system, this process has used so far
+// (0 where getrusage fails).
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
 // percentile returns the latency below which the fraction q of requests finished.

@@ -38,20 +38,23 @@ func TestRunInProcess(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, name := range []string{"repeated", "distinct", "health"} {
-		re := regexp.MustCompile(name + `.*?(\d+\.\d) /s .* (\d+) not 200`)
+		re := regexp.MustCompile(name + `.*?(\d+\.\d) /s .* (\d+) not 200 .* CPU (\d+) µs/request`)
 		m := re.FindStringSubmatch(out.String())
 		if m == nil {
 			t.Fatalf("no %s line in:\n%s", name, out.String())
 		}
-		if m[1] == "0.0" || m[2] != "0" {
-			t.Errorf("%s: rate %s /s, %s failures; want a rate and none", name, m[1], m[2])
+		if m[1] == "0.0" || m[2] != "0" || m[3] == "0" {
+			t.Errorf("%s: rate %s /s, %s failures, CPU %s µs/request; want a rate, none and some CPU", name, m[1], m[2], m[3])
 		}
 	}
 	if !regexp.MustCompile(`plans per health check: repeated \d+\.\d %, distinct \d+\.\d %\n`).MatchString(out.String()) {
 		t.Errorf("no ratio line in:\n%s", out.String())
 	}
-	if strings.Count(out.String(), "\n") != 5 {
-		t.Errorf("want 5 lines:\n%s", out.String())
+	if !regexp.MustCompile(`distinct plans stored in [1-9]\d* group commits, \d+\.\d\d records each on average\n`).MatchString(out.String()) {
+		t.Errorf("no group commit line in:\n%s", out.String())
+	}
+	if strings.Count(out.String(), "\n") != 6 {
+		t.Errorf("want 6 lines:\n%s", out.String())
 	}
 }
 

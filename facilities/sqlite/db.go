@@ -78,6 +78,8 @@ func Open(ctx context.Context, path string) (*DB, error) {
 	w.SetConnMaxLifetime(0)
 	w.SetConnMaxIdleTime(0)
 	db := &DB{path: path, w: w, now: func() time.Time { return time.Now().UTC().Truncate(time.Microsecond) }}
+	db.plans.arrived = make(chan struct{}, 1)
+	db.plans.gatherMax = maxGather
 	if err := db.migrate(ctx); err != nil {
 		w.Close()
 		return nil, err
