@@ -38,6 +38,8 @@ type DB struct {
 
 	// Prepared reads on r, the ones every plan request makes.
 	facilityStmt, versionStmt, planStmt *sql.Stmt
+	// insertPlanStmt is the plan insert, prepared on w.
+	insertPlanStmt *sql.Stmt
 	// plans commits SavePlan calls in groups (plans.go).
 	plans committer
 
@@ -83,6 +85,10 @@ func Open(ctx context.Context, path string) (*DB, error) {
 	if err := db.migrate(ctx); err != nil {
 		w.Close()
 		return nil, err
+	}
+	if db.insertPlanStmt, err = w.PrepareContext(ctx, insertPlanQuery); err != nil {
+		w.Close()
+		return nil, fmt.Errorf("sqlite: preparing the plan insert of %s: %w", path, err)
 	}
 	r, err := sql.Open("sqlite", path+"?"+common+"&_pragma=query_only(1)")
 	if err != nil {
@@ -185,7 +191,7 @@ func (db *DB) Ping(ctx context.Context) error {
 func (db *DB) Close() error {
 	db.closePlans()
 	var errs []error
-	for _, st := range []*sql.Stmt{db.facilityStmt, db.versionStmt, db.planStmt} {
+	for _, st := range []*sql.Stmt{db.facilityStmt, db.versionStmt, db.planStmt, db.insertPlanStmt} {
 		if st != nil {
 			errs = append(errs, st.Close())
 		}

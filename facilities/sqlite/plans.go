@@ -206,6 +206,10 @@ func (c *committer) gather() {
 	}
 }
 
+// insertPlanQuery stores one plan record unless its id is stored already.
+const insertPlanQuery = `INSERT INTO plans (id, facility_id, facility_version, body, created_us)
+	VALUES (?, ?, ?, ?, ?) ON CONFLICT (id) DO NOTHING`
+
 // commitPlans commits queued plan records in groups until the queue is empty.
 func (db *DB) commitPlans() {
 	c := &db.plans
@@ -245,11 +249,8 @@ func (db *DB) commitPlans() {
 func (db *DB) commitGroup(group []*planWaiter) {
 	ctx := context.Background()
 	err := db.tx(ctx, "save_plan", func(tx *sql.Tx) error {
-		ins, err := tx.PrepareContext(ctx, `INSERT INTO plans (id, facility_id, facility_version, body, created_us)
-			VALUES (?, ?, ?, ?, ?) ON CONFLICT (id) DO NOTHING`)
-		if err != nil {
-			return err
-		}
+		// Prepared on the writer connection once (Open): StmtContext reuses it.
+		ins := tx.StmtContext(ctx, db.insertPlanStmt)
 		defer ins.Close()
 		var sel *sql.Stmt
 		for _, w := range group {
