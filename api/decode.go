@@ -14,6 +14,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"unicode/utf8"
 
 	"github.com/gin-gonic/gin"
 
@@ -64,14 +65,18 @@ func Decode(body []byte, dst any) error {
 	if len(bytes.TrimSpace(body)) == 0 {
 		return bodyError("the body is empty: want a JSON object")
 	}
-	dec := json.NewDecoder(bytes.NewReader(body))
-	dec.UseNumber()
-	var tree any
-	if err := dec.Decode(&tree); err != nil {
-		return bodyError(syntaxMessage(err))
-	}
-	if _, err := dec.Token(); err != io.EOF {
-		return bodyError("there is data after the JSON value")
+	tree, ok := parseTree(body)
+	if !ok {
+		// What the fast parser leaves (invalid JSON, \u escapes, invalid UTF-8,
+		// deep nesting) encoding/json decodes, with its error messages.
+		dec := json.NewDecoder(bytes.NewReader(body))
+		dec.UseNumber()
+		if err := dec.Decode(&tree); err != nil {
+			return bodyError(syntaxMessage(err))
+		}
+		if _, err := dec.Token(); err != io.EOF {
+			return bodyError("there is data after the JSON value")
+		}
 	}
 	// The walk fills a copy, so that dst is changed only when all is well.
 	fresh := reflect.New(rv.Elem().Type()).Elem()
@@ -87,6 +92,268 @@ func Decode(body []byte, dst any) error {
 	}
 	rv.Elem().Set(fresh)
 	return nil
+}
+
+// maxTreeDepth is the deepest nesting of objects and arrays parseTree handles;
+// deeper bodies go to encoding/json.
+const maxTreeDepth = 64
+
+// parseTree parses body, one JSON value (RFC 8259) with optional white space
+// around it, into the tree encoding/json's Decoder with UseNumber gives:
+// map[string]any for objects (a repeated key keeps its last value), []any
+// (never nil) for arrays, json.Number holding a number's text, string, bool and
+// nil. It is the common case made fast: ok is false, and the caller decodes with
+// encoding/json, for anything it does not take as it is: invalid JSON, strings
+// with \u escapes or invalid UTF-8, nesting deeper than maxTreeDepth.
+func parseTree(body []byte) (tree any, ok bool) {
+	p := treeParser{b: body}
+	v, ok := p.value(0)
+	if !ok {
+		return nil, false
+	}
+	p.space()
+	return v, p.i == len(p.b)
+}
+
+// treeParser reads b from offset i.
+type treeParser struct {
+	b []byte
+	i int
+}
+
+// space skips JSON white space.
+func (p *treeParser) space() {
+	for p.i < len(p.b) {
+		switch p.b[p.i] {
+		case ' ', '\t', '\n', '\r':
+			p.i++
+		default:
+			return
+		}
+	}
+}
+
+func (p *treeParser) value(depth int) (any, bool) {
+	p.space()
+	if p.i >= len(p.b) {
+		return nil, false
+	}
+	switch c := p.b[p.i]; {
+	case c == '{':
+		return p.object(depth + 1)
+	case c == '[':
+		return p.array(depth + 1)
+	case c == '"':
+		return p.str()
+	case c == '-' || ('0' <= c && c <= '9'):
+		return p.number()
+	case c == 't':
+		return true, p.literal("true")
+	case c == 'f':
+		return false, p.literal("false")
+	case c == 'n':
+		return nil, p.literal("null")
+	}
+	return nil, false
+}
+
+func (p *treeParser) literal(word string) bool {
+	if !bytes.HasPrefix(p.b[p.i:], []byte(word)) {
+		return false
+	}
+	p.i += len(word)
+	return true
+}
+
+func (p *treeParser) object(depth int) (any, bool) {
+	if depth > maxTreeDepth {
+		return nil, false
+	}
+	p.i++ // {
+	m := make(map[string]any)
+	p.space()
+	if p.i < len(p.b) && p.b[p.i] == '}' {
+		p.i++
+		return m, true
+	}
+	for {
+		p.space()
+		if p.i >= len(p.b) || p.b[p.i] != '"' {
+			return nil, false
+		}
+		k, ok := p.str()
+		if !ok {
+			return nil, false
+		}
+		p.space()
+		if p.i >= len(p.b) || p.b[p.i] != ':' {
+			return nil, false
+		}
+		p.i++
+		v, ok := p.value(depth)
+		if !ok {
+			return nil, false
+		}
+		m[k] = v
+		p.space()
+		if p.i >= len(p.b) {
+			return nil, false
+		}
+		switch p.b[p.i] {
+		case ',':
+			p.i++
+		case '}':
+			p.i++
+			return m, true
+		default:
+			return nil, false
+		}
+	}
+}
+
+func (p *treeParser) array(depth int) (any, bool) {
+	if depth > maxTreeDepth {
+		return nil, false
+	}
+	p.i++ // [
+	a := make([]any, 0)
+	p.space()
+	if p.i < len(p.b) && p.b[p.i] == ']' {
+		p.i++
+		return a, true
+	}
+	for {
+		v, ok := p.value(depth)
+		if !ok {
+			return nil, false
+		}
+		a = append(a, v)
+		p.space()
+		if p.i >= len(p.b) {
+			return nil, false
+		}
+		switch p.b[p.i] {
+		case ',':
+			p.i++
+		case ']':
+			p.i++
+			return a, true
+		default:
+			return nil, false
+		}
+	}
+}
+
+// str reads a string without \u escapes whose bytes are valid UTF-8.
+func (p *treeParser) str() (string, bool) {
+	p.i++ // "
+	start := p.i
+	ascii := true
+	for p.i < len(p.b) {
+		c := p.b[p.i]
+		switch {
+		case c == '"':
+			s := p.b[start:p.i]
+			p.i++
+			if !ascii && !utf8.Valid(s) {
+				return "", false
+			}
+			return string(s), true
+		case c == '\\':
+			return p.escaped(start)
+		case c < 0x20:
+			return "", false
+		case c >= utf8.RuneSelf:
+			ascii = false
+		}
+		p.i++
+	}
+	return "", false
+}
+
+// escaped finishes a string that started at start and has a backslash at p.i.
+func (p *treeParser) escaped(start int) (string, bool) {
+	out := append([]byte(nil), p.b[start:p.i]...)
+	for p.i < len(p.b) {
+		c := p.b[p.i]
+		switch {
+		case c == '"':
+			p.i++
+			if !utf8.Valid(out) {
+				return "", false
+			}
+			return string(out), true
+		case c == '\\':
+			if p.i+1 >= len(p.b) {
+				return "", false
+			}
+			var r byte
+			switch p.b[p.i+1] {
+			case '"', '\\', '/':
+				r = p.b[p.i+1]
+			case 'b':
+				r = '\b'
+			case 'f':
+				r = '\f'
+			case 'n':
+				r = '\n'
+			case 'r':
+				r = '\r'
+			case 't':
+				r = '\t'
+			default: // \u and invalid escapes
+				return "", false
+			}
+			out = append(out, r)
+			p.i += 2
+			continue
+		case c < 0x20:
+			return "", false
+		}
+		out = append(out, c)
+		p.i++
+	}
+	return "", false
+}
+
+// number reads a number as RFC 8259 writes it:
+// -?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?
+func (p *treeParser) number() (any, bool) {
+	start := p.i
+	if p.b[p.i] == '-' {
+		p.i++
+	}
+	switch {
+	case p.i < len(p.b) && p.b[p.i] == '0':
+		p.i++
+	case p.digits() == 0:
+		return nil, false
+	}
+	if p.i < len(p.b) && p.b[p.i] == '.' {
+		p.i++
+		if p.digits() == 0 {
+			return nil, false
+		}
+	}
+	if p.i < len(p.b) && (p.b[p.i] == 'e' || p.b[p.i] == 'E') {
+		p.i++
+		if p.i < len(p.b) && (p.b[p.i] == '+' || p.b[p.i] == '-') {
+			p.i++
+		}
+		if p.digits() == 0 {
+			return nil, false
+		}
+	}
+	return json.Number(p.b[start:p.i]), true
+}
+
+// digits skips decimal digits and returns how many.
+func (p *treeParser) digits() int {
+	start := p.i
+	for p.i < len(p.b) && '0' <= p.b[p.i] && p.b[p.i] <= '9' {
+		p.i++
+	}
+	return p.i - start
 }
 
 func bodyError(msg string) error { return fieldError("", msg) }
