@@ -77,8 +77,10 @@ type committer struct {
 // Concurrent calls share transactions (group commit): each call is acknowledged
 // only after the transaction holding its record has committed with
 // synchronous=FULL, so an acknowledged plan is durable; an error of that
-// transaction fails every call in it. A call whose context ends while its record
-// still waits in the queue is removed from it and returns the context's error;
+// transaction fails every call in it. A call that finds no group committing
+// commits its own group on its own goroutine and reports that group's outcome,
+// whatever its context does meanwhile. A queued call whose context ends while its
+// record still waits is removed from the queue and returns the context's error;
 // one whose context ends while its group is committing returns an error saying
 // the record may have been stored.
 func (db *DB) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities.PlanRecord, error) {
@@ -104,12 +106,18 @@ func (db *DB) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities
 		return facilities.PlanRecord{}, errClosed
 	}
 	c.queue = append(c.queue, w)
-	if !c.running {
+	inline := !c.running
+	if inline {
 		c.running = true
 		c.wg.Add(1)
-		go db.commitPlans()
 	}
 	c.mu.Unlock()
+	if inline {
+		// No group is committing: this call commits its own on its goroutine,
+		// sparing the hand-over to a committer goroutine and back.
+		db.commitPlans(w)
+		return w.out, w.err
+	}
 	c.signal()
 	select {
 	case <-w.done:
@@ -211,10 +219,26 @@ const insertPlanQuery = `INSERT INTO plans (id, facility_id, facility_version, b
 	VALUES (?, ?, ?, ?, ?) ON CONFLICT (id) DO NOTHING`
 
 // commitPlans commits queued plan records in groups until the queue is empty.
-func (db *DB) commitPlans() {
+// Called by SavePlan with its own waiter, it returns as soon as that waiter's
+// group has committed, leaving any records queued meanwhile to a committer
+// goroutine it starts.
+func (db *DB) commitPlans(own *planWaiter) {
 	c := &db.plans
-	defer c.wg.Done()
 	for {
+		if own != nil && own.state.Load() == taken {
+			// The caller's group has committed: what has queued since is left
+			// to a committer goroutine.
+			c.mu.Lock()
+			if len(c.queue) == 0 {
+				c.running = false
+				c.mu.Unlock()
+				c.wg.Done()
+				return
+			}
+			c.mu.Unlock()
+			go db.commitPlans(nil)
+			return
+		}
 		c.gather()
 		c.mu.Lock()
 		n := min(len(c.queue), maxGroup)
@@ -226,6 +250,7 @@ func (db *DB) commitPlans() {
 		if n == 0 {
 			c.running = false
 			c.mu.Unlock()
+			c.wg.Done()
 			return
 		}
 		c.mu.Unlock()
