@@ -391,7 +391,11 @@ func writeStatic(row func(string, string, ...any), u units, s facilities.Static)
 
 // writeTest adds the rows of a test-section state and the model's Reynolds number.
 func writeTest(row func(string, string, ...any), u units, st facilities.State, reynolds float64) {
-	row("Mach number", "%.4f", st.Mach)
+	if st.Static.SpeedOfSound > 0 {
+		row("Mach number", "%.4f", st.Mach)
+	} else {
+		row("Mach number", "%s", "not used (incompressible medium)")
+	}
 	row("speed", "%s", u.q(st.Speed, "m/s", 4))
 	row("stagnation pressure", "%s", u.q(st.StagnationPressure, "Pa", 5))
 	row("stagnation temperature", "%s", u.q(st.StagnationTemperature, "K", 5))
