@@ -32,7 +32,7 @@ const migrationLock = "scalematch.migrate."
 type DB struct {
 	pool *pgxpool.Pool
 	// plans commits SavePlan calls in groups (plans.go).
-	plans committer
+	plans *planCommitter
 	now   func() time.Time
 	// beforeCommit, when set by a test of this package, runs after a write's
 	// statements and before its commit; an error aborts the write.
@@ -71,6 +71,7 @@ func Open(ctx context.Context, url string) (*DB, error) {
 		return nil, fmt.Errorf("postgres: connecting: %w", err)
 	}
 	db := &DB{pool: pool, now: func() time.Time { return time.Now().UTC().Truncate(time.Microsecond) }}
+	db.plans = newPlanCommitter(db)
 	if err := db.Ping(ctx); err != nil {
 		pool.Close()
 		return nil, err

@@ -41,7 +41,7 @@ type DB struct {
 	// insertPlanStmt is the plan insert, prepared on w.
 	insertPlanStmt *sql.Stmt
 	// plans commits SavePlan calls in groups (plans.go).
-	plans committer
+	plans *planCommitter
 
 	now func() time.Time
 	// beforeCommit, when set by a test of this package, runs after a write's
@@ -80,8 +80,7 @@ func Open(ctx context.Context, path string) (*DB, error) {
 	w.SetConnMaxLifetime(0)
 	w.SetConnMaxIdleTime(0)
 	db := &DB{path: path, w: w, now: func() time.Time { return time.Now().UTC().Truncate(time.Microsecond) }}
-	db.plans.arrived = make(chan struct{}, 1)
-	db.plans.gatherMax = maxGather
+	db.plans = newPlanCommitter(db)
 	if err := db.migrate(ctx); err != nil {
 		w.Close()
 		return nil, err

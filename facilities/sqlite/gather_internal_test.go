@@ -37,7 +37,7 @@ func TestExpectPlan(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			db := openInternal(t)
-			db.plans.gatherMax = tt.gatherMax
+			db.plans.SetGather(tt.gatherMax)
 			ctxA, withdrawA := db.ExpectPlan(context.Background())
 			ctxB, withdrawB := db.ExpectPlan(context.Background())
 			ctxA, cancel := context.WithTimeout(ctxA, 10*time.Second) // a derived context still carries it
@@ -50,9 +50,7 @@ func TestExpectPlan(t *testing.T) {
 			}()
 			// Wait until the first plan is queued or being committed.
 			for {
-				db.plans.mu.Lock()
-				coming := db.plans.coming
-				db.plans.mu.Unlock()
+				coming, _ := db.plans.Announced()
 				if coming == 1 {
 					break
 				}
@@ -83,9 +81,7 @@ func TestExpectPlan(t *testing.T) {
 			if g, r := db.PlanGroups(); g != tt.wantGroups || r != tt.wantRecords {
 				t.Errorf("%d records in %d groups, want %d in %d", r, g, tt.wantRecords, tt.wantGroups)
 			}
-			db.plans.mu.Lock()
-			coming, settled := db.plans.coming, db.plans.settled
-			db.plans.mu.Unlock()
+			coming, settled := db.plans.Announced()
 			if coming != 0 || settled != 2 {
 				t.Errorf("after settling: %d announcements outstanding, %d settled; want 0 and 2", coming, settled)
 			}
@@ -97,7 +93,7 @@ func TestExpectPlan(t *testing.T) {
 // besides its own is not delayed by the gathering limit.
 func TestExpectPlanLoneCall(t *testing.T) {
 	db := openInternal(t)
-	db.plans.gatherMax = time.Minute
+	db.plans.SetGather(time.Minute)
 	ctx, withdraw := db.ExpectPlan(context.Background())
 	defer withdraw()
 	done := make(chan error, 1)

@@ -145,9 +145,7 @@ func TestGroupCommit(t *testing.T) {
 			}
 			// Wait until all of them are queued behind the held transaction.
 			for {
-				db.plans.mu.Lock()
-				n := len(db.plans.queue)
-				db.plans.mu.Unlock()
+				n := db.plans.Queued()
 				if n == queued {
 					break
 				}
@@ -163,7 +161,7 @@ func TestGroupCommit(t *testing.T) {
 					t.Errorf("queued plan: error %v, want %v", err, tt.secondErr)
 				}
 			}
-			if g, r := db.plans.groups.Load(), db.plans.records.Load(); g != 2 || r != 1+queued {
+			if g, r := db.plans.Stats(); g != 2 || r != 1+queued {
 				t.Errorf("%d records in %d transactions, want %d in 2", r, g, 1+queued)
 			}
 			var stored int
