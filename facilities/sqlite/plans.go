@@ -60,17 +60,12 @@ func (db *DB) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities
 		p.CreatedAt = db.now()
 	}
 	out, outcome, err := db.plans.Submit(ctx, p)
-	switch outcome {
-	case groupcommit.Committed:
+	if outcome == groupcommit.Committed {
 		return out, nil
-	case groupcommit.Failed:
-		return facilities.PlanRecord{}, wrap("saving plan", p.ID, err)
-	case groupcommit.Closed:
-		return facilities.PlanRecord{}, errClosed
-	case groupcommit.Unknown:
-		return facilities.PlanRecord{}, fmt.Errorf("sqlite: saving plan %q: %w while its group was committing: it may have been stored", p.ID, err)
 	}
-	return facilities.PlanRecord{}, fmt.Errorf("sqlite: saving plan %q: %w", p.ID, err)
+	id := p.ID
+	failed := func(err error) error { return wrap("saving plan", id, err) }
+	return facilities.PlanRecord{}, groupcommit.Explain(fmt.Sprintf("sqlite: saving plan %q", id), outcome, err, failed, errClosed)
 }
 
 // ExpectPlan announces that a SavePlan call with the returned context (or one

@@ -31,6 +31,7 @@ package groupcommit
 
 import (
 	"context"
+	"fmt"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -324,4 +325,23 @@ func (c *Committer[R]) signal() {
 	case c.arrived <- struct{}{}:
 	default:
 	}
+}
+
+// Explain returns the error a store answers for a record that did not commit,
+// call naming the call and the record (for example `sqlite: saving plan "p1"`):
+// failed(err) for Failed, closed for Closed, call and the context's error for
+// Abandoned, the same followed by "while its group was committing: it may have
+// been stored" for Unknown. It returns nil for Committed.
+func Explain(call string, outcome Outcome, err error, failed func(error) error, closed error) error {
+	switch outcome {
+	case Committed:
+		return nil
+	case Failed:
+		return failed(err)
+	case Closed:
+		return closed
+	case Unknown:
+		return fmt.Errorf("%s: %w while its group was committing: it may have been stored", call, err)
+	}
+	return fmt.Errorf("%s: %w", call, err)
 }

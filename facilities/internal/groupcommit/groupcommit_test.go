@@ -386,3 +386,38 @@ func ExampleCommitter() {
 	// plan-1: 6 B committed <nil>
 	// 1 group, 1 record
 }
+
+// TestExplain checks the error a store answers for each outcome.
+func TestExplain(t *testing.T) {
+	closedErr := errors.New("the store is closed")
+	groupErr := errors.New("disk full")
+	failed := func(err error) error { return fmt.Errorf("saving plan: %w", err) }
+	tests := []struct {
+		name    string
+		outcome groupcommit.Outcome
+		err     error
+		want    string // "" means nil
+		is      error
+	}{
+		{"committed", groupcommit.Committed, nil, "", nil},
+		{"failed", groupcommit.Failed, groupErr, "saving plan: disk full", groupErr},
+		{"closed", groupcommit.Closed, nil, "the store is closed", closedErr},
+		{"abandoned", groupcommit.Abandoned, context.Canceled, `store: saving plan "p": context canceled`, context.Canceled},
+		{"unknown", groupcommit.Unknown, context.DeadlineExceeded,
+			`store: saving plan "p": context deadline exceeded while its group was committing: it may have been stored`, context.DeadlineExceeded},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			got := groupcommit.Explain(`store: saving plan "p"`, tt.outcome, tt.err, failed, closedErr)
+			if tt.want == "" {
+				if got != nil {
+					t.Errorf("error %v, want nil", got)
+				}
+				return
+			}
+			if got == nil || got.Error() != tt.want || !errors.Is(got, tt.is) {
+				t.Errorf("error %v, want %q wrapping %v", got, tt.want, tt.is)
+			}
+		})
+	}
+}
