@@ -490,16 +490,9 @@ func (sv *solver) prepare(u float64) uctx {
 		return c
 	}
 	if f.Speed != nil {
-		// At a fixed Mach number V ∝ √T0 (a = √(γRT), T = T0/(1+(γ−1)/2·M²)).
-		vb := stB.Speed
-		tlo := tb * sq(f.Speed.Min/vb)
-		thi := tb * sq(f.Speed.Max/vb)
-		if tlo > tb*(1+1e-12) {
-			c.fail = facilities.ConstraintSpeedMin
-			return c
-		}
-		if thi < ta*(1-1e-12) {
-			c.fail = facilities.ConstraintSpeedMax
+		tlo, thi, fail := speedWindow(f.Speed, stB.Speed, tb, ta, tb)
+		if fail != "" {
+			c.fail = fail
 			return c
 		}
 		ta = math.Max(ta, tlo)
@@ -567,16 +560,9 @@ func (sv *solver) prepareIdeal(u float64) uctx {
 		return c
 	}
 	if f.Speed != nil {
-		// At a fixed Mach number V ∝ √T0 (a = √(γRT), T = T0/(1+(γ−1)/2·M²)).
-		va := stA.Speed
-		tlo := ta * sq(f.Speed.Min/va)
-		thi := ta * sq(f.Speed.Max/va)
-		if tlo > tb*(1+1e-12) {
-			c.fail = facilities.ConstraintSpeedMin
-			return c
-		}
-		if thi < ta*(1-1e-12) {
-			c.fail = facilities.ConstraintSpeedMax
+		tlo, thi, fail := speedWindow(f.Speed, stA.Speed, ta, ta, tb)
+		if fail != "" {
+			c.fail = fail
 			return c
 		}
 		tb = math.Min(tb, thi)
@@ -997,3 +983,19 @@ func (sv *solver) rootHi(g func(float64) float64, lo, hi float64, increasing boo
 
 // sq returns x².
 func sq(x float64) float64 { return x * x }
+
+// speedWindow returns the stagnation temperatures [tlo, thi] between which the
+// facility's speed range holds at a fixed Mach number, given the speed v reached at
+// stagnation temperature tref: V ∝ √T0 there (a = √(γRT), T = T0/(1+(γ−1)/2·M²)).
+// It names the speed limit that no T0 in [ta, tb] can meet, or "".
+func speedWindow(speed *facilities.Range, v, tref, ta, tb float64) (tlo, thi float64, fail string) {
+	tlo = tref * sq(speed.Min/v)
+	thi = tref * sq(speed.Max/v)
+	switch {
+	case tlo > tb*(1+1e-12):
+		fail = facilities.ConstraintSpeedMin
+	case thi < ta*(1-1e-12):
+		fail = facilities.ConstraintSpeedMax
+	}
+	return tlo, thi, fail
+}
