@@ -2,6 +2,7 @@ package facilities
 
 import (
 	"errors"
+	"fmt"
 	"strings"
 )
 
@@ -72,4 +73,24 @@ func ErrorCode(err error) Code {
 		return e.Code
 	}
 	return ""
+}
+
+// CheckFacilityID returns a CodeInvalid error when a catalog write names no facility id.
+func CheckFacilityID(id string) error {
+	if id == "" {
+		return Invalid("facility", []FieldError{{Field: "id", Message: "must not be empty"}})
+	}
+	return nil
+}
+
+// FacilityNotFound is the CodeNotFound error of a catalog that has no facility id.
+func FacilityNotFound(id string) error {
+	return &Error{Code: CodeNotFound, Message: fmt.Sprintf("no facility %q in the catalog", id)}
+}
+
+// StaleVersion is the CodePreconditionFailed error of a change whose If-Match
+// version is not the facility's current one.
+func StaleVersion(id string, current, ifMatch int) error {
+	return &Error{Code: CodePreconditionFailed,
+		Message: fmt.Sprintf("facility %q is at version %d, not %d: someone changed it; read it again and reapply your change", id, current, ifMatch)}
 }

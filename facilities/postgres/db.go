@@ -49,7 +49,7 @@ func (db *DB) CurrentVersion(ctx context.Context, id string) (int, error) {
 	var version int
 	err := db.pool.QueryRow(ctx, `SELECT version FROM facilities WHERE id = $1 AND NOT deleted`, id).Scan(&version)
 	if errors.Is(err, pgx.ErrNoRows) {
-		return 0, notFound(id)
+		return 0, facilities.FacilityNotFound(id)
 	}
 	if err != nil {
 		return 0, fmt.Errorf("postgres: reading the version of facility %q: %w", id, err)
@@ -213,7 +213,7 @@ func (db *DB) Facility(ctx context.Context, id string) (facilities.Facility, err
 	var body []byte
 	err := db.pool.QueryRow(ctx, currentQuery+` AND f.id = $1`, id).Scan(&version, &body)
 	if errors.Is(err, pgx.ErrNoRows) {
-		return facilities.Facility{}, notFound(id)
+		return facilities.Facility{}, facilities.FacilityNotFound(id)
 	}
 	if err != nil {
 		return facilities.Facility{}, fmt.Errorf("postgres: reading facility %q: %w", id, err)
@@ -240,7 +240,7 @@ func (db *DB) FacilityVersion(ctx context.Context, id string, version int) (faci
 // CreateFacility stores a new facility as version 1, or a deleted id again as its
 // next version.
 func (db *DB) CreateFacility(ctx context.Context, f facilities.Facility, by facilities.Actor) (facilities.Facility, error) {
-	if err := checkID(f.ID); err != nil {
+	if err := facilities.CheckFacilityID(f.ID); err != nil {
 		return facilities.Facility{}, err
 	}
 	body, err := facilities.CanonicalJSON(f)
@@ -291,7 +291,7 @@ func (db *DB) create(ctx context.Context, tx pgx.Tx, id string, body []byte, by 
 
 // UpdateFacility replaces a facility when its current version equals ifMatch.
 func (db *DB) UpdateFacility(ctx context.Context, f facilities.Facility, ifMatch int, by facilities.Actor) (facilities.Facility, error) {
-	if err := checkID(f.ID); err != nil {
+	if err := facilities.CheckFacilityID(f.ID); err != nil {
 		return facilities.Facility{}, err
 	}
 	body, err := facilities.CanonicalJSON(f)
@@ -344,14 +344,13 @@ func (db *DB) current(ctx context.Context, tx pgx.Tx, id string, ifMatch int) ([
 	var deleted bool
 	err := tx.QueryRow(ctx, `SELECT version, deleted FROM facilities WHERE id = $1 FOR UPDATE`, id).Scan(&version, &deleted)
 	if errors.Is(err, pgx.ErrNoRows) || (err == nil && deleted) {
-		return nil, notFound(id)
+		return nil, facilities.FacilityNotFound(id)
 	}
 	if err != nil {
 		return nil, err
 	}
 	if version != ifMatch {
-		return nil, &facilities.Error{Code: facilities.CodePreconditionFailed,
-			Message: fmt.Sprintf("facility %q is at version %d, not %d: someone changed it; read it again and reapply your change", id, version, ifMatch)}
+		return nil, facilities.StaleVersion(id, version, ifMatch)
 	}
 	var body []byte
 	if err := tx.QueryRow(ctx, `SELECT body FROM facility_versions WHERE facility_id = $1 AND version = $2`, id, version).Scan(&body); err != nil {
@@ -409,7 +408,7 @@ func (db *DB) Versions(ctx context.Context, id string) ([]facilities.Change, err
 		return nil, fmt.Errorf("postgres: listing versions of %q: %w", id, err)
 	}
 	if len(out) == 0 {
-		return nil, notFound(id)
+		return nil, facilities.FacilityNotFound(id)
 	}
 	return out, nil
 }
@@ -457,7 +456,7 @@ func (db *DB) SeedOnce(ctx context.Context, fs []facilities.Facility, by facilit
 			return err
 		}
 		for _, f := range fs {
-			if err := checkID(f.ID); err != nil {
+			if err := facilities.CheckFacilityID(f.ID); err != nil {
 				return err
 			}
 			body, err := facilities.CanonicalJSON(f)
@@ -484,17 +483,6 @@ func decodeFacility(body []byte, version int) (facilities.Facility, error) {
 	}
 	f.Version = version
 	return f, nil
-}
-
-func checkID(id string) error {
-	if id == "" {
-		return facilities.Invalid("facility", []facilities.FieldError{{Field: "id", Message: "must not be empty"}})
-	}
-	return nil
-}
-
-func notFound(id string) error {
-	return &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no facility %q in the catalog", id)}
 }
 
 // wrap passes domain errors through unchanged, turns a unique-key race into a

@@ -236,7 +236,7 @@ func (db *DB) Facility(ctx context.Context, id string) (facilities.Facility, err
 	var body string
 	err := db.facilityStmt.QueryRowContext(ctx, id).Scan(&version, &body)
 	if errors.Is(err, sql.ErrNoRows) {
-		return facilities.Facility{}, notFound(id)
+		return facilities.Facility{}, facilities.FacilityNotFound(id)
 	}
 	if err != nil {
 		return facilities.Facility{}, fmt.Errorf("sqlite: reading facility %q: %w", id, err)
@@ -254,7 +254,7 @@ func (db *DB) CurrentVersion(ctx context.Context, id string) (int, error) {
 	var version int
 	err := db.versionStmt.QueryRowContext(ctx, id).Scan(&version)
 	if errors.Is(err, sql.ErrNoRows) {
-		return 0, notFound(id)
+		return 0, facilities.FacilityNotFound(id)
 	}
 	if err != nil {
 		return 0, fmt.Errorf("sqlite: reading the version of facility %q: %w", id, err)
@@ -283,7 +283,7 @@ func (db *DB) FacilityVersion(ctx context.Context, id string, version int) (faci
 // CreateFacility stores a new facility as version 1, or a deleted id again as its
 // next version.
 func (db *DB) CreateFacility(ctx context.Context, f facilities.Facility, by facilities.Actor) (facilities.Facility, error) {
-	if err := checkID(f.ID); err != nil {
+	if err := facilities.CheckFacilityID(f.ID); err != nil {
 		return facilities.Facility{}, err
 	}
 	body, err := facilities.CanonicalJSON(f)
@@ -332,7 +332,7 @@ func (db *DB) create(ctx context.Context, tx *sql.Tx, id string, body []byte, by
 
 // UpdateFacility replaces a facility when its current version equals ifMatch.
 func (db *DB) UpdateFacility(ctx context.Context, f facilities.Facility, ifMatch int, by facilities.Actor) (facilities.Facility, error) {
-	if err := checkID(f.ID); err != nil {
+	if err := facilities.CheckFacilityID(f.ID); err != nil {
 		return facilities.Facility{}, err
 	}
 	body, err := facilities.CanonicalJSON(f)
@@ -388,13 +388,13 @@ func (db *DB) current(ctx context.Context, tx *sql.Tx, id string, ifMatch int) (
 		JOIN facility_versions v ON v.facility_id = f.id AND v.version = f.version
 		WHERE f.id = ?`, id).Scan(&version, &deleted, &body)
 	if errors.Is(err, sql.ErrNoRows) || (err == nil && deleted != 0) {
-		return nil, notFound(id)
+		return nil, facilities.FacilityNotFound(id)
 	}
 	if err != nil {
 		return nil, err
 	}
 	if version != ifMatch {
-		return nil, stale(id, version, ifMatch)
+		return nil, facilities.StaleVersion(id, version, ifMatch)
 	}
 	return []byte(body.String), nil
 }
@@ -449,7 +449,7 @@ func (db *DB) Versions(ctx context.Context, id string) ([]facilities.Change, err
 		return nil, fmt.Errorf("sqlite: listing versions of %q: %w", id, err)
 	}
 	if len(out) == 0 {
-		return nil, notFound(id)
+		return nil, facilities.FacilityNotFound(id)
 	}
 	return out, nil
 }
@@ -499,7 +499,7 @@ func (db *DB) SeedOnce(ctx context.Context, fs []facilities.Facility, by facilit
 			return err
 		}
 		for _, f := range fs {
-			if err := checkID(f.ID); err != nil {
+			if err := facilities.CheckFacilityID(f.ID); err != nil {
 				return err
 			}
 			body, err := facilities.CanonicalJSON(f)
@@ -526,22 +526,6 @@ func decodeFacility(body string, version int) (facilities.Facility, error) {
 	}
 	f.Version = version
 	return f, nil
-}
-
-func checkID(id string) error {
-	if id == "" {
-		return facilities.Invalid("facility", []facilities.FieldError{{Field: "id", Message: "must not be empty"}})
-	}
-	return nil
-}
-
-func notFound(id string) error {
-	return &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no facility %q in the catalog", id)}
-}
-
-func stale(id string, current, ifMatch int) error {
-	return &facilities.Error{Code: facilities.CodePreconditionFailed,
-		Message: fmt.Sprintf("facility %q is at version %d, not %d: someone changed it; read it again and reapply your change", id, current, ifMatch)}
 }
 
 // wrap passes domain errors through unchanged and prefixes store errors.
