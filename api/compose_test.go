@@ -31,7 +31,7 @@ func decodePlan(t testing.TB, body string) *api.PlanRequest {
 // TestBalanceBindingAgreesWithLoads checks that the plan lists "balance" among its
 // binding limits exactly when the reported balance check sits at its allowed
 // utilisation (1/safety factor), and that the planner's load limit at the chosen
-// scale is the report's largest safe dynamic pressure: the planner and the load
+// scale is the report's max_safe_dynamic_pressure (where the allowed load is reached by the estimate): the planner and the load
 // report use one load-limit implementation (similarity.BalanceLimit).
 func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 	cases := []struct {

@@ -16,7 +16,7 @@ import (
 // postLoads answers POST /v1/loads.
 //
 //	@Summary		Balance loads at given test conditions
-//	@Description	The balance loads over the α sweep (forces in N, moments in N·m, at the balance moment centre, body axes, wall corrections and the model's weight included) for a model of the given scale at the given test settings (mach or speed m/s, stagnation pressure Pa, stagnation temperature K), with each point's utilisation of the balance's ratings and the largest safe dynamic pressure (Pa). loads is one object when installation.balance_id names a balance and a list, one per balance of the facility, when it does not. No optimisation.
+//	@Description	The balance loads over the α sweep (forces in N, moments in N·m, at the balance moment centre, body axes, wall corrections and the model's weight included) for a model of the given scale at the given test settings (mach or speed m/s, stagnation pressure Pa, stagnation temperature K), with each point's utilisation of the balance's ratings and, in max_safe_dynamic_pressure (Pa), the dynamic pressure at which the worst point reaches the allowed load (rating ÷ safety factor) by this steady, static estimate: not a safe limit, the safety factor is the only margin left for the estimate's error. The model's weight is left out when model_mass is not given, which makes the check unconservative (a caution says so). loads is one object when installation.balance_id names a balance and a list, one per balance of the facility, when it does not. No optimisation.
 //	@Tags			planning
 //	@Accept			json
 //	@Produce		json
@@ -151,8 +151,9 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 	return out, nil
 }
 
-// overloadWarning says that a balance would be loaded beyond its safety factor.
+// overloadWarning says that a balance would be loaded beyond its allowed load
+// (rating ÷ safety factor) and that those points must not be run.
 func overloadWarning(r facilities.LoadReport) string {
-	return fmt.Sprintf("balance %s: %.0f %% of its %s rating at α %.4g°, above the %.0f %% its safety factor allows; do not run this point",
+	return fmt.Sprintf("balance %s: %.0f %% of its %s rating at α %.4g°, above the %.0f %% allowed (rating ÷ safety factor): do not run the points above the allowed load",
 		r.BalanceID, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
 }

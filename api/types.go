@@ -236,7 +236,8 @@ type LoadsResponse struct {
 	Corrections facilities.Corrections `json:"corrections"`
 	// Loads is a load report (object) or a list of them (array): forces in N,
 	// moments in N·m at the balance moment centre, utilisation as a fraction of the
-	// rating, largest safe dynamic pressure in Pa.
+	// rating, and max_safe_dynamic_pressure in Pa: where the worst point reaches the
+	// allowed load by this estimate (not a safe limit; see facilities.LoadReport).
 	Loads LoadsValue `json:"loads" swaggertype:"object"`
 	// Warnings are notes on the inputs and models.
 	Warnings []string `json:"warnings"`

@@ -448,9 +448,13 @@ type LoadReport struct {
 	WithinLimits bool `json:"within_limits"`
 	// Limiting is the component and point of MaxUtilization.
 	Limiting Limiting `json:"limiting"`
-	// MaxSafeDynamicPressure is the free-stream dynamic pressure in Pa at which the
-	// worst point reaches AllowedUtilization; 0 when the weight alone exceeds it;
-	// +Inf (JSON null) when no rated load grows with q.
+	// MaxSafeDynamicPressure is the free-stream dynamic pressure in Pa at which, by
+	// this estimate, the worst point reaches AllowedUtilization (rating ÷ safety
+	// factor); 0 when the weight alone exceeds it; +Inf (JSON null) when no rated
+	// load grows with q. Despite the published name (kept for compatibility) it is
+	// not a safe limit: it is where a linear-lift, parabolic-polar, steady estimate
+	// reaches the allowed loads, and the safety factor is the only margin left for
+	// the estimate's error and for unsteady loads.
 	MaxSafeDynamicPressure float64 `json:"max_safe_dynamic_pressure"`
 	// MaxSafeLimiting is the component and point that set MaxSafeDynamicPressure.
 	MaxSafeLimiting Limiting `json:"max_safe_limiting"`
@@ -670,8 +674,9 @@ func (lc *LoadCase) Affine(i int) (perQ, weight Load) {
 }
 
 // Check returns the loads of every test point on balance b at free-stream dynamic
-// pressure q (Pa), the utilisation of each point, the worst point, and the largest
-// safe free-stream dynamic pressure. Bad input is a *Error naming the field.
+// pressure q (Pa), the utilisation of each point, the worst point, and the
+// free-stream dynamic pressure at which the worst point reaches the allowed load by
+// this estimate (MaxSafeDynamicPressure). Bad input is a *Error naming the field.
 func (lc *LoadCase) Check(b *Balance, q float64) (LoadReport, error) {
 	return lc.check(b, q, -1)
 }
@@ -694,7 +699,7 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 		WeightIncluded:         lc.Installation.ModelMass > 0,
 	}
 	if !r.WeightIncluded {
-		r.Warnings = append(r.Warnings, "model_mass not given: the model's weight is left out of the balance loads")
+		r.Warnings = append(r.Warnings, "model_mass not given: the model's weight is left out of the balance loads, which makes the check unconservative")
 	}
 	worst := -1
 	for i, p := range lc.Points {
@@ -805,7 +810,7 @@ func (lc *LoadCase) ChooseBalance(f *Facility, q float64) (BalanceChoice, error)
 			Limits:  []string{ConstraintBalance}}
 	}
 	r := all[best]
-	reason := fmt.Sprintf("balance %s chosen: at %.0f %% peak utilisation (%s at α %.4g°, allowed %.0f %%) it is the most heavily used balance that keeps every point within its safety factor, so it resolves the loads best",
+	reason := fmt.Sprintf("balance %s chosen: at %.0f %% peak utilisation (%s at α %.4g°, allowed %.0f %%) it is the most heavily used balance that keeps every point within the allowed loads by this estimate (the safety factor is the only margin left for the estimate's error), so it resolves the loads best",
 		r.BalanceID, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
 	if len(all) == 1 {
 		reason = fmt.Sprintf("balance %s chosen: the facility's only balance, at %.0f %% peak utilisation (allowed %.0f %%)",
@@ -823,35 +828,88 @@ const CautionFraction = 0.8
 // atmosphere, a common threshold of pressure-equipment rules (common practice).
 const pressureCautionAbove = 101325 + 50000
 
+// subAtmosphericBelow is the stagnation pressure in Pa below which a facility with
+// a variable stagnation pressure is treated as a sub-atmospheric circuit in the
+// cautions. The record does not carry the site's ambient pressure, so the standard
+// sea-level atmosphere (101 325 Pa, U.S. Standard Atmosphere 1976) stands in for
+// it: a site above sea level has a lower ambient, so the caution errs towards
+// being given. A facility with a fixed stagnation pressure is taken to be open to
+// its site's atmosphere.
+const subAtmosphericBelow = 101325
+
 // cryogenicBelow is the stagnation temperature in K below which a facility is
 // treated as cryogenic in the cautions (common practice).
 const cryogenicBelow = 200
 
-// Cautions returns the cautions that go with every load answer for facility f and
-// the given load reports: the standing caution that these are estimates, a caution
-// for every report whose worst point exceeds CautionFraction of its allowed
-// utilisation (naming the component and angle), and the facility's cautions on
-// pressure vessels and cryogenic nitrogen when they apply.
+// The standing cautions of every answer that carries cautions. They are exported
+// so that callers and tests can recognise them; their wording is the contract.
+const (
+	// CautionEstimate is the first caution of every answer.
+	CautionEstimate = "These figures are engineering estimates from simplified published models, not a clearance to run: the facility's approved limits and balance ratings, the model's stress analysis, the facility's operating procedures and the judgement of a licensed engineer govern."
+	// CautionStaticLoads goes with every answer that carries balance loads.
+	// CautionWeightLeftOut goes with an answer whose loads leave the model's weight out.
+	CautionWeightLeftOut = "The model's weight is left out of these balance loads (no model_mass given), which makes the load check unconservative: the balance carries the weight at every point, wind on and wind off. Give model_mass."
+	CautionStaticLoads = "The balance loads are steady, static estimates from a linear lift curve and a parabolic drag polar: stall, buffet, tunnel start and stop transients and model vibration can load the balance well beyond them, and the safety factor is the only margin left for that and for the estimate's own error."
+)
+
+// Cautions returns the cautions that go with an answer for facility f and the
+// given load reports, each worded to its danger:
+//
+//   - always CautionEstimate;
+//   - with any load report, CautionStaticLoads;
+//   - for each report whose worst point exceeds its allowed utilisation
+//     (rating ÷ safety factor): that those points must not be run;
+//   - for each report whose worst point is above CautionFraction of its allowed
+//     utilisation but within it: how little margin is left;
+//   - when any report leaves the model's weight out, CautionWeightLeftOut;
+//   - for the facility (f may be nil): a pressure vessel (stagnation pressure above
+//     1.5 bar absolute), a sub-atmospheric circuit (a variable stagnation pressure
+//     reaching below the standard sea-level atmosphere), any cold circuit
+//     (stagnation temperature below 200 K, any gas), nitrogen (asphyxiation, at
+//     any temperature), and water.
 func Cautions(f *Facility, reports ...LoadReport) []string {
-	out := []string{
-		"These figures are engineering estimates from simplified published models, not a clearance to run: the facility's approved limits and balance ratings, the model's stress analysis, the facility's operating procedures and the judgement of a licensed engineer govern.",
+	out := []string{CautionEstimate}
+	if len(reports) > 0 {
+		out = append(out, CautionStaticLoads)
 	}
+	noWeight := false
 	for _, r := range reports {
-		if r.MaxUtilization > CautionFraction*r.AllowedUtilization {
-			out = append(out, fmt.Sprintf("Balance %s: %s reaches %.0f %% of its rating at α %.4g°, β %.4g° (%.0f %% of the %.0f %% allowed by the safety factor %.3g); confirm the estimate with a stepped approach in dynamic pressure and live load monitoring.",
+		switch {
+		case r.MaxUtilization > r.AllowedUtilization*(1+1e-12):
+			out = append(out, fmt.Sprintf("Balance %s: do not run the points above its allowed load. By this estimate %s reaches %.0f %% of its rating at α %.4g°, β %.4g°, beyond the %.0f %% allowed (rating ÷ safety factor %.3g); change the model scale, the dynamic pressure, the α range or the balance, and plan again.",
+				r.BalanceID, r.Limiting.Component, 100*r.MaxUtilization, r.Limiting.Alpha, r.Limiting.Beta,
+				100*r.AllowedUtilization, r.SafetyFactor))
+		case r.MaxUtilization > CautionFraction*r.AllowedUtilization:
+			out = append(out, fmt.Sprintf("Balance %s: %s reaches %.0f %% of its rating at α %.4g°, β %.4g° (%.0f %% of the %.0f %% allowed, rating ÷ safety factor %.3g): within the allowed load by this estimate only, with the safety factor as the only margin left for the estimate's error.",
 				r.BalanceID, r.Limiting.Component, 100*r.MaxUtilization, r.Limiting.Alpha, r.Limiting.Beta,
 				100*r.MaxUtilization/r.AllowedUtilization, 100*r.AllowedUtilization, r.SafetyFactor))
 		}
+		noWeight = noWeight || !r.WeightIncluded
+	}
+	if noWeight {
+		out = append(out, CautionWeightLeftOut)
 	}
 	if f == nil {
 		return out
 	}
-	if f.StagnationPressure.Max > pressureCautionAbove {
+	p := f.StagnationPressure
+	if p.Max > pressureCautionAbove {
 		out = append(out, fmt.Sprintf("Facility %s is a pressure vessel (stagnation pressure up to %.0f kPa): only its certified pressure limits and its pressurisation procedures apply; access to the circuit and model changes need it vented first.",
-			f.ID, f.StagnationPressure.Max/1000))
+			f.ID, p.Max/1000))
 	}
-	if f.Medium.Kind == MediumNitrogen || (f.Medium.Kind != MediumWater && f.StagnationTemperature.Min > 0 && f.StagnationTemperature.Min < cryogenicBelow) {
-		out = append(out, fmt.Sprintf("Facility %s runs on nitrogen, possibly cryogenic: nitrogen displaces oxygen without warning and cold gas and surfaces burn; follow the facility's oxygen monitoring, confined-space and warm-up procedures, and check the model's materials and balance calibration at the test temperature.", f.ID))
+	if !p.Fixed() && p.Min < subAtmosphericBelow {
+		out = append(out, fmt.Sprintf("Facility %s runs below atmospheric pressure (stagnation pressure down to %.0f kPa): the circuit is loaded from outside and can buckle or implode, hatches and windows are held by the pressure difference, and a leak draws air or water in; only its certified vacuum limits and its procedures apply, and access needs it brought back to ambient first.",
+			f.ID, p.Min/1000))
+	}
+	if f.Medium.Kind != MediumWater && f.StagnationTemperature.Min > 0 && f.StagnationTemperature.Min < cryogenicBelow {
+		out = append(out, fmt.Sprintf("Facility %s runs cold (stagnation temperature down to %.0f K): cold gas and cold surfaces burn skin and embrittle materials; follow the facility's cold-running and warm-up procedures, and check the model's materials, fits and balance calibration at the test temperature.",
+			f.ID, f.StagnationTemperature.Min))
+	}
+	if f.Medium.Kind == MediumNitrogen {
+		out = append(out, fmt.Sprintf("Facility %s runs on nitrogen: nitrogen displaces oxygen without warning and can kill in an enclosed space; follow the facility's oxygen monitoring, ventilation and confined-space procedures.", f.ID))
+	}
+	if f.Medium.Kind == MediumWater {
+		out = append(out, fmt.Sprintf("Facility %s is a water circuit: the water's mass, pressure and flow store energy, a model or fairing that comes loose travels downstream, and wet electrical equipment and open hatches are hazards; follow the facility's filling, draining, isolation and entry procedures, and check the model's sealing and fastening for immersion.", f.ID))
 	}
 	return out
 }

@@ -380,43 +380,6 @@ func TestChooseBalance(t *testing.T) {
 	}
 }
 
-func TestCautions(t *testing.T) {
-	hot := facilities.LoadReport{BalanceID: "b", SafetyFactor: 1.5, AllowedUtilization: 1 / 1.5,
-		MaxUtilization: 0.6, Limiting: facilities.Limiting{Component: "pitching_moment", Alpha: 14}}
-	cool := hot
-	cool.MaxUtilization = 0.3
-	cases := []struct {
-		name     string
-		facility string
-		report   facilities.LoadReport
-		want     []string
-		count    int
-	}{
-		{"atmospheric, light loads", "lsw-2", cool, []string{"estimates"}, 1},
-		{"atmospheric, near the limit", "lsw-2", hot, []string{"pitching_moment", "α 14°"}, 2},
-		{"pressurised", "plp-3", cool, []string{"pressure vessel"}, 2},
-		{"cryogenic nitrogen", "cn2-05", cool, []string{"pressure vessel", "nitrogen"}, 3},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			f, ok := facilities.DemoFacility(c.facility)
-			if !ok {
-				t.Fatalf("demo facility %s missing", c.facility)
-			}
-			got := facilities.Cautions(&f, c.report)
-			joined := strings.Join(got, " | ")
-			if len(got) != c.count {
-				t.Errorf("%d cautions %q, want %d", len(got), joined, c.count)
-			}
-			for _, w := range c.want {
-				if !strings.Contains(joined, w) {
-					t.Errorf("cautions %q lack %q", joined, w)
-				}
-			}
-		})
-	}
-}
-
 func benchCase(n int) facilities.LoadCase {
 	lc := randomCase(rand.New(rand.NewPCG(3, 5)), 0.05, true)
 	lc.Points = lc.Points[:min(n, len(lc.Points))]

@@ -451,13 +451,13 @@ func writeLoads(w io.Writer, u units, r facilities.LoadReport) {
 		fmt.Fprintf(tw, "  %s\t\n", strings.Join(cells, "\t"))
 	}
 	tw.Flush()
-	verdict := "within its safety factor"
+	verdict := "within the allowed loads by this estimate (the safety factor is the only margin left for its error)"
 	if !r.WithinLimits {
-		verdict = "ABOVE what its safety factor allows: do not run the points marked !"
+		verdict = "ABOVE the allowed load (rating ÷ safety factor): do not run the points marked !"
 	}
 	fmt.Fprintf(w, "  worst %.1f %% (%s at α %.4g°), %s; weight %s\n", 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha,
-		verdict, map[bool]string{true: "included", false: "left out"}[r.WeightIncluded])
-	fmt.Fprintf(w, "  largest safe dynamic pressure %s (%s at α %.4g°)\n", u.q(r.MaxSafeDynamicPressure, "Pa", 5),
+		verdict, map[bool]string{true: "included", false: "left out (unconservative)"}[r.WeightIncluded])
+	fmt.Fprintf(w, "  allowed load reached at dynamic pressure %s by this estimate (%s at α %.4g°)\n", u.q(r.MaxSafeDynamicPressure, "Pa", 5),
 		r.MaxSafeLimiting.Component, r.MaxSafeLimiting.Alpha)
 }
 
