@@ -849,7 +849,7 @@ const (
 	// CautionStaticLoads goes with every answer that carries balance loads.
 	// CautionWeightLeftOut goes with an answer whose loads leave the model's weight out.
 	CautionWeightLeftOut = "The model's weight is left out of these balance loads (no model_mass given), which makes the load check unconservative: the balance carries the weight at every point, wind on and wind off. Give model_mass."
-	CautionStaticLoads = "The balance loads are steady, static estimates from a linear lift curve and a parabolic drag polar: stall, buffet, tunnel start and stop transients and model vibration can load the balance well beyond them, and the safety factor is the only margin left for that and for the estimate's own error."
+	CautionStaticLoads   = "The balance loads are steady, static estimates from a linear lift curve and a parabolic drag polar: stall, buffet, tunnel start and stop transients and model vibration can load the balance well beyond them, and the safety factor is the only margin left for that and for the estimate's own error."
 )
 
 // Cautions returns the cautions that go with an answer for facility f and the
