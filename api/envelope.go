@@ -206,10 +206,24 @@ func parseEnvelopeQuery(c *gin.Context, water bool) (envelopeQuery, error) {
 	return q, fe.err()
 }
 
+// envelopeNote is the caution line under every envelope chart: what the chart
+// leaves out and that it is an estimate (ASCII and at most 90 characters, for the
+// PNG's small font).
+const envelopeNote = "ESTIMATE: model size and balance load limits left out. Facility limits and procedures govern"
+
+// EnvelopeCaution is the full caution of an envelope chart, sent as the
+// Scalematch-Caution header of envelope.svg and envelope.png and as the SVG's
+// description.
+const EnvelopeCaution = "Estimate only: the envelope is the Reynolds number within the facility's flow limits (Mach or speed, stagnation pressure and temperature, dynamic pressure, unit Reynolds number, condensation) for the given model reference length; it leaves out the model-size limits (span, blockage) and the balance load limits, which can lower it. The facility's approved limits, procedures and licensed engineering judgement govern."
+
+// HeaderCaution names the response header carrying a chart's caution.
+const HeaderCaution = "Scalematch-Caution"
+
 // envelopeChartOf turns an envelope into a chart, with the flight point marked.
 func envelopeChartOf(e Envelope, q envelopeQuery) *envelopeChart {
 	c := &envelopeChart{
-		Title:  fmt.Sprintf("%s: Reynolds number reachable, model reference length %.4g m", e.FacilityID, e.ReferenceLength),
+		Title: fmt.Sprintf("%s: Reynolds number within the flow limits, model reference length %.4g m", e.FacilityID, e.ReferenceLength),
+		Note:  envelopeNote, Caution: EnvelopeCaution,
 		XLabel: "Mach number",
 		YLabel: fmt.Sprintf("Reynolds number on %.4g m", e.ReferenceLength),
 		X:      e.X, Low: e.Low, High: e.High,
@@ -253,7 +267,7 @@ func (p *Planner) lookup(ctx context.Context, id string) (*facilities.Facility, 
 // getEnvelopeSVG answers GET /v1/facilities/{id}/envelope.svg.
 //
 //	@Summary		Reynolds-number envelope (SVG)
-//	@Description	The Reynolds number (log scale, on the model's reference length) against the Mach number (speed in m/s for water) that the facility reaches within all its limits, for a model of reference_length m, with an optional flight point marked. Query values are SI numbers or strings with units.
+//	@Description	The Reynolds number (log scale, on the model's reference length) against the Mach number (speed in m/s for water) that the facility reaches within its flow limits (Mach or speed, stagnation pressure and temperature, dynamic pressure, unit Reynolds number, condensation), for a model of reference_length m, with an optional flight point marked. An estimate: it leaves out the model-size limits (span, blockage) and the balance load limits, which can lower it; the chart's last line and the Scalematch-Caution header say so. Query values are SI numbers or strings with units.
 //	@Tags			planning
 //	@Produce		image/svg+xml
 //	@Param			id					path		string	true	"facility id"
@@ -262,6 +276,7 @@ func (p *Planner) lookup(ctx context.Context, id string) (*facilities.Facility, 
 //	@Param			flight_speed		query		string	false	"flight speed to mark in a water facility, m/s (with flight_reynolds)"
 //	@Param			flight_reynolds		query		string	false	"flight Reynolds number to mark"
 //	@Success		200					{string}	string	"an SVG document"
+//	@Header			200					{string}	Scalematch-Caution	"what the chart leaves out; an estimate only"
 //	@Failure		400					{object}	Problem
 //	@Failure		404					{object}	Problem
 //	@Router			/v1/facilities/{id}/envelope.svg [get]
@@ -271,6 +286,7 @@ func (s *Server) getEnvelopeSVG(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
+	c.Header(HeaderCaution, EnvelopeCaution)
 	c.Data(http.StatusOK, "image/svg+xml", ch.svg())
 }
 
@@ -286,6 +302,7 @@ func (s *Server) getEnvelopeSVG(c *gin.Context) {
 //	@Param			flight_speed		query		string	false	"flight speed to mark in a water facility, m/s (with flight_reynolds)"
 //	@Param			flight_reynolds		query		string	false	"flight Reynolds number to mark"
 //	@Success		200					{string}	string	"a PNG image"
+//	@Header			200					{string}	Scalematch-Caution	"what the chart leaves out; an estimate only"
 //	@Failure		400					{object}	Problem
 //	@Failure		404					{object}	Problem
 //	@Router			/v1/facilities/{id}/envelope.png [get]
@@ -300,5 +317,6 @@ func (s *Server) getEnvelopePNG(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
+	c.Header(HeaderCaution, EnvelopeCaution)
 	c.Data(http.StatusOK, "image/png", b)
 }

@@ -17,13 +17,18 @@ import (
 // optionally one marked flight point. Low and High are NaN where no setting of the
 // facility reaches that abscissa.
 type envelopeChart struct {
-	Title  string
-	XLabel string
-	YLabel string
-	X      []float64
-	Low    []float64
-	High   []float64
-	Mark   *chartMark
+	Title string
+	// Note is the caution line drawn under the chart (ASCII, at most 90 characters,
+	// so that the PNG's small font fits it in the chart's width).
+	Note string
+	// Caution is the chart's full caution, the SVG's description.
+	Caution string
+	XLabel  string
+	YLabel  string
+	X       []float64
+	Low     []float64
+	High    []float64
+	Mark    *chartMark
 }
 
 // chartMark is a marked point of a chart: abscissa, Reynolds number and a label.
@@ -144,6 +149,9 @@ func (c *envelopeChart) svg() []byte {
 	f := func(format string, args ...any) { fmt.Fprintf(&b, format, args...) }
 	f(`<svg xmlns="http://www.w3.org/2000/svg" width="%d" height="%d" viewBox="0 0 %d %d" font-family="sans-serif" font-size="12">`+"\n",
 		chartWidth, chartHeight, chartWidth, chartHeight)
+	if c.Caution != "" {
+		f("<desc>%s</desc>\n", html.EscapeString(c.Caution))
+	}
 	f(`<rect width="100%%" height="100%%" fill="#ffffff"/>` + "\n")
 	f(`<text x="%d" y="28" font-size="15">%s</text>`+"\n", plotLeft, html.EscapeString(c.Title))
 	// Grid and ticks.
@@ -178,6 +186,9 @@ func (c *envelopeChart) svg() []byte {
 	f(`<rect x="%d" y="%d" width="%d" height="%d" fill="none" stroke="#000000"/>`+"\n",
 		plotLeft, plotTop, plotRight-plotLeft, plotBottom-plotTop)
 	f(`<text x="%d" y="%d" text-anchor="middle">%s</text>`+"\n", (plotLeft+plotRight)/2, chartHeight-25, html.EscapeString(c.XLabel))
+	if c.Note != "" {
+		f(`<text x="%d" y="%d" font-size="11" fill="#b2182b">%s</text>`+"\n", 10, chartHeight-7, html.EscapeString(c.Note))
+	}
 	f(`<text transform="translate(22 %d) rotate(-90)" text-anchor="middle">%s</text>`+"\n", (plotTop+plotBottom)/2, html.EscapeString(c.YLabel))
 	if m := c.Mark; m != nil && m.X > 0 && m.Y > 0 {
 		x, y := a.px(m.X), a.py(m.Y)
@@ -392,6 +403,9 @@ func (c *envelopeChart) png() ([]byte, error) {
 	cv.vline(plotLeft, plotTop, plotBottom, colAxis)
 	cv.vline(plotRight, plotTop, plotBottom, colAxis)
 	cv.text((plotLeft+plotRight-textWidth(c.XLabel))/2, chartHeight-35, c.XLabel, colText)
+	if c.Note != "" {
+		cv.text(10, chartHeight-15, c.Note, colMark)
+	}
 	cv.vtext(14, (plotTop+plotBottom+textWidth(c.YLabel))/2, c.YLabel, colText)
 	if m := c.Mark; m != nil && m.X > 0 && m.Y > 0 {
 		x, y := a.px(m.X), a.py(m.Y)

@@ -10,6 +10,8 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+
 	"scalematch/api"
 )
 
@@ -370,6 +372,17 @@ func TestEnvelope(t *testing.T) {
 			}
 			if tc.status == 200 && (resp.Header.Get("Content-Type") != tc.ctype || !bytes.HasPrefix(b, []byte(tc.prefix))) {
 				t.Errorf("content type %q, starts %q", resp.Header.Get("Content-Type"), b[:min(8, len(b))])
+			}
+			if tc.status != 200 {
+				return
+			}
+			// Every chart says it is an estimate and what it leaves out.
+			assert.Equal(t, api.EnvelopeCaution, resp.Header.Get(api.HeaderCaution))
+			assert.Contains(t, api.EnvelopeCaution, "leaves out the model-size limits (span, blockage) and the balance load limits")
+			if tc.ctype == "image/svg+xml" {
+				assert.Contains(t, string(b), "ESTIMATE: model size and balance load limits left out. Facility limits and procedures govern")
+				assert.Contains(t, string(b), "<desc>Estimate only: the envelope is the Reynolds number within the facility&#39;s flow limits")
+				assert.NotContains(t, string(b), "Reynolds number reachable")
 			}
 		})
 	}

@@ -846,10 +846,10 @@ const cryogenicBelow = 200
 const (
 	// CautionEstimate is the first caution of every answer.
 	CautionEstimate = "These figures are engineering estimates from simplified published models, not a clearance to run: the facility's approved limits and balance ratings, the model's stress analysis, the facility's operating procedures and the judgement of a licensed engineer govern."
-	// CautionStaticLoads goes with every answer that carries balance loads.
 	// CautionWeightLeftOut goes with an answer whose loads leave the model's weight out.
 	CautionWeightLeftOut = "The model's weight is left out of these balance loads (no model_mass given), which makes the load check unconservative: the balance carries the weight at every point, wind on and wind off. Give model_mass."
-	CautionStaticLoads   = "The balance loads are steady, static estimates from a linear lift curve and a parabolic drag polar: stall, buffet, tunnel start and stop transients and model vibration can load the balance well beyond them, and the safety factor is the only margin left for that and for the estimate's own error."
+	// CautionStaticLoads goes with every answer that carries balance loads.
+	CautionStaticLoads = "The balance loads are steady, static estimates from a linear lift curve and a parabolic drag polar: stall, buffet, tunnel start and stop transients and model vibration can load the balance well beyond them, and the safety factor is the only margin left for that and for the estimate's own error."
 )
 
 // Cautions returns the cautions that go with an answer for facility f and the
