@@ -215,6 +215,7 @@ func checkArticle(a *similarity.Article, fe *fieldErrors) {
 	if !(a.FormFactor >= 0) || math.IsInf(a.FormFactor, 0) {
 		fe.add("article.form_factor", "%g: must be 0 (taken as 1) or positive", a.FormFactor)
 	}
+	*fe = append(*fe, a.FrictionFieldErrors()...)
 	if err := a.Aero.Validate(); err != nil {
 		fe.merge("", err)
 	}

@@ -88,6 +88,8 @@ func TestPlanErrors(t *testing.T) {
 			strings.Replace(strings.Replace(j20Plan, `"mach": 0.80`, `"mach": -1`, 1), `"step": 1`, `"step": 0`, 1),
 			400, []string{"flight.mach", "alpha.step"}, nil},
 		{"unknown field", strings.Replace(j20Plan, `"facility_id"`, `"facilty_id"`, 1), 400, []string{"facilty_id"}, nil},
+		{"unknown friction settings", strings.Replace(j20Plan, `"span": 19.0`, `"span": 19.0, "friction_line": "schoenherr", "full_scale_boundary_layer": "laminar"`, 1),
+			400, []string{"article.friction_line", "article.full_scale_boundary_layer"}, nil},
 		{"unknown facility", strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1), 404, nil, nil},
 		{"unknown balance", strings.Replace(j20Plan, `"int-b1"`, `"int-zz"`, 1), 400, []string{"installation.balance_id"}, nil},
 		{"infeasible: the model cannot fit", strings.Replace(j20Plan, `"scale_min": 0.01, "scale_max": 0.5`, `"scale": 0.5`, 1), 422, nil, nil},

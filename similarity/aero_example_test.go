@@ -35,7 +35,7 @@ func ExampleReynoldsEffect() {
 	fmt.Printf("C_f flight %.4g, test %.4g: %+.4g counts; transition at %.2g of the chord; trips %v\n",
 		r.SkinFrictionFlight, r.SkinFrictionTest, r.DeltaCDCounts, r.NaturalTransitionFraction, r.TripsRecommended)
 	// Output:
-	// C_f flight 0.002755, test 0.00293: +12.18 counts; transition at 0.17 of the chord; trips true
+	// C_f flight 0.002755, test 0.002972: +15.09 counts; transition at 0.17 of the chord; trips true
 }
 
 // The ceiling a balance puts on the free-stream dynamic pressure of a Pellin P2

@@ -21,6 +21,15 @@ type Article struct {
 	WettedArea float64 `json:"wetted_area" unit:"m^2"`
 	// FormFactor multiplies the flat-plate skin friction; 0: 1.0.
 	FormFactor float64 `json:"form_factor,omitempty"`
+	// FrictionLine is the skin-friction law of a boundary layer turbulent from the
+	// leading edge (the full-scale vehicle, the tripped model): "prandtl_schlichting"
+	// (the default when empty) or "ittc_1957" (the marine correlation line). Natural
+	// transition on the model always uses the transitional Prandtl–Schlichting law.
+	FrictionLine string `json:"friction_line,omitempty" enums:"prandtl_schlichting,ittc_1957"`
+	// FullScaleBoundaryLayer is the state of the full-scale vehicle's boundary layer
+	// in the skin-friction estimate: "turbulent" from the leading edge (the default
+	// when empty) or "natural_transition" (transitional law, as on the model).
+	FullScaleBoundaryLayer string `json:"full_scale_boundary_layer,omitempty" enums:"turbulent,natural_transition"`
 	// Aero is the estimate of the aerodynamic coefficients.
 	Aero Aero `json:"aero"`
 }

@@ -20,12 +20,24 @@ const (
 	TripFlightFraction = 0.05
 )
 
-// Friction lines used for the skin-friction estimate.
+// Friction lines: the law of a boundary layer turbulent from the leading edge
+// (a tripped model, and the full-scale vehicle unless the caller states natural
+// transition). Natural transition always uses the transitional law
+// (TransitionalSkinFriction), whatever the medium and the line.
 const (
-	// LinePrandtlSchlichting: Blasius below Re_tr, Prandtl–Schlichting above.
+	// LinePrandtlSchlichting is the Prandtl–Schlichting law, the default.
 	LinePrandtlSchlichting = "prandtl_schlichting"
-	// LineITTC1957: the ITTC 1957 model-ship correlation line, used in water.
+	// LineITTC1957 is the ITTC 1957 model-ship correlation line, used only when
+	// the caller chooses it (article.friction_line).
 	LineITTC1957 = "ittc_1957"
+)
+
+// Boundary-layer states of the full-scale vehicle (article.full_scale_boundary_layer).
+const (
+	// BoundaryLayerTurbulent: turbulent from the leading edge, the default.
+	BoundaryLayerTurbulent = "turbulent"
+	// BoundaryLayerNatural: natural transition at TransitionReynolds.
+	BoundaryLayerNatural = "natural_transition"
 )
 
 // minFrictionReynolds is the lowest Reynolds number the skin-friction laws accept.
@@ -47,18 +59,47 @@ func LaminarSkinFriction(re float64) float64 { return 1.328 / math.Sqrt(re) }
 // (Schlichting, Boundary-Layer Theory, ch. 21).
 func TurbulentSkinFriction(re float64) float64 { return 0.455 / math.Pow(math.Log10(re), 2.58) }
 
+// TransitionConstant returns A of the transitional law C_f = C_f,turb(Re) − A/Re for
+// transition at length Reynolds number reTr: the turbulent friction the laminar run
+// ahead of transition does not have,
+//
+//	A = Re_tr·[0.455/(log10 Re_tr)^2.58 − 1.328/√Re_tr]
+//
+// (Schlichting, Boundary-Layer Theory, ch. 21: the turbulent layer is taken to
+// start at the leading edge and the laminar run's deficit is subtracted). With
+// this A the law equals Blasius at Re = Re_tr, so C_f is continuous there. At
+// Re_tr = 5·10⁵ it gives A = 1614; Schlichting's table gives 1700 (the test
+// compares the four tabulated values).
+func TransitionConstant(reTr float64) float64 {
+	return reTr * (TurbulentSkinFriction(reTr) - LaminarSkinFriction(reTr))
+}
+
 // TransitionalSkinFriction returns the mean skin-friction coefficient of a flat
-// plate with natural transition at Re_tr = 5·10⁵: laminar (Blasius) below Re_tr, and
-// above it the Prandtl–Schlichting law less the laminar run's deficit
+// plate with natural transition at Re_tr = 5·10⁵ (TransitionReynolds): laminar
+// (Blasius) up to Re_tr, and above it the Prandtl–Schlichting law less the laminar
+// run's deficit,
 //
-//	C_f = 0.455/(log10 Re)^2.58 − 1700/Re
+//	C_f = 0.455/(log10 Re)^2.58 − A/Re,  A = TransitionConstant(Re_tr)
 //
-// (Schlichting, Boundary-Layer Theory, ch. 21).
+// (Schlichting, Boundary-Layer Theory, ch. 21). It is continuous at Re_tr.
 func TransitionalSkinFriction(re float64) float64 {
+	return CompressibleTransitionalSkinFriction(re, 1, 1)
+}
+
+// CompressibleTransitionalSkinFriction is TransitionalSkinFriction with the laminar
+// and turbulent parts each reduced by its own compressibility factor: kLam
+// (LaminarCompressibilityFactor) on the laminar run, kTurb (CompressibilityFactor)
+// on the turbulent part,
+//
+//	C_f = kTurb·C_f,turb(Re) − (Re_tr/Re)·[kTurb·C_f,turb(Re_tr) − kLam·C_f,lam(Re_tr)]
+//
+// which is kLam·Blasius up to Re_tr and continuous there.
+func CompressibleTransitionalSkinFriction(re, kLam, kTurb float64) float64 {
 	if re <= TransitionReynolds {
-		return LaminarSkinFriction(re)
+		return kLam * LaminarSkinFriction(re)
 	}
-	return TurbulentSkinFriction(re) - 1700/re
+	rt := TransitionReynolds
+	return kTurb*TurbulentSkinFriction(re) - rt/re*(kTurb*TurbulentSkinFriction(rt)-kLam*LaminarSkinFriction(rt))
 }
 
 // ITTC1957 returns the ITTC 1957 model-ship correlation line
@@ -76,38 +117,98 @@ func ITTC1957(re float64) float64 {
 // common practice).
 func CompressibilityFactor(mach float64) float64 { return math.Pow(1+0.144*mach*mach, -0.65) }
 
+// Reference-temperature constants of the laminar compressibility factor for an
+// air-like gas (Prandtl number 0.72, adiabatic wall).
+const (
+	// laminarRecovery is the laminar recovery factor r = √Pr = √0.72 (White,
+	// Viscous Fluid Flow, 2nd ed., 1991, ch. 7; from memory).
+	laminarRecovery = 0.8485
+	// viscosityExponent is ω of the power law μ ∝ T^ω for air near room
+	// temperature, 0.76 (White, Viscous Fluid Flow, ch. 1; from memory).
+	viscosityExponent = 0.76
+)
+
+// LaminarCompressibilityFactor returns the reduction of laminar flat-plate skin
+// friction with Mach number on an adiabatic wall by the reference-temperature
+// method (Eckert 1955; White, Viscous Fluid Flow, 2nd ed., 1991, §7-3; from
+// memory). The reference temperature is
+//
+//	T*/T_e = 0.5 + 0.039·M² + 0.5·T_aw/T_e,  T_aw/T_e = 1 + r·(γ−1)/2·M²
+//
+// with r = √0.72 and γ = 1.4, and the Blasius law evaluated at the reference state
+// gives C_f/C_f,incompressible = √C* with the Chapman–Rubesin parameter
+// C* = ρ*μ*/(ρ_e·μ_e) = (T*/T_e)^(ω−1) for μ ∝ T^ω, ω = 0.76. The factor is
+// (T*/T_e)^((ω−1)/2): 0.9908 at M 0.8, against 0.9443 for the turbulent factor.
+func LaminarCompressibilityFactor(mach float64) float64 {
+	m2 := mach * mach
+	taw := 1 + laminarRecovery*0.2*m2
+	ts := 0.5 + 0.039*m2 + 0.5*taw
+	return math.Pow(ts, (viscosityExponent-1)/2)
+}
+
 // TransitionFraction returns the estimated chordwise position of natural
 // transition, x/L ≈ Re_tr/Re_L, limited to 1 (laminar throughout).
 func TransitionFraction(re float64) float64 { return math.Min(1, TransitionReynolds/re) }
 
+// FrictionFieldErrors returns the problems of the article's skin-friction
+// settings (friction_line, full_scale_boundary_layer), nil when there are none.
+func (a *Article) FrictionFieldErrors() []facilities.FieldError {
+	var fe []facilities.FieldError
+	switch a.FrictionLine {
+	case "", LinePrandtlSchlichting, LineITTC1957:
+	default:
+		fe = append(fe, facilities.FieldError{Field: "article.friction_line", Message: fmt.Sprintf("%q: must be %q (the default) or %q", a.FrictionLine, LinePrandtlSchlichting, LineITTC1957)})
+	}
+	switch a.FullScaleBoundaryLayer {
+	case "", BoundaryLayerTurbulent, BoundaryLayerNatural:
+	default:
+		fe = append(fe, facilities.FieldError{Field: "article.full_scale_boundary_layer", Message: fmt.Sprintf("%q: must be %q (the default) or %q", a.FullScaleBoundaryLayer, BoundaryLayerTurbulent, BoundaryLayerNatural)})
+	}
+	return fe
+}
+
 // ReynoldsEffects is the estimate of how the Reynolds-number mismatch shifts the
-// measured drag (physics.md §9). Reynolds numbers are on the reference length;
-// skin-friction coefficients are based on the wetted area; drag increments are in
-// counts (1 count = 0.0001 in C_D on the reference area).
+// measured drag (docs/physics.md, skin friction). Reynolds numbers are on the
+// reference length; skin-friction coefficients are based on the wetted area; drag
+// increments are in counts (1 count = 0.0001 in C_D on the reference area).
 type ReynoldsEffects struct {
 	// ReynoldsFlight and ReynoldsTest are the full-scale and model Reynolds numbers.
 	ReynoldsFlight float64 `json:"reynolds_flight"`
 	ReynoldsTest   float64 `json:"reynolds_test"`
-	// Line names the friction law: LinePrandtlSchlichting or LineITTC1957.
+	// Line names the law of fully turbulent friction (full scale, tripped model):
+	// LinePrandtlSchlichting or, when the caller chose it, LineITTC1957.
 	Line string `json:"friction_line"`
-	// SkinFrictionFlight is the full-scale C_f, turbulent from the nose.
+	// FullScaleBoundaryLayer is the full-scale state used: BoundaryLayerTurbulent
+	// (the default) or BoundaryLayerNatural.
+	FullScaleBoundaryLayer string `json:"full_scale_boundary_layer"`
+	// TransitionConstant is A of the transitional law C_f = C_f,turb − A/Re at
+	// Re_tr = 5·10⁵ (incompressible), dimensionless.
+	TransitionConstant float64 `json:"transition_constant"`
+	// SkinFrictionFlight is the full-scale C_f.
 	SkinFrictionFlight float64 `json:"skin_friction_flight"`
-	// SkinFrictionTest is the model's C_f with natural transition.
+	// SkinFrictionTest is the model's C_f with natural transition (transitional
+	// Prandtl–Schlichting law in every medium).
 	SkinFrictionTest float64 `json:"skin_friction_test"`
 	// SkinFrictionTestTripped is the model's C_f with transition fixed at the nose.
 	SkinFrictionTestTripped float64 `json:"skin_friction_test_tripped"`
+	// LaminarCompressibilityTest and TurbulentCompressibilityTest are the factors
+	// on the model's laminar and turbulent friction at the test Mach number
+	// (reference-temperature method; Raymer's factor), dimensionless; 1 in a liquid.
+	LaminarCompressibilityTest   float64 `json:"laminar_compressibility_test"`
+	TurbulentCompressibilityTest float64 `json:"turbulent_compressibility_test"`
 	// DeltaCDCounts is (C_f,test − C_f,flight)·FF·S_wet/S_ref in counts, natural
 	// transition on the model: what the model's drag exceeds (or, when negative,
-	// falls short of) the aircraft's by friction alone.
+	// falls short of) the full-scale vehicle's by friction alone.
 	DeltaCDCounts float64 `json:"delta_cd_counts"`
 	// DeltaCDCountsTripped is the same with the model tripped at the nose.
 	DeltaCDCountsTripped float64 `json:"delta_cd_counts_tripped"`
 	// NaturalTransitionFraction is x/L ≈ Re_tr/Re_L on the model (1: laminar).
 	NaturalTransitionFraction float64 `json:"natural_transition_fraction"`
-	// FlightTransitionFraction is the same on the full-scale aircraft.
+	// FlightTransitionFraction is the same on the full-scale vehicle, were it
+	// free to transition naturally.
 	FlightTransitionFraction float64 `json:"flight_transition_fraction"`
 	// TripsRecommended: the model would run laminar far further aft than the
-	// aircraft (see TripModelFraction, TripFlightFraction).
+	// full-scale vehicle (see TripModelFraction, TripFlightFraction).
 	TripsRecommended bool `json:"trips_recommended"`
 	// Notes explain the recommendation and the estimate's limits.
 	Notes []string `json:"notes,omitempty"`
@@ -116,14 +217,16 @@ type ReynoldsEffects struct {
 // ReynoldsEffect estimates the skin-friction drag shift of a model test: the flight
 // at Reynolds number reFlight and Mach number machFlight, the test at reTest and
 // machTest in the given medium (a facilities.Medium* name), for article art (its
-// wetted area, reference area and form factor).
+// wetted area, reference area, form factor and friction settings).
 //
-// In gas media the full scale is turbulent from the nose (Prandtl–Schlichting) and
-// the model has natural transition at Re_tr = 5·10⁵ (Blasius below it, Schlichting's
-// transitional law above), both times the compressibility factor at their Mach
-// numbers. In water both use the ITTC 1957 line, the marine practice, with no
-// compressibility factor (below Re_tr the model is laminar and Blasius is used).
-// Bad input gives a *facilities.Error naming the field.
+// The model with natural transition takes the transitional Prandtl–Schlichting law
+// (transition at Re_tr = 5·10⁵, Blasius below it) in every medium; the tripped
+// model takes the fully turbulent line (art.FrictionLine: Prandtl–Schlichting by
+// default, ITTC 1957 when chosen); the full-scale vehicle is turbulent from the
+// nose on that line unless art.FullScaleBoundaryLayer says natural transition. In
+// a gas the turbulent part takes Raymer's compressibility factor and the laminar
+// part the reference-temperature factor, each at its own Mach number; a liquid
+// takes neither. Bad input gives a *facilities.Error naming the field.
 func ReynoldsEffect(art *Article, reFlight, machFlight, reTest, machTest float64, medium string) (ReynoldsEffects, error) {
 	var fe []facilities.FieldError
 	if !(art.WettedArea > 0) || math.IsInf(art.WettedArea, 0) {
@@ -135,6 +238,7 @@ func ReynoldsEffect(art *Article, reFlight, machFlight, reTest, machTest float64
 	if !(art.FormFactor >= 0) || math.IsInf(art.FormFactor, 0) {
 		fe = append(fe, facilities.FieldError{Field: "article.form_factor", Message: fmt.Sprintf("must be 0 (taken as 1) or positive, got %g", art.FormFactor)})
 	}
+	fe = append(fe, art.FrictionFieldErrors()...)
 	for _, r := range []struct {
 		field string
 		v     float64
@@ -161,38 +265,54 @@ func ReynoldsEffect(art *Article, reFlight, machFlight, reTest, machTest float64
 	r := ReynoldsEffects{
 		ReynoldsFlight:            reFlight,
 		ReynoldsTest:              reTest,
+		Line:                      LinePrandtlSchlichting,
+		FullScaleBoundaryLayer:    BoundaryLayerTurbulent,
+		TransitionConstant:        TransitionConstant(TransitionReynolds),
 		NaturalTransitionFraction: TransitionFraction(reTest),
 		FlightTransitionFraction:  TransitionFraction(reFlight),
 	}
-	if medium == facilities.MediumWater {
-		r.Line = LineITTC1957
-		line := func(re float64) float64 {
-			if re <= TransitionReynolds {
-				return LaminarSkinFriction(re)
-			}
-			return ITTC1957(re)
-		}
-		r.SkinFrictionFlight = line(reFlight)
-		r.SkinFrictionTest = line(reTest)
-		r.SkinFrictionTestTripped = ITTC1957(reTest)
-	} else {
-		r.Line = LinePrandtlSchlichting
-		kf, kt := CompressibilityFactor(machFlight), CompressibilityFactor(machTest)
-		r.SkinFrictionFlight = TurbulentSkinFriction(reFlight) * kf
-		r.SkinFrictionTest = TransitionalSkinFriction(reTest) * kt
-		r.SkinFrictionTestTripped = TurbulentSkinFriction(reTest) * kt
+	if art.FrictionLine != "" {
+		r.Line = art.FrictionLine
 	}
+	if art.FullScaleBoundaryLayer != "" {
+		r.FullScaleBoundaryLayer = art.FullScaleBoundaryLayer
+	}
+	turbulent := TurbulentSkinFriction
+	if r.Line == LineITTC1957 {
+		turbulent = ITTC1957
+	}
+	klF, ktF, klT, ktT := 1.0, 1.0, 1.0, 1.0
+	if medium != facilities.MediumWater {
+		klF, ktF = LaminarCompressibilityFactor(machFlight), CompressibilityFactor(machFlight)
+		klT, ktT = LaminarCompressibilityFactor(machTest), CompressibilityFactor(machTest)
+	}
+	r.LaminarCompressibilityTest, r.TurbulentCompressibilityTest = klT, ktT
+	if r.FullScaleBoundaryLayer == BoundaryLayerNatural {
+		r.SkinFrictionFlight = CompressibleTransitionalSkinFriction(reFlight, klF, ktF)
+	} else {
+		r.SkinFrictionFlight = turbulent(reFlight) * ktF
+	}
+	r.SkinFrictionTest = CompressibleTransitionalSkinFriction(reTest, klT, ktT)
+	r.SkinFrictionTestTripped = turbulent(reTest) * ktT
 	area := ff * art.WettedArea / art.ReferenceArea
 	r.DeltaCDCounts = (r.SkinFrictionTest - r.SkinFrictionFlight) * area * 1e4
 	r.DeltaCDCountsTripped = (r.SkinFrictionTestTripped - r.SkinFrictionFlight) * area * 1e4
-	r.TripsRecommended = r.NaturalTransitionFraction > TripModelFraction && r.FlightTransitionFraction < TripFlightFraction
+	flightTurbulent := r.FullScaleBoundaryLayer == BoundaryLayerTurbulent || r.FlightTransitionFraction < TripFlightFraction
+	r.TripsRecommended = r.NaturalTransitionFraction > TripModelFraction && flightTurbulent
 	if r.TripsRecommended {
+		where := fmt.Sprintf("%.1f %%", 100*r.FlightTransitionFraction)
+		if r.FullScaleBoundaryLayer == BoundaryLayerTurbulent {
+			where = "the leading edge (turbulent full scale)"
+		}
 		r.Notes = append(r.Notes, fmt.Sprintf(
-			"natural transition on the model near %.0f %% of the reference length against %.1f %% at full scale: fix transition with trips near the leading edges (common practice); the tripped estimate is %+.1f counts",
-			100*r.NaturalTransitionFraction, 100*r.FlightTransitionFraction, r.DeltaCDCountsTripped))
+			"natural transition on the model near %.0f %% of the reference length against %s at full scale: fix transition with trips near the leading edges (common practice); the tripped estimate is %+.1f counts",
+			100*r.NaturalTransitionFraction, where, r.DeltaCDCountsTripped))
 	}
 	if reTest < TransitionReynolds {
 		r.Notes = append(r.Notes, fmt.Sprintf("the model's Reynolds number %.3g is below the flat-plate transition value %.0e: trips may not hold a turbulent boundary layer and size them with care", reTest, TransitionReynolds))
+	}
+	if r.Line == LineITTC1957 {
+		r.Notes = append(r.Notes, "fully turbulent friction (full scale, tripped model) on the ITTC 1957 line as chosen; natural transition on the model on the transitional Prandtl–Schlichting law")
 	}
 	r.Notes = append(r.Notes, "flat-plate friction on the reference length with a form factor: an estimate of the friction shift only; pressure drag, separation and transonic effects of the Reynolds number are not included")
 	return r, nil

@@ -359,8 +359,9 @@ func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 
 	if re := r.ReynoldsEffects; re != nil {
 		section(w, "Reynolds effects (skin friction, "+re.Line+")")
-		row("skin friction, flight", "%.4g (turbulent)", re.SkinFrictionFlight)
+		row("skin friction, full scale", "%.4g (%s)", re.SkinFrictionFlight, strings.ReplaceAll(re.FullScaleBoundaryLayer, "_", " "))
 		row("skin friction, test", "%.4g natural transition, %.4g tripped", re.SkinFrictionTest, re.SkinFrictionTestTripped)
+		row("compressibility, test", "%.4f laminar, %.4f turbulent", re.LaminarCompressibilityTest, re.TurbulentCompressibilityTest)
 		row("drag difference", "%+.1f counts natural, %+.1f counts tripped", re.DeltaCDCounts, re.DeltaCDCountsTripped)
 		row("laminar run", "%.2g of length on the model, %.2g in flight", re.NaturalTransitionFraction, re.FlightTransitionFraction)
 		trips := "no"
