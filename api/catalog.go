@@ -1,8 +1,10 @@
 package api
 
 import (
+	"context"
 	"crypto/sha256"
 	"crypto/subtle"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"net/http"
@@ -20,6 +22,9 @@ const (
 	HeaderFacilityID = "Scalematch-Facility-Id"
 	// HeaderFacilityVersion names the facility version a stored plan used.
 	HeaderFacilityVersion = "Scalematch-Facility-Version"
+	// HeaderFacilityCurrentVersion is sent with a stored plan whose facility has
+	// changed since: the facility's current version, or "deleted".
+	HeaderFacilityCurrentVersion = "Scalematch-Facility-Current-Version"
 )
 
 // FacilityList is the answer of GET /v1/facilities.
@@ -260,13 +265,14 @@ func (s *Server) deleteFacility(c *gin.Context) {
 // getPlan answers GET /v1/plans/{id}.
 //
 //	@Summary		Read a stored plan
-//	@Description	The plan exactly as POST /v1/plans first answered it, byte for byte (SI units throughout: m, m², m/s, Pa, K, N, N·m; angles in degrees). Scalematch-Facility-Id and Scalematch-Facility-Version name the catalog facility version it used (absent for a facility given inline). Loads are estimates: the facility's approved limits, procedures and licensed engineering judgement govern.
+//	@Description	The plan exactly as POST /v1/plans first answered it, byte for byte (SI units throughout: m, m², m/s, Pa, K, N, N·m; angles in degrees). Scalematch-Facility-Id and Scalematch-Facility-Version name the catalog facility version it used (absent for a facility given inline). When that facility has changed or been deleted since, the answer says so: a facility_changed object (planned_version, current_version, deleted, message) is added in front of the stored plan's fields, and the Scalematch-Facility-Current-Version header gives the current version or "deleted"; the rest of the body is the stored plan, byte for byte. Such a plan may no longer hold: plan again. Loads are estimates: the facility's approved limits, procedures and licensed engineering judgement govern.
 //	@Tags			planning
 //	@Produce		json
 //	@Param			id	path		string	true	"plan id"
 //	@Success		200	{object}	PlanResponse
 //	@Header			200	{string}	Scalematch-Facility-Id		"catalog facility id"
 //	@Header			200	{integer}	Scalematch-Facility-Version	"catalog facility version"
+//	@Header			200	{string}	Scalematch-Facility-Current-Version	"the facility's current version, or deleted; only when it changed since the plan"
 //	@Failure		404	{object}	Problem	"no plan with this id is stored"
 //	@Router			/v1/plans/{id} [get]
 func (s *Server) getPlan(c *gin.Context) {
@@ -282,7 +288,74 @@ func (s *Server) getPlan(c *gin.Context) {
 	if !p.CreatedAt.IsZero() {
 		c.Header("Last-Modified", p.CreatedAt.UTC().Format(http.TimeFormat))
 	}
-	writeJSON(c, p.Body)
+	body := p.Body
+	if p.FacilityID != "" && p.FacilityVersion > 0 {
+		ch, err := s.facilityChange(c.Request.Context(), p.FacilityID, p.FacilityVersion)
+		if err != nil {
+			s.fail(c, err)
+			return
+		}
+		if ch != nil {
+			if body, err = withFacilityChange(body, ch); err != nil {
+				s.fail(c, err)
+				return
+			}
+			cur := strconv.Itoa(ch.CurrentVersion)
+			if ch.Deleted {
+				cur = "deleted"
+			}
+			c.Header(HeaderFacilityCurrentVersion, cur)
+		}
+	}
+	writeJSON(c, body)
+}
+
+// facilityChange compares a stored plan's facility version with the catalog's
+// current one: nil when it is still current.
+func (s *Server) facilityChange(ctx context.Context, id string, planned int) (*FacilityChange, error) {
+	var cur int
+	if vr, ok := s.cfg.Catalog.(facilities.VersionReader); ok {
+		v, err := vr.CurrentVersion(ctx, id)
+		if err != nil && !isNotFound(err) {
+			return nil, err
+		}
+		cur = v
+	} else {
+		f, err := s.cfg.Catalog.Facility(ctx, id)
+		if err != nil && !isNotFound(err) {
+			return nil, err
+		}
+		cur = f.Version
+	}
+	if cur == planned {
+		return nil, nil
+	}
+	ch := &FacilityChange{FacilityID: id, PlannedVersion: planned, CurrentVersion: cur, Deleted: cur == 0}
+	if ch.Deleted {
+		ch.Message = fmt.Sprintf("facility %s has been deleted from the catalog since this plan was made against its version %d: the plan may no longer hold", id, planned)
+	} else {
+		ch.Message = fmt.Sprintf("facility %s has changed since this plan was made: planned against version %d, now at version %d; the plan's limits, loads and cautions may no longer hold: plan again", id, planned, cur)
+	}
+	return ch, nil
+}
+
+// withFacilityChange returns the stored plan body with "facility_changed" added
+// as its first field; the rest of the body is unchanged, byte for byte.
+func withFacilityChange(body []byte, ch *FacilityChange) ([]byte, error) {
+	fc, err := json.Marshal(ch)
+	if err != nil {
+		return nil, err
+	}
+	if len(body) < 2 || body[0] != '{' {
+		return nil, fmt.Errorf("api: stored plan body is not a JSON object")
+	}
+	out := make([]byte, 0, len(body)+len(fc)+24)
+	out = append(out, `{"facility_changed":`...)
+	out = append(out, fc...)
+	if body[1] != '}' {
+		out = append(out, ',')
+	}
+	return append(out, body[1:]...), nil
 }
 
 // etag is the strong entity tag of a catalog version (RFC 9110 §8.8.3).
@@ -352,4 +425,10 @@ func (s *Server) writer(c *gin.Context) (facilities.Actor, bool) {
 		return "", false
 	}
 	return by, true
+}
+
+// isNotFound reports whether err is a *facilities.Error with CodeNotFound.
+func isNotFound(err error) bool {
+	var fe *facilities.Error
+	return errors.As(err, &fe) && fe.Code == facilities.CodeNotFound
 }

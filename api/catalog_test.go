@@ -13,6 +13,9 @@ import (
 	"testing"
 	"time"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/api"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
@@ -343,5 +346,70 @@ func TestStoredPlan(t *testing.T) {
 		if got := r.header.Get(k); got != want {
 			t.Errorf("%s = %q, want %q", k, got, want)
 		}
+	}
+}
+
+// TestStoredPlanFacilityChanged checks that a stored plan read back after its
+// facility changed or was deleted says so in the body and a header, and that the
+// rest of the body is the stored plan byte for byte.
+func TestStoredPlanFacilityChanged(t *testing.T) {
+	ts, db := catalogServer(t, nil)
+	ctx := context.Background()
+	tmpl, err := db.Facility(ctx, "tsw-1")
+	require.NoError(t, err)
+	mk := func(id string) facilities.Facility {
+		f := tmpl
+		f.ID, f.Name, f.Version = id, "changed-plan case "+id, 0
+		created, err := db.CreateFacility(ctx, f, "test")
+		require.NoError(t, err)
+		return created
+	}
+	changed, deleted, same := mk("wch-1"), mk("wch-2"), mk("wch-3")
+	stored := []byte("{\"id\":\"p-%s\",\n \"mismatch\": {\"reynolds_ratio\": 0.2500}}\n")
+	for _, f := range []facilities.Facility{changed, deleted, same} {
+		_, err := db.SavePlan(ctx, facilities.PlanRecord{ID: "p-" + f.ID, FacilityID: f.ID, FacilityVersion: f.Version,
+			Body: []byte(strings.Replace(string(stored), "%s", f.ID, 1))})
+		require.NoError(t, err)
+	}
+	changed.Name += ", revised"
+	_, err = db.UpdateFacility(ctx, changed, changed.Version, "test")
+	require.NoError(t, err)
+	require.NoError(t, db.DeleteFacility(ctx, deleted.ID, deleted.Version, "test"))
+
+	cases := []struct {
+		name       string
+		id         string
+		wantHeader string
+		wantChange *api.FacilityChange
+		wantText   string
+	}{
+		{"unchanged", "wch-3", "", nil, ""},
+		{"changed", "wch-1", "2", &api.FacilityChange{FacilityID: "wch-1", PlannedVersion: 1, CurrentVersion: 2},
+			"facility wch-1 has changed since this plan was made: planned against version 1, now at version 2"},
+		{"deleted", "wch-2", "deleted", &api.FacilityChange{FacilityID: "wch-2", PlannedVersion: 1, Deleted: true},
+			"facility wch-2 has been deleted from the catalog since this plan was made against its version 1"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := catalogCall(t, ts, http.MethodGet, "/v1/plans/p-"+c.id, nil, "")
+			require.Equal(t, http.StatusOK, r.status, "%s", r.body)
+			body := []byte(strings.Replace(string(stored), "%s", c.id, 1))
+			assert.Equal(t, c.wantHeader, r.header.Get(api.HeaderFacilityCurrentVersion))
+			if c.wantChange == nil {
+				assert.Equal(t, string(body), string(r.body), "byte for byte")
+				return
+			}
+			var got struct {
+				FacilityChanged *api.FacilityChange `json:"facility_changed"`
+			}
+			require.NoError(t, json.Unmarshal(r.body, &got))
+			require.NotNil(t, got.FacilityChanged)
+			assert.Contains(t, got.FacilityChanged.Message, c.wantText)
+			got.FacilityChanged.Message = ""
+			assert.Equal(t, *c.wantChange, *got.FacilityChanged)
+			// The stored plan follows the added field byte for byte.
+			assert.True(t, bytes.HasSuffix(r.body, body[1:]), "%s", r.body)
+			assert.True(t, bytes.HasPrefix(r.body, []byte(`{"facility_changed":{`)), "%s", r.body)
+		})
 	}
 }

@@ -133,6 +133,11 @@ type PlanRequest struct {
 // PlanResponse is the answer of POST /v1/plans: the plan and everything it implies.
 // Numbers are SI: m, m², Pa, K, m/s, N, N·m; angles in degrees.
 type PlanResponse struct {
+	// FacilityChanged is present only in GET /v1/plans/{id}, and only when the
+	// catalog facility the plan used has changed or been deleted since: the plan
+	// is served as stored, and this field, added in front of it at read time, says
+	// that it may no longer hold. POST /v1/plans never writes it.
+	FacilityChanged *FacilityChange `json:"facility_changed,omitempty"`
 	// ID identifies the plan; the same request against the same facility version
 	// gets the same id. GET /v1/plans/{id} returns the stored answer.
 	ID string `json:"id" example:"5d1c0a7e93b2f4a81c6e"`
@@ -177,6 +182,22 @@ type PlanResponse struct {
 	// Cautions are the safety cautions: estimates only; the facility's approved
 	// limits, procedures and licensed engineering judgement govern.
 	Cautions []string `json:"cautions"`
+}
+
+// FacilityChange says that a stored plan's catalog facility has changed since the
+// plan was made.
+type FacilityChange struct {
+	// FacilityID names the facility.
+	FacilityID string `json:"facility_id" example:"tsw-1"`
+	// PlannedVersion is the catalog version the plan was made against.
+	PlannedVersion int `json:"planned_version" example:"2"`
+	// CurrentVersion is the facility's catalog version now; 0 when it has been
+	// deleted.
+	CurrentVersion int `json:"current_version" example:"3"`
+	// Deleted reports that the facility is no longer in the catalog.
+	Deleted bool `json:"deleted"`
+	// Message says the same in a sentence.
+	Message string `json:"message"`
 }
 
 // LoadsRequest is the body of POST /v1/loads: as a plan request, but with the
