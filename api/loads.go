@@ -110,6 +110,7 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 			d := st.Mach - fl.Mach
 			out.Mismatch.MachDifference = &d
 		}
+		out.Mismatch.Decide(similarity.DefaultMachTolerance)
 	}
 	out.Warnings = append(out.Warnings, f.Warnings(st)...)
 	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)

@@ -11,8 +11,10 @@ import (
 	"testing"
 
 	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/api"
+	"scalematch/facilities"
 )
 
 // j20Plan is the Orrin J20 of the demo world (docs: scenario) in tsw-1 at cruise.
@@ -386,6 +388,46 @@ func TestEnvelope(t *testing.T) {
 				assert.Contains(t, string(b), "<desc>Estimate only: the envelope is the Reynolds number within the facility&#39;s flow limits")
 				assert.NotContains(t, string(b), "Reynolds number reachable")
 			}
+		})
+	}
+}
+
+// TestPlanMatchedAndCautions checks that a plan answer decides each matched group
+// (mach_matched, reynolds_matched, the tolerance used) and carries the static-load
+// caution with its balance loads.
+func TestPlanMatchedAndCautions(t *testing.T) {
+	ts := newServer(t)
+	cases := []struct {
+		name string
+		body string
+	}{
+		{"default tolerance", j20Plan},
+		{"tolerance 0.01", strings.Replace(j20Plan, `"facility_id"`, `"objective": {"mach_tolerance": 0.01}, "facility_id"`, 1)},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, b := post(t, ts, "/v1/plans", c.body)
+			require.Equal(t, http.StatusOK, code, "%s", b)
+			var p struct {
+				Mismatch struct {
+					ReynoldsRatio   float64  `json:"reynolds_ratio"`
+					MachDifference  *float64 `json:"mach_difference"`
+					ReynoldsMatched *bool    `json:"reynolds_matched"`
+					MachMatched     *bool    `json:"mach_matched"`
+					MachTolerance   float64  `json:"mach_tolerance"`
+				} `json:"mismatch"`
+				Cautions []string `json:"cautions"`
+			}
+			require.NoError(t, json.Unmarshal(b, &p))
+			m := p.Mismatch
+			require.NotNil(t, m.MachMatched, "mach_matched present in a gas facility")
+			require.NotNil(t, m.ReynoldsMatched, "reynolds_matched present")
+			require.NotNil(t, m.MachDifference)
+			assert.Greater(t, m.MachTolerance, 0.0)
+			assert.Equal(t, *m.MachDifference <= m.MachTolerance*(1+1e-9) && *m.MachDifference >= -m.MachTolerance*(1+1e-9), *m.MachMatched)
+			assert.Equal(t, m.ReynoldsRatio >= 0.999 && m.ReynoldsRatio <= 1.001, *m.ReynoldsMatched)
+			assert.Contains(t, p.Cautions, facilities.CautionStaticLoads)
+			assert.Equal(t, facilities.CautionEstimate, p.Cautions[0])
 		})
 	}
 }

@@ -218,6 +218,47 @@ type Mismatch struct {
 	// FroudeRatio is Fr_test/Fr_flight, reported for water facilities and for
 	// objectives naming froude; 0 otherwise.
 	FroudeRatio float64 `json:"froude_ratio,omitempty"`
+	// ReynoldsMatched reports that the test Reynolds number is within
+	// RatioMatchBand of the flight's: |Re_test/Re_flight − 1| ≤ 0.001.
+	ReynoldsMatched bool `json:"reynolds_matched"`
+	// MachMatched reports that the test Mach number is within MachTolerance of the
+	// flight's, decided here so that a script need not compare floating-point
+	// numbers: |M_test − M_flight| ≤ MachTolerance, up to a relative 1e-9 of the
+	// tolerance for rounding (a plan the planner put on the band's edge counts as
+	// matched). Nil (JSON null) in water, where the Mach number is not a target.
+	MachMatched *bool `json:"mach_matched"`
+	// MachTolerance is the Mach band half-width MachMatched was decided with: the
+	// objective's mach_tolerance, or DefaultMachTolerance; 0 (absent) in water.
+	MachTolerance float64 `json:"mach_tolerance,omitempty"`
+	// FroudeMatched reports |Fr_test/Fr_flight − 1| ≤ RatioMatchBand; present only
+	// with FroudeRatio.
+	FroudeMatched *bool `json:"froude_matched,omitempty"`
+}
+
+// RatioMatchBand is the relative band within which a ratio of a test group to the
+// flight's counts as matched (0.1 %), for reynolds_matched and froude_matched and
+// for the plan's warnings on the Reynolds mismatch.
+const RatioMatchBand = 0.001
+
+// machSlack is the relative share of the Mach tolerance allowed for rounding when
+// deciding MachMatched: the planner places a Mach number on the band's edge, and
+// M_test − M_flight computed from it can exceed the tolerance by a few ulps.
+const machSlack = 1e-9
+
+// Decide fills the matched booleans from the ratios and the Mach difference,
+// with machTol the Mach band half-width (ignored when MachDifference is nil).
+func (m *Mismatch) Decide(machTol float64) {
+	m.ReynoldsMatched = math.Abs(m.ReynoldsRatio-1) <= RatioMatchBand
+	m.MachMatched, m.MachTolerance = nil, 0
+	if m.MachDifference != nil {
+		ok := math.Abs(*m.MachDifference) <= machTol*(1+machSlack)
+		m.MachMatched, m.MachTolerance = &ok, machTol
+	}
+	m.FroudeMatched = nil
+	if m.FroudeRatio != 0 {
+		ok := math.Abs(m.FroudeRatio-1) <= RatioMatchBand
+		m.FroudeMatched = &ok
+	}
 }
 
 // Binding is one limit the plan sits on. Value and Limit are in the limit's own SI

@@ -57,6 +57,7 @@ func (sv *solver) result(x cand) *Result {
 	if sv.liquid || sv.froudeMatters() {
 		res.Mismatch.FroudeRatio = res.Test.Froude / sv.fl.Froude
 	}
+	res.Mismatch.Decide(sv.obj.tol)
 	res.Binding = sv.bindings(x, st)
 	res.Warnings = append(res.Warnings, sv.notes(x, st, res)...)
 	res.Cautions = facilities.Cautions(sv.f)
@@ -122,13 +123,13 @@ func (sv *solver) bindings(x cand, st facilities.State) []Binding {
 // notes returns the plan's warnings.
 func (sv *solver) notes(x cand, st facilities.State, res *Result) []string {
 	var w []string
-	if !sv.liquid && math.Abs(*res.Mismatch.MachDifference) > sv.obj.tol*(1+1e-9) && !sv.obj.weighted && sv.obj.levels[0] == gMach {
+	if !sv.liquid && !*res.Mismatch.MachMatched && !sv.obj.weighted && sv.obj.levels[0] == gMach {
 		w = append(w, fmt.Sprintf("the flight Mach number %.4g is out of the facility's reach: the nearest usable is %.4g", sv.fl.Mach, st.Mach))
 	}
-	if r := res.Mismatch.ReynoldsRatio; r < 0.999 {
+	if r := res.Mismatch.ReynoldsRatio; r < 1-RatioMatchBand {
 		w = append(w, fmt.Sprintf("the model reaches %.3g of the flight Reynolds number (%.4g against %.4g): expect a Reynolds-number effect on drag and maximum lift",
 			r, res.Test.Reynolds, sv.fl.Reynolds))
-	} else if r > 1.001 {
+	} else if r > 1+RatioMatchBand {
 		w = append(w, fmt.Sprintf("the test Reynolds number is %.3g times the flight's: the facility cannot go lower with the allowed models", r))
 	}
 	if sv.liquid {
