@@ -2,8 +2,9 @@
 """Plan three demo aircraft in two demo facilities each through the scalematch API.
 
 Standard library only. Prints one row per plan and flags every plan whose balance
-would run above 80 % of its rated load. Exits 1 when the service answers with an
-error (an RFC 9457 problem) or cannot be reached.
+would run above 80 % of its allowed load (the rating divided by the balance's safety
+factor), and, as DO NOT RUN, any above the allowed load itself. Exits 1 when the
+service answers with an error (an RFC 9457 problem) or cannot be reached.
 
 All figures are estimates only: the facility's approved limits, procedures and
 licensed engineering judgement govern.
@@ -61,7 +62,9 @@ PLANS = [
     ("Pellin P2", "lsw-2"), ("Pellin P2", "plp-3"),
 ]
 
-UTILISATION_FLAG = 0.80
+# Share of the allowed load (rating / safety factor) above which a plan is flagged
+# for a second look (common practice; the README's rule).
+ALLOWED_SHARE_FLAG = 0.80
 
 
 class ServiceError(Exception):
@@ -104,6 +107,29 @@ def plan_request(aircraft, facility_id):
     }
 
 
+def balance_flag(loads):
+    """Return the flag of a load report, or None: "DO NOT RUN" above the allowed
+    load (rating / safety factor), "CHECK" above 80 % of it.
+
+    >>> balance_flag({"max_utilization": 0.60, "allowed_utilization": 1 / 1.5})
+    'CHECK'
+    >>> balance_flag({"max_utilization": 0.52, "allowed_utilization": 1 / 1.5}) is None
+    True
+    >>> balance_flag({"max_utilization": 0.70, "allowed_utilization": 1 / 1.5})
+    'DO NOT RUN'
+    >>> balance_flag({}) is None
+    True
+    """
+    util, allowed = loads.get("max_utilization"), loads.get("allowed_utilization")
+    if util is None or not allowed:
+        return None
+    if util > allowed * (1 + 1e-12):
+        return "DO NOT RUN"
+    if util > ALLOWED_SHARE_FLAG * allowed:
+        return "CHECK"
+    return None
+
+
 def scale_ratio(s):
     return f"1:{1 / s:.1f}" if s > 0 else "-"
 
@@ -134,16 +160,24 @@ def main(argv=None):
             f"{p['test']['mach']:.3f}", f"{p['test']['stagnation_pressure'] / 1000:.1f}",
             f"{p['mismatch']['reynolds_ratio']:.3f}",
             "-" if util is None else f"{100 * util:.1f}", binding))
-        if util is not None and util > UTILISATION_FLAG:
-            flagged.append((aircraft, facility_id, loads.get("balance_id"), util, loads.get("limiting")))
+        flag = balance_flag(loads)
+        if flag:
+            flagged.append((flag, aircraft, facility_id, loads))
     if flagged:
         print()
-        for aircraft, facility_id, balance, util, limiting in flagged:
+        for flag, aircraft, facility_id, loads in flagged:
+            limiting = loads.get("limiting")
             where = ""
             if limiting:
                 where = f" ({limiting.get('component')} at alpha {limiting.get('alpha')} deg)"
-            print(f"CHECK: {aircraft} in {facility_id}: balance {balance} at {100 * util:.1f} % "
-                  f"of its rating{where}, above {100 * UTILISATION_FLAG:.0f} %")
+            util, allowed = loads["max_utilization"], loads["allowed_utilization"]
+            text = (f"{aircraft} in {facility_id}: balance {loads.get('balance_id')} at "
+                    f"{100 * util:.1f} % of its rating{where}, {100 * util / allowed:.0f} % of "
+                    f"the {100 * allowed:.0f} % allowed (rating / safety factor)")
+            if flag == "DO NOT RUN":
+                print(f"DO NOT RUN: {text}: above the allowed load")
+            else:
+                print(f"CHECK: {text}: above {100 * ALLOWED_SHARE_FLAG:.0f} % of the allowed load")
     print()
     print("Estimates only: the facility's approved limits, procedures and licensed "
           "engineering judgement govern.")
