@@ -7,7 +7,8 @@ import (
 )
 
 // registerPlanning registers the planning endpoints on the /v1 group: atmosphere,
-// conditions, plans, the plan batch, loads, groups and the facility envelope charts.
+// conditions, plans, the plan batch, loads, groups, the facility envelope charts and
+// the charts of a stored plan (charts.go).
 func (s *Server) registerPlanning(v1 *gin.RouterGroup) {
 	v1.GET("/atmosphere", s.getAtmosphere)
 	v1.POST("/conditions", s.postConditions)
@@ -15,8 +16,10 @@ func (s *Server) registerPlanning(v1 *gin.RouterGroup) {
 	v1.POST("/plans/batch", s.postPlanBatch)
 	v1.POST("/loads", s.postLoads)
 	v1.POST("/groups", s.postGroups)
-	v1.GET("/facilities/:id/envelope.svg", s.getEnvelopeSVG)
-	v1.GET("/facilities/:id/envelope.png", s.getEnvelopePNG)
+	v1.GET("/facilities/:id/envelope.svg", s.getEnvelope)
+	v1.GET("/facilities/:id/envelope.png", s.getEnvelope)
+	v1.GET("/facilities/:id/envelope.pdf", s.getEnvelope)
+	v1.GET("/plans/:id/charts/:chart", s.getPlanChart)
 }
 
 // planner returns the composition over the configured catalog. The read-only demo

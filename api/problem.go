@@ -27,6 +27,7 @@ const ContentTypeProblem = "application/problem+json"
 //	forbidden              403  the token may not do this, or writes are switched off
 //	not-found              404  no such facility, plan or route
 //	method-not-allowed     405  the route exists but not for this method
+//	not-acceptable         406  Accept names no format a chart is drawn in
 //	conflict               409  the id exists already
 //	precondition-failed    412  If-Match names a version that is no longer current
 //	body-too-large         413  the request body is larger than BodyLimit
@@ -67,6 +68,7 @@ var (
 	kindForbidden            = problemKind{http.StatusForbidden, "forbidden", "Forbidden"}
 	kindNotFound             = problemKind{http.StatusNotFound, "not-found", "Not found"}
 	kindMethodNotAllowed     = problemKind{http.StatusMethodNotAllowed, "method-not-allowed", "Method not allowed"}
+	kindNotAcceptable        = problemKind{http.StatusNotAcceptable, "not-acceptable", "Not acceptable"}
 	kindConflict             = problemKind{http.StatusConflict, "conflict", "Conflict"}
 	kindPreconditionFailed   = problemKind{http.StatusPreconditionFailed, "precondition-failed", "Precondition failed"}
 	kindBodyTooLarge         = problemKind{http.StatusRequestEntityTooLarge, "body-too-large", "Request body too large"}
@@ -105,6 +107,7 @@ func (k problemKind) problem(c *gin.Context, detail string) Problem {
 //	*facilities.Error                      by its Code (table in Problem's comment)
 //	atmosphere.ErrRange                    400
 //	*http.MaxBytesError                    413
+//	notAcceptableError                     406
 //	context.DeadlineExceeded               503
 //	anything else                          500 "internal error", logged in full
 //
@@ -113,6 +116,7 @@ func (k problemKind) problem(c *gin.Context, detail string) Problem {
 func (s *Server) problem(c *gin.Context, err error) Problem {
 	var de *facilities.Error
 	var mbe *http.MaxBytesError
+	var nae notAcceptableError
 	switch {
 	case errors.As(err, &de):
 		k, ok := codeKinds[de.Code]
@@ -130,6 +134,8 @@ func (s *Server) problem(c *gin.Context, err error) Problem {
 		p.Errors = de.Fields
 		p.Limits = de.Limits
 		return p
+	case errors.As(err, &nae):
+		return kindNotAcceptable.problem(c, nae.Error())
 	case errors.Is(err, atmosphere.ErrRange):
 		return kindInvalid.problem(c, err.Error())
 	case errors.As(err, &mbe):

@@ -28,6 +28,10 @@ type computeOptions struct {
 	units  string
 	stdin  io.Reader
 	stdout io.Writer
+	// chartDir, for plan, is the directory its charts are written to ("": none);
+	// stderr receives the names of the files written.
+	chartDir string
+	stderr   io.Writer
 }
 
 // bind adds the shared flags to cmd; withData adds --data (groups needs no catalog).
@@ -49,7 +53,7 @@ func (o *computeOptions) start(cmd *cobra.Command, arg string) ([]byte, error) {
 	if o.units != "si" && o.units != "us" {
 		return nil, fmt.Errorf("--units %q: want si or us", o.units)
 	}
-	o.stdin, o.stdout = cmd.InOrStdin(), cmd.OutOrStdout()
+	o.stdin, o.stdout, o.stderr = cmd.InOrStdin(), cmd.OutOrStdout(), cmd.ErrOrStderr()
 	var r io.Reader
 	if arg == "-" {
 		r = o.stdin
@@ -172,12 +176,15 @@ with the Reynolds gain of one more per cent of each, wall corrections, the balan
 loads at every angle of attack with their utilisation, the Reynolds effects on
 drag, the schedule, warnings and cautions. --units us adds U.S. customary units
 beside the SI ones. --json prints exactly the body POST /v1/plans returns.
+--chart DIR also writes the plan's charts, the ones GET
+/v1/plans/{id}/charts/{name} serves, as DIR/NAME.svg, .png and .pdf.
 
 Loads and limits are estimates only: the facility's approved limits, procedures
 and licensed engineering judgement govern.`,
 		Example: `  scalematch plan request.json
   scalematch plan --units us - < request.json
-  scalematch plan --json --data ./scalematch-data request.json`,
+  scalematch plan --json --data ./scalematch-data request.json
+  scalematch plan --chart ./charts request.json`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			body, err := o.start(cmd, args[0])
@@ -201,6 +208,7 @@ and licensed engineering judgement govern.`,
 		},
 	}
 	o.bind(cmd, true, "POST /v1/plans")
+	cmd.Flags().StringVar(&o.chartDir, "chart", "", "also write the plan's charts (envelope, loads, reynolds-trade) into this directory as SVG, PNG and PDF")
 	return cmd
 }
 
@@ -211,14 +219,26 @@ func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.Plan
 		if err != nil {
 			return explain(err)
 		}
-		_, err = o.stdout.Write(b)
-		return err
+		if _, err = o.stdout.Write(b); err != nil {
+			return err
+		}
+		if o.chartDir == "" {
+			return nil
+		}
+		resp, err := api.DecodePlan(b)
+		if err != nil {
+			return err
+		}
+		return o.writeCharts(ctx, p, resp, req.Facility)
 	}
 	resp, err := p.Plan(ctx, req)
 	if err != nil {
 		return explain(err)
 	}
-	return writePlan(o.stdout, resp, o.units == "us", req.Facility != nil)
+	if err := writePlan(o.stdout, resp, o.units == "us", req.Facility != nil); err != nil {
+		return err
+	}
+	return o.writeCharts(ctx, p, resp, req.Facility)
 }
 
 // units formats quantities in SI and, when us is set, in U.S. customary units
