@@ -12,6 +12,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/api"
 )
 
 // storedPlan plans the example request file in the catalog server ts and returns
@@ -79,6 +81,9 @@ func TestPlanCharts(t *testing.T) {
 				require.NoError(t, json.Unmarshal(b, &p))
 				assert.Equal(t, tc.status, p.Status)
 				assert.Contains(t, p.Detail, tc.problem)
+			}
+			if tc.status == http.StatusOK {
+				assert.Contains(t, resp.Header.Get(api.HeaderCaution), "approved limits, procedures and licensed engineering judgement govern")
 			}
 			switch tc.ctype {
 			case "image/png":
