@@ -83,6 +83,33 @@ func CheckFacilityID(id string) error {
 	return nil
 }
 
+// CheckRecord returns a CodeInvalid error when f may not be stored: it names no
+// id, or a field lies outside its documented range (Validate). Both stores call it
+// before every write, so that no record can poison the plans made against it.
+func CheckRecord(f Facility) error {
+	if err := CheckFacilityID(f.ID); err != nil {
+		return err
+	}
+	f.Version = 0
+	return f.Validate()
+}
+
+// StoredRecordInvalid is the CodeUnprocessable error of a catalog record, stored
+// before its fields had their present ranges, that Validate now refuses: plans
+// against it are refused, naming each field, until it is corrected.
+func StoredRecordInvalid(f Facility, err error) error {
+	var de *Error
+	if !errors.As(err, &de) {
+		return err
+	}
+	fields := make([]FieldError, len(de.Fields))
+	for i, fe := range de.Fields {
+		fields[i] = FieldError{Field: "facility." + fe.Field, Message: fe.Message}
+	}
+	return &Error{Code: CodeUnprocessable, Fields: fields, Limits: []string{"catalog_record"},
+		Message: fmt.Sprintf("the catalog record of facility %q (version %d) has values outside their ranges; correct it with PUT /v1/facilities/%s", f.ID, f.Version, f.ID)}
+}
+
 // FacilityNotFound is the CodeNotFound error of a catalog that has no facility id.
 func FacilityNotFound(id string) error {
 	return &Error{Code: CodeNotFound, Message: fmt.Sprintf("no facility %q in the catalog", id)}

@@ -2,7 +2,6 @@ package facilities
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"strings"
 )
@@ -14,12 +13,20 @@ const (
 	MaxIDLength = 64
 	// MaxNameLength is the longest facility, balance or gauge-row name, in bytes.
 	MaxNameLength = 200
-	// MaxSectionSize is the largest test-section width, height or length in m.
+	// MinSectionSize and MaxSectionSize bound a test-section width, height or
+	// length in m.
+	MinSectionSize = 0.01
 	MaxSectionSize = 100.0
+	// MaxSpeed is the largest speed a facility may state, m/s.
+	MaxSpeed = 5000.0
+	// MinStagnationPressure is the lowest stagnation pressure a facility or a test
+	// setting may state, Pa.
+	MinStagnationPressure = 10.0
 	// MaxStagnationPressure is the largest stagnation pressure a facility may state, Pa.
 	MaxStagnationPressure = 1e8
-	// MaxStagnationTemperature is the largest stagnation temperature a facility may
-	// state, K.
+	// MinStagnationTemperature and MaxStagnationTemperature bound the stagnation
+	// temperature of a gas facility or test setting, K.
+	MinStagnationTemperature = 10.0
 	MaxStagnationTemperature = 5000.0
 	// NitrogenTriplePointTemperature is the lowest temperature in K a nitrogen
 	// facility may state: below it nitrogen is solid (63.151 K, Span et al. 2000;
@@ -38,21 +45,21 @@ const invalidFacility = "facility is invalid"
 //     name at most 200 characters; version 0 or more;
 //   - medium: a known kind; a custom gas's constants in range (see
 //     GasProperties), none given for the named media;
-//   - test_section: width, height and length above 0 and up to 100 m, area above 0
-//     when given, walls one of closed, open, slotted, porous;
-//   - mach and speed: at least one (water: speed only), each 0 ≤ min ≤ max, Mach at
-//     most MaxSettingMach;
-//   - stagnation_pressure and stagnation_temperature: 0 < min ≤ max, finite, within
-//     MaxStagnationPressure and MaxStagnationTemperature; water 0–150 °C; nitrogen
-//     above its triple point;
-//   - optional limits above 0: max_dynamic_pressure, max_reynolds_per_meter,
-//     max_span_fraction (at most 1), max_blockage (below 1);
-//     lift_interference_factor from −1 to 1; condensation_peak_mach above 0 and up
-//     to MaxSettingMach;
-//   - balances: ids present, well formed and unique; every given limit above 0;
-//     safety_factor at least 1; combined rows with unique names, known component
-//     names, finite coefficients not all 0, and a limit above 0;
-//   - operations: every time 0 or more and finite.
+//   - test_section: width, height and length from 0.01 m to 100 m, area from
+//     10⁻⁴ m² to 10⁴ m² when given, walls one of closed, open, slotted, porous;
+//   - mach and speed: at least one (water: speed only), each min ≤ max, Mach from 0
+//     to MaxSettingMach, speed from 0 to MaxSpeed;
+//   - stagnation_pressure and stagnation_temperature: min ≤ max, within
+//     BoundStagnationPressure and Medium.TemperatureBound (water 0–150 °C, nitrogen
+//     above its triple point);
+//   - optional limits, each within its Bound (bounds.go): max_dynamic_pressure,
+//     max_reynolds_per_meter, max_span_fraction, max_blockage,
+//     lift_interference_factor, condensation_peak_mach;
+//   - balances: ids present, well formed and unique; every given limit within
+//     BoundForce or BoundMoment; safety_factor within BoundSafetyFactor; combined
+//     rows with unique names, known component names, coefficients within
+//     BoundCoefficient and not all 0, and a limit within BoundRowLimit;
+//   - operations: every time within BoundSecondsPerPoint or BoundMinutes.
 func (f *Facility) Validate() error {
 	var e []FieldError
 	add := func(field, format string, args ...any) {
@@ -84,11 +91,11 @@ func (f *Facility) Validate() error {
 
 	// Test section.
 	ts := f.TestSection
-	positiveUpTo(&e, "test_section.width", ts.Width, MaxSectionSize, "m")
-	positiveUpTo(&e, "test_section.height", ts.Height, MaxSectionSize, "m")
-	positiveUpTo(&e, "test_section.length", ts.Length, MaxSectionSize, "m")
+	BoundSectionSize.Check(&e, "test_section.width", ts.Width)
+	BoundSectionSize.Check(&e, "test_section.height", ts.Height)
+	BoundSectionSize.Check(&e, "test_section.length", ts.Length)
 	if ts.Area != nil {
-		positiveUpTo(&e, "test_section.area", *ts.Area, MaxSectionSize*MaxSectionSize, "m²")
+		BoundSectionArea.Check(&e, "test_section.area", *ts.Area)
 	}
 	switch ts.Walls {
 	case WallsClosed, WallsOpen, WallsSlotted, WallsPorous:
@@ -107,42 +114,33 @@ func (f *Facility) Validate() error {
 		if liquid {
 			add("mach", "water facilities state a speed range: Mach is not a setting in water")
 		} else {
-			rangeWithin(&e, "mach", *f.Mach, 0, MaxSettingMach, true, "")
+			rangeBound(&e, "mach", *f.Mach, BoundMach)
 		}
 	}
 	if f.Speed != nil {
-		rangeWithin(&e, "speed", *f.Speed, 0, math.Inf(1), true, "m/s")
+		rangeBound(&e, "speed", *f.Speed, BoundSpeed)
 	}
 
 	// Stagnation conditions.
-	rangeWithin(&e, "stagnation_pressure", f.StagnationPressure, 0, MaxStagnationPressure, false, "Pa")
-	tLo, tHi, tLoIncl := 0.0, MaxStagnationTemperature, false
-	switch f.Medium.Kind {
-	case MediumWater:
-		tLo, tHi, tLoIncl = WaterMinTemperature, WaterMaxTemperature, true
-	case MediumNitrogen:
-		tLo = NitrogenTriplePointTemperature
-	}
-	rangeWithin(&e, "stagnation_temperature", f.StagnationTemperature, tLo, tHi, tLoIncl, "K")
+	rangeBound(&e, "stagnation_pressure", f.StagnationPressure, BoundStagnationPressure)
+	rangeBound(&e, "stagnation_temperature", f.StagnationTemperature, f.Medium.TemperatureBound())
 
 	// Optional limits.
-	if f.MaxDynamicPressure != nil {
-		positiveUpTo(&e, "max_dynamic_pressure", *f.MaxDynamicPressure, math.Inf(1), "Pa")
-	}
-	if f.MaxReynoldsPerMeter != nil {
-		positiveUpTo(&e, "max_reynolds_per_meter", *f.MaxReynoldsPerMeter, math.Inf(1), "1/m")
-	}
-	if f.MaxSpanFraction != nil {
-		positiveUpTo(&e, "max_span_fraction", *f.MaxSpanFraction, 1, "")
-	}
-	if v := f.MaxBlockage; v != nil && !(*v > 0 && *v < 1) {
-		add("max_blockage", "%g: must be above 0 and below 1 (a fraction of the test-section area)", *v)
-	}
-	if v := f.LiftInterferenceFactor; v != nil && !(*v >= -1 && *v <= 1) {
-		add("lift_interference_factor", "%g is outside -1 to 1", *v)
-	}
-	if f.CondensationPeakMach != nil {
-		positiveUpTo(&e, "condensation_peak_mach", *f.CondensationPeakMach, MaxSettingMach, "")
+	for _, o := range [...]struct {
+		field string
+		v     *float64
+		b     Bound
+	}{
+		{"max_dynamic_pressure", f.MaxDynamicPressure, BoundDynamicPressure},
+		{"max_reynolds_per_meter", f.MaxReynoldsPerMeter, BoundReynoldsPerMeter},
+		{"max_span_fraction", f.MaxSpanFraction, BoundSpanFraction},
+		{"max_blockage", f.MaxBlockage, BoundBlockage},
+		{"lift_interference_factor", f.LiftInterferenceFactor, BoundLiftInterference},
+		{"condensation_peak_mach", f.CondensationPeakMach, BoundCondensationPeakMach},
+	} {
+		if o.v != nil {
+			o.b.Check(&e, o.field, *o.v)
+		}
 	}
 
 	// Balances.
@@ -161,16 +159,14 @@ func (f *Facility) Validate() error {
 		}
 		for _, c := range limitComponents(&b.Limits) {
 			if c.v != nil {
-				unit := "N"
+				bound := BoundForce
 				if strings.HasSuffix(c.name, "_moment") {
-					unit = "N·m"
+					bound = BoundMoment
 				}
-				positiveUpTo(&e, p+".limits."+c.name, *c.v, math.Inf(1), unit)
+				bound.Check(&e, p+".limits."+c.name, *c.v)
 			}
 		}
-		if !(b.SafetyFactor >= 1) || math.IsInf(b.SafetyFactor, 1) {
-			add(p+".safety_factor", "%g: must be 1 or more and finite", b.SafetyFactor)
-		}
+		BoundSafetyFactor.Check(&e, p+".safety_factor", b.SafetyFactor)
 		rows := make(map[string]int, len(b.Combined))
 		for j, row := range b.Combined {
 			rp := fmt.Sprintf("%s.combined[%d]", p, j)
@@ -201,8 +197,8 @@ func (f *Facility) Validate() error {
 					add(rp+".coefficients."+name, "unknown component: want one of %s", strings.Join(componentNames[:], ", "))
 					continue
 				}
-				if math.IsNaN(c) || math.IsInf(c, 0) {
-					add(rp+".coefficients."+name, "%g: must be finite", c)
+				if msg := BoundCoefficient.Problem(c); msg != "" {
+					add(rp+".coefficients."+name, "%s", msg)
 					continue
 				}
 				nonzero = nonzero || c != 0
@@ -210,16 +206,16 @@ func (f *Facility) Validate() error {
 			if len(row.Coefficients) > 0 && !nonzero {
 				add(rp+".coefficients", "at least one coefficient must be a finite non-zero number")
 			}
-			positiveUpTo(&e, rp+".limit", row.Limit, math.Inf(1), "")
+			BoundRowLimit.Check(&e, rp+".limit", row.Limit)
 		}
 	}
 
 	// Operations.
 	if op := f.Operations; op != nil {
-		nonNegative(&e, "operations.seconds_per_point", op.SecondsPerPoint, "s")
-		nonNegative(&e, "operations.minutes_per_run", op.MinutesPerRun, "min")
-		nonNegative(&e, "operations.minutes_per_pressure_change", op.MinutesPerPressureChange, "min")
-		nonNegative(&e, "operations.minutes_per_temperature_change", op.MinutesPerTemperatureChange, "min")
+		BoundSecondsPerPoint.Check(&e, "operations.seconds_per_point", op.SecondsPerPoint)
+		BoundMinutes.Check(&e, "operations.minutes_per_run", op.MinutesPerRun)
+		BoundMinutes.Check(&e, "operations.minutes_per_pressure_change", op.MinutesPerPressureChange)
+		BoundMinutes.Check(&e, "operations.minutes_per_temperature_change", op.MinutesPerTemperatureChange)
 	}
 	return Invalid(invalidFacility, e)
 }
@@ -322,56 +318,18 @@ func withUnit(v float64, unit string) string {
 	return fmt.Sprintf("%g %s", v, unit)
 }
 
-// positiveUpTo appends an error unless 0 < v ≤ hi (hi may be +Inf, meaning finite).
-func positiveUpTo(e *[]FieldError, field string, v, hi float64, unit string) {
-	if v > 0 && v <= hi && !math.IsInf(v, 1) {
-		return
+// rangeBound appends errors for a range whose ends must lie in b with Min ≤ Max. A
+// reversed range is reported on field.min.
+func rangeBound(e *[]FieldError, field string, r Range, b Bound) {
+	minMsg, maxMsg := b.Problem(r.Min), b.Problem(r.Max)
+	if minMsg != "" {
+		*e = append(*e, FieldError{Field: field + ".min", Message: minMsg})
 	}
-	msg := withUnit(v, unit) + ": must be above 0"
-	if !math.IsInf(hi, 1) {
-		msg += " and at most " + withUnit(hi, unit)
-	} else {
-		msg += " and finite"
+	if maxMsg != "" {
+		*e = append(*e, FieldError{Field: field + ".max", Message: maxMsg})
 	}
-	*e = append(*e, FieldError{Field: field, Message: msg})
-}
-
-// nonNegative appends an error unless v is 0 or more and finite.
-func nonNegative(e *[]FieldError, field string, v float64, unit string) {
-	if v >= 0 && !math.IsInf(v, 1) {
-		return
-	}
-	*e = append(*e, FieldError{Field: field, Message: withUnit(v, unit) + ": must be 0 or more and finite"})
-}
-
-// rangeWithin appends errors for a range whose ends must lie in [lo, hi] (lo
-// excluded unless loIncl; hi may be +Inf, meaning finite) with Min ≤ Max. A reversed
-// range is reported on field.min.
-func rangeWithin(e *[]FieldError, field string, r Range, lo, hi float64, loIncl bool, unit string) {
-	ok := func(v float64) bool {
-		above := v > lo || loIncl && v == lo
-		return above && v <= hi && !math.IsInf(v, 1)
-	}
-	allowed := ""
-	switch {
-	case math.IsInf(hi, 1) && loIncl:
-		allowed = withUnit(lo, unit) + " or more and finite"
-	case math.IsInf(hi, 1):
-		allowed = "above " + withUnit(lo, unit) + " and finite"
-	case loIncl:
-		allowed = "from " + withUnit(lo, unit) + " to " + withUnit(hi, unit)
-	default:
-		allowed = "above " + withUnit(lo, unit) + " and at most " + withUnit(hi, unit)
-	}
-	minOK, maxOK := ok(r.Min), ok(r.Max)
-	if !minOK {
-		*e = append(*e, FieldError{Field: field + ".min", Message: withUnit(r.Min, unit) + ": must be " + allowed})
-	}
-	if !maxOK {
-		*e = append(*e, FieldError{Field: field + ".max", Message: withUnit(r.Max, unit) + ": must be " + allowed})
-	}
-	if minOK && maxOK && r.Min > r.Max {
+	if minMsg == "" && maxMsg == "" && r.Min > r.Max {
 		*e = append(*e, FieldError{Field: field + ".min", Message: fmt.Sprintf(
-			"%s is above %s.max (%s)", withUnit(r.Min, unit), field, withUnit(r.Max, unit))})
+			"%s is above %s.max (%s)", withUnit(r.Min, b.Unit), field, withUnit(r.Max, b.Unit))})
 	}
 }

@@ -28,6 +28,7 @@ func Run(t *testing.T, open func(t *testing.T) facilities.Catalog) {
 		{"Empty", testEmpty},
 		{"CreateRead", testCreateRead},
 		{"CreateConflict", testCreateConflict},
+		{"RefusesOutOfRange", testRefusesOutOfRange},
 		{"List", testList},
 		{"Update", testUpdate},
 		{"Delete", testDelete},
@@ -133,6 +134,50 @@ func testCreateRead(t *testing.T, c facilities.Catalog) {
 		t.Errorf("FacilityVersion(1).Version = %d, want 1", v1.Version)
 	}
 	sameFacility(t, v1, in)
+}
+
+// testRefusesOutOfRange: a record with a value outside its documented range (a
+// finite 1e308 s per point, which made every plan against it overflow) is refused
+// on create and on update, naming the field, and leaves nothing behind.
+func testRefusesOutOfRange(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	bad := demo(t, "tsw-1")
+	ops := *bad.Operations
+	ops.SecondsPerPoint = 1e308
+	bad.Operations = &ops
+	_, err := c.CreateFacility(ctx, bad, "a")
+	wantCode(t, err, facilities.CodeInvalid)
+	wantField(t, err, "operations.seconds_per_point")
+	if _, err := c.Versions(ctx, bad.ID); facilities.ErrorCode(err) != facilities.CodeNotFound {
+		t.Errorf("a refused create left a history: %v", err)
+	}
+	good := mustCreate(t, c, demo(t, "tsw-1"), "a")
+	bad.Version = 0
+	_, err = c.UpdateFacility(ctx, bad, good.Version, "a")
+	wantCode(t, err, facilities.CodeInvalid)
+	wantField(t, err, "operations.seconds_per_point")
+	got, err := c.Facility(ctx, bad.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Version != good.Version || got.Operations.SecondsPerPoint != demo(t, "tsw-1").Operations.SecondsPerPoint {
+		t.Errorf("a refused update changed the record: version %d, seconds_per_point %g", got.Version, got.Operations.SecondsPerPoint)
+	}
+}
+
+// wantField fails unless err is a domain error naming field.
+func wantField(t *testing.T, err error, field string) {
+	t.Helper()
+	var de *facilities.Error
+	if !errors.As(err, &de) {
+		t.Fatalf("%v: not a domain error", err)
+	}
+	for _, f := range de.Fields {
+		if f.Field == field {
+			return
+		}
+	}
+	t.Errorf("%v does not name %s", err, field)
 }
 
 func testCreateConflict(t *testing.T, c facilities.Catalog) {
