@@ -283,7 +283,7 @@ func (db *DB) FacilityVersion(ctx context.Context, id string, version int) (faci
 // CreateFacility stores a new facility as version 1, or a deleted id again as its
 // next version.
 func (db *DB) CreateFacility(ctx context.Context, f facilities.Facility, by facilities.Actor) (facilities.Facility, error) {
-	if err := facilities.CheckFacilityID(f.ID); err != nil {
+	if err := facilities.CheckRecord(f); err != nil {
 		return facilities.Facility{}, err
 	}
 	body, err := facilities.CanonicalJSON(f)
@@ -332,7 +332,7 @@ func (db *DB) create(ctx context.Context, tx *sql.Tx, id string, body []byte, by
 
 // UpdateFacility replaces a facility when its current version equals ifMatch.
 func (db *DB) UpdateFacility(ctx context.Context, f facilities.Facility, ifMatch int, by facilities.Actor) (facilities.Facility, error) {
-	if err := facilities.CheckFacilityID(f.ID); err != nil {
+	if err := facilities.CheckRecord(f); err != nil {
 		return facilities.Facility{}, err
 	}
 	body, err := facilities.CanonicalJSON(f)
@@ -499,7 +499,7 @@ func (db *DB) SeedOnce(ctx context.Context, fs []facilities.Facility, by facilit
 			return err
 		}
 		for _, f := range fs {
-			if err := facilities.CheckFacilityID(f.ID); err != nil {
+			if err := facilities.CheckRecord(f); err != nil {
 				return err
 			}
 			body, err := facilities.CanonicalJSON(f)
