@@ -152,22 +152,16 @@ func compileTable(rows []AeroPoint) (*aeroTable, error) {
 	}
 	byBeta := map[float64][]int{}
 	for i, r := range rows {
-		for _, f := range []struct {
+		for _, f := range [...]struct {
 			name string
 			v    float64
-		}{{"alpha", r.Alpha}, {"beta", r.Beta}, {"cl", r.CL}, {"cd", r.CD}, {"cm", r.Cm}, {"cy", r.CY}, {"cl_roll", r.Cl}, {"cn", r.Cn}} {
-			if math.IsNaN(f.v) || math.IsInf(f.v, 0) {
-				bad(i, f.name, "must be a finite number")
+			b    facilities.Bound
+		}{{"alpha", r.Alpha, BoundTableAngle}, {"beta", r.Beta, BoundTableBeta}, {"cl", r.CL, BoundTableCoefficient},
+			{"cd", r.CD, BoundTableDrag}, {"cm", r.Cm, BoundTableCoefficient}, {"cy", r.CY, BoundTableCoefficient},
+			{"cl_roll", r.Cl, BoundTableCoefficient}, {"cn", r.Cn, BoundTableCoefficient}} {
+			if msg := f.b.Problem(f.v); msg != "" {
+				bad(i, f.name, msg)
 			}
-		}
-		if math.Abs(r.Alpha) > 180 {
-			bad(i, "alpha", fmt.Sprintf("%g° is outside −180° to 180°", r.Alpha))
-		}
-		if math.Abs(r.Beta) > 90 {
-			bad(i, "beta", fmt.Sprintf("%g° is outside −90° to 90°", r.Beta))
-		}
-		if r.CD < 0 {
-			bad(i, "cd", fmt.Sprintf("drag coefficient %g must not be negative", r.CD))
 		}
 		byBeta[r.Beta] = append(byBeta[r.Beta], i)
 	}
@@ -274,8 +268,8 @@ type Sweep struct {
 func (s Sweep) Angles(field string) ([]float64, error) {
 	var fe []facilities.FieldError
 	bad := func(f, msg string) { fe = append(fe, facilities.FieldError{Field: field + "." + f, Message: msg}) }
-	if !(s.Step > 0) || math.IsInf(s.Step, 0) {
-		bad("step", fmt.Sprintf("must be a positive angle in degrees, got %g", s.Step))
+	if !BoundSweepStep.Contains(s.Step) {
+		bad("step", BoundSweepStep.Problem(s.Step))
 	}
 	if !(math.Abs(s.From) <= 180) {
 		bad("from", fmt.Sprintf("%g° is outside −180° to 180°", s.From))
@@ -288,7 +282,11 @@ func (s Sweep) Angles(field string) ([]float64, error) {
 	}
 	if len(fe) == 0 {
 		if n := math.Floor((s.To-s.From)/s.Step+1e-9) + 1; n > MaxSweepPoints {
-			bad("step", fmt.Sprintf("the sweep gives %.0f points, more than the %d allowed", n, MaxSweepPoints))
+			if n < 1e15 {
+				bad("step", fmt.Sprintf("%g° gives %.0f points, more than the %d allowed", s.Step, n, MaxSweepPoints))
+			} else {
+				bad("step", fmt.Sprintf("%g° gives more than the %d points allowed", s.Step, MaxSweepPoints))
+			}
 		}
 	}
 	if err := facilities.Invalid("invalid "+field+" sweep", fe); err != nil {

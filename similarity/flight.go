@@ -94,11 +94,10 @@ func (f *Flight) Validate() error {
 	case f.Altitude != nil && f.PressureAltitude != nil:
 		add("altitude", "give only one of altitude and pressure_altitude")
 		add("pressure_altitude", "give only one of altitude and pressure_altitude")
-	case f.Altitude != nil && !inRange(*f.Altitude, atmosphere.MinAltitude, atmosphere.MaxAltitude):
-		add("altitude", fmt.Sprintf("%g m is outside %g m to %g m", *f.Altitude, atmosphere.MinAltitude, atmosphere.MaxAltitude))
-	case f.PressureAltitude != nil && !inRange(*f.PressureAltitude, atmosphere.Geopotential(atmosphere.MinAltitude), atmosphere.Geopotential(atmosphere.MaxAltitude)):
-		add("pressure_altitude", fmt.Sprintf("%g m is outside %.1f m to %.1f m", *f.PressureAltitude,
-			atmosphere.Geopotential(atmosphere.MinAltitude), atmosphere.Geopotential(atmosphere.MaxAltitude)))
+	case f.Altitude != nil && !BoundAltitude.Contains(*f.Altitude):
+		add("altitude", BoundAltitude.Problem(*f.Altitude))
+	case f.PressureAltitude != nil && !BoundPressureAltitude.Contains(*f.PressureAltitude):
+		add("pressure_altitude", BoundPressureAltitude.Problem(*f.PressureAltitude))
 	}
 	if !inRange(f.DeltaISA, atmosphere.MinDeltaISA, atmosphere.MaxDeltaISA) {
 		add("delta_isa", fmt.Sprintf("%g K is outside %g K to %g K", f.DeltaISA, atmosphere.MinDeltaISA, atmosphere.MaxDeltaISA))
@@ -110,11 +109,11 @@ func (f *Flight) Validate() error {
 	case n > 1:
 		add(field, "give only one of mach, true_airspeed, calibrated_airspeed and equivalent_airspeed")
 	case field == "mach":
-		if !(v > 0 && v <= atmosphere.MaxMach) {
-			add(field, fmt.Sprintf("%g is outside the allowed range: above 0 and at most %g", v, atmosphere.MaxMach))
+		if !BoundFlightMach.Contains(v) {
+			add(field, BoundFlightMach.Problem(v))
 		}
-	case !(v > 0) || math.IsInf(v, 0):
-		add(field, fmt.Sprintf("%g m/s must be a positive, finite speed", v))
+	case !BoundFlightSpeed.Contains(v):
+		add(field, BoundFlightSpeed.Problem(v))
 	}
 	return facilities.Invalid("invalid flight condition", fe)
 }

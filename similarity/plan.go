@@ -2,7 +2,6 @@ package similarity
 
 import (
 	"fmt"
-	"math"
 	"sort"
 
 	"scalematch/facilities"
@@ -60,8 +59,8 @@ func (m *Model) Validate() error {
 		add("scale", "give only one of scale, scale_min/scale_max and scales")
 	}
 	check := func(field string, v float64) {
-		if !(v > 0 && v <= maxScale) {
-			add(field, fmt.Sprintf("scale %g is outside (0, %g]", v, maxScale))
+		if !BoundScale.Contains(v) {
+			add(field, "scale "+BoundScale.Problem(v))
 		}
 	}
 	if m.Scale != nil {
@@ -138,8 +137,8 @@ func (o *Objective) Validate() error {
 		switch {
 		case !known(g):
 			add("weights."+g, fmt.Sprintf("unknown group %q: want reynolds, mach or froude", g))
-		case !(w >= 0) || math.IsInf(w, 0):
-			add("weights."+g, fmt.Sprintf("weight %g must be a finite number ≥ 0", w))
+		case !BoundWeight.Contains(w):
+			add("weights."+g, "weight "+BoundWeight.Problem(w))
 		case w > 0:
 			positive = true
 		}
