@@ -32,7 +32,7 @@ func (s *Server) getAtmosphere(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	c.JSON(http.StatusOK, st)
+	s.answer(c, http.StatusOK, st)
 }
 
 // atmosphereQuery reads the atmosphere query parameters through get (the query's

@@ -3,6 +3,7 @@ package api
 import (
 	"encoding/json"
 	"fmt"
+	"net/http"
 	"runtime"
 	"sync"
 	"time"
@@ -97,7 +98,7 @@ func (s *Server) postPlanBatch(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	writeJSON(c, body)
+	s.answerBytes(c, http.StatusOK, "application/json; charset=utf-8", body)
 }
 
 // batchJSON writes {"results": [...]} with each plan's bytes as they are: they are

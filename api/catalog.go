@@ -71,7 +71,7 @@ func (s *Server) listFacilities(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	c.JSON(http.StatusOK, FacilityList{Facilities: fs})
+	s.answer(c, http.StatusOK, FacilityList{Facilities: fs})
 }
 
 // getFacility answers GET /v1/facilities/{id}.
@@ -92,7 +92,7 @@ func (s *Server) getFacility(c *gin.Context) {
 		return
 	}
 	c.Header("ETag", etag(f.Version))
-	c.JSON(http.StatusOK, f)
+	s.answer(c, http.StatusOK, f)
 }
 
 // getFacilityVersions answers GET /v1/facilities/{id}/versions.
@@ -112,7 +112,7 @@ func (s *Server) getFacilityVersions(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	c.JSON(http.StatusOK, FacilityHistory{ID: id, Versions: vs})
+	s.answer(c, http.StatusOK, FacilityHistory{ID: id, Versions: vs})
 }
 
 // createFacility answers POST /v1/facilities.
@@ -154,7 +154,7 @@ func (s *Server) createFacility(c *gin.Context) {
 	}
 	c.Header("ETag", etag(out.Version))
 	c.Header("Location", "/v1/facilities/"+out.ID)
-	c.JSON(http.StatusCreated, out)
+	s.answer(c, http.StatusCreated, out)
 }
 
 // updateFacility answers PUT /v1/facilities/{id}.
@@ -224,7 +224,7 @@ func (s *Server) updateFacility(c *gin.Context) {
 		return
 	}
 	c.Header("ETag", etag(out.Version))
-	c.JSON(http.StatusOK, out)
+	s.answer(c, http.StatusOK, out)
 }
 
 // deleteFacility answers DELETE /v1/facilities/{id}.
@@ -307,7 +307,7 @@ func (s *Server) getPlan(c *gin.Context) {
 			c.Header(HeaderFacilityCurrentVersion, cur)
 		}
 	}
-	writeJSON(c, body)
+	s.answerBytes(c, http.StatusOK, "application/json; charset=utf-8", body)
 }
 
 // facilityChange compares a stored plan's facility version with the catalog's

@@ -106,5 +106,5 @@ func (s *Server) writeChart(c *gin.Context, ch *charts.Chart, f charts.Format) {
 	c.Header("Content-Length", strconv.Itoa(len(b)))
 	c.Header("Vary", "Accept")
 	c.Header(HeaderCaution, ch.Footer)
-	c.Data(http.StatusOK, f.ContentType(), b)
+	s.answerBytes(c, http.StatusOK, f.ContentType(), b)
 }

@@ -199,22 +199,7 @@ func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // checkArticle adds the problems of the article's geometry and estimate to fe.
 func checkArticle(a *similarity.Article, fe *fieldErrors) {
-	pos := func(field string, v float64, unit string) {
-		if !(v > 0) || math.IsInf(v, 0) {
-			fe.add("article."+field, "%g: must be a positive, finite %s", v, unit)
-		}
-	}
-	pos("reference_length", a.ReferenceLength, "length in m")
-	pos("reference_area", a.ReferenceArea, "area in m²")
-	pos("span", a.Span, "length in m")
-	pos("frontal_area", a.FrontalArea, "area in m²")
-	pos("wetted_area", a.WettedArea, "area in m²")
-	if !(a.Length >= 0) || math.IsInf(a.Length, 0) {
-		fe.add("article.length", "%g: must be 0 (unknown) or a positive length in m", a.Length)
-	}
-	if !(a.FormFactor >= 0) || math.IsInf(a.FormFactor, 0) {
-		fe.add("article.form_factor", "%g: must be 0 (taken as 1) or positive", a.FormFactor)
-	}
+	*fe = append(*fe, similarity.CheckArticle(a)...)
 	*fe = append(*fe, a.FrictionFieldErrors()...)
 	if err := a.Aero.Validate(); err != nil {
 		fe.merge("", err)
@@ -224,16 +209,16 @@ func checkArticle(a *similarity.Article, fe *fieldErrors) {
 // checkInstallation adds the problems of an installation in facility f (nil when
 // unresolved) to fe.
 func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *fieldErrors) {
-	if !(in.ModelMass >= 0) || math.IsInf(in.ModelMass, 0) {
-		fe.add("installation.model_mass", "%g: must be 0 (weight left out) or a positive mass in kg", in.ModelMass)
+	if msg := facilities.BoundModelMass.Problem(in.ModelMass); msg != "" {
+		fe.add("installation.model_mass", "%s (0: weight left out)", msg)
 	}
 	for _, o := range []struct {
 		name string
 		v    float64
 	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
 		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
-		if !isFinite(o.v) || math.Abs(o.v) > 100 {
-			fe.add("installation."+o.name, "%g: must be a finite length in m, at most 100 m either way", o.v)
+		if msg := facilities.BoundOffset.Problem(o.v); msg != "" {
+			fe.add("installation."+o.name, "%s", msg)
 		}
 	}
 	if f == nil || in.BalanceID == "" {
@@ -378,7 +363,28 @@ func (pp *preparedPlan) plan() (*PlanResponse, error) {
 	}
 	out.ReynoldsEffects = &re
 	out.ID = pp.id
+	if err := checkFinite(out, planInputs); err != nil {
+		return nil, err
+	}
 	return out, nil
+}
+
+// planInputs names the request field that feeds each top-level field of a plan
+// answer, for checkFinite.
+func planInputs(top string) string {
+	switch top {
+	case "flight", "mismatch":
+		return "flight"
+	case "model", "reynolds_effects":
+		return "article"
+	case "loads":
+		return "installation"
+	case "schedule":
+		return "facility.operations"
+	case "corrections":
+		return "facility.test_section"
+	}
+	return "facility"
 }
 
 // appendCautions adds the cautions of facility f and its load reports

@@ -32,7 +32,7 @@ func (s *Server) postConditions(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	c.JSON(http.StatusOK, resp)
+	s.answer(c, http.StatusOK, resp)
 }
 
 // Conditions computes the test-section state of a facility at given settings, with
@@ -61,7 +61,11 @@ func (p *Planner) Conditions(ctx context.Context, req *ConditionsRequest) (*Cond
 	if w == nil {
 		w = []string{}
 	}
-	return &ConditionsResponse{State: st, Violations: f.Violations(st), Warnings: w, Cautions: appendCautions(nil, f)}, nil
+	out := &ConditionsResponse{State: st, Violations: f.Violations(st), Warnings: w, Cautions: appendCautions(nil, f)}
+	if err := checkFinite(out, conditionsInputs); err != nil {
+		return nil, err
+	}
+	return out, nil
 }
 
 // notFoundOrFail sorts the error of a facility lookup: nil stays nil; a not-found is
@@ -103,20 +107,32 @@ func settingOf(f *facilities.Facility, ts TestSettings, prefix string, fe *field
 		fe.add(joinPath(prefix, "mach"), "a water facility takes speed (m/s), not mach")
 		ok = false
 	case ts.Mach != nil:
-		if !(*ts.Mach > 0) {
-			fe.add(joinPath(prefix, "mach"), "%g: must be above 0 and at most %g", *ts.Mach, facilities.MaxSettingMach)
+		if msg := BoundSettingMach.Problem(*ts.Mach); msg != "" {
+			fe.add(joinPath(prefix, "mach"), "%s", msg)
 			ok = false
 		}
 		set.Mach = *ts.Mach
 	default:
-		if !(*ts.Speed > 0) {
-			fe.add(joinPath(prefix, "speed"), "%g m/s: must be above 0 m/s", *ts.Speed)
+		if msg := BoundSettingSpeed.Problem(*ts.Speed); msg != "" {
+			fe.add(joinPath(prefix, "speed"), "%s", msg)
 			ok = false
 		}
 		set.Speed = *ts.Speed
 	}
+	tBound := facilities.BoundStagnationTemperature
+	if f != nil {
+		tBound = f.Medium.TemperatureBound()
+	}
 	stag := func(v *float64, r func() facilities.Range, name, unit string) float64 {
 		if v != nil {
+			b := facilities.BoundStagnationPressure
+			if name == "stagnation_temperature" {
+				b = tBound
+			}
+			if msg := b.Problem(*v); msg != "" {
+				fe.add(joinPath(prefix, name), "%s", msg)
+				ok = false
+			}
 			return *v
 		}
 		if f == nil {
@@ -138,4 +154,15 @@ func settingOf(f *facilities.Facility, ts TestSettings, prefix string, fe *field
 		ok = false
 	}
 	return set, ok
+}
+
+// conditionsInputs names the setting that feeds each field of a test-section
+// state, for checkFinite: the temperature the speed of sound and viscosity, the
+// pressure the rest.
+func conditionsInputs(top string) string {
+	switch top {
+	case "static_temperature", "speed_of_sound", "viscosity", "speed":
+		return "stagnation_temperature"
+	}
+	return "stagnation_pressure"
 }

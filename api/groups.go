@@ -30,7 +30,7 @@ func (s *Server) postGroups(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	c.JSON(http.StatusOK, resp)
+	s.answer(c, http.StatusOK, resp)
 }
 
 // Groups reads each variable's unit or dimensions and returns its dimensionless

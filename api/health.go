@@ -52,7 +52,7 @@ func (s *Server) metricsHandler() gin.HandlerFunc {
 //	@Success		200	{object}	Health
 //	@Router			/healthz [get]
 func (s *Server) healthz(c *gin.Context) {
-	c.JSON(http.StatusOK, Health{Status: "ok"})
+	s.answer(c, http.StatusOK, Health{Status: "ok"})
 }
 
 // readyz says whether the store answers.
@@ -76,7 +76,7 @@ func (s *Server) readyz(c *gin.Context) {
 		s.writeProblem(c, kindUnavailable.problem(c, detail))
 		return
 	}
-	c.JSON(http.StatusOK, Health{Status: "ready", Store: "ok"})
+	s.answer(c, http.StatusOK, Health{Status: "ready", Store: "ok"})
 }
 
 // promLogger passes promhttp's errors to the service's log.

@@ -36,7 +36,7 @@ func (s *Server) postLoads(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	c.JSON(http.StatusOK, resp)
+	s.answer(c, http.StatusOK, resp)
 }
 
 // Loads checks the balance loads of a model of a given scale at given test
@@ -57,8 +57,8 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 	switch sc := req.Model.Scale; {
 	case sc == nil:
 		fe.add("model.scale", "required: the model's scale, a number or a ratio such as \"1:16\"")
-	case !(*sc > 0 && *sc <= 100):
-		fe.add("model.scale", "scale %g is outside (0, 100]", *sc)
+	case !similarity.BoundScale.Contains(*sc):
+		fe.add("model.scale", "scale %s", similarity.BoundScale.Problem(*sc))
 	}
 	checkInstallation(&req.Installation, f, &fe)
 	if f != nil && len(f.Balances) == 0 {
@@ -149,7 +149,26 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 		reports = []facilities.LoadReport{*out.Loads.One}
 	}
 	out.Cautions = appendCautions(nil, f, reports...)
+	if err := checkFinite(out, loadsInputs); err != nil {
+		return nil, err
+	}
 	return out, nil
+}
+
+// loadsInputs names the request field that feeds each top-level field of a load
+// check's answer, for checkFinite.
+func loadsInputs(top string) string {
+	switch top {
+	case "flight", "mismatch":
+		return "flight"
+	case "model":
+		return "model.scale"
+	case "loads":
+		return "installation"
+	case "corrections":
+		return "facility.test_section"
+	}
+	return "test"
 }
 
 // overloadWarning says that a balance would be loaded beyond its allowed load

@@ -30,7 +30,7 @@ func (s *Server) registerDocs() {
 //	@Success		200	{object}	object
 //	@Router			/openapi.json [get]
 func (s *Server) openAPI(c *gin.Context) {
-	c.Data(http.StatusOK, "application/json", docs.OpenAPI)
+	s.answerBytes(c, http.StatusOK, "application/json", docs.OpenAPI)
 }
 
 // docs serves a browsable page of the OpenAPI document.
@@ -43,5 +43,5 @@ func (s *Server) openAPI(c *gin.Context) {
 //	@Router			/docs/ [get]
 func (s *Server) docs(c *gin.Context) {
 	c.Header("Content-Security-Policy", "default-src 'self'; style-src 'self' 'unsafe-inline'; script-src 'self' 'unsafe-inline'")
-	c.Data(http.StatusOK, "text/html; charset=utf-8", docsPage)
+	s.answerBytes(c, http.StatusOK, "text/html; charset=utf-8", docsPage)
 }

@@ -50,7 +50,7 @@ func newFacilityCache(recheck time.Duration) *facilityCache {
 func (fc *facilityCache) get(ctx context.Context, c facilities.Catalog, id string) (facilities.Facility, error) {
 	vr, ok := c.(facilities.VersionReader)
 	if fc == nil || !ok {
-		return c.Facility(ctx, id)
+		return checkedFacility(c.Facility(ctx, id))
 	}
 	fc.mu.RLock()
 	e, ok := fc.m[id]
@@ -64,7 +64,7 @@ func (fc *facilityCache) get(ctx context.Context, c facilities.Catalog, id strin
 		return facilities.Facility{}, err
 	}
 	if !ok || e.f.Version != v {
-		if e.f, err = c.Facility(ctx, id); err != nil {
+		if e.f, err = checkedFacility(c.Facility(ctx, id)); err != nil {
 			return facilities.Facility{}, err
 		}
 	}
@@ -77,6 +77,19 @@ func (fc *facilityCache) get(ctx context.Context, c facilities.Catalog, id strin
 	}
 	fc.mu.Unlock()
 	return e.f, nil
+}
+
+// checkedFacility passes on a catalog read, refusing a record that Validate
+// refuses (stored before its fields had their present ranges) with
+// facilities.StoredRecordInvalid.
+func checkedFacility(f facilities.Facility, err error) (facilities.Facility, error) {
+	if err != nil {
+		return f, err
+	}
+	if verr := f.Validate(); verr != nil {
+		return facilities.Facility{}, facilities.StoredRecordInvalid(f, verr)
+	}
+	return f, nil
 }
 
 // forget drops facility id, so that the next lookup asks the catalog; the

@@ -3,7 +3,6 @@ package api
 import (
 	"context"
 	"net/http"
-	"strconv"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -40,7 +39,7 @@ func (s *Server) postPlan(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	writeJSON(c, body)
+	s.answerBytes(c, http.StatusOK, "application/json; charset=utf-8", body)
 }
 
 // planAnnouncer is a catalog whose group commits gather more plans when told
@@ -48,14 +47,6 @@ func (s *Server) postPlan(c *gin.Context) {
 // before decoding the request, so that concurrent requests share one commit.
 type planAnnouncer interface {
 	ExpectPlan(ctx context.Context) (context.Context, func())
-}
-
-// writeJSON answers 200 with body, JSON the handler has encoded, and its
-// Content-Length: a body larger than net/http's buffer would otherwise go out
-// chunked, in more writes.
-func writeJSON(c *gin.Context, body []byte) {
-	c.Header("Content-Length", strconv.Itoa(len(body)))
-	c.Data(http.StatusOK, "application/json; charset=utf-8", body)
 }
 
 // timedPlan plans req, stores it, and records the planner's time in the metrics.

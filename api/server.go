@@ -91,7 +91,7 @@ func New(cfg Config) (*Server, error) {
 	e.ContextWithFallback = true
 	s := &Server{cfg: cfg, engine: e, log: cfg.Logger, metrics: m,
 		facilities: newFacilityCache(recheck(cfg.FacilityRecheck)), plans: newStoredPlans(storedPlanBytes)}
-	e.Use(s.requestID, s.observe, s.recoverPanic, s.limitBody)
+	e.Use(s.requestID, s.observe, s.recoverPanic, s.requireBody, s.limitBody)
 	e.NoRoute(s.noRoute)
 	e.NoMethod(s.noMethod)
 	s.registerOperations()

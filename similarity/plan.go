@@ -2,6 +2,7 @@ package similarity
 
 import (
 	"fmt"
+	"math"
 	"sort"
 
 	"scalematch/facilities"

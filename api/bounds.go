@@ -1,0 +1,34 @@
+package api
+
+import (
+	"maps"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
+)
+
+// Documented ranges of the test settings of /v1/conditions and /v1/loads.
+var (
+	// BoundSettingMach bounds a test setting's Mach number.
+	BoundSettingMach = facilities.Bound{Min: 1e-3, Max: facilities.MaxSettingMach}
+	// BoundSettingSpeed bounds a test setting's speed, m/s.
+	BoundSettingSpeed = facilities.Bound{Min: 1e-3, Max: facilities.MaxSpeed, Unit: "m/s"}
+)
+
+// Bounds returns the documented range of every number a request may carry, keyed
+// "schema.field" by OpenAPI schema name ("api.TestSettings.mach",
+// "facilities.TestSection.width"): the facilities', the similarity package's and
+// the API's own. docs/openapi3 writes them into the OpenAPI document as minimum
+// and maximum.
+func Bounds() map[string]facilities.Bound {
+	m := facilities.Bounds()
+	maps.Copy(m, similarity.Bounds())
+	for _, schema := range []string{"api.TestSettings", "api.ConditionsRequest"} {
+		m[schema+".mach"] = BoundSettingMach
+		m[schema+".speed"] = BoundSettingSpeed
+		m[schema+".stagnation_pressure"] = facilities.BoundStagnationPressure
+		m[schema+".stagnation_temperature"] = facilities.BoundStagnationTemperature
+	}
+	m["api.LoadsModel.scale"] = similarity.BoundScale
+	return m
+}
