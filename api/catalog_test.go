@@ -257,14 +257,14 @@ func TestCatalogCreateAndValidate(t *testing.T) {
 		t.Fatalf("create: %d Location %q ETag %q; %s", r.status, r.header.Get("Location"), r.header.Get("ETag"), r.body)
 	}
 	// Units in strings are accepted and stored in SI.
-	withUnits := strings.Replace(facilityJSON(t, "lsw-4", nil), `"max_dynamic_pressure":4500`, `"max_dynamic_pressure":"45 hPa"`, 1)
+	withUnits := strings.Replace(facilityJSON(t, "lsw-4", nil), `"max_dynamic_pressure":4100`, `"max_dynamic_pressure":"41 hPa"`, 1)
 	r = catalogCall(t, ts, http.MethodPost, "/v1/facilities", auth, withUnits)
 	if r.status != http.StatusCreated {
 		t.Fatalf("create with a unit string: %d %s", r.status, r.body)
 	}
 	var f facilities.Facility
-	if err := json.Unmarshal(r.body, &f); err != nil || f.MaxDynamicPressure == nil || *f.MaxDynamicPressure != 4500 {
-		t.Errorf("45 hPa stored as %v Pa (%v), want 4500", f.MaxDynamicPressure, err)
+	if err := json.Unmarshal(r.body, &f); err != nil || f.MaxDynamicPressure == nil || *f.MaxDynamicPressure != 4100 {
+		t.Errorf("41 hPa stored as %v Pa (%v), want 4100", f.MaxDynamicPressure, err)
 	}
 
 	tests := []struct {

@@ -7,12 +7,12 @@ import (
 	"scalematch/api"
 )
 
-// ExamplePlanner_Plan plans the Orrin J20 of the demo world at cruise (M 0.80 at
-// 12 500 m) in the transonic demo tunnel tsw-1 on balance int-b1, as POST /v1/plans
+// ExamplePlanner_Plan plans the Orrin J16 of the demo world at cruise (M 0.78 at
+// 12 000 m) in the transonic demo tunnel tsw-1 on balance int-b1, as POST /v1/plans
 // and `scalematch plan` do.
 func ExamplePlanner_Plan() {
 	var req api.PlanRequest
-	if err := api.Decode([]byte(j20Plan), &req); err != nil {
+	if err := api.Decode([]byte(j16Plan), &req); err != nil {
 		fmt.Println(err)
 		return
 	}
@@ -29,9 +29,11 @@ func ExamplePlanner_Plan() {
 	}
 	fmt.Printf("balance %s at %.4g of its rating (%s at α %g°), %.4g allowed\n", plan.Loads.BalanceID,
 		plan.Loads.MaxUtilization, plan.Loads.Limiting.Component, plan.Loads.Limiting.Alpha, plan.Loads.AllowedUtilization)
+	// The output below is a regression value (the program's own output).
+
 	// Output:
-	// scale 1:30.69, test M 0.795 at q 6e+04 Pa
-	// Re test/flight 0.1866
+	// scale 1:25.31, test M 0.775 at q 5.4e+04 Pa
+	// Re test/flight 0.1967
 	// binding balance: +0.499 % Re per 1 %
 	// binding max_dynamic_pressure: +0.499 % Re per 1 %
 	// binding stagnation_temperature_min: +1.31 % Re per 1 %

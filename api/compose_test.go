@@ -40,22 +40,22 @@ func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 		binding bool // "balance" expected among the binding limits
 		tol     float64
 	}{
-		// int-b1's axial rating (1200 N over 1.5) meets q_max = 60 kPa at a scale
+		// int-b1's axial rating (1100 N over 1.5) meets q_max = 54 kPa at a scale
 		// below the span limit: the plan sits on both.
-		{"J20 tsw-1 int-b1", func(s string) string { return s }, true, 1e-6},
+		{"J16 tsw-1 int-b1", func(s string) string { return s }, true, 1e-6},
 		// int-b2 carries the span-limited model at q_max with room to spare.
-		{"J20 tsw-1 int-b2", func(s string) string { return strings.Replace(s, `"int-b1"`, `"int-b2"`, 1) }, false, 1e-6},
-		{"J20 tsw-1 balance chosen", func(s string) string { return strings.Replace(s, `"balance_id": "int-b1", `, ``, 1) }, false, 1e-6},
-		{"J20 tsw-1 no weight", func(s string) string { return strings.Replace(s, `, "model_mass": 20`, ``, 1) }, true, 1e-6},
+		{"J16 tsw-1 int-b2", func(s string) string { return strings.Replace(s, `"int-b1"`, `"int-b2"`, 1) }, false, 1e-6},
+		{"J16 tsw-1 balance chosen", func(s string) string { return strings.Replace(s, `"balance_id": "int-b1", `, ``, 1) }, false, 1e-6},
+		{"J16 tsw-1 no weight", func(s string) string { return strings.Replace(s, `, "model_mass": 20`, ``, 1) }, true, 1e-6},
 		// In cn2-05 the span limit and q_max bind before int-k's ratings do.
-		{"J20 cn2-05 int-k", func(s string) string {
+		{"J16 cn2-05 int-k", func(s string) string {
 			return strings.NewReplacer(`"tsw-1"`, `"cn2-05"`, `"int-b1"`, `"int-k"`).Replace(s)
 		}, false, 1e-6},
 	}
 	var p api.Planner
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
-			req := decodePlan(t, tc.edit(j20Plan))
+			req := decodePlan(t, tc.edit(j16Plan))
 			resp, err := p.Plan(context.Background(), req)
 			if err != nil {
 				t.Fatal(err)
@@ -120,8 +120,8 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cn2 := strings.NewReplacer(`"tsw-1"`, `"cn2-05"`, `"int-b1"`, `"int-k"`).Replace(j20Plan)
-	missing := strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1)
+	cn2 := strings.NewReplacer(`"tsw-1"`, `"cn2-05"`, `"int-b1"`, `"int-k"`).Replace(j16Plan)
+	missing := strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1)
 	cases := []struct {
 		name  string
 		path  string
@@ -129,8 +129,8 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 		reads int64
 	}{
 		{"batch of five in two facilities and one unknown twice", "/v1/plans/batch",
-			`{"requests": [` + strings.Join([]string{j20Plan, cn2, j20Plan, missing, missing, j20Plan, cn2}, ",") + `]}`, 3},
-		{"single plan", "/v1/plans", j20Plan, 1},
+			`{"requests": [` + strings.Join([]string{j16Plan, cn2, j16Plan, missing, missing, j16Plan, cn2}, ",") + `]}`, 3},
+		{"single plan", "/v1/plans", j16Plan, 1},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {

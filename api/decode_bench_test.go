@@ -7,17 +7,17 @@ import (
 	"scalematch/api"
 )
 
-// BenchmarkDecode decodes the load test's plan request (the Orrin J20 in tsw-1, a
+// BenchmarkDecode decodes the load test's plan request (the Orrin J16 in tsw-1, a
 // 21-point α sweep, unit strings in four fields) and, for comparison, the same
 // request with every value already SI, which takes the decoder's fast path.
 func BenchmarkDecode(b *testing.B) {
-	withUnits, err := os.ReadFile("testdata/load/plan-orrin-j20-tsw-1.json")
+	withUnits, err := os.ReadFile("testdata/load/plan-orrin-j16-tsw-1.json")
 	if err != nil {
 		b.Fatal(err)
 	}
-	siOnly := []byte(`{"flight":{"altitude":12500,"mach":0.8},
-		"article":{"reference_length":2.6,"reference_area":50,"span":19,"length":20,"frontal_area":5.5,"wetted_area":290,
-		"aero":{"lift_slope":5,"zero_lift_alpha":-1.5,"cl_max":1.3,"cd_min":0.021,"cl_at_cd_min":0.15,"induced_drag_factor":0.055,"cm_zero":0.02,"cm_slope":-1.1}},
+	siOnly := []byte(`{"flight":{"altitude":12000,"mach":0.78},
+		"article":{"reference_length":2.4,"reference_area":36.5,"span":16.4,"length":19.6,"frontal_area":4.4,"wetted_area":228,
+		"aero":{"lift_slope":5,"zero_lift_alpha":-1.5,"cl_max":1.3,"cd_min":0.022,"cl_at_cd_min":0.14,"induced_drag_factor":0.057,"cm_zero":0.03,"cm_slope":-1.05}},
 		"facility_id":"tsw-1","model":{"scale_min":0.016666666666666666,"scale_max":0.1},
 		"installation":{"balance_id":"int-b1","balance_offset":{"x":0,"z":0},"model_mass":20,"cg_offset":{"x":-0.02,"z":0}},
 		"alpha":{"from":-4,"to":16,"step":1},"objective":{"priority":["mach","reynolds"],"mach_tolerance":0.005}}`)

@@ -52,7 +52,7 @@ func finiteFloats(v reflect.Value, path string) string {
 // *facilities.Error of CodeInvalid naming at least one field, leaves dst alone and
 // says the same thing when asked twice.
 func FuzzDecode(f *testing.F) {
-	if b, err := os.ReadFile("testdata/load/plan-orrin-j20-tsw-1.json"); err == nil {
+	if b, err := os.ReadFile("testdata/load/plan-orrin-j16-tsw-1.json"); err == nil {
 		f.Add(b)
 	}
 	for _, s := range []string{

@@ -18,7 +18,7 @@ import (
 	"scalematch/facilities"
 )
 
-// matrixAircraft is one aircraft of the demo world (docs: scenario.md, "Aircraft"),
+// matrixAircraft is one aircraft of the demo world (docs/demo-world.md, "Aircraft"),
 // with its geometry, aerodynamic estimate and cruise exactly as listed there.
 type matrixAircraft struct {
 	name    string
@@ -27,40 +27,41 @@ type matrixAircraft struct {
 }
 
 // matrixAircrafts are the four demo aircraft. Geometry in m and m², lift and moment
-// slopes per radian, zero-lift α in degrees (scenario.md).
+// slopes per radian, zero-lift α in degrees (docs/demo-world.md).
 var matrixAircrafts = []matrixAircraft{
-	{"Velmar T70",
-		`{"reference_length": 2.25, "reference_area": 61, "span": 27.0, "length": 27.2, "frontal_area": 9.0, "wetted_area": 380,
-		  "aero": {"lift_slope": 5.4, "zero_lift_alpha": -2.0, "cl_max": 1.5, "cd_min": 0.026, "cl_at_cd_min": 0.20,
-		           "induced_drag_factor": 0.040, "cm_zero": 0.05, "cm_slope": -0.9}}`,
-		`{"altitude": 7600, "mach": 0.50}`},
-	{"Orrin J20",
-		`{"reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0, "frontal_area": 5.5, "wetted_area": 290,
-		  "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021, "cl_at_cd_min": 0.15,
-		           "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}}`,
-		`{"altitude": 12500, "mach": 0.80}`},
-	{"Pellin P2",
-		`{"reference_length": 1.45, "reference_area": 12.5, "span": 8.8, "length": 7.4, "frontal_area": 1.9, "wetted_area": 42,
-		  "aero": {"lift_slope": 5.2, "zero_lift_alpha": -2.5, "cl_max": 1.6, "cd_min": 0.028, "cl_at_cd_min": 0.10,
-		           "induced_drag_factor": 0.050, "cm_zero": 0.04, "cm_slope": -0.8}}`,
-		`{"altitude": 2400, "true_airspeed": 72}`},
-	{"Quill U4",
-		`{"reference_length": 0.38, "reference_area": 1.25, "span": 3.3, "length": 1.9, "frontal_area": 0.09, "wetted_area": 3.6,
-		  "aero": {"lift_slope": 5.0, "zero_lift_alpha": -3.0, "cl_max": 1.3, "cd_min": 0.030, "cl_at_cd_min": 0.30,
-		           "induced_drag_factor": 0.045, "cm_zero": 0.06, "cm_slope": -0.6}}`,
-		`{"altitude": 1200, "true_airspeed": 32}`},
+	{"Velmar T64",
+		`{"reference_length": 2.10, "reference_area": 46.5, "span": 23.4, "length": 23.9, "frontal_area": 7.6, "wetted_area": 305,
+		  "aero": {"lift_slope": 5.3, "zero_lift_alpha": -2.2, "cl_max": 1.45, "cd_min": 0.027, "cl_at_cd_min": 0.18,
+		           "induced_drag_factor": 0.042, "cm_zero": 0.05, "cm_slope": -0.85}}`,
+		`{"altitude": 6100, "mach": 0.47}`},
+	{"Orrin J16",
+		`{"reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6, "frontal_area": 4.4, "wetted_area": 228,
+		  "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022, "cl_at_cd_min": 0.14,
+		           "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}}`,
+		`{"altitude": 12000, "mach": 0.78}`},
+	{"Pellin P3",
+		`{"reference_length": 1.42, "reference_area": 13.4, "span": 9.6, "length": 7.9, "frontal_area": 1.7, "wetted_area": 45,
+		  "aero": {"lift_slope": 5.1, "zero_lift_alpha": -2.4, "cl_max": 1.55, "cd_min": 0.029, "cl_at_cd_min": 0.12,
+		           "induced_drag_factor": 0.052, "cm_zero": 0.04, "cm_slope": -0.75}}`,
+		`{"altitude": 2100, "true_airspeed": 68}`},
+	{"Quill U5",
+		`{"reference_length": 0.41, "reference_area": 1.4, "span": 3.45, "length": 2.05, "frontal_area": 0.10, "wetted_area": 3.9,
+		  "aero": {"lift_slope": 4.95, "zero_lift_alpha": -2.8, "cl_max": 1.35, "cd_min": 0.031, "cl_at_cd_min": 0.28,
+		           "induced_drag_factor": 0.047, "cm_zero": 0.06, "cm_slope": -0.65}}`,
+		`{"altitude": 1000, "true_airspeed": 30}`},
 }
 
 // matrixFacility is one demo facility of the matrix with the mass of the model
 // planned in it: the same physical model mass whatever scale the planner picks
 // (facilities.Installation). The masses are hand estimates of a metric model
 // sized for each section, well inside each balance's normal rating on their own:
-// 40 kg is 392 N against ext-6c's 6000 N and int-a's 2667 N allowed; 2 kg in
-// water is 19.6 N against hyd-s's 133 N allowed (ratings over 1.5, scenario.md).
+// 40 kg is 392 N against ext-6c's 5600 N and int-a's 2400 N allowed; 2 kg in
+// water is 19.6 N against hyd-s's 120 N allowed (normal ratings over their safety
+// factor 1.5, docs/demo-world.md).
 type matrixFacility struct {
 	id       string
 	mass     float64 // kg
-	balances int     // number of balances the facility lists (scenario.md)
+	balances int     // number of balances the facility lists (docs/demo-world.md)
 	water    bool
 }
 
@@ -75,9 +76,9 @@ var matrixFacilities = []matrixFacility{
 // matrixInfeasible lists the combinations expected to answer 422. None: the
 // request leaves the scale free (model {}), down to the planner's 1:1000, and
 // every demo aircraft fits every section at a small enough scale. The largest
-// span, the Velmar T70's 27 m, needs a scale of at most 0.8 × 0.4 m / 27 m
-// = 0.0119 in wtn-04 and 0.65 × 0.5 m / 27 m = 0.0120 in cn2-05 (span rules of
-// scenario.md), both far above 1:1000; at such scales the aerodynamic loads are
+// span, the Velmar T64's 23.4 m, needs a scale of at most 0.8 × 0.45 m / 23.4 m
+// = 0.0154 in wtn-04 and 0.65 × 0.56 m / 23.4 m = 0.0156 in cn2-05 (span rules of
+// docs/demo-world.md), both far above 1:1000; at such scales the aerodynamic loads are
 // small and each model's weight alone (the masses above) stays under every
 // rating over its safety factor, so some q > 0 is always safe on the balance.
 var matrixInfeasible = map[string]bool{}
@@ -177,7 +178,7 @@ func checkMatrixReport(t *testing.T, r *facilities.LoadReport, q float64, within
 		t.Fatalf("balance %s: %d load points, want %d", r.BalanceID, len(r.Points), len(alphas))
 	}
 	if r.SafetyFactor != 1.5 || math.Abs(r.AllowedUtilization-1/1.5) > 1e-12 {
-		t.Errorf("balance %s: safety factor %g, allowed %g; every demo balance has 1.5 (scenario.md)", r.BalanceID, r.SafetyFactor, r.AllowedUtilization)
+		t.Errorf("balance %s: safety factor %g, allowed %g; every demo balance of this facility has 1.5 (docs/demo-world.md)", r.BalanceID, r.SafetyFactor, r.AllowedUtilization)
 	}
 	worst := 0.0
 	for i, p := range r.Points {
@@ -459,7 +460,7 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 // TestDemoMatrixInfeasible asks every demo aircraft in every demo facility for two
 // plans no facility can give, and checks that each is a 422 problem naming the
 // limits that conflict: a fixed model scale 2 % above the largest the test section
-// takes (the span rule or the blockage rule, whichever is tighter: scenario.md),
+// takes (the span rule or the blockage rule, whichever is tighter: docs/demo-world.md),
 // and a model so heavy that its weight alone, at α = 0, is 10 % above the normal
 // rating over the safety factor of the facility's strongest balance.
 func TestDemoMatrixInfeasible(t *testing.T) {

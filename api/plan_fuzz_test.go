@@ -19,7 +19,7 @@ import (
 // corpus under testdata/fuzz/FuzzPlanEndpoint holds valid plans in every demo
 // medium, unit strings, broken JSON, huge numbers and NaN-like strings.
 func FuzzPlanEndpoint(f *testing.F) {
-	f.Add([]byte(j20Plan))
+	f.Add([]byte(j16Plan))
 	s, err := api.New(api.Config{Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
 	if err != nil {
 		f.Fatal(err)

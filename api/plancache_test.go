@@ -83,12 +83,12 @@ func planOK(t *testing.T, ts *httptest.Server, body string) ([]byte, planHead) {
 func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 	rs, db := replicas(t, 2, -1)
 	a, b := rs[0], rs[1]
-	first, h1 := planOK(t, a, j20Plan)
+	first, h1 := planOK(t, a, j16Plan)
 	if h1.FacilityVersion != 1 {
 		t.Fatalf("first plan used tsw-1 version %d, want 1", h1.FacilityVersion)
 	}
-	again, _ := planOK(t, a, j20Plan)
-	other, _ := planOK(t, b, j20Plan)
+	again, _ := planOK(t, a, j16Plan)
+	other, _ := planOK(t, b, j16Plan)
 	if !bytes.Equal(again, first) || !bytes.Equal(other, first) {
 		t.Fatal("a repeated request was not answered byte for byte as the first")
 	}
@@ -98,13 +98,13 @@ func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	q := 40000.0 // below the 60 kPa the first plan sat on
+	q := 40000.0 // below the 54 kPa the first plan sat on
 	f.MaxDynamicPressure = &q
 	if _, err := db.UpdateFacility(ctx, f, f.Version, "test"); err != nil {
 		t.Fatal(err)
 	}
 	for name, ts := range map[string]*httptest.Server{"same replica": a, "other replica": b} {
-		_, h2 := planOK(t, ts, j20Plan)
+		_, h2 := planOK(t, ts, j16Plan)
 		if h2.FacilityVersion != 2 || h2.ID == h1.ID || h2.Test.DynamicPressure > q*(1+1e-9) {
 			t.Errorf("%s after the update: version %d id %s q %.6g Pa; want version 2, a new id, q ≤ %g Pa",
 				name, h2.FacilityVersion, h2.ID, h2.Test.DynamicPressure, q)
@@ -113,7 +113,7 @@ func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 	if err := db.DeleteFacility(ctx, "tsw-1", 2, "test"); err != nil {
 		t.Fatal(err)
 	}
-	if status, body := post(t, a, "/v1/plans", j20Plan); status != http.StatusNotFound {
+	if status, body := post(t, a, "/v1/plans", j16Plan); status != http.StatusNotFound {
 		t.Errorf("plan in a deleted facility: %d %.200s, want 404", status, body)
 	}
 }
@@ -125,9 +125,9 @@ func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 func TestFacilityRecheck(t *testing.T) {
 	rs, _ := replicas(t, 2, 0)
 	a, b := rs[0], rs[1]
-	planOK(t, a, j20Plan)
+	planOK(t, a, j16Plan)
 	asked := time.Now() // b asks for the version after this
-	planOK(t, b, j20Plan)
+	planOK(t, b, j16Plan)
 	r := catalogCall(t, a, http.MethodGet, "/v1/facilities/tsw-1", nil, "")
 	var f facilities.Facility
 	if err := json.Unmarshal(r.body, &f); err != nil {
@@ -139,14 +139,14 @@ func TestFacilityRecheck(t *testing.T) {
 	if r.status != http.StatusOK {
 		t.Fatalf("PUT: %d %s", r.status, r.body)
 	}
-	if _, h := planOK(t, a, j20Plan); h.FacilityVersion != 2 {
+	if _, h := planOK(t, a, j16Plan); h.FacilityVersion != 2 {
 		t.Errorf("the replica that made the change planned with version %d, want 2", h.FacilityVersion)
 	}
-	if _, h := planOK(t, b, j20Plan); h.FacilityVersion != 1 && time.Since(asked) < api.DefaultFacilityRecheck {
+	if _, h := planOK(t, b, j16Plan); h.FacilityVersion != 1 && time.Since(asked) < api.DefaultFacilityRecheck {
 		t.Errorf("the other replica planned with version %d within the recheck interval, want its cached 1", h.FacilityVersion)
 	}
 	time.Sleep(api.DefaultFacilityRecheck + 10*time.Millisecond)
-	if _, h := planOK(t, b, j20Plan); h.FacilityVersion != 2 {
+	if _, h := planOK(t, b, j16Plan); h.FacilityVersion != 2 {
 		t.Errorf("the other replica planned with version %d after the recheck interval, want 2", h.FacilityVersion)
 	}
 }
@@ -155,13 +155,13 @@ func TestFacilityRecheck(t *testing.T) {
 // decoding and validation still run, so a bad field is a 400 as ever.
 func TestStoredPlanStillValidated(t *testing.T) {
 	rs, _ := replicas(t, 1, 0)
-	planOK(t, rs[0], j20Plan)
+	planOK(t, rs[0], j16Plan)
 	tests := []struct {
 		name, body, field string
 	}{
-		{"unknown field", strings.Replace(j20Plan, `"alpha":`, `"alpah": 1, "alpha":`, 1), "alpah"},
-		{"bad balance", strings.Replace(j20Plan, `"int-b1"`, `"int-b9"`, 1), "installation.balance_id"},
-		{"trailing data", j20Plan + "{}", ""},
+		{"unknown field", strings.Replace(j16Plan, `"alpha":`, `"alpah": 1, "alpha":`, 1), "alpah"},
+		{"bad balance", strings.Replace(j16Plan, `"int-b1"`, `"int-b9"`, 1), "installation.balance_id"},
+		{"trailing data", j16Plan + "{}", ""},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -186,7 +186,7 @@ func TestBatchStoresEveryPlan(t *testing.T) {
 			sb.WriteByte(',')
 		}
 		mach := 0.60 + 0.005*float64(i%(n-1)) // the last repeats the first
-		sb.WriteString(strings.Replace(j20Plan, `"mach": 0.80`, fmt.Sprintf(`"mach": %.3f`, mach), 1))
+		sb.WriteString(strings.Replace(j16Plan, `"mach": 0.80`, fmt.Sprintf(`"mach": %.3f`, mach), 1))
 	}
 	sb.WriteString(`]}`)
 	status, body := post(t, rs[0], "/v1/plans/batch", sb.String())

@@ -41,14 +41,14 @@ func benchPost(b *testing.B, h http.Handler, path, body string) {
 	}
 }
 
-// BenchmarkPlanEndpoint is POST /v1/plans of the Orrin J20 in tsw-1, 21 α points,
+// BenchmarkPlanEndpoint is POST /v1/plans of the Orrin J16 in tsw-1, 21 α points,
 // through the whole handler stack (request id, metrics, decoding, planning with
 // the balance limit, loads, encoding).
 func BenchmarkPlanEndpoint(b *testing.B) {
-	benchPost(b, benchHandler(b), "/v1/plans", j20Plan)
+	benchPost(b, benchHandler(b), "/v1/plans", j16Plan)
 }
 
-// batchBody returns a batch of n plan requests: the Orrin J20 in tsw-1 at n
+// batchBody returns a batch of n plan requests: the Orrin J16 in tsw-1 at n
 // different flight Mach numbers from 0.60 to 0.89.
 func batchBody(n int) string {
 	var sb strings.Builder
@@ -58,7 +58,7 @@ func batchBody(n int) string {
 			sb.WriteByte(',')
 		}
 		mach := 0.60 + 0.29*float64(i)/float64(max(n-1, 1))
-		sb.WriteString(strings.Replace(j20Plan, `"mach": 0.80`, `"mach": `+strconvFloat(mach), 1))
+		sb.WriteString(strings.Replace(j16Plan, `"mach": 0.80`, `"mach": `+strconvFloat(mach), 1))
 	}
 	sb.WriteString(`]}`)
 	return sb.String()
@@ -112,22 +112,22 @@ func storeHandler(b *testing.B) http.Handler {
 	return s.Handler()
 }
 
-// BenchmarkPlanEndpointStore is POST /v1/plans of the Orrin J20 in tsw-1 against an
+// BenchmarkPlanEndpointStore is POST /v1/plans of the Orrin J16 in tsw-1 against an
 // SQLite catalog, as the service runs: the first request plans and stores it, every
 // later one is the same request and is answered with the stored bytes after its
 // decoding, validation and id.
 func BenchmarkPlanEndpointStore(b *testing.B) {
-	benchPost(b, storeHandler(b), "/v1/plans", j20Plan)
+	benchPost(b, storeHandler(b), "/v1/plans", j16Plan)
 }
 
 // BenchmarkPlannerPlan is the composition behind POST /v1/plans without HTTP,
-// decoding or encoding: the Orrin J20 in tsw-1 with a 21-point α sweep on balance
+// decoding or encoding: the Orrin J16 in tsw-1 with a 21-point α sweep on balance
 // int-b1 of the demo catalog (validation, the load limit from the real balance,
 // the planner, wall corrections, balance loads, schedule, Reynolds effects, id).
 // Goal: under 300 µs a plan.
 func BenchmarkPlannerPlan(b *testing.B) {
 	var req api.PlanRequest
-	if err := api.Decode([]byte(j20Plan), &req); err != nil {
+	if err := api.Decode([]byte(j16Plan), &req); err != nil {
 		b.Fatal(err)
 	}
 	var p api.Planner

@@ -17,13 +17,13 @@ import (
 	"scalematch/facilities"
 )
 
-// j20Plan is the Orrin J20 of the demo world (docs: scenario) in tsw-1 at cruise.
-const j20Plan = `{
-  "flight": {"altitude": "12500 m", "mach": 0.80},
-  "article": {"reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0,
-    "frontal_area": 5.5, "wetted_area": 290,
-    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021,
-      "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}},
+// j16Plan is the Orrin J16 of the demo world (docs/demo-world.md) in tsw-1 at cruise.
+const j16Plan = `{
+  "flight": {"altitude": "12000 m", "mach": 0.78},
+  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6,
+    "frontal_area": 4.4, "wetted_area": 228,
+    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
+      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
   "facility_id": "tsw-1",
   "model": {"scale_min": 0.01, "scale_max": 0.5},
   "installation": {"balance_id": "int-b1", "model_mass": 20},
@@ -83,18 +83,18 @@ func TestPlanErrors(t *testing.T) {
 		limits []string
 	}{
 		{"many bad fields at once",
-			strings.Replace(strings.Replace(strings.Replace(j20Plan, `"mach": 0.80`, `"mach": -1`, 1),
-				`"span": 19.0`, `"span": "19 kg"`, 1), `"step": 1`, `"step": 0`, 1),
+			strings.Replace(strings.Replace(strings.Replace(j16Plan, `"mach": 0.78`, `"mach": -1`, 1),
+				`"span": 16.4`, `"span": "19 kg"`, 1), `"step": 1`, `"step": 0`, 1),
 			400, []string{"article.span"}, nil},
 		{"validation after decoding lists every field",
-			strings.Replace(strings.Replace(j20Plan, `"mach": 0.80`, `"mach": -1`, 1), `"step": 1`, `"step": 0`, 1),
+			strings.Replace(strings.Replace(j16Plan, `"mach": 0.78`, `"mach": -1`, 1), `"step": 1`, `"step": 0`, 1),
 			400, []string{"flight.mach", "alpha.step"}, nil},
-		{"unknown field", strings.Replace(j20Plan, `"facility_id"`, `"facilty_id"`, 1), 400, []string{"facilty_id"}, nil},
-		{"unknown friction settings", strings.Replace(j20Plan, `"span": 19.0`, `"span": 19.0, "friction_line": "schoenherr", "full_scale_boundary_layer": "laminar"`, 1),
+		{"unknown field", strings.Replace(j16Plan, `"facility_id"`, `"facilty_id"`, 1), 400, []string{"facilty_id"}, nil},
+		{"unknown friction settings", strings.Replace(j16Plan, `"span": 16.4`, `"span": 16.4, "friction_line": "schoenherr", "full_scale_boundary_layer": "laminar"`, 1),
 			400, []string{"article.friction_line", "article.full_scale_boundary_layer"}, nil},
-		{"unknown facility", strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1), 404, nil, nil},
-		{"unknown balance", strings.Replace(j20Plan, `"int-b1"`, `"int-zz"`, 1), 400, []string{"installation.balance_id"}, nil},
-		{"infeasible: the model cannot fit", strings.Replace(j20Plan, `"scale_min": 0.01, "scale_max": 0.5`, `"scale": 0.5`, 1), 422, nil, nil},
+		{"unknown facility", strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1), 404, nil, nil},
+		{"unknown balance", strings.Replace(j16Plan, `"int-b1"`, `"int-zz"`, 1), 400, []string{"installation.balance_id"}, nil},
+		{"infeasible: the model cannot fit", strings.Replace(j16Plan, `"scale_min": 0.01, "scale_max": 0.5`, `"scale": 0.5`, 1), 422, nil, nil},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -130,9 +130,9 @@ func contains(list []string, s string) bool {
 
 func TestPlanRepeatable(t *testing.T) {
 	ts := newServer(t)
-	c1, b1 := post(t, ts, "/v1/plans", j20Plan)
+	c1, b1 := post(t, ts, "/v1/plans", j16Plan)
 	// The same request written differently (unit strings, key order) is the same plan.
-	alt := strings.Replace(j20Plan, `"reference_length": 2.6`, `"reference_length": "260 cm"`, 1)
+	alt := strings.Replace(j16Plan, `"reference_length": 2.4`, `"reference_length": "240 cm"`, 1)
 	c2, b2 := post(t, ts, "/v1/plans", alt)
 	if c1 != 200 || c2 != 200 {
 		t.Fatalf("status %d, %d", c1, c2)
@@ -152,8 +152,8 @@ func TestPlanTooLarge(t *testing.T) {
 
 func TestBatch(t *testing.T) {
 	ts := newServer(t)
-	bad := strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1)
-	code, b := post(t, ts, "/v1/plans/batch", `{"requests": [`+j20Plan+`,`+bad+`,`+j20Plan+`,{"flight": 3}]}`)
+	bad := strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1)
+	code, b := post(t, ts, "/v1/plans/batch", `{"requests": [`+j16Plan+`,`+bad+`,`+j16Plan+`,{"flight": 3}]}`)
 	if code != 200 {
 		t.Fatalf("status %d: %s", code, b)
 	}
@@ -170,7 +170,7 @@ func TestBatch(t *testing.T) {
 	if len(out.Results) != len(want) {
 		t.Fatalf("%d results, want %d", len(out.Results), len(want))
 	}
-	_, single := post(t, ts, "/v1/plans", j20Plan)
+	_, single := post(t, ts, "/v1/plans", j16Plan)
 	for i, r := range out.Results {
 		switch {
 		case want[i] == 200 && (r.Plan == nil || r.Error != nil):
@@ -189,16 +189,16 @@ func TestBatch(t *testing.T) {
 	}
 }
 
-const j20Loads = `{
-  "article": {"reference_length": 2.6, "reference_area": 50, "span": 19.0,
-    "frontal_area": 5.5, "wetted_area": 290,
-    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021,
-      "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}},
+const j16Loads = `{
+  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4,
+    "frontal_area": 4.4, "wetted_area": 228,
+    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
+      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
   "facility_id": "tsw-1",
   "model": {"scale": "1:30"},
   "installation": {BALANCE "model_mass": 20},
   "alpha": {"from": -4, "to": 16, "step": 2},
-  "test": {"mach": 0.8, "stagnation_pressure": "1.5 bar", "stagnation_temperature": 310}
+  "test": {"mach": 0.78, "stagnation_pressure": "1.5 bar", "stagnation_temperature": 310}
 }`
 
 func TestLoadsObjectOrList(t *testing.T) {
@@ -213,7 +213,7 @@ func TestLoadsObjectOrList(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
-			code, b := post(t, ts, "/v1/loads", strings.Replace(j20Loads, "BALANCE", tc.balance, 1))
+			code, b := post(t, ts, "/v1/loads", strings.Replace(j16Loads, "BALANCE", tc.balance, 1))
 			if code != 200 {
 				t.Fatalf("status %d: %s", code, b)
 			}

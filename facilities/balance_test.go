@@ -13,14 +13,15 @@ import (
 
 func ptr(v float64) *float64 { return &v }
 
-// sixComponent is a balance like ext-6c of the demo world, with its gauge row.
+// sixComponent is a six-component balance invented for these tests (not a demo
+// balance), with a gauge row.
 func sixComponent() facilities.Balance {
 	return facilities.Balance{
 		ID: "six",
-		Limits: facilities.Limits{Normal: ptr(9000), Axial: ptr(1500), Side: ptr(4000),
-			RollingMoment: ptr(900), PitchingMoment: ptr(1200), YawingMoment: ptr(900)},
+		Limits: facilities.Limits{Normal: ptr(10000), Axial: ptr(1600), Side: ptr(4400),
+			RollingMoment: ptr(950), PitchingMoment: ptr(1250), YawingMoment: ptr(950)},
 		Combined: []facilities.CombinedLimit{{Name: "forward gauge",
-			Coefficients: map[string]float64{"normal": 0.5, "pitching_moment": 4.0}, Limit: 6000}},
+			Coefficients: map[string]float64{"normal": 0.5, "pitching_moment": 4.0}, Limit: 5800}},
 		SafetyFactor: 1.5,
 	}
 }
@@ -140,8 +141,8 @@ func TestLoadsSigns(t *testing.T) {
 	}
 }
 
-// TestGaugeRowBinds: N = 6000 N (67 % of 9000) and m = 800 N·m (67 % of 1200), but
-// the forward gauge 0.5·N + 4·m = 3000 + 3200 = 6200 N against 6000 N is 103 %.
+// TestGaugeRowBinds: N = 6000 N (60 % of 10000) and m = 800 N·m (64 % of 1250), but
+// the forward gauge 0.5·N + 4·m = 3000 + 3200 = 6200 N against 5800 N is 107 %.
 func TestGaugeRowBinds(t *testing.T) {
 	b := sixComponent()
 	lc := facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
@@ -153,14 +154,14 @@ func TestGaugeRowBinds(t *testing.T) {
 	if r.Limiting.Component != "forward gauge" {
 		t.Errorf("limiting = %q, want the forward gauge", r.Limiting.Component)
 	}
-	if want := 6200.0 / 6000; math.Abs(r.MaxUtilization-want) > 1e-12 {
+	if want := 6200.0 / 5800; math.Abs(r.MaxUtilization-want) > 1e-12 {
 		t.Errorf("utilisation = %.12g, want %.12g", r.MaxUtilization, want)
 	}
 	if r.WithinLimits {
-		t.Error("within limits at 103 % of a gauge rating, want not")
+		t.Error("within limits at 107 % of a gauge rating, want not")
 	}
-	// The gauge reaches 6000/1.5 = 4000 N at q = 4000/6.2 Pa.
-	if want := 4000 / 6.2; math.Abs(r.MaxSafeDynamicPressure-want) > 1e-9 || r.MaxSafeLimiting.Component != "forward gauge" {
+	// The gauge reaches 5800/1.5 = 3866.7 N at q = 3866.7/6.2 Pa.
+	if want := 5800 / 1.5 / 6.2; math.Abs(r.MaxSafeDynamicPressure-want) > 1e-9 || r.MaxSafeLimiting.Component != "forward gauge" {
 		t.Errorf("max safe q = %.12g by %q, want %.12g by the forward gauge", r.MaxSafeDynamicPressure, r.MaxSafeLimiting.Component, want)
 	}
 }
@@ -349,7 +350,7 @@ func TestChooseBalance(t *testing.T) {
 		code    facilities.Code
 		inWords string
 	}{
-		// N ≈ 1.2·q·0.3: at q = 2000 Pa, about 730 N: int-a (4000 N) is used more and safe.
+		// N ≈ 1.2·q·0.3: at q = 2000 Pa, about 730 N: int-a (3600 N) is used more and safe.
 		{"small loads pick the finer balance", 2000, "", "int-a", "", "most heavily used"},
 		// At 9000 Pa int-a's normal rating is exceeded over its safety factor.
 		{"large loads pick the stronger balance", 9000, "", "ext-6c", "", "most heavily used"},

@@ -9,7 +9,7 @@ import (
 	"sort"
 )
 
-// demoJSON holds the demo facilities of the invented demo world (docs: scenario).
+// demoJSON holds the demo facilities of the invented demo world (docs/demo-world.md).
 //
 //go:embed demo.json
 var demoJSON []byte

@@ -98,7 +98,7 @@ func diffTree(path string, a, b any, out *[]string) {
 	}
 }
 
-// sameNumber compares two JSON numbers by value, so 4500 and 4.5e3 are equal.
+// sameNumber compares two JSON numbers by value, so 4200 and 4.2e3 are equal.
 func sameNumber(a, b json.Number) bool {
 	if a == b {
 		return true

@@ -24,7 +24,7 @@ func TestScheduleTest(t *testing.T) {
 		want: facilities.Schedule{Points: 21, Runs: 1, Hours: 17.0 / 60},
 	}, {
 		// 3 β runs of 21 points: 63 points = 21 min, 30 min of runs; from rest
-		// (115 kPa, 288.15 K) to 300 kPa and 150 K: 30 + 240 min. 321 min = 5.35 h.
+		// (130 kPa, 288.15 K) to 300 kPa and 150 K: 30 + 240 min. 321 min = 5.35 h.
 		name: "cryogenic, three sideslip runs", facility: "cn2-05",
 		test: facilities.Test{AlphaPoints: 21, BetaValues: 3, Conditions: []facilities.Condition{{300000, 150}}},
 		want: facilities.Schedule{Points: 63, Runs: 3, PressureChanges: 1, TemperatureChanges: 1, Hours: 321.0 / 60},

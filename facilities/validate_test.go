@@ -69,13 +69,13 @@ func TestValidateBadFacilities(t *testing.T) {
 		{"no mach and no speed", "lsw-2", func(f *facilities.Facility) { f.Speed = nil }, []string{"mach"}},
 		{"water without speed", "wtn-04", func(f *facilities.Facility) { f.Speed = nil }, []string{"speed"}},
 		{"water with mach", "wtn-04", func(f *facilities.Facility) { f.Mach = &facilities.Range{Min: 0, Max: 0.01} }, []string{"mach"}},
-		{"mach reversed", "tsw-1", func(f *facilities.Facility) { f.Mach = &facilities.Range{Min: 1.15, Max: 0.2} }, []string{"mach.min"}},
+		{"mach reversed", "tsw-1", func(f *facilities.Facility) { f.Mach = &facilities.Range{Min: 1.12, Max: 0.22} }, []string{"mach.min"}},
 		{"mach above 5", "tsw-1", func(f *facilities.Facility) { f.Mach.Max = 6 }, []string{"mach.max"}},
 		{"negative speed", "lsw-2", func(f *facilities.Facility) { f.Speed.Min = -5 }, []string{"speed.min"}},
 		{"infinite speed", "lsw-2", func(f *facilities.Facility) { f.Speed.Max = math.Inf(1) }, []string{"speed.max"}},
 		{"zero pressure", "lsw-2", func(f *facilities.Facility) { f.StagnationPressure = facilities.Range{} }, []string{"stagnation_pressure.min", "stagnation_pressure.max"}},
 		{"pressure reversed", "plp-3", func(f *facilities.Facility) { f.StagnationPressure = facilities.Range{Min: 4e5, Max: 1e5} }, []string{"stagnation_pressure.min"}},
-		{"temperature reversed", "plp-3", func(f *facilities.Facility) { f.StagnationTemperature = facilities.Range{Min: 313, Max: 288} }, []string{"stagnation_temperature.min"}},
+		{"temperature reversed", "plp-3", func(f *facilities.Facility) { f.StagnationTemperature = facilities.Range{Min: 311, Max: 288} }, []string{"stagnation_temperature.min"}},
 		{"water too hot", "wtn-04", func(f *facilities.Facility) { f.StagnationTemperature.Max = 430 }, []string{"stagnation_temperature.max"}},
 		{"nitrogen below its triple point", "cn2-05", func(f *facilities.Facility) { f.StagnationTemperature.Min = 60 }, []string{"stagnation_temperature.min"}},
 		{"zero max q", "lsw-2", func(f *facilities.Facility) { f.MaxDynamicPressure = fp(0) }, []string{"max_dynamic_pressure"}},
@@ -87,19 +87,23 @@ func TestValidateBadFacilities(t *testing.T) {
 		{"balance without id", "lsw-2", func(f *facilities.Facility) { f.Balances[1].ID = "" }, []string{"balances[1].id"}},
 		{"duplicate balance id", "lsw-2", func(f *facilities.Facility) { f.Balances[1].ID = f.Balances[0].ID }, []string{"balances[1].id"}},
 		{"zero normal limit", "lsw-2", func(f *facilities.Facility) { f.Balances[1].Limits.Normal = fp(0) }, []string{"balances[1].limits.normal"}},
-		{"negative yawing moment limit", "lsw-2", func(f *facilities.Facility) { f.Balances[0].Limits.YawingMoment = fp(-900) }, []string{"balances[0].limits.yawing_moment"}},
+		{"negative yawing moment limit", "lsw-2", func(f *facilities.Facility) { f.Balances[0].Limits.YawingMoment = fp(-1) }, []string{"balances[0].limits.yawing_moment"}},
 		{"safety factor below 1", "lsw-2", func(f *facilities.Facility) { f.Balances[0].SafetyFactor = 0.9 }, []string{"balances[0].safety_factor"}},
 		{"safety factor missing", "lsw-2", func(f *facilities.Facility) { f.Balances[1].SafetyFactor = 0 }, []string{"balances[1].safety_factor"}},
 		{"combined row unknown component", "lsw-2", func(f *facilities.Facility) {
+			f.Balances[0].Combined = []facilities.CombinedLimit{gaugeRow()}
 			f.Balances[0].Combined[0].Coefficients = map[string]float64{"normal": 0.5, "pitch": 4}
 		}, []string{"balances[0].combined[0].coefficients.pitch"}},
 		{"combined row all zero", "lsw-2", func(f *facilities.Facility) {
+			f.Balances[0].Combined = []facilities.CombinedLimit{gaugeRow()}
 			f.Balances[0].Combined[0].Coefficients = map[string]float64{"normal": 0}
 		}, []string{"balances[0].combined[0].coefficients"}},
 		{"combined row no coefficients, no limit, no name", "lsw-2", func(f *facilities.Facility) {
+			f.Balances[0].Combined = []facilities.CombinedLimit{gaugeRow()}
 			f.Balances[0].Combined[0] = facilities.CombinedLimit{}
 		}, []string{"balances[0].combined[0].name", "balances[0].combined[0].coefficients", "balances[0].combined[0].limit"}},
 		{"combined rows with one name", "lsw-2", func(f *facilities.Facility) {
+			f.Balances[0].Combined = []facilities.CombinedLimit{gaugeRow()}
 			f.Balances[0].Combined = append(f.Balances[0].Combined, f.Balances[0].Combined[0])
 		}, []string{"balances[0].combined[1].name"}},
 		{"negative operations", "lsw-2", func(f *facilities.Facility) {
@@ -156,4 +160,11 @@ func TestValidateEverythingAtOnce(t *testing.T) {
 	if !slices.Equal(got, want) {
 		t.Errorf("fields\n%q\nwant\n%q", got, want)
 	}
+}
+
+// gaugeRow is a combined gauge row invented for the tests (the demo balances have
+// none): |0.5·N + 4 m⁻¹·m| ≤ 5000 N.
+func gaugeRow() facilities.CombinedLimit {
+	return facilities.CombinedLimit{Name: "gauge 1", Limit: 5000,
+		Coefficients: map[string]float64{facilities.ComponentNormal: 0.5, facilities.ComponentPitchingMoment: 4}}
 }

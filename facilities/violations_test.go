@@ -21,12 +21,12 @@ func TestViolations(t *testing.T) {
 		{"inside every limit", "tsw-1", nil, facilities.Setting{Mach: 0.8, StagnationPressure: 150000, StagnationTemperature: 310}, nil},
 		{"Mach below", "tsw-1", nil, facilities.Setting{Mach: 0.1, StagnationPressure: 150000, StagnationTemperature: 310},
 			[]string{facilities.ConstraintMachMin}},
-		// M 1.2 at 100 kPa: q = 0.7·p·M² ≈ 41 kPa, under the 60 kPa limit.
+		// M 1.2 at 100 kPa: q = 0.7·p·M² ≈ 42 kPa, under the 54 kPa limit.
 		{"Mach above", "tsw-1", nil, facilities.Setting{Mach: 1.2, StagnationPressure: 100000, StagnationTemperature: 310},
 			[]string{facilities.ConstraintMachMax}},
 		{"speed below", "lsw-2", nil, facilities.Setting{Speed: 3, StagnationPressure: 95500, StagnationTemperature: 300},
 			[]string{facilities.ConstraintSpeedMin}},
-		// 95 m/s: q ≈ ½·1.1·95² ≈ 5 kPa, also above the 4.5 kPa limit.
+		// 95 m/s: q ≈ ½·1.1·95² ≈ 5 kPa, also above the 4.1 kPa limit.
 		{"speed above", "lsw-2", nil, facilities.Setting{Speed: 95, StagnationPressure: 95500, StagnationTemperature: 300},
 			[]string{facilities.ConstraintSpeedMax, facilities.ConstraintDynamic}},
 		{"pressure below", "tsw-1", nil, facilities.Setting{Mach: 0.5, StagnationPressure: 40000, StagnationTemperature: 310},
@@ -37,21 +37,21 @@ func TestViolations(t *testing.T) {
 			[]string{facilities.ConstraintTempMin}},
 		{"temperature above", "wtn-04", nil, facilities.Setting{Speed: 1, StagnationPressure: 101000, StagnationTemperature: 310},
 			[]string{facilities.ConstraintTempMax}},
-		// M 1.1 at 220 kPa: p ≈ 103 kPa, q ≈ 87 kPa > 60 kPa.
-		{"dynamic pressure", "tsw-1", nil, facilities.Setting{Mach: 1.1, StagnationPressure: 220000, StagnationTemperature: 310},
+		// M 1.1 at 200 kPa: p ≈ 94 kPa, q ≈ 79 kPa > 54 kPa.
+		{"dynamic pressure", "tsw-1", nil, facilities.Setting{Mach: 1.1, StagnationPressure: 200000, StagnationTemperature: 310},
 			[]string{facilities.ConstraintDynamic}},
 		{"Reynolds number per metre", "tsw-1", func(f *facilities.Facility) { f.MaxReynoldsPerMeter = fp(1.5e7) },
 			facilities.Setting{Mach: 0.8, StagnationPressure: 150000, StagnationTemperature: 310},
 			[]string{facilities.ConstraintReynoldsUnit}},
-		// cn2-05 at 450 kPa: the local expansion to M 1.4 condenses below about
-		// 112 K whatever the free-stream Mach; 111 K is inside the 110 K floor. At
-		// M 0.5, q ≈ 66 kPa stays under the 80 kPa limit (at M 0.8 it would not).
-		{"condensation", "cn2-05", nil, facilities.Setting{Mach: 0.5, StagnationPressure: 450000, StagnationTemperature: 111},
+		// cn2-05 at 390 kPa: the local expansion to M 1.4 condenses below about
+		// 110 K whatever the free-stream Mach; 108 K is above the 100 K floor. At
+		// M 0.5, q ≈ 58 kPa stays under the 70 kPa limit (at M 0.8 it would not).
+		{"condensation", "cn2-05", nil, facilities.Setting{Mach: 0.5, StagnationPressure: 390000, StagnationTemperature: 108},
 			[]string{facilities.ConstraintCondensation}},
-		{"condensation, q and the temperature floor", "cn2-05", nil, facilities.Setting{Mach: 0.8, StagnationPressure: 450000, StagnationTemperature: 105},
+		{"condensation, q and the temperature floor", "cn2-05", nil, facilities.Setting{Mach: 0.8, StagnationPressure: 390000, StagnationTemperature: 98},
 			[]string{facilities.ConstraintTempMin, facilities.ConstraintDynamic, facilities.ConstraintCondensation}},
-		{"no condensation at low pressure", "cn2-05", nil, facilities.Setting{Mach: 0.8, StagnationPressure: 115000, StagnationTemperature: 110}, nil},
-		{"on the limits", "plp-3", nil, facilities.Setting{Mach: 0.33, StagnationPressure: 100000 * (1 - 1e-12), StagnationTemperature: 313}, nil},
+		{"no condensation at low pressure", "cn2-05", nil, facilities.Setting{Mach: 0.78, StagnationPressure: 130000, StagnationTemperature: 100}, nil},
+		{"on the limits", "plp-3", nil, facilities.Setting{Mach: 0.29, StagnationPressure: 100000 * (1 - 1e-12), StagnationTemperature: 311}, nil},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -95,12 +95,12 @@ func TestViolationsEncodeEmptyList(t *testing.T) {
 
 func TestViolationValues(t *testing.T) {
 	f := mustDemo(t, "tsw-1")
-	st, err := f.State(facilities.Setting{Mach: 1.1, StagnationPressure: 220000, StagnationTemperature: 310})
+	st, err := f.State(facilities.Setting{Mach: 1.1, StagnationPressure: 200000, StagnationTemperature: 310})
 	if err != nil {
 		t.Fatal(err)
 	}
 	v := f.Violations(st)
-	if len(v) != 1 || v[0].Value != st.DynamicPressure || v[0].Limit != 60000 {
-		t.Errorf("violations %+v: want one at q %g Pa against 60000 Pa", v, st.DynamicPressure)
+	if len(v) != 1 || v[0].Value != st.DynamicPressure || v[0].Limit != 54000 {
+		t.Errorf("violations %+v: want one at q %g Pa against 54000 Pa", v, st.DynamicPressure)
 	}
 }

@@ -15,7 +15,7 @@ func closedSection(w, h float64, walls string) *facilities.Facility {
 // TestWallsHandCase checks the closed-wall corrections of Barlow, Rae & Pope
 // (1999), ch. 9–10 (from memory), against a case worked by hand:
 //
-//	C = 2.7 m × 2.0 m = 5.4 m², A_frontal = 0.1 m², S = 0.5 m², M = 0.2, C_D = 0.05
+//	C = 3.6 m × 1.5 m = 5.4 m² (a section invented for this case), A_frontal = 0.1 m², S = 0.5 m², M = 0.2, C_D = 0.05
 //	A/C          = 0.1/5.4                      = 0.0046296296
 //	(1−M²)^−1.5  = 0.96^−1.5                    = 1.0631466
 //	ε_sb         = ¼·0.0046296296·1.0631466     = 0.0049219750
@@ -23,7 +23,7 @@ func closedSection(w, h float64, walls string) *facilities.Facility {
 //	ε            = 0.0061468978;  (1+ε)²        = 1.0123316
 //	Δα at C_L = 1.2: 0.125·0.5/5.4·1.2          = 0.0138889 rad
 func TestWallsHandCase(t *testing.T) {
-	f := closedSection(2.7, 2.0, facilities.WallsClosed)
+	f := closedSection(3.6, 1.5, facilities.WallsClosed)
 	w := facilities.NewWalls(f, 0.1, 0.5, 0.2)
 	cases := []struct {
 		name      string
@@ -66,7 +66,7 @@ func TestWallsKinds(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			w := facilities.NewWalls(closedSection(2.7, 2.0, c.walls), c.area, 0.5, c.mach)
+			w := facilities.NewWalls(closedSection(3.6, 1.5, c.walls), c.area, 0.5, c.mach)
 			if w.Applied != c.applied {
 				t.Errorf("applied = %v, want %v", w.Applied, c.applied)
 			}
@@ -98,7 +98,7 @@ func TestWallsFacilityDelta(t *testing.T) {
 }
 
 func TestWallsSummary(t *testing.T) {
-	w := facilities.NewWalls(closedSection(2.7, 2.0, facilities.WallsClosed), 0.1, 0.5, 0.2)
+	w := facilities.NewWalls(closedSection(3.6, 1.5, facilities.WallsClosed), 0.1, 0.5, 0.2)
 	pts := []facilities.Point{
 		{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.2, CD: 0.03}},
 		{Alpha: 10, Coefficients: facilities.Coefficients{CL: 1.2, CD: 0.08}},

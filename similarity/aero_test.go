@@ -10,19 +10,19 @@ import (
 	"scalematch/similarity"
 )
 
-// orrin is the Orrin J20 estimate of the demo world (scenario.md).
+// orrin is the Orrin J16 estimate of the demo world (docs/demo-world.md).
 func orrin() similarity.Aero {
-	return similarity.Aero{LiftSlope: 5.0, ZeroLiftAlpha: -1.5, CLMax: 1.3, CDMin: 0.021,
-		CLAtCDMin: 0.15, InducedDragFactor: 0.055, CmZero: 0.02, CmSlope: -1.1}
+	return similarity.Aero{LiftSlope: 4.9, ZeroLiftAlpha: -1.6, CLMax: 1.25, CDMin: 0.022,
+		CLAtCDMin: 0.14, InducedDragFactor: 0.057, CmZero: 0.03, CmSlope: -1.05}
 }
 
-// TestParametric works the physics.md §6 model by hand for the Orrin J20:
+// TestParametric works the physics.md §6 model by hand for the Orrin J16:
 //
-//	α = 4°:   C_L = 5.0·(5.5°·π/180) = 0.47996554;  C_D = 0.021 + 0.055·(0.47996554 − 0.15)²
-//	          = 0.026988249;  C_m = 0.02 − 1.1·(4°·π/180) = −0.056794487
-//	α = 16°:  5.0·17.5°·π/180 = 1.527 > 1.3, held: C_L = 1.3, C_D = 0.021 + 0.055·1.15²
-//	          = 0.0937375;  C_m = 0.02 − 1.1·(16°·π/180) = −0.28717795
-//	α = −20°: 5.0·(−18.5°)·π/180 = −1.614, held at −1.3
+//	α = 4°:   C_L = 4.9·(5.6°·π/180) = 0.47891835;  C_D = 0.022 + 0.057·(0.47891835 − 0.14)²
+//	          = 0.028547342;  C_m = 0.03 − 1.05·(4°·π/180) = −0.043303829
+//	α = 16°:  4.9·17.6°·π/180 = 1.505 > 1.25, held: C_L = 1.25, C_D = 0.022 + 0.057·1.11²
+//	          = 0.0922297;  C_m = 0.03 − 1.05·(16°·π/180) = −0.26321531
+//	α = −20°: 4.9·(−18.4°)·π/180 = −1.574, held at −1.25
 func TestParametric(t *testing.T) {
 	cases := []struct {
 		name    string
@@ -31,10 +31,10 @@ func TestParametric(t *testing.T) {
 		stalled bool
 		tol     float64
 	}{
-		{"linear range", 4, similarity.Coefficients{CL: 0.47996554, CD: 0.026988249, Cm: -0.056794487}, false, 1e-8},
-		{"zero lift", -1.5, similarity.Coefficients{CL: 0, CD: 0.021 + 0.055*0.15*0.15, Cm: 0.02 + 1.1*1.5*math.Pi/180}, false, 1e-12},
-		{"past the stall", 16, similarity.Coefficients{CL: 1.3, CD: 0.0937375, Cm: -0.28717795}, true, 1e-8},
-		{"negative stall", -20, similarity.Coefficients{CL: -1.3, CD: 0.021 + 0.055*1.45*1.45, Cm: 0.02 + 1.1*20*math.Pi/180}, true, 1e-12},
+		{"linear range", 4, similarity.Coefficients{CL: 0.47891835, CD: 0.028547342, Cm: -0.043303829}, false, 1e-8},
+		{"zero lift", -1.6, similarity.Coefficients{CL: 0, CD: 0.022 + 0.057*0.14*0.14, Cm: 0.03 + 1.05*1.6*math.Pi/180}, false, 1e-12},
+		{"past the stall", 16, similarity.Coefficients{CL: 1.25, CD: 0.0922297, Cm: -0.26321531}, true, 1e-8},
+		{"negative stall", -20, similarity.Coefficients{CL: -1.25, CD: 0.022 + 0.057*1.39*1.39, Cm: 0.03 + 1.05*20*math.Pi/180}, true, 1e-12},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -107,13 +107,15 @@ func TestTransitionalContinuity(t *testing.T) {
 	}
 }
 
-// orrinArticle is the Orrin J20 of the demo world with a form factor of 1.2.
-func orrinArticle() *similarity.Article {
-	return &similarity.Article{ReferenceLength: 2.6, ReferenceArea: 50, Span: 19, Length: 20,
-		FrontalArea: 5.5, WettedArea: 290, FormFactor: 1.2, Aero: orrin()}
+// frictionArticle is an aircraft invented for these tests (not a demo aircraft):
+// form factor 1.2, wetted area 145 m² on a 25 m² reference area, so
+// FF·S_wet/S_ref = 6.96; with the Orrin J16's aerodynamic estimate.
+func frictionArticle() *similarity.Article {
+	return &similarity.Article{ReferenceLength: 1.8, ReferenceArea: 25, Span: 13, Length: 14,
+		FrontalArea: 2.6, WettedArea: 145, FormFactor: 1.2, Aero: orrin()}
 }
 
-// TestReynoldsEffect: the Orrin J20 at Re 12·10⁶ in flight and a quarter of that in
+// TestReynoldsEffect: the test article at Re 12·10⁶ in flight and a quarter of that in
 // the tunnel, both at M 0.8 (turbulent factor k_t = 0.94430856, laminar factor
 // k_l = 0.99088825):
 //
@@ -121,7 +123,7 @@ func orrinArticle() *similarity.Article {
 //	C_f,test    = k_t·0.455/(log10 3e6)^2.58 − (5e5/3e6)·(k_t·0.0051057172 − k_l·0.0018780756)
 //	            = 0.0034654504 − 0.1666667·(0.0048213593 − 0.0018609655) = 0.0029720489
 //	C_f,tripped = 0.455/(log10 3e6)^2.58·k_t                            = 0.0034654504
-//	ΔC_D = (C_f,test − C_f,flight)·1.2·290/50 = 15.0856 counts; tripped 49.4264 counts
+//	ΔC_D = (C_f,test − C_f,flight)·1.2·145/25 = 15.0856 counts; tripped 49.4264 counts
 //	transition: model 5e5/3e6 = 16.7 % (> 10 %), full scale turbulent: trips
 //
 // In water (no compressibility) at Re 10⁷ full scale and 10⁶ on the model, the
@@ -133,9 +135,9 @@ func orrinArticle() *similarity.Article {
 //	ITTC 1957 chosen: C_f,flight = 0.0030,   ΔC_D = −0.0001430627·6.96 = −9.9572 counts;
 //	                  tripped 0.075/16 = 0.0046875: ΔC_D = 0.0016875·6.96 = 117.45 counts
 func TestReynoldsEffect(t *testing.T) {
-	ittc := orrinArticle()
+	ittc := frictionArticle()
 	ittc.FrictionLine = similarity.LineITTC1957
-	natural := orrinArticle()
+	natural := frictionArticle()
 	natural.FullScaleBoundaryLayer = similarity.BoundaryLayerNatural
 	cases := []struct {
 		name                      string
@@ -147,7 +149,7 @@ func TestReynoldsEffect(t *testing.T) {
 		tolCf, tolCounts          float64
 		trips                     bool
 	}{
-		{"transonic quarter Reynolds", orrinArticle(), 12e6, 0.8, 3e6, 0.8, facilities.MediumAir,
+		{"transonic quarter Reynolds", frictionArticle(), 12e6, 0.8, 3e6, 0.8, facilities.MediumAir,
 			similarity.LinePrandtlSchlichting, similarity.BoundaryLayerTurbulent,
 			0.0027553013, 0.0029720489, 15.0856, 49.4264, 1e-10, 1e-4, true},
 		// Natural transition at full scale too (transitional law at 1.2e7, M 0.8):
@@ -158,7 +160,7 @@ func TestReynoldsEffect(t *testing.T) {
 		{"natural transition at full scale", natural, 12e6, 0.8, 3e6, 0.8, facilities.MediumAir,
 			similarity.LinePrandtlSchlichting, similarity.BoundaryLayerNatural,
 			0.0026319509, 0.0029720489, 23.6708, 58.0116, 1e-10, 1e-3, true},
-		{"water, default line", orrinArticle(), 1e7, 0, 1e6, 0, facilities.MediumWater,
+		{"water, default line", frictionArticle(), 1e7, 0, 1e6, 0, facilities.MediumWater,
 			similarity.LinePrandtlSchlichting, similarity.BoundaryLayerTurbulent,
 			0.0030037131, 0.0028569373, -10.2156, 102.1063, 1e-10, 1e-3, true},
 		{"water, ITTC 1957 chosen", ittc, 1e7, 0, 1e6, 0, facilities.MediumWater,
@@ -229,20 +231,20 @@ func TestReynoldsEffectWaterTransitional(t *testing.T) {
 }
 
 func TestReynoldsEffectErrors(t *testing.T) {
-	a := orrinArticle()
+	a := frictionArticle()
 	a.WettedArea = 0
 	_, err := similarity.ReynoldsEffect(a, 1e7, 0.5, 1e6, 0.5, facilities.MediumAir)
 	if fs := fieldsOf(t, err); !contains(fs, "article.wetted_area") {
 		t.Errorf("fields %q, want article.wetted_area", fs)
 	}
-	_, err = similarity.ReynoldsEffect(orrinArticle(), math.NaN(), 0.5, 1e6, -1, facilities.MediumAir)
+	_, err = similarity.ReynoldsEffect(frictionArticle(), math.NaN(), 0.5, 1e6, -1, facilities.MediumAir)
 	if fs := fieldsOf(t, err); !contains(fs, "flight.reynolds") || !contains(fs, "test.mach") {
 		t.Errorf("fields %q, want flight.reynolds and test.mach", fs)
 	}
 }
 
 func TestReynoldsEffectSettingErrors(t *testing.T) {
-	a := orrinArticle()
+	a := frictionArticle()
 	a.FrictionLine = "schoenherr"
 	a.FullScaleBoundaryLayer = "laminar"
 	_, err := similarity.ReynoldsEffect(a, 1e7, 0.5, 1e6, 0.5, facilities.MediumAir)

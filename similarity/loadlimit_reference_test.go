@@ -37,6 +37,8 @@ type llrCase struct {
 	bind bool
 	// row, when not empty, is the rated row the plan's worst load point sits on.
 	row string
+	// edit, when not nil, changes the demo facility for the case.
+	edit func(*facilities.Facility)
 }
 
 // llrFixture is a case made ready: the facility, the resolved flight, the matrix.
@@ -53,6 +55,9 @@ func llrPrepare(t *testing.T, c *llrCase) *llrFixture {
 	if !ok {
 		t.Fatalf("no demo facility %s", c.facility)
 	}
+	if c.edit != nil {
+		c.edit(&f)
+	}
 	fl, err := c.flight.Resolve(c.art.ReferenceLength)
 	if err != nil {
 		t.Fatal(err)
@@ -68,7 +73,7 @@ func llrPrepare(t *testing.T, c *llrCase) *llrFixture {
 }
 
 // geomMax is the largest scale the test section takes: span ≤ fraction·width and
-// frontal area ≤ max blockage·section area (scenario.md), and the model's own
+// frontal area ≤ max blockage·section area (docs/demo-world.md), and the model's own
 // scale_max.
 func (x *llrFixture) geomMax() float64 {
 	f, a := x.f, x.c.art
@@ -161,8 +166,8 @@ func (x *llrFixture) evaluate(t *testing.T, s, p0, mach, t0 float64) llrPoint {
 }
 
 // better reports whether a is closer to the flight Reynolds number than b (in
-// |ln Re_test/Re_flight|), ties going to the lower dynamic pressure, as api.md's
-// priority objective orders plans at one Mach number.
+// |ln Re_test/Re_flight|), ties going to the lower dynamic pressure, as the
+// priority objective orders plans (docs/planner.md, Objectives) at one Mach number.
 func (x *llrFixture) better(a, b llrPoint) bool {
 	if !a.ok {
 		return false
@@ -343,7 +348,7 @@ func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bo
 	return rel, true
 }
 
-// llrAero is the aerodynamic estimate of a demo aircraft (scenario.md): lift slope
+// llrAero is the aerodynamic estimate of a demo aircraft (docs/demo-world.md): lift slope
 // per rad, zero-lift α in degrees, C_Lmax, C_Dmin, C_L at C_Dmin, K, C_m0, C_mα per rad.
 func llrAero(v ...float64) similarity.Aero {
 	return similarity.Aero{LiftSlope: v[0], ZeroLiftAlpha: v[1], CLMax: v[2], CDMin: v[3], CLAtCDMin: v[4],
@@ -354,35 +359,34 @@ func llrFloat(v float64) *float64 { return &v }
 
 // TestLoadLimitPlanAgainstSearch covers the named demo cases.
 func TestLoadLimitPlanAgainstSearch(t *testing.T) {
-	// Demo aircraft, full scale (scenario.md).
-	j20 := &similarity.Article{ReferenceLength: 2.6, ReferenceArea: 50, Span: 19.0, Length: 20.0, FrontalArea: 5.5, WettedArea: 290,
-		Aero: llrAero(5.0, -1.5, 1.3, 0.021, 0.15, 0.055, 0.02, -1.1)}
-	t70 := &similarity.Article{ReferenceLength: 2.25, ReferenceArea: 61, Span: 27.0, Length: 27.2, FrontalArea: 9.0, WettedArea: 380,
-		Aero: llrAero(5.4, -2.0, 1.5, 0.026, 0.20, 0.040, 0.05, -0.9)}
-	p2 := &similarity.Article{ReferenceLength: 1.45, ReferenceArea: 12.5, Span: 8.8, Length: 7.4, FrontalArea: 1.9, WettedArea: 42,
-		Aero: llrAero(5.2, -2.5, 1.6, 0.028, 0.10, 0.050, 0.04, -0.8)}
+	// Demo aircraft, full scale (docs/demo-world.md).
+	j16 := &similarity.Article{ReferenceLength: 2.4, ReferenceArea: 36.5, Span: 16.4, Length: 19.6, FrontalArea: 4.4, WettedArea: 228,
+		Aero: llrAero(4.9, -1.6, 1.25, 0.022, 0.14, 0.057, 0.03, -1.05)}
+	t64 := &similarity.Article{ReferenceLength: 2.1, ReferenceArea: 46.5, Span: 23.4, Length: 23.9, FrontalArea: 7.6, WettedArea: 305,
+		Aero: llrAero(5.3, -2.2, 1.45, 0.027, 0.18, 0.042, 0.05, -0.85)}
+	p3 := &similarity.Article{ReferenceLength: 1.42, ReferenceArea: 13.4, Span: 9.6, Length: 7.9, FrontalArea: 1.7, WettedArea: 45,
+		Aero: llrAero(5.1, -2.4, 1.55, 0.029, 0.12, 0.052, 0.04, -0.75)}
 	cases := []llrCase{
-		// int-b1's axial rating (1200 N/1.5 = 800 N) caps q on the span-limited J20
+		// int-b1's axial rating (1100 N/1.5 = 733 N) caps q on the span-limited J16
 		// at α 16°, so the balance binds (the planning example of api/ shows it
 		// binding beside q_max).
-		{name: "Orrin J20 tsw-1 int-b1", art: j20, flight: similarity.Flight{Altitude: llrFloat(12500), Mach: llrFloat(0.80)},
+		{name: "Orrin J16 tsw-1 int-b1", art: j16, flight: similarity.Flight{Altitude: llrFloat(12000), Mach: llrFloat(0.78)},
 			facility: "tsw-1", in: facilities.Installation{BalanceID: "int-b1", ModelMass: 20}, bind: true},
-		// int-c's axial rating binds on the Velmar at M 0.33 (the pressurised
+		// int-c's axial rating binds on the Velmar at M 0.29 (the pressurised
 		// tunnel's top Mach number): the plan sits on q_max and the balance.
-		{name: "Velmar T70 plp-3 int-c", art: t70, flight: similarity.Flight{Altitude: llrFloat(7600), Mach: llrFloat(0.50)},
-			facility: "plp-3", in: facilities.Installation{BalanceID: "int-c", ModelMass: 80}, bind: true},
-		// The forward gauge 0.5·N + 4 m⁻¹·m ≤ 6000 N/1.5 = 4000 N of ext-6c. With the
-		// moment reference 0.25 m ahead of the balance centre the normal force adds
-		// N·0.25 m to the pitching moment. Hand estimate at the Pellin's cruise Mach
-		// number (q ≈ 3.2 kPa) on the span-limited model (scale 0.2455, S = 0.753 m²,
-		// c = 0.356 m), at α 16° where C_L is capped at 1.6, C_D ≈ 0.14, C_m ≈ −0.18
-		// (physics.md §6, §8): N ≈ 1.58·3200·0.753 − 30 kg·g·cos 16° ≈ 3800 − 280
-		// = 3520 N (59 % of the 6000 N allowed), m ≈ −157 + 3800·0.25 ≈ 790 N·m (99 %
-		// of 800 N·m), gauge ≈ 1760 + 3170 ≈ 4930 N (123 % of 4000 N): the gauge row
-		// binds before any single component. The plan moves to the low edge of the
-		// Mach tolerance band and takes a smaller model until the gauge holds.
-		{name: "Pellin P2 lsw-2 ext-6c forward gauge", art: p2, flight: similarity.Flight{Altitude: llrFloat(2400), TrueAirspeed: llrFloat(72)},
+		{name: "Velmar T64 plp-3 int-c", art: t64, flight: similarity.Flight{Altitude: llrFloat(6100), Mach: llrFloat(0.47)},
+			facility: "plp-3", in: facilities.Installation{BalanceID: "int-c", ModelMass: 40}, bind: true},
+		// A gauge row invented for this test, added to ext-6c: 0.5·N + 4 m⁻¹·m ≤
+		// 4200 N, so at most 2800 N over the safety factor 1.5. With the moment
+		// reference 0.25 m ahead of the balance centre the normal force adds N·0.25 m
+		// to the pitching moment, and the row binds before any single component
+		// (the test asks that the plan's worst point sits on it).
+		{name: "Pellin P3 lsw-2 ext-6c forward gauge", art: p3, flight: similarity.Flight{Altitude: llrFloat(2100), TrueAirspeed: llrFloat(68)},
 			facility: "lsw-2", in: facilities.Installation{BalanceID: "ext-6c", ModelMass: 30, BalanceOffset: facilities.Offset{X: 0.25}},
+			edit: func(f *facilities.Facility) {
+				f.Balances[0].Combined = []facilities.CombinedLimit{{Name: "forward gauge",
+					Coefficients: map[string]float64{facilities.ComponentNormal: 0.5, facilities.ComponentPitchingMoment: 4}, Limit: 4200}}
+			},
 			bind: true, row: "forward gauge"},
 	}
 	for i := range cases {

@@ -18,11 +18,11 @@ func demo(t testing.TB, id string) *facilities.Facility {
 	return &f
 }
 
-// pellin is the Pellin P2 trainer of the demo world.
+// pellin is the Pellin P3 trainer of the demo world.
 func pellin() *similarity.Article {
-	return &similarity.Article{ReferenceLength: 1.45, ReferenceArea: 12.5, Span: 8.8, Length: 7.4,
-		FrontalArea: 1.9, WettedArea: 42, Aero: similarity.Aero{LiftSlope: 5.2, ZeroLiftAlpha: -2.5,
-			CLMax: 1.6, CDMin: 0.028, CLAtCDMin: 0.10, InducedDragFactor: 0.050, CmZero: 0.04, CmSlope: -0.8}}
+	return &similarity.Article{ReferenceLength: 1.42, ReferenceArea: 13.4, Span: 9.6, Length: 7.9,
+		FrontalArea: 1.7, WettedArea: 45, Aero: similarity.Aero{LiftSlope: 5.1, ZeroLiftAlpha: -2.4,
+			CLMax: 1.55, CDMin: 0.029, CLAtCDMin: 0.12, InducedDragFactor: 0.052, CmZero: 0.04, CmSlope: -0.75}}
 }
 
 var sweep = similarity.Sweep{From: -4, To: 16, Step: 1}
@@ -104,7 +104,7 @@ func TestLoadLimitCases(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// 500 kg weighs 4903 N, more than int-a's 4000 N normal rating over 1.5.
+	// 500 kg weighs 4903 N, more than int-a's 3600 N normal rating over 1.5.
 	if q := heavy.MaxDynamicPressure(0.1, st); q != 0 {
 		t.Errorf("weight over the rating: q = %g, want 0", q)
 	}

@@ -7,11 +7,11 @@ import (
 	"scalematch/similarity"
 )
 
-// benchProblem is the Orrin J20 at cruise in tsw-1, with an optional synthetic
+// benchProblem is the Orrin J16 at cruise in tsw-1, with an optional synthetic
 // balance limit (q·s² ≤ 60 N-equivalent, which binds).
 func benchProblem(b *testing.B, load similarity.LoadLimit) *similarity.Problem {
-	fs := planFlight(b, &orrinJ20, 12500, 0.8, 0)
-	return &similarity.Problem{Flight: fs, Article: &orrinJ20, Facility: planDemo(b, "tsw-1"), LoadLimit: load}
+	fs := planFlight(b, &orrinJ16, 12000, 0.78, 0)
+	return &similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: planDemo(b, "tsw-1"), LoadLimit: load}
 }
 
 // BenchmarkPlan times a full plan (search, binding gains, 41-point trade curve).
@@ -63,19 +63,19 @@ func BenchmarkReference(b *testing.B) {
 }
 
 // BenchmarkPlanWithBalance21 times what a plan request costs at the similarity
-// level with a real balance: the Orrin J20 at cruise in tsw-1 on its balance int-b1
+// level with a real balance: the Orrin J16 at cruise in tsw-1 on its balance int-b1
 // (model mass 20 kg) over a 21-point α sweep (−4° to 16°): the test matrix, the
 // load limit built from the balance's ratings, the plan, and the loads at the
 // chosen scale and test state (wall corrections and the balance check).
 // Goal: under 300 µs.
 func BenchmarkPlanWithBalance21(b *testing.B) {
 	f := planDemo(b, "tsw-1")
-	art := orrinJ20
-	// The J20's estimate as the load-test request gives it
-	// (api/testdata/load/plan-orrin-j20-tsw-1.json).
-	art.Aero = similarity.Aero{LiftSlope: 5.0, ZeroLiftAlpha: -1.5, CLMax: 1.3, CDMin: 0.021, CLAtCDMin: 0.15,
-		InducedDragFactor: 0.055, CmZero: 0.02, CmSlope: -1.1}
-	fs := planFlight(b, &art, 12500, 0.8, 0)
+	art := orrinJ16
+	// The J16's estimate as the load-test request gives it
+	// (api/testdata/load/plan-orrin-j16-tsw-1.json).
+	art.Aero = similarity.Aero{LiftSlope: 4.9, ZeroLiftAlpha: -1.6, CLMax: 1.25, CDMin: 0.022, CLAtCDMin: 0.14,
+		InducedDragFactor: 0.057, CmZero: 0.03, CmSlope: -1.05}
+	fs := planFlight(b, &art, 12000, 0.78, 0)
 	in := facilities.Installation{BalanceID: "int-b1", ModelMass: 20}
 	sweep := similarity.Sweep{From: -4, To: 16, Step: 1}
 	b.ReportAllocs()

@@ -61,20 +61,21 @@ func weightedScenario(rng *rand.Rand, i int) (*scenario, error) {
 	return sc, nil
 }
 
-// weightedSum is the weighted objective of a plan, from api.md's definition.
+// weightedSum is the weighted objective of a plan, from its definition in
+// docs/planner.md (Objectives).
 func weightedSum(sc *scenario, r *similarity.Result) float64 {
 	return objectiveKey(sc, r.Test.Reynolds, r.Test.Mach, r.Test.Froude).levels[0]
 }
 
-// quillU4 is the Quill U4 survey drone of the demo world (scenario.md), full scale.
-var quillU4 = similarity.Article{ReferenceLength: 0.38, ReferenceArea: 1.25, Span: 3.3, Length: 1.9, FrontalArea: 0.09, WettedArea: 3.6}
+// quillU5 is the Quill U5 survey drone of the demo world (docs/demo-world.md), full scale.
+var quillU5 = similarity.Article{ReferenceLength: 0.41, ReferenceArea: 1.4, Span: 3.45, Length: 2.05, FrontalArea: 0.10, WettedArea: 3.9}
 
-// waterFroudeProblem is the Quill U4 at 32 m/s at 1200 m in the water tunnel wtn-04
+// waterFroudeProblem is the Quill U5 at 30 m/s at 1000 m in the water tunnel wtn-04
 // with the weights reynolds 1, froude 4: the Froude term wants a small model, the
 // Reynolds term a large one, so the optimum scale lies inside the range.
 func waterFroudeProblem(t testing.TB) *similarity.Problem {
-	fs := planFlight(t, &quillU4, 1200, 0, 32)
-	return &similarity.Problem{Flight: fs, Article: &quillU4, Facility: planDemo(t, "wtn-04"),
+	fs := planFlight(t, &quillU5, 1000, 0, 30)
+	return &similarity.Problem{Flight: fs, Article: &quillU5, Facility: planDemo(t, "wtn-04"),
 		Objective: similarity.Objective{Weights: map[string]float64{"reynolds": 1, "froude": 4}}}
 }
 
@@ -177,7 +178,8 @@ func TestRefineLimits(t *testing.T) {
 }
 
 // TestRefinePlateau is a weighted objective whose optimum is a plateau: the Pellin
-// P2 at 72 m/s at 2400 m in plp-3 with the weight reynolds 1 alone. The flight's
+// P3 at 50 m/s at sea level (a point invented for this test) in plp-3 with the
+// weight reynolds 1 alone. The flight's
 // Reynolds number is reachable over a band of Mach numbers, so the sum is zero
 // across it and the dynamic pressure decides. With q = ½ρV² and Re/m = ρV/μ,
 //
@@ -185,20 +187,20 @@ func TestRefineLimits(t *testing.T) {
 //
 // (an identity of the definitions): at the Re/m the largest model needs, q is lowest
 // for the coldest gas at the lowest speed, so the answer is the span-limited model
-// (0.8·3.0 m / 8.8 m) at T0 = 288 K, p0 = 400 kPa, and the lowest Mach number at
+// (0.8·2.8 m / 9.6 m) at T0 = 288 K, p0 = 340 kPa, and the lowest Mach number at
 // which that setting still reaches the flight's Re/m. The structured search alone
 // lands elsewhere on the plateau, at a higher q; the refinement walks to this end.
 func TestRefinePlateau(t *testing.T) {
 	f := planDemo(t, "plp-3")
-	fs := planFlight(t, &pellinP2, 2400, 0, 72)
-	p := &similarity.Problem{Flight: fs, Article: &pellinP2, Facility: f,
+	fs := planFlight(t, &pellinP3, 0, 0, 50)
+	p := &similarity.Problem{Flight: fs, Article: &pellinP3, Facility: f,
 		Objective: similarity.Objective{Weights: map[string]float64{"reynolds": 1}}}
 	r, err := similarity.Plan(p, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	s := 0.8 * f.TestSection.Width / pellinP2.Span
-	target := fs.Reynolds / (s * pellinP2.ReferenceLength)
+	s := 0.8 * f.TestSection.Width / pellinP3.Span
+	target := fs.Reynolds / (s * pellinP3.ReferenceLength)
 	p0, t0 := f.StagnationPressure.Max, f.StagnationTemperature.Min
 	state := func(m float64) facilities.State {
 		st, err := f.State(facilities.Setting{Mach: m, StagnationPressure: p0, StagnationTemperature: t0})
@@ -253,8 +255,8 @@ func TestRefinePlateau(t *testing.T) {
 // behind the structured answer.
 func TestRefineConverges(t *testing.T) {
 	jet := func(t testing.TB) *similarity.Problem {
-		fs := planFlight(t, &orrinJ20, 12500, 0.8, 0)
-		return &similarity.Problem{Flight: fs, Article: &orrinJ20, Facility: planDemo(t, "tsw-1"),
+		fs := planFlight(t, &orrinJ16, 12000, 0.78, 0)
+		return &similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: planDemo(t, "tsw-1"),
 			Objective: similarity.Objective{Weights: map[string]float64{"reynolds": 1, "mach": 4, "froude": 0.5}}}
 	}
 	cases := []struct {
@@ -265,8 +267,8 @@ func TestRefineConverges(t *testing.T) {
 	}{
 		{"water, Froude weight 4, from 1.2 m/s and scale 0.02", waterFroudeProblem, 1.2, 0.02, 1e-6},
 		{"water, Froude weight 4, from 0.5 m/s and scale 0.09", waterFroudeProblem, 0.5, 0.09, 1e-6},
-		{"tsw-1, Orrin J20, Froude weight 0.5, from M 0.6 and scale 0.02", jet, 0.6, 0.02, 1e-6},
-		{"tsw-1, Orrin J20, Froude weight 0.5, from M 0.95 and scale 0.035", jet, 0.95, 0.035, 1e-6},
+		{"tsw-1, Orrin J16, Froude weight 0.5, from M 0.6 and scale 0.02", jet, 0.6, 0.02, 1e-6},
+		{"tsw-1, Orrin J16, Froude weight 0.5, from M 0.95 and scale 0.035", jet, 0.95, 0.035, 1e-6},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -29,7 +29,7 @@ type scenario struct {
 }
 
 // refKey is the reference planner's view of a plan's quality, computed from the
-// definitions of api.md's objectives alone.
+// definitions of the objectives alone (docs/planner.md, Objectives).
 type refKey struct {
 	levels []float64 // priority levels in order; or one weighted sum
 	lnRe   float64

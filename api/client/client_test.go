@@ -20,13 +20,13 @@ import (
 	"scalematch/similarity"
 )
 
-// j20Plan is the Orrin J20 of the demo world in tsw-1 at cruise, 21 α points.
-const j20Plan = `{
-  "flight": {"altitude": "12500 m", "mach": 0.80},
-  "article": {"reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0,
-    "frontal_area": 5.5, "wetted_area": 290,
-    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021,
-      "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}},
+// j16Plan is the Orrin J16 of the demo world in tsw-1 at cruise, 21 α points.
+const j16Plan = `{
+  "flight": {"altitude": "12000 m", "mach": 0.78},
+  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6,
+    "frontal_area": 4.4, "wetted_area": 228,
+    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
+      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
   "facility_id": "tsw-1",
   "model": {"scale_min": 0.01, "scale_max": 0.5},
   "installation": {"balance_id": "int-b1", "model_mass": 20},
@@ -82,7 +82,7 @@ func problem(t *testing.T, err error) *client.Problem {
 func TestPlanAndStoredPlan(t *testing.T) {
 	c := newClient(t)
 	ctx := context.Background()
-	p, err := c.Plan(ctx, planRequest(t, j20Plan))
+	p, err := c.Plan(ctx, planRequest(t, j16Plan))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -110,8 +110,8 @@ func TestPlanAndStoredPlan(t *testing.T) {
 
 func TestPlanBatch(t *testing.T) {
 	c := newClient(t)
-	good := planRequest(t, j20Plan)
-	bad := planRequest(t, strings.Replace(j20Plan, `"tsw-1"`, `"no-such"`, 1))
+	good := planRequest(t, j16Plan)
+	bad := planRequest(t, strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1))
 	res, err := c.PlanBatch(context.Background(), []api.PlanRequest{*good, *bad, *good})
 	if err != nil {
 		t.Fatal(err)
@@ -137,7 +137,7 @@ func TestLoads(t *testing.T) {
 	scale := 1.0 / 30
 	mach, p0, t0 := 0.8, 150000.0, 310.0
 	req := api.LoadsRequest{
-		Article:    planRequest(t, j20Plan).Article,
+		Article:    planRequest(t, j16Plan).Article,
 		FacilityID: "tsw-1",
 		Model:      api.LoadsModel{Scale: &scale},
 		Alpha:      similarity.Sweep{From: -4, To: 16, Step: 2},
@@ -314,9 +314,9 @@ func TestProblems(t *testing.T) {
 		fields []string
 		limits []string
 	}{
-		{"400 names every bad field", strings.NewReplacer(`"12500 m"`, `99000`, `"span": 19.0`, `"span": -1`).Replace(j20Plan),
+		{"400 names every bad field", strings.NewReplacer(`"12000 m"`, `99000`, `"span": 16.4`, `"span": -1`).Replace(j16Plan),
 			400, []string{"flight.altitude", "article.span"}, nil},
-		{"422 names the limits that conflict", strings.Replace(j20Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scale": 0.2}`, 1),
+		{"422 names the limits that conflict", strings.Replace(j16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scale": 0.2}`, 1),
 			422, nil, []string{facilities.ConstraintSpan}},
 	}
 	for _, tc := range cases {

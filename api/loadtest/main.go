@@ -12,8 +12,8 @@
 //
 //	go run ./api/loadtest -serve -duration 20s
 //
-// The plan request is the Orrin J20 in tsw-1 with a 21-point α sweep
-// (api/testdata/load/plan-orrin-j20-tsw-1.json; -plan names another). The duration
+// The plan request is the Orrin J16 in tsw-1 with a 21-point α sweep
+// (api/testdata/load/plan-orrin-j16-tsw-1.json; -plan names another). The duration
 // is shared evenly by three phases on the same server, which take turns in slices
 // of about half a second:
 //
@@ -78,7 +78,7 @@ func run(args []string, out io.Writer) error {
 	serve := fs.Bool("serve", false, "start a server in-process on 127.0.0.1 instead of using -url")
 	duration := fs.Duration("duration", 20*time.Second, "total run time, split evenly between plans and health checks")
 	concurrency := fs.Int("concurrency", 4, "requests in flight at once")
-	planFile := fs.String("plan", "api/testdata/load/plan-orrin-j20-tsw-1.json", "plan request body")
+	planFile := fs.String("plan", "api/testdata/load/plan-orrin-j16-tsw-1.json", "plan request body")
 	vary := fs.Bool("vary", true, "also send distinct plan requests (the flight altitude raised by 0.1 mm each)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile of the run to this file")
 	if err := fs.Parse(args); err != nil {

@@ -33,7 +33,7 @@ func TestRunInProcess(t *testing.T) {
 		t.Skip("runs a short load test")
 	}
 	var out bytes.Buffer
-	err := run([]string{"-serve", "-duration", "600ms", "-concurrency", "2", "-plan", "../testdata/load/plan-orrin-j20-tsw-1.json"}, &out)
+	err := run([]string{"-serve", "-duration", "600ms", "-concurrency", "2", "-plan", "../testdata/load/plan-orrin-j16-tsw-1.json"}, &out)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -65,8 +65,8 @@ func TestVaried(t *testing.T) {
 		err        bool
 	}{
 		{"number", `{"flight":{"altitude":11000,"mach":0.8},"x":[1]}`, []string{"11000.0001", "11000.0002"}, false},
-		{"metres", `{"flight":{"mach":0.8,"altitude":"12500 m"}}`, []string{"12500.0001", "12500.0002"}, false},
-		{"feet", `{"flight":{"altitude":"41000 ft"}}`, nil, true},
+		{"metres", `{"flight":{"mach":0.78,"altitude":"12000 m"}}`, []string{"12000.0001", "12000.0002"}, false},
+		{"feet", `{"flight":{"altitude":"39370 ft"}}`, nil, true},
 		{"pressure altitude", `{"flight":{"pressure_altitude":"11 km"}}`, nil, true},
 		{"no flight", `{"facility_id":"tsw-1"}`, nil, true},
 	}
@@ -103,7 +103,7 @@ func TestRunRefusesBadFlags(t *testing.T) {
 		{[]string{"-url", "http://192.0.2.10:8080", "-duration", "1s"}, "not a loopback address"},
 	}
 	for _, tc := range tests {
-		args := append(tc.args, "-plan", "../testdata/load/plan-orrin-j20-tsw-1.json")
+		args := append(tc.args, "-plan", "../testdata/load/plan-orrin-j16-tsw-1.json")
 		if err := run(args, &bytes.Buffer{}); err == nil || !strings.Contains(err.Error(), tc.want) {
 			t.Errorf("run(%v) = %v, want an error about %s", args, err, tc.want)
 		}

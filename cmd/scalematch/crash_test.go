@@ -91,9 +91,9 @@ func (s *crashServer) do(method, path, ifMatch, body string) (int, http.Header, 
 // planRequest is a valid plan request (the business jet of the demo world in the
 // transonic tunnel); mach varies so each writer's plans differ.
 func planRequest(mach float64) string {
-	return fmt.Sprintf(`{"flight":{"altitude":"12500 m","mach":%.4f},
-"article":{"reference_length":2.6,"reference_area":50,"span":19,"frontal_area":5.5,"wetted_area":290,"form_factor":1.2,
-"aero":{"lift_slope":5.0,"zero_lift_alpha":-1.5,"cl_max":1.3,"cd_min":0.021,"cl_at_cd_min":0.15,"induced_drag_factor":0.055,"cm_zero":0.02,"cm_slope":-1.1}},
+	return fmt.Sprintf(`{"flight":{"altitude":"12000 m","mach":%.4f},
+"article":{"reference_length":2.4,"reference_area":36.5,"span":16.4,"frontal_area":4.4,"wetted_area":228,"form_factor":1.2,
+"aero":{"lift_slope":4.9,"zero_lift_alpha":-1.6,"cl_max":1.25,"cd_min":0.022,"cl_at_cd_min":0.14,"induced_drag_factor":0.057,"cm_zero":0.03,"cm_slope":-1.05}},
 "facility_id":"tsw-1","model":{"scale_min":0.02,"scale_max":0.06},"alpha":{"from":-2,"to":8,"step":2}}`, mach)
 }
 

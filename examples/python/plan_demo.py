@@ -18,37 +18,37 @@ import sys
 import urllib.error
 import urllib.request
 
-# Full-scale aircraft of the invented demo world (docs: scenario). Lengths in m,
+# Full-scale aircraft of the invented demo world (docs/demo-world.md). Lengths in m,
 # areas in m²; lift and moment slopes per radian, zero-lift angle in degrees.
 AIRCRAFT = {
-    "Orrin J20": {
-        "flight": {"altitude": "12500 m", "mach": 0.80},
+    "Orrin J16": {
+        "flight": {"altitude": "12000 m", "mach": 0.78},
         "article": {
-            "reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0,
-            "frontal_area": 5.5, "wetted_area": 290,
-            "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3,
-                     "cd_min": 0.021, "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055,
-                     "cm_zero": 0.02, "cm_slope": -1.1},
+            "reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6,
+            "frontal_area": 4.4, "wetted_area": 228,
+            "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25,
+                     "cd_min": 0.022, "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057,
+                     "cm_zero": 0.03, "cm_slope": -1.05},
         },
     },
-    "Velmar T70": {
-        "flight": {"altitude": "7600 m", "mach": 0.50},
+    "Velmar T64": {
+        "flight": {"altitude": "6100 m", "mach": 0.47},
         "article": {
-            "reference_length": 2.25, "reference_area": 61, "span": 27.0, "length": 27.2,
-            "frontal_area": 9.0, "wetted_area": 380,
-            "aero": {"lift_slope": 5.4, "zero_lift_alpha": -2.0, "cl_max": 1.5,
-                     "cd_min": 0.026, "cl_at_cd_min": 0.20, "induced_drag_factor": 0.040,
-                     "cm_zero": 0.05, "cm_slope": -0.9},
+            "reference_length": 2.10, "reference_area": 46.5, "span": 23.4, "length": 23.9,
+            "frontal_area": 7.6, "wetted_area": 305,
+            "aero": {"lift_slope": 5.3, "zero_lift_alpha": -2.2, "cl_max": 1.45,
+                     "cd_min": 0.027, "cl_at_cd_min": 0.18, "induced_drag_factor": 0.042,
+                     "cm_zero": 0.05, "cm_slope": -0.85},
         },
     },
-    "Pellin P2": {
-        "flight": {"altitude": "2400 m", "true_airspeed": "72 m/s"},
+    "Pellin P3": {
+        "flight": {"altitude": "2100 m", "true_airspeed": "68 m/s"},
         "article": {
-            "reference_length": 1.45, "reference_area": 12.5, "span": 8.8, "length": 7.4,
-            "frontal_area": 1.9, "wetted_area": 42,
-            "aero": {"lift_slope": 5.2, "zero_lift_alpha": -2.5, "cl_max": 1.6,
-                     "cd_min": 0.028, "cl_at_cd_min": 0.10, "induced_drag_factor": 0.050,
-                     "cm_zero": 0.04, "cm_slope": -0.8},
+            "reference_length": 1.42, "reference_area": 13.4, "span": 9.6, "length": 7.9,
+            "frontal_area": 1.7, "wetted_area": 45,
+            "aero": {"lift_slope": 5.1, "zero_lift_alpha": -2.4, "cl_max": 1.55,
+                     "cd_min": 0.029, "cl_at_cd_min": 0.12, "induced_drag_factor": 0.052,
+                     "cm_zero": 0.04, "cm_slope": -0.75},
         },
     },
 }
@@ -57,9 +57,9 @@ AIRCRAFT = {
 # tunnel, the turboprop in the transonic and the pressurised low-speed tunnel, the
 # trainer in the two low-speed tunnels.
 PLANS = [
-    ("Orrin J20", "tsw-1"), ("Orrin J20", "cn2-05"),
-    ("Velmar T70", "tsw-1"), ("Velmar T70", "plp-3"),
-    ("Pellin P2", "lsw-2"), ("Pellin P2", "plp-3"),
+    ("Orrin J16", "tsw-1"), ("Orrin J16", "cn2-05"),
+    ("Velmar T64", "tsw-1"), ("Velmar T64", "plp-3"),
+    ("Pellin P3", "lsw-2"), ("Pellin P3", "plp-3"),
 ]
 
 # Share of the allowed load (rating / safety factor) above which a plan is flagged

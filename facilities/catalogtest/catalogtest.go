@@ -350,7 +350,7 @@ func testVersions(t *testing.T, c facilities.Catalog) {
 	ctx := context.Background()
 	start := time.Now().Add(-time.Minute)
 	f := mustCreate(t, c, demo(t, "tsw-1"), "alice")
-	f.Balances[1].Limits.PitchingMoment = ptr(2400)
+	f.Balances[1].Limits.PitchingMoment = ptr(2500)
 	f.Balances[1].SafetyFactor = 2
 	f, err := c.UpdateFacility(ctx, f, 1, "bob")
 	if err != nil {
@@ -405,8 +405,8 @@ func testVersions(t *testing.T, c facilities.Catalog) {
 			t.Errorf("creation fields %q lack %q", vs[0].Fields, field)
 		}
 	}
-	if vs[1].Facility != nil && *vs[1].Facility.Balances[1].Limits.PitchingMoment != 2400 {
-		t.Errorf("version 2 pitching-moment limit = %v N·m, want 2400", *vs[1].Facility.Balances[1].Limits.PitchingMoment)
+	if vs[1].Facility != nil && *vs[1].Facility.Balances[1].Limits.PitchingMoment != 2500 {
+		t.Errorf("version 2 pitching-moment limit = %v N·m, want 2500", *vs[1].Facility.Balances[1].Limits.PitchingMoment)
 	}
 }
 
