@@ -403,8 +403,8 @@ func TestPlanMatchedAndCautions(t *testing.T) {
 		name string
 		body string
 	}{
-		{"default tolerance", j20Plan},
-		{"tolerance 0.01", strings.Replace(j20Plan, `"facility_id"`, `"objective": {"mach_tolerance": 0.01}, "facility_id"`, 1)},
+		{"default tolerance", j16Plan},
+		{"tolerance 0.01", strings.Replace(j16Plan, `"facility_id"`, `"objective": {"mach_tolerance": 0.01}, "facility_id"`, 1)},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

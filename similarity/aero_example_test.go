@@ -40,7 +40,7 @@ func ExampleReynoldsEffect() {
 	// The output below is a regression value (the program's own output).
 
 	// Output:
-	// C_f flight 0.002763, test 0.002942: +12.87 counts; transition at 0.21 of the chord; trips true
+	// C_f flight 0.002763, test 0.002993: +16.56 counts; transition at 0.21 of the chord; trips true
 }
 
 // The ceiling a balance puts on the free-stream dynamic pressure of a Pellin P3

@@ -112,7 +112,7 @@ func TestTransitionalContinuity(t *testing.T) {
 // FF·S_wet/S_ref = 6.96; with the Orrin J16's aerodynamic estimate.
 func frictionArticle() *similarity.Article {
 	return &similarity.Article{ReferenceLength: 1.8, ReferenceArea: 25, Span: 13, Length: 14,
-		FrontalArea: 2.6, WettedArea: 145, FormFactor: 1.2, Aero: orrin()}
+		FrontalArea: 2.3, WettedArea: 145, FormFactor: 1.2, Aero: orrin()}
 }
 
 // TestReynoldsEffect: the test article at Re 12·10⁶ in flight and a quarter of that in

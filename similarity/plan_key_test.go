@@ -72,6 +72,7 @@ func TestSearchPlateauLowestQ(t *testing.T) {
 					t.Errorf("%s %.10g, want %.10g (tolerance %.0e relative)", c.name, c.got, c.want, c.tol)
 				}
 			}
+			t.Logf("plateau's low-q end: M %.4g at q %.4g Pa", r.Test.Mach, r.Test.DynamicPressure)
 		})
 	}
 }
