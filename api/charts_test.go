@@ -36,8 +36,8 @@ func storedPlan(t *testing.T, url, file string) string {
 
 func TestPlanCharts(t *testing.T) {
 	ts, _ := catalogServer(t, nil)
-	id := storedPlan(t, ts.URL, "../examples/orrin-j20-tsw-1.json")
-	water := storedPlan(t, ts.URL, "../examples/quill-u4-wtn-04.json")
+	id := storedPlan(t, ts.URL, "../examples/orrin-j16-tsw-1.json")
+	water := storedPlan(t, ts.URL, "../examples/quill-u5-wtn-04.json")
 	cases := []struct {
 		name, path, accept string
 		status             int

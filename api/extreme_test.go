@@ -37,23 +37,23 @@ func extremeBodies(t *testing.T, id string) map[string]string {
 	require.NotEmpty(t, fac.ID, id)
 	fb, err := json.Marshal(fac)
 	require.NoError(t, err)
-	article := `{"reference_length": 2.6, "reference_area": 50, "span": 19.0, "length": 20.0,
-    "frontal_area": 5.5, "wetted_area": 290, "form_factor": 1.1,
-    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -1.5, "cl_max": 1.3, "cd_min": 0.021,
-      "cl_at_cd_min": 0.15, "induced_drag_factor": 0.055, "cm_zero": 0.02, "cm_slope": -1.1}}`
+	article := `{"reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6,
+    "frontal_area": 4.4, "wetted_area": 228, "form_factor": 1.1,
+    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
+      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}}`
 	inst := `{"model_mass": 20, "balance_offset": {"x": 0.01, "z": -0.01}, "cg_offset": {"x": 0.02, "z": 0.01}}`
 	test := `"mach": 0.5, "stagnation_pressure": 150000, "stagnation_temperature": 310`
 	model := `{"scale_min": 0.01, "scale_max": 0.5}`
-	flight, objective := `{"altitude": 12500, "delta_isa": 5, "mach": 0.8}`, `{"weights": {"reynolds": 1, "mach": 2}}`
+	flight, objective := `{"altitude": 12000, "delta_isa": 5, "mach": 0.78}`, `{"weights": {"reynolds": 1, "mach": 2}}`
 	if fac.Medium.IsLiquid() {
-		// The Quill U4 of examples/quill-u4-wtn-04.json.
+		// The Quill U5 of examples/quill-u5-wtn-04.json.
 		test = `"speed": 8, "stagnation_pressure": 150000, "stagnation_temperature": 300`
 		model = `{"scale_min": 0.02, "scale_max": 0.083}`
-		flight, objective = `{"altitude": 1200, "delta_isa": 5, "true_airspeed": 32}`, `{"weights": {"reynolds": 1}}`
-		article = `{"reference_length": 0.38, "reference_area": 1.25, "span": 3.3, "length": 1.9,
-    "frontal_area": 0.09, "wetted_area": 3.6, "form_factor": 1.1,
-    "aero": {"lift_slope": 5.0, "zero_lift_alpha": -3.0, "cl_max": 1.3, "cd_min": 0.030,
-      "cl_at_cd_min": 0.30, "induced_drag_factor": 0.045, "cm_zero": 0.06, "cm_slope": -0.6}}`
+		flight, objective = `{"altitude": 1000, "delta_isa": 5, "true_airspeed": 30}`, `{"weights": {"reynolds": 1}}`
+		article = `{"reference_length": 0.41, "reference_area": 1.4, "span": 3.45, "length": 2.05,
+    "frontal_area": 0.10, "wetted_area": 3.9, "form_factor": 1.1,
+    "aero": {"lift_slope": 4.95, "zero_lift_alpha": -2.8, "cl_max": 1.35, "cd_min": 0.031,
+      "cl_at_cd_min": 0.28, "induced_drag_factor": 0.047, "cm_zero": 0.06, "cm_slope": -0.65}}`
 		inst = `{"model_mass": 0.4, "balance_offset": {"x": 0.01, "z": -0.01}, "cg_offset": {"x": 0.02, "z": 0.01}}`
 	}
 	return map[string]string{
@@ -253,9 +253,9 @@ func TestStoredRecordOutOfRange(t *testing.T) {
 	require.NoError(t, err)
 	for _, path := range []string{"/v1/plans", "/v1/loads"} {
 		t.Run(path, func(t *testing.T) {
-			body := j20Plan
+			body := j16Plan
 			if path == "/v1/loads" {
-				body = strings.Replace(j20Loads, "BALANCE", "", 1)
+				body = strings.Replace(j16Loads, "BALANCE", "", 1)
 			}
 			rec := httptest.NewRecorder()
 			s.Handler().ServeHTTP(rec, jsonRequest(path, body))
