@@ -302,7 +302,8 @@ func (p *Planner) prepare(ctx context.Context, req *PlanRequest) (*preparedPlan,
 func (pp *preparedPlan) plan() (*PlanResponse, error) {
 	req, f, flight, mx := pp.req, pp.f, pp.flight, pp.mx
 	var err error
-	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective}
+	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective,
+		MatrixDrag: mx.DragRange()}
 	if len(f.Balances) > 0 {
 		ll, err := similarity.NewLoadLimit(&req.Article, f, req.Installation, mx)
 		if err != nil {
@@ -412,7 +413,7 @@ func loadsAt(f *facilities.Facility, a *similarity.Article, in facilities.Instal
 	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)
 	pts := append([]facilities.Point(nil), mx.Points...)
 	w.Apply(pts)
-	corr := w.Summary(pts)
+	corr := w.Summary(pts, a.Aero.CorrectionLiftSlope())
 	*warnings = append(*warnings, w.Warnings...)
 	if len(f.Balances) == 0 {
 		return corr, nil, nil

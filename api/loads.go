@@ -116,7 +116,7 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)
 	pts := append([]facilities.Point(nil), mx.Points...)
 	w.Apply(pts)
-	out.Corrections = w.Summary(pts)
+	out.Corrections = w.Summary(pts, a.Aero.CorrectionLiftSlope())
 	out.Warnings = append(out.Warnings, w.Warnings...)
 	lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: lref, Installation: req.Installation, Points: pts}
 	if req.Installation.BalanceID != "" {

@@ -80,6 +80,8 @@ var (
 	BoundBlockage = Bound{Min: 1e-4, Max: 1, MaxExclusive: true}
 	// BoundLiftInterference bounds lift_interference_factor.
 	BoundLiftInterference = Bound{Min: -1, Max: 1}
+	// BoundStreamlineCurvature bounds streamline_curvature_factor (τ2).
+	BoundStreamlineCurvature = Bound{Min: 0, Max: 1}
 	// BoundCondensationPeakMach bounds condensation_peak_mach.
 	BoundCondensationPeakMach = Bound{Min: 0.1, Max: MaxSettingMach}
 	// BoundForce bounds a balance's rated force, N.
@@ -124,6 +126,7 @@ func Bounds() map[string]Bound {
 		"facilities.Facility.max_blockage":                     BoundBlockage,
 		"facilities.Facility.lift_interference_factor":         BoundLiftInterference,
 		"facilities.Facility.condensation_peak_mach":           BoundCondensationPeakMach,
+		"facilities.Facility.streamline_curvature_factor":      BoundStreamlineCurvature,
 		"facilities.Limits.normal":                             BoundForce,
 		"facilities.Limits.axial":                              BoundForce,
 		"facilities.Limits.side":                               BoundForce,

@@ -37,6 +37,12 @@ type Facility struct {
 	// interference Δα = δ·(S/C)·C_L; nil: 0.125 closed walls, −0.125 open jet
 	// (Glauert's values for a circular section, from memory).
 	LiftInterferenceFactor *float64 `json:"lift_interference_factor,omitempty"`
+	// StreamlineCurvatureFactor is τ2 of the streamline-curvature correction of a
+	// wing in closed walls, Δα_sc = τ2·δ·(S/C)·C_L, read for the section's shape
+	// from the chart of Barlow, Rae & Pope (1999, ch. 10) at 0.25·c/B (c the model's
+	// reference chord, B the test-section width); nil: the correction is reported
+	// as not computed. Dimensionless, 0 to 1.
+	StreamlineCurvatureFactor *float64 `json:"streamline_curvature_factor,omitempty"`
 	// CondensationPeakMach is the local peak Mach number over the model used by the
 	// condensation check of condensable media; nil: 1.4 (common practice).
 	CondensationPeakMach *float64 `json:"condensation_peak_mach,omitempty"`

@@ -137,6 +137,7 @@ func (f *Facility) Validate() error {
 		{"max_blockage", f.MaxBlockage, BoundBlockage},
 		{"lift_interference_factor", f.LiftInterferenceFactor, BoundLiftInterference},
 		{"condensation_peak_mach", f.CondensationPeakMach, BoundCondensationPeakMach},
+		{"streamline_curvature_factor", f.StreamlineCurvatureFactor, BoundStreamlineCurvature},
 	} {
 		if o.v != nil {
 			o.b.Check(&e, o.field, *o.v)

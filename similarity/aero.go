@@ -371,3 +371,17 @@ func (a Aero) Matrix(alpha Sweep, beta *Sweep) (Matrix, error) {
 	}
 	return mx, nil
 }
+
+// DragRange returns the least and the largest drag coefficient of the matrix's
+// points, nil when it has none: the range the planner takes the wall-corrected
+// Mach number over (Problem.MatrixDrag).
+func (m Matrix) DragRange() *DragRange {
+	if len(m.Points) == 0 {
+		return nil
+	}
+	d := DragRange{Min: m.Points[0].CD, Max: m.Points[0].CD}
+	for _, p := range m.Points[1:] {
+		d.Min, d.Max = math.Min(d.Min, p.CD), math.Max(d.Max, p.CD)
+	}
+	return &d
+}

@@ -86,3 +86,13 @@ type LoadLimit interface {
 	// model's weight alone, say).
 	MaxDynamicPressure(scale float64, st facilities.State) float64
 }
+
+// CorrectionLiftSlope returns the lift slope per radian the wall corrections use
+// (streamline curvature's lift and moment): LiftSlope for the parametric estimate,
+// 0 (unknown) for a coefficient table.
+func (a *Aero) CorrectionLiftSlope() float64 {
+	if len(a.Table) > 0 {
+		return 0
+	}
+	return a.LiftSlope
+}

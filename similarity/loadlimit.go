@@ -168,7 +168,7 @@ func (l *BalanceLimit) best(scale, mach float64) (k int, q float64) {
 	qSc := area * l.refLength * scale
 	k = -1
 	for b := range l.balances {
-		qb := l.balances[b].maxQ(l.cd, solid, wake, qS, qSc)
+		qb := l.balances[b].maxQ(l.cd, mach, solid, wake, qS, qSc)
 		if k < 0 || qb > q {
 			k, q = b, qb
 		}
@@ -184,7 +184,7 @@ func (l *BalanceLimit) best(scale, mach float64) (k int, q float64) {
 // Only the live elements are visited, in their order and with the same
 // arithmetic as a visit of every element, so the result is the same to the bit
 // (prune explains why).
-func (br *balanceRows) maxQ(cd []float64, solid, wake, qS, qSc float64) float64 {
+func (br *balanceRows) maxQ(cd []float64, mach, solid, wake, qS, qSc float64) float64 {
 	if br.weightBreaks {
 		return 0
 	}
@@ -194,8 +194,7 @@ func (br *balanceRows) maxQ(cd []float64, solid, wake, qS, qSc float64) float64 
 	for x, k := range br.live {
 		if i := br.livePoint[x]; i != pt {
 			pt = i
-			e := 1 + solid + wake*cd[i]
-			f := e * e
+			f := facilities.DynamicPressureRatio(mach, solid+wake*cd[i])
 			a, m = f*qS, f*qSc
 		}
 		u := a*br.force[k] + m*br.moment[k]
@@ -227,7 +226,7 @@ var pruneSamples = [...]float64{0, 0.01, 0.1, 1}
 
 // prune sets live: the elements that can set the ceiling. Element k's load per
 // unit of q is f_i·q·S·(F_k + t·M_k) with F_k = force[k], M_k = moment[k],
-// t = c·s > 0, and f_i = (1 + ε_sb + ε_wb/C_D·C_D,i)² the wall correction of its
+// t = c·s > 0, and f_i = 1 + (2 − M²)·(ε_sb + ε_wb/C_D·C_D,i) the wall correction of its
 // point i; its ceiling is r_k/|load|, r_k = up[k] or down[k] by the load's sign.
 // So k never sets the ceiling when another element d has, for every t > 0,
 //
@@ -235,7 +234,8 @@ var pruneSamples = [...]float64{0, 0.01, 0.1, 1}
 //	h = (|F| + t·|M|)/min(up, down) ≥ g,
 //
 // and f_d ≥ f_k at every scale and Mach number: the same point, or C_D,d ≥ C_D,k
-// ≥ 0 (both blockage factors are ≥ 0, so f grows with C_D, and rounding keeps that
+// ≥ 0 (both blockage factors are ≥ 0 and 2 − M² > 1 below M 1, where alone they
+// are not 0, so f grows with C_D, and rounding keeps that
 // order). Both sides are piecewise linear in t with their kinks where F + t·M
 // changes sign, so checking the kinks, t = 0 and the slope beyond the last kink
 // proves it for all t. Rounding in maxQ (and in this check) moves each g by at
@@ -414,7 +414,7 @@ func EstimateLoads(art *Article, f *facilities.Facility, in facilities.Installat
 	walls.Apply(pts)
 	lc := facilities.LoadCase{ReferenceArea: art.ReferenceArea * s2, ReferenceLength: art.ReferenceLength * scale,
 		Installation: in, Points: pts}
-	est := LoadEstimate{Corrections: walls.Summary(pts)}
+	est := LoadEstimate{Corrections: walls.Summary(pts, art.Aero.CorrectionLiftSlope())}
 	est.Warnings = append(est.Warnings, mx.Warnings...)
 	est.Warnings = append(est.Warnings, walls.Warnings...)
 	ch, err := lc.ChooseBalance(f, st.DynamicPressure)

@@ -10,15 +10,14 @@ import (
 
 // maxQAll is balanceRows.maxQ visiting every element, as before prune: the
 // reference the pruned scan must equal to the bit.
-func (br *balanceRows) maxQAll(cd []float64, solid, wake, qS, qSc float64) float64 {
+func (br *balanceRows) maxQAll(cd []float64, mach, solid, wake, qS, qSc float64) float64 {
 	if br.weightBreaks {
 		return 0
 	}
 	num, den := 1.0, 0.0
 	n := br.rows
 	for i, c := range cd {
-		e := 1 + solid + wake*c
-		f := e * e
+		f := facilities.DynamicPressureRatio(mach, solid+wake*c)
 		a, m := f*qS, f*qSc
 		for j := range n {
 			k := i*n + j
@@ -45,7 +44,7 @@ func (l *BalanceLimit) bestAll(scale, mach float64) (int, float64) {
 	solid, wake, _ := facilities.BlockageFactors(l.facility, l.frontalArea*s2, area, mach)
 	k, q := -1, 0.0
 	for b := range l.balances {
-		qb := l.balances[b].maxQAll(l.cd, solid, wake, area, area*l.refLength*scale)
+		qb := l.balances[b].maxQAll(l.cd, mach, solid, wake, area, area*l.refLength*scale)
 		if k < 0 || qb > q {
 			k, q = b, qb
 		}

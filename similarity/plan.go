@@ -171,7 +171,25 @@ type Problem struct {
 	// LoadLimit, when not nil, caps the dynamic pressure for each scale (the balance's
 	// rated loads); the plan honours it like any facility limit.
 	LoadLimit LoadLimit
+	// MatrixDrag, when not nil, is the range of the test matrix's drag
+	// coefficients. In a gas facility whose walls take a blockage correction
+	// (closed walls below M 1) the planner then matches the corrected Mach number
+	// M_c = M·[1 + (1 + 0.2·M²)·ε] at the middle of that range to the flight, not
+	// the free-stream M (facilities.MachRatio).
+	MatrixDrag *DragRange
 }
+
+// DragRange is the least and the largest drag coefficient of a test matrix.
+type DragRange struct{ Min, Max float64 }
+
+// Mach bases of a plan (Mismatch.MachBasis).
+const (
+	// MachBasisCorrected: the wall-corrected Mach number is matched to the flight.
+	MachBasisCorrected = "corrected"
+	// MachBasisFreeStream: the free-stream Mach number is matched (no blockage
+	// correction applies, or no test matrix was given).
+	MachBasisFreeStream = "free_stream"
+)
 
 // Settings tune the planner. The zero value is sensible: a 41-point trade curve and
 // a Reynolds gain for every binding limit.
@@ -215,14 +233,21 @@ type Mismatch struct {
 	// MachDifference is M_test − M_flight; nil (JSON null) in water, where the Mach
 	// number is not a similarity target.
 	MachDifference *float64 `json:"mach_difference"`
+	// MachBasis says which test Mach number the plan matches to the flight's:
+	// "corrected" (the wall-corrected M_c at the middle of the matrix's drag
+	// range, closed walls) or "free_stream"; null in water.
+	MachBasis *string `json:"mach_basis" enums:"corrected,free_stream"`
+	// CorrectedMachDifference is M_c − M_flight with M_c at the middle of the
+	// matrix's drag range; null when no blockage correction applies or in water.
+	CorrectedMachDifference *float64 `json:"corrected_mach_difference"`
 	// FroudeRatio is Fr_test/Fr_flight, reported for water facilities and for
 	// objectives naming froude; 0 otherwise.
 	FroudeRatio float64 `json:"froude_ratio,omitempty"`
 	// ReynoldsMatched reports that the test Reynolds number is within
 	// RatioMatchBand of the flight's: |Re_test/Re_flight − 1| ≤ 0.001.
 	ReynoldsMatched bool `json:"reynolds_matched"`
-	// MachMatched reports that the test Mach number is within MachTolerance of the
-	// flight's, decided here so that a script need not compare floating-point
+	// MachMatched reports that the test Mach number (the corrected one when
+	// MachBasis is "corrected") is within MachTolerance of the flight's, decided here so that a script need not compare floating-point
 	// numbers: |M_test − M_flight| ≤ MachTolerance, up to a relative 1e-9 of the
 	// tolerance for rounding (a plan the planner put on the band's edge counts as
 	// matched). Nil (JSON null) in water, where the Mach number is not a target.
@@ -251,7 +276,11 @@ func (m *Mismatch) Decide(machTol float64) {
 	m.ReynoldsMatched = math.Abs(m.ReynoldsRatio-1) <= RatioMatchBand
 	m.MachMatched, m.MachTolerance = nil, 0
 	if m.MachDifference != nil {
-		ok := math.Abs(*m.MachDifference) <= machTol*(1+machSlack)
+		d := *m.MachDifference
+		if m.CorrectedMachDifference != nil {
+			d = *m.CorrectedMachDifference
+		}
+		ok := math.Abs(d) <= machTol*(1+machSlack)
 		m.MachMatched, m.MachTolerance = &ok, machTol
 	}
 	m.FroudeMatched = nil
@@ -334,7 +363,7 @@ func Plan(p *Problem, s *Settings) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	best, err := sv.solve()
+	best, err := sv.solveCorrected()
 	if err != nil {
 		return nil, err
 	}

@@ -53,6 +53,13 @@ func (sv *solver) result(x cand) *Result {
 	if !sv.liquid {
 		d := st.Mach - sv.fl.Mach
 		res.Mismatch.MachDifference = &d
+		basis := MachBasisFreeStream
+		if r := sv.machRatio(st.Mach, s); r != 1 {
+			basis = MachBasisCorrected
+			dc := st.Mach*r - sv.fl.Mach
+			res.Mismatch.CorrectedMachDifference = &dc
+		}
+		res.Mismatch.MachBasis = &basis
 	}
 	if sv.liquid || sv.froudeMatters() {
 		res.Mismatch.FroudeRatio = res.Test.Froude / sv.fl.Froude
@@ -123,8 +130,18 @@ func (sv *solver) bindings(x cand, st facilities.State) []Binding {
 // notes returns the plan's warnings.
 func (sv *solver) notes(x cand, st facilities.State, res *Result) []string {
 	var w []string
-	if !sv.liquid && !*res.Mismatch.MachMatched && !sv.obj.weighted && sv.obj.levels[0] == gMach {
-		w = append(w, fmt.Sprintf("the flight Mach number %.4g is out of the facility's reach: the nearest usable is %.4g", sv.fl.Mach, st.Mach))
+	if !sv.liquid {
+		if dc := res.Mismatch.CorrectedMachDifference; dc != nil {
+			w = append(w, fmt.Sprintf("the Mach number is compared with the flight's after the closed-wall correction: free stream M %.4f, corrected M_c %.4f (blockage at the middle of the matrix's drag range; each point's M_c is in the corrections)",
+				st.Mach, sv.fl.Mach+*dc))
+		}
+		if !*res.Mismatch.MachMatched && !sv.obj.weighted && sv.obj.levels[0] == gMach {
+			nearest := st.Mach
+			if dc := res.Mismatch.CorrectedMachDifference; dc != nil {
+				nearest = sv.fl.Mach + *dc
+			}
+			w = append(w, fmt.Sprintf("the flight Mach number %.4g is out of the facility's reach: the nearest usable is %.4g", sv.fl.Mach, nearest))
+		}
 	}
 	if r := res.Mismatch.ReynoldsRatio; r < 1-RatioMatchBand {
 		w = append(w, fmt.Sprintf("the model reaches %.3g of the flight Reynolds number (%.4g against %.4g): expect a Reynolds-number effect on drag and maximum lift",

@@ -288,8 +288,8 @@ func (sv *solver) solve() (cand, error) {
 	} else {
 		for _, iv := range ivs {
 			consider(sv.golden(sv.evalU, iv.a, iv.b, 17, tolU))
-			if !sv.liquid && sv.fl.Mach >= iv.a && sv.fl.Mach <= iv.b {
-				consider(sv.evalU(sv.fl.Mach))
+			if !sv.liquid && sv.aim >= iv.a && sv.aim <= iv.b {
+				consider(sv.evalU(sv.aim))
 			}
 		}
 	}
@@ -358,7 +358,7 @@ func (sv *solver) gain(name string, best cand) (float64, int, error) {
 	if !ok {
 		return 0, 0, fmt.Errorf("similarity: limit %q cannot be relaxed", name)
 	}
-	b2, err := r.solve()
+	b2, err := r.solveCorrected()
 	sv.polishEvals += r.polishEvals
 	if err != nil {
 		return 0, r.evals, err

@@ -145,6 +145,11 @@ type solver struct {
 
 	uLo, uHi float64
 
+	// aim is the free-stream Mach number aimed at: the flight's over aimRatio, the
+	// wall correction's M_c/M at the plan when the corrected Mach number is matched
+	// (solveCorrected), else 1.
+	aim, aimRatio float64
+
 	evals    int
 	warnings []string
 
@@ -161,7 +166,7 @@ func newSolver(p *Problem) (*solver, error) {
 		return nil, facilities.Invalid("incomplete problem", []facilities.FieldError{{Field: "facility", Message: "a problem needs a flight, an article and a facility"}})
 	}
 	sv := &solver{p: p, f: p.Facility, fl: p.Flight, art: p.Article, L: p.Article.ReferenceLength,
-		loadScale: 1, load: p.LoadLimit}
+		loadScale: 1, load: p.LoadLimit, aim: p.Flight.Mach, aimRatio: 1}
 	if err := sv.checkInput(); err != nil {
 		return nil, err
 	}
@@ -301,7 +306,47 @@ func (sv *solver) froudeMatters() bool {
 // The search and the key both take the band from here, so that they agree to the
 // bit on its ends.
 func (sv *solver) machBand() (lo, hi float64) {
-	return sv.fl.Mach - sv.obj.tol, sv.fl.Mach + sv.obj.tol
+	return (sv.fl.Mach - sv.obj.tol) / sv.aimRatio, (sv.fl.Mach + sv.obj.tol) / sv.aimRatio
+}
+
+// machRatio returns M_c/M, the wall-corrected over the free-stream Mach number, of
+// a model of scale s at free-stream Mach number u, with the blockage at the middle
+// of the matrix's drag range (facilities.MachRatio); 1 when no correction applies
+// (no matrix, a liquid, walls other than closed, M ≥ 1).
+func (sv *solver) machRatio(u, s float64) float64 {
+	d := sv.p.MatrixDrag
+	if d == nil || sv.liquid {
+		return 1
+	}
+	s2 := s * s
+	solid, wake, ok := facilities.BlockageFactors(sv.f, sv.art.FrontalArea*s2, sv.art.ReferenceArea*s2, u)
+	if !ok {
+		return 1
+	}
+	return facilities.MachRatio(u, solid+wake*0.5*(d.Min+d.Max))
+}
+
+// maxAimSteps is the most re-solves that move the Mach aim (solveCorrected).
+const maxAimSteps = 8
+
+// solveCorrected solves and, when the walls take a blockage correction, divides the
+// Mach band [M − tol, M + tol] and the aim by r = machRatio at the plan found, and
+// solves again until r moves by less than 1e-14: a fixed point at which the band
+// holds the corrected Mach number of the plan's own scale and Mach number. The
+// scale and Mach number are searched with r held at the plan's value, so a plan at
+// another scale is judged with the plan's blockage, not its own (a difference of
+// the order of the change of ε between the scales times the Mach tolerance).
+func (sv *solver) solveCorrected() (cand, error) {
+	best, err := sv.solve()
+	for i := 0; err == nil && i < maxAimSteps; i++ {
+		r := sv.machRatio(best.u, best.s)
+		if math.Abs(r-sv.aimRatio) <= 1e-14 {
+			break
+		}
+		sv.aimRatio, sv.aim = r, sv.fl.Mach/r
+		best, err = sv.solve()
+	}
+	return best, err
 }
 
 // machFirst reports whether the first priority is the Mach number.
@@ -913,7 +958,7 @@ func (sv *solver) keyOf(u, s, r, q, v float64, met bool) key {
 	if sv.obj.weighted {
 		lnM := 0.0
 		if !sv.liquid {
-			lnM = math.Log(u / sv.fl.Mach)
+			lnM = math.Log(u / sv.aim)
 		}
 		for i, l := range [3]float64{gReynolds: lnRe, gMach: lnM, gFroude: lnFr} {
 			if w := sv.obj.w[i]; w > 0 {

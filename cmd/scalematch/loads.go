@@ -110,6 +110,7 @@ func writeLoadCheck(w io.Writer, r *api.LoadsResponse, us bool) error {
 
 	writeCorrections(w, row, r.Corrections)
 	tw.Flush()
+	writeCorrectionPoints(w, r.Corrections)
 
 	reports := r.Loads.All
 	if r.Loads.One != nil {

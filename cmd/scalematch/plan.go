@@ -372,6 +372,7 @@ func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 
 	writeCorrections(w, row, r.Corrections)
 	flush()
+	writeCorrectionPoints(w, r.Corrections)
 
 	if r.Loads != nil {
 		writeLoads(w, u, *r.Loads)
@@ -432,9 +433,53 @@ func writeCorrections(w io.Writer, row func(string, string, ...any), c facilitie
 	if !c.Applied {
 		fmt.Fprintln(w, "  no blockage correction applied")
 	}
-	row("blockage", "solid %.3g, wake %.3g, total %.3g", c.SolidBlockage, c.WakeBlockage, c.Blockage)
-	row("q_c/q", "%.4f", c.DynamicPressureFactor)
-	row("lift interference", "%+.3g° at α %.3g° (δ %.3g)", c.LiftInterference+0, c.LiftInterferenceAlpha, c.LiftInterferenceFactor)
+	if c.Applied {
+		row("blockage", "solid %.3g, wake %.3g, total %.3g (largest C_D)", c.SolidBlockage, c.WakeBlockage, c.Blockage)
+		row("q_c/q", "%.4f (compressible form 1 + (2 − M²)·ε)", c.DynamicPressureFactor)
+		row("corrected Mach", "%.4f to %.4f over the sweep (free stream %.4f)", c.CorrectedMachMin, c.CorrectedMachMax, c.Mach)
+	}
+	if len(c.Points) > 0 && c.Points[0].DeltaAlphaUpwash != nil {
+		row("lift interference", "%+.3g° at α %.3g° (δ %.3g)", c.LiftInterference+0, c.LiftInterferenceAlpha, c.LiftInterferenceFactor)
+	}
+	if c.StreamlineCurvatureFactor != nil {
+		row("streamline curvature τ2", "%.3g", *c.StreamlineCurvatureFactor)
+	}
+}
+
+// writeCorrectionPoints prints what wall corrections leave out and, when any is
+// computed, the corrections of every test point.
+func writeCorrectionPoints(w io.Writer, c facilities.Corrections) {
+	for _, n := range c.NotComputed {
+		fmt.Fprintf(w, "  not computed: %s: %s\n", strings.ReplaceAll(n.Correction, "_", " "), n.Reason)
+	}
+	if len(c.Points) == 0 || len(c.NotComputed) == 3 {
+		return
+	}
+	// The curvature columns only when the curvature is computed.
+	curv := c.Points[0].DeltaAlphaCurvature != nil
+	head := []string{"α °", "β °", "ε", "q_c/q", "M_c", "Δα upwash °", "ΔC_D upwash"}
+	if curv {
+		head = append(head, "Δα curv. °", "ΔC_L curv.", "ΔC_m curv.")
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "  %s\t\n", strings.Join(head, "\t"))
+	cell := func(v *float64, format string) string {
+		if v == nil {
+			return "not computed"
+		}
+		return fmt.Sprintf(format, *v+0)
+	}
+	for _, p := range c.Points {
+		cells := []string{fmt.Sprintf("%.4g", p.Alpha), fmt.Sprintf("%.4g", p.Beta),
+			cell(p.Blockage, "%.4f"), cell(p.DynamicPressureFactor, "%.4f"), cell(p.CorrectedMach, "%.4f"),
+			cell(p.DeltaAlphaUpwash, "%+.3f"), cell(p.DeltaCDUpwash, "%+.5f")}
+		if curv {
+			cells = append(cells, cell(p.DeltaAlphaCurvature, "%+.3f"), cell(p.DeltaCLCurvature, "%+.4f"), cell(p.DeltaCmCurvature, "%+.4f"))
+		}
+		fmt.Fprintf(tw, "  %s\t\n", strings.Join(cells, "\t"))
+	}
+	tw.Flush()
+	fmt.Fprintln(w, "  corrections add to the measured values to give free air (Barlow, Rae & Pope 1999, ch. 10)")
 }
 
 // writeLoads prints one balance's load check: a line per test point.
