@@ -67,5 +67,5 @@ func ExampleBalanceLimit_MaxDynamicPressure() {
 
 	// Output:
 	// scale 0.1: q ≤ 1.002e+04 Pa
-	// scale 0.2: q ≤ 2477 Pa
+	// scale 0.2: q ≤ 2478 Pa
 }
