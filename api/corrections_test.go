@@ -23,8 +23,8 @@ func TestPlanWallCorrections(t *testing.T) {
 		reasons   []string
 		corrected bool
 	}{
-		{"closed walls", "../examples/pellin-p2-lsw-2.json", "corrected", true, true, []string{"streamline_curvature"}, true},
-		{"slotted walls", "../examples/orrin-j20-tsw-1.json", "free_stream", false, false, []string{"blockage", "upwash", "streamline_curvature"}, false},
+		{"closed walls", "../examples/pellin-p3-lsw-2.json", "corrected", true, true, []string{"streamline_curvature"}, true},
+		{"slotted walls", "../examples/orrin-j16-tsw-1.json", "free_stream", false, false, []string{"blockage", "upwash", "streamline_curvature"}, false},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
