@@ -27,7 +27,7 @@ import (
 //	@Failure		400					{object}	Problem	"a bad or missing altitude, or one outside -5 km to 86 km"
 //	@Router			/v1/atmosphere [get]
 func (s *Server) getAtmosphere(c *gin.Context) {
-	st, err := atmosphereQuery(c.Query, func(k string) bool { _, ok := c.GetQuery(k); return ok })
+	st, err := AtmosphereQuery(c.Query, func(k string) bool { _, ok := c.GetQuery(k); return ok })
 	if err != nil {
 		s.fail(c, err)
 		return
@@ -35,9 +35,12 @@ func (s *Server) getAtmosphere(c *gin.Context) {
 	s.answer(c, http.StatusOK, st)
 }
 
-// atmosphereQuery reads the atmosphere query parameters through get (the query's
-// value of a key) and has (whether it was given), and returns the state.
-func atmosphereQuery(get func(string) string, has func(string) bool) (atmosphere.State, error) {
+// AtmosphereQuery reads the atmosphere query parameters (altitude,
+// pressure_altitude, delta_isa: SI numbers or strings with units) through get (the
+// query's value of a key) and has (whether it was given), and returns the state.
+// The command line's atmosphere command reads its flags through it too, so both
+// accept the same values.
+func AtmosphereQuery(get func(string) string, has func(string) bool) (atmosphere.State, error) {
 	var fe []facilities.FieldError
 	num := func(key, unit string) (float64, bool) {
 		v, err := similarity.ToSI(get(key), unit)

@@ -56,5 +56,5 @@ func ExampleGroups() {
 	// Output:
 	// rank 3
 	// force coefficient: R rho^-1 V^-2 L^-2
-	// Reynolds number: mu rho^-1 V^-1 L^-1
+	// inverse Reynolds number (1/Re): mu rho^-1 V^-1 L^-1
 }

@@ -482,6 +482,7 @@ func roleOf(v Variable) role {
 // form, and the powers of that form that still carry its name.
 type namedGroup struct {
 	name   string
+	symbol string // the usual symbol, for the names of powers ("Re")
 	form   map[role]Rational
 	powers []Rational
 }
@@ -503,21 +504,23 @@ var (
 //	Weber number         ρ·V²·L/σ               (and its inverse)
 //	advance ratio        V/(n·D)                (and its inverse)
 var namedGroups = []namedGroup{
-	{"Reynolds number", map[role]Rational{roleDensity: Int(1), roleSpeed: Int(1), roleLength: Int(1), roleViscosity: Int(-1)}, plusMinus},
-	{"Reynolds number", map[role]Rational{roleSpeed: Int(1), roleLength: Int(1), roleKinematicViscosity: Int(-1)}, plusMinus},
-	{"Mach number", map[role]Rational{roleSpeed: Int(1), roleSoundSpeed: Int(-1)}, plusMinus},
-	{"Froude number", map[role]Rational{roleSpeed: Int(1), roleGravity: minusHalf, roleLength: minusHalf}, []Rational{Int(1), Int(-1), Int(2), Int(-2)}},
-	{"force coefficient", map[role]Rational{roleForce: Int(1), roleDensity: Int(-1), roleSpeed: Int(-2), roleLength: Int(-2)}, plusMinus},
-	{"pressure coefficient", map[role]Rational{rolePressure: Int(1), roleDensity: Int(-1), roleSpeed: Int(-2)}, plusMinus},
-	{"Strouhal number", map[role]Rational{roleFrequency: Int(1), roleLength: Int(1), roleSpeed: Int(-1)}, plusMinus},
-	{"Weber number", map[role]Rational{roleDensity: Int(1), roleSpeed: Int(2), roleLength: Int(1), roleSurfaceTension: Int(-1)}, plusMinus},
-	{"advance ratio", map[role]Rational{roleSpeed: Int(1), roleRotationRate: Int(-1), roleLength: Int(-1)}, plusMinus},
+	{"Reynolds number", "Re", map[role]Rational{roleDensity: Int(1), roleSpeed: Int(1), roleLength: Int(1), roleViscosity: Int(-1)}, plusMinus},
+	{"Reynolds number", "Re", map[role]Rational{roleSpeed: Int(1), roleLength: Int(1), roleKinematicViscosity: Int(-1)}, plusMinus},
+	{"Mach number", "M", map[role]Rational{roleSpeed: Int(1), roleSoundSpeed: Int(-1)}, plusMinus},
+	{"Froude number", "Fr", map[role]Rational{roleSpeed: Int(1), roleGravity: minusHalf, roleLength: minusHalf}, []Rational{Int(1), Int(-1), Int(2), Int(-2)}},
+	{"force coefficient", "C_F", map[role]Rational{roleForce: Int(1), roleDensity: Int(-1), roleSpeed: Int(-2), roleLength: Int(-2)}, plusMinus},
+	{"pressure coefficient", "C_p", map[role]Rational{rolePressure: Int(1), roleDensity: Int(-1), roleSpeed: Int(-2)}, plusMinus},
+	{"Strouhal number", "St", map[role]Rational{roleFrequency: Int(1), roleLength: Int(1), roleSpeed: Int(-1)}, plusMinus},
+	{"Weber number", "We", map[role]Rational{roleDensity: Int(1), roleSpeed: Int(2), roleLength: Int(1), roleSurfaceTension: Int(-1)}, plusMinus},
+	{"advance ratio", "J", map[role]Rational{roleSpeed: Int(1), roleRotationRate: Int(-1), roleLength: Int(-1)}, plusMinus},
 }
 
 // recognise names g when every variable in it has a role (see roleNames), no role
 // appears twice, and its exponents are one of the allowed powers of a named group's
 // usual form (namedGroups). Otherwise it returns "": a group is never given a name it
-// might not deserve.
+// might not deserve. A power other than the first is named as such (powerName):
+// μ/(ρ·V·L) is "inverse Reynolds number (1/Re)", g·L/V² "inverse square of the
+// Froude number (1/Fr²)".
 func recognise(g Group, vars []Variable, index map[string]int) string {
 	roles := make(map[role]Rational, len(g.Exponents))
 	for _, e := range g.Exponents {
@@ -536,11 +539,27 @@ func recognise(g Group, vars []Variable, index map[string]int) string {
 		}
 		for _, k := range ng.powers {
 			if matches(roles, ng.form, k) {
-				return ng.name
+				return powerName(ng, k)
 			}
 		}
 	}
 	return ""
+}
+
+// powerName names the power k of a named group: the name itself for 1, and
+// otherwise the power in words with the symbol's power in brackets.
+func powerName(ng namedGroup, k Rational) string {
+	switch k {
+	case Int(1):
+		return ng.name
+	case Int(-1):
+		return "inverse " + ng.name + " (1/" + ng.symbol + ")"
+	case Int(2):
+		return "square of the " + ng.name + " (" + ng.symbol + "²)"
+	case Int(-2):
+		return "inverse square of the " + ng.name + " (1/" + ng.symbol + "²)"
+	}
+	return ng.name + " to the power " + k.String() + " (" + ng.symbol + "^" + k.String() + ")"
 }
 
 // matches reports whether roles holds exactly the roles of form, each with the

@@ -47,14 +47,14 @@ func TestGroups(t *testing.T) {
 			repeating: []string{"rho", "V", "L"},
 			rank:      3,
 			want:      []string{"R rho^-1 V^-2 L^-2", "mu rho^-1 V^-1 L^-1"},
-			known:     []string{"force coefficient", "Reynolds number"},
+			known:     []string{"force coefficient", "inverse Reynolds number (1/Re)"},
 		},
 		{
 			name:  "force on a body, automatic choice",
 			vars:  vars(t, "R", "M L T^-2", "rho", "M L^-3", "V", "L T^-1", "L", "L", "mu", "M L^-1 T^-1"),
 			rank:  3,
 			want:  []string{"R rho^-1 V^-2 L^-2", "mu rho^-1 V^-1 L^-1"},
-			known: []string{"force coefficient", "Reynolds number"},
+			known: []string{"force coefficient", "inverse Reynolds number (1/Re)"},
 		},
 		{
 			// White, Fluid Mechanics, ch. 5 (from memory): Δp in a pipe depends on
@@ -64,7 +64,7 @@ func TestGroups(t *testing.T) {
 			repeating: []string{"rho", "V", "d"},
 			rank:      3,
 			want:      []string{"dp rho^-1 V^-2", "mu rho^-1 V^-1 d^-1", "eps d^-1", "ell d^-1"},
-			known:     []string{"pressure coefficient", "Reynolds number", "", ""},
+			known:     []string{"pressure coefficient", "inverse Reynolds number (1/Re)", "", ""},
 		},
 		{
 			// White, Fluid Mechanics, ch. 5 (from memory): the period of a pendulum
@@ -86,18 +86,27 @@ func TestGroups(t *testing.T) {
 			known:     []string{"Froude number"},
 		},
 		{
+			// g·L/V² is a power of the Froude number and is named as that power.
+			name:      "inverse square of the Froude number",
+			vars:      vars(t, "V", "L T^-1", "g", "L T^-2", "L", "L"),
+			repeating: []string{"V", "L"},
+			rank:      2,
+			want:      []string{"g V^-2 L"},
+			known:     []string{"inverse square of the Froude number (1/Fr²)"},
+		},
+		{
 			name:  "Mach and Reynolds with subscripts",
 			vars:  vars(t, "D", "M L T^-2", "rho_inf", "M L^-3", "V_inf", "L T^-1", "c", "L", "mu_inf", "M L^-1 T^-1", "a_inf", "L T^-1"),
 			rank:  3,
 			want:  []string{"D rho_inf^-1 V_inf^-2 c^-2", "mu_inf rho_inf^-1 V_inf^-1 c^-1", "a_inf V_inf^-1"},
-			known: []string{"force coefficient", "Reynolds number", "Mach number"},
+			known: []string{"force coefficient", "inverse Reynolds number (1/Re)", "inverse Mach number (1/M)"},
 		},
 		{
 			name:  "kinematic viscosity",
 			vars:  vars(t, "nu", "L^2 T^-1", "V", "L T^-1", "L", "L"),
 			rank:  2,
 			want:  []string{"nu V^-1 L^-1"},
-			known: []string{"Reynolds number"},
+			known: []string{"inverse Reynolds number (1/Re)"},
 		},
 		{
 			name:  "vortex shedding",
@@ -111,14 +120,14 @@ func TestGroups(t *testing.T) {
 			vars:  vars(t, "sigma", "M T^-2", "rho", "M L^-3", "V", "L T^-1", "d", "L"),
 			rank:  3,
 			want:  []string{"sigma rho^-1 V^-2 d^-1"},
-			known: []string{"Weber number"},
+			known: []string{"inverse Weber number (1/We)"},
 		},
 		{
 			name:  "propeller",
 			vars:  vars(t, "n", "T^-1", "V", "L T^-1", "D", "L"),
 			rank:  2,
 			want:  []string{"n V^-1 D"},
-			known: []string{"advance ratio"},
+			known: []string{"inverse advance ratio (1/J)"},
 		},
 		{
 			// An angular frequency ω gives ωD/V = 2π·St: not named.
@@ -142,7 +151,7 @@ func TestGroups(t *testing.T) {
 			vars:  vars(t, "a", "L T^-1", "V", "L T^-1", "x", "L", "t", "T"),
 			rank:  2,
 			want:  []string{"a V^-1", "t V x^-1"},
-			known: []string{"Mach number", ""},
+			known: []string{"inverse Mach number (1/M)", ""},
 		},
 		{
 			name:  "dimensionless variable is its own group",
@@ -168,7 +177,7 @@ func TestGroups(t *testing.T) {
 			repeating: []string{"rho", "V", "L", "k"},
 			rank:      4,
 			want:      []string{"h L k^-1", "mu rho^-1 V^-1 L^-1", "cp rho V L k^-1"},
-			known:     []string{"", "Reynolds number", ""},
+			known:     []string{"", "inverse Reynolds number (1/Re)", ""},
 		},
 		{
 			// k/(μ·c_p) is the Prandtl number: k, μ, c_p are not independent.

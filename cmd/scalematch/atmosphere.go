@@ -2,13 +2,17 @@ package main
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"strings"
 	"text/tabwriter"
 
 	"github.com/spf13/cobra"
 
+	"scalematch/api"
 	"scalematch/atmosphere"
+	"scalematch/facilities"
 )
 
 // U.S. customary units in SI, from their exact definitions (NIST Special
@@ -29,45 +33,46 @@ const (
 // altitude, as a table or as the JSON of GET /v1/atmosphere.
 func newAtmosphereCmd() *cobra.Command {
 	var (
-		altitude, pressureAltitude, deltaISA float64
+		altitude, pressureAltitude, deltaISA string
 		asJSON                               bool
 		units                                string
 	)
 	cmd := &cobra.Command{
-		Use:   "atmosphere (--altitude M | --pressure-altitude M) [--delta-isa K]",
+		Use:   "atmosphere (--altitude Z | --pressure-altitude Z) [--delta-isa DT]",
 		Short: "Print the U.S. Standard Atmosphere 1976 at an altitude",
 		Long: `Print the U.S. Standard Atmosphere 1976 at a geometric altitude or a pressure
-altitude (both in metres, -5 km to 86 km), on a day whose temperature differs from
-the standard by --delta-isa kelvin at the same pressure.
+altitude (-5 km to 86 km), on a day whose temperature differs from the standard by
+--delta-isa at the same pressure. Each value is an SI number (m, K) or a string
+with a unit, exactly as GET /v1/atmosphere takes it: "35000 ft", "10 degC".
 
 By default a table in SI units; --units us adds U.S. customary units beside them.
 --json prints exactly what GET /v1/atmosphere returns.`,
 		Example: `  scalematch atmosphere --altitude 11000
-  scalematch atmosphere --pressure-altitude 10668 --delta-isa 10 --units us
-  scalematch atmosphere --altitude 11000 --json`,
+  scalematch atmosphere --altitude "35000 ft" --delta-isa "10 degC" --units us
+  scalematch atmosphere --pressure-altitude 10668 --json`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			if units != "si" && units != "us" {
 				return fmt.Errorf("--units %q: want si or us", units)
 			}
-			hasAlt, hasPA := cmd.Flags().Changed("altitude"), cmd.Flags().Changed("pressure-altitude")
-			switch {
-			case hasAlt && hasPA:
-				return fmt.Errorf("give only one of --altitude and --pressure-altitude")
-			case !hasAlt && !hasPA:
-				return fmt.Errorf("give --altitude (geometric, m) or --pressure-altitude (m)")
-			}
-			var (
-				s   atmosphere.State
-				err error
-			)
-			if hasPA {
-				s, err = atmosphere.AtPressureAltitude(pressureAltitude, deltaISA)
-			} else {
-				s, err = atmosphere.At(altitude, deltaISA)
-			}
+			flags := map[string]*string{"altitude": &altitude, "pressure_altitude": &pressureAltitude, "delta_isa": &deltaISA}
+			flagName := func(key string) string { return strings.ReplaceAll(key, "_", "-") }
+			s, err := api.AtmosphereQuery(
+				func(key string) string {
+					if p, ok := flags[key]; ok {
+						return *p
+					}
+					return ""
+				},
+				func(key string) bool { return cmd.Flags().Changed(flagName(key)) })
 			if err != nil {
-				return err
+				var de *facilities.Error
+				if errors.As(err, &de) {
+					for i := range de.Fields {
+						de.Fields[i].Field = "--" + flagName(de.Fields[i].Field)
+					}
+				}
+				return explain(err)
 			}
 			out := cmd.OutOrStdout()
 			if asJSON {
@@ -77,9 +82,9 @@ By default a table in SI units; --units us adds U.S. customary units beside them
 		},
 	}
 	f := cmd.Flags()
-	f.Float64Var(&altitude, "altitude", 0, "geometric altitude, m")
-	f.Float64Var(&pressureAltitude, "pressure-altitude", 0, "pressure altitude (ICAO: geopotential altitude of the standard pressure), m")
-	f.Float64Var(&deltaISA, "delta-isa", 0, "temperature offset from the standard day at the same pressure, K (-100 to 100)")
+	f.StringVar(&altitude, "altitude", "", `geometric altitude: m, or a length with a unit ("35000 ft")`)
+	f.StringVar(&pressureAltitude, "pressure-altitude", "", "pressure altitude (ICAO: geopotential altitude of the standard pressure): m, or a length with a unit")
+	f.StringVar(&deltaISA, "delta-isa", "0", `temperature offset from the standard day at the same pressure: K, or with a unit ("10 degC"); -100 K to 100 K`)
 	f.BoolVar(&asJSON, "json", false, "print the JSON of GET /v1/atmosphere")
 	f.StringVar(&units, "units", "si", "units of the table: si, or us to add U.S. customary units")
 	return cmd

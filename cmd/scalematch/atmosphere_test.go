@@ -3,10 +3,12 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"errors"
 	"math"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/atmosphere"
 )
@@ -82,38 +84,57 @@ func TestAtmosphereCommandJSON(t *testing.T) {
 	}
 }
 
+// TestAtmosphereCommandErrors checks that the command reads its flags as GET
+// /v1/atmosphere reads its query, naming the flag in each error.
 func TestAtmosphereCommandErrors(t *testing.T) {
 	cases := []struct {
-		name    string
-		args    []string
-		want    string
-		inRange bool // the error wraps atmosphere.ErrRange
+		name string
+		args []string
+		want string
 	}{
-		{"no altitude", []string{"atmosphere"}, "give --altitude", false},
-		{"both altitudes", []string{"atmosphere", "--altitude", "1", "--pressure-altitude", "1"}, "only one of", false},
-		{"above 86 km", []string{"atmosphere", "--altitude", "90000"}, "outside -5000 m to 86000 m", true},
-		{"NaN altitude", []string{"atmosphere", "--altitude", "NaN"}, "altitude NaN", true},
-		{"too cold", []string{"atmosphere", "--altitude", "0", "--delta-isa", "-150"}, "delta_isa -150 K is outside -100 K to 100 K", true},
-		{"bad units", []string{"atmosphere", "--altitude", "0", "--units", "imperial"}, `--units "imperial": want si or us`, false},
-		{"not a number", []string{"atmosphere", "--altitude", "high"}, `invalid argument "high"`, false},
-		{"stray argument", []string{"atmosphere", "--altitude", "0", "extra"}, "unknown command", false},
+		{"no altitude", []string{"atmosphere"}, "--altitude: give altitude (geometric, m) or pressure_altitude (m)"},
+		{"both altitudes", []string{"atmosphere", "--altitude", "1", "--pressure-altitude", "1"}, "--pressure-altitude: give only one of"},
+		{"above 86 km", []string{"atmosphere", "--altitude", "90000"}, "--altitude: atmosphere: altitude 90000 m is outside -5000 m to 86000 m"},
+		{"above 86 km in feet", []string{"atmosphere", "--altitude", "300000 ft"}, "--altitude: atmosphere: altitude 91440 m is outside -5000 m to 86000 m"},
+		{"NaN altitude", []string{"atmosphere", "--altitude", "NaN"}, `--altitude: quantity "NaN" does not start with a number`},
+		{"too cold", []string{"atmosphere", "--altitude", "0", "--delta-isa", "-150"}, "--delta-isa: atmosphere: delta_isa -150 K is outside -100 K to 100 K"},
+		{"wrong dimension", []string{"atmosphere", "--altitude", "35 kg"}, `--altitude: unit "kg" is a mass`},
+		{"bad units", []string{"atmosphere", "--altitude", "0", "--units", "imperial"}, `--units "imperial": want si or us`},
+		{"not a number", []string{"atmosphere", "--altitude", "high"}, `--altitude: quantity "high" does not start with a number`},
+		{"stray argument", []string{"atmosphere", "--altitude", "0", "extra"}, "unknown command"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			var out bytes.Buffer
 			err := run(c.args, strings.NewReader(""), &out, &bytes.Buffer{})
-			if err == nil {
-				t.Fatalf("no error; output %s", out.String())
-			}
-			if !strings.Contains(err.Error(), c.want) {
-				t.Errorf("error %q does not say %q", err, c.want)
-			}
-			if got := errors.Is(err, atmosphere.ErrRange); got != c.inRange {
-				t.Errorf("errors.Is(err, ErrRange) = %v, want %v", got, c.inRange)
-			}
-			if out.Len() != 0 {
-				t.Errorf("printed %q on error", out.String())
-			}
+			require.Error(t, err, "output %s", out.String())
+			assert.Contains(t, err.Error(), c.want)
+			assert.Zero(t, out.Len(), "printed %q on error", out.String())
+		})
+	}
+}
+
+// TestAtmosphereCommandUnits checks that each flag takes a unit string as the API
+// does: the same state as the SI number.
+func TestAtmosphereCommandUnits(t *testing.T) {
+	cases := []struct {
+		name     string
+		withUnit []string
+		si       []string
+	}{
+		// 35 000 ft × 0.3048 m/ft (exact, NIST SP 811) = 10 668 m.
+		{"feet", []string{"--altitude", "35000 ft"}, []string{"--altitude", "10668"}},
+		{"pressure altitude in km", []string{"--pressure-altitude", "10.5 km"}, []string{"--pressure-altitude", "10500"}},
+		// A temperature difference of 10 °C is 10 K.
+		{"offset in degC", []string{"--altitude", "1000", "--delta-isa", "10 degC"}, []string{"--altitude", "1000", "--delta-isa", "10"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			a, err := runCmd(t, "", append([]string{"atmosphere", "--json"}, c.withUnit...)...)
+			require.NoError(t, err)
+			b, err := runCmd(t, "", append([]string{"atmosphere", "--json"}, c.si...)...)
+			require.NoError(t, err)
+			assert.JSONEq(t, b, a)
 		})
 	}
 }

@@ -34,14 +34,18 @@ type computeOptions struct {
 	stderr   io.Writer
 }
 
-// bind adds the shared flags to cmd; withData adds --data (groups needs no catalog).
+// bind adds the shared flags to cmd; withData adds --data and --units (groups needs
+// no catalog, and its groups are dimensionless, so it has neither).
 func (o *computeOptions) bind(cmd *cobra.Command, withData bool, jsonOf string) {
 	f := cmd.Flags()
 	if withData {
 		f.StringVar(&o.data, "data", "./scalematch-data", "directory of the service's SQLite catalog; facility ids resolve against it when it holds one, else against the demo catalog")
 	}
 	f.BoolVar(&o.json, "json", false, "print exactly the JSON body that "+jsonOf+" returns")
-	f.StringVar(&o.units, "units", "si", "units of the table: si, or us to add U.S. customary units beside them")
+	o.units = "si"
+	if withData { // every command with a catalog prints dimensional figures; groups does not
+		f.StringVar(&o.units, "units", "si", "units of the table: si, or us to add U.S. customary units beside them")
+	}
 }
 
 // start checks the flags, reads SCALEMATCH_<FLAG> for flags not given, and reads
