@@ -874,6 +874,7 @@ func (s *Server) decodeBody(c *gin.Context, dst any) bool {
 	} else {
 		body, err = io.ReadAll(c.Request.Body)
 	}
+	err = bodyReadError(err, c.Request.ContentLength)
 	if err == nil {
 		err = Decode(body, dst)
 	}

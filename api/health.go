@@ -58,7 +58,7 @@ func (s *Server) healthz(c *gin.Context) {
 // readyz says whether the store answers.
 //
 //	@Summary		Readiness
-//	@Description	200 when the catalog store answers a ping within 2 s, 503 otherwise.
+//	@Description	200 when the catalog store answers a ping within 2 s, 503 otherwise; 503 too for 30 s after the store said its disk was full (a 507), unless a write succeeds first, and while the service drains before it stops.
 //	@Tags			operations
 //	@Produce		json
 //	@Success		200	{object}	Health
@@ -67,6 +67,11 @@ func (s *Server) healthz(c *gin.Context) {
 func (s *Server) readyz(c *gin.Context) {
 	ctx, cancel := context.WithTimeout(c.Request.Context(), readyTimeout)
 	defer cancel()
+	if s.storeIsFull() {
+		s.logger(c).Warn("not ready: the store is full")
+		s.writeProblem(c, kindUnavailable.problem(c, "the store has no space left: new plans and catalog changes fail (507) until space is freed"))
+		return
+	}
 	if err := s.cfg.Catalog.Ping(ctx); err != nil {
 		detail := "the store does not answer"
 		if errors.Is(err, context.DeadlineExceeded) {

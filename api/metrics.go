@@ -15,6 +15,11 @@ import (
 //	scalematch_http_request_duration_seconds{method,route,status}  histogram, s
 //	scalematch_http_requests_in_flight                             gauge
 //	scalematch_planner_duration_seconds                            histogram, s
+//	scalematch_http_client_faults_total{kind}                      counter
+//
+// A client fault (kind short_body, malformed_body, body_timeout, client_gone) is
+// a request that failed by the client's doing: answered 400 or 408, or not at all
+// (status 499 in the request counter), and never counted among the 5xx.
 //
 // route is the route template ("/v1/facilities/:id"), or "unmatched".
 type metrics struct {
@@ -22,6 +27,8 @@ type metrics struct {
 	duration *prometheus.HistogramVec
 	inFlight prometheus.Gauge
 	planner  prometheus.Histogram
+	// clientFaults counts the client faults by kind.
+	clientFaults *prometheus.CounterVec
 }
 
 func newMetrics(reg *prometheus.Registry) (*metrics, error) {
@@ -44,6 +51,10 @@ func newMetrics(reg *prometheus.Registry) (*metrics, error) {
 			Help:    "Time the planner takes to optimise one plan, in seconds.",
 			Buckets: []float64{0.0001, 0.00025, 0.0005, 0.001, 0.0025, 0.005, 0.01, 0.025, 0.05, 0.1, 0.25, 0.5, 1},
 		}),
+		clientFaults: prometheus.NewCounterVec(prometheus.CounterOpts{
+			Name: "scalematch_http_client_faults_total",
+			Help: "Requests that failed by the client's doing (short_body, malformed_body, body_timeout, client_gone), counted apart from the service's 5xx faults.",
+		}, []string{"kind"}),
 	}
 	var err error
 	m.requests, err = register(reg, m.requests)
@@ -57,6 +68,9 @@ func newMetrics(reg *prometheus.Registry) (*metrics, error) {
 		return nil, err
 	}
 	if m.planner, err = register(reg, m.planner); err != nil {
+		return nil, err
+	}
+	if m.clientFaults, err = register(reg, m.clientFaults); err != nil {
 		return nil, err
 	}
 	// The Go runtime and process collectors; a registry that has them already keeps

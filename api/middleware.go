@@ -8,6 +8,7 @@ import (
 	"log/slog"
 	"net/http"
 	"runtime/debug"
+	"strings"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -92,8 +93,14 @@ func (s *Server) observe(c *gin.Context) {
 	r := route(c)
 	s.metrics.observeRequest(c.Request.Method, r, status, d)
 	level := slog.LevelInfo
-	if status >= 500 {
+	switch {
+	case status == http.StatusServiceUnavailable, status == http.StatusInsufficientStorage:
+		// The store's condition, logged when it was met; not a fault of the code.
+		level = slog.LevelWarn
+	case status >= 500:
 		level = slog.LevelError
+	case status < 300 && (r == "/v1/plans" || r == "/v1/plans/batch" || strings.HasPrefix(r, "/v1/facilities") && c.Request.Method != http.MethodGet):
+		s.storeWritten()
 	}
 	s.log.LogAttrs(c.Request.Context(), level, "request",
 		slog.String("request_id", RequestID(c.Request.Context())),

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"net/http"
+	"strconv"
 
 	"github.com/gin-gonic/gin"
 
@@ -29,12 +30,17 @@ const ContentTypeProblem = "application/problem+json"
 //	method-not-allowed     405  the route exists but not for this method
 //	not-acceptable         406  Accept names no format a chart is drawn in
 //	conflict               409  the id exists already
+//	request-timeout        408  the request body did not arrive in time
 //	precondition-failed    412  If-Match names a version that is no longer current
 //	body-too-large         413  the request body is larger than BodyLimit
+//	unsupported-media-type 415  the body is not JSON (Content-Type), or is encoded
 //	unprocessable          422  the input is valid but no plan satisfies the hard limits
 //	precondition-required  428  a change needs If-Match
 //	internal               500  a fault of the service; the log has the details
 //	unavailable            503  the store does not answer, or the request ran out of time
+//	                            (Retry-After: seconds to wait)
+//	insufficient-storage   507  the store's disk is full; the service reports itself
+//	                            unready (/readyz) until a write succeeds
 type Problem struct {
 	// Type identifies the kind of problem: "/problems/invalid-input" and so on.
 	Type string `json:"type" example:"/problems/invalid-input"`
@@ -70,12 +76,15 @@ var (
 	kindMethodNotAllowed     = problemKind{http.StatusMethodNotAllowed, "method-not-allowed", "Method not allowed"}
 	kindNotAcceptable        = problemKind{http.StatusNotAcceptable, "not-acceptable", "Not acceptable"}
 	kindConflict             = problemKind{http.StatusConflict, "conflict", "Conflict"}
+	kindRequestTimeout       = problemKind{http.StatusRequestTimeout, "request-timeout", "Request timeout"}
 	kindPreconditionFailed   = problemKind{http.StatusPreconditionFailed, "precondition-failed", "Precondition failed"}
+	kindUnsupportedMedia     = problemKind{http.StatusUnsupportedMediaType, "unsupported-media-type", "Unsupported media type"}
 	kindBodyTooLarge         = problemKind{http.StatusRequestEntityTooLarge, "body-too-large", "Request body too large"}
 	kindUnprocessable        = problemKind{http.StatusUnprocessableEntity, "unprocessable", "No feasible plan"}
 	kindPreconditionRequired = problemKind{http.StatusPreconditionRequired, "precondition-required", "Precondition required"}
 	kindInternal             = problemKind{http.StatusInternalServerError, "internal", "Internal error"}
 	kindUnavailable          = problemKind{http.StatusServiceUnavailable, "unavailable", "Service unavailable"}
+	kindInsufficientStorage  = problemKind{http.StatusInsufficientStorage, "insufficient-storage", "Insufficient storage"}
 )
 
 // codeKinds maps each domain error code to its problem kind: the one place where
@@ -108,15 +117,22 @@ func (k problemKind) problem(c *gin.Context, detail string) Problem {
 //	atmosphere.ErrRange                    400
 //	*http.MaxBytesError                    413
 //	notAcceptableError                     406
+//	*clientFault                           400 or 408
+//	facilities.ErrStorageFull              507 (and /readyz unready)
+//	facilities.ErrUnavailable              503 with Retry-After
 //	context.DeadlineExceeded               503
 //	anything else                          500 "internal error", logged in full
 //
 // Handlers that embed a problem in a larger answer (the plan batch) call it directly;
 // the others call fail.
 func (s *Server) problem(c *gin.Context, err error) Problem {
+	if cl, ok := s.cfg.Catalog.(facilities.ErrorClassifier); ok {
+		err = cl.ClassifyError(err)
+	}
 	var de *facilities.Error
 	var mbe *http.MaxBytesError
 	var nae notAcceptableError
+	var cf *clientFault
 	switch {
 	case errors.As(err, &de):
 		k, ok := codeKinds[de.Code]
@@ -140,6 +156,16 @@ func (s *Server) problem(c *gin.Context, err error) Problem {
 		return kindInvalid.problem(c, err.Error())
 	case errors.As(err, &mbe):
 		return kindBodyTooLarge.problem(c, fmt.Sprintf("the request body is larger than %d bytes", mbe.Limit))
+	case errors.As(err, &cf):
+		s.metrics.clientFaults.WithLabelValues(cf.metric).Inc()
+		return cf.kind.problem(c, cf.msg)
+	case errors.Is(err, facilities.ErrStorageFull):
+		s.storeFull()
+		s.logger(c).Warn("store full", "error", err.Error())
+		return kindInsufficientStorage.problem(c, "the store has no space left: changes and new plans cannot be stored until space is freed; reads still work")
+	case errors.Is(err, facilities.ErrUnavailable):
+		s.logger(c).Warn("store unavailable", "error", err.Error())
+		return kindUnavailable.problem(c, fmt.Sprintf("the store does not answer; try again in %d s", retryAfterSeconds))
 	case errors.Is(err, context.DeadlineExceeded):
 		s.logger(c).Warn("request ran out of time", "error", err.Error())
 		return kindUnavailable.problem(c, "the request ran out of time; try again")
@@ -156,14 +182,24 @@ func countFields(n int) string {
 }
 
 // fail answers the request with the problem for err and stops the handler chain.
+// A client that has gone (errClientGone, or the request's context cancelled) gets
+// no answer: the request is logged and counted with StatusClientClosed.
 func (s *Server) fail(c *gin.Context, err error) {
+	if errors.Is(err, errClientGone) || errors.Is(err, context.Canceled) && c.Request.Context().Err() != nil {
+		s.metrics.clientFaults.WithLabelValues("client_gone").Inc()
+		c.AbortWithStatus(StatusClientClosed)
+		return
+	}
 	s.writeProblem(c, s.problem(c, err))
 }
 
 // writeProblem writes p as application/problem+json and stops the handler chain.
 func (s *Server) writeProblem(c *gin.Context, p Problem) {
-	if p.Status == http.StatusUnauthorized {
+	switch p.Status {
+	case http.StatusUnauthorized:
 		c.Header("WWW-Authenticate", `Bearer realm="scalematch"`)
+	case http.StatusServiceUnavailable:
+		c.Header("Retry-After", strconv.Itoa(retryAfterSeconds))
 	}
 	c.Abort()
 	c.Render(p.Status, problemRender{p})

@@ -63,6 +63,8 @@ type Server struct {
 	// between requests (plancache.go).
 	facilities *facilityCache
 	plans      *storedPlans
+	// store remembers a full disk, for /readyz (faults.go).
+	store storeState
 }
 
 // New builds the service: the gin router in release mode with the request-id,
