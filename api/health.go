@@ -58,7 +58,7 @@ func (s *Server) healthz(c *gin.Context) {
 // readyz says whether the store answers.
 //
 //	@Summary		Readiness
-//	@Description	200 when the catalog store answers a ping within 2 s, 503 otherwise; 503 too for 30 s after the store said its disk was full (a 507), unless a write succeeds first, and while the service drains before it stops.
+//	@Description	200 when the catalog store answers a ping within 2 s, 503 otherwise; 503 too for 30 s after the store said its disk was full (a 507), unless a write succeeds first.
 //	@Tags			operations
 //	@Produce		json
 //	@Success		200	{object}	Health
