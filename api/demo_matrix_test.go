@@ -56,8 +56,9 @@ var matrixAircrafts = []matrixAircraft{
 // (facilities.Installation). The masses are hand estimates of a metric model
 // sized for each section, well inside each balance's normal rating on their own:
 // 40 kg is 392 N against ext-6c's 5600 N and int-a's 2400 N allowed; 2 kg in
-// water is 19.6 N against hyd-s's 120 N allowed (normal ratings over their safety
-// factor 1.5, docs/demo-world.md).
+// water is 19.6 N against hyd-s's 120 N allowed and 10 kg is 98 N against hyd-m's
+// 1300 N (normal ratings over their safety factors, 1.5 and for hyd-m 2.0,
+// docs/demo-world.md).
 type matrixFacility struct {
 	id       string
 	mass     float64 // kg
@@ -71,6 +72,7 @@ var matrixFacilities = []matrixFacility{
 	{"tsw-1", 20, 2, false},
 	{"cn2-05", 8, 1, false},
 	{"wtn-04", 2, 1, true},
+	{"cvt-07", 10, 1, true},
 }
 
 // matrixInfeasible lists the combinations expected to answer 422. None: the
@@ -177,8 +179,13 @@ func checkMatrixReport(t *testing.T, r *facilities.LoadReport, q float64, within
 	if len(r.Points) != len(alphas) {
 		t.Fatalf("balance %s: %d load points, want %d", r.BalanceID, len(r.Points), len(alphas))
 	}
-	if r.SafetyFactor != 1.5 || math.Abs(r.AllowedUtilization-1/1.5) > 1e-12 {
-		t.Errorf("balance %s: safety factor %g, allowed %g; every demo balance of this facility has 1.5 (docs/demo-world.md)", r.BalanceID, r.SafetyFactor, r.AllowedUtilization)
+	// Safety factors of the demo balances (docs/demo-world.md).
+	wantSF := map[string]float64{"hyd-m": 2.0}[r.BalanceID]
+	if wantSF == 0 {
+		wantSF = 1.5
+	}
+	if r.SafetyFactor != wantSF || math.Abs(r.AllowedUtilization-1/wantSF) > 1e-12 {
+		t.Errorf("balance %s: safety factor %g, allowed %g; want %g (docs/demo-world.md)", r.BalanceID, r.SafetyFactor, r.AllowedUtilization, wantSF)
 	}
 	worst := 0.0
 	for i, p := range r.Points {

@@ -892,14 +892,17 @@ func Cautions(f *Facility, reports ...LoadReport) []string {
 	if f == nil {
 		return out
 	}
-	p := f.StagnationPressure
+	p, what := f.StagnationPressure, "stagnation pressure"
+	if f.StaticPressure != nil {
+		p, what = *f.StaticPressure, "test-section static pressure"
+	}
 	if p.Max > pressureCautionAbove {
-		out = append(out, fmt.Sprintf("Facility %s is a pressure vessel (stagnation pressure up to %.0f kPa): only its certified pressure limits and its pressurisation procedures apply; access to the circuit and model changes need it vented first.",
-			f.ID, p.Max/1000))
+		out = append(out, fmt.Sprintf("Facility %s is a pressure vessel (%s up to %.0f kPa): only its certified pressure limits and its pressurisation procedures apply; access to the circuit and model changes need it vented first.",
+			f.ID, what, p.Max/1000))
 	}
 	if !p.Fixed() && p.Min < subAtmosphericBelow {
-		out = append(out, fmt.Sprintf("Facility %s runs below atmospheric pressure (stagnation pressure down to %.0f kPa): the circuit is loaded from outside and can buckle or implode, hatches and windows are held by the pressure difference, and a leak draws air or water in; only its certified vacuum limits and its procedures apply, and access needs it brought back to ambient first.",
-			f.ID, p.Min/1000))
+		out = append(out, fmt.Sprintf("Facility %s runs below atmospheric pressure (%s down to %.0f kPa): the circuit is loaded from outside and can buckle or implode, hatches and windows are held by the pressure difference, and a leak draws air or water in; only its certified vacuum limits and its procedures apply, and access needs it brought back to ambient first.",
+			f.ID, what, p.Min/1000))
 	}
 	if f.Medium.Kind != MediumWater && f.StagnationTemperature.Min > 0 && f.StagnationTemperature.Min < cryogenicBelow {
 		out = append(out, fmt.Sprintf("Facility %s runs cold (stagnation temperature down to %.0f K): cold gas and cold surfaces burn skin and embrittle materials; follow the facility's cold-running and warm-up procedures, and check the model's materials, fits and balance calibration at the test temperature.",

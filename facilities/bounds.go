@@ -119,6 +119,7 @@ func Bounds() map[string]Bound {
 		"facilities.Facility.mach":                             BoundMach,
 		"facilities.Facility.speed":                            BoundSpeed,
 		"facilities.Facility.stagnation_pressure":              BoundStagnationPressure,
+		"facilities.Facility.static_pressure":                  BoundStagnationPressure,
 		"facilities.Facility.stagnation_temperature":           BoundStagnationTemperature,
 		"facilities.Facility.max_dynamic_pressure":             BoundDynamicPressure,
 		"facilities.Facility.max_reynolds_per_meter":           BoundReynoldsPerMeter,

@@ -4,13 +4,16 @@ import (
 	"context"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
 )
 
 func TestDemoDecodes(t *testing.T) {
 	got := facilities.Demo()
-	if len(got) != 5 {
-		t.Fatalf("demo catalog has %d facilities, want 5", len(got))
+	if len(got) != 6 {
+		t.Fatalf("demo catalog has %d facilities, want 6", len(got))
 	}
 	if _, ok := facilities.DemoFacility("tsw-1"); !ok {
 		t.Fatal("tsw-1 missing from the demo catalog")
@@ -21,8 +24,8 @@ func TestDemoCatalogIsReadOnly(t *testing.T) {
 	ctx := context.Background()
 	var c facilities.DemoCatalog
 	fs, err := c.Facilities(ctx)
-	if err != nil || len(fs) != 5 {
-		t.Fatalf("Facilities: %d, %v; want the 5 demo facilities", len(fs), err)
+	if err != nil || len(fs) != 6 {
+		t.Fatalf("Facilities: %d, %v; want the 6 demo facilities", len(fs), err)
 	}
 	for i := 1; i < len(fs); i++ {
 		if fs[i-1].ID >= fs[i].ID {
@@ -48,4 +51,46 @@ func TestDemoCatalogIsReadOnly(t *testing.T) {
 	if _, err := c.Plan(ctx, "abc"); facilities.ErrorCode(err) != facilities.CodeNotFound {
 		t.Errorf("plan: %v, want not_found", err)
 	}
+}
+
+// TestHeldStaticPressure checks the water state of a facility that sets its
+// test-section static pressure independently of speed (cvt-07, 15–260 kPa) against
+// one that does not (wtn-04, p0 = 101 kPa): cvt-07 holds p at its range's top
+// (260 kPa) and p0 = p + q; wtn-04 keeps p = p0 − q. Water is incompressible here,
+// so both give the same Reynolds number per metre and q at the same speed and
+// temperature (identities of the definitions q = ½ρV², Re/m = ρV/μ).
+func TestHeldStaticPressure(t *testing.T) {
+	cvt, ok := facilities.DemoFacility("cvt-07")
+	require.True(t, ok)
+	wtn, ok := facilities.DemoFacility("wtn-04")
+	require.True(t, ok)
+	require.NoError(t, cvt.Validate())
+	require.Equal(t, 260000.0, cvt.HeldStaticPressure())
+
+	held, err := cvt.State(facilities.Setting{Speed: 3, StagnationTemperature: 293.15})
+	require.NoError(t, err)
+	open, err := wtn.State(facilities.Setting{Speed: 3, StagnationPressure: 101000, StagnationTemperature: 293.15})
+	require.NoError(t, err)
+	cases := []struct {
+		name      string
+		got, want float64
+		tol       float64 // relative
+	}{
+		{"cvt-07 static pressure, Pa", held.Static.Pressure, 260000, 1e-15},
+		{"cvt-07 stagnation pressure = p + q, Pa", held.StagnationPressure, 260000 + held.DynamicPressure, 1e-15},
+		{"wtn-04 static pressure = p0 − q, Pa", open.Static.Pressure, 101000 - open.DynamicPressure, 1e-15},
+		{"same q, Pa", held.DynamicPressure, open.DynamicPressure, 1e-15},
+		{"same Re/m, 1/m", held.ReynoldsPerMeter, open.ReynoldsPerMeter, 1e-15},
+	}
+	for _, c := range cases {
+		assert.InDelta(t, c.want, c.got, c.tol*c.want, c.name)
+	}
+	assert.Empty(t, cvt.Violations(held))
+
+	// A stagnation pressure given to cvt-07 is refused, naming the field.
+	_, err = cvt.State(facilities.Setting{Speed: 3, StagnationPressure: 150000, StagnationTemperature: 293.15})
+	var fe *facilities.Error
+	require.ErrorAs(t, err, &fe)
+	require.Len(t, fe.Fields, 1)
+	assert.Equal(t, "stagnation_pressure", fe.Fields[0].Field)
 }

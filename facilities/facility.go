@@ -23,6 +23,12 @@ type Facility struct {
 	// StagnationPressure is the stagnation (total) pressure range in Pa; Min = Max
 	// means fixed, as in an atmospheric tunnel.
 	StagnationPressure Range `json:"stagnation_pressure" unit:"Pa"`
+	// StaticPressure is the test-section static pressure range in Pa of a water
+	// facility that sets it independently of speed (a cavitation tunnel); nil: the
+	// static pressure follows from the stagnation pressure, p = p0 − q. With it the
+	// record gives no stagnation_pressure: the test-section state holds the static
+	// pressure at HeldStaticPressure and the stagnation pressure follows, p0 = p + q.
+	StaticPressure *Range `json:"static_pressure,omitempty" unit:"Pa"`
 	// StagnationTemperature is the stagnation (total) temperature range in K.
 	StagnationTemperature Range `json:"stagnation_temperature" unit:"K"`
 	// MaxDynamicPressure is the largest free-stream dynamic pressure in Pa; nil: no limit.
@@ -50,6 +56,19 @@ type Facility struct {
 	Balances []Balance `json:"balances,omitempty"`
 	// Operations are the times used to estimate a test's schedule; nil: no schedule.
 	Operations *Operations `json:"operations,omitempty"`
+}
+
+// HeldStaticPressure is the test-section static pressure in Pa at which the
+// test-section state and the planner hold a facility with a StaticPressure range:
+// its maximum. Water is incompressible here, so the pressure changes no similarity
+// group and the Reynolds number does not depend on it; the top of the range keeps
+// the most margin against cavitation, which is not checked (the same rule as the
+// maximum stagnation pressure of other water facilities). 0 without a range.
+func (f *Facility) HeldStaticPressure() float64 {
+	if f.StaticPressure == nil {
+		return 0
+	}
+	return f.StaticPressure.Max
 }
 
 // Range is a closed interval [Min, Max]; Min = Max means a fixed value. Its unit is

@@ -32,7 +32,10 @@ const settingMessage = "test-section setting is invalid"
 //
 // Water (incompressible): s.Speed is the speed and s.Mach must be 0; T = T0,
 // ρ and μ from WaterDensity and WaterViscosity, static p = p0 − q, Mach 0 and
-// SpeedOfSound 0 (the model has no compressibility), Z = 1.
+// SpeedOfSound 0 (the model has no compressibility), Z = 1. A facility with a
+// StaticPressure range holds its static pressure at HeldStaticPressure and
+// p0 = p + q; s.StagnationPressure is 0 or that p0 (to 1e-9), anything else is
+// refused.
 //
 // Bad settings give a *Error with CodeInvalid naming every bad field ("mach",
 // "speed", "stagnation_pressure", "stagnation_temperature", or "medium" when the
@@ -139,7 +142,14 @@ func checkStagnation(s Setting, errs []FieldError) []FieldError {
 // waterState is State for water.
 func (f *Facility) waterState(s Setting) (State, error) {
 	var errs []FieldError
-	errs = checkStagnation(s, errs)
+	held := f.StaticPressure != nil
+	if held {
+		// The facility sets its static pressure: hold it at HeldStaticPressure (the
+		// stagnation pressure, if given, is checked against p + q below).
+		errs = checkStagnation(Setting{StagnationPressure: f.HeldStaticPressure(), StagnationTemperature: s.StagnationTemperature}, errs)
+	} else {
+		errs = checkStagnation(s, errs)
+	}
 	if s.Mach != 0 {
 		errs = append(errs, FieldError{Field: "mach", Message: "water facilities take a speed: Mach is not a setting in water"})
 	}
@@ -157,7 +167,16 @@ func (f *Facility) waterState(s Setting) (State, error) {
 	rho := WaterDensity(t)
 	mu := WaterViscosity(t, rho)
 	q := 0.5 * rho * v * v
-	p := s.StagnationPressure - q
+	p0 := s.StagnationPressure
+	if held {
+		p0 = f.HeldStaticPressure() + q
+		if given := s.StagnationPressure; given != 0 && !(math.Abs(given-p0) <= 1e-9*p0) {
+			return State{}, Invalid(settingMessage, []FieldError{{Field: "stagnation_pressure", Message: fmt.Sprintf(
+				"%g Pa: facility %s sets its test-section static pressure (held at %g Pa) and the stagnation pressure follows, p0 = p + q = %.10g Pa at %g m/s: leave it out",
+				given, f.ID, f.HeldStaticPressure(), p0, v)}})
+		}
+	}
+	p := p0 - q
 	if !(p > 0) {
 		return State{}, Invalid(settingMessage, []FieldError{{Field: "speed", Message: fmt.Sprintf(
 			"%g m/s gives a dynamic pressure of %.4g Pa, more than the stagnation pressure %g Pa: the static pressure would not be positive",
@@ -165,7 +184,7 @@ func (f *Facility) waterState(s Setting) (State, error) {
 	}
 	return State{
 		Speed:                 v,
-		StagnationPressure:    s.StagnationPressure,
+		StagnationPressure:    p0,
 		StagnationTemperature: t,
 		Static: Static{
 			Temperature:     t,

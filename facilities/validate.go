@@ -51,7 +51,9 @@ const invalidFacility = "facility is invalid"
 //     to MaxSettingMach, speed from 0 to MaxSpeed;
 //   - stagnation_pressure and stagnation_temperature: min ≤ max, within
 //     BoundStagnationPressure and Medium.TemperatureBound (water 0–150 °C, nitrogen
-//     above its triple point);
+//     above its triple point); static_pressure (water only) instead of
+//     stagnation_pressure: min ≤ max within BoundStagnationPressure, and then no
+//     stagnation_pressure;
 //   - optional limits, each within its Bound (bounds.go): max_dynamic_pressure,
 //     max_reynolds_per_meter, max_span_fraction, max_blockage,
 //     lift_interference_factor, condensation_peak_mach;
@@ -122,7 +124,17 @@ func (f *Facility) Validate() error {
 	}
 
 	// Stagnation conditions.
-	rangeBound(&e, "stagnation_pressure", f.StagnationPressure, BoundStagnationPressure)
+	if f.StaticPressure != nil {
+		if !liquid {
+			add("static_pressure", "only a water facility may set its test-section static pressure independently of speed; a gas facility states stagnation_pressure")
+		}
+		rangeBound(&e, "static_pressure", *f.StaticPressure, BoundStagnationPressure)
+		if f.StagnationPressure != (Range{}) {
+			add("stagnation_pressure", "leave it out: with static_pressure the stagnation pressure follows from the static pressure and the speed, p0 = p + q")
+		}
+	} else {
+		rangeBound(&e, "stagnation_pressure", f.StagnationPressure, BoundStagnationPressure)
+	}
 	rangeBound(&e, "stagnation_temperature", f.StagnationTemperature, f.Medium.TemperatureBound())
 
 	// Optional limits.

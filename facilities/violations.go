@@ -11,7 +11,8 @@ import (
 const limitTolerance = 1e-9
 
 // Violations lists every facility limit that state st breaks, in this order: Mach
-// range (gas media), speed range, stagnation pressure and temperature ranges, maximum
+// range (gas media), speed range, stagnation pressure (or, with StaticPressure, the
+// test-section static pressure) and temperature ranges, maximum
 // dynamic pressure, maximum Reynolds number per metre, and condensation (nitrogen:
 // CondensationMargin below 0, reported with Value the margin and Limit 0). Value and
 // Limit are in the limit's SI unit. Ranges are checked with a relative slack of
@@ -25,7 +26,11 @@ func (f *Facility) Violations(st State) []Violation {
 	if f.Speed != nil {
 		v = checkRange(v, st.Speed, *f.Speed, ConstraintSpeedMin, ConstraintSpeedMax, "speed", " m/s", "%.4g")
 	}
-	v = checkRange(v, st.StagnationPressure, f.StagnationPressure, ConstraintPressureMin, ConstraintPressureMax, "stagnation pressure", " Pa", "%.6g")
+	if f.StaticPressure != nil {
+		v = checkRange(v, st.Static.Pressure, *f.StaticPressure, ConstraintStaticPressureMin, ConstraintStaticPressureMax, "test-section static pressure", " Pa", "%.6g")
+	} else {
+		v = checkRange(v, st.StagnationPressure, f.StagnationPressure, ConstraintPressureMin, ConstraintPressureMax, "stagnation pressure", " Pa", "%.6g")
+	}
 	v = checkRange(v, st.StagnationTemperature, f.StagnationTemperature, ConstraintTempMin, ConstraintTempMax, "stagnation temperature", " K", "%.5g")
 	if lim := f.MaxDynamicPressure; lim != nil && above(st.DynamicPressure, *lim) {
 		v = append(v, Violation{Constraint: ConstraintDynamic, Value: st.DynamicPressure, Limit: *lim,

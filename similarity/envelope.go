@@ -67,6 +67,10 @@ func (sv *solver) tradePoint(u, s float64) TradePoint {
 	tp.Reynolds = x.r * s * sv.L
 	tp.ReynoldsPerMeter = x.r
 	tp.StagnationPressure = x.p0
+	if sv.f.StaticPressure != nil {
+		// The facility holds its static pressure; p0 follows, p + q.
+		tp.StagnationPressure = sv.f.HeldStaticPressure() + x.q
+	}
 	tp.StagnationTemperature = x.t0
 	tp.DynamicPressure = x.q
 	tp.Limit = x.capHi

@@ -241,7 +241,7 @@ func plannable(f *facilities.Facility) bool {
 	}
 	ts := f.TestSection
 	return pos(ts.Width) && pos(ts.Height) && pos(ts.CrossSection()) &&
-		rng(&f.StagnationPressure, true) && rng(&f.StagnationTemperature, true) &&
+		(rng(&f.StagnationPressure, true) || f.StaticPressure != nil && rng(f.StaticPressure, true)) && rng(&f.StagnationTemperature, true) &&
 		rng(f.Mach, false) && rng(f.Speed, false) && (f.Mach != nil || f.Speed != nil) &&
 		opt(f.MaxDynamicPressure) && opt(f.MaxReynoldsPerMeter) && opt(f.MaxSpanFraction) && opt(f.MaxBlockage)
 }

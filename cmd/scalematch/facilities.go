@@ -173,7 +173,7 @@ func listTable(w io.Writer, fs []facilities.Facility, where string) error {
 		}
 		fmt.Fprintf(tw, "%s\t%d\t%s\t%.2f × %.2f\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
 			f.ID, f.Version, f.Medium.Kind, f.TestSection.Width, f.TestSection.Height, f.TestSection.Walls,
-			rangeText(f.Mach, 1, 2), rangeText(f.Speed, 1, 1), rangeText(&f.StagnationPressure, 1e-3, 1),
+			rangeText(f.Mach, 1, 2), rangeText(f.Speed, 1, 1), rangeText(stagnationRange(&f), 1e-3, 1),
 			rangeText(&f.StagnationTemperature, 1, 0), optText(f.MaxDynamicPressure, 1e-3, 1), strings.Join(ids, ", "))
 	}
 	return tw.Flush()
@@ -191,7 +191,8 @@ func showTable(w io.Writer, f facilities.Facility, where string) error {
 			f.TestSection.Width, f.TestSection.Height, f.TestSection.Length, f.TestSection.Walls, f.TestSection.CrossSection())},
 		{"Mach", rangeText(f.Mach, 1, 3)},
 		{"speed (m/s)", rangeText(f.Speed, 1, 2)},
-		{"stagnation pressure (Pa)", rangeText(&f.StagnationPressure, 1, 0)},
+		{"stagnation pressure (Pa)", rangeText(stagnationRange(&f), 1, 0)},
+		{"test-section static pressure (Pa)", rangeText(f.StaticPressure, 1, 0)},
 		{"stagnation temperature (K)", rangeText(&f.StagnationTemperature, 1, 2)},
 		{"max dynamic pressure (Pa)", optText(f.MaxDynamicPressure, 1, 0)},
 		{"max Reynolds number per metre (1/m)", optText(f.MaxReynoldsPerMeter, 1, 0)},
@@ -213,4 +214,13 @@ func showTable(w io.Writer, f facilities.Facility, where string) error {
 	fmt.Fprintln(tw)
 	fmt.Fprintln(tw, "Ratings as recorded in the catalog; the facility's approved limits and procedures govern.")
 	return tw.Flush()
+}
+
+// stagnationRange is the facility's stagnation pressure range, nil (shown as "-")
+// for a water facility that sets its static pressure instead.
+func stagnationRange(f *facilities.Facility) *facilities.Range {
+	if f.StaticPressure != nil {
+		return nil
+	}
+	return &f.StagnationPressure
 }
