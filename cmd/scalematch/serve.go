@@ -21,6 +21,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/facilities/postgres"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/pages"
 )
 
 // Environment variables read by serve besides the SCALEMATCH_<FLAG> of each flag.
@@ -49,7 +50,9 @@ func newServeCmd() *cobra.Command {
 		Use:   "serve",
 		Short: "Run the HTTP service",
 		Long: `Run the HTTP service until SIGTERM or SIGINT, then finish the requests in
-flight, close the store and exit.
+flight, close the store and exit. Besides the JSON API under /v1 it serves HTML
+pages: / (the facilities), /facilities/{id}, /plans/{id} (a printable plan
+report) and /check (a load-check form).
 
 Every flag may also be set by SCALEMATCH_<FLAG> (SCALEMATCH_ADDR, SCALEMATCH_DATA,
 SCALEMATCH_NO_DEMO); a flag on the command line wins.
@@ -182,6 +185,11 @@ func serve(ctx context.Context, o serveOptions, logw io.Writer) (err error) {
 	if err != nil {
 		return err
 	}
+	pg, err := pages.New(srv, log)
+	if err != nil {
+		return err
+	}
+	pg.Register(srv)
 	var lc net.ListenConfig
 	ln, err := lc.Listen(ctx, "tcp", o.addr)
 	if err != nil {

@@ -207,3 +207,7 @@ func (reynoldsTicks) Ticks(lo, hi float64) []plot.Tick {
 
 // percent formats a fraction as a percentage with no decimals.
 func percent(f float64) string { return fmt.Sprintf("%.0f %%", 100*f) }
+
+// Number formats v with digits significant digits as the charts label it:
+// plainly from 10⁻³ to 10⁴, else as "4.2×10⁷". The pages use it too.
+func Number(v float64, digits int) string { return sci(v, digits) }
