@@ -24,6 +24,7 @@ const (
 	poundForceN  = poundKg * atmosphere.G0       // N, 4.4482216152605
 	slugKg       = poundForceN / footM           // kg, 14.593902937206
 	psfPa        = poundForceN / (footM * footM) // Pa, 47.880258980336
+	psiPa        = 144 * psfPa                   // Pa, 6894.7572931684 (lbf/in²)
 	inchHgPa     = 3386.389                      // Pa, conventional inch of mercury
 	rankinePerK  = 1.8                           // °R per K
 	fahrenheit0R = 459.67                        // °R at 0 °F

@@ -91,12 +91,7 @@ func writeLoadCheck(w io.Writer, r *api.LoadsResponse, us bool) error {
 		section(w, "Against the flight")
 		row("flight Mach number", "%.4f", r.Flight.Mach)
 		row("flight Reynolds number", "%.4g", r.Flight.Reynolds)
-		row("Re test / Re flight", "%.4g", r.Mismatch.ReynoldsRatio)
-		if d := r.Mismatch.MachDifference; d != nil {
-			row("M test - M flight", "%+.4f", *d)
-		} else {
-			row("M test - M flight", "%s", "not a target in water")
-		}
+		writeMismatch(row, *r.Mismatch)
 		tw.Flush()
 	}
 

@@ -16,6 +16,7 @@ import (
 	"scalematch/api"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/similarity"
 )
 
 // knotMS is the international knot in m/s (1852 m per hour, NIST SP 811).
@@ -246,13 +247,17 @@ func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.Plan
 }
 
 // units formats quantities in SI and, when us is set, in U.S. customary units
-// beside them (NIST SP 811 conversion factors, as the atmosphere command uses).
+// beside them (NIST SP 811 conversion factors, as the atmosphere command uses):
+// absolute pressures (unit "Pa abs": stagnation and static) in psia, dynamic
+// pressure in psf, speeds in ft/s (flight airspeeds, unit "m/s kt", in knots too),
+// forces in lbf, moments in ft·lbf.
 type units struct{ us bool }
 
 // q formats v in SI unit unit, with its U.S. customary equivalent when u.us and
 // the unit has one; digits is the number of significant digits.
 func (u units) q(v float64, unit string, digits int) string {
-	s := fmt.Sprintf("%.*g %s", digits, v, unit)
+	shown := strings.TrimSuffix(strings.TrimSuffix(unit, " abs"), " kt")
+	s := fmt.Sprintf("%.*g %s", digits, v, shown)
 	if math.IsInf(v, 1) {
 		return "unlimited"
 	}
@@ -267,13 +272,17 @@ func (u units) q(v float64, unit string, digits int) string {
 	case "m²":
 		c, cu = v/(footM*footM), "ft²"
 	case "m/s":
-		c, cu = v/knotMS, "kt"
+		c, cu = v/footM, "ft/s"
+	case "m/s kt":
+		return fmt.Sprintf("%s (%.*g ft/s, %.*g kt)", s, digits, v/footM, digits, v/knotMS)
 	case "Pa":
 		c, cu = v/psfPa, "psf"
+	case "Pa abs":
+		c, cu = v/psiPa, "psia"
 	case "N":
 		c, cu = v/poundForceN, "lbf"
 	case "N·m":
-		c, cu = v/(poundForceN*footM), "lbf·ft"
+		c, cu = v/(poundForceN*footM), "ft·lbf"
 	case "K":
 		c, cu = v*rankinePerK, "°R"
 	case "kg/m³":
@@ -292,8 +301,8 @@ func (u units) q(v float64, unit string, digits int) string {
 var bindingUnits = map[string]string{
 	facilities.ConstraintSpeedMin:     "m/s",
 	facilities.ConstraintSpeedMax:     "m/s",
-	facilities.ConstraintPressureMin:  "Pa",
-	facilities.ConstraintPressureMax:  "Pa",
+	facilities.ConstraintPressureMin:  "Pa abs",
+	facilities.ConstraintPressureMax:  "Pa abs",
 	facilities.ConstraintTempMin:      "K",
 	facilities.ConstraintTempMax:      "K",
 	facilities.ConstraintDynamic:      "Pa",
@@ -327,9 +336,9 @@ func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 	section(w, "Flight")
 	row("Mach number", "%.4f", fl.Mach)
 	row("Reynolds number", "%.4g on %s", fl.Reynolds, u.q(fl.ReferenceLength, "m", 4))
-	row("true airspeed", "%s", u.q(fl.TrueAirspeed, "m/s", 4))
-	row("calibrated airspeed", "%s", u.q(fl.CalibratedAirspeed, "m/s", 4))
-	row("equivalent airspeed", "%s", u.q(fl.EquivalentAirspeed, "m/s", 4))
+	row("true airspeed", "%s", u.q(fl.TrueAirspeed, "m/s kt", 4))
+	row("calibrated airspeed", "%s", u.q(fl.CalibratedAirspeed, "m/s kt", 4))
+	row("equivalent airspeed", "%s", u.q(fl.EquivalentAirspeed, "m/s kt", 4))
 	row("dynamic pressure", "%s", u.q(fl.DynamicPressure, "Pa", 5))
 	writeStatic(row, u, fl.Static)
 	flush()
@@ -349,15 +358,7 @@ func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 	flush()
 
 	section(w, "Mismatch")
-	row("Re test / Re flight", "%.4g", r.Mismatch.ReynoldsRatio)
-	if d := r.Mismatch.MachDifference; d != nil {
-		row("M test - M flight", "%+.4f", *d)
-	} else {
-		row("M test - M flight", "%s", "not a target in water")
-	}
-	if r.Mismatch.FroudeRatio != 0 {
-		row("Fr test / Fr flight", "%.4g", r.Mismatch.FroudeRatio)
-	}
+	writeMismatch(row, r.Mismatch)
 	flush()
 
 	section(w, "Binding limits (Reynolds gain for 1 % more of each)")
@@ -408,10 +409,33 @@ func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 	return tw.Flush()
 }
 
+// matchedWord says whether a group is matched, as the answer decided it.
+func matchedWord(ok bool) string {
+	if ok {
+		return "matched"
+	}
+	return "not matched"
+}
+
+// writeMismatch adds the mismatch rows, each group with the answer's own verdict
+// (reynolds_matched, mach_matched, froude_matched), so that nothing is decided
+// again from rounded figures.
+func writeMismatch(row func(string, string, ...any), m similarity.Mismatch) {
+	row("Re test / Re flight", "%.4g (%s within %.1f %%)", m.ReynoldsRatio, matchedWord(m.ReynoldsMatched), 100*similarity.RatioMatchBand)
+	if d := m.MachDifference; d != nil && m.MachMatched != nil {
+		row("M test - M flight", "%+.4f (%s within ±%.4g)", *d, matchedWord(*m.MachMatched), m.MachTolerance)
+	} else {
+		row("M test - M flight", "%s", "not a target in water")
+	}
+	if m.FroudeRatio != 0 && m.FroudeMatched != nil {
+		row("Fr test / Fr flight", "%.4g (%s within %.1f %%)", m.FroudeRatio, matchedWord(*m.FroudeMatched), 100*similarity.RatioMatchBand)
+	}
+}
+
 // writeStatic adds the static state's rows.
 func writeStatic(row func(string, string, ...any), u units, s facilities.Static) {
 	row("static temperature", "%s", u.q(s.Temperature, "K", 5))
-	row("static pressure", "%s", u.q(s.Pressure, "Pa", 5))
+	row("static pressure", "%s", u.q(s.Pressure, "Pa abs", 5))
 	row("density", "%s", u.q(s.Density, "kg/m³", 4))
 }
 
@@ -423,7 +447,7 @@ func writeTest(row func(string, string, ...any), u units, st facilities.State, r
 		row("Mach number", "%s", "not used (incompressible medium)")
 	}
 	row("speed", "%s", u.q(st.Speed, "m/s", 4))
-	row("stagnation pressure", "%s", u.q(st.StagnationPressure, "Pa", 5))
+	row("stagnation pressure", "%s", u.q(st.StagnationPressure, "Pa abs", 5))
 	row("stagnation temperature", "%s", u.q(st.StagnationTemperature, "K", 5))
 	row("dynamic pressure", "%s", u.q(st.DynamicPressure, "Pa", 5))
 	row("Reynolds number", "%.4g on the model", reynolds)
@@ -491,27 +515,35 @@ func writeLoads(w io.Writer, u units, r facilities.LoadReport) {
 	section(w, fmt.Sprintf("Loads on balance %s at q %s (safety factor %.3g: at most %.1f %% of any rating)",
 		r.BalanceID, u.q(r.DynamicPressure, "Pa", 5), r.SafetyFactor, 100*r.AllowedUtilization))
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	force, moment := "N", "N·m"
-	fconv, mconv := 1.0, 1.0
-	if u.us {
-		force, moment = "lbf", "lbf·ft"
-		fconv, mconv = 1/poundForceN, 1/(poundForceN*footM)
-	}
 	side := false
 	for _, p := range r.Points {
 		side = side || p.Beta != 0 || p.Side != 0 || p.RollingMoment != 0 || p.YawingMoment != 0
 	}
-	head := []string{"α °", "β °", "normal " + force, "axial " + force, "pitching " + moment}
-	if side {
-		head = append(head, "side "+force, "rolling "+moment, "yawing "+moment)
+	// The SI columns always; with --units us the U.S. customary ones beside them.
+	type system struct {
+		force, moment string
+		fconv, mconv  float64
+	}
+	systems := []system{{"N", "N·m", 1, 1}}
+	if u.us {
+		systems = append(systems, system{"lbf", "ft·lbf", 1 / poundForceN, 1 / (poundForceN * footM)})
+	}
+	head := []string{"α °", "β °"}
+	for _, sy := range systems {
+		head = append(head, "normal "+sy.force, "axial "+sy.force, "pitching "+sy.moment)
+		if side {
+			head = append(head, "side "+sy.force, "rolling "+sy.moment, "yawing "+sy.moment)
+		}
 	}
 	head = append(head, "use %", "limiting")
 	fmt.Fprintf(tw, "  %s\t\n", strings.Join(head, "\t"))
 	for _, p := range r.Points {
-		cells := []string{fmt.Sprintf("%.4g", p.Alpha), fmt.Sprintf("%.4g", p.Beta),
-			fmt.Sprintf("%.1f", p.Normal*fconv), fmt.Sprintf("%.1f", p.Axial*fconv), fmt.Sprintf("%.2f", p.PitchingMoment*mconv)}
-		if side {
-			cells = append(cells, fmt.Sprintf("%.1f", p.Side*fconv), fmt.Sprintf("%.2f", p.RollingMoment*mconv), fmt.Sprintf("%.2f", p.YawingMoment*mconv))
+		cells := []string{fmt.Sprintf("%.4g", p.Alpha), fmt.Sprintf("%.4g", p.Beta)}
+		for _, sy := range systems {
+			cells = append(cells, fmt.Sprintf("%.1f", p.Normal*sy.fconv), fmt.Sprintf("%.1f", p.Axial*sy.fconv), fmt.Sprintf("%.2f", p.PitchingMoment*sy.mconv))
+			if side {
+				cells = append(cells, fmt.Sprintf("%.1f", p.Side*sy.fconv), fmt.Sprintf("%.2f", p.RollingMoment*sy.mconv), fmt.Sprintf("%.2f", p.YawingMoment*sy.mconv))
+			}
 		}
 		mark := ""
 		if p.Utilization > r.AllowedUtilization {

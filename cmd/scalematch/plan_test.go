@@ -97,9 +97,18 @@ func TestPlanCommandTable(t *testing.T) {
 			"worst 66.7 % (axial at α 16°)",
 			"Reynolds effects", "trips recommended", "\nSchedule\n", "\nWarnings\n", "\nCautions\n",
 			"estimates",
+			// Each group with the answer's own verdict (mach_matched, reynolds_matched).
+			"(matched within ±0.005)", "(not matched within 0.1 %)",
+			"within the allowed loads by this estimate",
 		}},
 		{"US from stdin", []string{"plan", "--data", noStore, "--units", "us", "-"}, j16Plan, []string{
-			"ft)", "kt)", "psf)", "°R)", "ft²)", "slug/ft³)", "normal lbf", "pitching lbf·ft",
+			"ft)", "kt)", "psf)", "°R)", "ft²)", "slug/ft³)",
+			// U.S. customary units beside SI everywhere, the loads table included:
+			// stagnation and static pressures in psia, speeds in ft/s.
+			"normal N", "pitching N·m", "normal lbf", "pitching ft·lbf",
+			// 191 040 Pa (the planner's own output: regression value) ÷ 6894.757 Pa
+			// per psi (NIST SP 811) = 27.708 psia.
+			"psia)", "ft/s)", "stagnation pressure     1.9104e+05 Pa (27.708 psia)",
 			// 54 000 Pa / 47.880259 Pa/psf (NIST SP 811)
 			"54000 Pa (1127.8 psf)",
 		}},
@@ -223,6 +232,8 @@ func TestCommandErrors(t *testing.T) {
 			facilities.CodeInvalid, []string{"\n  flight.altitude: ", "\n  article.span: "}},
 		{"unknown field", []string{"plan", "--data", noStore, "-"}, strings.Replace(j16Plan, `"cl_max"`, `"cl_maks"`, 1),
 			facilities.CodeInvalid, []string{"article.aero.cl_maks"}},
+		{"groups has no --units: its groups are dimensionless", []string{"groups", "--units", "us", "-"}, dragGroups,
+			"", []string{"unknown flag: --units"}},
 		{"broken JSON", []string{"loads", "--data", noStore, "-"}, `{"article": `,
 			facilities.CodeInvalid, []string{"(body): "}},
 		{"unknown facility", []string{"plan", "--data", noStore, "-"}, strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1),
@@ -277,11 +288,12 @@ func TestLoadsAndGroupsCommandTables(t *testing.T) {
 			"Load check: facility tsw-1", "Loads on balance int-b1", "Loads on balance int-b2",
 			"Facility limits broken\n  none\n", "\nCautions\n",
 		}},
-		{"loads US", []string{"loads", "--data", noStore, "--units", "us", "-"}, j16Loads, []string{"axial lbf", "psf)"}},
+		{"loads US", []string{"loads", "--data", noStore, "--units", "us", "-"}, j16Loads, []string{"axial N", "axial lbf", "psf)", "psia)"}},
 		{"groups", []string{"groups", "-"}, dragGroups, []string{
 			"rank 3; repeating variables: rho, V, L\n",
 			"Π1 = R rho^-1 V^-2 L^-2  (force coefficient)\n",
-			"Π2 = mu rho^-1 V^-1 L^-1",
+			// μ/(ρVL) is the inverse of the Reynolds number and is named so.
+			"Π2 = mu rho^-1 V^-1 L^-1  (inverse Reynolds number (1/Re))\n",
 		}},
 	}
 	for _, c := range cases {
