@@ -63,7 +63,7 @@ func (demoCatalog) Facility(_ context.Context, id string) (facilities.Facility, 
 	if f, ok := facilities.DemoFacility(id); ok {
 		return f, nil
 	}
-	return facilities.Facility{}, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no facility %q in the demo catalog", id)}
+	return facilities.Facility{}, facilities.FacilityNotFound(id)
 }
 
 // facilityReader is the part of a catalog the facilities command reads.
@@ -72,27 +72,60 @@ type facilityReader interface {
 	Facility(ctx context.Context, id string) (facilities.Facility, error)
 }
 
-// openReader opens the store the command reads and says which it is; close is nil
-// for the demo catalog.
-func openReader(ctx context.Context, o facilitiesOptions) (facilityReader, string, func() error, error) {
-	if o.database != "" {
-		db, where, err := openStore(ctx, o.database, o.data)
+// demoCatalogName is how the commands name the built-in demo catalog.
+const demoCatalogName = "demo catalog"
+
+// openCatalog opens the catalog every command reads, the same way: PostgreSQL when
+// database (SCALEMATCH_DATABASE_URL) is set, else the SQLite store under data when
+// one exists there, else the built-in demo catalog (a nil Catalog). where names it
+// ("postgres", "sqlite PATH", "demo catalog"); close is nil for the demo catalog.
+func openCatalog(ctx context.Context, data, database string) (cat facilities.Catalog, where string, close func() error, err error) {
+	if database != "" {
+		db, where, err := openStore(ctx, database, data)
 		if err != nil {
-			return nil, "", nil, err
+			return nil, "", nil, fmt.Errorf("opening the catalog %s: %w", where, err)
 		}
 		return db, where, db.Close, nil
 	}
-	path := sqlite.Path(o.data)
+	if data == "" {
+		return nil, demoCatalogName, nil, nil
+	}
+	path := sqlite.Path(data)
 	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
-		return demoCatalog{}, "demo catalog", nil, nil
+		return nil, demoCatalogName, nil, nil
 	} else if err != nil {
 		return nil, "", nil, err
 	}
 	db, err := sqlite.Open(ctx, path)
 	if err != nil {
-		return nil, "", nil, err
+		return nil, "", nil, fmt.Errorf("opening the catalog %s: %w", path, err)
 	}
 	return db, "sqlite " + path, db.Close, nil
+}
+
+// inCatalog returns err with a not-found error's message naming the catalog the
+// command looked in.
+func inCatalog(err error, where string) error {
+	var de *facilities.Error
+	if errors.As(err, &de) && de.Code == facilities.CodeNotFound && where != "" {
+		c := *de
+		c.Message = fmt.Sprintf("%s (looked in the %s)", c.Message, where)
+		if where != demoCatalogName {
+			c.Message = fmt.Sprintf("%s (looked in the catalog: %s)", de.Message, where)
+		}
+		return &c
+	}
+	return err
+}
+
+// openReader opens the store the command reads and says which it is; close is nil
+// for the demo catalog.
+func openReader(ctx context.Context, o facilitiesOptions) (facilityReader, string, func() error, error) {
+	cat, where, closeFn, err := openCatalog(ctx, o.data, o.database)
+	if err != nil || cat == nil {
+		return demoCatalog{}, where, nil, err
+	}
+	return cat, where, closeFn, nil
 }
 
 func runFacilities(ctx context.Context, o facilitiesOptions, args []string, w io.Writer) (err error) {
@@ -128,7 +161,7 @@ func runFacilities(ctx context.Context, o facilitiesOptions, args []string, w io
 	}
 	f, err := cat.Facility(ctx, args[1])
 	if err != nil {
-		return err
+		return explain(inCatalog(err, where))
 	}
 	if o.jsonOut {
 		return writeJSON(w, f)

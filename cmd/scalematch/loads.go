@@ -20,8 +20,10 @@ func newLoadsCmd() *cobra.Command {
 load request, the JSON body POST /v1/loads takes, from FILE or, for "-", from
 standard input. Nothing is optimised.
 
-facility_id resolves against the service's SQLite catalog under --data when that
-directory holds one, else against the built-in demo facilities.
+facility_id resolves against the same catalog as every command: PostgreSQL when
+SCALEMATCH_DATABASE_URL is set, else the service's SQLite catalog under --data when
+that directory holds one, else the built-in demo facilities; a facility not found
+names the catalog looked in.
 
 By default a table: the model, the test state, the facility limits the settings
 break, the wall corrections, and for the named balance (or every balance of the
@@ -53,7 +55,7 @@ and licensed engineering judgement govern.`,
 				return cerr
 			}
 			if err != nil {
-				return explain(err)
+				return explain(inCatalog(err, o.where))
 			}
 			if o.json {
 				return writeAPIJSON(o.stdout, resp)

@@ -15,7 +15,6 @@ import (
 
 	"scalematch/api"
 	"scalematch/facilities"
-	"scalematch/facilities/sqlite"
 	"scalematch/similarity"
 )
 
@@ -24,11 +23,13 @@ const knotMS = 1852.0 / 3600
 
 // computeOptions are the flags shared by plan, loads and groups.
 type computeOptions struct {
-	data   string
-	json   bool
-	units  string
-	stdin  io.Reader
-	stdout io.Writer
+	data     string
+	database string // SCALEMATCH_DATABASE_URL: PostgreSQL, as for every command
+	where    string // the catalog planner opened, for not-found messages
+	json     bool
+	units    string
+	stdin    io.Reader
+	stdout   io.Writer
 	// chartDir, for plan, is the directory its charts are written to ("": none);
 	// stderr receives the names of the files written.
 	chartDir string
@@ -59,6 +60,7 @@ func (o *computeOptions) start(cmd *cobra.Command, arg string) ([]byte, error) {
 		return nil, fmt.Errorf("--units %q: want si or us", o.units)
 	}
 	o.stdin, o.stdout, o.stderr = cmd.InOrStdin(), cmd.OutOrStdout(), cmd.ErrOrStderr()
+	o.database = os.Getenv(envDatabaseURL)
 	var r io.Reader
 	if arg == "-" {
 		r = o.stdin
@@ -82,27 +84,23 @@ func (o *computeOptions) start(cmd *cobra.Command, arg string) ([]byte, error) {
 	return b, nil
 }
 
-// planner returns the composition the service uses, over the SQLite catalog under
-// o.data when that directory holds one, else over the demo catalog, and a function
-// that closes the catalog. The command line never writes to the catalog: a plan
+// planner returns the composition the service uses, over the catalog every command
+// reads (openCatalog: PostgreSQL when SCALEMATCH_DATABASE_URL is set, else the
+// SQLite catalog under o.data when that directory holds one, else the demo
+// catalog), and a function that closes the catalog. The command line never writes to the catalog: a plan
 // already stored under its id is answered with the stored bytes, as the service
 // would, and a new plan is not stored.
 func (o *computeOptions) planner(ctx context.Context) (*api.Planner, func() error, error) {
 	none := func() error { return nil }
-	if o.data == "" {
-		return &api.Planner{}, none, nil
-	}
-	path := sqlite.Path(o.data)
-	if _, err := os.Stat(path); errors.Is(err, os.ErrNotExist) {
-		return &api.Planner{}, none, nil
-	} else if err != nil {
+	cat, where, closeFn, err := openCatalog(ctx, o.data, o.database)
+	if err != nil {
 		return nil, none, err
 	}
-	db, err := sqlite.Open(ctx, path)
-	if err != nil {
-		return nil, none, fmt.Errorf("opening the catalog %s: %w", path, err)
+	o.where = where
+	if cat == nil {
+		return &api.Planner{}, none, nil
 	}
-	return &api.Planner{Catalog: readOnlyPlans{db}}, db.Close, nil
+	return &api.Planner{Catalog: readOnlyPlans{cat}}, closeFn, nil
 }
 
 // readOnlyPlans is a catalog whose SavePlan stores nothing: it returns the record
@@ -172,8 +170,10 @@ func newPlanCmd() *cobra.Command {
 (numbers in SI or strings with units such as "35000 ft", scales such as "1:16"),
 from FILE or, for "-", from standard input, and print the plan.
 
-facility_id resolves against the service's SQLite catalog under --data when that
-directory holds one, else against the built-in demo facilities. Nothing is
+facility_id resolves against the same catalog as every command: PostgreSQL when
+SCALEMATCH_DATABASE_URL is set, else the service's SQLite catalog under --data when
+that directory holds one, else the built-in demo facilities; a facility not found
+names the catalog looked in. Nothing is
 written to the catalog.
 
 By default a table: flight, model, test condition, mismatch, the binding limits
@@ -222,7 +222,7 @@ func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.Plan
 	if o.json {
 		b, err := p.PlanJSON(ctx, req)
 		if err != nil {
-			return explain(err)
+			return explain(inCatalog(err, o.where))
 		}
 		if _, err = o.stdout.Write(b); err != nil {
 			return err
@@ -238,7 +238,7 @@ func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.Plan
 	}
 	resp, err := p.Plan(ctx, req)
 	if err != nil {
-		return explain(err)
+		return explain(inCatalog(err, o.where))
 	}
 	if err := writePlan(o.stdout, resp, o.units == "us", req.Facility != nil); err != nil {
 		return err
