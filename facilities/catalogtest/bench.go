@@ -13,8 +13,8 @@ import (
 // Bench runs the store benchmarks that every facilities.Catalog engine shares, as
 // sub-benchmarks of b: Facility, CreateFacility, UpdateFacility and SavePlan
 // (serial and parallel-16). open must return a new, empty store for each call and
-// arrange for it to be closed and removed when its testing.TB ends; Bench seeds it
-// with the demo facilities. Times are per operation (ns/op); every write is
+// arrange for it to be closed and removed when its testing.TB ends (Opener does);
+// Bench seeds it with the demo facilities. Times are per operation (ns/op); every write is
 // measured as acknowledged, that is after the engine's commit.
 func Bench(b *testing.B, open func(testing.TB) facilities.Catalog) {
 	seeded := func(b *testing.B) facilities.Catalog {

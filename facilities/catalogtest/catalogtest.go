@@ -17,10 +17,30 @@ import (
 	"scalematch/facilities"
 )
 
+// Opener returns the open function of Run and Bench for an engine: where names a
+// new, empty store for one test (a file in its temporary directory, a schema of
+// its own), open opens it, and the store is closed when the test ends, a failed
+// Close failing the test.
+func Opener[DB facilities.Catalog](open func(context.Context, string) (DB, error), where func(testing.TB) string) func(testing.TB) facilities.Catalog {
+	return func(tb testing.TB) facilities.Catalog {
+		tb.Helper()
+		db, err := open(context.Background(), where(tb))
+		if err != nil {
+			tb.Fatal(err)
+		}
+		tb.Cleanup(func() {
+			if err := db.Close(); err != nil {
+				tb.Errorf("Close: %v", err)
+			}
+		})
+		return db
+	}
+}
+
 // Run runs the suite. open must return a new, empty store for each call (the suite
 // calls it once per subtest) and arrange for it to be closed and removed when t
-// ends; the suite does not close it.
-func Run(t *testing.T, open func(t *testing.T) facilities.Catalog) {
+// ends (Opener does); the suite does not close it.
+func Run(t *testing.T, open func(testing.TB) facilities.Catalog) {
 	tests := []struct {
 		name string
 		fn   func(*testing.T, facilities.Catalog)

@@ -73,15 +73,8 @@ func schemaURL(t testing.TB) string {
 	return u.String()
 }
 
-func open(t *testing.T) facilities.Catalog {
-	t.Helper()
-	db, err := postgres.Open(context.Background(), schemaURL(t))
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { db.Close() })
-	return db
-}
+// open opens a store on a new schema of its own for one test.
+var open = catalogtest.Opener(postgres.Open, schemaURL)
 
 func TestCatalog(t *testing.T) {
 	catalogtest.Run(t, open)

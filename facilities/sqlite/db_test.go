@@ -12,19 +12,10 @@ import (
 	"scalematch/facilities/sqlite"
 )
 
-func open(t *testing.T) facilities.Catalog {
-	t.Helper()
-	db, err := sqlite.Open(context.Background(), filepath.Join(t.TempDir(), "data", sqlite.FileName))
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() {
-		if err := db.Close(); err != nil {
-			t.Errorf("Close: %v", err)
-		}
-	})
-	return db
-}
+// open opens a new catalog file in a directory of its own for one test.
+var open = catalogtest.Opener(sqlite.Open, func(tb testing.TB) string {
+	return filepath.Join(tb.TempDir(), "data", sqlite.FileName)
+})
 
 func TestCatalog(t *testing.T) {
 	catalogtest.Run(t, open)

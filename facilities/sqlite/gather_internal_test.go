@@ -37,7 +37,7 @@ func TestExpectPlan(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			db := openInternal(t)
-			db.plans.SetGather(tt.gatherMax)
+			hooks(db).Plans.SetGather(tt.gatherMax)
 			ctxA, withdrawA := db.ExpectPlan(context.Background())
 			ctxB, withdrawB := db.ExpectPlan(context.Background())
 			ctxA, cancel := context.WithTimeout(ctxA, 10*time.Second) // a derived context still carries it
@@ -50,7 +50,7 @@ func TestExpectPlan(t *testing.T) {
 			}()
 			// Wait until the first plan is queued or being committed.
 			for {
-				coming, _ := db.plans.Announced()
+				coming, _ := hooks(db).Plans.Announced()
 				if coming == 1 {
 					break
 				}
@@ -81,7 +81,7 @@ func TestExpectPlan(t *testing.T) {
 			if g, r := db.PlanGroups(); g != tt.wantGroups || r != tt.wantRecords {
 				t.Errorf("%d records in %d groups, want %d in %d", r, g, tt.wantRecords, tt.wantGroups)
 			}
-			coming, settled := db.plans.Announced()
+			coming, settled := hooks(db).Plans.Announced()
 			if coming != 0 || settled != 2 {
 				t.Errorf("after settling: %d announcements outstanding, %d settled; want 0 and 2", coming, settled)
 			}
@@ -93,7 +93,7 @@ func TestExpectPlan(t *testing.T) {
 // besides its own is not delayed by the gathering limit.
 func TestExpectPlanLoneCall(t *testing.T) {
 	db := openInternal(t)
-	db.plans.SetGather(time.Minute)
+	hooks(db).Plans.SetGather(time.Minute)
 	ctx, withdraw := db.ExpectPlan(context.Background())
 	defer withdraw()
 	done := make(chan error, 1)

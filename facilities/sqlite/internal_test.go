@@ -9,7 +9,11 @@ import (
 	"time"
 
 	"scalematch/facilities"
+	"scalematch/facilities/internal/sqlstore"
 )
+
+// hooks returns the shared store's insides under db.
+func hooks(db *DB) sqlstore.Hooks { return sqlstore.HooksOf(db.store) }
 
 func openInternal(t *testing.T) *DB {
 	t.Helper()
@@ -31,7 +35,7 @@ func TestFailureBeforeCommit(t *testing.T) {
 		t.Fatal(err)
 	}
 	injected := errors.New("injected failure")
-	db.beforeCommit = func(string) error { return injected }
+	*hooks(db).BeforeCommit = func(string) error { return injected }
 	g, _ := facilities.DemoFacility("tsw-1")
 	tests := []struct {
 		name  string
@@ -121,7 +125,7 @@ func TestGroupCommit(t *testing.T) {
 			release := make(chan struct{})
 			entered := make(chan struct{})
 			calls := 0
-			db.beforeCommit = func(op string) error {
+			*hooks(db).BeforeCommit = func(op string) error {
 				calls++ // the committer runs one group at a time
 				if calls == 1 {
 					close(entered)
@@ -145,7 +149,7 @@ func TestGroupCommit(t *testing.T) {
 			}
 			// Wait until all of them are queued behind the held transaction.
 			for {
-				n := db.plans.Queued()
+				n := hooks(db).Plans.Queued()
 				if n == queued {
 					break
 				}
@@ -161,7 +165,7 @@ func TestGroupCommit(t *testing.T) {
 					t.Errorf("queued plan: error %v, want %v", err, tt.secondErr)
 				}
 			}
-			if g, r := db.plans.Stats(); g != 2 || r != 1+queued {
+			if g, r := hooks(db).Plans.Stats(); g != 2 || r != 1+queued {
 				t.Errorf("%d records in %d transactions, want %d in 2", r, g, 1+queued)
 			}
 			var stored int
@@ -181,7 +185,7 @@ func TestSavePlanAfterClose(t *testing.T) {
 	if err := db.Close(); err != nil {
 		t.Fatal(err)
 	}
-	if _, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "late", Body: []byte(`{}`)}); !errors.Is(err, errClosed) {
-		t.Errorf("SavePlan after Close: %v, want %v", err, errClosed)
+	if _, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "late", Body: []byte(`{}`)}); !errors.Is(err, hooks(db).Closed) {
+		t.Errorf("SavePlan after Close: %v, want %v", err, hooks(db).Closed)
 	}
 }

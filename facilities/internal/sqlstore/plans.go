@@ -1,0 +1,98 @@
+package sqlstore
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"time"
+
+	"scalematch/facilities"
+	"scalematch/facilities/internal/groupcommit"
+)
+
+// SavePlan stores a plan record; a second save of the same id returns the first.
+// A zero CreatedAt is set to the time of the first save.
+//
+// Concurrent calls share transactions (group commit, package groupcommit): each
+// call is acknowledged only after the transaction holding its record has
+// committed, so an acknowledged plan is as durable as the engine's commit makes
+// it; an error of that transaction fails every call in it. A call whose context
+// ends while its record still waits in the queue is removed from it and returns
+// the context's error; one whose context ends while its group is committing
+// returns an error saying the record may have been stored. With
+// groupcommit.Config.Inline, a call that finds no group committing commits its
+// own group on its own goroutine and reports that group's outcome, whatever its
+// context does meanwhile.
+func (s *Store) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities.PlanRecord, error) {
+	if p.ID == "" {
+		return facilities.PlanRecord{}, facilities.Invalid("plan record", []facilities.FieldError{{Field: "id", Message: "must not be empty"}})
+	}
+	if p.CreatedAt.IsZero() {
+		p.CreatedAt = s.now()
+	}
+	out, outcome, err := s.plans.Submit(ctx, p)
+	if outcome == groupcommit.Committed {
+		return out, nil
+	}
+	id := p.ID
+	failed := func(err error) error { return s.wrap("saving plan", id, err) }
+	return facilities.PlanRecord{}, groupcommit.Explain(fmt.Sprintf("%s: saving plan %q", s.d.Name, id), outcome, err, failed, s.closed)
+}
+
+// commitGroup writes the group's records in one transaction, in the order their
+// calls arrived (so of two records with one id the first is kept), leaving in
+// recs[i] the record as stored; an error fails the whole group. The transaction
+// does not use any caller's context: one caller giving up must not abort the
+// others' writes.
+func (s *Store) commitGroup(recs []facilities.PlanRecord) error {
+	ctx := context.Background()
+	return s.tx(ctx, "save_plan", func(tx Tx) error {
+		for i := range recs {
+			p := &recs[i]
+			p.Body = nonNil(p.Body)
+			// Instants are kept to the microsecond: store and answer the same one.
+			p.CreatedAt = p.CreatedAt.UTC().Truncate(time.Microsecond)
+			n, err := tx.Exec(ctx, s.q.planInsert, p.ID, p.FacilityID, p.FacilityVersion, p.Body, s.d.Instant(p.CreatedAt))
+			if err != nil {
+				return err
+			}
+			if n == 1 {
+				continue // stored as given: the record read back would be this one
+			}
+			// The id was stored before: answer with the first record.
+			if *p, err = scanPlan(tx.QueryRow(ctx, s.q.plan, p.ID)); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+}
+
+// Plan returns a stored plan record.
+func (s *Store) Plan(ctx context.Context, id string) (facilities.PlanRecord, error) {
+	p, err := scanPlan(s.db.QueryRow(ctx, s.q.plan, id))
+	if errors.Is(err, sql.ErrNoRows) {
+		return facilities.PlanRecord{}, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no stored plan %q", id)}
+	}
+	if err != nil {
+		return facilities.PlanRecord{}, fmt.Errorf("%s: reading plan %q: %w", s.d.Name, id, err)
+	}
+	return p, nil
+}
+
+func scanPlan(row Row) (facilities.PlanRecord, error) {
+	var p facilities.PlanRecord
+	if err := row.Scan(&p.ID, &p.FacilityID, &p.FacilityVersion, &p.Body, instant{&p.CreatedAt}); err != nil {
+		return facilities.PlanRecord{}, err
+	}
+	p.Body = nonNil(p.Body)
+	return p, nil
+}
+
+func nonNil(b []byte) []byte {
+	if b == nil {
+		return []byte{}
+	}
+	return b
+}
