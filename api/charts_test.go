@@ -2,6 +2,7 @@ package api_test
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"encoding/xml"
 	"image/png"
@@ -14,6 +15,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api"
+	"scalematch/facilities"
 )
 
 // storedPlan plans the example request file in the catalog server ts and returns
@@ -104,6 +106,40 @@ func TestPlanCharts(t *testing.T) {
 			case "application/pdf":
 				assert.True(t, bytes.HasPrefix(b, []byte("%PDF-")), "starts %q", b[:min(8, len(b))])
 			}
+		})
+	}
+}
+
+// TestEnvelopeEdgeLimits checks the limits named on the envelope's edges: in a
+// gas the lower edge is the lowest stagnation pressure; in water, where the
+// Reynolds number hardly depends on the pressure, the coldest water: the
+// viscosity of water falls as it warms (the IAPWS 2008 correlation the facilities
+// package uses), so the lowest temperature gives the lowest Reynolds number.
+func TestEnvelopeEdgeLimits(t *testing.T) {
+	cases := []struct {
+		id       string
+		lowLimit string
+	}{
+		{"tsw-1", facilities.ConstraintPressureMin},
+		{"wtn-04", facilities.ConstraintTempMin},
+	}
+	for _, tc := range cases {
+		t.Run(tc.id, func(t *testing.T) {
+			f, err := facilities.DemoCatalog{}.Facility(context.Background(), tc.id)
+			require.NoError(t, err)
+			e, err := api.EnvelopeOf(&f, 0.1)
+			require.NoError(t, err)
+			require.Len(t, e.X, len(e.LowLimit))
+			reached := 0
+			for i := range e.X {
+				if e.Low[i] > 0 {
+					reached++
+					assert.Equal(t, tc.lowLimit, e.LowLimit[i], "x %g", e.X[i])
+					assert.LessOrEqual(t, e.Low[i], e.High[i]*(1+1e-9), "x %g", e.X[i])
+					assert.NotEmpty(t, e.HighLimit[i], "x %g", e.X[i])
+				}
+			}
+			assert.Greater(t, reached, len(e.X)/2, "most columns are reachable")
 		})
 	}
 }

@@ -31,7 +31,8 @@ type Envelope = charts.Envelope
 // (similarity.Envelope: the highest Reynolds number within every facility limit
 // at each Mach number or speed, and the limit that caps it); the lower edge is
 // the lowest stagnation pressure at the stagnation temperature, of a grid over
-// the facility's range, that gives the lowest Reynolds number. Errors are those
+// the facility's range, that gives the lowest Reynolds number (lowLimit names
+// the limit that sets it). Errors are those
 // of similarity.Envelope (*facilities.Error).
 func EnvelopeOf(f *facilities.Facility, refLength float64) (Envelope, error) {
 	top, err := similarity.Envelope(f, refLength, envelopeColumns)
@@ -62,7 +63,7 @@ func EnvelopeOf(f *facilities.Facility, refLength float64) (Envelope, error) {
 		for _, t0 := range temps {
 			if re, ok := lowestAt(f, x, t0, e.Speed); ok && (math.IsNaN(e.Low[i]) || re < e.Low[i]) {
 				e.Low[i] = re
-				e.LowLimit[i] = facilities.ConstraintPressureMin
+				e.LowLimit[i] = lowLimit(f, t0)
 			}
 		}
 		e.Low[i] *= refLength
@@ -80,6 +81,24 @@ func gridOf(r facilities.Range, n int) []float64 {
 		g[i] = r.Min + (r.Max-r.Min)*float64(i)/float64(n-1)
 	}
 	return g
+}
+
+// lowLimit names the limit that sets the lower edge of the envelope where the
+// lowest Reynolds number is reached at stagnation temperature t0 and the lowest
+// stagnation pressure: in a gas the pressure (the Reynolds number is nearly
+// proportional to it); in a liquid, whose Reynolds number hardly depends on the
+// pressure, the temperature bound t0 sits on, when the range is not fixed.
+func lowLimit(f *facilities.Facility, t0 float64) string {
+	r := f.StagnationTemperature
+	switch {
+	case !f.Medium.IsLiquid() || r.Fixed():
+		return facilities.ConstraintPressureMin
+	case t0 == r.Min:
+		return facilities.ConstraintTempMin
+	case t0 == r.Max:
+		return facilities.ConstraintTempMax
+	}
+	return facilities.ConstraintPressureMin
 }
 
 // lowestAt returns the Reynolds number per metre at abscissa x (Mach number, or
