@@ -115,7 +115,7 @@ func funcs() template.FuncMap {
 			return charts.Number(v, 4)
 		},
 		"sci":    func(v float64) string { return charts.Number(v, 3) },
-		"signed": func(v float64) string { return fmt.Sprintf("%+.3g", v) },
+		"signed": signed,
 		"pct":    func(v float64) string { return fmt.Sprintf("%.1f %%", 100*v) },
 		"inv": func(v float64) float64 {
 			if v == 0 {
@@ -142,6 +142,16 @@ func funcs() template.FuncMap {
 			return charts.Number(q, 4) + " Pa"
 		},
 	}
+}
+
+// signed writes v with its sign and 3 significant digits; a value that rounds to
+// zero is written "0", never "-0".
+func signed(v float64) string {
+	s := fmt.Sprintf("%+.3g", v)
+	if s == "+0" || s == "-0" {
+		return "0"
+	}
+	return s
 }
 
 // page is what every page's template gets: its title and its own data.
