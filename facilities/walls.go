@@ -98,6 +98,9 @@ type Walls struct {
 	CurvatureKnown bool
 	// Applied reports whether a classical blockage correction applies.
 	Applied bool
+	// Liquid: a water facility, whose Mach number is not a similarity target and
+	// gets no corrected Mach number.
+	Liquid bool
 	// Warnings say when the corrections are missing or unreliable.
 	Warnings []string
 }
@@ -110,7 +113,7 @@ type Walls struct {
 // applied. Water facilities have M ≈ 0 and use the incompressible forms.
 func NewWalls(f *Facility, frontalArea, refArea, mach float64) Walls {
 	c := f.TestSection.CrossSection()
-	w := Walls{Kind: f.TestSection.Walls, Mach: mach}
+	w := Walls{Kind: f.TestSection.Walls, Mach: mach, Liquid: f.Medium.IsLiquid()}
 	if c <= 0 {
 		w.Warnings = append(w.Warnings, "the test-section area is not positive: no wall correction applied")
 		return w
@@ -182,13 +185,16 @@ const (
 	CorrectionBlockage            = "blockage"
 	CorrectionUpwash              = "upwash"
 	CorrectionStreamlineCurvature = "streamline_curvature"
+	// CorrectionMach is the corrected Mach number alone (left out in water).
+	CorrectionMach = "corrected_mach"
 )
 
 // NotComputed names a wall correction the answer leaves out and why.
 type NotComputed struct {
-	// Correction is "blockage" (ε, q_c, M_c, V_c), "upwash" (Δα, ΔC_D) or
-	// "streamline_curvature" (Δα_sc, ΔC_L, ΔC_m).
-	Correction string `json:"correction" enums:"blockage,upwash,streamline_curvature"`
+	// Correction is "blockage" (ε, q_c, M_c, V_c), "upwash" (Δα, ΔC_D),
+	// "streamline_curvature" (Δα_sc, ΔC_L, ΔC_m) or "corrected_mach" (M_c alone,
+	// in water).
+	Correction string `json:"correction" enums:"blockage,upwash,streamline_curvature,corrected_mach"`
 	// Reason says why, in words.
 	Reason string `json:"reason"`
 }
@@ -246,9 +252,10 @@ type Corrections struct {
 	// DynamicPressureFactor is q_c/q = 1 + (2 − M²)·ε at that point.
 	DynamicPressureFactor float64 `json:"dynamic_pressure_factor"`
 	// CorrectedMachMin and CorrectedMachMax are the range of the corrected Mach
-	// number M_c over the sweep (equal to Mach when no blockage correction applies).
-	CorrectedMachMin float64 `json:"corrected_mach_min"`
-	CorrectedMachMax float64 `json:"corrected_mach_max"`
+	// number M_c over the sweep (equal to Mach when no blockage correction
+	// applies); null in water.
+	CorrectedMachMin *float64 `json:"corrected_mach_min"`
+	CorrectedMachMax *float64 `json:"corrected_mach_max"`
 	// LiftInterferenceFactor is the boundary factor δ used.
 	LiftInterferenceFactor float64 `json:"lift_interference_factor"`
 	// StreamlineCurvatureFactor is the facility's τ2; null when it gives none.
@@ -273,7 +280,6 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 	c := Corrections{
 		Walls: w.Kind, Applied: w.Applied, Mach: w.Mach, FrontalBlockage: w.AreaRatio,
 		SolidBlockage: w.SolidBlockage, LiftInterferenceFactor: w.Delta,
-		CorrectedMachMin: w.Mach, CorrectedMachMax: w.Mach,
 		Warnings:    append([]string(nil), w.Warnings...),
 		NotComputed: []NotComputed{},
 		Points:      make([]PointCorrection, len(pts)),
@@ -293,6 +299,9 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 	default:
 		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionBlockage, fmt.Sprintf("%s walls: no classical blockage correction; the facility's own wall-interference method governs", w.Kind)})
 	}
+	if w.Liquid && w.Applied {
+		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionMach, "water: the Mach number is not a similarity target; q_c and V_c are corrected"})
+	}
 	if !upwash {
 		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionUpwash, fmt.Sprintf("%s walls: no classical lift-interference correction; the facility's own wall-interference method governs", w.Kind)})
 	}
@@ -306,6 +315,7 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 	}
 	cdMax := math.Inf(-1)
 	maxDA := -1.0
+	mLo, mHi := w.Mach, w.Mach
 	for i, p := range pts {
 		pc := PointCorrection{Alpha: p.Alpha, Beta: p.Beta}
 		if p.CD > cdMax {
@@ -314,11 +324,14 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 		if w.Applied {
 			e := w.Blockage(p.CD)
 			qf, sf, mc := w.DynamicPressureFactor(p.CD), 1+e, w.Mach*w.MachFactor(p.CD)
-			pc.Blockage, pc.DynamicPressureFactor, pc.SpeedFactor, pc.CorrectedMach = &e, &qf, &sf, &mc
-			c.CorrectedMachMin, c.CorrectedMachMax = math.Min(c.CorrectedMachMin, mc), math.Max(c.CorrectedMachMax, mc)
-			if i == 0 {
-				c.CorrectedMachMin, c.CorrectedMachMax = mc, mc
+			pc.Blockage, pc.DynamicPressureFactor, pc.SpeedFactor = &e, &qf, &sf
+			if !w.Liquid {
+				pc.CorrectedMach = &mc
 			}
+			if i == 0 {
+				mLo, mHi = mc, mc
+			}
+			mLo, mHi = math.Min(mLo, mc), math.Max(mHi, mc)
 		}
 		if upwash {
 			da := w.LiftInterference(p.CL)
@@ -343,6 +356,9 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 	}
 	if len(pts) == 0 {
 		cdMax = 0
+	}
+	if !w.Liquid {
+		c.CorrectedMachMin, c.CorrectedMachMax = &mLo, &mHi
 	}
 	c.WakeBlockage = w.WakePerCD * cdMax
 	c.Blockage = w.Blockage(cdMax)

@@ -172,7 +172,7 @@ func TestWallsCompressibleHandCase(t *testing.T) {
 		{"Δα curvature °", *p.DeltaAlphaCurvature, 0.05305165, 1e-7},
 		{"ΔC_L curvature", *p.DeltaCLCurvature, -0.0046296296, 1e-9},
 		{"ΔC_m curvature", *p.DeltaCmCurvature, 0.0011574074, 1e-9},
-		{"summary corrected Mach", c.CorrectedMachMax, 0.7620652367, 1e-9},
+		{"summary corrected Mach", *c.CorrectedMachMax, 0.7620652367, 1e-9},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -197,17 +197,22 @@ func TestWallsNotComputed(t *testing.T) {
 		upwash     bool
 		curvature  bool
 		curvatureL bool
+		water      bool
 	}{
-		{"closed, no τ2", facilities.WallsClosed, 0.5, false, 5, []string{facilities.CorrectionStreamlineCurvature}, true, true, false, false},
-		{"closed, τ2, table aero", facilities.WallsClosed, 0.5, true, 0, []string{facilities.CorrectionStreamlineCurvature}, true, true, true, false},
-		{"closed supersonic", facilities.WallsClosed, 1.2, true, 5, []string{facilities.CorrectionBlockage}, false, true, true, true},
-		{"open jet", facilities.WallsOpen, 0.2, true, 5, []string{facilities.CorrectionBlockage, facilities.CorrectionStreamlineCurvature}, false, true, false, false},
-		{"slotted", facilities.WallsSlotted, 0.7, true, 5, []string{facilities.CorrectionBlockage, facilities.CorrectionUpwash, facilities.CorrectionStreamlineCurvature}, false, false, false, false},
-		{"porous", facilities.WallsPorous, 0.7, false, 5, []string{facilities.CorrectionBlockage, facilities.CorrectionUpwash, facilities.CorrectionStreamlineCurvature}, false, false, false, false},
+		{"closed, no τ2", facilities.WallsClosed, 0.5, false, 5, []string{facilities.CorrectionStreamlineCurvature}, true, true, false, false, false},
+		{"closed, τ2, table aero", facilities.WallsClosed, 0.5, true, 0, []string{facilities.CorrectionStreamlineCurvature}, true, true, true, false, false},
+		{"closed supersonic", facilities.WallsClosed, 1.2, true, 5, []string{facilities.CorrectionBlockage}, false, true, true, true, false},
+		{"open jet", facilities.WallsOpen, 0.2, true, 5, []string{facilities.CorrectionBlockage, facilities.CorrectionStreamlineCurvature}, false, true, false, false, false},
+		{"slotted", facilities.WallsSlotted, 0.7, true, 5, []string{facilities.CorrectionBlockage, facilities.CorrectionUpwash, facilities.CorrectionStreamlineCurvature}, false, false, false, false, false},
+		{"porous", facilities.WallsPorous, 0.7, false, 5, []string{facilities.CorrectionBlockage, facilities.CorrectionUpwash, facilities.CorrectionStreamlineCurvature}, false, false, false, false, false},
+		{"water, closed", facilities.WallsClosed, 0, false, 5, []string{facilities.CorrectionMach, facilities.CorrectionStreamlineCurvature}, false, true, false, false, true},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			f := closedSection(2.7, 2.0, tc.walls)
+			if tc.water {
+				f.Medium.Kind = facilities.MediumWater
+			}
 			if tc.tau {
 				tau := 0.1
 				f.StreamlineCurvatureFactor = &tau
@@ -221,6 +226,12 @@ func TestWallsNotComputed(t *testing.T) {
 			assert.Equal(t, tc.missing, names)
 			p := c.Points[0]
 			assert.Equal(t, tc.blockage, p.Blockage != nil && p.DynamicPressureFactor != nil && p.CorrectedMach != nil && p.SpeedFactor != nil)
+			if tc.water {
+				// q_c and V_c corrected, no corrected Mach number.
+				assert.True(t, p.Blockage != nil && p.DynamicPressureFactor != nil && p.SpeedFactor != nil)
+				assert.Nil(t, p.CorrectedMach)
+				assert.Nil(t, c.CorrectedMachMax)
+			}
 			assert.Equal(t, tc.upwash, p.DeltaAlphaUpwash != nil && p.DeltaCDUpwash != nil)
 			assert.Equal(t, tc.curvature, p.DeltaAlphaCurvature != nil)
 			assert.Equal(t, tc.curvatureL, p.DeltaCLCurvature != nil && p.DeltaCmCurvature != nil)

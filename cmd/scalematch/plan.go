@@ -464,7 +464,9 @@ func writeCorrections(w io.Writer, row func(string, string, ...any), c facilitie
 	if c.Applied {
 		row("blockage", "solid %.3g, wake %.3g, total %.3g (largest C_D)", c.SolidBlockage, c.WakeBlockage, c.Blockage)
 		row("q_c/q", "%.4f (compressible form 1 + (2 − M²)·ε)", c.DynamicPressureFactor)
-		row("corrected Mach", "%.4f to %.4f over the sweep (free stream %.4f)", c.CorrectedMachMin, c.CorrectedMachMax, c.Mach)
+		if c.CorrectedMachMin != nil {
+			row("corrected Mach", "%.4f to %.4f over the sweep (free stream %.4f)", *c.CorrectedMachMin, *c.CorrectedMachMax, c.Mach)
+		}
 	}
 	if len(c.Points) > 0 && c.Points[0].DeltaAlphaUpwash != nil {
 		row("lift interference", "%+.3g° at α %.3g° (δ %.3g)", c.LiftInterference+0, c.LiftInterferenceAlpha, c.LiftInterferenceFactor)
