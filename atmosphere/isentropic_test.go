@@ -9,8 +9,9 @@ import (
 )
 
 func TestNACA1135Table(t *testing.T) {
-	// NACA Report 1135, Table I (subsonic) and Table II (supersonic), γ = 1.4, five
-	// significant figures as tabulated: the tolerance is half a unit in the fifth digit.
+	// NACA Report 1135 (Ames Research Staff 1953), Table I (subsonic) and Table II
+	// (supersonic), γ = 1.4, five significant figures as tabulated, all from memory:
+	// the tolerance is half a unit in the fifth digit.
 	const g = atmosphere.Gamma
 	cases := []struct {
 		name      string

@@ -22,7 +22,7 @@ func mustDemo(t testing.TB, id string) facilities.Facility {
 
 // TestStateIsentropicNACA1135 checks the air state against the isentropic table of
 // NACA Report 1135 (Ames Research Staff 1953, table I, γ = 1.4), printed to five
-// digits.
+// digits; the table values are from memory.
 func TestStateIsentropicNACA1135(t *testing.T) {
 	f := mustDemo(t, "tsw-1")
 	const p0, t0 = 150000.0, 310.0

@@ -111,9 +111,9 @@ func TestParseQuantity(t *testing.T) {
 		{"celsius", "15 degC", 288.15, similarity.DimTemperature, 1e-15},
 		{"fahrenheit", "-40 degF", 233.15, similarity.DimTemperature, 1e-14},
 		{"metres", "1.8 m", 1.8, similarity.DimLength, 0},
-		{"square feet", "12 ft^2", 12 * 0.3048 * 0.3048, similarity.DimArea, 1e-15},
-		{"pound force", "400 lbf", 400 * 4.4482216152605, similarity.DimForce, 1e-15},
-		{"inch pound force", "300 in*lbf", 300 * 0.0254 * 4.4482216152605, similarity.DimEnergy, 1e-15},
+		{"square feet", "12 ft^2", 12 * 0.3048 * 0.3048, similarity.DimArea, 1e-15},                     // ft = 0.3048 m (NIST SP 811, exact)
+		{"pound force", "400 lbf", 400 * 4.4482216152605, similarity.DimForce, 1e-15},                   // lbf = 0.45359237 kg × 9.80665 m/s² (NIST SP 811)
+		{"inch pound force", "300 in*lbf", 300 * 0.0254 * 4.4482216152605, similarity.DimEnergy, 1e-15}, // in = 0.0254 m (NIST SP 811, exact)
 		{"exponent", "1.5e5 Pa", 1.5e5, similarity.DimPressure, 0},
 		{"negative angle", "-3 deg", -3 * math.Pi / 180, similarity.Dimensionless, 1e-15},
 		{"no space", "15degC", 288.15, similarity.DimTemperature, 1e-15},
@@ -121,7 +121,7 @@ func TestParseQuantity(t *testing.T) {
 		{"bare number", "0.25", 0.25, similarity.Dimensionless, 0},
 		{"leading decimal point", ".5 m", 0.5, similarity.DimLength, 0},
 		{"trailing decimal point", "5. m", 5, similarity.DimLength, 0},
-		{"space product", "2 lbf ft", 2 * 4.4482216152605 * 0.3048, similarity.DimEnergy, 1e-15},
+		{"space product", "2 lbf ft", 2 * 4.4482216152605 * 0.3048, similarity.DimEnergy, 1e-15}, // lbf, ft as above (NIST SP 811)
 		{"middle dot", "2 N·m", 2, similarity.DimEnergy, 0},
 		{"dot operator", "2 N⋅m", 2, similarity.DimEnergy, 0},
 		{"superscript", "3 m²", 3, similarity.DimArea, 0},
@@ -221,7 +221,7 @@ func TestToSI(t *testing.T) {
 		tol   float64 // relative
 	}{
 		{"feet to metres", "35000 ft", "m", 10668, 1e-15},
-		{"pressure", "45 psf", "Pa", 45 * 47.88025898033584, 1e-14},
+		{"pressure", "45 psf", "Pa", 45 * 47.88025898033584, 1e-14}, // psf = lbf/ft² (NIST SP 811)
 		{"absolute temperature", "15 degC", "K", 288.15, 1e-15},
 		{"absolute from fahrenheit", "59 degF", "K", 288.15, 1e-14},
 		// delta_isa: a difference of 10 degC is 10 K; 18 degF is 10 K.
@@ -233,14 +233,16 @@ func TestToSI(t *testing.T) {
 		{"angle in radians", "0.1 rad", "deg", 0.1 * 180 / math.Pi, 1e-15},
 		{"angle symbol", "4°", "deg", 4, 1e-15},
 		{"bare angle is degrees", "12", "deg", 12, 0},
-		{"moment", "300 in*lbf", "N*m", 300 * 0.0254 * 4.4482216152605, 1e-15},
-		{"moment written differently", "25 ft*lbf", "N*m", 25 * 0.3048 * 4.4482216152605, 1e-15},
-		{"viscosity", "1.8e-4 poise", "Pa*s", 1.8e-5, 1e-15},
+		{"moment", "300 in*lbf", "N*m", 300 * 0.0254 * 4.4482216152605, 1e-15},                   // in = 0.0254 m, lbf as above (NIST SP 811)
+		{"moment written differently", "25 ft*lbf", "N*m", 25 * 0.3048 * 4.4482216152605, 1e-15}, // ft, lbf (NIST SP 811)
+		{"viscosity", "1.8e-4 poise", "Pa*s", 1.8e-5, 1e-15},                                     // P = 0.1 Pa·s (NIST SP 811)
+		// 0.0023769 slug/ft³ is the sea-level density of the U.S. Standard Atmosphere
+		// 1976 in U.S. units (from memory); slug = lbf·s²/ft = 14.593903 kg (NIST SP 811).
 		{"density", "0.0023769 slug/ft^3", "kg/m^3", 0.0023769 * 14.593902937206364 / (0.3048 * 0.3048 * 0.3048), 1e-14},
-		{"unit Reynolds number", "3e6 1/ft", "1/m", 3e6 / 0.3048, 1e-15},
+		{"unit Reynolds number", "3e6 1/ft", "1/m", 3e6 / 0.3048, 1e-15}, // ft = 0.3048 m (NIST SP 811)
 		{"speed", "36 km/h", "m/s", 10, 1e-15},
-		{"area", "144 in^2", "m^2", 0.3048 * 0.3048, 1e-15},
-		{"mass", "2 lb", "kg", 0.90718474, 1e-15},
+		{"area", "144 in^2", "m^2", 0.3048 * 0.3048, 1e-15}, // 144 in² = 1 ft² (NIST SP 811)
+		{"mass", "2 lb", "kg", 0.90718474, 1e-15},           // lb = 0.45359237 kg (NIST SP 811, exact)
 		{"time", "10 min", "s", 600, 0},
 		{"pure number", "0.05", "", 0.05, 0},
 		{"percent", "5 %", "1", 0.05, 1e-15},

@@ -197,14 +197,16 @@ func optText(v *float64, scale float64, prec int) string {
 
 func listTable(w io.Writer, fs []facilities.Facility, where string) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintf(tw, "# %s: %d facilities\n", where, len(fs))
-	fmt.Fprintln(tw, "ID\tVERSION\tMEDIUM\tSECTION W×H (m)\tWALLS\tMACH\tSPEED (m/s)\tp0 (kPa)\tT0 (K)\tq max (kPa)\tBALANCES")
+	// The style of every table of the tool: a heading line, then indented rows with
+	// lower-case column names that carry their units.
+	fmt.Fprintf(w, "Facilities of the %s: %d facilities\n", where, len(fs))
+	fmt.Fprintln(tw, "  id\tversion\tmedium\tsection w × h m\twalls\tMach\tspeed m/s\tp0 kPa\tT0 K\tq max kPa\tbalances")
 	for _, f := range fs {
 		var ids []string
 		for _, b := range f.Balances {
 			ids = append(ids, b.ID)
 		}
-		fmt.Fprintf(tw, "%s\t%d\t%s\t%.2f × %.2f\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
+		fmt.Fprintf(tw, "  %s\t%d\t%s\t%.2f × %.2f\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n",
 			f.ID, f.Version, f.Medium.Kind, f.TestSection.Width, f.TestSection.Height, f.TestSection.Walls,
 			rangeText(f.Mach, 1, 2), rangeText(f.Speed, 1, 1), rangeText(stagnationRange(&f), 1e-3, 1),
 			rangeText(&f.StagnationTemperature, 1, 0), optText(f.MaxDynamicPressure, 1e-3, 1), strings.Join(ids, ", "))
@@ -214,7 +216,7 @@ func listTable(w io.Writer, fs []facilities.Facility, where string) error {
 
 func showTable(w io.Writer, f facilities.Facility, where string) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintf(tw, "# %s\n", where)
+	fmt.Fprintf(w, "Facility %s (%s)\n", f.ID, where)
 	rows := [][2]string{
 		{"id", f.ID},
 		{"version", strconv.Itoa(f.Version)},
@@ -233,19 +235,20 @@ func showTable(w io.Writer, f facilities.Facility, where string) error {
 		{"max blockage", optText(f.MaxBlockage, 1, 3)},
 	}
 	for _, r := range rows {
-		fmt.Fprintf(tw, "%s\t%s\n", r[0], r[1])
+		fmt.Fprintf(tw, "  %s\t%s\n", r[0], r[1])
 	}
-	fmt.Fprintln(tw)
-	fmt.Fprintln(tw, "BALANCE\tNORMAL (N)\tAXIAL (N)\tSIDE (N)\tROLL (N·m)\tPITCH (N·m)\tYAW (N·m)\tSAFETY FACTOR\tCOMBINED ROWS")
+	tw.Flush()
+	section(w, "Balances")
+	fmt.Fprintln(tw, "  balance\tnormal N\taxial N\tside N\trolling N·m\tpitching N·m\tyawing N·m\tsafety factor\tcombined rows")
 	for _, b := range f.Balances {
 		l := b.Limits
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%.2f\t%d\n", b.ID,
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\t%s\t%s\t%.2f\t%d\n", b.ID,
 			optText(l.Normal, 1, 0), optText(l.Axial, 1, 0), optText(l.Side, 1, 0),
 			optText(l.RollingMoment, 1, 0), optText(l.PitchingMoment, 1, 0), optText(l.YawingMoment, 1, 0),
 			b.SafetyFactor, len(b.Combined))
 	}
-	fmt.Fprintln(tw)
-	fmt.Fprintln(tw, "Ratings as recorded in the catalog; the facility's approved limits and procedures govern.")
+	tw.Flush()
+	fmt.Fprintln(w, "\nRatings as recorded in the catalog; the facility's approved limits and procedures govern.")
 	return tw.Flush()
 }
 

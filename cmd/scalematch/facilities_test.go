@@ -31,7 +31,7 @@ func TestFacilitiesCommand(t *testing.T) {
 		want    []string
 		wantErr bool
 	}{
-		{"demo list", []string{"facilities", "--data", empty}, []string{"demo catalog: 6 facilities", "tsw-1", "cn2-05"}, false},
+		{"demo list", []string{"facilities", "--data", empty}, []string{"Facilities of the demo catalog: 6 facilities\n  id  ", "  version  ", "tsw-1", "cn2-05"}, false},
 		{"demo show", []string{"facilities", "show", "tsw-1", "--data", empty}, []string{"int-b2", "27000", "45000–205000"}, false},
 		{"store list", []string{"facilities", "list", "--data", stored}, []string{"1 facilities", "wtn-05"}, false},
 		{"store show json", []string{"facilities", "show", "wtn-05", "--json", "--data", stored}, []string{`"version": 1`, `"second water tunnel"`}, false},
