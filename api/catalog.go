@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"net/http"
+	"path"
 	"strconv"
 	"strings"
 
@@ -129,7 +130,7 @@ func (s *Server) getFacilityVersions(c *gin.Context) {
 //	@Header			201			{string}	Location	"/v1/facilities/{id}"
 //	@Failure		400			{object}	Problem	"invalid fields, each named by its JSON path"
 //	@Failure		401			{object}	Problem	"no bearer token"
-//	@Failure		403			{object}	Problem	"the token is not allowed, or no write tokens are configured"
+//	@Failure		403			{object}	Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
 //	@Failure		409			{object}	Problem	"the id exists"
 //	@Router			/v1/facilities [post]
 func (s *Server) createFacility(c *gin.Context) {
@@ -139,6 +140,9 @@ func (s *Server) createFacility(c *gin.Context) {
 	}
 	var f facilities.Facility
 	if !s.decodeBody(c, &f) {
+		return
+	}
+	if !s.inScope(c, f.ID) {
 		return
 	}
 	f.Version = 0
@@ -172,7 +176,7 @@ func (s *Server) createFacility(c *gin.Context) {
 //	@Header			200			{string}	ETag	"the new version, quoted"
 //	@Failure		400			{object}	Problem	"invalid fields, each named by its JSON path"
 //	@Failure		401			{object}	Problem	"no bearer token"
-//	@Failure		403			{object}	Problem	"the token is not allowed, or no write tokens are configured"
+//	@Failure		403			{object}	Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
 //	@Failure		404			{object}	Problem	"no such facility"
 //	@Failure		412			{object}	Problem	"If-Match is not the current version"
 //	@Failure		428			{object}	Problem	"If-Match is missing"
@@ -180,6 +184,9 @@ func (s *Server) createFacility(c *gin.Context) {
 func (s *Server) updateFacility(c *gin.Context) {
 	by, ok := s.writer(c)
 	if !ok {
+		return
+	}
+	if !s.inScope(c, c.Param("id")) {
 		return
 	}
 	ifMatch, err := ifMatchVersion(c.GetHeader("If-Match"))
@@ -238,7 +245,7 @@ func (s *Server) updateFacility(c *gin.Context) {
 //	@Success		204
 //	@Failure		400	{object}	Problem	"malformed If-Match"
 //	@Failure		401	{object}	Problem	"no bearer token"
-//	@Failure		403	{object}	Problem	"the token is not allowed, or no write tokens are configured"
+//	@Failure		403	{object}	Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
 //	@Failure		404	{object}	Problem	"no such facility"
 //	@Failure		412	{object}	Problem	"If-Match is not the current version"
 //	@Failure		428	{object}	Problem	"If-Match is missing"
@@ -246,6 +253,9 @@ func (s *Server) updateFacility(c *gin.Context) {
 func (s *Server) deleteFacility(c *gin.Context) {
 	by, ok := s.writer(c)
 	if !ok {
+		return
+	}
+	if !s.inScope(c, c.Param("id")) {
 		return
 	}
 	ifMatch, err := ifMatchVersion(c.GetHeader("If-Match"))
@@ -289,6 +299,12 @@ func (s *Server) getPlan(c *gin.Context) {
 		c.Header("Last-Modified", p.CreatedAt.UTC().Format(http.TimeFormat))
 	}
 	body := p.Body
+	if p.FacilityID == "" || p.FacilityVersion == 0 {
+		// A plan record never changes; only the note on a changed catalog
+		// facility does, so the rest are kept for good.
+		c.Header("Cache-Control", cacheForever)
+		c.Header("ETag", `"`+p.ID+`"`)
+	}
 	if p.FacilityID != "" && p.FacilityVersion > 0 {
 		ch, err := s.facilityChange(c.Request.Context(), p.FacilityID, p.FacilityVersion)
 		if err != nil {
@@ -390,6 +406,25 @@ func ifMatchVersion(h string) (int, error) {
 	return v, nil
 }
 
+// writeScopeKey keys, in the gin context, the facility-id pattern the request's
+// write token is limited to ("" none).
+const writeScopeKey = "scalematch.write_scope"
+
+// inScope reports whether the request's write token may change facility id
+// (Config.WriteScopes); when not, it answers 403 naming the token's scope.
+func (s *Server) inScope(c *gin.Context, id string) bool {
+	scope := c.GetString(writeScopeKey)
+	if scope == "" {
+		return true
+	}
+	if ok, err := path.Match(scope, id); err == nil && ok {
+		return true
+	}
+	s.fail(c, &facilities.Error{Code: facilities.CodeForbidden,
+		Message: fmt.Sprintf("this token may change only the facilities whose id matches %q, not %q", scope, truncate(id, maxEchoField))})
+	return false
+}
+
 // writer checks the request's bearer token against the configured write tokens
 // and returns the token's name for the audit trail. Every configured token is
 // compared, in constant time on SHA-256 digests, so neither the match's position
@@ -411,15 +446,17 @@ func (s *Server) writer(c *gin.Context) (facilities.Actor, bool) {
 	}
 	got := sha256.Sum256([]byte(token))
 	var by facilities.Actor
+	var scope string
 	found := 0
 	for t, name := range s.cfg.WriteTokens {
 		want := sha256.Sum256([]byte(t))
 		eq := subtle.ConstantTimeCompare(got[:], want[:])
 		if eq == 1 {
-			by = name
+			by, scope = name, s.cfg.WriteScopes[t]
 		}
 		found |= eq
 	}
+	c.Set(writeScopeKey, scope)
 	if found == 0 {
 		s.fail(c, &facilities.Error{Code: facilities.CodeForbidden, Message: "this token may not change the catalog"})
 		return "", false

@@ -24,6 +24,13 @@ import (
 // catalogServer serves a seeded SQLite catalog with the given write tokens.
 func catalogServer(t *testing.T, tokens map[string]facilities.Actor) (*httptest.Server, *sqlite.DB) {
 	t.Helper()
+	return catalogServerWith(t, api.Config{WriteTokens: tokens, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+}
+
+// catalogServerWith serves a seeded SQLite catalog with cfg (its Catalog set to
+// the new store).
+func catalogServerWith(t *testing.T, cfg api.Config) (*httptest.Server, *sqlite.DB) {
+	t.Helper()
 	ctx := context.Background()
 	db, err := sqlite.Open(ctx, filepath.Join(t.TempDir(), sqlite.FileName))
 	if err != nil {
@@ -33,7 +40,8 @@ func catalogServer(t *testing.T, tokens map[string]facilities.Actor) (*httptest.
 	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
 		t.Fatal(err)
 	}
-	s, err := api.New(api.Config{Catalog: db, WriteTokens: tokens, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	cfg.Catalog = db
+	s, err := api.New(cfg)
 	if err != nil {
 		t.Fatal(err)
 	}

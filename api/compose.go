@@ -93,12 +93,46 @@ func (fe *fieldErrors) merge(prefix string, err error) bool {
 	return true
 }
 
-// err returns the collected problems as one CodeInvalid error, or nil.
+// err returns the collected problems as one CodeInvalid error, or nil. It lists
+// at most maxFieldErrors of them, as the decoder does, and counts the rest.
 func (fe fieldErrors) err() error {
 	if len(fe) == 0 {
 		return nil
 	}
-	return &facilities.Error{Code: facilities.CodeInvalid, Message: countFields(len(fe)), Fields: fe}
+	msg := countFields(len(fe))
+	if len(fe) > maxFieldErrors {
+		msg += fmt.Sprintf(" (the first %d are listed)", maxFieldErrors)
+		fe = fe[:maxFieldErrors:maxFieldErrors]
+	}
+	return &facilities.Error{Code: facilities.CodeInvalid, Message: msg, Fields: fe}
+}
+
+// collapseWarnings keeps each distinct warning once, where it first appears,
+// saying how often it was given when more than once.
+func collapseWarnings(ws []string) []string {
+	if len(ws) < 2 {
+		return ws
+	}
+	count := make(map[string]int, len(ws))
+	for _, w := range ws {
+		count[w]++
+	}
+	if len(count) == len(ws) {
+		return ws
+	}
+	out := make([]string, 0, len(count))
+	for _, w := range ws {
+		switch n := count[w]; {
+		case n == 0:
+			continue
+		case n > 1:
+			out = append(out, fmt.Sprintf("%s (given %d times)", w, n))
+		default:
+			out = append(out, w)
+		}
+		count[w] = 0
+	}
+	return out
 }
 
 // joinPath joins JSON paths: "facility" + "balances[0].id", or "" + "x" = "x".
@@ -364,6 +398,7 @@ func (pp *preparedPlan) plan() (*PlanResponse, error) {
 	}
 	out.ReynoldsEffects = &re
 	out.ID = pp.id
+	out.Warnings = collapseWarnings(out.Warnings)
 	if err := checkFinite(out, planInputs); err != nil {
 		return nil, err
 	}
@@ -471,9 +506,17 @@ func (p *Planner) planJSON(ctx context.Context, req *PlanRequest) (plannedJSON, 
 	if pj.body, err = marshalPlan(resp); err != nil {
 		return plannedJSON{}, err
 	}
+	if len(pj.body) > MaxPlanBytes {
+		return plannedJSON{}, &facilities.Error{Code: facilities.CodeUnprocessable, Limits: []string{"plan_size"},
+			Message: fmt.Sprintf("the plan's answer is %d bytes, more than the %d a stored plan may have: plan fewer α or β points", len(pj.body), MaxPlanBytes)}
+	}
 	pj.stored = p.Catalog == nil
 	return pj, nil
 }
+
+// MaxPlanBytes is the largest plan answer the service stores and sends, in bytes
+// (4 MiB; a 2001-point sweep on two balances is about 1.5 MiB).
+const MaxPlanBytes = 4 << 20
 
 // loadsNull is how a plan answer without a load report writes it, between the
 // fields before and after it.

@@ -136,7 +136,9 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			cat.reads.Store(0)
 			rec := httptest.NewRecorder()
-			s.Handler().ServeHTTP(rec, httptest.NewRequest(http.MethodPost, tc.path, strings.NewReader(tc.body)))
+			req := httptest.NewRequest(http.MethodPost, tc.path, strings.NewReader(tc.body))
+			req.Header.Set("Content-Type", "application/json")
+			s.Handler().ServeHTTP(rec, req)
 			if rec.Code != http.StatusOK {
 				t.Fatalf("status %d: %s", rec.Code, rec.Body)
 			}

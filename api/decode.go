@@ -49,6 +49,8 @@ const maxFieldErrors = 50
 //   - a value of the wrong JSON type names its path and the type wanted;
 //   - types with their own UnmarshalJSON or UnmarshalText (facilities.Medium) are
 //     decoded by it, and its error is reported at the value's path;
+//   - an array (or an object read into a map) may hold at most the field's
+//     `maxItems:"n"` elements, DefaultMaxItems when it sets none;
 //   - numbers must be finite and fit their field; the body must be one JSON value
 //     with nothing after it, and not empty. JSON null leaves a field as it is.
 //
@@ -740,6 +742,10 @@ func (w *walker) object(v any, dst reflect.Value, unit, path string) {
 			u = unit
 		}
 		fp := joinKey(path, f.name)
+		if n := jsonLen(fv); n > f.maxItems {
+			w.add(fp, fmt.Sprintf("%d items: at most %d", n, f.maxItems))
+			continue
+		}
 		if fd, ok := fieldAlloc(dst, f.index); ok && fd.CanSet() {
 			w.walk(fv, fd, u, fp)
 		} else {
@@ -787,6 +793,26 @@ type field struct {
 	index  []int // as reflect.Value.FieldByIndex takes it
 	unit   string
 	tagged bool
+	// maxItems caps the elements of an array or the keys of an object: the
+	// field's `maxItems:"n"` tag (which the OpenAPI document publishes), else
+	// DefaultMaxItems.
+	maxItems int
+}
+
+// DefaultMaxItems caps every list (and object of values by name) of a request
+// whose field sets no `maxItems` tag of its own.
+const DefaultMaxItems = 10000
+
+// jsonLen is the number of elements of a decoded JSON array or keys of an
+// object; 0 for anything else.
+func jsonLen(v any) int {
+	switch x := v.(type) {
+	case []any:
+		return len(x)
+	case map[string]any:
+		return len(x)
+	}
+	return 0
 }
 
 type fieldSet struct {
@@ -848,8 +874,12 @@ func collectFields(t reflect.Type, prefix []int, fs *fieldSet, visiting map[refl
 			continue
 		}
 		unit, tagged := sf.Tag.Lookup("unit")
+		maxItems := DefaultMaxItems
+		if m, err := strconv.Atoi(sf.Tag.Get("maxItems")); err == nil && m > 0 {
+			maxItems = m
+		}
 		fs.byName[name] = len(fs.list)
-		fs.list = append(fs.list, field{name: name, index: index, unit: unit, tagged: tagged})
+		fs.list = append(fs.list, field{name: name, index: index, unit: unit, tagged: tagged, maxItems: maxItems})
 	}
 	for _, e := range embedded {
 		collectFields(e.t, e.index, fs, visiting)

@@ -28,10 +28,13 @@ func (s *Server) registerOperations() {
 	// Load balancers often probe with HEAD: same status, no body.
 	s.engine.HEAD("/healthz", s.healthz)
 	s.engine.HEAD("/readyz", s.readyz)
-	s.engine.GET("/metrics", s.metricsHandler())
+	if !s.cfg.MetricsElsewhere {
+		s.engine.GET("/metrics", gin.WrapH(s.MetricsHandler()))
+	}
 }
 
-// metricsHandler serves the registry's metrics.
+// MetricsHandler serves the registry's metrics: at /metrics on the API's own
+// address, or where the caller mounts it when Config.MetricsElsewhere.
 //
 //	@Summary		Metrics
 //	@Description	Prometheus text format: request counts and latency by route template and status, requests in flight, planner time, Go runtime and process figures.
@@ -39,8 +42,8 @@ func (s *Server) registerOperations() {
 //	@Produce		plain
 //	@Success		200	{string}	string	"Prometheus text exposition format"
 //	@Router			/metrics [get]
-func (s *Server) metricsHandler() gin.HandlerFunc {
-	return gin.WrapH(promhttp.HandlerFor(s.cfg.Registry, promhttp.HandlerOpts{ErrorLog: promLogger{s}}))
+func (s *Server) MetricsHandler() http.Handler {
+	return promhttp.HandlerFor(s.cfg.Registry, promhttp.HandlerOpts{ErrorLog: promLogger{s}})
 }
 
 // healthz says the process serves.
@@ -58,7 +61,7 @@ func (s *Server) healthz(c *gin.Context) {
 // readyz says whether the store answers.
 //
 //	@Summary		Readiness
-//	@Description	200 when the catalog store answers a ping within 2 s, 503 otherwise; 503 too for 30 s after the store said its disk was full (a 507), unless a write succeeds first.
+//	@Description	200 when the catalog store answers a ping within 2 s, 503 otherwise; 503 too for 30 s after the store said its disk was full (a 507), unless a write succeeds first, and while the service drains before it stops.
 //	@Tags			operations
 //	@Produce		json
 //	@Success		200	{object}	Health
@@ -67,6 +70,10 @@ func (s *Server) healthz(c *gin.Context) {
 func (s *Server) readyz(c *gin.Context) {
 	ctx, cancel := context.WithTimeout(c.Request.Context(), readyTimeout)
 	defer cancel()
+	if s.draining.Load() {
+		s.writeProblem(c, kindUnavailable.problem(c, "the service is shutting down"))
+		return
+	}
 	if s.storeIsFull() {
 		s.logger(c).Warn("not ready: the store is full")
 		s.writeProblem(c, kindUnavailable.problem(c, "the store has no space left: new plans and catalog changes fail (507) until space is freed"))

@@ -149,6 +149,7 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 		reports = []facilities.LoadReport{*out.Loads.One}
 	}
 	out.Cautions = appendCautions(nil, f, reports...)
+	out.Warnings = collapseWarnings(out.Warnings)
 	if err := checkFinite(out, loadsInputs); err != nil {
 		return nil, err
 	}

@@ -74,6 +74,9 @@ func newInternal(t *testing.T) (*Server, *httptest.Server, *syncBuffer) {
 func get(t *testing.T, ts *httptest.Server, method, path string, body io.Reader) (*http.Response, Problem) {
 	t.Helper()
 	req, _ := http.NewRequest(method, ts.URL+path, body)
+	if body != nil {
+		req.Header.Set("Content-Type", "application/json")
+	}
 	req.Header.Set(HeaderRequestID, "req-"+strings.ReplaceAll(strings.Trim(path, "/"), "/", "-"))
 	resp, err := ts.Client().Do(req)
 	if err != nil {

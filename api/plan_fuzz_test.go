@@ -27,7 +27,9 @@ func FuzzPlanEndpoint(f *testing.F) {
 	h := s.Handler()
 	f.Fuzz(func(t *testing.T, body []byte) {
 		rec := httptest.NewRecorder()
-		h.ServeHTTP(rec, httptest.NewRequest(http.MethodPost, "/v1/plans", strings.NewReader(string(body))))
+		req := httptest.NewRequest(http.MethodPost, "/v1/plans", strings.NewReader(string(body)))
+		req.Header.Set("Content-Type", "application/json")
+		h.ServeHTTP(rec, req)
 		if rec.Code >= 500 {
 			t.Fatalf("status %d for %q: %s", rec.Code, body, rec.Body)
 		}

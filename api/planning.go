@@ -14,6 +14,8 @@ func (s *Server) registerPlanning(v1 *gin.RouterGroup) {
 	v1.POST("/conditions", s.postConditions)
 	v1.POST("/plans", s.postPlan)
 	v1.POST("/plans/batch", s.postPlanBatch)
+	// /v1/plans/:id would take "batch" for a plan id: the batch is POST only.
+	v1.GET("/plans/batch", s.onlyPost)
 	v1.POST("/loads", s.postLoads)
 	v1.POST("/groups", s.postGroups)
 	v1.GET("/facilities/:id/envelope.svg", s.getEnvelope)

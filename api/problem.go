@@ -201,6 +201,9 @@ func (s *Server) writeProblem(c *gin.Context, p Problem) {
 	case http.StatusServiceUnavailable:
 		c.Header("Retry-After", strconv.Itoa(retryAfterSeconds))
 	}
+	truncateProblem(&p)
+	c.Header("Cache-Control", cacheNever)
+	c.Header("ETag", "")
 	c.Abort()
 	c.Render(p.Status, problemRender{p})
 }
@@ -213,6 +216,12 @@ func (s *Server) noRoute(c *gin.Context) {
 // noMethod answers a known path asked with a method it does not serve.
 func (s *Server) noMethod(c *gin.Context) {
 	s.writeProblem(c, kindMethodNotAllowed.problem(c, fmt.Sprintf("%s is not served on %s", c.Request.Method, c.Request.URL.Path)))
+}
+
+// onlyPost answers a route that exists for POST only, asked with another method.
+func (s *Server) onlyPost(c *gin.Context) {
+	c.Header("Allow", http.MethodPost)
+	s.noMethod(c)
 }
 
 // problemRender writes a Problem as application/problem+json.

@@ -44,6 +44,18 @@ func (s *Server) answerBytes(c *gin.Context, status int, contentType string, bod
 		s.fail(c, errors.New("a handler produced an empty body"))
 		return
 	}
+	if status == http.StatusOK && (c.Request.Method == http.MethodGet || c.Request.Method == http.MethodHead) {
+		// Every GET answer carries an entity tag, its own (a facility's version) or
+		// one of its bytes, and a matching If-None-Match is a 304.
+		etag := c.Writer.Header().Get("ETag")
+		if etag == "" {
+			etag = bodyETag(body)
+			c.Header("ETag", etag)
+		}
+		if notModified(c, etag) {
+			return
+		}
+	}
 	c.Header("Content-Length", strconv.Itoa(len(body)))
 	c.Data(status, contentType, body)
 }

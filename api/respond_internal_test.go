@@ -92,3 +92,20 @@ func TestCheckFinite(t *testing.T) {
 		})
 	}
 }
+
+func TestCollapseWarnings(t *testing.T) {
+	cases := []struct {
+		name string
+		in   []string
+		want []string
+	}{
+		{"none", nil, nil},
+		{"distinct stay", []string{"a", "b"}, []string{"a", "b"}},
+		{"repeats become one with a count", []string{"a", "b", "a", "a"}, []string{"a (given 3 times)", "b"}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			assert.Equal(t, tc.want, collapseWarnings(tc.in))
+		})
+	}
+}

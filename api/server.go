@@ -6,6 +6,7 @@ import (
 	"log/slog"
 	"net"
 	"net/http"
+	"sync/atomic"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -45,6 +46,16 @@ type Config struct {
 	Registry *prometheus.Registry
 	// Logger receives one JSON line per request; nil: slog.Default().
 	Logger *slog.Logger
+	// WriteScopes limits write tokens to the facility ids that match a pattern
+	// (path.Match syntax: "tsw-*"); a token not listed may change any facility.
+	WriteScopes map[string]string
+	// DrainDelay is how long a shutdown reports the service unready (/readyz 503,
+	// Connection: close) while it still serves, so that a load balancer stops
+	// sending new requests, before it stops accepting connections. 0: none.
+	DrainDelay time.Duration
+	// MetricsElsewhere leaves /metrics off the API's router: the caller serves
+	// MetricsHandler on an address of its own.
+	MetricsElsewhere bool
 	// FacilityRecheck is how long the planner uses a cached catalog facility before
 	// it asks the catalog whether its version is still current: a change made
 	// through another replica is planned with after at most this long (a change
@@ -65,6 +76,8 @@ type Server struct {
 	plans      *storedPlans
 	// store remembers a full disk, for /readyz (faults.go).
 	store storeState
+	// draining is set when a shutdown has begun.
+	draining atomic.Bool
 }
 
 // New builds the service: the gin router in release mode with the request-id,
@@ -93,7 +106,7 @@ func New(cfg Config) (*Server, error) {
 	e.ContextWithFallback = true
 	s := &Server{cfg: cfg, engine: e, log: cfg.Logger, metrics: m,
 		facilities: newFacilityCache(recheck(cfg.FacilityRecheck)), plans: newStoredPlans(storedPlanBytes)}
-	e.Use(s.requestID, s.observe, s.recoverPanic, s.requireBody, s.limitBody)
+	e.Use(s.requestID, s.observe, s.recoverPanic, s.requireBody, s.headers, s.limitBody)
 	e.NoRoute(s.noRoute)
 	e.NoMethod(s.noMethod)
 	s.registerOperations()
@@ -167,6 +180,14 @@ func (s *Server) Serve(ctx context.Context, ln net.Listener) error {
 	case err := <-served:
 		return err
 	case <-ctx.Done():
+	}
+	// Unready first: /readyz answers 503 and every answer asks to close its
+	// connection, so that a load balancer sends no new request here; then stop
+	// accepting, and finish the requests in flight.
+	s.draining.Store(true)
+	if s.cfg.DrainDelay > 0 {
+		s.log.Info("shutting down: unready, still serving", "drain", s.cfg.DrainDelay.String())
+		time.Sleep(s.cfg.DrainDelay)
 	}
 	s.log.Info("shutting down: draining in-flight requests", "grace", ShutdownGrace.String())
 	sctx, cancel := context.WithTimeout(context.Background(), ShutdownGrace)

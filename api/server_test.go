@@ -82,6 +82,9 @@ func (ts testServer) do(t *testing.T, method, path string, body io.Reader, heade
 	if err != nil {
 		t.Fatal(err)
 	}
+	if body != nil {
+		req.Header.Set("Content-Type", "application/json")
+	}
 	for k, v := range header {
 		req.Header.Set(k, v)
 	}

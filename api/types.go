@@ -54,10 +54,10 @@ type ConditionsResponse struct {
 // optionally, the repeating variables to build the groups from.
 type GroupsRequest struct {
 	// Variables are the physical quantities the problem depends on.
-	Variables []GroupVariable `json:"variables"`
+	Variables []GroupVariable `json:"variables" maxItems:"50"`
 	// Repeating names the variables that appear in every group; empty: chosen
 	// automatically.
-	Repeating []string `json:"repeating,omitempty"`
+	Repeating []string `json:"repeating,omitempty" maxItems:"50"`
 }
 
 // GroupVariable is one variable of a Buckingham Π analysis: a name and either a
@@ -81,7 +81,7 @@ type GroupsResponse = similarity.GroupsResult
 // BatchRequest is the body of POST /v1/plans/batch: up to MaxBatch plan requests.
 type BatchRequest struct {
 	// Requests are the plan requests, each as POST /v1/plans takes it.
-	Requests []PlanRequest `json:"requests"`
+	Requests []PlanRequest `json:"requests" maxItems:"1000"`
 }
 
 // BatchResponse is the answer of POST /v1/plans/batch: one result per request, in

@@ -53,7 +53,7 @@ type Facility struct {
 	// condensation check of condensable media; nil: 1.4 (common practice).
 	CondensationPeakMach *float64 `json:"condensation_peak_mach,omitempty"`
 	// Balances are the force balances the facility can fit.
-	Balances []Balance `json:"balances,omitempty"`
+	Balances []Balance `json:"balances,omitempty" maxItems:"20"`
 	// Operations are the times used to estimate a test's schedule; nil: no schedule.
 	Operations *Operations `json:"operations,omitempty"`
 }
@@ -118,7 +118,7 @@ type Balance struct {
 	// Limits are the rated loads of each component; a nil component is unlimited.
 	Limits Limits `json:"limits"`
 	// Combined are gauge rows: |Σ coefficient·load| ≤ limit, coefficients in SI.
-	Combined []CombinedLimit `json:"combined,omitempty"`
+	Combined []CombinedLimit `json:"combined,omitempty" maxItems:"50"`
 	// SafetyFactor divides every rating: a plan keeps utilisation ≤ 1/SafetyFactor.
 	SafetyFactor float64 `json:"safety_factor"`
 }
@@ -148,7 +148,7 @@ const (
 // in 1/m when the row is in N).
 type CombinedLimit struct {
 	Name         string             `json:"name"`
-	Coefficients map[string]float64 `json:"coefficients"`
+	Coefficients map[string]float64 `json:"coefficients" maxItems:"6"`
 	Limit        float64            `json:"limit"`
 }
 

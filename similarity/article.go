@@ -56,7 +56,7 @@ type Aero struct {
 	CmSlope float64 `json:"cm_slope"`
 	// Table, when not empty, replaces the parametric model: coefficients against α
 	// (degrees), interpolated linearly, an error outside the table.
-	Table []AeroPoint `json:"table,omitempty"`
+	Table []AeroPoint `json:"table,omitempty" maxItems:"2000"`
 }
 
 // AeroPoint is one row of a coefficient table. Angles in degrees; C_Y, C_l, C_n are

@@ -36,7 +36,7 @@ type Model struct {
 	Scale    *float64  `json:"scale,omitempty" unit:"scale"`
 	ScaleMin *float64  `json:"scale_min,omitempty" unit:"scale"`
 	ScaleMax *float64  `json:"scale_max,omitempty" unit:"scale"`
-	Scales   []float64 `json:"scales,omitempty" unit:"scale"`
+	Scales   []float64 `json:"scales,omitempty" unit:"scale" maxItems:"100"`
 }
 
 // Validate checks that at most one form is given and every scale lies in (0, 100].
@@ -94,13 +94,13 @@ func (m *Model) Validate() error {
 type Objective struct {
 	// Priority lists groups (GroupReynolds, GroupMach, GroupFroude) in order of
 	// importance; nil: the default.
-	Priority []string `json:"priority,omitempty"`
+	Priority []string `json:"priority,omitempty" maxItems:"3"`
 	// MachTolerance is the half-width of the Mach band that counts as matched;
 	// nil: DefaultMachTolerance.
 	MachTolerance *float64 `json:"mach_tolerance,omitempty"`
 	// Weights maps groups to non-negative weights; when not empty it replaces
 	// Priority.
-	Weights map[string]float64 `json:"weights,omitempty"`
+	Weights map[string]float64 `json:"weights,omitempty" maxItems:"3"`
 }
 
 // Validate checks group names, weights and the tolerance. It returns a

@@ -39,6 +39,7 @@ func newRootCmd() *cobra.Command {
 	root.AddCommand(
 		newAtmosphereCmd(),
 		newServeCmd(),
+		newCheckCmd(),
 		newFacilitiesCmd(),
 		newPlanCmd(),
 		newLoadsCmd(),

@@ -74,7 +74,9 @@ func postBody(t *testing.T, c facilities.Catalog, path, body string) (int, []byt
 		t.Fatal(err)
 	}
 	rec := httptest.NewRecorder()
-	s.Handler().ServeHTTP(rec, httptest.NewRequest(http.MethodPost, path, strings.NewReader(body)))
+	req := httptest.NewRequest(http.MethodPost, path, strings.NewReader(body))
+	req.Header.Set("Content-Type", "application/json")
+	s.Handler().ServeHTTP(rec, req)
 	return rec.Code, rec.Body.Bytes()
 }
 

@@ -7,11 +7,14 @@ import (
 	"io"
 	"log/slog"
 	"net"
+	"net/http"
 	"os"
 	"os/signal"
+	"path"
 	"strconv"
 	"strings"
 	"syscall"
+	"time"
 
 	"github.com/prometheus/client_golang/prometheus"
 	"github.com/spf13/cobra"
@@ -38,8 +41,14 @@ type serveOptions struct {
 	// databaseURL, when it starts with postgres:// or postgresql://, selects
 	// PostgreSQL; empty: SQLite under data.
 	databaseURL string
-	// tokens maps write tokens to the names recorded for their changes.
+	// tokens maps write tokens to the names recorded for their changes; scopes
+	// maps a token to the facility-id pattern it is limited to.
 	tokens map[string]facilities.Actor
+	scopes map[string]string
+	// drain is how long a shutdown reports unready before it stops accepting.
+	drain time.Duration
+	// metricsAddr, when set, serves /metrics there instead of on addr.
+	metricsAddr string
 	// ready, when set (by tests), is called with the listening address.
 	ready func(net.Addr)
 }
@@ -62,17 +71,23 @@ demo facilities on first start (unless --no-demo), or in PostgreSQL when
 SCALEMATCH_DATABASE_URL is a postgres:// URL.
 
 SCALEMATCH_WRITE_TOKENS lists the bearer tokens allowed to change the catalog,
-comma-separated, each "name:token" or a bare token. The name is recorded with every
-change it makes; a bare token is recorded as "token-1", "token-2", ... by its place
-among the bare ones, never as itself. A token that contains ':' needs a name. With
-no tokens, catalog changes are refused (403); reads and planning stay open.`,
+comma-separated, each "name:token", "name:token:pattern" or a bare token. The name
+is recorded with every change it makes; a bare token is recorded as "token-1",
+"token-2", ... by its place among the bare ones, never as itself. A pattern
+(path.Match syntax, e.g. "tsw-*") limits the token to the facility ids it matches;
+other ids are refused (403). A token cannot contain ':'. With no tokens, catalog
+changes are refused (403); reads and planning stay open.
+
+On SIGTERM the service reports itself unready (/readyz 503) for --drain while it
+still serves, then stops accepting connections and finishes the requests in
+flight (at most 30 s).`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			if err := flagsFromEnv(cmd.Flags(), os.LookupEnv); err != nil {
 				return err
 			}
 			var err error
-			if o.tokens, err = parseWriteTokens(os.Getenv(envWriteTokens)); err != nil {
+			if o.tokens, o.scopes, err = parseWriteTokens(os.Getenv(envWriteTokens)); err != nil {
 				return err
 			}
 			o.databaseURL = os.Getenv(envDatabaseURL)
@@ -85,6 +100,8 @@ no tokens, catalog changes are refused (403); reads and planning stay open.`,
 	f.StringVar(&o.addr, "addr", "127.0.0.1:8080", "address to listen on, host:port")
 	f.StringVar(&o.data, "data", "./scalematch-data", "directory of the SQLite catalog (unused with SCALEMATCH_DATABASE_URL)")
 	f.BoolVar(&o.noDemo, "no-demo", false, "do not seed a new catalog with the demo facilities")
+	f.DurationVar(&o.drain, "drain", 5*time.Second, "on SIGTERM, how long to report unready (/readyz 503) while still serving before new connections are refused")
+	f.StringVar(&o.metricsAddr, "metrics-addr", "", "serve /metrics on this address (host:port) instead of on --addr")
 	return cmd
 }
 
@@ -112,34 +129,50 @@ func flagsFromEnv(fs *pflag.FlagSet, lookup func(string) (string, bool)) error {
 	return errors.Join(errs...)
 }
 
-// parseWriteTokens reads SCALEMATCH_WRITE_TOKENS: comma-separated "name:token" pairs
-// or bare tokens. Errors never quote a token.
-func parseWriteTokens(s string) (map[string]facilities.Actor, error) {
+// parseWriteTokens reads SCALEMATCH_WRITE_TOKENS: comma-separated "name:token" or
+// "name:token:pattern" entries, or bare tokens. It returns the names by token and
+// the facility-id patterns by token. Errors never quote a token.
+func parseWriteTokens(s string) (map[string]facilities.Actor, map[string]string, error) {
 	tokens := map[string]facilities.Actor{}
+	scopes := map[string]string{}
 	bare := 0
 	for i, item := range strings.Split(s, ",") {
 		item = strings.TrimSpace(item)
 		if item == "" {
 			continue
 		}
-		name, token, named := strings.Cut(item, ":")
-		name, token = strings.TrimSpace(name), strings.TrimSpace(token)
-		if !named {
+		parts := strings.SplitN(item, ":", 3)
+		for j := range parts {
+			parts[j] = strings.TrimSpace(parts[j])
+		}
+		var name, token, pattern string
+		switch len(parts) {
+		case 1:
 			bare++
-			name, token = "token-"+strconv.Itoa(bare), item
+			name, token = "token-"+strconv.Itoa(bare), parts[0]
+		case 2:
+			name, token = parts[0], parts[1]
+		default:
+			name, token, pattern = parts[0], parts[1], parts[2]
+			if _, err := path.Match(pattern, ""); err != nil || pattern == "" {
+				return nil, nil, fmt.Errorf("%s: entry %d (%s): the facility-id pattern does not parse (want e.g. tsw-*)", envWriteTokens, i+1, name)
+			}
 		}
 		if name == "" || token == "" {
-			return nil, fmt.Errorf("%s: entry %d: want name:token or a bare token", envWriteTokens, i+1)
+			return nil, nil, fmt.Errorf("%s: entry %d: want name:token, name:token:pattern or a bare token", envWriteTokens, i+1)
 		}
 		if strings.ContainsFunc(token, func(r rune) bool { return r <= ' ' || r == 0x7f }) {
-			return nil, fmt.Errorf("%s: entry %d (%s): a token cannot contain spaces or control characters", envWriteTokens, i+1, name)
+			return nil, nil, fmt.Errorf("%s: entry %d (%s): a token cannot contain spaces or control characters", envWriteTokens, i+1, name)
 		}
 		if _, dup := tokens[token]; dup {
-			return nil, fmt.Errorf("%s: entry %d (%s) repeats an earlier token", envWriteTokens, i+1, name)
+			return nil, nil, fmt.Errorf("%s: entry %d (%s) repeats an earlier token", envWriteTokens, i+1, name)
 		}
 		tokens[token] = facilities.Actor(name)
+		if pattern != "" {
+			scopes[token] = pattern
+		}
 	}
-	return tokens, nil
+	return tokens, scopes, nil
 }
 
 // openStore opens PostgreSQL when url is a postgres URL, else the SQLite file under
@@ -156,10 +189,25 @@ func openStore(ctx context.Context, url, dir string) (facilities.Catalog, string
 	return db, "sqlite " + sqlite.Path(dir), err
 }
 
-// serve opens the store, seeds it on first start, serves until ctx is done, drains
-// the requests in flight and closes the store. It logs JSON lines to logw.
+// serve binds its addresses, opens the store, seeds it on first start, serves
+// until ctx is done, drains the requests in flight and closes the store. It logs
+// JSON lines to logw. The addresses are bound first, so that a port in use or a
+// bad address fails before anything is created on disk.
 func serve(ctx context.Context, o serveOptions, logw io.Writer) (err error) {
 	log := slog.New(slog.NewJSONHandler(logw, nil))
+	var lc net.ListenConfig
+	ln, err := lc.Listen(ctx, "tcp", o.addr)
+	if err != nil {
+		return err
+	}
+	defer ln.Close()
+	var mln net.Listener
+	if o.metricsAddr != "" {
+		if mln, err = lc.Listen(ctx, "tcp", o.metricsAddr); err != nil {
+			return fmt.Errorf("--metrics-addr: %w", err)
+		}
+		defer mln.Close()
+	}
 	store, where, err := openStore(ctx, o.databaseURL, o.data)
 	if err != nil {
 		return err
@@ -171,16 +219,28 @@ func serve(ctx context.Context, o serveOptions, logw io.Writer) (err error) {
 		}
 		log.Info("store closed")
 	}()
+	if qc, ok := store.(interface {
+		QuickCheck(context.Context) error
+	}); ok {
+		t := time.Now()
+		if err := qc.QuickCheck(ctx); err != nil {
+			return fmt.Errorf("%s: %w (run scalematch check for the full check)", where, err)
+		}
+		log.Info("store quick check passed", "duration_ms", float64(time.Since(t).Microseconds())/1000)
+	}
 	seeded, err := facilities.SeedDemo(ctx, store, !o.noDemo)
 	if err != nil {
 		return err
 	}
-	log.Info("store open", "store", where, "demo_seeded", seeded, "write_tokens", len(o.tokens))
+	log.Info("store open", "store", where, "demo_seeded", seeded, "write_tokens", len(o.tokens), "scoped_tokens", len(o.scopes))
 	srv, err := api.New(api.Config{
-		Catalog:     store,
-		WriteTokens: o.tokens,
-		Registry:    prometheus.NewRegistry(),
-		Logger:      log,
+		Catalog:          store,
+		WriteTokens:      o.tokens,
+		WriteScopes:      o.scopes,
+		Registry:         prometheus.NewRegistry(),
+		Logger:           log,
+		DrainDelay:       o.drain,
+		MetricsElsewhere: mln != nil,
 	})
 	if err != nil {
 		return err
@@ -190,10 +250,11 @@ func serve(ctx context.Context, o serveOptions, logw io.Writer) (err error) {
 		return err
 	}
 	pg.Register(srv)
-	var lc net.ListenConfig
-	ln, err := lc.Listen(ctx, "tcp", o.addr)
-	if err != nil {
-		return err
+	if mln != nil {
+		ms := &http.Server{Handler: srv.MetricsHandler(), ReadHeaderTimeout: 5 * time.Second}
+		go ms.Serve(mln)
+		defer ms.Close()
+		log.Info("metrics listening", "addr", mln.Addr().String())
 	}
 	if o.ready != nil {
 		o.ready(ln.Addr())

@@ -35,7 +35,7 @@ func TestParseWriteTokens(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			got, err := parseWriteTokens(tc.in)
+			got, _, err := parseWriteTokens(tc.in)
 			if tc.errFrag != "" {
 				if err == nil || !strings.Contains(err.Error(), tc.errFrag) {
 					t.Fatalf("error %v, want one containing %q", err, tc.errFrag)
