@@ -1,6 +1,10 @@
 package atmosphere
 
-import "math"
+import (
+	"errors"
+	"fmt"
+	"math"
+)
 
 // Constants of the U.S. Standard Atmosphere, 1976 (NOAA-S/T 76-1562, table 2 and
 // section 1.2). Below 32 km they equal those of the ICAO Standard Atmosphere
@@ -153,10 +157,16 @@ func At(z, deltaISA float64) (State, error) {
 // AtPressureAltitude returns the atmosphere at pressure altitude hp (m, the
 // geopotential altitude of the standard day at that pressure; ICAO convention) on a
 // day offset from standard by deltaISA (K). hp must lie between the pressure
-// altitudes of -5 km and 86 km geometric, -5003.9 m to 84852.05 m. The state's
+// altitudes of -5 km and 86 km geometric, -5003.9359 m to 84852.0458 m (so
+// 84852.05 m is refused); the range error states both bounds to 0.1 mm. The state's
 // Altitude is the geometric altitude at which the standard day has that pressure.
 func AtPressureAltitude(hp, deltaISA float64) (State, error) {
-	if err := checkRange("pressure altitude", hp, Geopotential(MinAltitude), Geopotential(MaxAltitude), "m"); err != nil {
+	lo, hi := Geopotential(MinAltitude), Geopotential(MaxAltitude)
+	if err := checkRange("pressure altitude", hp, lo, hi, "m"); err != nil {
+		var re *RangeError
+		if errors.As(err, &re) {
+			re.Note = fmt.Sprintf("the bounds are %.4f m and %.4f m, the geopotential altitudes of %g m and %g m geometric", lo, hi, MinAltitude, MaxAltitude)
+		}
 		return State{}, err
 	}
 	return at(Geometric(hp), hp, deltaISA)

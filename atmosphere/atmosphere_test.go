@@ -10,6 +10,9 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/atmosphere"
 )
 
@@ -330,4 +333,18 @@ func TestNoNaNAcrossRange(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestPressureAltitudeBound checks the exact upper bound of AtPressureAltitude, the
+// geopotential altitude of 86 km geometric, 84 852.0458 m (6356766·86000/6442766),
+// and that the error states it.
+func TestPressureAltitudeBound(t *testing.T) {
+	AtPressureAltitude := atmosphere.AtPressureAltitude
+	ErrRange := atmosphere.ErrRange
+	_, err := AtPressureAltitude(84852.045, 0)
+	require.NoError(t, err)
+	_, err = AtPressureAltitude(84852.05, 0)
+	require.ErrorIs(t, err, ErrRange)
+	assert.Contains(t, err.Error(), "84852.0458 m")
+	assert.Contains(t, err.Error(), "-5003.9359 m")
 }

@@ -63,6 +63,9 @@ var unitTable = map[string]Unit{
 	"metres": {Factor: 1, Dim: DimLength},
 	"mm":     {Factor: 1e-3, Dim: DimLength}, "cm": {Factor: 1e-2, Dim: DimLength},
 	"km": {Factor: 1e3, Dim: DimLength},
+	// Micrometre: the micro sign (U+00B5), the Greek mu (U+03BC) and ASCII "um".
+	"\u00b5m": {Factor: 1e-6, Dim: DimLength}, "\u03bcm": {Factor: 1e-6, Dim: DimLength},
+	"um": {Factor: 1e-6, Dim: DimLength},
 	"ft": {Factor: footSI, Dim: DimLength}, "foot": {Factor: footSI, Dim: DimLength},
 	"feet": {Factor: footSI, Dim: DimLength},
 	"in":   {Factor: inchSI, Dim: DimLength}, "inch": {Factor: inchSI, Dim: DimLength},

@@ -360,3 +360,17 @@ func TestDimensionText(t *testing.T) {
 		t.Errorf("UnmarshalText(Q) succeeded")
 	}
 }
+
+// TestMicrometre checks the three spellings of the micrometre (exact: 1e-6 m, SI
+// prefix micro, NIST SP 811).
+func TestMicrometre(t *testing.T) {
+	for _, u := range []string{"\u00b5m", "\u03bcm", "um"} {
+		v, dim, err := similarity.ParseQuantity("25 " + u)
+		if err != nil {
+			t.Fatalf("%q: %v", u, err)
+		}
+		if math.Abs(v/25e-6-1) > 1e-15 || dim != similarity.DimLength {
+			t.Errorf("25 %s = %g (dim %v), want 2.5e-05 m", u, v, dim)
+		}
+	}
+}

@@ -40,6 +40,9 @@ table() {
 1 mm|m|mm|m
 1 cm|m|cm|m
 1 km|m|km|m
+1 µm|m|micrometer|m
+1 μm|m|micrometer|m
+1 um|m|micrometer|m
 1 ft|m|ft|m
 1 foot|m|foot|m
 1 feet|m|feet|m
