@@ -9,10 +9,11 @@ import (
 
 // Documented ranges of the test settings of /v1/conditions and /v1/loads.
 var (
-	// BoundSettingMach bounds a test setting's Mach number.
-	BoundSettingMach = facilities.Bound{Min: 1e-3, Max: facilities.MaxSettingMach}
-	// BoundSettingSpeed bounds a test setting's speed, m/s.
-	BoundSettingSpeed = facilities.Bound{Min: 1e-3, Max: facilities.MaxSpeed, Unit: "m/s"}
+	// BoundSettingMach bounds a test setting's Mach number; 0 is the tunnel at
+	// rest (q = 0 Pa).
+	BoundSettingMach = facilities.Bound{Min: 0, Max: facilities.MaxSettingMach}
+	// BoundSettingSpeed bounds a test setting's speed, m/s; 0 is the tunnel at rest.
+	BoundSettingSpeed = facilities.Bound{Min: 0, Max: facilities.MaxSpeed, Unit: "m/s"}
 )
 
 // Bounds returns the documented range of every number a request may carry, keyed

@@ -247,6 +247,11 @@ func TestConditions(t *testing.T) {
 		{"within limits", `{"facility_id": "tsw-1", "mach": 0.8, "stagnation_pressure": 150000, "stagnation_temperature": 310}`, 200, []string{}},
 		{"above q", `{"facility_id": "tsw-1", "mach": 1.1, "stagnation_pressure": "2.2 bar", "stagnation_temperature": 310}`, 200, []string{"max_dynamic_pressure"}},
 		{"fixed pressure may be left out", `{"facility_id": "lsw-2", "speed": "100 kt", "stagnation_temperature": 293}`, 200, []string{}},
+		// Mach 0 is the tunnel at rest (q = 0): a valid state, below tsw-1's Mach range.
+		{"at rest", `{"facility_id": "tsw-1", "mach": 0, "stagnation_pressure": 150000, "stagnation_temperature": 310}`, 200, []string{"mach_min"}},
+		{"water at rest", `{"facility_id": "wtn-04", "speed": 0, "stagnation_pressure": 150000, "stagnation_temperature": 290}`, 200, []string{"speed_min"}},
+		{"negative Mach", `{"facility_id": "tsw-1", "mach": -0.1, "stagnation_pressure": 150000, "stagnation_temperature": 310}`, 400, nil},
+		{"Mach above 5", `{"facility_id": "tsw-1", "mach": 5.5, "stagnation_pressure": 150000, "stagnation_temperature": 310}`, 400, nil},
 		{"missing settings", `{"facility_id": "tsw-1"}`, 400, nil},
 		{"unknown facility", `{"facility_id": "xx-9", "mach": 0.5, "stagnation_pressure": 1e5, "stagnation_temperature": 300}`, 404, nil},
 	}
@@ -432,4 +437,20 @@ func TestPlanMatchedAndCautions(t *testing.T) {
 			assert.Equal(t, facilities.CautionEstimate, p.Cautions[0])
 		})
 	}
+}
+
+// TestLoadsAtRest: Mach 0 is the tunnel at rest, q = 0 Pa: the loads answer 200
+// and the balance carries the weight alone (no NaN or infinity from q = 0).
+func TestLoadsAtRest(t *testing.T) {
+	ts := newServer(t)
+	body := strings.Replace(strings.Replace(j16Loads, "BALANCE", `"balance_id": "int-b2",`, 1), `"mach": 0.78`, `"mach": 0`, 1)
+	code, b := post(t, ts, "/v1/loads", body)
+	require.Equal(t, 200, code, "%s", b)
+	var out struct {
+		Test struct {
+			DynamicPressure float64 `json:"dynamic_pressure"`
+		} `json:"test"`
+	}
+	require.NoError(t, json.Unmarshal(b, &out))
+	assert.Zero(t, out.Test.DynamicPressure, "q at rest, Pa: %s", b)
 }

@@ -22,8 +22,10 @@ type ConditionsRequest struct {
 // stagnation pressure and temperature. A stagnation value may be left out when the
 // facility fixes it (range min = max, as in an atmospheric tunnel).
 type TestSettings struct {
-	// Mach is the free-stream Mach number (dimensionless); nil when Speed is given.
-	// Not used in water.
+	// Mach is the free-stream Mach number (dimensionless), 0 to 5; nil when Speed is
+	// given. Not used in water. Mach 0 (or speed 0) is the tunnel at rest: the static
+	// state is the stagnation state, q = 0 Pa and Re/m = 0, and the balance carries
+	// the model's weight alone.
 	Mach *float64 `json:"mach,omitempty" example:"0.8"`
 	// Speed is the free-stream speed in m/s (or a string such as "250 kt"); nil when
 	// Mach is given.
