@@ -303,7 +303,7 @@ func (p *Planner) prepare(ctx context.Context, req *PlanRequest) (*preparedPlan,
 	if err := notFoundOrFail(err, &fe, "facility_id"); err != nil {
 		return nil, err
 	}
-	if err := req.Flight.Validate(); err != nil && !fe.merge("", err) {
+	if err := validateFullScale(&req.Flight, req.Marine, true); err != nil && !fe.merge("", err) {
 		return nil, err
 	}
 	checkArticle(&req.Article, &fe)
@@ -321,7 +321,7 @@ func (p *Planner) prepare(ctx context.Context, req *PlanRequest) (*preparedPlan,
 	if err := fe.err(); err != nil {
 		return nil, err
 	}
-	flight, err := req.Flight.Resolve(req.Article.ReferenceLength)
+	flight, err := resolveFullScale(&req.Flight, req.Marine, req.Article.ReferenceLength)
 	if err != nil {
 		return nil, err
 	}
@@ -568,4 +568,33 @@ func (p *Planner) save(ctx context.Context, pj plannedJSON) ([]byte, error) {
 	}
 	p.stored.put(pj.id, body)
 	return body, nil
+}
+
+// validateFullScale checks that a request gives exactly one full-scale condition, a
+// flight or a marine condition (required says one must be given: without marine,
+// the flight is then validated even when empty, naming its missing altitude and
+// speed), and validates it. Errors name the field: "marine" when both are given, or
+// the bad field inside one ("flight.altitude", "marine.temperature").
+func validateFullScale(fl *similarity.Flight, m *similarity.Marine, required bool) error {
+	given := fl != nil && *fl != (similarity.Flight{})
+	switch {
+	case given && m != nil:
+		return facilities.Invalid("invalid full-scale condition", []facilities.FieldError{{Field: "marine",
+			Message: "give flight (an aircraft in the atmosphere) or marine (a vessel in water), not both"}})
+	case m != nil:
+		return m.Validate()
+	case given || required && fl != nil:
+		// An absent flight names its missing altitude and speed, as it always has.
+		return fl.Validate()
+	}
+	return nil
+}
+
+// resolveFullScale resolves the request's flight or marine condition on the
+// full-scale reference length l in m (validateFullScale has passed).
+func resolveFullScale(fl *similarity.Flight, m *similarity.Marine, l float64) (similarity.FlightState, error) {
+	if m != nil {
+		return m.Resolve(l)
+	}
+	return fl.Resolve(l)
 }

@@ -48,10 +48,8 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 	if err := notFoundOrFail(err, &fe, "facility_id"); err != nil {
 		return nil, err
 	}
-	if req.Flight != nil {
-		if err := req.Flight.Validate(); err != nil && !fe.merge("", err) {
-			return nil, err
-		}
+	if err := validateFullScale(req.Flight, req.Marine, false); err != nil && !fe.merge("", err) {
+		return nil, err
 	}
 	checkArticle(&req.Article, &fe)
 	switch sc := req.Model.Scale; {
@@ -99,18 +97,19 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 		Violations: f.Violations(st),
 		Warnings:   append([]string{}, mx.Warnings...),
 	}
-	if req.Flight != nil {
-		fl, err := req.Flight.Resolve(a.ReferenceLength)
+	if req.Flight != nil || req.Marine != nil {
+		fl, err := resolveFullScale(req.Flight, req.Marine, a.ReferenceLength)
 		if err != nil {
 			return nil, err
 		}
 		out.Flight = &fl
 		out.Mismatch = &similarity.Mismatch{ReynoldsRatio: out.Test.Reynolds / fl.Reynolds}
-		if !f.Medium.IsLiquid() {
+		if !f.Medium.IsLiquid() && fl.Marine == nil {
 			d := st.Mach - fl.Mach
 			out.Mismatch.MachDifference = &d
 		}
 		out.Mismatch.Decide(similarity.DefaultMachTolerance)
+		similarity.CompareCavitation(&out.Test, out.Mismatch, fl, f, similarity.DefaultCavitationTolerance)
 	}
 	out.Warnings = append(out.Warnings, f.Warnings(st)...)
 	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)

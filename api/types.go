@@ -108,7 +108,14 @@ type BatchResult struct {
 type PlanRequest struct {
 	// Flight is the full-scale flight condition: one altitude (m), an optional
 	// delta_isa (K), one speed (mach, or true/calibrated/equivalent airspeed in m/s).
+	// Give it or Marine, not both.
 	Flight similarity.Flight `json:"flight"`
+	// Marine is the full-scale condition of a vessel in water, instead of Flight:
+	// water "fresh" or "sea" (salinity g/kg), temperature K, depth of the reference
+	// point m, atmospheric pressure Pa (default 101 325 Pa), speed m/s, and how it
+	// meets the free surface. The answer's flight then has no Mach number or
+	// airspeeds and carries marine (cavitation number, vapour pressure, Pa).
+	Marine *similarity.Marine `json:"marine,omitempty"`
 	// Article is the full-scale test article: lengths in m, areas in m², and its
 	// aerodynamic estimate (slopes per radian, angles in degrees).
 	Article similarity.Article `json:"article"`
@@ -148,8 +155,10 @@ type PlanResponse struct {
 	// FacilityVersion is the catalog version of the facility used; 0 when inline or
 	// from the built-in demo catalog.
 	FacilityVersion int `json:"facility_version"`
-	// Flight is the full-scale flight state: Mach, Reynolds number on the full-scale
-	// reference length, airspeeds in m/s, dynamic pressure in Pa, static state.
+	// Flight is the full-scale state: Mach, Reynolds number on the full-scale
+	// reference length, airspeeds in m/s, dynamic pressure in Pa, static state; for
+	// a marine condition no Mach number or airspeeds (absent) but marine, with the
+	// cavitation number σ and the water's vapour pressure (Pa).
 	Flight similarity.FlightState `json:"flight"`
 	// Model is the chosen model: scale, reference length m, reference area m², span m,
 	// frontal area m², blockage (fraction of the test-section area).
@@ -207,6 +216,9 @@ type FacilityChange struct {
 type LoadsRequest struct {
 	// Flight is optional here: when given, the answer compares the test with it.
 	Flight *similarity.Flight `json:"flight,omitempty"`
+	// Marine is optional here, instead of Flight: a vessel in water to compare the
+	// test with (see PlanRequest.Marine).
+	Marine *similarity.Marine `json:"marine,omitempty"`
 	// Article is the full-scale test article, as in a plan request.
 	Article similarity.Article `json:"article"`
 	// Facility is the facility given inline; give this or FacilityID.

@@ -33,9 +33,10 @@ const settingMessage = "test-section setting is invalid"
 // Water (incompressible): s.Speed is the speed and s.Mach must be 0; T = T0,
 // ρ and μ from WaterDensity and WaterViscosity, static p = p0 − q, Mach 0 and
 // SpeedOfSound 0 (the model has no compressibility), Z = 1. A facility with a
-// StaticPressure range holds its static pressure at HeldStaticPressure and
-// p0 = p + q; s.StagnationPressure is 0 or that p0 (to 1e-9), anything else is
-// refused.
+// StaticPressure range sets its static pressure to s.StaticPressure (held at
+// HeldStaticPressure when that is 0) and p0 = p + q; s.StagnationPressure is 0 or
+// that p0 (to 1e-9), anything else is refused. Other facilities refuse a
+// s.StaticPressure.
 //
 // Bad settings give a *Error with CodeInvalid naming every bad field ("mach",
 // "speed", "stagnation_pressure", "stagnation_temperature", or "medium" when the
@@ -143,12 +144,24 @@ func checkStagnation(s Setting, errs []FieldError) []FieldError {
 func (f *Facility) waterState(s Setting) (State, error) {
 	var errs []FieldError
 	held := f.StaticPressure != nil
+	ps := f.HeldStaticPressure()
 	if held {
-		// The facility sets its static pressure: hold it at HeldStaticPressure (the
-		// stagnation pressure, if given, is checked against p + q below).
-		errs = checkStagnation(Setting{StagnationPressure: f.HeldStaticPressure(), StagnationTemperature: s.StagnationTemperature}, errs)
+		// The facility sets its static pressure: s.StaticPressure, or held at
+		// HeldStaticPressure (the stagnation pressure, if given, is checked against
+		// p + q below).
+		if s.StaticPressure != 0 {
+			ps = s.StaticPressure
+		}
+		errs = checkStagnation(Setting{StagnationPressure: ps, StagnationTemperature: s.StagnationTemperature}, errs)
+		if len(errs) > 0 && s.StaticPressure != 0 && errs[len(errs)-1].Field == "stagnation_pressure" {
+			errs[len(errs)-1].Field = "static_pressure"
+		}
 	} else {
 		errs = checkStagnation(s, errs)
+		if s.StaticPressure != 0 {
+			errs = append(errs, FieldError{Field: "static_pressure", Message: fmt.Sprintf(
+				"%g Pa: facility %s does not set its test-section static pressure independently of speed: give the stagnation pressure", s.StaticPressure, f.ID)})
+		}
 	}
 	if s.Mach != 0 {
 		errs = append(errs, FieldError{Field: "mach", Message: "water facilities take a speed: Mach is not a setting in water"})
@@ -169,11 +182,11 @@ func (f *Facility) waterState(s Setting) (State, error) {
 	q := 0.5 * rho * v * v
 	p0 := s.StagnationPressure
 	if held {
-		p0 = f.HeldStaticPressure() + q
+		p0 = ps + q
 		if given := s.StagnationPressure; given != 0 && !(math.Abs(given-p0) <= 1e-9*p0) {
 			return State{}, Invalid(settingMessage, []FieldError{{Field: "stagnation_pressure", Message: fmt.Sprintf(
-				"%g Pa: facility %s sets its test-section static pressure (held at %g Pa) and the stagnation pressure follows, p0 = p + q = %.10g Pa at %g m/s: leave it out",
-				given, f.ID, f.HeldStaticPressure(), p0, v)}})
+				"%g Pa: facility %s sets its test-section static pressure (here %g Pa) and the stagnation pressure follows, p0 = p + q = %.10g Pa at %g m/s: leave it out",
+				given, f.ID, ps, p0, v)}})
 		}
 	}
 	p := p0 - q

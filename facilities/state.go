@@ -12,6 +12,10 @@ type Setting struct {
 	StagnationPressure float64
 	// StagnationTemperature in K.
 	StagnationTemperature float64
+	// StaticPressure is the test-section static pressure in Pa of a water facility
+	// with a StaticPressure range (a cavitation tunnel), which sets it independently
+	// of speed; 0: held at Facility.HeldStaticPressure. Other facilities take none.
+	StaticPressure float64
 }
 
 // Static is the static (free-stream) state of the medium in the test section.

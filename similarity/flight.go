@@ -34,24 +34,30 @@ type Flight struct {
 // FlightState is a resolved flight condition, all SI. Its JSON is the `flight` part
 // of a plan response. Reynolds and Froude are based on ReferenceLength.
 type FlightState struct {
-	// Mach is the flight Mach number.
-	Mach float64 `json:"mach"`
+	// Mach is the flight Mach number; 0 and absent from the JSON for a marine
+	// condition (water is incompressible here).
+	Mach float64 `json:"mach,omitempty"`
 	// Reynolds is ρ·V·L/μ on the full-scale reference length L.
 	Reynolds float64 `json:"reynolds"`
 	// Froude is V/√(g0·L) on the full-scale reference length L.
 	Froude float64 `json:"froude"`
 	// ReferenceLength is the full-scale length L in m the numbers are based on.
 	ReferenceLength float64 `json:"reference_length"`
-	// TrueAirspeed in m/s.
-	TrueAirspeed float64 `json:"true_airspeed"`
-	// CalibratedAirspeed in m/s.
-	CalibratedAirspeed float64 `json:"calibrated_airspeed"`
-	// EquivalentAirspeed in m/s.
-	EquivalentAirspeed float64 `json:"equivalent_airspeed"`
+	// TrueAirspeed in m/s; 0 and absent for a marine condition (its speed is
+	// Marine.Speed).
+	TrueAirspeed float64 `json:"true_airspeed,omitempty"`
+	// CalibratedAirspeed in m/s; 0 and absent for a marine condition.
+	CalibratedAirspeed float64 `json:"calibrated_airspeed,omitempty"`
+	// EquivalentAirspeed in m/s; 0 and absent for a marine condition.
+	EquivalentAirspeed float64 `json:"equivalent_airspeed,omitempty"`
 	// DynamicPressure is ½·ρ·V² in Pa.
 	DynamicPressure float64 `json:"dynamic_pressure"`
-	// Static is the free air's static state; Compressibility is 1 (ideal gas).
+	// Static is the free air's static state; Compressibility is 1 (ideal gas). For
+	// a marine condition: the water at the reference depth (pressure
+	// p_atm + ρ·g0·h, speed of sound 0).
 	Static facilities.Static `json:"static"`
+	// Marine is the resolved marine condition; nil (absent) for a flight.
+	Marine *MarineState `json:"marine,omitempty"`
 	// Atmosphere is the full standard-atmosphere state the flight is in.
 	Atmosphere atmosphere.State `json:"-"`
 }

@@ -13,7 +13,14 @@ const (
 	GroupReynolds = "reynolds"
 	GroupMach     = "mach"
 	GroupFroude   = "froude"
+	// GroupCavitation is the cavitation number σ = (p − p_v)/(½·ρ·V²); only a
+	// marine condition has one.
+	GroupCavitation = "cavitation"
 )
+
+// DefaultCavitationTolerance is the cavitation-number band half-width of the
+// default marine objective: |Δσ| ≤ 0.02 counts as matched.
+const DefaultCavitationTolerance = 0.02
 
 // DefaultMachTolerance is the Mach-number band half-width of the default priority
 // objective: |ΔM| ≤ 0.005 counts as matched.
@@ -90,14 +97,21 @@ func (m *Model) Validate() error {
 //
 // Ties go to the lowest dynamic pressure in both. The zero value is the priority
 // ["mach", "reynolds"] with MachTolerance DefaultMachTolerance; for a water
-// facility, which never targets the Mach number, it is ["reynolds"].
+// facility, which never targets the Mach number, it is ["reynolds"]; for a marine
+// condition in a water facility it is ["cavitation", "reynolds"] with
+// CavitationTolerance DefaultCavitationTolerance (in a gas facility, where the
+// cavitation number means nothing, ["reynolds"]). The weighted sum takes the
+// cavitation number as (ln(σ_test/σ_full))² too.
 type Objective struct {
-	// Priority lists groups (GroupReynolds, GroupMach, GroupFroude) in order of
-	// importance; nil: the default.
-	Priority []string `json:"priority,omitempty" maxItems:"3"`
+	// Priority lists groups (GroupReynolds, GroupMach, GroupFroude,
+	// GroupCavitation) in order of importance; nil: the default.
+	Priority []string `json:"priority,omitempty" maxItems:"4"`
 	// MachTolerance is the half-width of the Mach band that counts as matched;
 	// nil: DefaultMachTolerance.
 	MachTolerance *float64 `json:"mach_tolerance,omitempty"`
+	// CavitationTolerance is the half-width of the cavitation-number band that
+	// counts as matched (absolute, 0–10); nil: DefaultCavitationTolerance.
+	CavitationTolerance *float64 `json:"cavitation_tolerance,omitempty"`
 	// Weights maps groups to non-negative weights; when not empty it replaces
 	// Priority.
 	Weights map[string]float64 `json:"weights,omitempty" maxItems:"3"`
@@ -110,7 +124,9 @@ func (o *Objective) Validate() error {
 	add := func(field, msg string) {
 		fe = append(fe, facilities.FieldError{Field: "objective." + field, Message: msg})
 	}
-	known := func(g string) bool { return g == GroupReynolds || g == GroupMach || g == GroupFroude }
+	known := func(g string) bool {
+		return g == GroupReynolds || g == GroupMach || g == GroupFroude || g == GroupCavitation
+	}
 	if len(o.Priority) > 0 && len(o.Weights) > 0 {
 		add("weights", "give either priority or weights, not both")
 	}
@@ -118,7 +134,7 @@ func (o *Objective) Validate() error {
 	for i, g := range o.Priority {
 		switch {
 		case !known(g):
-			add(fmt.Sprintf("priority[%d]", i), fmt.Sprintf("unknown group %q: want reynolds, mach or froude", g))
+			add(fmt.Sprintf("priority[%d]", i), fmt.Sprintf("unknown group %q: want reynolds, mach, froude or cavitation", g))
 		case seen[g]:
 			add(fmt.Sprintf("priority[%d]", i), fmt.Sprintf("group %q is listed twice", g))
 		}
@@ -137,7 +153,7 @@ func (o *Objective) Validate() error {
 		w := o.Weights[g]
 		switch {
 		case !known(g):
-			add("weights."+g, fmt.Sprintf("unknown group %q: want reynolds, mach or froude", g))
+			add("weights."+g, fmt.Sprintf("unknown group %q: want reynolds, mach, froude or cavitation", g))
 		case !BoundWeight.Contains(w):
 			add("weights."+g, "weight "+BoundWeight.Problem(w))
 		case w > 0:
@@ -149,6 +165,9 @@ func (o *Objective) Validate() error {
 	}
 	if o.MachTolerance != nil && !(*o.MachTolerance >= 0 && *o.MachTolerance <= 1) {
 		add("mach_tolerance", fmt.Sprintf("%g is outside 0 to 1", *o.MachTolerance))
+	}
+	if o.CavitationTolerance != nil && !BoundCavitationTolerance.Contains(*o.CavitationTolerance) {
+		add("cavitation_tolerance", BoundCavitationTolerance.Problem(*o.CavitationTolerance))
 	}
 	return facilities.Invalid("invalid objective", fe)
 }
@@ -224,6 +243,13 @@ type Test struct {
 	Reynolds float64 `json:"reynolds"`
 	// Froude is V/√(g0·l) on the model's reference length l.
 	Froude float64 `json:"froude"`
+	// Cavitation is the test section's cavitation number (p − p_v)/(½·ρ·V²) at the
+	// static pressure p and the IAPWS-IF97 vapour pressure p_v of the tunnel water
+	// (Pa); present only in a water facility.
+	Cavitation *float64 `json:"cavitation,omitempty"`
+	// VapourPressure is the tunnel water's vapour pressure in Pa; present only in
+	// a water facility.
+	VapourPressure *float64 `json:"vapour_pressure,omitempty"`
 }
 
 // Mismatch compares the test with the flight.
@@ -258,6 +284,16 @@ type Mismatch struct {
 	// FroudeMatched reports |Fr_test/Fr_flight − 1| ≤ RatioMatchBand; present only
 	// with FroudeRatio.
 	FroudeMatched *bool `json:"froude_matched,omitempty"`
+	// CavitationDifference is σ_test − σ_full of a marine condition in a water
+	// facility; absent otherwise.
+	CavitationDifference *float64 `json:"cavitation_difference,omitempty"`
+	// CavitationMatched reports |σ_test − σ_full| ≤ CavitationTolerance (up to a
+	// relative 1e-9 of the tolerance for rounding); present with
+	// CavitationDifference.
+	CavitationMatched *bool `json:"cavitation_matched,omitempty"`
+	// CavitationTolerance is the band half-width CavitationMatched was decided
+	// with: the objective's cavitation_tolerance or DefaultCavitationTolerance.
+	CavitationTolerance float64 `json:"cavitation_tolerance,omitempty"`
 }
 
 // RatioMatchBand is the relative band within which a ratio of a test group to the

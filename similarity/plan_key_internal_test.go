@@ -52,10 +52,10 @@ func weakOrderViolation(less func(a, b key) bool, ks []key) string {
 // alone), to lose at the end to the candidate at the flight's Mach number with a
 // much higher q.
 var creepChain = []key{
-	{v: [3]float64{0}, q: 9742.7},
-	{v: [3]float64{0.6e-11}, q: 8500},
-	{v: [3]float64{1.2e-11}, q: 7900},
-	{v: [3]float64{1.8e-11}, q: 7374.6},
+	{v: [nGroups]float64{0}, q: 9742.7},
+	{v: [nGroups]float64{0.6e-11}, q: 8500},
+	{v: [nGroups]float64{1.2e-11}, q: 7900},
+	{v: [nGroups]float64{1.8e-11}, q: 7374.6},
 }
 
 // TestKeyLessChain checks on the creeping chain that the former tolerant

@@ -17,6 +17,11 @@ func (sv *solver) result(x cand) *Result {
 	set := facilities.Setting{StagnationPressure: x.p0, StagnationTemperature: x.t0}
 	if sv.liquid {
 		set.Speed = x.u
+		if sv.held {
+			// The facility sets its static pressure: the one chosen (cavitation
+			// objective), else held at its maximum.
+			set.StagnationPressure, set.StaticPressure = 0, x.ps
+		}
 	} else {
 		set.Mach = x.u
 	}
@@ -47,10 +52,17 @@ func (sv *solver) result(x cand) *Result {
 		},
 		Warnings: append([]string{}, sv.warnings...),
 	}
+	if sv.liquid {
+		pv := facilities.WaterVapourPressure(st.Static.Temperature)
+		res.Test.VapourPressure = &pv
+		if sig, ok := WaterCavitation(st); ok {
+			res.Test.Cavitation = &sig
+		}
+	}
 	res.Mismatch = Mismatch{
 		ReynoldsRatio: res.Test.Reynolds / sv.fl.Reynolds,
 	}
-	if !sv.liquid {
+	if !sv.noMach {
 		d := st.Mach - sv.fl.Mach
 		res.Mismatch.MachDifference = &d
 		basis := MachBasisFreeStream
@@ -65,6 +77,12 @@ func (sv *solver) result(x cand) *Result {
 		res.Mismatch.FroudeRatio = res.Test.Froude / sv.fl.Froude
 	}
 	res.Mismatch.Decide(sv.obj.tol)
+	if m := sv.fl.Marine; m != nil && res.Test.Cavitation != nil {
+		d := *res.Test.Cavitation - m.Cavitation
+		ok := math.Abs(d) <= sv.obj.cavTol*(1+machSlack)+1e-12*m.Cavitation
+		res.Mismatch.CavitationDifference, res.Mismatch.CavitationMatched = &d, &ok
+		res.Mismatch.CavitationTolerance = sv.obj.cavTol
+	}
 	res.Binding = sv.bindings(x, st)
 	res.Warnings = append(res.Warnings, sv.notes(x, st, res)...)
 	res.Cautions = facilities.Cautions(sv.f)
@@ -101,7 +119,11 @@ func (sv *solver) bindings(x cand, st facilities.State) []Binding {
 		on(facilities.ConstraintSpeedMin, st.Speed, f.Speed.Min)
 		on(facilities.ConstraintSpeedMax, st.Speed, f.Speed.Max)
 	}
-	if !sv.liquid && !f.StagnationPressure.Fixed() {
+	if sv.cav && sv.held && !f.StaticPressure.Fixed() {
+		on(facilities.ConstraintStaticPressureMin, st.Static.Pressure, f.StaticPressure.Min)
+		on(facilities.ConstraintStaticPressureMax, st.Static.Pressure, f.StaticPressure.Max)
+	}
+	if (!sv.liquid || sv.cav && !sv.held) && !f.StagnationPressure.Fixed() {
 		on(facilities.ConstraintPressureMin, st.StagnationPressure, f.StagnationPressure.Min)
 		on(facilities.ConstraintPressureMax, st.StagnationPressure, f.StagnationPressure.Max)
 	}
@@ -130,7 +152,7 @@ func (sv *solver) bindings(x cand, st facilities.State) []Binding {
 // notes returns the plan's warnings.
 func (sv *solver) notes(x cand, st facilities.State, res *Result) []string {
 	var w []string
-	if !sv.liquid {
+	if !sv.noMach {
 		if dc := res.Mismatch.CorrectedMachDifference; dc != nil {
 			w = append(w, fmt.Sprintf("the Mach number is compared with the flight's after the closed-wall correction: free stream M %.4f, corrected M_c %.4f (blockage at the middle of the matrix's drag range; each point's M_c is in the corrections)",
 				st.Mach, sv.fl.Mach+*dc))
@@ -149,7 +171,8 @@ func (sv *solver) notes(x cand, st facilities.State, res *Result) []string {
 	} else if r > 1+RatioMatchBand {
 		w = append(w, fmt.Sprintf("the test Reynolds number is %.3g times the flight's: the facility cannot go lower with the allowed models", r))
 	}
-	if sv.liquid {
+	w = append(w, sv.marineNotes(st, res)...)
+	if sv.liquid && !sv.cav {
 		w = append(w, "water: the Mach number is not matched and cavitation is not checked; the stagnation pressure is held at its maximum")
 	}
 	w = append(w, sv.f.Warnings(st)...)

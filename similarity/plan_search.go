@@ -67,6 +67,11 @@ func (sv *solver) rangeS(c *uctx) cand {
 		// The knee: the load limit's q ceiling falls to the q of the best setting
 		// within the facility's own limits.
 		qNeed := c.nat.q
+		if sv.cav {
+			// Water with the cavitation number in the objective: the model's
+			// loads must fit at this speed at the lowest q (warmest water).
+			qNeed = sv.waterQ(c.u, c.pa, c.tb)
+		}
 		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, c.stRef) - qNeed }, sv.sLo, sv.sHi, false)
 	}
 	xk := sv.at(c, sk)
@@ -334,6 +339,8 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 		f.StagnationPressure = *rng(&sv.f.StagnationPressure, name == facilities.ConstraintPressureMin)
 	case facilities.ConstraintTempMin, facilities.ConstraintTempMax:
 		f.StagnationTemperature = *rng(&sv.f.StagnationTemperature, name == facilities.ConstraintTempMin)
+	case facilities.ConstraintStaticPressureMin, facilities.ConstraintStaticPressureMax:
+		f.StaticPressure = rng(sv.f.StaticPressure, name == facilities.ConstraintStaticPressureMin)
 	case facilities.ConstraintDynamic:
 		f.MaxDynamicPressure = up(*sv.f.MaxDynamicPressure)
 	case facilities.ConstraintReynoldsUnit:

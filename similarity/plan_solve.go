@@ -20,23 +20,26 @@ const (
 	gReynolds = iota
 	gMach
 	gFroude
+	gCavitation
+	nGroups
 )
 
-var groupIndex = map[string]int{GroupReynolds: gReynolds, GroupMach: gMach, GroupFroude: gFroude}
+var groupIndex = map[string]int{GroupReynolds: gReynolds, GroupMach: gMach, GroupFroude: gFroude, GroupCavitation: gCavitation}
 
 // objective is the validated objective in index form.
 type objective struct {
 	weighted bool
-	levels   []int      // priority order
-	w        [3]float64 // weights
-	tol      float64    // Mach band half-width
+	levels   []int            // priority order
+	w        [nGroups]float64 // weights
+	tol      float64          // Mach band half-width
+	cavTol   float64          // cavitation band half-width
 }
 
 // key orders candidate plans: lexicographically by the objective levels v (each
 // ≥ 0, 0 when matched), then by the dynamic pressure q in Pa. The levels and q are
 // never NaN (keyOf), so less is a strict weak ordering.
 type key struct {
-	v [3]float64
+	v [nGroups]float64
 	q float64
 }
 
@@ -62,7 +65,7 @@ func (a key) less(b key) bool {
 }
 
 // worst is the key of an infeasible point.
-var worst = key{v: [3]float64{math.Inf(1), math.Inf(1), math.Inf(1)}, q: math.Inf(1)}
+var worst = key{v: [nGroups]float64{math.Inf(1), math.Inf(1), math.Inf(1), math.Inf(1)}, q: math.Inf(1)}
 
 // uctx is what the planner knows at one test Mach number (speed in water),
 // independent of the model scale.
@@ -117,6 +120,9 @@ type cand struct {
 	v     float64 // speed, m/s
 	capHi string  // what limits rhi
 	k     key
+	// Water with the cavitation number in the objective: the chosen test-section
+	// static pressure in Pa and the cavitation number there.
+	ps, sig float64
 }
 
 // solver holds one planning problem in the form the search needs. Relaxed copies
@@ -129,6 +135,11 @@ type solver struct {
 	L      float64
 	liquid bool
 	obj    objective
+	// marine: the full-scale condition is a vessel in water (Flight.Marine);
+	// noMach: the Mach number is no target (water facility or marine condition);
+	// held: a water facility that sets its test-section static pressure; cav: the
+	// objective looks at the cavitation number (marine condition, water facility).
+	marine, noMach, held, cav bool
 
 	load      LoadLimit
 	loadName  string
@@ -177,6 +188,12 @@ func newSolver(p *Problem) (*solver, error) {
 			sv.loadName = facilities.ConstraintBalance
 		}
 	}
+	sv.marine = sv.fl.Marine != nil
+	sv.noMach = sv.liquid || sv.marine
+	sv.held = sv.liquid && sv.f.StaticPressure != nil
+	if err := sv.checkObjective(); err != nil {
+		return nil, err
+	}
 	sv.setObjective()
 	if err := sv.setLimits(); err != nil {
 		return nil, err
@@ -208,7 +225,11 @@ func (sv *solver) checkInput() error {
 	if err := facilities.Invalid("invalid article", fe); err != nil {
 		return err
 	}
-	if !(sv.fl.Reynolds > 0 && sv.fl.Mach > 0 && sv.fl.TrueAirspeed > 0) || sv.fl.ReferenceLength != sv.L {
+	full := sv.fl.Mach > 0 && sv.fl.TrueAirspeed > 0
+	if m := sv.fl.Marine; m != nil {
+		full = m.Speed > 0 && m.Cavitation > 0 && !math.IsInf(m.Cavitation, 0)
+	}
+	if !(sv.fl.Reynolds > 0 && full) || sv.fl.ReferenceLength != sv.L {
 		return facilities.Invalid("invalid flight condition", []facilities.FieldError{{Field: "flight",
 			Message: "the flight must be resolved (Flight.Resolve) on the article's reference length"}})
 	}
@@ -246,6 +267,27 @@ func plannable(f *facilities.Facility) bool {
 		opt(f.MaxDynamicPressure) && opt(f.MaxReynoldsPerMeter) && opt(f.MaxSpanFraction) && opt(f.MaxBlockage)
 }
 
+// checkObjective refuses a cavitation target without a marine condition: an
+// aircraft has no cavitation number.
+func (sv *solver) checkObjective() error {
+	if sv.marine {
+		return nil
+	}
+	o := sv.p.Objective
+	var fe []facilities.FieldError
+	for i, g := range o.Priority {
+		if g == GroupCavitation {
+			fe = append(fe, facilities.FieldError{Field: fmt.Sprintf("objective.priority[%d]", i),
+				Message: "the cavitation number needs a full-scale condition in water: give marine instead of flight"})
+		}
+	}
+	if w, ok := o.Weights[GroupCavitation]; ok && w > 0 {
+		fe = append(fe, facilities.FieldError{Field: "objective.weights.cavitation",
+			Message: "the cavitation number needs a full-scale condition in water: give marine instead of flight"})
+	}
+	return facilities.Invalid("invalid objective", fe)
+}
+
 // setObjective turns the request's objective into index form and notes what it
 // cannot honour.
 func (sv *solver) setObjective() {
@@ -254,33 +296,58 @@ func (sv *solver) setObjective() {
 	if o.MachTolerance != nil {
 		sv.obj.tol = *o.MachTolerance
 	}
+	sv.obj.cavTol = DefaultCavitationTolerance
+	if o.CavitationTolerance != nil {
+		sv.obj.cavTol = *o.CavitationTolerance
+	}
+	noMachWhy := "the Mach number is not a target in a water facility"
+	if sv.marine {
+		noMachWhy = "the Mach number is not a target for a vessel in water"
+	}
+	const noCavWhy = "the cavitation number is not a target in a gas facility"
 	if len(o.Weights) > 0 {
 		sv.obj.weighted = true
 		for g, w := range o.Weights {
 			sv.obj.w[groupIndex[g]] = w
 		}
-		if sv.liquid && sv.obj.w[gMach] > 0 {
+		if sv.noMach && sv.obj.w[gMach] > 0 {
 			sv.obj.w[gMach] = 0
-			sv.warnings = append(sv.warnings, "the Mach number is not a target in a water facility: its weight is ignored")
+			sv.warnings = append(sv.warnings, noMachWhy+": its weight is ignored")
 		}
-		if sv.obj.w == [3]float64{} {
+		if !sv.liquid && sv.obj.w[gCavitation] > 0 {
+			sv.obj.w[gCavitation] = 0
+			sv.warnings = append(sv.warnings, noCavWhy+": its weight is ignored")
+		}
+		if sv.obj.w == [nGroups]float64{} {
 			sv.obj.w[gReynolds] = 1
 		}
+		sv.cav = sv.obj.w[gCavitation] > 0
 		return
 	}
 	prio := o.Priority
 	if prio == nil {
-		prio = []string{GroupMach, GroupReynolds}
-		if sv.liquid {
+		switch {
+		case sv.marine && sv.liquid:
+			prio = []string{GroupCavitation, GroupReynolds}
+		case sv.noMach:
 			prio = []string{GroupReynolds}
+		default:
+			prio = []string{GroupMach, GroupReynolds}
 		}
 	}
 	for _, g := range prio {
-		if sv.liquid && g == GroupMach {
+		if sv.noMach && g == GroupMach {
 			if o.Priority != nil {
-				sv.warnings = append(sv.warnings, "the Mach number is not a target in a water facility: it is left out of the priority list")
+				sv.warnings = append(sv.warnings, noMachWhy+": it is left out of the priority list")
 			}
 			continue
+		}
+		if !sv.liquid && g == GroupCavitation {
+			sv.warnings = append(sv.warnings, noCavWhy+": it is left out of the priority list")
+			continue
+		}
+		if g == GroupCavitation {
+			sv.cav = true
 		}
 		sv.obj.levels = append(sv.obj.levels, groupIndex[g])
 	}
@@ -315,7 +382,7 @@ func (sv *solver) machBand() (lo, hi float64) {
 // (no matrix, a liquid, walls other than closed, M ≥ 1).
 func (sv *solver) machRatio(u, s float64) float64 {
 	d := sv.p.MatrixDrag
-	if d == nil || sv.liquid {
+	if d == nil || sv.noMach {
 		return 1
 	}
 	s2 := s * s
@@ -351,7 +418,7 @@ func (sv *solver) solveCorrected() (cand, error) {
 
 // machFirst reports whether the first priority is the Mach number.
 func (sv *solver) machFirst() bool {
-	return !sv.obj.weighted && !sv.liquid && sv.obj.levels[0] == gMach
+	return !sv.obj.weighted && !sv.noMach && sv.obj.levels[0] == gMach
 }
 
 // unprocessable returns the 422 error of an infeasible problem.
@@ -883,12 +950,15 @@ func (sv *solver) atTarget(c *uctx, s, target float64) cand {
 	}
 	x.v = c.stRef.Speed * math.Sqrt(x.t0/c.tRef)
 	x.ok = true
-	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v, r == target)
+	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v, r == target, 0)
 	return x
 }
 
 // atWater is atTarget for water.
 func (sv *solver) atWater(c *uctx, s, target float64) cand {
+	if sv.cav {
+		return sv.atWaterCav(c, s, target)
+	}
 	x := cand{u: c.u, s: s, p0: c.pa}
 	rhi, capHi, tHi := c.rNat, c.capNat, c.tb
 	if rhi < math.Inf(1) && capHi == facilities.ConstraintReynoldsUnit {
@@ -927,7 +997,7 @@ func (sv *solver) atWater(c *uctx, s, target float64) cand {
 	x.q = sv.waterQ(c.u, c.pa, x.t0)
 	x.v = c.u
 	x.ok = true
-	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v, r == target)
+	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v, r == target, 0)
 	return x
 }
 
@@ -939,7 +1009,11 @@ func (sv *solver) atWater(c *uctx, s, target float64) cand {
 // be a rounding error of about 1e-16 of either sign instead. Terms of zero weight
 // are left out, so that an infinite logarithm (Re/m 0 at a failed state) never
 // makes a NaN.
-func (sv *solver) keyOf(u, s, r, q, v float64, met bool) key {
+//
+// sig is the test's cavitation number when the objective looks at it (sv.cav);
+// its level is the distance of sig outside the band σ_full ± cavTol (0 inside),
+// its weighted term (ln(sig/σ_full))².
+func (sv *solver) keyOf(u, s, r, q, v float64, met bool, sig float64) key {
 	lnRe := 0.0
 	if !met {
 		lnRe = math.Log(s * sv.L * r / sv.fl.Reynolds)
@@ -949,18 +1023,24 @@ func (sv *solver) keyOf(u, s, r, q, v float64, met bool) key {
 	// it) is inside by construction and scores exactly 0: |u − M| − tol would
 	// leave a rounding error of either sign there.
 	dM := 0.0
-	if lo, hi := sv.machBand(); !sv.liquid {
+	if lo, hi := sv.machBand(); !sv.noMach {
 		dM = math.Max(0, math.Max(lo-u, u-hi))
 	}
 	// Fr_test/Fr_flight = (V/√(g·s·L))/(V_f/√(g·L)) = V/(V_f·√s).
-	lnFr := math.Log(v / (sv.fl.TrueAirspeed * math.Sqrt(s)))
+	lnFr := math.Log(v / (sv.fl.Speed() * math.Sqrt(s)))
+	dSig, lnSig := 0.0, 0.0
+	if sv.cav {
+		sf := sv.fl.Marine.Cavitation
+		dSig = sv.cavDistance(sig)
+		lnSig = math.Log(math.Max(sig, 1e-9*sf) / sf)
+	}
 	k := key{q: q}
 	if sv.obj.weighted {
 		lnM := 0.0
-		if !sv.liquid {
+		if !sv.noMach {
 			lnM = math.Log(u / sv.aim)
 		}
-		for i, l := range [3]float64{gReynolds: lnRe, gMach: lnM, gFroude: lnFr} {
+		for i, l := range [nGroups]float64{gReynolds: lnRe, gMach: lnM, gFroude: lnFr, gCavitation: lnSig} {
 			if w := sv.obj.w[i]; w > 0 {
 				k.v[0] += w * l * l
 			}
@@ -975,6 +1055,8 @@ func (sv *solver) keyOf(u, s, r, q, v float64, met bool) key {
 			k.v[i] = math.Abs(lnRe)
 		case gFroude:
 			k.v[i] = math.Abs(lnFr)
+		case gCavitation:
+			k.v[i] = dSig
 		}
 	}
 	return k

@@ -333,15 +333,38 @@ func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 	flush := func() { tw.Flush() }
 
 	fl := r.Flight
-	section(w, "Flight")
-	row("Mach number", "%.4f", fl.Mach)
-	row("Reynolds number", "%.4g on %s", fl.Reynolds, u.q(fl.ReferenceLength, "m", 4))
-	row("true airspeed", "%s", u.q(fl.TrueAirspeed, "m/s kt", 4))
-	row("calibrated airspeed", "%s", u.q(fl.CalibratedAirspeed, "m/s kt", 4))
-	row("equivalent airspeed", "%s", u.q(fl.EquivalentAirspeed, "m/s kt", 4))
-	row("dynamic pressure", "%s", u.q(fl.DynamicPressure, "Pa", 5))
-	writeStatic(row, u, fl.Static)
-	flush()
+	if mr := fl.Marine; mr != nil {
+		section(w, "Full scale (in water)")
+		water := "fresh water"
+		if mr.Water == similarity.WaterSea {
+			water = fmt.Sprintf("sea water, salinity %.4g g/kg", mr.Salinity)
+		}
+		row("water", "%s at %s", water, u.q(mr.Temperature, "K", 5))
+		row("speed", "%s", u.q(mr.Speed, "m/s kt", 4))
+		row("Reynolds number", "%.4g on %s", fl.Reynolds, u.q(fl.ReferenceLength, "m", 4))
+		row("depth of reference point", "%s (%s)", u.q(mr.Depth, "m", 4), mr.FreeSurface)
+		row("pressure there", "%s (atmosphere %s)", u.q(mr.Pressure, "Pa", 5), u.q(mr.AtmosphericPressure, "Pa", 5))
+		row("vapour pressure", "%s", u.q(mr.VapourPressure, "Pa", 4))
+		row("cavitation number", "%.4g", mr.Cavitation)
+		row("Froude number", "%.4g on length", fl.Froude)
+		if mr.FroudeDepth != nil {
+			row("Froude number on depth", "%.4g", *mr.FroudeDepth)
+		}
+		row("dynamic pressure", "%s", u.q(fl.DynamicPressure, "Pa", 5))
+		row("density", "%s", u.q(fl.Static.Density, "kg/m³", 6))
+		row("viscosity", "%s", u.q(fl.Static.Viscosity, "Pa·s", 4))
+		flush()
+	} else {
+		section(w, "Flight")
+		row("Mach number", "%.4f", fl.Mach)
+		row("Reynolds number", "%.4g on %s", fl.Reynolds, u.q(fl.ReferenceLength, "m", 4))
+		row("true airspeed", "%s", u.q(fl.TrueAirspeed, "m/s kt", 4))
+		row("calibrated airspeed", "%s", u.q(fl.CalibratedAirspeed, "m/s kt", 4))
+		row("equivalent airspeed", "%s", u.q(fl.EquivalentAirspeed, "m/s kt", 4))
+		row("dynamic pressure", "%s", u.q(fl.DynamicPressure, "Pa", 5))
+		writeStatic(row, u, fl.Static)
+		flush()
+	}
 
 	m := r.Model
 	section(w, "Model")
@@ -355,6 +378,9 @@ func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
 
 	section(w, "Test")
 	writeTest(row, u, r.Test.State, r.Test.Reynolds)
+	if c := r.Test.Cavitation; c != nil {
+		row("cavitation number", "%.4g (vapour pressure %s)", *c, u.q(*r.Test.VapourPressure, "Pa", 4))
+	}
 	flush()
 
 	section(w, "Mismatch")
@@ -429,6 +455,9 @@ func writeMismatch(row func(string, string, ...any), m similarity.Mismatch) {
 	}
 	if m.FroudeRatio != 0 && m.FroudeMatched != nil {
 		row("Fr test / Fr flight", "%.4g (%s within %.1f %%)", m.FroudeRatio, matchedWord(*m.FroudeMatched), 100*similarity.RatioMatchBand)
+	}
+	if d := m.CavitationDifference; d != nil && m.CavitationMatched != nil {
+		row("σ test - σ full scale", "%+.4g (%s within ±%g)", *d, matchedWord(*m.CavitationMatched), m.CavitationTolerance)
 	}
 }
 

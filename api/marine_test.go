@@ -1,0 +1,102 @@
+package api_test
+
+import (
+	"bytes"
+	"encoding/json"
+	"io"
+	"net/http"
+	"os"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"scalematch/api"
+)
+
+// TestMarineExamplesPlan plans each demo vessel (Tarn A2, Brisa F7) in each demo
+// water tunnel (wtn-04, cvt-07) through POST /v1/plans: the full-scale part has no
+// Mach number or airspeeds, the test and the mismatch carry the cavitation number.
+// cvt-07 sets its static pressure and matches σ within the default ±0.02; wtn-04
+// holds 101 kPa and matches only the Tarn A2's large σ (at low speed), not the
+// Brisa F7's (about 1.07 against σ ≥ 14.8 at its top speed, 3.5 m/s).
+func TestMarineExamplesPlan(t *testing.T) {
+	ts, _ := catalogServer(t, nil)
+	tests := []struct {
+		file    string
+		matched bool
+		limit   string // a binding limit the plan must name
+	}{
+		{"../examples/brisa-f7-cvt-07.json", true, "balance"},
+		{"../examples/brisa-f7-wtn-04.json", false, "speed_max"},
+		{"../examples/tarn-a2-cvt-07.json", true, "static_pressure_max"},
+		{"../examples/tarn-a2-wtn-04.json", true, "max_blockage"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.file, func(t *testing.T) {
+			body, err := os.ReadFile(tc.file)
+			require.NoError(t, err)
+			resp, err := http.Post(ts.URL+"/v1/plans", "application/json", bytes.NewReader(body))
+			require.NoError(t, err)
+			defer resp.Body.Close()
+			b, _ := io.ReadAll(resp.Body)
+			require.Equal(t, http.StatusOK, resp.StatusCode, "%s", b)
+			var raw struct {
+				Flight map[string]any `json:"flight"`
+			}
+			require.NoError(t, json.Unmarshal(b, &raw))
+			for _, k := range []string{"mach", "true_airspeed", "calibrated_airspeed", "equivalent_airspeed"} {
+				assert.NotContains(t, raw.Flight, k)
+			}
+			var plan api.PlanResponse
+			require.NoError(t, json.Unmarshal(b, &plan))
+			require.NotNil(t, plan.Flight.Marine)
+			require.NotNil(t, plan.Test.Cavitation)
+			require.NotNil(t, plan.Mismatch.CavitationMatched)
+			assert.Equal(t, tc.matched, *plan.Mismatch.CavitationMatched, "σ test %.4g, full scale %.4g", *plan.Test.Cavitation, plan.Flight.Marine.Cavitation)
+			assert.Nil(t, plan.Mismatch.MachDifference)
+			var names []string
+			for _, bd := range plan.Binding {
+				names = append(names, bd.Constraint)
+			}
+			assert.Contains(t, names, tc.limit)
+		})
+	}
+}
+
+// TestMarineRequestErrors: a plan takes exactly one full-scale condition.
+func TestMarineRequestErrors(t *testing.T) {
+	ts, _ := catalogServer(t, nil)
+	body, err := os.ReadFile("../examples/brisa-f7-cvt-07.json")
+	require.NoError(t, err)
+	var req map[string]any
+	require.NoError(t, json.Unmarshal(body, &req))
+	tests := []struct {
+		name  string
+		edit  func(r map[string]any)
+		field string
+	}{
+		{"flight and marine", func(r map[string]any) { r["flight"] = map[string]any{"altitude": 0, "mach": 0.3} }, "marine"},
+		{"neither", func(r map[string]any) { delete(r, "marine") }, "flight.altitude"},
+		{"bad temperature", func(r map[string]any) { r["marine"].(map[string]any)["temperature"] = "60 degC" }, "marine.temperature"},
+		{"cavitation with a flight", func(r map[string]any) {
+			delete(r, "marine")
+			r["flight"] = map[string]any{"altitude": 0, "true_airspeed": 30}
+		}, "objective.priority[0]"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			r := map[string]any{}
+			require.NoError(t, json.Unmarshal(body, &r))
+			tc.edit(r)
+			b, err := json.Marshal(r)
+			require.NoError(t, err)
+			resp, err := http.Post(ts.URL+"/v1/plans", "application/json", bytes.NewReader(b))
+			require.NoError(t, err)
+			defer resp.Body.Close()
+			out, _ := io.ReadAll(resp.Body)
+			require.Equal(t, http.StatusBadRequest, resp.StatusCode, "%s", out)
+			assert.Contains(t, string(out), `"`+tc.field+`"`)
+		})
+	}
+}

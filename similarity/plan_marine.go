@@ -1,0 +1,209 @@
+package similarity
+
+import (
+	"fmt"
+	"math"
+
+	"scalematch/facilities"
+)
+
+// cavGrid is the number of water temperatures atWaterCav samples before refining.
+const cavGrid = 17
+
+// pressureRange returns the test-section static pressures in Pa a water facility can
+// hold at speed u and temperature t, [lo, hi], with the dynamic pressure q in Pa,
+// the Re/m and the vapour pressure pv in Pa there. A facility with a static-pressure
+// range sets it independently of speed; any other has p = p0 − q with p0 in its
+// stagnation-pressure range. lo is at least pv: the planner never sets a static
+// pressure below the vapour pressure (a negative cavitation number; the free stream
+// itself would boil). ok is false when no such pressure exists or the state fails.
+func (sv *solver) pressureRange(u, p0, t float64) (lo, hi, q, r, pv float64, ok bool) {
+	st, err := sv.state(u, p0, t)
+	if err != nil {
+		return 0, 0, 0, 0, 0, false
+	}
+	q, r = st.DynamicPressure, st.ReynoldsPerMeter
+	pv = facilities.WaterVapourPressure(t)
+	if sv.held {
+		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
+	} else {
+		lo, hi = sv.f.StagnationPressure.Min-q, sv.f.StagnationPressure.Max-q
+	}
+	lo = math.Max(lo, pv)
+	return lo, hi, q, r, pv, hi >= lo && q > 0
+}
+
+// atWaterCav is atWater when the objective looks at the cavitation number: at speed
+// c.u and scale s it chooses the water temperature T (which moves ν, ρ and the
+// vapour pressure p_v) and the test-section static pressure p, and returns the best
+// candidate by the objective's key. At each T the static pressure is the one whose
+// σ = (p − p_v)/(½ρV²) comes closest to the full scale's, p = p_v + σ_full·q
+// clamped to the pressures the facility can hold (pressureRange); T is searched
+// over the usable range (as atWater: the T0 range, narrowed by a Re/m ceiling and
+// by the balance's dynamic-pressure ceiling at this scale) on a grid of cavGrid
+// points, the edges where the cavitation band becomes reachable or a pressure
+// becomes available (bisection to 1e-12 K), the temperature that meets the target
+// Re/m exactly, and a golden-section refinement around the best grid point.
+func (sv *solver) atWaterCav(c *uctx, s, target float64) cand {
+	x := cand{u: c.u, s: s}
+	ta, tb := c.ta, c.tb
+	capHi := c.capNat
+	if c.capNat == facilities.ConstraintReynoldsUnit {
+		tb = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.u, c.pa, t) }, ta, tb, false)
+	}
+	if sv.load != nil {
+		qb := sv.loadQ(s, c.stRef)
+		if qb < sv.waterQ(c.u, c.pa, tb)*(1-1e-12) {
+			x.fail, x.k = sv.loadName, worst
+			return x
+		}
+		if sv.waterQ(c.u, c.pa, ta) > qb {
+			ta = sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.u, c.pa, t) }, ta, tb, true)
+		}
+	}
+	sf := sv.fl.Marine.Cavitation
+	eval := func(t float64) cand {
+		y := cand{u: c.u, s: s, t0: t, v: c.u, capHi: capHi}
+		lo, hi, q, r, pv, ok := sv.pressureRange(c.u, c.pa, t)
+		if !ok {
+			y.fail, y.k = facilities.ConstraintStaticPressureMin, worst
+			if !sv.held {
+				y.fail = facilities.ConstraintPressureMin
+			}
+			return y
+		}
+		y.ps = math.Min(math.Max(pv+sf*q, lo), hi)
+		y.sig = (y.ps - pv) / q
+		y.q, y.r, y.p0 = q, r, y.ps+q
+		y.ok = true
+		y.k = sv.keyOf(c.u, s, r, q, c.u, false, y.sig)
+		return y
+	}
+	best := cand{k: worst, fail: facilities.ConstraintStaticPressureMin}
+	seen := make([]cand, 0, 2*cavGrid)
+	consider := func(y cand) {
+		if y.ok {
+			seen = append(seen, y)
+		}
+		if y.ok && (!best.ok || y.k.less(best.k)) {
+			best = y
+		}
+	}
+	var grid [cavGrid]cand
+	ibest := -1
+	for i := range grid {
+		t := ta
+		if cavGrid > 1 && tb > ta {
+			t = ta + (tb-ta)*float64(i)/(cavGrid-1)
+		}
+		grid[i] = eval(t)
+		if grid[i].ok && (ibest < 0 || grid[i].k.less(grid[ibest].k)) {
+			ibest = i
+		}
+		consider(grid[i])
+		if !best.ok && grid[i].fail != "" {
+			best.fail = grid[i].fail
+		}
+	}
+	if ibest < 0 {
+		x.fail, x.k = best.fail, worst
+		return x
+	}
+	// The cavitation level (0 inside the band) and feasibility change at edges
+	// between grid points: find each by bisection, keeping the better side.
+	zero := func(y cand) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
+	for i := 0; i+1 < len(grid); i++ {
+		a, b := grid[i], grid[i+1]
+		if a.ok == b.ok && zero(a) == zero(b) {
+			continue
+		}
+		good, bad := a, b
+		if !(a.ok && (zero(a) || !zero(b))) {
+			good, bad = b, a
+		}
+		same := func(y cand) bool { return y.ok == good.ok && zero(y) == zero(good) }
+		for j := 0; j < 60 && math.Abs(good.t0-bad.t0) > 1e-12*good.t0; j++ {
+			m := eval(0.5 * (good.t0 + bad.t0))
+			if same(m) {
+				good = m
+			} else {
+				bad = m
+			}
+		}
+		consider(good)
+	}
+	// The temperature that meets the target Re/m (Re/m rises with T).
+	if grid[0].ok && grid[len(grid)-1].ok {
+		if r0, r1 := grid[0].r, grid[len(grid)-1].r; target > r0 && target < r1 {
+			t := sv.rootHi(func(t float64) float64 { return sv.waterR(c.u, c.pa, t) - target }, ta, tb, true)
+			consider(eval(t))
+		}
+	}
+	// Refine around the best grid point (a smooth weighted objective, or a
+	// cavitation band out of reach).
+	if lo, hi := math.Max(0, float64(ibest-1)), math.Min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta {
+		g := sv.golden(func(t float64) cand { return eval(t) },
+			ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1), 3, 1e-12)
+		consider(g)
+	}
+	if !best.ok {
+		x.fail, x.k = best.fail, worst
+		return x
+	}
+	// Re/m reachable at this level of the cavitation number: the shrink and knee
+	// rules of the scale search read it.
+	best.rlo, best.rhi = best.r, best.r
+	for _, y := range seen {
+		if sv.cavDistance(y.sig) <= sv.cavDistance(best.sig) {
+			best.rhi = math.Max(best.rhi, y.r)
+			best.rlo = math.Min(best.rlo, y.r)
+		}
+	}
+	if best.r <= best.rlo*(1+1e-12) {
+		best.rlo = best.r
+	}
+	if best.t0 >= tb*(1-1e-12) {
+		best.capHi = capHi
+	}
+	return best
+}
+
+// cavDistance is the distance of a test cavitation number sig outside the band
+// σ_full ± cavTol: 0 inside it.
+func (sv *solver) cavDistance(sig float64) float64 {
+	sf := sv.fl.Marine.Cavitation
+	return math.Max(0, math.Max(sf-sv.obj.cavTol-sig, sig-(sf+sv.obj.cavTol)))
+}
+
+// marineNotes returns the plan's notes on a marine condition: the cavitation number
+// reached, the Froude number a closed test section cannot match, and what a gas
+// facility leaves out.
+func (sv *solver) marineNotes(st facilities.State, res *Result) []string {
+	m := sv.fl.Marine
+	if m == nil {
+		return nil
+	}
+	var w []string
+	switch {
+	case !sv.liquid:
+		w = append(w, fmt.Sprintf("a vessel in a gas facility: only the Reynolds number is matched; the cavitation number (full scale %.4g) and the free surface are not represented", m.Cavitation))
+	case res.Mismatch.CavitationMatched != nil && !*res.Mismatch.CavitationMatched:
+		what := "the facility's pressure range cannot hold it at any usable speed and temperature"
+		if !sv.held && sv.f.StagnationPressure.Fixed() {
+			what = "the facility does not set its test-section pressure: σ follows from the speed"
+		}
+		w = append(w, fmt.Sprintf("the cavitation number is not matched: the test reaches σ %.4g against %.4g at full scale (%s); cavitation inception and extent will differ",
+			*res.Test.Cavitation, m.Cavitation, what))
+	case res.Test.Cavitation != nil && !sv.cav:
+		w = append(w, fmt.Sprintf("the cavitation number is not in the objective: the test runs at σ %.4g against %.4g at full scale", *res.Test.Cavitation, m.Cavitation))
+	}
+	if sv.liquid && m.FreeSurface != SurfaceSubmerged {
+		fd := ""
+		if m.FroudeDepth != nil {
+			fd = fmt.Sprintf(", on depth %.4g", *m.FroudeDepth)
+		}
+		w = append(w, fmt.Sprintf("the vessel %s the free surface (full-scale Froude number on length %.4g%s), but a closed water tunnel has none: the Froude number cannot be matched and waves, spray and ventilation are not reproduced",
+			map[string]string{SurfaceNear: "runs near", SurfacePiercing: "pierces"}[m.FreeSurface], sv.fl.Froude, fd))
+	}
+	return w
+}
