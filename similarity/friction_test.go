@@ -85,8 +85,8 @@ func TestTransitionConstantSchlichting(t *testing.T) {
 
 // TestTransitionalContinuity: the natural-transition law has no step at Re_tr, in
 // a liquid (factors 1) and in a gas at M 0.8 (laminar and turbulent factors
-// differ). The old water line jumped from Blasius 0.001878 to ITTC 0.005404 there
-// (2.9×).
+// differ). The old water line jumped from Blasius 1.328/√(5e5) = 0.001878 to ITTC
+// 0.075/(log10 5e5 − 2)² = 0.005482 there (2.92×).
 func TestTransitionalContinuity(t *testing.T) {
 	kl, kt := similarity.LaminarCompressibilityFactor(0.8), similarity.CompressibilityFactor(0.8)
 	cases := []struct {
