@@ -90,7 +90,7 @@ func facilityJSON(t *testing.T, id string, edit func(*facilities.Facility)) stri
 	if !ok {
 		t.Fatal("demo facility lsw-2 missing")
 	}
-	f.ID = id
+	f.ID, f.Version = id, 0 // a new record's body: the catalog gives the version
 	if edit != nil {
 		edit(&f)
 	}

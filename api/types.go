@@ -152,8 +152,8 @@ type PlanResponse struct {
 	ID string `json:"id" example:"5d1c0a7e93b2f4a81c6e"`
 	// FacilityID names the facility planned in ("" for an inline facility without id).
 	FacilityID string `json:"facility_id" example:"tsw-1"`
-	// FacilityVersion is the catalog version of the facility used; 0 when inline or
-	// from the built-in demo catalog.
+	// FacilityVersion is the catalog version of the facility used (1 for the built-in
+	// demo catalog's facilities, as in a store seeded with them); 0 when inline.
 	FacilityVersion int `json:"facility_version"`
 	// Flight is the full-scale state: Mach, Reynolds number on the full-scale
 	// reference length, airspeeds in m/s, dynamic pressure in Pa, static state; for

@@ -14,8 +14,10 @@ import (
 //go:embed demo.json
 var demoJSON []byte
 
-// Demo returns a fresh copy of the embedded demo facilities, ordered as listed.
-// They are invented: none describes a real facility.
+// Demo returns a fresh copy of the embedded demo facilities, ordered as listed,
+// each at catalog version 1: the version a store seeded with them gives them, so
+// the demo catalog and a freshly seeded store show the same versions and give the
+// same plan ids. They are invented: none describes a real facility.
 func Demo() []Facility {
 	var v struct {
 		Facilities []Facility `json:"facilities"`
@@ -26,6 +28,9 @@ func Demo() []Facility {
 		// The file is embedded at build time and covered by TestDemo; a failure here
 		// is a build defect, not user input.
 		panic(fmt.Sprintf("facilities: embedded demo.json: %v", err))
+	}
+	for i := range v.Facilities {
+		v.Facilities[i].Version = 1
 	}
 	return v.Facilities
 }
@@ -52,17 +57,9 @@ func errDemoReadOnly() error {
 	return &Error{Code: CodeForbidden, Message: "the embedded demo catalog is read-only: run the service with a store to change facilities"}
 }
 
-func demoVersion(f Facility) Facility {
-	f.Version = 1
-	return f
-}
-
 // Facilities lists the demo facilities ordered by id.
 func (DemoCatalog) Facilities(context.Context) ([]Facility, error) {
 	fs := Demo()
-	for i := range fs {
-		fs[i] = demoVersion(fs[i])
-	}
 	sort.Slice(fs, func(i, j int) bool { return fs[i].ID < fs[j].ID })
 	return fs, nil
 }
@@ -70,7 +67,7 @@ func (DemoCatalog) Facilities(context.Context) ([]Facility, error) {
 // Facility returns a demo facility; CodeNotFound for any other id.
 func (DemoCatalog) Facility(_ context.Context, id string) (Facility, error) {
 	if f, ok := DemoFacility(id); ok {
-		return demoVersion(f), nil
+		return f, nil
 	}
 	return Facility{}, &Error{Code: CodeNotFound, Message: fmt.Sprintf("no facility %q in the demo catalog", id)}
 }

@@ -132,7 +132,7 @@ func TestCrashKeepsAcknowledgedWrites(t *testing.T) {
 				}
 				id := fmt.Sprintf("crash-%d-%d", w, i)
 				f, _ := facilities.DemoFacility("lsw-2")
-				f.ID, f.Name = id, "created"
+				f.ID, f.Name, f.Version = id, "created", 0 // no version in the body: If-Match carries it
 				body, _ := json.Marshal(f)
 				status, _, _, err := srv.do(http.MethodPost, "/v1/facilities", "", string(body))
 				if err != nil || status != http.StatusCreated {

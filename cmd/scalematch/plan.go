@@ -240,7 +240,11 @@ func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.Plan
 	if err != nil {
 		return explain(inCatalog(err, o.where))
 	}
-	if err := writePlan(o.stdout, resp, o.units == "us", req.Facility != nil); err != nil {
+	catalog := o.where
+	if req.Facility != nil {
+		catalog = ""
+	}
+	if err := writePlan(o.stdout, resp, o.units == "us", catalog); err != nil {
 		return err
 	}
 	return o.writeCharts(ctx, p, resp, req.Facility)
@@ -314,16 +318,13 @@ var bindingUnits = map[string]string{
 // section starts a block of the table: a blank line and its heading.
 func section(w io.Writer, title string) { fmt.Fprintf(w, "\n%s\n", title) }
 
-// writePlan prints a plan as a table; inline says the request gave its facility
-// inline rather than by catalog id.
-func writePlan(w io.Writer, r *api.PlanResponse, us, inline bool) error {
+// writePlan prints a plan as a table; catalog names the catalog the facility came
+// from (openCatalog's name), "" when the request gave its facility inline.
+func writePlan(w io.Writer, r *api.PlanResponse, us bool, catalog string) error {
 	u := units{us}
-	where := "demo catalog"
-	switch {
-	case inline:
-		where = "given inline"
-	case r.FacilityVersion > 0:
-		where = fmt.Sprintf("catalog version %d", r.FacilityVersion)
+	where := "given inline"
+	if catalog != "" {
+		where = fmt.Sprintf("%s, version %d", catalog, r.FacilityVersion)
 	}
 	fmt.Fprintf(w, "Plan %s: facility %s (%s)\n", r.ID, r.FacilityID, where)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)

@@ -90,7 +90,7 @@ func TestPlanCommandTable(t *testing.T) {
 		want  []string
 	}{
 		{"SI from a file", []string{"plan", "--data", noStore, file}, "", []string{
-			"facility tsw-1 (demo catalog)",
+			"facility tsw-1 (demo catalog, version 1)",
 			"\nFlight\n", "\nModel\n", "\nTest\n", "\nMismatch\n",
 			// +0.499 % is a regression value (the program's own output); 54000 Pa
 			// is tsw-1's q limit and 66.7 % is 1/1.5, the safety factor's share.
@@ -197,7 +197,7 @@ func TestPlanCommandStore(t *testing.T) {
 		t.Errorf("--json differs from the stored plan:\n%s\n%s", out, want)
 	}
 	out, err = runCmd(t, "", "plan", "--data", dir, writeFile(t, "x.json", stored))
-	if err != nil || !strings.Contains(out, "facility tsw-1x (catalog version 1)") {
+	if err != nil || !strings.Contains(out, "facility tsw-1x (sqlite "+sqlite.Path(dir)+", version 1)") {
 		t.Errorf("table: %v\n%s", err, out)
 	}
 	// Without the store the id names nothing.
