@@ -39,8 +39,12 @@ func TestDemoVersionsAgree(t *testing.T) {
 		t.Helper()
 		s, err := api.New(api.Config{Catalog: c, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
 		require.NoError(t, err)
+		req := httptest.NewRequest(method, path, strings.NewReader(body))
+		if body != "" {
+			req.Header.Set("Content-Type", "application/json")
+		}
 		rec := httptest.NewRecorder()
-		s.Handler().ServeHTTP(rec, httptest.NewRequest(method, path, strings.NewReader(body)))
+		s.Handler().ServeHTTP(rec, req)
 		require.Equal(t, http.StatusOK, rec.Code, "%s %s: %s", method, path, rec.Body.String())
 		return rec.Body.Bytes()
 	}
