@@ -246,6 +246,9 @@ func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *
 	if msg := facilities.BoundModelMass.Problem(in.ModelMass); msg != "" {
 		fe.add("installation.model_mass", "%s (0: weight left out)", msg)
 	}
+	if msg := facilities.BoundModelVolume.Problem(in.ModelVolume); msg != "" {
+		fe.add("installation.model_volume", "%s (0: not given)", msg)
+	}
 	for _, o := range []struct {
 		name string
 		v    float64
@@ -339,7 +342,7 @@ func (pp *preparedPlan) plan() (*PlanResponse, error) {
 	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective,
 		MatrixDrag: mx.DragRange()}
 	if len(f.Balances) > 0 {
-		ll, err := similarity.NewLoadLimit(&req.Article, f, req.Installation, mx)
+		ll, err := similarity.NewLoadLimit(&req.Article, f, req.Installation.WithBuoyancy(f), mx)
 		if err != nil {
 			return nil, err
 		}
@@ -369,7 +372,7 @@ func (pp *preparedPlan) plan() (*PlanResponse, error) {
 	}
 	out.Warnings = appendUnique(out.Warnings, mx.Warnings...)
 	out.Warnings = appendUnique(out.Warnings, f.Warnings(res.Test.State)...)
-	out.Corrections, out.Loads, err = loadsAt(f, &req.Article, req.Installation, mx, res.Model.Scale, res.Test.State, &out.Warnings)
+	out.Corrections, out.Loads, err = loadsAt(f, &req.Article, req.Installation.WithBuoyancy(f), mx, res.Model.Scale, res.Test.State, &out.Warnings)
 	if err != nil {
 		return nil, err
 	}
@@ -390,6 +393,13 @@ func (pp *preparedPlan) plan() (*PlanResponse, error) {
 		// The plan's cautions are facilities.Cautions(f) already: only the load
 		// report's caution can be new, so the facility's are not written again.
 		out.Cautions = appendUnique(out.Cautions, facilities.Cautions(nil, *out.Loads)...)
+		if f.Medium.IsLiquid() {
+			out.Cautions = appendUnique(out.Cautions, facilities.CautionWaterLoads)
+		}
+	}
+	if b := modelBuoyancy(f, &req.Article, req.Installation, res.Model.Scale); b != nil {
+		out.Buoyancy = b
+		out.Warnings = append(out.Warnings, b.Note())
 	}
 	medium := f.Medium.Kind
 	re, err := similarity.ReynoldsEffect(&req.Article, res.Flight.Reynolds, res.Flight.Mach, res.Test.Reynolds, res.Test.Mach, medium)
@@ -597,4 +607,16 @@ func resolveFullScale(fl *similarity.Flight, m *similarity.Marine, l float64) (s
 		return m.Resolve(l)
 	}
 	return fl.Resolve(l)
+}
+
+// modelBuoyancy returns the weight, buoyancy and net weight of the model of the
+// given scale in water facility f (facilities.BuoyancyOf), with the model's frontal
+// area and overall length (the reference length when the article gives none) for
+// the volume estimate; nil in a gas facility.
+func modelBuoyancy(f *facilities.Facility, a *similarity.Article, in facilities.Installation, scale float64) *facilities.Buoyancy {
+	length := a.Length
+	if length == 0 {
+		length = a.ReferenceLength
+	}
+	return facilities.BuoyancyOf(f, in, a.FrontalArea*scale*scale, length*scale)
 }

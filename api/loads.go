@@ -117,7 +117,7 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 	w.Apply(pts)
 	out.Corrections = w.Summary(pts, a.Aero.CorrectionLiftSlope())
 	out.Warnings = append(out.Warnings, w.Warnings...)
-	lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: lref, Installation: req.Installation, Points: pts}
+	lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: lref, Installation: req.Installation.WithBuoyancy(f), Points: pts}
 	if req.Installation.BalanceID != "" {
 		ch, err := lc.ChooseBalance(f, st.DynamicPressure)
 		if err != nil {
@@ -148,6 +148,10 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 		reports = []facilities.LoadReport{*out.Loads.One}
 	}
 	out.Cautions = appendCautions(nil, f, reports...)
+	if b := modelBuoyancy(f, a, req.Installation, *req.Model.Scale); b != nil {
+		out.Buoyancy = b
+		out.Warnings = append(out.Warnings, b.Note())
+	}
 	out.Warnings = collapseWarnings(out.Warnings)
 	if err := checkFinite(out, loadsInputs); err != nil {
 		return nil, err

@@ -12,6 +12,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api"
+	"scalematch/facilities"
 )
 
 // TestMarineExamplesPlan plans each demo vessel (Tarn A2, Brisa F7) in each demo
@@ -26,11 +27,12 @@ func TestMarineExamplesPlan(t *testing.T) {
 		file    string
 		matched bool
 		limit   string // a binding limit the plan must name
+		basis   string // of the model volume
 	}{
-		{"../examples/brisa-f7-cvt-07.json", true, "balance"},
-		{"../examples/brisa-f7-wtn-04.json", false, "speed_max"},
-		{"../examples/tarn-a2-cvt-07.json", true, "static_pressure_max"},
-		{"../examples/tarn-a2-wtn-04.json", true, "max_blockage"},
+		{"../examples/brisa-f7-cvt-07.json", true, "balance", "estimated"},
+		{"../examples/brisa-f7-wtn-04.json", false, "speed_max", "estimated"},
+		{"../examples/tarn-a2-cvt-07.json", true, "static_pressure_max", "given"},
+		{"../examples/tarn-a2-wtn-04.json", true, "max_blockage", "given"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.file, func(t *testing.T) {
@@ -60,6 +62,11 @@ func TestMarineExamplesPlan(t *testing.T) {
 				names = append(names, bd.Constraint)
 			}
 			assert.Contains(t, names, tc.limit)
+			// Weight, buoyancy and net, and the water-load caution.
+			require.NotNil(t, plan.Buoyancy)
+			assert.Equal(t, tc.basis, plan.Buoyancy.VolumeBasis)
+			assert.InDelta(t, plan.Buoyancy.Weight-plan.Buoyancy.Buoyancy, plan.Buoyancy.Net, 1e-9)
+			assert.Contains(t, plan.Cautions, facilities.CautionWaterLoads)
 		})
 	}
 }

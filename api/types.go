@@ -179,6 +179,10 @@ type PlanResponse struct {
 	// in N and moments in N·m at the balance moment centre, wall corrections and
 	// weight included; null when the facility has no balance.
 	Loads *facilities.LoadReport `json:"loads"`
+	// Buoyancy is the model's weight, buoyancy and net weight in N in a water
+	// facility (volume m³, density kg/m³), with the volume given or estimated;
+	// absent in a gas facility.
+	Buoyancy *facilities.Buoyancy `json:"buoyancy,omitempty"`
 	// ReynoldsEffects estimates the skin-friction drag change from the Reynolds
 	// mismatch (drag counts, 1 count = 0.0001) and whether to trip the boundary layer.
 	ReynoldsEffects *similarity.ReynoldsEffects `json:"reynolds_effects"`
@@ -274,6 +278,9 @@ type LoadsResponse struct {
 	// rating, and max_safe_dynamic_pressure in Pa: where the worst point reaches the
 	// allowed load by this estimate (not a safe limit; see facilities.LoadReport).
 	Loads LoadsValue `json:"loads" swaggertype:"object"`
+	// Buoyancy is the model's weight, buoyancy and net weight in N in a water
+	// facility (volume m³, density kg/m³); absent in a gas facility.
+	Buoyancy *facilities.Buoyancy `json:"buoyancy,omitempty"`
 	// Warnings are notes on the inputs and models.
 	Warnings []string `json:"warnings"`
 	// Cautions are the safety cautions.

@@ -136,6 +136,13 @@ type Installation struct {
 	ModelMass float64 `json:"model_mass,omitempty" unit:"kg"`
 	// CGOffset is the model's centre of gravity minus the balance moment centre, in m.
 	CGOffset Offset `json:"cg_offset" unit:"m"`
+	// ModelVolume is the model's displaced volume in m³ (metric part) for its
+	// buoyancy in a water facility, 0–1000 m³; 0: not given (the answer then
+	// shows an estimate, not used in the loads). Ignored in a gas facility.
+	ModelVolume float64 `json:"model_volume,omitempty" unit:"m^3"`
+	// Buoyancy is the upthrust in N the weight loads subtract (WithBuoyancy sets
+	// it from ModelVolume); never read from a request.
+	Buoyancy float64 `json:"-"`
 }
 
 // Validate checks the installation's numbers and returns a *Error (CodeInvalid)
@@ -191,12 +198,13 @@ func AeroLoads(body Load, qS, qSc float64, off Offset) Load {
 //	N_w = −W·cos α,  A_w = +W·sin α,  m_w = N_w·x_cg + A_w·z_cg
 //
 // (physics.md §8). The sideslip is taken as not tilting the weight (exact at β = 0).
-// It returns zero loads when ModelMass is 0.
+// In water the weight is the net W − B, with B = Buoyancy acting up at the centre
+// of gravity. It returns zero loads when ModelMass and Buoyancy are 0.
 func (in Installation) WeightLoads(alphaDeg float64) Load {
-	if in.ModelMass == 0 {
+	if in.ModelMass == 0 && in.Buoyancy == 0 {
 		return Load{}
 	}
-	w := in.ModelMass * standardGravity
+	w := in.ModelMass*standardGravity - in.Buoyancy
 	sa, ca := math.Sincos(alphaDeg * math.Pi / 180)
 	n := -w * ca
 	a := w * sa
@@ -910,6 +918,9 @@ func Cautions(f *Facility, reports ...LoadReport) []string {
 	}
 	if f.Medium.Kind == MediumNitrogen {
 		out = append(out, fmt.Sprintf("Facility %s runs on nitrogen: nitrogen displaces oxygen without warning and can kill in an enclosed space; follow the facility's oxygen monitoring, ventilation and confined-space procedures.", f.ID))
+	}
+	if f.Medium.Kind == MediumWater && len(reports) > 0 {
+		out = append(out, CautionWaterLoads)
 	}
 	if f.Medium.Kind == MediumWater {
 		out = append(out, fmt.Sprintf("Facility %s is a water circuit: the water's mass, pressure and flow store energy, a model or fairing that comes loose travels downstream, and wet electrical equipment and open hatches are hazards; follow the facility's filling, draining, isolation and entry procedures, and check the model's sealing and fastening for immersion.", f.ID))

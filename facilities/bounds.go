@@ -142,6 +142,7 @@ func Bounds() map[string]Bound {
 		"facilities.Operations.minutes_per_pressure_change":    BoundMinutes,
 		"facilities.Operations.minutes_per_temperature_change": BoundMinutes,
 		"facilities.Installation.model_mass":                   BoundModelMass,
+		"facilities.Installation.model_volume":                 BoundModelVolume,
 		"facilities.Offset.x":                                  BoundOffset,
 		"facilities.Offset.z":                                  BoundOffset,
 		"facilities.GasProperties.molar_mass":                  {Min: gasMinMolarMass, Max: gasMaxMolarMass, Unit: "kg/mol"},
