@@ -107,3 +107,40 @@ func TestMarineRequestErrors(t *testing.T) {
 		})
 	}
 }
+
+// TestMarineLoads checks POST /v1/loads with a marine condition in cvt-07: the
+// answer compares the test's cavitation number with the full scale's and shows the
+// model's weight, buoyancy and net (volume given), with the water-load caution.
+func TestMarineLoads(t *testing.T) {
+	ts, _ := catalogServer(t, nil)
+	body, err := os.ReadFile("../examples/tarn-a2-cvt-07.json")
+	require.NoError(t, err)
+	var plan map[string]any
+	require.NoError(t, json.Unmarshal(body, &plan))
+	req := map[string]any{"facility_id": "cvt-07", "marine": plan["marine"], "article": plan["article"],
+		"installation": plan["installation"], "alpha": plan["alpha"], "model": map[string]any{"scale": 0.49},
+		"test": map[string]any{"speed": 1.5, "stagnation_temperature": 300}}
+	b, err := json.Marshal(req)
+	require.NoError(t, err)
+	resp, err := http.Post(ts.URL+"/v1/loads", "application/json", bytes.NewReader(b))
+	require.NoError(t, err)
+	defer resp.Body.Close()
+	out, _ := io.ReadAll(resp.Body)
+	require.Equal(t, http.StatusOK, resp.StatusCode, "%s", out)
+	var got struct {
+		Test     map[string]any       `json:"test"`
+		Mismatch map[string]any       `json:"mismatch"`
+		Buoyancy *facilities.Buoyancy `json:"buoyancy"`
+		Cautions []string             `json:"cautions"`
+		Flight   map[string]any       `json:"flight"`
+	}
+	require.NoError(t, json.Unmarshal(out, &got))
+	assert.Contains(t, got.Test, "cavitation")
+	assert.Contains(t, got.Mismatch, "cavitation_difference")
+	assert.NotContains(t, got.Flight, "mach")
+	require.NotNil(t, got.Buoyancy)
+	assert.Equal(t, "given", got.Buoyancy.VolumeBasis)
+	// 40 kg and 0.019 m³ in water at 34 °C (994.37 kg/m³): W 392.27 N, B 185.28 N.
+	assert.InDelta(t, 392.27-185.28, got.Buoyancy.Net, 0.02)
+	assert.Contains(t, got.Cautions, facilities.CautionWaterLoads)
+}

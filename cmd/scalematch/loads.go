@@ -87,9 +87,18 @@ func writeLoadCheck(w io.Writer, r *api.LoadsResponse, us bool) error {
 
 	section(w, "Test")
 	writeTest(row, u, r.Test.State, r.Test.Reynolds)
+	if c := r.Test.Cavitation; c != nil {
+		row("cavitation number", "%.4g (vapour pressure %s)", *c, u.q(*r.Test.VapourPressure, "Pa", 4))
+	}
 	tw.Flush()
 
-	if r.Flight != nil && r.Mismatch != nil {
+	if r.Flight != nil && r.Mismatch != nil && r.Flight.Marine != nil {
+		section(w, "Against the full scale (in water)")
+		row("full-scale cavitation number", "%.4g", r.Flight.Marine.Cavitation)
+		row("full-scale Reynolds number", "%.4g", r.Flight.Reynolds)
+		writeMismatch(row, *r.Mismatch)
+		tw.Flush()
+	} else if r.Flight != nil && r.Mismatch != nil {
 		section(w, "Against the flight")
 		row("flight Mach number", "%.4f", r.Flight.Mach)
 		row("flight Reynolds number", "%.4g", r.Flight.Reynolds)
