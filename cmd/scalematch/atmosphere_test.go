@@ -23,17 +23,19 @@ func TestAtmosphereCommandTable(t *testing.T) {
 			"U.S. Standard Atmosphere 1976, standard day\n",
 			"geometric altitude     11000.0 m\n",
 			"temperature            216.774 K (-56.38 °C)\n", // 288.15 − 0.0065·10981.0
+			// Pressure, density and speed of sound: regression values (the
+			// program's own output at 10 981 m'; physics.md §1 has the model).
 			"pressure               22700 Pa\n",
 			"density                0.364802 kg/m³\n",
 			"speed of sound         295.154 m/s\n",
 		}},
 		{"FL350 hot day US", []string{"atmosphere", "--pressure-altitude", "10668", "--delta-isa", "10", "--units", "us"}, []string{
 			"standard day +10 K",
-			"35000 ft\n", // 10668 m / 0.3048 m/ft
-			"23842.3 Pa",
+			"35000 ft\n",                 // 10668 m / 0.3048 m/ft
+			"23842.3 Pa",                 // the 1976 standard at FL350: 23 842 Pa (from memory); the last digit a regression value
 			"497.957 psf (7.04063 inHg)", // 23842.3/47.8803 and /3386.389
 			"411.854 °R",                 // (218.808 + 10) K · 1.8
-			"994.869 ft/s",
+			"994.869 ft/s",               // √(1.4·287.0529·228.808)/0.3048, worked by hand
 		}},
 	}
 	for _, c := range cases {
