@@ -65,8 +65,8 @@ func readFixture(t *testing.T, name string) [][]float64 {
 // (fluids 1.0.22, ATMOSPHERE_1976; fixture and generator in
 // testdata/reference/atmosphere). Both use the standard's constants R* = 8314.32
 // J/(kmol·K), M0 = 28.9644 kg/kmol, g0, r0, and Sutherland's β and S, so up to
-// the top of the standard's seventh layer (84 852 m') they agree to rounding, far
-// inside the 1e-6 asked for.
+// the top of the standard's seventh layer (84 852 m') they agree to rounding,
+// inside the 1e-14 asked for.
 //
 // One detail differs: above 84 852 m' (86 km geometric is 84 852.05 m') fluids
 // switches to an isothermal layer at its tabulated 186.946 K, while this package
