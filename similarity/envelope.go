@@ -36,9 +36,9 @@ type TradePoint struct {
 func (sv *solver) trade(s float64, n int) []TradePoint {
 	pts := make([]TradePoint, n)
 	for i := range pts {
-		u := sv.uLo
+		u := sv.machOrSpeedMin
 		if n > 1 {
-			u += (sv.uHi - sv.uLo) * float64(i) / float64(n-1)
+			u += (sv.machOrSpeedMax - sv.machOrSpeedMin) * float64(i) / float64(n-1)
 		}
 		pts[i] = sv.tradePoint(u, s)
 	}

@@ -11,14 +11,14 @@ import (
 const cavGrid = 17
 
 // pressureRange returns the test-section static pressures in Pa a water facility can
-// hold at speed u and temperature t, [lo, hi], with the dynamic pressure q in Pa,
+// hold at speed machOrSpeed and temperature t, [lo, hi], with the dynamic pressure q in Pa,
 // the Re/m and the vapour pressure pv in Pa there. A facility with a static-pressure
 // range sets it independently of speed; any other has p = p0 − q with p0 in its
 // stagnation-pressure range. lo is at least pv: the planner never sets a static
 // pressure below the vapour pressure (a negative cavitation number; the free stream
 // itself would boil). ok is false when no such pressure exists or the state fails.
-func (sv *solver) pressureRange(u, p0, t float64) (lo, hi, q, r, pv float64, ok bool) {
-	st, err := sv.state(u, p0, t)
+func (sv *solver) pressureRange(machOrSpeed, p0, t float64) (lo, hi, q, r, pv float64, ok bool) {
+	st, err := sv.state(machOrSpeed, p0, t)
 	if err != nil {
 		return 0, 0, 0, 0, 0, false
 	}
@@ -44,27 +44,27 @@ func (sv *solver) pressureRange(u, p0, t float64) (lo, hi, q, r, pv float64, ok 
 // points, the edges where the cavitation band becomes reachable or a pressure
 // becomes available (bisection to 1e-12 K), the temperature that meets the target
 // Re/m exactly, and a golden-section refinement around the best grid point.
-func (sv *solver) atWaterCav(c *uctx, s, target float64) cand {
-	x := cand{u: c.u, s: s}
+func (sv *solver) atWaterCav(c *machSetup, s, target float64) candidate {
+	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	ta, tb := c.ta, c.tb
-	capHi := c.capNat
-	if c.capNat == facilities.ConstraintReynoldsUnit {
-		tb = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.u, c.pa, t) }, ta, tb, false)
+	capHi := c.capWaterTop
+	if c.capWaterTop == facilities.ConstraintReynoldsUnit {
+		tb = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.machOrSpeed, c.pa, t) }, ta, tb, false)
 	}
 	if sv.load != nil {
 		qb := sv.loadQ(s, c.stRef)
-		if qb < sv.waterQ(c.u, c.pa, tb)*(1-1e-12) {
+		if qb < sv.waterQ(c.machOrSpeed, c.pa, tb)*(1-limitSlack) {
 			x.fail, x.k = sv.loadName, worst
 			return x
 		}
-		if sv.waterQ(c.u, c.pa, ta) > qb {
-			ta = sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.u, c.pa, t) }, ta, tb, true)
+		if sv.waterQ(c.machOrSpeed, c.pa, ta) > qb {
+			ta = sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.machOrSpeed, c.pa, t) }, ta, tb, true)
 		}
 	}
 	sf := sv.fl.Marine.Cavitation
-	eval := func(t float64) cand {
-		y := cand{u: c.u, s: s, t0: t, v: c.u, capHi: capHi}
-		lo, hi, q, r, pv, ok := sv.pressureRange(c.u, c.pa, t)
+	eval := func(t float64) candidate {
+		y := candidate{machOrSpeed: c.machOrSpeed, s: s, t0: t, v: c.machOrSpeed, capHi: capHi}
+		lo, hi, q, r, pv, ok := sv.pressureRange(c.machOrSpeed, c.pa, t)
 		if !ok {
 			y.fail, y.k = facilities.ConstraintStaticPressureMin, worst
 			if !sv.held {
@@ -76,12 +76,12 @@ func (sv *solver) atWaterCav(c *uctx, s, target float64) cand {
 		y.sig = (y.ps - pv) / q
 		y.q, y.r, y.p0 = q, r, y.ps+q
 		y.ok = true
-		y.k = sv.keyOf(c.u, s, r, q, c.u, false, y.sig)
+		y.k = sv.keyOf(c.machOrSpeed, s, r, q, c.machOrSpeed, false, y.sig)
 		return y
 	}
-	best := cand{k: worst, fail: facilities.ConstraintStaticPressureMin}
-	seen := make([]cand, 0, 2*cavGrid)
-	consider := func(y cand) {
+	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
+	seen := make([]candidate, 0, 2*cavGrid)
+	consider := func(y candidate) {
 		if y.ok {
 			seen = append(seen, y)
 		}
@@ -89,7 +89,7 @@ func (sv *solver) atWaterCav(c *uctx, s, target float64) cand {
 			best = y
 		}
 	}
-	var grid [cavGrid]cand
+	var grid [cavGrid]candidate
 	ibest := -1
 	for i := range grid {
 		t := ta
@@ -111,7 +111,7 @@ func (sv *solver) atWaterCav(c *uctx, s, target float64) cand {
 	}
 	// The cavitation level (0 inside the band) and feasibility change at edges
 	// between grid points: find each by bisection, keeping the better side.
-	zero := func(y cand) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
+	zero := func(y candidate) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
 	for i := 0; i+1 < len(grid); i++ {
 		a, b := grid[i], grid[i+1]
 		if a.ok == b.ok && zero(a) == zero(b) {
@@ -121,7 +121,7 @@ func (sv *solver) atWaterCav(c *uctx, s, target float64) cand {
 		if !(a.ok && (zero(a) || !zero(b))) {
 			good, bad = b, a
 		}
-		same := func(y cand) bool { return y.ok == good.ok && zero(y) == zero(good) }
+		same := func(y candidate) bool { return y.ok == good.ok && zero(y) == zero(good) }
 		for j := 0; j < 60 && math.Abs(good.t0-bad.t0) > 1e-12*good.t0; j++ {
 			m := eval(0.5 * (good.t0 + bad.t0))
 			if same(m) {
@@ -135,14 +135,14 @@ func (sv *solver) atWaterCav(c *uctx, s, target float64) cand {
 	// The temperature that meets the target Re/m (Re/m rises with T).
 	if grid[0].ok && grid[len(grid)-1].ok {
 		if r0, r1 := grid[0].r, grid[len(grid)-1].r; target > r0 && target < r1 {
-			t := sv.rootHi(func(t float64) float64 { return sv.waterR(c.u, c.pa, t) - target }, ta, tb, true)
+			t := sv.rootHi(func(t float64) float64 { return sv.waterR(c.machOrSpeed, c.pa, t) - target }, ta, tb, true)
 			consider(eval(t))
 		}
 	}
 	// Refine around the best grid point (a smooth weighted objective, or a
 	// cavitation band out of reach).
 	if lo, hi := math.Max(0, float64(ibest-1)), math.Min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta {
-		g := sv.golden(func(t float64) cand { return eval(t) },
+		g := sv.golden(func(t float64) candidate { return eval(t) },
 			ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1), 3, 1e-12)
 		consider(g)
 	}
@@ -159,10 +159,10 @@ func (sv *solver) atWaterCav(c *uctx, s, target float64) cand {
 			best.rlo = math.Min(best.rlo, y.r)
 		}
 	}
-	if best.r <= best.rlo*(1+1e-12) {
+	if best.r <= best.rlo*(1+limitSlack) {
 		best.rlo = best.r
 	}
-	if best.t0 >= tb*(1-1e-12) {
+	if best.t0 >= tb*(1-limitSlack) {
 		best.capHi = capHi
 	}
 	return best

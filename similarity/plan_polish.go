@@ -35,18 +35,18 @@ func polishConverge() *optimize.FunctionConverge {
 }
 
 // polish refines the structured search's best candidate x of a weighted objective
-// jointly in the test Mach number (speed in water) u and the log of the model scale
+// jointly in the test Mach number (speed in water) machOrSpeed and the log of the model scale
 // ln s, by the Nelder–Mead simplex method of gonum/optimize:
 //
 //	Nelder, J.A., Mead, R. (1965) A simplex method for function minimization.
 //	The Computer Journal 7(4), 308–313; the adaptive parameters of Gao, F., Han, L.
 //	(2012) Computational Optimization and Applications 51(1), 259–277.
 //
-// The weighted sum Σ w·(ln(test/flight))² is smooth in (u, ln s) inside the
+// The weighted sum Σ w·(ln(test/flight))² is smooth in (machOrSpeed, ln s) inside the
 // feasible region, while the structured search nests a golden section over ln s
-// inside a grid and golden section over u; the simplex moves both at once from the
-// structured optimum. It works in the unit box over u's feasible interval holding
-// x.u and [ln sLo, ln sHi] (u alone at x.s for a fixed scale or a list): a point
+// inside a grid and golden section over machOrSpeed; the simplex moves both at once from the
+// structured optimum. It works in the unit box over machOrSpeed's feasible interval holding
+// x.machOrSpeed and [ln sLo, ln sHi] (machOrSpeed alone at x.s for a fixed scale or a list): a point
 // outside the box is projected onto it and pays the squared distance, so that the
 // simplex returns. Every point is evaluated through prepare and at, which honour
 // every facility limit, the scale range and the load limit exactly; an infeasible
@@ -55,7 +55,7 @@ func polishConverge() *optimize.FunctionConverge {
 // sum it moves toward lower q. The best candidate seen by the solver's
 // lexicographic key (weighted sum, then the lowest q) is returned, so the result is
 // never worse than x. A priority objective leaves x as it is.
-func (sv *solver) polish(x cand, ivs []interval) cand {
+func (sv *solver) polish(x candidate, ivs []interval) candidate {
 	if sv.noPolish || !sv.obj.weighted || !x.ok {
 		return x
 	}
@@ -64,16 +64,16 @@ func (sv *solver) polish(x cand, ivs []interval) cand {
 
 // refine is polish's refinement itself. It is a function of its own because its
 // closures keep x on the heap, which a plan that is not refined need not pay for.
-func (sv *solver) refine(x cand, ivs []interval) cand {
-	ua, ub := x.u, x.u
+func (sv *solver) refine(x candidate, ivs []interval) candidate {
+	ua, ub := x.machOrSpeed, x.machOrSpeed
 	for _, iv := range ivs {
-		if x.u >= iv.a && x.u <= iv.b {
+		if x.machOrSpeed >= iv.a && x.machOrSpeed <= iv.b {
 			ua, ub = iv.a, iv.b
 			break
 		}
 	}
 	la, lb := math.Log(sv.sLo), math.Log(sv.sHi)
-	// The free coordinates: u when its interval has width, ln s when the range has.
+	// The free coordinates: machOrSpeed when its interval has width, ln s when the range has.
 	var lo, hi [2]float64
 	var isU [2]bool
 	dim := 0
@@ -97,8 +97,8 @@ func (sv *solver) refine(x cand, ivs []interval) cand {
 	q0 := x.q
 	// at returns the candidate at point z of the unit box (projected onto it) and
 	// the squared distance of z from the box.
-	at := func(z []float64) (cand, float64) {
-		u, s, d2 := x.u, x.s, 0.0
+	at := func(z []float64) (candidate, float64) {
+		machOrSpeed, s, d2 := x.machOrSpeed, x.s, 0.0
 		for i := range dim {
 			zi := z[i]
 			switch {
@@ -118,7 +118,7 @@ func (sv *solver) refine(x cand, ivs []interval) cand {
 				v = hi[i]
 			}
 			if isU[i] {
-				u = v
+				machOrSpeed = v
 			} else {
 				s = math.Exp(v)
 				switch zi {
@@ -130,7 +130,7 @@ func (sv *solver) refine(x cand, ivs []interval) cand {
 			}
 		}
 		n++
-		c := sv.prepare(u)
+		c := sv.prepare(machOrSpeed)
 		return sv.at(&c, s), d2
 	}
 	// eval scores a point z of the unit box (or beyond it) for the simplex.
@@ -146,12 +146,12 @@ func (sv *solver) refine(x cand, ivs []interval) cand {
 	}
 
 	// zOf returns candidate y's point in the unit box.
-	zOf := func(y cand) []float64 {
+	zOf := func(y candidate) []float64 {
 		z := make([]float64, dim)
 		for i := range dim {
 			v := math.Log(y.s)
 			if isU[i] {
-				v = y.u
+				v = y.machOrSpeed
 			}
 			z[i] = math.Min(math.Max((v-lo[i])/(hi[i]-lo[i]), 0), 1)
 		}

@@ -12,18 +12,18 @@ import (
 const bindTol = 1e-6
 
 // result builds the plan from the best candidate.
-func (sv *solver) result(x cand) *Result {
+func (sv *solver) result(x candidate) *Result {
 	f := sv.f
 	set := facilities.Setting{StagnationPressure: x.p0, StagnationTemperature: x.t0}
 	if sv.liquid {
-		set.Speed = x.u
+		set.Speed = x.machOrSpeed
 		if sv.held {
 			// The facility sets its static pressure: the one chosen (cavitation
 			// objective), else held at its maximum.
 			set.StagnationPressure, set.StaticPressure = 0, x.ps
 		}
 	} else {
-		set.Mach = x.u
+		set.Mach = x.machOrSpeed
 	}
 	st, err := f.State(set)
 	sv.evals++
@@ -90,7 +90,7 @@ func (sv *solver) result(x cand) *Result {
 }
 
 // bindings lists the limits the plan sits on.
-func (sv *solver) bindings(x cand, st facilities.State) []Binding {
+func (sv *solver) bindings(x candidate, st facilities.State) []Binding {
 	f := sv.f
 	bs := make([]Binding, 0, 8)
 	on := func(name string, v, lim float64) {
@@ -150,7 +150,7 @@ func (sv *solver) bindings(x cand, st facilities.State) []Binding {
 }
 
 // notes returns the plan's warnings.
-func (sv *solver) notes(x cand, st facilities.State, res *Result) []string {
+func (sv *solver) notes(x candidate, st facilities.State, res *Result) []string {
 	var w []string
 	if !sv.noMach {
 		if dc := res.Mismatch.CorrectedMachDifference; dc != nil {

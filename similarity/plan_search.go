@@ -18,17 +18,17 @@ const maxGrid = 17
 // interval is a closed range of the test Mach number (speed in water).
 type interval struct{ a, b float64 }
 
-// evalU returns the best candidate over the model scales at Mach number (speed) u.
-func (sv *solver) evalU(u float64) cand {
-	c := sv.prepare(u)
+// bestOverScales returns the best candidate over the model scales at Mach number (speed) machOrSpeed.
+func (sv *solver) bestOverScales(machOrSpeed float64) candidate {
+	c := sv.prepare(machOrSpeed)
 	if !c.ok {
-		return cand{u: u, fail: c.fail, k: worst}
+		return candidate{machOrSpeed: machOrSpeed, fail: c.fail, k: worst}
 	}
 	switch sv.kind {
 	case scaleFixed:
 		return sv.at(&c, sv.scales[0])
 	case scaleList:
-		var best cand
+		var best candidate
 		best.k = worst
 		for _, s := range sv.scales {
 			if x := sv.at(&c, s); x.ok && (!best.ok || x.k.less(best.k)) {
@@ -40,7 +40,7 @@ func (sv *solver) evalU(u float64) cand {
 		return best
 	}
 	if sv.froudeMatters() {
-		return sv.golden(func(ls float64) cand { return sv.at(&c, math.Exp(ls)) },
+		return sv.golden(func(ls float64) candidate { return sv.at(&c, math.Exp(ls)) },
 			math.Log(sv.sLo), math.Log(sv.sHi), 9, 1e-10)
 	}
 	return sv.rangeS(&c)
@@ -53,7 +53,7 @@ func (sv *solver) evalU(u float64) cand {
 // model grows (forces ∝ q·s², moments ∝ q·s³): Re then rises with s up to the
 // knee where the load limit starts to cap Re/m and, past it, falls as s·q_max(s)
 // falls; the search finds the knee by a root on the load limit alone.
-func (sv *solver) rangeS(c *uctx) cand {
+func (sv *solver) rangeS(c *machSetup) candidate {
 	x := sv.at(c, sv.sHi)
 	if x.ok && (sv.load == nil || x.capHi != sv.loadName) {
 		return sv.shrink(c, x)
@@ -66,11 +66,11 @@ func (sv *solver) rangeS(c *uctx) cand {
 	if lo.capHi != sv.loadName {
 		// The knee: the load limit's q ceiling falls to the q of the best setting
 		// within the facility's own limits.
-		qNeed := c.nat.q
+		qNeed := c.facilityTop.q
 		if sv.cav {
 			// Water with the cavitation number in the objective: the model's
 			// loads must fit at this speed at the lowest q (warmest water).
-			qNeed = sv.waterQ(c.u, c.pa, c.tb)
+			qNeed = sv.waterQ(c.machOrSpeed, c.pa, c.tb)
 		}
 		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, c.stRef) - qNeed }, sv.sLo, sv.sHi, false)
 	}
@@ -78,8 +78,8 @@ func (sv *solver) rangeS(c *uctx) cand {
 	if !xk.ok {
 		return lo
 	}
-	re := func(x cand) float64 { return x.rhi * x.s * sv.L }
-	if re(xk) >= sv.fl.Reynolds*(1-1e-12) {
+	re := func(x candidate) float64 { return x.rhi * x.s * sv.L }
+	if re(xk) >= sv.fl.Reynolds*(1-limitSlack) {
 		// The flight's Re is reachable at the knee: the largest model that still
 		// reaches it needs the least q.
 		s := sv.rootHi(func(s float64) float64 {
@@ -93,7 +93,7 @@ func (sv *solver) rangeS(c *uctx) cand {
 	}
 	if x2 := sv.at(c, sk*(1+1e-7)); x2.ok && x2.k.less(xk.k) {
 		// Unusual load limit: Re still rises past the knee.
-		g := sv.golden(func(ls float64) cand { return sv.at(c, math.Exp(ls)) }, math.Log(sk), math.Log(sv.sHi), 5, 1e-10)
+		g := sv.golden(func(ls float64) candidate { return sv.at(c, math.Exp(ls)) }, math.Log(sk), math.Log(sv.sHi), 5, 1e-10)
 		if g.ok && g.k.less(xk.k) {
 			return g
 		}
@@ -103,7 +103,7 @@ func (sv *solver) rangeS(c *uctx) cand {
 
 // shrink returns a smaller model when x overshoots the flight's Reynolds number even
 // at the lowest Re/m: the scale that meets it exactly.
-func (sv *solver) shrink(c *uctx, x cand) cand {
+func (sv *solver) shrink(c *machSetup, x candidate) candidate {
 	if !x.ok || x.rlo < 0 || x.r > x.rlo || x.rlo*x.s*sv.L <= sv.fl.Reynolds {
 		return x
 	}
@@ -117,13 +117,13 @@ func (sv *solver) shrink(c *uctx, x cand) cand {
 // golden minimises the key of eval over [a, b]: a grid of n points, then a
 // golden-section search in the bracket around the best of them, to tol relative of
 // the interval's scale. It returns the best candidate seen.
-func (sv *solver) golden(eval func(float64) cand, a, b float64, n int, tol float64) cand {
+func (sv *solver) golden(eval func(float64) candidate, a, b float64, n int, tol float64) candidate {
 	best := eval(a)
 	if b <= a {
 		return best
 	}
 	var xsArr [maxGrid]float64
-	var ksArr [maxGrid]cand
+	var ksArr [maxGrid]candidate
 	n = min(max(n, 3), maxGrid)
 	xs, ks := xsArr[:n], ksArr[:n]
 	ibest := 0
@@ -173,7 +173,7 @@ func (sv *solver) golden(eval func(float64) cand, a, b float64, n int, tol float
 			f2 = eval(x2)
 		}
 	}
-	for _, f := range [...]cand{f1, f2} {
+	for _, f := range [...]candidate{f1, f2} {
 		if f.k.less(best.k) {
 			best = f
 		}
@@ -185,8 +185,8 @@ func (sv *solver) golden(eval func(float64) cand, a, b float64, n int, tol float
 // of the allowed scales can run, and the limits that rule out the rest.
 func (sv *solver) feasibleU() ([]interval, []string) {
 	var fails []string
-	ok := func(u float64) bool {
-		c := sv.prepare(u)
+	ok := func(machOrSpeed float64) bool {
+		c := sv.prepare(machOrSpeed)
 		if !c.ok {
 			fails = append(fails, c.fail)
 			return false
@@ -197,9 +197,9 @@ func (sv *solver) feasibleU() ([]interval, []string) {
 		}
 		return x.ok
 	}
-	if sv.uHi <= sv.uLo {
-		if ok(sv.uLo) {
-			return []interval{{sv.uLo, sv.uLo}}, nil
+	if sv.machOrSpeedMax <= sv.machOrSpeedMin {
+		if ok(sv.machOrSpeedMin) {
+			return []interval{{sv.machOrSpeedMin, sv.machOrSpeedMin}}, nil
 		}
 		return nil, fails
 	}
@@ -207,11 +207,11 @@ func (sv *solver) feasibleU() ([]interval, []string) {
 	var xs [n]float64
 	var oks [n]bool
 	for i := range xs {
-		xs[i] = sv.uLo + (sv.uHi-sv.uLo)*float64(i)/(n-1)
+		xs[i] = sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*float64(i)/(n-1)
 		oks[i] = ok(xs[i])
 	}
 	edge := func(good, bad float64) float64 {
-		for i := 0; i < 60 && math.Abs(good-bad) > 1e-12*sv.uHi; i++ {
+		for i := 0; i < 60 && math.Abs(good-bad) > 1e-12*sv.machOrSpeedMax; i++ {
 			m := 0.5 * (good + bad)
 			if ok(m) {
 				good = m
@@ -244,18 +244,18 @@ func (sv *solver) feasibleU() ([]interval, []string) {
 }
 
 // solve finds the best plan.
-func (sv *solver) solve() (cand, error) {
+func (sv *solver) solve() (candidate, error) {
 	ivs, fails := sv.feasibleU()
 	if len(ivs) == 0 {
 		what := "Mach number"
 		if sv.liquid {
 			what = "speed"
 		}
-		return cand{}, unprocessable(fmt.Sprintf("no %s in the facility's range can run a model of the allowed size within its limits", what), fails...)
+		return candidate{}, unprocessable(fmt.Sprintf("no %s in the facility's range can run a model of the allowed size within its limits", what), fails...)
 	}
 	tolU := 1e-9
-	best := cand{k: worst}
-	consider := func(x cand) {
+	best := candidate{k: worst}
+	consider := func(x candidate) {
 		if x.ok && (!best.ok || x.k.less(best.k)) {
 			best = x
 		}
@@ -273,33 +273,33 @@ func (sv *solver) solve() (cand, error) {
 			d := math.Inf(1)
 			var near []float64
 			for _, iv := range ivs {
-				for _, u := range [...]float64{iv.a, iv.b} {
-					du := math.Max(0, math.Max(lo-u, u-hi))
+				for _, machOrSpeed := range [...]float64{iv.a, iv.b} {
+					du := math.Max(0, math.Max(lo-machOrSpeed, machOrSpeed-hi))
 					switch {
 					case du < d-1e-12:
-						d, near = du, []float64{u}
+						d, near = du, []float64{machOrSpeed}
 					case du <= d+1e-12:
-						near = append(near, u)
+						near = append(near, machOrSpeed)
 					}
 				}
 			}
-			for _, u := range near {
-				consider(sv.evalU(u))
+			for _, machOrSpeed := range near {
+				consider(sv.bestOverScales(machOrSpeed))
 			}
 		}
 		for _, iv := range band {
-			consider(sv.golden(sv.evalU, iv.a, iv.b, 3, tolU))
+			consider(sv.golden(sv.bestOverScales, iv.a, iv.b, 3, tolU))
 		}
 	} else {
 		for _, iv := range ivs {
-			consider(sv.golden(sv.evalU, iv.a, iv.b, 17, tolU))
+			consider(sv.golden(sv.bestOverScales, iv.a, iv.b, 17, tolU))
 			if !sv.liquid && sv.aim >= iv.a && sv.aim <= iv.b {
-				consider(sv.evalU(sv.aim))
+				consider(sv.bestOverScales(sv.aim))
 			}
 		}
 	}
 	if !best.ok {
-		return cand{}, unprocessable("no plan satisfies the facility's limits", fails...)
+		return candidate{}, unprocessable("no plan satisfies the facility's limits", fails...)
 	}
 	return sv.polish(best, ivs), nil
 }
@@ -360,7 +360,7 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 
 // gain re-solves with the named limit relaxed by 1 % and returns the change of the
 // test Reynolds number in per cent, and the states computed.
-func (sv *solver) gain(name string, best cand) (float64, int, error) {
+func (sv *solver) gain(name string, best candidate) (float64, int, error) {
 	r, ok := sv.relaxed(name)
 	if !ok {
 		return 0, 0, fmt.Errorf("similarity: limit %q cannot be relaxed", name)

@@ -64,38 +64,48 @@ func (a key) less(b key) bool {
 	return a.q < b.q
 }
 
+// limitSlack is the relative slack, 1e-12, with which the set-up and the search
+// test a limit before they rule a Mach number (speed), a scale or a load ceiling
+// out: x > limit·(1 + limitSlack). It absorbs the rounding of a state computed at a
+// limit's own value (a model on the span limit, a q ceiling reached at the top of
+// p0), so that a setting placed on a limit is not refused for its own rounding. The
+// answer itself is checked against the facility's limits as they are stated
+// (facilities.Violations).
+const limitSlack = 1e-12
+
 // worst is the key of an infeasible point.
 var worst = key{v: [nGroups]float64{math.Inf(1), math.Inf(1), math.Inf(1), math.Inf(1)}, q: math.Inf(1)}
 
-// uctx is what the planner knows at one test Mach number (speed in water),
+// machSetup is what the planner knows at one test Mach number (speed in water),
 // independent of the model scale.
-type uctx struct {
+type machSetup struct {
 	ok   bool
 	fail string // the limit that makes this Mach number infeasible
-	u    float64
+	// machOrSpeed is the test Mach number (gas) or speed in m/s (water).
+	machOrSpeed float64
 
-	ta, tb float64          // usable stagnation-temperature range, K
-	pa     float64          // lowest stagnation pressure, Pa
-	pTop   float64          // highest usable p0 before any q ceiling, Pa
-	capTop string           // the limit that sets pTop
-	k      float64          // dynamic pressure per Pa of p0 (ideal gas) or q itself (water)
-	stRef  facilities.State // a usable state at (pa, tRef): its speed scales as √T0
-	tRef   float64
-	rlo    float64 // lowest Re/m, at (pa, tb), once rloOK
-	rloOK  bool
-	ra     float64 // Re/m at (pa, ta)
-	linear bool    // q and Re/m ∝ p0 along the T0 floor (ideal gas, no condensation)
-	cond   bool    // condensation sets the T0 floor somewhere in [pa, pTop]
-	nat    top     // the highest usable Re/m within the facility's own limits
+	ta, tb      float64          // usable stagnation-temperature range, K
+	pa          float64          // lowest stagnation pressure, Pa
+	pTop        float64          // highest usable p0 before any q ceiling, Pa
+	capTop      string           // the limit that sets pTop
+	k           float64          // dynamic pressure per Pa of p0 (ideal gas) or q itself (water)
+	stRef       facilities.State // a usable state at (pa, tRef): its speed scales as √T0
+	tRef        float64
+	rlo         float64 // lowest Re/m, at (pa, tb), once rloOK
+	rloOK       bool
+	ra          float64    // Re/m at (pa, ta)
+	linear      bool       // q and Re/m ∝ p0 along the T0 floor (ideal gas, no condensation)
+	cond        bool       // condensation sets the T0 floor somewhere in [pa, pTop]
+	facilityTop topSetting // the highest usable Re/m within the facility's own limits
 
 	// Water only.
-	rNat   float64
-	capNat string
+	rWaterTop   float64
+	capWaterTop string
 }
 
-// top is the setting of the highest usable Re/m at one Mach number under a
+// topSetting is the setting of the highest usable Re/m at one Mach number under a
 // dynamic-pressure ceiling.
-type top struct {
+type topSetting struct {
 	p, t float64 // p0 in Pa, T0 in K
 	r    float64 // Re/m
 	q    float64 // dynamic pressure in Pa
@@ -106,20 +116,20 @@ type top struct {
 	edge bool
 }
 
-// cand is a full candidate at (u, s): the test setting and its figures.
-type cand struct {
-	ok    bool
-	fail  string
-	u, s  float64
-	p0    float64
-	t0    float64
-	r     float64 // Re/m
-	rhi   float64 // highest Re/m usable at this scale
-	rlo   float64
-	q     float64
-	v     float64 // speed, m/s
-	capHi string  // what limits rhi
-	k     key
+// candidate is a full candidate at (machOrSpeed, s): the test setting and its figures.
+type candidate struct {
+	ok             bool
+	fail           string
+	machOrSpeed, s float64
+	p0             float64
+	t0             float64
+	r              float64 // Re/m
+	rhi            float64 // highest Re/m usable at this scale
+	rlo            float64
+	q              float64
+	v              float64 // speed, m/s
+	capHi          string  // what limits rhi
+	k              key
 	// Water with the cavitation number in the objective: the chosen test-section
 	// static pressure in Pa and the cavitation number there.
 	ps, sig float64
@@ -128,11 +138,12 @@ type cand struct {
 // solver holds one planning problem in the form the search needs. Relaxed copies
 // of it give the binding gains.
 type solver struct {
+	// The problem as given, and the figures read from it most.
 	p      *Problem
 	f      *facilities.Facility
 	fl     FlightState
 	art    *Article
-	L      float64
+	L      float64 // full-scale reference length, m
 	liquid bool
 	obj    objective
 	// marine: the full-scale condition is a vessel in water (Flight.Marine);
@@ -141,6 +152,9 @@ type solver struct {
 	// objective looks at the cavitation number (marine condition, water facility).
 	marine, noMach, held, cav bool
 
+	// The limits that do not depend on the scale: the load limit (scaled by
+	// loadScale when a binding gain relaxes it), the lowest condensation margin
+	// allowed, and the ceilings on q (Pa) and Re/m (1/m); +Inf when absent.
 	load      LoadLimit
 	loadName  string
 	loadScale float64
@@ -148,19 +162,23 @@ type solver struct {
 	qmax      float64
 	remax     float64
 
+	// The model scales searched: fixed, a list or a range (kind), from sLo to sHi,
+	// with the limits that set the ends of a range ("" for none).
 	kind     int
 	scales   []float64
 	sLo, sHi float64
 	sLoName  string
 	sHiName  string
 
-	uLo, uHi float64
+	// The search range of the test Mach number (speed in m/s in water).
+	machOrSpeedMin, machOrSpeedMax float64
 
 	// aim is the free-stream Mach number aimed at: the flight's over aimRatio, the
 	// wall correction's M_c/M at the plan when the corrected Mach number is matched
 	// (solveCorrected), else 1.
 	aim, aimRatio float64
 
+	// The search's count of state evaluations, and the warnings for the answer.
 	evals    int
 	warnings []string
 
@@ -377,20 +395,20 @@ func (sv *solver) machBand() (lo, hi float64) {
 }
 
 // machRatio returns M_c/M, the wall-corrected over the free-stream Mach number, of
-// a model of scale s at free-stream Mach number u, with the blockage at the middle
+// a model of scale s at free-stream Mach number machOrSpeed, with the blockage at the middle
 // of the matrix's drag range (facilities.MachRatio); 1 when no correction applies
 // (no matrix, a liquid, walls other than closed, M ≥ 1).
-func (sv *solver) machRatio(u, s float64) float64 {
+func (sv *solver) machRatio(machOrSpeed, s float64) float64 {
 	d := sv.p.MatrixDrag
 	if d == nil || sv.noMach {
 		return 1
 	}
 	s2 := s * s
-	solid, wake, ok := facilities.BlockageFactors(sv.f, sv.art.FrontalArea*s2, sv.art.ReferenceArea*s2, u)
+	solid, wake, ok := facilities.BlockageFactors(sv.f, sv.art.FrontalArea*s2, sv.art.ReferenceArea*s2, machOrSpeed)
 	if !ok {
 		return 1
 	}
-	return facilities.MachRatio(u, solid+wake*0.5*(d.Min+d.Max))
+	return facilities.MachRatio(machOrSpeed, solid+wake*0.5*(d.Min+d.Max))
 }
 
 // maxAimSteps is the most re-solves that move the Mach aim (solveCorrected).
@@ -403,10 +421,10 @@ const maxAimSteps = 8
 // scale and Mach number are searched with r held at the plan's value, so a plan at
 // another scale is judged with the plan's blockage, not its own (a difference of
 // the order of the change of ε between the scales times the Mach tolerance).
-func (sv *solver) solveCorrected() (cand, error) {
+func (sv *solver) solveCorrected() (candidate, error) {
 	best, err := sv.solve()
 	for i := 0; err == nil && i < maxAimSteps; i++ {
-		r := sv.machRatio(best.u, best.s)
+		r := sv.machRatio(best.machOrSpeed, best.s)
 		if math.Abs(r-sv.aimRatio) <= 1e-14 {
 			break
 		}
@@ -470,11 +488,10 @@ func (sv *solver) setLimits() error {
 	}
 	sg, gname := sv.geomScale()
 	m := sv.p.Model
-	const slack = 1 + 1e-12
 	switch {
 	case m.Scale != nil:
 		sv.kind = scaleFixed
-		if *m.Scale > sg*slack {
+		if *m.Scale > sg*(1+limitSlack) {
 			return unprocessable(fmt.Sprintf("a model at scale %.4g does not fit the test section: the largest is %.4g", *m.Scale, sg),
 				gname, "model.scale")
 		}
@@ -483,7 +500,7 @@ func (sv *solver) setLimits() error {
 	case len(m.Scales) > 0:
 		sv.kind = scaleList
 		for _, s := range m.Scales {
-			if s > sg*slack {
+			if s > sg*(1+limitSlack) {
 				sv.warnings = append(sv.warnings, fmt.Sprintf("the model at scale %.4g does not fit the test section (%s allows up to %.4g): left out", s, gname, sg))
 				continue
 			}
@@ -521,7 +538,7 @@ func (sv *solver) setURange() error {
 		if f.Speed == nil {
 			return unprocessable("a water facility needs a speed range", facilities.ConstraintSpeedMin, facilities.ConstraintSpeedMax)
 		}
-		sv.uLo, sv.uHi = f.Speed.Min, f.Speed.Max
+		sv.machOrSpeedMin, sv.machOrSpeedMax = f.Speed.Min, f.Speed.Max
 		return nil
 	}
 	lo, hi := 0.0, facilities.MaxSettingMach
@@ -544,27 +561,27 @@ func (sv *solver) setURange() error {
 		return unprocessable("the facility's Mach and speed ranges do not overlap at any stagnation temperature",
 			facilities.ConstraintMachMin, facilities.ConstraintMachMax, facilities.ConstraintSpeedMin, facilities.ConstraintSpeedMax)
 	}
-	sv.uLo, sv.uHi = math.Max(lo, 1e-6), hi
+	sv.machOrSpeedMin, sv.machOrSpeedMax = math.Max(lo, 1e-6), hi
 	return nil
 }
 
-// state returns the facility state at u, p0, T0; err reports an unusable setting
+// state returns the facility state at machOrSpeed, p0, T0; err reports an unusable setting
 // (for nitrogen: the free stream at saturation).
-func (sv *solver) state(u, p0, t0 float64) (facilities.State, error) {
+func (sv *solver) state(machOrSpeed, p0, t0 float64) (facilities.State, error) {
 	sv.evals++
 	set := facilities.Setting{StagnationPressure: p0, StagnationTemperature: t0}
 	if sv.liquid {
-		set.Speed = u
+		set.Speed = machOrSpeed
 	} else {
-		set.Mach = u
+		set.Mach = machOrSpeed
 	}
 	return sv.f.State(set)
 }
 
-// margin returns the condensation margin at u, p0, T0 less the allowed minimum:
+// margin returns the condensation margin at machOrSpeed, p0, T0 less the allowed minimum:
 // ≥ 0 is usable. An unusable state counts as −1.
-func (sv *solver) margin(u, p0, t0 float64) float64 {
-	st, err := sv.state(u, p0, t0)
+func (sv *solver) margin(machOrSpeed, p0, t0 float64) float64 {
+	st, err := sv.state(machOrSpeed, p0, t0)
 	if err != nil {
 		return -1
 	}
@@ -579,26 +596,32 @@ func (sv *solver) loadQ(s float64, st facilities.State) float64 {
 	return sv.loadScale * sv.load.MaxDynamicPressure(s, st)
 }
 
-// prepare works out everything at test Mach number (speed) u that does not depend
+// prepare works out everything at test Mach number (speed) machOrSpeed that does not depend
 // on the model scale.
-func (sv *solver) prepare(u float64) uctx {
-	if sv.liquid {
-		return sv.prepareWater(u)
+func (sv *solver) prepare(machOrSpeed float64) machSetup {
+	switch {
+	case sv.liquid:
+		return sv.prepareWater(machOrSpeed)
+	case sv.f.Medium.Kind == facilities.MediumNitrogen:
+		return sv.prepareNitrogen(machOrSpeed)
+	default:
+		return sv.prepareIdeal(machOrSpeed)
 	}
-	if sv.f.Medium.Kind != facilities.MediumNitrogen {
-		return sv.prepareIdeal(u)
-	}
+}
+
+// prepareNitrogen is prepare for nitrogen, a real gas (Peng–Robinson Z) that can
+// condense: q and Re/m are proportional to p0 only where Z = 1 at both ends of the
+// T0 range and condensation does not set the T0 floor (linear); elsewhere the
+// floor and the q and Re/m curves are evaluated state by state.
+func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	f := sv.f
-	c := uctx{u: u}
+	c := machSetup{machOrSpeed: machOrSpeed}
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
 	pa, pb := f.StagnationPressure.Min, f.StagnationPressure.Max
 	c.pa = pa
-	stB, err := sv.state(u, pa, tb)
+	stB, err := sv.state(machOrSpeed, pa, tb)
 	if err != nil {
 		c.fail = facilities.ConstraintCondensation
-		if f.Medium.Kind != facilities.MediumNitrogen {
-			c.fail = facilities.ConstraintMachMax
-		}
 		return c
 	}
 	if f.Speed != nil {
@@ -610,7 +633,7 @@ func (sv *solver) prepare(u float64) uctx {
 		ta = math.Max(ta, tlo)
 		if thi < tb {
 			tb = thi
-			if stB, err = sv.state(u, pa, tb); err != nil {
+			if stB, err = sv.state(machOrSpeed, pa, tb); err != nil {
 				c.fail = facilities.ConstraintCondensation
 				return c
 			}
@@ -619,32 +642,30 @@ func (sv *solver) prepare(u float64) uctx {
 	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stB, tb
 	c.k = stB.DynamicPressure / pa
 	c.rlo, c.rloOK = stB.ReynoldsPerMeter, true
-	if c.rlo > sv.remax*(1+1e-12) {
+	if c.rlo > sv.remax*(1+limitSlack) {
 		c.fail = facilities.ConstraintReynoldsUnit
 		return c
 	}
-	if stB.DynamicPressure > sv.qmax*(1+1e-12) {
+	if stB.DynamicPressure > sv.qmax*(1+limitSlack) {
 		c.fail = facilities.ConstraintDynamic
 		return c
 	}
 	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
-	if f.Medium.Kind == facilities.MediumNitrogen {
-		if sv.f.CondensationMargin(stB) < sv.condMin {
-			c.fail = facilities.ConstraintCondensation
-			return c
-		}
-		if sv.margin(u, pb, ta) < 0 {
-			c.cond = true
-			if sv.margin(u, pb, tb) < 0 {
-				// Above some p0 even the warmest usable T0 condenses.
-				c.pTop = sv.rootHi(func(p float64) float64 { return sv.margin(u, p, tb) }, pa, pb, false)
-				c.capTop = facilities.ConstraintCondensation
-			}
+	if sv.f.CondensationMargin(stB) < sv.condMin {
+		c.fail = facilities.ConstraintCondensation
+		return c
+	}
+	if sv.margin(machOrSpeed, pb, ta) < 0 {
+		c.cond = true
+		if sv.margin(machOrSpeed, pb, tb) < 0 {
+			// Above some p0 even the warmest usable T0 condenses.
+			c.pTop = sv.rootHi(func(p float64) float64 { return sv.margin(machOrSpeed, p, tb) }, pa, pb, false)
+			c.capTop = facilities.ConstraintCondensation
 		}
 	}
 	stA := stB
 	if ta != tb {
-		if stA, err = sv.state(u, pa, sv.tfloor(&c, pa)); err != nil {
+		if stA, err = sv.state(machOrSpeed, pa, sv.tfloor(&c, pa)); err != nil {
 			c.fail = facilities.ConstraintCondensation
 			return c
 		}
@@ -652,7 +673,7 @@ func (sv *solver) prepare(u float64) uctx {
 	c.ra = stA.ReynoldsPerMeter
 	c.linear = !c.cond && f.Medium.Compressibility(stA.Static.Temperature, stA.Static.Pressure) == 1 &&
 		f.Medium.Compressibility(stB.Static.Temperature, stB.Static.Pressure) == 1
-	c.nat = sv.top(&c, sv.qmax, facilities.ConstraintDynamic)
+	c.facilityTop = sv.highestSetting(&c, sv.qmax, facilities.ConstraintDynamic)
 	c.ok = true
 	return c
 }
@@ -661,12 +682,12 @@ func (sv *solver) prepare(u float64) uctx {
 // Re/m are proportional to p0, q does not depend on T0, and Re/m is highest at the
 // lowest T0, so one state at (pa, ta) gives the rest in closed form. The state at
 // (pa, tb), the lowest Re/m, is computed only when needed (lowR).
-func (sv *solver) prepareIdeal(u float64) uctx {
+func (sv *solver) prepareIdeal(machOrSpeed float64) machSetup {
 	f := sv.f
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
 	pa, pb := f.StagnationPressure.Min, f.StagnationPressure.Max
-	c := uctx{u: u, pa: pa}
-	stA, err := sv.state(u, pa, ta)
+	c := machSetup{machOrSpeed: machOrSpeed, pa: pa}
+	stA, err := sv.state(machOrSpeed, pa, ta)
 	if err != nil {
 		c.fail = facilities.ConstraintMachMax
 		return c
@@ -680,7 +701,7 @@ func (sv *solver) prepareIdeal(u float64) uctx {
 		tb = math.Min(tb, thi)
 		if tlo > ta {
 			ta = tlo
-			if stA, err = sv.state(u, pa, ta); err != nil {
+			if stA, err = sv.state(machOrSpeed, pa, ta); err != nil {
 				c.fail = facilities.ConstraintSpeedMin
 				return c
 			}
@@ -688,28 +709,28 @@ func (sv *solver) prepareIdeal(u float64) uctx {
 	}
 	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stA, ta
 	c.k = stA.DynamicPressure / pa
-	if stA.DynamicPressure > sv.qmax*(1+1e-12) {
+	if stA.DynamicPressure > sv.qmax*(1+limitSlack) {
 		c.fail = facilities.ConstraintDynamic
 		return c
 	}
 	c.ra = stA.ReynoldsPerMeter
-	if !math.IsInf(sv.remax, 1) && sv.lowR(&c) > sv.remax*(1+1e-12) {
+	if !math.IsInf(sv.remax, 1) && sv.lowR(&c) > sv.remax*(1+limitSlack) {
 		c.fail = facilities.ConstraintReynoldsUnit
 		return c
 	}
 	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
 	c.linear = true
-	c.nat = sv.top(&c, sv.qmax, facilities.ConstraintDynamic)
+	c.facilityTop = sv.highestSetting(&c, sv.qmax, facilities.ConstraintDynamic)
 	c.ok = true
 	return c
 }
 
 // lowR returns the lowest Re/m at c's Mach number, at (pa, tb).
-func (sv *solver) lowR(c *uctx) float64 {
+func (sv *solver) lowR(c *machSetup) float64 {
 	if !c.rloOK {
 		c.rlo, c.rloOK = c.ra, true
 		if c.tb != c.ta {
-			if st, err := sv.state(c.u, c.pa, c.tb); err == nil {
+			if st, err := sv.state(c.machOrSpeed, c.pa, c.tb); err == nil {
 				c.rlo = st.ReynoldsPerMeter
 			}
 		}
@@ -718,24 +739,24 @@ func (sv *solver) lowR(c *uctx) float64 {
 }
 
 // qcurve returns the dynamic pressure at p0 on the T0 floor.
-func (sv *solver) qcurve(c *uctx, p0 float64) float64 {
+func (sv *solver) qcurve(c *machSetup, p0 float64) float64 {
 	if c.linear {
 		return c.k * p0
 	}
-	st, err := sv.state(c.u, p0, sv.tfloor(c, p0))
+	st, err := sv.state(c.machOrSpeed, p0, sv.tfloor(c, p0))
 	if err != nil {
 		return math.Inf(1)
 	}
 	return st.DynamicPressure
 }
 
-// top returns the setting of the highest Re/m at c's Mach number with the dynamic
+// highestSetting returns the setting of the highest Re/m at c's Mach number with the dynamic
 // pressure at most qc (the ceiling named name). Re/m rises with p0 and falls with
 // T0, so it lies on the T0 floor at the highest p0 the limits allow; and on a q
 // ceiling Re/m = 2q/(V·μ) is highest at the lowest T0. The caller has checked that
 // q at (pa, tb) is within qc.
-func (sv *solver) top(c *uctx, qc float64, name string) top {
-	t := top{p: c.pTop, cap: c.capTop}
+func (sv *solver) highestSetting(c *machSetup, qc float64, name string) topSetting {
+	t := topSetting{p: c.pTop, cap: c.capTop}
 	if qTop := sv.qcurve(c, c.pTop); qTop > qc {
 		switch {
 		case c.linear:
@@ -746,7 +767,7 @@ func (sv *solver) top(c *uctx, qc float64, name string) top {
 		default:
 			t.p, t.cap, t.edge = c.pa, name, true
 			t.t = sv.rootHi(func(x float64) float64 {
-				st, err := sv.state(c.u, c.pa, x)
+				st, err := sv.state(c.machOrSpeed, c.pa, x)
 				if err != nil {
 					return -1
 				}
@@ -760,7 +781,7 @@ func (sv *solver) top(c *uctx, qc float64, name string) top {
 	if c.linear {
 		t.r, t.q = c.ra*t.p/c.pa, c.k*t.p
 	} else {
-		st, err := sv.state(c.u, t.p, t.t)
+		st, err := sv.state(c.machOrSpeed, t.p, t.t)
 		if err != nil {
 			t.r, t.q = 0, math.Inf(1)
 			return t
@@ -777,11 +798,11 @@ func (sv *solver) top(c *uctx, qc float64, name string) top {
 }
 
 // qAt returns the dynamic pressure at c's Mach number, p0 and T0.
-func (sv *solver) qAt(c *uctx, p0, t0 float64) float64 {
+func (sv *solver) qAt(c *machSetup, p0, t0 float64) float64 {
 	if c.linear {
 		return c.k * p0
 	}
-	st, err := sv.state(c.u, p0, t0)
+	st, err := sv.state(c.machOrSpeed, p0, t0)
 	if err != nil {
 		return math.Inf(1)
 	}
@@ -791,9 +812,9 @@ func (sv *solver) qAt(c *uctx, p0, t0 float64) float64 {
 // solveR returns the lowest-q setting with Re/m = r (≤ tp.r) at c's Mach number:
 // p0 as low as possible on the T0 floor, then T0 raised at the lowest p0. With
 // q = ½·Re/m·μ·V, at a fixed Re/m the coolest gas needs the least q.
-func (sv *solver) solveR(c *uctx, tp top, r float64) (p0, t0 float64) {
+func (sv *solver) solveR(c *machSetup, tp topSetting, r float64) (p0, t0 float64) {
 	rAt := func(p, t float64) float64 {
-		st, err := sv.state(c.u, p, t)
+		st, err := sv.state(c.machOrSpeed, p, t)
 		if err != nil {
 			return 0
 		}
@@ -823,20 +844,20 @@ func (sv *solver) solveR(c *uctx, tp top, r float64) (p0, t0 float64) {
 	return p0, sv.tfloor(c, p0)
 }
 
-// prepareWater is prepare for water: u is the speed, p0 is held at its maximum
+// prepareWater is prepare for water: machOrSpeed is the speed, p0 is held at its maximum
 // (the most margin against cavitation; nothing else depends on it), and the
 // stagnation temperature is the free variable: warmer water is less viscous, so
 // Re/m rises with T0, and slightly lighter, so q falls.
-func (sv *solver) prepareWater(u float64) uctx {
+func (sv *solver) prepareWater(machOrSpeed float64) machSetup {
 	f := sv.f
-	c := uctx{u: u, pa: f.StagnationPressure.Max, pTop: f.StagnationPressure.Max}
+	c := machSetup{machOrSpeed: machOrSpeed, pa: f.StagnationPressure.Max, pTop: f.StagnationPressure.Max}
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
-	stB, err := sv.state(u, c.pa, tb)
+	stB, err := sv.state(machOrSpeed, c.pa, tb)
 	if err != nil {
 		c.fail = facilities.ConstraintSpeedMax
 		return c
 	}
-	stA, err := sv.state(u, c.pa, ta)
+	stA, err := sv.state(machOrSpeed, c.pa, ta)
 	if err != nil {
 		c.fail = facilities.ConstraintSpeedMax
 		return c
@@ -844,42 +865,42 @@ func (sv *solver) prepareWater(u float64) uctx {
 	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stB, tb
 	c.rloOK = true
 	c.k = stB.DynamicPressure
-	if stB.DynamicPressure > sv.qmax*(1+1e-12) {
+	if stB.DynamicPressure > sv.qmax*(1+limitSlack) {
 		c.fail = facilities.ConstraintDynamic
 		return c
 	}
 	if stA.DynamicPressure > sv.qmax {
-		c.ta = sv.rootHi(func(t float64) float64 { return sv.qmax - sv.waterQ(u, c.pa, t) }, ta, tb, true)
-		if stA, err = sv.state(u, c.pa, c.ta); err != nil {
+		c.ta = sv.rootHi(func(t float64) float64 { return sv.qmax - sv.waterQ(machOrSpeed, c.pa, t) }, ta, tb, true)
+		if stA, err = sv.state(machOrSpeed, c.pa, c.ta); err != nil {
 			c.fail = facilities.ConstraintSpeedMax
 			return c
 		}
 	}
 	c.ra, c.rlo = stA.ReynoldsPerMeter, stA.ReynoldsPerMeter
-	if c.rlo > sv.remax*(1+1e-12) {
+	if c.rlo > sv.remax*(1+limitSlack) {
 		c.fail = facilities.ConstraintReynoldsUnit
 		return c
 	}
-	c.rNat, c.capNat = stB.ReynoldsPerMeter, facilities.ConstraintTempMax
-	if c.rNat > sv.remax {
-		c.rNat, c.capNat = sv.remax, facilities.ConstraintReynoldsUnit
+	c.rWaterTop, c.capWaterTop = stB.ReynoldsPerMeter, facilities.ConstraintTempMax
+	if c.rWaterTop > sv.remax {
+		c.rWaterTop, c.capWaterTop = sv.remax, facilities.ConstraintReynoldsUnit
 	}
 	c.ok = true
 	return c
 }
 
-// waterQ is the dynamic pressure of water at speed u and T0 t.
-func (sv *solver) waterQ(u, p0, t float64) float64 {
-	st, err := sv.state(u, p0, t)
+// waterQ is the dynamic pressure of water at speed machOrSpeed and T0 t.
+func (sv *solver) waterQ(machOrSpeed, p0, t float64) float64 {
+	st, err := sv.state(machOrSpeed, p0, t)
 	if err != nil {
 		return math.Inf(1)
 	}
 	return st.DynamicPressure
 }
 
-// waterR is Re/m of water at speed u and T0 t.
-func (sv *solver) waterR(u, p0, t float64) float64 {
-	st, err := sv.state(u, p0, t)
+// waterR is Re/m of water at speed machOrSpeed and T0 t.
+func (sv *solver) waterR(machOrSpeed, p0, t float64) float64 {
+	st, err := sv.state(machOrSpeed, p0, t)
 	if err != nil {
 		return math.Inf(1)
 	}
@@ -888,35 +909,35 @@ func (sv *solver) waterR(u, p0, t float64) float64 {
 
 // tfloor returns the lowest usable stagnation temperature at p0: the facility's (or
 // the speed range's) floor, or the condensation line above it.
-func (sv *solver) tfloor(c *uctx, p0 float64) float64 {
-	if !c.cond || sv.margin(c.u, p0, c.ta) >= 0 {
+func (sv *solver) tfloor(c *machSetup, p0 float64) float64 {
+	if !c.cond || sv.margin(c.machOrSpeed, p0, c.ta) >= 0 {
 		return c.ta
 	}
-	return sv.rootHi(func(t float64) float64 { return sv.margin(c.u, p0, t) }, c.ta, c.tb, true)
+	return sv.rootHi(func(t float64) float64 { return sv.margin(c.machOrSpeed, p0, t) }, c.ta, c.tb, true)
 }
 
 // rcurve returns Re/m at p0 on the T0 floor (gas), the highest Re/m at that p0.
-func (sv *solver) rcurve(c *uctx, p0 float64) float64 {
+func (sv *solver) rcurve(c *machSetup, p0 float64) float64 {
 	if c.linear {
 		return c.ra * p0 / c.pa
 	}
-	st, err := sv.state(c.u, p0, sv.tfloor(c, p0))
+	st, err := sv.state(c.machOrSpeed, p0, sv.tfloor(c, p0))
 	if err != nil {
 		return 0
 	}
 	return st.ReynoldsPerMeter
 }
 
-// at returns the candidate at Mach number (speed) u and scale s whose Reynolds
+// at returns the candidate at Mach number (speed) machOrSpeed and scale s whose Reynolds
 // number comes closest to the flight's, at the lowest dynamic pressure.
-func (sv *solver) at(c *uctx, s float64) cand {
+func (sv *solver) at(c *machSetup, s float64) candidate {
 	return sv.atTarget(c, s, sv.fl.Reynolds/(s*sv.L))
 }
 
 // atTarget is at for a target Re/m: the candidate closest to it (in ratio) at the
 // lowest q.
-func (sv *solver) atTarget(c *uctx, s, target float64) cand {
-	x := cand{u: c.u, s: s}
+func (sv *solver) atTarget(c *machSetup, s, target float64) candidate {
+	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	if !c.ok {
 		x.fail, x.k = c.fail, worst
 		return x
@@ -924,14 +945,14 @@ func (sv *solver) atTarget(c *uctx, s, target float64) cand {
 	if sv.liquid {
 		return sv.atWater(c, s, target)
 	}
-	tp := c.nat
+	tp := c.facilityTop
 	if sv.load != nil {
 		if qb := sv.loadQ(s, c.stRef); qb < tp.q {
-			if qb < c.k*c.pa*(1-1e-12) {
+			if qb < c.k*c.pa*(1-limitSlack) {
 				x.fail, x.k = sv.loadName, worst
 				return x
 			}
-			tp = sv.top(c, qb, sv.loadName)
+			tp = sv.highestSetting(c, qb, sv.loadName)
 		}
 	}
 	x.rhi, x.rlo, x.capHi = tp.r, -1, tp.cap
@@ -950,32 +971,32 @@ func (sv *solver) atTarget(c *uctx, s, target float64) cand {
 	}
 	x.v = c.stRef.Speed * math.Sqrt(x.t0/c.tRef)
 	x.ok = true
-	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v, r == target, 0)
+	x.k = sv.keyOf(c.machOrSpeed, s, x.r, x.q, x.v, r == target, 0)
 	return x
 }
 
 // atWater is atTarget for water.
-func (sv *solver) atWater(c *uctx, s, target float64) cand {
+func (sv *solver) atWater(c *machSetup, s, target float64) candidate {
 	if sv.cav {
 		return sv.atWaterCav(c, s, target)
 	}
-	x := cand{u: c.u, s: s, p0: c.pa}
-	rhi, capHi, tHi := c.rNat, c.capNat, c.tb
+	x := candidate{machOrSpeed: c.machOrSpeed, s: s, p0: c.pa}
+	rhi, capHi, tHi := c.rWaterTop, c.capWaterTop, c.tb
 	if rhi < math.Inf(1) && capHi == facilities.ConstraintReynoldsUnit {
-		tHi = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.u, c.pa, t) }, c.ta, c.tb, false)
+		tHi = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.machOrSpeed, c.pa, t) }, c.ta, c.tb, false)
 	}
 	if sv.load != nil {
 		qb := sv.loadQ(s, c.stRef)
-		qt := sv.waterQ(c.u, c.pa, tHi)
-		if qb < qt*(1-1e-12) {
+		qt := sv.waterQ(c.machOrSpeed, c.pa, tHi)
+		if qb < qt*(1-limitSlack) {
 			x.fail, x.k = sv.loadName, worst
 			return x
 		}
-		if qa := sv.waterQ(c.u, c.pa, c.ta); qb < qa {
-			lo := sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.u, c.pa, t) }, c.ta, tHi, true)
+		if qa := sv.waterQ(c.machOrSpeed, c.pa, c.ta); qb < qa {
+			lo := sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.machOrSpeed, c.pa, t) }, c.ta, tHi, true)
 			c2 := *c
 			c2.ta = lo
-			c2.ra = sv.waterR(c.u, c.pa, lo)
+			c2.ra = sv.waterR(c.machOrSpeed, c.pa, lo)
 			c2.rlo = c2.ra
 			c = &c2
 		}
@@ -988,20 +1009,20 @@ func (sv *solver) atWater(c *uctx, s, target float64) cand {
 	case r >= rhi:
 		x.t0 = tHi
 	default:
-		x.t0 = sv.rootHi(func(t float64) float64 { return sv.waterR(c.u, c.pa, t) - r }, c.ta, tHi, true)
+		x.t0 = sv.rootHi(func(t float64) float64 { return sv.waterR(c.machOrSpeed, c.pa, t) - r }, c.ta, tHi, true)
 		if x.t0 > tHi {
 			x.t0 = tHi
 		}
 	}
 	x.r = r
-	x.q = sv.waterQ(c.u, c.pa, x.t0)
-	x.v = c.u
+	x.q = sv.waterQ(c.machOrSpeed, c.pa, x.t0)
+	x.v = c.machOrSpeed
 	x.ok = true
-	x.k = sv.keyOf(c.u, s, x.r, x.q, x.v, r == target, 0)
+	x.k = sv.keyOf(c.machOrSpeed, s, x.r, x.q, x.v, r == target, 0)
 	return x
 }
 
-// keyOf returns the objective key of a candidate at u and scale s with Re/m r,
+// keyOf returns the objective key of a candidate at machOrSpeed and scale s with Re/m r,
 // dynamic pressure q and speed v in m/s. met says that r is the flight's Re/m at
 // this scale by construction (the setting was solved for the target, not capped
 // by a limit): the Reynolds term is then exactly 0, so that every such candidate
@@ -1013,18 +1034,18 @@ func (sv *solver) atWater(c *uctx, s, target float64) cand {
 // sig is the test's cavitation number when the objective looks at it (sv.cav);
 // its level is the distance of sig outside the band σ_full ± cavTol (0 inside),
 // its weighted term (ln(sig/σ_full))².
-func (sv *solver) keyOf(u, s, r, q, v float64, met bool, sig float64) key {
+func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) key {
 	lnRe := 0.0
 	if !met {
 		lnRe = math.Log(s * sv.L * r / sv.fl.Reynolds)
 	}
-	// The distance of u outside the Mach band [M−tol, M+tol], with the band's ends
-	// computed as solve computes them, so that u on an end (where the search puts
-	// it) is inside by construction and scores exactly 0: |u − M| − tol would
+	// The distance of machOrSpeed outside the Mach band [M−tol, M+tol], with the band's ends
+	// computed as solve computes them, so that machOrSpeed on an end (where the search puts
+	// it) is inside by construction and scores exactly 0: |machOrSpeed − M| − tol would
 	// leave a rounding error of either sign there.
 	dM := 0.0
 	if lo, hi := sv.machBand(); !sv.noMach {
-		dM = math.Max(0, math.Max(lo-u, u-hi))
+		dM = math.Max(0, math.Max(lo-machOrSpeed, machOrSpeed-hi))
 	}
 	// Fr_test/Fr_flight = (V/√(g·s·L))/(V_f/√(g·L)) = V/(V_f·√s).
 	lnFr := math.Log(v / (sv.fl.Speed() * math.Sqrt(s)))
@@ -1038,7 +1059,7 @@ func (sv *solver) keyOf(u, s, r, q, v float64, met bool, sig float64) key {
 	if sv.obj.weighted {
 		lnM := 0.0
 		if !sv.noMach {
-			lnM = math.Log(u / sv.aim)
+			lnM = math.Log(machOrSpeed / sv.aim)
 		}
 		for i, l := range [nGroups]float64{gReynolds: lnRe, gMach: lnM, gFroude: lnFr, gCavitation: lnSig} {
 			if w := sv.obj.w[i]; w > 0 {
@@ -1119,9 +1140,9 @@ func speedWindow(speed *facilities.Range, v, tref, ta, tb float64) (tlo, thi flo
 	tlo = tref * sq(speed.Min/v)
 	thi = tref * sq(speed.Max/v)
 	switch {
-	case tlo > tb*(1+1e-12):
+	case tlo > tb*(1+limitSlack):
 		fail = facilities.ConstraintSpeedMin
-	case thi < ta*(1-1e-12):
+	case thi < ta*(1-limitSlack):
 		fail = facilities.ConstraintSpeedMax
 	}
 	return tlo, thi, fail
