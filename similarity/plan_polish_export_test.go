@@ -28,7 +28,7 @@ func RefineFrom(p *Problem, u, s float64) (start, refined *Result, err error) {
 	if err != nil {
 		return nil, nil, err
 	}
-	ivs, fails := sv.feasibleU()
+	ivs, fails := sv.feasibleMachOrSpeed()
 	if len(ivs) == 0 {
 		return nil, nil, unprocessable("no feasible Mach number or speed", fails...)
 	}

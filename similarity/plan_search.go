@@ -43,17 +43,17 @@ func (sv *solver) bestOverScales(machOrSpeed float64) candidate {
 		return sv.golden(func(ls float64) candidate { return sv.at(&c, math.Exp(ls)) },
 			math.Log(sv.sLo), math.Log(sv.sHi), 9, 1e-10)
 	}
-	return sv.rangeS(&c)
+	return sv.bestInScaleRange(&c)
 }
 
-// rangeS finds the best scale in [sLo, sHi] at one Mach number when only the
+// bestInScaleRange finds the best scale in [sLo, sHi] at one Mach number when only the
 // Reynolds number depends on the scale. Without a load limit the dynamic pressure
 // does not depend on the scale and Re ∝ scale, so the largest model is best (and
 // the same Re costs the least q on it). A load limit lowers the q ceiling as the
 // model grows (forces ∝ q·s², moments ∝ q·s³): Re then rises with s up to the
 // knee where the load limit starts to cap Re/m and, past it, falls as s·q_max(s)
 // falls; the search finds the knee by a root on the load limit alone.
-func (sv *solver) rangeS(c *machSetup) candidate {
+func (sv *solver) bestInScaleRange(c *machSetup) candidate {
 	x := sv.at(c, sv.sHi)
 	if x.ok && (sv.load == nil || x.capHi != sv.loadName) {
 		return sv.shrink(c, x)
@@ -181,9 +181,9 @@ func (sv *solver) golden(eval func(float64) candidate, a, b float64, n int, tol 
 	return best
 }
 
-// feasibleU returns the intervals of test Mach number (speed) at which some model
+// feasibleMachOrSpeed returns the intervals of test Mach number (speed) at which some model
 // of the allowed scales can run, and the limits that rule out the rest.
-func (sv *solver) feasibleU() ([]interval, []string) {
+func (sv *solver) feasibleMachOrSpeed() ([]interval, []string) {
 	var fails []string
 	ok := func(machOrSpeed float64) bool {
 		c := sv.prepare(machOrSpeed)
@@ -245,7 +245,7 @@ func (sv *solver) feasibleU() ([]interval, []string) {
 
 // solve finds the best plan.
 func (sv *solver) solve() (candidate, error) {
-	ivs, fails := sv.feasibleU()
+	ivs, fails := sv.feasibleMachOrSpeed()
 	if len(ivs) == 0 {
 		what := "Mach number"
 		if sv.liquid {
