@@ -10,7 +10,8 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"scalematch/api"
+	"scalematch/api/schema"
+	"scalematch/internal/app"
 )
 
 // TestRequestCaps: a 0.92 MB request with 90,000 scales was planned and stored
@@ -47,7 +48,7 @@ func TestRequestCaps(t *testing.T) {
 			code, b := post(t, ts, "/v1/plans", tc.body)
 			require.Equal(t, tc.status, code, "%.300s", b)
 			assert.LessOrEqual(t, len(b), tc.maxBytes, "answer size")
-			var p api.Problem
+			var p schema.Problem
 			require.NoError(t, json.Unmarshal(b, &p))
 			assert.LessOrEqual(t, len(p.Errors), 50)
 			if tc.field != "" {
@@ -59,7 +60,7 @@ func TestRequestCaps(t *testing.T) {
 		body := strings.Replace(j16Plan, `"alpha": {"from": -4, "to": 16, "step": 1}`, `"alpha": {"from": -180, "to": 180, "step": 0.18}`, 1)
 		code, b := post(t, ts, "/v1/plans", body)
 		require.Equal(t, http.StatusOK, code, "%.300s", b)
-		assert.Less(t, len(b), api.MaxPlanBytes)
+		assert.Less(t, len(b), app.MaxPlanBytes)
 		t.Logf("a 2001-point plan is %d bytes", len(b))
 	})
 }

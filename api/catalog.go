@@ -14,6 +14,7 @@ import (
 
 	"github.com/gin-gonic/gin"
 
+	"scalematch/api/schema"
 	"scalematch/facilities"
 )
 
@@ -27,23 +28,6 @@ const (
 	// changed since: the facility's current version, or "deleted".
 	HeaderFacilityCurrentVersion = "Scalematch-Facility-Current-Version"
 )
-
-// FacilityList is the answer of GET /v1/facilities.
-type FacilityList struct {
-	// Facilities are the current, not deleted facilities ordered by id, each with
-	// its version.
-	Facilities []facilities.Facility `json:"facilities"`
-}
-
-// FacilityHistory is the answer of GET /v1/facilities/{id}/versions.
-type FacilityHistory struct {
-	// ID is the facility's id.
-	ID string `json:"id" example:"tsw-1"`
-	// Versions lists every change, oldest first: version, time (RFC 3339, UTC), the
-	// write token's name, the action, the JSON paths that changed and the record as
-	// of that version (absent for a deletion).
-	Versions []facilities.Change `json:"versions"`
-}
 
 // registerCatalog registers the facility catalog, its version history and the
 // stored-plan routes under /v1.
@@ -63,8 +47,8 @@ func (s *Server) registerCatalog(v1 *gin.RouterGroup) {
 //	@Description	Every current facility, ordered by id, with its catalog version. All figures SI: test-section sizes m, areas m², speeds m/s, pressures Pa, temperatures K, Reynolds number per metre 1/m, balance forces N and moments N·m.
 //	@Tags			catalog
 //	@Produce		json
-//	@Success		200	{object}	FacilityList
-//	@Failure		503	{object}	Problem	"the store did not answer in time"
+//	@Success		200	{object}	schema.FacilityList
+//	@Failure		503	{object}	schema.Problem	"the store did not answer in time"
 //	@Router			/v1/facilities [get]
 func (s *Server) listFacilities(c *gin.Context) {
 	fs, err := s.cfg.Catalog.Facilities(c.Request.Context())
@@ -72,7 +56,7 @@ func (s *Server) listFacilities(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	s.answer(c, http.StatusOK, FacilityList{Facilities: fs})
+	s.answer(c, http.StatusOK, schema.FacilityList{Facilities: fs})
 }
 
 // getFacility answers GET /v1/facilities/{id}.
@@ -84,7 +68,7 @@ func (s *Server) listFacilities(c *gin.Context) {
 //	@Param			id	path		string	true	"facility id"	example(tsw-1)
 //	@Success		200	{object}	facilities.Facility
 //	@Header			200	{string}	ETag	"the facility's version, quoted"
-//	@Failure		404	{object}	Problem	"no such facility, or it was deleted"
+//	@Failure		404	{object}	schema.Problem	"no such facility, or it was deleted"
 //	@Router			/v1/facilities/{id} [get]
 func (s *Server) getFacility(c *gin.Context) {
 	f, err := s.cfg.Catalog.Facility(c.Request.Context(), c.Param("id"))
@@ -103,8 +87,8 @@ func (s *Server) getFacility(c *gin.Context) {
 //	@Tags			catalog
 //	@Produce		json
 //	@Param			id	path		string	true	"facility id"	example(tsw-1)
-//	@Success		200	{object}	FacilityHistory
-//	@Failure		404	{object}	Problem	"the id was never in the catalog"
+//	@Success		200	{object}	schema.FacilityHistory
+//	@Failure		404	{object}	schema.Problem	"the id was never in the catalog"
 //	@Router			/v1/facilities/{id}/versions [get]
 func (s *Server) getFacilityVersions(c *gin.Context) {
 	id := c.Param("id")
@@ -113,7 +97,7 @@ func (s *Server) getFacilityVersions(c *gin.Context) {
 		s.fail(c, err)
 		return
 	}
-	s.answer(c, http.StatusOK, FacilityHistory{ID: id, Versions: vs})
+	s.answer(c, http.StatusOK, schema.FacilityHistory{ID: id, Versions: vs})
 }
 
 // createFacility answers POST /v1/facilities.
@@ -128,10 +112,10 @@ func (s *Server) getFacilityVersions(c *gin.Context) {
 //	@Success		201			{object}	facilities.Facility
 //	@Header			201			{string}	ETag		"the new version, quoted"
 //	@Header			201			{string}	Location	"/v1/facilities/{id}"
-//	@Failure		400			{object}	Problem	"invalid fields, each named by its JSON path"
-//	@Failure		401			{object}	Problem	"no bearer token"
-//	@Failure		403			{object}	Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
-//	@Failure		409			{object}	Problem	"the id exists"
+//	@Failure		400			{object}	schema.Problem	"invalid fields, each named by its JSON path"
+//	@Failure		401			{object}	schema.Problem	"no bearer token"
+//	@Failure		403			{object}	schema.Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
+//	@Failure		409			{object}	schema.Problem	"the id exists"
 //	@Router			/v1/facilities [post]
 func (s *Server) createFacility(c *gin.Context) {
 	by, ok := s.writer(c)
@@ -151,7 +135,7 @@ func (s *Server) createFacility(c *gin.Context) {
 		return
 	}
 	out, err := s.cfg.Catalog.CreateFacility(c.Request.Context(), f, by)
-	s.facilities.forget(f.ID)
+	s.plans.Forget(f.ID)
 	if err != nil {
 		s.fail(c, err)
 		return
@@ -174,12 +158,12 @@ func (s *Server) createFacility(c *gin.Context) {
 //	@Param			facility	body		facilities.Facility	true	"the whole facility"
 //	@Success		200			{object}	facilities.Facility
 //	@Header			200			{string}	ETag	"the new version, quoted"
-//	@Failure		400			{object}	Problem	"invalid fields, each named by its JSON path"
-//	@Failure		401			{object}	Problem	"no bearer token"
-//	@Failure		403			{object}	Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
-//	@Failure		404			{object}	Problem	"no such facility"
-//	@Failure		412			{object}	Problem	"If-Match is not the current version"
-//	@Failure		428			{object}	Problem	"If-Match is missing"
+//	@Failure		400			{object}	schema.Problem	"invalid fields, each named by its JSON path"
+//	@Failure		401			{object}	schema.Problem	"no bearer token"
+//	@Failure		403			{object}	schema.Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
+//	@Failure		404			{object}	schema.Problem	"no such facility"
+//	@Failure		412			{object}	schema.Problem	"If-Match is not the current version"
+//	@Failure		428			{object}	schema.Problem	"If-Match is missing"
 //	@Router			/v1/facilities/{id} [put]
 func (s *Server) updateFacility(c *gin.Context) {
 	by, ok := s.writer(c)
@@ -225,7 +209,7 @@ func (s *Server) updateFacility(c *gin.Context) {
 		return
 	}
 	out, err := s.cfg.Catalog.UpdateFacility(c.Request.Context(), f, ifMatch, by)
-	s.facilities.forget(f.ID)
+	s.plans.Forget(f.ID)
 	if err != nil {
 		s.fail(c, err)
 		return
@@ -243,12 +227,12 @@ func (s *Server) updateFacility(c *gin.Context) {
 //	@Param			id			path	string	true	"facility id"	example(tsw-1)
 //	@Param			If-Match	header	string	true	"the current version's ETag, e.g. \"3\""
 //	@Success		204
-//	@Failure		400	{object}	Problem	"malformed If-Match"
-//	@Failure		401	{object}	Problem	"no bearer token"
-//	@Failure		403	{object}	Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
-//	@Failure		404	{object}	Problem	"no such facility"
-//	@Failure		412	{object}	Problem	"If-Match is not the current version"
-//	@Failure		428	{object}	Problem	"If-Match is missing"
+//	@Failure		400	{object}	schema.Problem	"malformed If-Match"
+//	@Failure		401	{object}	schema.Problem	"no bearer token"
+//	@Failure		403	{object}	schema.Problem	"the token is not allowed, its scope does not cover this facility id, or no write tokens are configured"
+//	@Failure		404	{object}	schema.Problem	"no such facility"
+//	@Failure		412	{object}	schema.Problem	"If-Match is not the current version"
+//	@Failure		428	{object}	schema.Problem	"If-Match is missing"
 //	@Router			/v1/facilities/{id} [delete]
 func (s *Server) deleteFacility(c *gin.Context) {
 	by, ok := s.writer(c)
@@ -264,7 +248,7 @@ func (s *Server) deleteFacility(c *gin.Context) {
 		return
 	}
 	err = s.cfg.Catalog.DeleteFacility(c.Request.Context(), c.Param("id"), ifMatch, by)
-	s.facilities.forget(c.Param("id"))
+	s.plans.Forget(c.Param("id"))
 	if err != nil {
 		s.fail(c, err)
 		return
@@ -279,11 +263,11 @@ func (s *Server) deleteFacility(c *gin.Context) {
 //	@Tags			planning
 //	@Produce		json
 //	@Param			id	path		string	true	"plan id"
-//	@Success		200	{object}	PlanResponse
+//	@Success		200	{object}	schema.PlanResponse
 //	@Header			200	{string}	Scalematch-Facility-Id		"catalog facility id"
 //	@Header			200	{integer}	Scalematch-Facility-Version	"catalog facility version"
 //	@Header			200	{string}	Scalematch-Facility-Current-Version	"the facility's current version, or deleted; only when it changed since the plan"
-//	@Failure		404	{object}	Problem	"no plan with this id is stored"
+//	@Failure		404	{object}	schema.Problem	"no plan with this id is stored"
 //	@Router			/v1/plans/{id} [get]
 func (s *Server) getPlan(c *gin.Context) {
 	p, err := s.cfg.Catalog.Plan(c.Request.Context(), c.Param("id"))
@@ -328,7 +312,7 @@ func (s *Server) getPlan(c *gin.Context) {
 
 // facilityChange compares a stored plan's facility version with the catalog's
 // current one: nil when it is still current.
-func (s *Server) facilityChange(ctx context.Context, id string, planned int) (*FacilityChange, error) {
+func (s *Server) facilityChange(ctx context.Context, id string, planned int) (*schema.FacilityChange, error) {
 	var cur int
 	if vr, ok := s.cfg.Catalog.(facilities.VersionReader); ok {
 		v, err := vr.CurrentVersion(ctx, id)
@@ -346,7 +330,7 @@ func (s *Server) facilityChange(ctx context.Context, id string, planned int) (*F
 	if cur == planned {
 		return nil, nil
 	}
-	ch := &FacilityChange{FacilityID: id, PlannedVersion: planned, CurrentVersion: cur, Deleted: cur == 0}
+	ch := &schema.FacilityChange{FacilityID: id, PlannedVersion: planned, CurrentVersion: cur, Deleted: cur == 0}
 	if ch.Deleted {
 		ch.Message = fmt.Sprintf("facility %s has been deleted from the catalog since this plan was made against its version %d: the plan may no longer hold", id, planned)
 	} else {
@@ -357,7 +341,7 @@ func (s *Server) facilityChange(ctx context.Context, id string, planned int) (*F
 
 // withFacilityChange returns the stored plan body with "facility_changed" added
 // as its first field; the rest of the body is unchanged, byte for byte.
-func withFacilityChange(body []byte, ch *FacilityChange) ([]byte, error) {
+func withFacilityChange(body []byte, ch *schema.FacilityChange) ([]byte, error) {
 	fc, err := json.Marshal(ch)
 	if err != nil {
 		return nil, err

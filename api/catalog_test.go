@@ -17,6 +17,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 )
@@ -158,8 +159,8 @@ func TestCatalogWriteAccess(t *testing.T) {
 					t.Errorf("401 without WWW-Authenticate: Bearer (got %q)", r.header.Get("WWW-Authenticate"))
 				}
 				if want >= 400 {
-					if ct := r.header.Get("Content-Type"); ct != api.ContentTypeProblem {
-						t.Errorf("Content-Type %q, want %s", ct, api.ContentTypeProblem)
+					if ct := r.header.Get("Content-Type"); ct != schema.ContentTypeProblem {
+						t.Errorf("Content-Type %q, want %s", ct, schema.ContentTypeProblem)
 					}
 					if bytes.Contains(r.body, []byte(secret)) {
 						t.Error("the problem repeats the token")
@@ -244,7 +245,7 @@ func TestCatalogETags(t *testing.T) {
 	}
 
 	r = catalogCall(t, ts, http.MethodGet, "/v1/facilities/lsw-2/versions", nil, "")
-	var h api.FacilityHistory
+	var h schema.FacilityHistory
 	if err := json.Unmarshal(r.body, &h); err != nil || r.status != http.StatusOK {
 		t.Fatalf("versions: %d %s %v", r.status, r.body, err)
 	}
@@ -308,7 +309,7 @@ func TestCatalogCreateAndValidate(t *testing.T) {
 			if tt.wantFields == nil {
 				return
 			}
-			var p api.Problem
+			var p schema.Problem
 			if err := json.Unmarshal(r.body, &p); err != nil {
 				t.Fatal(err)
 			}
@@ -325,7 +326,7 @@ func TestCatalogCreateAndValidate(t *testing.T) {
 	}
 
 	r = catalogCall(t, ts, http.MethodGet, "/v1/facilities", nil, "")
-	var list api.FacilityList
+	var list schema.FacilityList
 	if err := json.Unmarshal(r.body, &list); err != nil || r.status != http.StatusOK {
 		t.Fatalf("list: %d %v", r.status, err)
 	}
@@ -388,13 +389,13 @@ func TestStoredPlanFacilityChanged(t *testing.T) {
 		name       string
 		id         string
 		wantHeader string
-		wantChange *api.FacilityChange
+		wantChange *schema.FacilityChange
 		wantText   string
 	}{
 		{"unchanged", "wch-3", "", nil, ""},
-		{"changed", "wch-1", "2", &api.FacilityChange{FacilityID: "wch-1", PlannedVersion: 1, CurrentVersion: 2},
+		{"changed", "wch-1", "2", &schema.FacilityChange{FacilityID: "wch-1", PlannedVersion: 1, CurrentVersion: 2},
 			"facility wch-1 has changed since this plan was made: planned against version 1, now at version 2"},
-		{"deleted", "wch-2", "deleted", &api.FacilityChange{FacilityID: "wch-2", PlannedVersion: 1, Deleted: true},
+		{"deleted", "wch-2", "deleted", &schema.FacilityChange{FacilityID: "wch-2", PlannedVersion: 1, Deleted: true},
 			"facility wch-2 has been deleted from the catalog since this plan was made against its version 1"},
 	}
 	for _, c := range cases {
@@ -408,7 +409,7 @@ func TestStoredPlanFacilityChanged(t *testing.T) {
 				return
 			}
 			var got struct {
-				FacilityChanged *api.FacilityChange `json:"facility_changed"`
+				FacilityChanged *schema.FacilityChange `json:"facility_changed"`
 			}
 			require.NoError(t, json.Unmarshal(r.body, &got))
 			require.NotNil(t, got.FacilityChanged)

@@ -16,6 +16,7 @@ import (
 
 	"scalematch/api"
 	"scalematch/facilities"
+	"scalematch/internal/app"
 )
 
 // storedPlan plans the example request file in the catalog server ts and returns
@@ -127,7 +128,7 @@ func TestEnvelopeEdgeLimits(t *testing.T) {
 		t.Run(tc.id, func(t *testing.T) {
 			f, err := facilities.DemoCatalog{}.Facility(context.Background(), tc.id)
 			require.NoError(t, err)
-			e, err := api.EnvelopeOf(&f, 0.1)
+			e, err := app.EnvelopeOf(&f, 0.1)
 			require.NoError(t, err)
 			require.Len(t, e.X, len(e.LowLimit))
 			reached := 0

@@ -15,6 +15,7 @@ import (
 	"testing"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 )
 
@@ -279,7 +280,7 @@ func checkMatrixProblem(t *testing.T, code int, ctype string, body []byte) {
 	if !strings.HasPrefix(ctype, "application/problem+json") {
 		t.Errorf("content type %q, want application/problem+json", ctype)
 	}
-	var p api.Problem
+	var p schema.Problem
 	if err := json.Unmarshal(body, &p); err != nil {
 		t.Fatal(err)
 	}
@@ -289,7 +290,7 @@ func checkMatrixProblem(t *testing.T, code int, ctype string, body []byte) {
 }
 
 // checkMatrixPlan checks one plan answer and returns it decoded.
-func checkMatrixPlan(t *testing.T, f matrixFacility, body []byte) *api.PlanResponse {
+func checkMatrixPlan(t *testing.T, f matrixFacility, body []byte) *schema.PlanResponse {
 	t.Helper()
 	var raw map[string]json.RawMessage
 	if err := json.Unmarshal(body, &raw); err != nil {
@@ -301,7 +302,7 @@ func checkMatrixPlan(t *testing.T, f matrixFacility, body []byte) *api.PlanRespo
 			t.Errorf("plan has no %q", k)
 		}
 	}
-	var plan api.PlanResponse
+	var plan schema.PlanResponse
 	if err := json.Unmarshal(body, &plan); err != nil {
 		t.Fatal(err)
 	}
@@ -354,7 +355,7 @@ func checkMatrixPlan(t *testing.T, f matrixFacility, body []byte) *api.PlanRespo
 
 // checkMatrixLoads asks POST /v1/loads at the plan's scale and test state, with the
 // plan's balance named and with none.
-func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f matrixFacility, plan *api.PlanResponse) {
+func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f matrixFacility, plan *schema.PlanResponse) {
 	t.Helper()
 	speed := fmt.Sprintf(`"mach": %s`, strconv.FormatFloat(plan.Test.Mach, 'g', -1, 64))
 	if f.water {
@@ -385,7 +386,7 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 		if !bytes.HasPrefix(bytes.TrimSpace(raw.Loads), []byte("{")) {
 			t.Fatalf("loads with balance_id is not one object: %s", raw.Loads)
 		}
-		var out api.LoadsResponse
+		var out schema.LoadsResponse
 		if err := json.Unmarshal(b, &out); err != nil {
 			t.Fatal(err)
 		}
@@ -437,7 +438,7 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 		if !bytes.HasPrefix(bytes.TrimSpace(raw.Loads), []byte("[")) {
 			t.Fatalf("loads without balance_id is not a list: %s", raw.Loads)
 		}
-		var out api.LoadsResponse
+		var out schema.LoadsResponse
 		if err := json.Unmarshal(b, &out); err != nil {
 			t.Fatal(err)
 		}
@@ -511,7 +512,7 @@ func TestDemoMatrixInfeasible(t *testing.T) {
 						t.Fatalf("non-finite number at %s: %s", p, body)
 					}
 					checkMatrixProblem(t, code, ctype, body)
-					var p api.Problem
+					var p schema.Problem
 					if err := json.Unmarshal(body, &p); err != nil {
 						t.Fatal(err)
 					}

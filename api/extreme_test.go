@@ -17,6 +17,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 )
 
@@ -169,7 +170,7 @@ func checkNeverBroken(t *testing.T, what string, rec *httptest.ResponseRecorder)
 			t.Errorf("%s: 200 without a JSON body (%d bytes): %v", what, rec.Body.Len(), err)
 		}
 	case http.StatusBadRequest, http.StatusUnprocessableEntity:
-		var p api.Problem
+		var p schema.Problem
 		if err := json.Unmarshal(rec.Body.Bytes(), &p); err != nil {
 			t.Errorf("%s: %d without a problem: %s", what, rec.Code, rec.Body)
 			return
@@ -219,7 +220,7 @@ func TestOverflowReproducers(t *testing.T) {
 			rec := httptest.NewRecorder()
 			h.ServeHTTP(rec, jsonRequest(tc.path, string(b)))
 			require.Equal(t, http.StatusBadRequest, rec.Code, "%s", rec.Body)
-			var p api.Problem
+			var p schema.Problem
 			require.NoError(t, json.Unmarshal(rec.Body.Bytes(), &p))
 			var named []string
 			for _, e := range p.Errors {
@@ -260,7 +261,7 @@ func TestStoredRecordOutOfRange(t *testing.T) {
 			rec := httptest.NewRecorder()
 			s.Handler().ServeHTTP(rec, jsonRequest(path, body))
 			require.Equal(t, http.StatusUnprocessableEntity, rec.Code, "%s", rec.Body)
-			var p api.Problem
+			var p schema.Problem
 			require.NoError(t, json.Unmarshal(rec.Body.Bytes(), &p))
 			require.NotEmpty(t, p.Errors)
 			assert.Equal(t, "facility.operations.seconds_per_point", p.Errors[0].Field)

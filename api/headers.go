@@ -12,7 +12,10 @@ import (
 
 	"github.com/gin-gonic/gin"
 
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/check"
+	"scalematch/internal/unitjson"
 )
 
 // Cache-Control values.
@@ -79,9 +82,9 @@ func checkQuery(raw string, allowed []string) error {
 	}
 	q, err := url.ParseQuery(raw)
 	if err != nil {
-		return fieldError("", "the query string does not parse: "+err.Error())
+		return unitjson.BodyError("the query string does not parse: " + err.Error())
 	}
-	var fe fieldErrors
+	var fe check.Fields
 	keys := make([]string, 0, len(q))
 	for k := range q {
 		keys = append(keys, k)
@@ -91,14 +94,14 @@ func checkQuery(raw string, allowed []string) error {
 		name := truncate(k, maxEchoField)
 		switch {
 		case !slices.Contains(allowed, k) && len(allowed) == 0:
-			fe.add(name, "unknown query parameter: this route takes none")
+			fe.Add(name, "unknown query parameter: this route takes none")
 		case !slices.Contains(allowed, k):
-			fe.add(name, "unknown query parameter: want one of %s", strings.Join(allowed, ", "))
+			fe.Add(name, "unknown query parameter: want one of %s", strings.Join(allowed, ", "))
 		case len(q[k]) > 1:
-			fe.add(name, "given %d times: give it once", len(q[k]))
+			fe.Add(name, "given %d times: give it once", len(q[k]))
 		}
 	}
-	return fe.err()
+	return fe.Err()
 }
 
 // checkJSONBody refuses a request body that is not plain JSON: a Content-Type
@@ -151,7 +154,7 @@ func utf8Start(b byte) bool { return b&0xC0 != 0x80 }
 
 // truncateProblem shortens every field path and message of p, and its detail, so
 // that an answer never echoes an unbounded part of the request.
-func truncateProblem(p *Problem) {
+func truncateProblem(p *schema.Problem) {
 	p.Detail = truncate(p.Detail, maxEchoMessage)
 	for i := range p.Errors {
 		p.Errors[i] = facilities.FieldError{Field: truncate(p.Errors[i].Field, maxEchoField), Message: truncate(p.Errors[i].Message, maxEchoMessage)}

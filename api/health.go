@@ -65,7 +65,7 @@ func (s *Server) healthz(c *gin.Context) {
 //	@Tags			operations
 //	@Produce		json
 //	@Success		200	{object}	Health
-//	@Failure		503	{object}	Problem
+//	@Failure		503	{object}	schema.Problem
 //	@Router			/readyz [get]
 func (s *Server) readyz(c *gin.Context) {
 	ctx, cancel := context.WithTimeout(c.Request.Context(), readyTimeout)

@@ -11,7 +11,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 )
 
@@ -50,7 +50,7 @@ func TestMarineExamplesPlan(t *testing.T) {
 			for _, k := range []string{"mach", "true_airspeed", "calibrated_airspeed", "equivalent_airspeed"} {
 				assert.NotContains(t, raw.Flight, k)
 			}
-			var plan api.PlanResponse
+			var plan schema.PlanResponse
 			require.NoError(t, json.Unmarshal(b, &plan))
 			require.NotNil(t, plan.Flight.Marine)
 			require.NotNil(t, plan.Test.Cavitation)

@@ -16,6 +16,7 @@ import (
 	"github.com/gin-gonic/gin"
 	"github.com/prometheus/client_golang/prometheus"
 
+	"scalematch/api/schema"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 )
@@ -71,7 +72,7 @@ func newInternal(t *testing.T) (*Server, *httptest.Server, *syncBuffer) {
 	return s, ts, logs
 }
 
-func get(t *testing.T, ts *httptest.Server, method, path string, body io.Reader) (*http.Response, Problem) {
+func get(t *testing.T, ts *httptest.Server, method, path string, body io.Reader) (*http.Response, schema.Problem) {
 	t.Helper()
 	req, _ := http.NewRequest(method, ts.URL+path, body)
 	if body != nil {
@@ -84,8 +85,8 @@ func get(t *testing.T, ts *httptest.Server, method, path string, body io.Reader)
 	}
 	defer resp.Body.Close()
 	b, _ := io.ReadAll(resp.Body)
-	var p Problem
-	if resp.Header.Get("Content-Type") == ContentTypeProblem {
+	var p schema.Problem
+	if resp.Header.Get("Content-Type") == schema.ContentTypeProblem {
 		if err := json.Unmarshal(b, &p); err != nil {
 			t.Fatalf("%s: %v", b, err)
 		}
@@ -198,7 +199,7 @@ func TestProblemMapping(t *testing.T) {
 			if w.Code != tc.status {
 				t.Errorf("status %d, want %d", w.Code, tc.status)
 			}
-			var p Problem
+			var p schema.Problem
 			if err := json.Unmarshal(w.Body.Bytes(), &p); err != nil {
 				t.Fatal(err)
 			}

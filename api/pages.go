@@ -7,7 +7,9 @@ import (
 
 	"github.com/gin-gonic/gin"
 
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/app"
 )
 
 // Handle serves h for method and path (gin syntax, e.g. "/plans/:id") behind the
@@ -20,8 +22,14 @@ func (s *Server) Handle(method, path string, h http.Handler) {
 
 // Loads is POST /v1/loads without HTTP: the same composition over the service's
 // catalog.
-func (s *Server) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse, error) {
+func (s *Server) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.LoadsResponse, error) {
 	return s.planner().Loads(ctx, req)
+}
+
+// StoredPlan is GET /v1/plans/{id} without HTTP: the stored answer and the
+// facility version it used (app.StoredPlan).
+func (s *Server) StoredPlan(ctx context.Context, id string) (*schema.PlanResponse, *facilities.Facility, error) {
+	return app.StoredPlan(ctx, s.cfg.Catalog, id)
 }
 
 // Facilities lists the catalog's current facilities, as GET /v1/facilities.
@@ -40,7 +48,7 @@ func (s *Server) Versions(ctx context.Context, id string) ([]facilities.Change, 
 }
 
 // StatusOf returns the HTTP status the service answers err with (the table in
-// Problem's doc comment), for callers that write their own body, such as the
+// schema.Problem's doc comment), for callers that write their own body, such as the
 // HTML pages: 500 for an error that is no domain error.
 func StatusOf(err error) int {
 	var de *facilities.Error

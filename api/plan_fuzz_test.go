@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 )
 
 // FuzzPlanEndpoint posts arbitrary bodies to POST /v1/plans through the whole
@@ -39,10 +40,10 @@ func FuzzPlanEndpoint(f *testing.F) {
 		if rec.Code == http.StatusOK {
 			return
 		}
-		if ct := rec.Header().Get("Content-Type"); ct != api.ContentTypeProblem {
+		if ct := rec.Header().Get("Content-Type"); ct != schema.ContentTypeProblem {
 			t.Fatalf("status %d with Content-Type %q", rec.Code, ct)
 		}
-		var p api.Problem
+		var p schema.Problem
 		if err := json.Unmarshal(rec.Body.Bytes(), &p); err != nil || p.Status != rec.Code || p.Type == "" {
 			t.Fatalf("status %d: not a problem: %s (%v)", rec.Code, rec.Body, err)
 		}

@@ -18,6 +18,7 @@ import (
 	"scalematch/api"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/app"
 )
 
 // replicas serves n services over one seeded SQLite file, as replicas over one
@@ -142,10 +143,10 @@ func TestFacilityRecheck(t *testing.T) {
 	if _, h := planOK(t, a, j16Plan); h.FacilityVersion != 2 {
 		t.Errorf("the replica that made the change planned with version %d, want 2", h.FacilityVersion)
 	}
-	if _, h := planOK(t, b, j16Plan); h.FacilityVersion != 1 && time.Since(asked) < api.DefaultFacilityRecheck {
+	if _, h := planOK(t, b, j16Plan); h.FacilityVersion != 1 && time.Since(asked) < app.DefaultFacilityRecheck {
 		t.Errorf("the other replica planned with version %d within the recheck interval, want its cached 1", h.FacilityVersion)
 	}
-	time.Sleep(api.DefaultFacilityRecheck + 10*time.Millisecond)
+	time.Sleep(app.DefaultFacilityRecheck + 10*time.Millisecond)
 	if _, h := planOK(t, b, j16Plan); h.FacilityVersion != 2 {
 		t.Errorf("the other replica planned with version %d after the recheck interval, want 2", h.FacilityVersion)
 	}

@@ -11,8 +11,11 @@ import (
 	"testing"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/app"
+	"scalematch/internal/unitjson"
 )
 
 // benchHandler returns the full handler stack of a service over the demo catalog,
@@ -128,11 +131,11 @@ func BenchmarkPlanEndpointStore(b *testing.B) {
 // the planner, wall corrections, balance loads, schedule, Reynolds effects, id).
 // Goal: under 300 µs a plan.
 func BenchmarkPlannerPlan(b *testing.B) {
-	var req api.PlanRequest
-	if err := api.Decode([]byte(j16Plan), &req); err != nil {
+	var req schema.PlanRequest
+	if err := unitjson.Decode([]byte(j16Plan), &req); err != nil {
 		b.Fatal(err)
 	}
-	var p api.Planner
+	var p app.Planner
 	ctx := context.Background()
 	b.ReportAllocs()
 	b.ResetTimer()

@@ -14,7 +14,9 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/app"
 )
 
 // j16Plan is the Orrin J16 of the demo world (docs/demo-world.md) in tsw-1 at cruise.
@@ -181,7 +183,7 @@ func TestBatch(t *testing.T) {
 			t.Errorf("result %d: want a problem with status %d, got %+v", i, want[i], r.Error)
 		}
 	}
-	code, b = post(t, ts, "/v1/plans/batch", `{"requests": [`+strings.Repeat(`{},`, api.MaxBatch)+`{}]}`)
+	code, b = post(t, ts, "/v1/plans/batch", `{"requests": [`+strings.Repeat(`{},`, schema.MaxBatch)+`{}]}`)
 	var p problem
 	json.Unmarshal(b, &p)
 	if code != 400 || !contains(fields(p), "requests") {
@@ -387,8 +389,8 @@ func TestEnvelope(t *testing.T) {
 				return
 			}
 			// Every chart says it is an estimate and what it leaves out.
-			assert.Equal(t, api.EnvelopeCaution, resp.Header.Get(api.HeaderCaution))
-			assert.Contains(t, api.EnvelopeCaution, "leaves out the model-size limits (span, blockage) and the balance load limits")
+			assert.Equal(t, app.EnvelopeCaution, resp.Header.Get(api.HeaderCaution))
+			assert.Contains(t, app.EnvelopeCaution, "leaves out the model-size limits (span, blockage) and the balance load limits")
 			if tc.ctype == "image/svg+xml" {
 				// The footer is drawn as text, wrapped over lines.
 				assert.Contains(t, string(b), "Estimate only: the envelope is the Reynolds number within the facility")

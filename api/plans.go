@@ -6,6 +6,9 @@ import (
 	"time"
 
 	"github.com/gin-gonic/gin"
+
+	"scalematch/api/schema"
+	"scalematch/internal/app"
 )
 
 // postPlan answers POST /v1/plans.
@@ -15,12 +18,12 @@ import (
 //	@Tags			planning
 //	@Accept			json
 //	@Produce		json
-//	@Param			request	body		PlanRequest	true	"flight, article, facility or facility_id, model, installation, alpha (degrees), objective"
-//	@Success		200		{object}	PlanResponse
-//	@Failure		400		{object}	Problem	"bad input: every bad field named by its JSON path"
-//	@Failure		404		{object}	Problem	"facility_id names no facility"
-//	@Failure		413		{object}	Problem	"body too large"
-//	@Failure		422		{object}	Problem	"no plan satisfies the hard limits; limits names those that conflict"
+//	@Param			request	body		schema.PlanRequest	true	"flight, article, facility or facility_id, model, installation, alpha (degrees), objective"
+//	@Success		200		{object}	schema.PlanResponse
+//	@Failure		400		{object}	schema.Problem	"bad input: every bad field named by its JSON path"
+//	@Failure		404		{object}	schema.Problem	"facility_id names no facility"
+//	@Failure		413		{object}	schema.Problem	"body too large"
+//	@Failure		422		{object}	schema.Problem	"no plan satisfies the hard limits; limits names those that conflict"
 //	@Router			/v1/plans [post]
 func (s *Server) postPlan(c *gin.Context) {
 	p := s.planner()
@@ -30,7 +33,7 @@ func (s *Server) postPlan(c *gin.Context) {
 		ctx, done = a.ExpectPlan(ctx)
 		defer done()
 	}
-	var req PlanRequest
+	var req schema.PlanRequest
 	if !s.decodeBody(c, &req) {
 		return
 	}
@@ -50,7 +53,7 @@ type planAnnouncer interface {
 }
 
 // timedPlan plans req, stores it, and records the planner's time in the metrics.
-func (s *Server) timedPlan(ctx context.Context, p *Planner, req *PlanRequest) ([]byte, error) {
+func (s *Server) timedPlan(ctx context.Context, p *app.Planner, req *schema.PlanRequest) ([]byte, error) {
 	t := time.Now()
 	body, err := p.PlanJSON(ctx, req)
 	s.observePlanner(time.Since(t))

@@ -10,58 +10,12 @@ import (
 
 	"github.com/gin-gonic/gin"
 
+	"scalematch/api/schema"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 )
 
-// ContentTypeProblem is the media type of error responses (RFC 9457).
-const ContentTypeProblem = "application/problem+json"
-
-// Problem is an error response: RFC 9457 problem details with two extensions,
-// Errors (every bad field by its JSON path) and RequestID.
-//
-// Type is a relative URI, "/problems/" followed by one of these kinds, each always
-// with the same status and title:
-//
-//	invalid-input          400  the request is malformed or a field is out of range
-//	unauthorized           401  a write needs a bearer token (WWW-Authenticate: Bearer)
-//	forbidden              403  the token may not do this, or writes are switched off
-//	not-found              404  no such facility, plan or route
-//	method-not-allowed     405  the route exists but not for this method
-//	not-acceptable         406  Accept names no format a chart is drawn in
-//	conflict               409  the id exists already
-//	request-timeout        408  the request body did not arrive in time
-//	precondition-failed    412  If-Match names a version that is no longer current
-//	body-too-large         413  the request body is larger than BodyLimit
-//	unsupported-media-type 415  the body is not JSON (Content-Type), or is encoded
-//	unprocessable          422  the input is valid but no plan satisfies the hard limits
-//	precondition-required  428  a change needs If-Match
-//	internal               500  a fault of the service; the log has the details
-//	unavailable            503  the store does not answer, or the request ran out of time
-//	                            (Retry-After: seconds to wait)
-//	insufficient-storage   507  the store's disk is full; the service reports itself
-//	                            unready (/readyz) until a write succeeds
-type Problem struct {
-	// Type identifies the kind of problem: "/problems/invalid-input" and so on.
-	Type string `json:"type" example:"/problems/invalid-input"`
-	// Title is the kind's short, fixed summary.
-	Title string `json:"title" example:"Invalid input"`
-	// Status is the HTTP status code.
-	Status int `json:"status" example:"400"`
-	// Detail explains this occurrence.
-	Detail string `json:"detail,omitempty" example:"2 fields are invalid"`
-	// Instance is the request path of this occurrence.
-	Instance string `json:"instance,omitempty" example:"/v1/plans"`
-	// Errors names every bad field by its JSON path ("flight.altitude",
-	// "balances[1].limits.normal"); "" names the body as a whole.
-	Errors []facilities.FieldError `json:"errors,omitempty"`
-	// Limits names the limits that conflict, for unprocessable.
-	Limits []string `json:"limits,omitempty"`
-	// RequestID is the request's X-Request-ID, to find the request in the log.
-	RequestID string `json:"request_id,omitempty" example:"3f2a9c0e5b7d41e8a6c2d9f01b3e7a54"`
-}
-
-// problemKind is one row of the table in Problem's doc comment.
+// problemKind is one row of the table in schema.Problem's doc comment.
 type problemKind struct {
 	status int
 	slug   string
@@ -100,8 +54,8 @@ var codeKinds = map[facilities.Code]problemKind{
 	facilities.CodePreconditionRequired: kindPreconditionRequired,
 }
 
-func (k problemKind) problem(c *gin.Context, detail string) Problem {
-	return Problem{
+func (k problemKind) problem(c *gin.Context, detail string) schema.Problem {
+	return schema.Problem{
 		Type:      "/problems/" + k.slug,
 		Title:     k.title,
 		Status:    k.status,
@@ -113,7 +67,7 @@ func (k problemKind) problem(c *gin.Context, detail string) Problem {
 
 // problem maps err to the problem the client sees:
 //
-//	*facilities.Error                      by its Code (table in Problem's comment)
+//	*facilities.Error                      by its Code (table in schema.Problem's comment)
 //	atmosphere.ErrRange                    400
 //	*http.MaxBytesError                    413
 //	notAcceptableError                     406
@@ -125,7 +79,7 @@ func (k problemKind) problem(c *gin.Context, detail string) Problem {
 //
 // Handlers that embed a problem in a larger answer (the plan batch) call it directly;
 // the others call fail.
-func (s *Server) problem(c *gin.Context, err error) Problem {
+func (s *Server) problem(c *gin.Context, err error) schema.Problem {
 	if cl, ok := s.cfg.Catalog.(facilities.ErrorClassifier); ok {
 		err = cl.ClassifyError(err)
 	}
@@ -144,7 +98,7 @@ func (s *Server) problem(c *gin.Context, err error) Problem {
 			detail = de.Error()
 		}
 		if detail == "" {
-			detail = countFields(len(de.Fields))
+			detail = facilities.InvalidCount(len(de.Fields))
 		}
 		p := k.problem(c, detail)
 		p.Errors = de.Fields
@@ -174,13 +128,6 @@ func (s *Server) problem(c *gin.Context, err error) Problem {
 	return kindInternal.problem(c, "internal error")
 }
 
-func countFields(n int) string {
-	if n == 1 {
-		return "1 field is invalid"
-	}
-	return fmt.Sprintf("%d fields are invalid", n)
-}
-
 // fail answers the request with the problem for err and stops the handler chain.
 // A client that has gone (errClientGone, or the request's context cancelled) gets
 // no answer: the request is logged and counted with StatusClientClosed.
@@ -194,7 +141,7 @@ func (s *Server) fail(c *gin.Context, err error) {
 }
 
 // writeProblem writes p as application/problem+json and stops the handler chain.
-func (s *Server) writeProblem(c *gin.Context, p Problem) {
+func (s *Server) writeProblem(c *gin.Context, p schema.Problem) {
 	switch p.Status {
 	case http.StatusUnauthorized:
 		c.Header("WWW-Authenticate", `Bearer realm="scalematch"`)
@@ -225,7 +172,7 @@ func (s *Server) onlyPost(c *gin.Context) {
 }
 
 // problemRender writes a Problem as application/problem+json.
-type problemRender struct{ p Problem }
+type problemRender struct{ p schema.Problem }
 
 func (r problemRender) Render(w http.ResponseWriter) error {
 	r.WriteContentType(w)
@@ -233,5 +180,5 @@ func (r problemRender) Render(w http.ResponseWriter) error {
 }
 
 func (r problemRender) WriteContentType(w http.ResponseWriter) {
-	w.Header().Set("Content-Type", ContentTypeProblem)
+	w.Header().Set("Content-Type", schema.ContentTypeProblem)
 }

@@ -3,16 +3,14 @@ package api
 import (
 	"encoding/json"
 	"errors"
-	"fmt"
-	"math"
+	"io"
 	"net/http"
-	"reflect"
 	"strconv"
-	"strings"
 
 	"github.com/gin-gonic/gin"
 
-	"scalematch/facilities"
+	"scalematch/internal/app"
+	"scalematch/internal/unitjson"
 )
 
 // Every answer with a body goes through answer or answerBytes: the body is
@@ -28,7 +26,7 @@ func (s *Server) answer(c *gin.Context, status int, v any) {
 	if err != nil {
 		var uve *json.UnsupportedValueError
 		if errors.As(err, &uve) {
-			err = checkFinite(v, nil)
+			err = app.CheckFinite(v, nil)
 		}
 		s.fail(c, err)
 		return
@@ -79,78 +77,31 @@ func (s *Server) requireBody(c *gin.Context) {
 	s.fail(c, errNoAnswer)
 }
 
-// checkFinite returns nil when every number in v (a response, walked by its JSON
-// field names) is finite, and otherwise a CodeUnprocessable error: the inputs lie
-// inside their documented ranges but the models still overflow. It names the
-// first non-finite result by its JSON path and the input that produced it, which
-// input maps from the result's top-level field ("test" → "test"); nil input or an
-// unmapped field names the body as a whole ("").
-func checkFinite(v any, input func(top string) string) error {
-	path, ok := nonFinite(reflect.ValueOf(v), "")
-	if ok {
-		return nil
+// decodeBody reads the request body (at most BodyLimit bytes) into dst with unitjson.Decode.
+// On failure it answers the request with the problem (400 for bad input, 413 for a
+// body too large) and returns false; the handler then just returns.
+func (s *Server) decodeBody(c *gin.Context, dst any) bool {
+	if c.Request.Body == nil {
+		s.fail(c, unitjson.BodyError("the body is empty: want a JSON object"))
+		return false
 	}
-	field := ""
-	if input != nil {
-		top, _, _ := strings.Cut(path, ".")
-		top, _, _ = strings.Cut(top, "[")
-		field = input(top)
+	var body []byte
+	var err error
+	if n := c.Request.ContentLength; n > 0 && n <= BodyLimit {
+		// One allocation of the declared size (net/http's body reader stops there
+		// and fails a shorter body with io.ErrUnexpectedEOF, as io.ReadAll would).
+		body = make([]byte, n)
+		_, err = io.ReadFull(c.Request.Body, body)
+	} else {
+		body, err = io.ReadAll(c.Request.Body)
 	}
-	return &facilities.Error{Code: facilities.CodeUnprocessable,
-		Message: fmt.Sprintf("the result %s is not a finite number: the inputs are inside their ranges but too extreme together for the models", path),
-		Fields:  []facilities.FieldError{{Field: field, Message: fmt.Sprintf("makes %s overflow; bring it nearer to the usual range", path)}},
-		Limits:  []string{"finite_result"}}
-}
-
-// nonFinite walks v and returns the JSON path of its first NaN or infinite float,
-// and false; true when there is none.
-func nonFinite(v reflect.Value, path string) (string, bool) {
-	switch v.Kind() {
-	case reflect.Float32, reflect.Float64:
-		f := v.Float()
-		if math.IsNaN(f) || math.IsInf(f, 0) {
-			return path, false
-		}
-	case reflect.Pointer, reflect.Interface:
-		if !v.IsNil() {
-			return nonFinite(v.Elem(), path)
-		}
-	case reflect.Struct:
-		t := v.Type()
-		for i := range t.NumField() {
-			sf := t.Field(i)
-			if !sf.IsExported() {
-				continue
-			}
-			tag := sf.Tag.Get("json")
-			if tag == "-" {
-				continue
-			}
-			name, _, _ := strings.Cut(tag, ",")
-			p := path
-			if !sf.Anonymous || name != "" {
-				if name == "" {
-					name = sf.Name
-				}
-				p = joinPath(path, name)
-			}
-			if q, ok := nonFinite(v.Field(i), p); !ok {
-				return q, false
-			}
-		}
-	case reflect.Slice, reflect.Array:
-		for i := range v.Len() {
-			if q, ok := nonFinite(v.Index(i), path+"["+strconv.Itoa(i)+"]"); !ok {
-				return q, false
-			}
-		}
-	case reflect.Map:
-		iter := v.MapRange()
-		for iter.Next() {
-			if q, ok := nonFinite(iter.Value(), joinPath(path, fmt.Sprint(iter.Key()))); !ok {
-				return q, false
-			}
-		}
+	err = bodyReadError(err, c.Request.ContentLength)
+	if err == nil {
+		err = unitjson.Decode(body, dst)
 	}
-	return "", true
+	if err != nil {
+		s.fail(c, err)
+		return false
+	}
+	return true
 }

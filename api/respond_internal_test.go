@@ -12,8 +12,6 @@ import (
 	"github.com/prometheus/client_golang/prometheus"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
-
-	"scalematch/facilities"
 )
 
 // TestNoEmptyOK: a handler whose answer cannot be encoded, or that writes
@@ -51,61 +49,6 @@ func TestNoEmptyOK(t *testing.T) {
 			s.Handler().ServeHTTP(rec, httptest.NewRequest(http.MethodGet, tc.path, nil))
 			assert.Equal(t, tc.status, rec.Code)
 			assert.Contains(t, rec.Body.String(), `"type":"`+tc.kind+`"`)
-		})
-	}
-}
-
-func TestCheckFinite(t *testing.T) {
-	type inner struct {
-		Values []float64 `json:"values"`
-	}
-	type resp struct {
-		Mach  float64  `json:"mach"`
-		Loads *inner   `json:"loads"`
-		Other *float64 `json:"other,omitempty"`
-	}
-	inf := math.Inf(-1)
-	cases := []struct {
-		name  string
-		v     resp
-		path  string // "" when finite
-		input string
-	}{
-		{"finite", resp{Mach: 0.8, Loads: &inner{Values: []float64{1, 2}}}, "", ""},
-		{"NaN at the top", resp{Mach: math.NaN()}, "mach", "test"},
-		{"deep in a list", resp{Loads: &inner{Values: []float64{1, math.Inf(1)}}}, "loads.values[1]", "installation"},
-		{"behind a pointer", resp{Other: &inf}, "other", "test"},
-	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			err := checkFinite(tc.v, loadsInputs)
-			if tc.path == "" {
-				require.NoError(t, err)
-				return
-			}
-			var de *facilities.Error
-			require.ErrorAs(t, err, &de)
-			assert.Equal(t, facilities.CodeUnprocessable, de.Code)
-			assert.Contains(t, de.Message, tc.path)
-			require.Len(t, de.Fields, 1)
-			assert.Equal(t, tc.input, de.Fields[0].Field)
-		})
-	}
-}
-
-func TestCollapseWarnings(t *testing.T) {
-	cases := []struct {
-		name string
-		in   []string
-		want []string
-	}{
-		{"none", nil, nil},
-		{"distinct stay", []string{"a", "b"}, []string{"a", "b"}},
-		{"repeats become one with a count", []string{"a", "b", "a", "a"}, []string{"a (given 3 times)", "b"}},
-	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			assert.Equal(t, tc.want, collapseWarnings(tc.in))
 		})
 	}
 }

@@ -13,6 +13,7 @@ import (
 	"github.com/prometheus/client_golang/prometheus"
 
 	"scalematch/facilities"
+	"scalematch/internal/app"
 )
 
 // @title						scalematch
@@ -60,7 +61,7 @@ type Config struct {
 	// it asks the catalog whether its version is still current: a change made
 	// through another replica is planned with after at most this long (a change
 	// through this service at once), and every plan records the facility version it
-	// used. 0: DefaultFacilityRecheck; negative: ask on every plan.
+	// used. 0: app.DefaultFacilityRecheck; negative: ask on every plan.
 	FacilityRecheck time.Duration
 }
 
@@ -70,10 +71,10 @@ type Server struct {
 	engine  *gin.Engine
 	log     *slog.Logger
 	metrics *metrics
-	// facilities and plans keep decoded facility versions and stored plan bodies
-	// between requests (plancache.go).
-	facilities *facilityCache
-	plans      *storedPlans
+	// plans is the composition over cfg.Catalog, with the caches of decoded
+	// facility versions and stored plan bodies it keeps between requests; nil for
+	// the read-only demo catalog (planner).
+	plans *app.Planner
 	// store remembers a full disk, for /readyz (faults.go).
 	store storeState
 	// draining is set when a shutdown has begun.
@@ -104,8 +105,10 @@ func New(cfg Config) (*Server, error) {
 	e.RedirectTrailingSlash = false
 	e.RedirectFixedPath = false
 	e.ContextWithFallback = true
-	s := &Server{cfg: cfg, engine: e, log: cfg.Logger, metrics: m,
-		facilities: newFacilityCache(recheck(cfg.FacilityRecheck)), plans: newStoredPlans(storedPlanBytes)}
+	s := &Server{cfg: cfg, engine: e, log: cfg.Logger, metrics: m}
+	if _, demo := cfg.Catalog.(facilities.DemoCatalog); !demo {
+		s.plans = app.NewPlanner(cfg.Catalog, cfg.FacilityRecheck)
+	}
 	e.Use(s.requestID, s.observe, s.recoverPanic, s.requireBody, s.headers, s.limitBody)
 	e.NoRoute(s.noRoute)
 	e.NoMethod(s.noMethod)
@@ -113,14 +116,6 @@ func New(cfg Config) (*Server, error) {
 	s.registerDocs()
 	s.routes()
 	return s, nil
-}
-
-// recheck returns the facility recheck interval Config.FacilityRecheck asks for.
-func recheck(d time.Duration) time.Duration {
-	if d == 0 {
-		return DefaultFacilityRecheck
-	}
-	return d
 }
 
 // Handler returns the service as an http.Handler.

@@ -17,6 +17,7 @@ import (
 	"github.com/prometheus/client_golang/prometheus"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 )
 
@@ -100,12 +101,12 @@ func (ts testServer) do(t *testing.T, method, path string, body io.Reader, heade
 	return resp, b
 }
 
-func decodeProblem(t *testing.T, resp *http.Response, body []byte) api.Problem {
+func decodeProblem(t *testing.T, resp *http.Response, body []byte) schema.Problem {
 	t.Helper()
-	if ct := resp.Header.Get("Content-Type"); ct != api.ContentTypeProblem {
-		t.Errorf("Content-Type %q, want %q", ct, api.ContentTypeProblem)
+	if ct := resp.Header.Get("Content-Type"); ct != schema.ContentTypeProblem {
+		t.Errorf("Content-Type %q, want %q", ct, schema.ContentTypeProblem)
 	}
-	var p api.Problem
+	var p schema.Problem
 	if err := json.Unmarshal(body, &p); err != nil {
 		t.Fatalf("problem body %s: %v", body, err)
 	}

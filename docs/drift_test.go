@@ -325,8 +325,8 @@ func TestDocFields(t *testing.T) {
 	}
 	// Requests and answers, the facility record, and the load report (loads is a
 	// LoadsValue, an object or a list of reports, in the loads answer).
-	roots := []string{"api.PlanRequest", "api.PlanResponse", "api.LoadsRequest", "api.LoadsResponse",
-		"api.ConditionsRequest", "api.ConditionsResponse", "api.GroupsRequest", "api.GroupsResponse",
+	roots := []string{"schema.PlanRequest", "schema.PlanResponse", "schema.LoadsRequest", "schema.LoadsResponse",
+		"schema.ConditionsRequest", "schema.ConditionsResponse", "schema.GroupsRequest", "schema.GroupsResponse",
 		"facilities.Facility", "facilities.LoadReport"}
 	fileExt := map[string]bool{"db": true, "tsv": true, "py": true, "sh": true, "md": true, "json": true, "go": true, "svg": true, "yaml": true, "png": true}
 	checked := 0

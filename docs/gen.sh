@@ -12,7 +12,7 @@ if [ "${1:-}" = "--check" ]; then
   out=$(mktemp -d)
   trap 'rm -rf "$out"' EXIT
 fi
-"$swag" init --quiet --generalInfo api/server.go --dir . --output "$out" \
+"$swag" init --quiet --generalInfo server.go --dir ./api --output "$out" \
   --outputTypes json,yaml --parseDependencyLevel 1 --parseInternal --requiredByDefault=false >&2
 if [ "$out" != docs ]; then
   status=0

@@ -121,3 +121,12 @@ func StaleVersion(id string, current, ifMatch int) error {
 	return &Error{Code: CodePreconditionFailed,
 		Message: fmt.Sprintf("facility %q is at version %d, not %d: someone changed it; read it again and reapply your change", id, current, ifMatch)}
 }
+
+// InvalidCount is the message of a CodeInvalid error that lists n bad fields:
+// "1 field is invalid", "2 fields are invalid".
+func InvalidCount(n int) string {
+	if n == 1 {
+		return "1 field is invalid"
+	}
+	return fmt.Sprintf("%d fields are invalid", n)
+}

@@ -15,7 +15,7 @@ import (
 	"strconv"
 	"strings"
 
-	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 )
@@ -72,7 +72,7 @@ func New(baseURL string, opts ...Option) (*Client, error) {
 // the error of every method when the service answers with one. Status is the HTTP
 // status; Errors names the bad fields by JSON path; Limits the conflicting limits
 // of an infeasible plan.
-type Problem api.Problem
+type Problem schema.Problem
 
 // Error reports the status, title and detail, then every bad field.
 func (p *Problem) Error() string {
@@ -96,8 +96,8 @@ func (p *Problem) Error() string {
 }
 
 // Plan plans one test (POST /v1/plans).
-func (c *Client) Plan(ctx context.Context, req *api.PlanRequest) (*api.PlanResponse, error) {
-	var out api.PlanResponse
+func (c *Client) Plan(ctx context.Context, req *schema.PlanRequest) (*schema.PlanResponse, error) {
+	var out schema.PlanResponse
 	if err := c.do(ctx, http.MethodPost, "/v1/plans", nil, req, &out); err != nil {
 		return nil, err
 	}
@@ -106,17 +106,17 @@ func (c *Client) Plan(ctx context.Context, req *api.PlanRequest) (*api.PlanRespo
 
 // PlanBatch plans many tests in one call (POST /v1/plans/batch); the results are
 // in the order of reqs, each either a plan or a problem.
-func (c *Client) PlanBatch(ctx context.Context, reqs []api.PlanRequest) ([]api.BatchResult, error) {
-	var out api.BatchResponse
-	if err := c.do(ctx, http.MethodPost, "/v1/plans/batch", nil, api.BatchRequest{Requests: reqs}, &out); err != nil {
+func (c *Client) PlanBatch(ctx context.Context, reqs []schema.PlanRequest) ([]schema.BatchResult, error) {
+	var out schema.BatchResponse
+	if err := c.do(ctx, http.MethodPost, "/v1/plans/batch", nil, schema.BatchRequest{Requests: reqs}, &out); err != nil {
 		return nil, err
 	}
 	return out.Results, nil
 }
 
 // StoredPlan returns a stored plan (GET /v1/plans/{id}) exactly as first returned.
-func (c *Client) StoredPlan(ctx context.Context, id string) (*api.PlanResponse, error) {
-	var out api.PlanResponse
+func (c *Client) StoredPlan(ctx context.Context, id string) (*schema.PlanResponse, error) {
+	var out schema.PlanResponse
 	if err := c.do(ctx, http.MethodGet, "/v1/plans/"+url.PathEscape(id), nil, nil, &out); err != nil {
 		return nil, err
 	}
@@ -124,8 +124,8 @@ func (c *Client) StoredPlan(ctx context.Context, id string) (*api.PlanResponse, 
 }
 
 // Loads computes the balance loads at given test settings (POST /v1/loads).
-func (c *Client) Loads(ctx context.Context, req *api.LoadsRequest) (*api.LoadsResponse, error) {
-	var out api.LoadsResponse
+func (c *Client) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.LoadsResponse, error) {
+	var out schema.LoadsResponse
 	if err := c.do(ctx, http.MethodPost, "/v1/loads", nil, req, &out); err != nil {
 		return nil, err
 	}
@@ -134,8 +134,8 @@ func (c *Client) Loads(ctx context.Context, req *api.LoadsRequest) (*api.LoadsRe
 
 // Conditions computes a facility's test-section state at given settings
 // (POST /v1/conditions).
-func (c *Client) Conditions(ctx context.Context, req *api.ConditionsRequest) (*api.ConditionsResponse, error) {
-	var out api.ConditionsResponse
+func (c *Client) Conditions(ctx context.Context, req *schema.ConditionsRequest) (*schema.ConditionsResponse, error) {
+	var out schema.ConditionsResponse
 	if err := c.do(ctx, http.MethodPost, "/v1/conditions", nil, req, &out); err != nil {
 		return nil, err
 	}
@@ -171,8 +171,8 @@ func (c *Client) Atmosphere(ctx context.Context, q AtmosphereQuery) (*atmosphere
 }
 
 // Groups returns the dimensionless groups of a list of variables (POST /v1/groups).
-func (c *Client) Groups(ctx context.Context, req *api.GroupsRequest) (*api.GroupsResponse, error) {
-	var out api.GroupsResponse
+func (c *Client) Groups(ctx context.Context, req *schema.GroupsRequest) (*schema.GroupsResponse, error) {
+	var out schema.GroupsResponse
 	if err := c.do(ctx, http.MethodPost, "/v1/groups", nil, req, &out); err != nil {
 		return nil, err
 	}
@@ -289,7 +289,7 @@ func (c *Client) send(ctx context.Context, method, path string, q url.Values, bo
 func problemOf(resp *http.Response, body []byte) error {
 	p := &Problem{Status: resp.StatusCode, Title: http.StatusText(resp.StatusCode)}
 	mt, _, _ := mime.ParseMediaType(resp.Header.Get("Content-Type"))
-	if mt == api.ContentTypeProblem || mt == "application/json" {
+	if mt == schema.ContentTypeProblem || mt == "application/json" {
 		if err := json.Unmarshal(body, p); err == nil {
 			if p.Status == 0 {
 				p.Status = resp.StatusCode

@@ -15,8 +15,10 @@ import (
 
 	"scalematch/api"
 	"scalematch/api/client"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
 
@@ -60,10 +62,10 @@ func newClient(t *testing.T) *client.Client {
 }
 
 // planRequest decodes a plan request as the service does, units and all.
-func planRequest(t *testing.T, body string) *api.PlanRequest {
+func planRequest(t *testing.T, body string) *schema.PlanRequest {
 	t.Helper()
-	var req api.PlanRequest
-	if err := api.Decode([]byte(body), &req); err != nil {
+	var req schema.PlanRequest
+	if err := unitjson.Decode([]byte(body), &req); err != nil {
 		t.Fatal(err)
 	}
 	return &req
@@ -112,7 +114,7 @@ func TestPlanBatch(t *testing.T) {
 	c := newClient(t)
 	good := planRequest(t, j16Plan)
 	bad := planRequest(t, strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1))
-	res, err := c.PlanBatch(context.Background(), []api.PlanRequest{*good, *bad, *good})
+	res, err := c.PlanBatch(context.Background(), []schema.PlanRequest{*good, *bad, *good})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -136,12 +138,12 @@ func TestLoads(t *testing.T) {
 	c := newClient(t)
 	scale := 1.0 / 30
 	mach, p0, t0 := 0.8, 150000.0, 310.0
-	req := api.LoadsRequest{
+	req := schema.LoadsRequest{
 		Article:    planRequest(t, j16Plan).Article,
 		FacilityID: "tsw-1",
-		Model:      api.LoadsModel{Scale: &scale},
+		Model:      schema.LoadsModel{Scale: &scale},
 		Alpha:      similarity.Sweep{From: -4, To: 16, Step: 2},
-		Test:       api.TestSettings{Mach: &mach, StagnationPressure: &p0, StagnationTemperature: &t0},
+		Test:       schema.TestSettings{Mach: &mach, StagnationPressure: &p0, StagnationTemperature: &t0},
 	}
 	cases := []struct {
 		name    string
@@ -187,8 +189,8 @@ func TestLoads(t *testing.T) {
 func TestConditions(t *testing.T) {
 	c := newClient(t)
 	mach, p0, t0 := 0.8, 150000.0, 310.0
-	out, err := c.Conditions(context.Background(), &api.ConditionsRequest{FacilityID: "tsw-1",
-		TestSettings: api.TestSettings{Mach: &mach, StagnationPressure: &p0, StagnationTemperature: &t0}})
+	out, err := c.Conditions(context.Background(), &schema.ConditionsRequest{FacilityID: "tsw-1",
+		TestSettings: schema.TestSettings{Mach: &mach, StagnationPressure: &p0, StagnationTemperature: &t0}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -224,8 +226,8 @@ func TestAtmosphere(t *testing.T) {
 
 func TestGroups(t *testing.T) {
 	c := newClient(t)
-	out, err := c.Groups(context.Background(), &api.GroupsRequest{
-		Variables: []api.GroupVariable{{Name: "R", Unit: "N"}, {Name: "rho", Unit: "kg/m^3"},
+	out, err := c.Groups(context.Background(), &schema.GroupsRequest{
+		Variables: []schema.GroupVariable{{Name: "R", Unit: "N"}, {Name: "rho", Unit: "kg/m^3"},
 			{Name: "V", Unit: "m/s"}, {Name: "L", Unit: "m"}, {Name: "mu", Dimensions: "M L^-1 T^-1"}},
 		Repeating: []string{"rho", "V", "L"},
 	})

@@ -10,9 +10,9 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"scalematch/api"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/app"
 )
 
 // U.S. customary units in SI, from their exact definitions (NIST Special
@@ -58,7 +58,7 @@ By default a table in SI units; --units us adds U.S. customary units beside them
 			}
 			flags := map[string]*string{"altitude": &altitude, "pressure_altitude": &pressureAltitude, "delta_isa": &deltaISA}
 			flagName := func(key string) string { return strings.ReplaceAll(key, "_", "-") }
-			s, err := api.AtmosphereQuery(
+			s, err := app.AtmosphereQuery(
 				func(key string) string {
 					if p, ok := flags[key]; ok {
 						return *p

@@ -6,15 +6,16 @@ import (
 	"os"
 	"path/filepath"
 
-	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/app"
 	"scalematch/internal/charts"
 )
 
 // writeCharts writes every chart plan has into o.chartDir as NAME.svg, NAME.png
 // and NAME.pdf, and names each file written on o.stderr. A chart the plan
 // cannot have (no balance, an inline facility) is noted there and skipped.
-func (o *computeOptions) writeCharts(ctx context.Context, p *api.Planner, plan *api.PlanResponse, inline *facilities.Facility) error {
+func (o *computeOptions) writeCharts(ctx context.Context, p *app.Planner, plan *schema.PlanResponse, inline *facilities.Facility) error {
 	if o.chartDir == "" {
 		return nil
 	}
@@ -25,8 +26,8 @@ func (o *computeOptions) writeCharts(ctx context.Context, p *api.Planner, plan *
 	if err := os.MkdirAll(o.chartDir, 0o755); err != nil {
 		return err
 	}
-	for _, name := range api.PlanChartNames() {
-		ch, err := api.PlanChart(name, plan, f)
+	for _, name := range app.PlanChartNames() {
+		ch, err := app.PlanChart(name, plan, f)
 		if facilities.ErrorCode(err) == facilities.CodeNotFound {
 			fmt.Fprintf(o.stderr, "chart %s: %v\n", name, err)
 			continue

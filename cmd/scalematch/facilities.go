@@ -14,7 +14,7 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 )
@@ -155,7 +155,7 @@ func runFacilities(ctx context.Context, o facilitiesOptions, args []string, w io
 			return err
 		}
 		if o.jsonOut {
-			return writeJSON(w, api.FacilityList{Facilities: fs})
+			return writeJSON(w, schema.FacilityList{Facilities: fs})
 		}
 		return listTable(w, fs, where)
 	}

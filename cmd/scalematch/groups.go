@@ -7,7 +7,9 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"scalematch/api"
+	"scalematch/api/schema"
+	"scalematch/internal/app"
+	"scalematch/internal/unitjson"
 )
 
 func newGroupsCmd() *cobra.Command {
@@ -31,11 +33,11 @@ exactly the body POST /v1/groups returns.`,
 			if err != nil {
 				return err
 			}
-			var req api.GroupsRequest
-			if err := api.Decode(body, &req); err != nil {
+			var req schema.GroupsRequest
+			if err := unitjson.Decode(body, &req); err != nil {
 				return explain(err)
 			}
-			resp, err := api.Groups(&req)
+			resp, err := app.Groups(&req)
 			if err != nil {
 				return explain(err)
 			}
@@ -50,7 +52,7 @@ exactly the body POST /v1/groups returns.`,
 }
 
 // writeGroups prints the groups, one a line, as products of powers.
-func writeGroups(w io.Writer, r *api.GroupsResponse) error {
+func writeGroups(w io.Writer, r *schema.GroupsResponse) error {
 	fmt.Fprintf(w, "rank %d; repeating variables: %s\n", r.Rank, strings.Join(r.Repeating, ", "))
 	if len(r.Groups) == 0 {
 		_, err := fmt.Fprintln(w, "no dimensionless group: every variable is a repeating one")

@@ -7,8 +7,9 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/unitjson"
 )
 
 func newLoadsCmd() *cobra.Command {
@@ -41,8 +42,8 @@ and licensed engineering judgement govern.`,
 			if err != nil {
 				return err
 			}
-			var req api.LoadsRequest
-			if err := api.Decode(body, &req); err != nil {
+			var req schema.LoadsRequest
+			if err := unitjson.Decode(body, &req); err != nil {
 				return explain(err)
 			}
 			ctx := cmd.Context()
@@ -68,7 +69,7 @@ and licensed engineering judgement govern.`,
 }
 
 // writeLoadCheck prints the answer of a load check as a table.
-func writeLoadCheck(w io.Writer, r *api.LoadsResponse, us bool) error {
+func writeLoadCheck(w io.Writer, r *schema.LoadsResponse, us bool) error {
 	u := units{us}
 	fmt.Fprintf(w, "Load check: facility %s\n", r.FacilityID)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)

@@ -14,7 +14,10 @@ import (
 	"github.com/spf13/cobra"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/app"
+	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
 
@@ -90,7 +93,7 @@ func (o *computeOptions) start(cmd *cobra.Command, arg string) ([]byte, error) {
 // catalog), and a function that closes the catalog. The command line never writes to the catalog: a plan
 // already stored under its id is answered with the stored bytes, as the service
 // would, and a new plan is not stored.
-func (o *computeOptions) planner(ctx context.Context) (*api.Planner, func() error, error) {
+func (o *computeOptions) planner(ctx context.Context) (*app.Planner, func() error, error) {
 	none := func() error { return nil }
 	cat, where, closeFn, err := openCatalog(ctx, o.data, o.database)
 	if err != nil {
@@ -98,9 +101,9 @@ func (o *computeOptions) planner(ctx context.Context) (*api.Planner, func() erro
 	}
 	o.where = where
 	if cat == nil {
-		return &api.Planner{}, none, nil
+		return &app.Planner{}, none, nil
 	}
-	return &api.Planner{Catalog: readOnlyPlans{cat}}, closeFn, nil
+	return &app.Planner{Catalog: readOnlyPlans{cat}}, closeFn, nil
 }
 
 // readOnlyPlans is a catalog whose SavePlan stores nothing: it returns the record
@@ -196,8 +199,8 @@ and licensed engineering judgement govern.`,
 			if err != nil {
 				return err
 			}
-			var req api.PlanRequest
-			if err := api.Decode(body, &req); err != nil {
+			var req schema.PlanRequest
+			if err := unitjson.Decode(body, &req); err != nil {
 				return explain(err)
 			}
 			ctx := cmd.Context()
@@ -218,7 +221,7 @@ and licensed engineering judgement govern.`,
 }
 
 // plan plans req with p and prints the table or the service's JSON.
-func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.PlanRequest) error {
+func (o *computeOptions) plan(ctx context.Context, p *app.Planner, req *schema.PlanRequest) error {
 	if o.json {
 		b, err := p.PlanJSON(ctx, req)
 		if err != nil {
@@ -230,7 +233,7 @@ func (o *computeOptions) plan(ctx context.Context, p *api.Planner, req *api.Plan
 		if o.chartDir == "" {
 			return nil
 		}
-		resp, err := api.DecodePlan(b)
+		resp, err := app.DecodePlan(b)
 		if err != nil {
 			return err
 		}
@@ -320,7 +323,7 @@ func section(w io.Writer, title string) { fmt.Fprintf(w, "\n%s\n", title) }
 
 // writePlan prints a plan as a table; catalog names the catalog the facility came
 // from (openCatalog's name), "" when the request gave its facility inline.
-func writePlan(w io.Writer, r *api.PlanResponse, us bool, catalog string) error {
+func writePlan(w io.Writer, r *schema.PlanResponse, us bool, catalog string) error {
 	u := units{us}
 	where := "given inline"
 	if catalog != "" {

@@ -26,6 +26,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 	"scalematch/internal/pages"
@@ -334,7 +335,7 @@ func TestPagesInBrowser(t *testing.T) {
 }
 
 // loadsAnswer posts the check form's request to POST /v1/loads.
-func loadsAnswer(t *testing.T, url string) api.LoadsResponse {
+func loadsAnswer(t *testing.T, url string) schema.LoadsResponse {
 	t.Helper()
 	body := `{"facility_id": "tsw-1", "installation": {"balance_id": "int-b1", "model_mass": "20 kg"},
 	  "article": {"reference_length": "2.6 m", "reference_area": "50 m^2", "span": "19 m", "frontal_area": "5.5 m^2", "wetted_area": "290 m^2",
@@ -346,7 +347,7 @@ func loadsAnswer(t *testing.T, url string) api.LoadsResponse {
 	defer resp.Body.Close()
 	b, _ := io.ReadAll(resp.Body)
 	require.Equal(t, http.StatusOK, resp.StatusCode, "%s", b)
-	var out api.LoadsResponse
+	var out schema.LoadsResponse
 	require.NoError(t, json.Unmarshal(b, &out))
 	require.NotNil(t, out.Loads.One)
 	return out

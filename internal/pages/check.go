@@ -10,8 +10,11 @@ import (
 	"strings"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/app"
 	"scalematch/internal/charts"
+	"scalematch/internal/unitjson"
 )
 
 // formField is one input of the load-check form. Name is the JSON path of the
@@ -197,7 +200,7 @@ func articleFields(values map[string]string) bool {
 // POST /v1/loads with the form's values (the plan's filling the empty ones).
 func (p *Pages) runCheck(r *http.Request, values map[string]string) (*checkResult, error) {
 	ctx := r.Context()
-	var plan *api.PlanResponse
+	var plan *schema.PlanResponse
 	var planFacility *facilities.Facility
 	if id := values[planField]; id != "" {
 		var err error
@@ -217,8 +220,8 @@ func (p *Pages) runCheck(r *http.Request, values map[string]string) (*checkResul
 	if err != nil {
 		return nil, err
 	}
-	var req api.LoadsRequest
-	if err := api.Decode(body, &req); err != nil {
+	var req schema.LoadsRequest
+	if err := unitjson.Decode(body, &req); err != nil {
 		return nil, err
 	}
 	resp, err := p.b.Loads(ctx, &req)
@@ -243,7 +246,7 @@ func (p *Pages) runCheck(r *http.Request, values map[string]string) (*checkResul
 }
 
 // planResult is the verdict of a stored plan's own load check.
-func planResult(plan *api.PlanResponse, f *facilities.Facility) (*checkResult, error) {
+func planResult(plan *schema.PlanResponse, f *facilities.Facility) (*checkResult, error) {
 	if plan.Loads == nil {
 		return nil, facilities.Invalid("plan has no loads", []facilities.FieldError{{Field: planField,
 			Message: fmt.Sprintf("plan %s has no load check (its facility lists no balance)", plan.ID)}})
@@ -266,7 +269,7 @@ func (res *checkResult) addLoads(f *facilities.Facility, planID string, reports 
 	res.WithinLoads = len(reports) > 0
 	var parts []string
 	for _, rep := range reports {
-		rs, err := api.BalanceRatings(f, rep.BalanceID)
+		rs, err := app.BalanceRatings(f, rep.BalanceID)
 		if err != nil {
 			return err
 		}
@@ -294,7 +297,7 @@ func (res *checkResult) addLoads(f *facilities.Facility, planID string, reports 
 
 // fillFromPlan fills the empty fields that a stored plan answers: the facility,
 // the balance, the scale, the test setting and the α sweep.
-func fillFromPlan(values map[string]string, plan *api.PlanResponse) {
+func fillFromPlan(values map[string]string, plan *schema.PlanResponse) {
 	set := func(k string, v string) {
 		if values[k] == "" {
 			values[k] = v

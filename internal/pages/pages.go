@@ -24,7 +24,9 @@ import (
 	"time"
 
 	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/app"
 	"scalematch/internal/charts"
 	"scalematch/similarity"
 )
@@ -36,10 +38,10 @@ var files embed.FS
 // endpoints. *api.Server implements it.
 type Backend interface {
 	// Loads is POST /v1/loads.
-	Loads(ctx context.Context, req *api.LoadsRequest) (*api.LoadsResponse, error)
+	Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.LoadsResponse, error)
 	// StoredPlan is GET /v1/plans/{id}, with the facility version the plan used
 	// (nil for a facility given inline).
-	StoredPlan(ctx context.Context, id string) (*api.PlanResponse, *facilities.Facility, error)
+	StoredPlan(ctx context.Context, id string) (*schema.PlanResponse, *facilities.Facility, error)
 	// Facilities, Facility and Versions are GET /v1/facilities,
 	// /v1/facilities/{id} and /v1/facilities/{id}/versions.
 	Facilities(ctx context.Context) ([]facilities.Facility, error)
@@ -280,7 +282,7 @@ type loadsView struct {
 
 // planView is the data of the plan report.
 type planView struct {
-	Plan   *api.PlanResponse
+	Plan   *schema.PlanResponse
 	Water  bool
 	Loads  *loadsView
 	Charts []chartView
@@ -289,11 +291,11 @@ type planView struct {
 // chartAlt describes each chart of a plan for its image's alternative text.
 func chartAlt(name string) string {
 	switch name {
-	case api.ChartEnvelope:
+	case app.ChartEnvelope:
 		return "Reynolds number reachable in the facility against Mach number or speed, with the flight point, the planned test point and the trade curve"
-	case api.ChartLoads:
+	case app.ChartLoads:
 		return "Balance utilisation of every component and gauge row against the angle of attack, with the allowed line"
-	case api.ChartTrade:
+	case app.ChartTrade:
 		return "Reynolds-number ratio against the Mach-number difference for the chosen model"
 	}
 	return name
@@ -310,8 +312,8 @@ func (p *Pages) plan(w http.ResponseWriter, r *http.Request) {
 	if plan.Loads != nil {
 		v.Loads = &loadsView{Report: *plan.Loads}
 	}
-	for _, name := range api.PlanChartNames() {
-		if f == nil && name != api.ChartTrade || name == api.ChartLoads && plan.Loads == nil {
+	for _, name := range app.PlanChartNames() {
+		if f == nil && name != app.ChartTrade || name == app.ChartLoads && plan.Loads == nil {
 			continue
 		}
 		base := "/v1/plans/" + url.PathEscape(plan.ID) + "/charts/" + name

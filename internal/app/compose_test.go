@@ -1,28 +1,41 @@
-package api_test
+package app_test
 
 import (
 	"context"
-	"io"
-	"log/slog"
+	"encoding/json"
 	"math"
-	"net/http"
-	"net/http/httptest"
+	"os"
 	"slices"
 	"strings"
 	"sync/atomic"
 	"testing"
 
-	"scalematch/api"
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/app"
+	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
 
+// j16Plan is the Orrin J16 of the demo world (docs/demo-world.md) in tsw-1 at
+// cruise, on balance int-b1.
+var j16Plan = func() string {
+	b, err := os.ReadFile("testdata/j16-tsw-1-cruise.json")
+	if err != nil {
+		panic(err)
+	}
+	return string(b)
+}()
+
 // decodePlan decodes a plan request as POST /v1/plans does.
-func decodePlan(t testing.TB, body string) *api.PlanRequest {
+func decodePlan(t testing.TB, body string) *schema.PlanRequest {
 	t.Helper()
-	var req api.PlanRequest
-	if err := api.Decode([]byte(body), &req); err != nil {
+	var req schema.PlanRequest
+	if err := unitjson.Decode([]byte(body), &req); err != nil {
 		t.Fatal(err)
 	}
 	return &req
@@ -52,7 +65,7 @@ func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 			return strings.NewReplacer(`"tsw-1"`, `"cn2-05"`, `"int-b1"`, `"int-k"`).Replace(s)
 		}, false, 1e-6},
 	}
-	var p api.Planner
+	var p app.Planner
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			req := decodePlan(t, tc.edit(j16Plan))
@@ -116,35 +129,41 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 		t.Fatal(err)
 	}
 	cat := &countingCatalog{Catalog: db}
-	s, err := api.New(api.Config{Catalog: cat, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
 	cn2 := strings.NewReplacer(`"tsw-1"`, `"cn2-05"`, `"int-b1"`, `"int-k"`).Replace(j16Plan)
 	missing := strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1)
 	cases := []struct {
-		name  string
-		path  string
-		body  string
-		reads int64
+		name   string
+		batch  []string
+		reads  int64
+		failed int // requests answered with an error
 	}{
-		{"batch of five in two facilities and one unknown twice", "/v1/plans/batch",
-			`{"requests": [` + strings.Join([]string{j16Plan, cn2, j16Plan, missing, missing, j16Plan, cn2}, ",") + `]}`, 3},
-		{"single plan", "/v1/plans", j16Plan, 1},
+		{"batch of five in two facilities and one unknown twice",
+			[]string{j16Plan, cn2, j16Plan, missing, missing, j16Plan, cn2}, 3, 2},
+		{"single plan", nil, 1, 0},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			cat.reads.Store(0)
-			rec := httptest.NewRecorder()
-			req := httptest.NewRequest(http.MethodPost, tc.path, strings.NewReader(tc.body))
-			req.Header.Set("Content-Type", "application/json")
-			s.Handler().ServeHTTP(rec, req)
-			if rec.Code != http.StatusOK {
-				t.Fatalf("status %d: %s", rec.Code, rec.Body)
+			p := app.NewPlanner(cat, 0)
+			if tc.batch == nil {
+				if _, err := p.PlanJSON(ctx, decodePlan(t, j16Plan)); err != nil {
+					t.Fatal(err)
+				}
+			} else {
+				raw := make([]json.RawMessage, len(tc.batch))
+				for i, b := range tc.batch {
+					raw[i] = json.RawMessage(b)
+				}
+				failed := 0
+				for _, r := range p.Batch().PlanBatch(ctx, raw, nil) {
+					if r.Err != nil {
+						require.Equal(t, facilities.CodeNotFound, facilities.ErrorCode(r.Err), "%v", r.Err)
+						failed++
+					}
+				}
+				assert.Equal(t, tc.failed, failed, "requests answered with an error")
 			}
-			if got := cat.reads.Load(); got != tc.reads {
-				t.Errorf("%d facility reads, want %d", got, tc.reads)
-			}
+			assert.Equal(t, tc.reads, cat.reads.Load(), "facility reads")
 		})
 	}
 }

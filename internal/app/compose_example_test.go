@@ -1,22 +1,30 @@
-package api_test
+package app_test
 
 import (
 	"context"
 	"fmt"
+	"os"
 
-	"scalematch/api"
+	"scalematch/api/schema"
+	"scalematch/internal/app"
+	"scalematch/internal/unitjson"
 )
 
 // ExamplePlanner_Plan plans the Orrin J16 of the demo world at cruise (M 0.78 at
 // 12 000 m) in the transonic demo tunnel tsw-1 on balance int-b1, as POST /v1/plans
 // and `scalematch plan` do.
 func ExamplePlanner_Plan() {
-	var req api.PlanRequest
-	if err := api.Decode([]byte(j16Plan), &req); err != nil {
+	body, err := os.ReadFile("testdata/j16-tsw-1-cruise.json")
+	if err != nil {
 		fmt.Println(err)
 		return
 	}
-	var p api.Planner // the demo catalog
+	var req schema.PlanRequest
+	if err := unitjson.Decode(body, &req); err != nil {
+		fmt.Println(err)
+		return
+	}
+	var p app.Planner // the demo catalog
 	plan, err := p.Plan(context.Background(), &req)
 	if err != nil {
 		fmt.Println(err)

@@ -1,4 +1,4 @@
-package api
+package schema
 
 import (
 	"bytes"
@@ -315,4 +315,24 @@ func (v *LoadsValue) UnmarshalJSON(b []byte) error {
 	v.All = nil
 	v.One = new(facilities.LoadReport)
 	return json.Unmarshal(b, v.One)
+}
+
+// MaxBatch is the largest number of plan requests one POST /v1/plans/batch takes.
+const MaxBatch = 1000
+
+// FacilityList is the answer of GET /v1/facilities.
+type FacilityList struct {
+	// Facilities are the current, not deleted facilities ordered by id, each with
+	// its version.
+	Facilities []facilities.Facility `json:"facilities"`
+}
+
+// FacilityHistory is the answer of GET /v1/facilities/{id}/versions.
+type FacilityHistory struct {
+	// ID is the facility's id.
+	ID string `json:"id" example:"tsw-1"`
+	// Versions lists every change, oldest first: version, time (RFC 3339, UTC), the
+	// write token's name, the action, the JSON paths that changed and the record as
+	// of that version (absent for a deletion).
+	Versions []facilities.Change `json:"versions"`
 }

@@ -1,83 +1,56 @@
-package api
+package app
 
 import (
 	"context"
 	"fmt"
 	"math"
-	"net/http"
 
-	"github.com/gin-gonic/gin"
-
+	"scalematch/api/schema"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/similarity"
 )
-
-// postLoads answers POST /v1/loads.
-//
-//	@Summary		Balance loads at given test conditions
-//	@Description	The balance loads over the α sweep (forces in N, moments in N·m, at the balance moment centre, body axes, wall corrections and the model's weight included) for a model of the given scale at the given test settings (mach or speed m/s, stagnation pressure Pa, stagnation temperature K), with each point's utilisation of the balance's ratings and, in max_safe_dynamic_pressure (Pa), the dynamic pressure at which the worst point reaches the allowed load (rating ÷ safety factor) by this steady, static estimate: not a safe limit, the safety factor is the only margin left for the estimate's error. The model's weight is left out when model_mass is not given, which makes the check unconservative (a caution says so). loads is one object when installation.balance_id names a balance and a list, one per balance of the facility, when it does not. No optimisation.
-//	@Tags			planning
-//	@Accept			json
-//	@Produce		json
-//	@Param			request	body		LoadsRequest	true	"article, facility or facility_id, model.scale, installation, alpha (degrees), test settings"
-//	@Success		200		{object}	LoadsResponse
-//	@Failure		400		{object}	Problem	"bad input: every bad field named by its JSON path"
-//	@Failure		404		{object}	Problem	"facility_id names no facility"
-//	@Failure		413		{object}	Problem	"body too large"
-//	@Router			/v1/loads [post]
-func (s *Server) postLoads(c *gin.Context) {
-	var req LoadsRequest
-	if !s.decodeBody(c, &req) {
-		return
-	}
-	resp, err := s.planner().Loads(c.Request.Context(), &req)
-	if err != nil {
-		s.fail(c, err)
-		return
-	}
-	s.answer(c, http.StatusOK, resp)
-}
 
 // Loads checks the balance loads of a model of a given scale at given test
 // settings, for POST /v1/loads. A named balance gives one report; none gives one
 // per balance of the facility.
-func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse, error) {
-	var fe fieldErrors
+func (p *Planner) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.LoadsResponse, error) {
+	var fe check.Fields
 	f, err := p.facility(ctx, req.Facility, req.FacilityID, &fe)
 	if err := notFoundOrFail(err, &fe, "facility_id"); err != nil {
 		return nil, err
 	}
-	if err := validateFullScale(req.Flight, req.Marine, false); err != nil && !fe.merge("", err) {
+	if err := validateFullScale(req.Flight, req.Marine, false); err != nil && !fe.Merge("", err) {
 		return nil, err
 	}
 	checkArticle(&req.Article, &fe)
 	switch sc := req.Model.Scale; {
 	case sc == nil:
-		fe.add("model.scale", "required: the model's scale, a number or a ratio such as \"1:16\"")
+		fe.Add("model.scale", "required: the model's scale, a number or a ratio such as \"1:16\"")
 	case !similarity.BoundScale.Contains(*sc):
-		fe.add("model.scale", "scale %s", similarity.BoundScale.Problem(*sc))
+		fe.Add("model.scale", "scale %s", similarity.BoundScale.Problem(*sc))
 	}
 	checkInstallation(&req.Installation, f, &fe)
 	if f != nil && len(f.Balances) == 0 {
-		fe.add("facility_id", "facility %s lists no balance to check", f.ID)
+		fe.Add("facility_id", "facility %s lists no balance to check", f.ID)
 	}
 	mx, err := req.Article.Aero.Matrix(req.Alpha, req.Beta)
-	if err != nil && !fe.merge("", err) {
+	if err != nil && !fe.Merge("", err) {
 		return nil, err
 	}
 	set, ok := settingOf(f, req.Test, "test", &fe)
-	if err := fe.err(); err != nil {
+	if err := fe.Err(); err != nil {
 		return nil, err
 	}
 	if !ok {
-		fe.add("test", "the test settings are incomplete")
-		return nil, fe.err()
+		fe.Add("test", "the test settings are incomplete")
+		return nil, fe.Err()
 	}
 	st, err := f.State(set)
 	if err != nil {
-		if fe.merge("test", err) {
-			return nil, fe.err()
+		if fe.Merge("test", err) {
+			return nil, fe.Err()
 		}
 		return nil, err
 	}
@@ -85,7 +58,7 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 	a := &req.Article
 	s2 := scale * scale
 	lref := a.ReferenceLength * scale
-	out := &LoadsResponse{
+	out := &schema.LoadsResponse{
 		FacilityID: f.ID,
 		Model: similarity.ModelSize{
 			Scale: scale, ReferenceLength: lref, ReferenceArea: a.ReferenceArea * s2,
@@ -153,14 +126,14 @@ func (p *Planner) Loads(ctx context.Context, req *LoadsRequest) (*LoadsResponse,
 		out.Warnings = append(out.Warnings, b.Note())
 	}
 	out.Warnings = collapseWarnings(out.Warnings)
-	if err := checkFinite(out, loadsInputs); err != nil {
+	if err := CheckFinite(out, loadsInputs); err != nil {
 		return nil, err
 	}
 	return out, nil
 }
 
 // loadsInputs names the request field that feeds each top-level field of a load
-// check's answer, for checkFinite.
+// check's answer, for CheckFinite.
 func loadsInputs(top string) string {
 	switch top {
 	case "flight", "mismatch":

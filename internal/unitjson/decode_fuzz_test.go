@@ -1,4 +1,4 @@
-package api_test
+package unitjson_test
 
 import (
 	"errors"
@@ -7,8 +7,9 @@ import (
 	"reflect"
 	"testing"
 
-	"scalematch/api"
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/unitjson"
 )
 
 // finiteFloats reports the path of the first non-finite float in v, or "".
@@ -52,7 +53,7 @@ func finiteFloats(v reflect.Value, path string) string {
 // *facilities.Error of CodeInvalid naming at least one field, leaves dst alone and
 // says the same thing when asked twice.
 func FuzzDecode(f *testing.F) {
-	if b, err := os.ReadFile("testdata/load/plan-orrin-j16-tsw-1.json"); err == nil {
+	if b, err := os.ReadFile("../../api/testdata/load/plan-orrin-j16-tsw-1.json"); err == nil {
 		f.Add(b)
 	}
 	for _, s := range []string{
@@ -67,9 +68,9 @@ func FuzzDecode(f *testing.F) {
 		f.Add([]byte(s))
 	}
 	f.Fuzz(func(t *testing.T, body []byte) {
-		var req api.PlanRequest
+		var req schema.PlanRequest
 		req.FacilityID = "before"
-		err := api.Decode(body, &req)
+		err := unitjson.Decode(body, &req)
 		if err == nil {
 			if p := finiteFloats(reflect.ValueOf(req), "req"); p != "" {
 				t.Fatalf("non-finite float at %s from %q", p, body)
@@ -88,13 +89,13 @@ func FuzzDecode(f *testing.F) {
 		if req.FacilityID != "before" {
 			t.Fatalf("dst changed on error: facility_id %q", req.FacilityID)
 		}
-		var again api.PlanRequest
-		err2 := api.Decode(body, &again)
+		var again schema.PlanRequest
+		err2 := unitjson.Decode(body, &again)
 		if err2 == nil || err2.Error() != err.Error() {
 			t.Fatalf("second decode says %v, first said %v", err2, err)
 		}
 
 		var fac facilities.Facility
-		_ = api.Decode(body, &fac) // must not panic
+		_ = unitjson.Decode(body, &fac) // must not panic
 	})
 }

@@ -1,4 +1,4 @@
-package api
+package unitjson
 
 import (
 	"bytes"
@@ -86,8 +86,8 @@ func TestParseTree(t *testing.T) {
 			checkTree(t, []byte(tt.body))
 		})
 	}
-	files, _ := filepath.Glob("../examples/*.json")
-	files = append(files, "testdata/load/plan-orrin-j16-tsw-1.json")
+	files, _ := filepath.Glob("../../examples/*.json")
+	files = append(files, "../../api/testdata/load/plan-orrin-j16-tsw-1.json")
 	for _, name := range files {
 		b, err := os.ReadFile(name)
 		if err != nil {
@@ -177,7 +177,7 @@ func randomWord(rng *rand.Rand) string {
 
 // FuzzParseTree checks parseTree against encoding/json on any input.
 func FuzzParseTree(f *testing.F) {
-	if b, err := os.ReadFile("testdata/load/plan-orrin-j16-tsw-1.json"); err == nil {
+	if b, err := os.ReadFile("../../api/testdata/load/plan-orrin-j16-tsw-1.json"); err == nil {
 		f.Add(b)
 	}
 	for _, s := range []string{`{"a":[1,-2.5e3,"x\n",true,null]}`, `["\u00df"]`, `{} {}`, `[01]`, "[\"\xff\"]"} {

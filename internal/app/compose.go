@@ -1,4 +1,4 @@
-package api
+package app
 
 import (
 	"bytes"
@@ -13,7 +13,9 @@ import (
 	"strings"
 	"sync"
 
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/similarity"
 )
 
@@ -68,45 +70,6 @@ func (fm *facilityMemo) get(ctx context.Context, c facilities.Catalog, fc *facil
 	return e.f, e.err
 }
 
-// fieldErrors collects the field problems of one request.
-type fieldErrors []facilities.FieldError
-
-func (fe *fieldErrors) add(field, format string, args ...any) {
-	*fe = append(*fe, facilities.FieldError{Field: field, Message: fmt.Sprintf(format, args...)})
-}
-
-// merge appends the field errors of err, each path prefixed by prefix (with a dot
-// between when both are non-empty), and reports whether err was a CodeInvalid
-// domain error. Other errors are left to the caller.
-func (fe *fieldErrors) merge(prefix string, err error) bool {
-	de, ok := err.(*facilities.Error)
-	if !ok || de.Code != facilities.CodeInvalid {
-		return false
-	}
-	if len(de.Fields) == 0 {
-		fe.add(prefix, "%s", de.Message)
-		return true
-	}
-	for _, f := range de.Fields {
-		*fe = append(*fe, facilities.FieldError{Field: joinPath(prefix, f.Field), Message: f.Message})
-	}
-	return true
-}
-
-// err returns the collected problems as one CodeInvalid error, or nil. It lists
-// at most maxFieldErrors of them, as the decoder does, and counts the rest.
-func (fe fieldErrors) err() error {
-	if len(fe) == 0 {
-		return nil
-	}
-	msg := countFields(len(fe))
-	if len(fe) > maxFieldErrors {
-		msg += fmt.Sprintf(" (the first %d are listed)", maxFieldErrors)
-		fe = fe[:maxFieldErrors:maxFieldErrors]
-	}
-	return &facilities.Error{Code: facilities.CodeInvalid, Message: msg, Fields: fe}
-}
-
 // collapseWarnings keeps each distinct warning once, where it first appears,
 // saying how often it was given when more than once.
 func collapseWarnings(ws []string) []string {
@@ -135,37 +98,24 @@ func collapseWarnings(ws []string) []string {
 	return out
 }
 
-// joinPath joins JSON paths: "facility" + "balances[0].id", or "" + "x" = "x".
-func joinPath(prefix, path string) string {
-	switch {
-	case prefix == "":
-		return path
-	case path == "":
-		return prefix
-	case strings.HasPrefix(path, "["):
-		return prefix + path
-	}
-	return prefix + "." + path
-}
-
 // facility resolves a request's facility: the inline one (validated, its errors
 // under "facility."), or the one facility_id names in the catalog (the demo
 // catalog when none is configured). Problems with the choice itself are added to
 // fe; a facility_id that names nothing is a CodeNotFound error, returned only when
 // fe is otherwise empty so that a 400 lists every bad field first.
-func (p *Planner) facility(ctx context.Context, inline *facilities.Facility, id string, fe *fieldErrors) (*facilities.Facility, error) {
+func (p *Planner) facility(ctx context.Context, inline *facilities.Facility, id string, fe *check.Fields) (*facilities.Facility, error) {
 	switch {
 	case inline != nil && id != "":
-		fe.add("facility_id", "give facility or facility_id, not both")
+		fe.Add("facility_id", "give facility or facility_id, not both")
 		return nil, nil
 	case inline == nil && id == "":
-		fe.add("facility_id", "give facility_id (a catalog id such as \"tsw-1\") or an inline facility")
+		fe.Add("facility_id", "give facility_id (a catalog id such as \"tsw-1\") or an inline facility")
 		return nil, nil
 	case inline != nil:
 		f := *inline
 		f.Version = 0
 		if err := f.Validate(); err != nil {
-			if !fe.merge("facility", err) {
+			if !fe.Merge("facility", err) {
 				return nil, err
 			}
 			return nil, nil
@@ -232,22 +182,22 @@ func planID(kind string, req any, f *facilities.Facility) (string, error) {
 func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // checkArticle adds the problems of the article's geometry and estimate to fe.
-func checkArticle(a *similarity.Article, fe *fieldErrors) {
+func checkArticle(a *similarity.Article, fe *check.Fields) {
 	*fe = append(*fe, similarity.CheckArticle(a)...)
 	*fe = append(*fe, a.FrictionFieldErrors()...)
 	if err := a.Aero.Validate(); err != nil {
-		fe.merge("", err)
+		fe.Merge("", err)
 	}
 }
 
 // checkInstallation adds the problems of an installation in facility f (nil when
 // unresolved) to fe.
-func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *fieldErrors) {
+func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *check.Fields) {
 	if msg := facilities.BoundModelMass.Problem(in.ModelMass); msg != "" {
-		fe.add("installation.model_mass", "%s (0: weight left out)", msg)
+		fe.Add("installation.model_mass", "%s (0: weight left out)", msg)
 	}
 	if msg := facilities.BoundModelVolume.Problem(in.ModelVolume); msg != "" {
-		fe.add("installation.model_volume", "%s (0: not given)", msg)
+		fe.Add("installation.model_volume", "%s (0: not given)", msg)
 	}
 	for _, o := range []struct {
 		name string
@@ -255,7 +205,7 @@ func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *
 	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
 		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
 		if msg := facilities.BoundOffset.Problem(o.v); msg != "" {
-			fe.add("installation."+o.name, "%s", msg)
+			fe.Add("installation."+o.name, "%s", msg)
 		}
 	}
 	if f == nil || in.BalanceID == "" {
@@ -269,17 +219,17 @@ func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *
 		ids[i] = b.ID
 	}
 	if len(ids) == 0 {
-		fe.add("installation.balance_id", "facility %s has no balances", f.ID)
+		fe.Add("installation.balance_id", "facility %s has no balances", f.ID)
 		return
 	}
-	fe.add("installation.balance_id", "facility %s has no balance %q; it has: %s", f.ID, in.BalanceID, strings.Join(ids, ", "))
+	fe.Add("installation.balance_id", "facility %s has no balance %q; it has: %s", f.ID, in.BalanceID, strings.Join(ids, ", "))
 }
 
 // Plan validates a plan request, plans it and assembles the answer. Bad input is a
 // *facilities.Error with CodeInvalid naming every bad field; an unknown facility
 // CodeNotFound; a problem no plan can satisfy CodeUnprocessable naming the limits.
 // The answer's ID is set; nothing is stored.
-func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, error) {
+func (p *Planner) Plan(ctx context.Context, req *schema.PlanRequest) (*schema.PlanResponse, error) {
 	pr, err := p.prepare(ctx, req)
 	if err != nil {
 		return nil, err
@@ -291,7 +241,7 @@ func (p *Planner) Plan(ctx context.Context, req *PlanRequest) (*PlanResponse, er
 // state and test matrix resolved and its id computed: everything up to the
 // optimisation.
 type preparedPlan struct {
-	req    *PlanRequest
+	req    *schema.PlanRequest
 	f      *facilities.Facility
 	flight similarity.FlightState
 	mx     similarity.Matrix
@@ -300,28 +250,28 @@ type preparedPlan struct {
 
 // prepare validates req, resolves its facility, flight and test matrix and
 // computes the plan's id; errors are those of Plan.
-func (p *Planner) prepare(ctx context.Context, req *PlanRequest) (*preparedPlan, error) {
-	var fe fieldErrors
+func (p *Planner) prepare(ctx context.Context, req *schema.PlanRequest) (*preparedPlan, error) {
+	var fe check.Fields
 	f, err := p.facility(ctx, req.Facility, req.FacilityID, &fe)
 	if err := notFoundOrFail(err, &fe, "facility_id"); err != nil {
 		return nil, err
 	}
-	if err := validateFullScale(&req.Flight, req.Marine, true); err != nil && !fe.merge("", err) {
+	if err := validateFullScale(&req.Flight, req.Marine, true); err != nil && !fe.Merge("", err) {
 		return nil, err
 	}
 	checkArticle(&req.Article, &fe)
-	if err := req.Model.Validate(); err != nil && !fe.merge("", err) {
+	if err := req.Model.Validate(); err != nil && !fe.Merge("", err) {
 		return nil, err
 	}
-	if err := req.Objective.Validate(); err != nil && !fe.merge("", err) {
+	if err := req.Objective.Validate(); err != nil && !fe.Merge("", err) {
 		return nil, err
 	}
 	checkInstallation(&req.Installation, f, &fe)
 	mx, err := req.Article.Aero.Matrix(req.Alpha, req.Beta)
-	if err != nil && !fe.merge("", err) {
+	if err != nil && !fe.Merge("", err) {
 		return nil, err
 	}
-	if err := fe.err(); err != nil {
+	if err := fe.Err(); err != nil {
 		return nil, err
 	}
 	flight, err := resolveFullScale(&req.Flight, req.Marine, req.Article.ReferenceLength)
@@ -336,7 +286,7 @@ func (p *Planner) prepare(ctx context.Context, req *PlanRequest) (*preparedPlan,
 }
 
 // plan runs the planner on a prepared request and assembles the answer.
-func (pp *preparedPlan) plan() (*PlanResponse, error) {
+func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	req, f, flight, mx := pp.req, pp.f, pp.flight, pp.mx
 	var err error
 	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective,
@@ -352,7 +302,7 @@ func (pp *preparedPlan) plan() (*PlanResponse, error) {
 	if err != nil {
 		return nil, err
 	}
-	out := &PlanResponse{
+	out := &schema.PlanResponse{
 		FacilityID:      f.ID,
 		FacilityVersion: f.Version,
 		Flight:          res.Flight,
@@ -409,14 +359,14 @@ func (pp *preparedPlan) plan() (*PlanResponse, error) {
 	out.ReynoldsEffects = &re
 	out.ID = pp.id
 	out.Warnings = collapseWarnings(out.Warnings)
-	if err := checkFinite(out, planInputs); err != nil {
+	if err := CheckFinite(out, planInputs); err != nil {
 		return nil, err
 	}
 	return out, nil
 }
 
 // planInputs names the request field that feeds each top-level field of a plan
-// answer, for checkFinite.
+// answer, for CheckFinite.
 func planInputs(top string) string {
 	switch top {
 	case "flight", "mismatch":
@@ -479,7 +429,7 @@ func loadsAt(f *facilities.Facility, a *similarity.Article, in facilities.Instal
 // it. With a catalog the plan is stored under its id; when that id is stored
 // already, the stored bytes are returned, so a repeated request is answered byte
 // for byte as the first time.
-func (p *Planner) PlanJSON(ctx context.Context, req *PlanRequest) ([]byte, error) {
+func (p *Planner) PlanJSON(ctx context.Context, req *schema.PlanRequest) ([]byte, error) {
 	pj, err := p.planJSON(ctx, req)
 	if err != nil || pj.stored {
 		return pj.body, err
@@ -500,7 +450,7 @@ type plannedJSON struct {
 // planJSON validates req and computes its id; when the service holds that plan as
 // stored it answers with the stored bytes, else it plans and encodes the answer,
 // which is stored when the planner has a catalog (save).
-func (p *Planner) planJSON(ctx context.Context, req *PlanRequest) (plannedJSON, error) {
+func (p *Planner) planJSON(ctx context.Context, req *schema.PlanRequest) (plannedJSON, error) {
 	pr, err := p.prepare(ctx, req)
 	if err != nil {
 		return plannedJSON{}, err
@@ -540,7 +490,7 @@ var loadsNull = []byte(`,"loads":null,`)
 // strings escape their quotes) and the report's own encoding, which is compact
 // JSON written as encoding/json writes it, is put in its place. Should the
 // answer ever hold that text more than once, it is encoded the plain way.
-func marshalPlan(resp *PlanResponse) ([]byte, error) {
+func marshalPlan(resp *schema.PlanResponse) ([]byte, error) {
 	if resp.Loads == nil {
 		return json.Marshal(resp)
 	}

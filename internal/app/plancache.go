@@ -1,4 +1,4 @@
-package api
+package app
 
 import (
 	"context"
@@ -14,7 +14,7 @@ const maxCachedFacilities = 1024
 
 // DefaultFacilityRecheck is how long a service plans with a cached facility
 // version before it asks the catalog again whether that version is still current
-// (Config.FacilityRecheck).
+// (NewPlanner).
 const DefaultFacilityRecheck = 50 * time.Millisecond
 
 // facilityCache keeps the newest decoded version of each catalog facility a
@@ -92,9 +92,33 @@ func checkedFacility(f facilities.Facility, err error) (facilities.Facility, err
 	return f, nil
 }
 
-// forget drops facility id, so that the next lookup asks the catalog; the
-// service's catalog handlers call it on every change they make.
+// NewPlanner returns a planner over catalog c for a long-running service: it keeps
+// the decoded facility versions it reads, asking c whether a version is still
+// current when its last answer is older than recheck (0: DefaultFacilityRecheck;
+// negative: on every plan), and the bodies of the plans it stores (at most
+// storedPlanBytes), so that a repeated request is answered with the stored bytes.
+func NewPlanner(c facilities.Catalog, recheck time.Duration) *Planner {
+	if recheck == 0 {
+		recheck = DefaultFacilityRecheck
+	}
+	return &Planner{Catalog: c, cache: newFacilityCache(recheck), stored: newStoredPlans(storedPlanBytes)}
+}
+
+// Forget drops the cached version of facility id, so that the next plan asks the
+// catalog: the service's catalog handlers call it on every change they make. It
+// does nothing on a nil planner or one without caches.
+func (p *Planner) Forget(id string) {
+	if p == nil {
+		return
+	}
+	p.cache.forget(id)
+}
+
+// forget drops facility id, so that the next lookup asks the catalog.
 func (fc *facilityCache) forget(id string) {
+	if fc == nil {
+		return
+	}
 	fc.mu.Lock()
 	delete(fc.m, id)
 	fc.mu.Unlock()

@@ -1,59 +1,32 @@
-package api
+package app
 
 import (
 	"context"
-	"net/http"
 
-	"github.com/gin-gonic/gin"
-
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
-
-// postConditions answers POST /v1/conditions.
-//
-//	@Summary		Test-section state at given settings
-//	@Description	The state of a facility's test section at a Mach number (or a speed in m/s), a stagnation pressure in Pa and a stagnation temperature in K: static temperature K, pressure Pa, density kg/m³, viscosity Pa·s, speed of sound m/s, compressibility factor; dynamic pressure Pa; Reynolds number per metre 1/m; and every facility limit the settings break (an empty list when none). Numbers are SI or strings with units ("2.2 bar", "40 degC", "250 kt"). A stagnation value may be left out when the facility fixes it.
-//	@Tags			planning
-//	@Accept			json
-//	@Produce		json
-//	@Param			request	body		ConditionsRequest	true	"facility or facility_id; mach or speed (m/s); stagnation_pressure (Pa); stagnation_temperature (K)"
-//	@Success		200		{object}	ConditionsResponse
-//	@Failure		400		{object}	Problem	"bad input: every bad field named by its JSON path"
-//	@Failure		404		{object}	Problem	"facility_id names no facility"
-//	@Failure		413		{object}	Problem	"body too large"
-//	@Router			/v1/conditions [post]
-func (s *Server) postConditions(c *gin.Context) {
-	var req ConditionsRequest
-	if !s.decodeBody(c, &req) {
-		return
-	}
-	resp, err := s.planner().Conditions(c.Request.Context(), &req)
-	if err != nil {
-		s.fail(c, err)
-		return
-	}
-	s.answer(c, http.StatusOK, resp)
-}
 
 // Conditions computes the test-section state of a facility at given settings, with
 // the limits they break, for POST /v1/conditions.
-func (p *Planner) Conditions(ctx context.Context, req *ConditionsRequest) (*ConditionsResponse, error) {
-	var fe fieldErrors
+func (p *Planner) Conditions(ctx context.Context, req *schema.ConditionsRequest) (*schema.ConditionsResponse, error) {
+	var fe check.Fields
 	f, err := p.facility(ctx, req.Facility, req.FacilityID, &fe)
 	if err := notFoundOrFail(err, &fe, "facility_id"); err != nil {
 		return nil, err
 	}
 	set, ok := settingOf(f, req.TestSettings, "", &fe)
-	if err := fe.err(); err != nil {
+	if err := fe.Err(); err != nil {
 		return nil, err
 	}
 	if !ok {
-		return nil, (&fieldErrors{{Field: "", Message: "the settings are incomplete"}}).err()
+		return nil, check.Fields{{Field: "", Message: "the settings are incomplete"}}.Err()
 	}
 	st, err := f.State(set)
 	if err != nil {
-		if fe.merge("", err) {
-			return nil, fe.err()
+		if fe.Merge("", err) {
+			return nil, fe.Err()
 		}
 		return nil, err
 	}
@@ -61,8 +34,8 @@ func (p *Planner) Conditions(ctx context.Context, req *ConditionsRequest) (*Cond
 	if w == nil {
 		w = []string{}
 	}
-	out := &ConditionsResponse{State: st, Violations: f.Violations(st), Warnings: w, Cautions: appendCautions(nil, f)}
-	if err := checkFinite(out, conditionsInputs); err != nil {
+	out := &schema.ConditionsResponse{State: st, Violations: f.Violations(st), Warnings: w, Cautions: appendCautions(nil, f)}
+	if err := CheckFinite(out, conditionsInputs); err != nil {
 		return nil, err
 	}
 	return out, nil
@@ -71,7 +44,7 @@ func (p *Planner) Conditions(ctx context.Context, req *ConditionsRequest) (*Cond
 // notFoundOrFail sorts the error of a facility lookup: nil stays nil; a not-found is
 // returned as it is when fe is empty (a 404) and otherwise joins fe as a problem of
 // field, so that one 400 names every bad field; any other error is returned.
-func notFoundOrFail(err error, fe *fieldErrors, field string) error {
+func notFoundOrFail(err error, fe *check.Fields, field string) error {
 	if err == nil {
 		return nil
 	}
@@ -79,7 +52,7 @@ func notFoundOrFail(err error, fe *fieldErrors, field string) error {
 		if len(*fe) == 0 {
 			return err
 		}
-		fe.add(field, "%s", err.Error())
+		fe.Add(field, "%s", err.Error())
 		return nil
 	}
 	return err
@@ -89,32 +62,32 @@ func notFoundOrFail(err error, fe *fieldErrors, field string) error {
 // resolved) and returns the facilities.Setting; problems are added to fe under
 // prefix. A stagnation value left out takes the facility's fixed value. ok is false
 // when the setting is incomplete.
-func settingOf(f *facilities.Facility, ts TestSettings, prefix string, fe *fieldErrors) (set facilities.Setting, ok bool) {
+func settingOf(f *facilities.Facility, ts schema.TestSettings, prefix string, fe *check.Fields) (set facilities.Setting, ok bool) {
 	ok = true
 	water := f != nil && f.Medium.IsLiquid()
 	switch {
 	case ts.Mach != nil && ts.Speed != nil:
-		fe.add(joinPath(prefix, "speed"), "give mach or speed, not both")
+		fe.Add(check.JoinPath(prefix, "speed"), "give mach or speed, not both")
 		ok = false
 	case ts.Mach == nil && ts.Speed == nil:
 		if water {
-			fe.add(joinPath(prefix, "speed"), "give the speed in m/s (water: no Mach number)")
+			fe.Add(check.JoinPath(prefix, "speed"), "give the speed in m/s (water: no Mach number)")
 		} else {
-			fe.add(joinPath(prefix, "mach"), "give mach or speed (m/s)")
+			fe.Add(check.JoinPath(prefix, "mach"), "give mach or speed (m/s)")
 		}
 		ok = false
 	case ts.Mach != nil && water:
-		fe.add(joinPath(prefix, "mach"), "a water facility takes speed (m/s), not mach")
+		fe.Add(check.JoinPath(prefix, "mach"), "a water facility takes speed (m/s), not mach")
 		ok = false
 	case ts.Mach != nil:
 		if msg := BoundSettingMach.Problem(*ts.Mach); msg != "" {
-			fe.add(joinPath(prefix, "mach"), "%s", msg)
+			fe.Add(check.JoinPath(prefix, "mach"), "%s", msg)
 			ok = false
 		}
 		set.Mach = *ts.Mach
 	default:
 		if msg := BoundSettingSpeed.Problem(*ts.Speed); msg != "" {
-			fe.add(joinPath(prefix, "speed"), "%s", msg)
+			fe.Add(check.JoinPath(prefix, "speed"), "%s", msg)
 			ok = false
 		}
 		set.Speed = *ts.Speed
@@ -130,13 +103,13 @@ func settingOf(f *facilities.Facility, ts TestSettings, prefix string, fe *field
 				b = tBound
 			}
 			if msg := b.Problem(*v); msg != "" {
-				fe.add(joinPath(prefix, name), "%s", msg)
+				fe.Add(check.JoinPath(prefix, name), "%s", msg)
 				ok = false
 			}
 			return *v
 		}
 		if f == nil {
-			fe.add(joinPath(prefix, name), "required (%s)", unit)
+			fe.Add(check.JoinPath(prefix, name), "required (%s)", unit)
 			ok = false
 			return 0
 		}
@@ -144,7 +117,7 @@ func settingOf(f *facilities.Facility, ts TestSettings, prefix string, fe *field
 		if rg.Fixed() {
 			return rg.Min
 		}
-		fe.add(joinPath(prefix, name), "required: facility %s allows %g %s to %g %s", f.ID, rg.Min, unit, rg.Max, unit)
+		fe.Add(check.JoinPath(prefix, name), "required: facility %s allows %g %s to %g %s", f.ID, rg.Min, unit, rg.Max, unit)
 		ok = false
 		return 0
 	}

@@ -1,4 +1,4 @@
-package api
+package app
 
 import (
 	"context"
@@ -7,6 +7,7 @@ import (
 	"math"
 	"strings"
 
+	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/charts"
 )
@@ -27,7 +28,7 @@ func PlanChartNames() []string { return []string{ChartEnvelope, ChartLoads, Char
 // nil for a plan whose facility was given inline and not stored: its envelope and
 // loads charts are then not available. Errors are *facilities.Error:
 // CodeNotFound for an unknown name or a chart the plan cannot have.
-func PlanChart(name string, plan *PlanResponse, f *facilities.Facility) (*charts.Chart, error) {
+func PlanChart(name string, plan *schema.PlanResponse, f *facilities.Facility) (*charts.Chart, error) {
 	switch name {
 	case ChartEnvelope:
 		if f == nil {
@@ -67,7 +68,7 @@ func PlanChart(name string, plan *PlanResponse, f *facilities.Facility) (*charts
 }
 
 // noChart is the error for a chart that plan cannot have, and why.
-func noChart(name string, plan *PlanResponse, why string) error {
+func noChart(name string, plan *schema.PlanResponse, why string) error {
 	return &facilities.Error{Code: facilities.CodeNotFound,
 		Message: fmt.Sprintf("plan %s has no %s chart: %s", plan.ID, name, why)}
 }
@@ -86,8 +87,8 @@ func BalanceRatings(f *facilities.Facility, id string) (facilities.Ratings, erro
 // DecodePlan reads a stored plan's JSON body. A load report's
 // max_safe_dynamic_pressure written as null (no rated load grows with the
 // dynamic pressure) is read back as +Inf, as the planner answered it.
-func DecodePlan(body []byte) (*PlanResponse, error) {
-	var p PlanResponse
+func DecodePlan(body []byte) (*schema.PlanResponse, error) {
+	var p schema.PlanResponse
 	if err := json.Unmarshal(body, &p); err != nil {
 		return nil, fmt.Errorf("decoding a stored plan: %w", err)
 	}
@@ -108,7 +109,7 @@ func DecodePlan(body []byte) (*PlanResponse, error) {
 // FacilityOf returns the facility version plan was made in: inline, when the
 // request gave the facility inline, else the catalog's version plan names (the
 // demo catalog's facility when p has no catalog).
-func (p *Planner) FacilityOf(ctx context.Context, plan *PlanResponse, inline *facilities.Facility) (*facilities.Facility, error) {
+func (p *Planner) FacilityOf(ctx context.Context, plan *schema.PlanResponse, inline *facilities.Facility) (*facilities.Facility, error) {
 	if inline != nil {
 		f := *inline
 		return &f, nil
@@ -134,4 +135,25 @@ func facilityVersion(ctx context.Context, cat facilities.Catalog, id string, v i
 		return nil, err
 	}
 	return &f, nil
+}
+
+// StoredPlan returns the answer of plan id stored in cat and the facility version it used (nil
+// for a facility given inline). The plan not being stored is CodeNotFound.
+func StoredPlan(ctx context.Context, cat facilities.Catalog, id string) (*schema.PlanResponse, *facilities.Facility, error) {
+	rec, err := cat.Plan(ctx, id)
+	if err != nil {
+		return nil, nil, err
+	}
+	plan, err := DecodePlan(rec.Body)
+	if err != nil {
+		return nil, nil, err
+	}
+	if rec.FacilityID == "" {
+		return plan, nil, nil
+	}
+	f, err := facilityVersion(ctx, cat, rec.FacilityID, rec.FacilityVersion)
+	if err != nil {
+		return nil, nil, err
+	}
+	return plan, f, nil
 }

@@ -1,17 +1,18 @@
-package api_test
+package unitjson_test
 
 import (
 	"os"
 	"testing"
 
-	"scalematch/api"
+	"scalematch/api/schema"
+	"scalematch/internal/unitjson"
 )
 
 // BenchmarkDecode decodes the load test's plan request (the Orrin J16 in tsw-1, a
 // 21-point α sweep, unit strings in four fields) and, for comparison, the same
 // request with every value already SI, which takes the decoder's fast path.
 func BenchmarkDecode(b *testing.B) {
-	withUnits, err := os.ReadFile("testdata/load/plan-orrin-j16-tsw-1.json")
+	withUnits, err := os.ReadFile("../../api/testdata/load/plan-orrin-j16-tsw-1.json")
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -29,16 +30,16 @@ func BenchmarkDecode(b *testing.B) {
 		{"plan/si", siOnly},
 	} {
 		b.Run(bc.name, func(b *testing.B) {
-			var req api.PlanRequest
-			if err := api.Decode(bc.body, &req); err != nil {
+			var req schema.PlanRequest
+			if err := unitjson.Decode(bc.body, &req); err != nil {
 				b.Fatal(err)
 			}
 			b.ReportAllocs()
 			b.SetBytes(int64(len(bc.body)))
 			b.ResetTimer()
 			for b.Loop() {
-				var req api.PlanRequest
-				if err := api.Decode(bc.body, &req); err != nil {
+				var req schema.PlanRequest
+				if err := unitjson.Decode(bc.body, &req); err != nil {
 					b.Fatal(err)
 				}
 			}

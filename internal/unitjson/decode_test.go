@@ -1,4 +1,4 @@
-package api_test
+package unitjson_test
 
 import (
 	"encoding/json"
@@ -9,8 +9,8 @@ import (
 	"strings"
 	"testing"
 
-	"scalematch/api"
 	"scalematch/facilities"
+	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
 
@@ -52,7 +52,7 @@ type decodeTarget struct {
 func decodeOK(t *testing.T, body string) decodeTarget {
 	t.Helper()
 	var d decodeTarget
-	if err := api.Decode([]byte(body), &d); err != nil {
+	if err := unitjson.Decode([]byte(body), &d); err != nil {
 		t.Fatalf("Decode(%s): %v", body, err)
 	}
 	return d
@@ -196,7 +196,7 @@ func TestDecodeErrors(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			var d decodeTarget
 			d.Name = "before"
-			err := api.Decode([]byte(tc.body), &d)
+			err := unitjson.Decode([]byte(tc.body), &d)
 			if err == nil {
 				t.Fatalf("Decode(%s) = nil, want errors at %v", tc.body, tc.want)
 			}
@@ -239,7 +239,7 @@ func TestDecodeCapsErrorList(t *testing.T) {
 	}
 	b.WriteString(`]}}`)
 	var d decodeTarget
-	err := api.Decode([]byte(b.String()), &d)
+	err := unitjson.Decode([]byte(b.String()), &d)
 	fields := fieldsOf(t, err)
 	if len(fields) != 50 {
 		t.Errorf("got %d field errors, want the first 50", len(fields))
@@ -254,7 +254,7 @@ func TestDecodeCapsErrorList(t *testing.T) {
 
 func TestDecodeNeedsStructPointer(t *testing.T) {
 	for _, dst := range []any{nil, decodeTarget{}, new(int), (*decodeTarget)(nil)} {
-		err := api.Decode([]byte(`{}`), dst)
+		err := unitjson.Decode([]byte(`{}`), dst)
 		if err == nil || facilities.ErrorCode(err) != "" {
 			t.Errorf("Decode into %T: got %v, want a programming error", dst, err)
 		}
@@ -268,7 +268,7 @@ func TestDecodeMatchesEncodingJSON(t *testing.T) {
 		"alpha":{"from":-4,"to":16,"step":1},"offset":{"x":0.1,"z":-0.02},"points":3,"name":"n","loads":{"normal":1},
 		"facility":{"id":"x","medium":"water","stagnation_pressure":{"min":1,"max":2},"balances":[{"id":"b","safety_factor":1.5}]}}`)
 	var got, want decodeTarget
-	if err := api.Decode(body, &got); err != nil {
+	if err := unitjson.Decode(body, &got); err != nil {
 		t.Fatal(err)
 	}
 	if err := json.Unmarshal(body, &want); err != nil {
@@ -288,11 +288,11 @@ func ExampleDecode() {
 			Max float64 `json:"max"`
 		} `json:"pressure" unit:"Pa"`
 	}
-	err := api.Decode([]byte(`{"altitude":"35000 ft","scale":"1:16","pressure":{"min":"0.5 bar","max":"2.2 bar"}}`), &req)
+	err := unitjson.Decode([]byte(`{"altitude":"35000 ft","scale":"1:16","pressure":{"min":"0.5 bar","max":"2.2 bar"}}`), &req)
 	fmt.Println(err)
 	fmt.Printf("%.4g m, scale %.4g, %.4g to %.4g Pa\n", req.Altitude, req.Scale, req.Pressure.Min, req.Pressure.Max)
 
-	err = api.Decode([]byte(`{"altitude":"2 bar","scale":"1:0","presure":{}}`), &req)
+	err = unitjson.Decode([]byte(`{"altitude":"2 bar","scale":"1:0","presure":{}}`), &req)
 	for _, f := range err.(*facilities.Error).Fields {
 		fmt.Printf("%s: %s\n", f.Field, f.Message)
 	}
@@ -309,7 +309,7 @@ func TestDecodeAnyFieldErrorsInOrder(t *testing.T) {
 	want := []string{"extra.a", "extra.b[1]", "extra.d"}
 	for i := range 20 {
 		var d decodeTarget
-		fields := fieldsOf(t, api.Decode(body, &d))
+		fields := fieldsOf(t, unitjson.Decode(body, &d))
 		var got []string
 		for _, f := range fields {
 			got = append(got, f.Field)

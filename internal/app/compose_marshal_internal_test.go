@@ -1,4 +1,4 @@
-package api
+package app
 
 import (
 	"bytes"
@@ -9,7 +9,9 @@ import (
 	"path/filepath"
 	"testing"
 
+	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/unitjson"
 )
 
 // TestMarshalPlan checks marshalPlan against json.Marshal byte for byte on the
@@ -18,13 +20,13 @@ import (
 // the text marshalPlan looks for; and that a load report encoding/json refuses
 // (a NaN) is refused by marshalPlan too.
 func TestMarshalPlan(t *testing.T) {
-	files, err := filepath.Glob("../examples/*.json")
+	files, err := filepath.Glob("../../examples/*.json")
 	if err != nil || len(files) == 0 {
 		t.Fatalf("no examples: %v", err)
 	}
 	var p Planner
 	ctx := context.Background()
-	check := func(t *testing.T, resp *PlanResponse) {
+	check := func(t *testing.T, resp *schema.PlanResponse) {
 		t.Helper()
 		want, werr := json.Marshal(resp)
 		got, gerr := marshalPlan(resp)
@@ -38,8 +40,8 @@ func TestMarshalPlan(t *testing.T) {
 			t.Fatal(err)
 		}
 		t.Run(filepath.Base(file), func(t *testing.T) {
-			var req PlanRequest
-			if err := Decode(body, &req); err != nil {
+			var req schema.PlanRequest
+			if err := unitjson.Decode(body, &req); err != nil {
 				t.Fatal(err)
 			}
 			resp, err := p.Plan(ctx, &req)

@@ -1,4 +1,4 @@
-package api
+package unitjson
 
 import (
 	"bytes"
@@ -16,9 +16,8 @@ import (
 	"sync"
 	"unicode/utf8"
 
-	"github.com/gin-gonic/gin"
-
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/similarity"
 )
 
@@ -31,9 +30,6 @@ const (
 	// tag, so that the unit is not inherited.
 	UnitNone = "-"
 )
-
-// maxFieldErrors caps the field errors one body can produce; the rest are counted.
-const maxFieldErrors = 50
 
 // Decode reads the JSON object in body into dst, a non-nil pointer to a struct,
 // strictly and with units:
@@ -62,10 +58,10 @@ const maxFieldErrors = 50
 func Decode(body []byte, dst any) error {
 	rv := reflect.ValueOf(dst)
 	if rv.Kind() != reflect.Pointer || rv.IsNil() || rv.Elem().Kind() != reflect.Struct {
-		return fmt.Errorf("api: Decode needs a non-nil pointer to a struct, not %T", dst)
+		return fmt.Errorf("unitjson: Decode needs a non-nil pointer to a struct, not %T", dst)
 	}
 	if len(bytes.TrimSpace(body)) == 0 {
-		return bodyError("the body is empty: want a JSON object")
+		return BodyError("the body is empty: want a JSON object")
 	}
 	tree, ok := parseTree(body)
 	if !ok {
@@ -74,10 +70,10 @@ func Decode(body []byte, dst any) error {
 		dec := json.NewDecoder(bytes.NewReader(body))
 		dec.UseNumber()
 		if err := dec.Decode(&tree); err != nil {
-			return bodyError(syntaxMessage(err))
+			return BodyError(syntaxMessage(err))
 		}
 		if _, err := dec.Token(); err != io.EOF {
-			return bodyError("there is data after the JSON value")
+			return BodyError("there is data after the JSON value")
 		}
 	}
 	// The walk fills a copy, so that dst is changed only when all is well.
@@ -86,7 +82,7 @@ func Decode(body []byte, dst any) error {
 	w := walker{}
 	w.walk(tree, fresh, "", "")
 	if len(w.errs) > 0 {
-		msg := countFields(len(w.errs) + w.dropped)
+		msg := facilities.InvalidCount(len(w.errs) + w.dropped)
 		if w.dropped > 0 {
 			msg += fmt.Sprintf(" (the first %d are listed)", len(w.errs))
 		}
@@ -358,10 +354,11 @@ func (p *treeParser) digits() int {
 	return p.i - start
 }
 
-func bodyError(msg string) error { return fieldError("", msg) }
+// BodyError is the CodeInvalid error of a body as a whole (JSON path "").
+func BodyError(msg string) error { return fieldError("", msg) }
 
 func fieldError(path, msg string) error {
-	return &facilities.Error{Code: facilities.CodeInvalid, Message: countFields(1),
+	return &facilities.Error{Code: facilities.CodeInvalid, Message: facilities.InvalidCount(1),
 		Fields: []facilities.FieldError{{Field: path, Message: msg}}}
 }
 
@@ -385,7 +382,7 @@ type walker struct {
 }
 
 func (w *walker) add(path, msg string) {
-	if len(w.errs) >= maxFieldErrors {
+	if len(w.errs) >= check.MaxListed {
 		w.dropped++
 		return
 	}
@@ -884,33 +881,4 @@ func collectFields(t reflect.Type, prefix []int, fs *fieldSet, visiting map[refl
 	for _, e := range embedded {
 		collectFields(e.t, e.index, fs, visiting)
 	}
-}
-
-// decodeBody reads the request body (at most BodyLimit bytes) into dst with Decode.
-// On failure it answers the request with the problem (400 for bad input, 413 for a
-// body too large) and returns false; the handler then just returns.
-func (s *Server) decodeBody(c *gin.Context, dst any) bool {
-	if c.Request.Body == nil {
-		s.fail(c, bodyError("the body is empty: want a JSON object"))
-		return false
-	}
-	var body []byte
-	var err error
-	if n := c.Request.ContentLength; n > 0 && n <= BodyLimit {
-		// One allocation of the declared size (net/http's body reader stops there
-		// and fails a shorter body with io.ErrUnexpectedEOF, as io.ReadAll would).
-		body = make([]byte, n)
-		_, err = io.ReadFull(c.Request.Body, body)
-	} else {
-		body, err = io.ReadAll(c.Request.Body)
-	}
-	err = bodyReadError(err, c.Request.ContentLength)
-	if err == nil {
-		err = Decode(body, dst)
-	}
-	if err != nil {
-		s.fail(c, err)
-		return false
-	}
-	return true
 }

@@ -1,4 +1,4 @@
-package api
+package app
 
 import (
 	"maps"
@@ -17,19 +17,19 @@ var (
 )
 
 // Bounds returns the documented range of every number a request may carry, keyed
-// "schema.field" by OpenAPI schema name ("api.TestSettings.mach",
+// "schema.field" by OpenAPI schema name ("schema.TestSettings.mach",
 // "facilities.TestSection.width"): the facilities', the similarity package's and
 // the API's own. docs/openapi3 writes them into the OpenAPI document as minimum
 // and maximum.
 func Bounds() map[string]facilities.Bound {
 	m := facilities.Bounds()
 	maps.Copy(m, similarity.Bounds())
-	for _, schema := range []string{"api.TestSettings", "api.ConditionsRequest"} {
+	for _, schema := range []string{"schema.TestSettings", "schema.ConditionsRequest"} {
 		m[schema+".mach"] = BoundSettingMach
 		m[schema+".speed"] = BoundSettingSpeed
 		m[schema+".stagnation_pressure"] = facilities.BoundStagnationPressure
 		m[schema+".stagnation_temperature"] = facilities.BoundStagnationTemperature
 	}
-	m["api.LoadsModel.scale"] = similarity.BoundScale
+	m["schema.LoadsModel.scale"] = similarity.BoundScale
 	return m
 }
