@@ -1,6 +1,8 @@
 package unitjson_test
 
 import (
+	"bytes"
+	"encoding/json"
 	"os"
 	"testing"
 
@@ -25,13 +27,25 @@ func BenchmarkDecode(b *testing.B) {
 	for _, bc := range []struct {
 		name string
 		body []byte
+		std  bool // encoding/json instead of Decode
 	}{
-		{"plan/units", withUnits},
-		{"plan/si", siOnly},
+		{"plan/units", withUnits, false},
+		{"plan/si", siOnly, false},
+		// The same SI body through encoding/json with unknown fields refused: what
+		// Decode is measured against (encoding/json cannot read the unit strings).
+		{"plan/si/encoding-json", siOnly, true},
 	} {
+		decode := unitjson.Decode
+		if bc.std {
+			decode = func(body []byte, dst any) error {
+				dec := json.NewDecoder(bytes.NewReader(body))
+				dec.DisallowUnknownFields()
+				return dec.Decode(dst)
+			}
+		}
 		b.Run(bc.name, func(b *testing.B) {
 			var req schema.PlanRequest
-			if err := unitjson.Decode(bc.body, &req); err != nil {
+			if err := decode(bc.body, &req); err != nil {
 				b.Fatal(err)
 			}
 			b.ReportAllocs()
@@ -39,7 +53,7 @@ func BenchmarkDecode(b *testing.B) {
 			b.ResetTimer()
 			for b.Loop() {
 				var req schema.PlanRequest
-				if err := unitjson.Decode(bc.body, &req); err != nil {
+				if err := decode(bc.body, &req); err != nil {
 					b.Fatal(err)
 				}
 			}
