@@ -150,6 +150,9 @@ func Bounds() map[string]Bound {
 		"facilities.GasProperties.viscosity_reference":         {Min: 0, Max: gasMaxViscosity, MinExclusive: true, Unit: "Pa·s"},
 		"facilities.GasProperties.temperature_reference":       {Min: 0, Max: gasMaxTemperature, MinExclusive: true, Unit: "K"},
 		"facilities.GasProperties.sutherland_constant":         {Min: 0, Max: gasMaxTemperature, Unit: "K"},
+		"facilities.GasProperties.critical_temperature":        BoundGasCriticalTemperature,
+		"facilities.GasProperties.critical_pressure":           BoundGasCriticalPressure,
+		"facilities.GasProperties.acentric_factor":             BoundGasAcentricFactor,
 	}
 }
 

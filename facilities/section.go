@@ -229,20 +229,35 @@ func (f *Facility) condensationPeakMach() float64 {
 // it condenses and 0 sits on the line. At pressures at or above the critical
 // pressure, T_sat is taken as the critical temperature.
 //
-// Media without a saturation line in the model (air, custom gases, water) give
+// The saturation line is nitrogen's, air's dew line (Lemmon et al. 2000,
+// AirDewPressure) or, for a custom gas that states its critical point, the
+// Lee–Kesler vapour pressure (LeeKeslerVapourPressure); for air and custom gases
+// the local expansion follows their ideal-gas isentrope. Media without a
+// saturation line in the model (water, a custom gas without a critical point) give
 // +Inf, as does a state with no positive stagnation pressure and temperature.
 // CondensationMargin does not allocate.
 func (f *Facility) CondensationMargin(st State) float64 {
 	m := f.Medium
-	if m.Kind != MediumNitrogen || !(st.StagnationTemperature > 0 && st.StagnationPressure > 0) {
+	if !(st.StagnationTemperature > 0 && st.StagnationPressure > 0) {
 		return math.Inf(1)
 	}
-	free := nitrogenMargin(m, st.Static.Temperature, st.Static.Pressure)
+	margin := nitrogenMargin
+	switch m.Kind {
+	case MediumNitrogen:
+	case MediumAir, MediumGas:
+		if _, ok := m.dewTemperature(st.StagnationPressure); !ok {
+			return math.Inf(1)
+		}
+		margin = Medium.idealGasMargin
+	default:
+		return math.Inf(1)
+	}
+	free := margin(m, st.Static.Temperature, st.Static.Pressure)
 	peak := f.condensationPeakMach()
 	gamma := m.Gamma()
 	tl := st.StagnationTemperature / atmosphere.TemperatureRatio(peak, gamma)
 	pl := st.StagnationPressure / atmosphere.PressureRatio(peak, gamma)
-	return math.Min(free, nitrogenMargin(m, tl, pl))
+	return math.Min(free, margin(m, tl, pl))
 }
 
 // nitrogenMargin returns T/T_sat(p) − 1 for nitrogen at temperature T in K and
@@ -256,7 +271,9 @@ func nitrogenMargin(m Medium, t, p float64) float64 {
 }
 
 // Warnings returns the model warnings that apply to state st, for the API to show:
-// an extrapolated viscosity (nitrogen below 100 K), and a nitrogen state within 5 %
+// an extrapolated viscosity (nitrogen below 100 K), the medium's validity range
+// (rangeWarnings: air's and a custom gas's viscosity law, a gas far from ideal or
+// near its critical point), and a nitrogen state within 5 %
 // of saturation, where the Peng–Robinson density and the two-point saturation line
 // are least accurate. Empty (nil) when none apply.
 func (f *Facility) Warnings(st State) []string {
@@ -264,7 +281,8 @@ func (f *Facility) Warnings(st State) []string {
 	if msg := f.Medium.ViscosityWarning(st.Static.Temperature); msg != "" {
 		w = append(w, msg)
 	}
-	if margin := f.CondensationMargin(st); margin >= 0 && margin < nearSaturation {
+	w = append(w, f.rangeWarnings(st)...)
+	if margin := f.CondensationMargin(st); f.Medium.Kind == MediumNitrogen && margin >= 0 && margin < nearSaturation {
 		w = append(w, fmt.Sprintf(
 			"the flow comes within %.1f %% of nitrogen's saturation temperature (free stream or local Mach %g): density and the saturation line are least accurate there (about ±2 %%)",
 			100*margin, f.condensationPeakMach()))

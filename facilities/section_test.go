@@ -341,8 +341,19 @@ func TestCondensationLowestT0(t *testing.T) {
 	}
 }
 
+// TestCondensationMarginNoSaturationLine: water has no condensation rule (+Inf);
+// air at a wind tunnel's lowest stagnation temperature keeps a wide margin from its
+// dew line (Lemmon et al. 2000), above 1 (more than twice the dew temperature).
 func TestCondensationMarginNoSaturationLine(t *testing.T) {
-	for _, id := range []string{"tsw-1", "wtn-04"} {
+	air := mustDemo(t, "tsw-1")
+	st, err := air.State(facilities.Setting{Mach: 0.5, StagnationPressure: air.StagnationPressure.Min, StagnationTemperature: air.StagnationTemperature.Min})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m := air.CondensationMargin(st); !(m > 1) || math.IsInf(m, 1) {
+		t.Errorf("tsw-1: margin %g, want finite and above 1", m)
+	}
+	for _, id := range []string{"wtn-04"} {
 		f := mustDemo(t, id)
 		set := facilities.Setting{Mach: 0.5, StagnationPressure: f.StagnationPressure.Min, StagnationTemperature: f.StagnationTemperature.Min}
 		if f.Medium.IsLiquid() {

@@ -67,6 +67,12 @@ const (
 	ConstraintDynamic           = "max_dynamic_pressure"
 	ConstraintReynoldsUnit      = "max_reynolds_per_meter"
 	ConstraintCondensation      = "condensation"
+	// ConstraintBoiling: water at or above its boiling point at the stagnation
+	// pressure (IAPWS-IF97); the liquid model does not hold there.
+	ConstraintBoiling = "boiling"
+	// ConstraintCavitation: a water test section whose static pressure is below
+	// the IAPWS-IF97 vapour pressure.
+	ConstraintCavitation = "cavitation"
 	ConstraintSpan              = "max_span_fraction"
 	ConstraintBlockage          = "max_blockage"
 	ConstraintScaleMin          = "scale_min"

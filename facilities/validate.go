@@ -320,7 +320,7 @@ func gasFieldErrors(g *GasProperties, dst []FieldError) []FieldError {
 		dst = append(dst, FieldError{Field: "medium.gas.sutherland_constant", Message: fmt.Sprintf(
 			"%g K is outside 0 to %g K", g.SutherlandConstant, gasMaxTemperature)})
 	}
-	return dst
+	return gasCriticalErrors(g, dst)
 }
 
 // withUnit formats v with a unit when there is one.

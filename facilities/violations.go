@@ -13,8 +13,10 @@ const limitTolerance = 1e-9
 // Violations lists every facility limit that state st breaks, in this order: Mach
 // range (gas media), speed range, stagnation pressure (or, with StaticPressure, the
 // test-section static pressure) and temperature ranges, maximum
-// dynamic pressure, maximum Reynolds number per metre, and condensation (nitrogen:
-// CondensationMargin below 0, reported with Value the margin and Limit 0). Value and
+// dynamic pressure, maximum Reynolds number per metre, condensation (nitrogen, air,
+// a custom gas with a critical point: CondensationMargin below 0), boiling water
+// (BoilingMargin below 0) and cavitation (CavitationMargin below 0), the last three
+// reported with Value the margin and Limit 0. Value and
 // Limit are in the limit's SI unit. Ranges are checked with a relative slack of
 // 1e-9. The result is empty (non-nil, so it encodes as []) when st is within every
 // limit. Nil optional limits are not checked.
@@ -45,6 +47,7 @@ func (f *Facility) Violations(st State) []Violation {
 			Message: fmt.Sprintf("the flow reaches saturation (%.2g %% below the saturation temperature, free stream or local Mach %g): raise the stagnation temperature",
 				-100*margin, f.condensationPeakMach())})
 	}
+	v = appendRangeViolations(v, f, st)
 	return v
 }
 
