@@ -73,9 +73,9 @@ const (
 	// ConstraintCavitation: a water test section whose static pressure is below
 	// the IAPWS-IF97 vapour pressure.
 	ConstraintCavitation = "cavitation"
-	ConstraintSpan              = "max_span_fraction"
-	ConstraintBlockage          = "max_blockage"
-	ConstraintScaleMin          = "scale_min"
-	ConstraintScaleMax          = "scale_max"
-	ConstraintBalance           = "balance"
+	ConstraintSpan       = "max_span_fraction"
+	ConstraintBlockage   = "max_blockage"
+	ConstraintScaleMin   = "scale_min"
+	ConstraintScaleMax   = "scale_max"
+	ConstraintBalance    = "balance"
 )
