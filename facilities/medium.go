@@ -36,12 +36,14 @@ type GasProperties struct {
 	TemperatureReference float64 `json:"temperature_reference"`
 	// SutherlandConstant is S in K.
 	SutherlandConstant float64 `json:"sutherland_constant"`
-	// CriticalTemperature in K and CriticalPressure in Pa, optional (both or
-	// neither): with them the condensation rule (Lee–Kesler vapour pressure) and
-	// the near-critical warning apply to the gas; without them neither is checked
-	// and a warning says so.
+	// CriticalTemperature is the gas's critical temperature in K, optional, given
+	// with CriticalPressure: with both the condensation rule (Lee–Kesler vapour
+	// pressure) and the near-critical warning apply to the gas; without them
+	// neither is checked and a warning says so.
 	CriticalTemperature *float64 `json:"critical_temperature,omitempty"`
-	CriticalPressure    *float64 `json:"critical_pressure,omitempty"`
+	// CriticalPressure is the gas's critical pressure in Pa, optional, given with
+	// CriticalTemperature.
+	CriticalPressure *float64 `json:"critical_pressure,omitempty"`
 	// AcentricFactor is Pitzer's acentric factor ω, optional (0, a simple fluid,
 	// when absent; only used with a critical point).
 	AcentricFactor *float64 `json:"acentric_factor,omitempty"`
