@@ -240,6 +240,11 @@ func (r *rating) value(l *Load) float64 {
 // Balance.Ratings; the zero value limits nothing.
 type Ratings struct {
 	rows []rating
+	// single holds, per component, the index of its own rating row, −1 when
+	// it has none; covered marks the components that are rated or enter a
+	// gauge row with a non-zero coefficient.
+	single  [6]int
+	covered [6]bool
 	// SafetyFactor divides every rated load.
 	SafetyFactor float64
 }
@@ -282,7 +287,7 @@ func (b *Balance) ratings(idx int) (Ratings, error) {
 	case !(sf >= 1) || math.IsInf(sf, 0):
 		fe = append(fe, FieldError{at(".safety_factor"), fmt.Sprintf("must be at least 1, got %g", sf)})
 	}
-	rs := Ratings{SafetyFactor: sf}
+	rs := Ratings{SafetyFactor: sf, single: [6]int{-1, -1, -1, -1, -1, -1}}
 	single := [6]*float64{b.Limits.Normal, b.Limits.Axial, b.Limits.Side,
 		b.Limits.RollingMoment, b.Limits.PitchingMoment, b.Limits.YawingMoment}
 	for i, l := range single {
@@ -293,6 +298,7 @@ func (b *Balance) ratings(idx int) (Ratings, error) {
 			fe = append(fe, FieldError{at(".limits." + ComponentName(i)), fmt.Sprintf("must be a positive finite load, got %g", *l)})
 			continue
 		}
+		rs.single[i], rs.covered[i] = len(rs.rows), true
 		rs.rows = append(rs.rows, rating{name: ComponentName(i), index: i, limit: *l, allowed: *l / sf})
 	}
 	for j, c := range b.Combined {
@@ -319,6 +325,7 @@ func (b *Balance) ratings(idx int) (Ratings, error) {
 				fe = append(fe, FieldError{p(".coefficients." + k), "must be finite"})
 			default:
 				r.coef[i] = v
+				rs.covered[i] = rs.covered[i] || v != 0
 			}
 		}
 		rs.rows = append(rs.rows, r)
@@ -340,6 +347,40 @@ func (rs *Ratings) Utilization(l *Load) (u float64, row int) {
 		}
 	}
 	return u, row
+}
+
+// countSingle returns how many rows are single-component ratings.
+func countSingle(rs *Ratings) int {
+	n := 0
+	for _, i := range rs.single {
+		if i >= 0 {
+			n++
+		}
+	}
+	return n
+}
+
+// fillRows writes the six components of load l and then every gauge row into
+// rows (len 6 + gauge rows), marking the rating row limit as limiting.
+func (rs *Ratings) fillRows(rows []RowLoad, l *Load, limit int) {
+	k := 6
+	for i := range rs.rows {
+		r := &rs.rows[i]
+		at := k
+		if r.index >= 0 {
+			at = r.index
+		} else {
+			k++
+		}
+		v := r.value(l)
+		rows[at] = RowLoad{Name: r.name, Load: v, Rated: true, Covered: true, Rating: r.limit, Allowed: r.allowed,
+			ShareOfAllowed: math.Abs(v) / r.allowed, Limiting: i == limit}
+	}
+	for c := range 6 {
+		if rs.single[c] < 0 {
+			rows[c] = RowLoad{Name: ComponentName(c), Load: l[c], Covered: rs.covered[c]}
+		}
+	}
 }
 
 // RowName returns the name of row i: a component name or a combined row's name.
@@ -427,6 +468,69 @@ type LoadPoint struct {
 	YawingMoment    float64 `json:"yawing_moment"`
 	Utilization     float64 `json:"utilization"`
 	Limiting        string  `json:"limiting,omitempty"`
+	// Rows are every component (normal, axial, side, rolling_moment,
+	// pitching_moment, yawing_moment, in that order) and then every gauge row of
+	// the balance at this point, rated or not.
+	Rows []RowLoad `json:"rows"`
+}
+
+// RowLoad is one balance component or gauge row at one test point.
+type RowLoad struct {
+	// Name is the component's name or the gauge row's name.
+	Name string `json:"name"`
+	// Load is the component's load (N for forces, N·m for moments) or the gauge
+	// row's Σ coefficient·load, in its rating's unit.
+	Load float64 `json:"load"`
+	// Rated is false for a component with no rating of its own; such a component
+	// may still enter a gauge row (Covered).
+	Rated bool `json:"rated"`
+	// Covered reports that the row is rated or that a gauge row of the balance
+	// includes the component: false for a component the balance does not measure
+	// against any limit.
+	Covered bool `json:"covered"`
+	// Rating is the rated load (N, N·m or the gauge row's unit); 0 when not rated.
+	Rating float64 `json:"rating,omitempty"`
+	// Allowed is Rating ÷ the safety factor, in the same unit; 0 when not rated.
+	Allowed float64 `json:"allowed,omitempty"`
+	// ShareOfAllowed is |Load| ÷ Allowed (1 = at the allowed load); 0 when not
+	// rated.
+	ShareOfAllowed float64 `json:"share_of_allowed"`
+	// Limiting marks the row with the point's largest ShareOfAllowed.
+	Limiting bool `json:"limiting,omitempty"`
+}
+
+// Verdicts of a load check (LoadReport.Verdict and the answers built on it), in
+// the order of how far they are from letting the model be run.
+const (
+	// VerdictWithin: the model fits the test section, every point keeps every
+	// rated component and gauge row at or under its allowed load (rating ÷ safety
+	// factor), the weight is included and no unrated component carries load.
+	VerdictWithin = "within_allowed_loads"
+	// VerdictNotVerified: no rated row is above its allowed load, but the check
+	// cannot vouch for the loads: a component with no rating (and in no gauge
+	// row) carries load, the model's weight was left out, or the facility lists
+	// no balance to check.
+	VerdictNotVerified = "not_verified"
+	// VerdictOver: at least one point loads a rated component or gauge row above
+	// its allowed load (or the weight alone does): those points must not be run.
+	VerdictOver = "over_allowed_load"
+	// VerdictDoesNotFit: the model breaks a test-section limit (span, blockage or
+	// length); no load figure makes it runnable.
+	VerdictDoesNotFit = "does_not_fit"
+)
+
+// VerdictRank orders the verdicts from VerdictWithin (0) to VerdictDoesNotFit
+// (3); an unknown verdict ranks with VerdictNotVerified.
+func VerdictRank(v string) int {
+	switch v {
+	case VerdictWithin:
+		return 0
+	case VerdictOver:
+		return 2
+	case VerdictDoesNotFit:
+		return 3
+	}
+	return 1
 }
 
 // Limiting names a component (or gauge row) and the test point where it binds.
@@ -470,6 +574,14 @@ type LoadReport struct {
 	WeightIncluded bool `json:"weight_included"`
 	// Warnings are notes on the check's inputs.
 	Warnings []string `json:"warnings,omitempty"`
+	// Verdict is this balance's verdict on the loads (the Verdict* names; a
+	// report alone never says VerdictDoesNotFit: the fit is the answer's).
+	Verdict string `json:"verdict"`
+	// UnratedLoaded names the components that carry load at some point but have
+	// no rating and enter no gauge row: the check cannot vouch for them.
+	UnratedLoaded []string `json:"unrated_loaded,omitempty"`
+	// OverAllowed lists every point and row above its allowed load.
+	OverAllowed []Limiting `json:"over_allowed,omitempty"`
 }
 
 // MarshalJSON writes the report, with an unbounded MaxSafeDynamicPressure as null.
@@ -523,6 +635,8 @@ func (r LoadReport) MarshalJSON() ([]byte, error) {
 				w.raw(`,"limiting":`)
 				w.str(p.Limiting)
 			}
+			w.raw(`,"rows":`)
+			w.rows(p.Rows)
 			w.raw("}")
 		}
 		w.raw("]")
@@ -550,6 +664,28 @@ func (r LoadReport) MarshalJSON() ([]byte, error) {
 				w.raw(",")
 			}
 			w.str(s)
+		}
+		w.raw("]")
+	}
+	w.raw(`,"verdict":`)
+	w.str(r.Verdict)
+	if len(r.UnratedLoaded) > 0 {
+		w.raw(`,"unrated_loaded":[`)
+		for i, s := range r.UnratedLoaded {
+			if i > 0 {
+				w.raw(",")
+			}
+			w.str(s)
+		}
+		w.raw("]")
+	}
+	if len(r.OverAllowed) > 0 {
+		w.raw(`,"over_allowed":[`)
+		for i, l := range r.OverAllowed {
+			if i > 0 {
+				w.raw(",")
+			}
+			w.limiting(l)
 		}
 		w.raw("]")
 	}
@@ -586,6 +722,50 @@ func (w *jsonWriter) limiting(l Limiting) {
 	w.raw(`,"beta":`)
 	w.float(l.Beta)
 	w.raw("}")
+}
+
+// rows appends a point's rows as encoding/json would write them.
+func (w *jsonWriter) rows(rows []RowLoad) {
+	if rows == nil {
+		w.raw("null")
+		return
+	}
+	w.raw("[")
+	for i := range rows {
+		r := &rows[i]
+		if i > 0 {
+			w.raw(",")
+		}
+		w.raw(`{"name":`)
+		w.str(r.Name)
+		w.raw(`,"load":`)
+		w.float(r.Load)
+		if r.Rated {
+			w.raw(`,"rated":true`)
+		} else {
+			w.raw(`,"rated":false`)
+		}
+		if r.Covered {
+			w.raw(`,"covered":true`)
+		} else {
+			w.raw(`,"covered":false`)
+		}
+		if r.Rating != 0 {
+			w.raw(`,"rating":`)
+			w.float(r.Rating)
+		}
+		if r.Allowed != 0 {
+			w.raw(`,"allowed":`)
+			w.float(r.Allowed)
+		}
+		w.raw(`,"share_of_allowed":`)
+		w.float(r.ShareOfAllowed)
+		if r.Limiting {
+			w.raw(`,"limiting":true`)
+		}
+		w.raw("}")
+	}
+	w.raw("]")
 }
 
 // float appends f as encoding/json does: the shortest representation that reads
@@ -710,6 +890,9 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 		r.Warnings = append(r.Warnings, "model_mass not given: the model's weight is left out of the balance loads, which makes the check unconservative")
 	}
 	worst := -1
+	nrow := 6 + len(rs.rows) - countSingle(&rs)
+	table := make([]RowLoad, len(lc.Points)*nrow)
+	var unrated [6]bool
 	for i, p := range lc.Points {
 		perQ, weight := lc.Affine(i)
 		var l Load
@@ -717,6 +900,18 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 			l[k] = q*perQ[k] + weight[k]
 		}
 		u, row := rs.Utilization(&l)
+		rows := table[i*nrow : (i+1)*nrow : (i+1)*nrow]
+		rs.fillRows(rows, &l, row)
+		for k := range 6 {
+			if !rs.covered[k] && l[k] != 0 {
+				unrated[k] = true
+			}
+		}
+		for j := range rows {
+			if rows[j].ShareOfAllowed > 1+1e-12 {
+				r.OverAllowed = append(r.OverAllowed, Limiting{rows[j].Name, p.Alpha, p.Beta})
+			}
+		}
 		f := p.DynamicPressureFactor
 		if f == 0 {
 			f = 1
@@ -726,7 +921,7 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 			Normal: l[IndexNormal], Axial: l[IndexAxial], Side: l[IndexSide],
 			RollingMoment: l[IndexRollingMoment], PitchingMoment: l[IndexPitchingMoment],
 			YawingMoment: l[IndexYawingMoment],
-			Utilization:  u, Limiting: rs.RowName(row),
+			Utilization:  u, Limiting: rs.RowName(row), Rows: rows,
 		}
 		if worst < 0 || u > r.MaxUtilization {
 			worst, r.MaxUtilization = i, u
@@ -739,6 +934,23 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 	}
 	r.WithinLimits = r.MaxUtilization <= r.AllowedUtilization*(1+1e-12) &&
 		q <= r.MaxSafeDynamicPressure*(1+1e-12)
+	for k, u := range unrated {
+		if u {
+			r.UnratedLoaded = append(r.UnratedLoaded, ComponentName(k))
+		}
+	}
+	switch {
+	case !r.WithinLimits:
+		r.Verdict = VerdictOver
+	case len(r.UnratedLoaded) > 0 || !r.WeightIncluded:
+		r.Verdict = VerdictNotVerified
+	default:
+		r.Verdict = VerdictWithin
+	}
+	if len(r.UnratedLoaded) > 0 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("balance %s has no rating for %s, which carry load in this test matrix: the check cannot vouch for them (not verified)",
+			b.ID, strings.Join(r.UnratedLoaded, ", ")))
+	}
 	if r.MaxSafeDynamicPressure == 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("the model's weight alone loads %s beyond %.0f %% of its rating at α %.4g°: the balance carries it wind-off and on the way to the test's dynamic pressure",
 			r.MaxSafeLimiting.Component, 100*r.AllowedUtilization, r.MaxSafeLimiting.Alpha))

@@ -75,7 +75,10 @@ const (
 	ConstraintCavitation = "cavitation"
 	ConstraintSpan       = "max_span_fraction"
 	ConstraintBlockage   = "max_blockage"
-	ConstraintScaleMin   = "scale_min"
-	ConstraintScaleMax   = "scale_max"
-	ConstraintBalance    = "balance"
+	// ConstraintModelLength is the model's overall length against the test
+	// section's length, where both are known.
+	ConstraintModelLength = "max_model_length"
+	ConstraintScaleMin    = "scale_min"
+	ConstraintScaleMax    = "scale_max"
+	ConstraintBalance     = "balance"
 )

@@ -172,6 +172,13 @@ type PlanResponse struct {
 	// Binding lists every limit the plan sits on, with the Reynolds gain in per cent
 	// that one more per cent of it would buy.
 	Binding []similarity.Binding `json:"binding"`
+	// Verdict is the plan's load verdict: within_allowed_loads, not_verified,
+	// over_allowed_load or does_not_fit (docs/loads.md); scalematch plan exits 0
+	// only for within_allowed_loads.
+	Verdict string `json:"verdict" enums:"within_allowed_loads,not_verified,over_allowed_load,does_not_fit"`
+	// FitBroken lists the test-section limits the model breaks (max_span_fraction,
+	// max_blockage, max_model_length), before any load; empty when it fits.
+	FitBroken []facilities.Violation `json:"fit_broken"`
 	// Corrections are the wall corrections at the test condition (dimensionless
 	// factors; lift interference in degrees).
 	Corrections facilities.Corrections `json:"corrections"`
@@ -271,6 +278,14 @@ type LoadsResponse struct {
 	Mismatch *similarity.Mismatch `json:"mismatch,omitempty"`
 	// Violations are the facility limits the settings break; empty when none.
 	Violations []facilities.Violation `json:"violations"`
+	// Verdict is the check's verdict: within_allowed_loads, not_verified,
+	// over_allowed_load or does_not_fit (docs/loads.md). With every balance
+	// checked it is the best balance's. scalematch loads exits 0 only for
+	// within_allowed_loads.
+	Verdict string `json:"verdict" enums:"within_allowed_loads,not_verified,over_allowed_load,does_not_fit"`
+	// FitBroken lists the test-section limits the model breaks (max_span_fraction,
+	// max_blockage, max_model_length), before any load; empty when it fits.
+	FitBroken []facilities.Violation `json:"fit_broken"`
 	// Corrections are the wall corrections at the test condition.
 	Corrections facilities.Corrections `json:"corrections"`
 	// Loads is a load report (object) or a list of them (array): forces in N,

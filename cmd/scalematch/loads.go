@@ -29,8 +29,15 @@ names the catalog looked in.
 By default a table: the model, the test state, the facility limits the settings
 break, the wall corrections, and for the named balance (or every balance of the
 facility when installation.balance_id is absent) the loads at every angle of
-attack with their utilisation. --units us adds U.S. customary units beside the SI
+attack with their utilisation, one line per point with the limiting component or
+gauge row named (--rows: every component and gauge row at every point, with its
+load, rating, allowed load and share of it). The verdict and the test-section
+limits the model breaks come first. --units us adds U.S. customary units beside the SI
 ones. --json prints exactly the body POST /v1/loads returns.
+
+Exit status: 0 when the verdict is within_allowed_loads, 3 not_verified,
+4 over_allowed_load, 5 does_not_fit (the answer is printed in full first);
+1 for an error.
 
 Loads and limits are estimates only: the facility's approved limits, procedures
 and licensed engineering judgement govern.`,
@@ -59,9 +66,13 @@ and licensed engineering judgement govern.`,
 				return explain(inCatalog(err, o.where))
 			}
 			if o.json {
-				return writeAPIJSON(o.stdout, resp)
+				if err := writeAPIJSON(o.stdout, resp); err != nil {
+					return err
+				}
+			} else if err := writeLoadCheck(o.stdout, resp, o.units == "us", o.rows); err != nil {
+				return err
 			}
-			return writeLoadCheck(o.stdout, resp, o.units == "us")
+			return gate(resp.Verdict)
 		},
 	}
 	o.bind(cmd, true, "POST /v1/loads")
@@ -69,9 +80,10 @@ and licensed engineering judgement govern.`,
 }
 
 // writeLoadCheck prints the answer of a load check as a table.
-func writeLoadCheck(w io.Writer, r *schema.LoadsResponse, us bool) error {
+func writeLoadCheck(w io.Writer, r *schema.LoadsResponse, us, rows bool) error {
 	u := units{us}
 	fmt.Fprintf(w, "Load check: facility %s\n", r.FacilityID)
+	writeVerdict(w, r.Verdict, r.FitBroken)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	row := func(name, format string, args ...any) {
 		fmt.Fprintf(tw, "  %s\t"+format+"\n", append([]any{name}, args...)...)
@@ -125,6 +137,9 @@ func writeLoadCheck(w io.Writer, r *schema.LoadsResponse, us bool) error {
 	}
 	for _, rep := range reports {
 		writeLoads(w, u, rep)
+		if rows {
+			writeRows(w, rep)
+		}
 	}
 	writeNotes(w, r.Warnings, r.Cautions)
 	return nil

@@ -3,6 +3,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -13,8 +14,18 @@ import (
 func main() {
 	if err := run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr); err != nil {
 		fmt.Fprintln(os.Stderr, "scalematch:", err)
-		os.Exit(1)
+		os.Exit(exitStatus(err))
 	}
+}
+
+// exitStatus is the process exit status for an error of run: a verdict's own
+// status (verdict.go), else exitError.
+func exitStatus(err error) int {
+	var v verdictError
+	if errors.As(err, &v) {
+		return v.ExitCode()
+	}
+	return exitError
 }
 
 // run builds the command tree and executes it with the given arguments and streams;

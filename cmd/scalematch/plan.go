@@ -37,6 +37,8 @@ type computeOptions struct {
 	// stderr receives the names of the files written.
 	chartDir string
 	stderr   io.Writer
+	// rows prints every component and gauge row of every point.
+	rows bool
 }
 
 // bind adds the shared flags to cmd; withData adds --data and --units (groups needs
@@ -50,6 +52,7 @@ func (o *computeOptions) bind(cmd *cobra.Command, withData bool, jsonOf string) 
 	o.units = "si"
 	if withData { // every command with a catalog prints dimensional figures; groups does not
 		f.StringVar(&o.units, "units", "si", "units of the table: si, or us to add U.S. customary units beside them")
+		f.BoolVar(&o.rows, "rows", false, "print every component and gauge row of the balance at every point (load, rating, allowed load, share of it), not one line per point")
 	}
 }
 
@@ -187,6 +190,11 @@ beside the SI ones. --json prints exactly the body POST /v1/plans returns.
 --chart DIR also writes the plan's charts, the ones GET
 /v1/plans/{id}/charts/{name} serves, as DIR/NAME.svg, .png and .pdf.
 
+Exit status: 0 when the plan's load verdict is within_allowed_loads, 3
+not_verified, 4 over_allowed_load, 5 does_not_fit (the plan is printed in full
+first); 1 for an error. --rows prints every component and gauge row of the
+balance at every point.
+
 Loads and limits are estimates only: the facility's approved limits, procedures
 and licensed engineering judgement govern.`,
 		Example: `  scalematch plan request.json
@@ -230,14 +238,16 @@ func (o *computeOptions) plan(ctx context.Context, p *app.Planner, req *schema.P
 		if _, err = o.stdout.Write(b); err != nil {
 			return err
 		}
-		if o.chartDir == "" {
-			return nil
-		}
 		resp, err := app.DecodePlan(b)
 		if err != nil {
 			return err
 		}
-		return o.writeCharts(ctx, p, resp, req.Facility)
+		if o.chartDir != "" {
+			if err := o.writeCharts(ctx, p, resp, req.Facility); err != nil {
+				return err
+			}
+		}
+		return gate(resp.Verdict)
 	}
 	resp, err := p.Plan(ctx, req)
 	if err != nil {
@@ -247,10 +257,13 @@ func (o *computeOptions) plan(ctx context.Context, p *app.Planner, req *schema.P
 	if req.Facility != nil {
 		catalog = ""
 	}
-	if err := writePlan(o.stdout, resp, o.units == "us", catalog); err != nil {
+	if err := writePlan(o.stdout, resp, o.units == "us", catalog, o.rows); err != nil {
 		return err
 	}
-	return o.writeCharts(ctx, p, resp, req.Facility)
+	if err := o.writeCharts(ctx, p, resp, req.Facility); err != nil {
+		return err
+	}
+	return gate(resp.Verdict)
 }
 
 // units formats quantities in SI and, when us is set, in U.S. customary units
@@ -322,14 +335,16 @@ var bindingUnits = map[string]string{
 func section(w io.Writer, title string) { fmt.Fprintf(w, "\n%s\n", title) }
 
 // writePlan prints a plan as a table; catalog names the catalog the facility came
-// from (openCatalog's name), "" when the request gave its facility inline.
-func writePlan(w io.Writer, r *schema.PlanResponse, us bool, catalog string) error {
+// from (openCatalog's name), "" when the request gave its facility inline; rows
+// adds every balance component and gauge row at every point.
+func writePlan(w io.Writer, r *schema.PlanResponse, us bool, catalog string, rows bool) error {
 	u := units{us}
 	where := "given inline"
 	if catalog != "" {
 		where = fmt.Sprintf("%s, version %d", catalog, r.FacilityVersion)
 	}
 	fmt.Fprintf(w, "Plan %s: facility %s (%s)\n", r.ID, r.FacilityID, where)
+	writeVerdict(w, r.Verdict, r.FitBroken)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	row := func(name, format string, args ...any) {
 		fmt.Fprintf(tw, "  %s\t"+format+"\n", append([]any{name}, args...)...)
@@ -411,6 +426,9 @@ func writePlan(w io.Writer, r *schema.PlanResponse, us bool, catalog string) err
 
 	if r.Loads != nil {
 		writeLoads(w, u, *r.Loads)
+		if rows {
+			writeRows(w, *r.Loads)
+		}
 	}
 
 	if re := r.ReynoldsEffects; re != nil {
@@ -589,8 +607,11 @@ func writeLoads(w io.Writer, u units, r facilities.LoadReport) {
 	}
 	tw.Flush()
 	verdict := "within the allowed loads by this estimate (the safety factor is the only margin left for its error)"
-	if !r.WithinLimits {
+	switch {
+	case !r.WithinLimits:
 		verdict = "ABOVE the allowed load (rating ÷ safety factor): do not run the points marked !"
+	case len(r.UnratedLoaded) > 0:
+		verdict = "NOT VERIFIED: no rating for " + strings.Join(r.UnratedLoaded, ", ") + ", which carry load"
 	}
 	fmt.Fprintf(w, "  worst %.1f %% (%s at α %.4g°), %s; weight %s\n", 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha,
 		verdict, map[bool]string{true: "included", false: "left out (unconservative)"}[r.WeightIncluded])

@@ -16,6 +16,7 @@ import (
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -322,9 +323,22 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	}
 	out.Warnings = appendUnique(out.Warnings, mx.Warnings...)
 	out.Warnings = appendUnique(out.Warnings, f.Warnings(res.Test.State)...)
-	out.Corrections, out.Loads, err = loadsAt(f, &req.Article, req.Installation.WithBuoyancy(f), mx, res.Model.Scale, res.Test.State, &out.Warnings)
+	lr, err := loads.Check(&loads.Case{Facility: f, Article: &req.Article, Installation: req.Installation, Matrix: mx,
+		Scale: res.Model.Scale, State: res.Test.State})
 	if err != nil {
 		return nil, err
+	}
+	out.Corrections, out.Verdict, out.FitBroken = lr.Corrections, lr.Verdict, lr.FitBroken
+	if out.FitBroken == nil {
+		out.FitBroken = []facilities.Violation{}
+	}
+	out.Warnings = append(out.Warnings, lr.Warnings...)
+	if len(lr.Reports) > 0 {
+		out.Loads = &lr.Reports[0]
+		if lr.Reason != "" {
+			out.Warnings = append(out.Warnings, lr.Reason)
+		}
+		out.Warnings = append(out.Warnings, out.Loads.Warnings...)
 	}
 	if len(f.Balances) == 0 {
 		out.Warnings = append(out.Warnings, fmt.Sprintf("facility %s lists no balance: no load check", f.ID))
@@ -351,6 +365,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 		out.Buoyancy = b
 		out.Warnings = append(out.Warnings, b.Note())
 	}
+	out.Cautions = appendUnique(out.Cautions, loads.Cautions(&lr)...)
 	medium := f.Medium.Kind
 	re, err := similarity.ReynoldsEffect(&req.Article, res.Flight.Reynolds, res.Flight.Mach, res.Test.Reynolds, res.Test.Mach, medium)
 	if err != nil {
@@ -397,32 +412,6 @@ func appendUnique(list []string, add ...string) []string {
 		}
 	}
 	return list
-}
-
-// loadsAt computes the wall corrections of a model of the given scale at test state
-// st and the balance check of the matrix: the named balance or the automatic
-// choice. Notes are added to warnings. Loads is nil when the facility has no
-// balance.
-func loadsAt(f *facilities.Facility, a *similarity.Article, in facilities.Installation, mx similarity.Matrix, scale float64, st facilities.State, warnings *[]string) (facilities.Corrections, *facilities.LoadReport, error) {
-	s2 := scale * scale
-	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)
-	pts := append([]facilities.Point(nil), mx.Points...)
-	w.Apply(pts)
-	corr := w.Summary(pts, a.Aero.CorrectionLiftSlope())
-	*warnings = append(*warnings, w.Warnings...)
-	if len(f.Balances) == 0 {
-		return corr, nil, nil
-	}
-	lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * scale, Installation: in, Points: pts}
-	ch, err := lc.ChooseBalance(f, st.DynamicPressure)
-	if err != nil {
-		return corr, nil, err
-	}
-	if in.BalanceID == "" {
-		*warnings = append(*warnings, ch.Reason)
-	}
-	*warnings = append(*warnings, ch.Report.Warnings...)
-	return corr, &ch.Report, nil
 }
 
 // PlanJSON plans req and returns the answer's JSON exactly as POST /v1/plans sends

@@ -9,6 +9,7 @@ import (
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -85,46 +86,37 @@ func (p *Planner) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.
 		similarity.CompareCavitation(&out.Test, out.Mismatch, fl, f, similarity.DefaultCavitationTolerance)
 	}
 	out.Warnings = append(out.Warnings, f.Warnings(st)...)
-	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)
-	pts := append([]facilities.Point(nil), mx.Points...)
-	w.Apply(pts)
-	out.Corrections = w.Summary(pts, a.Aero.CorrectionLiftSlope())
-	out.Warnings = append(out.Warnings, w.Warnings...)
-	lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: lref, Installation: req.Installation.WithBuoyancy(f), Points: pts}
-	if req.Installation.BalanceID != "" {
-		ch, err := lc.ChooseBalance(f, st.DynamicPressure)
-		if err != nil {
-			return nil, err
-		}
-		out.Loads.One = &ch.Report
-		out.Warnings = append(out.Warnings, ch.Report.Warnings...)
-		if !ch.Report.WithinLimits {
-			out.Warnings = append(out.Warnings, overloadWarning(ch.Report))
-		}
-	} else {
-		all, err := lc.CheckAll(f, st.DynamicPressure)
-		if err != nil {
-			return nil, err
-		}
-		out.Loads.All = all
-		if len(all) > 0 {
-			out.Warnings = append(out.Warnings, all[0].Warnings...)
-		}
-		for _, r := range all {
-			if !r.WithinLimits {
-				out.Warnings = append(out.Warnings, overloadWarning(r))
-			}
-		}
+	res, err := loads.Check(&loads.Case{Facility: f, Article: a, Installation: req.Installation, Matrix: mx,
+		Scale: scale, State: st, Every: true})
+	if err != nil {
+		return nil, err
 	}
-	reports := out.Loads.All
-	if out.Loads.One != nil {
-		reports = []facilities.LoadReport{*out.Loads.One}
+	out.Verdict, out.FitBroken = res.Verdict, res.FitBroken
+	if out.FitBroken == nil {
+		out.FitBroken = []facilities.Violation{}
+	}
+	out.Corrections = res.Corrections
+	out.Warnings = append(out.Warnings, res.Warnings...)
+	reports := res.Reports
+	if req.Installation.BalanceID != "" {
+		out.Loads.One = &reports[0]
+	} else {
+		out.Loads.All = reports
+	}
+	if len(reports) > 0 {
+		out.Warnings = append(out.Warnings, reports[0].Warnings...)
+	}
+	for _, r := range reports {
+		if !r.WithinLimits {
+			out.Warnings = append(out.Warnings, overloadWarning(r))
+		}
 	}
 	out.Cautions = appendCautions(nil, f, reports...)
 	if b := modelBuoyancy(f, a, req.Installation, *req.Model.Scale); b != nil {
 		out.Buoyancy = b
 		out.Warnings = append(out.Warnings, b.Note())
 	}
+	out.Cautions = appendUnique(out.Cautions, loads.Cautions(&res)...)
 	out.Warnings = collapseWarnings(out.Warnings)
 	if err := CheckFinite(out, loadsInputs); err != nil {
 		return nil, err

@@ -1,0 +1,116 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strings"
+	"text/tabwriter"
+
+	"scalematch/facilities"
+)
+
+// Exit statuses of scalematch. A load check (scalematch loads) and a plan
+// (scalematch plan) that print their answer exit with the status of its verdict,
+// so that a script can gate on it; any error exits 1.
+const (
+	// exitOK: the verdict is within_allowed_loads (or the command has none).
+	exitOK = 0
+	// exitError: the command failed (bad input, no feasible plan, I/O).
+	exitError = 1
+	// exitNotVerified: the verdict is not_verified.
+	exitNotVerified = 3
+	// exitOverAllowed: the verdict is over_allowed_load.
+	exitOverAllowed = 4
+	// exitDoesNotFit: the verdict is does_not_fit.
+	exitDoesNotFit = 5
+)
+
+// verdictExit returns the exit status of a verdict.
+func verdictExit(v string) int {
+	switch v {
+	case facilities.VerdictWithin:
+		return exitOK
+	case facilities.VerdictOver:
+		return exitOverAllowed
+	case facilities.VerdictDoesNotFit:
+		return exitDoesNotFit
+	}
+	return exitNotVerified
+}
+
+// verdictError is returned by a command whose answer was printed in full but
+// whose verdict is not within_allowed_loads; main exits with its status.
+type verdictError struct{ verdict string }
+
+func (e verdictError) Error() string {
+	return fmt.Sprintf("verdict %s (exit status %d)", e.verdict, verdictExit(e.verdict))
+}
+
+// ExitCode is the process exit status for the verdict.
+func (e verdictError) ExitCode() int { return verdictExit(e.verdict) }
+
+// gate returns a verdictError for a verdict other than within_allowed_loads.
+func gate(verdict string) error {
+	if verdictExit(verdict) == exitOK {
+		return nil
+	}
+	return verdictError{verdict}
+}
+
+// verdictWords says a verdict to a reader.
+func verdictWords(v string) string {
+	switch v {
+	case facilities.VerdictWithin:
+		return "within the allowed loads (rating ÷ safety factor) on every rated component and gauge row, by this estimate"
+	case facilities.VerdictOver:
+		return "OVER the allowed load: do not run the points marked !"
+	case facilities.VerdictDoesNotFit:
+		return "DOES NOT FIT the test section: do not install the model"
+	}
+	return "NOT VERIFIED: a loaded component has no rating, the weight was left out, or there is no balance"
+}
+
+// writeVerdict prints the verdict and the broken fit limits, first of all.
+func writeVerdict(w io.Writer, verdict string, broken []facilities.Violation) {
+	fmt.Fprintf(w, "Verdict: %s (%s)\n", verdict, verdictWords(verdict))
+	section(w, "Fit in the test section")
+	if len(broken) == 0 {
+		fmt.Fprintln(w, "  fits: span, blockage and length within the section's limits")
+	}
+	for _, v := range broken {
+		fmt.Fprintf(w, "  - %s: %s\n", v.Constraint, v.Message)
+	}
+}
+
+// writeRows prints every component and gauge row of every point of a report:
+// load, rating, allowed load and share of the allowed load, the limiting row
+// marked *, a row over its allowed load marked !.
+func writeRows(w io.Writer, r facilities.LoadReport) {
+	fmt.Fprintf(w, "  every component and gauge row of balance %s (forces N, moments N·m; * limiting, ! over the allowed load)\n", r.BalanceID)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "  α °\tβ °\trow\tload\trating\tallowed\tof allowed %%\t\n")
+	for _, p := range r.Points {
+		for _, row := range p.Rows {
+			rating, allowed, share := "none", "none", "unrated"
+			if row.Covered && !row.Rated {
+				share = "in gauge rows"
+			}
+			if row.Rated {
+				rating, allowed = fmt.Sprintf("%.5g", row.Rating), fmt.Sprintf("%.5g", row.Allowed)
+				mark := ""
+				if row.Limiting {
+					mark += " *"
+				}
+				if row.ShareOfAllowed > 1 {
+					mark += " !"
+				}
+				share = fmt.Sprintf("%.1f%s", 100*row.ShareOfAllowed, mark)
+			}
+			fmt.Fprintf(tw, "  %.4g\t%.4g\t%s\t%.4g\t%s\t%s\t%s\t\n", p.Alpha, p.Beta, row.Name, row.Load, rating, allowed, share)
+		}
+	}
+	tw.Flush()
+	if len(r.UnratedLoaded) > 0 {
+		fmt.Fprintf(w, "  loaded but unrated: %s\n", strings.Join(r.UnratedLoaded, ", "))
+	}
+}

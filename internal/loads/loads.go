@@ -1,0 +1,180 @@
+// Package loads is the one home of the balance load check: the model's fit in
+// the test section, the wall corrections of the test matrix, the loads on every
+// component and gauge row of the facility's balances, and the verdict. Plans
+// (internal to the composition of POST /v1/plans) and load checks (POST
+// /v1/loads, scalematch loads) call Check; the planner's load ceiling is
+// similarity.BalanceLimit, and the load primitives (body axes, ratings, the
+// per-balance report) are facilities.LoadCase and facilities.LoadReport.
+//
+// The verdicts, from best to worst (facilities.Verdict*):
+//
+//   - within_allowed_loads: the model fits, and every point keeps every rated
+//     component and gauge row at or under its allowed load (rating ÷ safety
+//     factor), with the weight included and no unrated component loaded;
+//   - not_verified: nothing rated is over, but the check cannot vouch for the
+//     loads (an unrated component carries load, the weight was left out, the
+//     facility lists no balance);
+//   - over_allowed_load: a point loads a rated row above its allowed load;
+//   - does_not_fit: the model breaks a test-section limit.
+package loads
+
+import (
+	"fmt"
+	"strings"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
+)
+
+// Case is one load check: an article at a model scale in a facility at a test
+// state, with its installation and test matrix.
+type Case struct {
+	Facility *facilities.Facility
+	Article  *similarity.Article
+	// Installation places the model on the balance; in water its buoyancy
+	// (facilities.Installation.WithBuoyancy) is added here.
+	Installation facilities.Installation
+	Matrix       similarity.Matrix
+	// Scale is model length over full-scale length.
+	Scale float64
+	// State is the test state; its DynamicPressure (Pa) loads the model.
+	State facilities.State
+	// Every checks every balance of the facility when the installation names
+	// none; false chooses one (facilities.LoadCase.ChooseBalance).
+	Every bool
+}
+
+// Result is the answer of Check.
+type Result struct {
+	// FitBroken lists the test-section limits the model breaks; empty when it
+	// fits.
+	FitBroken []facilities.Violation
+	// Corrections are the wall corrections at the test state.
+	Corrections facilities.Corrections
+	// Reports are the load reports: the named or chosen balance's alone, or
+	// every balance's (Case.Every); nil when the facility has no balance.
+	Reports []facilities.LoadReport
+	// Reason says why the balance was chosen ("" when none was chosen).
+	Reason string
+	// Verdict is the check's verdict (facilities.Verdict*): does_not_fit when
+	// FitBroken is not empty, else the best report's (not_verified without one).
+	Verdict string
+	// Warnings are notes on the corrections and the loads, in order.
+	Warnings []string
+}
+
+// Check checks the case: the fit first, then the wall corrections and the loads.
+// A facility without balances gives no reports and the verdict not_verified.
+// Errors are facilities.Error values naming the field.
+func Check(c *Case) (Result, error) {
+	f, a, s := c.Facility, c.Article, c.Scale
+	s2 := s * s
+	res := Result{FitBroken: Fit(f, a, s)}
+	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, c.State.Mach)
+	pts := append([]facilities.Point(nil), c.Matrix.Points...)
+	w.Apply(pts)
+	res.Corrections = w.Summary(pts, a.Aero.CorrectionLiftSlope())
+	res.Warnings = append(res.Warnings, w.Warnings...)
+	if len(f.Balances) > 0 {
+		lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * s,
+			Installation: c.Installation.WithBuoyancy(f), Points: pts}
+		q := c.State.DynamicPressure
+		if c.Every && c.Installation.BalanceID == "" {
+			all, err := lc.CheckAll(f, q)
+			if err != nil {
+				return Result{}, err
+			}
+			res.Reports = all
+		} else {
+			ch, err := lc.ChooseBalance(f, q)
+			if err != nil {
+				return Result{}, err
+			}
+			res.Reports = []facilities.LoadReport{ch.Report}
+			if c.Installation.BalanceID == "" {
+				res.Reason = ch.Reason
+			}
+		}
+	}
+	res.Verdict = verdict(res.FitBroken, res.Reports)
+	return res, nil
+}
+
+// verdict is does_not_fit with broken fit limits, not_verified without reports,
+// else the best report's verdict: with every balance checked, the model can go
+// in on the best one.
+func verdict(broken []facilities.Violation, reports []facilities.LoadReport) string {
+	if len(broken) > 0 {
+		return facilities.VerdictDoesNotFit
+	}
+	if len(reports) == 0 {
+		return facilities.VerdictNotVerified
+	}
+	v := reports[0].Verdict
+	for _, r := range reports[1:] {
+		if facilities.VerdictRank(r.Verdict) < facilities.VerdictRank(v) {
+			v = r.Verdict
+		}
+	}
+	return v
+}
+
+// Fit returns the test-section limits that a model of article a at scale s
+// breaks in facility f, in this order: span over width (the facility's
+// max_span_fraction, 1 when it gives none: a model wider than the section never
+// fits), blockage (frontal area over the section's cross-section: the facility's
+// max_blockage, 1 when it gives none) and overall length against the section's
+// length (when the article and the record both give one). Values and limits are
+// fractions, or metres for the length.
+func Fit(f *facilities.Facility, a *similarity.Article, s float64) []facilities.Violation {
+	var out []facilities.Violation
+	ts := f.TestSection
+	if ts.Width > 0 {
+		lim, src := 1.0, "the test-section width"
+		if f.MaxSpanFraction != nil {
+			lim, src = *f.MaxSpanFraction, fmt.Sprintf("the facility's %.3g of the width", *f.MaxSpanFraction)
+		}
+		if v := a.Span * s / ts.Width; v > lim*(1+1e-12) {
+			out = append(out, facilities.Violation{Constraint: facilities.ConstraintSpan, Value: v, Limit: lim,
+				Message: fmt.Sprintf("the model's span of %.4g m is %.3g of the %.4g m test-section width, above %s", a.Span*s, v, ts.Width, src)})
+		}
+	}
+	if cs := ts.CrossSection(); cs > 0 {
+		lim, src := 1.0, "the whole test section"
+		if f.MaxBlockage != nil {
+			lim, src = *f.MaxBlockage, fmt.Sprintf("the facility's %.3g %%", 100**f.MaxBlockage)
+		}
+		if v := a.FrontalArea * s * s / cs; v > lim*(1+1e-12) {
+			out = append(out, facilities.Violation{Constraint: facilities.ConstraintBlockage, Value: v, Limit: lim,
+				Message: fmt.Sprintf("the model's frontal area of %.4g m² blocks %.3g %% of the %.4g m² test section, above %s", a.FrontalArea*s*s, 100*v, cs, src)})
+		}
+	}
+	if a.Length > 0 && ts.Length > 0 {
+		if v := a.Length * s; v > ts.Length*(1+1e-12) {
+			out = append(out, facilities.Violation{Constraint: facilities.ConstraintModelLength, Value: v, Limit: ts.Length,
+				Message: fmt.Sprintf("the model's length of %.4g m is longer than the %.4g m test section", v, ts.Length)})
+		}
+	}
+	return out
+}
+
+// Cautions returns the cautions of a result beyond facilities.Cautions: a model
+// that does not fit, and loads the check cannot vouch for.
+func Cautions(r *Result) []string {
+	var out []string
+	if len(r.FitBroken) > 0 {
+		names := make([]string, len(r.FitBroken))
+		for i, v := range r.FitBroken {
+			names[i] = v.Constraint
+		}
+		out = append(out, fmt.Sprintf("The model does not fit the test section (%s): do not install it. A model this size would strike or foul the walls or support, or carry wall interference no correction covers; change the model scale and check again.",
+			strings.Join(names, ", ")))
+	}
+	if r.Verdict == facilities.VerdictNotVerified {
+		out = append(out, CautionNotVerified)
+	}
+	return out
+}
+
+// CautionNotVerified goes with an answer whose loads are not verified.
+const CautionNotVerified = "The balance loads are not verified: a component without a rating carries load, the model's weight was left out, or there is no balance to check. Do not run until every loaded component is rated and the check is repeated with the model's weight."
