@@ -21,6 +21,9 @@ func main() {
 // exitStatus is the process exit status for an error of run: a verdict's own
 // status (verdict.go), else exitError.
 func exitStatus(err error) int {
+	if err == nil {
+		return exitOK
+	}
 	var v verdictError
 	if errors.As(err, &v) {
 		return v.ExitCode()

@@ -95,8 +95,13 @@ func checkForm(fs []facilities.Facility) []fieldset {
 
 // checkResult is the verdict and loads of a check.
 type checkResult struct {
-	FromPlan     string
-	Fits         bool
+	FromPlan string
+	// Verdict is the answer's verdict (facilities.Verdict*).
+	Verdict string
+	Fits    bool
+	// FitBroken are the test-section limits the model breaks; Violations the
+	// facility limits the test setting breaks.
+	FitBroken    []facilities.Violation
 	Violations   []facilities.Violation
 	WithinLoads  bool
 	LoadsSummary string
@@ -236,7 +241,8 @@ func (p *Pages) runCheck(r *http.Request, values map[string]string) (*checkResul
 	if resp.Loads.One != nil {
 		reports = []facilities.LoadReport{*resp.Loads.One}
 	}
-	res := &checkResult{Fits: len(resp.Violations) == 0, Violations: resp.Violations, Cautions: resp.Cautions, Warnings: resp.Warnings}
+	res := &checkResult{Verdict: resp.Verdict, Fits: len(resp.FitBroken) == 0 && len(resp.Violations) == 0, FitBroken: resp.FitBroken,
+		Violations: resp.Violations, Cautions: resp.Cautions, Warnings: resp.Warnings}
 	res.Test.Mach, res.Test.Speed, res.Test.DynamicPressure, res.Test.Reynolds = resp.Test.Mach, resp.Test.Speed, resp.Test.DynamicPressure, resp.Test.Reynolds
 	res.Model.ReferenceLength, res.Model.Blockage = resp.Model.ReferenceLength, resp.Model.Blockage
 	if err := res.addLoads(&f, "", reports); err != nil {
@@ -255,7 +261,8 @@ func planResult(plan *schema.PlanResponse, f *facilities.Facility) (*checkResult
 		return nil, facilities.Invalid("plan's facility is inline", []facilities.FieldError{{Field: planField,
 			Message: fmt.Sprintf("plan %s was made with a facility given inline, which is not stored", plan.ID)}})
 	}
-	res := &checkResult{FromPlan: plan.ID, Fits: true, Cautions: plan.Cautions, Warnings: plan.Warnings}
+	res := &checkResult{FromPlan: plan.ID, Verdict: plan.Verdict, Fits: len(plan.FitBroken) == 0, FitBroken: plan.FitBroken,
+		Cautions: plan.Cautions, Warnings: plan.Warnings}
 	res.Test.Mach, res.Test.Speed, res.Test.DynamicPressure, res.Test.Reynolds = plan.Test.Mach, plan.Test.Speed, plan.Test.DynamicPressure, plan.Test.Reynolds
 	res.Model.ReferenceLength, res.Model.Blockage = plan.Model.ReferenceLength, plan.Model.Blockage
 	if err := res.addLoads(f, plan.ID, []facilities.LoadReport{*plan.Loads}); err != nil {
@@ -282,10 +289,18 @@ func (res *checkResult) addLoads(f *facilities.Facility, planID string, reports 
 			return err
 		}
 		res.Loads = append(res.Loads, loadsView{Report: rep, Chart: u, ChartTitle: c.Title})
-		res.WithinLoads = res.WithinLoads && rep.WithinLimits
+		res.WithinLoads = res.WithinLoads && rep.Verdict == facilities.VerdictWithin
 		word := "within"
-		if !rep.WithinLimits {
+		switch rep.Verdict {
+		case facilities.VerdictOver:
 			word = "OVER"
+		case facilities.VerdictNotVerified:
+			word = "NOT VERIFIED"
+			if len(rep.UnratedLoaded) > 0 {
+				word += " (no rating for " + strings.Join(rep.UnratedLoaded, ", ") + ")"
+			} else if !rep.WeightIncluded {
+				word += " (weight left out)"
+			}
 		}
 		parts = append(parts, fmt.Sprintf("balance %s: largest %.1f %% of the %s rating (allowed %.1f %%), %s",
 			rep.BalanceID, 100*rep.MaxUtilization, strings.ReplaceAll(rep.Limiting.Component, "_", " "), 100*rep.AllowedUtilization, word))

@@ -133,6 +133,7 @@ func funcs() template.FuncMap {
 		},
 		"limit": charts.LimitLabel,
 		"row":   func(s string) string { return strings.ReplaceAll(s, "_", " ") },
+		"verdict": verdictWords,
 		"utc":   func(t time.Time) string { return t.UTC().Format("2006-01-02 15:04:05") },
 		"safeq": func(q float64) string {
 			switch {
@@ -329,4 +330,18 @@ func dataURL(c *charts.Chart) (template.URL, error) {
 		return "", err
 	}
 	return template.URL("data:image/svg+xml;base64," + base64.StdEncoding.EncodeToString(b)), nil
+}
+
+// verdictWords says a load verdict (facilities.Verdict*) to facility staff,
+// worded to its danger.
+func verdictWords(v string) string {
+	switch v {
+	case facilities.VerdictWithin:
+		return "Within the allowed loads (rating ÷ safety factor) on every rated component and gauge row, by this estimate."
+	case facilities.VerdictOver:
+		return "Over the allowed load: do not run the points marked OVER."
+	case facilities.VerdictDoesNotFit:
+		return "Does not fit the test section: do not install the model."
+	}
+	return "Not verified: a loaded component has no rating, the weight was left out, or there is no balance; do not run until the loads are verified."
 }
