@@ -131,10 +131,10 @@ func funcs() template.FuncMap {
 			}
 			return charts.Number(*v, 4)
 		},
-		"limit": charts.LimitLabel,
-		"row":   func(s string) string { return strings.ReplaceAll(s, "_", " ") },
+		"limit":   charts.LimitLabel,
+		"row":     func(s string) string { return strings.ReplaceAll(s, "_", " ") },
 		"verdict": verdictWords,
-		"utc":   func(t time.Time) string { return t.UTC().Format("2006-01-02 15:04:05") },
+		"utc":     func(t time.Time) string { return t.UTC().Format("2006-01-02 15:04:05") },
 		"safeq": func(q float64) string {
 			switch {
 			case math.IsInf(q, 1):
