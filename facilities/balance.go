@@ -582,6 +582,72 @@ type LoadReport struct {
 	UnratedLoaded []string `json:"unrated_loaded,omitempty"`
 	// OverAllowed lists every point and row above its allowed load.
 	OverAllowed []Limiting `json:"over_allowed,omitempty"`
+	// Uncertainty is, per point in the order of Points, the 2σ uncertainty of
+	// the coefficients from the balance's accuracy (Balance.Accuracy); empty
+	// when the balance gives no accuracy.
+	Uncertainty []Uncertainty `json:"uncertainty,omitempty"`
+	// UncertaintyUnknown names the coefficients whose uncertainty is not known
+	// (a component they need has no accuracy).
+	UncertaintyUnknown []string `json:"uncertainty_unknown,omitempty"`
+}
+
+// Uncertainty is the 2σ uncertainty of the coefficients at one point, from the
+// balance components' 2σ uncertainties δF at the point's corrected dynamic
+// pressure q_c, the model's reference area S and reference length c:
+//
+//	δC = δF/(q_c·S) for forces, δF/(q_c·S·c) for moments,
+//	δC_L = √((δN·cos α)² + (δA·sin α)²)/(q_c·S),
+//	δC_D = √((δA·cos α)² + (δN·sin α)²)/(q_c·S)
+//
+// (the rotation of normal and axial force into lift and drag at angle of
+// attack α; sideslip is not in the rotation). A coefficient that is not known is
+// 0 and named in LoadReport.UncertaintyUnknown. At q_c = 0 nothing is resolved
+// and every figure is 0 with "all" unknown.
+type Uncertainty struct {
+	Alpha float64 `json:"alpha"`
+	Beta  float64 `json:"beta"`
+	// CL is δC_L (dimensionless).
+	CL float64 `json:"cl,omitempty"`
+	// CDCounts is δC_D in drag counts (1 count = 0.0001).
+	CDCounts float64 `json:"cd_counts,omitempty"`
+	// Cm is δC_m (dimensionless).
+	Cm float64 `json:"cm,omitempty"`
+	// CY is δC_Y (dimensionless).
+	CY float64 `json:"cy,omitempty"`
+	// Cl is δC_l, the rolling moment (dimensionless).
+	Cl float64 `json:"cl_roll,omitempty"`
+	// Cn is δC_n (dimensionless).
+	Cn float64 `json:"cn,omitempty"`
+}
+
+// CoefficientUncertainty returns the 2σ uncertainty of the coefficients at
+// angle of attack alphaDeg (degrees) for component uncertainties d (N, N·m;
+// known[i] false where not given), corrected dynamic pressure qc (Pa),
+// reference area s (m²) and length c (m), and the names of the coefficients not
+// known.
+func CoefficientUncertainty(d Load, known [6]bool, alphaDeg, qc, s, c float64) (Uncertainty, []string) {
+	u := Uncertainty{}
+	var unknown []string
+	qs := qc * s
+	sa, ca := math.Sincos(alphaDeg * math.Pi / 180)
+	if known[IndexNormal] && known[IndexAxial] {
+		u.CL = math.Hypot(d[IndexNormal]*ca, d[IndexAxial]*sa) / qs
+		u.CDCounts = 1e4 * math.Hypot(d[IndexAxial]*ca, d[IndexNormal]*sa) / qs
+	} else {
+		unknown = append(unknown, "cl", "cd")
+	}
+	one := func(i int, name string, den float64, dst *float64) {
+		if known[i] {
+			*dst = d[i] / den
+		} else {
+			unknown = append(unknown, name)
+		}
+	}
+	one(IndexPitchingMoment, "cm", qs*c, &u.Cm)
+	one(IndexSide, "cy", qs, &u.CY)
+	one(IndexRollingMoment, "cl_roll", qs*c, &u.Cl)
+	one(IndexYawingMoment, "cn", qs*c, &u.Cn)
+	return u, unknown
 }
 
 // MarshalJSON writes the report, with an unbounded MaxSafeDynamicPressure as null.
@@ -689,6 +755,26 @@ func (r LoadReport) MarshalJSON() ([]byte, error) {
 		}
 		w.raw("]")
 	}
+	if len(r.Uncertainty) > 0 {
+		w.raw(`,"uncertainty":[`)
+		for i := range r.Uncertainty {
+			if i > 0 {
+				w.raw(",")
+			}
+			w.uncertainty(&r.Uncertainty[i])
+		}
+		w.raw("]")
+	}
+	if len(r.UncertaintyUnknown) > 0 {
+		w.raw(`,"uncertainty_unknown":[`)
+		for i, s := range r.UncertaintyUnknown {
+			if i > 0 {
+				w.raw(",")
+			}
+			w.str(s)
+		}
+		w.raw("]")
+	}
 	w.raw(`,"max_safe_dynamic_pressure":`)
 	if math.IsInf(r.MaxSafeDynamicPressure, 0) {
 		w.raw("null")
@@ -721,6 +807,25 @@ func (w *jsonWriter) limiting(l Limiting) {
 	w.float(l.Alpha)
 	w.raw(`,"beta":`)
 	w.float(l.Beta)
+	w.raw("}")
+}
+
+// uncertainty appends one point's uncertainty, zero figures left out as
+// encoding/json's omitempty does.
+func (w *jsonWriter) uncertainty(u *Uncertainty) {
+	w.raw(`{"alpha":`)
+	w.float(u.Alpha)
+	w.raw(`,"beta":`)
+	w.float(u.Beta)
+	for _, f := range []struct {
+		key string
+		v   float64
+	}{{`,"cl":`, u.CL}, {`,"cd_counts":`, u.CDCounts}, {`,"cm":`, u.Cm}, {`,"cy":`, u.CY}, {`,"cl_roll":`, u.Cl}, {`,"cn":`, u.Cn}} {
+		if f.v != 0 {
+			w.raw(f.key)
+			w.float(f.v)
+		}
+	}
 	w.raw("}")
 }
 
@@ -937,6 +1042,19 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 	for k, u := range unrated {
 		if u {
 			r.UnratedLoaded = append(r.UnratedLoaded, ComponentName(k))
+		}
+	}
+	if b.Accuracy != nil && q > 0 {
+		var d Load
+		var known [6]bool
+		for k := range d {
+			d[k], known[k] = b.Accuracy.Of(k, &b.Limits)
+		}
+		r.Uncertainty = make([]Uncertainty, len(lc.Points))
+		for i, p := range lc.Points {
+			r.Uncertainty[i], r.UncertaintyUnknown = CoefficientUncertainty(d, known, p.Alpha, r.Points[i].DynamicPressure,
+				lc.ReferenceArea, lc.ReferenceLength)
+			r.Uncertainty[i].Alpha, r.Uncertainty[i].Beta = p.Alpha, p.Beta
 		}
 	}
 	switch {

@@ -90,6 +90,9 @@ var (
 	BoundMoment = Bound{Min: 1e-3, Max: 1e9, Unit: "N·m"}
 	// BoundSafetyFactor bounds a balance's safety factor.
 	BoundSafetyFactor = Bound{Min: 1, Max: 100}
+	// BoundAccuracyFraction bounds a balance's accuracy.fraction_of_rating (2σ,
+	// a fraction of the rating: 0.0005 is 0.05 %).
+	BoundAccuracyFraction = Bound{Min: 1e-6, Max: 0.5}
 	// BoundCoefficient bounds the size of a gauge row's coefficient (1 or 1/m).
 	BoundCoefficient = Bound{Min: -1e6, Max: 1e6}
 	// BoundRowLimit bounds a gauge row's limit (the row's unit, N or N·m).
@@ -135,6 +138,7 @@ func Bounds() map[string]Bound {
 		"facilities.Limits.pitching_moment":                    BoundMoment,
 		"facilities.Limits.yawing_moment":                      BoundMoment,
 		"facilities.Balance.safety_factor":                     BoundSafetyFactor,
+		"facilities.Accuracy.fraction_of_rating":               BoundAccuracyFraction,
 		"facilities.CombinedLimit.coefficients":                BoundCoefficient,
 		"facilities.CombinedLimit.limit":                       BoundRowLimit,
 		"facilities.Operations.seconds_per_point":              BoundSecondsPerPoint,

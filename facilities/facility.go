@@ -121,6 +121,43 @@ type Balance struct {
 	Combined []CombinedLimit `json:"combined,omitempty" maxItems:"50"`
 	// SafetyFactor divides every rating: a plan keeps utilisation ≤ 1/SafetyFactor.
 	SafetyFactor float64 `json:"safety_factor"`
+	// Accuracy is the balance's measurement uncertainty (2σ); nil: not known,
+	// and load answers give no coefficient uncertainty.
+	Accuracy *Accuracy `json:"accuracy,omitempty"`
+}
+
+// Accuracy is a balance's 2σ measurement uncertainty per component: a fraction
+// of each component's rating, or per component in N and N·m (which wins for the
+// components it gives).
+type Accuracy struct {
+	// FractionOfRating is the 2σ uncertainty as a fraction of each rated
+	// component's rating (0.0005 = 0.05 %); 0: none given.
+	FractionOfRating float64 `json:"fraction_of_rating,omitempty"`
+	// Components gives the 2σ uncertainty of single components in N (forces) and
+	// N·m (moments), rated or not.
+	Components *Limits `json:"components,omitempty"`
+}
+
+// Of returns the 2σ uncertainty of component i (N or N·m) of a balance with
+// the given limits, and whether it is known.
+func (a *Accuracy) Of(i int, l *Limits) (float64, bool) {
+	if a == nil {
+		return 0, false
+	}
+	if a.Components != nil {
+		if v := limitsArray(a.Components)[i]; v != nil {
+			return *v, true
+		}
+	}
+	if r := limitsArray(l)[i]; r != nil && a.FractionOfRating > 0 {
+		return a.FractionOfRating * *r, true
+	}
+	return 0, false
+}
+
+// limitsArray returns the components of l in Load index order.
+func limitsArray(l *Limits) [6]*float64 {
+	return [6]*float64{l.Normal, l.Axial, l.Side, l.RollingMoment, l.PitchingMoment, l.YawingMoment}
 }
 
 // Limits are a balance's rated loads: forces in N, moments in N·m, body axes.

@@ -180,6 +180,25 @@ func (f *Facility) Validate() error {
 			}
 		}
 		BoundSafetyFactor.Check(&e, p+".safety_factor", b.SafetyFactor)
+		if a := b.Accuracy; a != nil {
+			if a.FractionOfRating != 0 {
+				BoundAccuracyFraction.Check(&e, p+".accuracy.fraction_of_rating", a.FractionOfRating)
+			}
+			if a.Components != nil {
+				for _, c := range limitComponents(a.Components) {
+					if c.v != nil {
+						bound := BoundForce
+						if strings.HasSuffix(c.name, "_moment") {
+							bound = BoundMoment
+						}
+						bound.Check(&e, p+".accuracy.components."+c.name, *c.v)
+					}
+				}
+			}
+			if a.FractionOfRating == 0 && a.Components == nil {
+				add(p+".accuracy", "give fraction_of_rating or components, or leave accuracy out")
+			}
+		}
 		rows := make(map[string]int, len(b.Combined))
 		for j, row := range b.Combined {
 			rp := fmt.Sprintf("%s.combined[%d]", p, j)

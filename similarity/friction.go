@@ -212,6 +212,9 @@ type ReynoldsEffects struct {
 	TripsRecommended bool `json:"trips_recommended"`
 	// Notes explain the recommendation and the estimate's limits.
 	Notes []string `json:"notes,omitempty"`
+	// Trip sizes the trip when trips are recommended (Braslow & Knox 1958,
+	// NACA TN 4363; see SizeTrip); absent otherwise.
+	Trip *TripSize `json:"trip,omitempty"`
 }
 
 // ReynoldsEffect estimates the skin-friction drag shift of a model test: the flight

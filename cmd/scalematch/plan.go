@@ -443,6 +443,12 @@ func writePlan(w io.Writer, r *schema.PlanResponse, us bool, catalog string, row
 			trips = "yes"
 		}
 		row("trips recommended", "%s", trips)
+		if tr := re.Trip; tr != nil {
+			row("trip (Braslow & Knox)", "%.3g mm high at %.3g mm from the leading edge (%.0f %% chord); boundary layer %.3g mm there", tr.Height, tr.Position, 100*tr.PositionFraction, tr.BoundaryLayerThickness)
+			for _, n := range tr.Notes[1:] {
+				row("", "%s", n)
+			}
+		}
 		flush()
 	}
 
@@ -617,6 +623,7 @@ func writeLoads(w io.Writer, u units, r facilities.LoadReport) {
 		verdict, map[bool]string{true: "included", false: "left out (unconservative)"}[r.WeightIncluded])
 	fmt.Fprintf(w, "  allowed load reached at dynamic pressure %s by this estimate (%s at α %.4g°)\n", u.q(r.MaxSafeDynamicPressure, "Pa", 5),
 		r.MaxSafeLimiting.Component, r.MaxSafeLimiting.Alpha)
+	writeUncertainty(w, r)
 }
 
 // writeNotes prints the warnings and cautions as lists.

@@ -114,3 +114,23 @@ func writeRows(w io.Writer, r facilities.LoadReport) {
 		fmt.Fprintf(w, "  loaded but unrated: %s\n", strings.Join(r.UnratedLoaded, ", "))
 	}
 }
+
+// writeUncertainty prints the range over the sweep of the coefficients' 2σ
+// uncertainty from the balance's accuracy, or that the balance gives none.
+func writeUncertainty(w io.Writer, r facilities.LoadReport) {
+	if len(r.Uncertainty) == 0 {
+		fmt.Fprintf(w, "  resolution: not known (balance %s gives no accuracy)\n", r.BalanceID)
+		return
+	}
+	lo, hi := r.Uncertainty[0], r.Uncertainty[0]
+	for _, u := range r.Uncertainty[1:] {
+		lo.CL, hi.CL = min(lo.CL, u.CL), max(hi.CL, u.CL)
+		lo.CDCounts, hi.CDCounts = min(lo.CDCounts, u.CDCounts), max(hi.CDCounts, u.CDCounts)
+		lo.Cm, hi.Cm = min(lo.Cm, u.Cm), max(hi.Cm, u.Cm)
+	}
+	fmt.Fprintf(w, "  resolution (2σ from the balance accuracy, over the sweep): C_D %.3g–%.3g counts, C_L %.3g–%.3g, C_m %.3g–%.3g\n",
+		lo.CDCounts, hi.CDCounts, lo.CL, hi.CL, lo.Cm, hi.Cm)
+	if len(r.UncertaintyUnknown) > 0 {
+		fmt.Fprintf(w, "  resolution not known for: %s\n", strings.Join(r.UncertaintyUnknown, ", "))
+	}
+}

@@ -371,6 +371,10 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	if err != nil {
 		return nil, err
 	}
+	if re.TripsRecommended {
+		t := similarity.SizeTrip(res.Test.Reynolds, res.Model.ReferenceLength, re.NaturalTransitionFraction)
+		re.Trip = &t
+	}
 	out.ReynoldsEffects = &re
 	out.ID = pp.id
 	out.Warnings = collapseWarnings(out.Warnings)

@@ -1,0 +1,136 @@
+package similarity
+
+import (
+	"fmt"
+	"math"
+)
+
+// Transition-trip sizing by the criterion of Braslow & Knox (1958, NACA TN 4363,
+// "Simplified method for determination of critical height of distributed
+// roughness particles for boundary-layer transition at Mach numbers from 0 to
+// 5"): a roughness of height k fixes transition when its roughness Reynolds
+// number Re_k = u_k·k/ν_k, with u_k and ν_k the local flow at the top of the
+// roughness, reaches a critical value, about 600 for three-dimensional
+// (distributed grit) roughness at subsonic speeds (Braslow, Hicks & Harris 1966,
+// NASA TN D-3579; from memory).
+//
+// The local flow here is the stated approximation of a flat plate at zero
+// pressure gradient with a laminar Blasius profile, the free-stream speed and
+// kinematic viscosity at the edge and at the top of the roughness (a low-speed
+// approximation: the compressible profile of Braslow & Knox raises the height at
+// high subsonic Mach numbers).
+const (
+	// TripCriticalRoughnessReynolds is the critical Re_k (Braslow, Hicks &
+	// Harris 1966, NASA TN D-3579; from memory).
+	TripCriticalRoughnessReynolds = 600
+	// TripPositionFraction is the trip's distance from the leading edge as a
+	// fraction of the model's reference chord (5 %, common practice).
+	TripPositionFraction = 0.05
+	// blasiusEdgeEta is the Blasius similarity variable η = y·√(U/(ν·x)) at
+	// which u = 0.99·U: δ99 = 4.91·x/√Re_x (Schlichting, Boundary-Layer Theory,
+	// 7th ed. 1979, ch. VII; from memory).
+	blasiusEdgeEta = 4.91
+	// blasiusWallShear is f''(0) of the Blasius equation f''' + ½·f·f'' = 0
+	// (0.33206; Schlichting 1979, ch. VII; from memory).
+	blasiusWallShear = 0.332057
+)
+
+// TripSize is the size and place of a transition trip on the model.
+type TripSize struct {
+	// PositionFraction is the trip's distance from the leading edge over the
+	// model's reference chord.
+	PositionFraction float64 `json:"position_fraction"`
+	// Position is that distance in mm.
+	Position float64 `json:"position_mm" unit:"mm"`
+	// Height is the roughness height k in mm at which Re_k reaches
+	// CriticalRoughnessReynolds.
+	Height float64 `json:"height_mm" unit:"mm"`
+	// CriticalRoughnessReynolds is the Re_k used (dimensionless).
+	CriticalRoughnessReynolds float64 `json:"critical_roughness_reynolds"`
+	// LocalReynolds is Re_x = U·x/ν at the trip (dimensionless).
+	LocalReynolds float64 `json:"local_reynolds"`
+	// BoundaryLayerThickness is the laminar δ99 at the trip in mm (Blasius).
+	BoundaryLayerThickness float64 `json:"boundary_layer_thickness_mm" unit:"mm"`
+	// ExceedsBoundaryLayer: the height is above δ99, the trip over-trips
+	// (thickens the boundary layer and adds its own drag).
+	ExceedsBoundaryLayer bool `json:"exceeds_boundary_layer"`
+	// Pointless: natural transition on the model is already ahead of the trip
+	// position at the test Reynolds number.
+	Pointless bool `json:"pointless"`
+	// Notes say what the figures mean.
+	Notes []string `json:"notes,omitempty"`
+}
+
+// SizeTrip sizes a trip at TripPositionFraction of a model reference chord
+// chord (m) at the model Reynolds number reChord on it, with natural transition
+// at transitionFraction of the chord: the height k with
+// f'(η_k)·η_k·√Re_x = Re_k,crit, η_k = k·√Re_x/x (u_k = U·f'(η_k) from the
+// Blasius profile, ν_k = ν), solved by bisection on the profile integrated by
+// RK4.
+func SizeTrip(reChord, chord, transitionFraction float64) TripSize {
+	x := TripPositionFraction * chord
+	rex := reChord * TripPositionFraction
+	target := TripCriticalRoughnessReynolds / math.Sqrt(rex)
+	lo, hi := 0.0, 1.0
+	for blasiusVelocity(hi)*hi < target {
+		hi *= 2
+	}
+	for range 60 {
+		mid := (lo + hi) / 2
+		if blasiusVelocity(mid)*mid < target {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	eta := (lo + hi) / 2
+	scale := x / math.Sqrt(rex) // m per unit η
+	t := TripSize{
+		PositionFraction:          TripPositionFraction,
+		Position:                  1e3 * x,
+		Height:                    1e3 * eta * scale,
+		CriticalRoughnessReynolds: TripCriticalRoughnessReynolds,
+		LocalReynolds:             rex,
+		BoundaryLayerThickness:    1e3 * blasiusEdgeEta * scale,
+		ExceedsBoundaryLayer:      eta > blasiusEdgeEta,
+		Pointless:                 transitionFraction <= TripPositionFraction,
+	}
+	t.Notes = append(t.Notes, fmt.Sprintf("trip at %.0f %% of the reference chord (%.3g mm from the leading edge), roughness height %.3g mm for Re_k = %d (Braslow & Knox 1958, NACA TN 4363), local flow from a flat-plate laminar (Blasius) profile at the free-stream speed",
+		100*t.PositionFraction, t.Position, t.Height, TripCriticalRoughnessReynolds))
+	if t.ExceedsBoundaryLayer {
+		t.Notes = append(t.Notes, fmt.Sprintf("the trip height %.3g mm exceeds the local laminar boundary-layer thickness %.3g mm: it over-trips, adding drag and thickening the boundary layer; move it aft or accept the penalty knowingly", t.Height, t.BoundaryLayerThickness))
+	}
+	if t.Pointless {
+		t.Notes = append(t.Notes, fmt.Sprintf("natural transition on the model (near %.1f %% of the chord) is already ahead of the trip position: a trip there does nothing", 100*transitionFraction))
+	}
+	return t
+}
+
+// blasiusVelocity returns f'(η) of the Blasius flat-plate profile
+// (f''' + ½·f·f'' = 0, f(0) = f'(0) = 0, f''(0) = 0.332057), integrated by
+// fourth-order Runge–Kutta in steps of at most 0.01; 1 beyond η = 10.
+func blasiusVelocity(eta float64) float64 {
+	if eta >= 10 {
+		return 1
+	}
+	n := int(math.Ceil(eta / 0.01))
+	if n == 0 {
+		return 0
+	}
+	h := eta / float64(n)
+	y := [3]float64{0, 0, blasiusWallShear}
+	d := func(y [3]float64) [3]float64 { return [3]float64{y[1], y[2], -0.5 * y[0] * y[2]} }
+	add := func(a, b [3]float64, s float64) [3]float64 {
+		return [3]float64{a[0] + s*b[0], a[1] + s*b[1], a[2] + s*b[2]}
+	}
+	for range n {
+		k1 := d(y)
+		k2 := d(add(y, k1, h/2))
+		k3 := d(add(y, k2, h/2))
+		k4 := d(add(y, k3, h))
+		for i := range y {
+			y[i] += h / 6 * (k1[i] + 2*k2[i] + 2*k3[i] + k4[i])
+		}
+	}
+	return y[1]
+}
