@@ -107,7 +107,7 @@ func SizeTrip(reChord, chord, transitionFraction float64) TripSize {
 }
 
 // blasiusVelocity returns f'(η) of the Blasius flat-plate profile
-// (f''' + ½·f·f'' = 0, f(0) = f'(0) = 0, f''(0) = 0.332057), integrated by
+// (f”' + ½·f·f” = 0, f(0) = f'(0) = 0, f”(0) = 0.332057), integrated by
 // fourth-order Runge–Kutta in steps of at most 0.01; 1 beyond η = 10.
 func blasiusVelocity(eta float64) float64 {
 	if eta >= 10 {
