@@ -24,7 +24,7 @@ import (
 )
 
 // site serves the pages over a seeded SQLite catalog with one stored plan (the
-// Orrin J20 example in tsw-1) and returns its URL and the plan's id.
+// Orrin J16 example in tsw-1) and returns its URL and the plan's id.
 func site(t *testing.T) (string, string) {
 	t.Helper()
 	ctx := context.Background()
