@@ -66,3 +66,10 @@ func TestSizeTrip(t *testing.T) {
 		})
 	}
 }
+
+// BenchmarkSizeTrip is one trip sizing, as every plan of a tripped model does.
+func BenchmarkSizeTrip(b *testing.B) {
+	for b.Loop() {
+		SizeTrip(2e6, 0.1, 0.4)
+	}
+}
