@@ -69,10 +69,44 @@ type Change struct {
 
 // PlanRecord is a stored plan: the response body exactly as first returned.
 type PlanRecord struct {
-	ID              string    `json:"id"`
-	FacilityID      string    `json:"facility_id"`
-	FacilityVersion int       `json:"facility_version"`
-	CreatedAt       time.Time `json:"created_at"`
+	ID              string `json:"id"`
+	FacilityID      string `json:"facility_id"`
+	FacilityVersion int    `json:"facility_version"`
+	// Label is the caller's name for the plan's condition ("" none).
+	Label     string    `json:"label,omitempty"`
+	CreatedAt time.Time `json:"created_at"`
 	// Body is the plan's JSON response, byte for byte.
 	Body []byte `json:"-"`
 }
+
+// PlanLister is implemented by catalogs that keep plan records and can list
+// them.
+type PlanLister interface {
+	// Plans lists plan records, newest first, without their bodies, and the
+	// cursor of the next page ("" after the last); CodeInvalid for a bad cursor.
+	Plans(ctx context.Context, q ListQuery) ([]PlanRecord, string, error)
+}
+
+// ListQuery selects stored records for a listing, newest first. Zero fields
+// select everything.
+type ListQuery struct {
+	// Facility selects the records made against this facility id.
+	Facility string
+	// Label selects the records that carry this label.
+	Label string
+	// Since and Until bound the creation time: Since <= created < Until.
+	Since, Until time.Time
+	// Cursor continues a listing where its previous page ended (opaque).
+	Cursor string
+	// Limit is the most records of one page, at most MaxListLimit; 0:
+	// DefaultListLimit.
+	Limit int
+}
+
+// Listing page sizes.
+const (
+	// DefaultListLimit is the page size of a listing that names none.
+	DefaultListLimit = 50
+	// MaxListLimit is the largest page a listing gives.
+	MaxListLimit = 500
+)

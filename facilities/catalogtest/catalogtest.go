@@ -57,6 +57,7 @@ func Run(t *testing.T, open func(testing.TB) facilities.Catalog) {
 		{"NotFound", testNotFound},
 		{"Plans", testPlans},
 		{"PlanIdempotent", testPlanIdempotent},
+		{"PlanList", testPlanList},
 		{"ConcurrentUpdates", testConcurrentUpdates},
 		{"ConcurrentCreates", testConcurrentCreates},
 		{"ConcurrentPlans", testConcurrentPlans},
@@ -1034,5 +1035,83 @@ func testSeedDisabled(t *testing.T, c facilities.Catalog) {
 func testPing(t *testing.T, c facilities.Catalog) {
 	if err := c.Ping(context.Background()); err != nil {
 		t.Errorf("Ping: %v", err)
+	}
+}
+
+// testPlanList: plan records listed newest first by facility, label and
+// creation time, in pages that follow one another without a gap or a repeat.
+func testPlanList(t *testing.T, c facilities.Catalog) {
+	ctx := context.Background()
+	pl, ok := c.(facilities.PlanLister)
+	if !ok {
+		t.Fatalf("%T lists no plans (facilities.PlanLister)", c)
+	}
+	base := time.Date(2031, 4, 2, 9, 0, 0, 0, time.UTC)
+	recs := []facilities.PlanRecord{
+		{ID: "p0", FacilityID: "tsw-1", FacilityVersion: 1, Label: "cruise", CreatedAt: base},
+		{ID: "p1", FacilityID: "cn2-05", FacilityVersion: 1, Label: "cruise", CreatedAt: base.Add(time.Minute)},
+		{ID: "p2", FacilityID: "tsw-1", FacilityVersion: 2, CreatedAt: base.Add(2 * time.Minute)},
+		// Two records of one instant: the id orders them.
+		{ID: "p3a", FacilityID: "tsw-1", FacilityVersion: 2, Label: "climb", CreatedAt: base.Add(3 * time.Minute)},
+		{ID: "p3b", Label: "climb", CreatedAt: base.Add(3 * time.Minute)},
+		{ID: "p4", FacilityID: "cn2-05", FacilityVersion: 1, CreatedAt: base.Add(4 * time.Minute)},
+	}
+	for _, r := range recs {
+		r.Body = []byte(`{"id":"` + r.ID + `"}`)
+		if _, err := c.SavePlan(ctx, r); err != nil {
+			t.Fatal(err)
+		}
+	}
+	list := func(q facilities.ListQuery) []string {
+		t.Helper()
+		var ids []string
+		for range 20 {
+			page, next, err := pl.Plans(ctx, q)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, p := range page {
+				if p.Body != nil {
+					t.Errorf("listing %s read its body", p.ID)
+				}
+				ids = append(ids, p.ID)
+			}
+			if next == "" {
+				return ids
+			}
+			q.Cursor = next
+		}
+		t.Fatal("the listing never ended")
+		return nil
+	}
+	same := func(name string, got, want []string) {
+		t.Helper()
+		if !reflect.DeepEqual(got, want) {
+			t.Errorf("%s: %v, want %v", name, got, want)
+		}
+	}
+	all := []string{"p4", "p3b", "p3a", "p2", "p1", "p0"}
+	same("all", list(facilities.ListQuery{}), all)
+	for limit := 1; limit <= 3; limit++ {
+		same(fmt.Sprintf("pages of %d", limit), list(facilities.ListQuery{Limit: limit}), all)
+	}
+	same("tsw-1", list(facilities.ListQuery{Facility: "tsw-1", Limit: 2}), []string{"p3a", "p2", "p0"})
+	same("climb", list(facilities.ListQuery{Label: "climb", Limit: 1}), []string{"p3b", "p3a"})
+	same("cruise in cn2-05", list(facilities.ListQuery{Label: "cruise", Facility: "cn2-05"}), []string{"p1"})
+	same("time range", list(facilities.ListQuery{Since: base.Add(time.Minute), Until: base.Add(3 * time.Minute)}), []string{"p2", "p1"})
+	page, _, err := pl.Plans(ctx, facilities.ListQuery{Limit: 1})
+	if err != nil || len(page) != 1 {
+		t.Fatalf("Plans: %v, %v", page, err)
+	}
+	if p := page[0]; p.ID != "p4" || p.FacilityID != "cn2-05" || p.FacilityVersion != 1 || !p.CreatedAt.Equal(base.Add(4*time.Minute)) {
+		t.Errorf("listed %+v, want p4 of cn2-05 version 1 at %v", p, base.Add(4*time.Minute))
+	}
+	got, err := c.Plan(ctx, "p3a")
+	if err != nil || got.Label != "climb" {
+		t.Errorf("Plan(p3a) label %q, %v; want climb", got.Label, err)
+	}
+	for _, bad := range []facilities.ListQuery{{Cursor: "!"}, {Limit: -2}, {Limit: facilities.MaxListLimit + 1}} {
+		_, _, err := pl.Plans(ctx, bad)
+		wantCode(t, err, facilities.CodeInvalid)
 	}
 }

@@ -31,8 +31,9 @@ var dialect = sqlstore.Dialect{
 	Numbered: true,
 	Schema: sqlstore.Schema{Text: "text", Integer: "integer", JSON: "jsonb", Bytes: "bytea", Instant: "timestamptz",
 		Deleted: "boolean NOT NULL DEFAULT false",
-		At:      "at", Created: "created_at", Applied: "applied_at"},
+		At:      "at", Created: "created_at", Applied: "applied_at", Updated: "updated_at", Lease: "lease_until"},
 	ForUpdate:       " FOR UPDATE",
+	SkipLocked:      " FOR UPDATE SKIP LOCKED",
 	Instant:         func(t time.Time) any { return t },
 	UniqueViolation: func(err error) bool { var e *pgconn.PgError; return errors.As(err, &e) && e.Code == "23505" },
 }

@@ -143,8 +143,8 @@ func TestReplicasStartTogether(t *testing.T) {
 	if err := conn.QueryRow(ctx, "SELECT count(*) FROM schema_migrations").Scan(&migrations); err != nil {
 		t.Fatal(err)
 	}
-	if migrations != 1 {
-		t.Errorf("schema_migrations has %d rows, want 1 (each migration once)", migrations)
+	if migrations != 2 {
+		t.Errorf("schema_migrations has %d rows, want 2 (0001 and 0002, each once)", migrations)
 	}
 }
 

@@ -42,7 +42,7 @@ var dialect = sqlstore.Dialect{
 	Name: "sqlite",
 	Schema: sqlstore.Schema{Text: "TEXT", Integer: "INTEGER", JSON: "TEXT", Bytes: "BLOB", Instant: "INTEGER",
 		Deleted: "INTEGER NOT NULL DEFAULT 0 CHECK (deleted IN (0, 1))",
-		At:      "at_us", Created: "created_us", Applied: "applied_us"},
+		At:      "at_us", Created: "created_us", Applied: "applied_us", Updated: "updated_us", Lease: "lease_us"},
 	Instant: func(t time.Time) any { return t.UnixMicro() },
 }
 

@@ -19,6 +19,10 @@ type Dialect struct {
 	// ForUpdate ends the reads that lock a facility's row for the rest of a write
 	// (" FOR UPDATE"); empty where a write transaction holds the whole store.
 	ForUpdate string
+	// SkipLocked ends the read of a job claim so that concurrent claims pass
+	// over the rows another claim has locked (" FOR UPDATE SKIP LOCKED"); empty
+	// where a write transaction holds the whole store.
+	SkipLocked string
 	// Instant is the value an instant is stored as (the Schema.Instant type).
 	Instant func(time.Time) any
 	// UniqueViolation, when set, reports whether err is a unique-key violation: a
@@ -36,8 +40,8 @@ type Schema struct {
 	// Deleted is the whole definition of the facilities.deleted flag column.
 	Deleted string
 	// At, Created and Applied name the instant columns of facility_versions,
-	// plans and schema_migrations.
-	At, Created, Applied string
+	// plans (and jobs) and schema_migrations; Updated and Lease those of jobs.
+	At, Created, Applied, Updated, Lease string
 }
 
 // queries are the store's SQL statements in one dialect.
@@ -51,8 +55,17 @@ type queries struct {
 
 	plan, planInsert string
 
+	jobInsert, jobKeyInsert, job, jobClaim                            string
+	jobHeartbeat, jobFinish, jobFail, jobRelease, jobCancel, jobState string
+
 	seedMark, history, ping string
 }
+
+// jobColumns are the columns of a job that a listing reads, in scanJob's order.
+const jobColumns = `id, kind, state, summary, done, total, owner, attempt, {lease}, {created}, {updated}`
+
+// leaseHeld selects a running job by the lease its worker holds.
+const leaseHeld = `WHERE id = ? AND owner = ? AND attempt = ? AND state = 'running'`
 
 // newQueries writes the statements in d's words: instant column names in place of
 // {at}, {created} and {applied}, d.ForUpdate in place of {for update}, and
@@ -60,6 +73,7 @@ type queries struct {
 func newQueries(d Dialect) queries {
 	words := strings.NewReplacer("{at}", d.Schema.At, "{created}", d.Schema.Created,
 		"{applied}", d.Schema.Applied, "{for update}", d.ForUpdate,
+		"{updated}", d.Schema.Updated, "{lease}", d.Schema.Lease, "{skip locked}", d.SkipLocked,
 		"{text}", d.Schema.Text, "{integer}", d.Schema.Integer, "{instant}", d.Schema.Instant)
 	q := func(s string) string { return bind(d, words.Replace(s)) }
 	const current = `SELECT f.version, v.body FROM facilities f
@@ -86,9 +100,27 @@ func newQueries(d Dialect) queries {
 		versionInsert: q(`INSERT INTO facility_versions (facility_id, version, action, actor, fields, body, {at})
 		VALUES (?, ?, ?, ?, ?, ?, ?)`),
 
-		plan: q(`SELECT id, facility_id, facility_version, body, {created} FROM plans WHERE id = ?`),
-		planInsert: q(`INSERT INTO plans (id, facility_id, facility_version, body, {created})
-	VALUES (?, ?, ?, ?, ?) ON CONFLICT (id) DO NOTHING`),
+		plan: q(`SELECT id, facility_id, facility_version, label, body, {created} FROM plans WHERE id = ?`),
+		planInsert: q(`INSERT INTO plans (id, facility_id, facility_version, label, body, {created})
+	VALUES (?, ?, ?, ?, ?, ?) ON CONFLICT (id) DO NOTHING`),
+
+		jobInsert: q(`INSERT INTO jobs (id, kind, state, request, summary, done, total, {created}, {updated})
+	VALUES (?, ?, 'queued', ?, ?, 0, ?, ?, ?) ON CONFLICT (id) DO NOTHING`),
+		jobKeyInsert: q(`INSERT INTO job_keys (job_id, field, value) VALUES (?, ?, ?) ON CONFLICT DO NOTHING`),
+		job:          q(`SELECT ` + jobColumns + `, request, result, problem FROM jobs WHERE id = ?`),
+		// The oldest open job: queued, or running on a lease that has ended. Claim
+		// writes in the kinds' placeholders ({kinds}) and binds the statement.
+		jobClaim: words.Replace(`UPDATE jobs SET state = 'running', owner = ?, attempt = attempt + 1, {lease} = ?, {updated} = ?
+	WHERE id = (SELECT id FROM jobs WHERE kind IN ({kinds}) AND (state = 'queued' OR (state = 'running' AND {lease} < ?))
+		ORDER BY {created}, id LIMIT 1{skip locked})
+	RETURNING ` + jobColumns + `, request`),
+		jobHeartbeat: q(`UPDATE jobs SET {lease} = ?, done = ?, total = ?, {updated} = ? ` + leaseHeld),
+		jobFinish:    q(`UPDATE jobs SET state = 'done', result = ?, done = ?, total = ?, {lease} = NULL, {updated} = ? ` + leaseHeld),
+		jobFail:      q(`UPDATE jobs SET state = 'failed', problem = ?, {lease} = NULL, {updated} = ? ` + leaseHeld),
+		jobRelease:   q(`UPDATE jobs SET state = 'queued', {lease} = NULL, {updated} = ? ` + leaseHeld),
+		jobCancel: q(`UPDATE jobs SET state = 'cancelled', {lease} = NULL, {updated} = ?
+	WHERE id = ? AND state IN ('queued', 'running')`),
+		jobState: q(`SELECT state FROM jobs WHERE id = ?`),
 
 		seedMark: q(`INSERT INTO store_meta (key, value) VALUES ('seeded', ?) ON CONFLICT (key) DO NOTHING`),
 		history:  q(`SELECT EXISTS (SELECT 1 FROM facility_versions)`),

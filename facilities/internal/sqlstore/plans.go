@@ -53,7 +53,7 @@ func (s *Store) commitGroup(recs []facilities.PlanRecord) error {
 			p.Body = nonNil(p.Body)
 			// Instants are kept to the microsecond: store and answer the same one.
 			p.CreatedAt = p.CreatedAt.UTC().Truncate(time.Microsecond)
-			n, err := tx.Exec(ctx, s.q.planInsert, p.ID, p.FacilityID, p.FacilityVersion, p.Body, s.d.Instant(p.CreatedAt))
+			n, err := tx.Exec(ctx, s.q.planInsert, p.ID, p.FacilityID, p.FacilityVersion, p.Label, p.Body, s.d.Instant(p.CreatedAt))
 			if err != nil {
 				return err
 			}
@@ -83,7 +83,7 @@ func (s *Store) Plan(ctx context.Context, id string) (facilities.PlanRecord, err
 
 func scanPlan(row Row) (facilities.PlanRecord, error) {
 	var p facilities.PlanRecord
-	if err := row.Scan(&p.ID, &p.FacilityID, &p.FacilityVersion, &p.Body, instant{&p.CreatedAt}); err != nil {
+	if err := row.Scan(&p.ID, &p.FacilityID, &p.FacilityVersion, &p.Label, &p.Body, instant{&p.CreatedAt}); err != nil {
 		return facilities.PlanRecord{}, err
 	}
 	p.Body = nonNil(p.Body)
@@ -95,4 +95,38 @@ func nonNil(b []byte) []byte {
 		return []byte{}
 	}
 	return b
+}
+
+// Plans lists plan records newest first, without their bodies, from the
+// indexes plans_listing, plans_facility_listing and plans_label_listing.
+func (s *Store) Plans(ctx context.Context, q facilities.ListQuery) ([]facilities.PlanRecord, string, error) {
+	l, err := s.listing(q, "")
+	if err != nil {
+		return nil, "", err
+	}
+	if q.Facility != "" {
+		l.add("facility_id = ?", q.Facility)
+	}
+	if q.Label != "" {
+		l.add("label = ?", q.Label)
+	}
+	query, args := l.query(s, `SELECT id, facility_id, facility_version, label, {created} FROM plans`)
+	rows, err := s.db.Query(ctx, query, args...)
+	if err != nil {
+		return nil, "", s.wrapList("plans", err)
+	}
+	defer rows.Close()
+	var out []facilities.PlanRecord
+	for rows.Next() {
+		var p facilities.PlanRecord
+		if err := rows.Scan(&p.ID, &p.FacilityID, &p.FacilityVersion, &p.Label, instant{&p.CreatedAt}); err != nil {
+			return nil, "", s.wrapList("plans", err)
+		}
+		out = append(out, p)
+	}
+	if err := rows.Err(); err != nil {
+		return nil, "", s.wrapList("plans", err)
+	}
+	out, next := page(out, l.limit, func(p facilities.PlanRecord) (time.Time, string) { return p.CreatedAt, p.ID })
+	return out, next, nil
 }

@@ -1,0 +1,25 @@
+package sqlite_test
+
+import (
+	"context"
+	"path/filepath"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities/sqlite"
+	"scalematch/internal/jobs"
+	"scalematch/internal/jobs/jobstest"
+)
+
+func TestJobs(t *testing.T) {
+	jobstest.Run(t, func(tb testing.TB) func() jobs.Store {
+		path := filepath.Join(tb.TempDir(), sqlite.FileName)
+		return func() jobs.Store {
+			db, err := sqlite.Open(context.Background(), path)
+			require.NoError(tb, err)
+			tb.Cleanup(func() { require.NoError(tb, db.Close()) })
+			return db
+		}
+	})
+}
