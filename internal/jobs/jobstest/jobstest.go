@@ -168,13 +168,13 @@ func testLeaseExpiry(t *testing.T, open func() jobs.Store) {
 	s, other := open(), open()
 	ctx := context.Background()
 	enqueue(t, s, "x", "sum")
-	a, ok, err := s.Claim(ctx, "dead", []string{"sum"}, 50*time.Millisecond)
+	a, ok, err := s.Claim(ctx, "dead", []string{"sum"}, time.Second)
 	require.NoError(t, err)
 	require.True(t, ok)
 	_, ok, err = other.Claim(ctx, "alive", []string{"sum"}, time.Minute)
 	require.NoError(t, err)
 	require.False(t, ok, "the lease still holds")
-	time.Sleep(120 * time.Millisecond)
+	time.Sleep(1200 * time.Millisecond)
 	b, ok, err := other.Claim(ctx, "alive", []string{"sum"}, time.Minute)
 	require.NoError(t, err)
 	require.True(t, ok, "the expired lease is taken over")
@@ -209,12 +209,12 @@ func testHeartbeat(t *testing.T, open func() jobs.Store) {
 	s := open()
 	ctx := context.Background()
 	enqueue(t, s, "h", "sum")
-	j, ok, err := s.Claim(ctx, "w", []string{"sum"}, 80*time.Millisecond)
+	j, ok, err := s.Claim(ctx, "w", []string{"sum"}, 500*time.Millisecond)
 	require.NoError(t, err)
 	require.True(t, ok)
 	for i := 1; i <= 3; i++ {
-		time.Sleep(40 * time.Millisecond)
-		require.NoError(t, s.Heartbeat(ctx, j.Lease(), i, 3, 80*time.Millisecond))
+		time.Sleep(200 * time.Millisecond)
+		require.NoError(t, s.Heartbeat(ctx, j.Lease(), i, 3, 500*time.Millisecond))
 		_, ok, err = s.Claim(ctx, "thief", []string{"sum"}, time.Minute)
 		require.NoError(t, err)
 		require.False(t, ok, "a renewed lease holds past its first end")
@@ -495,7 +495,8 @@ func testWorkers(t *testing.T, open func() jobs.Store) {
 }
 
 // deadStore is a store whose writes all fail once dead is closed: the
-// worker's process has died, and it can no longer renew nor finish.
+// worker's process has died, and it can no longer claim, renew, finish, fail
+// nor release.
 type deadStore struct {
 	jobs.Store
 	dead chan struct{}
@@ -515,6 +516,27 @@ func (d deadStore) Heartbeat(ctx context.Context, l jobs.Lease, done, total int,
 		return err
 	}
 	return d.Store.Heartbeat(ctx, l, done, total, lease)
+}
+
+func (d deadStore) Finish(ctx context.Context, l jobs.Lease, done, total int, result []byte) error {
+	if err := d.isDead(); err != nil {
+		return err
+	}
+	return d.Store.Finish(ctx, l, done, total, result)
+}
+
+func (d deadStore) Fail(ctx context.Context, l jobs.Lease, problem []byte) error {
+	if err := d.isDead(); err != nil {
+		return err
+	}
+	return d.Store.Fail(ctx, l, problem)
+}
+
+func (d deadStore) Release(ctx context.Context, l jobs.Lease) error {
+	if err := d.isDead(); err != nil {
+		return err
+	}
+	return d.Store.Release(ctx, l)
 }
 
 func (d deadStore) Claim(ctx context.Context, owner string, kinds []string, lease time.Duration) (jobs.Job, bool, error) {
