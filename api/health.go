@@ -11,8 +11,9 @@ import (
 	"github.com/prometheus/client_golang/prometheus/promhttp"
 )
 
-// readyTimeout bounds the store's answer to the readiness probe.
-const readyTimeout = 2 * time.Second
+// DefaultReadyTimeout bounds the store's answer to the readiness probe when
+// Config.ReadyTimeout is 0.
+const DefaultReadyTimeout = 2 * time.Second
 
 // Health is the answer of GET /healthz and GET /readyz.
 type Health struct {
@@ -68,7 +69,7 @@ func (s *Server) healthz(c *gin.Context) {
 //	@Failure		503	{object}	schema.Problem
 //	@Router			/readyz [get]
 func (s *Server) readyz(c *gin.Context) {
-	ctx, cancel := context.WithTimeout(c.Request.Context(), readyTimeout)
+	ctx, cancel := context.WithTimeout(c.Request.Context(), s.cfg.ReadyTimeout)
 	defer cancel()
 	if s.draining.Load() {
 		s.writeProblem(c, kindUnavailable.problem(c, "the service is shutting down"))
@@ -82,7 +83,7 @@ func (s *Server) readyz(c *gin.Context) {
 	if err := s.cfg.Catalog.Ping(ctx); err != nil {
 		detail := "the store does not answer"
 		if errors.Is(err, context.DeadlineExceeded) {
-			detail = "the store did not answer within " + readyTimeout.String()
+			detail = "the store did not answer within " + s.cfg.ReadyTimeout.String()
 		}
 		s.logger(c).Warn("store not ready", "error", err.Error())
 		s.writeProblem(c, kindUnavailable.problem(c, detail))

@@ -63,6 +63,9 @@ type Config struct {
 	// through this service at once), and every plan records the facility version it
 	// used. 0: app.DefaultFacilityRecheck; negative: ask on every plan.
 	FacilityRecheck time.Duration
+	// ReadyTimeout bounds the store's answer to /readyz: a store that has not
+	// answered its ping within it is reported unready (503). 0: DefaultReadyTimeout.
+	ReadyTimeout time.Duration
 }
 
 // Server is the HTTP service. Build it with New; it is safe for concurrent use.
@@ -91,6 +94,9 @@ func New(cfg Config) (*Server, error) {
 	}
 	if cfg.Registry == nil {
 		cfg.Registry = prometheus.NewRegistry()
+	}
+	if cfg.ReadyTimeout <= 0 {
+		cfg.ReadyTimeout = DefaultReadyTimeout
 	}
 	if cfg.Catalog == nil {
 		cfg.Catalog = facilities.DemoCatalog{}
