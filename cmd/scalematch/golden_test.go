@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"flag"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -70,9 +71,10 @@ func TestGolden(t *testing.T) {
 			}
 			want, err := os.ReadFile(path)
 			require.NoError(t, err, "no golden file: run go test ./cmd/scalematch -run TestGolden -update")
-			assert.Equal(t, string(want), out.String(),
-				"scalematch %s differs from %s; if the change is intended, run go test ./cmd/scalematch -run TestGolden -update and review the diff",
-				strings.Join(c.args, " "), path)
+			if got := out.String(); got != string(want) {
+				t.Errorf("scalematch %s differs from %s at %s\nif the change is intended, run go test ./cmd/scalematch -run TestGolden -update and review the diff",
+					strings.Join(c.args, " "), path, firstDifference(string(want), got))
+			}
 		})
 	}
 }
@@ -90,4 +92,20 @@ func TestGoldenFilesHaveCases(t *testing.T) {
 	for _, f := range files {
 		assert.True(t, want[filepath.Base(f)], "%s pins no shipped request: remove it", f)
 	}
+}
+
+// firstDifference describes where got first differs from want: the line and
+// column, and up to 80 bytes of each around it (a JSON answer is one long line).
+func firstDifference(want, got string) string {
+	i := 0
+	for i < len(want) && i < len(got) && want[i] == got[i] {
+		i++
+	}
+	line := strings.Count(want[:i], "\n") + 1
+	col := i - strings.LastIndex(want[:i], "\n")
+	around := func(s string) string {
+		from, to := max(0, i-40), min(len(s), i+40)
+		return fmt.Sprintf("%q", s[from:to])
+	}
+	return fmt.Sprintf("line %d, column %d:\n  golden %s\n  now    %s", line, col, around(want), around(got))
 }
