@@ -1,6 +1,7 @@
 package api
 
 import (
+	"bytes"
 	"context"
 	"crypto/sha256"
 	"crypto/subtle"
@@ -16,6 +17,7 @@ import (
 
 	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/app"
 )
 
 // Catalog response headers.
@@ -38,6 +40,7 @@ func (s *Server) registerCatalog(v1 *gin.RouterGroup) {
 	v1.POST("/facilities", s.createFacility)
 	v1.PUT("/facilities/:id", s.updateFacility)
 	v1.DELETE("/facilities/:id", s.deleteFacility)
+	v1.GET("/plans", s.listPlans)
 	v1.GET("/plans/:id", s.getPlan)
 }
 
@@ -259,17 +262,25 @@ func (s *Server) deleteFacility(c *gin.Context) {
 // getPlan answers GET /v1/plans/{id}.
 //
 //	@Summary		Read a stored plan
-//	@Description	The plan exactly as POST /v1/plans first answered it, byte for byte (SI units throughout: m, m², m/s, Pa, K, N, N·m; angles in degrees). Scalematch-Facility-Id and Scalematch-Facility-Version name the catalog facility version it used (absent for a facility given inline). When that facility has changed or been deleted since, the answer says so: a facility_changed object (planned_version, current_version, deleted, message) is added in front of the stored plan's fields, and the Scalematch-Facility-Current-Version header gives the current version or "deleted"; the rest of the body is the stored plan, byte for byte. Such a plan may no longer hold: plan again. Loads are estimates: the facility's approved limits, procedures and licensed engineering judgement govern.
+//	@Description	The plan exactly as POST /v1/plans first answered it, byte for byte (SI units throughout: m, m², m/s, Pa, K, N, N·m; angles in degrees). Scalematch-Facility-Id and Scalematch-Facility-Version name the catalog facility version it used (absent for a facility given inline). When that facility has changed or been deleted since, the answer says so: a facility_changed object (planned_version, current_version, deleted, message) is added in front of the stored plan's fields, and the Scalematch-Facility-Current-Version header gives the current version or "deleted"; the rest of the body is the stored plan, byte for byte. Such a plan may no longer hold: plan again. With Accept: text/csv the answer is a table instead, one row per α/β point of the load report (a plan without one has a single row): plan id, label, facility, scale, the test settings (mach, speed_m_s, stagnation_pressure_pa, stagnation_temperature_k, dynamic_pressure_pa, reynolds), reynolds_ratio, mach_difference, alpha_deg, beta_deg, the point's corrected dynamic pressure, the six balance loads (_n, _n_m) and utilization, allowed_utilization, limiting, balance_id, verdict; each column name ends with its unit. Loads are estimates: the facility's approved limits, procedures and licensed engineering judgement govern.
 //	@Tags			planning
 //	@Produce		json
+//	@Produce		text/csv
 //	@Param			id	path		string	true	"plan id"
 //	@Success		200	{object}	schema.PlanResponse
 //	@Header			200	{string}	Scalematch-Facility-Id		"catalog facility id"
 //	@Header			200	{integer}	Scalematch-Facility-Version	"catalog facility version"
 //	@Header			200	{string}	Scalematch-Facility-Current-Version	"the facility's current version, or deleted; only when it changed since the plan"
 //	@Failure		404	{object}	schema.Problem	"no plan with this id is stored"
+//	@Failure		406	{object}	schema.Problem	"Accept names neither application/json nor text/csv"
 //	@Router			/v1/plans/{id} [get]
 func (s *Server) getPlan(c *gin.Context) {
+	format, err := negotiate(c.GetHeader("Accept"), formatJSON, formatCSV)
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	c.Header("Vary", "Accept")
 	p, err := s.cfg.Catalog.Plan(c.Request.Context(), c.Param("id"))
 	if err != nil {
 		s.fail(c, err)
@@ -288,6 +299,9 @@ func (s *Server) getPlan(c *gin.Context) {
 		// facility does, so the rest are kept for good.
 		c.Header("Cache-Control", cacheForever)
 		c.Header("ETag", `"`+p.ID+`"`)
+		if format == formatCSV {
+			c.Header("ETag", `"`+p.ID+`.csv"`)
+		}
 	}
 	if p.FacilityID != "" && p.FacilityVersion > 0 {
 		ch, err := s.facilityChange(c.Request.Context(), p.FacilityID, p.FacilityVersion)
@@ -307,7 +321,26 @@ func (s *Server) getPlan(c *gin.Context) {
 			c.Header(HeaderFacilityCurrentVersion, cur)
 		}
 	}
+	if format == formatCSV {
+		s.planCSV(c, p.Body)
+		return
+	}
 	s.answerBytes(c, http.StatusOK, "application/json; charset=utf-8", body)
+}
+
+// planCSV answers a stored plan as a table (app.WritePlanCSV).
+func (s *Server) planCSV(c *gin.Context, body []byte) {
+	plan, err := app.DecodePlan(body)
+	if err != nil {
+		s.fail(c, err)
+		return
+	}
+	var b bytes.Buffer
+	if err := app.WritePlanCSV(&b, plan); err != nil {
+		s.fail(c, err)
+		return
+	}
+	s.answerBytes(c, http.StatusOK, "text/csv; charset=utf-8; header=present", b.Bytes())
 }
 
 // facilityChange compares a stored plan's facility version with the catalog's

@@ -19,9 +19,12 @@ import (
 
 // notAcceptableError is a request whose Accept header names no format the
 // service draws; problem maps it to 406.
-type notAcceptableError struct{ accept string }
+type notAcceptableError struct{ accept, formats string }
 
 func (e notAcceptableError) Error() string {
+	if e.formats != "" {
+		return fmt.Sprintf("Accept %q names no format of this answer: want %s", e.accept, e.formats)
+	}
 	return fmt.Sprintf("Accept %q names no format of this chart: image/svg+xml, image/png or application/pdf (or add .svg, .png or .pdf to the path)", e.accept)
 }
 
@@ -73,7 +76,7 @@ func chartFormat(file, accept string) (string, charts.Format, error) {
 	}
 	f, ok := charts.Negotiate(accept)
 	if !ok {
-		return "", "", notAcceptableError{accept}
+		return "", "", notAcceptableError{accept: accept}
 	}
 	return name, f, nil
 }

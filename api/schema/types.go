@@ -3,6 +3,7 @@ package schema
 import (
 	"bytes"
 	"encoding/json"
+	"time"
 
 	"scalematch/facilities"
 	"scalematch/similarity"
@@ -137,6 +138,10 @@ type PlanRequest struct {
 	// Objective is what to match: a priority list of groups with a Mach tolerance,
 	// or weights.
 	Objective similarity.Objective `json:"objective"`
+	// Label is the caller's own name for this condition ("cruise-high"), at most
+	// 200 bytes without control characters; the answer and the stored plan carry
+	// it, and GET /v1/plans?label= finds the plans that have it. "" none.
+	Label string `json:"label,omitempty" maxLength:"200" example:"cruise-high"`
 }
 
 // PlanResponse is the answer of POST /v1/plans: the plan and everything it implies.
@@ -150,6 +155,8 @@ type PlanResponse struct {
 	// ID identifies the plan; the same request against the same facility version
 	// gets the same id. GET /v1/plans/{id} returns the stored answer.
 	ID string `json:"id" example:"5d1c0a7e93b2f4a81c6e"`
+	// Label is the request's label; absent when it gave none.
+	Label string `json:"label,omitempty" example:"cruise-high"`
 	// FacilityID names the facility planned in ("" for an inline facility without id).
 	FacilityID string `json:"facility_id" example:"tsw-1"`
 	// FacilityVersion is the catalog version of the facility used (1 for the built-in
@@ -350,4 +357,31 @@ type FacilityHistory struct {
 	// write token's name, the action, the JSON paths that changed and the record as
 	// of that version (absent for a deletion).
 	Versions []facilities.Change `json:"versions"`
+}
+
+// PlanList is the answer of GET /v1/plans: a page of stored plans, newest first.
+type PlanList struct {
+	Plans []PlanListItem `json:"plans"`
+	// NextCursor continues the listing (GET /v1/plans?cursor=…, with the same
+	// filters); absent on the last page.
+	NextCursor string `json:"next_cursor,omitempty"`
+	// Next is the URL of the next page; absent on the last page.
+	Next string `json:"next,omitempty"`
+}
+
+// PlanListItem is one stored plan of a listing.
+type PlanListItem struct {
+	ID string `json:"id" example:"5d1c0a7e93b2f4a81c6e"`
+	// Label is the plan request's label; absent when it gave none.
+	Label string `json:"label,omitempty" example:"cruise-high"`
+	// FacilityID is the catalog facility planned in; "" for an inline facility
+	// without id.
+	FacilityID string `json:"facility_id" example:"tsw-1"`
+	// FacilityVersion is the catalog version used; 0 for an inline facility.
+	FacilityVersion int `json:"facility_version"`
+	// CreatedAt is when the plan was first stored (UTC).
+	CreatedAt time.Time `json:"created_at"`
+	// Href is the plan's URL (GET answers it as JSON or, for Accept: text/csv, a
+	// table).
+	Href string `json:"href" example:"/v1/plans/5d1c0a7e93b2f4a81c6e"`
 }

@@ -12,6 +12,8 @@ import (
 	"slices"
 	"strings"
 	"sync"
+	"unicode"
+	"unicode/utf8"
 
 	"scalematch/api/schema"
 	"scalematch/facilities"
@@ -268,6 +270,7 @@ func (p *Planner) prepare(ctx context.Context, req *schema.PlanRequest) (*prepar
 		return nil, err
 	}
 	checkInstallation(&req.Installation, f, &fe)
+	CheckLabel(req.Label, "label", &fe)
 	mx, err := req.Article.Aero.Matrix(req.Alpha, req.Beta)
 	if err != nil && !fe.Merge("", err) {
 		return nil, err
@@ -376,7 +379,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 		re.Trip = &t
 	}
 	out.ReynoldsEffects = &re
-	out.ID = pp.id
+	out.ID, out.Label = pp.id, req.Label
 	out.Warnings = collapseWarnings(out.Warnings)
 	if err := CheckFinite(out, planInputs); err != nil {
 		return nil, err
@@ -432,9 +435,9 @@ func (p *Planner) PlanJSON(ctx context.Context, req *schema.PlanRequest) ([]byte
 
 // plannedJSON is a plan's answer as JSON, with what its record needs.
 type plannedJSON struct {
-	id, facilityID  string
-	facilityVersion int
-	body            []byte
+	id, facilityID, label string
+	facilityVersion       int
+	body                  []byte
 	// stored: nothing is left to save; body is the stored record's, or the
 	// planner has no catalog.
 	stored bool
@@ -448,7 +451,7 @@ func (p *Planner) planJSON(ctx context.Context, req *schema.PlanRequest) (planne
 	if err != nil {
 		return plannedJSON{}, err
 	}
-	pj := plannedJSON{id: pr.id, facilityID: pr.f.ID, facilityVersion: pr.f.Version}
+	pj := plannedJSON{id: pr.id, facilityID: pr.f.ID, facilityVersion: pr.f.Version, label: req.Label}
 	if pj.body, pj.stored = p.stored.get(pr.id); pj.stored {
 		return pj, nil
 	}
@@ -511,7 +514,7 @@ func marshalPlan(resp *schema.PlanResponse) ([]byte, error) {
 // save stores a planned answer and returns the stored bytes: the first record of
 // its id, which is the answer itself unless an equal request was stored before.
 func (p *Planner) save(ctx context.Context, pj plannedJSON) ([]byte, error) {
-	rec, err := p.Catalog.SavePlan(ctx, facilities.PlanRecord{ID: pj.id, FacilityID: pj.facilityID, FacilityVersion: pj.facilityVersion, Body: pj.body})
+	rec, err := p.Catalog.SavePlan(ctx, facilities.PlanRecord{ID: pj.id, FacilityID: pj.facilityID, FacilityVersion: pj.facilityVersion, Label: pj.label, Body: pj.body})
 	if err != nil {
 		return nil, err
 	}
@@ -562,4 +565,20 @@ func modelBuoyancy(f *facilities.Facility, a *similarity.Article, in facilities.
 		length = a.ReferenceLength
 	}
 	return facilities.BuoyancyOf(f, in, a.FrontalArea*scale*scale, length*scale)
+}
+
+// MaxLabel is the longest label a request may give, in bytes.
+const MaxLabel = 200
+
+// CheckLabel adds to fe the problem of a caller's label at field: longer than
+// MaxLabel bytes, not UTF-8, or holding control characters.
+func CheckLabel(label, field string, fe *check.Fields) {
+	switch {
+	case len(label) > MaxLabel:
+		fe.Add(field, "%d bytes: at most %d", len(label), MaxLabel)
+	case !utf8.ValidString(label):
+		fe.Add(field, "not UTF-8 text")
+	case strings.ContainsFunc(label, unicode.IsControl):
+		fe.Add(field, "holds a control character: give a plain one-line name")
+	}
 }
