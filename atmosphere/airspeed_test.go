@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -39,13 +40,13 @@ func TestSeaLevelSpeedsAgree(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if e := relErr(v.Calibrated, v.True*casRatio); e > 1e-12 {
+			if e := testfixture.RelErr(v.Calibrated, v.True*casRatio); e > 1e-12 {
 				t.Errorf("CAS %.12g, TAS·a_SL/a %.12g", v.Calibrated, v.True*casRatio)
 			}
-			if e := relErr(v.Equivalent, v.True*easRatio); e > 1e-14 {
+			if e := testfixture.RelErr(v.Equivalent, v.True*easRatio); e > 1e-14 {
 				t.Errorf("EAS %.12g, TAS·√(ρ/ρ_SL) %.12g", v.Equivalent, v.True*easRatio)
 			}
-			if relErr(v.Calibrated, v.True) > 4e-7 || relErr(v.Equivalent, v.True) > 4e-7 {
+			if testfixture.RelErr(v.Calibrated, v.True) > 4e-7 || testfixture.RelErr(v.Equivalent, v.True) > 4e-7 {
 				t.Errorf("CAS %.9g, EAS %.9g, TAS %.9g differ", v.Calibrated, v.Equivalent, v.True)
 			}
 		})
@@ -92,7 +93,7 @@ func TestAirspeedRoundTrips(t *testing.T) {
 					pairs := [][2]float64{{got.Mach, ref.Mach}, {got.True, ref.True}, {got.Calibrated, ref.Calibrated},
 						{got.Equivalent, ref.Equivalent}, {got.DynamicPressure, ref.DynamicPressure}, {got.ImpactPressure, ref.ImpactPressure}}
 					for i, pr := range pairs {
-						if e := relErr(pr[0], pr[1]); e > 1e-10 {
+						if e := testfixture.RelErr(pr[0], pr[1]); e > 1e-10 {
 							t.Errorf("M %.9g from %v: field %d %.15g, want %.15g (relative %.2g)", m, k, i, pr[0], pr[1], e)
 						}
 					}
@@ -132,7 +133,7 @@ func TestKnownAirspeeds(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			if e := relErr(c.got, c.want); e > c.tol {
+			if e := testfixture.RelErr(c.got, c.want); e > c.tol {
 				t.Errorf("got %.9g, want %.9g", c.got, c.want)
 			}
 		})

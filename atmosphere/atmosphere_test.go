@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"scalematch/internal/testfixture"
 	"strconv"
 	"strings"
 	"testing"
@@ -15,14 +16,6 @@ import (
 
 	"scalematch/atmosphere"
 )
-
-// relErr returns |got−want|/|want|, or |got| when want is zero.
-func relErr(got, want float64) float64 {
-	if want == 0 {
-		return math.Abs(got)
-	}
-	return math.Abs(got-want) / math.Abs(want)
-}
 
 // readFixture reads a CSV under testdata/reference/atmosphere, skipping comment
 // lines and the column header, and returns its numeric rows.
@@ -111,7 +104,7 @@ func TestFixtureFluids(t *testing.T) {
 						continue
 					}
 					n++
-					if e := relErr(q.get(s), r[q.col]); e > worst {
+					if e := testfixture.RelErr(q.get(s), r[q.col]); e > worst {
 						worst, at = e, i
 					}
 				}
@@ -150,7 +143,7 @@ func TestSeaLevel(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			if e := relErr(c.got, c.want); e > c.tol {
+			if e := testfixture.RelErr(c.got, c.want); e > c.tol {
 				t.Errorf("got %.8g, want %.8g (relative error %.2g > %.2g)", c.got, c.want, e, c.tol)
 			}
 		})
@@ -181,10 +174,10 @@ func TestStandardTable(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if e := relErr(s.Temperature, c.temperature); e > c.tol {
+			if e := testfixture.RelErr(s.Temperature, c.temperature); e > c.tol {
 				t.Errorf("temperature %.8g K, want %.8g K", s.Temperature, c.temperature)
 			}
-			if e := relErr(s.Pressure, c.pressure); e > c.tol {
+			if e := testfixture.RelErr(s.Pressure, c.pressure); e > c.tol {
 				t.Errorf("pressure %.8g Pa, want %.8g Pa", s.Pressure, c.pressure)
 			}
 		})
@@ -212,7 +205,7 @@ func TestNonStandardDay(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			if e := relErr(c.got, c.want); e > c.tol {
+			if e := testfixture.RelErr(c.got, c.want); e > c.tol {
 				t.Errorf("got %.12g, want %.12g", c.got, c.want)
 			}
 		})
@@ -263,7 +256,7 @@ func TestPressureAltitudeRoundTrip(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if e := relErr(back.Pressure, s.Pressure); e > 1e-12 {
+		if e := testfixture.RelErr(back.Pressure, s.Pressure); e > 1e-12 {
 			t.Errorf("h = %g m': pressure %.15g → %.15g", h, s.Pressure, back.Pressure)
 		}
 	}
@@ -274,7 +267,7 @@ func TestPressureAltitudeRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if e := relErr(s.Pressure, 23842); e > 5e-5 {
+	if e := testfixture.RelErr(s.Pressure, 23842); e > 5e-5 {
 		t.Errorf("FL350: %.6g Pa, want 23842 Pa", s.Pressure)
 	}
 }

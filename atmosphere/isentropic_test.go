@@ -3,6 +3,7 @@ package atmosphere_test
 import (
 	"fmt"
 	"math"
+	"scalematch/internal/testfixture"
 	"testing"
 
 	"scalematch/atmosphere"
@@ -52,14 +53,14 @@ func TestIsentropicFixture(t *testing.T) {
 	const tol = 1e-12 // relative; same closed forms, rounding only
 	for _, r := range rows {
 		g, m := r[0], r[1]
-		if e := relErr(atmosphere.PressureRatio(m, g), r[2]); e > tol {
+		if e := testfixture.RelErr(atmosphere.PressureRatio(m, g), r[2]); e > tol {
 			t.Errorf("γ %g M %g: p0/p %.15g, fluids %.15g", g, m, atmosphere.PressureRatio(m, g), r[2])
 		}
-		if e := relErr(atmosphere.TemperatureRatio(m, g), r[3]); e > tol {
+		if e := testfixture.RelErr(atmosphere.TemperatureRatio(m, g), r[3]); e > tol {
 			t.Errorf("γ %g M %g: T0/T %.15g, fluids %.15g", g, m, atmosphere.TemperatureRatio(m, g), r[3])
 		}
 		if m <= 1 {
-			if e := relErr(atmosphere.PitotPressureRatio(m, g), r[2]); e > tol {
+			if e := testfixture.RelErr(atmosphere.PitotPressureRatio(m, g), r[2]); e > tol {
 				t.Errorf("γ %g M %g: subsonic pitot ratio %.15g is not p0/p %.15g", g, m, atmosphere.PitotPressureRatio(m, g), r[2])
 			}
 		}
@@ -73,10 +74,10 @@ func TestCriticalFixture(t *testing.T) {
 	for _, r := range readFixture(t, "critical.csv") {
 		g := r[0]
 		t.Run(fmt.Sprintf("γ=%.4g", g), func(t *testing.T) {
-			if e := relErr(1/atmosphere.TemperatureRatio(1, g), r[1]); e > 1e-14 {
+			if e := testfixture.RelErr(1/atmosphere.TemperatureRatio(1, g), r[1]); e > 1e-14 {
 				t.Errorf("T*/T0 %.15g, fluids %.15g", 1/atmosphere.TemperatureRatio(1, g), r[1])
 			}
-			if e := relErr(1/atmosphere.PressureRatio(1, g), r[2]); e > 1e-14 {
+			if e := testfixture.RelErr(1/atmosphere.PressureRatio(1, g), r[2]); e > 1e-14 {
 				t.Errorf("p*/p0 %.15g, fluids %.15g", 1/atmosphere.PressureRatio(1, g), r[2])
 			}
 		})
@@ -93,7 +94,7 @@ func TestPitotBranchesMeet(t *testing.T) {
 			above := atmosphere.PitotPressureRatio(math.Nextafter(1, 2), g)
 			want := math.Pow((g+1)/2, g/(g-1)) // both branches at M = 1
 			for _, v := range []float64{below, at, above} {
-				if e := relErr(v, want); e > 1e-14 {
+				if e := testfixture.RelErr(v, want); e > 1e-14 {
 					t.Errorf("pitot ratio %.17g near Mach 1, want %.17g", v, want)
 				}
 			}

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"os"
+	"scalematch/internal/testfixture"
 	"strconv"
 	"strings"
 	"testing"
@@ -54,13 +55,6 @@ func readFactors(t *testing.T) []factorRow {
 	return rows
 }
 
-func relErr(got, want float64) float64 {
-	if want == 0 {
-		return math.Abs(got)
-	}
-	return math.Abs(got/want - 1)
-}
-
 // TestGNUUnits checks every supported unit against GNU units 2.22 (the fixture
 // records where GNU units spells a unit differently). GNU units prints 15 significant
 // digits, so 1e-9 relative leaves a wide margin over its rounding.
@@ -79,14 +73,14 @@ func TestGNUUnits(t *testing.T) {
 			if dim != si.Dim {
 				t.Errorf("ParseQuantity(%q) dimension %v, want %v (of %s)", r.quantity, dim, si.Dim, r.si)
 			}
-			if e := relErr(v, r.value); e > tol {
+			if e := testfixture.RelErr(v, r.value); e > tol {
 				t.Errorf("ParseQuantity(%q) = %.15g, GNU units %.15g (line %d): relative error %.2g > %.0g", r.quantity, v, r.value, r.line, e, tol)
 			}
 			got, err := similarity.ToSI(r.quantity, r.si)
 			if err != nil {
 				t.Fatalf("ToSI(%q, %q): %v", r.quantity, r.si, err)
 			}
-			if e := relErr(got, r.value); e > tol {
+			if e := testfixture.RelErr(got, r.value); e > tol {
 				t.Errorf("ToSI(%q, %q) = %.15g, GNU units %.15g: relative error %.2g", r.quantity, r.si, got, r.value, e)
 			}
 		})
@@ -148,7 +142,7 @@ func TestParseQuantity(t *testing.T) {
 			if dim != c.dim {
 				t.Errorf("ParseQuantity(%q) dimension %v, want %v", c.in, dim, c.dim)
 			}
-			if e := relErr(v, c.want); e > c.tol {
+			if e := testfixture.RelErr(v, c.want); e > c.tol {
 				t.Errorf("ParseQuantity(%q) = %.17g, want %.17g (relative error %.2g > %.0g)", c.in, v, c.want, e, c.tol)
 			}
 		})
@@ -253,7 +247,7 @@ func TestToSI(t *testing.T) {
 			if err != nil {
 				t.Fatalf("ToSI(%q, %q): %v", c.in, c.field, err)
 			}
-			if e := relErr(v, c.want); e > c.tol {
+			if e := testfixture.RelErr(v, c.want); e > c.tol {
 				t.Errorf("ToSI(%q, %q) = %.17g, want %.17g (relative error %.2g > %.0g)", c.in, c.field, v, c.want, e, c.tol)
 			}
 		})

@@ -4,11 +4,11 @@ import (
 	"bytes"
 	"context"
 	"errors"
-	"io"
-	"log/slog"
 	"math"
 	"net/http/httptest"
 	"reflect"
+	"scalematch/internal/testfixture"
+	"scalematch/internal/testfixture/testsite"
 	"slices"
 	"strings"
 	"testing"
@@ -17,38 +17,15 @@ import (
 	"scalematch/api/client"
 	"scalematch/api/schema"
 	"scalematch/facilities"
-	"scalematch/facilities/sqlite"
 	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
-
-// j16Plan is the Orrin J16 of the demo world in tsw-1 at cruise, 21 α points.
-const j16Plan = `{
-  "flight": {"altitude": "12000 m", "mach": 0.78},
-  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6,
-    "frontal_area": 4.4, "wetted_area": 228,
-    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
-      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
-  "facility_id": "tsw-1",
-  "model": {"scale_min": 0.01, "scale_max": 0.5},
-  "installation": {"balance_id": "int-b1", "model_mass": 20},
-  "alpha": {"from": -4, "to": 16, "step": 1}
-}`
 
 // newClient starts the real service over a fresh SQLite catalog seeded with the
 // demo facilities and returns a client of it.
 func newClient(t *testing.T) *client.Client {
 	t.Helper()
-	ctx := context.Background()
-	db, err := sqlite.Open(ctx, sqlite.Path(t.TempDir()))
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { db.Close() })
-	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
-		t.Fatal(err)
-	}
-	s, err := api.New(api.Config{Catalog: db, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	s, err := api.New(api.Config{Catalog: testsite.DemoStore(t), Logger: testfixture.Quiet()})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -84,7 +61,7 @@ func problem(t *testing.T, err error) *client.Problem {
 func TestPlanAndStoredPlan(t *testing.T) {
 	c := newClient(t)
 	ctx := context.Background()
-	p, err := c.Plan(ctx, planRequest(t, j16Plan))
+	p, err := c.Plan(ctx, planRequest(t, testfixture.J16Plan))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -112,8 +89,8 @@ func TestPlanAndStoredPlan(t *testing.T) {
 
 func TestPlanBatch(t *testing.T) {
 	c := newClient(t)
-	good := planRequest(t, j16Plan)
-	bad := planRequest(t, strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1))
+	good := planRequest(t, testfixture.J16Plan)
+	bad := planRequest(t, strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1))
 	res, err := c.PlanBatch(context.Background(), []schema.PlanRequest{*good, *bad, *good})
 	if err != nil {
 		t.Fatal(err)
@@ -139,7 +116,7 @@ func TestLoads(t *testing.T) {
 	scale := 1.0 / 30
 	mach, p0, t0 := 0.8, 150000.0, 310.0
 	req := schema.LoadsRequest{
-		Article:    planRequest(t, j16Plan).Article,
+		Article:    planRequest(t, testfixture.J16Plan).Article,
 		FacilityID: "tsw-1",
 		Model:      schema.LoadsModel{Scale: &scale},
 		Alpha:      similarity.Sweep{From: -4, To: 16, Step: 2},
@@ -316,9 +293,9 @@ func TestProblems(t *testing.T) {
 		fields []string
 		limits []string
 	}{
-		{"400 names every bad field", strings.NewReplacer(`"12000 m"`, `99000`, `"span": 16.4`, `"span": -1`).Replace(j16Plan),
+		{"400 names every bad field", strings.NewReplacer(`"12000 m"`, `99000`, `"span": 16.4`, `"span": -1`).Replace(testfixture.J16Plan),
 			400, []string{"flight.altitude", "article.span"}, nil},
-		{"422 names the limits that conflict", strings.Replace(j16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scale": 0.2}`, 1),
+		{"422 names the limits that conflict", strings.Replace(testfixture.J16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scale": 0.2}`, 1),
 			422, nil, []string{facilities.ConstraintSpan}},
 	}
 	for _, tc := range cases {

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -21,8 +22,8 @@ func TestEveryCommandReadsTheSameCatalog(t *testing.T) {
 	require.NoError(t, err)
 	require.NoError(t, db.Close())
 	noStore := t.TempDir()
-	missing := strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1)
-	missingLoads := strings.Replace(j16Loads, `"tsw-1"`, `"no-such"`, 1)
+	missing := strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1)
+	missingLoads := strings.Replace(testfixture.J16Loads, `"tsw-1"`, `"no-such"`, 1)
 	cases := []struct {
 		name     string
 		database string
@@ -30,8 +31,8 @@ func TestEveryCommandReadsTheSameCatalog(t *testing.T) {
 		stdin    string
 		want     string
 	}{
-		{"plan reads the database URL", "mysql://x", []string{"plan", "--data", noStore, "-"}, j16Plan, "SCALEMATCH_DATABASE_URL: want a postgres:// URL"},
-		{"loads reads the database URL", "mysql://x", []string{"loads", "--data", noStore, "-"}, j16Loads, "SCALEMATCH_DATABASE_URL: want a postgres:// URL"},
+		{"plan reads the database URL", "mysql://x", []string{"plan", "--data", noStore, "-"}, testfixture.J16Plan, "SCALEMATCH_DATABASE_URL: want a postgres:// URL"},
+		{"loads reads the database URL", "mysql://x", []string{"loads", "--data", noStore, "-"}, testfixture.J16Loads, "SCALEMATCH_DATABASE_URL: want a postgres:// URL"},
 		{"facilities reads the database URL", "mysql://x", []string{"facilities", "--data", noStore}, "", "SCALEMATCH_DATABASE_URL: want a postgres:// URL"},
 		{"plan: not found in the demo catalog", "", []string{"plan", "--data", noStore, "-"}, missing, `facility "no-such" not found (looked in the demo catalog)`},
 		{"loads: not found in the demo catalog", "", []string{"loads", "--data", noStore, "-"}, missingLoads, `"no-such" not found (looked in the demo catalog)`},

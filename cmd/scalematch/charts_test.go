@@ -5,6 +5,7 @@ import (
 	"image/png"
 	"os"
 	"path/filepath"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -26,7 +27,7 @@ func TestPlanCommandCharts(t *testing.T) {
 			var out, errOut bytes.Buffer
 			args := append([]string{"plan", "--data", "", "--chart", dir}, tc.args...)
 			args = append(args, "-")
-			require.NoError(t, run(args, strings.NewReader(j16Plan), &out, &errOut))
+			require.NoError(t, run(args, strings.NewReader(testfixture.J16Plan), &out, &errOut))
 			for _, name := range []string{"envelope", "loads", "reynolds-trade"} {
 				for _, ext := range []string{"svg", "png", "pdf"} {
 					path := filepath.Join(dir, name+"."+ext)

@@ -9,6 +9,7 @@ import (
 	"net/http/httptest"
 	"os"
 	"path/filepath"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -16,32 +17,6 @@ import (
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 )
-
-// j16Plan is the Orrin J16 of the demo world in tsw-1 at cruise, 21 α points.
-const j16Plan = `{
-  "flight": {"altitude": "12000 m", "mach": 0.78},
-  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6,
-    "frontal_area": 4.4, "wetted_area": 228,
-    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
-      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
-  "facility_id": "tsw-1",
-  "model": {"scale_min": 0.01, "scale_max": 0.5},
-  "installation": {"balance_id": "int-b1", "model_mass": 20},
-  "alpha": {"from": -4, "to": 16, "step": 1}
-}`
-
-// j16Loads is a load check of a 1:30 Orrin J16 in tsw-1 on every balance.
-const j16Loads = `{
-  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4,
-    "frontal_area": 4.4, "wetted_area": 228,
-    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
-      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
-  "facility_id": "tsw-1",
-  "model": {"scale": "1:30"},
-  "installation": {"model_mass": 20},
-  "alpha": {"from": -4, "to": 16, "step": 2},
-  "test": {"mach": 0.78, "stagnation_pressure": "1.5 bar", "stagnation_temperature": 310}
-}`
 
 const dragGroups = `{"variables": [{"name": "R", "unit": "N"}, {"name": "rho", "unit": "kg/m^3"},
   {"name": "V", "unit": "m/s"}, {"name": "L", "unit": "m"}, {"name": "mu", "unit": "Pa*s"}],
@@ -81,7 +56,7 @@ func postBody(t *testing.T, c facilities.Catalog, path, body string) (int, []byt
 }
 
 func TestPlanCommandTable(t *testing.T) {
-	file := writeFile(t, "j16.json", j16Plan)
+	file := writeFile(t, "j16.json", testfixture.J16Plan)
 	noStore := t.TempDir()
 	cases := []struct {
 		name  string
@@ -103,7 +78,7 @@ func TestPlanCommandTable(t *testing.T) {
 			"(matched within ±0.005)", "(not matched within 0.1 %)",
 			"within the allowed loads by this estimate",
 		}},
-		{"US from stdin", []string{"plan", "--data", noStore, "--units", "us", "-"}, j16Plan, []string{
+		{"US from stdin", []string{"plan", "--data", noStore, "--units", "us", "-"}, testfixture.J16Plan, []string{
 			"ft)", "kt)", "psf)", "°R)", "ft²)", "slug/ft³)",
 			// U.S. customary units beside SI everywhere, the loads table included:
 			// stagnation and static pressures in psia, speeds in ft/s.
@@ -137,10 +112,10 @@ func TestCommandJSONIsTheServiceBody(t *testing.T) {
 	cases := []struct {
 		name, cmd, path, body string
 	}{
-		{"plan", "plan", "/v1/plans", j16Plan},
-		{"plan with unit strings", "plan", "/v1/plans", strings.Replace(j16Plan, `"span": 16.4`, `"span": "19 m"`, 1)},
-		{"loads, every balance", "loads", "/v1/loads", j16Loads},
-		{"loads, one balance", "loads", "/v1/loads", strings.Replace(j16Loads, `{"model_mass": 20}`, `{"balance_id": "int-b2", "model_mass": 20}`, 1)},
+		{"plan", "plan", "/v1/plans", testfixture.J16Plan},
+		{"plan with unit strings", "plan", "/v1/plans", strings.Replace(testfixture.J16Plan, `"span": 16.4`, `"span": "19 m"`, 1)},
+		{"loads, every balance", "loads", "/v1/loads", testfixture.J16Loads},
+		{"loads, one balance", "loads", "/v1/loads", strings.Replace(testfixture.J16Loads, `{"model_mass": 20}`, `{"balance_id": "int-b2", "model_mass": 20}`, 1)},
 		{"groups", "groups", "/v1/groups", dragGroups},
 	}
 	for _, c := range cases {
@@ -183,7 +158,7 @@ func TestPlanCommandStore(t *testing.T) {
 	if _, err := db.CreateFacility(ctx, f, "test"); err != nil {
 		t.Fatal(err)
 	}
-	stored := strings.Replace(j16Plan, `"tsw-1"`, `"tsw-1x"`, 1)
+	stored := strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"tsw-1x"`, 1)
 	code, want := postBody(t, db, "/v1/plans", stored)
 	if code != http.StatusOK {
 		t.Fatalf("service: status %d: %s", code, want)
@@ -227,33 +202,33 @@ func TestCommandErrors(t *testing.T) {
 		want  []string        // fragments of the message
 	}{
 		{"bad fields are each named", []string{"plan", "--data", noStore, "-"},
-			strings.NewReplacer(`"12000 m"`, `"12000 kg"`, `"span": 16.4`, `"span": "19 s"`).Replace(j16Plan),
+			strings.NewReplacer(`"12000 m"`, `"12000 kg"`, `"span": 16.4`, `"span": "19 s"`).Replace(testfixture.J16Plan),
 			facilities.CodeInvalid, []string{"invalid input", "\n  flight.altitude: ", "\n  article.span: "}},
 		{"out-of-range values are each named", []string{"plan", "--data", noStore, "-"},
-			strings.NewReplacer(`"12000 m"`, `"99000 m"`, `"span": 16.4`, `"span": -1`).Replace(j16Plan),
+			strings.NewReplacer(`"12000 m"`, `"99000 m"`, `"span": 16.4`, `"span": -1`).Replace(testfixture.J16Plan),
 			facilities.CodeInvalid, []string{"\n  flight.altitude: ", "\n  article.span: "}},
-		{"unknown field", []string{"plan", "--data", noStore, "-"}, strings.Replace(j16Plan, `"cl_max"`, `"cl_maks"`, 1),
+		{"unknown field", []string{"plan", "--data", noStore, "-"}, strings.Replace(testfixture.J16Plan, `"cl_max"`, `"cl_maks"`, 1),
 			facilities.CodeInvalid, []string{"article.aero.cl_maks"}},
 		{"groups has no --units: its groups are dimensionless", []string{"groups", "--units", "us", "-"}, dragGroups,
 			"", []string{"unknown flag: --units"}},
 		{"broken JSON", []string{"loads", "--data", noStore, "-"}, `{"article": `,
 			facilities.CodeInvalid, []string{"(body): "}},
-		{"unknown facility", []string{"plan", "--data", noStore, "-"}, strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1),
+		{"unknown facility", []string{"plan", "--data", noStore, "-"}, strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1),
 			facilities.CodeNotFound, []string{"not found", "no-such"}},
-		{"no feasible plan", []string{"plan", "--data", noStore, "-"}, strings.Replace(j16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scale": 0.2}`, 1),
+		{"no feasible plan", []string{"plan", "--data", noStore, "-"}, strings.Replace(testfixture.J16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scale": 0.2}`, 1),
 			facilities.CodeUnprocessable, []string{"no feasible plan", "conflicting limits: "}},
 		{"a finite input that overflowed: +Inf counts, exit 0", []string{"plan", "--data", noStore, "-"},
-			strings.Replace(j16Plan, `"wetted_area": 228`, `"wetted_area": 228, "form_factor": 1e308`, 1),
+			strings.Replace(testfixture.J16Plan, `"wetted_area": 228`, `"wetted_area": 228, "form_factor": 1e308`, 1),
 			facilities.CodeInvalid, []string{"\n  article.form_factor: "}},
 		{"a finite load input that overflowed", []string{"loads", "--data", noStore, "-"},
-			strings.Replace(j16Loads, `"1.5 bar"`, `1e308`, 1),
+			strings.Replace(testfixture.J16Loads, `"1.5 bar"`, `1e308`, 1),
 			facilities.CodeInvalid, []string{"\n  test.stagnation_pressure: "}},
 		{"a tiny reference area", []string{"plan", "--json", "--data", noStore, "-"},
-			strings.Replace(j16Plan, `"reference_area": 36.5`, `"reference_area": 1e-310`, 1),
+			strings.Replace(testfixture.J16Plan, `"reference_area": 36.5`, `"reference_area": 1e-310`, 1),
 			facilities.CodeInvalid, []string{"\n  article.reference_area: "}},
 		{"groups without variables", []string{"groups", "-"}, `{"variables": []}`,
 			facilities.CodeInvalid, []string{"\n  variables: "}},
-		{"bad units flag", []string{"plan", "--units", "imperial", "-"}, j16Plan, "", []string{"--units"}},
+		{"bad units flag", []string{"plan", "--units", "imperial", "-"}, testfixture.J16Plan, "", []string{"--units"}},
 		{"missing file", []string{"loads", filepath.Join(noStore, "none.json")}, "", "", []string{"none.json"}},
 		{"no argument", []string{"groups"}, "", "", []string{"arg"}},
 	}
@@ -286,11 +261,11 @@ func TestLoadsAndGroupsCommandTables(t *testing.T) {
 		stdin string
 		want  []string
 	}{
-		{"loads on every balance", []string{"loads", "--data", noStore, "-"}, j16Loads, []string{
+		{"loads on every balance", []string{"loads", "--data", noStore, "-"}, testfixture.J16Loads, []string{
 			"Load check: facility tsw-1", "Loads on balance int-b1", "Loads on balance int-b2",
 			"Facility limits broken\n  none\n", "\nCautions\n",
 		}},
-		{"loads US", []string{"loads", "--data", noStore, "--units", "us", "-"}, j16Loads, []string{"axial N", "axial lbf", "psf)", "psia)"}},
+		{"loads US", []string{"loads", "--data", noStore, "--units", "us", "-"}, testfixture.J16Loads, []string{"axial N", "axial lbf", "psf)", "psia)"}},
 		{"groups", []string{"groups", "-"}, dragGroups, []string{
 			"rank 3; repeating variables: rho, V, L\n",
 			"Π1 = R rho^-1 V^-2 L^-2  (force coefficient)\n",

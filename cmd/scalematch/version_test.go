@@ -8,6 +8,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"regexp"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -90,13 +91,13 @@ func TestDemoVersionsAgree(t *testing.T) {
 		require.NoError(t, json.Unmarshal(b, &p))
 		return p
 	}
-	cliPlan, err := runCmd(t, j16Plan, "plan", "--json", "--data", noStore, "-")
+	cliPlan, err := runCmd(t, testfixture.J16Plan, "plan", "--json", "--data", noStore, "-")
 	require.NoError(t, err)
 	demoPlan := head([]byte(cliPlan))
 	assert.Equal(t, 1, demoPlan.FacilityVersion)
-	assert.Equal(t, demoPlan, head(serve(nil, http.MethodPost, "/v1/plans", j16Plan)), "service, demo catalog")
-	assert.Equal(t, demoPlan, head(serve(seeded, http.MethodPost, "/v1/plans", j16Plan)), "service, seeded store")
-	out, err := runCmd(t, j16Plan, "plan", "--data", noStore, "-")
+	assert.Equal(t, demoPlan, head(serve(nil, http.MethodPost, "/v1/plans", testfixture.J16Plan)), "service, demo catalog")
+	assert.Equal(t, demoPlan, head(serve(seeded, http.MethodPost, "/v1/plans", testfixture.J16Plan)), "service, seeded store")
+	out, err := runCmd(t, testfixture.J16Plan, "plan", "--data", noStore, "-")
 	require.NoError(t, err)
 	assert.Contains(t, out, "facility tsw-1 (demo catalog, version 1)")
 }

@@ -8,12 +8,11 @@ import (
 	"fmt"
 	"image/png"
 	"io"
-	"log/slog"
 	"net/http"
-	"net/http/httptest"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"scalematch/internal/testfixture/testsite"
 	"strings"
 	"sync"
 	"testing"
@@ -25,11 +24,8 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"scalematch/api"
 	"scalematch/api/schema"
 	"scalematch/facilities"
-	"scalematch/facilities/sqlite"
-	"scalematch/internal/pages"
 )
 
 // chromium returns the browser to drive, or skips the test naming what is
@@ -50,43 +46,6 @@ func chromium(t *testing.T) string {
 	}
 	t.Skip(msg)
 	return ""
-}
-
-// site is a live test server over a seeded SQLite catalog, with one stored plan.
-type site struct {
-	url    string
-	planID string
-}
-
-func newSite(t *testing.T) site {
-	t.Helper()
-	ctx := context.Background()
-	db, err := sqlite.Open(ctx, filepath.Join(t.TempDir(), sqlite.FileName))
-	require.NoError(t, err)
-	t.Cleanup(func() { db.Close() })
-	_, err = facilities.SeedDemo(ctx, db, true)
-	require.NoError(t, err)
-	quiet := slog.New(slog.NewTextHandler(io.Discard, nil))
-	srv, err := api.New(api.Config{Catalog: db, Logger: quiet})
-	require.NoError(t, err)
-	pg, err := pages.New(srv, quiet)
-	require.NoError(t, err)
-	pg.Register(srv)
-	ts := httptest.NewServer(srv.Handler())
-	t.Cleanup(ts.Close)
-
-	body, err := os.ReadFile("../../examples/orrin-j16-tsw-1.json")
-	require.NoError(t, err)
-	resp, err := http.Post(ts.URL+"/v1/plans", "application/json", bytes.NewReader(body))
-	require.NoError(t, err)
-	defer resp.Body.Close()
-	b, _ := io.ReadAll(resp.Body)
-	require.Equal(t, http.StatusOK, resp.StatusCode, "%s", b)
-	var plan struct {
-		ID string `json:"id"`
-	}
-	require.NoError(t, json.Unmarshal(b, &plan))
-	return site{url: ts.URL, planID: plan.ID}
 }
 
 // console collects what the page reports as errors: console.error calls,
@@ -192,7 +151,7 @@ func images(t *testing.T, ctx context.Context) [][2]int {
 }
 
 func TestPagesInBrowser(t *testing.T) {
-	s := newSite(t)
+	s := testsite.Start(t)
 	ctx, con := browser(t)
 	shots := t.TempDir()
 	if d := os.Getenv("SCALEMATCH_SCREENSHOTS"); d != "" {
@@ -203,7 +162,7 @@ func TestPagesInBrowser(t *testing.T) {
 		t.Helper()
 		sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 		defer cancel()
-		resp, err := chromedp.RunResponse(sctx, chromedp.Navigate(s.url+path))
+		resp, err := chromedp.RunResponse(sctx, chromedp.Navigate(s.URL+path))
 		require.NoError(t, err)
 		return resp.Status
 	}
@@ -233,12 +192,12 @@ func TestPagesInBrowser(t *testing.T) {
 	})
 
 	t.Run("plan report", func(t *testing.T) {
-		require.EqualValues(t, http.StatusOK, nav(t, "/plans/"+s.planID))
+		require.EqualValues(t, http.StatusOK, nav(t, "/plans/"+s.PlanID))
 		heads := step(t, ctx, chromedp.Evaluate[[]string](`Array.from(document.querySelectorAll("main h2")).map(h => h.textContent.trim())`))
 		assert.Equal(t, []string{"Cautions", "Flight", "Model", "Test setting", "Mismatch", "Binding limits",
 			"Wall corrections", "Balance loads", "Charts", "Reynolds effects", "Schedule"}, heads, "the report's sections, cautions first")
 		link := step(t, ctx, chromedp.AttributeValue(`a[href^="/v1/plans/"]`, "href"))
-		assert.Equal(t, "/v1/plans/"+s.planID, link.Value, "a link to the JSON")
+		assert.Equal(t, "/v1/plans/"+s.PlanID, link.Value, "a link to the JSON")
 		rows := step(t, ctx, chromedp.Evaluate[int](`document.querySelectorAll("table.loads tbody tr").length`))
 		assert.Equal(t, 17, rows, "one load row per α of the example's sweep, −4° to 12°")
 		imgs := images(t, ctx)
@@ -249,8 +208,8 @@ func TestPagesInBrowser(t *testing.T) {
 		// Each chart the page shows, fetched as SVG and as PNG, decodes at its size.
 		srcs := step(t, ctx, chromedp.Evaluate[[]string](`Array.from(document.images).map(i => i.getAttribute("src"))`))
 		for _, src := range srcs {
-			checkChart(t, s.url+src)
-			checkChart(t, s.url+strings.TrimSuffix(src, ".svg")+".png")
+			checkChart(t, s.URL+src)
+			checkChart(t, s.URL+strings.TrimSuffix(src, ".svg")+".png")
 		}
 		screenshot(t, ctx, shots, "plan")
 		assert.Empty(t, con.take(), "console errors")
@@ -281,7 +240,7 @@ func TestPagesInBrowser(t *testing.T) {
 		require.EqualValues(t, http.StatusOK, resp.Status)
 
 		// What POST /v1/loads answers for the same request: the page must agree.
-		want := loadsAnswer(t, s.url)
+		want := loadsAnswer(t, s.URL)
 		fits := step(t, ctx, chromedp.Text("#verdict-fits"))
 		loads := step(t, ctx, chromedp.Text("#verdict-loads"))
 		if len(want.Violations) == 0 && len(want.FitBroken) == 0 {

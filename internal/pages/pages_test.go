@@ -1,61 +1,20 @@
 package pages_test
 
 import (
-	"bytes"
-	"context"
-	"encoding/json"
 	"io"
-	"log/slog"
 	"net/http"
-	"net/http/httptest"
 	"net/url"
-	"os"
-	"path/filepath"
+	"scalematch/internal/testfixture/testsite"
 	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
-
-	"scalematch/api"
-	"scalematch/facilities"
-	"scalematch/facilities/sqlite"
-	"scalematch/internal/pages"
 )
 
-// site serves the pages over a seeded SQLite catalog with one stored plan (the
-// Orrin J16 example in tsw-1) and returns its URL and the plan's id.
-func site(t *testing.T) (string, string) {
-	t.Helper()
-	ctx := context.Background()
-	db, err := sqlite.Open(ctx, filepath.Join(t.TempDir(), sqlite.FileName))
-	require.NoError(t, err)
-	t.Cleanup(func() { db.Close() })
-	_, err = facilities.SeedDemo(ctx, db, true)
-	require.NoError(t, err)
-	quiet := slog.New(slog.NewTextHandler(io.Discard, nil))
-	srv, err := api.New(api.Config{Catalog: db, Logger: quiet})
-	require.NoError(t, err)
-	pg, err := pages.New(srv, quiet)
-	require.NoError(t, err)
-	pg.Register(srv)
-	ts := httptest.NewServer(srv.Handler())
-	t.Cleanup(ts.Close)
-	body, err := os.ReadFile("../../examples/orrin-j16-tsw-1.json")
-	require.NoError(t, err)
-	resp, err := http.Post(ts.URL+"/v1/plans", "application/json", bytes.NewReader(body))
-	require.NoError(t, err)
-	defer resp.Body.Close()
-	var plan struct {
-		ID string `json:"id"`
-	}
-	require.NoError(t, json.NewDecoder(resp.Body).Decode(&plan))
-	require.NotEmpty(t, plan.ID)
-	return ts.URL, plan.ID
-}
-
 func TestPages(t *testing.T) {
-	base, id := site(t)
+	s := testsite.Start(t)
+	base, id := s.URL, s.PlanID
 	article := url.Values{
 		"article.reference_length": {"2.6 m"}, "article.reference_area": {"50"}, "article.span": {"19"},
 		"article.frontal_area": {"5.5"}, "article.wetted_area": {"290"},
@@ -130,7 +89,7 @@ func TestPages(t *testing.T) {
 }
 
 func TestStylesheet(t *testing.T) {
-	base, _ := site(t)
+	base := testsite.Start(t).URL
 	resp, err := http.Get(base + "/static/pages.css")
 	require.NoError(t, err)
 	defer resp.Body.Close()

@@ -1,0 +1,54 @@
+// Package testfixture holds what the test packages share: the demo-world requests
+// they send, a silent logger and the relative error the physics checks measure
+// with. It imports nothing of the project, so that any package's tests may use it;
+// servers and stores for tests are in testsite. It is imported only by tests.
+package testfixture
+
+import (
+	"io"
+	"log/slog"
+	"math"
+)
+
+// J16Plan is a plan request for the Orrin J16 of the demo world (docs/demo-world.md)
+// at cruise (M 0.78 at 12 000 m) in tsw-1, free scale, on balance int-b1 with a
+// 20 kg model, 21 α points from −4° to 16°.
+const J16Plan = `{
+  "flight": {"altitude": "12000 m", "mach": 0.78},
+  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6,
+    "frontal_area": 4.4, "wetted_area": 228,
+    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
+      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
+  "facility_id": "tsw-1",
+  "model": {"scale_min": 0.01, "scale_max": 0.5},
+  "installation": {"balance_id": "int-b1", "model_mass": 20},
+  "alpha": {"from": -4, "to": 16, "step": 1}
+}`
+
+// J16Loads is a load check of a 1:30 Orrin J16 in tsw-1 at M 0.78, p0 1.5 bar,
+// T0 310 K, with a 20 kg model, on every balance of the facility.
+const J16Loads = `{
+  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4,
+    "frontal_area": 4.4, "wetted_area": 228,
+    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
+      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
+  "facility_id": "tsw-1",
+  "model": {"scale": "1:30"},
+  "installation": {"model_mass": 20},
+  "alpha": {"from": -4, "to": 16, "step": 2},
+  "test": {"mach": 0.78, "stagnation_pressure": "1.5 bar", "stagnation_temperature": 310}
+}`
+
+// Quiet is a logger that discards everything, for servers whose logs a test
+// does not read.
+func Quiet() *slog.Logger {
+	return slog.New(slog.NewTextHandler(io.Discard, nil))
+}
+
+// RelErr is |got − want| / |want|, or |got| when want is 0.
+func RelErr(got, want float64) float64 {
+	if want == 0 {
+		return math.Abs(got)
+	}
+	return math.Abs(got-want) / math.Abs(want)
+}
