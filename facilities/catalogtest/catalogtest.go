@@ -464,6 +464,11 @@ func testPlans(t *testing.T, c facilities.Catalog) {
 		"unicode":   []byte(`{"id":"unicode","note":"Re ≈ 3×10⁶, ΔM = 0.005 \u00e9"}`),
 		"key-order": []byte(`{"z":1,"a":2,"id":"key-order","big":12345678901234567890}`),
 		"empty":     {},
+		// Begins with the stores' mark of a compressed body (a zero byte and
+		// "s2"): it must still read back as given.
+		"tagged": []byte("\x00s2 not a block"),
+		// A plan answer, which the stores keep compressed.
+		"answer": planAnswer,
 	}
 	created := time.Date(2031, 4, 2, 9, 30, 0, 123456000, time.UTC)
 	for id, body := range bodies {

@@ -2,9 +2,10 @@ package sqlite
 
 import (
 	"context"
+	"encoding/base64"
 	"errors"
 	"fmt"
-	"strings"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -26,7 +27,13 @@ func TestFullDatabaseIsStorageFull(t *testing.T) {
 	require.NoError(t, db.w.QueryRowContext(ctx, `PRAGMA page_count`).Scan(&pages))
 	_, err := db.w.ExecContext(ctx, fmt.Sprintf(`PRAGMA max_page_count = %d`, pages+4))
 	require.NoError(t, err)
-	body := []byte(`{"plan":"` + strings.Repeat("x", 64<<10) + `"}`)
+	// Random text, which the store's compression cannot shrink much.
+	noise := make([]byte, 48<<10)
+	rng := rand.New(rand.NewPCG(1, 2))
+	for i := range noise {
+		noise[i] = byte(rng.Uint32())
+	}
+	body := []byte(`{"plan":"` + base64.StdEncoding.EncodeToString(noise) + `"}`)
 	var saveErr error
 	for i := range 64 {
 		_, saveErr = db.SavePlan(ctx, facilities.PlanRecord{ID: fmt.Sprintf("p%03d", i), Body: body})

@@ -5,8 +5,12 @@ import (
 	"errors"
 	"fmt"
 	"path/filepath"
+	"strings"
 	"testing"
 	"time"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
 	"scalematch/facilities/internal/sqlstore"
@@ -188,4 +192,27 @@ func TestSavePlanAfterClose(t *testing.T) {
 	if _, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "late", Body: []byte(`{}`)}); !errors.Is(err, hooks(db).Closed) {
 		t.Errorf("SavePlan after Close: %v, want %v", err, hooks(db).Closed)
 	}
+}
+
+// TestPlanStoredBeforeCompression reads a plan row written as the store wrote
+// them before bodies were compressed (the JSON itself in plans.body): it reads
+// back byte for byte, and a new plan's row is compressed.
+func TestPlanStoredBeforeCompression(t *testing.T) {
+	db := openInternal(t)
+	ctx := context.Background()
+	body := []byte(`{"id":"old","mismatch":{"reynolds_ratio":0.25},"notes":["` + strings.Repeat("an old plan ", 100) + `"]}`)
+	_, err := db.w.ExecContext(ctx, `INSERT INTO plans (id, facility_id, facility_version, body, created_us) VALUES ('old', 'tsw-1', 1, ?, 0)`, body)
+	require.NoError(t, err)
+	p, err := db.Plan(ctx, "old")
+	require.NoError(t, err)
+	assert.Equal(t, string(body), string(p.Body))
+
+	_, err = db.SavePlan(ctx, facilities.PlanRecord{ID: "new", FacilityID: "tsw-1", FacilityVersion: 1, Body: body})
+	require.NoError(t, err)
+	var stored []byte
+	require.NoError(t, db.w.QueryRowContext(ctx, `SELECT body FROM plans WHERE id = 'new'`).Scan(&stored))
+	assert.Less(t, len(stored), len(body)/4, "a new row's body is stored compressed")
+	p, err = db.Plan(ctx, "new")
+	require.NoError(t, err)
+	assert.Equal(t, string(body), string(p.Body))
 }

@@ -249,6 +249,10 @@ type preparedPlan struct {
 	flight similarity.FlightState
 	mx     similarity.Matrix
 	id     string
+	// encoded: the answer is encoded as JSON next, which refuses a non-finite
+	// number, so plan leaves CheckFinite to the encoding's failure (planJSON)
+	// instead of walking every number of every answer.
+	encoded bool
 }
 
 // prepare validates req, resolves its facility, flight and test matrix and
@@ -381,6 +385,9 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	out.ReynoldsEffects = &re
 	out.ID, out.Label = pp.id, req.Label
 	out.Warnings = collapseWarnings(out.Warnings)
+	if pp.encoded {
+		return out, nil
+	}
 	if err := CheckFinite(out, planInputs); err != nil {
 		return nil, err
 	}
@@ -455,11 +462,12 @@ func (p *Planner) planJSON(ctx context.Context, req *schema.PlanRequest) (planne
 	if pj.body, pj.stored = p.stored.get(pr.id); pj.stored {
 		return pj, nil
 	}
+	pr.encoded = true
 	resp, err := pr.plan()
 	if err != nil {
 		return plannedJSON{}, err
 	}
-	if pj.body, err = marshalPlan(resp); err != nil {
+	if pj.body, err = encodePlan(resp); err != nil {
 		return plannedJSON{}, err
 	}
 	if len(pj.body) > MaxPlanBytes {
@@ -468,6 +476,19 @@ func (p *Planner) planJSON(ctx context.Context, req *schema.PlanRequest) (planne
 	}
 	pj.stored = p.Catalog == nil
 	return pj, nil
+}
+
+// encodePlan encodes a plan answer (marshalPlan). A non-finite number, which
+// the encoding refuses, is answered as CheckFinite answers it: naming the number
+// and the input behind it.
+func encodePlan(resp *schema.PlanResponse) ([]byte, error) {
+	b, err := marshalPlan(resp)
+	if uve := (*json.UnsupportedValueError)(nil); errors.As(err, &uve) {
+		if ferr := CheckFinite(resp, planInputs); ferr != nil {
+			return nil, ferr
+		}
+	}
+	return b, err
 }
 
 // MaxPlanBytes is the largest plan answer the service stores and sends, in bytes

@@ -18,10 +18,11 @@ import (
 // input maps from the result's top-level field ("test" → "test"); nil input or an
 // unmapped field names the body as a whole ("").
 func CheckFinite(v any, input func(top string) string) error {
-	path, ok := nonFinite(reflect.ValueOf(v), "")
-	if ok {
+	rv := reflect.ValueOf(v)
+	if allFinite(rv) {
 		return nil
 	}
+	path, _ := nonFinite(rv, "")
 	field := ""
 	if input != nil {
 		top, _, _ := strings.Cut(path, ".")
@@ -32,6 +33,44 @@ func CheckFinite(v any, input func(top string) string) error {
 		Message: fmt.Sprintf("the result %s is not a finite number: the inputs are inside their ranges but too extreme together for the models", path),
 		Fields:  []facilities.FieldError{{Field: field, Message: fmt.Sprintf("makes %s overflow; bring it nearer to the usual range", path)}},
 		Limits:  []string{"finite_result"}}
+}
+
+// allFinite reports whether every float in v is finite. It walks v as nonFinite
+// does but builds no paths, which cost most of the walk (a plan answer has
+// thousands of numbers); nonFinite names the culprit when there is one.
+func allFinite(v reflect.Value) bool {
+	switch v.Kind() {
+	case reflect.Float32, reflect.Float64:
+		f := v.Float()
+		return !math.IsNaN(f) && !math.IsInf(f, 0)
+	case reflect.Pointer, reflect.Interface:
+		return v.IsNil() || allFinite(v.Elem())
+	case reflect.Struct:
+		t := v.Type()
+		for i := range t.NumField() {
+			sf := t.Field(i)
+			if !sf.IsExported() || sf.Tag.Get("json") == "-" {
+				continue
+			}
+			if !allFinite(v.Field(i)) {
+				return false
+			}
+		}
+	case reflect.Slice, reflect.Array:
+		for i := range v.Len() {
+			if !allFinite(v.Index(i)) {
+				return false
+			}
+		}
+	case reflect.Map:
+		iter := v.MapRange()
+		for iter.Next() {
+			if !allFinite(iter.Value()) {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 // nonFinite walks v and returns the JSON path of its first NaN or infinite float,

@@ -42,6 +42,9 @@ type Schema struct {
 	// At, Created and Applied name the instant columns of facility_versions,
 	// plans (and jobs) and schema_migrations; Updated and Lease those of jobs.
 	At, Created, Applied, Updated, Lease string
+	// PlanBodyStorage is the statement (or nothing) that stops the engine from
+	// compressing plans.body again: the store writes it compressed already.
+	PlanBodyStorage string
 }
 
 // queries are the store's SQL statements in one dialect.

@@ -53,7 +53,10 @@ func (s *Store) commitGroup(recs []facilities.PlanRecord) error {
 			p.Body = nonNil(p.Body)
 			// Instants are kept to the microsecond: store and answer the same one.
 			p.CreatedAt = p.CreatedAt.UTC().Truncate(time.Microsecond)
-			n, err := tx.Exec(ctx, s.q.planInsert, p.ID, p.FacilityID, p.FacilityVersion, p.Label, p.Body, s.d.Instant(p.CreatedAt))
+			// The body is stored compressed (planbody.go); the record answered
+			// keeps it as given.
+			s.packed = storedBody(s.packed, p.Body)
+			n, err := tx.Exec(ctx, s.q.planInsert, p.ID, p.FacilityID, p.FacilityVersion, p.Label, s.packed, s.d.Instant(p.CreatedAt))
 			if err != nil {
 				return err
 			}
@@ -83,10 +86,14 @@ func (s *Store) Plan(ctx context.Context, id string) (facilities.PlanRecord, err
 
 func scanPlan(row Row) (facilities.PlanRecord, error) {
 	var p facilities.PlanRecord
-	if err := row.Scan(&p.ID, &p.FacilityID, &p.FacilityVersion, &p.Label, &p.Body, instant{&p.CreatedAt}); err != nil {
+	var stored []byte
+	if err := row.Scan(&p.ID, &p.FacilityID, &p.FacilityVersion, &p.Label, &stored, instant{&p.CreatedAt}); err != nil {
 		return facilities.PlanRecord{}, err
 	}
-	p.Body = nonNil(p.Body)
+	var err error
+	if p.Body, err = readBody(stored); err != nil {
+		return facilities.PlanRecord{}, err
+	}
 	return p, nil
 }
 

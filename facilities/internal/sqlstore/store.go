@@ -53,6 +53,9 @@ type Store struct {
 	plans *groupcommit.Committer[facilities.PlanRecord]
 	// closed answers SavePlan calls made after Close or still queued when it ran.
 	closed error
+	// packed is the plan group commit's buffer of a compressed body (only one
+	// group commits at a time).
+	packed []byte
 
 	now func() time.Time
 	// beforeCommit, when set by a test (Hooks), runs after a write's statements
@@ -143,12 +146,27 @@ func (s *Store) apply(ctx context.Context, conn Session, name string) error {
 		if err := tx.QueryRow(ctx, s.q.migrationDone, n).Scan(&done); err != nil || done {
 			return err
 		}
-		if _, err := tx.Exec(ctx, body.String()); err != nil {
-			return err
+		// A migration can be comments only in one engine's words (0003 in
+		// SQLite's): it is recorded as applied without running it.
+		if hasStatements(body.String()) {
+			if _, err := tx.Exec(ctx, body.String()); err != nil {
+				return err
+			}
 		}
 		_, err := tx.Exec(ctx, s.q.migrationDoneInsert, n, base, s.d.Instant(s.now()))
 		return err
 	})
+}
+
+// hasStatements reports whether the SQL text holds more than blank lines and
+// -- comments.
+func hasStatements(text string) bool {
+	for line := range strings.Lines(text) {
+		if l := strings.TrimSpace(line); l != "" && !strings.HasPrefix(l, "--") {
+			return true
+		}
+	}
+	return false
 }
 
 // tx runs fn in one write transaction and commits; any error (or a cancelled
