@@ -31,7 +31,7 @@ var dialect = sqlstore.Dialect{
 	Numbered: true,
 	Schema: sqlstore.Schema{Text: "text", Integer: "integer", JSON: "jsonb", Bytes: "bytea", Instant: "timestamptz",
 		Deleted: "boolean NOT NULL DEFAULT false",
-		At: "at", Created: "created_at", Applied: "applied_at", Updated: "updated_at", Lease: "lease_until",
+		At:      "at", Created: "created_at", Applied: "applied_at", Updated: "updated_at", Lease: "lease_until",
 		// The store compresses plan bodies itself (S2): TOAST's pglz over them
 		// cost server CPU for nothing (docs/performance.md).
 		PlanBodyStorage: "ALTER TABLE plans ALTER COLUMN body SET STORAGE EXTERNAL;"},
