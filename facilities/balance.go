@@ -6,15 +6,12 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+	"scalematch/atmosphere"
 	"sort"
 	"strconv"
 	"strings"
 	"unicode/utf8"
 )
-
-// standardGravity is g0 in m/s² (the 1976 standard atmosphere's value), used for
-// the model's weight.
-const standardGravity = 9.80665
 
 // ErrNoBalance is returned when a load check is asked of a facility with no balance.
 var ErrNoBalance = errors.New("facilities: the facility has no balance")
@@ -204,7 +201,7 @@ func (in Installation) WeightLoads(alphaDeg float64) Load {
 	if in.ModelMass == 0 && in.Buoyancy == 0 {
 		return Load{}
 	}
-	w := in.ModelMass*standardGravity - in.Buoyancy
+	w := in.ModelMass*atmosphere.G0 - in.Buoyancy
 	sa, ca := math.Sincos(alphaDeg * math.Pi / 180)
 	n := -w * ca
 	a := w * sa

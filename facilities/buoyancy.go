@@ -3,6 +3,7 @@ package facilities
 import (
 	"fmt"
 	"math"
+	"scalematch/atmosphere"
 )
 
 // BoundModelVolume bounds installation.model_volume, m³ (0: not given).
@@ -30,7 +31,7 @@ func BuoyancyDensity(f *Facility) float64 {
 // a gas facility or without a volume.
 func (in Installation) WithBuoyancy(f *Facility) Installation {
 	if rho := BuoyancyDensity(f); rho > 0 && in.ModelVolume > 0 {
-		in.Buoyancy = rho * standardGravity * in.ModelVolume
+		in.Buoyancy = rho * atmosphere.G0 * in.ModelVolume
 	}
 	return in
 }
@@ -76,8 +77,8 @@ func BuoyancyOf(f *Facility, in Installation, frontal, length float64) *Buoyancy
 		}
 		b.ModelVolume, b.VolumeBasis, b.InLoadCheck = HullVolumeCoefficient*frontal*length, "estimated", false
 	}
-	b.Weight = in.ModelMass * standardGravity
-	b.Buoyancy = rho * standardGravity * b.ModelVolume
+	b.Weight = in.ModelMass * atmosphere.G0
+	b.Buoyancy = rho * atmosphere.G0 * b.ModelVolume
 	b.Net = b.Weight - b.Buoyancy
 	if math.IsInf(b.Net, 0) || math.IsNaN(b.Net) {
 		return nil

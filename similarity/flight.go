@@ -165,7 +165,7 @@ func (f *Flight) Resolve(referenceLength float64) (FlightState, error) {
 	return FlightState{
 		Mach:               sp.Mach,
 		Reynolds:           atm.Density * sp.True * referenceLength / atm.Viscosity,
-		Froude:             sp.True / math.Sqrt(atmosphere.G0*referenceLength),
+		Froude:             Froude(sp.True, referenceLength),
 		ReferenceLength:    referenceLength,
 		TrueAirspeed:       sp.True,
 		CalibratedAirspeed: sp.Calibrated,
@@ -187,4 +187,10 @@ func (f *Flight) Resolve(referenceLength float64) (FlightState, error) {
 func fieldError(field string, err error) error {
 	return &facilities.Error{Code: facilities.CodeInvalid, Message: "invalid flight condition",
 		Fields: []facilities.FieldError{{Field: field, Message: err.Error()}}}
+}
+
+// Froude returns the Froude number Fr = V/√(g0·L) of speed V in m/s on length L in
+// m, with g0 the standard gravity (atmosphere.G0).
+func Froude(speed, length float64) float64 {
+	return speed / math.Sqrt(atmosphere.G0*length)
 }

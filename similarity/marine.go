@@ -204,12 +204,12 @@ func (m *Marine) Resolve(referenceLength float64) (FlightState, error) {
 		FreeSurface:         surface,
 	}
 	if surface != SurfaceSubmerged && m.Depth > 0 {
-		fr := v / math.Sqrt(atmosphere.G0*m.Depth)
+		fr := Froude(v, m.Depth)
 		ms.FroudeDepth = &fr
 	}
 	return FlightState{
 		Reynolds:        w.Density * v * referenceLength / w.Viscosity,
-		Froude:          v / math.Sqrt(atmosphere.G0*referenceLength),
+		Froude:          Froude(v, referenceLength),
 		ReferenceLength: referenceLength,
 		DynamicPressure: q,
 		Static: facilities.Static{

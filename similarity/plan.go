@@ -235,6 +235,26 @@ type ModelSize struct {
 	Blockage float64 `json:"blockage"`
 }
 
+// SizeAt returns the size of a model of a at the given scale (model length over
+// full-scale length) in a test section whose cross-section is crossSection m².
+func (a *Article) SizeAt(scale, crossSection float64) ModelSize {
+	s2 := scale * scale
+	return ModelSize{
+		Scale:           scale,
+		ReferenceLength: scale * a.ReferenceLength,
+		ReferenceArea:   s2 * a.ReferenceArea,
+		Span:            scale * a.Span,
+		FrontalArea:     s2 * a.FrontalArea,
+		Blockage:        s2 * a.FrontalArea / crossSection,
+	}
+}
+
+// TestOn returns the test condition of state st for a model of reference length
+// l in m: the state, Re = (Re/m)·l and Fr = V/√(g0·l).
+func TestOn(st facilities.State, l float64) Test {
+	return Test{State: st, Reynolds: st.ReynoldsPerMeter * l, Froude: Froude(st.Speed, l)}
+}
+
 // Test is the chosen test condition: the facility state plus the model's Reynolds
 // number on its reference length.
 type Test struct {

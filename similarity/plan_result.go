@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"scalematch/atmosphere"
 	"scalematch/facilities"
 )
 
@@ -35,21 +34,10 @@ func (sv *solver) result(x candidate) *Result {
 	s, a := x.s, sv.art
 	l := s * a.ReferenceLength
 	res := &Result{
-		Flight: sv.fl,
-		Model: ModelSize{
-			Scale:           s,
-			ReferenceLength: l,
-			ReferenceArea:   s * s * a.ReferenceArea,
-			Span:            s * a.Span,
-			FrontalArea:     s * s * a.FrontalArea,
-			Blockage:        s * s * a.FrontalArea / f.TestSection.CrossSection(),
-		},
-		Setting: set,
-		Test: Test{
-			State:    st,
-			Reynolds: st.ReynoldsPerMeter * l,
-			Froude:   st.Speed / math.Sqrt(atmosphere.G0*l),
-		},
+		Flight:   sv.fl,
+		Model:    a.SizeAt(s, f.TestSection.CrossSection()),
+		Setting:  set,
+		Test:     TestOn(st, l),
 		Warnings: append([]string{}, sv.warnings...),
 	}
 	if sv.liquid {

@@ -3,14 +3,16 @@ package similarity
 import (
 	"errors"
 	"math"
+	"scalematch/atmosphere"
 	"strconv"
 	"strings"
 	"unicode"
 	"unicode/utf8"
 )
 
-// Exact definitions behind the conversion factors. Every factor of the unit table is
-// built from these, so each is exact to the last bit a float64 can hold.
+// Exact definitions behind the conversion factors, in SI units. Every factor of the
+// unit table, and every U.S. customary figure the CLI prints, is built from these, so
+// each is exact to the last bit a float64 can hold.
 //
 //	ft   = 0.3048 m                 (international foot, 1959)
 //	lb   = 0.45359237 kg            (international avoirdupois pound, 1959)
@@ -29,17 +31,22 @@ import (
 // GNU units also uses, so inHg and mmHg agree with it exactly; inHg at 60 °F
 // (3376.85 Pa) is a different unit and is not supported.
 const (
-	footSI       = 0.3048
-	inchSI       = 0.0254
-	mileSI       = 1609.344
-	nauticalMile = 1852.0
-	poundSI      = 0.45359237
-	standardG    = 9.80665
-	poundForce   = poundSI * standardG
-	slugSI       = poundForce / footSI
-	atmosphereSI = 101325.0
-	mmHgSI       = 13595.1 * standardG * 1e-3
-	hourSI       = 3600.0
+	Foot                = 0.3048                         // m, international foot
+	Inch                = 0.0254                         // m
+	Mile                = 1609.344                       // m, statute mile
+	NauticalMile        = 1852.0                         // m
+	Pound               = 0.45359237                     // kg, avoirdupois pound
+	PoundForce          = Pound * atmosphere.G0          // N, lbf (4.4482216152605)
+	Slug                = PoundForce / Foot              // kg (14.593902937206)
+	PoundPerSquareFoot  = PoundForce / (Foot * Foot)     // Pa, psf (47.880258980336)
+	PoundPerSquareInch  = PoundForce / (Inch * Inch)     // Pa, psi (6894.7572931684)
+	MillimetreOfMercury = 13595.1 * atmosphere.G0 * 1e-3 // Pa, conventional
+	InchOfMercury       = 25.4 * MillimetreOfMercury     // Pa, conventional (3386.389)
+	Hour                = 3600.0                         // s
+	Knot                = NauticalMile / Hour            // m/s
+	Rankine             = 5.0 / 9                        // K per °R (and per °F)
+	FahrenheitZero      = 459.67                         // °R at 0 °F
+	atmosphereSI        = 101325.0                       // Pa, standard atmosphere
 )
 
 // Unit is a parsed unit: the SI value of x of this unit is Factor·x + Offset. Offset
@@ -66,47 +73,47 @@ var unitTable = map[string]Unit{
 	// Micrometre: the micro sign (U+00B5), the Greek mu (U+03BC) and ASCII "um".
 	"\u00b5m": {Factor: 1e-6, Dim: DimLength}, "\u03bcm": {Factor: 1e-6, Dim: DimLength},
 	"um": {Factor: 1e-6, Dim: DimLength},
-	"ft": {Factor: footSI, Dim: DimLength}, "foot": {Factor: footSI, Dim: DimLength},
-	"feet": {Factor: footSI, Dim: DimLength},
-	"in":   {Factor: inchSI, Dim: DimLength}, "inch": {Factor: inchSI, Dim: DimLength},
-	"inches": {Factor: inchSI, Dim: DimLength},
-	"yd":     {Factor: 3 * footSI, Dim: DimLength},
-	"mi":     {Factor: mileSI, Dim: DimLength}, "mile": {Factor: mileSI, Dim: DimLength},
-	"miles": {Factor: mileSI, Dim: DimLength},
-	"nmi":   {Factor: nauticalMile, Dim: DimLength},
+	"ft": {Factor: Foot, Dim: DimLength}, "foot": {Factor: Foot, Dim: DimLength},
+	"feet": {Factor: Foot, Dim: DimLength},
+	"in":   {Factor: Inch, Dim: DimLength}, "inch": {Factor: Inch, Dim: DimLength},
+	"inches": {Factor: Inch, Dim: DimLength},
+	"yd":     {Factor: 3 * Foot, Dim: DimLength},
+	"mi":     {Factor: Mile, Dim: DimLength}, "mile": {Factor: Mile, Dim: DimLength},
+	"miles": {Factor: Mile, Dim: DimLength},
+	"nmi":   {Factor: NauticalMile, Dim: DimLength},
 	// Mass.
 	"kg": {Factor: 1, Dim: DimMass}, "g": {Factor: 1e-3, Dim: DimMass},
-	"lb": {Factor: poundSI, Dim: DimMass}, "lbm": {Factor: poundSI, Dim: DimMass},
-	"slug": {Factor: slugSI, Dim: DimMass}, "slugs": {Factor: slugSI, Dim: DimMass},
+	"lb": {Factor: Pound, Dim: DimMass}, "lbm": {Factor: Pound, Dim: DimMass},
+	"slug": {Factor: Slug, Dim: DimMass}, "slugs": {Factor: Slug, Dim: DimMass},
 	// Time.
 	"s": {Factor: 1, Dim: DimTime}, "sec": {Factor: 1, Dim: DimTime},
 	"ms":  {Factor: 1e-3, Dim: DimTime},
 	"min": {Factor: 60, Dim: DimTime},
-	"h":   {Factor: hourSI, Dim: DimTime}, "hr": {Factor: hourSI, Dim: DimTime},
+	"h":   {Factor: Hour, Dim: DimTime}, "hr": {Factor: Hour, Dim: DimTime},
 	// Temperature: absolute scales, then the offset scales (alone only).
-	"K": {Factor: 1, Dim: DimTemperature}, "degR": {Factor: 5.0 / 9, Dim: DimTemperature},
-	"°R":   {Factor: 5.0 / 9, Dim: DimTemperature},
+	"K": {Factor: 1, Dim: DimTemperature}, "degR": {Factor: Rankine, Dim: DimTemperature},
+	"°R":   {Factor: Rankine, Dim: DimTemperature},
 	"degC": {Factor: 1, Offset: 273.15, Dim: DimTemperature},
 	"°C":   {Factor: 1, Offset: 273.15, Dim: DimTemperature},
-	"degF": {Factor: 5.0 / 9, Offset: 459.67 * 5 / 9, Dim: DimTemperature},
-	"°F":   {Factor: 5.0 / 9, Offset: 459.67 * 5 / 9, Dim: DimTemperature},
+	"degF": {Factor: Rankine, Offset: FahrenheitZero * Rankine, Dim: DimTemperature},
+	"°F":   {Factor: Rankine, Offset: FahrenheitZero * Rankine, Dim: DimTemperature},
 	// Speed.
-	"kt": {Factor: nauticalMile / hourSI, Dim: DimVelocity}, "kn": {Factor: nauticalMile / hourSI, Dim: DimVelocity},
-	"kts": {Factor: nauticalMile / hourSI, Dim: DimVelocity}, "knot": {Factor: nauticalMile / hourSI, Dim: DimVelocity},
-	"knots": {Factor: nauticalMile / hourSI, Dim: DimVelocity},
-	"mph":   {Factor: mileSI / hourSI, Dim: DimVelocity}, "kph": {Factor: 1e3 / hourSI, Dim: DimVelocity},
+	"kt": {Factor: NauticalMile / Hour, Dim: DimVelocity}, "kn": {Factor: NauticalMile / Hour, Dim: DimVelocity},
+	"kts": {Factor: NauticalMile / Hour, Dim: DimVelocity}, "knot": {Factor: NauticalMile / Hour, Dim: DimVelocity},
+	"knots": {Factor: NauticalMile / Hour, Dim: DimVelocity},
+	"mph":   {Factor: Mile / Hour, Dim: DimVelocity}, "kph": {Factor: 1e3 / Hour, Dim: DimVelocity},
 	// Force.
 	"N": {Factor: 1, Dim: DimForce}, "kN": {Factor: 1e3, Dim: DimForce},
 	"MN":  {Factor: 1e6, Dim: DimForce},
-	"lbf": {Factor: poundForce, Dim: DimForce}, "kgf": {Factor: standardG, Dim: DimForce},
+	"lbf": {Factor: PoundForce, Dim: DimForce}, "kgf": {Factor: atmosphere.G0, Dim: DimForce},
 	// Pressure.
 	"Pa": {Factor: 1, Dim: DimPressure}, "hPa": {Factor: 1e2, Dim: DimPressure},
 	"kPa": {Factor: 1e3, Dim: DimPressure}, "MPa": {Factor: 1e6, Dim: DimPressure},
 	"bar": {Factor: 1e5, Dim: DimPressure}, "mbar": {Factor: 1e2, Dim: DimPressure},
 	"atm":  {Factor: atmosphereSI, Dim: DimPressure},
-	"psi":  {Factor: poundForce / (inchSI * inchSI), Dim: DimPressure},
-	"psf":  {Factor: poundForce / (footSI * footSI), Dim: DimPressure},
-	"inHg": {Factor: mmHgSI * 25.4, Dim: DimPressure}, "mmHg": {Factor: mmHgSI, Dim: DimPressure},
+	"psi":  {Factor: PoundForce / (Inch * Inch), Dim: DimPressure},
+	"psf":  {Factor: PoundForce / (Foot * Foot), Dim: DimPressure},
+	"inHg": {Factor: MillimetreOfMercury * 25.4, Dim: DimPressure}, "mmHg": {Factor: MillimetreOfMercury, Dim: DimPressure},
 	"Torr": {Factor: atmosphereSI / 760, Dim: DimPressure}, "torr": {Factor: atmosphereSI / 760, Dim: DimPressure},
 	// Energy and power.
 	"J": {Factor: 1, Dim: DimEnergy}, "kJ": {Factor: 1e3, Dim: DimEnergy},

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"scalematch/similarity"
 	"strings"
 	"text/tabwriter"
 
@@ -15,20 +16,9 @@ import (
 	"scalematch/internal/app"
 )
 
-// U.S. customary units in SI, from their exact definitions (NIST Special
-// Publication 811, appendix B): the international foot and pound, the standard
-// acceleration of gravity for the pound-force, the conventional inch of mercury.
-const (
-	footM        = 0.3048                        // m
-	poundKg      = 0.45359237                    // kg
-	poundForceN  = poundKg * atmosphere.G0       // N, 4.4482216152605
-	slugKg       = poundForceN / footM           // kg, 14.593902937206
-	psfPa        = poundForceN / (footM * footM) // Pa, 47.880258980336
-	psiPa        = 144 * psfPa                   // Pa, 6894.7572931684 (lbf/in²)
-	inchHgPa     = 3386.389                      // Pa, conventional inch of mercury
-	rankinePerK  = 1.8                           // °R per K
-	fahrenheit0R = 459.67                        // °R at 0 °F
-)
+// rankinePerKelvin converts a temperature difference or an absolute temperature
+// from K to °R (1.8, from the unit table's exact definition).
+const rankinePerKelvin = 1 / similarity.Rankine
 
 // newAtmosphereCmd is `scalematch atmosphere`: the standard atmosphere at one
 // altitude, as a table or as the JSON of GET /v1/atmosphere.
@@ -109,19 +99,19 @@ func writeAtmosphere(w io.Writer, s atmosphere.State, us bool) error {
 			fmt.Fprintf(tw, "  %s\t%s\n", name, si)
 		}
 	}
-	ft := func(m float64) string { return fmt.Sprintf("%.0f ft", m/footM) }
-	tR := s.Temperature * rankinePerK
+	ft := func(m float64) string { return fmt.Sprintf("%.0f ft", m/similarity.Foot) }
+	tR := s.Temperature * rankinePerKelvin
 	row("geometric altitude", fmt.Sprintf("%.1f m", s.Altitude), ft(s.Altitude))
 	row("geopotential altitude", fmt.Sprintf("%.1f m'", s.GeopotentialAltitude), ft(s.GeopotentialAltitude)+"'")
 	row("pressure altitude", fmt.Sprintf("%.1f m", s.PressureAltitude), ft(s.PressureAltitude))
-	row("temperature offset", fmt.Sprintf("%+g K", s.DeltaISA), fmt.Sprintf("%+g °R", s.DeltaISA*rankinePerK))
+	row("temperature offset", fmt.Sprintf("%+g K", s.DeltaISA), fmt.Sprintf("%+g °R", s.DeltaISA*rankinePerKelvin))
 	row("temperature", fmt.Sprintf("%.3f K (%.2f °C)", s.Temperature, s.Temperature-273.15),
-		fmt.Sprintf("%.3f °R (%.2f °F)", tR, tR-fahrenheit0R))
+		fmt.Sprintf("%.3f °R (%.2f °F)", tR, tR-similarity.FahrenheitZero))
 	row("pressure", fmt.Sprintf("%.6g Pa", s.Pressure),
-		fmt.Sprintf("%.6g psf (%.6g inHg)", s.Pressure/psfPa, s.Pressure/inchHgPa))
-	row("density", fmt.Sprintf("%.6g kg/m³", s.Density), fmt.Sprintf("%.6g slug/ft³", s.Density*footM*footM*footM/slugKg))
-	row("speed of sound", fmt.Sprintf("%.6g m/s", s.SpeedOfSound), fmt.Sprintf("%.6g ft/s", s.SpeedOfSound/footM))
-	row("dynamic viscosity", fmt.Sprintf("%.6g Pa·s", s.Viscosity), fmt.Sprintf("%.6g lbf·s/ft²", s.Viscosity/psfPa))
-	row("kinematic viscosity", fmt.Sprintf("%.6g m²/s", s.KinematicViscosity), fmt.Sprintf("%.6g ft²/s", s.KinematicViscosity/(footM*footM)))
+		fmt.Sprintf("%.6g psf (%.6g inHg)", s.Pressure/similarity.PoundPerSquareFoot, s.Pressure/similarity.InchOfMercury))
+	row("density", fmt.Sprintf("%.6g kg/m³", s.Density), fmt.Sprintf("%.6g slug/ft³", s.Density*similarity.Foot*similarity.Foot*similarity.Foot/similarity.Slug))
+	row("speed of sound", fmt.Sprintf("%.6g m/s", s.SpeedOfSound), fmt.Sprintf("%.6g ft/s", s.SpeedOfSound/similarity.Foot))
+	row("dynamic viscosity", fmt.Sprintf("%.6g Pa·s", s.Viscosity), fmt.Sprintf("%.6g lbf·s/ft²", s.Viscosity/similarity.PoundPerSquareFoot))
+	row("kinematic viscosity", fmt.Sprintf("%.6g m²/s", s.KinematicViscosity), fmt.Sprintf("%.6g ft²/s", s.KinematicViscosity/(similarity.Foot*similarity.Foot)))
 	return tw.Flush()
 }

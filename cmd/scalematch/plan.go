@@ -21,9 +21,6 @@ import (
 	"scalematch/similarity"
 )
 
-// knotMS is the international knot in m/s (1852 m per hour, NIST SP 811).
-const knotMS = 1852.0 / 3600
-
 // computeOptions are the flags shared by plan, loads and groups.
 type computeOptions struct {
 	data     string
@@ -288,29 +285,29 @@ func (u units) q(v float64, unit string, digits int) string {
 	var cu string
 	switch unit {
 	case "m":
-		c, cu = v/footM, "ft"
+		c, cu = v/similarity.Foot, "ft"
 	case "m²":
-		c, cu = v/(footM*footM), "ft²"
+		c, cu = v/(similarity.Foot*similarity.Foot), "ft²"
 	case "m/s":
-		c, cu = v/footM, "ft/s"
+		c, cu = v/similarity.Foot, "ft/s"
 	case "m/s kt":
-		return fmt.Sprintf("%s (%.*g ft/s, %.*g kt)", s, digits, v/footM, digits, v/knotMS)
+		return fmt.Sprintf("%s (%.*g ft/s, %.*g kt)", s, digits, v/similarity.Foot, digits, v/similarity.Knot)
 	case "Pa":
-		c, cu = v/psfPa, "psf"
+		c, cu = v/similarity.PoundPerSquareFoot, "psf"
 	case "Pa abs":
-		c, cu = v/psiPa, "psia"
+		c, cu = v/similarity.PoundPerSquareInch, "psia"
 	case "N":
-		c, cu = v/poundForceN, "lbf"
+		c, cu = v/similarity.PoundForce, "lbf"
 	case "N·m":
-		c, cu = v/(poundForceN*footM), "ft·lbf"
+		c, cu = v/(similarity.PoundForce*similarity.Foot), "ft·lbf"
 	case "K":
-		c, cu = v*rankinePerK, "°R"
+		c, cu = v*rankinePerKelvin, "°R"
 	case "kg/m³":
-		c, cu = v*footM*footM*footM/slugKg, "slug/ft³"
+		c, cu = v*similarity.Foot*similarity.Foot*similarity.Foot/similarity.Slug, "slug/ft³"
 	case "1/m":
-		c, cu = v*footM, "1/ft"
+		c, cu = v*similarity.Foot, "1/ft"
 	case "kg":
-		c, cu = v/poundKg, "lb"
+		c, cu = v/similarity.Pound, "lb"
 	default:
 		return s
 	}
@@ -585,7 +582,7 @@ func writeLoads(w io.Writer, u units, r facilities.LoadReport) {
 	}
 	systems := []system{{"N", "N·m", 1, 1}}
 	if u.us {
-		systems = append(systems, system{"lbf", "ft·lbf", 1 / poundForceN, 1 / (poundForceN * footM)})
+		systems = append(systems, system{"lbf", "ft·lbf", 1 / similarity.PoundForce, 1 / (similarity.PoundForce * similarity.Foot)})
 	}
 	head := []string{"α °", "β °"}
 	for _, sy := range systems {

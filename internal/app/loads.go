@@ -3,10 +3,8 @@ package app
 import (
 	"context"
 	"fmt"
-	"math"
 
 	"scalematch/api/schema"
-	"scalematch/atmosphere"
 	"scalematch/facilities"
 	"scalematch/internal/check"
 	"scalematch/internal/loads"
@@ -57,17 +55,11 @@ func (p *Planner) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.
 	}
 	scale := *req.Model.Scale
 	a := &req.Article
-	s2 := scale * scale
 	lref := a.ReferenceLength * scale
 	out := &schema.LoadsResponse{
 		FacilityID: f.ID,
-		Model: similarity.ModelSize{
-			Scale: scale, ReferenceLength: lref, ReferenceArea: a.ReferenceArea * s2,
-			Span: a.Span * scale, FrontalArea: a.FrontalArea * s2,
-			Blockage: a.FrontalArea * s2 / f.TestSection.CrossSection(),
-		},
-		Test: similarity.Test{State: st, Reynolds: st.ReynoldsPerMeter * lref,
-			Froude: st.Speed / math.Sqrt(atmosphere.G0*lref)},
+		Model:      a.SizeAt(scale, f.TestSection.CrossSection()),
+		Test:       similarity.TestOn(st, lref),
 		Violations: f.Violations(st),
 		Warnings:   append([]string{}, mx.Warnings...),
 	}
