@@ -99,6 +99,10 @@ type Store interface {
 	// Labels, Total are taken from j) and returns it as stored; CodeConflict when
 	// the id exists.
 	Enqueue(ctx context.Context, j Job) (Job, error)
+	// Record stores a job that was run at once, Done with j.Result and j.Total
+	// conditions done, as Enqueue stores a queued one; CodeConflict when the id
+	// exists.
+	Record(ctx context.Context, j Job) (Job, error)
 	// Job returns a job with its request and result; CodeNotFound when none.
 	Job(ctx context.Context, id string) (Job, error)
 	// Jobs lists jobs newest first without their request, result and problem,

@@ -47,11 +47,12 @@ type Config struct {
 	// MaxAttempts is how many claims a job gets: one claimed more often (its
 	// runs kept dying with their process) is failed. Default 5.
 	MaxAttempts int
-	// Problem turns a runner's error into what a failed job stores (an RFC 9457
-	// problem, JSON) and says whether the failure is final; a failure that is not
-	// (a store that did not answer) releases the job to be tried again. nil:
-	// every error is final, stored as {"title": "job failed", "detail": message}.
-	Problem func(err error) (problem []byte, final bool)
+	// Problem turns a runner's error on job into what a failed job stores (an
+	// RFC 9457 problem, JSON) and says whether the failure is final; a failure
+	// that is not (a store that did not answer) releases the job to be tried
+	// again. nil: every error is final, stored as {"title": "job failed",
+	// "detail": message}.
+	Problem func(job Job, err error) (problem []byte, final bool)
 	// Logger receives a line per job claimed, finished, failed, released or
 	// lost; nil: slog.Default().
 	Logger *slog.Logger
@@ -92,7 +93,7 @@ func NewWorker(cfg Config) *Worker {
 		cfg.Logger = slog.Default()
 	}
 	if cfg.Problem == nil {
-		cfg.Problem = func(err error) ([]byte, bool) {
+		cfg.Problem = func(_ Job, err error) ([]byte, bool) {
 			b, _ := json.Marshal(map[string]string{"title": "job failed", "detail": err.Error()})
 			return b, true
 		}
@@ -205,7 +206,7 @@ func (w *Worker) work(ctx context.Context, job Job) {
 	case ctx.Err() != nil:
 		log.Info("job released at shutdown", "err", w.cfg.Store.Release(store, lease))
 	default:
-		problem, final := w.cfg.Problem(err)
+		problem, final := w.cfg.Problem(job, err)
 		if !final {
 			log.Warn("job released after a passing failure", "cause", err, "err", w.cfg.Store.Release(store, lease))
 			return

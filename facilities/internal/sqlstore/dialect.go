@@ -107,8 +107,8 @@ func newQueries(d Dialect) queries {
 		planInsert: q(`INSERT INTO plans (id, facility_id, facility_version, label, body, {created})
 	VALUES (?, ?, ?, ?, ?, ?) ON CONFLICT (id) DO NOTHING`),
 
-		jobInsert: q(`INSERT INTO jobs (id, kind, state, request, summary, done, total, {created}, {updated})
-	VALUES (?, ?, 'queued', ?, ?, 0, ?, ?, ?) ON CONFLICT (id) DO NOTHING`),
+		jobInsert: q(`INSERT INTO jobs (id, kind, state, request, summary, done, total, result, {created}, {updated})
+	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT (id) DO NOTHING`),
 		jobKeyInsert: q(`INSERT INTO job_keys (job_id, field, value) VALUES (?, ?, ?) ON CONFLICT DO NOTHING`),
 		job:          q(`SELECT ` + jobColumns + `, request, result, problem FROM jobs WHERE id = ?`),
 		// The oldest open job: queued, or running on a lease that has ended. Claim

@@ -16,24 +16,37 @@ var _ jobs.Store = (*Store)(nil)
 
 // Enqueue stores a new queued job with its listing keys in one transaction.
 func (s *Store) Enqueue(ctx context.Context, j jobs.Job) (jobs.Job, error) {
+	j.State, j.Done, j.Result = jobs.Queued, 0, nil
+	return s.insertJob(ctx, "enqueueing job", j)
+}
+
+// Record stores a job run at once, done with its result, with its listing keys
+// in one transaction.
+func (s *Store) Record(ctx context.Context, j jobs.Job) (jobs.Job, error) {
+	j.State, j.Done, j.Result = jobs.Done, j.Total, nonNil(j.Result)
+	return s.insertJob(ctx, "recording job", j)
+}
+
+func (s *Store) insertJob(ctx context.Context, what string, in jobs.Job) (jobs.Job, error) {
 	var fe []facilities.FieldError
-	if j.ID == "" {
+	if in.ID == "" {
 		fe = append(fe, facilities.FieldError{Field: "id", Message: "must not be empty"})
 	}
-	if j.Kind == "" {
+	if in.Kind == "" {
 		fe = append(fe, facilities.FieldError{Field: "kind", Message: "must not be empty"})
 	}
 	if err := facilities.Invalid("job", fe); err != nil {
 		return jobs.Job{}, err
 	}
 	now := s.now()
-	j = jobs.Job{ID: j.ID, Kind: j.Kind, State: jobs.Queued, Request: nonNil(j.Request), Summary: nonNil(j.Summary),
-		Facilities: j.Facilities, Labels: j.Labels, Total: j.Total, CreatedAt: now, UpdatedAt: now}
+	j := jobs.Job{ID: in.ID, Kind: in.Kind, State: in.State, Request: nonNil(in.Request), Summary: in.Summary,
+		Facilities: in.Facilities, Labels: in.Labels, Done: in.Done, Total: in.Total, Result: in.Result, CreatedAt: now, UpdatedAt: now}
 	if len(j.Summary) == 0 {
 		j.Summary = []byte("{}")
 	}
 	err := s.tx(ctx, "enqueue", func(tx Tx) error {
-		n, err := tx.Exec(ctx, s.q.jobInsert, j.ID, j.Kind, j.Request, j.Summary, j.Total, s.d.Instant(now), s.d.Instant(now))
+		n, err := tx.Exec(ctx, s.q.jobInsert, j.ID, j.Kind, string(j.State), j.Request, j.Summary, j.Done, j.Total, j.Result,
+			s.d.Instant(now), s.d.Instant(now))
 		if err != nil {
 			return err
 		}
@@ -53,7 +66,7 @@ func (s *Store) Enqueue(ctx context.Context, j jobs.Job) (jobs.Job, error) {
 		return nil
 	})
 	if err != nil {
-		return jobs.Job{}, s.wrap("enqueueing job", j.ID, err)
+		return jobs.Job{}, s.wrap(what, j.ID, err)
 	}
 	return j, nil
 }

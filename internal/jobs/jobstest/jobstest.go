@@ -33,6 +33,7 @@ func Run(t *testing.T, open func(testing.TB) func() jobs.Store) {
 		fn   func(*testing.T, func() jobs.Store)
 	}{
 		{"EnqueueRead", testEnqueueRead},
+		{"Record", testRecord},
 		{"ClaimOldestOfKinds", testClaimOldestOfKinds},
 		{"ClaimRace", testClaimRace},
 		{"LeaseExpiry", testLeaseExpiry},
@@ -91,6 +92,34 @@ func testEnqueueRead(t *testing.T, open func() jobs.Store) {
 	assert.Equal(t, facilities.CodeInvalid, codeOf(err), "no id: %v", err)
 	_, err = s.Job(ctx, "nope")
 	assert.Equal(t, facilities.CodeNotFound, codeOf(err), "unknown id: %v", err)
+}
+
+// testRecord: a job run at once is stored done with its result, listed, and
+// never claimed.
+func testRecord(t *testing.T, open func() jobs.Store) {
+	s := open()
+	ctx := context.Background()
+	got, err := s.Record(ctx, jobs.Job{ID: "now", Kind: "sum", Request: []byte(`{"n":2}`), Total: 2,
+		Result: []byte(`{"sum":5}`), Facilities: []string{"tsw-1"}, State: jobs.Queued})
+	require.NoError(t, err)
+	assert.Equal(t, jobs.Done, got.State)
+	read, err := s.Job(ctx, "now")
+	require.NoError(t, err)
+	assert.Equal(t, jobs.Done, read.State)
+	assert.Equal(t, 2, read.Done)
+	assert.Equal(t, 2, read.Total)
+	assert.JSONEq(t, `{"sum":5}`, string(read.Result))
+	_, ok, err := s.Claim(ctx, "w", []string{"sum"}, time.Minute)
+	require.NoError(t, err)
+	assert.False(t, ok, "a recorded job is finished")
+	page, _, err := s.Jobs(ctx, jobs.Query{ListQuery: facilities.ListQuery{Facility: "tsw-1"}})
+	require.NoError(t, err)
+	require.Len(t, page, 1)
+	assert.Equal(t, jobs.Done, page[0].State)
+	_, err = s.Record(ctx, jobs.Job{ID: "now", Kind: "sum"})
+	assert.Equal(t, facilities.CodeConflict, codeOf(err))
+	_, err = s.Cancel(ctx, "now")
+	assert.Equal(t, facilities.CodeConflict, codeOf(err), "a recorded job cannot be cancelled")
 }
 
 func testClaimOldestOfKinds(t *testing.T, open func() jobs.Store) {
