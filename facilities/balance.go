@@ -151,7 +151,7 @@ func (in Installation) Validate() error {
 func (in Installation) fieldErrors() []FieldError {
 	var fe []FieldError
 	if !(in.ModelMass >= 0) || math.IsInf(in.ModelMass, 0) {
-		fe = append(fe, FieldError{"installation.model_mass", fmt.Sprintf("must be 0 or a positive mass in kg, got %g", in.ModelMass)})
+		fe = append(fe, FieldError{Field: "installation.model_mass", Message: fmt.Sprintf("must be 0 or a positive mass in kg, got %g", in.ModelMass)})
 	}
 	for _, o := range []struct {
 		name string
@@ -159,7 +159,7 @@ func (in Installation) fieldErrors() []FieldError {
 	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
 		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
 		if math.IsNaN(o.v) || math.IsInf(o.v, 0) {
-			fe = append(fe, FieldError{"installation." + o.name, "must be a finite length in m"})
+			fe = append(fe, FieldError{Field: "installation." + o.name, Message: "must be a finite length in m"})
 		}
 	}
 	return fe
@@ -282,7 +282,7 @@ func (b *Balance) ratings(idx int) (Ratings, error) {
 	case sf == 0:
 		sf = 1
 	case !(sf >= 1) || math.IsInf(sf, 0):
-		fe = append(fe, FieldError{at(".safety_factor"), fmt.Sprintf("must be at least 1, got %g", sf)})
+		fe = append(fe, FieldError{Field: at(".safety_factor"), Message: fmt.Sprintf("must be at least 1, got %g", sf)})
 	}
 	rs := Ratings{SafetyFactor: sf, single: [6]int{-1, -1, -1, -1, -1, -1}}
 	single := [6]*float64{b.Limits.Normal, b.Limits.Axial, b.Limits.Side,
@@ -292,7 +292,7 @@ func (b *Balance) ratings(idx int) (Ratings, error) {
 			continue
 		}
 		if !(*l > 0) || math.IsInf(*l, 0) {
-			fe = append(fe, FieldError{at(".limits." + ComponentName(i)), fmt.Sprintf("must be a positive finite load, got %g", *l)})
+			fe = append(fe, FieldError{Field: at(".limits." + ComponentName(i)), Message: fmt.Sprintf("must be a positive finite load, got %g", *l)})
 			continue
 		}
 		rs.single[i], rs.covered[i] = len(rs.rows), true
@@ -305,7 +305,7 @@ func (b *Balance) ratings(idx int) (Ratings, error) {
 			r.name = fmt.Sprintf("combined[%d]", j)
 		}
 		if !(c.Limit > 0) || math.IsInf(c.Limit, 0) {
-			fe = append(fe, FieldError{p(".limit"), fmt.Sprintf("must be a positive finite load, got %g", c.Limit)})
+			fe = append(fe, FieldError{Field: p(".limit"), Message: fmt.Sprintf("must be a positive finite load, got %g", c.Limit)})
 		}
 		keys := make([]string, 0, len(c.Coefficients))
 		for k := range c.Coefficients {
@@ -317,9 +317,9 @@ func (b *Balance) ratings(idx int) (Ratings, error) {
 			v := c.Coefficients[k]
 			switch {
 			case i < 0:
-				fe = append(fe, FieldError{p(".coefficients." + k), "unknown component: want normal, axial, side, rolling_moment, pitching_moment or yawing_moment"})
+				fe = append(fe, FieldError{Field: p(".coefficients." + k), Message: "unknown component: want normal, axial, side, rolling_moment, pitching_moment or yawing_moment"})
 			case math.IsNaN(v) || math.IsInf(v, 0):
-				fe = append(fe, FieldError{p(".coefficients." + k), "must be finite"})
+				fe = append(fe, FieldError{Field: p(".coefficients." + k), Message: "must be finite"})
 			default:
 				r.coef[i] = v
 				rs.covered[i] = rs.covered[i] || v != 0
@@ -932,17 +932,17 @@ func (lc *LoadCase) validate(q float64) error {
 	var fe []FieldError
 	finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 	if !(lc.ReferenceArea > 0) || !finite(lc.ReferenceArea) {
-		fe = append(fe, FieldError{"article.reference_area", "model reference area must be positive"})
+		fe = append(fe, FieldError{Field: "article.reference_area", Message: "model reference area must be positive"})
 	}
 	if !(lc.ReferenceLength > 0) || !finite(lc.ReferenceLength) {
-		fe = append(fe, FieldError{"article.reference_length", "model reference length must be positive"})
+		fe = append(fe, FieldError{Field: "article.reference_length", Message: "model reference length must be positive"})
 	}
 	fe = append(fe, lc.Installation.fieldErrors()...)
 	if !(q >= 0) || !finite(q) {
-		fe = append(fe, FieldError{"test.dynamic_pressure", fmt.Sprintf("must be a non-negative dynamic pressure in Pa, got %g", q)})
+		fe = append(fe, FieldError{Field: "test.dynamic_pressure", Message: fmt.Sprintf("must be a non-negative dynamic pressure in Pa, got %g", q)})
 	}
 	if len(lc.Points) == 0 {
-		fe = append(fe, FieldError{"alpha", "the test matrix has no points"})
+		fe = append(fe, FieldError{Field: "alpha", Message: "the test matrix has no points"})
 	}
 	return Invalid("load check", fe)
 }
@@ -1122,7 +1122,7 @@ func (lc *LoadCase) ChooseBalance(f *Facility, q float64) (BalanceChoice, error)
 			ids[i] = b.ID
 		}
 		return BalanceChoice{}, &Error{Code: CodeInvalid, Message: "unknown balance",
-			Fields: []FieldError{{"installation.balance_id", fmt.Sprintf("facility %s has no balance %q; it has: %s", f.ID, id, strings.Join(ids, ", "))}}}
+			Fields: []FieldError{{Field: "installation.balance_id", Message: fmt.Sprintf("facility %s has no balance %q; it has: %s", f.ID, id, strings.Join(ids, ", "))}}}
 	}
 	all, err := lc.CheckAll(f, q)
 	if err != nil {

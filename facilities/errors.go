@@ -3,77 +3,41 @@ package facilities
 import (
 	"errors"
 	"fmt"
-	"strings"
+	"scalematch/internal/check"
 )
 
-// Code classifies a domain error; the API maps each code to one HTTP status in one place.
-type Code string
+// The domain error, its codes and its field errors are defined in internal/check,
+// the project's one home for errors and validation reports; facilities names them
+// again so that its own code and its callers read as before.
+type (
+	// Code is check.Code.
+	Code = check.Code
+	// FieldError is check.FieldError.
+	FieldError = check.FieldError
+	// Error is check.Error.
+	Error = check.Error
+)
 
-// Error codes.
+// Error codes (check's).
 const (
-	CodeInvalid              Code = "invalid"               // bad input: 400
-	CodeNotFound             Code = "not_found"             // 404
-	CodeConflict             Code = "conflict"              // 409 (e.g. id exists)
-	CodeUnprocessable        Code = "unprocessable"         // valid input, no feasible answer: 422
-	CodeUnauthorized         Code = "unauthorized"          // no credentials: 401
-	CodeForbidden            Code = "forbidden"             // wrong credentials: 403
-	CodePreconditionFailed   Code = "precondition_failed"   // stale If-Match: 412
-	CodePreconditionRequired Code = "precondition_required" // missing If-Match: 428
+	CodeInvalid              = check.CodeInvalid
+	CodeNotFound             = check.CodeNotFound
+	CodeConflict             = check.CodeConflict
+	CodeUnprocessable        = check.CodeUnprocessable
+	CodeUnauthorized         = check.CodeUnauthorized
+	CodeForbidden            = check.CodeForbidden
+	CodePreconditionFailed   = check.CodePreconditionFailed
+	CodePreconditionRequired = check.CodePreconditionRequired
 )
 
-// FieldError names one bad field by its JSON path ("flight.altitude") and says why.
-type FieldError struct {
-	Field   string `json:"field"`
-	Message string `json:"message"`
-}
+// Invalid is check.Invalid.
+func Invalid(message string, fields []FieldError) error { return check.Invalid(message, fields) }
 
-// Error is the domain error of scalematch. Fields lists every bad field (for
-// CodeInvalid); Limits names the limits that conflict (for CodeUnprocessable).
-type Error struct {
-	Code    Code
-	Message string
-	Fields  []FieldError
-	Limits  []string
-}
+// ErrorCode is check.ErrorCode.
+func ErrorCode(err error) Code { return check.ErrorCode(err) }
 
-func (e *Error) Error() string {
-	var b strings.Builder
-	b.WriteString(e.Message)
-	for i, f := range e.Fields {
-		if i == 0 && e.Message != "" {
-			b.WriteString(": ")
-		} else if i > 0 {
-			b.WriteString("; ")
-		}
-		b.WriteString(f.Field)
-		b.WriteString(": ")
-		b.WriteString(f.Message)
-	}
-	if len(e.Limits) > 0 {
-		b.WriteString(" (limits: ")
-		b.WriteString(strings.Join(e.Limits, ", "))
-		b.WriteString(")")
-	}
-	return b.String()
-}
-
-// Invalid returns a CodeInvalid error listing the given field problems, or nil when
-// there are none.
-func Invalid(message string, fields []FieldError) error {
-	if len(fields) == 0 {
-		return nil
-	}
-	return &Error{Code: CodeInvalid, Message: message, Fields: fields}
-}
-
-// ErrorCode returns the code of a domain error in err's chain, or "" when there is none.
-func ErrorCode(err error) Code {
-	var e *Error
-	if errors.As(err, &e) {
-		return e.Code
-	}
-	return ""
-}
+// InvalidCount is check.InvalidCount.
+func InvalidCount(n int) string { return check.InvalidCount(n) }
 
 // CheckFacilityID returns a CodeInvalid error when a catalog write names no facility id.
 func CheckFacilityID(id string) error {
@@ -120,13 +84,4 @@ func FacilityNotFound(id string) error {
 func StaleVersion(id string, current, ifMatch int) error {
 	return &Error{Code: CodePreconditionFailed,
 		Message: fmt.Sprintf("facility %q is at version %d, not %d: someone changed it; read it again and reapply your change", id, current, ifMatch)}
-}
-
-// InvalidCount is the message of a CodeInvalid error that lists n bad fields:
-// "1 field is invalid", "2 fields are invalid".
-func InvalidCount(n int) string {
-	if n == 1 {
-		return "1 field is invalid"
-	}
-	return fmt.Sprintf("%d fields are invalid", n)
 }

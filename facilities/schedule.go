@@ -73,10 +73,10 @@ func ScheduleTest(f *Facility, t Test) (Schedule, error) {
 	}
 	var fe []FieldError
 	if t.AlphaPoints < 0 {
-		fe = append(fe, FieldError{"alpha", fmt.Sprintf("the number of α points must not be negative, got %d", t.AlphaPoints)})
+		fe = append(fe, FieldError{Field: "alpha", Message: fmt.Sprintf("the number of α points must not be negative, got %d", t.AlphaPoints)})
 	}
 	if t.BetaValues < 0 {
-		fe = append(fe, FieldError{"beta", fmt.Sprintf("the number of β values must not be negative, got %d", t.BetaValues)})
+		fe = append(fe, FieldError{Field: "beta", Message: fmt.Sprintf("the number of β values must not be negative, got %d", t.BetaValues)})
 	}
 	if err := Invalid("schedule", fe); err != nil {
 		return Schedule{}, err

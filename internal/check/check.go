@@ -3,8 +3,6 @@ package check
 import (
 	"fmt"
 	"strings"
-
-	"scalematch/facilities"
 )
 
 // MaxListed caps the field errors one error lists (a request body's, or a
@@ -13,19 +11,19 @@ const MaxListed = 50
 
 // Fields collects the field problems of one request or record, each named by
 // its JSON path.
-type Fields []facilities.FieldError
+type Fields []FieldError
 
 // Add appends the problem of field, its message formatted as fmt.Sprintf does.
 func (fe *Fields) Add(field, format string, args ...any) {
-	*fe = append(*fe, facilities.FieldError{Field: field, Message: fmt.Sprintf(format, args...)})
+	*fe = append(*fe, FieldError{Field: field, Message: fmt.Sprintf(format, args...)})
 }
 
 // Merge appends the field errors of err, each path prefixed by prefix (with a dot
 // between when both are non-empty), and reports whether err was a CodeInvalid
 // domain error. Other errors are left to the caller.
 func (fe *Fields) Merge(prefix string, err error) bool {
-	de, ok := err.(*facilities.Error)
-	if !ok || de.Code != facilities.CodeInvalid {
+	de, ok := err.(*Error)
+	if !ok || de.Code != CodeInvalid {
 		return false
 	}
 	if len(de.Fields) == 0 {
@@ -33,7 +31,7 @@ func (fe *Fields) Merge(prefix string, err error) bool {
 		return true
 	}
 	for _, f := range de.Fields {
-		*fe = append(*fe, facilities.FieldError{Field: JoinPath(prefix, f.Field), Message: f.Message})
+		*fe = append(*fe, FieldError{Field: JoinPath(prefix, f.Field), Message: f.Message})
 	}
 	return true
 }
@@ -44,12 +42,12 @@ func (fe Fields) Err() error {
 	if len(fe) == 0 {
 		return nil
 	}
-	msg := facilities.InvalidCount(len(fe))
+	msg := InvalidCount(len(fe))
 	if len(fe) > MaxListed {
 		msg += fmt.Sprintf(" (the first %d are listed)", MaxListed)
 		fe = fe[:MaxListed:MaxListed]
 	}
-	return &facilities.Error{Code: facilities.CodeInvalid, Message: msg, Fields: fe}
+	return &Error{Code: CodeInvalid, Message: msg, Fields: fe}
 }
 
 // JoinPath joins JSON paths: "facility" + "balances[0].id", or "" + "x" = "x".
