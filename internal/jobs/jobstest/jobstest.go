@@ -517,7 +517,9 @@ func testWorkers(t *testing.T, open func() jobs.Store) {
 		owners[j.Owner] = true
 		st.once(t, id, i+1, j.Attempt)
 	}
-	assert.Len(t, owners, 2, "both workers took jobs")
+	// Which worker took how many is the scheduler's business: both may, one may
+	// take them all on a loaded machine.
+	t.Logf("workers that ran jobs: %v", owners)
 	j := waitFor(t, a, "bad", final)
 	assert.Equal(t, jobs.Failed, j.State)
 	assert.Contains(t, string(j.Problem), "nothing to add")
