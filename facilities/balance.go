@@ -145,22 +145,28 @@ type Installation struct {
 // Validate checks the installation's numbers and returns a *Error (CodeInvalid)
 // naming each bad field under "installation", or nil.
 func (in Installation) Validate() error {
-	return Invalid("invalid installation", in.fieldErrors())
+	return Invalid("invalid installation", in.FieldErrors())
 }
 
-func (in Installation) fieldErrors() []FieldError {
+// FieldErrors returns the problems of the installation's numbers, each named by
+// its request path ("installation.model_mass") and judged against its documented
+// range (BoundModelMass, BoundModelVolume, BoundOffset). The plan and load-check
+// requests and the load check itself all validate an installation with it. The
+// balance id is checked where the facility is known.
+func (in Installation) FieldErrors() []FieldError {
 	var fe []FieldError
-	if !(in.ModelMass >= 0) || math.IsInf(in.ModelMass, 0) {
-		fe = append(fe, FieldError{Field: "installation.model_mass", Message: fmt.Sprintf("must be 0 or a positive mass in kg, got %g", in.ModelMass)})
+	if msg := BoundModelMass.Problem(in.ModelMass); msg != "" {
+		fe = append(fe, FieldError{Field: "installation.model_mass", Message: msg + " (0: weight left out)"})
+	}
+	if msg := BoundModelVolume.Problem(in.ModelVolume); msg != "" {
+		fe = append(fe, FieldError{Field: "installation.model_volume", Message: msg + " (0: not given)"})
 	}
 	for _, o := range []struct {
 		name string
 		v    float64
 	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
 		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
-		if math.IsNaN(o.v) || math.IsInf(o.v, 0) {
-			fe = append(fe, FieldError{Field: "installation." + o.name, Message: "must be a finite length in m"})
-		}
+		BoundOffset.Check(&fe, "installation."+o.name, o.v)
 	}
 	return fe
 }
@@ -937,7 +943,7 @@ func (lc *LoadCase) validate(q float64) error {
 	if !(lc.ReferenceLength > 0) || !finite(lc.ReferenceLength) {
 		fe = append(fe, FieldError{Field: "article.reference_length", Message: "model reference length must be positive"})
 	}
-	fe = append(fe, lc.Installation.fieldErrors()...)
+	fe = append(fe, lc.Installation.FieldErrors()...)
 	if !(q >= 0) || !finite(q) {
 		fe = append(fe, FieldError{Field: "test.dynamic_pressure", Message: fmt.Sprintf("must be a non-negative dynamic pressure in Pa, got %g", q)})
 	}

@@ -9,6 +9,9 @@ import (
 	"testing"
 
 	"scalematch/facilities"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 func ptr(v float64) *float64 { return &v }
@@ -475,4 +478,31 @@ func TestWeightCancelledByLiftIsNotSafe(t *testing.T) {
 	if !found {
 		t.Errorf("no warning about the weight alone in %q", r.Warnings)
 	}
+}
+
+// TestInstallationValidateBounds: the installation's own Validate refuses what the
+// request validation refuses (its documented ranges), so a load check called
+// without the request layer cannot take a 1 km offset or a 1e9 kg model.
+func TestInstallationValidateBounds(t *testing.T) {
+	t.Parallel()
+	cases := []struct {
+		name  string
+		in    facilities.Installation
+		field string
+	}{
+		{"offset beyond 100 m", facilities.Installation{CGOffset: facilities.Offset{X: 1e3}}, "installation.cg_offset.x"},
+		{"balance offset not finite", facilities.Installation{BalanceOffset: facilities.Offset{Z: math.Inf(-1)}}, "installation.balance_offset.z"},
+		{"model mass beyond 1e5 kg", facilities.Installation{ModelMass: 1e9}, "installation.model_mass"},
+		{"negative volume", facilities.Installation{ModelVolume: -1}, "installation.model_volume"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			err := tc.in.Validate()
+			var de *facilities.Error
+			require.ErrorAs(t, err, &de)
+			require.Len(t, de.Fields, 1)
+			assert.Equal(t, tc.field, de.Fields[0].Field)
+		})
+	}
+	assert.NoError(t, facilities.Installation{ModelMass: 20, CGOffset: facilities.Offset{X: 0.1, Z: -0.02}}.Validate())
 }

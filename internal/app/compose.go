@@ -196,21 +196,7 @@ func checkArticle(a *similarity.Article, fe *check.Fields) {
 // checkInstallation adds the problems of an installation in facility f (nil when
 // unresolved) to fe.
 func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *check.Fields) {
-	if msg := facilities.BoundModelMass.Problem(in.ModelMass); msg != "" {
-		fe.Add("installation.model_mass", "%s (0: weight left out)", msg)
-	}
-	if msg := facilities.BoundModelVolume.Problem(in.ModelVolume); msg != "" {
-		fe.Add("installation.model_volume", "%s (0: not given)", msg)
-	}
-	for _, o := range []struct {
-		name string
-		v    float64
-	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
-		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
-		if msg := facilities.BoundOffset.Problem(o.v); msg != "" {
-			fe.Add("installation."+o.name, "%s", msg)
-		}
-	}
+	*fe = append(*fe, in.FieldErrors()...)
 	if f == nil || in.BalanceID == "" {
 		return
 	}
