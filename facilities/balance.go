@@ -137,6 +137,11 @@ type Installation struct {
 	// buoyancy in a water facility, 0–1000 m³; 0: not given (the answer then
 	// shows an estimate, not used in the loads). Ignored in a gas facility.
 	ModelVolume float64 `json:"model_volume,omitempty" unit:"m^3"`
+	// LoadFraction is the share of the allowed load (rating ÷ safety factor) the
+	// plan and the check may use, above 0 and at most 1 (0.9 plans to 90 % of
+	// it); nil: 1, all of it. It lowers every row's allowed load, the planner's
+	// load ceiling and the verdict's threshold alike.
+	LoadFraction *float64 `json:"load_fraction,omitempty"`
 	// Buoyancy is the upthrust in N the weight loads subtract (WithBuoyancy sets
 	// it from ModelVolume); never read from a request.
 	Buoyancy float64 `json:"-"`
@@ -161,6 +166,9 @@ func (in Installation) FieldErrors() []FieldError {
 	if msg := BoundModelVolume.Problem(in.ModelVolume); msg != "" {
 		fe = append(fe, FieldError{Field: "installation.model_volume", Message: msg + " (0: not given)"})
 	}
+	if in.LoadFraction != nil {
+		BoundLoadFraction.Check(&fe, "installation.load_fraction", *in.LoadFraction)
+	}
 	for _, o := range []struct {
 		name string
 		v    float64
@@ -169,6 +177,15 @@ func (in Installation) FieldErrors() []FieldError {
 		BoundOffset.Check(&fe, "installation."+o.name, o.v)
 	}
 	return fe
+}
+
+// Fraction returns the share of the allowed load the installation may use:
+// LoadFraction, or 1 when it is nil.
+func (in Installation) Fraction() float64 {
+	if in.LoadFraction == nil {
+		return 1
+	}
+	return *in.LoadFraction
 }
 
 // AeroLoads returns the aerodynamic loads at the balance moment centre for body-axis
@@ -250,6 +267,21 @@ type Ratings struct {
 	covered [6]bool
 	// SafetyFactor divides every rated load.
 	SafetyFactor float64
+	// Fraction is the share of rating ÷ SafetyFactor allowed (Derate); 1 as
+	// compiled.
+	Fraction float64
+}
+
+// Derate allows only the fraction f (0 < f ≤ 1) of every row's allowed load:
+// allowed = f·rating ÷ safety factor. Other values leave the ratings as they are.
+func (rs *Ratings) Derate(f float64) {
+	if !(f > 0 && f < 1) {
+		return
+	}
+	rs.Fraction *= f
+	for i := range rs.rows {
+		rs.rows[i].allowed *= f
+	}
 }
 
 // Ratings compiles the balance's limits. A safety factor of 0 is taken as 1; one
@@ -290,7 +322,7 @@ func (b *Balance) ratings(idx int) (Ratings, error) {
 	case !(sf >= 1) || math.IsInf(sf, 0):
 		fe = append(fe, FieldError{Field: at(".safety_factor"), Message: fmt.Sprintf("must be at least 1, got %g", sf)})
 	}
-	rs := Ratings{SafetyFactor: sf, single: [6]int{-1, -1, -1, -1, -1, -1}}
+	rs := Ratings{SafetyFactor: sf, Fraction: 1, single: [6]int{-1, -1, -1, -1, -1, -1}}
 	single := [6]*float64{b.Limits.Normal, b.Limits.Axial, b.Limits.Side,
 		b.Limits.RollingMoment, b.Limits.PitchingMoment, b.Limits.YawingMoment}
 	for i, l := range single {
@@ -401,7 +433,8 @@ func (rs *Ratings) Rows() int { return len(rs.rows) }
 // combined row.
 func (rs *Ratings) Row(i int, l *Load) float64 { return rs.rows[i].value(l) }
 
-// Allowed returns row i's rated load divided by the safety factor.
+// Allowed returns row i's rated load divided by the safety factor (times the
+// Derate fraction).
 func (rs *Ratings) Allowed(i int) float64 { return rs.rows[i].allowed }
 
 // SafeDynamicPressure returns the largest dynamic pressure q ≥ 0 with
@@ -453,6 +486,12 @@ type LoadCase struct {
 	Installation Installation
 	// Points is the test matrix.
 	Points []Point
+	// Resolution, when not nil, is the coarsest 2σ uncertainty of each
+	// coefficient the test accepts: each report then says whether the balance
+	// resolves it (LoadReport.Resolution), and ChooseBalance prefers, among the
+	// balances within the allowed loads, the one that resolves it with the most
+	// margin.
+	Resolution *Resolution
 }
 
 // LoadPoint is the loads of one test point at the balance moment centre, body axes,
@@ -592,6 +631,13 @@ type LoadReport struct {
 	// UncertaintyUnknown names the coefficients whose uncertainty is not known
 	// (a component they need has no accuracy).
 	UncertaintyUnknown []string `json:"uncertainty_unknown,omitempty"`
+	// LoadFraction is the share of the allowed load (rating ÷ safety factor)
+	// the check allowed (Installation.LoadFraction; 1: all of it):
+	// AllowedUtilization and every row's Allowed include it.
+	LoadFraction float64 `json:"load_fraction"`
+	// Resolution says whether the balance resolves the required resolution
+	// (LoadCase.Resolution); absent when none was asked.
+	Resolution *ResolutionCheck `json:"resolution,omitempty"`
 }
 
 // Uncertainty is the 2σ uncertainty of the coefficients at one point, from the
@@ -777,6 +823,17 @@ func (r LoadReport) MarshalJSON() ([]byte, error) {
 			w.str(s)
 		}
 		w.raw("]")
+	}
+	w.raw(`,"load_fraction":`)
+	w.float(r.LoadFraction)
+	if r.Resolution != nil {
+		// Rare and small: written by encoding/json, which the rest matches.
+		b, err := json.Marshal(r.Resolution)
+		if err != nil {
+			return nil, err
+		}
+		w.raw(`,"resolution":`)
+		w.raw(string(b))
 	}
 	w.raw(`,"max_safe_dynamic_pressure":`)
 	if math.IsInf(r.MaxSafeDynamicPressure, 0) {
@@ -985,10 +1042,12 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 	if err != nil {
 		return LoadReport{}, err
 	}
+	rs.Derate(lc.Installation.Fraction())
 	r := LoadReport{
 		BalanceID:              b.ID,
 		SafetyFactor:           rs.SafetyFactor,
-		AllowedUtilization:     1 / rs.SafetyFactor,
+		AllowedUtilization:     rs.Fraction / rs.SafetyFactor,
+		LoadFraction:           rs.Fraction,
 		DynamicPressure:        q,
 		Points:                 make([]LoadPoint, len(lc.Points)),
 		MaxSafeDynamicPressure: math.Inf(1),
@@ -1047,12 +1106,11 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 			r.UnratedLoaded = append(r.UnratedLoaded, ComponentName(k))
 		}
 	}
+	if lc.Resolution != nil {
+		r.Resolution = lc.resolution(b, q)
+	}
 	if b.Accuracy != nil && q > 0 {
-		var d Load
-		var known [6]bool
-		for k := range d {
-			d[k], known[k] = b.Accuracy.Of(k, &b.Limits)
-		}
+		d, known := b.Accuracy.Load(&b.Limits)
 		r.Uncertainty = make([]Uncertainty, len(lc.Points))
 		for i, p := range lc.Points {
 			r.Uncertainty[i], r.UncertaintyUnknown = CoefficientUncertainty(d, known, p.Alpha, r.Points[i].DynamicPressure,
@@ -1140,6 +1198,12 @@ func (lc *LoadCase) ChooseBalance(f *Facility, q float64) (BalanceChoice, error)
 			best = i
 		}
 	}
+	if fine := finestResolving(all); fine >= 0 {
+		r := all[fine]
+		reason := fmt.Sprintf("balance %s chosen: of the balances that keep every point within the allowed loads by this estimate, it resolves the required resolution with the most margin (%.3g: the least dynamic pressure it needs is %.4g Pa), at %.0f %% peak utilisation (%s at α %.4g°, allowed %.0f %%)",
+			r.BalanceID, r.Resolution.Margin, r.Resolution.MinDynamicPressure, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
+		return BalanceChoice{Report: r, Reason: reason, All: all}, nil
+	}
 	if best < 0 {
 		parts := make([]string, len(all))
 		for i, r := range all {
@@ -1158,6 +1222,35 @@ func (lc *LoadCase) ChooseBalance(f *Facility, q float64) (BalanceChoice, error)
 			r.BalanceID, 100*r.MaxUtilization, 100*r.AllowedUtilization)
 	}
 	return BalanceChoice{Report: r, Reason: reason, All: all}, nil
+}
+
+// finestResolving returns the index of the report within its allowed loads
+// that resolves the required resolution with the most margin, or −1.
+func finestResolving(all []LoadReport) int {
+	k := -1
+	for i := range all {
+		if all[i].WithinLimits && resolves(&all[i]) && (k < 0 || all[i].Resolution.Margin > all[k].Resolution.Margin) {
+			k = i
+		}
+	}
+	return k
+}
+
+// ResolutionState returns the answer's resolution state over the reports of a
+// check ("" when no resolution was asked): resolved when a report within its
+// allowed loads resolves it; else, with one report within its allowed loads,
+// that report's state; else no_balance_resolves.
+func ResolutionState(reports []LoadReport) string {
+	if len(reports) == 0 || reports[0].Resolution == nil {
+		return ""
+	}
+	if finestResolving(reports) >= 0 {
+		return ResolutionResolved
+	}
+	if len(reports) == 1 && reports[0].WithinLimits {
+		return reports[0].Resolution.State
+	}
+	return ResolutionNoBalance
 }
 
 // CautionFraction is the share of the allowed utilisation (1/safety factor) above

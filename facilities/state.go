@@ -81,4 +81,8 @@ const (
 	ConstraintScaleMin    = "scale_min"
 	ConstraintScaleMax    = "scale_max"
 	ConstraintBalance     = "balance"
+	// ConstraintResolution is the least dynamic pressure at which the balance
+	// resolves the coefficients to the request's required_resolution: a lower
+	// limit on q (docs/loads.md, Measurement resolution).
+	ConstraintResolution = "resolution"
 )

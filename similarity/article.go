@@ -87,6 +87,27 @@ type LoadLimit interface {
 	MaxDynamicPressure(scale float64, st facilities.State) float64
 }
 
+// LoadFloor is a lower limit on the test's dynamic pressure that depends on the
+// model scale and on the balance: the least q at which a balance resolves the
+// coefficients the test needs (BalanceLimit.Resolve). Each balance the test may
+// use has its own window of dynamic pressure, from its floor up to its load
+// ceiling; the plan keeps within one of them, honours it like any facility
+// limit, and reports the floor by FloorName in its binding list.
+type LoadFloor interface {
+	// FloorName is the constraint's name in the plan's binding list, e.g.
+	// "resolution".
+	FloorName() string
+	// Windows appends to dst, for each balance the test may use, the window of
+	// free-stream dynamic pressure in Pa in which a model of the given scale, at
+	// the test state st (its Mach number; its dynamic pressure is ignored), keeps
+	// within the balance's loads and meets its floor; a window whose Lo is above
+	// its Hi cannot be used.
+	Windows(dst []Window, scale float64, st facilities.State) []Window
+}
+
+// Window is a range of free-stream dynamic pressure, Lo to Hi in Pa.
+type Window struct{ Lo, Hi float64 }
+
 // CorrectionLiftSlope returns the lift slope per radian the wall corrections use
 // (streamline curvature's lift and moment): LiftSlope for the parametric estimate,
 // 0 (unknown) for a coefficient table.

@@ -35,6 +35,10 @@ type BalanceLimit struct {
 	facility *facilities.Facility
 	// Full-scale geometry of the article.
 	refArea, refLength, frontalArea float64
+	// alpha are the points' angles of attack in degrees; floor is set when a
+	// required resolution bounds q from below (Resolve).
+	alpha []float64
+	floor bool
 }
 
 // balanceRows holds one balance's rows projected on every point, point-major:
@@ -49,6 +53,11 @@ type balanceRows struct {
 	down    []float64 // allowed + w: the same for a load falling with q
 	// weightBreaks is set when the weight alone exceeds a row's allowance.
 	weightBreaks bool
+	// needForce and needMoment are, per point, the least q_c·S (N) and
+	// q_c·S·c (N·m) the required resolution asks of this balance
+	// (facilities.Resolution.Need; +Inf when its accuracy is not known); nil
+	// when no resolution is asked.
+	needForce, needMoment []float64
 	// live lists, in the order above, the elements i·rows + j that can set the
 	// ceiling at some scale and Mach number, and livePoint their points i; maxQ
 	// visits only these (prune).
@@ -88,9 +97,9 @@ func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installati
 		return nil, facilities.ErrNoBalance
 	}
 	l := &BalanceLimit{facility: f, refArea: art.ReferenceArea, refLength: art.ReferenceLength,
-		frontalArea: art.FrontalArea, cd: make([]float64, len(mx.Points))}
+		frontalArea: art.FrontalArea, cd: make([]float64, len(mx.Points)), alpha: make([]float64, len(mx.Points))}
 	for i, p := range mx.Points {
-		l.cd[i] = p.CD
+		l.cd[i], l.alpha[i] = p.CD, p.Alpha
 	}
 	found := false
 	for k := range f.Balances {
@@ -103,6 +112,7 @@ func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installati
 		if err != nil {
 			return nil, err
 		}
+		rs.Derate(in.Fraction())
 		br := balanceRows{id: b.ID, rows: rs.Rows(), allowed: make([]float64, rs.Rows())}
 		for j := range br.allowed {
 			br.allowed[j] = rs.Allowed(j)
@@ -137,6 +147,92 @@ func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installati
 // Name returns facilities.ConstraintBalance, the constraint's name in a plan.
 func (l *BalanceLimit) Name() string { return facilities.ConstraintBalance }
 
+// Resolve makes the limit also a LoadFloor: the least dynamic pressure at which
+// a balance resolves the coefficients to res (facilities.Resolution.Need at every
+// point of the matrix), which with its load ceiling gives each balance a window
+// of dynamic pressure (Windows). With a floor, MaxDynamicPressure is the highest
+// ceiling of the balances whose floor is at or under their ceiling (of all when
+// none is). A nil or empty res removes the floor.
+func (l *BalanceLimit) Resolve(res *facilities.Resolution) {
+	for k := range l.balances {
+		br := &l.balances[k]
+		br.needForce, br.needMoment = nil, nil
+		if res.Empty() {
+			continue
+		}
+		b := l.facility.Balances[slices.IndexFunc(l.facility.Balances, func(b facilities.Balance) bool { return b.ID == br.id })]
+		var d facilities.Load
+		var known [6]bool
+		if b.Accuracy != nil {
+			d, known = b.Accuracy.Load(&b.Limits)
+		}
+		br.needForce, br.needMoment = make([]float64, len(l.alpha)), make([]float64, len(l.alpha))
+		for i, a := range l.alpha {
+			br.needForce[i], br.needMoment[i], _ = res.Need(d, known, a)
+		}
+	}
+	l.floor = !res.Empty()
+}
+
+// FloorName returns facilities.ConstraintResolution, the floor's name in a plan.
+func (l *BalanceLimit) FloorName() string { return facilities.ConstraintResolution }
+
+// Windows appends, per balance (the named one, or every balance of the
+// facility), its window [MinDynamicPressure, MaxDynamicPressure] in Pa at this
+// scale and st.Mach: the floor of the required resolution (0 without one) and
+// the load ceiling.
+func (l *BalanceLimit) Windows(dst []Window, scale float64, st facilities.State) []Window {
+	if !(scale > 0) || math.IsInf(scale, 0) {
+		return dst
+	}
+	g := l.geometry(scale, st.Mach)
+	for b := range l.balances {
+		br := &l.balances[b]
+		w := Window{Hi: br.maxQ(l.cd, g.mach, g.solid, g.wake, g.qS, g.qSc)}
+		if br.needForce != nil {
+			w.Lo = br.floorQ(l.cd, g.mach, g.solid, g.wake, g.qS, g.qSc)
+		}
+		dst = append(dst, w)
+	}
+	return dst
+}
+
+// scaled is the geometry of the load formulas at one scale and Mach number.
+type scaled struct{ mach, solid, wake, qS, qSc float64 }
+
+// geometry returns the blockage factors and q·S, q·S·c per pascal at scale
+// and Mach number mach.
+func (l *BalanceLimit) geometry(scale, mach float64) scaled {
+	s2 := scale * scale
+	area := l.refArea * s2
+	solid, wake, _ := facilities.BlockageFactors(l.facility, l.frontalArea*s2, area, mach)
+	return scaled{mach: mach, solid: solid, wake: wake, qS: area, qSc: area * l.refLength * scale}
+}
+
+// MinDynamicPressure returns the least free-stream dynamic pressure in Pa at which
+// a balance that can carry the loads there (its floor at or under its ceiling)
+// resolves the required resolution at every point, wall corrections included
+// (+Inf when none can): for each balance the largest over the points i of
+//
+//	q = max(need_F,i/(f_i·S), need_M,i/(f_i·S·c)),
+//
+// with f_i = q_c/q the point's blockage correction; 0 without a resolution; +Inf
+// when the balance's accuracy is not known for an asked coefficient.
+func (l *BalanceLimit) MinDynamicPressure(scale float64, st facilities.State) float64 {
+	lo, _, _ := l.window(scale, st.Mach)
+	return lo
+}
+
+// floorQ is balance br's least q for the required resolution.
+func (br *balanceRows) floorQ(cd []float64, mach, solid, wake, qS, qSc float64) float64 {
+	q := 0.0
+	for i := range br.needForce {
+		f := facilities.DynamicPressureRatio(mach, solid+wake*cd[i])
+		q = math.Max(q, math.Max(br.needForce[i]/(f*qS), br.needMoment[i]/(f*qSc)))
+	}
+	return q
+}
+
 // MaxDynamicPressure returns the largest free-stream dynamic pressure in Pa at which
 // a model of the given scale at st.Mach keeps every point of the test matrix at or
 // under 1/safety factor on the balance (the best balance when none is named); 0
@@ -158,6 +254,10 @@ func (l *BalanceLimit) Balance(scale float64, st facilities.State) (id string, q
 }
 
 func (l *BalanceLimit) best(scale, mach float64) (k int, q float64) {
+	if l.floor {
+		_, q, k = l.window(scale, mach)
+		return k, q
+	}
 	if !(scale > 0) || math.IsInf(scale, 0) {
 		return -1, 0
 	}
@@ -174,6 +274,35 @@ func (l *BalanceLimit) best(scale, mach float64) (k int, q float64) {
 		}
 	}
 	return k, q
+}
+
+// window returns, under a required resolution (Resolve), the least floor lo of
+// the balances whose floor is at or under their ceiling (+Inf when none is), and
+// the highest ceiling hi with its balance k: of those balances, or, when there
+// is none, of all.
+func (l *BalanceLimit) window(scale, mach float64) (lo, hi float64, k int) {
+	if !(scale > 0) || math.IsInf(scale, 0) {
+		return math.Inf(1), 0, -1
+	}
+	g := l.geometry(scale, mach)
+	k, lo = -1, math.Inf(1)
+	okK := false
+	for b := range l.balances {
+		br := &l.balances[b]
+		hb := br.maxQ(l.cd, g.mach, g.solid, g.wake, g.qS, g.qSc)
+		lb := 0.0
+		if br.needForce != nil {
+			lb = br.floorQ(l.cd, g.mach, g.solid, g.wake, g.qS, g.qSc)
+		}
+		ok := lb <= hb*(1+1e-12)
+		if ok {
+			lo = math.Min(lo, lb)
+		}
+		if k < 0 || (ok && !okK) || (ok == okK && hb > hi) {
+			k, hi, okK = b, hb, ok
+		}
+	}
+	return lo, hi, k
 }
 
 // maxQ is the largest q keeping every point and row of one balance within its

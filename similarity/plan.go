@@ -190,6 +190,10 @@ type Problem struct {
 	// LoadLimit, when not nil, caps the dynamic pressure for each scale (the balance's
 	// rated loads); the plan honours it like any facility limit.
 	LoadLimit LoadLimit
+	// LoadFloor, when not nil, bounds the dynamic pressure from below at each
+	// scale (the least q at which the balance resolves the required resolution);
+	// the plan honours it like any facility limit.
+	LoadFloor LoadFloor
 	// MatrixDrag, when not nil, is the range of the test matrix's drag
 	// coefficients. In a gas facility whose walls take a blockage correction
 	// (closed walls below M 1) the planner then matches the corrected Mach number

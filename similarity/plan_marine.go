@@ -44,7 +44,7 @@ func (sv *solver) pressureRange(machOrSpeed, p0, t float64) (lo, hi, q, r, pv fl
 // points, the edges where the cavitation band becomes reachable or a pressure
 // becomes available (bisection to 1e-12 K), the temperature that meets the target
 // Re/m exactly, and a golden-section refinement around the best grid point.
-func (sv *solver) atWaterCav(c *machSetup, s, target float64) candidate {
+func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidate {
 	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	ta, tb := c.ta, c.tb
 	capHi := c.capWaterTop
@@ -52,13 +52,24 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64) candidate {
 		tb = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.machOrSpeed, c.pa, t) }, ta, tb, false)
 	}
 	if sv.load != nil {
-		qb := sv.loadQ(s, c.stRef)
+		qb := w.Hi
 		if qb < sv.waterQ(c.machOrSpeed, c.pa, tb)*(1-limitSlack) {
 			x.fail, x.k = sv.loadName, worst
 			return x
 		}
 		if sv.waterQ(c.machOrSpeed, c.pa, ta) > qb {
 			ta = sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.machOrSpeed, c.pa, t) }, ta, tb, true)
+		}
+	}
+	if lo := w.Lo; lo > 0 {
+		// The resolution floor caps T0 (q falls as the water warms).
+		if sv.waterQ(c.machOrSpeed, c.pa, ta) < lo*(1-limitSlack) {
+			x.fail, x.k = sv.floorName, worst
+			return x
+		}
+		if sv.waterQ(c.machOrSpeed, c.pa, tb) < lo {
+			tb = sv.rootHi(func(t float64) float64 { return sv.waterQ(c.machOrSpeed, c.pa, t) - lo }, ta, tb, false)
+			capHi = sv.floorName
 		}
 	}
 	sf := sv.fl.Marine.Cavitation

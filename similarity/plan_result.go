@@ -125,7 +125,10 @@ func (sv *solver) bindings(x candidate, st facilities.State) []Binding {
 	if f.MaxReynoldsPerMeter != nil {
 		on(facilities.ConstraintReynoldsUnit, st.ReynoldsPerMeter, *f.MaxReynoldsPerMeter)
 	}
-	if sv.load != nil {
+	switch {
+	case sv.floor != nil:
+		sv.windowBindings(x.s, st, on)
+	case sv.load != nil:
 		if qb := sv.load.MaxDynamicPressure(x.s, st); !math.IsInf(qb, 1) {
 			on(sv.loadName, st.DynamicPressure, qb)
 		}
@@ -135,6 +138,35 @@ func (sv *solver) bindings(x candidate, st facilities.State) []Binding {
 	}
 	sortBindings(bs)
 	return bs
+}
+
+// windowBindings reports the load floor and ceiling the plan sits on under a
+// load floor: of the load windows that hold the plan's q, the floor binds when
+// each of them has it at its floor (none would let q fall), the ceiling when
+// each has it at its ceiling; the limit given is the lowest floor or the highest
+// ceiling among them.
+func (sv *solver) windowBindings(s float64, st facilities.State, on func(name string, v, lim float64)) {
+	q := st.DynamicPressure
+	lo, hi := math.Inf(1), math.Inf(-1)
+	atLo, atHi, any := true, true, false
+	for _, w := range sv.floor.Windows(nil, s, st) {
+		if q < w.Lo*(1-bindTol) || q > w.Hi*(1+bindTol) {
+			continue
+		}
+		any = true
+		lo, hi = math.Min(lo, w.Lo), math.Max(hi, w.Hi)
+		atLo = atLo && math.Abs(q-w.Lo) <= bindTol*w.Lo
+		atHi = atHi && math.Abs(q-w.Hi) <= bindTol*w.Hi
+	}
+	if !any {
+		return
+	}
+	if atLo && lo > 0 {
+		on(sv.floorName, q, lo)
+	}
+	if atHi && !math.IsInf(hi, 1) {
+		on(sv.loadName, q, hi)
+	}
 }
 
 // notes returns the plan's warnings.

@@ -54,15 +54,35 @@ func (sv *solver) bestOverScales(machOrSpeed float64) candidate {
 // knee where the load limit starts to cap Re/m and, past it, falls as s·q_max(s)
 // falls; the search finds the knee by a root on the load limit alone.
 func (sv *solver) bestInScaleRange(c *machSetup) candidate {
+	x := sv.bestInScaleRangeRules(c)
+	if sv.floor == nil {
+		return x
+	}
+	// A load floor makes the least Re/m at each scale grow as the model
+	// shrinks (q_min ∝ 1/s²), so the rules above, which shrink a model that
+	// overshoots the flight's Reynolds number, can miss: a golden-section
+	// search over the scales that reach the floor decides between them.
+	g := sv.golden(func(ls float64) candidate { return sv.at(c, math.Exp(ls)) },
+		math.Log(sv.lowestScale(c)), math.Log(sv.sHi), 9, 1e-10)
+	if g.ok && (!x.ok || g.k.less(x.k)) {
+		return g
+	}
+	return x
+}
+
+// bestInScaleRangeRules is bestInScaleRange by the rules of a problem without a
+// load floor.
+func (sv *solver) bestInScaleRangeRules(c *machSetup) candidate {
 	x := sv.at(c, sv.sHi)
 	if x.ok && (sv.load == nil || x.capHi != sv.loadName) {
 		return sv.shrink(c, x)
 	}
-	lo := sv.at(c, sv.sLo)
+	sLo := sv.lowestScale(c)
+	lo := sv.at(c, sLo)
 	if !lo.ok {
 		return lo
 	}
-	sk := sv.sLo
+	sk := sLo
 	if lo.capHi != sv.loadName {
 		// The knee: the load limit's q ceiling falls to the q of the best setting
 		// within the facility's own limits.
@@ -72,7 +92,7 @@ func (sv *solver) bestInScaleRange(c *machSetup) candidate {
 			// loads must fit at this speed at the lowest q (warmest water).
 			qNeed = sv.waterQ(c.machOrSpeed, c.pa, c.tb)
 		}
-		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, c.stRef) - qNeed }, sv.sLo, sv.sHi, false)
+		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, c.stRef) - qNeed }, sLo, sv.sHi, false)
 	}
 	xk := sv.at(c, sk)
 	if !xk.ok {
@@ -191,7 +211,14 @@ func (sv *solver) feasibleMachOrSpeed() ([]interval, []string) {
 			fails = append(fails, c.fail)
 			return false
 		}
-		x := sv.at(&c, sv.sLo)
+		x := sv.at(&c, sv.lowestScale(&c))
+		if !x.ok && sv.floor != nil && sv.kind == scaleRange {
+			// A load floor in real-gas nitrogen may be reached only by the
+			// larger models: try the largest.
+			if y := sv.at(&c, sv.sHi); y.ok {
+				x = y
+			}
+		}
 		if !x.ok {
 			fails = append(fails, x.fail)
 		}
@@ -349,6 +376,8 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 		r.condMin = sv.condMin - 0.01
 	case sv.loadName:
 		r.loadScale = sv.loadScale * 1.01
+	case sv.floorName:
+		r.floorScale = sv.floorScale * 0.99
 	default:
 		return nil, false
 	}

@@ -158,6 +158,11 @@ type solver struct {
 	load      LoadLimit
 	loadName  string
 	loadScale float64
+	// floor is the lower limit on q (Problem.LoadFloor), scaled by floorScale
+	// when a binding gain relaxes it.
+	floor      LoadFloor
+	floorName  string
+	floorScale float64
 	condMin   float64
 	qmax      float64
 	remax     float64
@@ -195,7 +200,7 @@ func newSolver(p *Problem) (*solver, error) {
 		return nil, facilities.Invalid("incomplete problem", []facilities.FieldError{{Field: "facility", Message: "a problem needs a flight, an article and a facility"}})
 	}
 	sv := &solver{p: p, f: p.Facility, fl: p.Flight, art: p.Article, L: p.Article.ReferenceLength,
-		loadScale: 1, load: p.LoadLimit, aim: p.Flight.Mach, aimRatio: 1}
+		loadScale: 1, load: p.LoadLimit, floor: p.LoadFloor, floorScale: 1, aim: p.Flight.Mach, aimRatio: 1}
 	if err := sv.checkInput(); err != nil {
 		return nil, err
 	}
@@ -204,6 +209,12 @@ func newSolver(p *Problem) (*solver, error) {
 		sv.loadName = sv.load.Name()
 		if sv.loadName == "" {
 			sv.loadName = facilities.ConstraintBalance
+		}
+	}
+	if sv.floor != nil {
+		sv.floorName = sv.floor.FloorName()
+		if sv.floorName == "" {
+			sv.floorName = facilities.ConstraintResolution
 		}
 	}
 	sv.marine = sv.fl.Marine != nil
@@ -596,6 +607,115 @@ func (sv *solver) loadQ(s float64, st facilities.State) float64 {
 	return sv.loadScale * sv.load.MaxDynamicPressure(s, st)
 }
 
+// windows returns the load windows at scale s and state st: with a load floor,
+// each balance's (LoadFloor.Windows, the floor scaled by floorScale and the
+// ceiling by loadScale); without one, a single window from 0 up to the load
+// ceiling (+Inf without a load limit).
+func (sv *solver) windows(s float64, st facilities.State) []Window {
+	if sv.floor == nil {
+		return []Window{{Lo: 0, Hi: sv.loadQ(s, st)}}
+	}
+	ws := sv.floor.Windows(nil, s, st)
+	for i := range ws {
+		ws[i].Lo *= sv.floorScale
+		ws[i].Hi *= sv.loadScale
+	}
+	return ws
+}
+
+// floorQ returns the least floor of the usable load windows at scale s and
+// state st: 0 without a floor, +Inf when no window is usable.
+func (sv *solver) floorQ(s float64, st facilities.State) float64 {
+	if sv.floor == nil {
+		return 0
+	}
+	lo := math.Inf(1)
+	for _, w := range sv.windows(s, st) {
+		if w.Lo <= w.Hi*(1+limitSlack) {
+			lo = math.Min(lo, w.Lo)
+		}
+	}
+	return lo
+}
+
+// bestOfWindows returns the best candidate of at over the load windows at
+// scale s (one window without a load floor).
+func (sv *solver) bestOfWindows(c *machSetup, s float64, at func(Window) candidate) candidate {
+	if sv.floor == nil {
+		return at(Window{Lo: 0, Hi: sv.loadQ(s, c.stRef)})
+	}
+	best := candidate{machOrSpeed: c.machOrSpeed, s: s, k: worst, fail: sv.floorName}
+	for _, w := range sv.windows(s, c.stRef) {
+		if !(w.Lo <= w.Hi*(1+limitSlack)) {
+			continue
+		}
+		if x := at(w); x.ok && (!best.ok || x.k.less(best.k)) {
+			best = x
+		} else if !best.ok && x.fail != "" {
+			best.fail = x.fail
+		}
+	}
+	return best
+}
+
+// raiseFloor returns c with its lowest stagnation pressure raised to where the
+// dynamic pressure at the warmest usable T0 reaches the floor lo (Pa): at any p0
+// the least q is there, since q does not depend on T0 in an ideal gas and falls
+// as real-gas nitrogen warms. tp is the highest setting under the ceilings; ok is
+// false when no p0 up to tp's meets the floor at the warmest T0.
+func (sv *solver) raiseFloor(c *machSetup, lo float64, tp topSetting) (machSetup, bool) {
+	c2 := *c
+	if c.linear {
+		p := lo / c.k
+		c2.ra = c.ra * p / c.pa
+		if c.rloOK {
+			c2.rlo = c.rlo * p / c.pa
+		}
+		c2.pa = p
+		return c2, true
+	}
+	qWarm := func(p float64) float64 {
+		st, err := sv.state(c.machOrSpeed, p, c.tb)
+		if err != nil {
+			return -1
+		}
+		return st.DynamicPressure - lo
+	}
+	p := sv.rootHi(qWarm, c.pa, tp.p, true)
+	st, err := sv.state(c.machOrSpeed, p, c.tb)
+	if err != nil || st.DynamicPressure < lo*(1-limitSlack) {
+		return c2, false
+	}
+	c2.pa, c2.stRef, c2.tRef, c2.k = p, st, c.tb, st.DynamicPressure/p
+	c2.rlo, c2.rloOK = st.ReynoldsPerMeter, true
+	c2.ra = sv.rcurve(&c2, p)
+	return c2, true
+}
+
+// topQ returns the highest dynamic pressure in Pa the facility and the load
+// limit allow at c's Mach number (speed) and scale s, the Re/m ceiling aside.
+func (sv *solver) topQ(c *machSetup, s float64) float64 {
+	q := c.facilityTop.q
+	if sv.liquid {
+		q = sv.waterQ(c.machOrSpeed, c.pa, c.ta)
+	}
+	if sv.load != nil {
+		q = math.Min(q, sv.loadQ(s, c.stRef))
+	}
+	return q
+}
+
+// lowestScale returns the smallest scale in [sLo, sHi] at c's Mach number
+// (speed) from which the load floor is within reach of the highest q allowed
+// (topQ): sLo without a floor or when it is within reach there, else where the
+// two meet (the floor falls as the model grows). At() decides each candidate.
+func (sv *solver) lowestScale(c *machSetup) float64 {
+	if sv.floor == nil {
+		return sv.sLo
+	}
+	return sv.rootHi(func(s float64) float64 { return sv.topQ(c, s) - sv.floorQ(s, c.stRef) }, sv.sLo, sv.sHi, true)
+}
+
 // prepare works out everything at test Mach number (speed) machOrSpeed that does not depend
 // on the model scale.
 func (sv *solver) prepare(machOrSpeed float64) machSetup {
@@ -937,17 +1057,23 @@ func (sv *solver) at(c *machSetup, s float64) candidate {
 // atTarget is at for a target Re/m: the candidate closest to it (in ratio) at the
 // lowest q.
 func (sv *solver) atTarget(c *machSetup, s, target float64) candidate {
-	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	if !c.ok {
-		x.fail, x.k = c.fail, worst
-		return x
+		return candidate{machOrSpeed: c.machOrSpeed, s: s, fail: c.fail, k: worst}
 	}
+	return sv.bestOfWindows(c, s, func(w Window) candidate { return sv.atWindow(c, s, target, w) })
+}
+
+// atWindow is atTarget within one load window w: q at most w.Hi (the load
+// ceiling, +Inf without a load limit) and at least w.Lo (the load floor, 0
+// without one).
+func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate {
+	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	if sv.liquid {
-		return sv.atWater(c, s, target)
+		return sv.atWater(c, s, target, w)
 	}
 	tp := c.facilityTop
 	if sv.load != nil {
-		if qb := sv.loadQ(s, c.stRef); qb < tp.q {
+		if qb := w.Hi; qb < tp.q {
 			if qb < c.k*c.pa*(1-limitSlack) {
 				x.fail, x.k = sv.loadName, worst
 				return x
@@ -955,9 +1081,27 @@ func (sv *solver) atTarget(c *machSetup, s, target float64) candidate {
 			tp = sv.highestSetting(c, qb, sv.loadName)
 		}
 	}
+	// pinned: under a load floor in real-gas nitrogen where no p0 at the warmest
+	// T0 reaches it, the top setting is the one setting known to (q is highest
+	// there), and the candidate keeps to it.
+	pinned := false
+	if lo := w.Lo; lo > c.k*c.pa {
+		// The resolution floor: the lowest p0 rises to where q reaches it.
+		if !(lo <= tp.q*(1+limitSlack)) {
+			x.fail, x.k = sv.floorName, worst
+			return x
+		}
+		if c2, ok := sv.raiseFloor(c, math.Min(lo, tp.q), tp); ok && !tp.edge {
+			c = &c2
+		} else {
+			pinned = true
+		}
+	}
 	x.rhi, x.rlo, x.capHi = tp.r, -1, tp.cap
 	r := target
-	if target < c.ra || !c.linear {
+	if pinned {
+		x.rlo, r = tp.r, tp.r
+	} else if target < c.ra || !c.linear {
 		x.rlo = sv.lowR(c)
 		r = math.Max(r, x.rlo)
 	}
@@ -976,9 +1120,9 @@ func (sv *solver) atTarget(c *machSetup, s, target float64) candidate {
 }
 
 // atWater is atTarget for water.
-func (sv *solver) atWater(c *machSetup, s, target float64) candidate {
+func (sv *solver) atWater(c *machSetup, s, target float64, w Window) candidate {
 	if sv.cav {
-		return sv.atWaterCav(c, s, target)
+		return sv.atWaterCav(c, s, target, w)
 	}
 	x := candidate{machOrSpeed: c.machOrSpeed, s: s, p0: c.pa}
 	rhi, capHi, tHi := c.rWaterTop, c.capWaterTop, c.tb
@@ -986,7 +1130,7 @@ func (sv *solver) atWater(c *machSetup, s, target float64) candidate {
 		tHi = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.machOrSpeed, c.pa, t) }, c.ta, c.tb, false)
 	}
 	if sv.load != nil {
-		qb := sv.loadQ(s, c.stRef)
+		qb := w.Hi
 		qt := sv.waterQ(c.machOrSpeed, c.pa, tHi)
 		if qb < qt*(1-limitSlack) {
 			x.fail, x.k = sv.loadName, worst
@@ -999,6 +1143,17 @@ func (sv *solver) atWater(c *machSetup, s, target float64) candidate {
 			c2.ra = sv.waterR(c.machOrSpeed, c.pa, lo)
 			c2.rlo = c2.ra
 			c = &c2
+		}
+	}
+	if lo := w.Lo; lo > 0 {
+		// The resolution floor: q falls as the water warms, so it caps T0.
+		if sv.waterQ(c.machOrSpeed, c.pa, c.ta) < lo*(1-limitSlack) {
+			x.fail, x.k = sv.floorName, worst
+			return x
+		}
+		if sv.waterQ(c.machOrSpeed, c.pa, tHi) < lo {
+			tHi = sv.rootHi(func(t float64) float64 { return sv.waterQ(c.machOrSpeed, c.pa, t) - lo }, c.ta, tHi, false)
+			rhi, capHi = sv.waterR(c.machOrSpeed, c.pa, tHi), sv.floorName
 		}
 	}
 	x.rhi, x.rlo, x.capHi = rhi, c.rlo, capHi
