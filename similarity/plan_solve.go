@@ -163,9 +163,9 @@ type solver struct {
 	floor      LoadFloor
 	floorName  string
 	floorScale float64
-	condMin   float64
-	qmax      float64
-	remax     float64
+	condMin    float64
+	qmax       float64
+	remax      float64
 
 	// The model scales searched: fixed, a list or a range (kind), from sLo to sHi,
 	// with the limits that set the ends of a range ("" for none).
