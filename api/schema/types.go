@@ -142,6 +142,13 @@ type PlanRequest struct {
 	// 200 bytes without control characters; the answer and the stored plan carry
 	// it, and GET /v1/plans?label= finds the plans that have it. "" none.
 	Label string `json:"label,omitempty" maxLength:"200" example:"cruise-high"`
+	// RequiredResolution is the coarsest 2σ uncertainty of each coefficient the
+	// test accepts (cl, cd_counts in drag counts, cm, cy, cl_roll, cn;
+	// dimensionless): the planner keeps the dynamic pressure at or above the
+	// least q at which a balance resolves them (the constraint "resolution"),
+	// and the balance choice prefers the one that resolves them with the most
+	// margin (docs/loads.md). Absent: no requirement.
+	RequiredResolution *facilities.Resolution `json:"required_resolution,omitempty"`
 }
 
 // PlanResponse is the answer of POST /v1/plans: the plan and everything it implies.
@@ -183,6 +190,15 @@ type PlanResponse struct {
 	// over_allowed_load or does_not_fit (docs/loads.md); scalematch plan exits 0
 	// only for within_allowed_loads.
 	Verdict string `json:"verdict" enums:"within_allowed_loads,not_verified,over_allowed_load,does_not_fit"`
+	// LoadFraction is the share of the allowed load (rating ÷ safety factor)
+	// the plan was made to: installation.load_fraction, or 1.
+	LoadFraction float64 `json:"load_fraction"`
+	// ResolutionState says whether the balance resolves the required_resolution:
+	// resolved, too_coarse, accuracy_unknown, or no_balance_resolves (no balance
+	// of the facility can both keep within its allowed loads and resolve the
+	// test at any setting the request allows: the plan is then made without the
+	// resolution); absent when none was asked (docs/loads.md).
+	ResolutionState string `json:"resolution_state,omitempty" enums:"resolved,too_coarse,accuracy_unknown,no_balance_resolves"`
 	// FitBroken lists the test-section limits the model breaks (max_span_fraction,
 	// max_blockage, max_model_length), before any load; empty when it fits.
 	FitBroken []facilities.Violation `json:"fit_broken"`
@@ -255,6 +271,10 @@ type LoadsRequest struct {
 	// Test is the test setting: mach or speed (m/s), stagnation pressure (Pa) and
 	// temperature (K).
 	Test TestSettings `json:"test"`
+	// RequiredResolution is the coarsest 2σ uncertainty of each coefficient the
+	// test accepts (see PlanRequest.RequiredResolution): each load report says
+	// whether its balance resolves it, and resolution_state sums it up.
+	RequiredResolution *facilities.Resolution `json:"required_resolution,omitempty"`
 }
 
 // LoadsModel is the model of a load check: its scale, model length over full-scale
@@ -290,6 +310,16 @@ type LoadsResponse struct {
 	// checked it is the best balance's. scalematch loads exits 0 only for
 	// within_allowed_loads.
 	Verdict string `json:"verdict" enums:"within_allowed_loads,not_verified,over_allowed_load,does_not_fit"`
+	// LoadFraction is the share of the allowed load (rating ÷ safety factor)
+	// the check allowed: installation.load_fraction, or 1.
+	LoadFraction float64 `json:"load_fraction"`
+	// ResolutionState says whether a balance resolves the required_resolution
+	// at the test's dynamic pressure: resolved (a balance within its allowed
+	// loads does), too_coarse or accuracy_unknown (the one balance within its
+	// allowed loads does not, or cannot be told to), no_balance_resolves (no
+	// balance both keeps within its allowed loads and resolves it); absent when
+	// none was asked (docs/loads.md).
+	ResolutionState string `json:"resolution_state,omitempty" enums:"resolved,too_coarse,accuracy_unknown,no_balance_resolves"`
 	// FitBroken lists the test-section limits the model breaks (max_span_fraction,
 	// max_blockage, max_model_length), before any load; empty when it fits.
 	FitBroken []facilities.Violation `json:"fit_broken"`

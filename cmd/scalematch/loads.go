@@ -37,7 +37,9 @@ ones. --json prints exactly the body POST /v1/loads returns.
 
 Exit status: 0 when the verdict is within_allowed_loads, 3 not_verified,
 4 over_allowed_load, 5 does_not_fit (the answer is printed in full first);
-1 for an error.
+1 for an error. --load-fraction checks against a share of the allowed load
+(installation.load_fraction); --resolution asks whether the balances resolve a
+required resolution (required_resolution, e.g. cd_counts=1,cl=0.005).
 
 Loads and limits are estimates only: the facility's approved limits, procedures
 and licensed engineering judgement govern.`,
@@ -52,6 +54,9 @@ and licensed engineering judgement govern.`,
 			var req schema.LoadsRequest
 			if err := unitjson.Decode(body, &req); err != nil {
 				return explain(err)
+			}
+			if err := o.override(cmd, &req.Installation, &req.RequiredResolution); err != nil {
+				return err
 			}
 			ctx := cmd.Context()
 			p, closeCatalog, err := o.planner(ctx)
@@ -84,6 +89,7 @@ func writeLoadCheck(w io.Writer, r *schema.LoadsResponse, us, rows bool) error {
 	u := units{us}
 	fmt.Fprintf(w, "Load check: facility %s\n", r.FacilityID)
 	writeVerdict(w, r.Verdict, r.FitBroken)
+	writeResolutionState(w, r.ResolutionState, r.LoadFraction)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	row := func(name, format string, args ...any) {
 		fmt.Fprintf(tw, "  %s\t"+format+"\n", append([]any{name}, args...)...)

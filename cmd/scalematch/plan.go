@@ -8,6 +8,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -36,6 +37,10 @@ type computeOptions struct {
 	stderr   io.Writer
 	// rows prints every component and gauge row of every point.
 	rows bool
+	// loadFraction and resolution, when given, set installation.load_fraction
+	// and required_resolution over the request's.
+	loadFraction float64
+	resolution   string
 }
 
 // bind adds the shared flags to cmd; withData adds --data and --units (groups needs
@@ -50,7 +55,49 @@ func (o *computeOptions) bind(cmd *cobra.Command, withData bool, jsonOf string) 
 	if withData { // every command with a catalog prints dimensional figures; groups does not
 		f.StringVar(&o.units, "units", "si", "units of the table: si, or us to add U.S. customary units beside them")
 		f.BoolVar(&o.rows, "rows", false, "print every component and gauge row of the balance at every point (load, rating, allowed load, share of it), not one line per point")
+		f.Float64Var(&o.loadFraction, "load-fraction", 0, "plan and check to this share of the allowed load (rating ÷ safety factor), above 0 and at most 1; sets installation.load_fraction")
+		f.StringVar(&o.resolution, "resolution", "", "required 2σ resolution, e.g. cd_counts=1,cl=0.005 (cl, cd_counts, cm, cy, cl_roll, cn); sets required_resolution")
 	}
+}
+
+// override applies --load-fraction and --resolution to a request's installation
+// and required resolution.
+func (o *computeOptions) override(cmd *cobra.Command, in *facilities.Installation, res **facilities.Resolution) error {
+	if cmd.Flags().Changed("load-fraction") {
+		v := o.loadFraction
+		in.LoadFraction = &v
+	}
+	if o.resolution == "" {
+		return nil
+	}
+	r, err := parseResolution(o.resolution)
+	if err != nil {
+		return err
+	}
+	*res = r
+	return nil
+}
+
+// parseResolution reads a --resolution value: name=value pairs separated by
+// commas, the names of required_resolution.
+func parseResolution(s string) (*facilities.Resolution, error) {
+	r := &facilities.Resolution{}
+	for _, kv := range strings.Split(s, ",") {
+		k, v, ok := strings.Cut(strings.TrimSpace(kv), "=")
+		if !ok {
+			return nil, fmt.Errorf("--resolution %q: want name=value pairs such as cd_counts=1,cl=0.005", s)
+		}
+		x, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+		if err != nil {
+			return nil, fmt.Errorf("--resolution %s: %q is not a number", k, v)
+		}
+		dst := map[string]**float64{"cl": &r.CL, "cd_counts": &r.CDCounts, "cm": &r.Cm, "cy": &r.CY, "cl_roll": &r.Cl, "cn": &r.Cn}[strings.TrimSpace(k)]
+		if dst == nil {
+			return nil, fmt.Errorf("--resolution: unknown coefficient %q: want cl, cd_counts, cm, cy, cl_roll or cn", k)
+		}
+		*dst = &x
+	}
+	return r, nil
 }
 
 // start checks the flags, reads SCALEMATCH_<FLAG> for flags not given, and reads
@@ -190,7 +237,10 @@ beside the SI ones. --json prints exactly the body POST /v1/plans returns.
 Exit status: 0 when the plan's load verdict is within_allowed_loads, 3
 not_verified, 4 over_allowed_load, 5 does_not_fit (the plan is printed in full
 first); 1 for an error. --rows prints every component and gauge row of the
-balance at every point.
+balance at every point. --load-fraction plans to a share of the allowed load
+(installation.load_fraction); --resolution asks for a required resolution
+(required_resolution, e.g. cd_counts=1,cl=0.005): the plan keeps the dynamic
+pressure high enough for a balance to resolve it and says whether one does.
 
 Loads and limits are estimates only: the facility's approved limits, procedures
 and licensed engineering judgement govern.`,
@@ -207,6 +257,9 @@ and licensed engineering judgement govern.`,
 			var req schema.PlanRequest
 			if err := unitjson.Decode(body, &req); err != nil {
 				return explain(err)
+			}
+			if err := o.override(cmd, &req.Installation, &req.RequiredResolution); err != nil {
+				return err
 			}
 			ctx := cmd.Context()
 			p, closeCatalog, err := o.planner(ctx)
@@ -342,6 +395,7 @@ func writePlan(w io.Writer, r *schema.PlanResponse, us bool, catalog string, row
 	}
 	fmt.Fprintf(w, "Plan %s: facility %s (%s)\n", r.ID, r.FacilityID, where)
 	writeVerdict(w, r.Verdict, r.FitBroken)
+	writeResolutionState(w, r.ResolutionState, r.LoadFraction)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	row := func(name, format string, args ...any) {
 		fmt.Fprintf(tw, "  %s\t"+format+"\n", append([]any{name}, args...)...)

@@ -115,6 +115,23 @@ func writeRows(w io.Writer, r facilities.LoadReport) {
 	}
 }
 
+// writeResolutionState prints the answer's resolution state (when a
+// resolution was asked) and the share of the allowed load (when below 1).
+func writeResolutionState(w io.Writer, state string, fraction float64) {
+	if state != "" {
+		words := map[string]string{
+			facilities.ResolutionResolved:        "a balance within its allowed loads resolves the required resolution at every point",
+			facilities.ResolutionTooCoarse:       "the balance is too coarse for the required resolution at this dynamic pressure",
+			facilities.ResolutionAccuracyUnknown: "the balance gives no accuracy for a coefficient asked",
+			facilities.ResolutionNoBalance:       "no balance of the facility can both keep within its allowed loads and resolve the test",
+		}[state]
+		fmt.Fprintf(w, "Resolution: %s (%s)\n", state, words)
+	}
+	if fraction > 0 && fraction < 1 {
+		fmt.Fprintf(w, "Load margin: planned and checked to %.4g %% of the allowed load (rating ÷ safety factor)\n", 100*fraction)
+	}
+}
+
 // writeUncertainty prints the range over the sweep of the coefficients' 2σ
 // uncertainty from the balance's accuracy, or that the balance gives none.
 func writeUncertainty(w io.Writer, r facilities.LoadReport) {
@@ -132,5 +149,14 @@ func writeUncertainty(w io.Writer, r facilities.LoadReport) {
 		lo.CDCounts, hi.CDCounts, lo.CL, hi.CL, lo.Cm, hi.Cm)
 	if len(r.UncertaintyUnknown) > 0 {
 		fmt.Fprintf(w, "  resolution not known for: %s\n", strings.Join(r.UncertaintyUnknown, ", "))
+	}
+	if rc := r.Resolution; rc != nil {
+		switch rc.State {
+		case facilities.ResolutionAccuracyUnknown:
+			fmt.Fprintf(w, "  required resolution: %s (%s)\n", rc.State, strings.Join(rc.Unknown, ", "))
+		default:
+			fmt.Fprintf(w, "  required resolution: %s; least dynamic pressure %.5g Pa (%s at α %.4g°), margin %.3g\n",
+				rc.State, rc.MinDynamicPressure, rc.Limiting.Component, rc.Limiting.Alpha, rc.Margin)
+		}
 	}
 }

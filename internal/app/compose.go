@@ -214,6 +214,14 @@ func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *
 	fe.Add("installation.balance_id", "facility %s has no balance %q; it has: %s", f.ID, in.BalanceID, strings.Join(ids, ", "))
 }
 
+// checkResolution adds the problems of a required resolution (nil: none asked)
+// to fe.
+func checkResolution(r *facilities.Resolution, fe *check.Fields) {
+	if r != nil {
+		*fe = append(*fe, r.FieldErrors("required_resolution")...)
+	}
+}
+
 // Plan validates a plan request, plans it and assembles the answer. Bad input is a
 // *facilities.Error with CodeInvalid naming every bad field; an unknown facility
 // CodeNotFound; a problem no plan can satisfy CodeUnprocessable naming the limits.
@@ -261,6 +269,7 @@ func (p *Planner) prepare(ctx context.Context, req *schema.PlanRequest) (*prepar
 	}
 	checkInstallation(&req.Installation, f, &fe)
 	CheckLabel(req.Label, "label", &fe)
+	checkResolution(req.RequiredResolution, &fe)
 	mx, err := req.Article.Aero.Matrix(req.Alpha, req.Beta)
 	if err != nil && !fe.Merge("", err) {
 		return nil, err
@@ -285,14 +294,29 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	var err error
 	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective,
 		MatrixDrag: mx.DragRange()}
+	var ll *similarity.BalanceLimit
 	if len(f.Balances) > 0 {
-		ll, err := similarity.NewLoadLimit(&req.Article, f, req.Installation.WithBuoyancy(f), mx)
+		ll, err = similarity.NewLoadLimit(&req.Article, f, req.Installation.WithBuoyancy(f), mx)
 		if err != nil {
 			return nil, err
 		}
 		prob.LoadLimit = ll
+		if !req.RequiredResolution.Empty() {
+			ll.Resolve(req.RequiredResolution)
+			prob.LoadFloor = ll
+		}
 	}
 	res, err := similarity.Plan(prob, nil)
+	// unresolved: no balance can both carry the loads and resolve the required
+	// resolution at any setting; the plan is then made without the resolution
+	// and says so (facilities.ResolutionNoBalance).
+	unresolved := false
+	if err != nil && prob.LoadFloor != nil && facilities.ErrorCode(err) == facilities.CodeUnprocessable {
+		prob.LoadFloor = nil
+		ll.Resolve(nil)
+		res, err = similarity.Plan(prob, nil)
+		unresolved = true
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -317,11 +341,18 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	out.Warnings = appendUnique(out.Warnings, mx.Warnings...)
 	out.Warnings = appendUnique(out.Warnings, f.Warnings(res.Test.State)...)
 	lr, err := loads.Check(&loads.Case{Facility: f, Article: &req.Article, Installation: req.Installation, Matrix: mx,
-		Scale: res.Model.Scale, State: res.Test.State})
+		Scale: res.Model.Scale, State: res.Test.State, Resolution: req.RequiredResolution})
 	if err != nil {
 		return nil, err
 	}
+	if unresolved {
+		lr.ResolutionState = facilities.ResolutionNoBalance
+	}
 	out.Corrections, out.Verdict, out.FitBroken = lr.Corrections, lr.Verdict, lr.FitBroken
+	out.LoadFraction, out.ResolutionState = req.Installation.Fraction(), lr.ResolutionState
+	if w := lr.ResolutionWarning(); w != "" {
+		out.Warnings = append(out.Warnings, w)
+	}
 	if out.FitBroken == nil {
 		out.FitBroken = []facilities.Violation{}
 	}

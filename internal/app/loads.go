@@ -31,6 +31,7 @@ func (p *Planner) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.
 		fe.Add("model.scale", "scale %s", similarity.BoundScale.Problem(*sc))
 	}
 	checkInstallation(&req.Installation, f, &fe)
+	checkResolution(req.RequiredResolution, &fe)
 	if f != nil && len(f.Balances) == 0 {
 		fe.Add("facility_id", "facility %s lists no balance to check", f.ID)
 	}
@@ -79,11 +80,12 @@ func (p *Planner) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.
 	}
 	out.Warnings = append(out.Warnings, f.Warnings(st)...)
 	res, err := loads.Check(&loads.Case{Facility: f, Article: a, Installation: req.Installation, Matrix: mx,
-		Scale: scale, State: st, Every: true})
+		Scale: scale, State: st, Every: true, Resolution: req.RequiredResolution})
 	if err != nil {
 		return nil, err
 	}
 	out.Verdict, out.FitBroken = res.Verdict, res.FitBroken
+	out.LoadFraction, out.ResolutionState = req.Installation.Fraction(), res.ResolutionState
 	if out.FitBroken == nil {
 		out.FitBroken = []facilities.Violation{}
 	}
@@ -102,6 +104,9 @@ func (p *Planner) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.
 		if !r.WithinLimits {
 			out.Warnings = append(out.Warnings, overloadWarning(r))
 		}
+	}
+	if w := res.ResolutionWarning(); w != "" {
+		out.Warnings = append(out.Warnings, w)
 	}
 	out.Cautions = appendCautions(nil, f, reports...)
 	if b := modelBuoyancy(f, a, req.Installation, *req.Model.Scale); b != nil {

@@ -42,6 +42,10 @@ type Case struct {
 	// Every checks every balance of the facility when the installation names
 	// none; false chooses one (facilities.LoadCase.ChooseBalance).
 	Every bool
+	// Resolution, when not nil, is the required resolution: every report says
+	// whether its balance resolves it, and the balance choice prefers the one
+	// that resolves it with the most margin.
+	Resolution *facilities.Resolution
 }
 
 // Result is the answer of Check.
@@ -59,6 +63,9 @@ type Result struct {
 	// Verdict is the check's verdict (facilities.Verdict*): does_not_fit when
 	// FitBroken is not empty, else the best report's (not_verified without one).
 	Verdict string
+	// ResolutionState sums up the reports' resolution checks
+	// (facilities.ResolutionState): "" when no resolution was asked.
+	ResolutionState string
 	// Warnings are notes on the corrections and the loads, in order.
 	Warnings []string
 }
@@ -77,7 +84,7 @@ func Check(c *Case) (Result, error) {
 	res.Warnings = append(res.Warnings, w.Warnings...)
 	if len(f.Balances) > 0 {
 		lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * s,
-			Installation: c.Installation.WithBuoyancy(f), Points: pts}
+			Installation: c.Installation.WithBuoyancy(f), Points: pts, Resolution: c.Resolution}
 		q := c.State.DynamicPressure
 		if c.Every && c.Installation.BalanceID == "" {
 			all, err := lc.CheckAll(f, q)
@@ -97,6 +104,12 @@ func Check(c *Case) (Result, error) {
 		}
 	}
 	res.Verdict = verdict(res.FitBroken, res.Reports)
+	if !c.Resolution.Empty() {
+		res.ResolutionState = facilities.ResolutionState(res.Reports)
+		if len(res.Reports) == 0 {
+			res.ResolutionState = facilities.ResolutionNoBalance
+		}
+	}
 	return res, nil
 }
 
@@ -156,6 +169,17 @@ func Fit(f *facilities.Facility, a *similarity.Article, s float64) []facilities.
 		}
 	}
 	return out
+}
+
+// ResolutionWarning returns the note on a result's resolution state other than
+// resolved, naming the first report's balance ("" when resolved or not asked).
+func (r *Result) ResolutionWarning() string {
+	var rc *facilities.ResolutionCheck
+	id := ""
+	if len(r.Reports) > 0 {
+		rc, id = r.Reports[0].Resolution, r.Reports[0].BalanceID
+	}
+	return facilities.ResolutionWarning(r.ResolutionState, rc, id)
 }
 
 // Cautions returns the cautions of a result beyond facilities.Cautions: a model

@@ -1,0 +1,113 @@
+package app_test
+
+import (
+	"context"
+	"errors"
+	"slices"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+	"scalematch/internal/app"
+	"scalematch/similarity"
+)
+
+// withInstallation replaces the installation of the J16 request.
+func withInstallation(body, in string) string {
+	return strings.Replace(body, `"installation": {"balance_id": "int-b1", "model_mass": 20}`, `"installation": `+in, 1)
+}
+
+// TestPlanRequiredResolution plans the J16 in tsw-1 (balance chosen) with a
+// required resolution: a coarse one every plan meets, and one finer than any
+// balance of tsw-1 resolves within its allowed loads (int-b1 resolves about
+// 3.2 counts at the tunnel's 54 kPa ceiling at 1:24, docs/loads.md; 0.5 counts
+// would need over six times that q).
+func TestPlanRequiredResolution(t *testing.T) {
+	var p app.Planner
+	t.Run("resolved", func(t *testing.T) {
+		body := strings.Replace(withInstallation(j16Plan, `{"model_mass": 20}`), `"alpha"`,
+			`"required_resolution": {"cd_counts": 20, "cl": 0.01}, "alpha"`, 1)
+		resp, err := p.Plan(context.Background(), decodePlan(t, body))
+		require.NoError(t, err)
+		assert.Equal(t, facilities.ResolutionResolved, resp.ResolutionState)
+		require.NotNil(t, resp.Loads)
+		require.NotNil(t, resp.Loads.Resolution)
+		assert.Equal(t, facilities.ResolutionResolved, resp.Loads.Resolution.State)
+		assert.GreaterOrEqual(t, resp.Loads.Resolution.Margin, 1-1e-9)
+		require.Len(t, resp.Loads.Uncertainty, len(resp.Loads.Points))
+		for _, u := range resp.Loads.Uncertainty {
+			assert.LessOrEqual(t, u.CDCounts, 20*(1+1e-9), "α %g°", u.Alpha)
+			assert.LessOrEqual(t, u.CL, 0.01*(1+1e-9), "α %g°", u.Alpha)
+		}
+		assert.Equal(t, 1.0, resp.LoadFraction)
+	})
+	t.Run("no balance resolves", func(t *testing.T) {
+		body := strings.Replace(withInstallation(j16Plan, `{"model_mass": 20}`), `"alpha"`,
+			`"required_resolution": {"cd_counts": 0.5}, "alpha"`, 1)
+		resp, err := p.Plan(context.Background(), decodePlan(t, body))
+		require.NoError(t, err, "the plan is made without the resolution and says so")
+		assert.Equal(t, facilities.ResolutionNoBalance, resp.ResolutionState)
+		assert.Contains(t, resp.Warnings, facilities.ResolutionNoBalanceWarning)
+		assert.False(t, slices.ContainsFunc(resp.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintResolution }))
+	})
+}
+
+// TestPlanLoadFraction plans the J16 on int-b1, whose axial rating binds
+// (TestBalanceBindingAgreesWithLoads), to all and to 90 % of the allowed load:
+// at 0.9 the worst point sits at 0.9 ÷ 1.5 = 60 % of its rating, and the
+// answer states the fraction.
+func TestPlanLoadFraction(t *testing.T) {
+	var p app.Planner
+	full, err := p.Plan(context.Background(), decodePlan(t, j16Plan))
+	require.NoError(t, err)
+	part, err := p.Plan(context.Background(), decodePlan(t, withInstallation(j16Plan, `{"balance_id": "int-b1", "model_mass": 20, "load_fraction": 0.9}`)))
+	require.NoError(t, err)
+	assert.Equal(t, 0.9, part.LoadFraction)
+	assert.Equal(t, 0.9, part.Loads.LoadFraction)
+	assert.InDelta(t, 0.6, part.Loads.AllowedUtilization, 1e-12)
+	assert.InDelta(t, 0.6, part.Loads.MaxUtilization, 1e-6, "the balance binds at 90 %% of the allowed load")
+	assert.Less(t, part.Test.Reynolds, full.Test.Reynolds, "a tighter load ceiling costs Reynolds number")
+	assert.True(t, slices.ContainsFunc(part.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintBalance }))
+	for _, r := range part.Loads.Points[0].Rows {
+		if r.Rated {
+			assert.InDelta(t, 0.9*r.Rating/1.5, r.Allowed, 1e-9*r.Rating, r.Name)
+		}
+	}
+}
+
+// TestResolutionFieldErrors: bad resolution and margin figures are 400s naming
+// the field.
+func TestResolutionFieldErrors(t *testing.T) {
+	var p app.Planner
+	for _, tc := range []struct {
+		name, edit, field string
+	}{
+		{"empty resolution", `"required_resolution": {}, "alpha"`, "required_resolution"},
+		{"zero counts", `"required_resolution": {"cd_counts": 0}, "alpha"`, "required_resolution.cd_counts"},
+		{"negative cl", `"required_resolution": {"cl": -0.01}, "alpha"`, "required_resolution.cl"},
+		{"cm above 1", `"required_resolution": {"cm": 2}, "alpha"`, "required_resolution.cm"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := p.Plan(context.Background(), decodePlan(t, strings.Replace(j16Plan, `"alpha"`, tc.edit, 1)))
+			requireField(t, err, tc.field)
+		})
+	}
+	for _, f := range []string{"0", "1.5", "-0.2"} {
+		t.Run("load_fraction "+f, func(t *testing.T) {
+			_, err := p.Plan(context.Background(), decodePlan(t, withInstallation(j16Plan, `{"model_mass": 20, "load_fraction": `+f+`}`)))
+			requireField(t, err, "installation.load_fraction")
+		})
+	}
+}
+
+// requireField asks that err be a CodeInvalid error naming field.
+func requireField(t *testing.T, err error, field string) {
+	t.Helper()
+	var e *facilities.Error
+	require.True(t, errors.As(err, &e), "want a field error, got %v", err)
+	assert.Equal(t, facilities.CodeInvalid, e.Code)
+	assert.True(t, slices.ContainsFunc(e.Fields, func(f facilities.FieldError) bool { return f.Field == field }), "fields %+v, want %s", e.Fields, field)
+}
