@@ -87,7 +87,7 @@ func (r *Resolution) FieldErrors(prefix string) []FieldError {
 		}
 	}
 	if r.Empty() {
-		fe = append(fe, FieldError{prefix, "give at least one of cl, cd_counts, cm, cy, cl_roll, cn, or leave it out"})
+		fe = append(fe, FieldError{Field: prefix, Message: "give at least one of cl, cd_counts, cm, cy, cl_roll, cn, or leave it out"})
 	}
 	return fe
 }
