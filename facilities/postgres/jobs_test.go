@@ -12,13 +12,22 @@ import (
 )
 
 func TestJobs(t *testing.T) {
-	jobstest.Run(t, func(tb testing.TB) func() jobs.Store {
-		url := schemaURL(tb)
-		return func() jobs.Store {
-			db, err := postgres.Open(context.Background(), url)
-			require.NoError(tb, err)
-			tb.Cleanup(func() { require.NoError(tb, db.Close()) })
-			return db
-		}
-	})
+	jobstest.Run(t, openJobs)
+}
+
+// BenchmarkJobs runs the job store benchmarks (jobstest.Bench).
+func BenchmarkJobs(b *testing.B) {
+	jobstest.Bench(b, openJobs)
+}
+
+// openJobs makes a schema of its own for one test and opens stores on it, as
+// replicas sharing the database would.
+func openJobs(tb testing.TB) func() jobs.Store {
+	url := schemaURL(tb)
+	return func() jobs.Store {
+		db, err := postgres.Open(context.Background(), url)
+		require.NoError(tb, err)
+		tb.Cleanup(func() { require.NoError(tb, db.Close()) })
+		return db
+	}
 }

@@ -53,15 +53,23 @@ func (s *Store) insertJob(ctx context.Context, what string, in jobs.Job) (jobs.J
 		if n == 0 {
 			return &facilities.Error{Code: facilities.CodeConflict, Message: fmt.Sprintf("a job %q exists", j.ID)}
 		}
+		var args []any
 		for _, k := range []struct {
 			field  string
 			values []string
 		}{{"facility", j.Facilities}, {"label", j.Labels}} {
 			for _, v := range k.values {
-				if _, err := tx.Exec(ctx, s.q.jobKeyInsert, j.ID, k.field, v); err != nil {
-					return err
-				}
+				args = append(args, j.ID, k.field, v)
 			}
+		}
+		// The keys go in statements of up to keysPerInsert rows: one round trip
+		// for a few hundred labels rather than one each.
+		for len(args) > 0 {
+			n := min(len(args), 3*keysPerInsert)
+			if _, err := tx.Exec(ctx, s.keyInsert(n/3), args[:n]...); err != nil {
+				return err
+			}
+			args = args[n:]
 		}
 		return nil
 	})
@@ -69,6 +77,19 @@ func (s *Store) insertJob(ctx context.Context, what string, in jobs.Job) (jobs.J
 		return jobs.Job{}, s.wrap(what, j.ID, err)
 	}
 	return j, nil
+}
+
+// keysPerInsert is the most job_keys rows one INSERT writes (3 parameters
+// each, well under SQLite's 32766 and PostgreSQL's 65535).
+const keysPerInsert = 500
+
+// keyInsert is the INSERT of n job_keys rows.
+func (s *Store) keyInsert(n int) string {
+	if n == 1 {
+		return s.q.jobKeyInsert
+	}
+	return bind(s.d, `INSERT INTO job_keys (job_id, field, value) VALUES (?, ?, ?)`+
+		strings.Repeat(", (?, ?, ?)", n-1)+` ON CONFLICT DO NOTHING`)
 }
 
 // Job returns a job with its request, result and problem.
