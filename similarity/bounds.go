@@ -1,6 +1,7 @@
 package similarity
 
 import (
+	"errors"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 )
@@ -104,17 +105,60 @@ func Bounds() map[string]facilities.Bound {
 	}
 }
 
-// CheckArticle returns the problems of the article's geometry, each named by its
-// JSON path under "article", and of its aerodynamic estimate; nil when there are
-// none.
-func CheckArticle(a *Article) []facilities.FieldError {
-	var fe []facilities.FieldError
-	BoundArticleLength.Check(&fe, "article.reference_length", a.ReferenceLength)
-	BoundArticleArea.Check(&fe, "article.reference_area", a.ReferenceArea)
-	BoundArticleLength.Check(&fe, "article.span", a.Span)
-	BoundArticleArea.Check(&fe, "article.frontal_area", a.FrontalArea)
-	BoundWettedArea.Check(&fe, "article.wetted_area", a.WettedArea)
-	BoundArticleOverallLength.Check(&fe, "article.length", a.Length)
-	BoundFormFactor.Check(&fe, "article.form_factor", a.FormFactor)
+// FieldErrors returns every problem of the article, each named by its JSON path
+// under "article": its geometry against the documented ranges (BoundArticleLength,
+// BoundArticleArea, BoundWettedArea, BoundArticleOverallLength, BoundFormFactor),
+// its skin-friction settings (FrictionFieldErrors) and its aerodynamic estimate
+// (Aero.Validate); nil when there are none.
+func (a *Article) FieldErrors() []facilities.FieldError {
+	fe := a.geometryErrors(articleGeometry...)
+	fe = append(fe, a.FrictionFieldErrors()...)
+	var de *facilities.Error
+	if errors.As(a.Aero.Validate(), &de) {
+		fe = append(fe, de.Fields...)
+	}
 	return fe
+}
+
+// articleGeometry lists the article's geometry fields by JSON name.
+var articleGeometry = []string{"reference_length", "reference_area", "span", "frontal_area", "wetted_area", "length", "form_factor"}
+
+// geometryErrors returns the problems of the named geometry fields against their
+// documented ranges, in one wording wherever they are checked: the request layer
+// checks them all (FieldErrors), and the planner, the load limit and the
+// skin-friction estimate, which library callers may give partial articles, each
+// check the ones they use.
+func (a *Article) geometryErrors(fields ...string) []facilities.FieldError {
+	var fe []facilities.FieldError
+	for _, f := range fields {
+		var b facilities.Bound
+		var v float64
+		switch f {
+		case "reference_length":
+			b, v = BoundArticleLength, a.ReferenceLength
+		case "reference_area":
+			b, v = BoundArticleArea, a.ReferenceArea
+		case "span":
+			b, v = BoundArticleLength, a.Span
+		case "frontal_area":
+			b, v = BoundArticleArea, a.FrontalArea
+		case "wetted_area":
+			b, v = BoundWettedArea, a.WettedArea
+		case "length":
+			b, v = BoundArticleOverallLength, a.Length
+		case "form_factor":
+			b, v = BoundFormFactor, a.FormFactor
+		default:
+			panic("similarity: no article geometry field " + f)
+		}
+		b.Check(&fe, "article."+f, v)
+	}
+	return fe
+}
+
+// Validate returns a CodeInvalid error naming every problem of the article
+// (FieldErrors), or nil. The request layer, the planner, the load limit and the
+// skin-friction estimate all validate an article with it.
+func (a *Article) Validate() error {
+	return facilities.Invalid("invalid article", a.FieldErrors())
 }

@@ -231,17 +231,7 @@ type ReynoldsEffects struct {
 // part the reference-temperature factor, each at its own Mach number; a liquid
 // takes neither. Bad input gives a *facilities.Error naming the field.
 func ReynoldsEffect(art *Article, reFlight, machFlight, reTest, machTest float64, medium string) (ReynoldsEffects, error) {
-	var fe []facilities.FieldError
-	if !(art.WettedArea > 0) || math.IsInf(art.WettedArea, 0) {
-		fe = append(fe, facilities.FieldError{Field: "article.wetted_area", Message: "must be a positive area in m² for the skin-friction estimate"})
-	}
-	if !(art.ReferenceArea > 0) || math.IsInf(art.ReferenceArea, 0) {
-		fe = append(fe, facilities.FieldError{Field: "article.reference_area", Message: "must be a positive area in m²"})
-	}
-	if !(art.FormFactor >= 0) || math.IsInf(art.FormFactor, 0) {
-		fe = append(fe, facilities.FieldError{Field: "article.form_factor", Message: fmt.Sprintf("must be 0 (taken as 1) or positive, got %g", art.FormFactor)})
-	}
-	fe = append(fe, art.FrictionFieldErrors()...)
+	fe := append(art.geometryErrors("wetted_area", "reference_area", "form_factor"), art.FrictionFieldErrors()...)
 	for _, r := range []struct {
 		field string
 		v     float64

@@ -71,16 +71,7 @@ var _ LoadLimit = (*BalanceLimit)(nil)
 // naming the field for bad input or an unknown balance, and facilities.ErrNoBalance
 // when the facility has no balance.
 func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installation, mx Matrix) (*BalanceLimit, error) {
-	var fe []facilities.FieldError
-	if !(art.ReferenceArea > 0) || math.IsInf(art.ReferenceArea, 0) {
-		fe = append(fe, facilities.FieldError{Field: "article.reference_area", Message: "must be a positive area in m²"})
-	}
-	if !(art.ReferenceLength > 0) || math.IsInf(art.ReferenceLength, 0) {
-		fe = append(fe, facilities.FieldError{Field: "article.reference_length", Message: "must be a positive length in m"})
-	}
-	if !(art.FrontalArea >= 0) || math.IsInf(art.FrontalArea, 0) {
-		fe = append(fe, facilities.FieldError{Field: "article.frontal_area", Message: "must be a non-negative area in m²"})
-	}
+	fe := art.geometryErrors("reference_area", "reference_length", "frontal_area")
 	if len(mx.Points) == 0 {
 		fe = append(fe, facilities.FieldError{Field: "alpha", Message: "the test matrix has no points"})
 	}

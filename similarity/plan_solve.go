@@ -241,17 +241,7 @@ func (sv *solver) checkInput() error {
 		return facilities.Invalid("invalid facility", []facilities.FieldError{{Field: "facility",
 			Message: "the facility lacks a usable test section, pressure or temperature range"}})
 	}
-	var fe []facilities.FieldError
-	pos := func(field string, v float64, unit string) {
-		if !(v > 0) || math.IsInf(v, 0) {
-			fe = append(fe, facilities.FieldError{Field: "article." + field, Message: fmt.Sprintf("%g %s must be positive and finite", v, unit)})
-		}
-	}
-	pos("reference_length", sv.art.ReferenceLength, "m")
-	pos("span", sv.art.Span, "m")
-	pos("frontal_area", sv.art.FrontalArea, "m²")
-	pos("reference_area", sv.art.ReferenceArea, "m²")
-	if err := facilities.Invalid("invalid article", fe); err != nil {
+	if err := facilities.Invalid("invalid article", sv.art.geometryErrors("reference_length", "span", "frontal_area", "reference_area")); err != nil {
 		return err
 	}
 	full := sv.fl.Mach > 0 && sv.fl.TrueAirspeed > 0

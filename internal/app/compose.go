@@ -186,11 +186,7 @@ func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // checkArticle adds the problems of the article's geometry and estimate to fe.
 func checkArticle(a *similarity.Article, fe *check.Fields) {
-	*fe = append(*fe, similarity.CheckArticle(a)...)
-	*fe = append(*fe, a.FrictionFieldErrors()...)
-	if err := a.Aero.Validate(); err != nil {
-		fe.Merge("", err)
-	}
+	*fe = append(*fe, a.FieldErrors()...)
 }
 
 // checkInstallation adds the problems of an installation in facility f (nil when
