@@ -212,7 +212,7 @@ func checkMatrixReport(t *testing.T, r *facilities.LoadReport, q float64, within
 	}
 	// Loads are affine in q, so a check within its limits at q has its largest safe
 	// q at or above q, and one beyond them below it.
-	if ms := r.MaxSafeDynamicPressure; math.IsInf(ms, 0) || math.IsNaN(ms) || (within && ms < q*(1-1e-9)) || (!within && ms > q*(1+1e-9)) {
+	if ms := float64(r.MaxSafeDynamicPressure); math.IsInf(ms, 0) || math.IsNaN(ms) || (within && ms < q*(1-1e-9)) || (!within && ms > q*(1+1e-9)) {
 		t.Errorf("balance %s: max safe dynamic pressure %g Pa against the test's %g Pa (within limits %v)", r.BalanceID, ms, q, within)
 	}
 	if !r.WeightIncluded {

@@ -5,12 +5,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"reflect"
 	"scalematch/atmosphere"
 	"sort"
-	"strconv"
 	"strings"
-	"unicode/utf8"
 )
 
 // ErrNoBalance is returned when a load check is asked of a facility with no balance.
@@ -602,14 +599,6 @@ type LoadReport struct {
 	WithinLimits bool `json:"within_limits"`
 	// Limiting is the component and point of MaxUtilization.
 	Limiting Limiting `json:"limiting"`
-	// MaxSafeDynamicPressure is the free-stream dynamic pressure in Pa at which, by
-	// this estimate, the worst point reaches AllowedUtilization (rating ÷ safety
-	// factor); 0 when the weight alone exceeds it; +Inf (JSON null) when no rated
-	// load grows with q. Despite the published name (kept for compatibility) it is
-	// not a safe limit: it is where a linear-lift, parabolic-polar, steady estimate
-	// reaches the allowed loads, and the safety factor is the only margin left for
-	// the estimate's error and for unsteady loads.
-	MaxSafeDynamicPressure float64 `json:"max_safe_dynamic_pressure"`
 	// MaxSafeLimiting is the component and point that set MaxSafeDynamicPressure.
 	MaxSafeLimiting Limiting `json:"max_safe_limiting"`
 	// WeightIncluded reports whether the model's weight is in the loads.
@@ -638,6 +627,42 @@ type LoadReport struct {
 	// Resolution says whether the balance resolves the required resolution
 	// (LoadCase.Resolution); absent when none was asked.
 	Resolution *ResolutionCheck `json:"resolution,omitempty"`
+	// MaxSafeDynamicPressure is the free-stream dynamic pressure in Pa at which, by
+	// this estimate, the worst point reaches AllowedUtilization (rating ÷ safety
+	// factor); 0 when the weight alone exceeds it; +Inf (JSON null) when no rated
+	// load grows with q. Despite the published name (kept for compatibility) it is
+	// not a safe limit: it is where a linear-lift, parabolic-polar, steady estimate
+	// reaches the allowed loads, and the safety factor is the only margin left for
+	// the estimate's error and for unsteady loads. It comes last in the JSON
+	// object, as it always has.
+	MaxSafeDynamicPressure Ceiling `json:"max_safe_dynamic_pressure"`
+}
+
+// Ceiling is an upper bound in which +Inf means that there is none; JSON
+// writes that as null and reads null back as +Inf.
+type Ceiling float64
+
+// MarshalJSON writes the bound as encoding/json writes a float64, or null when
+// there is none.
+func (c Ceiling) MarshalJSON() ([]byte, error) {
+	if math.IsInf(float64(c), 1) {
+		return []byte("null"), nil
+	}
+	return json.Marshal(float64(c))
+}
+
+// UnmarshalJSON reads a number, or null as no bound (+Inf).
+func (c *Ceiling) UnmarshalJSON(b []byte) error {
+	if string(b) == "null" {
+		*c = Ceiling(math.Inf(1))
+		return nil
+	}
+	var f float64
+	if err := json.Unmarshal(b, &f); err != nil {
+		return err
+	}
+	*c = Ceiling(f)
+	return nil
 }
 
 // Uncertainty is the 2σ uncertainty of the coefficients at one point, from the
@@ -697,297 +722,6 @@ func CoefficientUncertainty(d Load, known [6]bool, alphaDeg, qc, s, c float64) (
 	one(IndexRollingMoment, "cl_roll", qs*c, &u.Cl)
 	one(IndexYawingMoment, "cn", qs*c, &u.Cn)
 	return u, unknown
-}
-
-// MarshalJSON writes the report, with an unbounded MaxSafeDynamicPressure as null.
-// The fields come in their declaration order (LoadPoint's and Limiting's too) and
-// max_safe_dynamic_pressure last, each written exactly as encoding/json writes it;
-// the report is written directly rather than through reflection because a plan's
-// answer spends more time encoding its load points than computing them. A NaN or
-// an infinite figure (other than MaxSafeDynamicPressure) is an error, as in
-// encoding/json.
-func (r LoadReport) MarshalJSON() ([]byte, error) {
-	w := jsonWriter{b: make([]byte, 0, 512+256*len(r.Points))}
-	w.raw(`{"balance_id":`)
-	w.str(r.BalanceID)
-	w.raw(`,"safety_factor":`)
-	w.float(r.SafetyFactor)
-	w.raw(`,"allowed_utilization":`)
-	w.float(r.AllowedUtilization)
-	w.raw(`,"dynamic_pressure":`)
-	w.float(r.DynamicPressure)
-	w.raw(`,"points":`)
-	if r.Points == nil {
-		w.raw("null")
-	} else {
-		w.raw("[")
-		for i := range r.Points {
-			if i > 0 {
-				w.raw(",")
-			}
-			p := &r.Points[i]
-			w.raw(`{"alpha":`)
-			w.float(p.Alpha)
-			w.raw(`,"beta":`)
-			w.float(p.Beta)
-			w.raw(`,"dynamic_pressure":`)
-			w.float(p.DynamicPressure)
-			w.raw(`,"normal":`)
-			w.float(p.Normal)
-			w.raw(`,"axial":`)
-			w.float(p.Axial)
-			w.raw(`,"side":`)
-			w.float(p.Side)
-			w.raw(`,"pitching_moment":`)
-			w.float(p.PitchingMoment)
-			w.raw(`,"rolling_moment":`)
-			w.float(p.RollingMoment)
-			w.raw(`,"yawing_moment":`)
-			w.float(p.YawingMoment)
-			w.raw(`,"utilization":`)
-			w.float(p.Utilization)
-			if p.Limiting != "" {
-				w.raw(`,"limiting":`)
-				w.str(p.Limiting)
-			}
-			w.raw(`,"rows":`)
-			w.rows(p.Rows)
-			w.raw("}")
-		}
-		w.raw("]")
-	}
-	w.raw(`,"max_utilization":`)
-	w.float(r.MaxUtilization)
-	if r.WithinLimits {
-		w.raw(`,"within_limits":true`)
-	} else {
-		w.raw(`,"within_limits":false`)
-	}
-	w.raw(`,"limiting":`)
-	w.limiting(r.Limiting)
-	w.raw(`,"max_safe_limiting":`)
-	w.limiting(r.MaxSafeLimiting)
-	if r.WeightIncluded {
-		w.raw(`,"weight_included":true`)
-	} else {
-		w.raw(`,"weight_included":false`)
-	}
-	if len(r.Warnings) > 0 {
-		w.raw(`,"warnings":[`)
-		for i, s := range r.Warnings {
-			if i > 0 {
-				w.raw(",")
-			}
-			w.str(s)
-		}
-		w.raw("]")
-	}
-	w.raw(`,"verdict":`)
-	w.str(r.Verdict)
-	if len(r.UnratedLoaded) > 0 {
-		w.raw(`,"unrated_loaded":[`)
-		for i, s := range r.UnratedLoaded {
-			if i > 0 {
-				w.raw(",")
-			}
-			w.str(s)
-		}
-		w.raw("]")
-	}
-	if len(r.OverAllowed) > 0 {
-		w.raw(`,"over_allowed":[`)
-		for i, l := range r.OverAllowed {
-			if i > 0 {
-				w.raw(",")
-			}
-			w.limiting(l)
-		}
-		w.raw("]")
-	}
-	if len(r.Uncertainty) > 0 {
-		w.raw(`,"uncertainty":[`)
-		for i := range r.Uncertainty {
-			if i > 0 {
-				w.raw(",")
-			}
-			w.uncertainty(&r.Uncertainty[i])
-		}
-		w.raw("]")
-	}
-	if len(r.UncertaintyUnknown) > 0 {
-		w.raw(`,"uncertainty_unknown":[`)
-		for i, s := range r.UncertaintyUnknown {
-			if i > 0 {
-				w.raw(",")
-			}
-			w.str(s)
-		}
-		w.raw("]")
-	}
-	w.raw(`,"load_fraction":`)
-	w.float(r.LoadFraction)
-	if r.Resolution != nil {
-		// Rare and small: written by encoding/json, which the rest matches.
-		b, err := json.Marshal(r.Resolution)
-		if err != nil {
-			return nil, err
-		}
-		w.raw(`,"resolution":`)
-		w.raw(string(b))
-	}
-	w.raw(`,"max_safe_dynamic_pressure":`)
-	if math.IsInf(r.MaxSafeDynamicPressure, 0) {
-		w.raw("null")
-	} else {
-		w.float(r.MaxSafeDynamicPressure)
-	}
-	w.raw("}")
-	if w.err != nil {
-		return nil, w.err
-	}
-	return w.b, nil
-}
-
-// jsonWriter appends JSON values to b exactly as encoding/json.Marshal writes them
-// (strings with HTML escaping, floats in its two formats); err holds the first
-// value it cannot write.
-type jsonWriter struct {
-	b   []byte
-	err error
-}
-
-// raw appends s as it is.
-func (w *jsonWriter) raw(s string) { w.b = append(w.b, s...) }
-
-// limiting appends a Limiting.
-func (w *jsonWriter) limiting(l Limiting) {
-	w.raw(`{"component":`)
-	w.str(l.Component)
-	w.raw(`,"alpha":`)
-	w.float(l.Alpha)
-	w.raw(`,"beta":`)
-	w.float(l.Beta)
-	w.raw("}")
-}
-
-// uncertainty appends one point's uncertainty, zero figures left out as
-// encoding/json's omitempty does.
-func (w *jsonWriter) uncertainty(u *Uncertainty) {
-	w.raw(`{"alpha":`)
-	w.float(u.Alpha)
-	w.raw(`,"beta":`)
-	w.float(u.Beta)
-	for _, f := range []struct {
-		key string
-		v   float64
-	}{{`,"cl":`, u.CL}, {`,"cd_counts":`, u.CDCounts}, {`,"cm":`, u.Cm}, {`,"cy":`, u.CY}, {`,"cl_roll":`, u.Cl}, {`,"cn":`, u.Cn}} {
-		if f.v != 0 {
-			w.raw(f.key)
-			w.float(f.v)
-		}
-	}
-	w.raw("}")
-}
-
-// rows appends a point's rows as encoding/json would write them.
-func (w *jsonWriter) rows(rows []RowLoad) {
-	if rows == nil {
-		w.raw("null")
-		return
-	}
-	w.raw("[")
-	for i := range rows {
-		r := &rows[i]
-		if i > 0 {
-			w.raw(",")
-		}
-		w.raw(`{"name":`)
-		w.str(r.Name)
-		w.raw(`,"load":`)
-		w.float(r.Load)
-		if r.Rated {
-			w.raw(`,"rated":true`)
-		} else {
-			w.raw(`,"rated":false`)
-		}
-		if r.Covered {
-			w.raw(`,"covered":true`)
-		} else {
-			w.raw(`,"covered":false`)
-		}
-		if r.Rating != 0 {
-			w.raw(`,"rating":`)
-			w.float(r.Rating)
-		}
-		if r.Allowed != 0 {
-			w.raw(`,"allowed":`)
-			w.float(r.Allowed)
-		}
-		w.raw(`,"share_of_allowed":`)
-		w.float(r.ShareOfAllowed)
-		if r.Limiting {
-			w.raw(`,"limiting":true`)
-		}
-		w.raw("}")
-	}
-	w.raw("]")
-}
-
-// float appends f as encoding/json does: the shortest representation that reads
-// back as f, in 'f' format, or 'e' format below 1e-6 and from 1e21 in magnitude
-// with a one-digit negative exponent written without its leading zero.
-func (w *jsonWriter) float(f float64) {
-	if math.IsNaN(f) || math.IsInf(f, 0) {
-		if w.err == nil {
-			w.err = &json.UnsupportedValueError{Value: reflect.ValueOf(f), Str: strconv.FormatFloat(f, 'g', -1, 64)}
-		}
-		w.raw("null")
-		return
-	}
-	format := byte('f')
-	if a := math.Abs(f); a != 0 && (a < 1e-6 || a >= 1e21) {
-		format = 'e'
-	}
-	w.b = strconv.AppendFloat(w.b, f, format, -1, 64)
-	if n := len(w.b); format == 'e' && n >= 4 && w.b[n-4] == 'e' && w.b[n-3] == '-' && w.b[n-2] == '0' {
-		w.b[n-2] = w.b[n-1]
-		w.b = w.b[:n-1]
-	}
-}
-
-// str appends s as a JSON string. Printable ASCII other than the characters
-// encoding/json escapes (", \, <, >, &) and valid UTF-8 other than U+2028 and
-// U+2029 are copied; a string with anything else is handed to encoding/json.
-func (w *jsonWriter) str(s string) {
-	for i := 0; i < len(s); {
-		c := s[i]
-		if c < utf8.RuneSelf {
-			if c < 0x20 || c == '"' || c == '\\' || c == '<' || c == '>' || c == '&' {
-				w.strSlow(s)
-				return
-			}
-			i++
-			continue
-		}
-		r, size := utf8.DecodeRuneInString(s[i:])
-		if (r == utf8.RuneError && size == 1) || r == '\u2028' || r == '\u2029' {
-			w.strSlow(s)
-			return
-		}
-		i += size
-	}
-	w.b = append(w.b, '"')
-	w.b = append(w.b, s...)
-	w.b = append(w.b, '"')
-}
-
-// strSlow appends s through encoding/json.
-func (w *jsonWriter) strSlow(s string) {
-	q, err := json.Marshal(s)
-	if err != nil && w.err == nil {
-		w.err = err
-	}
-	w.b = append(w.b, q...)
 }
 
 // validate checks the case's numbers, naming fields by their request paths.
@@ -1050,7 +784,7 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 		LoadFraction:           rs.Fraction,
 		DynamicPressure:        q,
 		Points:                 make([]LoadPoint, len(lc.Points)),
-		MaxSafeDynamicPressure: math.Inf(1),
+		MaxSafeDynamicPressure: Ceiling(math.Inf(1)),
 		WeightIncluded:         lc.Installation.ModelMass > 0,
 	}
 	if !r.WeightIncluded {
@@ -1094,13 +828,13 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 			worst, r.MaxUtilization = i, u
 			r.Limiting = Limiting{rs.RowName(row), p.Alpha, p.Beta}
 		}
-		if qs, row := rs.MaxDynamicPressure(&perQ, &weight); qs < r.MaxSafeDynamicPressure {
-			r.MaxSafeDynamicPressure = qs
+		if qs, row := rs.MaxDynamicPressure(&perQ, &weight); qs < float64(r.MaxSafeDynamicPressure) {
+			r.MaxSafeDynamicPressure = Ceiling(qs)
 			r.MaxSafeLimiting = Limiting{rs.RowName(row), p.Alpha, p.Beta}
 		}
 	}
 	r.WithinLimits = r.MaxUtilization <= r.AllowedUtilization*(1+1e-12) &&
-		q <= r.MaxSafeDynamicPressure*(1+1e-12)
+		q <= float64(r.MaxSafeDynamicPressure)*(1+1e-12)
 	for k, u := range unrated {
 		if u {
 			r.UnratedLoaded = append(r.UnratedLoaded, ComponentName(k))

@@ -164,7 +164,7 @@ func TestGaugeRowBinds(t *testing.T) {
 		t.Error("within limits at 107 % of a gauge rating, want not")
 	}
 	// The gauge reaches 5800/1.5 = 3866.7 N at q = 3866.7/6.2 Pa.
-	if want := 5800 / 1.5 / 6.2; math.Abs(r.MaxSafeDynamicPressure-want) > 1e-9 || r.MaxSafeLimiting.Component != "forward gauge" {
+	if want := 5800 / 1.5 / 6.2; math.Abs(float64(r.MaxSafeDynamicPressure)-want) > 1e-9 || r.MaxSafeLimiting.Component != "forward gauge" {
 		t.Errorf("max safe q = %.12g by %q, want %.12g by the forward gauge", r.MaxSafeDynamicPressure, r.MaxSafeLimiting.Component, want)
 	}
 }
@@ -242,10 +242,10 @@ func TestMaxSafeDynamicPressure(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !(r.MaxSafeDynamicPressure > 0) || math.IsInf(r.MaxSafeDynamicPressure, 0) {
+		if !(r.MaxSafeDynamicPressure > 0) || math.IsInf(float64(r.MaxSafeDynamicPressure), 0) {
 			t.Fatalf("trial %d: max safe q = %g", trial, r.MaxSafeDynamicPressure)
 		}
-		at, err := lc.Check(&b, r.MaxSafeDynamicPressure)
+		at, err := lc.Check(&b, float64(r.MaxSafeDynamicPressure))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -279,7 +279,7 @@ func TestUnlimitedJSON(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !math.IsInf(r.MaxSafeDynamicPressure, 1) {
+	if !math.IsInf(float64(r.MaxSafeDynamicPressure), 1) {
 		t.Fatalf("max safe q = %g with no ratings, want +Inf", r.MaxSafeDynamicPressure)
 	}
 	out, err := json.Marshal(r)

@@ -132,7 +132,7 @@ func TestLoadFraction(t *testing.T) {
 	assert.Equal(t, 1.0, full.LoadFraction)
 	assert.Equal(t, 0.9, part.LoadFraction)
 	assert.InDelta(t, 0.9*full.AllowedUtilization, part.AllowedUtilization, 1e-15)
-	assert.InDelta(t, 0.9*full.MaxSafeDynamicPressure, part.MaxSafeDynamicPressure, 0.1*full.MaxSafeDynamicPressure,
+	assert.InDelta(t, 0.9*float64(full.MaxSafeDynamicPressure), float64(part.MaxSafeDynamicPressure), 0.1*float64(full.MaxSafeDynamicPressure),
 		"less allowed load, less q")
 	for i, r := range part.Points[0].Rows {
 		assert.InDelta(t, 0.9*full.Points[0].Rows[i].Allowed, r.Allowed, 1e-12*r.Rating+1e-300, r.Name)

@@ -672,7 +672,7 @@ func writeLoads(w io.Writer, u units, r facilities.LoadReport) {
 	}
 	fmt.Fprintf(w, "  worst %.1f %% (%s at α %.4g°), %s; weight %s\n", 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha,
 		verdict, map[bool]string{true: "included", false: "left out (unconservative)"}[r.WeightIncluded])
-	fmt.Fprintf(w, "  allowed load reached at dynamic pressure %s by this estimate (%s at α %.4g°)\n", u.q(r.MaxSafeDynamicPressure, "Pa", 5),
+	fmt.Fprintf(w, "  allowed load reached at dynamic pressure %s by this estimate (%s at α %.4g°)\n", u.q(float64(r.MaxSafeDynamicPressure), "Pa", 5),
 		r.MaxSafeLimiting.Component, r.MaxSafeLimiting.Alpha)
 	writeUncertainty(w, r)
 }

@@ -97,7 +97,7 @@ func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 				t.Fatal(err)
 			}
 			q := ll.MaxDynamicPressure(resp.Model.Scale, resp.Test.State)
-			if math.Abs(q/r.MaxSafeDynamicPressure-1) > 1e-9 {
+			if math.Abs(q/float64(r.MaxSafeDynamicPressure)-1) > 1e-9 {
 				t.Errorf("load limit %.10g Pa, report's safe q %.10g Pa", q, r.MaxSafeDynamicPressure)
 			}
 		})

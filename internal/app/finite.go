@@ -35,14 +35,25 @@ func CheckFinite(v any, input func(top string) string) error {
 		Limits:  []string{"finite_result"}}
 }
 
+// ceilingType is facilities.Ceiling, whose +Inf is no bound (JSON null).
+var ceilingType = reflect.TypeFor[facilities.Ceiling]()
+
+// finite reports whether the float v is a finite number or a Ceiling's +Inf.
+func finite(v reflect.Value) bool {
+	f := v.Float()
+	if math.IsInf(f, 1) && v.Type() == ceilingType {
+		return true
+	}
+	return !math.IsNaN(f) && !math.IsInf(f, 0)
+}
+
 // allFinite reports whether every float in v is finite. It walks v as nonFinite
 // does but builds no paths, which cost most of the walk (a plan answer has
 // thousands of numbers); nonFinite names the culprit when there is one.
 func allFinite(v reflect.Value) bool {
 	switch v.Kind() {
 	case reflect.Float32, reflect.Float64:
-		f := v.Float()
-		return !math.IsNaN(f) && !math.IsInf(f, 0)
+		return finite(v)
 	case reflect.Pointer, reflect.Interface:
 		return v.IsNil() || allFinite(v.Elem())
 	case reflect.Struct:
@@ -78,8 +89,7 @@ func allFinite(v reflect.Value) bool {
 func nonFinite(v reflect.Value, path string) (string, bool) {
 	switch v.Kind() {
 	case reflect.Float32, reflect.Float64:
-		f := v.Float()
-		if math.IsNaN(f) || math.IsInf(f, 0) {
+		if !finite(v) {
 			return path, false
 		}
 	case reflect.Pointer, reflect.Interface:

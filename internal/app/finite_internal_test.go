@@ -64,3 +64,12 @@ func TestCollapseWarnings(t *testing.T) {
 		})
 	}
 }
+
+// TestCheckFiniteCeiling: a load report without a bound on the dynamic pressure
+// (facilities.Ceiling +Inf, written as null) is finite; a NaN there is not.
+func TestCheckFiniteCeiling(t *testing.T) {
+	r := facilities.LoadReport{MaxSafeDynamicPressure: facilities.Ceiling(math.Inf(1))}
+	require.NoError(t, CheckFinite(&r, nil))
+	r.MaxSafeDynamicPressure = facilities.Ceiling(math.NaN())
+	require.Error(t, CheckFinite(&r, nil))
+}

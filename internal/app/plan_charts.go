@@ -4,7 +4,6 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
-	"math"
 	"strings"
 
 	"scalematch/api/schema"
@@ -86,22 +85,12 @@ func BalanceRatings(f *facilities.Facility, id string) (facilities.Ratings, erro
 
 // DecodePlan reads a stored plan's JSON body. A load report's
 // max_safe_dynamic_pressure written as null (no rated load grows with the
-// dynamic pressure) is read back as +Inf, as the planner answered it.
+// dynamic pressure) is read back as +Inf, as the planner answered it
+// (facilities.Ceiling).
 func DecodePlan(body []byte) (*schema.PlanResponse, error) {
 	var p schema.PlanResponse
 	if err := json.Unmarshal(body, &p); err != nil {
 		return nil, fmt.Errorf("decoding a stored plan: %w", err)
-	}
-	var nulls struct {
-		Loads *struct {
-			MaxSafe *float64 `json:"max_safe_dynamic_pressure"`
-		} `json:"loads"`
-	}
-	if err := json.Unmarshal(body, &nulls); err != nil {
-		return nil, fmt.Errorf("decoding a stored plan: %w", err)
-	}
-	if p.Loads != nil && nulls.Loads != nil && nulls.Loads.MaxSafe == nil {
-		p.Loads.MaxSafeDynamicPressure = math.Inf(1)
 	}
 	return &p, nil
 }
