@@ -187,7 +187,7 @@ func TestBatchStoresEveryPlan(t *testing.T) {
 			sb.WriteByte(',')
 		}
 		mach := 0.60 + 0.005*float64(i%(n-1)) // the last repeats the first
-		sb.WriteString(strings.Replace(j16Plan, `"mach": 0.80`, fmt.Sprintf(`"mach": %.3f`, mach), 1))
+		sb.WriteString(strings.Replace(j16Plan, `"mach": 0.78`, fmt.Sprintf(`"mach": %.3f`, mach), 1))
 	}
 	sb.WriteString(`]}`)
 	status, body := post(t, rs[0], "/v1/plans/batch", sb.String())
