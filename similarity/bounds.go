@@ -123,6 +123,14 @@ func (a *Article) FieldErrors() []facilities.FieldError {
 // articleGeometry lists the article's geometry fields by JSON name.
 var articleGeometry = []string{"reference_length", "reference_area", "span", "frontal_area", "wetted_area", "length", "form_factor"}
 
+// GeometryErrors returns the problems of the named geometry fields (JSON names:
+// reference_length, reference_area, span, frontal_area, wetted_area, length,
+// form_factor) against their documented ranges, for a caller outside this
+// package that checks the fields it uses (internal/loads' load limit).
+func (a *Article) GeometryErrors(fields ...string) []facilities.FieldError {
+	return a.geometryErrors(fields...)
+}
+
 // geometryErrors returns the problems of the named geometry fields against their
 // documented ranges, in one wording wherever they are checked: the request layer
 // checks them all (FieldErrors), and the planner, the load limit and the

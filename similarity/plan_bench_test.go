@@ -4,6 +4,7 @@ import (
 	"testing"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -85,7 +86,7 @@ func BenchmarkPlanWithBalance21(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		ll, err := similarity.NewLoadLimit(&art, f, in, mx)
+		ll, err := loads.NewLimit(&art, f, in, mx)
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -93,7 +94,7 @@ func BenchmarkPlanWithBalance21(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if _, err := similarity.EstimateLoads(&art, f, in, res.Model.Scale, res.Test.State, mx); err != nil {
+		if _, err := loads.Check(&loads.Case{Facility: f, Article: &art, Installation: in, Matrix: mx, Scale: res.Model.Scale, State: res.Test.State}); err != nil {
 			b.Fatal(err)
 		}
 	}

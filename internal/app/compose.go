@@ -289,9 +289,9 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	var err error
 	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective,
 		MatrixDrag: mx.DragRange()}
-	var ll *similarity.BalanceLimit
+	var ll *loads.Limit
 	if len(f.Balances) > 0 {
-		ll, err = similarity.NewLoadLimit(&req.Article, f, req.Installation.WithBuoyancy(f), mx)
+		ll, err = loads.NewLimit(&req.Article, f, req.Installation.WithBuoyancy(f), mx)
 		if err != nil {
 			return nil, err
 		}

@@ -17,6 +17,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 	"scalematch/internal/app"
+	"scalematch/internal/loads"
 	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
@@ -45,7 +46,7 @@ func decodePlan(t testing.TB, body string) *schema.PlanRequest {
 // binding limits exactly when the reported balance check sits at its allowed
 // utilisation (1/safety factor), and that the planner's load limit at the chosen
 // scale is the report's max_safe_dynamic_pressure (where the allowed load is reached by the estimate): the planner and the load
-// report use one load-limit implementation (similarity.BalanceLimit).
+// report use one load-limit implementation (loads.Limit).
 func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 	cases := []struct {
 		name    string
@@ -92,7 +93,7 @@ func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			ll, err := similarity.NewLoadLimit(&req.Article, &f, in, mx)
+			ll, err := loads.NewLimit(&req.Article, &f, in, mx)
 			if err != nil {
 				t.Fatal(err)
 			}

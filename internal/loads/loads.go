@@ -1,10 +1,13 @@
 // Package loads is the one home of the balance load check: the model's fit in
 // the test section, the wall corrections of the test matrix, the loads on every
-// component and gauge row of the facility's balances, and the verdict. Plans
-// (internal to the composition of POST /v1/plans) and load checks (POST
-// /v1/loads, scalematch loads) call Check; the planner's load ceiling is
-// similarity.BalanceLimit, and the load primitives (body axes, ratings, the
-// per-balance report) are facilities.LoadCase and facilities.LoadReport.
+// component and gauge row of the facility's balances, the verdict, and the
+// planner's load window. Plans (the composition of POST /v1/plans) build a Limit
+// (NewLimit), which gives the planner its load ceiling and, with a required
+// resolution, its floor (similarity.LoadLimit and similarity.LoadFloor, the small
+// interfaces similarity declares), and then call Check at the plan's answer; load
+// checks (POST /v1/loads, scalematch loads) call Check alone. The load
+// primitives (body axes, ratings, the per-balance report) are still
+// facilities.LoadCase and facilities.LoadReport.
 //
 // The verdicts, from best to worst (facilities.Verdict*):
 //

@@ -1,4 +1,4 @@
-package similarity
+package loads
 
 import (
 	"errors"
@@ -7,9 +7,10 @@ import (
 	"slices"
 
 	"scalematch/facilities"
+	"scalematch/similarity"
 )
 
-// BalanceLimit is the planner's LoadLimit for an article on a facility's balances
+// Limit is the planner's similarity.LoadLimit for an article on a facility's balances
 // over a test matrix: at a given model scale and test Mach number, the largest
 // free-stream dynamic pressure at which every point of the matrix keeps every
 // rated load and gauge row at or under 1/safety factor, wall corrections and the
@@ -28,8 +29,8 @@ import (
 // then pick among those that are safe.
 //
 // The coefficients and their body-axis projections onto every rated row are
-// computed once by NewLoadLimit; MaxDynamicPressure allocates nothing.
-type BalanceLimit struct {
+// computed once by NewLimit; MaxDynamicPressure allocates nothing.
+type Limit struct {
 	balances []balanceRows
 	cd       []float64 // drag coefficient per point, for the wake blockage
 	facility *facilities.Facility
@@ -64,14 +65,17 @@ type balanceRows struct {
 	live, livePoint []int32
 }
 
-var _ LoadLimit = (*BalanceLimit)(nil)
+var (
+	_ similarity.LoadLimit = (*Limit)(nil)
+	_ similarity.LoadFloor = (*Limit)(nil)
+)
 
-// NewLoadLimit returns the load limit of article art on facility f with
-// installation in, over the test matrix mx (from Aero.Matrix). It returns an error
+// NewLimit returns the load limit of article art on facility f with
+// installation in, over the test matrix mx (from similarity.Aero.Matrix). It returns an error
 // naming the field for bad input or an unknown balance, and facilities.ErrNoBalance
 // when the facility has no balance.
-func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installation, mx Matrix) (*BalanceLimit, error) {
-	fe := art.geometryErrors("reference_area", "reference_length", "frontal_area")
+func NewLimit(art *similarity.Article, f *facilities.Facility, in facilities.Installation, mx similarity.Matrix) (*Limit, error) {
+	fe := art.GeometryErrors("reference_area", "reference_length", "frontal_area")
 	if len(mx.Points) == 0 {
 		fe = append(fe, facilities.FieldError{Field: "alpha", Message: "the test matrix has no points"})
 	}
@@ -87,7 +91,7 @@ func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installati
 	if len(f.Balances) == 0 {
 		return nil, facilities.ErrNoBalance
 	}
-	l := &BalanceLimit{facility: f, refArea: art.ReferenceArea, refLength: art.ReferenceLength,
+	l := &Limit{facility: f, refArea: art.ReferenceArea, refLength: art.ReferenceLength,
 		frontalArea: art.FrontalArea, cd: make([]float64, len(mx.Points)), alpha: make([]float64, len(mx.Points))}
 	for i, p := range mx.Points {
 		l.cd[i], l.alpha[i] = p.CD, p.Alpha
@@ -136,7 +140,7 @@ func NewLoadLimit(art *Article, f *facilities.Facility, in facilities.Installati
 }
 
 // Name returns facilities.ConstraintBalance, the constraint's name in a plan.
-func (l *BalanceLimit) Name() string { return facilities.ConstraintBalance }
+func (l *Limit) Name() string { return facilities.ConstraintBalance }
 
 // Resolve makes the limit also a LoadFloor: the least dynamic pressure at which
 // a balance resolves the coefficients to res (facilities.Resolution.Need at every
@@ -144,7 +148,7 @@ func (l *BalanceLimit) Name() string { return facilities.ConstraintBalance }
 // of dynamic pressure (Windows). With a floor, MaxDynamicPressure is the highest
 // ceiling of the balances whose floor is at or under their ceiling (of all when
 // none is). A nil or empty res removes the floor.
-func (l *BalanceLimit) Resolve(res *facilities.Resolution) {
+func (l *Limit) Resolve(res *facilities.Resolution) {
 	for k := range l.balances {
 		br := &l.balances[k]
 		br.needForce, br.needMoment = nil, nil
@@ -166,20 +170,20 @@ func (l *BalanceLimit) Resolve(res *facilities.Resolution) {
 }
 
 // FloorName returns facilities.ConstraintResolution, the floor's name in a plan.
-func (l *BalanceLimit) FloorName() string { return facilities.ConstraintResolution }
+func (l *Limit) FloorName() string { return facilities.ConstraintResolution }
 
 // Windows appends, per balance (the named one, or every balance of the
 // facility), its window [MinDynamicPressure, MaxDynamicPressure] in Pa at this
 // scale and st.Mach: the floor of the required resolution (0 without one) and
 // the load ceiling.
-func (l *BalanceLimit) Windows(dst []Window, scale float64, st facilities.State) []Window {
+func (l *Limit) Windows(dst []similarity.Window, scale float64, st facilities.State) []similarity.Window {
 	if !(scale > 0) || math.IsInf(scale, 0) {
 		return dst
 	}
 	g := l.geometry(scale, st.Mach)
 	for b := range l.balances {
 		br := &l.balances[b]
-		w := Window{Hi: br.maxQ(l.cd, g.mach, g.solid, g.wake, g.qS, g.qSc)}
+		w := similarity.Window{Hi: br.maxQ(l.cd, g.mach, g.solid, g.wake, g.qS, g.qSc)}
 		if br.needForce != nil {
 			w.Lo = br.floorQ(l.cd, g.mach, g.solid, g.wake, g.qS, g.qSc)
 		}
@@ -193,7 +197,7 @@ type scaled struct{ mach, solid, wake, qS, qSc float64 }
 
 // geometry returns the blockage factors and q·S, q·S·c per pascal at scale
 // and Mach number mach.
-func (l *BalanceLimit) geometry(scale, mach float64) scaled {
+func (l *Limit) geometry(scale, mach float64) scaled {
 	s2 := scale * scale
 	area := l.refArea * s2
 	solid, wake, _ := facilities.BlockageFactors(l.facility, l.frontalArea*s2, area, mach)
@@ -209,7 +213,7 @@ func (l *BalanceLimit) geometry(scale, mach float64) scaled {
 //
 // with f_i = q_c/q the point's blockage correction; 0 without a resolution; +Inf
 // when the balance's accuracy is not known for an asked coefficient.
-func (l *BalanceLimit) MinDynamicPressure(scale float64, st facilities.State) float64 {
+func (l *Limit) MinDynamicPressure(scale float64, st facilities.State) float64 {
 	lo, _, _ := l.window(scale, st.Mach)
 	return lo
 }
@@ -229,14 +233,14 @@ func (br *balanceRows) floorQ(cd []float64, mach, solid, wake, qS, qSc float64) 
 // under 1/safety factor on the balance (the best balance when none is named); 0
 // when the weight alone breaks a limit or the scale is not positive; +Inf when no
 // rated load grows with q.
-func (l *BalanceLimit) MaxDynamicPressure(scale float64, st facilities.State) float64 {
+func (l *Limit) MaxDynamicPressure(scale float64, st facilities.State) float64 {
 	_, q := l.best(scale, st.Mach)
 	return q
 }
 
 // Balance returns the balance that carries the most at the given scale and test
 // state, and the dynamic pressure it allows (as MaxDynamicPressure).
-func (l *BalanceLimit) Balance(scale float64, st facilities.State) (id string, q float64) {
+func (l *Limit) Balance(scale float64, st facilities.State) (id string, q float64) {
 	k, q := l.best(scale, st.Mach)
 	if k < 0 {
 		return "", q
@@ -244,7 +248,7 @@ func (l *BalanceLimit) Balance(scale float64, st facilities.State) (id string, q
 	return l.balances[k].id, q
 }
 
-func (l *BalanceLimit) best(scale, mach float64) (k int, q float64) {
+func (l *Limit) best(scale, mach float64) (k int, q float64) {
 	if l.floor {
 		_, q, k = l.window(scale, mach)
 		return k, q
@@ -271,7 +275,7 @@ func (l *BalanceLimit) best(scale, mach float64) (k int, q float64) {
 // the balances whose floor is at or under their ceiling (+Inf when none is), and
 // the highest ceiling hi with its balance k: of those balances, or, when there
 // is none, of all.
-func (l *BalanceLimit) window(scale, mach float64) (lo, hi float64, k int) {
+func (l *Limit) window(scale, mach float64) (lo, hi float64, k int) {
 	if !(scale > 0) || math.IsInf(scale, 0) {
 		return math.Inf(1), 0, -1
 	}
@@ -495,66 +499,4 @@ func (p *pruner) dominates(d, k int) bool {
 	}
 	// Without a kink the gap is linear from t = 0: it must start positive or rise.
 	return kinked || g0 > 0 || rise > 0
-}
-
-// LoadEstimate is the load answer of a plan or a load check at one model scale and
-// test state.
-type LoadEstimate struct {
-	// Corrections summarise the wall corrections over the matrix.
-	Corrections facilities.Corrections
-	// Report is the named or chosen balance's check; nil when no balance can carry
-	// the loads.
-	Report *facilities.LoadReport
-	// Reason says in a sentence which balance and why.
-	Reason string
-	// All are the checks of every balance considered (one when a balance is named).
-	All []facilities.LoadReport
-	// Warnings gather the matrix's, the corrections' and the report's warnings.
-	Warnings []string
-	// Cautions are the standing cautions of a load answer (facilities.Cautions).
-	Cautions []string
-}
-
-// EstimateLoads computes the balance loads of article art at model scale scale in
-// facility f at test state st (its Mach number and free-stream dynamic pressure),
-// installed as in, over the test matrix mx: wall corrections per point, loads at the
-// balance centre, the limit check, and the balance choice when none is named.
-//
-// When no balance can carry the loads the error is a CodeUnprocessable
-// *facilities.Error and the estimate still holds All (every balance's check), the
-// corrections and the cautions; a facility without balances gives
-// facilities.ErrNoBalance.
-func EstimateLoads(art *Article, f *facilities.Facility, in facilities.Installation, scale float64, st facilities.State, mx Matrix) (LoadEstimate, error) {
-	if !(scale > 0) || math.IsInf(scale, 0) {
-		return LoadEstimate{}, facilities.Invalid("invalid model", []facilities.FieldError{{Field: "model.scale", Message: fmt.Sprintf("must be a positive scale, got %g", scale)}})
-	}
-	s2 := scale * scale
-	walls := facilities.NewWalls(f, art.FrontalArea*s2, art.ReferenceArea*s2, st.Mach)
-	pts := append([]facilities.Point(nil), mx.Points...)
-	walls.Apply(pts)
-	lc := facilities.LoadCase{ReferenceArea: art.ReferenceArea * s2, ReferenceLength: art.ReferenceLength * scale,
-		Installation: in, Points: pts}
-	est := LoadEstimate{Corrections: walls.Summary(pts, art.Aero.CorrectionLiftSlope())}
-	est.Warnings = append(est.Warnings, mx.Warnings...)
-	est.Warnings = append(est.Warnings, walls.Warnings...)
-	ch, err := lc.ChooseBalance(f, st.DynamicPressure)
-	est.All = ch.All
-	est.Cautions = facilities.Cautions(f, ch.All...)
-	if err != nil {
-		return est, err
-	}
-	est.Report = &ch.Report
-	est.Reason = ch.Reason
-	est.Cautions = facilities.Cautions(f, ch.Report)
-	est.Warnings = append(est.Warnings, ch.Report.Warnings...)
-	if in.BalanceID == "" {
-		est.Warnings = append(est.Warnings, ch.Reason)
-	}
-	return est, nil
-}
-
-// Test returns the schedule input of the matrix run once at each of the given
-// stagnation conditions.
-func (m Matrix) Test(conds ...facilities.Condition) facilities.Test {
-	return facilities.Test{AlphaPoints: m.AlphaPoints, BetaValues: m.BetaValues, Conditions: conds}
 }

@@ -1,15 +1,18 @@
-package similarity_test
+package loads_test
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
-func demo(t testing.TB, id string) *facilities.Facility {
+func demoPtr(t testing.TB, id string) *facilities.Facility {
 	t.Helper()
 	f, ok := facilities.DemoFacility(id)
 	if !ok {
@@ -32,14 +35,15 @@ var sweep = similarity.Sweep{From: -4, To: 16, Step: 1}
 func bisect(t *testing.T, art *similarity.Article, f *facilities.Facility, in facilities.Installation, mx similarity.Matrix, scale, mach float64) float64 {
 	t.Helper()
 	ok := func(q float64) bool {
-		est, err := similarity.EstimateLoads(art, f, in, scale, facilities.State{Mach: mach, DynamicPressure: q}, mx)
+		res, err := loads.Check(&loads.Case{Facility: f, Article: art, Installation: in, Matrix: mx, Scale: scale,
+			State: facilities.State{Mach: mach, DynamicPressure: q}})
 		if err != nil {
 			if facilities.ErrorCode(err) == facilities.CodeUnprocessable {
 				return false
 			}
 			t.Fatal(err)
 		}
-		return est.Report.WithinLimits
+		return res.Reports[0].WithinLimits
 	}
 	if !ok(0) {
 		return 0
@@ -68,7 +72,7 @@ func TestLoadLimitAgreesWithBisection(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	f := demo(t, "lsw-2")
+	f := demoPtr(t, "lsw-2")
 	for trial := range 24 {
 		in := facilities.Installation{
 			BalanceOffset: facilities.Offset{X: 0.05 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)},
@@ -80,7 +84,7 @@ func TestLoadLimitAgreesWithBisection(t *testing.T) {
 		}
 		scale := 0.05 + 0.2*rng.Float64()
 		mach := 0.25 * rng.Float64()
-		ll, err := similarity.NewLoadLimit(art, f, in, mx)
+		ll, err := loads.NewLimit(art, f, in, mx)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -98,9 +102,9 @@ func TestLoadLimitCases(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	f := demo(t, "lsw-2")
+	f := demoPtr(t, "lsw-2")
 	st := facilities.State{Mach: 0.2}
-	heavy, err := similarity.NewLoadLimit(art, f, facilities.Installation{BalanceID: "int-a", ModelMass: 500}, mx)
+	heavy, err := loads.NewLimit(art, f, facilities.Installation{BalanceID: "int-a", ModelMass: 500}, mx)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -108,7 +112,7 @@ func TestLoadLimitCases(t *testing.T) {
 	if q := heavy.MaxDynamicPressure(0.1, st); q != 0 {
 		t.Errorf("weight over the rating: q = %g, want 0", q)
 	}
-	any, err := similarity.NewLoadLimit(art, f, facilities.Installation{}, mx)
+	any, err := loads.NewLimit(art, f, facilities.Installation{}, mx)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -128,10 +132,10 @@ func TestLoadLimitCases(t *testing.T) {
 			t.Errorf("scale %g: q = %g, want 0", s, q)
 		}
 	}
-	if _, err := similarity.NewLoadLimit(art, f, facilities.Installation{BalanceID: "nope"}, mx); !contains(fieldsOf(t, err), "installation.balance_id") {
+	if _, err := loads.NewLimit(art, f, facilities.Installation{BalanceID: "nope"}, mx); !slices.Contains(fieldsOf(t, err), "installation.balance_id") {
 		t.Errorf("unknown balance: %v", err)
 	}
-	if _, err := similarity.NewLoadLimit(art, &facilities.Facility{ID: "bare"}, facilities.Installation{}, mx); err != facilities.ErrNoBalance {
+	if _, err := loads.NewLimit(art, &facilities.Facility{ID: "bare"}, facilities.Installation{}, mx); err != facilities.ErrNoBalance {
 		t.Errorf("no balances: %v, want ErrNoBalance", err)
 	}
 	if n := testing.AllocsPerRun(100, func() { any.MaxDynamicPressure(0.1, st) }); n != 0 {
@@ -139,37 +143,48 @@ func TestLoadLimitCases(t *testing.T) {
 	}
 }
 
-func TestEstimateLoads(t *testing.T) {
+// TestCheckCorrectsAndChooses: the check applies the wall corrections to every
+// point, chooses a balance with a reason, checks every balance with Every, and
+// answers a q no balance carries with a CodeUnprocessable error.
+func TestCheckCorrectsAndChooses(t *testing.T) {
 	art := pellin()
 	mx, err := art.Aero.Matrix(sweep, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	f := demo(t, "lsw-2")
+	f := demoPtr(t, "lsw-2")
 	st := facilities.State{Mach: 0.2, DynamicPressure: 2500}
-	est, err := similarity.EstimateLoads(art, f, facilities.Installation{ModelMass: 20}, 0.15, st, mx)
+	c := loads.Case{Facility: f, Article: art, Installation: facilities.Installation{ModelMass: 20}, Matrix: mx, Scale: 0.15, State: st}
+	res, err := loads.Check(&c)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if est.Report == nil || len(est.All) != 2 || est.Reason == "" || len(est.Cautions) == 0 {
-		t.Fatalf("estimate %+v: want a report, two balances, a reason and cautions", est)
+	if len(res.Reports) != 1 || res.Reason == "" {
+		t.Fatalf("result %+v: want one report and a reason", res)
 	}
-	c := est.Corrections
-	if !c.Applied || !(c.DynamicPressureFactor > 1) || !(c.LiftInterference > 0) {
-		t.Errorf("corrections %+v: want closed-wall blockage and a positive Δα", c)
+	every := c
+	every.Every = true
+	all, err := loads.Check(&every)
+	if err != nil || len(all.Reports) != 2 {
+		t.Fatalf("every balance: %v, %d reports; want 2", err, len(all.Reports))
+	}
+	cor := res.Corrections
+	if !cor.Applied || !(cor.DynamicPressureFactor > 1) || !(cor.LiftInterference > 0) {
+		t.Errorf("corrections %+v: want closed-wall blockage and a positive Δα", cor)
 	}
 	// The point of largest C_D carries the summary's q factor: its q is q·factor.
 	maxQ := 0.0
-	for _, p := range est.Report.Points {
+	for _, p := range res.Reports[0].Points {
 		maxQ = math.Max(maxQ, p.DynamicPressure)
 	}
-	if math.Abs(maxQ-2500*c.DynamicPressureFactor) > 1e-9 {
-		t.Errorf("largest point q %g, want %g", maxQ, 2500*c.DynamicPressureFactor)
+	if math.Abs(maxQ-2500*cor.DynamicPressureFactor) > 1e-9 {
+		t.Errorf("largest point q %g, want %g", maxQ, 2500*cor.DynamicPressureFactor)
 	}
-	// Too much q for either balance: 422 with every balance's check kept.
-	est, err = similarity.EstimateLoads(art, f, facilities.Installation{}, 0.15, facilities.State{Mach: 0.2, DynamicPressure: 60000}, mx)
-	if facilities.ErrorCode(err) != facilities.CodeUnprocessable || len(est.All) != 2 || est.Report != nil {
-		t.Errorf("overload: error %v, %d checks, report %v; want unprocessable, 2, nil", err, len(est.All), est.Report)
+	// Too much q for either balance: 422.
+	c.Installation = facilities.Installation{}
+	c.State = facilities.State{Mach: 0.2, DynamicPressure: 60000}
+	if _, err := loads.Check(&c); facilities.ErrorCode(err) != facilities.CodeUnprocessable {
+		t.Errorf("overload: error %v, want unprocessable", err)
 	}
 }
 
@@ -179,7 +194,7 @@ func benchLimit(b *testing.B, points int) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	ll, err := similarity.NewLoadLimit(art, demo(b, "lsw-2"), facilities.Installation{BalanceID: "ext-6c", ModelMass: 20}, mx)
+	ll, err := loads.NewLimit(art, demoPtr(b, "lsw-2"), facilities.Installation{BalanceID: "ext-6c", ModelMass: 20}, mx)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -203,18 +218,21 @@ func BenchmarkLoadLimit(b *testing.B) {
 	}
 }
 
-func BenchmarkEstimateLoads21(b *testing.B) {
+// BenchmarkCheck21 times the load check of a plan: wall corrections over a
+// 21-point sweep, every balance checked and one chosen (it replaces
+// similarity.EstimateLoads, the second copy of this assembly).
+func BenchmarkCheck21(b *testing.B) {
 	art := pellin()
 	mx, err := art.Aero.Matrix(sweep, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
-	f := demo(b, "lsw-2")
+	f := demoPtr(b, "lsw-2")
 	st := facilities.State{Mach: 0.2, DynamicPressure: 2500}
 	b.ReportAllocs()
 	b.ResetTimer()
 	for b.Loop() {
-		if _, err := similarity.EstimateLoads(art, f, facilities.Installation{ModelMass: 20}, 0.15, st, mx); err != nil {
+		if _, err := loads.Check(&loads.Case{Facility: f, Article: art, Installation: facilities.Installation{ModelMass: 20}, Matrix: mx, Scale: 0.15, State: st}); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -226,10 +244,24 @@ func TestLoadLimitBadRating(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	f := demo(t, "lsw-2")
+	f := demoPtr(t, "lsw-2")
 	f.Balances[1].SafetyFactor = 0.8
-	_, err = similarity.NewLoadLimit(art, f, facilities.Installation{}, mx)
-	if fs := fieldsOf(t, err); !contains(fs, "facility.balances[1].safety_factor") {
+	_, err = loads.NewLimit(art, f, facilities.Installation{}, mx)
+	if fs := fieldsOf(t, err); !slices.Contains(fs, "facility.balances[1].safety_factor") {
 		t.Errorf("fields %q, want facility.balances[1].safety_factor", fs)
 	}
+}
+
+// fieldsOf returns the fields a CodeInvalid *facilities.Error names.
+func fieldsOf(t *testing.T, err error) []string {
+	t.Helper()
+	var e *facilities.Error
+	if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
+		t.Fatalf("error %v, want a CodeInvalid *facilities.Error", err)
+	}
+	var out []string
+	for _, f := range e.Fields {
+		out = append(out, f.Field)
+	}
+	return out
 }

@@ -1,4 +1,4 @@
-package similarity
+package loads
 
 import (
 	"math"
@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"scalematch/facilities"
+	"scalematch/similarity"
 )
 
 // maxQAll is balanceRows.maxQ visiting every element, as before prune: the
@@ -37,8 +38,8 @@ func (br *balanceRows) maxQAll(cd []float64, mach, solid, wake, qS, qSc float64)
 	return num / den
 }
 
-// bestAll is BalanceLimit.best with maxQAll.
-func (l *BalanceLimit) bestAll(scale, mach float64) (int, float64) {
+// bestAll is Limit.best with maxQAll.
+func (l *Limit) bestAll(scale, mach float64) (int, float64) {
 	s2 := scale * scale
 	area := l.refArea * s2
 	solid, wake, _ := facilities.BlockageFactors(l.facility, l.frontalArea*s2, area, mach)
@@ -56,13 +57,13 @@ func (l *BalanceLimit) bestAll(scale, mach float64) (int, float64) {
 // facility: coefficients of both signs (side force and rolling and yawing
 // moments included), repeated points, points of zero load, combined gauge rows,
 // and weights near a rating.
-func pruneCase(rng *rand.Rand, i int) (*Article, *facilities.Facility, facilities.Installation, Matrix) {
+func pruneCase(rng *rand.Rand, i int) (*similarity.Article, *facilities.Facility, facilities.Installation, similarity.Matrix) {
 	ids := []string{"lsw-2", "tsw-1", "plp-3", "wtn-04", "cn2-05"}
 	f, _ := facilities.DemoFacility(ids[i%len(ids)])
 	u := func(lo, hi float64) float64 { return lo + (hi-lo)*rng.Float64() }
-	art := &Article{ReferenceLength: u(0.2, 5), ReferenceArea: u(0.5, 80), FrontalArea: u(0.05, 8), Span: u(1, 30)}
+	art := &similarity.Article{ReferenceLength: u(0.2, 5), ReferenceArea: u(0.5, 80), FrontalArea: u(0.05, 8), Span: u(1, 30)}
 	np := 1 + rng.IntN(40)
-	mx := Matrix{Points: make([]facilities.Point, np)}
+	mx := similarity.Matrix{Points: make([]facilities.Point, np)}
 	for k := range mx.Points {
 		p := &mx.Points[k]
 		switch {
@@ -127,7 +128,7 @@ func TestPruneExact(t *testing.T) {
 	kept, total := 0, 0
 	for i := range cases {
 		art, f, in, mx := pruneCase(rng, i)
-		l, err := NewLoadLimit(art, f, in, mx)
+		l, err := NewLimit(art, f, in, mx)
 		if err != nil {
 			t.Fatalf("case %d: %v", i, err)
 		}

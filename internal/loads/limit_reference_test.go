@@ -1,4 +1,4 @@
-package similarity_test
+package loads_test
 
 import (
 	"errors"
@@ -9,10 +9,11 @@ import (
 	"testing"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
-// The planner with a real balance (similarity.NewLoadLimit over a 21-point α sweep)
+// The planner with a real balance (loads.NewLimit over a 21-point α sweep)
 // against a brute-force search written without the planner or its load-limit hook:
 // at the plan's Mach number and stagnation temperature, a dense log-grid over
 // model scale × stagnation pressure, then a pattern search around the best point,
@@ -351,7 +352,7 @@ func (x *llrFixture) bestPressure(t *testing.T, s, mach, t0 float64) llrPoint {
 func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bool) {
 	t.Helper()
 	x := llrPrepare(t, c)
-	ll, err := similarity.NewLoadLimit(c.art, x.f, c.in, x.mx)
+	ll, err := loads.NewLimit(c.art, x.f, c.in, x.mx)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package similarity_test
+package loads_test
 
 import (
 	"fmt"
@@ -8,13 +8,14 @@ import (
 	"testing"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
 // TestResolutionPlanAgainstSearchRandom runs 60 seeded random articles,
 // installations and required resolutions across the four gas facilities (the
 // first 12 under -short) through the planner with the balance's resolution floor
-// and the brute-force search of loadlimit_reference_test.go, which counts a
+// and the brute-force search of limit_reference_test.go, which counts a
 // candidate only where some balance within its allowed loads (at the drawn
 // planning margin, installation.load_fraction) resolves C_D and C_L (and C_m in
 // some draws) at every point by the uncertainty formulas of docs/loads.md. The
@@ -67,7 +68,7 @@ func TestResolutionPlanAgainstSearchRandom(t *testing.T) {
 func resolutionBinds(t *testing.T, c *llrCase) bool {
 	t.Helper()
 	x := llrPrepare(t, c)
-	ll, err := similarity.NewLoadLimit(c.art, x.f, c.in, x.mx)
+	ll, err := loads.NewLimit(c.art, x.f, c.in, x.mx)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -116,7 +117,7 @@ func TestResolutionFloorHand(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	ll, err := similarity.NewLoadLimit(art, &f, facilities.Installation{BalanceID: "int-b1", ModelMass: 20}, mx)
+	ll, err := loads.NewLimit(art, &f, facilities.Installation{BalanceID: "int-b1", ModelMass: 20}, mx)
 	if err != nil {
 		t.Fatal(err)
 	}
