@@ -10,7 +10,7 @@ import (
 )
 
 // registerPlanning registers the planning endpoints on the /v1 group: atmosphere,
-// conditions, plans, the plan batch, loads, groups, the facility envelope charts and
+// conditions, plans, the plan batch, loads, groups, campaigns, the facility envelope charts and
 // the charts of a stored plan (charts.go).
 func (s *Server) registerPlanning(v1 *gin.RouterGroup) {
 	v1.GET("/atmosphere", s.getAtmosphere)
@@ -21,6 +21,7 @@ func (s *Server) registerPlanning(v1 *gin.RouterGroup) {
 	v1.GET("/plans/batch", s.onlyPost)
 	v1.POST("/loads", s.postLoads)
 	v1.POST("/groups", s.postGroups)
+	v1.POST("/campaigns", s.postCampaign)
 	v1.GET("/facilities/:id/envelope.svg", s.getEnvelope)
 	v1.GET("/facilities/:id/envelope.png", s.getEnvelope)
 	v1.GET("/facilities/:id/envelope.pdf", s.getEnvelope)

@@ -68,9 +68,6 @@ func RestingCondition(f *Facility) Condition {
 // (SameTemperature); the test starts from RestingCondition. It returns
 // ErrNoOperations when f has none, and a CodeInvalid error for negative counts.
 func ScheduleTest(f *Facility, t Test) (Schedule, error) {
-	if f.Operations == nil {
-		return Schedule{}, ErrNoOperations
-	}
 	var fe []FieldError
 	if t.AlphaPoints < 0 {
 		fe = append(fe, FieldError{Field: "alpha", Message: fmt.Sprintf("the number of α points must not be negative, got %d", t.AlphaPoints)})
@@ -78,29 +75,72 @@ func ScheduleTest(f *Facility, t Test) (Schedule, error) {
 	if t.BetaValues < 0 {
 		fe = append(fe, FieldError{Field: "beta", Message: fmt.Sprintf("the number of β values must not be negative, got %d", t.BetaValues)})
 	}
+	if f.Operations == nil {
+		return Schedule{}, ErrNoOperations
+	}
 	if err := Invalid("schedule", fe); err != nil {
 		return Schedule{}, err
 	}
-	beta := max(t.BetaValues, 1)
-	s := Schedule{
-		Runs: beta * len(t.Conditions),
+	sets := make([]RunSet, len(t.Conditions))
+	for i, c := range t.Conditions {
+		sets[i] = RunSet{Condition: c, AlphaPoints: t.AlphaPoints, BetaValues: t.BetaValues}
 	}
-	s.Points = s.Runs * t.AlphaPoints
+	return ScheduleRuns(f, sets)
+}
+
+// RunSet is the runs of one test condition: one run per sideslip angle
+// (BetaValues, 0 taken as 1), each of AlphaPoints points, at one stagnation
+// setting.
+type RunSet struct {
+	Condition
+	AlphaPoints int
+	BetaValues  int
+}
+
+// ScheduleRuns estimates the time of the run sets in their order in facility f,
+// with ScheduleTest's formula; each set may have its own sweep. It returns
+// ErrNoOperations when f has none, and a CodeInvalid error for negative counts.
+func ScheduleRuns(f *Facility, sets []RunSet) (Schedule, error) {
+	if f.Operations == nil {
+		return Schedule{}, ErrNoOperations
+	}
+	var s Schedule
 	prev := RestingCondition(f)
-	for _, c := range t.Conditions {
-		if math.Abs(c.StagnationPressure-prev.StagnationPressure) > SamePressureFraction*math.Abs(prev.StagnationPressure) {
+	for i, c := range sets {
+		if c.AlphaPoints < 0 || c.BetaValues < 0 {
+			return Schedule{}, Invalid("schedule", []FieldError{{fmt.Sprintf("runs[%d]", i),
+				fmt.Sprintf("the numbers of α points and β values must not be negative, got %d and %d", c.AlphaPoints, c.BetaValues)}})
+		}
+		runs := max(c.BetaValues, 1)
+		s.Runs += runs
+		s.Points += runs * c.AlphaPoints
+		p, t := Changes(prev, c.Condition)
+		if p {
 			s.PressureChanges++
 		}
-		if math.Abs(c.StagnationTemperature-prev.StagnationTemperature) > SameTemperature {
+		if t {
 			s.TemperatureChanges++
 		}
-		prev = c
+		prev = c.Condition
 	}
-	op := f.Operations
-	minutes := float64(s.Points)*op.SecondsPerPoint/60 +
+	s.Hours = f.Operations.Minutes(s) / 60
+	return s, nil
+}
+
+// Changes reports whether going from condition a to b changes the stagnation
+// pressure (beyond SamePressureFraction of a's) and the stagnation temperature
+// (beyond SameTemperature).
+func Changes(a, b Condition) (pressure, temperature bool) {
+	pressure = math.Abs(b.StagnationPressure-a.StagnationPressure) > SamePressureFraction*math.Abs(a.StagnationPressure)
+	temperature = math.Abs(b.StagnationTemperature-a.StagnationTemperature) > SameTemperature
+	return pressure, temperature
+}
+
+// Minutes returns the time in minutes of a schedule's points, runs and
+// pressure and temperature changes with these figures (its Hours are not read).
+func (op *Operations) Minutes(s Schedule) float64 {
+	return float64(s.Points)*op.SecondsPerPoint/60 +
 		float64(s.Runs)*op.MinutesPerRun +
 		float64(s.PressureChanges)*op.MinutesPerPressureChange +
 		float64(s.TemperatureChanges)*op.MinutesPerTemperatureChange
-	s.Hours = minutes / 60
-	return s, nil
 }

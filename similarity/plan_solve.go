@@ -456,20 +456,30 @@ func unprocessable(msg string, limits ...string) error {
 
 // spanFraction returns the facility's span limit as a fraction of the width; a
 // model wider than the test section never fits, so nil is 1.
-func (sv *solver) spanFraction() float64 {
-	if sv.f.MaxSpanFraction != nil {
-		return *sv.f.MaxSpanFraction
+func (sv *solver) spanFraction() float64 { return spanFraction(sv.f) }
+
+// spanFraction returns f's max_span_fraction, 1 when absent.
+func spanFraction(f *facilities.Facility) float64 {
+	if f.MaxSpanFraction != nil {
+		return *f.MaxSpanFraction
 	}
 	return 1
 }
 
 // geomScale returns the largest scale the test section takes and the limit that
-// sets it.
-func (sv *solver) geomScale() (float64, string) {
-	s := sv.spanFraction() * sv.f.TestSection.Width / sv.art.Span
+// sets it (GeometricScale).
+func (sv *solver) geomScale() (float64, string) { return GeometricScale(sv.f, sv.art) }
+
+// GeometricScale returns the largest model scale facility f's test section takes
+// for article a, and the limit that sets it: the span at most max_span_fraction
+// of the width (a model wider than the test section never fits, so an absent
+// fraction is 1) and the frontal area at most max_blockage of the section's
+// cross-section.
+func GeometricScale(f *facilities.Facility, a *Article) (float64, string) {
+	s := spanFraction(f) * f.TestSection.Width / a.Span
 	name := facilities.ConstraintSpan
-	if b := sv.f.MaxBlockage; b != nil {
-		if sb := math.Sqrt(*b * sv.f.TestSection.CrossSection() / sv.art.FrontalArea); sb < s {
+	if b := f.MaxBlockage; b != nil {
+		if sb := math.Sqrt(*b * f.TestSection.CrossSection() / a.FrontalArea); sb < s {
 			s, name = sb, facilities.ConstraintBlockage
 		}
 	}

@@ -16,7 +16,7 @@ const ContentTypeProblem = "application/problem+json"
 //	forbidden              403  the token may not do this, or writes are switched off
 //	not-found              404  no such facility, plan or route
 //	method-not-allowed     405  the route exists but not for this method
-//	not-acceptable         406  Accept names no format a chart is drawn in
+//	not-acceptable         406  Accept names no format the answer is written in
 //	conflict               409  the id exists already
 //	request-timeout        408  the request body did not arrive in time
 //	precondition-failed    412  If-Match names a version that is no longer current

@@ -58,6 +58,7 @@ func newRootCmd() *cobra.Command {
 		newPlanCmd(),
 		newLoadsCmd(),
 		newGroupsCmd(),
+		newCampaignCmd(),
 	// commands
 	)
 	return root
