@@ -8,6 +8,7 @@ import (
 	"os"
 	"strings"
 	"text/tabwriter"
+	"time"
 
 	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/cobra"
@@ -105,7 +106,8 @@ func (o *campaignOptions) run(ctx context.Context, p *app.Planner, req campaign.
 	var progress func(done, total int)
 	if o.progress || !campaign.Small(&req) && isTerminal(o.stdout) {
 		bar := progressbar.NewOptions(1, progressbar.OptionSetWriter(o.stderr), progressbar.OptionSetDescription("planning"),
-			progressbar.OptionShowCount(), progressbar.OptionClearOnFinish(), progressbar.OptionThrottle(100_000_000))
+			progressbar.OptionShowCount(), progressbar.OptionThrottle(100*time.Millisecond),
+			progressbar.OptionOnCompletion(func() { fmt.Fprintln(o.stderr) }))
 		progress = func(done, total int) {
 			if bar.GetMax() != total {
 				bar.ChangeMax(total)
