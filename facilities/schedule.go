@@ -108,8 +108,8 @@ func ScheduleRuns(f *Facility, sets []RunSet) (Schedule, error) {
 	prev := RestingCondition(f)
 	for i, c := range sets {
 		if c.AlphaPoints < 0 || c.BetaValues < 0 {
-			return Schedule{}, Invalid("schedule", []FieldError{{fmt.Sprintf("runs[%d]", i),
-				fmt.Sprintf("the numbers of α points and β values must not be negative, got %d and %d", c.AlphaPoints, c.BetaValues)}})
+			return Schedule{}, Invalid("schedule", []FieldError{{Field: fmt.Sprintf("runs[%d]", i),
+				Message: fmt.Sprintf("the numbers of α points and β values must not be negative, got %d and %d", c.AlphaPoints, c.BetaValues)}})
 		}
 		runs := max(c.BetaValues, 1)
 		s.Runs += runs
