@@ -9,6 +9,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/app"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -428,7 +429,7 @@ func prepare(ctx context.Context, p *app.Planner, req *Request) (*prepared, erro
 			continue
 		}
 		for k, mx := range matrices {
-			ll, err := similarity.NewLoadLimit(&req.Article, fc.f, fc.in.WithBuoyancy(fc.f), *mx)
+			ll, err := loads.NewLimit(&req.Article, fc.f, fc.in.WithBuoyancy(fc.f), *mx)
 			if err != nil {
 				return nil, err
 			}
