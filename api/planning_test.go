@@ -3,10 +3,12 @@ package api_test
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"io"
 	"log/slog"
 	"net/http"
 	"net/http/httptest"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -455,4 +457,65 @@ func TestLoadsAtRest(t *testing.T) {
 	}
 	require.NoError(t, json.Unmarshal(b, &out))
 	assert.Zero(t, out.Test.DynamicPressure, "q at rest, Pa: %s", b)
+}
+
+// TestBatchNDJSON asks for a batch as NDJSON: one line per request, in order,
+// each line exactly the item the JSON answer holds; longer than the planner's
+// window of held answers, so that the later items are planned after the first
+// ones were sent; and an empty batch is an empty 200 answer, as {"results":[]}
+// is in JSON.
+func TestBatchNDJSON(t *testing.T) {
+	ts := newServer(t)
+	n := app.BatchWindow() + 5
+	reqs := make([]string, n)
+	for i := range reqs {
+		reqs[i] = strings.Replace(j16Plan, `"mach": 0.78`, fmt.Sprintf(`"mach": %.3f`, 0.6+0.005*float64(i)), 1)
+	}
+	reqs[3] = strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1)
+	body := `{"requests": [` + strings.Join(reqs, ",") + `]}`
+	batch := func(accept string) (string, []byte) {
+		req, err := http.NewRequest(http.MethodPost, ts.URL+"/v1/plans/batch", strings.NewReader(body))
+		require.NoError(t, err)
+		req.Header.Set("Content-Type", "application/json")
+		if accept != "" {
+			req.Header.Set("Accept", accept)
+		}
+		resp, err := http.DefaultClient.Do(req)
+		require.NoError(t, err)
+		defer resp.Body.Close()
+		b, err := io.ReadAll(resp.Body)
+		require.NoError(t, err)
+		require.Equal(t, http.StatusOK, resp.StatusCode, "%s", b)
+		return resp.Header.Get("Content-Type"), b
+	}
+	ct, nd := batch("application/json;q=0.5, application/x-ndjson")
+	assert.Equal(t, "application/x-ndjson", ct)
+	_, js := batch("")
+	var whole struct {
+		Results []json.RawMessage `json:"results"`
+	}
+	require.NoError(t, json.Unmarshal(js, &whole))
+	lines := strings.Split(strings.TrimSuffix(string(nd), "\n"), "\n")
+	require.Len(t, lines, n)
+	require.Len(t, whole.Results, n)
+	// Problems differ only in their request ids.
+	requestID := regexp.MustCompile(`"request_id":"[0-9a-f]+"`)
+	for i, line := range lines {
+		assert.Equal(t, requestID.ReplaceAllString(string(whole.Results[i]), ""), requestID.ReplaceAllString(line, ""), "item %d", i)
+		assert.Equal(t, i == 3, strings.HasPrefix(line, `{"error":`), "item %d", i)
+	}
+
+	req, err := http.NewRequest(http.MethodPost, ts.URL+"/v1/plans/batch", strings.NewReader(`{"requests": []}`))
+	require.NoError(t, err)
+	req.Header.Set("Content-Type", "application/json")
+	req.Header.Set("Accept", "application/x-ndjson")
+	resp, err := http.DefaultClient.Do(req)
+	require.NoError(t, err)
+	b, _ := io.ReadAll(resp.Body)
+	resp.Body.Close()
+	assert.Equal(t, http.StatusOK, resp.StatusCode)
+	assert.Empty(t, b)
+	code, b := post(t, ts, "/v1/plans/batch", `{"requests": []}`)
+	assert.Equal(t, http.StatusOK, code)
+	assert.JSONEq(t, `{"results":[]}`, string(b))
 }

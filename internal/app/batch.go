@@ -23,18 +23,50 @@ type BatchPlan struct {
 // in the order of reqs. observe, when not nil, is told how long each plan took
 // (decoded request to encoded answer, without storing it). Use it on a planner
 // from Batch, so that every plan of the batch uses one version of each facility.
+// StreamBatch does the same holding only a few answers at a time.
 func (p *Planner) PlanBatch(ctx context.Context, reqs []json.RawMessage, observe func(time.Duration)) []BatchPlan {
 	out := make([]BatchPlan, len(reqs))
+	p.StreamBatch(ctx, reqs, observe, func(i int, r BatchPlan) error { //nolint:errcheck // emit never fails
+		out[i] = r
+		return nil
+	})
+	return out
+}
+
+// BatchWindow is how many results of one batch StreamBatch holds at most: those
+// being planned or stored and those finished but waiting for an earlier one to
+// be handed on. A plan answer is about 50 kB, so a batch holds at most about
+// 3 MB of answers whatever its length.
+func BatchWindow() int { return max(16, 8*runtime.GOMAXPROCS(0)) }
+
+// StreamBatch plans reqs as PlanBatch does and hands each result to emit, in
+// the order of reqs, as soon as it and every one before it are ready (planned,
+// and stored when new), so that the caller can send it on and let it go: at most
+// BatchWindow results are held at once. emit runs on the caller's goroutine. An
+// error from emit (the client is gone) stops the batch: no further request is
+// planned, the plans under way finish, and StreamBatch returns that error.
+func (p *Planner) StreamBatch(ctx context.Context, reqs []json.RawMessage, observe func(time.Duration), emit func(i int, r BatchPlan) error) error {
+	n := len(reqs)
+	window := min(BatchWindow(), n)
+	// ready[i] is closed once result[i] is set; slots bounds the results held.
+	result := make([]BatchPlan, n)
+	ready := make([]chan struct{}, n)
+	for i := range ready {
+		ready[i] = make(chan struct{})
+	}
+	slots := make(chan struct{}, window)
+	stop := make(chan struct{})
 	// The workers plan; each new plan is then stored by a goroutine of its own, so
 	// that the store can commit many of them together (group commit) while the
-	// workers plan on. The answer waits for every save.
-	var saves sync.WaitGroup
-	each(len(reqs), func(i int) {
+	// workers plan on.
+	var work sync.WaitGroup
+	plan := func(i int) {
 		var req schema.PlanRequest
 		// A bad item's problem names its fields as POST /v1/plans would; its
 		// position in the results says which item it is.
 		if err := unitjson.Decode(reqs[i], &req); err != nil {
-			out[i].Err = err
+			result[i].Err = err
+			close(ready[i])
 			return
 		}
 		t := time.Now()
@@ -44,43 +76,58 @@ func (p *Planner) PlanBatch(ctx context.Context, reqs []json.RawMessage, observe
 		}
 		switch {
 		case err != nil:
-			out[i].Err = err
+			result[i].Err = err
 		case pj.stored:
-			out[i].Plan = pj.body
+			result[i].Plan = pj.body
 		default:
-			saves.Go(func() {
-				out[i].Plan, out[i].Err = p.save(ctx, pj)
+			work.Go(func() {
+				result[i].Plan, result[i].Err = p.save(ctx, pj)
+				close(ready[i])
 			})
+			return
+		}
+		close(ready[i])
+	}
+	// Slots are taken in the order of reqs, before an item goes to a worker, so
+	// that the items held are always the next ones to emit: the one emit waits
+	// for never waits for a slot.
+	next := make(chan int)
+	work.Go(func() {
+		defer close(next)
+		for i := range n {
+			select {
+			case slots <- struct{}{}:
+				next <- i
+			case <-stop:
+				for j := i; j < n; j++ {
+					result[j].Err = context.Canceled
+					close(ready[j])
+				}
+				return
+			}
 		}
 	})
-	saves.Wait()
-	return out
-}
-
-// each calls fn(i) for i in [0, n) on a bounded pool of runtime.GOMAXPROCS(0)
-// goroutines and returns when all calls have.
-func each(n int, fn func(i int)) {
-	workers := min(runtime.GOMAXPROCS(0), n)
-	if workers <= 1 {
-		for i := range n {
-			fn(i)
-		}
-		return
-	}
-	next := make(chan int)
-	var wg sync.WaitGroup
-	for range workers {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
+	for range min(runtime.GOMAXPROCS(0), n) {
+		work.Go(func() {
 			for i := range next {
-				fn(i)
+				plan(i)
 			}
-		}()
+		})
 	}
+	var err error
 	for i := range n {
-		next <- i
+		<-ready[i]
+		if err == nil {
+			if err = emit(i, result[i]); err != nil {
+				close(stop)
+			}
+		}
+		result[i] = BatchPlan{}
+		select {
+		case <-slots:
+		default: // an item refused after the stop took no slot
+		}
 	}
-	close(next)
-	wg.Wait()
+	work.Wait()
+	return err
 }
