@@ -268,3 +268,20 @@ func TestSmall(t *testing.T) {
 	req.Grid.Altitudes = make([]float64, 60) // 2 + 240 conditions
 	assert.False(t, campaign.Small(&req))
 }
+
+// TestRunJSON runs the demo request from its bytes and gets the same answer as
+// Run, and a body that does not decode names its field.
+func TestRunJSON(t *testing.T) {
+	b, err := os.ReadFile("testdata/demo.json")
+	require.NoError(t, err)
+	got, err := campaign.RunJSON(context.Background(), nil, b, nil)
+	require.NoError(t, err)
+	res, err := campaign.Run(context.Background(), nil, demoRequest(t), nil)
+	require.NoError(t, err)
+	want, err := json.Marshal(res)
+	require.NoError(t, err)
+	assert.JSONEq(t, string(want), string(got))
+	_, err = campaign.RunJSON(context.Background(), nil, []byte(`{"grid": {"altitudes": "high"}}`), nil)
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "grid.altitudes")
+}

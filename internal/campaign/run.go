@@ -2,6 +2,7 @@ package campaign
 
 import (
 	"context"
+	"encoding/json"
 	"math"
 	"runtime"
 	"slices"
@@ -11,6 +12,7 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/internal/app"
+	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
 
@@ -816,4 +818,20 @@ func abs(i int) int {
 		return -i
 	}
 	return i
+}
+
+// RunJSON runs the campaign request body (JSON as POST /v1/campaigns takes it,
+// decoded with units by unitjson) and returns the Result as JSON: the shape of
+// a stored job's request and result (internal/jobs). Errors are Run's, and a
+// body that does not decode is a CodeInvalid error naming its fields.
+func RunJSON(ctx context.Context, p *app.Planner, body []byte, progress func(done, total int)) ([]byte, error) {
+	var req Request
+	if err := unitjson.Decode(body, &req); err != nil {
+		return nil, err
+	}
+	res, err := Run(ctx, p, req, progress)
+	if err != nil {
+		return nil, err
+	}
+	return json.Marshal(res)
 }
