@@ -485,7 +485,7 @@ type LoadCase struct {
 	Points []Point
 	// Resolution, when not nil, is the coarsest 2σ uncertainty of each
 	// coefficient the test accepts: each report then says whether the balance
-	// resolves it (LoadReport.Resolution), and ChooseBalance prefers, among the
+	// resolves it (LoadReport.Resolution), and loads.Choose prefers, among the
 	// balances within the allowed loads, the one that resolves it with the most
 	// margin.
 	Resolution *Resolution
@@ -871,120 +871,12 @@ func (lc *LoadCase) check(b *Balance, q float64, idx int) (LoadReport, error) {
 	return r, nil
 }
 
-// CheckAll returns the load check of every balance of facility f, in the
-// facility's order; ErrNoBalance when it has none.
-func (lc *LoadCase) CheckAll(f *Facility, q float64) ([]LoadReport, error) {
-	if len(f.Balances) == 0 {
-		return nil, ErrNoBalance
-	}
-	out := make([]LoadReport, len(f.Balances))
-	for i := range f.Balances {
-		r, err := lc.check(&f.Balances[i], q, i)
-		if err != nil {
-			return nil, err
-		}
-		out[i] = r
-	}
-	return out, nil
-}
-
-// BalanceChoice is the balance a load check settled on, with the reason in a
-// sentence for the plan, and the checks of every balance considered.
-type BalanceChoice struct {
-	Report LoadReport
-	Reason string
-	All    []LoadReport
-}
-
-// ChooseBalance checks the installation's named balance, or, when none is named,
-// picks among the facility's balances the one with the highest peak utilisation
-// that still keeps every point at or under 1/safety factor: the most heavily used
-// balance that is safe resolves the loads best. A named balance that does not exist
-// is a CodeInvalid error on installation.balance_id; no balance that can carry the
-// loads is a CodeUnprocessable error naming the "balance" limit; a facility without
-// balances is ErrNoBalance.
-func (lc *LoadCase) ChooseBalance(f *Facility, q float64) (BalanceChoice, error) {
-	if id := lc.Installation.BalanceID; id != "" {
-		for i := range f.Balances {
-			if f.Balances[i].ID != id {
-				continue
-			}
-			r, err := lc.check(&f.Balances[i], q, i)
-			if err != nil {
-				return BalanceChoice{}, err
-			}
-			return BalanceChoice{Report: r, Reason: fmt.Sprintf("balance %s as requested", id), All: []LoadReport{r}}, nil
-		}
-		ids := make([]string, len(f.Balances))
-		for i, b := range f.Balances {
-			ids[i] = b.ID
-		}
-		return BalanceChoice{}, &Error{Code: CodeInvalid, Message: "unknown balance",
-			Fields: []FieldError{{Field: "installation.balance_id", Message: fmt.Sprintf("facility %s has no balance %q; it has: %s", f.ID, id, strings.Join(ids, ", "))}}}
-	}
-	all, err := lc.CheckAll(f, q)
-	if err != nil {
-		return BalanceChoice{}, err
-	}
-	best := -1
-	for i, r := range all {
-		if r.WithinLimits && (best < 0 || r.MaxUtilization > all[best].MaxUtilization) {
-			best = i
-		}
-	}
-	if fine := finestResolving(all); fine >= 0 {
-		r := all[fine]
-		reason := fmt.Sprintf("balance %s chosen: of the balances that keep every point within the allowed loads by this estimate, it resolves the required resolution with the most margin (%.3g: the least dynamic pressure it needs is %.4g Pa), at %.0f %% peak utilisation (%s at α %.4g°, allowed %.0f %%)",
-			r.BalanceID, r.Resolution.Margin, r.Resolution.MinDynamicPressure, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
-		return BalanceChoice{Report: r, Reason: reason, All: all}, nil
-	}
-	if best < 0 {
-		parts := make([]string, len(all))
-		for i, r := range all {
-			parts[i] = fmt.Sprintf("%s reaches %.0f %% of its %s rating at α %.4g° (allowed %.0f %%)",
-				r.BalanceID, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
-		}
-		return BalanceChoice{All: all}, &Error{Code: CodeUnprocessable,
-			Message: "no balance of facility " + f.ID + " can carry the loads: " + strings.Join(parts, "; "),
-			Limits:  []string{ConstraintBalance}}
-	}
-	r := all[best]
-	reason := fmt.Sprintf("balance %s chosen: at %.0f %% peak utilisation (%s at α %.4g°, allowed %.0f %%) it is the most heavily used balance that keeps every point within the allowed loads by this estimate (the safety factor is the only margin left for the estimate's error), so it resolves the loads best",
-		r.BalanceID, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
-	if len(all) == 1 {
-		reason = fmt.Sprintf("balance %s chosen: the facility's only balance, at %.0f %% peak utilisation (allowed %.0f %%)",
-			r.BalanceID, 100*r.MaxUtilization, 100*r.AllowedUtilization)
-	}
-	return BalanceChoice{Report: r, Reason: reason, All: all}, nil
-}
-
-// finestResolving returns the index of the report within its allowed loads
-// that resolves the required resolution with the most margin, or −1.
-func finestResolving(all []LoadReport) int {
-	k := -1
-	for i := range all {
-		if all[i].WithinLimits && resolves(&all[i]) && (k < 0 || all[i].Resolution.Margin > all[k].Resolution.Margin) {
-			k = i
-		}
-	}
-	return k
-}
-
-// ResolutionState returns the answer's resolution state over the reports of a
-// check ("" when no resolution was asked): resolved when a report within its
-// allowed loads resolves it; else, with one report within its allowed loads,
-// that report's state; else no_balance_resolves.
-func ResolutionState(reports []LoadReport) string {
-	if len(reports) == 0 || reports[0].Resolution == nil {
-		return ""
-	}
-	if finestResolving(reports) >= 0 {
-		return ResolutionResolved
-	}
-	if len(reports) == 1 && reports[0].WithinLimits {
-		return reports[0].Resolution.State
-	}
-	return ResolutionNoBalance
+// CheckBalance returns the load check of facility f's i-th balance at
+// free-stream dynamic pressure q (Pa), as Check, naming bad balance fields under
+// "facility.balances[i]". The balance choice over a facility's balances is
+// internal/loads' (loads.Choose).
+func (lc *LoadCase) CheckBalance(f *Facility, i int, q float64) (LoadReport, error) {
+	return lc.check(&f.Balances[i], q, i)
 }
 
 // CautionFraction is the share of the allowed utilisation (1/safety factor) above

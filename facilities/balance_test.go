@@ -335,55 +335,6 @@ func TestLoadErrors(t *testing.T) {
 	}
 }
 
-// TestChooseBalance uses the demo facility lsw-2 (ext-6c and int-a, both with a
-// safety factor of 1.5).
-func TestChooseBalance(t *testing.T) {
-	f, ok := facilities.DemoFacility("lsw-2")
-	if !ok {
-		t.Fatal("demo facility lsw-2 missing")
-	}
-	lc := facilities.LoadCase{ReferenceArea: 0.3, ReferenceLength: 0.25,
-		Points: []facilities.Point{{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.2, CD: 0.03}},
-			{Alpha: 12, Coefficients: facilities.Coefficients{CL: 1.2, CD: 0.08, Cm: -0.1}}}}
-	cases := []struct {
-		name    string
-		q       float64
-		id      string
-		want    string
-		code    facilities.Code
-		inWords string
-	}{
-		// N ≈ 1.2·q·0.3: at q = 2000 Pa, about 730 N: int-a (3600 N) is used more and safe.
-		{"small loads pick the finer balance", 2000, "", "int-a", "", "most heavily used"},
-		// At 9000 Pa int-a's normal rating is exceeded over its safety factor.
-		{"large loads pick the stronger balance", 9000, "", "ext-6c", "", "most heavily used"},
-		{"named balance", 2000, "ext-6c", "ext-6c", "", "as requested"},
-		{"unknown balance", 2000, "nope", "", facilities.CodeInvalid, ""},
-		{"nothing carries it", 200000, "", "", facilities.CodeUnprocessable, ""},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			lc.Installation.BalanceID = c.id
-			ch, err := lc.ChooseBalance(&f, c.q)
-			if c.code != "" {
-				if facilities.ErrorCode(err) != c.code {
-					t.Fatalf("error %v, want code %s", err, c.code)
-				}
-				return
-			}
-			if err != nil {
-				t.Fatal(err)
-			}
-			if ch.Report.BalanceID != c.want || !strings.Contains(ch.Reason, c.inWords) {
-				t.Errorf("chose %s (%s), want %s", ch.Report.BalanceID, ch.Reason, c.want)
-			}
-		})
-	}
-	if _, err := lc.CheckAll(&facilities.Facility{}, 1000); !errors.Is(err, facilities.ErrNoBalance) {
-		t.Errorf("no balances: error %v, want ErrNoBalance", err)
-	}
-}
-
 func benchCase(n int) facilities.LoadCase {
 	lc := randomCase(rand.New(rand.NewPCG(3, 5)), 0.05, true)
 	lc.Points = lc.Points[:min(n, len(lc.Points))]

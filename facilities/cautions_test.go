@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
 
 // cautionFacility is an invented facility for the caution cases: medium, stagnation
@@ -102,7 +103,7 @@ func TestLoadWording(t *testing.T) {
 			lc := facilities.LoadCase{ReferenceArea: 0.1, ReferenceLength: 0.2,
 				Installation: facilities.Installation{ModelMass: c.mass},
 				Points:       onePoint(4, facilities.Coefficients{CL: 0.4, CD: 0.03})}
-			ch, err := lc.ChooseBalance(&f, 2000)
+			ch, err := loads.Choose(&lc, &f, 2000)
 			require.NoError(t, err)
 			joined := ch.Reason + " | " + strings.Join(ch.Report.Warnings, " | ")
 			for _, w := range c.want {

@@ -226,12 +226,6 @@ func (r *Resolution) limitingName(alphaDeg float64, d Load, known [6]bool, force
 	return name
 }
 
-// resolves reports whether the report's balance resolves the required
-// resolution.
-func resolves(r *LoadReport) bool {
-	return r.Resolution != nil && r.Resolution.State == ResolutionResolved
-}
-
 // ResolutionWarning returns the answer's note for a resolution state other than
 // resolved ("" for resolved or none).
 func ResolutionWarning(state string, rc *ResolutionCheck, balanceID string) string {

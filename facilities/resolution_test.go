@@ -77,45 +77,6 @@ func TestResolutionCheckHand(t *testing.T) {
 	})
 }
 
-// TestChooseBalancePrefersResolution: without a resolution, the balance choice
-// in tsw-1 takes the most heavily used balance within its allowed loads; with
-// one, of the balances within their allowed loads, the one that resolves it
-// with the most margin, and facilities.ResolutionState says so.
-func TestChooseBalancePrefersResolution(t *testing.T) {
-	t.Parallel()
-	f, ok := facilities.DemoFacility("tsw-1")
-	require.True(t, ok)
-	pts := []facilities.Point{{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.3, CD: 0.03}},
-		{Alpha: 8, Coefficients: facilities.Coefficients{CL: 0.9, CD: 0.06, Cm: -0.05}}}
-	const q = 20000
-	plain := j16Case(nil, pts...)
-	all, err := plain.CheckAll(&f, q)
-	require.NoError(t, err)
-	res := &facilities.Resolution{CDCounts: fptr(30)}
-	lc := j16Case(res, pts...)
-	withRes, err := lc.CheckAll(&f, q)
-	require.NoError(t, err)
-	best, bestMargin := "", 0.0
-	for _, r := range withRes {
-		if r.WithinLimits && r.Resolution.State == facilities.ResolutionResolved && r.Resolution.Margin > bestMargin {
-			best, bestMargin = r.BalanceID, r.Resolution.Margin
-		}
-	}
-	require.NotEmpty(t, best, "a balance of tsw-1 resolves 30 counts at 20 kPa")
-	ch, err := lc.ChooseBalance(&f, q)
-	require.NoError(t, err)
-	assert.Equal(t, best, ch.Report.BalanceID)
-	assert.Contains(t, ch.Reason, "most margin")
-	assert.Equal(t, facilities.ResolutionResolved, facilities.ResolutionState(withRes))
-	assert.Len(t, all, len(withRes))
-
-	// Finer than either balance resolves at this q: no balance resolves.
-	fine := j16Case(&facilities.Resolution{CDCounts: fptr(0.5)}, pts...)
-	none, err := fine.CheckAll(&f, q)
-	require.NoError(t, err)
-	assert.Equal(t, facilities.ResolutionNoBalance, facilities.ResolutionState(none))
-}
-
 // TestLoadFraction: planning to 90 % of the allowed load scales every allowed
 // load and the allowed utilisation by 0.9 and states it.
 func TestLoadFraction(t *testing.T) {

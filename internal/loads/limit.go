@@ -25,7 +25,7 @@ import (
 //
 // With one balance named in the installation the limit is that balance's. With
 // none named it is the best over all the facility's balances: at each scale the
-// largest q that some balance can carry, which is the balance ChooseBalance will
+// largest q that some balance can carry, which is the balance Choose will
 // then pick among those that are safe.
 //
 // The coefficients and their body-axis projections onto every rated row are

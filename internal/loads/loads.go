@@ -5,9 +5,10 @@
 // (NewLimit), which gives the planner its load ceiling and, with a required
 // resolution, its floor (similarity.LoadLimit and similarity.LoadFloor, the small
 // interfaces similarity declares), and then call Check at the plan's answer; load
-// checks (POST /v1/loads, scalematch loads) call Check alone. The load
-// primitives (body axes, ratings, the per-balance report) are still
-// facilities.LoadCase and facilities.LoadReport.
+// checks (POST /v1/loads, scalematch loads) call Check alone. The balance
+// choice is Choose. The per-balance primitives (body axes, ratings, the
+// per-balance check and report) are still facilities.LoadCase and
+// facilities.LoadReport.
 //
 // The verdicts, from best to worst (facilities.Verdict*):
 //
@@ -43,7 +44,7 @@ type Case struct {
 	// State is the test state; its DynamicPressure (Pa) loads the model.
 	State facilities.State
 	// Every checks every balance of the facility when the installation names
-	// none; false chooses one (facilities.LoadCase.ChooseBalance).
+	// none; false chooses one (Choose).
 	Every bool
 	// Resolution, when not nil, is the required resolution: every report says
 	// whether its balance resolves it, and the balance choice prefers the one
@@ -90,13 +91,13 @@ func Check(c *Case) (Result, error) {
 			Installation: c.Installation.WithBuoyancy(f), Points: pts, Resolution: c.Resolution}
 		q := c.State.DynamicPressure
 		if c.Every && c.Installation.BalanceID == "" {
-			all, err := lc.CheckAll(f, q)
+			all, err := CheckAll(&lc, f, q)
 			if err != nil {
 				return Result{}, err
 			}
 			res.Reports = all
 		} else {
-			ch, err := lc.ChooseBalance(f, q)
+			ch, err := Choose(&lc, f, q)
 			if err != nil {
 				return Result{}, err
 			}
@@ -108,7 +109,7 @@ func Check(c *Case) (Result, error) {
 	}
 	res.Verdict = verdict(res.FitBroken, res.Reports)
 	if !c.Resolution.Empty() {
-		res.ResolutionState = facilities.ResolutionState(res.Reports)
+		res.ResolutionState = ResolutionState(res.Reports)
 		if len(res.Reports) == 0 {
 			res.ResolutionState = facilities.ResolutionNoBalance
 		}

@@ -1,0 +1,110 @@
+package loads_test
+
+import (
+	"errors"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+	"scalematch/internal/loads"
+)
+
+func fptr(v float64) *float64 { return &v }
+
+// j16Case is the 1:24 demo business jet (S = 36.5/576 = 0.0633681 m², c = 0.1 m)
+// at the given points, no wall correction, weight 20 kg.
+func j16Case(res *facilities.Resolution, pts ...facilities.Point) facilities.LoadCase {
+	return facilities.LoadCase{ReferenceArea: 36.5 / 576, ReferenceLength: 0.1,
+		Installation: facilities.Installation{ModelMass: 20}, Points: pts, Resolution: res}
+}
+
+// TestChooseBalance uses the demo facility lsw-2 (ext-6c and int-a, both with a
+// safety factor of 1.5).
+func TestChooseBalance(t *testing.T) {
+	f, ok := facilities.DemoFacility("lsw-2")
+	if !ok {
+		t.Fatal("demo facility lsw-2 missing")
+	}
+	lc := facilities.LoadCase{ReferenceArea: 0.3, ReferenceLength: 0.25,
+		Points: []facilities.Point{{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.2, CD: 0.03}},
+			{Alpha: 12, Coefficients: facilities.Coefficients{CL: 1.2, CD: 0.08, Cm: -0.1}}}}
+	cases := []struct {
+		name    string
+		q       float64
+		id      string
+		want    string
+		code    facilities.Code
+		inWords string
+	}{
+		// N ≈ 1.2·q·0.3: at q = 2000 Pa, about 730 N: int-a (3600 N) is used more and safe.
+		{"small loads pick the finer balance", 2000, "", "int-a", "", "most heavily used"},
+		// At 9000 Pa int-a's normal rating is exceeded over its safety factor.
+		{"large loads pick the stronger balance", 9000, "", "ext-6c", "", "most heavily used"},
+		{"named balance", 2000, "ext-6c", "ext-6c", "", "as requested"},
+		{"unknown balance", 2000, "nope", "", facilities.CodeInvalid, ""},
+		{"nothing carries it", 200000, "", "", facilities.CodeUnprocessable, ""},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			lc.Installation.BalanceID = c.id
+			ch, err := loads.Choose(&lc, &f, c.q)
+			if c.code != "" {
+				if facilities.ErrorCode(err) != c.code {
+					t.Fatalf("error %v, want code %s", err, c.code)
+				}
+				return
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if ch.Report.BalanceID != c.want || !strings.Contains(ch.Reason, c.inWords) {
+				t.Errorf("chose %s (%s), want %s", ch.Report.BalanceID, ch.Reason, c.want)
+			}
+		})
+	}
+	if _, err := loads.CheckAll(&lc, &facilities.Facility{}, 1000); !errors.Is(err, facilities.ErrNoBalance) {
+		t.Errorf("no balances: error %v, want ErrNoBalance", err)
+	}
+}
+
+// TestChooseBalancePrefersResolution: without a resolution, the balance choice
+// in tsw-1 takes the most heavily used balance within its allowed loads; with
+// one, of the balances within their allowed loads, the one that resolves it
+// with the most margin, and facilities.ResolutionState says so.
+func TestChooseBalancePrefersResolution(t *testing.T) {
+	t.Parallel()
+	f, ok := facilities.DemoFacility("tsw-1")
+	require.True(t, ok)
+	pts := []facilities.Point{{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.3, CD: 0.03}},
+		{Alpha: 8, Coefficients: facilities.Coefficients{CL: 0.9, CD: 0.06, Cm: -0.05}}}
+	const q = 20000
+	plain := j16Case(nil, pts...)
+	all, err := loads.CheckAll(&plain, &f, q)
+	require.NoError(t, err)
+	res := &facilities.Resolution{CDCounts: fptr(30)}
+	lc := j16Case(res, pts...)
+	withRes, err := loads.CheckAll(&lc, &f, q)
+	require.NoError(t, err)
+	best, bestMargin := "", 0.0
+	for _, r := range withRes {
+		if r.WithinLimits && r.Resolution.State == facilities.ResolutionResolved && r.Resolution.Margin > bestMargin {
+			best, bestMargin = r.BalanceID, r.Resolution.Margin
+		}
+	}
+	require.NotEmpty(t, best, "a balance of tsw-1 resolves 30 counts at 20 kPa")
+	ch, err := loads.Choose(&lc, &f, q)
+	require.NoError(t, err)
+	assert.Equal(t, best, ch.Report.BalanceID)
+	assert.Contains(t, ch.Reason, "most margin")
+	assert.Equal(t, facilities.ResolutionResolved, loads.ResolutionState(withRes))
+	assert.Len(t, all, len(withRes))
+
+	// Finer than either balance resolves at this q: no balance resolves.
+	fine := j16Case(&facilities.Resolution{CDCounts: fptr(0.5)}, pts...)
+	none, err := loads.CheckAll(&fine, &f, q)
+	require.NoError(t, err)
+	assert.Equal(t, facilities.ResolutionNoBalance, loads.ResolutionState(none))
+}
