@@ -589,11 +589,18 @@ func Run(ctx context.Context, p *app.Planner, req Request, progress func(done, t
 	n := len(pr.conds)
 	total := 2 * n
 	var mu sync.Mutex
+	// The workers count in any order; progress is told each new highest count
+	// only, so that it never goes back.
+	last := -1
 	report := func(done int) {
-		if progress != nil {
-			mu.Lock()
+		if progress == nil {
+			return
+		}
+		mu.Lock()
+		defer mu.Unlock()
+		if done > last {
+			last = done
 			progress(done, total)
-			mu.Unlock()
 		}
 	}
 	report(0)
