@@ -335,9 +335,23 @@ func TestCatalogCreateAndValidate(t *testing.T) {
 	}
 }
 
+// plannedBody plans j16Plan against the facility facilityID on ts and returns
+// the plan with its id replaced by id: a real plan body to store by hand.
+func plannedBody(t *testing.T, ts *httptest.Server, facilityID, id string) []byte {
+	t.Helper()
+	req := strings.Replace(j16Plan, `"facility_id": "tsw-1"`, `"facility_id": "`+facilityID+`"`, 1)
+	r := catalogCall(t, ts, http.MethodPost, "/v1/plans", nil, req)
+	require.Equal(t, http.StatusOK, r.status, "%s", r.body)
+	var head struct {
+		ID string `json:"id"`
+	}
+	require.NoError(t, json.Unmarshal(r.body, &head))
+	return bytes.Replace(r.body, []byte(`"id":"`+head.ID+`"`), []byte(`"id":"`+id+`"`), 1)
+}
+
 func TestStoredPlan(t *testing.T) {
 	ts, db := catalogServer(t, nil)
-	body := []byte("{\"id\":\"p-7\",\n \"mismatch\": {\"reynolds_ratio\": 0.2500}}\n")
+	body := plannedBody(t, ts, "tsw-1", "p-7")
 	created := time.Date(2031, 5, 6, 7, 8, 9, 0, time.UTC)
 	if _, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "p-7", FacilityID: "tsw-1", FacilityVersion: 1, CreatedAt: created, Body: body}); err != nil {
 		t.Fatal(err)
@@ -374,10 +388,11 @@ func TestStoredPlanFacilityChanged(t *testing.T) {
 		return created
 	}
 	changed, deleted, same := mk("wch-1"), mk("wch-2"), mk("wch-3")
-	stored := []byte("{\"id\":\"p-%s\",\n \"mismatch\": {\"reynolds_ratio\": 0.2500}}\n")
+	stored := map[string][]byte{}
 	for _, f := range []facilities.Facility{changed, deleted, same} {
+		stored[f.ID] = plannedBody(t, ts, f.ID, "p-"+f.ID)
 		_, err := db.SavePlan(ctx, facilities.PlanRecord{ID: "p-" + f.ID, FacilityID: f.ID, FacilityVersion: f.Version,
-			Body: []byte(strings.Replace(string(stored), "%s", f.ID, 1))})
+			Body: stored[f.ID]})
 		require.NoError(t, err)
 	}
 	changed.Name += ", revised"
@@ -402,7 +417,7 @@ func TestStoredPlanFacilityChanged(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			r := catalogCall(t, ts, http.MethodGet, "/v1/plans/p-"+c.id, nil, "")
 			require.Equal(t, http.StatusOK, r.status, "%s", r.body)
-			body := []byte(strings.Replace(string(stored), "%s", c.id, 1))
+			body := stored[c.id]
 			assert.Equal(t, c.wantHeader, r.header.Get(api.HeaderFacilityCurrentVersion))
 			if c.wantChange == nil {
 				assert.Equal(t, string(body), string(r.body), "byte for byte")

@@ -55,6 +55,7 @@ func (s *Server) MetricsHandler() http.Handler {
 //	@Produce		json
 //	@Success		200	{object}	Health
 //	@Router			/healthz [get]
+//	@Router			/healthz [head]
 func (s *Server) healthz(c *gin.Context) {
 	s.answer(c, http.StatusOK, Health{Status: "ok"})
 }
@@ -68,6 +69,7 @@ func (s *Server) healthz(c *gin.Context) {
 //	@Success		200	{object}	Health
 //	@Failure		503	{object}	schema.Problem
 //	@Router			/readyz [get]
+//	@Router			/readyz [head]
 func (s *Server) readyz(c *gin.Context) {
 	ctx, cancel := context.WithTimeout(c.Request.Context(), s.cfg.ReadyTimeout)
 	defer cancel()

@@ -26,7 +26,7 @@ func benchHandler(b *testing.B) http.Handler {
 	if err != nil {
 		b.Fatal(err)
 	}
-	return s.Handler()
+	return s.Unvalidated()
 }
 
 // benchPost posts body to path through h b.N times and checks every answer is 200.
@@ -125,7 +125,7 @@ func storeHandler(b *testing.B) http.Handler {
 	if err != nil {
 		b.Fatal(err)
 	}
-	return s.Handler()
+	return s.Unvalidated()
 }
 
 // BenchmarkPlanEndpointStore is POST /v1/plans of the Orrin J16 in tsw-1 against an

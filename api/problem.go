@@ -41,6 +41,33 @@ var (
 	kindInsufficientStorage  = problemKind{http.StatusInsufficientStorage, "insufficient-storage", "Insufficient storage"}
 )
 
+// problemKinds lists every kind, by status.
+var problemKinds = []problemKind{
+	kindInvalid, kindUnauthorized, kindForbidden, kindNotFound, kindMethodNotAllowed,
+	kindNotAcceptable, kindRequestTimeout, kindConflict, kindPreconditionFailed,
+	kindBodyTooLarge, kindUnsupportedMedia, kindUnprocessable, kindPreconditionRequired,
+	kindInternal, kindUnavailable, kindInsufficientStorage,
+}
+
+// ProblemKind is one kind of problem the service answers: its HTTP status, its
+// type URI ("/problems/invalid-input") and its fixed title.
+type ProblemKind struct {
+	Status int
+	Type   string
+	Title  string
+}
+
+// ProblemKinds returns every kind of problem the service answers, ordered by
+// status (the table in schema.Problem's doc comment). The OpenAPI 3 generator
+// (docs/openapi3gen) documents each.
+func ProblemKinds() []ProblemKind {
+	out := make([]ProblemKind, len(problemKinds))
+	for i, k := range problemKinds {
+		out[i] = ProblemKind{Status: k.status, Type: "/problems/" + k.slug, Title: k.title}
+	}
+	return out
+}
+
 // codeKinds maps each domain error code to its problem kind: the one place where
 // codes become statuses.
 var codeKinds = map[facilities.Code]problemKind{

@@ -20,7 +20,8 @@ import (
 // @version					1
 // @description				Plans scale-model tests in wind and water tunnels: model scale and test conditions that best match a flight's Reynolds and Mach numbers within a facility's limits, the remaining mismatch, the Reynolds effect on drag and the balance loads over the angle-of-attack sweep.
 // @description				Every number is SI (m, m², kg, s, K, Pa, N, N·m, kg/m³, Pa·s, m/s); angles are degrees. Any dimensional input may instead be a string with a unit ("35000 ft", "2.5 bar", "15 degC"); a model scale may be a ratio ("1:16").
-// @description				Errors are RFC 9457 problem details (application/problem+json) whose "type" is a relative URI /problems/{kind}, one kind per status: invalid-input 400, unauthorized 401 (WWW-Authenticate: Bearer), forbidden 403, not-found 404, method-not-allowed 405, not-acceptable 406 (a chart's Accept), conflict 409, precondition-failed 412, body-too-large 413 (bodies are limited to 1 MiB), unprocessable 422 (with "limits"), precondition-required 428, internal 500, unavailable 503. Every problem carries the request_id also sent as the X-Request-ID header.
+// @description				Errors are RFC 9457 problem details (application/problem+json) whose "type" is a relative URI /problems/{kind}, one kind per status: invalid-input 400, unauthorized 401 (WWW-Authenticate: Bearer), forbidden 403, not-found 404, method-not-allowed 405, not-acceptable 406 (a chart's Accept), request-timeout 408 (a body that did not arrive in time), conflict 409, precondition-failed 412, body-too-large 413 (bodies are limited to 1 MiB), unsupported-media-type 415 (a body that is not JSON), unprocessable 422 (with "limits"), precondition-required 428, internal 500, unavailable 503 (Retry-After), insufficient-storage 507. Every problem carries the request_id also sent as the X-Request-ID header. A JSON null in a request is the same as leaving the field out.
+// @description				/openapi3.json is the OpenAPI 3 form of this document, with required and nullable fields, ranges, unions and every problem; this Swagger 2.0 form at /openapi.json is for older tooling.
 // @description				All loads and limits are estimates only: the facility's approved limits, procedures and licensed engineering judgement govern.
 // @BasePath					/
 // @accept						json
@@ -82,7 +83,14 @@ type Server struct {
 	store storeState
 	// draining is set when a shutdown has begun.
 	draining atomic.Bool
+	// handler is engine, or engine wrapped by wrapForTest.
+	handler http.Handler
 }
+
+// wrapForTest, when set, wraps every Server's handler. Only the package's tests
+// set it (contract_internal_test.go): they check every answer against the
+// OpenAPI 3 document. It is nil in the service.
+var wrapForTest func(http.Handler) http.Handler
 
 // New builds the service: the gin router in release mode with the request-id,
 // logging, metrics, panic-recovery and body-limit middleware, the operations
@@ -121,11 +129,15 @@ func New(cfg Config) (*Server, error) {
 	s.registerOperations()
 	s.registerDocs()
 	s.routes()
+	s.handler = e
+	if wrapForTest != nil {
+		s.handler = wrapForTest(e)
+	}
 	return s, nil
 }
 
 // Handler returns the service as an http.Handler.
-func (s *Server) Handler() http.Handler { return s.engine }
+func (s *Server) Handler() http.Handler { return s.handler }
 
 // routes registers every route. Each group of endpoints lives in its own file:
 // planning.go (atmosphere, conditions, plans, batch, loads, groups, envelope) and
@@ -165,7 +177,7 @@ func (s *Server) ListenAndServe(ctx context.Context, addr string) error {
 // ListenAndServe does. It closes ln.
 func (s *Server) Serve(ctx context.Context, ln net.Listener) error {
 	hs := &http.Server{
-		Handler:           s.engine,
+		Handler:           s.handler,
 		ReadHeaderTimeout: readHeaderTimeout,
 		ReadTimeout:       readTimeout,
 		WriteTimeout:      writeTimeout,
