@@ -146,7 +146,7 @@ var requestRequired = map[string][]string{
 	"schema.GroupVariable":   {"name"},
 	"schema.PlanRequest":     {"article"},
 	"schema.LoadsRequest":    {"article"},
-	"similarity.Article": {"aero"},
+	"similarity.Article":     {"aero"},
 }
 
 // requiredSometimes lists the request schemas whose numbers are needed only in
