@@ -354,18 +354,32 @@ func TestOpenAPI(t *testing.T) {
 	if err := json.Unmarshal(body, &doc); err != nil {
 		t.Fatal(err)
 	}
-	for _, p := range []string{"/healthz", "/readyz", "/metrics", "/openapi.json"} {
+	for _, p := range []string{"/healthz", "/readyz", "/metrics", "/openapi.json", "/openapi3.json"} {
 		if _, ok := doc.Paths[p]["get"]; !ok {
 			t.Errorf("document lacks GET %s", p)
 		}
+	}
+	resp, body = ts.do(t, "GET", "/openapi3.json", nil, nil)
+	if resp.StatusCode != 200 {
+		t.Fatalf("GET /openapi3.json: %d", resp.StatusCode)
+	}
+	var doc3 struct {
+		OpenAPI string                    `json:"openapi"`
+		Paths   map[string]map[string]any `json:"paths"`
+	}
+	if err := json.Unmarshal(body, &doc3); err != nil {
+		t.Fatal(err)
+	}
+	if doc3.OpenAPI != "3.0.3" || len(doc3.Paths) != len(doc.Paths) {
+		t.Errorf("OpenAPI 3 document: version %q, %d paths; want 3.0.3 and the %d of the Swagger 2.0 one", doc3.OpenAPI, len(doc3.Paths), len(doc.Paths))
 	}
 	resp, body = ts.do(t, "GET", "/docs/", nil, nil)
 	if resp.StatusCode != 200 || !strings.HasPrefix(resp.Header.Get("Content-Type"), "text/html") {
 		t.Fatalf("GET /docs/: %d %s", resp.StatusCode, resp.Header.Get("Content-Type"))
 	}
 	page := string(body)
-	if !strings.Contains(page, `fetch("/openapi.json")`) {
-		t.Error("the page does not read /openapi.json")
+	if !strings.Contains(page, `fetch("/openapi3.json")`) {
+		t.Error("the page does not read /openapi3.json")
 	}
 	if strings.Contains(page, "https://") || strings.Contains(page, "http://") {
 		t.Error("the page refers to something outside the binary")

@@ -491,6 +491,16 @@ func (g *generator) operation(method, p string, op *openapi3.Operation, kinds ma
 		}
 	}
 	for code, r := range op.Responses.Map() {
+		for mt, m := range r.Value.Content {
+			// An answer that is not JSON (CSV, SVG, PNG, PDF, HTML, text) is a
+			// string of bytes, whatever the annotation named for its JSON form.
+			if mt != "application/json" && !strings.HasSuffix(mt, "+json") {
+				m.Schema = &openapi3.SchemaRef{Value: &openapi3.Schema{Type: typ("string")}}
+				if !strings.HasPrefix(mt, "text/") && mt != "image/svg+xml" {
+					m.Schema.Value.Format = "binary"
+				}
+			}
+		}
 		n, _ := strconv.Atoi(code)
 		for _, h := range headersFor(method, p, n) {
 			if r.Value.Headers == nil {

@@ -38,6 +38,7 @@ var goTypes = map[string]any{
 	"schema.GroupsRequest":      schema.GroupsRequest{},
 	"schema.GroupsResponse":     schema.GroupsResponse{},
 	"schema.FacilityList":       schema.FacilityList{},
+	"schema.PlanList":           schema.PlanList{},
 	"schema.FacilityHistory":    schema.FacilityHistory{},
 	"schema.Problem":            schema.Problem{},
 	"api.Health":                api.Health{},
