@@ -17,8 +17,8 @@ import (
 // uses for it (common practice).
 const StatusClientClosed = 499
 
-// retryAfterSeconds is the Retry-After of a 503, in seconds.
-const retryAfterSeconds = 5
+// RetryAfterSeconds is the Retry-After of a 503, in seconds.
+const RetryAfterSeconds = 5
 
 // fullHold is how long after a full-disk error /readyz reports the service
 // unready, unless a write succeeds first.

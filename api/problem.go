@@ -92,34 +92,69 @@ func (k problemKind) problem(c *gin.Context, detail string) schema.Problem {
 	}
 }
 
-// problem maps err to the problem the client sees:
+// kindOf maps err to its problem kind, the one place where errors become
+// statuses:
 //
 //	*facilities.Error                      by its Code (table in schema.Problem's comment)
 //	atmosphere.ErrRange                    400
 //	*http.MaxBytesError                    413
 //	notAcceptableError                     406
-//	*clientFault                           400 or 408
+//	*clientFault                           400, 408 or 415
 //	facilities.ErrStorageFull              507 (and /readyz unready)
 //	facilities.ErrUnavailable              503 with Retry-After
 //	context.DeadlineExceeded               503
 //	anything else                          500 "internal error", logged in full
 //
-// Handlers that embed a problem in a larger answer (the plan batch) call it directly;
-// the others call fail.
-func (s *Server) problem(c *gin.Context, err error) schema.Problem {
-	if cl, ok := s.cfg.Catalog.(facilities.ErrorClassifier); ok {
-		err = cl.ClassifyError(err)
-	}
+// A store's error is classified first (classify).
+func kindOf(err error) problemKind {
 	var de *facilities.Error
 	var mbe *http.MaxBytesError
 	var nae notAcceptableError
 	var cf *clientFault
 	switch {
 	case errors.As(err, &de):
-		k, ok := codeKinds[de.Code]
-		if !ok {
-			break
+		if k, ok := codeKinds[de.Code]; ok {
+			return k
 		}
+	case errors.As(err, &nae):
+		return kindNotAcceptable
+	case errors.Is(err, atmosphere.ErrRange):
+		return kindInvalid
+	case errors.As(err, &mbe):
+		return kindBodyTooLarge
+	case errors.As(err, &cf):
+		return cf.kind
+	case errors.Is(err, facilities.ErrStorageFull):
+		return kindInsufficientStorage
+	case errors.Is(err, facilities.ErrUnavailable), errors.Is(err, context.DeadlineExceeded):
+		return kindUnavailable
+	}
+	return kindInternal
+}
+
+// classify marks a store's errors that mean it does not answer or is full
+// (facilities.ErrorClassifier), when the catalog can tell.
+func (s *Server) classify(err error) error {
+	if cl, ok := s.cfg.Catalog.(facilities.ErrorClassifier); ok && err != nil {
+		return cl.ClassifyError(err)
+	}
+	return err
+}
+
+// problem maps err to the problem the client sees (kindOf), with its detail.
+// Handlers that embed a problem in a larger answer (the plan batch) call it
+// directly; the others call fail.
+func (s *Server) problem(c *gin.Context, err error) schema.Problem {
+	err = s.classify(err)
+	k := kindOf(err)
+	var de *facilities.Error
+	var mbe *http.MaxBytesError
+	var cf *clientFault
+	switch {
+	case k == kindInternal:
+		s.logger(c).Error("internal error", "error", err.Error())
+		return kindInternal.problem(c, "internal error")
+	case errors.As(err, &de):
 		detail := de.Message
 		if detail == "" && len(de.Fields) == 0 {
 			detail = de.Error()
@@ -131,29 +166,25 @@ func (s *Server) problem(c *gin.Context, err error) schema.Problem {
 		p.Errors = de.Fields
 		p.Limits = de.Limits
 		return p
-	case errors.As(err, &nae):
-		return kindNotAcceptable.problem(c, nae.Error())
-	case errors.Is(err, atmosphere.ErrRange):
-		return kindInvalid.problem(c, err.Error())
 	case errors.As(err, &mbe):
-		return kindBodyTooLarge.problem(c, fmt.Sprintf("the request body is larger than %d bytes", mbe.Limit))
+		return k.problem(c, fmt.Sprintf("the request body is larger than %d bytes", mbe.Limit))
 	case errors.As(err, &cf):
 		s.metrics.clientFaults.WithLabelValues(cf.metric).Inc()
-		return cf.kind.problem(c, cf.msg)
-	case errors.Is(err, facilities.ErrStorageFull):
+		return k.problem(c, cf.msg)
+	case k == kindInsufficientStorage:
 		s.storeFull()
 		s.logger(c).Warn("store full", "error", err.Error())
-		return kindInsufficientStorage.problem(c, "the store has no space left: changes and new plans cannot be stored until space is freed; reads still work")
+		return k.problem(c, "the store has no space left: changes and new plans cannot be stored until space is freed; reads still work")
 	case errors.Is(err, facilities.ErrUnavailable):
 		s.logger(c).Warn("store unavailable", "error", err.Error())
-		return kindUnavailable.problem(c, fmt.Sprintf("the store does not answer; try again in %d s", retryAfterSeconds))
+		return k.problem(c, fmt.Sprintf("the store does not answer; try again in %d s", RetryAfterSeconds))
 	case errors.Is(err, context.DeadlineExceeded):
 		s.logger(c).Warn("request ran out of time", "error", err.Error())
-		return kindUnavailable.problem(c, "the request ran out of time; try again")
+		return k.problem(c, "the request ran out of time; try again")
 	}
-	s.logger(c).Error("internal error", "error", err.Error())
-	return kindInternal.problem(c, "internal error")
+	return k.problem(c, err.Error())
 }
+
 
 // fail answers the request with the problem for err and stops the handler chain.
 // A client that has gone (errClientGone, or the request's context cancelled) gets
@@ -173,7 +204,7 @@ func (s *Server) writeProblem(c *gin.Context, p schema.Problem) {
 	case http.StatusUnauthorized:
 		c.Header("WWW-Authenticate", `Bearer realm="scalematch"`)
 	case http.StatusServiceUnavailable:
-		c.Header("Retry-After", strconv.Itoa(retryAfterSeconds))
+		c.Header("Retry-After", strconv.Itoa(RetryAfterSeconds))
 	}
 	truncateProblem(&p)
 	c.Header("Cache-Control", cacheNever)

@@ -183,7 +183,16 @@ func (p *Pages) render(w http.ResponseWriter, r *http.Request, status int, name,
 func (p *Pages) fail(w http.ResponseWriter, r *http.Request, err error) {
 	status := api.StatusOf(err)
 	msg := err.Error()
-	if status >= 500 {
+	switch {
+	case status == http.StatusServiceUnavailable:
+		// The store's condition, not a fault of the code: logged as the API logs it.
+		p.log.Warn("page: store unavailable", "path", r.URL.Path, "error", msg)
+		w.Header().Set("Retry-After", strconv.Itoa(api.RetryAfterSeconds))
+		msg = fmt.Sprintf("the store does not answer; try again in %d s", api.RetryAfterSeconds)
+	case status == http.StatusInsufficientStorage:
+		p.log.Warn("page: store full", "path", r.URL.Path, "error", msg)
+		msg = "the store has no space left: nothing new can be stored until space is freed; reading still works"
+	case status >= 500:
 		p.log.Error("page", "path", r.URL.Path, "error", msg)
 		msg = "internal error: the service's log has the details"
 	}
