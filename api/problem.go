@@ -185,7 +185,6 @@ func (s *Server) problem(c *gin.Context, err error) schema.Problem {
 	return k.problem(c, err.Error())
 }
 
-
 // fail answers the request with the problem for err and stops the handler chain.
 // A client that has gone (errClientGone, or the request's context cancelled) gets
 // no answer: the request is logged and counted with StatusClientClosed.

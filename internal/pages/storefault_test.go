@@ -36,7 +36,9 @@ func (f faultyStore) Facility(context.Context, string) (facilities.Facility, err
 	return facilities.Facility{}, f.err
 }
 
-func (f faultyStore) Versions(context.Context, string) ([]facilities.Change, error) { return nil, f.err }
+func (f faultyStore) Versions(context.Context, string) ([]facilities.Change, error) {
+	return nil, f.err
+}
 
 // TestStoreFaults checks that a page answers a store that does not answer with
 // 503 and Retry-After, and a full one with 507, each saying so, as the API does;
