@@ -44,6 +44,8 @@ var goTypes = map[string]any{
 	"api.Health":                api.Health{},
 	"atmosphere.State":          atmosphere.State{},
 	"facilities.Facility":       facilities.Facility{},
+	// An alias of check.FieldError, named as swag names it.
+	"facilities.FieldError": facilities.FieldError{},
 }
 
 func ref(name string) *openapi3.SchemaRef {
@@ -123,7 +125,7 @@ var propertyOverrides = map[string]propertyOverride{
 			{Value: &openapi3.Schema{Type: typ("array"), Items: ref("facilities.LoadReport")}},
 		}}
 	}},
-	// LoadReport.MarshalJSON writes an unbounded figure as null.
+	// A facilities.Ceiling without a bound is written as null.
 	"facilities.LoadReport.max_safe_dynamic_pressure": {nullable: true},
 }
 
