@@ -11,6 +11,7 @@ import (
 	"scalematch/api/schema"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/campaign"
 )
 
 // This file is the one table of what swag's annotations cannot say. Everything
@@ -44,6 +45,8 @@ var goTypes = map[string]any{
 	"api.Health":                api.Health{},
 	"atmosphere.State":          atmosphere.State{},
 	"facilities.Facility":       facilities.Facility{},
+	"campaign.Request":          campaign.Request{},
+	"campaign.Result":           campaign.Result{},
 	// An alias of check.FieldError, named as swag names it.
 	"facilities.FieldError": facilities.FieldError{},
 }

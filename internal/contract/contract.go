@@ -33,7 +33,7 @@ type Validator struct {
 func init() {
 	// The answers that are not JSON are checked for their type and headers;
 	// their bytes are taken as they are.
-	for _, ct := range []string{"text/html", "text/csv", "image/svg+xml", "image/png", "application/pdf"} {
+	for _, ct := range []string{"text/html", "text/csv", "application/x-ndjson", "image/svg+xml", "image/png", "application/pdf"} {
 		openapi3filter.RegisterBodyDecoder(ct, openapi3filter.FileBodyDecoder)
 	}
 }
