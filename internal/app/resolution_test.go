@@ -3,6 +3,7 @@ package app_test
 import (
 	"context"
 	"errors"
+	"os"
 	"slices"
 	"strings"
 	"testing"
@@ -111,3 +112,35 @@ func requireField(t *testing.T, err error, field string) {
 	assert.Equal(t, facilities.CodeInvalid, e.Code)
 	assert.True(t, slices.ContainsFunc(e.Fields, func(f facilities.FieldError) bool { return f.Field == field }), "fields %+v, want %s", e.Fields, field)
 }
+
+// TestPlanResolutionWater plans the demo vessel of examples/tarn-a2-wtn-04.json
+// (a marine condition in the water tunnel wtn-04: cavitation number first) with
+// and without a required C_D resolution of 200 counts. Without it the plan runs
+// at a dynamic pressure where the balance resolves only about 264 counts; with
+// it the planner raises q to the floor (the water's q caps the temperature) and
+// lists "resolution" among the binding limits with its Reynolds gain, and every
+// point meets 200 counts.
+func TestPlanResolutionWater(t *testing.T) {
+	b, err := os.ReadFile("../../examples/tarn-a2-wtn-04.json")
+	require.NoError(t, err)
+	var p app.Planner
+	plain, err := p.Plan(context.Background(), decodePlan(t, string(b)))
+	require.NoError(t, err)
+	req := decodePlan(t, string(b))
+	req.RequiredResolution = &facilities.Resolution{CDCounts: fptr(200)}
+	resp, err := p.Plan(context.Background(), req)
+	require.NoError(t, err)
+	assert.Equal(t, facilities.ResolutionResolved, resp.ResolutionState)
+	rc := resp.Loads.Resolution
+	require.NotNil(t, rc)
+	assert.Less(t, plain.Test.DynamicPressure, rc.MinDynamicPressure, "the floor is above the plan made without it")
+	assert.InDelta(t, rc.MinDynamicPressure, resp.Test.DynamicPressure, 1e-6*rc.MinDynamicPressure, "the plan sits on the floor")
+	i := slices.IndexFunc(resp.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintResolution })
+	require.GreaterOrEqual(t, i, 0, "binding %+v", resp.Binding)
+	assert.NotZero(t, resp.Binding[i].ReynoldsGainPerPercent)
+	for _, u := range resp.Loads.Uncertainty {
+		assert.LessOrEqual(t, u.CDCounts, 200*(1+1e-9), "α %g°", u.Alpha)
+	}
+}
+
+func fptr(v float64) *float64 { return &v }
