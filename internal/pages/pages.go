@@ -135,7 +135,8 @@ func funcs() template.FuncMap {
 		"row":     func(s string) string { return strings.ReplaceAll(s, "_", " ") },
 		"verdict": verdictWords,
 		"utc":     func(t time.Time) string { return t.UTC().Format("2006-01-02 15:04:05") },
-		"safeq": func(q float64) string {
+		"safeq": func(c facilities.Ceiling) string {
+			q := float64(c)
 			switch {
 			case math.IsInf(q, 1):
 				return "unbounded (no rated load grows with the dynamic pressure)"
