@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"net/http"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -34,13 +35,13 @@ func TestRequestCaps(t *testing.T) {
 		field    string
 		maxBytes int
 	}{
-		{"90,000 scales", strings.Replace(j16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scales": [`+scales(90000, "0.9")+`]}`, 1),
+		{"90,000 scales", strings.Replace(testfixture.J16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scales": [`+scales(90000, "0.9")+`]}`, 1),
 			400, "model.scales", 2000},
-		{"200,000 bad scales", strings.Replace(j16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scales": [`+scales(200000, `"x"`)+`]}`, 1),
+		{"200,000 bad scales", strings.Replace(testfixture.J16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scales": [`+scales(200000, `"x"`)+`]}`, 1),
 			400, "model.scales", 2000},
-		{"errors after decoding are capped at 50", strings.Replace(j16Plan, `"cm_slope": -1.05}`, `"cm_slope": -1.05, "table": [`+strings.Join(badRows, ",")+`]}`, 1),
+		{"errors after decoding are capped at 50", strings.Replace(testfixture.J16Plan, `"cm_slope": -1.05}`, `"cm_slope": -1.05, "table": [`+strings.Join(badRows, ",")+`]}`, 1),
 			400, "article.aero.table[0].cl", 20000},
-		{"an unknown field with a 10 kB name", strings.Replace(j16Plan, `"facility_id"`, `"`+strings.Repeat("k", 10000)+`": 1, "facility_id"`, 1),
+		{"an unknown field with a 10 kB name", strings.Replace(testfixture.J16Plan, `"facility_id"`, `"`+strings.Repeat("k", 10000)+`": 1, "facility_id"`, 1),
 			400, "", 1500},
 	}
 	for _, tc := range cases {
@@ -57,7 +58,7 @@ func TestRequestCaps(t *testing.T) {
 		})
 	}
 	t.Run("the largest sweep fits a stored plan", func(t *testing.T) {
-		body := strings.Replace(j16Plan, `"alpha": {"from": -4, "to": 16, "step": 1}`, `"alpha": {"from": -180, "to": 180, "step": 0.18}`, 1)
+		body := strings.Replace(testfixture.J16Plan, `"alpha": {"from": -4, "to": 16, "step": 1}`, `"alpha": {"from": -180, "to": 180, "step": 0.18}`, 1)
 		code, b := post(t, ts, "/v1/plans", body)
 		require.Equal(t, http.StatusOK, code, "%.300s", b)
 		assert.Less(t, len(b), app.MaxPlanBytes)

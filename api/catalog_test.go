@@ -9,6 +9,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"path/filepath"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 	"time"
@@ -335,11 +336,11 @@ func TestCatalogCreateAndValidate(t *testing.T) {
 	}
 }
 
-// plannedBody plans j16Plan against the facility facilityID on ts and returns
+// plannedBody plans testfixture.J16Plan against the facility facilityID on ts and returns
 // the plan with its id replaced by id: a real plan body to store by hand.
 func plannedBody(t *testing.T, ts *httptest.Server, facilityID, id string) []byte {
 	t.Helper()
-	req := strings.Replace(j16Plan, `"facility_id": "tsw-1"`, `"facility_id": "`+facilityID+`"`, 1)
+	req := strings.Replace(testfixture.J16Plan, `"facility_id": "tsw-1"`, `"facility_id": "`+facilityID+`"`, 1)
 	r := catalogCall(t, ts, http.MethodPost, "/v1/plans", nil, req)
 	require.Equal(t, http.StatusOK, r.status, "%s", r.body)
 	var head struct {

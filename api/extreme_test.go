@@ -8,6 +8,7 @@ import (
 	"log/slog"
 	"net/http"
 	"net/http/httptest"
+	"scalematch/internal/testfixture"
 	"sort"
 	"strconv"
 	"strings"
@@ -254,7 +255,7 @@ func TestStoredRecordOutOfRange(t *testing.T) {
 	require.NoError(t, err)
 	for _, path := range []string{"/v1/plans", "/v1/loads"} {
 		t.Run(path, func(t *testing.T) {
-			body := j16Plan
+			body := testfixture.J16Plan
 			if path == "/v1/loads" {
 				body = strings.Replace(j16Loads, "BALANCE", "", 1)
 			}

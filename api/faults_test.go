@@ -10,6 +10,7 @@ import (
 	"net"
 	"net/http"
 	"net/http/httptest"
+	"scalematch/internal/testfixture"
 	"strings"
 	"sync/atomic"
 	"testing"
@@ -143,7 +144,7 @@ func TestClientGone(t *testing.T) {
 	ts, logs, reg := faultServer(t, cat)
 	ctx, cancel := context.WithCancel(context.Background())
 	go func() { <-started; cancel() }()
-	req, err := http.NewRequestWithContext(ctx, http.MethodPost, ts.URL+"/v1/plans", strings.NewReader(j16Plan))
+	req, err := http.NewRequestWithContext(ctx, http.MethodPost, ts.URL+"/v1/plans", strings.NewReader(testfixture.J16Plan))
 	require.NoError(t, err)
 	req.Header.Set("Content-Type", "application/json")
 	_, err = ts.Client().Do(req)
@@ -172,7 +173,7 @@ func TestStoreFaultStatuses(t *testing.T) {
 	}}
 	ts, logs, _ := faultServer(t, cat)
 	plan := func(alpha int) *http.Response {
-		body := strings.Replace(j16Plan, `"to": 16`, fmt.Sprintf(`"to": %d`, alpha), 1)
+		body := strings.Replace(testfixture.J16Plan, `"to": 16`, fmt.Sprintf(`"to": %d`, alpha), 1)
 		resp, err := http.Post(ts.URL+"/v1/plans", "application/json", strings.NewReader(body))
 		require.NoError(t, err)
 		io.Copy(io.Discard, resp.Body)

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"io"
 	"net/http"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -106,7 +107,7 @@ func TestStoredPlanImmutable(t *testing.T) {
 	require.True(t, ok)
 	fb, err := json.Marshal(f)
 	require.NoError(t, err)
-	inline := strings.Replace(j16Plan, `"facility_id": "tsw-1"`, `"facility": `+string(fb), 1)
+	inline := strings.Replace(testfixture.J16Plan, `"facility_id": "tsw-1"`, `"facility": `+string(fb), 1)
 	code, b := post(t, ts, "/v1/plans", inline)
 	require.Equal(t, 200, code, "%s", b)
 	id := string(b[strings.Index(string(b), `"id":"`)+6:])

@@ -12,6 +12,7 @@ import (
 	"os/exec"
 	"os/user"
 	"path/filepath"
+	"scalematch/internal/testfixture"
 	"strconv"
 	"strings"
 	"sync"
@@ -134,7 +135,7 @@ func TestPostgresOutage(t *testing.T) {
 				if w%2 == 0 {
 					// A new plan each time, so that every request writes.
 					n := seq.Add(1)
-					body := strings.Replace(j16Plan, `"model_mass": 20`, fmt.Sprintf(`"model_mass": %g`, 20+float64(n)/1000), 1)
+					body := strings.Replace(testfixture.J16Plan, `"model_mass": 20`, fmt.Sprintf(`"model_mass": %g`, 20+float64(n)/1000), 1)
 					resp, err = http.Post(ts.URL+"/v1/plans", "application/json", strings.NewReader(body))
 				} else {
 					resp, err = http.Get(ts.URL + "/v1/facilities/tsw-1")

@@ -29,7 +29,7 @@ import (
 
 // FuzzPlanEndpoint fuzzes POST /v1/plans.
 func FuzzPlanEndpoint(f *testing.F) {
-	f.Add([]byte(j16Plan))
+	f.Add([]byte(testfixture.J16Plan))
 	for _, s := range []struct {
 		path  string
 		value any
@@ -39,10 +39,10 @@ func FuzzPlanEndpoint(f *testing.F) {
 		{"model.scale", 1e308},
 		{"flight.altitude", -1e308},
 	} {
-		f.Add(seed(f, j16Plan, s.path, s.value))
+		f.Add(seed(f, testfixture.J16Plan, s.path, s.value))
 	}
 	// An inline facility (tsw-1's record) with one number at an overflowing extreme.
-	inline := inlineFacility(f, j16Plan)
+	inline := inlineFacility(f, testfixture.J16Plan)
 	for _, s := range []struct {
 		path  string
 		value any

@@ -10,6 +10,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"path/filepath"
+	"scalematch/internal/testfixture"
 	"strings"
 	"sync"
 	"testing"
@@ -84,12 +85,12 @@ func planOK(t *testing.T, ts *httptest.Server, body string) ([]byte, planHead) {
 func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 	rs, db := replicas(t, 2, -1)
 	a, b := rs[0], rs[1]
-	first, h1 := planOK(t, a, j16Plan)
+	first, h1 := planOK(t, a, testfixture.J16Plan)
 	if h1.FacilityVersion != 1 {
 		t.Fatalf("first plan used tsw-1 version %d, want 1", h1.FacilityVersion)
 	}
-	again, _ := planOK(t, a, j16Plan)
-	other, _ := planOK(t, b, j16Plan)
+	again, _ := planOK(t, a, testfixture.J16Plan)
+	other, _ := planOK(t, b, testfixture.J16Plan)
 	if !bytes.Equal(again, first) || !bytes.Equal(other, first) {
 		t.Fatal("a repeated request was not answered byte for byte as the first")
 	}
@@ -105,7 +106,7 @@ func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 		t.Fatal(err)
 	}
 	for name, ts := range map[string]*httptest.Server{"same replica": a, "other replica": b} {
-		_, h2 := planOK(t, ts, j16Plan)
+		_, h2 := planOK(t, ts, testfixture.J16Plan)
 		if h2.FacilityVersion != 2 || h2.ID == h1.ID || h2.Test.DynamicPressure > q*(1+1e-9) {
 			t.Errorf("%s after the update: version %d id %s q %.6g Pa; want version 2, a new id, q ≤ %g Pa",
 				name, h2.FacilityVersion, h2.ID, h2.Test.DynamicPressure, q)
@@ -114,7 +115,7 @@ func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 	if err := db.DeleteFacility(ctx, "tsw-1", 2, "test"); err != nil {
 		t.Fatal(err)
 	}
-	if status, body := post(t, a, "/v1/plans", j16Plan); status != http.StatusNotFound {
+	if status, body := post(t, a, "/v1/plans", testfixture.J16Plan); status != http.StatusNotFound {
 		t.Errorf("plan in a deleted facility: %d %.200s, want 404", status, body)
 	}
 }
@@ -126,9 +127,9 @@ func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 func TestFacilityRecheck(t *testing.T) {
 	rs, _ := replicas(t, 2, 0)
 	a, b := rs[0], rs[1]
-	planOK(t, a, j16Plan)
+	planOK(t, a, testfixture.J16Plan)
 	asked := time.Now() // b asks for the version after this
-	planOK(t, b, j16Plan)
+	planOK(t, b, testfixture.J16Plan)
 	r := catalogCall(t, a, http.MethodGet, "/v1/facilities/tsw-1", nil, "")
 	var f facilities.Facility
 	if err := json.Unmarshal(r.body, &f); err != nil {
@@ -140,14 +141,14 @@ func TestFacilityRecheck(t *testing.T) {
 	if r.status != http.StatusOK {
 		t.Fatalf("PUT: %d %s", r.status, r.body)
 	}
-	if _, h := planOK(t, a, j16Plan); h.FacilityVersion != 2 {
+	if _, h := planOK(t, a, testfixture.J16Plan); h.FacilityVersion != 2 {
 		t.Errorf("the replica that made the change planned with version %d, want 2", h.FacilityVersion)
 	}
-	if _, h := planOK(t, b, j16Plan); h.FacilityVersion != 1 && time.Since(asked) < app.DefaultFacilityRecheck {
+	if _, h := planOK(t, b, testfixture.J16Plan); h.FacilityVersion != 1 && time.Since(asked) < app.DefaultFacilityRecheck {
 		t.Errorf("the other replica planned with version %d within the recheck interval, want its cached 1", h.FacilityVersion)
 	}
 	time.Sleep(app.DefaultFacilityRecheck + 10*time.Millisecond)
-	if _, h := planOK(t, b, j16Plan); h.FacilityVersion != 2 {
+	if _, h := planOK(t, b, testfixture.J16Plan); h.FacilityVersion != 2 {
 		t.Errorf("the other replica planned with version %d after the recheck interval, want 2", h.FacilityVersion)
 	}
 }
@@ -156,13 +157,13 @@ func TestFacilityRecheck(t *testing.T) {
 // decoding and validation still run, so a bad field is a 400 as ever.
 func TestStoredPlanStillValidated(t *testing.T) {
 	rs, _ := replicas(t, 1, 0)
-	planOK(t, rs[0], j16Plan)
+	planOK(t, rs[0], testfixture.J16Plan)
 	tests := []struct {
 		name, body, field string
 	}{
-		{"unknown field", strings.Replace(j16Plan, `"alpha":`, `"alpah": 1, "alpha":`, 1), "alpah"},
-		{"bad balance", strings.Replace(j16Plan, `"int-b1"`, `"int-b9"`, 1), "installation.balance_id"},
-		{"trailing data", j16Plan + "{}", ""},
+		{"unknown field", strings.Replace(testfixture.J16Plan, `"alpha":`, `"alpah": 1, "alpha":`, 1), "alpah"},
+		{"bad balance", strings.Replace(testfixture.J16Plan, `"int-b1"`, `"int-b9"`, 1), "installation.balance_id"},
+		{"trailing data", testfixture.J16Plan + "{}", ""},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -187,7 +188,7 @@ func TestBatchStoresEveryPlan(t *testing.T) {
 			sb.WriteByte(',')
 		}
 		mach := 0.60 + 0.005*float64(i%(n-1)) // the last repeats the first
-		sb.WriteString(strings.Replace(j16Plan, `"mach": 0.78`, fmt.Sprintf(`"mach": %.3f`, mach), 1))
+		sb.WriteString(strings.Replace(testfixture.J16Plan, `"mach": 0.78`, fmt.Sprintf(`"mach": %.3f`, mach), 1))
 	}
 	sb.WriteString(`]}`)
 	status, body := post(t, rs[0], "/v1/plans/batch", sb.String())

@@ -6,6 +6,7 @@ import (
 	"log/slog"
 	"net/http"
 	"net/http/httptest"
+	"scalematch/internal/testfixture"
 	"strconv"
 	"strings"
 	"testing"
@@ -50,7 +51,7 @@ func benchPost(b *testing.B, h http.Handler, path, body string) {
 // through the whole handler stack (request id, metrics, decoding, planning with
 // the balance limit, loads, encoding).
 func BenchmarkPlanEndpoint(b *testing.B) {
-	benchPost(b, benchHandler(b), "/v1/plans", j16Plan)
+	benchPost(b, benchHandler(b), "/v1/plans", testfixture.J16Plan)
 }
 
 // batchBody returns a batch of n distinct plan requests: the Orrin J16 in tsw-1
@@ -65,7 +66,7 @@ func batchBody(n int, lift float64) string {
 			sb.WriteByte(',')
 		}
 		mach := 0.60 + 0.29*float64(i)/float64(max(n-1, 1))
-		sb.WriteString(strings.Replace(j16Plan, `"flight": {"altitude": "12000 m", "mach": 0.78`, flight+strconvFloat(mach), 1))
+		sb.WriteString(strings.Replace(testfixture.J16Plan, `"flight": {"altitude": "12000 m", "mach": 0.78`, flight+strconvFloat(mach), 1))
 	}
 	sb.WriteString(`]}`)
 	return sb.String()
@@ -133,7 +134,7 @@ func storeHandler(b *testing.B) http.Handler {
 // later one is the same request and is answered with the stored bytes after its
 // decoding, validation and id.
 func BenchmarkPlanEndpointStore(b *testing.B) {
-	benchPost(b, storeHandler(b), "/v1/plans", j16Plan)
+	benchPost(b, storeHandler(b), "/v1/plans", testfixture.J16Plan)
 }
 
 // BenchmarkPlannerPlan is the composition behind POST /v1/plans without HTTP,
@@ -143,7 +144,7 @@ func BenchmarkPlanEndpointStore(b *testing.B) {
 // Goal: under 300 µs a plan.
 func BenchmarkPlannerPlan(b *testing.B) {
 	var req schema.PlanRequest
-	if err := unitjson.Decode([]byte(j16Plan), &req); err != nil {
+	if err := unitjson.Decode([]byte(testfixture.J16Plan), &req); err != nil {
 		b.Fatal(err)
 	}
 	var p app.Planner

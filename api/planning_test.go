@@ -9,6 +9,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"regexp"
+	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -20,19 +21,6 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/app"
 )
-
-// j16Plan is the Orrin J16 of the demo world (docs/demo-world.md) in tsw-1 at cruise.
-const j16Plan = `{
-  "flight": {"altitude": "12000 m", "mach": 0.78},
-  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4, "length": 19.6,
-    "frontal_area": 4.4, "wetted_area": 228,
-    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
-      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
-  "facility_id": "tsw-1",
-  "model": {"scale_min": 0.01, "scale_max": 0.5},
-  "installation": {"balance_id": "int-b1", "model_mass": 20},
-  "alpha": {"from": -4, "to": 16, "step": 1}
-}`
 
 func newServer(t testing.TB) *httptest.Server {
 	t.Helper()
@@ -87,18 +75,18 @@ func TestPlanErrors(t *testing.T) {
 		limits []string
 	}{
 		{"many bad fields at once",
-			strings.Replace(strings.Replace(strings.Replace(j16Plan, `"mach": 0.78`, `"mach": -1`, 1),
+			strings.Replace(strings.Replace(strings.Replace(testfixture.J16Plan, `"mach": 0.78`, `"mach": -1`, 1),
 				`"span": 16.4`, `"span": "19 kg"`, 1), `"step": 1`, `"step": 0`, 1),
 			400, []string{"article.span"}, nil},
 		{"validation after decoding lists every field",
-			strings.Replace(strings.Replace(j16Plan, `"mach": 0.78`, `"mach": -1`, 1), `"step": 1`, `"step": 0`, 1),
+			strings.Replace(strings.Replace(testfixture.J16Plan, `"mach": 0.78`, `"mach": -1`, 1), `"step": 1`, `"step": 0`, 1),
 			400, []string{"flight.mach", "alpha.step"}, nil},
-		{"unknown field", strings.Replace(j16Plan, `"facility_id"`, `"facilty_id"`, 1), 400, []string{"facilty_id"}, nil},
-		{"unknown friction settings", strings.Replace(j16Plan, `"span": 16.4`, `"span": 16.4, "friction_line": "schoenherr", "full_scale_boundary_layer": "laminar"`, 1),
+		{"unknown field", strings.Replace(testfixture.J16Plan, `"facility_id"`, `"facilty_id"`, 1), 400, []string{"facilty_id"}, nil},
+		{"unknown friction settings", strings.Replace(testfixture.J16Plan, `"span": 16.4`, `"span": 16.4, "friction_line": "schoenherr", "full_scale_boundary_layer": "laminar"`, 1),
 			400, []string{"article.friction_line", "article.full_scale_boundary_layer"}, nil},
-		{"unknown facility", strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1), 404, nil, nil},
-		{"unknown balance", strings.Replace(j16Plan, `"int-b1"`, `"int-zz"`, 1), 400, []string{"installation.balance_id"}, nil},
-		{"infeasible: the model cannot fit", strings.Replace(j16Plan, `"scale_min": 0.01, "scale_max": 0.5`, `"scale": 0.5`, 1), 422, nil, nil},
+		{"unknown facility", strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1), 404, nil, nil},
+		{"unknown balance", strings.Replace(testfixture.J16Plan, `"int-b1"`, `"int-zz"`, 1), 400, []string{"installation.balance_id"}, nil},
+		{"infeasible: the model cannot fit", strings.Replace(testfixture.J16Plan, `"scale_min": 0.01, "scale_max": 0.5`, `"scale": 0.5`, 1), 422, nil, nil},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -134,9 +122,9 @@ func contains(list []string, s string) bool {
 
 func TestPlanRepeatable(t *testing.T) {
 	ts := newServer(t)
-	c1, b1 := post(t, ts, "/v1/plans", j16Plan)
+	c1, b1 := post(t, ts, "/v1/plans", testfixture.J16Plan)
 	// The same request written differently (unit strings, key order) is the same plan.
-	alt := strings.Replace(j16Plan, `"reference_length": 2.4`, `"reference_length": "240 cm"`, 1)
+	alt := strings.Replace(testfixture.J16Plan, `"reference_length": 2.4`, `"reference_length": "240 cm"`, 1)
 	c2, b2 := post(t, ts, "/v1/plans", alt)
 	if c1 != 200 || c2 != 200 {
 		t.Fatalf("status %d, %d", c1, c2)
@@ -156,8 +144,8 @@ func TestPlanTooLarge(t *testing.T) {
 
 func TestBatch(t *testing.T) {
 	ts := newServer(t)
-	bad := strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1)
-	code, b := post(t, ts, "/v1/plans/batch", `{"requests": [`+j16Plan+`,`+bad+`,`+j16Plan+`,{"flight": 3}]}`)
+	bad := strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1)
+	code, b := post(t, ts, "/v1/plans/batch", `{"requests": [`+testfixture.J16Plan+`,`+bad+`,`+testfixture.J16Plan+`,{"flight": 3}]}`)
 	if code != 200 {
 		t.Fatalf("status %d: %s", code, b)
 	}
@@ -174,7 +162,7 @@ func TestBatch(t *testing.T) {
 	if len(out.Results) != len(want) {
 		t.Fatalf("%d results, want %d", len(out.Results), len(want))
 	}
-	_, single := post(t, ts, "/v1/plans", j16Plan)
+	_, single := post(t, ts, "/v1/plans", testfixture.J16Plan)
 	for i, r := range out.Results {
 		switch {
 		case want[i] == 200 && (r.Plan == nil || r.Error != nil):
@@ -412,8 +400,8 @@ func TestPlanMatchedAndCautions(t *testing.T) {
 		name string
 		body string
 	}{
-		{"default tolerance", j16Plan},
-		{"tolerance 0.01", strings.Replace(j16Plan, `"facility_id"`, `"objective": {"mach_tolerance": 0.01}, "facility_id"`, 1)},
+		{"default tolerance", testfixture.J16Plan},
+		{"tolerance 0.01", strings.Replace(testfixture.J16Plan, `"facility_id"`, `"objective": {"mach_tolerance": 0.01}, "facility_id"`, 1)},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -469,9 +457,9 @@ func TestBatchNDJSON(t *testing.T) {
 	n := app.BatchWindow() + 5
 	reqs := make([]string, n)
 	for i := range reqs {
-		reqs[i] = strings.Replace(j16Plan, `"mach": 0.78`, fmt.Sprintf(`"mach": %.3f`, 0.6+0.005*float64(i)), 1)
+		reqs[i] = strings.Replace(testfixture.J16Plan, `"mach": 0.78`, fmt.Sprintf(`"mach": %.3f`, 0.6+0.005*float64(i)), 1)
 	}
-	reqs[3] = strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1)
+	reqs[3] = strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1)
 	body := `{"requests": [` + strings.Join(reqs, ",") + `]}`
 	batch := func(accept string) (string, []byte) {
 		req, err := http.NewRequest(http.MethodPost, ts.URL+"/v1/plans/batch", strings.NewReader(body))

@@ -6,6 +6,7 @@ import (
 	"log/slog"
 	"net"
 	"net/http"
+	"scalematch/internal/testfixture"
 	"strings"
 	"sync"
 	"testing"
@@ -40,7 +41,7 @@ func TestShutdownDrains(t *testing.T) {
 	errs := make([]error, inFlight)
 	for i := range inFlight {
 		wg.Go(func() {
-			body := strings.Replace(j16Plan, `"to": 16`, `"to": `+string(rune('0'+i%10)), 1)
+			body := strings.Replace(testfixture.J16Plan, `"to": 16`, `"to": `+string(rune('0'+i%10)), 1)
 			resp, err := http.Post(base+"/v1/plans", "application/json", strings.NewReader(body))
 			if err != nil {
 				errs[i] = err
