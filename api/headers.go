@@ -34,6 +34,7 @@ const (
 var queryParams = map[string][]string{
 	"/v1/atmosphere":                  {"altitude", "pressure_altitude", "delta_isa"},
 	"/v1/plans":                       listParams,
+	"/v1/campaigns":                   listParams,
 	"/v1/facilities/:id/envelope.svg": {"reference_length", "flight_mach", "flight_speed", "flight_reynolds"},
 	"/v1/facilities/:id/envelope.png": {"reference_length", "flight_mach", "flight_speed", "flight_reynolds"},
 	"/v1/facilities/:id/envelope.pdf": {"reference_length", "flight_mach", "flight_speed", "flight_reynolds"},

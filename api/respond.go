@@ -81,9 +81,16 @@ func (s *Server) requireBody(c *gin.Context) {
 // On failure it answers the request with the problem (400 for bad input, 413 for a
 // body too large) and returns false; the handler then just returns.
 func (s *Server) decodeBody(c *gin.Context, dst any) bool {
+	_, ok := s.decodeBodyBytes(c, dst)
+	return ok
+}
+
+// decodeBodyBytes is decodeBody that also returns the body as read, for a
+// request kept to be run later (a campaign job).
+func (s *Server) decodeBodyBytes(c *gin.Context, dst any) ([]byte, bool) {
 	if c.Request.Body == nil {
 		s.fail(c, unitjson.BodyError("the body is empty: want a JSON object"))
-		return false
+		return nil, false
 	}
 	var body []byte
 	var err error
@@ -101,7 +108,7 @@ func (s *Server) decodeBody(c *gin.Context, dst any) bool {
 	}
 	if err != nil {
 		s.fail(c, err)
-		return false
+		return nil, false
 	}
-	return true
+	return body, true
 }

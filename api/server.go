@@ -14,6 +14,7 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/internal/app"
+	"scalematch/internal/jobs"
 )
 
 // @title						scalematch
@@ -67,6 +68,9 @@ type Config struct {
 	// ReadyTimeout bounds the store's answer to /readyz: a store that has not
 	// answered its ping within it is reported unready (503). 0: DefaultReadyTimeout.
 	ReadyTimeout time.Duration
+	// Jobs configures the background worker of large campaigns (a store that
+	// keeps jobs is needed: SQLite or PostgreSQL).
+	Jobs JobsConfig
 }
 
 // Server is the HTTP service. Build it with New; it is safe for concurrent use.
@@ -85,6 +89,10 @@ type Server struct {
 	draining atomic.Bool
 	// handler is engine, or engine wrapped by wrapForTest.
 	handler http.Handler
+	// jobs is the store's job queue (nil without a store); worker runs its jobs
+	// here (nil when JobsConfig.Off).
+	jobs   jobs.Store
+	worker *jobs.Worker
 }
 
 // wrapForTest, when set, wraps every Server's handler. Only the package's tests
@@ -123,6 +131,7 @@ func New(cfg Config) (*Server, error) {
 	if _, demo := cfg.Catalog.(facilities.DemoCatalog); !demo {
 		s.plans = app.NewPlanner(cfg.Catalog, cfg.FacilityRecheck)
 	}
+	s.setUpJobs()
 	e.Use(s.requestID, s.observe, s.recoverPanic, s.requireBody, s.headers, s.limitBody)
 	e.NoRoute(s.noRoute)
 	e.NoMethod(s.noMethod)
@@ -188,6 +197,12 @@ func (s *Server) Serve(ctx context.Context, ln net.Listener) error {
 	}
 	served := make(chan error, 1)
 	go func() { served <- hs.Serve(ln) }()
+	// The worker stops with the service: it releases the jobs it holds, so that
+	// another replica (or this one after its restart) takes them at once.
+	jctx, stopJobs := context.WithCancel(context.WithoutCancel(ctx))
+	jobsDone := make(chan struct{})
+	go func() { s.RunJobs(jctx); close(jobsDone) }()
+	defer func() { stopJobs(); <-jobsDone }()
 	s.log.Info("listening", "addr", ln.Addr().String())
 	select {
 	case err := <-served:

@@ -415,3 +415,48 @@ type PlanListItem struct {
 	// table).
 	Href string `json:"href" example:"/v1/plans/5d1c0a7e93b2f4a81c6e"`
 }
+
+// CampaignSummary is what a campaign job keeps for its listing.
+type CampaignSummary struct {
+	Conditions int      `json:"conditions"`
+	Facilities []string `json:"facilities"`
+}
+
+// CampaignStatus is a stored campaign's state and progress: the answer of GET
+// /v1/campaigns/{id} while it is queued or running (202), of POST
+// /v1/campaigns when it is planned in the background (202), of DELETE, and
+// each item of GET /v1/campaigns.
+type CampaignStatus struct {
+	ID string `json:"id" example:"4be1f0a27c9d35e6a810"`
+	// State is queued, running, done, failed or cancelled.
+	State string `json:"state" enums:"queued,running,done,failed,cancelled"`
+	// Conditions is the number of the campaign's conditions.
+	Conditions int `json:"conditions"`
+	// Done of Total steps of the current attempt are finished: each condition
+	// counts twice, once planned at its own best scale in every facility and
+	// once given its final plan (the scale search between is not counted).
+	// Total is 0 until a replica has begun the attempt.
+	Done  int `json:"done"`
+	Total int `json:"total"`
+	// Attempt counts the runs begun: more than 1 when a replica died, or shut
+	// down, while running it and another took it over from the start.
+	Attempt int `json:"attempt"`
+	// Facilities are the campaign's facility ids.
+	Facilities []string `json:"facilities"`
+	// CreatedAt is when the campaign was stored, UpdatedAt when its state or
+	// progress last changed (UTC).
+	CreatedAt time.Time `json:"created_at"`
+	UpdatedAt time.Time `json:"updated_at"`
+	// Href is the campaign's URL: GET answers its progress, then its result.
+	Href string `json:"href" example:"/v1/campaigns/4be1f0a27c9d35e6a810"`
+}
+
+// CampaignList is the answer of GET /v1/campaigns: a page of stored campaigns,
+// newest first.
+type CampaignList struct {
+	Campaigns []CampaignStatus `json:"campaigns"`
+	// NextCursor continues the listing; absent on the last page.
+	NextCursor string `json:"next_cursor,omitempty"`
+	// Next is the URL of the next page; absent on the last page.
+	Next string `json:"next,omitempty"`
+}

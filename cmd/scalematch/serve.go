@@ -49,6 +49,8 @@ type serveOptions struct {
 	drain time.Duration
 	// metricsAddr, when set, serves /metrics there instead of on addr.
 	metricsAddr string
+	// jobs configures the background worker of large campaigns.
+	jobs api.JobsConfig
 	// ready, when set (by tests), is called with the listening address.
 	ready func(net.Addr)
 }
@@ -78,6 +80,12 @@ is recorded with every change it makes; a bare token is recorded as "token-1",
 other ids are refused (403). A token cannot contain ':'. With no tokens, catalog
 changes are refused (403); reads and planning stay open.
 
+Campaigns too large to answer at once are stored as jobs and planned in the
+background by a worker in each replica (--job-slots at a time, none with
+--no-jobs). A replica holds a job under a lease it renews; a job whose replica
+died is taken over by another, or by this one when it restarts, once --job-lease
+has passed since its last renewal, and planned again from the start.
+
 On SIGTERM the service reports itself unready (/readyz 503) for --drain while it
 still serves, then stops accepting connections and finishes the requests in
 flight (at most 30 s).`,
@@ -89,6 +97,9 @@ flight (at most 30 s).`,
 			var err error
 			if o.tokens, o.scopes, err = parseWriteTokens(os.Getenv(envWriteTokens)); err != nil {
 				return err
+			}
+			if o.jobs.Lease < time.Second || o.jobs.Slots < 1 || o.jobs.Slots > 64 {
+				return fmt.Errorf("--job-lease %s and --job-slots %d: want a lease of at least 1s and 1 to 64 slots", o.jobs.Lease, o.jobs.Slots)
 			}
 			o.databaseURL = os.Getenv(envDatabaseURL)
 			ctx, stop := signal.NotifyContext(cmd.Context(), os.Interrupt, syscall.SIGTERM)
@@ -102,6 +113,9 @@ flight (at most 30 s).`,
 	f.BoolVar(&o.noDemo, "no-demo", false, "do not seed a new catalog with the demo facilities")
 	f.DurationVar(&o.drain, "drain", 5*time.Second, "on SIGTERM, how long to report unready (/readyz 503) while still serving before new connections are refused")
 	f.StringVar(&o.metricsAddr, "metrics-addr", "", "serve /metrics on this address (host:port) instead of on --addr")
+	f.DurationVar(&o.jobs.Lease, "job-lease", 30*time.Second, "how long a replica's claim on a campaign job holds without renewal: a job whose replica died is taken over after this long")
+	f.IntVar(&o.jobs.Slots, "job-slots", 1, "how many campaign jobs this replica plans at once")
+	f.BoolVar(&o.jobs.Off, "no-jobs", false, "plan no campaign jobs here (other replicas do); large campaigns are still accepted and stored")
 	return cmd
 }
 
@@ -241,6 +255,7 @@ func serve(ctx context.Context, o serveOptions, logw io.Writer) (err error) {
 		Logger:           log,
 		DrainDelay:       o.drain,
 		MetricsElsewhere: mln != nil,
+		Jobs:             o.jobs,
 	})
 	if err != nil {
 		return err
