@@ -370,4 +370,3 @@ func (s *Server) listCampaigns(c *gin.Context) {
 	}
 	s.answer(c, http.StatusOK, out)
 }
-
