@@ -100,19 +100,18 @@ def call(method, url, body=None, accept="application/json"):
 
 
 def wait_for_job(base, location, every=0.5):
-    """Poll a campaign job until it is done; print its progress on stderr."""
+    """Poll a campaign job until it is done, printing its progress on stderr,
+    and return its result as CSV. GET answers 202 with the job's state and
+    progress while it is queued or running, 200 with the result once it is
+    done, and the job's problem if it failed (409 if it was cancelled)."""
     while True:
-        _, _, raw = call("GET", base + location)
+        status, _, raw = call("GET", base + location, accept="text/csv")
+        if status == 200:
+            print(file=sys.stderr)
+            return raw
         job = json.loads(raw)
-        state = job.get("state")
-        done, total = job.get("done", 0), job.get("total", 0)
-        print(f"\r{state}: {done} of {total}", end="", file=sys.stderr, flush=True)
-        if state == "done":
-            print(file=sys.stderr)
-            return
-        if state in ("failed", "cancelled"):
-            print(file=sys.stderr)
-            raise ServiceError(f"the campaign job {state}: {job.get('problem')}")
+        print(f"\r{job.get('state')}: {job.get('done', 0)} of {job.get('total', 0)}",
+              end="", file=sys.stderr, flush=True)
         time.sleep(every)
 
 
@@ -127,9 +126,7 @@ def main(argv=None):
     try:
         status, headers, raw = call("POST", base + "/v1/campaigns", req, accept="text/csv")
         if status == 202:
-            location = headers.get("Location")
-            wait_for_job(base, location)
-            status, headers, raw = call("GET", base + location, accept="text/csv")
+            raw = wait_for_job(base, headers.get("Location"))
     except ServiceError as e:
         print(f"campaign: {e}", file=sys.stderr)
         return 1
