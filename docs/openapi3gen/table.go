@@ -40,6 +40,8 @@ var goTypes = map[string]any{
 	"schema.GroupsResponse":     schema.GroupsResponse{},
 	"schema.FacilityList":       schema.FacilityList{},
 	"schema.PlanList":           schema.PlanList{},
+	"schema.CampaignList":       schema.CampaignList{},
+	"schema.CampaignStatus":     schema.CampaignStatus{},
 	"schema.FacilityHistory":    schema.FacilityHistory{},
 	"schema.Problem":            schema.Problem{},
 	"api.Health":                api.Health{},
