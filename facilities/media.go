@@ -1,6 +1,7 @@
 package facilities
 
 import (
+	"fmt"
 	"math"
 
 	"scalematch/atmosphere"
@@ -16,8 +17,10 @@ const MolarGasConstant = 8.314462618
 const (
 	// NitrogenMolarMass is the molar mass of N₂ in kg/mol.
 	NitrogenMolarMass = 0.0280134
-	// NitrogenGamma is the ratio of specific heats used for nitrogen's isentropic
-	// relations (the ideal diatomic value).
+	// NitrogenGamma is the ideal diatomic ratio of specific heats of nitrogen. The
+	// test-section state does not use it (it follows the real-gas isentrope of
+	// nitrogen's equation of state); it starts that solution and gives the
+	// ideal-gas figures in messages.
 	NitrogenGamma = 1.4
 	// NitrogenCriticalTemperature is Tc of N₂ in K (Span et al. 2000, J. Phys. Chem.
 	// Ref. Data 29:1361; from memory).
@@ -30,16 +33,12 @@ const (
 	// NitrogenBoilingTemperature is the normal boiling point of N₂ in K, where the
 	// vapour pressure is 101 325 Pa (Span et al. 2000; from memory).
 	NitrogenBoilingTemperature = 77.355
-	// NitrogenViscosityReference is μ_ref of N₂'s Sutherland law in Pa·s at
-	// NitrogenViscosityTemperature (White, Viscous Fluid Flow, table 1-2; from memory).
-	NitrogenViscosityReference = 1.663e-5
-	// NitrogenViscosityTemperature is T_ref of N₂'s Sutherland law in K.
-	NitrogenViscosityTemperature = 273.0
-	// NitrogenSutherlandConstant is S of N₂'s Sutherland law in K.
-	NitrogenSutherlandConstant = 107.0
-	// NitrogenViscosityFloor is the temperature in K below which the Sutherland
-	// viscosity of nitrogen is an extrapolation (about ±2 % from 100 K up).
-	NitrogenViscosityFloor = 100.0
+	// NitrogenViscosityMin and NitrogenViscosityMax bound, in K, the range of the
+	// nitrogen viscosity correlation of Lemmon & Jacobsen (2004): the triple point
+	// 63.151 K to 1000 K (the paper's range for nitrogen; from memory). Outside it
+	// the value is extrapolated (ViscosityWarning).
+	NitrogenViscosityMin = 63.151
+	NitrogenViscosityMax = 1000.0
 )
 
 // Water constants (physics.md §3).
@@ -92,20 +91,21 @@ func (m Medium) GasConstant() float64 {
 	return 0
 }
 
-// Viscosity returns the dynamic viscosity in Pa·s at temperature T in K: Sutherland's
-// law for the gases (air with the 1976 standard's β and S; nitrogen with
-// NitrogenViscosityReference, NitrogenViscosityTemperature and
-// NitrogenSutherlandConstant; a custom gas with its own three constants), and for
-// water WaterViscosity at Kell's one-atmosphere density (liquid water's viscosity
-// changes by well under 1 % between 0.1 and 1 MPa). Outside a model's validity range the formula is extrapolated:
-// State rejects water outside 0–150 °C and ViscosityWarning flags cold nitrogen.
-// An unknown or incomplete medium gives 0.
-func (m Medium) Viscosity(T float64) float64 {
+// Viscosity returns the dynamic viscosity in Pa·s at temperature T in K and density
+// rho in kg/m³: Sutherland's law for air (the 1976 standard's β and S) and a custom
+// gas (its own three constants), which ignore rho; Lemmon & Jacobsen (2004) for
+// nitrogen (NitrogenViscosity, whose residual term takes rho); and for water
+// WaterViscosity at Kell's one-atmosphere density, ignoring rho (liquid water's
+// viscosity changes by well under 1 % between 0.1 and 1 MPa). Outside a model's
+// validity range the formula is extrapolated: State rejects water outside 0–150 °C
+// and ViscosityWarning and the range warnings flag the gases. An unknown or
+// incomplete medium gives 0.
+func (m Medium) Viscosity(T, rho float64) float64 {
 	switch m.Kind {
 	case MediumAir:
 		return atmosphere.Sutherland(T, atmosphere.SutherlandBeta, atmosphere.SutherlandS)
 	case MediumNitrogen:
-		return sutherlandRef(T, NitrogenViscosityReference, NitrogenViscosityTemperature, NitrogenSutherlandConstant)
+		return NitrogenViscosity(T, rho)
 	case MediumGas:
 		if g := m.Gas; g != nil && g.TemperatureReference > 0 {
 			return sutherlandRef(T, g.ViscosityReference, g.TemperatureReference, g.SutherlandConstant)
@@ -126,12 +126,13 @@ func sutherlandRef(T, muRef, tRef, s float64) float64 {
 }
 
 // ViscosityWarning returns a warning the API can show when the medium's viscosity
-// model is extrapolated at temperature T in K, or "" when it is not. Nitrogen below
-// NitrogenViscosityFloor (100 K) is the one case.
+// model is extrapolated at temperature T in K, or "" when it is not: nitrogen
+// outside NitrogenViscosityMin to NitrogenViscosityMax (the range of Lemmon &
+// Jacobsen 2004). Air and custom gases are flagged by the range warnings.
 func (m Medium) ViscosityWarning(T float64) string {
-	if m.Kind == MediumNitrogen && T < NitrogenViscosityFloor {
-		return "nitrogen viscosity below 100 K is extrapolated from Sutherland's law " +
-			"(about ±2 % from 100 K up, unknown below): Reynolds numbers are rough"
+	if m.Kind == MediumNitrogen && (T < NitrogenViscosityMin || T > NitrogenViscosityMax) {
+		return fmt.Sprintf("the nitrogen viscosity at %.4g K is extrapolated beyond the range of Lemmon & Jacobsen (2004), %g K to %g K: Reynolds numbers are rough",
+			T, NitrogenViscosityMin, NitrogenViscosityMax)
 	}
 	return ""
 }

@@ -20,15 +20,19 @@ const settingMessage = "test-section setting is invalid"
 
 // State returns the test-section state at setting s (physics.md §4).
 //
-// Gas media: the free-stream Mach number is s.Mach or, when s.Mach is 0, the one
-// s.Speed gives at the stagnation temperature (closed form below). With the
-// isentropic relations of NACA Report 1135 for the medium's γ:
+// Ideal gases (air, custom gases): the free-stream Mach number is s.Mach or, when
+// s.Mach is 0, the one s.Speed gives at the stagnation temperature (closed form
+// below). With the isentropic relations of NACA Report 1135 for the medium's γ:
 //
 //	T = T0/(1 + (γ−1)/2·M²), p = p0/(T0/T)^(γ/(γ−1))
-//	ρ = p/(Z·R·T), a = √(γ·R·T), V = M·a, q = ½·ρ·V², Re/m = ρ·V/μ(T)
+//	ρ = p/(R·T), a = √(γ·R·T), V = M·a, q = ½·ρ·V², Re/m = ρ·V/μ(T)
 //
-// with Z from Peng–Robinson for nitrogen and 1 for the ideal gases. A speed V
-// becomes M² = V²/(γ·R·T0 − (γ−1)/2·V²).
+// A speed V becomes M² = V²/(γ·R·T0 − (γ−1)/2·V²).
+//
+// Nitrogen, a real gas: the static state lies on the isentrope of its equation of
+// state through the stagnation state, with h0 = h + V²/2 and V = M·a, a the same
+// equation's speed of sound (nitrogenState); ρ is the Peng–Robinson density, Z =
+// p/(ρRT), q = ½·ρ·V² and μ the Lemmon & Jacobsen (2004) viscosity.
 //
 // Water (incompressible): s.Speed is the speed and s.Mach must be 0; T = T0,
 // ρ and μ from WaterDensity and WaterViscosity, static p = p0 − q, Mach 0 and
@@ -75,6 +79,9 @@ func (f *Facility) State(s Setting) (State, error) {
 	}
 
 	t0, p0 := s.StagnationTemperature, s.StagnationPressure
+	if m.Kind == MediumNitrogen {
+		return f.nitrogenState(s)
+	}
 	mach := s.Mach
 	if mach == 0 && s.Speed > 0 {
 		den := gamma*r*t0 - 0.5*(gamma-1)*s.Speed*s.Speed
@@ -82,28 +89,17 @@ func (f *Facility) State(s Setting) (State, error) {
 			mach = s.Speed / math.Sqrt(den)
 		}
 		if !(den > 0) || mach > MaxSettingMach {
-			vmax := math.Sqrt(2 * gamma * r * t0 / (gamma - 1))
-			return State{}, Invalid(settingMessage, []FieldError{{Field: "speed", Message: fmt.Sprintf(
-				"%g m/s is outside 0 to %.4g m/s, the speed of Mach %g at a stagnation temperature of %g K (limiting expansion speed %.4g m/s)",
-				s.Speed, speedAtMach(MaxSettingMach, gamma, r, t0), MaxSettingMach, t0, vmax)}})
+			return State{}, speedError(s.Speed, gamma, r, t0)
 		}
 	}
 
 	tr := atmosphere.TemperatureRatio(mach, gamma)
 	t := t0 / tr
 	p := p0 / atmosphere.PressureRatio(mach, gamma)
-	if m.Kind == MediumNitrogen {
-		if margin := nitrogenMargin(m, t, p); margin < 0 {
-			return State{}, Invalid(settingMessage, []FieldError{{Field: "stagnation_temperature", Message: fmt.Sprintf(
-				"%g K gives a free stream of %.4g K at %.4g Pa, below nitrogen's saturation temperature %.4g K there: raise the stagnation temperature or lower the Mach number or pressure",
-				t0, t, p, t/(1+margin))}})
-		}
-	}
-	z := m.Compressibility(t, p)
-	rho := p / (z * r * t)
+	rho := p / (r * t)
 	a := math.Sqrt(gamma * r * t)
 	v := mach * a
-	mu := m.Viscosity(t)
+	mu := m.Viscosity(t, rho)
 	return State{
 		Mach:                  mach,
 		Speed:                 v,
@@ -115,7 +111,65 @@ func (f *Facility) State(s Setting) (State, error) {
 			Density:         rho,
 			Viscosity:       mu,
 			SpeedOfSound:    a,
-			Compressibility: z,
+			Compressibility: 1,
+		},
+		DynamicPressure:  0.5 * rho * v * v,
+		ReynoldsPerMeter: rho * v / mu,
+	}, nil
+}
+
+// speedError is the error of a speed beyond Mach MaxSettingMach (or the limiting
+// expansion speed) at stagnation temperature t0 in K, with the ideal-gas figures of
+// γ and R.
+func speedError(speed, gamma, r, t0 float64) error {
+	vmax := math.Sqrt(2 * gamma * r * t0 / (gamma - 1))
+	return Invalid(settingMessage, []FieldError{{Field: "speed", Message: fmt.Sprintf(
+		"%g m/s is outside 0 to %.4g m/s, the speed of Mach %g at a stagnation temperature of %g K (limiting expansion speed %.4g m/s)",
+		speed, speedAtMach(MaxSettingMach, gamma, r, t0), MaxSettingMach, t0, vmax)}})
+}
+
+// nitrogenState is State for nitrogen, a real gas: the static state lies on the
+// isentrope of nitrogen's equation of state through (p0, T0) with h0 = h + V²/2, and
+// the speed of sound is that equation's own (nitrogenFreeStream); a speed setting
+// is solved for directly (h = h0 − V²/2) and gives M = V/a. ρ is the Peng–Robinson
+// density, μ the Lemmon & Jacobsen (2004) viscosity at it.
+func (f *Facility) nitrogenState(s Setting) (State, error) {
+	m := f.Medium
+	t0, p0 := s.StagnationTemperature, s.StagnationPressure
+	gamma, r := m.Gamma(), m.GasConstant()
+	if s.Speed > 0 {
+		// The ideal-gas limit as a first screen: beyond it no real-gas state either.
+		if den := gamma*r*t0 - 0.5*(gamma-1)*s.Speed*s.Speed; !(den > 0) || s.Speed/math.Sqrt(den) > 1.05*MaxSettingMach {
+			return State{}, speedError(s.Speed, gamma, r, t0)
+		}
+	}
+	fs, err := nitrogenFreeStream(t0, p0, s.Mach, s.Speed)
+	if err != nil {
+		return State{}, err
+	}
+	if fs.mach > MaxSettingMach {
+		return State{}, speedError(s.Speed, gamma, r, t0)
+	}
+	t, p, rho := fs.T, fs.p, fs.rho
+	if margin := nitrogenMargin(m, t, p); margin < 0 {
+		return State{}, Invalid(settingMessage, []FieldError{{Field: "stagnation_temperature", Message: fmt.Sprintf(
+			"%g K gives a free stream of %.4g K at %.4g Pa, below nitrogen's saturation temperature %.4g K there: raise the stagnation temperature or lower the Mach number or pressure",
+			t0, t, p, t/(1+margin))}})
+	}
+	mu := NitrogenViscosity(t, rho)
+	v := fs.speed
+	return State{
+		Mach:                  fs.mach,
+		Speed:                 v,
+		StagnationPressure:    p0,
+		StagnationTemperature: t0,
+		Static: Static{
+			Temperature:     t,
+			Pressure:        p,
+			Density:         rho,
+			Viscosity:       mu,
+			SpeedOfSound:    fs.a,
+			Compressibility: p / (rho * r * t),
 		},
 		DynamicPressure:  0.5 * rho * v * v,
 		ReynoldsPerMeter: rho * v / mu,
@@ -232,7 +286,8 @@ func (f *Facility) condensationPeakMach() float64 {
 // The saturation line is nitrogen's, air's dew line (Lemmon et al. 2000,
 // AirDewPressure) or, for a custom gas that states its critical point, the
 // Lee–Kesler vapour pressure (LeeKeslerVapourPressure); for air and custom gases
-// the local expansion follows their ideal-gas isentrope. Media without a
+// the local expansion follows their ideal-gas isentrope, for nitrogen the real-gas
+// isentrope of its equation of state (as its free stream does). Media without a
 // saturation line in the model (water, a custom gas without a critical point) give
 // +Inf, as does a state with no positive stagnation pressure and temperature.
 // CondensationMargin does not allocate.
@@ -254,6 +309,15 @@ func (f *Facility) CondensationMargin(st State) float64 {
 	}
 	free := margin(m, st.Static.Temperature, st.Static.Pressure)
 	peak := f.condensationPeakMach()
+	if m.Kind == MediumNitrogen {
+		// The local expansion follows nitrogen's real-gas isentrope, as the free
+		// stream does; one that leaves the gas phase has condensed.
+		loc, err := nitrogenFreeStream(st.StagnationTemperature, st.StagnationPressure, peak, 0)
+		if err != nil {
+			return math.Min(free, -1)
+		}
+		return math.Min(free, margin(m, loc.T, loc.p))
+	}
 	gamma := m.Gamma()
 	tl := st.StagnationTemperature / atmosphere.TemperatureRatio(peak, gamma)
 	pl := st.StagnationPressure / atmosphere.PressureRatio(peak, gamma)

@@ -14,9 +14,9 @@ type ModelRange struct {
 	Medium string
 	// ViscosityMin and ViscosityMax bound, in K, the static temperatures over which
 	// the viscosity law holds to the accuracy ViscositySource states; outside it
-	// the law is extrapolated (a warning). 0 and +Inf when the model has no such
-	// check here (nitrogen: see Medium.ViscosityWarning; water: State refuses
-	// temperatures outside 0–150 °C).
+	// the law is extrapolated (a warning: Medium.ViscosityWarning for nitrogen, the
+	// range warnings for air and custom gases; water: State refuses temperatures
+	// outside 0–150 °C).
 	ViscosityMin, ViscosityMax float64
 	ViscositySource            string
 	// CriticalTemperature in K and CriticalPressure in Pa locate the critical point
@@ -78,8 +78,8 @@ func (m Medium) Range() ModelRange {
 			SaturationSource: "the dew line of Lemmon et al. (2000)"}
 	case MediumNitrogen:
 		return ModelRange{Medium: MediumNitrogen,
-			ViscosityMin: 0, ViscosityMax: math.Inf(1),
-			ViscositySource:     "see the nitrogen viscosity model",
+			ViscosityMin: NitrogenViscosityMin, ViscosityMax: NitrogenViscosityMax,
+			ViscositySource:     "Lemmon & Jacobsen (2004), from the triple point to 1000 K",
 			CriticalTemperature: NitrogenCriticalTemperature, CriticalPressure: NitrogenCriticalPressure, AcentricFactor: NitrogenAcentricFactor,
 			SaturationSource: "nitrogen's saturation line"}
 	case MediumWater:

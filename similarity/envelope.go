@@ -140,7 +140,8 @@ func LowestStagnationTemperature(f *facilities.Facility, mach, p0 float64) (floa
 	t := sv.tfloor(&c, p0)
 	switch {
 	case c.cond && t > c.ta:
-		return t, facilities.ConstraintCondensation, nil
+		_, name := sv.floorMargin(&c, p0, t)
+		return t, name, nil
 	case c.ta > f.StagnationTemperature.Min:
 		return t, facilities.ConstraintSpeedMin, nil
 	}

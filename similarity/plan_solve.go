@@ -89,13 +89,15 @@ type machSetup struct {
 	pTop        float64          // highest usable p0 before any q ceiling, Pa
 	capTop      string           // the limit that sets pTop
 	k           float64          // dynamic pressure per Pa of p0 (ideal gas) or q itself (water)
-	stRef       facilities.State // a usable state at (pa, tRef): its speed scales as √T0
+	stRef       facilities.State // a usable state at (pa, tRef); ideal gas: its speed scales as √T0
 	tRef        float64
 	rlo         float64 // lowest Re/m, at (pa, tb), once rloOK
 	rloOK       bool
 	ra          float64    // Re/m at (pa, ta)
+	qLow        float64    // the lowest q at this Mach number (at pa), Pa
 	linear      bool       // q and Re/m ∝ p0 along the T0 floor (ideal gas, no condensation)
-	cond        bool       // condensation sets the T0 floor somewhere in [pa, pTop]
+	cond        bool       // condensation (or vmin) sets the T0 floor somewhere in [pa, pTop]
+	vmin        float64    // nitrogen: the facility's lowest speed, held in the T0 floor, m/s; 0 for none
 	facilityTop topSetting // the highest usable Re/m within the facility's own limits
 
 	// Water only.
@@ -111,9 +113,10 @@ type topSetting struct {
 	q    float64 // dynamic pressure in Pa
 	cap  string  // the limit that stops Re/m rising
 	// edge: even p0 at its minimum needs T0 above the floor to keep q under the
-	// ceiling (real-gas nitrogen, whose q = γ·p·M²/(2Z) grows as it cools); p0 is
-	// then pinned at its minimum and T0 is the free variable from t up.
+	// ceiling (real-gas nitrogen where q falls as it warms, near a high T0 floor);
+	// p0 is then pinned at its minimum and T0 is the free variable from t up.
 	edge bool
+	v    float64 // speed, m/s
 }
 
 // candidate is a full candidate at (machOrSpeed, s): the test setting and its figures.
@@ -558,15 +561,26 @@ func (sv *solver) setURange() error {
 	}
 	if f.Speed != nil {
 		// The lowest Mach number comes with the lowest speed at the highest T0, the
-		// highest with the highest speed at the lowest T0.
-		pa := f.StagnationPressure.Max
-		if st, err := f.State(facilities.Setting{Speed: f.Speed.Min, StagnationPressure: pa, StagnationTemperature: f.StagnationTemperature.Max}); err == nil {
-			lo = math.Max(lo, st.Mach)
+		// highest with the highest speed at the lowest T0; for real-gas nitrogen
+		// the speed of sound also depends on p0 (it falls as p0 rises when cold,
+		// rises slightly when warm), so both ends of the p0 range are tried (an
+		// ideal gas gives the same at both).
+		mlo, mhi := math.Inf(1), 0.0
+		for _, p0 := range []float64{f.StagnationPressure.Min, f.StagnationPressure.Max} {
+			if st, err := f.State(facilities.Setting{Speed: f.Speed.Min, StagnationPressure: p0, StagnationTemperature: f.StagnationTemperature.Max}); err == nil {
+				mlo = math.Min(mlo, st.Mach)
+			}
+			if st, err := f.State(facilities.Setting{Speed: f.Speed.Max, StagnationPressure: p0, StagnationTemperature: f.StagnationTemperature.Min}); err == nil {
+				mhi = math.Max(mhi, st.Mach)
+			}
+			sv.evals += 2
 		}
-		if st, err := f.State(facilities.Setting{Speed: f.Speed.Max, StagnationPressure: pa, StagnationTemperature: f.StagnationTemperature.Min}); err == nil {
-			hi = math.Min(hi, st.Mach)
+		if !math.IsInf(mlo, 1) {
+			lo = math.Max(lo, mlo)
 		}
-		sv.evals += 2
+		if mhi > 0 {
+			hi = math.Min(hi, mhi)
+		}
 	}
 	if !(lo <= hi) || hi <= 0 {
 		return unprocessable("the facility's Mach and speed ranges do not overlap at any stagnation temperature",
@@ -589,14 +603,23 @@ func (sv *solver) state(machOrSpeed, p0, t0 float64) (facilities.State, error) {
 	return sv.f.State(set)
 }
 
-// margin returns the condensation margin at machOrSpeed, p0, T0 less the allowed minimum:
-// ≥ 0 is usable. An unusable state counts as −1.
-func (sv *solver) margin(machOrSpeed, p0, t0 float64) float64 {
-	st, err := sv.state(machOrSpeed, p0, t0)
+// floorMargin returns how far the setting (p0, T0) at c's Mach number is above the
+// T0 floor, ≥ 0 where it is usable, and the limit that sets the floor there: the
+// condensation margin less the allowed minimum (condensation), or, for nitrogen
+// with a speed range (c.vmin > 0), V/vmin − 1 (speed_min), whichever is lower. An
+// unusable state counts as −1 (condensation).
+func (sv *solver) floorMargin(c *machSetup, p0, t0 float64) (float64, string) {
+	st, err := sv.state(c.machOrSpeed, p0, t0)
 	if err != nil {
-		return -1
+		return -1, facilities.ConstraintCondensation
 	}
-	return sv.f.CondensationMargin(st) - sv.condMin
+	m, name := sv.f.CondensationMargin(st)-sv.condMin, facilities.ConstraintCondensation
+	if c.vmin > 0 {
+		if v := st.Speed/c.vmin - 1; v < m {
+			m, name = v, facilities.ConstraintSpeedMin
+		}
+	}
+	return m, name
 }
 
 // loadQ returns the load limit's dynamic-pressure ceiling at scale s and state st.
@@ -674,19 +697,22 @@ func (sv *solver) raiseFloor(c *machSetup, lo float64, tp topSetting) (machSetup
 		c2.pa = p
 		return c2, true
 	}
-	qWarm := func(p float64) float64 {
+	// Real-gas nitrogen: the lowest q at a p0 is at one end of the T0 range (the
+	// floor, usually, or the warmest T0), so both ends must reach the floor.
+	qLowAt := func(p float64) float64 {
 		st, err := sv.state(c.machOrSpeed, p, c.tb)
 		if err != nil {
 			return -1
 		}
-		return st.DynamicPressure - lo
+		return math.Min(st.DynamicPressure, sv.qcurve(c, p)) - lo
 	}
-	p := sv.rootHi(qWarm, c.pa, tp.p, true)
+	p := sv.rootHi(qLowAt, c.pa, tp.p, true)
 	st, err := sv.state(c.machOrSpeed, p, c.tb)
-	if err != nil || st.DynamicPressure < lo*(1-limitSlack) {
+	if err != nil || qLowAt(p) < -lo*limitSlack {
 		return c2, false
 	}
 	c2.pa, c2.stRef, c2.tRef, c2.k = p, st, c.tb, st.DynamicPressure/p
+	c2.qLow = lo + qLowAt(p)
 	c2.rlo, c2.rloOK = st.ReynoldsPerMeter, true
 	c2.ra = sv.rcurve(&c2, p)
 	return c2, true
@@ -729,10 +755,17 @@ func (sv *solver) prepare(machOrSpeed float64) machSetup {
 	}
 }
 
-// prepareNitrogen is prepare for nitrogen, a real gas (Peng–Robinson Z) that can
-// condense: q and Re/m are proportional to p0 only where Z = 1 at both ends of the
-// T0 range and condensation does not set the T0 floor (linear); elsewhere the
-// floor and the q and Re/m curves are evaluated state by state.
+// prepareNitrogen is prepare for nitrogen, a real gas that can condense: its
+// speed of sound, q and Re/m come from its equation of state along the real-gas
+// isentrope, so nothing is proportional to p0 or √T0 and the floor and the q and
+// Re/m curves are evaluated state by state. At a fixed Mach number q falls slightly
+// (under 0.5 %) as the gas cools at the T0 floor's end of the range and is nearly flat
+// warm, so the lowest q at p0 min is the smaller of its two ends (qLow). The speed
+// at a fixed Mach number rises with T0 and, cold, falls with p0 (warm, it rises
+// slightly): a facility's highest speed gives the top T0 at p0 min by root-finding,
+// held at every p0 (warm settings are used at p0 min only); the lowest speed joins
+// the condensation rule in the T0 floor at each p0 (floorMargin), and raises p0 min
+// when even the warmest T0 is too slow there.
 func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	f := sv.f
 	c := machSetup{machOrSpeed: machOrSpeed}
@@ -744,20 +777,40 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		c.fail = facilities.ConstraintCondensation
 		return c
 	}
-	if f.Speed != nil {
-		tlo, thi, fail := speedWindow(f.Speed, stB.Speed, tb, ta, tb)
-		if fail != "" {
-			c.fail = fail
-			return c
+	if sp := f.Speed; sp != nil {
+		vAt := func(p, t float64) float64 {
+			st, err := sv.state(machOrSpeed, p, t)
+			if err != nil {
+				return 0 // the free stream condenses: below every speed of the range
+			}
+			return st.Speed
 		}
-		ta = math.Max(ta, tlo)
-		if thi < tb {
-			tb = thi
+		if stB.Speed < sp.Min*(1-limitSlack) {
+			// Too slow at p0 min even at the warmest T0; warm nitrogen's speed of
+			// sound rises with p0, so a higher p0 may do: p0 min moves up to it.
+			if vAt(pb, tb) < sp.Min*(1-limitSlack) {
+				c.fail = facilities.ConstraintSpeedMin
+				return c
+			}
+			pa = sv.rootHi(func(p float64) float64 { return vAt(p, tb) - sp.Min }, pa, pb, true)
+			c.pa = pa
 			if stB, err = sv.state(machOrSpeed, pa, tb); err != nil {
 				c.fail = facilities.ConstraintCondensation
 				return c
 			}
 		}
+		if vAt(pa, ta) > sp.Max*(1+limitSlack) {
+			c.fail = facilities.ConstraintSpeedMax
+			return c
+		}
+		if stB.Speed > sp.Max {
+			tb = sv.rootHi(func(t float64) float64 { return sp.Max - vAt(pa, t) }, ta, tb, false)
+			if stB, err = sv.state(machOrSpeed, pa, tb); err != nil {
+				c.fail = facilities.ConstraintCondensation
+				return c
+			}
+		}
+		c.vmin = sp.Min
 	}
 	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stB, tb
 	c.k = stB.DynamicPressure / pa
@@ -766,21 +819,18 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		c.fail = facilities.ConstraintReynoldsUnit
 		return c
 	}
-	if stB.DynamicPressure > sv.qmax*(1+limitSlack) {
-		c.fail = facilities.ConstraintDynamic
-		return c
-	}
 	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
 	if sv.f.CondensationMargin(stB) < sv.condMin {
 		c.fail = facilities.ConstraintCondensation
 		return c
 	}
-	if sv.margin(machOrSpeed, pb, ta) < 0 {
+	mLo, _ := sv.floorMargin(&c, pa, ta)
+	if mHi, _ := sv.floorMargin(&c, pb, ta); mHi < 0 || mLo < 0 {
 		c.cond = true
-		if sv.margin(machOrSpeed, pb, tb) < 0 {
-			// Above some p0 even the warmest usable T0 condenses.
-			c.pTop = sv.rootHi(func(p float64) float64 { return sv.margin(machOrSpeed, p, tb) }, pa, pb, false)
-			c.capTop = facilities.ConstraintCondensation
+		if m, name := sv.floorMargin(&c, pb, tb); m < 0 {
+			// Above some p0 even the warmest usable T0 condenses (or is too slow).
+			c.pTop = sv.rootHi(func(p float64) float64 { m, _ := sv.floorMargin(&c, p, tb); return m }, pa, pb, false)
+			c.capTop = name
 		}
 	}
 	stA := stB
@@ -791,8 +841,11 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		}
 	}
 	c.ra = stA.ReynoldsPerMeter
-	c.linear = !c.cond && f.Medium.Compressibility(stA.Static.Temperature, stA.Static.Pressure) == 1 &&
-		f.Medium.Compressibility(stB.Static.Temperature, stB.Static.Pressure) == 1
+	c.qLow = math.Min(stA.DynamicPressure, stB.DynamicPressure)
+	if c.qLow > sv.qmax*(1+limitSlack) {
+		c.fail = facilities.ConstraintDynamic
+		return c
+	}
 	c.facilityTop = sv.highestSetting(&c, sv.qmax, facilities.ConstraintDynamic)
 	c.ok = true
 	return c
@@ -829,6 +882,7 @@ func (sv *solver) prepareIdeal(machOrSpeed float64) machSetup {
 	}
 	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stA, ta
 	c.k = stA.DynamicPressure / pa
+	c.qLow = stA.DynamicPressure
 	if stA.DynamicPressure > sv.qmax*(1+limitSlack) {
 		c.fail = facilities.ConstraintDynamic
 		return c
@@ -899,34 +953,36 @@ func (sv *solver) highestSetting(c *machSetup, qc float64, name string) topSetti
 		t.t = sv.tfloor(c, t.p)
 	}
 	if c.linear {
-		t.r, t.q = c.ra*t.p/c.pa, c.k*t.p
+		t.r, t.q, t.v = c.ra*t.p/c.pa, c.k*t.p, c.stRef.Speed*math.Sqrt(t.t/c.tRef)
 	} else {
 		st, err := sv.state(c.machOrSpeed, t.p, t.t)
 		if err != nil {
 			t.r, t.q = 0, math.Inf(1)
 			return t
 		}
-		t.r, t.q = st.ReynoldsPerMeter, st.DynamicPressure
+		t.r, t.q, t.v = st.ReynoldsPerMeter, st.DynamicPressure, st.Speed
 	}
 	if t.r > sv.remax {
 		// The Re/m ceiling: the lowest p0 (then T0) that reaches it.
 		t.p, t.t = sv.solveR(c, t, sv.remax)
 		t.cap, t.r = facilities.ConstraintReynoldsUnit, sv.remax
-		t.q = sv.qAt(c, t.p, t.t)
+		t.q, t.v = sv.qAt(c, t.p, t.t)
 	}
 	return t
 }
 
-// qAt returns the dynamic pressure at c's Mach number, p0 and T0.
-func (sv *solver) qAt(c *machSetup, p0, t0 float64) float64 {
+// qAt returns the dynamic pressure in Pa and the speed in m/s at c's Mach number,
+// p0 and T0: in closed form for an ideal gas (q ∝ p0, V ∝ √T0), else from the
+// state.
+func (sv *solver) qAt(c *machSetup, p0, t0 float64) (q, v float64) {
 	if c.linear {
-		return c.k * p0
+		return c.k * p0, c.stRef.Speed * math.Sqrt(t0/c.tRef)
 	}
 	st, err := sv.state(c.machOrSpeed, p0, t0)
 	if err != nil {
-		return math.Inf(1)
+		return math.Inf(1), 0
 	}
-	return st.DynamicPressure
+	return st.DynamicPressure, st.Speed
 }
 
 // solveR returns the lowest-q setting with Re/m = r (≤ tp.r) at c's Mach number:
@@ -1028,12 +1084,16 @@ func (sv *solver) waterR(machOrSpeed, p0, t float64) float64 {
 }
 
 // tfloor returns the lowest usable stagnation temperature at p0: the facility's (or
-// the speed range's) floor, or the condensation line above it.
+// the speed range's) floor, or the condensation line (or nitrogen's lowest speed)
+// above it (floorMargin).
 func (sv *solver) tfloor(c *machSetup, p0 float64) float64 {
-	if !c.cond || sv.margin(c.machOrSpeed, p0, c.ta) >= 0 {
+	if !c.cond {
 		return c.ta
 	}
-	return sv.rootHi(func(t float64) float64 { return sv.margin(c.machOrSpeed, p0, t) }, c.ta, c.tb, true)
+	if m, _ := sv.floorMargin(c, p0, c.ta); m >= 0 {
+		return c.ta
+	}
+	return sv.rootHi(func(t float64) float64 { m, _ := sv.floorMargin(c, p0, t); return m }, c.ta, c.tb, true)
 }
 
 // rcurve returns Re/m at p0 on the T0 floor (gas), the highest Re/m at that p0.
@@ -1074,7 +1134,7 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 	tp := c.facilityTop
 	if sv.load != nil {
 		if qb := w.Hi; qb < tp.q {
-			if qb < c.k*c.pa*(1-limitSlack) {
+			if qb < c.qLow*(1-limitSlack) {
 				x.fail, x.k = sv.loadName, worst
 				return x
 			}
@@ -1085,7 +1145,7 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 	// T0 reaches it, the top setting is the one setting known to (q is highest
 	// there), and the candidate keeps to it.
 	pinned := false
-	if lo := w.Lo; lo > c.k*c.pa {
+	if lo := w.Lo; lo > c.qLow {
 		// The resolution floor: the lowest p0 rises to where q reaches it.
 		if !(lo <= tp.q*(1+limitSlack)) {
 			x.fail, x.k = sv.floorName, worst
@@ -1108,12 +1168,11 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 	r = math.Min(r, tp.r)
 	x.r = r
 	if r >= tp.r {
-		x.p0, x.t0, x.q = tp.p, tp.t, tp.q
+		x.p0, x.t0, x.q, x.v = tp.p, tp.t, tp.q, tp.v
 	} else {
 		x.p0, x.t0 = sv.solveR(c, tp, r)
-		x.q = sv.qAt(c, x.p0, x.t0)
+		x.q, x.v = sv.qAt(c, x.p0, x.t0)
 	}
-	x.v = c.stRef.Speed * math.Sqrt(x.t0/c.tRef)
 	x.ok = true
 	x.k = sv.keyOf(c.machOrSpeed, s, x.r, x.q, x.v, r == target, 0)
 	return x

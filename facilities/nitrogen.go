@@ -1,0 +1,298 @@
+package facilities
+
+import (
+	"fmt"
+	"math"
+)
+
+// Nitrogen's thermodynamic model (physics.md §3–4): the Peng–Robinson equation of
+// state (Peng & Robinson 1976, Ind. Eng. Chem. Fundam. 15:59) for the departure from
+// the ideal gas, the ideal-gas heat capacity of Span et al. (2000, J. Phys. Chem.
+// Ref. Data 29:1361) for the ideal gas itself, and from the two the speed of sound,
+// the enthalpy and the entropy, so that the test-section state follows the real-gas
+// isentrope and a² = (∂p/∂ρ)_s of the same equation.
+
+// nitrogenPR holds the Peng–Robinson constants of nitrogen in mass units: a in
+// Pa·m⁶/kg² (without α(T)), b in m³/kg, κ, and R in J/(kg·K).
+var nitrogenPR = func() struct{ a, b, kappa, r float64 } {
+	r := MolarGasConstant / NitrogenMolarMass
+	tc, pc, om := NitrogenCriticalTemperature, NitrogenCriticalPressure, NitrogenAcentricFactor
+	return struct{ a, b, kappa, r float64 }{
+		a:     prOmegaA * r * r * tc * tc / pc,
+		b:     prOmegaB * r * tc / pc,
+		kappa: 0.37464 + om*(1.54226-0.26992*om),
+		r:     r,
+	}
+}()
+
+// spanIdeal holds the ideal-gas Helmholtz energy of nitrogen of Span et al. (2000,
+// eq. 10 and table 12; the coefficients checked by testdata/reference/nitrogen/gen.py
+// against the paper's tabulated states), in τ = Tc/T:
+//
+//	α⁰ = ln δ + a1·ln τ + a2 + a3·τ + a4/τ + a5/τ² + a6/τ³ + a7·ln(1 − exp(−a8·τ))
+//
+// so that c_v⁰/R = −τ²·∂²α⁰/∂τ² (2.5 plus small terms, 3.5 for c_p⁰/R). a2, the
+// entropy constant, is left out: only differences of entropy are used.
+var spanIdeal = struct{ a1, a3, a4, a5, a6, a7, a8 float64 }{
+	a1: 2.5, a3: -0.00784163, a4: -1.934819e-4, a5: -1.247742e-5, a6: 6.678326e-8,
+	a7: 1.012941, a8: 26.65788,
+}
+
+// n2Props are nitrogen's properties at a temperature and density.
+type n2Props struct {
+	p     float64 // pressure, Pa
+	pRho  float64 // (∂p/∂ρ)_T, m²/s²
+	pT    float64 // (∂p/∂T)_ρ, Pa/K
+	cv    float64 // J/(kg·K)
+	h     float64 // specific enthalpy, J/kg (ideal-gas zero arbitrary)
+	s     float64 // specific entropy, J/(kg·K) (zero arbitrary)
+	a2    float64 // speed of sound squared, m²/s²
+	a2T   float64 // (∂a²/∂T)_ρ, m²/(s²·K)
+	a2Rho float64 // (∂a²/∂ρ)_T, m⁵/(kg·s²)
+	valid bool    // a gas-like state: 1 − bρ > 0, (∂p/∂ρ)_T > 0, c_v > 0
+}
+
+// nitrogenAt returns nitrogen's properties at temperature T in K and density rho in
+// kg/m³ from the Peng–Robinson equation and its departure functions (residual
+// Helmholtz energy a_r = −RT·ln(1 − bρ) − aα·L, L = ln[(1 + (1+√2)bρ)/(1 + (1−√2)bρ)]/(2√2·b)):
+//
+//	p = ρRT/(1 − bρ) − aα·ρ²/(1 + 2bρ − b²ρ²)
+//	s − s⁰(T, ρ) = R·ln(1 − bρ) + (aα)′·L
+//	h − h⁰(T) = (T·(aα)′ − aα)·L + p/ρ − RT
+//	c_v − c_v⁰(T) = T·(aα)″·L
+//	c_p = c_v + T·(∂p/∂T)²_ρ/(ρ²·(∂p/∂ρ)_T), a² = (c_p/c_v)·(∂p/∂ρ)_T
+//
+// with the ideal-gas parts h⁰, s⁰, c_v⁰ from spanIdeal.
+func nitrogenAt(T, rho float64) n2Props {
+	c := &nitrogenPR
+	r, b := c.r, c.b
+	// α(T) = (1 + κ(1 − √T_r))² and its T derivatives.
+	sq := math.Sqrt(T / NitrogenCriticalTemperature)
+	m := 1 + c.kappa*(1-sq)
+	aa := c.a * m * m
+	da := -c.a * c.kappa * m * sq / T                          // (aα)′
+	dda := c.a * c.kappa * sq / (2 * T * T) * (c.kappa*sq + m) // (aα)″
+
+	br := b * rho
+	one := 1 - br
+	d := 1 + br*(2-br)
+	const s2 = math.Sqrt2
+	l := math.Log((1+(1+s2)*br)/(1+(1-s2)*br)) / (2 * s2 * b)
+	rt := r * T
+	var n n2Props
+	n.p = rho*rt/one - aa*rho*rho/d
+	n.pRho = rt/(one*one) - 2*aa*rho*(1+br)/(d*d)
+	n.pT = rho*r/one - da*rho*rho/d
+
+	// Ideal-gas parts of Span et al. (2000) in τ = Tc/T.
+	g := &spanIdeal
+	tau := NitrogenCriticalTemperature / T
+	it := 1 / tau
+	e := math.Exp(-g.a8 * tau)
+	// τ·∂α⁰/∂τ and −τ²·∂²α⁰/∂τ².
+	tat := g.a1 + g.a3*tau - it*(g.a4+it*(2*g.a5+it*3*g.a6)) + g.a7*g.a8*tau*e/(1-e)
+	cv0 := g.a1 - it*(2*g.a4+it*(6*g.a5+it*12*g.a6)) + g.a7*g.a8*g.a8*tau*tau*e/((1-e)*(1-e))
+	alpha0 := math.Log(rho) + g.a1*math.Log(tau) + g.a3*tau + it*(g.a4+it*(g.a5+it*g.a6)) + g.a7*math.Log(1-e)
+
+	n.cv = r*cv0 + T*dda*l
+	n.h = rt*(1+tat) + (T*da-aa)*l + n.p/rho - rt
+	n.s = r*(tat-alpha0) + r*math.Log(one) + da*l
+	n.valid = one > 0 && n.pRho > 0 && n.cv > 0 && rho > 0 && n.pT != 0
+	if !n.valid {
+		return n
+	}
+	// a² = (∂p/∂ρ)_T + X, X = T·(∂p/∂T)²/(ρ²·c_v), and its derivatives for the
+	// Newton steps of nitrogenExpand. (aα)‴ = −1.5·(aα)″/T.
+	x := T * n.pT * n.pT / (rho * rho * n.cv)
+	n.a2 = n.pRho + x
+	pRhoT := r/(one*one) - 2*da*rho*(1+br)/(d*d)
+	pRhoRho := 2*b*rt/(one*one*one) - 2*aa*((1+2*br)/(d*d)-4*b*rho*(1+br)*one/(d*d*d))
+	pTT := -dda * rho * rho / d
+	dcv0 := 2*g.a4*it*it + it*it*it*(12*g.a5+36*g.a6*it) +
+		g.a7*g.a8*g.a8*(2*tau*e/((1-e)*(1-e))-g.a8*tau*tau*e*(1+e)/((1-e)*(1-e)*(1-e)))
+	cvT := -r*tau/T*dcv0 - 0.5*dda*l
+	cvRho := T * dda / d
+	n.a2T = pRhoT + x/T + x*(2*pTT/n.pT-cvT/n.cv)
+	n.a2Rho = pRhoRho + x*(2*pRhoT/n.pT-2/rho-cvRho/n.cv)
+	return n
+}
+
+// NitrogenSpeedOfSound returns the speed of sound in m/s of nitrogen at temperature T
+// in K and pressure p in Pa from the Peng–Robinson equation with its departure
+// functions and the ideal-gas heat capacity of Span et al. (2000): a² = (∂p/∂ρ)_s =
+// (c_p/c_v)·(∂p/∂ρ)_T. It returns 0 for T ≤ 0 or p ≤ 0.
+func NitrogenSpeedOfSound(T, p float64) float64 {
+	if !(T > 0 && p > 0) {
+		return 0
+	}
+	n := nitrogenAt(T, nitrogenDensity(T, p))
+	return math.Sqrt(n.a2)
+}
+
+// nitrogenDensity returns the Peng–Robinson density of nitrogen in kg/m³ at T in K
+// and p in Pa (the vapour root, as PengRobinsonZ).
+func nitrogenDensity(T, p float64) float64 {
+	z := PengRobinsonZ(T, p, NitrogenCriticalTemperature, NitrogenCriticalPressure, NitrogenAcentricFactor)
+	return p / (z * nitrogenPR.r * T)
+}
+
+// NitrogenEntropyEnthalpy returns nitrogen's specific entropy in J/(kg·K) and
+// enthalpy in J/kg at T in K and density rho in kg/m³ (both with an arbitrary zero),
+// and its pressure in Pa: the functions the isentrope holds constant, for tests of
+// the speed of sound against (∂p/∂ρ)_s.
+func NitrogenEntropyEnthalpy(T, rho float64) (s, h, p float64) {
+	n := nitrogenAt(T, rho)
+	return n.s, n.h, n.p
+}
+
+// nitrogenMaxSteps bounds the Newton iterations of nitrogenExpand.
+const nitrogenMaxSteps = 30
+
+// nitrogenExpand returns the static temperature in K, density in kg/m³ and the
+// properties there of nitrogen expanded isentropically from the stagnation state
+// (t0 in K, rho0 in kg/m³, with its properties n0) to Mach number mach, or, when
+// speed > 0, to that speed in m/s (mach is then ignored): s(T, ρ) = s0 and
+// h(T, ρ) + V²/2 = h0 with V = M·a(T, ρ) (physics.md §4). Newton's method in (T, ρ)
+// from the ideal-gas ratios (γ = 1.4, ρ/ρ0 = (T/T0)^2.5), with the exact Jacobian
+// (the derivatives of a² included), converges quadratically: two or three steps over
+// the tunnel range, stopping after a step below nitrogenStepTol. ok is false when the iteration leaves the gas-like region or does not
+// converge.
+func nitrogenExpand(t0, rho0 float64, n0 n2Props, mach, speed float64) (T, rho float64, n n2Props, ok bool) {
+	g := NitrogenGamma
+	if speed > 0 {
+		// The ideal-gas Mach number of this speed, as a start.
+		den := g*nitrogenPR.r*t0 - 0.5*(g-1)*speed*speed
+		if !(den > 0) {
+			return 0, 0, n2Props{}, false
+		}
+		mach = speed / math.Sqrt(den)
+	}
+	tr := 1 + 0.5*(g-1)*mach*mach
+	T = t0 / tr
+	rho = rho0 * math.Pow(tr, -1/(g-1))
+	v2 := speed * speed
+	m2 := mach * mach
+	for range nitrogenMaxSteps {
+		n = nitrogenAt(T, rho)
+		if !n.valid || !(T > 0) {
+			return 0, 0, n2Props{}, false
+		}
+		f1 := n.s - n0.s
+		f2 := n.h - n0.h
+		var kT, kRho float64 // ∂(V²/2)/∂T and ∂(V²/2)/∂ρ
+		if speed > 0 {
+			f2 += 0.5 * v2
+		} else {
+			f2 += 0.5 * m2 * n.a2
+			kT, kRho = 0.5*m2*n.a2T, 0.5*m2*n.a2Rho
+		}
+		// Jacobian: ∂s/∂T = c_v/T, ∂s/∂ρ = −(∂p/∂T)/ρ², ∂h/∂T = c_v + (∂p/∂T)/ρ,
+		// ∂h/∂ρ = ((∂p/∂ρ) − T·(∂p/∂T)/ρ)/ρ.
+		j11, j12 := n.cv/T, -n.pT/(rho*rho)
+		j21, j22 := n.cv+n.pT/rho+kT, (n.pRho-T*n.pT/rho)/rho+kRho
+		det := j11*j22 - j12*j21
+		if det == 0 || math.IsNaN(det) {
+			return 0, 0, n2Props{}, false
+		}
+		dT := (f1*j22 - f2*j12) / det
+		dr := (j11*f2 - j21*f1) / det
+		// Keep the step inside the gas: at most a fifth of T and of ρ.
+		if k := math.Max(math.Abs(dT)/(0.2*T), math.Abs(dr)/(0.2*rho)); k > 1 {
+			dT /= k
+			dr /= k
+		}
+		T -= dT
+		rho -= dr
+		// Newton converges quadratically here: after a step of 1e-8 the error is
+		// of the order of 1e-16.
+		if math.Abs(dT) <= nitrogenStepTol*T && math.Abs(dr) <= nitrogenStepTol*rho {
+			n = nitrogenAt(T, rho)
+			return T, rho, n, n.valid
+		}
+	}
+	return 0, 0, n2Props{}, false
+}
+
+// nitrogenStatic is the static state of nitrogen in the test section.
+type nitrogenStatic struct {
+	T, p, rho, a, mach, speed float64
+}
+
+// nitrogenFreeStream returns the static state of nitrogen expanded from the
+// stagnation state (t0 in K, p0 in Pa) to Mach number mach, or to speed in m/s when
+// speed > 0, along the real-gas isentrope (nitrogenExpand); an error names the field
+// when the expansion leaves the gas.
+func nitrogenFreeStream(t0, p0, mach, speed float64) (nitrogenStatic, error) {
+	rho0 := nitrogenDensity(t0, p0)
+	n0 := nitrogenAt(t0, rho0)
+	if mach == 0 && speed == 0 {
+		return nitrogenStatic{T: t0, p: p0, rho: rho0, a: math.Sqrt(n0.a2)}, nil
+	}
+	T, rho, n, ok := nitrogenExpand(t0, rho0, n0, mach, speed)
+	if !ok {
+		field, what := "mach", fmt.Sprintf("Mach %g", mach)
+		if speed > 0 {
+			field, what = "speed", fmt.Sprintf("%g m/s", speed)
+		}
+		return nitrogenStatic{}, Invalid(settingMessage, []FieldError{{Field: field, Message: fmt.Sprintf(
+			"%s from %g K and %g Pa expands nitrogen out of the gas phase of its equation of state: lower it or raise the stagnation temperature",
+			what, t0, p0)}})
+	}
+	a := math.Sqrt(n.a2)
+	st := nitrogenStatic{T: T, p: n.p, rho: rho, a: a, mach: mach, speed: speed}
+	if speed > 0 {
+		st.mach = speed / a
+	} else {
+		st.speed = mach * a
+	}
+	return st, nil
+}
+
+// Lemmon & Jacobsen (2004) constants for nitrogen: ε/k in K, σ in nm, the molar mass
+// in g/mol, and the reducing temperature in K and density in kg/m³ of the residual
+// term (11.1839 mol/dm³).
+const (
+	ljEpsK  = 98.94
+	ljSigma = 0.3656
+	ljMolar = 28.01348
+	ljTc    = 126.192
+	ljRhoc  = 11.1839 * ljMolar
+)
+
+// NitrogenViscosity returns the viscosity of nitrogen in Pa·s at temperature T in K
+// and density rho in kg/m³ by Lemmon & Jacobsen (2004, Int. J. Thermophys.
+// 25:21), the dilute-gas term with its collision integral and the residual term,
+// without the critical enhancement (it matters only near the critical point):
+//
+//	η = η⁰(T) + ηʳ(τ, δ) in µPa·s, τ = 126.192 K/T, δ = ρ/(11.1839 mol/dm³)
+//	η⁰ = 0.0266958·√(M·T)/(σ²·Ω(T*)), T* = T/(ε/k), ε/k = 98.94 K, σ = 0.3656 nm
+//	Ω = exp(Σ_{i=0..4} b_i·(ln T*)^i), b = 0.431, −0.4623, 0.08406, 0.005341, −0.00331
+//	ηʳ = Σ N_i·τ^t_i·δ^d_i·exp(−γ_i·δ^l_i), for (N, t, d, l) = (10.72, 0.1, 2, 0),
+//	     (0.03989, 0.25, 10, 1), (0.001208, 3.2, 12, 1), (−7.402, 0.9, 2, 2),
+//	     (4.620, 0.3, 1, 3); γ = 0 where l = 0, else 1
+//
+// The State passes the Peng–Robinson density. The paper's check values for nitrogen
+// are met to their printed digits (TestNitrogenViscosity).
+func NitrogenViscosity(T, rho float64) float64 {
+	if !(T > 0) {
+		return 0
+	}
+	lt := math.Log(T / ljEpsK)
+	omega := math.Exp(0.431 + lt*(-0.4623+lt*(0.08406+lt*(0.005341+lt*(-0.00331)))))
+	mu0 := 0.0266958 * math.Sqrt(ljMolar*T) / (ljSigma * ljSigma * omega)
+	tau := ljTc / T
+	d := rho / ljRhoc
+	d2 := d * d
+	d10 := d2 * d2 * d2 * d2 * d2
+	lnTau := math.Log(tau)
+	pw := func(x float64) float64 { return math.Exp(x * lnTau) }
+	mur := 10.72*pw(0.1)*d2 +
+		(0.03989*pw(0.25)*d10+0.001208*pw(3.2)*d10*d2)*math.Exp(-d) +
+		-7.402*pw(0.9)*d2*math.Exp(-d2) +
+		4.620*pw(0.3)*d*math.Exp(-d2*d)
+	return 1e-6 * (mu0 + mur)
+}
+
+// nitrogenStepTol is the relative Newton step of nitrogenExpand after which the
+// iteration stops.
+const nitrogenStepTol = 1e-8

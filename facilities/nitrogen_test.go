@@ -1,0 +1,147 @@
+package facilities_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+)
+
+// nitrogenDensityException is the one region where the Peng–Robinson density is
+// allowed beyond 0.5 % of the reference equation of state: at 0.4 MPa and above,
+// 150 K and below (the cold, dense corner of the tunnel range, closest to
+// saturation), where it measures up to +0.679 % (120 K, 0.45 MPa; 0.604 % at 110 K,
+// 0.4 MPa). Peng–Robinson's vapour density is known to run high there; the bound
+// below is that measured figure, rounded up.
+const (
+	nitrogenDensityExceptionP = 0.4e6 // Pa, and above
+	nitrogenDensityExceptionT = 150.0 // K, and below
+	nitrogenDensityExceptionB = 0.0070
+)
+
+// TestNitrogenReference checks nitrogen's density (Peng–Robinson), speed of sound
+// (Peng–Robinson departure functions with the ideal-gas heat capacity of Span et al.
+// 2000) and viscosity (Lemmon & Jacobsen 2004 at the model's density) against the
+// reference equation of state of Span et al. (2000, J. Phys. Chem. Ref. Data
+// 29:1361) and the viscosity of Lemmon & Jacobsen (2004, Int. J. Thermophys. 25:21),
+// computed by testdata/reference/nitrogen/gen.py (python3-iapws's Helmholtz
+// framework), over 100–300 K and 0.1–0.45 MPa: within 0.5 % for all three, except
+// the density in nitrogenDensityException. Measured: ρ up to +0.679 %, a up to
+// −0.465 % (110 K, 0.45 MPa), μ up to +0.021 %.
+func TestNitrogenReference(t *testing.T) {
+	m := facilities.Medium{Kind: facilities.MediumNitrogen}
+	rows := readCSV(t, "../testdata/reference/nitrogen/nitrogen.csv", 5)
+	require.Len(t, rows, 105)
+	var worst [3]float64
+	for _, r := range rows {
+		T, p := r[0], r[1]
+		rho := m.Density(T, p)
+		a := facilities.NitrogenSpeedOfSound(T, p)
+		mu := m.Viscosity(T, rho)
+		devs := [3]float64{rho/r[2] - 1, a/r[3] - 1, mu/r[4] - 1}
+		for i, what := range []string{"density", "speed of sound", "viscosity"} {
+			bound := 0.005
+			if i == 0 && p >= nitrogenDensityExceptionP && T <= nitrogenDensityExceptionT {
+				bound = nitrogenDensityExceptionB
+			}
+			assert.Less(t, math.Abs(devs[i]), bound, "%s at %g K, %g Pa: %+.3f %%", what, T, p, 100*devs[i])
+			worst[i] = math.Max(worst[i], math.Abs(devs[i]))
+		}
+	}
+	t.Logf("largest deviations: density %.3f %%, speed of sound %.3f %%, viscosity %.3f %%", 100*worst[0], 100*worst[1], 100*worst[2])
+}
+
+// TestNitrogenSpeedOfSoundIsentropic checks that the speed of sound is the equation
+// of state's own isentropic derivative: a² = (∂p/∂ρ)_s, taken numerically from the
+// model's entropy and pressure (a central difference along s = const), within 1e-6.
+func TestNitrogenSpeedOfSoundIsentropic(t *testing.T) {
+	m := facilities.Medium{Kind: facilities.MediumNitrogen}
+	for _, c := range []struct{ T, p float64 }{
+		{100, 0.45e6}, {110, 0.3e6}, {130, 2e6}, {200, 0.1e6}, {300, 5e6},
+	} {
+		rho := m.Density(c.T, c.p)
+		s0, _, _ := facilities.NitrogenEntropyEnthalpy(c.T, rho)
+		// The temperature at density r on the isentrope s = s0, by the secant method.
+		onIsentrope := func(r float64) float64 {
+			t0, t1 := c.T, c.T*1.0001
+			f0, _, _ := facilities.NitrogenEntropyEnthalpy(t0, r)
+			f1, _, _ := facilities.NitrogenEntropyEnthalpy(t1, r)
+			f0, f1 = f0-s0, f1-s0
+			for range 50 {
+				if f1 == f0 {
+					break
+				}
+				t2 := t1 - f1*(t1-t0)/(f1-f0)
+				t0, f0 = t1, f1
+				t1 = t2
+				f1, _, _ = facilities.NitrogenEntropyEnthalpy(t1, r)
+				f1 -= s0
+			}
+			_, _, p := facilities.NitrogenEntropyEnthalpy(t1, r)
+			return p
+		}
+		h := 1e-4 * rho
+		dpdrho := (onIsentrope(rho+h) - onIsentrope(rho-h)) / (2 * h)
+		a := facilities.NitrogenSpeedOfSound(c.T, c.p)
+		assert.InDelta(t, 1, a*a/dpdrho, 1e-6, "%g K, %g Pa: a² = %.9g m²/s², (∂p/∂ρ)_s = %.9g", c.T, c.p, a*a, dpdrho)
+	}
+}
+
+// TestNitrogenViscosity checks the correlation against the check values Lemmon &
+// Jacobsen (2004, Int. J. Thermophys. 25:21) print for nitrogen (viscosity at a
+// temperature and molar density; the critical-enhancement point left out), to their
+// printed digits (half a unit in the last place).
+func TestNitrogenViscosity(t *testing.T) {
+	const molar = 28.01348 // g/mol, so that mol/dm³ × molar = kg/m³
+	for _, c := range []struct {
+		T, rhoMolar, mu float64 // K, mol/dm³, µPa·s
+		half            float64 // µPa·s
+	}{
+		{100, 0, 6.90349, 5e-6},
+		{300, 0, 17.8771, 5e-5},
+		{100, 25, 79.7418, 5e-5},
+		{200, 10, 21.0810, 5e-5},
+		{300, 5, 20.7430, 5e-5},
+	} {
+		got := 1e6 * facilities.NitrogenViscosity(c.T, c.rhoMolar*molar)
+		assert.InDelta(t, c.mu, got, c.half, "%g K, %g mol/dm³", c.T, c.rhoMolar)
+	}
+}
+
+// TestStateNitrogenRealGas checks the cryogenic test-section state: the static state
+// lies on the isentrope through the stagnation state (s = s0, h + V²/2 = h0, each
+// to 1e-9 of the scale), the speed of sound is the equation of state's own at the
+// static state, and at T0 110 K, p0 450 kPa, M 0.8 it agrees with an independent
+// virial-equation reference, a = 193.3 m/s (the physics review that found the
+// ideal-gas a = 201.3 m/s), within 0.4 %. a = 192.889 m/s is a regression value.
+func TestStateNitrogenRealGas(t *testing.T) {
+	f := mustDemo(t, "cn2-05")
+	set := facilities.Setting{Mach: 0.8, StagnationPressure: 450e3, StagnationTemperature: 110}
+	st, err := f.State(set)
+	require.NoError(t, err)
+	s := st.Static
+	assert.InEpsilon(t, 193.3, s.SpeedOfSound, 0.004, "independent reference")
+	assert.InDelta(t, 192.889, s.SpeedOfSound, 0.001, "regression value")
+	assert.InDelta(t, s.SpeedOfSound, facilities.NitrogenSpeedOfSound(s.Temperature, s.Pressure), 1e-9*s.SpeedOfSound)
+
+	rho0 := f.Medium.Density(set.StagnationTemperature, set.StagnationPressure)
+	s0, h0, _ := facilities.NitrogenEntropyEnthalpy(set.StagnationTemperature, rho0)
+	s1, h1, p1 := facilities.NitrogenEntropyEnthalpy(s.Temperature, s.Density)
+	assert.InDelta(t, s0, s1, 1e-9*1000, "entropy, J/(kg·K)")
+	assert.InDelta(t, h0, h1+0.5*st.Speed*st.Speed, 1e-9*h0, "total enthalpy, J/kg")
+	assert.InEpsilon(t, s.Pressure, p1, 1e-12)
+
+	// A speed setting lands on the same state.
+	back, err := f.State(facilities.Setting{Speed: st.Speed, StagnationPressure: set.StagnationPressure, StagnationTemperature: set.StagnationTemperature})
+	require.NoError(t, err)
+	assert.InEpsilon(t, st.Mach, back.Mach, 1e-12)
+	assert.InEpsilon(t, st.DynamicPressure, back.DynamicPressure, 1e-12)
+
+	// The ideal-gas ratios would have given a = √(γRT) = 201.3 m/s at T = T0/1.128.
+	ideal := math.Sqrt(1.4 * f.Medium.GasConstant() * 110 / 1.128)
+	assert.InDelta(t, 201.3, ideal, 0.05)
+	assert.Greater(t, (ideal-s.SpeedOfSound)/s.SpeedOfSound, 0.04, "the real-gas speed of sound is more than 4 % below the ideal-gas one here")
+}
