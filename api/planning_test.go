@@ -85,6 +85,12 @@ func TestPlanErrors(t *testing.T) {
 		{"unknown friction settings", strings.Replace(testfixture.J16Plan, `"span": 16.4`, `"span": 16.4, "friction_line": "schoenherr", "full_scale_boundary_layer": "laminar"`, 1),
 			400, []string{"article.friction_line", "article.full_scale_boundary_layer"}, nil},
 		{"unknown facility", strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1), 404, nil, nil},
+		{"condensation peak Mach below 0.1", strings.Replace(testfixture.J16Plan, `"facility_id"`, `"condensation_peak_mach": 0.05, "facility_id"`, 1),
+			400, []string{"condensation_peak_mach"}, nil},
+		{"condensation peak Mach above 5", strings.Replace(testfixture.J16Plan, `"facility_id"`, `"condensation_peak_mach": 6, "facility_id"`, 1),
+			400, []string{"condensation_peak_mach"}, nil},
+		{"cavitation_allowed not a boolean", strings.Replace(testfixture.J16Plan, `"facility_id"`, `"cavitation_allowed": "yes", "facility_id"`, 1),
+			400, []string{"cavitation_allowed"}, nil},
 		{"unknown balance", strings.Replace(testfixture.J16Plan, `"int-b1"`, `"int-zz"`, 1), 400, []string{"installation.balance_id"}, nil},
 		{"infeasible: the model cannot fit", strings.Replace(testfixture.J16Plan, `"scale_min": 0.01, "scale_max": 0.5`, `"scale": 0.5`, 1), 422, nil, nil},
 	}

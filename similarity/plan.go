@@ -200,6 +200,12 @@ type Problem struct {
 	// M_c = M·[1 + (1 + 0.2·M²)·ε] at the middle of that range to the flight, not
 	// the free-stream M (facilities.MachRatio).
 	MatrixDrag *DragRange
+	// CavitationAllowed lets the plan's water test section run below the vapour
+	// pressure (a cavitating free stream, facilities.ConstraintCavitation); false,
+	// the default, makes cavitation a limit the planner avoids like any other.
+	// Boiling at the stagnation pressure (facilities.ConstraintBoiling) is always
+	// avoided: the liquid model does not hold there.
+	CavitationAllowed bool
 }
 
 // DragRange is the least and the largest drag coefficient of a test matrix.

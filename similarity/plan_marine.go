@@ -14,9 +14,9 @@ const cavGrid = 17
 // hold at speed machOrSpeed and temperature t, [lo, hi], with the dynamic pressure q in Pa,
 // the Re/m and the vapour pressure pv in Pa there. A facility with a static-pressure
 // range sets it independently of speed; any other has p = p0 − q with p0 in its
-// stagnation-pressure range. lo is at least pv: the planner never sets a static
-// pressure below the vapour pressure (a negative cavitation number; the free stream
-// itself would boil). ok is false when no such pressure exists or the state fails.
+// stagnation-pressure range. lo is at least pv unless the problem allows
+// cavitation: the planner does not set a static pressure below the vapour pressure
+// (a negative cavitation number; the free stream itself would boil). ok is false when no such pressure exists or the state fails.
 func (sv *solver) pressureRange(machOrSpeed, p0, t float64) (lo, hi, q, r, pv float64, ok bool) {
 	st, err := sv.state(machOrSpeed, p0, t)
 	if err != nil {
@@ -29,7 +29,9 @@ func (sv *solver) pressureRange(machOrSpeed, p0, t float64) (lo, hi, q, r, pv fl
 	} else {
 		lo, hi = sv.f.StagnationPressure.Min-q, sv.f.StagnationPressure.Max-q
 	}
-	lo = math.Max(lo, pv)
+	if !sv.cavAllowed {
+		lo = math.Max(lo, pv)
+	}
 	return lo, hi, q, r, pv, hi >= lo && q > 0
 }
 

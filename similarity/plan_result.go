@@ -136,6 +136,12 @@ func (sv *solver) bindings(x candidate, st facilities.State) []Binding {
 	if m := f.CondensationMargin(st); !math.IsInf(m, 1) && math.Abs(m) <= 1e-7 {
 		bs = append(bs, Binding{Constraint: facilities.ConstraintCondensation, Value: m, Limit: 0})
 	}
+	if m := f.BoilingMargin(st); !math.IsInf(m, 1) && math.Abs(m) <= 1e-7 {
+		bs = append(bs, Binding{Constraint: facilities.ConstraintBoiling, Value: m, Limit: 0})
+	}
+	if m := f.CavitationMargin(st); !sv.cavAllowed && !math.IsInf(m, 1) && math.Abs(m) <= 1e-7 {
+		bs = append(bs, Binding{Constraint: facilities.ConstraintCavitation, Value: m, Limit: 0})
+	}
 	sortBindings(bs)
 	return bs
 }

@@ -374,6 +374,10 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 		f.MaxReynoldsPerMeter = up(*sv.f.MaxReynoldsPerMeter)
 	case facilities.ConstraintCondensation:
 		r.condMin = sv.condMin - 0.01
+	case facilities.ConstraintBoiling:
+		r.boilMin = sv.boilMin - 0.01
+	case facilities.ConstraintCavitation:
+		r.cavMin = sv.cavMin - 0.01
 	case sv.loadName:
 		r.loadScale = sv.loadScale * 1.01
 	case sv.floorName:

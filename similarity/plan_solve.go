@@ -117,6 +117,9 @@ type topSetting struct {
 	// p0 is then pinned at its minimum and T0 is the free variable from t up.
 	edge bool
 	v    float64 // speed, m/s
+	// fail: no setting meets both the q ceiling and the Re/m ceiling (real-gas
+	// nitrogen warmed at p0 min).
+	fail bool
 }
 
 // candidate is a full candidate at (machOrSpeed, s): the test setting and its figures.
@@ -167,6 +170,11 @@ type solver struct {
 	floorName  string
 	floorScale float64
 	condMin    float64
+	// boilMin and cavMin are the lowest boiling and cavitation margins allowed
+	// (water; 0, or −0.01 when a binding gain relaxes them).
+	boilMin, cavMin float64
+	// cavAllowed: the problem allows a cavitating test section (CavitationAllowed).
+	cavAllowed bool
 	qmax       float64
 	remax      float64
 
@@ -223,6 +231,7 @@ func newSolver(p *Problem) (*solver, error) {
 	sv.marine = sv.fl.Marine != nil
 	sv.noMach = sv.liquid || sv.marine
 	sv.held = sv.liquid && sv.f.StaticPressure != nil
+	sv.cavAllowed = p.CavitationAllowed
 	if err := sv.checkObjective(); err != nil {
 		return nil, err
 	}
@@ -847,6 +856,10 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		return c
 	}
 	c.facilityTop = sv.highestSetting(&c, sv.qmax, facilities.ConstraintDynamic)
+	if c.facilityTop.fail {
+		c.fail = facilities.ConstraintReynoldsUnit
+		return c
+	}
 	c.ok = true
 	return c
 }
@@ -935,7 +948,7 @@ func (sv *solver) highestSetting(c *machSetup, qc float64, name string) topSetti
 		switch {
 		case c.linear:
 			t.p, t.cap = qc/c.k, name
-		case sv.qcurve(c, c.pa) <= qc:
+		case sv.qcurve(c, c.pa) <= qc*(1+limitSlack):
 			t.p = sv.rootHi(func(p float64) float64 { return qc - sv.qcurve(c, p) }, c.pa, c.pTop, false)
 			t.cap = name
 		default:
@@ -967,6 +980,10 @@ func (sv *solver) highestSetting(c *machSetup, qc float64, name string) topSetti
 		t.p, t.t = sv.solveR(c, t, sv.remax)
 		t.cap, t.r = facilities.ConstraintReynoldsUnit, sv.remax
 		t.q, t.v = sv.qAt(c, t.p, t.t)
+		// Real-gas nitrogen warmed at p0 min to meet the Re/m ceiling may have
+		// raised q past the q ceiling (its speed of sound): no setting here meets
+		// both.
+		t.fail = !c.linear && t.q > qc*(1+limitSlack)
 	}
 	return t
 }
@@ -1028,6 +1045,17 @@ func (sv *solver) prepareWater(machOrSpeed float64) machSetup {
 	f := sv.f
 	c := machSetup{machOrSpeed: machOrSpeed, pa: f.StagnationPressure.Max, pTop: f.StagnationPressure.Max}
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
+	// Boiling at p0 and cavitation in the test section set a T0 ceiling: warmer
+	// water has a higher vapour pressure (waterMargin).
+	top := facilities.ConstraintTempMax
+	if m, name := sv.waterMargin(machOrSpeed, c.pa, ta); m < 0 {
+		c.fail = name
+		return c
+	}
+	if m, name := sv.waterMargin(machOrSpeed, c.pa, tb); m < 0 {
+		tb = sv.rootHi(func(t float64) float64 { m, _ := sv.waterMargin(machOrSpeed, c.pa, t); return m }, ta, tb, false)
+		top = name
+	}
 	stB, err := sv.state(machOrSpeed, c.pa, tb)
 	if err != nil {
 		c.fail = facilities.ConstraintSpeedMax
@@ -1057,12 +1085,32 @@ func (sv *solver) prepareWater(machOrSpeed float64) machSetup {
 		c.fail = facilities.ConstraintReynoldsUnit
 		return c
 	}
-	c.rWaterTop, c.capWaterTop = stB.ReynoldsPerMeter, facilities.ConstraintTempMax
+	c.rWaterTop, c.capWaterTop = stB.ReynoldsPerMeter, top
 	if c.rWaterTop > sv.remax {
 		c.rWaterTop, c.capWaterTop = sv.remax, facilities.ConstraintReynoldsUnit
 	}
 	c.ok = true
 	return c
+}
+
+// waterMargin returns how far water at speed machOrSpeed, p0 and T0 t stays from
+// the water model's named limits, ≥ 0 where usable, and the limit nearest: boiling
+// at the stagnation pressure (facilities.Facility.BoilingMargin less boilMin) and,
+// unless the problem allows it, cavitation in the test section (CavitationMargin
+// less cavMin). Both fall as the water warms. An unusable state counts as −1
+// (boiling).
+func (sv *solver) waterMargin(machOrSpeed, p0, t float64) (float64, string) {
+	st, err := sv.state(machOrSpeed, p0, t)
+	if err != nil {
+		return -1, facilities.ConstraintBoiling
+	}
+	m, name := sv.f.BoilingMargin(st)-sv.boilMin, facilities.ConstraintBoiling
+	if !sv.cavAllowed {
+		if c := sv.f.CavitationMargin(st) - sv.cavMin; c < m {
+			m, name = c, facilities.ConstraintCavitation
+		}
+	}
+	return m, name
 }
 
 // waterQ is the dynamic pressure of water at speed machOrSpeed and T0 t.
@@ -1132,13 +1180,20 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 		return sv.atWater(c, s, target, w)
 	}
 	tp := c.facilityTop
+	qc := sv.qmax // the q ceiling at this scale
 	if sv.load != nil {
-		if qb := w.Hi; qb < tp.q {
+		qb := w.Hi
+		qc = math.Min(qc, qb)
+		if qb < tp.q {
 			if qb < c.qLow*(1-limitSlack) {
 				x.fail, x.k = sv.loadName, worst
 				return x
 			}
 			tp = sv.highestSetting(c, qb, sv.loadName)
+			if tp.fail {
+				x.fail, x.k = sv.loadName, worst
+				return x
+			}
 		}
 	}
 	// pinned: under a load floor in real-gas nitrogen where no p0 at the warmest
@@ -1172,6 +1227,20 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 	} else {
 		x.p0, x.t0 = sv.solveR(c, tp, r)
 		x.q, x.v = sv.qAt(c, x.p0, x.t0)
+		if !c.linear && x.q > qc*(1+limitSlack) {
+			// Real-gas nitrogen: warming at p0 min to lower Re/m raises q slightly
+			// (its speed of sound), and here past the ceiling: warm only up to it,
+			// the lowest Re/m under the ceiling.
+			lo := sv.tfloor(c, x.p0)
+			x.t0 = sv.rootHi(func(t float64) float64 { q, _ := sv.qAt(c, x.p0, t); return qc - q }, lo, x.t0, false)
+			st, err := sv.state(c.machOrSpeed, x.p0, x.t0)
+			if err != nil {
+				x.fail, x.k = facilities.ConstraintDynamic, worst
+				return x
+			}
+			x.q, x.v, x.r = st.DynamicPressure, st.Speed, st.ReynoldsPerMeter
+			x.rlo, r = x.r, -1 // the target is not met
+		}
 	}
 	x.ok = true
 	x.k = sv.keyOf(c.machOrSpeed, s, x.r, x.q, x.v, r == target, 0)

@@ -149,6 +149,19 @@ type PlanRequest struct {
 	// and the balance choice prefers the one that resolves them with the most
 	// margin (docs/loads.md). Absent: no requirement.
 	RequiredResolution *facilities.Resolution `json:"required_resolution,omitempty"`
+	// CondensationPeakMach is the highest local Mach number expected on the model
+	// at the test attitude (dimensionless, 0.1 to 5), for the condensation rule of
+	// nitrogen, air and custom gases with a critical point: the flow expanded to it
+	// from the stagnation state must stay above saturation. Absent: the facility's
+	// condensation_peak_mach, else 1.4 (common practice for transonic tests). A
+	// low-speed test may give less: M_local ≈ M·√(1 − C_p,min) (docs/physics.md,
+	// validity envelope).
+	CondensationPeakMach *float64 `json:"condensation_peak_mach,omitempty" example:"1.4"`
+	// CavitationAllowed lets a water test section run below the vapour pressure
+	// (cavitating); false, the default, makes cavitation a limit the planner
+	// avoids (binding name cavitation). Boiling at the stagnation pressure is
+	// always avoided.
+	CavitationAllowed bool `json:"cavitation_allowed,omitempty"`
 }
 
 // PlanResponse is the answer of POST /v1/plans: the plan and everything it implies.

@@ -31,5 +31,6 @@ func Bounds() map[string]facilities.Bound {
 		m[schema+".stagnation_temperature"] = facilities.BoundStagnationTemperature
 	}
 	m["schema.LoadsModel.scale"] = similarity.BoundScale
+	m["schema.PlanRequest.condensation_peak_mach"] = facilities.BoundCondensationPeakMach
 	return m
 }

@@ -265,6 +265,11 @@ func (p *Planner) prepare(ctx context.Context, req *schema.PlanRequest) (*prepar
 	checkInstallation(&req.Installation, f, &fe)
 	CheckLabel(req.Label, "label", &fe)
 	checkResolution(req.RequiredResolution, &fe)
+	if v := req.CondensationPeakMach; v != nil {
+		if msg := facilities.BoundCondensationPeakMach.Problem(*v); msg != "" {
+			fe.Add("condensation_peak_mach", "%s", msg)
+		}
+	}
 	mx, err := req.Article.Aero.Matrix(req.Alpha, req.Beta)
 	if err != nil && !fe.Merge("", err) {
 		return nil, err
@@ -280,6 +285,13 @@ func (p *Planner) prepare(ctx context.Context, req *schema.PlanRequest) (*prepar
 	if err != nil {
 		return nil, err
 	}
+	if v := req.CondensationPeakMach; v != nil {
+		// The request's local peak Mach number replaces the facility's for this
+		// plan: the planner, the violations and the warnings all read it there.
+		fc := *f
+		fc.CondensationPeakMach = v
+		f = &fc
+	}
 	return &preparedPlan{req: req, f: f, flight: flight, mx: mx, id: id}, nil
 }
 
@@ -288,7 +300,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	req, f, flight, mx := pp.req, pp.f, pp.flight, pp.mx
 	var err error
 	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective,
-		MatrixDrag: mx.DragRange()}
+		MatrixDrag: mx.DragRange(), CavitationAllowed: req.CavitationAllowed}
 	var ll *loads.Limit
 	if len(f.Balances) > 0 {
 		ll, err = loads.NewLimit(&req.Article, f, req.Installation.WithBuoyancy(f), mx)

@@ -168,3 +168,38 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 		})
 	}
 }
+
+// TestPlanCondensationPeakMach: the request's condensation_peak_mach replaces the
+// facility's for the plan. The J16 at M 0.78 in cn2-05 sits on the condensation
+// rule with the default local peak Mach 1.4; told that the model reaches only
+// M 0.95 locally, the planner may run colder (the expansion to 0.95 stays further
+// from saturation), so the plan's T0 falls and its Reynolds number rises; the
+// plan's id differs, and the answer's warnings and binding list read the same value.
+func TestPlanCondensationPeakMach(t *testing.T) {
+	body, err := os.ReadFile("../../docs/requests/j16-cn2-05-free.json")
+	require.NoError(t, err)
+	var p app.Planner
+	def, err := p.Plan(context.Background(), decodePlan(t, string(body)))
+	require.NoError(t, err)
+	require.True(t, slices.ContainsFunc(def.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintCondensation }),
+		"binding %v", def.Binding)
+
+	req := decodePlan(t, string(body))
+	peak := 0.95
+	req.CondensationPeakMach = &peak
+	low, err := p.Plan(context.Background(), req)
+	require.NoError(t, err)
+	assert.Less(t, low.Test.StagnationTemperature, def.Test.StagnationTemperature-0.5)
+	assert.Greater(t, low.Test.Reynolds, def.Test.Reynolds)
+	assert.NotEqual(t, def.ID, low.ID)
+	f, _ := facilities.DemoFacility("cn2-05")
+	f.CondensationPeakMach = &peak
+	m := f.CondensationMargin(low.Test.State)
+	assert.GreaterOrEqual(t, m, -1e-9, "no condensation with the request's peak Mach")
+	assert.Empty(t, f.Violations(low.Test.State))
+	// A request that names the default, 1.4, plans as one that names none.
+	req = decodePlan(t, strings.Replace(string(body), `"facility_id": "cn2-05"`, `"facility_id": "cn2-05", "condensation_peak_mach": 1.4`, 1))
+	same, err := p.Plan(context.Background(), req)
+	require.NoError(t, err)
+	assert.InDelta(t, def.Test.StagnationTemperature, same.Test.StagnationTemperature, 1e-9)
+}
