@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"net/http"
 	"path"
+	"scalematch/internal/check"
 	"strconv"
 	"strings"
 
@@ -186,28 +187,28 @@ func (s *Server) updateFacility(c *gin.Context) {
 		return
 	}
 	id := c.Param("id")
-	var fields []facilities.FieldError
+	var fields []check.FieldError
 	switch {
 	case f.ID == "":
 		f.ID = id
 	case f.ID != id:
-		fields = append(fields, facilities.FieldError{Field: "id",
+		fields = append(fields, check.FieldError{Field: "id",
 			Message: fmt.Sprintf("%q differs from the path's %q: leave it out or make it equal", f.ID, id)})
 	}
 	if f.Version != 0 && f.Version != ifMatch {
-		fields = append(fields, facilities.FieldError{Field: "version",
+		fields = append(fields, check.FieldError{Field: "version",
 			Message: fmt.Sprintf("%d differs from If-Match's %d: leave it out or make it equal", f.Version, ifMatch)})
 	}
 	f.Version = 0
 	if err := f.Validate(); err != nil {
-		var de *facilities.Error
+		var de *check.Error
 		if !errors.As(err, &de) {
 			s.fail(c, err)
 			return
 		}
 		fields = append(fields, de.Fields...)
 	}
-	if err := facilities.Invalid("the facility is invalid", fields); err != nil {
+	if err := check.Invalid("the facility is invalid", fields); err != nil {
 		s.fail(c, err)
 		return
 	}
@@ -403,21 +404,21 @@ func ifMatchVersion(h string) (int, error) {
 	h = strings.TrimSpace(h)
 	switch {
 	case h == "":
-		return 0, &facilities.Error{Code: facilities.CodePreconditionRequired,
+		return 0, &check.Error{Code: check.CodePreconditionRequired,
 			Message: `a change needs If-Match with the facility's current ETag (GET /v1/facilities/{id}), e.g. If-Match: "3"`}
 	case h == "*":
-		return 0, &facilities.Error{Code: facilities.CodePreconditionRequired,
+		return 0, &check.Error{Code: check.CodePreconditionRequired,
 			Message: `If-Match: * would overwrite whatever is current; send the facility's ETag, e.g. If-Match: "3"`}
 	}
 	weak := strings.HasPrefix(h, "W/")
 	tag := strings.TrimPrefix(h, "W/")
 	if len(tag) < 2 || tag[0] != '"' || tag[len(tag)-1] != '"' || strings.ContainsAny(tag[1:len(tag)-1], `",`) {
-		return 0, facilities.Invalid("bad If-Match header", []facilities.FieldError{{Field: "If-Match",
+		return 0, check.Invalid("bad If-Match header", []check.FieldError{{Field: "If-Match",
 			Message: fmt.Sprintf("%q is not one entity tag: want the ETag of GET, e.g. \"3\"", h)}})
 	}
 	v, err := strconv.Atoi(tag[1 : len(tag)-1])
 	if weak || err != nil || v < 1 {
-		return 0, &facilities.Error{Code: facilities.CodePreconditionFailed,
+		return 0, &check.Error{Code: check.CodePreconditionFailed,
 			Message: fmt.Sprintf("If-Match %s matches no version of this facility: send the strong ETag of GET, e.g. \"3\"", h)}
 	}
 	return v, nil
@@ -437,7 +438,7 @@ func (s *Server) inScope(c *gin.Context, id string) bool {
 	if ok, err := path.Match(scope, id); err == nil && ok {
 		return true
 	}
-	s.fail(c, &facilities.Error{Code: facilities.CodeForbidden,
+	s.fail(c, &check.Error{Code: check.CodeForbidden,
 		Message: fmt.Sprintf("this token may change only the facilities whose id matches %q, not %q", scope, truncate(id, maxEchoField))})
 	return false
 }
@@ -450,14 +451,14 @@ func (s *Server) inScope(c *gin.Context, id string) bool {
 // On failure it answers the request and returns false.
 func (s *Server) writer(c *gin.Context) (facilities.Actor, bool) {
 	if len(s.cfg.WriteTokens) == 0 {
-		s.fail(c, &facilities.Error{Code: facilities.CodeForbidden,
+		s.fail(c, &check.Error{Code: check.CodeForbidden,
 			Message: "catalog changes are switched off: the service has no write tokens (SCALEMATCH_WRITE_TOKENS)"})
 		return "", false
 	}
 	scheme, token, _ := strings.Cut(strings.TrimSpace(c.GetHeader("Authorization")), " ")
 	token = strings.TrimSpace(token)
 	if !strings.EqualFold(scheme, "Bearer") || token == "" {
-		s.fail(c, &facilities.Error{Code: facilities.CodeUnauthorized,
+		s.fail(c, &check.Error{Code: check.CodeUnauthorized,
 			Message: "catalog changes need Authorization: Bearer <write token>"})
 		return "", false
 	}
@@ -475,14 +476,14 @@ func (s *Server) writer(c *gin.Context) (facilities.Actor, bool) {
 	}
 	c.Set(writeScopeKey, scope)
 	if found == 0 {
-		s.fail(c, &facilities.Error{Code: facilities.CodeForbidden, Message: "this token may not change the catalog"})
+		s.fail(c, &check.Error{Code: check.CodeForbidden, Message: "this token may not change the catalog"})
 		return "", false
 	}
 	return by, true
 }
 
-// isNotFound reports whether err is a *facilities.Error with CodeNotFound.
+// isNotFound reports whether err is a *check.Error with CodeNotFound.
 func isNotFound(err error) bool {
-	var fe *facilities.Error
-	return errors.As(err, &fe) && fe.Code == facilities.CodeNotFound
+	var fe *check.Error
+	return errors.As(err, &fe) && fe.Code == check.CodeNotFound
 }

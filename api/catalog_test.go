@@ -9,6 +9,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"path/filepath"
+	"scalematch/internal/check"
 	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
@@ -174,7 +175,7 @@ func TestCatalogWriteAccess(t *testing.T) {
 				}
 				vs, err := db.Versions(context.Background(), id)
 				if a.want != 0 {
-					if rt.name == "create" && facilities.ErrorCode(err) != facilities.CodeNotFound {
+					if rt.name == "create" && check.ErrorCode(err) != check.CodeNotFound {
 						t.Errorf("a refused create left history %v, %v", vs, err)
 					}
 					if rt.name != "create" && (err != nil || len(vs) != 1) {

@@ -10,7 +10,6 @@ import (
 
 	"github.com/gin-gonic/gin"
 
-	"scalematch/facilities"
 	"scalematch/internal/app"
 	"scalematch/internal/charts"
 	"scalematch/internal/check"
@@ -69,7 +68,7 @@ func chartFormat(file, accept string) (string, charts.Format, error) {
 	if hasExt {
 		f, ok := charts.ParseFormat(ext)
 		if !ok {
-			return "", "", &facilities.Error{Code: facilities.CodeNotFound,
+			return "", "", &check.Error{Code: check.CodeNotFound,
 				Message: fmt.Sprintf("no chart format %q: want svg, png or pdf", ext)}
 		}
 		return name, f, nil

@@ -13,7 +13,6 @@ import (
 	"github.com/gin-gonic/gin"
 
 	"scalematch/api/schema"
-	"scalematch/facilities"
 	"scalematch/internal/check"
 	"scalematch/internal/unitjson"
 )
@@ -159,7 +158,7 @@ func utf8Start(b byte) bool { return b&0xC0 != 0x80 }
 func truncateProblem(p *schema.Problem) {
 	p.Detail = truncate(p.Detail, maxEchoMessage)
 	for i := range p.Errors {
-		p.Errors[i] = facilities.FieldError{Field: truncate(p.Errors[i].Field, maxEchoField), Message: truncate(p.Errors[i].Message, maxEchoMessage)}
+		p.Errors[i] = check.FieldError{Field: truncate(p.Errors[i].Field, maxEchoField), Message: truncate(p.Errors[i].Message, maxEchoMessage)}
 	}
 }
 

@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"net/http"
 	"net/url"
+	"scalematch/internal/check"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -101,12 +102,12 @@ func (s *Server) jobProblem(job jobs.Job, err error) ([]byte, bool) {
 	}
 	instance := "/v1/campaigns/" + job.ID
 	p := kindInternal.problemAt(instance, "internal error")
-	var de *facilities.Error
+	var de *check.Error
 	switch {
 	case errors.As(err, &de) && codeKinds[de.Code].status != 0:
 		detail := de.Message
 		if detail == "" {
-			detail = facilities.InvalidCount(len(de.Fields))
+			detail = check.InvalidCount(len(de.Fields))
 		}
 		p = codeKinds[de.Code].problemAt(instance, detail)
 		p.Errors, p.Limits = de.Fields, de.Limits
@@ -255,7 +256,7 @@ func (s *Server) getCampaign(c *gin.Context) {
 		s.answer(c, http.StatusAccepted, campaignStatus(j))
 		return
 	case jobs.Cancelled:
-		s.fail(c, &facilities.Error{Code: facilities.CodeConflict,
+		s.fail(c, &check.Error{Code: check.CodeConflict,
 			Message: fmt.Sprintf("campaign %s was cancelled at step %d of %d: it has no result", j.ID, j.Done, j.Total)})
 		return
 	case jobs.Failed:
@@ -299,7 +300,7 @@ func (s *Server) campaign(ctx context.Context, id string) (jobs.Job, error) {
 	}
 	j, err := s.jobs.Job(ctx, id)
 	if err == nil && j.Kind != kindCampaign {
-		err = &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no campaign %q", id)}
+		err = &check.Error{Code: check.CodeNotFound, Message: fmt.Sprintf("no campaign %q", id)}
 	}
 	return j, err
 }

@@ -106,7 +106,7 @@ func (s *Server) listPlans(c *gin.Context) {
 
 // noStore is the 404 of a listing on a service without a store.
 func noStore(what string) error {
-	return &facilities.Error{Code: facilities.CodeNotFound,
+	return &check.Error{Code: check.CodeNotFound,
 		Message: fmt.Sprintf("this service runs without a store (no --data directory or SCALEMATCH_DATABASE_URL) and keeps no %s", what)}
 }
 

@@ -9,6 +9,7 @@ import (
 	"log/slog"
 	"net/http"
 	"net/http/httptest"
+	"scalematch/internal/check"
 	"strings"
 	"sync"
 	"testing"
@@ -53,7 +54,7 @@ func newInternal(t *testing.T) (*Server, *httptest.Server, *syncBuffer) {
 		case "plain":
 			s.fail(c, errors.New("sql: connection reset by peer"))
 		case "notfound":
-			s.fail(c, fmt.Errorf("load: %w", &facilities.Error{Code: facilities.CodeNotFound, Message: `facility "zz-9" not found`}))
+			s.fail(c, fmt.Errorf("load: %w", &check.Error{Code: check.CodeNotFound, Message: `facility "zz-9" not found`}))
 		default:
 			c.JSON(http.StatusTeapot, gin.H{"ok": true})
 		}
@@ -168,8 +169,8 @@ func TestProblemMapping(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	de := func(code facilities.Code) error {
-		return fmt.Errorf("wrapped: %w", &facilities.Error{Code: code, Message: string(code)})
+	de := func(code check.Code) error {
+		return fmt.Errorf("wrapped: %w", &check.Error{Code: code, Message: string(code)})
 	}
 	tests := []struct {
 		name   string
@@ -177,14 +178,14 @@ func TestProblemMapping(t *testing.T) {
 		status int
 		slug   string
 	}{
-		{"invalid", de(facilities.CodeInvalid), 400, "invalid-input"},
-		{"not found", de(facilities.CodeNotFound), 404, "not-found"},
-		{"conflict", de(facilities.CodeConflict), 409, "conflict"},
-		{"unprocessable", de(facilities.CodeUnprocessable), 422, "unprocessable"},
-		{"unauthorized", de(facilities.CodeUnauthorized), 401, "unauthorized"},
-		{"forbidden", de(facilities.CodeForbidden), 403, "forbidden"},
-		{"precondition failed", de(facilities.CodePreconditionFailed), 412, "precondition-failed"},
-		{"precondition required", de(facilities.CodePreconditionRequired), 428, "precondition-required"},
+		{"invalid", de(check.CodeInvalid), 400, "invalid-input"},
+		{"not found", de(check.CodeNotFound), 404, "not-found"},
+		{"conflict", de(check.CodeConflict), 409, "conflict"},
+		{"unprocessable", de(check.CodeUnprocessable), 422, "unprocessable"},
+		{"unauthorized", de(check.CodeUnauthorized), 401, "unauthorized"},
+		{"forbidden", de(check.CodeForbidden), 403, "forbidden"},
+		{"precondition failed", de(check.CodePreconditionFailed), 412, "precondition-failed"},
+		{"precondition required", de(check.CodePreconditionRequired), 428, "precondition-required"},
 		{"unknown code", de("mystery"), 500, "internal"},
 		{"atmosphere range", fmt.Errorf("flight: %w", &atmosphere.RangeError{Quantity: "altitude", Value: 90000, Min: -5000, Max: 86000, Unit: "m"}), 400, "invalid-input"},
 		{"body too large", &http.MaxBytesError{Limit: BodyLimit}, 413, "body-too-large"},
@@ -218,7 +219,7 @@ func TestUnprocessableCarriesLimits(t *testing.T) {
 	w := httptest.NewRecorder()
 	c, _ := gin.CreateTestContext(w)
 	c.Request = httptest.NewRequest("POST", "/v1/plans", nil)
-	s.fail(c, &facilities.Error{Code: facilities.CodeUnprocessable, Message: "no model fits",
+	s.fail(c, &check.Error{Code: check.CodeUnprocessable, Message: "no model fits",
 		Limits: []string{facilities.ConstraintSpan, facilities.ConstraintScaleMin}})
 	want := `"limits":["max_span_fraction","scale_min"]`
 	if w.Code != 422 || !strings.Contains(w.Body.String(), want) {

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"net/http"
+	"scalematch/internal/check"
 	"strconv"
 
 	"github.com/gin-gonic/gin"
@@ -70,15 +71,15 @@ func ProblemKinds() []ProblemKind {
 
 // codeKinds maps each domain error code to its problem kind: the one place where
 // codes become statuses.
-var codeKinds = map[facilities.Code]problemKind{
-	facilities.CodeInvalid:              kindInvalid,
-	facilities.CodeNotFound:             kindNotFound,
-	facilities.CodeConflict:             kindConflict,
-	facilities.CodeUnprocessable:        kindUnprocessable,
-	facilities.CodeUnauthorized:         kindUnauthorized,
-	facilities.CodeForbidden:            kindForbidden,
-	facilities.CodePreconditionFailed:   kindPreconditionFailed,
-	facilities.CodePreconditionRequired: kindPreconditionRequired,
+var codeKinds = map[check.Code]problemKind{
+	check.CodeInvalid:              kindInvalid,
+	check.CodeNotFound:             kindNotFound,
+	check.CodeConflict:             kindConflict,
+	check.CodeUnprocessable:        kindUnprocessable,
+	check.CodeUnauthorized:         kindUnauthorized,
+	check.CodeForbidden:            kindForbidden,
+	check.CodePreconditionFailed:   kindPreconditionFailed,
+	check.CodePreconditionRequired: kindPreconditionRequired,
 }
 
 func (k problemKind) problem(c *gin.Context, detail string) schema.Problem {
@@ -95,7 +96,7 @@ func (k problemKind) problem(c *gin.Context, detail string) schema.Problem {
 // kindOf maps err to its problem kind, the one place where errors become
 // statuses:
 //
-//	*facilities.Error                      by its Code (table in schema.Problem's comment)
+//	*check.Error                      by its Code (table in schema.Problem's comment)
 //	atmosphere.ErrRange                    400
 //	*http.MaxBytesError                    413
 //	notAcceptableError                     406
@@ -107,7 +108,7 @@ func (k problemKind) problem(c *gin.Context, detail string) schema.Problem {
 //
 // A store's error is classified first (classify).
 func kindOf(err error) problemKind {
-	var de *facilities.Error
+	var de *check.Error
 	var mbe *http.MaxBytesError
 	var nae notAcceptableError
 	var cf *clientFault
@@ -147,7 +148,7 @@ func (s *Server) classify(err error) error {
 func (s *Server) problem(c *gin.Context, err error) schema.Problem {
 	err = s.classify(err)
 	k := kindOf(err)
-	var de *facilities.Error
+	var de *check.Error
 	var mbe *http.MaxBytesError
 	var cf *clientFault
 	switch {
@@ -160,7 +161,7 @@ func (s *Server) problem(c *gin.Context, err error) schema.Problem {
 			detail = de.Error()
 		}
 		if detail == "" {
-			detail = facilities.InvalidCount(len(de.Fields))
+			detail = check.InvalidCount(len(de.Fields))
 		}
 		p := k.problem(c, detail)
 		p.Errors = de.Fields

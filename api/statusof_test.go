@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"net/http"
+	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -24,9 +25,9 @@ func TestStatusOf(t *testing.T) {
 		want int
 	}{
 		{"nil", nil, http.StatusOK},
-		{"invalid", facilities.Invalid("bad", []facilities.FieldError{{Field: "flight.mach", Message: "bad"}}), http.StatusBadRequest},
-		{"not found", &facilities.Error{Code: facilities.CodeNotFound}, http.StatusNotFound},
-		{"unprocessable", &facilities.Error{Code: facilities.CodeUnprocessable}, http.StatusUnprocessableEntity},
+		{"invalid", check.Invalid("bad", []check.FieldError{{Field: "flight.mach", Message: "bad"}}), http.StatusBadRequest},
+		{"not found", &check.Error{Code: check.CodeNotFound}, http.StatusNotFound},
+		{"unprocessable", &check.Error{Code: check.CodeUnprocessable}, http.StatusUnprocessableEntity},
 		{"atmosphere range", fmt.Errorf("flight: %w", atmosphere.ErrRange), http.StatusBadRequest},
 		{"body too large", &http.MaxBytesError{Limit: api.BodyLimit}, http.StatusRequestEntityTooLarge},
 		{"store unavailable", fmt.Errorf("reading tsw-1: %w", facilities.ErrUnavailable), http.StatusServiceUnavailable},

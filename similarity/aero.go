@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 	"sort"
 
 	"scalematch/facilities"
@@ -30,13 +31,13 @@ const (
 	maxCD        = 2.0
 )
 
-// Validate checks the estimate and returns a *facilities.Error (CodeInvalid) naming
+// Validate checks the estimate and returns a *check.Error (CodeInvalid) naming
 // every bad field by its JSON path under "article.aero", or nil. A table replaces
 // the parametric fields, which are then not checked.
 func (a Aero) Validate() error {
 	const p = "article.aero."
-	var fe []facilities.FieldError
-	bad := func(field, msg string) { fe = append(fe, facilities.FieldError{Field: p + field, Message: msg}) }
+	var fe []check.FieldError
+	bad := func(field, msg string) { fe = append(fe, check.FieldError{Field: p + field, Message: msg}) }
 	in := func(field string, v, lo, hi float64, openLo bool) {
 		ok := v <= hi && (v > lo || (!openLo && v == lo))
 		if !ok || math.IsNaN(v) {
@@ -49,7 +50,7 @@ func (a Aero) Validate() error {
 	}
 	if len(a.Table) > 0 {
 		if _, err := compileTable(a.Table); err != nil {
-			var e *facilities.Error
+			var e *check.Error
 			if errors.As(err, &e) {
 				return e
 			}
@@ -65,7 +66,7 @@ func (a Aero) Validate() error {
 	in("induced_drag_factor", a.InducedDragFactor, 0, 1, false)
 	in("cm_zero", a.CmZero, -2, 2, false)
 	in("cm_slope", a.CmSlope, -20, 20, false)
-	return facilities.Invalid("invalid aerodynamic estimate", fe)
+	return check.Invalid("invalid aerodynamic estimate", fe)
 }
 
 // Coefficients returns the estimate's coefficients at angle of attack alphaDeg and
@@ -146,9 +147,9 @@ const tableTol = 1e-9
 
 func compileTable(rows []AeroPoint) (*aeroTable, error) {
 	const p = "article.aero.table"
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	bad := func(i int, field, msg string) {
-		fe = append(fe, facilities.FieldError{Field: fmt.Sprintf("%s[%d].%s", p, i, field), Message: msg})
+		fe = append(fe, check.FieldError{Field: fmt.Sprintf("%s[%d].%s", p, i, field), Message: msg})
 	}
 	byBeta := map[float64][]int{}
 	for i, r := range rows {
@@ -188,9 +189,9 @@ func compileTable(rows []AeroPoint) (*aeroTable, error) {
 		t.groups = append(t.groups, g)
 	}
 	if len(rows) == 0 {
-		fe = append(fe, facilities.FieldError{Field: p, Message: "the table is empty"})
+		fe = append(fe, check.FieldError{Field: p, Message: "the table is empty"})
 	}
-	if err := facilities.Invalid("invalid coefficient table", fe); err != nil {
+	if err := check.Invalid("invalid coefficient table", fe); err != nil {
 		return nil, err
 	}
 	return t, nil
@@ -264,10 +265,10 @@ type Sweep struct {
 // Angles returns the sweep's angles in degrees. field is the sweep's JSON path
 // ("alpha", "beta") used in errors. Step must be positive, From ≤ To, both within
 // ±180°, and the sweep at most MaxSweepPoints angles; otherwise a
-// *facilities.Error (CodeInvalid) names the field.
+// *check.Error (CodeInvalid) names the field.
 func (s Sweep) Angles(field string) ([]float64, error) {
-	var fe []facilities.FieldError
-	bad := func(f, msg string) { fe = append(fe, facilities.FieldError{Field: field + "." + f, Message: msg}) }
+	var fe []check.FieldError
+	bad := func(f, msg string) { fe = append(fe, check.FieldError{Field: field + "." + f, Message: msg}) }
 	if !BoundSweepStep.Contains(s.Step) {
 		bad("step", BoundSweepStep.Problem(s.Step))
 	}
@@ -289,7 +290,7 @@ func (s Sweep) Angles(field string) ([]float64, error) {
 			}
 		}
 	}
-	if err := facilities.Invalid("invalid "+field+" sweep", fe); err != nil {
+	if err := check.Invalid("invalid "+field+" sweep", fe); err != nil {
 		return nil, err
 	}
 	n := int(math.Floor((s.To-s.From)/s.Step+1e-9)) + 1
@@ -320,7 +321,7 @@ type Matrix struct {
 
 // Matrix builds the test matrix of the α sweep at each angle of the β sweep (β = 0
 // when beta is nil) with the estimate's coefficients at each point. Errors are
-// *facilities.Error values naming "alpha", "beta" or "article.aero" fields.
+// *check.Error values naming "alpha", "beta" or "article.aero" fields.
 func (a Aero) Matrix(alpha Sweep, beta *Sweep) (Matrix, error) {
 	m, err := newAeroModel(a)
 	if err != nil {
@@ -337,7 +338,7 @@ func (a Aero) Matrix(alpha Sweep, beta *Sweep) (Matrix, error) {
 		}
 	}
 	if len(as)*len(bs) > MaxSweepPoints {
-		return Matrix{}, facilities.Invalid("test matrix too large", []facilities.FieldError{{Field: "beta",
+		return Matrix{}, check.Invalid("test matrix too large", []check.FieldError{{Field: "beta",
 			Message: fmt.Sprintf("%d α × %d β = %d points, more than the %d allowed", len(as), len(bs), len(as)*len(bs), MaxSweepPoints)}})
 	}
 	mx := Matrix{Points: make([]facilities.Point, 0, len(as)*len(bs)), AlphaPoints: len(as), BetaValues: len(bs)}
@@ -350,8 +351,8 @@ func (a Aero) Matrix(alpha Sweep, beta *Sweep) (Matrix, error) {
 				if t := m.table; t != nil && (b < t.betas[0]-tableTol || b > t.betas[len(t.betas)-1]+tableTol) {
 					field = "beta"
 				}
-				return Matrix{}, facilities.Invalid("the sweep leaves the coefficient table",
-					[]facilities.FieldError{{Field: field, Message: err.Error()}})
+				return Matrix{}, check.Invalid("the sweep leaves the coefficient table",
+					[]check.FieldError{{Field: field, Message: err.Error()}})
 			}
 			if stalled {
 				mx.Stalled++

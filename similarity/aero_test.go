@@ -3,10 +3,10 @@ package similarity_test
 import (
 	"errors"
 	"math"
+	"scalematch/internal/check"
 	"strings"
 	"testing"
 
-	"scalematch/facilities"
 	"scalematch/similarity"
 )
 
@@ -109,9 +109,9 @@ func TestTable(t *testing.T) {
 
 func fieldsOf(t *testing.T, err error) []string {
 	t.Helper()
-	var e *facilities.Error
-	if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
-		t.Fatalf("error %v, want a CodeInvalid *facilities.Error", err)
+	var e *check.Error
+	if !errors.As(err, &e) || e.Code != check.CodeInvalid {
+		t.Fatalf("error %v, want a CodeInvalid *check.Error", err)
 	}
 	var out []string
 	for _, f := range e.Fields {

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // Documented ranges of a request's article, flight, model, sweep and objective (SI
@@ -110,10 +111,10 @@ func Bounds() map[string]facilities.Bound {
 // BoundArticleArea, BoundWettedArea, BoundArticleOverallLength, BoundFormFactor),
 // its skin-friction settings (FrictionFieldErrors) and its aerodynamic estimate
 // (Aero.Validate); nil when there are none.
-func (a *Article) FieldErrors() []facilities.FieldError {
+func (a *Article) FieldErrors() []check.FieldError {
 	fe := a.geometryErrors(articleGeometry...)
 	fe = append(fe, a.FrictionFieldErrors()...)
-	var de *facilities.Error
+	var de *check.Error
 	if errors.As(a.Aero.Validate(), &de) {
 		fe = append(fe, de.Fields...)
 	}
@@ -127,7 +128,7 @@ var articleGeometry = []string{"reference_length", "reference_area", "span", "fr
 // reference_length, reference_area, span, frontal_area, wetted_area, length,
 // form_factor) against their documented ranges, for a caller outside this
 // package that checks the fields it uses (internal/loads' load limit).
-func (a *Article) GeometryErrors(fields ...string) []facilities.FieldError {
+func (a *Article) GeometryErrors(fields ...string) []check.FieldError {
 	return a.geometryErrors(fields...)
 }
 
@@ -136,8 +137,8 @@ func (a *Article) GeometryErrors(fields ...string) []facilities.FieldError {
 // checks them all (FieldErrors), and the planner, the load limit and the
 // skin-friction estimate, which library callers may give partial articles, each
 // check the ones they use.
-func (a *Article) geometryErrors(fields ...string) []facilities.FieldError {
-	var fe []facilities.FieldError
+func (a *Article) geometryErrors(fields ...string) []check.FieldError {
+	var fe []check.FieldError
 	for _, f := range fields {
 		var b facilities.Bound
 		var v float64
@@ -168,5 +169,5 @@ func (a *Article) geometryErrors(fields ...string) []facilities.FieldError {
 // (FieldErrors), or nil. The request layer, the planner, the load limit and the
 // skin-friction estimate all validate an article with it.
 func (a *Article) Validate() error {
-	return facilities.Invalid("invalid article", a.FieldErrors())
+	return check.Invalid("invalid article", a.FieldErrors())
 }

@@ -3,6 +3,7 @@ package similarity
 import (
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 
 	"scalematch/facilities"
 )
@@ -81,14 +82,14 @@ func (sv *solver) tradePoint(u, s float64) TradePoint {
 // reference length referenceLength (m) at each of n test Mach numbers (speeds in
 // water) evenly spread over its range, within every facility limit (no model-size
 // or balance limit), with the limit that caps each. n below 2 means 41. Errors are
-// *facilities.Error: CodeInvalid for a bad facility or length, CodeUnprocessable
+// *check.Error: CodeInvalid for a bad facility or length, CodeUnprocessable
 // when the facility's Mach and speed ranges do not overlap.
 func Envelope(f *facilities.Facility, referenceLength float64, n int) ([]TradePoint, error) {
 	if f == nil {
-		return nil, facilities.Invalid("no facility", []facilities.FieldError{{Field: "facility", Message: "a facility is required"}})
+		return nil, check.Invalid("no facility", []check.FieldError{{Field: "facility", Message: "a facility is required"}})
 	}
 	if !(referenceLength > 0) || math.IsInf(referenceLength, 0) {
-		return nil, facilities.Invalid("invalid reference length", []facilities.FieldError{{Field: "reference_length",
+		return nil, check.Invalid("invalid reference length", []check.FieldError{{Field: "reference_length",
 			Message: fmt.Sprintf("%g m must be a positive, finite length", referenceLength)}})
 	}
 	if err := f.Validate(); err != nil {
@@ -118,16 +119,16 @@ func Envelope(f *facilities.Facility, referenceLength float64, n int) ([]TradePo
 // range (ConstraintSpeedMin), or the condensation rule (ConstraintCondensation) of a
 // condensable medium. Cooling a gas raises its Reynolds number per metre, so this is
 // the temperature a Reynolds-hungry plan runs at. Gas media only; errors are
-// *facilities.Error (CodeUnprocessable when no temperature in range is usable).
+// *check.Error (CodeUnprocessable when no temperature in range is usable).
 func LowestStagnationTemperature(f *facilities.Facility, mach, p0 float64) (float64, string, error) {
 	if f == nil || f.Medium.IsLiquid() {
-		return 0, "", facilities.Invalid("not a gas facility", []facilities.FieldError{{Field: "facility.medium", Message: "a gas facility is required"}})
+		return 0, "", check.Invalid("not a gas facility", []check.FieldError{{Field: "facility.medium", Message: "a gas facility is required"}})
 	}
 	if err := f.Validate(); err != nil {
 		return 0, "", err
 	}
 	if !(mach > 0 && mach <= facilities.MaxSettingMach) || !(p0 > 0) || math.IsInf(p0, 0) {
-		return 0, "", facilities.Invalid("invalid setting", []facilities.FieldError{{Field: "mach",
+		return 0, "", check.Invalid("invalid setting", []check.FieldError{{Field: "mach",
 			Message: fmt.Sprintf("Mach %g and p0 %g Pa: need 0 < M ≤ %g and a positive pressure", mach, p0, facilities.MaxSettingMach)}})
 	}
 	fc := *f

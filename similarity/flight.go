@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 
 	"scalematch/atmosphere"
 	"scalematch/facilities"
@@ -87,12 +88,12 @@ func (f *Flight) speed() (v float64, kind atmosphere.SpeedKind, field string, n 
 }
 
 // Validate checks that exactly one altitude and exactly one speed are given and
-// that every number is finite and in range. It returns a *facilities.Error with
+// that every number is finite and in range. It returns a *check.Error with
 // CodeInvalid naming each bad field by its JSON path ("flight.altitude"), or nil.
 func (f *Flight) Validate() error {
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	add := func(field, msg string) {
-		fe = append(fe, facilities.FieldError{Field: "flight." + field, Message: msg})
+		fe = append(fe, check.FieldError{Field: "flight." + field, Message: msg})
 	}
 	switch {
 	case f.Altitude == nil && f.PressureAltitude == nil:
@@ -121,7 +122,7 @@ func (f *Flight) Validate() error {
 	case !BoundFlightSpeed.Contains(v):
 		add(field, BoundFlightSpeed.Problem(v))
 	}
-	return facilities.Invalid("invalid flight condition", fe)
+	return check.Invalid("invalid flight condition", fe)
 }
 
 // inRange reports whether v is finite and within [lo, hi].
@@ -130,14 +131,14 @@ func inRange(v, lo, hi float64) bool { return v >= lo && v <= hi }
 // Resolve validates the flight and returns its state: the standard atmosphere at its
 // altitude (U.S. Standard Atmosphere 1976), its airspeeds, and its Reynolds and
 // Froude numbers on the full-scale reference length referenceLength in m (physics.md
-// §1, §2, §5). referenceLength must be positive. Errors are *facilities.Error with
+// §1, §2, §5). referenceLength must be positive. Errors are *check.Error with
 // CodeInvalid naming the field.
 func (f *Flight) Resolve(referenceLength float64) (FlightState, error) {
 	if err := f.Validate(); err != nil {
 		return FlightState{}, err
 	}
 	if !(referenceLength > 0) || math.IsInf(referenceLength, 0) {
-		return FlightState{}, facilities.Invalid("invalid article", []facilities.FieldError{{
+		return FlightState{}, check.Invalid("invalid article", []check.FieldError{{
 			Field: "article.reference_length", Message: fmt.Sprintf("%g m must be a positive length", referenceLength)}})
 	}
 	var (
@@ -185,8 +186,8 @@ func (f *Flight) Resolve(referenceLength float64) (FlightState, error) {
 
 // fieldError wraps err as a CodeInvalid domain error naming field.
 func fieldError(field string, err error) error {
-	return &facilities.Error{Code: facilities.CodeInvalid, Message: "invalid flight condition",
-		Fields: []facilities.FieldError{{Field: field, Message: err.Error()}}}
+	return &check.Error{Code: check.CodeInvalid, Message: "invalid flight condition",
+		Fields: []check.FieldError{{Field: field, Message: err.Error()}}}
 }
 
 // Froude returns the Froude number Fr = V/√(g0·L) of speed V in m/s on length L in

@@ -3,6 +3,7 @@ package similarity
 import (
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 
 	"scalematch/facilities"
 )
@@ -152,17 +153,17 @@ func TransitionFraction(re float64) float64 { return math.Min(1, TransitionReyno
 
 // FrictionFieldErrors returns the problems of the article's skin-friction
 // settings (friction_line, full_scale_boundary_layer), nil when there are none.
-func (a *Article) FrictionFieldErrors() []facilities.FieldError {
-	var fe []facilities.FieldError
+func (a *Article) FrictionFieldErrors() []check.FieldError {
+	var fe []check.FieldError
 	switch a.FrictionLine {
 	case "", LinePrandtlSchlichting, LineITTC1957:
 	default:
-		fe = append(fe, facilities.FieldError{Field: "article.friction_line", Message: fmt.Sprintf("%q: must be %q (the default) or %q", a.FrictionLine, LinePrandtlSchlichting, LineITTC1957)})
+		fe = append(fe, check.FieldError{Field: "article.friction_line", Message: fmt.Sprintf("%q: must be %q (the default) or %q", a.FrictionLine, LinePrandtlSchlichting, LineITTC1957)})
 	}
 	switch a.FullScaleBoundaryLayer {
 	case "", BoundaryLayerTurbulent, BoundaryLayerNatural:
 	default:
-		fe = append(fe, facilities.FieldError{Field: "article.full_scale_boundary_layer", Message: fmt.Sprintf("%q: must be %q (the default) or %q", a.FullScaleBoundaryLayer, BoundaryLayerTurbulent, BoundaryLayerNatural)})
+		fe = append(fe, check.FieldError{Field: "article.full_scale_boundary_layer", Message: fmt.Sprintf("%q: must be %q (the default) or %q", a.FullScaleBoundaryLayer, BoundaryLayerTurbulent, BoundaryLayerNatural)})
 	}
 	return fe
 }
@@ -229,7 +230,7 @@ type ReynoldsEffects struct {
 // nose on that line unless art.FullScaleBoundaryLayer says natural transition. In
 // a gas the turbulent part takes Raymer's compressibility factor and the laminar
 // part the reference-temperature factor, each at its own Mach number; a liquid
-// takes neither. Bad input gives a *facilities.Error naming the field.
+// takes neither. Bad input gives a *check.Error naming the field.
 func ReynoldsEffect(art *Article, reFlight, machFlight, reTest, machTest float64, medium string) (ReynoldsEffects, error) {
 	fe := append(art.geometryErrors("wetted_area", "reference_area", "form_factor"), art.FrictionFieldErrors()...)
 	for _, r := range []struct {
@@ -237,7 +238,7 @@ func ReynoldsEffect(art *Article, reFlight, machFlight, reTest, machTest float64
 		v     float64
 	}{{"flight.reynolds", reFlight}, {"test.reynolds", reTest}} {
 		if !(r.v >= minFrictionReynolds) || math.IsInf(r.v, 0) {
-			fe = append(fe, facilities.FieldError{Field: r.field, Message: fmt.Sprintf("Reynolds number %g is outside the skin-friction laws' range (at least %g)", r.v, minFrictionReynolds)})
+			fe = append(fe, check.FieldError{Field: r.field, Message: fmt.Sprintf("Reynolds number %g is outside the skin-friction laws' range (at least %g)", r.v, minFrictionReynolds)})
 		}
 	}
 	for _, m := range []struct {
@@ -245,10 +246,10 @@ func ReynoldsEffect(art *Article, reFlight, machFlight, reTest, machTest float64
 		v     float64
 	}{{"flight.mach", machFlight}, {"test.mach", machTest}} {
 		if !(m.v >= 0 && m.v <= 5) {
-			fe = append(fe, facilities.FieldError{Field: m.field, Message: fmt.Sprintf("Mach number %g is outside 0 to 5", m.v)})
+			fe = append(fe, check.FieldError{Field: m.field, Message: fmt.Sprintf("Mach number %g is outside 0 to 5", m.v)})
 		}
 	}
-	if err := facilities.Invalid("invalid skin-friction input", fe); err != nil {
+	if err := check.Invalid("invalid skin-friction input", fe); err != nil {
 		return ReynoldsEffects{}, err
 	}
 	ff := art.FormFactor

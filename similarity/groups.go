@@ -5,10 +5,9 @@ import (
 	"encoding/json"
 	"fmt"
 	"math/big"
+	"scalematch/internal/check"
 	"strconv"
 	"strings"
-
-	"scalematch/facilities"
 )
 
 // MaxVariables is the largest number of variables Groups accepts.
@@ -176,25 +175,25 @@ func (g *Group) UnmarshalJSON(data []byte) error {
 // raises the rank, until the rank is reached.
 //
 // Groups are named (KnownAs) by the rules of recognise. When n ≤ r there are no groups:
-// the result holds the rank and an empty list. Bad input is a *facilities.Error
+// the result holds the rank and an empty list. Bad input is a *check.Error
 // (CodeInvalid) naming each bad field by its JSON path ("variables[2].name",
 // "repeating[0]").
 func Groups(vars []Variable, repeating []string) (GroupsResult, error) {
-	var bad []facilities.FieldError
+	var bad []check.FieldError
 	if len(vars) > MaxVariables {
-		bad = append(bad, facilities.FieldError{Field: "variables",
+		bad = append(bad, check.FieldError{Field: "variables",
 			Message: fmt.Sprintf("%d variables given; at most %d are allowed", len(vars), MaxVariables)})
-		return GroupsResult{}, facilities.Invalid("too many variables", bad)
+		return GroupsResult{}, check.Invalid("too many variables", bad)
 	}
 	index := make(map[string]int, len(vars))
 	for i, v := range vars {
 		field := "variables[" + strconv.Itoa(i) + "].name"
 		switch {
 		case strings.TrimSpace(v.Name) == "":
-			bad = append(bad, facilities.FieldError{Field: field, Message: "is empty; every variable needs a name"})
+			bad = append(bad, check.FieldError{Field: field, Message: "is empty; every variable needs a name"})
 		default:
 			if j, dup := index[v.Name]; dup {
-				bad = append(bad, facilities.FieldError{Field: field,
+				bad = append(bad, check.FieldError{Field: field,
 					Message: fmt.Sprintf("%q is also the name of variables[%d]; names must be unique", v.Name, j)})
 				continue
 			}
@@ -208,16 +207,16 @@ func Groups(vars []Variable, repeating []string) (GroupsResult, error) {
 		i, ok := index[name]
 		switch {
 		case !ok:
-			bad = append(bad, facilities.FieldError{Field: field, Message: fmt.Sprintf("%q is not one of the variables", name)})
+			bad = append(bad, check.FieldError{Field: field, Message: fmt.Sprintf("%q is not one of the variables", name)})
 		case seen[name]:
-			bad = append(bad, facilities.FieldError{Field: field, Message: fmt.Sprintf("%q is listed twice", name)})
+			bad = append(bad, check.FieldError{Field: field, Message: fmt.Sprintf("%q is listed twice", name)})
 		default:
 			seen[name] = true
 			rep = append(rep, i)
 		}
 	}
 	if len(bad) > 0 {
-		return GroupsResult{}, facilities.Invalid("bad variables for the Π theorem", bad)
+		return GroupsResult{}, check.Invalid("bad variables for the Π theorem", bad)
 	}
 
 	dims := make([]Dimension, len(vars))
@@ -233,12 +232,12 @@ func Groups(vars []Variable, repeating []string) (GroupsResult, error) {
 			sub[k] = dims[i]
 		}
 		if len(rep) != r {
-			return GroupsResult{}, facilities.Invalid("wrong number of repeating variables", []facilities.FieldError{{Field: "repeating",
+			return GroupsResult{}, check.Invalid("wrong number of repeating variables", []check.FieldError{{Field: "repeating",
 				Message: fmt.Sprintf("%d repeating variables given (%s); the dimension matrix has rank %d, so exactly %d are needed",
 					len(rep), strings.Join(repeating, ", "), r, r)}})
 		}
 		if sr := rank(sub); sr != r {
-			return GroupsResult{}, facilities.Invalid("repeating variables are not independent", []facilities.FieldError{{Field: "repeating",
+			return GroupsResult{}, check.Invalid("repeating variables are not independent", []check.FieldError{{Field: "repeating",
 				Message: fmt.Sprintf("%s are not dimensionally independent (their dimensions have rank %d, %d needed); choose variables that together span %s",
 					strings.Join(repeating, ", "), sr, r, spanned(dims))}})
 		}
@@ -259,7 +258,7 @@ func Groups(vars []Variable, repeating []string) (GroupsResult, error) {
 		}
 		x, err := solve(dims, rep, v.Dim)
 		if err != nil {
-			return GroupsResult{}, facilities.Invalid("no exact group", []facilities.FieldError{{Field: "variables[" + strconv.Itoa(j) + "]", Message: err.Error()}})
+			return GroupsResult{}, check.Invalid("no exact group", []check.FieldError{{Field: "variables[" + strconv.Itoa(j) + "]", Message: err.Error()}})
 		}
 		g := Group{Exponents: []Exponent{{Name: v.Name, Power: Int(1)}}}
 		for k, i := range rep {

@@ -5,11 +5,11 @@ import (
 	"errors"
 	"math/big"
 	"math/rand/v2"
+	"scalematch/internal/check"
 	"strconv"
 	"strings"
 	"testing"
 
-	"scalematch/facilities"
 	"scalematch/similarity"
 )
 
@@ -241,9 +241,9 @@ func TestGroupsErrors(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			_, err := similarity.Groups(c.vars, c.repeating)
-			var fe *facilities.Error
-			if !errors.As(err, &fe) || fe.Code != facilities.CodeInvalid {
-				t.Fatalf("error %v, want a *facilities.Error with code invalid", err)
+			var fe *check.Error
+			if !errors.As(err, &fe) || fe.Code != check.CodeInvalid {
+				t.Fatalf("error %v, want a *check.Error with code invalid", err)
 			}
 			found := false
 			for _, f := range fe.Fields {

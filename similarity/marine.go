@@ -3,6 +3,7 @@ package similarity
 import (
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 
 	"scalematch/atmosphere"
 	"scalematch/facilities"
@@ -107,12 +108,12 @@ type MarineState struct {
 }
 
 // Validate checks every field of the marine condition. It returns a
-// *facilities.Error with CodeInvalid naming each bad field by its JSON path
+// *check.Error with CodeInvalid naming each bad field by its JSON path
 // ("marine.temperature"), or nil.
 func (m *Marine) Validate() error {
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	add := func(field, msg string) {
-		fe = append(fe, facilities.FieldError{Field: "marine." + field, Message: msg})
+		fe = append(fe, check.FieldError{Field: "marine." + field, Message: msg})
 	}
 	switch m.Water {
 	case WaterFresh:
@@ -149,7 +150,7 @@ func (m *Marine) Validate() error {
 	default:
 		add("free_surface", fmt.Sprintf("unknown %q: want \"submerged\", \"near\" or \"piercing\"", m.FreeSurface))
 	}
-	return facilities.Invalid("invalid marine condition", fe)
+	return check.Invalid("invalid marine condition", fe)
 }
 
 // Resolve validates the marine condition and returns the full-scale state on the
@@ -169,7 +170,7 @@ func (m *Marine) Resolve(referenceLength float64) (FlightState, error) {
 		return FlightState{}, err
 	}
 	if !(referenceLength > 0) || math.IsInf(referenceLength, 0) {
-		return FlightState{}, facilities.Invalid("invalid article", []facilities.FieldError{{
+		return FlightState{}, check.Invalid("invalid article", []check.FieldError{{
 			Field: "article.reference_length", Message: fmt.Sprintf("%g m must be a positive length", referenceLength)}})
 	}
 	sa := 0.0

@@ -2,12 +2,12 @@ package similarity_test
 
 import (
 	"encoding/json"
+	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"scalematch/facilities"
 	"scalematch/similarity"
 )
 
@@ -83,7 +83,7 @@ func TestMarineValidate(t *testing.T) {
 				require.NoError(t, err)
 				return
 			}
-			var fe *facilities.Error
+			var fe *check.Error
 			require.ErrorAs(t, err, &fe)
 			require.NotEmpty(t, fe.Fields)
 			assert.Equal(t, tc.field, fe.Fields[0].Field)

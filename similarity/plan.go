@@ -3,6 +3,7 @@ package similarity
 import (
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 	"sort"
 
 	"scalematch/facilities"
@@ -47,11 +48,11 @@ type Model struct {
 }
 
 // Validate checks that at most one form is given and every scale lies in (0, 100].
-// It returns a *facilities.Error with CodeInvalid naming each bad field, or nil.
+// It returns a *check.Error with CodeInvalid naming each bad field, or nil.
 func (m *Model) Validate() error {
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	add := func(field, msg string) {
-		fe = append(fe, facilities.FieldError{Field: "model." + field, Message: msg})
+		fe = append(fe, check.FieldError{Field: "model." + field, Message: msg})
 	}
 	forms := 0
 	if m.Scale != nil {
@@ -66,27 +67,27 @@ func (m *Model) Validate() error {
 	if forms > 1 {
 		add("scale", "give only one of scale, scale_min/scale_max and scales")
 	}
-	check := func(field string, v float64) {
+	inRange := func(field string, v float64) {
 		if !BoundScale.Contains(v) {
 			add(field, "scale "+BoundScale.Problem(v))
 		}
 	}
 	if m.Scale != nil {
-		check("scale", *m.Scale)
+		inRange("scale", *m.Scale)
 	}
 	if m.ScaleMin != nil {
-		check("scale_min", *m.ScaleMin)
+		inRange("scale_min", *m.ScaleMin)
 	}
 	if m.ScaleMax != nil {
-		check("scale_max", *m.ScaleMax)
+		inRange("scale_max", *m.ScaleMax)
 	}
 	if m.ScaleMin != nil && m.ScaleMax != nil && *m.ScaleMin > *m.ScaleMax {
 		add("scale_min", fmt.Sprintf("scale_min %g is above scale_max %g", *m.ScaleMin, *m.ScaleMax))
 	}
 	for i, s := range m.Scales {
-		check(fmt.Sprintf("scales[%d]", i), s)
+		inRange(fmt.Sprintf("scales[%d]", i), s)
 	}
-	return facilities.Invalid("invalid model", fe)
+	return check.Invalid("invalid model", fe)
 }
 
 // Objective says what the plan optimises. Either Priority, a list of groups met in
@@ -118,11 +119,11 @@ type Objective struct {
 }
 
 // Validate checks group names, weights and the tolerance. It returns a
-// *facilities.Error with CodeInvalid naming each bad field, or nil.
+// *check.Error with CodeInvalid naming each bad field, or nil.
 func (o *Objective) Validate() error {
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	add := func(field, msg string) {
-		fe = append(fe, facilities.FieldError{Field: "objective." + field, Message: msg})
+		fe = append(fe, check.FieldError{Field: "objective." + field, Message: msg})
 	}
 	known := func(g string) bool {
 		return g == GroupReynolds || g == GroupMach || g == GroupFroude || g == GroupCavitation
@@ -169,7 +170,7 @@ func (o *Objective) Validate() error {
 	if o.CavitationTolerance != nil && !BoundCavitationTolerance.Contains(*o.CavitationTolerance) {
 		add("cavitation_tolerance", BoundCavitationTolerance.Problem(*o.CavitationTolerance))
 	}
-	return facilities.Invalid("invalid objective", fe)
+	return check.Invalid("invalid objective", fe)
 }
 
 // Problem is one planning problem: a resolved flight, the full-scale article, the
@@ -419,7 +420,7 @@ type Result struct {
 // groups closest to the flight's within every limit of the facility, the model
 // choice and p.LoadLimit; see docs/planner.md. A nil s means the zero Settings.
 //
-// Bad input gives a *facilities.Error with CodeInvalid; a problem no plan can
+// Bad input gives a *check.Error with CodeInvalid; a problem no plan can
 // satisfy gives CodeUnprocessable with Limits naming the conflicting limits.
 func Plan(p *Problem, s *Settings) (*Result, error) {
 	if s == nil {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand"
+	"scalematch/internal/check"
 	"testing"
 
 	"scalematch/facilities"
@@ -388,8 +389,8 @@ func checkAgainstReference(t *testing.T, n int, seed int64, nu, np, nt, zooms in
 			res, err := similarity.Plan(&sc.p, &similarity.Settings{TradePoints: -1, NoGains: true})
 			ref := reference(sc, nu, np, nt, zooms)
 			if err != nil {
-				var de *facilities.Error
-				if !errors.As(err, &de) || de.Code != facilities.CodeUnprocessable {
+				var de *check.Error
+				if !errors.As(err, &de) || de.Code != check.CodeUnprocessable {
 					t.Fatalf("planner: %v", err)
 				}
 				if ref.ok {

@@ -3,6 +3,7 @@ package similarity
 import (
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 	"sort"
 
 	"scalematch/facilities"
@@ -208,7 +209,7 @@ type solver struct {
 // newSolver validates the problem and sets up the search.
 func newSolver(p *Problem) (*solver, error) {
 	if p == nil || p.Facility == nil || p.Article == nil {
-		return nil, facilities.Invalid("incomplete problem", []facilities.FieldError{{Field: "facility", Message: "a problem needs a flight, an article and a facility"}})
+		return nil, check.Invalid("incomplete problem", []check.FieldError{{Field: "facility", Message: "a problem needs a flight, an article and a facility"}})
 	}
 	sv := &solver{p: p, f: p.Facility, fl: p.Flight, art: p.Article, L: p.Article.ReferenceLength,
 		loadScale: 1, load: p.LoadLimit, floor: p.LoadFloor, floorScale: 1, aim: p.Flight.Mach, aimRatio: 1}
@@ -250,10 +251,10 @@ func (sv *solver) checkInput() error {
 		if err := sv.f.Validate(); err != nil {
 			return err
 		}
-		return facilities.Invalid("invalid facility", []facilities.FieldError{{Field: "facility",
+		return check.Invalid("invalid facility", []check.FieldError{{Field: "facility",
 			Message: "the facility lacks a usable test section, pressure or temperature range"}})
 	}
-	if err := facilities.Invalid("invalid article", sv.art.geometryErrors("reference_length", "span", "frontal_area", "reference_area")); err != nil {
+	if err := check.Invalid("invalid article", sv.art.geometryErrors("reference_length", "span", "frontal_area", "reference_area")); err != nil {
 		return err
 	}
 	full := sv.fl.Mach > 0 && sv.fl.TrueAirspeed > 0
@@ -261,7 +262,7 @@ func (sv *solver) checkInput() error {
 		full = m.Speed > 0 && m.Cavitation > 0 && !math.IsInf(m.Cavitation, 0)
 	}
 	if !(sv.fl.Reynolds > 0 && full) || sv.fl.ReferenceLength != sv.L {
-		return facilities.Invalid("invalid flight condition", []facilities.FieldError{{Field: "flight",
+		return check.Invalid("invalid flight condition", []check.FieldError{{Field: "flight",
 			Message: "the flight must be resolved (Flight.Resolve) on the article's reference length"}})
 	}
 	if err := sv.p.Model.Validate(); err != nil {
@@ -305,18 +306,18 @@ func (sv *solver) checkObjective() error {
 		return nil
 	}
 	o := sv.p.Objective
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	for i, g := range o.Priority {
 		if g == GroupCavitation {
-			fe = append(fe, facilities.FieldError{Field: fmt.Sprintf("objective.priority[%d]", i),
+			fe = append(fe, check.FieldError{Field: fmt.Sprintf("objective.priority[%d]", i),
 				Message: "the cavitation number needs a full-scale condition in water: give marine instead of flight"})
 		}
 	}
 	if w, ok := o.Weights[GroupCavitation]; ok && w > 0 {
-		fe = append(fe, facilities.FieldError{Field: "objective.weights.cavitation",
+		fe = append(fe, check.FieldError{Field: "objective.weights.cavitation",
 			Message: "the cavitation number needs a full-scale condition in water: give marine instead of flight"})
 	}
-	return facilities.Invalid("invalid objective", fe)
+	return check.Invalid("invalid objective", fe)
 }
 
 // setObjective turns the request's objective into index form and notes what it
@@ -463,7 +464,7 @@ func unprocessable(msg string, limits ...string) error {
 		}
 	}
 	sort.Strings(ls)
-	return &facilities.Error{Code: facilities.CodeUnprocessable, Message: msg, Limits: ls}
+	return &check.Error{Code: check.CodeUnprocessable, Message: msg, Limits: ls}
 }
 
 // spanFraction returns the facility's span limit as a fraction of the width; a

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 	"slices"
 	"testing"
 
@@ -316,8 +317,8 @@ func TestPlanInfeasible(t *testing.T) {
 			p := similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: planDemo(t, "tsw-1")}
 			c.edit(&p)
 			_, err := similarity.Plan(&p, nil)
-			var de *facilities.Error
-			if !errors.As(err, &de) || de.Code != facilities.CodeUnprocessable {
+			var de *check.Error
+			if !errors.As(err, &de) || de.Code != check.CodeUnprocessable {
 				t.Fatalf("error %v, want unprocessable", err)
 			}
 			for _, l := range c.limits {
@@ -350,11 +351,11 @@ func TestFlightValidate(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			_, err := c.fl.Resolve(2)
-			var de *facilities.Error
-			if !errors.As(err, &de) || de.Code != facilities.CodeInvalid {
+			var de *check.Error
+			if !errors.As(err, &de) || de.Code != check.CodeInvalid {
 				t.Fatalf("error %v, want invalid", err)
 			}
-			if !slices.ContainsFunc(de.Fields, func(f facilities.FieldError) bool { return f.Field == c.field }) {
+			if !slices.ContainsFunc(de.Fields, func(f check.FieldError) bool { return f.Field == c.field }) {
 				t.Errorf("fields %+v lack %s", de.Fields, c.field)
 			}
 		})

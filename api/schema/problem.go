@@ -1,6 +1,6 @@
 package schema
 
-import "scalematch/facilities"
+import "scalematch/internal/check"
 
 // ContentTypeProblem is the media type of error responses (RFC 9457).
 const ContentTypeProblem = "application/problem+json"
@@ -42,7 +42,7 @@ type Problem struct {
 	Instance string `json:"instance,omitempty" example:"/v1/plans"`
 	// Errors names every bad field by its JSON path ("flight.altitude",
 	// "balances[1].limits.normal"); "" names the body as a whole.
-	Errors []facilities.FieldError `json:"errors,omitempty"`
+	Errors []check.FieldError `json:"errors,omitempty"`
 	// Limits names the limits that conflict, for unprocessable.
 	Limits []string `json:"limits,omitempty"`
 	// RequestID is the request's X-Request-ID, to find the request in the log.

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"scalematch/internal/check"
 	"scalematch/similarity"
 	"strings"
 	"text/tabwriter"
@@ -12,7 +13,6 @@ import (
 	"github.com/spf13/cobra"
 
 	"scalematch/atmosphere"
-	"scalematch/facilities"
 	"scalematch/internal/app"
 )
 
@@ -57,7 +57,7 @@ By default a table in SI units; --units us adds U.S. customary units beside them
 				},
 				func(key string) bool { return cmd.Flags().Changed(flagName(key)) })
 			if err != nil {
-				var de *facilities.Error
+				var de *check.Error
 				if errors.As(err, &de) {
 					for i := range de.Fields {
 						de.Fields[i].Field = "--" + flagName(de.Fields[i].Field)

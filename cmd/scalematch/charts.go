@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"scalematch/internal/check"
 
 	"scalematch/api/schema"
 	"scalematch/facilities"
@@ -28,7 +29,7 @@ func (o *computeOptions) writeCharts(ctx context.Context, p *app.Planner, plan *
 	}
 	for _, name := range app.PlanChartNames() {
 		ch, err := app.PlanChart(name, plan, f)
-		if facilities.ErrorCode(err) == facilities.CodeNotFound {
+		if check.ErrorCode(err) == check.CodeNotFound {
 			fmt.Fprintf(o.stderr, "chart %s: %v\n", name, err)
 			continue
 		}

@@ -8,6 +8,7 @@ import (
 	"io"
 	"io/fs"
 	"os"
+	"scalematch/internal/check"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -106,8 +107,8 @@ func openCatalog(ctx context.Context, data, database string) (cat facilities.Cat
 // inCatalog returns err with a not-found error's message naming the catalog the
 // command looked in.
 func inCatalog(err error, where string) error {
-	var de *facilities.Error
-	if errors.As(err, &de) && de.Code == facilities.CodeNotFound && where != "" {
+	var de *check.Error
+	if errors.As(err, &de) && de.Code == check.CodeNotFound && where != "" {
 		c := *de
 		c.Message = fmt.Sprintf("%s (looked in the %s)", c.Message, where)
 		if where != demoCatalogName {

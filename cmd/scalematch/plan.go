@@ -8,6 +8,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"scalematch/internal/check"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -160,7 +161,7 @@ type readOnlyPlans struct{ facilities.Catalog }
 // SavePlan returns the stored record with p's id, or p when none is stored.
 func (c readOnlyPlans) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities.PlanRecord, error) {
 	rec, err := c.Catalog.Plan(ctx, p.ID)
-	if facilities.ErrorCode(err) == facilities.CodeNotFound {
+	if check.ErrorCode(err) == check.CodeNotFound {
 		return p, nil
 	}
 	return rec, err
@@ -168,12 +169,12 @@ func (c readOnlyPlans) SavePlan(ctx context.Context, p facilities.PlanRecord) (f
 
 // problemError is a domain error written for a person: its message, then each bad
 // field by JSON path and each conflicting limit on a line of its own.
-type problemError struct{ e *facilities.Error }
+type problemError struct{ e *check.Error }
 
-var problemTitles = map[facilities.Code]string{
-	facilities.CodeInvalid:       "invalid input",
-	facilities.CodeNotFound:      "not found",
-	facilities.CodeUnprocessable: "no feasible plan",
+var problemTitles = map[check.Code]string{
+	check.CodeInvalid:       "invalid input",
+	check.CodeNotFound:      "not found",
+	check.CodeUnprocessable: "no feasible plan",
 }
 
 func (p problemError) Error() string {
@@ -204,7 +205,7 @@ func (p problemError) Unwrap() error { return p.e }
 
 // explain returns err, a domain error in its chain written out field by field.
 func explain(err error) error {
-	var de *facilities.Error
+	var de *check.Error
 	if errors.As(err, &de) {
 		return problemError{de}
 	}

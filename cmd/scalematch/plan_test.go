@@ -9,6 +9,7 @@ import (
 	"net/http/httptest"
 	"os"
 	"path/filepath"
+	"scalematch/internal/check"
 	"scalematch/internal/testfixture"
 	"slices"
 	"strings"
@@ -177,7 +178,7 @@ func TestPlanCommandStore(t *testing.T) {
 		t.Errorf("table: %v\n%s", err, out)
 	}
 	// Without the store the id names nothing.
-	if _, err := runCmd(t, stored, "plan", "--data", t.TempDir(), "-"); facilities.ErrorCode(err) != facilities.CodeNotFound {
+	if _, err := runCmd(t, stored, "plan", "--data", t.TempDir(), "-"); check.ErrorCode(err) != check.CodeNotFound {
 		t.Errorf("without the store: %v, want not found", err)
 	}
 	// A new plan is answered but not stored.
@@ -188,7 +189,7 @@ func TestPlanCommandStore(t *testing.T) {
 	}
 	id := out[strings.Index(out, `"id":"`)+6:]
 	id = id[:strings.IndexByte(id, '"')]
-	if _, err := db.Plan(ctx, id); facilities.ErrorCode(err) != facilities.CodeNotFound {
+	if _, err := db.Plan(ctx, id); check.ErrorCode(err) != check.CodeNotFound {
 		t.Errorf("plan %s: %v, want it not stored", id, err)
 	}
 }
@@ -199,36 +200,36 @@ func TestCommandErrors(t *testing.T) {
 		name  string
 		args  []string
 		stdin string
-		code  facilities.Code // "" when not a domain error
-		want  []string        // fragments of the message
+		code  check.Code // "" when not a domain error
+		want  []string   // fragments of the message
 	}{
 		{"bad fields are each named", []string{"plan", "--data", noStore, "-"},
 			strings.NewReplacer(`"12000 m"`, `"12000 kg"`, `"span": 16.4`, `"span": "19 s"`).Replace(testfixture.J16Plan),
-			facilities.CodeInvalid, []string{"invalid input", "\n  flight.altitude: ", "\n  article.span: "}},
+			check.CodeInvalid, []string{"invalid input", "\n  flight.altitude: ", "\n  article.span: "}},
 		{"out-of-range values are each named", []string{"plan", "--data", noStore, "-"},
 			strings.NewReplacer(`"12000 m"`, `"99000 m"`, `"span": 16.4`, `"span": -1`).Replace(testfixture.J16Plan),
-			facilities.CodeInvalid, []string{"\n  flight.altitude: ", "\n  article.span: "}},
+			check.CodeInvalid, []string{"\n  flight.altitude: ", "\n  article.span: "}},
 		{"unknown field", []string{"plan", "--data", noStore, "-"}, strings.Replace(testfixture.J16Plan, `"cl_max"`, `"cl_maks"`, 1),
-			facilities.CodeInvalid, []string{"article.aero.cl_maks"}},
+			check.CodeInvalid, []string{"article.aero.cl_maks"}},
 		{"groups has no --units: its groups are dimensionless", []string{"groups", "--units", "us", "-"}, dragGroups,
 			"", []string{"unknown flag: --units"}},
 		{"broken JSON", []string{"loads", "--data", noStore, "-"}, `{"article": `,
-			facilities.CodeInvalid, []string{"(body): "}},
+			check.CodeInvalid, []string{"(body): "}},
 		{"unknown facility", []string{"plan", "--data", noStore, "-"}, strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1),
-			facilities.CodeNotFound, []string{"not found", "no-such"}},
+			check.CodeNotFound, []string{"not found", "no-such"}},
 		{"no feasible plan", []string{"plan", "--data", noStore, "-"}, strings.Replace(testfixture.J16Plan, `{"scale_min": 0.01, "scale_max": 0.5}`, `{"scale": 0.2}`, 1),
-			facilities.CodeUnprocessable, []string{"no feasible plan", "conflicting limits: "}},
+			check.CodeUnprocessable, []string{"no feasible plan", "conflicting limits: "}},
 		{"a finite input that overflowed: +Inf counts, exit 0", []string{"plan", "--data", noStore, "-"},
 			strings.Replace(testfixture.J16Plan, `"wetted_area": 228`, `"wetted_area": 228, "form_factor": 1e308`, 1),
-			facilities.CodeInvalid, []string{"\n  article.form_factor: "}},
+			check.CodeInvalid, []string{"\n  article.form_factor: "}},
 		{"a finite load input that overflowed", []string{"loads", "--data", noStore, "-"},
 			strings.Replace(testfixture.J16Loads, `"1.5 bar"`, `1e308`, 1),
-			facilities.CodeInvalid, []string{"\n  test.stagnation_pressure: "}},
+			check.CodeInvalid, []string{"\n  test.stagnation_pressure: "}},
 		{"a tiny reference area", []string{"plan", "--json", "--data", noStore, "-"},
 			strings.Replace(testfixture.J16Plan, `"reference_area": 36.5`, `"reference_area": 1e-310`, 1),
-			facilities.CodeInvalid, []string{"\n  article.reference_area: "}},
+			check.CodeInvalid, []string{"\n  article.reference_area: "}},
 		{"groups without variables", []string{"groups", "-"}, `{"variables": []}`,
-			facilities.CodeInvalid, []string{"\n  variables: "}},
+			check.CodeInvalid, []string{"\n  variables: "}},
 		{"bad units flag", []string{"plan", "--units", "imperial", "-"}, testfixture.J16Plan, "", []string{"--units"}},
 		{"missing file", []string{"loads", filepath.Join(noStore, "none.json")}, "", "", []string{"none.json"}},
 		{"no argument", []string{"groups"}, "", "", []string{"arg"}},
@@ -239,7 +240,7 @@ func TestCommandErrors(t *testing.T) {
 			if err == nil {
 				t.Fatalf("no error; output:\n%s", out)
 			}
-			if got := facilities.ErrorCode(err); got != c.code {
+			if got := check.ErrorCode(err); got != c.code {
 				t.Errorf("code %q, want %q (%v)", got, c.code, err)
 			}
 			for _, w := range c.want {

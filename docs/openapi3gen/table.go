@@ -2,6 +2,7 @@ package main
 
 import (
 	"net/http"
+	"scalematch/internal/check"
 	"slices"
 	"strings"
 
@@ -50,7 +51,7 @@ var goTypes = map[string]any{
 	"campaign.Request":          campaign.Request{},
 	"campaign.Result":           campaign.Result{},
 	// An alias of check.FieldError, named as swag names it.
-	"facilities.FieldError": facilities.FieldError{},
+	"check.FieldError": check.FieldError{},
 }
 
 func ref(name string) *openapi3.SchemaRef {

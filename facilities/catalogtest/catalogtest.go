@@ -9,6 +9,7 @@ import (
 	"errors"
 	"fmt"
 	"reflect"
+	"scalematch/internal/check"
 	"sync"
 	"sync/atomic"
 	"testing"
@@ -105,9 +106,9 @@ func sameFacility(t *testing.T, got, want facilities.Facility) {
 	}
 }
 
-func wantCode(t *testing.T, err error, code facilities.Code) {
+func wantCode(t *testing.T, err error, code check.Code) {
 	t.Helper()
-	if got := facilities.ErrorCode(err); got != code {
+	if got := check.ErrorCode(err); got != code {
 		t.Errorf("error = %v (code %q), want code %q", err, got, code)
 	}
 }
@@ -167,15 +168,15 @@ func testRefusesOutOfRange(t *testing.T, c facilities.Catalog) {
 	ops.SecondsPerPoint = 1e308
 	bad.Operations = &ops
 	_, err := c.CreateFacility(ctx, bad, "a")
-	wantCode(t, err, facilities.CodeInvalid)
+	wantCode(t, err, check.CodeInvalid)
 	wantField(t, err, "operations.seconds_per_point")
-	if _, err := c.Versions(ctx, bad.ID); facilities.ErrorCode(err) != facilities.CodeNotFound {
+	if _, err := c.Versions(ctx, bad.ID); check.ErrorCode(err) != check.CodeNotFound {
 		t.Errorf("a refused create left a history: %v", err)
 	}
 	good := mustCreate(t, c, demo(t, "tsw-1"), "a")
 	bad.Version = 0
 	_, err = c.UpdateFacility(ctx, bad, good.Version, "a")
-	wantCode(t, err, facilities.CodeInvalid)
+	wantCode(t, err, check.CodeInvalid)
 	wantField(t, err, "operations.seconds_per_point")
 	got, err := c.Facility(ctx, bad.ID)
 	if err != nil {
@@ -189,7 +190,7 @@ func testRefusesOutOfRange(t *testing.T, c facilities.Catalog) {
 // wantField fails unless err is a domain error naming field.
 func wantField(t *testing.T, err error, field string) {
 	t.Helper()
-	var de *facilities.Error
+	var de *check.Error
 	if !errors.As(err, &de) {
 		t.Fatalf("%v: not a domain error", err)
 	}
@@ -205,7 +206,7 @@ func testCreateConflict(t *testing.T, c facilities.Catalog) {
 	f := demo(t, "lsw-2")
 	mustCreate(t, c, f, "a")
 	_, err := c.CreateFacility(context.Background(), f, "b")
-	wantCode(t, err, facilities.CodeConflict)
+	wantCode(t, err, check.CodeConflict)
 	vs, err := c.Versions(context.Background(), f.ID)
 	if err != nil {
 		t.Fatal(err)
@@ -261,7 +262,7 @@ func testUpdate(t *testing.T, c facilities.Catalog) {
 	other := demo(t, "lsw-2")
 	other.Name = "stale edit"
 	_, err = c.UpdateFacility(ctx, other, 1, "carol")
-	wantCode(t, err, facilities.CodePreconditionFailed)
+	wantCode(t, err, check.CodePreconditionFailed)
 	read, err = c.Facility(ctx, f.ID)
 	if err != nil {
 		t.Fatal(err)
@@ -271,7 +272,7 @@ func testUpdate(t *testing.T, c facilities.Catalog) {
 	}
 	// An If-Match ahead of the store is stale too.
 	_, err = c.UpdateFacility(ctx, other, 3, "carol")
-	wantCode(t, err, facilities.CodePreconditionFailed)
+	wantCode(t, err, check.CodePreconditionFailed)
 
 	// The first version stays as it was.
 	v1, err := c.FacilityVersion(ctx, f.ID, 1)
@@ -290,12 +291,12 @@ func testDelete(t *testing.T, c facilities.Catalog) {
 		t.Fatal(err)
 	}
 
-	wantCode(t, c.DeleteFacility(ctx, f.ID, 2, "bob"), facilities.CodePreconditionFailed)
+	wantCode(t, c.DeleteFacility(ctx, f.ID, 2, "bob"), check.CodePreconditionFailed)
 	if err := c.DeleteFacility(ctx, f.ID, 1, "bob"); err != nil {
 		t.Fatal(err)
 	}
 	_, err := c.Facility(ctx, f.ID)
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	fs, err := c.Facilities(ctx)
 	if err != nil {
 		t.Fatal(err)
@@ -325,11 +326,11 @@ func testDelete(t *testing.T, c facilities.Catalog) {
 	}
 	// The deletion itself has no facility to read.
 	_, err = c.FacilityVersion(ctx, f.ID, 2)
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	// Changing or deleting a deleted facility finds nothing.
 	_, err = c.UpdateFacility(ctx, f, 2, "bob")
-	wantCode(t, err, facilities.CodeNotFound)
-	wantCode(t, c.DeleteFacility(ctx, f.ID, 2, "bob"), facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
+	wantCode(t, c.DeleteFacility(ctx, f.ID, 2, "bob"), check.CodeNotFound)
 }
 
 func testRecreate(t *testing.T, c facilities.Catalog) {
@@ -435,25 +436,25 @@ func testNotFound(t *testing.T, c facilities.Catalog) {
 	ctx := context.Background()
 	mustCreate(t, c, demo(t, "lsw-2"), "a")
 	_, err := c.Facility(ctx, "no-such")
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	_, err = c.FacilityVersion(ctx, "no-such", 1)
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	_, err = c.FacilityVersion(ctx, "lsw-2", 2)
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	_, err = c.FacilityVersion(ctx, "lsw-2", 0)
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	_, err = c.Versions(ctx, "no-such")
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	missing := demo(t, "tsw-1")
 	_, err = c.UpdateFacility(ctx, missing, 1, "a")
-	wantCode(t, err, facilities.CodeNotFound)
-	wantCode(t, c.DeleteFacility(ctx, "no-such", 1, "a"), facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
+	wantCode(t, c.DeleteFacility(ctx, "no-such", 1, "a"), check.CodeNotFound)
 	_, err = c.Plan(ctx, "no-such-plan")
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	_, err = c.CreateFacility(ctx, facilities.Facility{}, "a")
-	wantCode(t, err, facilities.CodeInvalid)
+	wantCode(t, err, check.CodeInvalid)
 	_, err = c.SavePlan(ctx, facilities.PlanRecord{Body: []byte(`{}`)})
-	wantCode(t, err, facilities.CodeInvalid)
+	wantCode(t, err, check.CodeInvalid)
 }
 
 func testPlans(t *testing.T, c facilities.Catalog) {
@@ -558,7 +559,7 @@ func testConcurrentUpdates(t *testing.T, c facilities.Catalog) {
 				}
 				cur.Operations.SecondsPerPoint++
 				got, err := c.UpdateFacility(ctx, cur, cur.Version, facilities.Actor(fmt.Sprintf("writer-%d", w)))
-				if facilities.ErrorCode(err) == facilities.CodePreconditionFailed {
+				if check.ErrorCode(err) == check.CodePreconditionFailed {
 					stale.Add(1)
 					continue
 				}
@@ -615,14 +616,14 @@ func testConcurrentCreates(t *testing.T, c facilities.Catalog) {
 			f := demo(t, "wtn-04")
 			f.Name = fmt.Sprintf("writer %d", w)
 			_, err := c.CreateFacility(ctx, f, facilities.Actor(f.Name))
-			switch facilities.ErrorCode(err) {
+			switch check.ErrorCode(err) {
 			case "":
 				if err != nil {
 					t.Errorf("writer %d: %v", w, err)
 					return
 				}
 				wins.Add(1)
-			case facilities.CodeConflict:
+			case check.CodeConflict:
 				conflicts.Add(1)
 			default:
 				t.Errorf("writer %d: %v", w, err)
@@ -803,9 +804,9 @@ func testCancelledContext(t *testing.T, c facilities.Catalog) {
 	}
 	bg := context.Background()
 	_, err := c.Facility(bg, "lsw-2")
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 	_, err = c.Plan(bg, "p")
-	wantCode(t, err, facilities.CodeNotFound)
+	wantCode(t, err, check.CodeNotFound)
 }
 
 // cutContext is a context that cancels itself at its n-th look (Err or Done), so a
@@ -846,7 +847,7 @@ func take(t *testing.T, c facilities.Catalog, id, planID string) snapshot {
 	ctx := context.Background()
 	var s snapshot
 	f, err := c.Facility(ctx, id)
-	if err != nil && facilities.ErrorCode(err) != facilities.CodeNotFound {
+	if err != nil && check.ErrorCode(err) != check.CodeNotFound {
 		t.Fatal(err)
 	}
 	if err == nil {
@@ -855,7 +856,7 @@ func take(t *testing.T, c facilities.Catalog, id, planID string) snapshot {
 		s.body = string(b)
 	}
 	vs, err := c.Versions(ctx, id)
-	if err != nil && facilities.ErrorCode(err) != facilities.CodeNotFound {
+	if err != nil && check.ErrorCode(err) != check.CodeNotFound {
 		t.Fatal(err)
 	}
 	s.versions = len(vs)
@@ -864,7 +865,7 @@ func take(t *testing.T, c facilities.Catalog, id, planID string) snapshot {
 		s.lastBody = string(b)
 	}
 	p, err := c.Plan(ctx, planID)
-	if err != nil && facilities.ErrorCode(err) != facilities.CodeNotFound {
+	if err != nil && check.ErrorCode(err) != check.CodeNotFound {
 		t.Fatal(err)
 	}
 	s.plan = string(p.Body)
@@ -953,7 +954,7 @@ func testFailMidway(t *testing.T, c facilities.Catalog) {
 				if err == nil && !changed {
 					t.Fatalf("cut %d: the write was acknowledged but is not in the store", cut)
 				}
-				if err != nil && !errors.Is(err, context.Canceled) && facilities.ErrorCode(err) == "" {
+				if err != nil && !errors.Is(err, context.Canceled) && check.ErrorCode(err) == "" {
 					t.Logf("cut %d: %v", cut, err)
 				}
 				if changed {
@@ -1117,6 +1118,6 @@ func testPlanList(t *testing.T, c facilities.Catalog) {
 	}
 	for _, bad := range []facilities.ListQuery{{Cursor: "!"}, {Limit: -2}, {Limit: facilities.MaxListLimit + 1}} {
 		_, _, err := pl.Plans(ctx, bad)
-		wantCode(t, err, facilities.CodeInvalid)
+		wantCode(t, err, check.CodeInvalid)
 	}
 }

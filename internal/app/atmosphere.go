@@ -3,11 +3,11 @@ package app
 import (
 	"errors"
 	"math"
+	"scalematch/internal/check"
 	"strconv"
 	"strings"
 
 	"scalematch/atmosphere"
-	"scalematch/facilities"
 	"scalematch/similarity"
 )
 
@@ -17,11 +17,11 @@ import (
 // The command line's atmosphere command reads its flags through it too, so both
 // accept the same values.
 func AtmosphereQuery(get func(string) string, has func(string) bool) (atmosphere.State, error) {
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	num := func(key, unit string) (float64, bool) {
 		v, err := similarity.ToSI(get(key), unit)
 		if err != nil {
-			fe = append(fe, facilities.FieldError{Field: key, Message: err.Error()})
+			fe = append(fe, check.FieldError{Field: key, Message: err.Error()})
 			return 0, false
 		}
 		return v, true
@@ -45,9 +45,9 @@ func AtmosphereQuery(get func(string) string, has func(string) bool) (atmosphere
 	hasAlt, hasPA := has("altitude"), has("pressure_altitude")
 	switch {
 	case hasAlt && hasPA:
-		fe = append(fe, facilities.FieldError{Field: "pressure_altitude", Message: "give only one of altitude and pressure_altitude"})
+		fe = append(fe, check.FieldError{Field: "pressure_altitude", Message: "give only one of altitude and pressure_altitude"})
 	case !hasAlt && !hasPA:
-		fe = append(fe, facilities.FieldError{Field: "altitude", Message: "give altitude (geometric, m) or pressure_altitude (m)"})
+		fe = append(fe, check.FieldError{Field: "altitude", Message: "give altitude (geometric, m) or pressure_altitude (m)"})
 	}
 	var z float64
 	var zok bool
@@ -58,11 +58,11 @@ func AtmosphereQuery(get func(string) string, has func(string) bool) (atmosphere
 		key = "pressure_altitude"
 		z, zok = length("pressure_altitude")
 	}
-	if err := facilities.Invalid(facilities.InvalidCount(len(fe)), fe); err != nil {
+	if err := check.Invalid(check.InvalidCount(len(fe)), fe); err != nil {
 		return atmosphere.State{}, err
 	}
 	if !zok {
-		return atmosphere.State{}, facilities.Invalid(facilities.InvalidCount(1), []facilities.FieldError{{Field: key, Message: "not a number"}})
+		return atmosphere.State{}, check.Invalid(check.InvalidCount(1), []check.FieldError{{Field: key, Message: "not a number"}})
 	}
 	var st atmosphere.State
 	var err error
@@ -77,7 +77,7 @@ func AtmosphereQuery(get func(string) string, has func(string) bool) (atmosphere
 		if errors.As(err, &re) && re.Quantity == "delta_isa" {
 			field = "delta_isa"
 		}
-		return atmosphere.State{}, facilities.Invalid(facilities.InvalidCount(1), []facilities.FieldError{{Field: field, Message: err.Error()}})
+		return atmosphere.State{}, check.Invalid(check.InvalidCount(1), []check.FieldError{{Field: field, Message: err.Error()}})
 	}
 	return st, nil
 }

@@ -127,7 +127,7 @@ func (p *Planner) facility(ctx context.Context, inline *facilities.Facility, id 
 	if p.Catalog == nil {
 		f, ok := demoFacilities()[id]
 		if !ok {
-			return nil, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("facility %q not found", id)}
+			return nil, &check.Error{Code: check.CodeNotFound, Message: fmt.Sprintf("facility %q not found", id)}
 		}
 		return &f, nil
 	}
@@ -218,7 +218,7 @@ func checkResolution(r *facilities.Resolution, fe *check.Fields) {
 }
 
 // Plan validates a plan request, plans it and assembles the answer. Bad input is a
-// *facilities.Error with CodeInvalid naming every bad field; an unknown facility
+// *check.Error with CodeInvalid naming every bad field; an unknown facility
 // CodeNotFound; a problem no plan can satisfy CodeUnprocessable naming the limits.
 // The answer's ID is set; nothing is stored.
 func (p *Planner) Plan(ctx context.Context, req *schema.PlanRequest) (*schema.PlanResponse, error) {
@@ -318,7 +318,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	// resolution at any setting; the plan is then made without the resolution
 	// and says so (facilities.ResolutionNoBalance).
 	unresolved := false
-	if err != nil && prob.LoadFloor != nil && facilities.ErrorCode(err) == facilities.CodeUnprocessable {
+	if err != nil && prob.LoadFloor != nil && check.ErrorCode(err) == check.CodeUnprocessable {
 		prob.LoadFloor = nil
 		ll.Resolve(nil)
 		res, err = similarity.Plan(prob, nil)
@@ -495,7 +495,7 @@ func (p *Planner) planJSON(ctx context.Context, req *schema.PlanRequest) (planne
 		return plannedJSON{}, err
 	}
 	if len(pj.body) > MaxPlanBytes {
-		return plannedJSON{}, &facilities.Error{Code: facilities.CodeUnprocessable, Limits: []string{"plan_size"},
+		return plannedJSON{}, &check.Error{Code: check.CodeUnprocessable, Limits: []string{"plan_size"},
 			Message: fmt.Sprintf("the plan's answer is %d bytes, more than the %d a stored plan may have: plan fewer α or β points", len(pj.body), MaxPlanBytes)}
 	}
 	pj.stored = p.Catalog == nil
@@ -544,7 +544,7 @@ func validateFullScale(fl *similarity.Flight, m *similarity.Marine, required boo
 	given := fl != nil && *fl != (similarity.Flight{})
 	switch {
 	case given && m != nil:
-		return facilities.Invalid("invalid full-scale condition", []facilities.FieldError{{Field: "marine",
+		return check.Invalid("invalid full-scale condition", []check.FieldError{{Field: "marine",
 			Message: "give flight (an aircraft in the atmosphere) or marine (a vessel in water), not both"}})
 	case m != nil:
 		return m.Validate()

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"math"
 	"os"
+	"scalematch/internal/check"
 	"slices"
 	"strings"
 	"sync/atomic"
@@ -158,7 +159,7 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 				failed := 0
 				for _, r := range p.Batch().PlanBatch(ctx, raw, nil) {
 					if r.Err != nil {
-						require.Equal(t, facilities.CodeNotFound, facilities.ErrorCode(r.Err), "%v", r.Err)
+						require.Equal(t, check.CodeNotFound, check.ErrorCode(r.Err), "%v", r.Err)
 						failed++
 					}
 				}

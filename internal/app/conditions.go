@@ -48,7 +48,7 @@ func notFoundOrFail(err error, fe *check.Fields, field string) error {
 	if err == nil {
 		return nil
 	}
-	if facilities.ErrorCode(err) == facilities.CodeNotFound {
+	if check.ErrorCode(err) == check.CodeNotFound {
 		if len(*fe) == 0 {
 			return err
 		}

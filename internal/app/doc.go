@@ -5,5 +5,5 @@
 // conditions, dimensionless groups, the standard atmosphere and the charts of a
 // plan. NewPlanner adds the caches a long-running service keeps (facility
 // versions, stored plans). It imports no HTTP framework; its errors are
-// *facilities.Error values, which the service maps to statuses.
+// *check.Error values, which the service maps to statuses.
 package app

@@ -4,13 +4,13 @@ import (
 	"context"
 	"math"
 	"os"
+	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api/schema"
-	"scalematch/facilities"
 	"scalematch/internal/unitjson"
 )
 
@@ -44,9 +44,9 @@ func TestEncodePlanNamesNonFinite(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			_, err := encodePlan(tc.resp)
-			var fe *facilities.Error
+			var fe *check.Error
 			require.ErrorAs(t, err, &fe)
-			assert.Equal(t, facilities.CodeUnprocessable, fe.Code)
+			assert.Equal(t, check.CodeUnprocessable, fe.Code)
 			assert.Contains(t, fe.Message, tc.path)
 			require.Len(t, fe.Fields, 1)
 			assert.Equal(t, tc.input, fe.Fields[0].Field)

@@ -29,7 +29,7 @@ type Envelope = charts.Envelope
 // the lowest stagnation pressure at the stagnation temperature, of a grid over
 // the facility's range, that gives the lowest Reynolds number (lowLimit names
 // the limit that sets it). Errors are those
-// of similarity.Envelope (*facilities.Error).
+// of similarity.Envelope (*check.Error).
 func EnvelopeOf(f *facilities.Facility, refLength float64) (Envelope, error) {
 	top, err := similarity.Envelope(f, refLength, envelopeColumns)
 	if err != nil {

@@ -29,9 +29,9 @@ func CheckFinite(v any, input func(top string) string) error {
 		top, _, _ = strings.Cut(top, "[")
 		field = input(top)
 	}
-	return &facilities.Error{Code: facilities.CodeUnprocessable,
+	return &check.Error{Code: check.CodeUnprocessable,
 		Message: fmt.Sprintf("the result %s is not a finite number: the inputs are inside their ranges but too extreme together for the models", path),
-		Fields:  []facilities.FieldError{{Field: field, Message: fmt.Sprintf("makes %s overflow; bring it nearer to the usual range", path)}},
+		Fields:  []check.FieldError{{Field: field, Message: fmt.Sprintf("makes %s overflow; bring it nearer to the usual range", path)}},
 		Limits:  []string{"finite_result"}}
 }
 

@@ -2,6 +2,7 @@ package app
 
 import (
 	"math"
+	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -38,9 +39,9 @@ func TestCheckFinite(t *testing.T) {
 				require.NoError(t, err)
 				return
 			}
-			var de *facilities.Error
+			var de *check.Error
 			require.ErrorAs(t, err, &de)
-			assert.Equal(t, facilities.CodeUnprocessable, de.Code)
+			assert.Equal(t, check.CodeUnprocessable, de.Code)
 			assert.Contains(t, de.Message, tc.path)
 			require.Len(t, de.Fields, 1)
 			assert.Equal(t, tc.input, de.Fields[0].Field)

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"scalematch/internal/check"
 	"strings"
 
 	"scalematch/api/schema"
@@ -25,7 +26,7 @@ func PlanChartNames() []string { return []string{ChartEnvelope, ChartLoads, Char
 // plan used) with the plan's flight point, test point and trade curve; the load
 // sweep of the plan's balance; or the Reynolds trade of the chosen model. f may be
 // nil for a plan whose facility was given inline and not stored: its envelope and
-// loads charts are then not available. Errors are *facilities.Error:
+// loads charts are then not available. Errors are *check.Error:
 // CodeNotFound for an unknown name or a chart the plan cannot have.
 func PlanChart(name string, plan *schema.PlanResponse, f *facilities.Facility) (*charts.Chart, error) {
 	switch name {
@@ -62,13 +63,13 @@ func PlanChart(name string, plan *schema.PlanResponse, f *facilities.Facility) (
 			Speed: plan.Mismatch.MachDifference == nil, Flight: plan.Flight, Model: plan.Model,
 			Test: plan.Test, Curve: plan.TradeCurve})
 	}
-	return nil, &facilities.Error{Code: facilities.CodeNotFound,
+	return nil, &check.Error{Code: check.CodeNotFound,
 		Message: fmt.Sprintf("no chart %q: a plan's charts are %s", name, strings.Join(PlanChartNames(), ", "))}
 }
 
 // noChart is the error for a chart that plan cannot have, and why.
 func noChart(name string, plan *schema.PlanResponse, why string) error {
-	return &facilities.Error{Code: facilities.CodeNotFound,
+	return &check.Error{Code: check.CodeNotFound,
 		Message: fmt.Sprintf("plan %s has no %s chart: %s", plan.ID, name, why)}
 }
 
@@ -79,7 +80,7 @@ func BalanceRatings(f *facilities.Facility, id string) (facilities.Ratings, erro
 			return f.BalanceRatings(i)
 		}
 	}
-	return facilities.Ratings{}, &facilities.Error{Code: facilities.CodeNotFound,
+	return facilities.Ratings{}, &check.Error{Code: check.CodeNotFound,
 		Message: fmt.Sprintf("facility %s has no balance %q", f.ID, id)}
 }
 

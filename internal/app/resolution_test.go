@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"os"
+	"scalematch/internal/check"
 	"slices"
 	"strings"
 	"testing"
@@ -107,10 +108,10 @@ func TestResolutionFieldErrors(t *testing.T) {
 // requireField asks that err be a CodeInvalid error naming field.
 func requireField(t *testing.T, err error, field string) {
 	t.Helper()
-	var e *facilities.Error
+	var e *check.Error
 	require.True(t, errors.As(err, &e), "want a field error, got %v", err)
-	assert.Equal(t, facilities.CodeInvalid, e.Code)
-	assert.True(t, slices.ContainsFunc(e.Fields, func(f facilities.FieldError) bool { return f.Field == field }), "fields %+v, want %s", e.Fields, field)
+	assert.Equal(t, check.CodeInvalid, e.Code)
+	assert.True(t, slices.ContainsFunc(e.Fields, func(f check.FieldError) bool { return f.Field == field }), "fields %+v, want %s", e.Fields, field)
 }
 
 // TestPlanResolutionWater plans the demo vessel of examples/tarn-a2-wtn-04.json

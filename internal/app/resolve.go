@@ -19,7 +19,7 @@ func (p *Planner) ResolveFacility(ctx context.Context, inline *facilities.Facili
 	var own check.Fields
 	f, err := p.facility(ctx, inline, id, &own)
 	if err := notFoundOrFail(err, &own, "facility_id"); err != nil {
-		if facilities.ErrorCode(err) == facilities.CodeNotFound && len(*fe) > 0 {
+		if check.ErrorCode(err) == check.CodeNotFound && len(*fe) > 0 {
 			fe.Add(check.JoinPath(prefix, "facility_id"), "%s", err.Error())
 			return nil, nil
 		}
@@ -53,9 +53,9 @@ func CheckInstallation(in *facilities.Installation, f *facilities.Facility, pref
 // the error names fields relative to the flight ("altitude", "mach").
 func ValidateFlight(fl *similarity.Flight) error {
 	err := fl.Validate()
-	if de, ok := err.(*facilities.Error); ok && de.Code == facilities.CodeInvalid {
+	if de, ok := err.(*check.Error); ok && de.Code == check.CodeInvalid {
 		out := *de
-		out.Fields = make([]facilities.FieldError, len(de.Fields))
+		out.Fields = make([]check.FieldError, len(de.Fields))
 		for i, f := range de.Fields {
 			f.Field = strings.TrimPrefix(f.Field, "flight.")
 			out.Fields[i] = f

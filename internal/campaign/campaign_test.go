@@ -7,6 +7,7 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"os"
+	"scalematch/internal/check"
 	"strings"
 	"testing"
 
@@ -129,9 +130,9 @@ func TestRunInvalid(t *testing.T) {
 			require.NoError(t, unitjson.Decode([]byte(c.body), &req))
 			_, err := campaign.Run(context.Background(), nil, req, nil)
 			require.Error(t, err)
-			de, ok := err.(*facilities.Error)
+			de, ok := err.(*check.Error)
 			require.True(t, ok, "%T %v", err, err)
-			require.Equal(t, facilities.CodeInvalid, de.Code, de.Error())
+			require.Equal(t, check.CodeInvalid, de.Code, de.Error())
 			var got []string
 			for _, f := range de.Fields {
 				got = append(got, f.Field)

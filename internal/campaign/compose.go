@@ -3,6 +3,7 @@ package campaign
 import (
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 	"slices"
 	"sort"
 	"sync/atomic"
@@ -41,7 +42,7 @@ func (e *engine) compose(scales []float64, origins []string, progress func(int))
 			case scales[fi] == 0:
 				err = e.ownErr[ci][fi]
 				if err == nil {
-					err = &facilities.Error{Code: facilities.CodeUnprocessable, Message: "the facility has no model scale in the campaign", Limits: []string{"model.scale"}}
+					err = &check.Error{Code: check.CodeUnprocessable, Message: "the facility has no model scale in the campaign", Limits: []string{"model.scale"}}
 				}
 			case !e.own[ci][fi].ok:
 				err = e.ownErr[ci][fi]
@@ -193,8 +194,8 @@ func (e *engine) compose(scales []float64, origins []string, progress func(int))
 // exclusion says why facility f (index fi) cannot serve a condition.
 func exclusion(f *facilities.Facility, fi int, err error) Exclusion {
 	ex := Exclusion{FacilityID: f.ID, FacilityIndex: fi, Limits: []string{}, Message: err.Error()}
-	var de *facilities.Error
-	if e, ok := err.(*facilities.Error); ok {
+	var de *check.Error
+	if e, ok := err.(*check.Error); ok {
 		de = e
 		ex.Message = de.Message
 		if de.Limits != nil {

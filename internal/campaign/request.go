@@ -186,7 +186,7 @@ type prepared struct {
 }
 
 // prepare validates req and resolves its conditions and facilities. Bad input
-// is a *facilities.Error with CodeInvalid naming every bad field.
+// is a *check.Error with CodeInvalid naming every bad field.
 func prepare(ctx context.Context, p *app.Planner, req *Request) (*prepared, error) {
 	var fe check.Fields
 	pr := &prepared{req: req, policy: req.Model.Policy, aim: req.Objective.Aim}
@@ -250,7 +250,7 @@ func prepare(ctx context.Context, p *app.Planner, req *Request) (*prepared, erro
 		prefix := fmt.Sprintf("facilities[%d]", i)
 		f, err := p.ResolveFacility(ctx, fc.Facility, fc.FacilityID, prefix, &fe)
 		if err != nil {
-			if facilities.ErrorCode(err) == facilities.CodeNotFound {
+			if check.ErrorCode(err) == check.CodeNotFound {
 				fe.Add(prefix+".facility_id", "%s", err.Error())
 				continue
 			}

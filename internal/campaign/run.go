@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"math"
 	"runtime"
+	"scalematch/internal/check"
 	"slices"
 	"sort"
 	"sync"
@@ -127,7 +128,7 @@ func (e *engine) solve(ci, fi int, m similarity.Model, f *facilities.Facility) (
 // infeasible problem is recorded and stops the campaign.
 func (e *engine) pointOf(ci, fi int, res *similarity.Result, err error) point {
 	if err != nil {
-		if facilities.ErrorCode(err) != facilities.CodeUnprocessable {
+		if check.ErrorCode(err) != check.CodeUnprocessable {
 			e.fail(err)
 		}
 		return point{fi: -1}
@@ -573,7 +574,7 @@ func (e *engine) candidates(vary []int) []found {
 // facility and once when its final plan is made (the scale search between
 // the two is not counted). Cancelling ctx stops the run with ctx's error.
 // Bad input, a facility id that names nothing among it, is a
-// *facilities.Error with CodeInvalid naming every bad field. A campaign in which no
+// *check.Error with CodeInvalid naming every bad field. A campaign in which no
 // condition can be served is still a Result, with every exclusion named.
 func Run(ctx context.Context, p *app.Planner, req Request, progress func(done, total int)) (*Result, error) {
 	if p == nil {

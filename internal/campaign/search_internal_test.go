@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -98,7 +99,7 @@ func bruteScore(pr *prepared, s float64) (score, error) {
 			}
 			res, err := similarity.Plan(p, &similarity.Settings{NoGains: true, TradePoints: -1})
 			if err != nil {
-				if facilities.ErrorCode(err) != facilities.CodeUnprocessable {
+				if check.ErrorCode(err) != check.CodeUnprocessable {
 					return score{}, fmt.Errorf("condition %d, scale %g: %w", ci, s, err)
 				}
 				continue

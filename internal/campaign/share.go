@@ -2,6 +2,7 @@ package campaign
 
 import (
 	"math"
+	"scalematch/internal/check"
 	"sort"
 
 	"scalematch/facilities"
@@ -28,7 +29,7 @@ func (e *engine) share(fi int, s float64, idx []int, fin []final, orig map[int]p
 		e.plans.Add(1)
 		res, err := e.solve(ci, fi, similarity.Model{Scale: &s}, g)
 		if err != nil {
-			if facilities.ErrorCode(err) != facilities.CodeUnprocessable {
+			if check.ErrorCode(err) != check.CodeUnprocessable {
 				e.fail(err)
 			}
 			return false

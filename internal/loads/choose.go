@@ -2,6 +2,7 @@ package loads
 
 import (
 	"fmt"
+	"scalematch/internal/check"
 	"strings"
 
 	"scalematch/facilities"
@@ -39,8 +40,8 @@ type Choice struct {
 // (or when none resolves it) the one with the highest peak utilisation that
 // still keeps every point at or under the allowed load: the most heavily used
 // balance that is safe resolves the loads best. A named balance that does not exist
-// is a facilities.CodeInvalid error on installation.balance_id; no balance that can carry the
-// loads is a facilities.CodeUnprocessable error naming the "balance" limit; a facility without
+// is a check.CodeInvalid error on installation.balance_id; no balance that can carry the
+// loads is a check.CodeUnprocessable error naming the "balance" limit; a facility without
 // balances is facilities.ErrNoBalance.
 func Choose(lc *facilities.LoadCase, f *facilities.Facility, q float64) (Choice, error) {
 	if id := lc.Installation.BalanceID; id != "" {
@@ -58,8 +59,8 @@ func Choose(lc *facilities.LoadCase, f *facilities.Facility, q float64) (Choice,
 		for i, b := range f.Balances {
 			ids[i] = b.ID
 		}
-		return Choice{}, &facilities.Error{Code: facilities.CodeInvalid, Message: "unknown balance",
-			Fields: []facilities.FieldError{{Field: "installation.balance_id", Message: fmt.Sprintf("facility %s has no balance %q; it has: %s", f.ID, id, strings.Join(ids, ", "))}}}
+		return Choice{}, &check.Error{Code: check.CodeInvalid, Message: "unknown balance",
+			Fields: []check.FieldError{{Field: "installation.balance_id", Message: fmt.Sprintf("facility %s has no balance %q; it has: %s", f.ID, id, strings.Join(ids, ", "))}}}
 	}
 	all, err := CheckAll(lc, f, q)
 	if err != nil {
@@ -83,7 +84,7 @@ func Choose(lc *facilities.LoadCase, f *facilities.Facility, q float64) (Choice,
 			parts[i] = fmt.Sprintf("%s reaches %.0f %% of its %s rating at α %.4g° (allowed %.0f %%)",
 				r.BalanceID, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
 		}
-		return Choice{All: all}, &facilities.Error{Code: facilities.CodeUnprocessable,
+		return Choice{All: all}, &check.Error{Code: check.CodeUnprocessable,
 			Message: "no balance of facility " + f.ID + " can carry the loads: " + strings.Join(parts, "; "),
 			Limits:  []string{facilities.ConstraintBalance}}
 	}

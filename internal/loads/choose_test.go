@@ -2,6 +2,7 @@ package loads_test
 
 import (
 	"errors"
+	"scalematch/internal/check"
 	"strings"
 	"testing"
 
@@ -36,7 +37,7 @@ func TestChooseBalance(t *testing.T) {
 		q       float64
 		id      string
 		want    string
-		code    facilities.Code
+		code    check.Code
 		inWords string
 	}{
 		// N ≈ 1.2·q·0.3: at q = 2000 Pa, about 730 N: int-a (3600 N) is used more and safe.
@@ -44,15 +45,15 @@ func TestChooseBalance(t *testing.T) {
 		// At 9000 Pa int-a's normal rating is exceeded over its safety factor.
 		{"large loads pick the stronger balance", 9000, "", "ext-6c", "", "most heavily used"},
 		{"named balance", 2000, "ext-6c", "ext-6c", "", "as requested"},
-		{"unknown balance", 2000, "nope", "", facilities.CodeInvalid, ""},
-		{"nothing carries it", 200000, "", "", facilities.CodeUnprocessable, ""},
+		{"unknown balance", 2000, "nope", "", check.CodeInvalid, ""},
+		{"nothing carries it", 200000, "", "", check.CodeUnprocessable, ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			lc.Installation.BalanceID = c.id
 			ch, err := loads.Choose(&lc, &f, c.q)
 			if c.code != "" {
-				if facilities.ErrorCode(err) != c.code {
+				if check.ErrorCode(err) != c.code {
 					t.Fatalf("error %v, want code %s", err, c.code)
 				}
 				return

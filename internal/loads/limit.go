@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"scalematch/internal/check"
 	"slices"
 
 	"scalematch/facilities"
@@ -77,15 +78,15 @@ var (
 func NewLimit(art *similarity.Article, f *facilities.Facility, in facilities.Installation, mx similarity.Matrix) (*Limit, error) {
 	fe := art.GeometryErrors("reference_area", "reference_length", "frontal_area")
 	if len(mx.Points) == 0 {
-		fe = append(fe, facilities.FieldError{Field: "alpha", Message: "the test matrix has no points"})
+		fe = append(fe, check.FieldError{Field: "alpha", Message: "the test matrix has no points"})
 	}
 	if err := in.Validate(); err != nil {
-		var e *facilities.Error
+		var e *check.Error
 		if errors.As(err, &e) {
 			fe = append(fe, e.Fields...)
 		}
 	}
-	if err := facilities.Invalid("invalid load-limit input", fe); err != nil {
+	if err := check.Invalid("invalid load-limit input", fe); err != nil {
 		return nil, err
 	}
 	if len(f.Balances) == 0 {
@@ -133,7 +134,7 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in facilities.Ins
 		l.balances = append(l.balances, br)
 	}
 	if !found {
-		return nil, facilities.Invalid("unknown balance", []facilities.FieldError{{Field: "installation.balance_id",
+		return nil, check.Invalid("unknown balance", []check.FieldError{{Field: "installation.balance_id",
 			Message: fmt.Sprintf("facility %s has no balance %q", f.ID, in.BalanceID)}})
 	}
 	return l, nil

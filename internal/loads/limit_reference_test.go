@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"scalematch/internal/check"
 	"slices"
 	"testing"
 
@@ -363,8 +364,8 @@ func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bo
 	}
 	res, err := similarity.Plan(prob, &similarity.Settings{TradePoints: -1, NoGains: true})
 	if err != nil {
-		var de *facilities.Error
-		if !errors.As(err, &de) || de.Code != facilities.CodeUnprocessable {
+		var de *check.Error
+		if !errors.As(err, &de) || de.Code != check.CodeUnprocessable {
 			t.Fatalf("planner: %v", err)
 		}
 		// The planner says no plan exists: the search must find none either, at the

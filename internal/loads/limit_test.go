@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"scalematch/internal/check"
 	"slices"
 	"testing"
 
@@ -38,7 +39,7 @@ func bisect(t *testing.T, art *similarity.Article, f *facilities.Facility, in fa
 		res, err := loads.Check(&loads.Case{Facility: f, Article: art, Installation: in, Matrix: mx, Scale: scale,
 			State: facilities.State{Mach: mach, DynamicPressure: q}})
 		if err != nil {
-			if facilities.ErrorCode(err) == facilities.CodeUnprocessable {
+			if check.ErrorCode(err) == check.CodeUnprocessable {
 				return false
 			}
 			t.Fatal(err)
@@ -183,7 +184,7 @@ func TestCheckCorrectsAndChooses(t *testing.T) {
 	// Too much q for either balance: 422.
 	c.Installation = facilities.Installation{}
 	c.State = facilities.State{Mach: 0.2, DynamicPressure: 60000}
-	if _, err := loads.Check(&c); facilities.ErrorCode(err) != facilities.CodeUnprocessable {
+	if _, err := loads.Check(&c); check.ErrorCode(err) != check.CodeUnprocessable {
 		t.Errorf("overload: error %v, want unprocessable", err)
 	}
 }
@@ -252,12 +253,12 @@ func TestLoadLimitBadRating(t *testing.T) {
 	}
 }
 
-// fieldsOf returns the fields a CodeInvalid *facilities.Error names.
+// fieldsOf returns the fields a CodeInvalid *check.Error names.
 func fieldsOf(t *testing.T, err error) []string {
 	t.Helper()
-	var e *facilities.Error
-	if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
-		t.Fatalf("error %v, want a CodeInvalid *facilities.Error", err)
+	var e *check.Error
+	if !errors.As(err, &e) || e.Code != check.CodeInvalid {
+		t.Fatalf("error %v, want a CodeInvalid *check.Error", err)
 	}
 	var out []string
 	for _, f := range e.Fields {

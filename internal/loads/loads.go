@@ -76,7 +76,7 @@ type Result struct {
 
 // Check checks the case: the fit first, then the wall corrections and the loads.
 // A facility without balances gives no reports and the verdict not_verified.
-// Errors are facilities.Error values naming the field.
+// Errors are check.Error values naming the field.
 func Check(c *Case) (Result, error) {
 	f, a, s := c.Facility, c.Article, c.Scale
 	s2 := s * s

@@ -69,9 +69,9 @@ func TestFit(t *testing.T) {
 	}
 }
 
-// check runs Check on the demo business jet in tsw-1 at M 0.78, p0 150 kPa,
+// checkJet runs Check on the demo business jet in tsw-1 at M 0.78, p0 150 kPa,
 // T0 310 K over α −4…12°.
-func check(t *testing.T, f *facilities.Facility, a similarity.Article, in facilities.Installation, scale float64, beta *similarity.Sweep) loads.Result {
+func checkJet(t *testing.T, f *facilities.Facility, a similarity.Article, in facilities.Installation, scale float64, beta *similarity.Sweep) loads.Result {
 	t.Helper()
 	mx, err := a.Aero.Matrix(similarity.Sweep{From: -4, To: 12, Step: 4}, beta)
 	require.NoError(t, err)
@@ -109,7 +109,7 @@ func TestVerdict(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
-			r := check(t, &tc.f, a, tc.in, tc.scale, nil)
+			r := checkJet(t, &tc.f, a, tc.in, tc.scale, nil)
 			assert.Equal(t, tc.verdict, r.Verdict)
 			if tc.verdict == facilities.VerdictOver {
 				require.Len(t, r.Reports, 1)
@@ -148,7 +148,7 @@ func TestUnratedComponents(t *testing.T) {
 	// comes from the drag rotated by β (C_Y,body = −C_D·sin β).
 	a := similarity.Article{ReferenceLength: 0.41, ReferenceArea: 1.4, Span: 3.45, Length: 2.05, FrontalArea: 0.1, WettedArea: 3.9,
 		Aero: similarity.Aero{LiftSlope: 4.95, ZeroLiftAlpha: -2.8, CLMax: 1.35, CDMin: 0.031, CLAtCDMin: 0.28, InducedDragFactor: 0.047, CmZero: 0.06, CmSlope: -0.65}}
-	r := check(t, &f, a, facilities.Installation{ModelMass: 0.5}, 0.1, &similarity.Sweep{From: -4, To: 4, Step: 4})
+	r := checkJet(t, &f, a, facilities.Installation{ModelMass: 0.5}, 0.1, &similarity.Sweep{From: -4, To: 4, Step: 4})
 	assert.Equal(t, facilities.VerdictNotVerified, r.Verdict)
 	require.Len(t, r.Reports, 1)
 	rep := r.Reports[0]

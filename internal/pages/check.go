@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"net/http"
+	"scalematch/internal/check"
 	"slices"
 	"strconv"
 	"strings"
@@ -116,7 +117,7 @@ type checkResult struct {
 // checkView is the data of the load-check page.
 type checkView struct {
 	Fieldsets []fieldset
-	Errors    []facilities.FieldError
+	Errors    []check.FieldError
 	Result    *checkResult
 }
 
@@ -134,7 +135,7 @@ func (p *Pages) check(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	if err := r.ParseForm(); err != nil {
-		v.Errors = []facilities.FieldError{{Field: "form", Message: err.Error()}}
+		v.Errors = []check.FieldError{{Field: "form", Message: err.Error()}}
 		p.render(w, r, http.StatusBadRequest, "check", "Load check", v)
 		return
 	}
@@ -173,15 +174,15 @@ func (p *Pages) check(w http.ResponseWriter, r *http.Request) {
 
 // fieldErrors returns the fields a domain error names, or the error as one
 // problem of the whole form.
-func fieldErrors(err error) []facilities.FieldError {
-	var de *facilities.Error
-	if e, ok := err.(*facilities.Error); ok {
+func fieldErrors(err error) []check.FieldError {
+	var de *check.Error
+	if e, ok := err.(*check.Error); ok {
 		de = e
 	}
 	if de == nil || len(de.Fields) == 0 {
-		return []facilities.FieldError{{Field: "form", Message: err.Error()}}
+		return []check.FieldError{{Field: "form", Message: err.Error()}}
 	}
-	out := make([]facilities.FieldError, len(de.Fields))
+	out := make([]check.FieldError, len(de.Fields))
 	for i, f := range de.Fields {
 		out[i] = f
 		if out[i].Field == "" {
@@ -210,8 +211,8 @@ func (p *Pages) runCheck(r *http.Request, values map[string]string) (*checkResul
 	if id := values[planField]; id != "" {
 		var err error
 		plan, planFacility, err = p.b.StoredPlan(ctx, id)
-		if facilities.ErrorCode(err) == facilities.CodeNotFound {
-			return nil, facilities.Invalid("no such plan", []facilities.FieldError{{Field: planField, Message: fmt.Sprintf("no plan %q is stored", id)}})
+		if check.ErrorCode(err) == check.CodeNotFound {
+			return nil, check.Invalid("no such plan", []check.FieldError{{Field: planField, Message: fmt.Sprintf("no plan %q is stored", id)}})
 		}
 		if err != nil {
 			return nil, err
@@ -254,11 +255,11 @@ func (p *Pages) runCheck(r *http.Request, values map[string]string) (*checkResul
 // planResult is the verdict of a stored plan's own load check.
 func planResult(plan *schema.PlanResponse, f *facilities.Facility) (*checkResult, error) {
 	if plan.Loads == nil {
-		return nil, facilities.Invalid("plan has no loads", []facilities.FieldError{{Field: planField,
+		return nil, check.Invalid("plan has no loads", []check.FieldError{{Field: planField,
 			Message: fmt.Sprintf("plan %s has no load check (its facility lists no balance)", plan.ID)}})
 	}
 	if f == nil {
-		return nil, facilities.Invalid("plan's facility is inline", []facilities.FieldError{{Field: planField,
+		return nil, check.Invalid("plan's facility is inline", []check.FieldError{{Field: planField,
 			Message: fmt.Sprintf("plan %s was made with a facility given inline, which is not stored", plan.ID)}})
 	}
 	res := &checkResult{FromPlan: plan.ID, Verdict: plan.Verdict, Fits: len(plan.FitBroken) == 0, FitBroken: plan.FitBroken,

@@ -16,7 +16,6 @@ import (
 	"sync"
 	"unicode/utf8"
 
-	"scalematch/facilities"
 	"scalematch/internal/check"
 	"scalematch/similarity"
 )
@@ -50,8 +49,8 @@ const (
 //   - numbers must be finite and fit their field; the body must be one JSON value
 //     with nothing after it, and not empty. JSON null leaves a field as it is.
 //
-// Every problem is collected, and all are returned at once as a *facilities.Error
-// with Code facilities.CodeInvalid whose Fields name the JSON paths
+// Every problem is collected, and all are returned at once as a *check.Error
+// with Code check.CodeInvalid whose Fields name the JSON paths
 // ("balances[1].limits.normal"); the path "" is the body as a whole. Any other
 // error means dst is not a pointer to a struct. dst is changed only when Decode
 // returns nil.
@@ -82,11 +81,11 @@ func Decode(body []byte, dst any) error {
 	w := walker{}
 	w.walk(tree, fresh, "", "")
 	if len(w.errs) > 0 {
-		msg := facilities.InvalidCount(len(w.errs) + w.dropped)
+		msg := check.InvalidCount(len(w.errs) + w.dropped)
 		if w.dropped > 0 {
 			msg += fmt.Sprintf(" (the first %d are listed)", len(w.errs))
 		}
-		return &facilities.Error{Code: facilities.CodeInvalid, Message: msg, Fields: w.errs}
+		return &check.Error{Code: check.CodeInvalid, Message: msg, Fields: w.errs}
 	}
 	rv.Elem().Set(fresh)
 	return nil
@@ -358,8 +357,8 @@ func (p *treeParser) digits() int {
 func BodyError(msg string) error { return fieldError("", msg) }
 
 func fieldError(path, msg string) error {
-	return &facilities.Error{Code: facilities.CodeInvalid, Message: facilities.InvalidCount(1),
-		Fields: []facilities.FieldError{{Field: path, Message: msg}}}
+	return &check.Error{Code: check.CodeInvalid, Message: check.InvalidCount(1),
+		Fields: []check.FieldError{{Field: path, Message: msg}}}
 }
 
 // syntaxMessage turns a JSON syntax error into a message with the byte offset.
@@ -377,7 +376,7 @@ func syntaxMessage(err error) string {
 // walker walks a decoded JSON tree alongside a settable Go value, converts unit
 // strings, stores what fits and collects the problems.
 type walker struct {
-	errs    []facilities.FieldError
+	errs    []check.FieldError
 	dropped int
 }
 
@@ -386,7 +385,7 @@ func (w *walker) add(path, msg string) {
 		w.dropped++
 		return
 	}
-	w.errs = append(w.errs, facilities.FieldError{Field: path, Message: msg})
+	w.errs = append(w.errs, check.FieldError{Field: path, Message: msg})
 }
 
 func joinKey(path, key string) string {

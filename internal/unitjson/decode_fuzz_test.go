@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"reflect"
+	"scalematch/internal/check"
 	"testing"
 
 	"scalematch/api/schema"
@@ -50,7 +51,7 @@ func finiteFloats(v reflect.Value, path string) string {
 
 // FuzzDecode decodes random bodies into the plan request and a facility. Decode
 // must not panic; it either succeeds with every float finite, or fails with a
-// *facilities.Error of CodeInvalid naming at least one field, leaves dst alone and
+// *check.Error of CodeInvalid naming at least one field, leaves dst alone and
 // says the same thing when asked twice.
 func FuzzDecode(f *testing.F) {
 	if b, err := os.ReadFile("../../api/testdata/load/plan-orrin-j16-tsw-1.json"); err == nil {
@@ -77,8 +78,8 @@ func FuzzDecode(f *testing.F) {
 			}
 			return
 		}
-		var de *facilities.Error
-		if !errors.As(err, &de) || de.Code != facilities.CodeInvalid || len(de.Fields) == 0 {
+		var de *check.Error
+		if !errors.As(err, &de) || de.Code != check.CodeInvalid || len(de.Fields) == 0 {
 			t.Fatalf("error %T %v is not an invalid-input error with fields", err, err)
 		}
 		for _, fe := range de.Fields {

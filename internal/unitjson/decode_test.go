@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+	"scalematch/internal/check"
 	"strings"
 	"testing"
 
@@ -128,15 +129,15 @@ func TestDecodeKeepsOtherKinds(t *testing.T) {
 }
 
 // fieldsOf returns the field errors of a Decode error, failing unless it is a
-// *facilities.Error with CodeInvalid.
-func fieldsOf(t *testing.T, err error) []facilities.FieldError {
+// *check.Error with CodeInvalid.
+func fieldsOf(t *testing.T, err error) []check.FieldError {
 	t.Helper()
-	var de *facilities.Error
+	var de *check.Error
 	if !errors.As(err, &de) {
-		t.Fatalf("want *facilities.Error, got %T %v", err, err)
+		t.Fatalf("want *check.Error, got %T %v", err, err)
 	}
-	if de.Code != facilities.CodeInvalid {
-		t.Fatalf("code %q, want %q", de.Code, facilities.CodeInvalid)
+	if de.Code != check.CodeInvalid {
+		t.Fatalf("code %q, want %q", de.Code, check.CodeInvalid)
 	}
 	return de.Fields
 }
@@ -255,7 +256,7 @@ func TestDecodeCapsErrorList(t *testing.T) {
 func TestDecodeNeedsStructPointer(t *testing.T) {
 	for _, dst := range []any{nil, decodeTarget{}, new(int), (*decodeTarget)(nil)} {
 		err := unitjson.Decode([]byte(`{}`), dst)
-		if err == nil || facilities.ErrorCode(err) != "" {
+		if err == nil || check.ErrorCode(err) != "" {
 			t.Errorf("Decode into %T: got %v, want a programming error", dst, err)
 		}
 	}
@@ -293,7 +294,7 @@ func ExampleDecode() {
 	fmt.Printf("%.4g m, scale %.4g, %.4g to %.4g Pa\n", req.Altitude, req.Scale, req.Pressure.Min, req.Pressure.Max)
 
 	err = unitjson.Decode([]byte(`{"altitude":"2 bar","scale":"1:0","presure":{}}`), &req)
-	for _, f := range err.(*facilities.Error).Fields {
+	for _, f := range err.(*check.Error).Fields {
 		fmt.Printf("%s: %s\n", f.Field, f.Message)
 	}
 	// Output:

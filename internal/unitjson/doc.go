@@ -2,7 +2,7 @@
 // with units: Decode fills a struct as encoding/json would, but accepts a string
 // with a unit ("2.5 bar", "35000 ft", "1:16") wherever a field's `unit:"…"` tag
 // names an SI unit, refuses unknown keys, and reports every bad field at once by
-// its JSON path as one *facilities.Error, which the service answers as a 400.
+// its JSON path as one *check.Error, which the service answers as a 400.
 //
 // Its reason to exist is what it accepts and reports, not speed: encoding/json
 // stops at the first error, names no JSON path for most of them, and cannot take

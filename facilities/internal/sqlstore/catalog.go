@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"scalematch/internal/check"
 	"time"
 
 	"scalematch/facilities"
@@ -71,7 +72,7 @@ func (s *Store) FacilityVersion(ctx context.Context, id string, version int) (fa
 	var body []byte
 	err := s.db.QueryRow(ctx, s.q.facilityVersion, id, version).Scan(&body)
 	if errors.Is(err, sql.ErrNoRows) || (err == nil && body == nil) {
-		return facilities.Facility{}, &facilities.Error{Code: facilities.CodeNotFound,
+		return facilities.Facility{}, &check.Error{Code: check.CodeNotFound,
 			Message: fmt.Sprintf("facility %q has no version %d", id, version)}
 	}
 	if err != nil {
@@ -127,7 +128,7 @@ func (s *Store) create(ctx context.Context, tx Tx, id string, body []byte, by fa
 			return 0, err
 		}
 		if !deleted {
-			return 0, &facilities.Error{Code: facilities.CodeConflict,
+			return 0, &check.Error{Code: check.CodeConflict,
 				Message: fmt.Sprintf("facility %q exists (version %d); change it with PUT and If-Match", id, current)}
 		}
 		version = current + 1
@@ -304,11 +305,11 @@ func (s *Store) wrap(what, id string, err error) error {
 	if err == nil {
 		return nil
 	}
-	if facilities.ErrorCode(err) != "" {
+	if check.ErrorCode(err) != "" {
 		return err
 	}
 	if s.d.UniqueViolation != nil && s.d.UniqueViolation(err) {
-		return &facilities.Error{Code: facilities.CodeConflict, Message: fmt.Sprintf("%s %q: written at the same time by someone else", what, id)}
+		return &check.Error{Code: check.CodeConflict, Message: fmt.Sprintf("%s %q: written at the same time by someone else", what, id)}
 	}
 	return fmt.Errorf("%s: %s %q: %w", s.d.Name, what, id, err)
 }

@@ -5,10 +5,10 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
+	"scalematch/internal/check"
 	"strings"
 	"time"
 
-	"scalematch/facilities"
 	"scalematch/internal/jobs"
 )
 
@@ -28,14 +28,14 @@ func (s *Store) Record(ctx context.Context, j jobs.Job) (jobs.Job, error) {
 }
 
 func (s *Store) insertJob(ctx context.Context, what string, in jobs.Job) (jobs.Job, error) {
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	if in.ID == "" {
-		fe = append(fe, facilities.FieldError{Field: "id", Message: "must not be empty"})
+		fe = append(fe, check.FieldError{Field: "id", Message: "must not be empty"})
 	}
 	if in.Kind == "" {
-		fe = append(fe, facilities.FieldError{Field: "kind", Message: "must not be empty"})
+		fe = append(fe, check.FieldError{Field: "kind", Message: "must not be empty"})
 	}
-	if err := facilities.Invalid("job", fe); err != nil {
+	if err := check.Invalid("job", fe); err != nil {
 		return jobs.Job{}, err
 	}
 	now := s.now()
@@ -51,7 +51,7 @@ func (s *Store) insertJob(ctx context.Context, what string, in jobs.Job) (jobs.J
 			return err
 		}
 		if n == 0 {
-			return &facilities.Error{Code: facilities.CodeConflict, Message: fmt.Sprintf("a job %q exists", j.ID)}
+			return &check.Error{Code: check.CodeConflict, Message: fmt.Sprintf("a job %q exists", j.ID)}
 		}
 		var args []any
 		for _, k := range []struct {
@@ -97,7 +97,7 @@ func (s *Store) Job(ctx context.Context, id string) (jobs.Job, error) {
 	var j jobs.Job
 	err := s.db.QueryRow(ctx, s.q.job, id).Scan(append(jobFields(&j), &j.Request, &j.Result, &j.Problem)...)
 	if errors.Is(err, sql.ErrNoRows) {
-		return jobs.Job{}, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no job %q", id)}
+		return jobs.Job{}, &check.Error{Code: check.CodeNotFound, Message: fmt.Sprintf("no job %q", id)}
 	}
 	if err != nil {
 		return jobs.Job{}, fmt.Errorf("%s: reading job %q: %w", s.d.Name, id, err)
@@ -239,13 +239,13 @@ func (s *Store) Cancel(ctx context.Context, id string) (jobs.Job, error) {
 		return tx.QueryRow(ctx, s.q.job, id).Scan(append(jobFields(&j), &j.Request, &j.Result, &j.Problem)...)
 	})
 	if errors.Is(err, sql.ErrNoRows) {
-		return jobs.Job{}, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no job %q", id)}
+		return jobs.Job{}, &check.Error{Code: check.CodeNotFound, Message: fmt.Sprintf("no job %q", id)}
 	}
 	if err != nil {
 		return jobs.Job{}, fmt.Errorf("%s: cancelling job %q: %w", s.d.Name, id, err)
 	}
 	if n == 0 {
-		return j, &facilities.Error{Code: facilities.CodeConflict, Message: fmt.Sprintf("job %q is %s already: only a queued or running job can be cancelled", id, j.State)}
+		return j, &check.Error{Code: check.CodeConflict, Message: fmt.Sprintf("job %q is %s already: only a queued or running job can be cancelled", id, j.State)}
 	}
 	return j, nil
 }

@@ -3,6 +3,7 @@ package sqlstore
 import (
 	"encoding/base64"
 	"fmt"
+	"scalematch/internal/check"
 	"strconv"
 	"strings"
 	"time"
@@ -27,12 +28,12 @@ func (l *listing) add(cond string, args ...any) {
 // (a bad cursor or limit is CodeInvalid). prefix qualifies the columns ("j.").
 func (s *Store) listing(q facilities.ListQuery, prefix string) (*listing, error) {
 	l := &listing{limit: q.Limit}
-	var fe []facilities.FieldError
+	var fe []check.FieldError
 	switch {
 	case l.limit == 0:
 		l.limit = facilities.DefaultListLimit
 	case l.limit < 0 || l.limit > facilities.MaxListLimit:
-		fe = append(fe, facilities.FieldError{Field: "limit", Message: fmt.Sprintf("%d is outside 1 to %d", q.Limit, facilities.MaxListLimit)})
+		fe = append(fe, check.FieldError{Field: "limit", Message: fmt.Sprintf("%d is outside 1 to %d", q.Limit, facilities.MaxListLimit)})
 	}
 	created := prefix + s.d.Schema.Created
 	if !q.Since.IsZero() {
@@ -44,12 +45,12 @@ func (s *Store) listing(q facilities.ListQuery, prefix string) (*listing, error)
 	if q.Cursor != "" {
 		at, id, err := decodeCursor(q.Cursor)
 		if err != nil {
-			fe = append(fe, facilities.FieldError{Field: "cursor", Message: "not a cursor this service gave: start again without it"})
+			fe = append(fe, check.FieldError{Field: "cursor", Message: "not a cursor this service gave: start again without it"})
 		} else {
 			l.add("("+created+", "+prefix+"id) < (?, ?)", s.d.Instant(at), id)
 		}
 	}
-	if err := facilities.Invalid("bad listing query", fe); err != nil {
+	if err := check.Invalid("bad listing query", fe); err != nil {
 		return nil, err
 	}
 	return l, nil

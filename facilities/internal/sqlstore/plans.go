@@ -5,6 +5,7 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
+	"scalematch/internal/check"
 	"time"
 
 	"scalematch/facilities"
@@ -26,7 +27,7 @@ import (
 // context does meanwhile.
 func (s *Store) SavePlan(ctx context.Context, p facilities.PlanRecord) (facilities.PlanRecord, error) {
 	if p.ID == "" {
-		return facilities.PlanRecord{}, facilities.Invalid("plan record", []facilities.FieldError{{Field: "id", Message: "must not be empty"}})
+		return facilities.PlanRecord{}, check.Invalid("plan record", []check.FieldError{{Field: "id", Message: "must not be empty"}})
 	}
 	if p.CreatedAt.IsZero() {
 		p.CreatedAt = s.now()
@@ -76,7 +77,7 @@ func (s *Store) commitGroup(recs []facilities.PlanRecord) error {
 func (s *Store) Plan(ctx context.Context, id string) (facilities.PlanRecord, error) {
 	p, err := scanPlan(s.db.QueryRow(ctx, s.q.plan, id))
 	if errors.Is(err, sql.ErrNoRows) {
-		return facilities.PlanRecord{}, &facilities.Error{Code: facilities.CodeNotFound, Message: fmt.Sprintf("no stored plan %q", id)}
+		return facilities.PlanRecord{}, &check.Error{Code: check.CodeNotFound, Message: fmt.Sprintf("no stored plan %q", id)}
 	}
 	if err != nil {
 		return facilities.PlanRecord{}, fmt.Errorf("%s: reading plan %q: %w", s.d.Name, id, err)

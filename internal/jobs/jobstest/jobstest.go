@@ -11,6 +11,7 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
+	"scalematch/internal/check"
 	"slices"
 	"sync"
 	"testing"
@@ -53,7 +54,7 @@ func Run(t *testing.T, open func(testing.TB) func() jobs.Store) {
 	}
 }
 
-func codeOf(err error) facilities.Code { return facilities.ErrorCode(err) }
+func codeOf(err error) check.Code { return check.ErrorCode(err) }
 
 func enqueue(t *testing.T, s jobs.Store, id, kind string) jobs.Job {
 	t.Helper()
@@ -87,11 +88,11 @@ func testEnqueueRead(t *testing.T, open func() jobs.Store) {
 	assert.True(t, read.CreatedAt.Equal(got.CreatedAt), "created %v, read back %v", got.CreatedAt, read.CreatedAt)
 
 	_, err = s.Enqueue(ctx, jobs.Job{ID: "j1", Kind: "sum", Request: []byte(`{}`)})
-	assert.Equal(t, facilities.CodeConflict, codeOf(err), "a second job with one id: %v", err)
+	assert.Equal(t, check.CodeConflict, codeOf(err), "a second job with one id: %v", err)
 	_, err = s.Enqueue(ctx, jobs.Job{Kind: "sum"})
-	assert.Equal(t, facilities.CodeInvalid, codeOf(err), "no id: %v", err)
+	assert.Equal(t, check.CodeInvalid, codeOf(err), "no id: %v", err)
 	_, err = s.Job(ctx, "nope")
-	assert.Equal(t, facilities.CodeNotFound, codeOf(err), "unknown id: %v", err)
+	assert.Equal(t, check.CodeNotFound, codeOf(err), "unknown id: %v", err)
 }
 
 // testRecord: a job run at once is stored done with its result, listed, and
@@ -117,9 +118,9 @@ func testRecord(t *testing.T, open func() jobs.Store) {
 	require.Len(t, page, 1)
 	assert.Equal(t, jobs.Done, page[0].State)
 	_, err = s.Record(ctx, jobs.Job{ID: "now", Kind: "sum"})
-	assert.Equal(t, facilities.CodeConflict, codeOf(err))
+	assert.Equal(t, check.CodeConflict, codeOf(err))
 	_, err = s.Cancel(ctx, "now")
-	assert.Equal(t, facilities.CodeConflict, codeOf(err), "a recorded job cannot be cancelled")
+	assert.Equal(t, check.CodeConflict, codeOf(err), "a recorded job cannot be cancelled")
 }
 
 func testClaimOldestOfKinds(t *testing.T, open func() jobs.Store) {
@@ -277,20 +278,20 @@ func testCancel(t *testing.T, open func() jobs.Store) {
 	assert.Nil(t, got.Result, "a cancelled job keeps no result")
 
 	_, err = s.Cancel(ctx, "r")
-	assert.Equal(t, facilities.CodeConflict, codeOf(err), "cancelling twice: %v", err)
+	assert.Equal(t, check.CodeConflict, codeOf(err), "cancelling twice: %v", err)
 	enqueue(t, s, "d", "sum")
 	d, ok, err := s.Claim(ctx, "w", []string{"sum"}, time.Minute)
 	require.NoError(t, err)
 	require.True(t, ok)
 	require.NoError(t, s.Finish(ctx, d.Lease(), 3, 3, []byte(`{"sum":1}`)))
 	got, err = s.Cancel(ctx, "d")
-	assert.Equal(t, facilities.CodeConflict, codeOf(err), "cancelling a done job: %v", err)
+	assert.Equal(t, check.CodeConflict, codeOf(err), "cancelling a done job: %v", err)
 	assert.Equal(t, jobs.Done, got.State, "the conflict carries the job")
 	got, err = s.Job(ctx, "d")
 	require.NoError(t, err)
 	assert.Equal(t, jobs.Done, got.State, "a done job stays done")
 	_, err = s.Cancel(ctx, "nope")
-	assert.Equal(t, facilities.CodeNotFound, codeOf(err))
+	assert.Equal(t, check.CodeNotFound, codeOf(err))
 }
 
 func testFailRelease(t *testing.T, open func() jobs.Store) {
@@ -385,7 +386,7 @@ func testList(t *testing.T, open func() jobs.Store) {
 	assert.Equal(t, jobs.Queued, page[0].State)
 	for _, bad := range []facilities.ListQuery{{Cursor: "%%%"}, {Cursor: "bm90LWEtY3Vyc29y"}, {Limit: -1}, {Limit: facilities.MaxListLimit + 1}} {
 		_, _, err := s.Jobs(ctx, jobs.Query{ListQuery: bad})
-		assert.Equal(t, facilities.CodeInvalid, codeOf(err), "%+v: %v", bad, err)
+		assert.Equal(t, check.CodeInvalid, codeOf(err), "%+v: %v", bad, err)
 	}
 }
 
