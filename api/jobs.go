@@ -172,6 +172,11 @@ func (s *Server) enqueueCampaign(c *gin.Context, req *campaign.Request, body []b
 	if s.jobs == nil || campaign.Small(req) {
 		return false
 	}
+	// Bad input is refused now, not found by the worker after a 202.
+	if err := campaign.Validate(c.Request.Context(), s.planner().Batch(), *req); err != nil {
+		s.fail(c, err)
+		return true
+	}
 	j, err := s.jobs.Enqueue(c.Request.Context(), campaignJob(newJobID(), req, body))
 	if err != nil {
 		s.fail(c, err)

@@ -148,7 +148,7 @@ func waitDone(t testing.TB, base, path, accept string) reply {
 
 func TestCampaignJobLifecycle(t *testing.T) {
 	db := sqliteStore(t)
-	_, base := jobServer(t, db, JobsConfig{})
+	srv, base := jobServer(t, db, JobsConfig{})
 	body := largeCampaign(t, 15, 15)
 	want := directResult(t, db, body)
 
@@ -218,14 +218,20 @@ func TestCampaignJobLifecycle(t *testing.T) {
 	assert.Empty(t, list("?facility=lsw-2"))
 	assert.Equal(t, http.StatusBadRequest, call(t, base, http.MethodGet, "/v1/campaigns?state=done", "", nil).status)
 
-	// A campaign that fails keeps the problem its POST would have answered.
+	// A campaign that fails keeps the problem its POST would have answered. POST
+	// refuses bad input before it stores a job (TestCampaignLargeBadInputRefusedAtOnce),
+	// so the failing job is stored directly, as one would be whose facility was
+	// removed from the catalog after it was accepted.
 	var bad map[string]any
 	require.NoError(t, json.Unmarshal(body, &bad))
 	bad["facilities"].([]any)[0].(map[string]any)["facility_id"] = "no-such-tunnel"
 	badBody, _ := json.Marshal(bad)
-	r = call(t, base, http.MethodPost, "/v1/campaigns", "", badBody)
-	require.Equal(t, http.StatusAccepted, r.status, "%s", r.body)
-	r = waitDone(t, base, r.header.Get("Location"), "text/csv")
+	var badReq campaign.Request
+	require.NoError(t, unitjson.Decode(badBody, &badReq))
+	j, err := srv.jobs.Enqueue(context.Background(), campaignJob(newJobID(), &badReq, badBody))
+	require.NoError(t, err)
+	srv.worker.Wake()
+	r = waitDone(t, base, "/v1/campaigns/"+j.ID, "text/csv")
 	assert.Equal(t, "failed", r.header.Get(HeaderJobState))
 	assert.Equal(t, schema.ContentTypeProblem, r.header.Get("Content-Type"))
 	assert.Contains(t, []int{http.StatusBadRequest, http.StatusNotFound}, r.status, "%s", r.body)
@@ -412,4 +418,25 @@ func TestCampaignReplicasPostgres(t *testing.T) {
 		ranBy[owners[id]] = true
 	}
 	t.Logf("replicas that ran campaigns: %v", ranBy)
+}
+
+// TestCampaignLargeBadInputRefusedAtOnce: a campaign too large to answer at once
+// is validated before it is stored, so a facility id that names nothing is a 400
+// naming the field, not a 202 whose job fails later; nothing is stored.
+func TestCampaignLargeBadInputRefusedAtOnce(t *testing.T) {
+	db := sqliteStore(t)
+	_, base := jobServer(t, db, JobsConfig{Off: true})
+	var req map[string]any
+	require.NoError(t, json.Unmarshal(largeCampaign(t, 15, 15), &req))
+	fs := req["facilities"].([]any)
+	fs[0].(map[string]any)["facility_id"] = "no-such-tunnel"
+	body, err := json.Marshal(req)
+	require.NoError(t, err)
+	r := call(t, base, http.MethodPost, "/v1/campaigns", "", body)
+	require.Equal(t, http.StatusBadRequest, r.status, "%s", r.body)
+	assert.Contains(t, string(r.body), "facilities[0].facility_id")
+	assert.Empty(t, r.header.Get("Location"))
+	list := call(t, base, http.MethodGet, "/v1/campaigns", "", nil)
+	require.Equal(t, http.StatusOK, list.status, "%s", list.body)
+	assert.NotContains(t, string(list.body), `"id"`, "nothing stored: %s", list.body)
 }

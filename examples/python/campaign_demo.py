@@ -3,7 +3,9 @@
 the scalematch API and write its CSV table.
 
 Standard library only. Builds an envelope of 10 altitudes x 20 Mach numbers (200
-conditions), posts it to POST /v1/campaigns for tsw-1 and cn2-05 with one model,
+conditions), posts it to POST /v1/campaigns for tsw-1 and cn2-05 with one model
+and 1 % of Reynolds ratio offered for level sharing (which makes it large enough,
+800 condition-facility plans, for a service with a store to run it as a job),
 and, when the service answers 202 Accepted (a campaign it runs as a job), polls
 the job's Location for its progress until it is done. Then it asks for the result
 as text/csv (one row per condition and alpha point), writes it to --csv, and
@@ -66,6 +68,7 @@ def campaign_request():
         ],
         "model": {"policy": "one_model"},
         "objective": {"aim": "lowest_reynolds_ratio"},
+        "level_sharing": {"reynolds_cost_percent": 1},
     }
 
 

@@ -567,6 +567,18 @@ func (e *engine) candidates(vary []int) []found {
 	return out
 }
 
+// Validate checks req as Run does before it plans anything: every bad field, a
+// facility id that names nothing among them, is a *check.Error with CodeInvalid.
+// The service calls it before it stores a campaign to run as a job, so that bad
+// input is refused at once (400) rather than found in the background.
+func Validate(ctx context.Context, p *app.Planner, req Request) error {
+	if p == nil {
+		p = &app.Planner{}
+	}
+	_, err := prepare(ctx, p, &req)
+	return err
+}
+
 // Run plans the campaign req with planner p (its catalog resolves facility
 // ids; the zero Planner plans against the demo facilities). progress, when not
 // nil, is told the work done of the total as it goes: each condition counts
