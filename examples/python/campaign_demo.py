@@ -141,7 +141,7 @@ def main(argv=None):
     labels = {r["label"] for r in rows}
     by_facility = {}
     for r in rows:
-        if r["served"] == "true" and r["alpha"] == "-2":
+        if r["served"] == "true" and r["alpha_deg"] == "-2":
             by_facility.setdefault(r["facility_id"], []).append(float(r["reynolds_ratio"]))
     print(f"{len(served)} of {len(labels)} conditions served; {len(rows)} rows written to {args.csv}")
     for fid, ratios in sorted(by_facility.items()):

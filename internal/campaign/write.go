@@ -9,12 +9,13 @@ import (
 	"strings"
 )
 
-// CSVHeader is the header of WriteCSV's table. Units: scale is model length
-// over full-scale length; alpha and beta degrees; speed m/s;
-// stagnation_pressure and dynamic_pressure Pa; stagnation_temperature K;
-// utilization a fraction of the balance's rating; hours h.
-var CSVHeader = []string{"label", "served", "facility_id", "run_position", "scale", "alpha", "beta",
-	"mach", "speed", "stagnation_pressure", "stagnation_temperature", "dynamic_pressure", "reynolds",
+// CSVHeader is the header of WriteCSV's table. As in a stored plan's table
+// (app.PlanCSVHeader), a column with a unit ends with it: _deg degrees, _m_s
+// m/s, _pa Pa, _k K; scale (model length over full-scale length), Mach and
+// Reynolds numbers, ratios and utilization (a fraction of the balance's rating)
+// are dimensionless.
+var CSVHeader = []string{"label", "served", "facility_id", "run_position", "scale", "alpha_deg", "beta_deg",
+	"mach", "speed_m_s", "stagnation_pressure_pa", "stagnation_temperature_k", "dynamic_pressure_pa", "reynolds",
 	"reynolds_ratio", "mach_difference", "mach_matched", "own_scale", "own_reynolds_ratio", "shared_level",
 	"balance_id", "utilization", "verdict", "binding", "excluded_limits"}
 
