@@ -29,12 +29,13 @@ import os
 import platform
 import subprocess
 import sys
-import tempfile
 
 import iapws
 from iapws.humidAir import Air
 
 HERE = os.path.dirname(os.path.abspath(__file__))
+sys.path.insert(0, os.path.dirname(HERE))
+import fixturecheck  # noqa: E402  (testdata/reference/fixturecheck.py)
 REL_TOL = 1e-10
 STATES = ((300, 0.3), (300, 1.0), (250, 0.5), (200, 1.0), (150, 0.5), (150, 1.0))
 
@@ -89,50 +90,5 @@ def departure_rows():
 FILES = (("dew.csv", dew_rows), ("viscosity.csv", viscosity_rows), ("departure.csv", departure_rows))
 
 
-def numbers(lines):
-    data = [l for l in lines if l and not l.startswith("#")]
-    return data[0], [[float(x) for x in l.split(",")] for l in data[1:]]
-
-
-def write(directory):
-    for name, rows in FILES:
-        with open(os.path.join(directory, name), "w") as f:
-            f.write("\n".join(rows()) + "\n")
-
-
-def check():
-    bad = 0
-    with tempfile.TemporaryDirectory() as tmp:
-        write(tmp)
-        for name, _ in FILES:
-            path = os.path.join(HERE, name)
-            with open(os.path.join(tmp, name)) as f:
-                new_head, new = numbers(f.read().splitlines())
-            with open(path) as f:
-                old_head, old = numbers(f.read().splitlines())
-            if new_head != old_head or len(new) != len(old):
-                print("%s: columns or row count changed" % path)
-                bad += 1
-                continue
-            drift = sum(1 for a, b in zip(old, new) for x, y in zip(a, b)
-                        if abs(x - y) > REL_TOL * max(abs(x), abs(y)))
-            if drift:
-                print("%s: %d numbers drifted" % (path, drift))
-                bad += 1
-            else:
-                print("%s: %d rows, no drift" % (path, len(old)))
-    return 1 if bad else 0
-
-
-def main(argv):
-    if argv[1:] == ["--check"]:
-        return check()
-    if argv[1:]:
-        print(__doc__)
-        return 2
-    write(HERE)
-    return 0
-
-
 if __name__ == "__main__":
-    sys.exit(main(sys.argv))
+    sys.exit(fixturecheck.main(sys.argv, __doc__, HERE, FILES, REL_TOL))

@@ -42,13 +42,14 @@ import os
 import platform
 import subprocess
 import sys
-import tempfile
 from math import exp, log
 
 import iapws
 from iapws.iapws95 import MEoS
 
 HERE = os.path.dirname(os.path.abspath(__file__))
+sys.path.insert(0, os.path.dirname(HERE))
+import fixturecheck  # noqa: E402  (testdata/reference/fixturecheck.py)
 REL_TOL = 1e-10
 TEMPERATURES = range(100, 301, 10)
 PRESSURES = (0.1, 0.2, 0.3, 0.4, 0.45)  # MPa
@@ -193,51 +194,10 @@ def rows():
 FILES = (("nitrogen.csv", rows),)
 
 
-def numbers(lines):
-    data = [l for l in lines if l and not l.startswith("#")]
-    return data[0], [[float(x) for x in l.split(",")] for l in data[1:]]
-
 
 def write(directory):
     check_published()
-    for name, make in FILES:
-        with open(os.path.join(directory, name), "w") as f:
-            f.write("\n".join(make()) + "\n")
-
-
-def check():
-    bad = 0
-    with tempfile.TemporaryDirectory() as tmp:
-        write(tmp)
-        for name, _ in FILES:
-            path = os.path.join(HERE, name)
-            with open(os.path.join(tmp, name)) as f:
-                new_head, new = numbers(f.read().splitlines())
-            with open(path) as f:
-                old_head, old = numbers(f.read().splitlines())
-            if new_head != old_head or len(new) != len(old):
-                print("%s: columns or row count changed" % path)
-                bad += 1
-                continue
-            drift = sum(1 for a, b in zip(old, new) for x, y in zip(a, b)
-                        if abs(x - y) > REL_TOL * max(abs(x), abs(y)))
-            if drift:
-                print("%s: %d numbers drifted" % (path, drift))
-                bad += 1
-            else:
-                print("%s: %d rows, no drift" % (path, len(old)))
-    return 1 if bad else 0
-
-
-def main(argv):
-    if argv[1:] == ["--check"]:
-        return check()
-    if argv[1:]:
-        print(__doc__)
-        return 2
-    write(HERE)
-    return 0
-
+    fixturecheck.write(directory, FILES)
 
 if __name__ == "__main__":
-    sys.exit(main(sys.argv))
+    sys.exit(fixturecheck.main(sys.argv, __doc__, HERE, FILES, REL_TOL, write))

@@ -23,14 +23,14 @@ import os
 import platform
 import subprocess
 import sys
-import tempfile
 
 import gsw
 import iapws
 from iapws.iapws97 import _PSat_T
 
 HERE = os.path.dirname(os.path.abspath(__file__))
-NAMES = ("seawater.csv", "vapour.csv")
+sys.path.insert(0, os.path.dirname(HERE))
+import fixturecheck  # noqa: E402  (testdata/reference/fixturecheck.py)
 REL_TOL = 1e-12
 SALINITIES = (10, 20, 30, 35, 40)
 
@@ -74,55 +74,7 @@ def vapour_rows():
     return out
 
 
-def numbers(lines):
-    """Data rows of a fixture as lists of floats (comment lines skipped)."""
-    data = [l for l in lines if l and not l.startswith("#")]
-    return data[0], [[float(x) for x in l.split(",")] for l in data[1:]]
-
-
-def write(directory):
-    for name, rows in zip(NAMES, (seawater_rows(), vapour_rows())):
-        with open(os.path.join(directory, name), "w") as f:
-            f.write("\n".join(rows) + "\n")
-
-
-def check():
-    bad = 0
-    with tempfile.TemporaryDirectory() as tmp:
-        write(tmp)
-        for name in NAMES:
-            path = os.path.join(HERE, name)
-            with open(os.path.join(tmp, name)) as f:
-                new_head, new = numbers(f.read().splitlines())
-            with open(path) as f:
-                old_head, old = numbers(f.read().splitlines())
-            if new_head != old_head or len(new) != len(old):
-                print("%s: columns or row count changed (%d rows, now %d)" % (path, len(old), len(new)))
-                bad += 1
-                continue
-            drift = 0
-            for a, b in zip(old, new):
-                for x, y in zip(a, b):
-                    if abs(x - y) > REL_TOL * max(abs(x), abs(y)):
-                        print("%s: row %r: %r, regenerated %r" % (path, a[:2], x, y))
-                        drift += 1
-            if drift:
-                print("%s: %d numbers drifted" % (path, drift))
-                bad += 1
-            else:
-                print("%s: %d rows, no drift" % (path, len(old)))
-    return 1 if bad else 0
-
-
-def main(argv):
-    if argv[1:] == ["--check"]:
-        return check()
-    if argv[1:]:
-        print(__doc__)
-        return 2
-    write(HERE)
-    return 0
-
+FILES = (("seawater.csv", seawater_rows), ("vapour.csv", vapour_rows))
 
 if __name__ == "__main__":
-    sys.exit(main(sys.argv))
+    sys.exit(fixturecheck.main(sys.argv, __doc__, HERE, FILES, REL_TOL))
