@@ -10,7 +10,18 @@ tolerance from the committed file.
 """
 
 import os
+import subprocess
 import tempfile
+
+
+def debian_version(pkg):
+    """Version of an installed Debian package (dpkg-query), or 'unknown'."""
+    try:
+        out = subprocess.run(["dpkg-query", "-W", "-f=${Version}", pkg],
+                             capture_output=True, text=True, check=True)
+        return out.stdout.strip() or "unknown"
+    except (OSError, subprocess.CalledProcessError):
+        return "unknown"
 
 
 def numbers(lines):
