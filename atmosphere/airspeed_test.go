@@ -1,13 +1,15 @@
 package atmosphere_test
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"scalematch/internal/testfixture"
-	"strings"
 	"testing"
+
+	"scalematch/internal/testfixture"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/atmosphere"
 )
@@ -19,13 +21,12 @@ const knot = 1852.0 / 3600.0
 func mustAt(t testing.TB, z, dt float64) atmosphere.State {
 	t.Helper()
 	s, err := atmosphere.At(z, dt)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return s
 }
 
 func TestSeaLevelSpeedsAgree(t *testing.T) {
+	t.Parallel()
 	// At sea level on a standard day CAS = EAS = TAS at every speed (definition,
 	// physics.md §2). The definitions use the tabulated a_SL = 340.294 m/s and
 	// ρ_SL = 1.2250 kg/m³, which are the model's 340.29411 m/s and 1.2249992 kg/m³
@@ -36,24 +37,19 @@ func TestSeaLevelSpeedsAgree(t *testing.T) {
 	easRatio := math.Sqrt(s.Density / atmosphere.SeaLevelDensity)
 	for _, m := range []float64{0.01, 0.1, 0.3, 0.5, 0.8, 0.99, 1, 1.01, 1.5, 2, 3, 4.5} {
 		t.Run(fmt.Sprintf("M=%g", m), func(t *testing.T) {
+			t.Parallel()
 			v, err := s.Airspeeds(atmosphere.Mach, m)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if e := testfixture.RelErr(v.Calibrated, v.True*casRatio); e > 1e-12 {
-				t.Errorf("CAS %.12g, TAS·a_SL/a %.12g", v.Calibrated, v.True*casRatio)
-			}
-			if e := testfixture.RelErr(v.Equivalent, v.True*easRatio); e > 1e-14 {
-				t.Errorf("EAS %.12g, TAS·√(ρ/ρ_SL) %.12g", v.Equivalent, v.True*easRatio)
-			}
-			if testfixture.RelErr(v.Calibrated, v.True) > 4e-7 || testfixture.RelErr(v.Equivalent, v.True) > 4e-7 {
-				t.Errorf("CAS %.9g, EAS %.9g, TAS %.9g differ", v.Calibrated, v.Equivalent, v.True)
-			}
+			require.NoError(t, err)
+			assert.InEpsilon(t, v.True*casRatio, v.Calibrated, 1e-12, "CAS = TAS·a_SL/a (definition)")
+			assert.InEpsilon(t, v.True*easRatio, v.Equivalent, 1e-14, "EAS = TAS·√(ρ/ρ_SL) (definition)")
+			assert.InEpsilon(t, v.True, v.Calibrated, 4e-7, "CAS = TAS at sea level to the tabulated rounding")
+			assert.InEpsilon(t, v.True, v.Equivalent, 4e-7, "EAS = TAS at sea level to the tabulated rounding")
 		})
 	}
 }
 
 func TestAirspeedRoundTrips(t *testing.T) {
+	t.Parallel()
 	// Every conversion, started from each kind, gives back the same Mach number and
 	// the same four speeds to 1e-10 relative, subsonic and supersonic, at several
 	// altitudes and offsets. Random Mach numbers from a seeded generator.
@@ -81,21 +77,15 @@ func TestAirspeedRoundTrips(t *testing.T) {
 			}
 			for _, m := range machs {
 				ref, err := s.Airspeeds(atmosphere.Mach, m)
-				if err != nil {
-					t.Fatalf("M %g: %v", m, err)
-				}
+				require.NoError(t, err, "M %g", m)
 				for _, k := range kinds {
 					in := [...]float64{ref.Mach, ref.True, ref.Calibrated, ref.Equivalent}[k]
 					got, err := s.Airspeeds(k, in)
-					if err != nil {
-						t.Fatalf("M %g from %v %g: %v", m, k, in, err)
-					}
+					require.NoError(t, err, "M %g from %v %g", m, k, in)
 					pairs := [][2]float64{{got.Mach, ref.Mach}, {got.True, ref.True}, {got.Calibrated, ref.Calibrated},
 						{got.Equivalent, ref.Equivalent}, {got.DynamicPressure, ref.DynamicPressure}, {got.ImpactPressure, ref.ImpactPressure}}
 					for i, pr := range pairs {
-						if e := testfixture.RelErr(pr[0], pr[1]); e > 1e-10 {
-							t.Errorf("M %.9g from %v: field %d %.15g, want %.15g (relative %.2g)", m, k, i, pr[0], pr[1], e)
-						}
+						testfixture.InRelative(t, pr[1], pr[0], 1e-10, "M %.9g from %v: field %d", m, k, i)
 					}
 				}
 			}
@@ -104,6 +94,7 @@ func TestAirspeedRoundTrips(t *testing.T) {
 }
 
 func TestKnownAirspeeds(t *testing.T) {
+	t.Parallel()
 	// 250 kt CAS at FL100 (pressure altitude 3048 m) on a standard day. Worked
 	// independently from physics.md §2 with 1 kt = 1852/3600 m/s:
 	//   T = 288.15 − 0.0065·3048 = 268.338 K; p = 101325·(288.15/T)^(−g0M0/(R*·L))
@@ -113,13 +104,9 @@ func TestKnownAirspeeds(t *testing.T) {
 	//   EAS = TAS·√(ρ/1.225) = 248.096 kt. (The pilot's rule of thumb, TAS ≈ CAS
 	//   plus 2 % per 1000 ft, gives 300 kt; common practice.)
 	s, err := atmosphere.AtPressureAltitude(3048, 0)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	v, err := s.Airspeeds(atmosphere.CalibratedAirspeed, 250*knot)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	cases := []struct {
 		name      string
 		got, want float64
@@ -133,14 +120,14 @@ func TestKnownAirspeeds(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			if e := testfixture.RelErr(c.got, c.want); e > c.tol {
-				t.Errorf("got %.9g, want %.9g", c.got, c.want)
-			}
+			t.Parallel()
+			assert.InEpsilon(t, c.want, c.got, c.tol, "worked from physics.md §2 (above)")
 		})
 	}
 }
 
 func TestAirspeedErrors(t *testing.T) {
+	t.Parallel()
 	s := mustAt(t, 11000, 0)
 	cases := []struct {
 		name  string
@@ -160,34 +147,27 @@ func TestAirspeedErrors(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			v, err := s.Airspeeds(c.kind, c.value)
-			if !errors.Is(err, atmosphere.ErrRange) {
-				t.Fatalf("got %+v, %v; want an error wrapping ErrRange", v, err)
-			}
-			if !strings.Contains(err.Error(), c.want) {
-				t.Errorf("error %q does not say %q", err, c.want)
-			}
+			require.ErrorIs(t, err, atmosphere.ErrRange, "got %+v", v)
+			assert.ErrorContains(t, err, c.want)
 		})
 	}
 	// The edge itself is accepted for every kind.
 	edge, err := s.Airspeeds(atmosphere.Mach, 5)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for k, v := range []float64{edge.Mach, edge.True, edge.Calibrated, edge.Equivalent} {
-		if _, err := s.Airspeeds(atmosphere.SpeedKind(k), v); err != nil {
-			t.Errorf("%v %g at Mach 5: %v", atmosphere.SpeedKind(k), v, err)
-		}
+		_, err := s.Airspeeds(atmosphere.SpeedKind(k), v)
+		assert.NoError(t, err, "%v %g at Mach 5", atmosphere.SpeedKind(k), v)
 	}
-	if _, err := (atmosphere.State{}).Airspeeds(atmosphere.Mach, 0.5); !errors.Is(err, atmosphere.ErrRange) {
-		t.Errorf("zero State: %v, want an error", err)
-	}
-	if _, err := s.Airspeeds(atmosphere.SpeedKind(9), 1); err == nil {
-		t.Error("unknown kind: no error")
-	}
+	_, err = (atmosphere.State{}).Airspeeds(atmosphere.Mach, 0.5)
+	assert.ErrorIs(t, err, atmosphere.ErrRange, "zero State")
+	_, err = s.Airspeeds(atmosphere.SpeedKind(9), 1)
+	assert.Error(t, err, "unknown kind")
 }
 
 func TestParseSpeedKind(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		in   string
 		want atmosphere.SpeedKind
@@ -204,16 +184,15 @@ func TestParseSpeedKind(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.in, func(t *testing.T) {
+			t.Parallel()
 			got, err := atmosphere.ParseSpeedKind(c.in)
 			if c.name == "" {
-				if err == nil {
-					t.Errorf("ParseSpeedKind(%q) = %v, want an error", c.in, got)
-				}
+				assert.Error(t, err, "ParseSpeedKind(%q) = %v", c.in, got)
 				return
 			}
-			if err != nil || got != c.want || got.String() != c.name {
-				t.Errorf("ParseSpeedKind(%q) = %v (%q), %v", c.in, got, got.String(), err)
-			}
+			require.NoError(t, err)
+			assert.Equal(t, c.want, got)
+			assert.Equal(t, c.name, got.String())
 		})
 	}
 }

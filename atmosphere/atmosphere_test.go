@@ -1,57 +1,21 @@
 package atmosphere_test
 
 import (
-	"bufio"
-	"errors"
 	"math"
-	"os"
 	"path/filepath"
-	"scalematch/internal/testfixture"
-	"strconv"
-	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
 	"scalematch/atmosphere"
+	"scalematch/internal/testfixture"
 )
 
-// readFixture reads a CSV under testdata/reference/atmosphere, skipping comment
-// lines and the column header, and returns its numeric rows.
+// readFixture reads a CSV under testdata/reference/atmosphere.
 func readFixture(t *testing.T, name string) [][]float64 {
 	t.Helper()
-	f, err := os.Open(filepath.Join("..", "testdata", "reference", "atmosphere", name))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	var rows [][]float64
-	sc := bufio.NewScanner(f)
-	header := true
-	for sc.Scan() {
-		line := sc.Text()
-		if strings.HasPrefix(line, "#") || line == "" {
-			continue
-		}
-		if header {
-			header = false
-			continue
-		}
-		var row []float64
-		for _, field := range strings.Split(line, ",") {
-			v, err := strconv.ParseFloat(field, 64)
-			if err != nil {
-				t.Fatalf("%s: %v", name, err)
-			}
-			row = append(row, v)
-		}
-		rows = append(rows, row)
-	}
-	if err := sc.Err(); err != nil {
-		t.Fatal(err)
-	}
-	return rows
+	return testfixture.ReadCSV(t, filepath.Join("..", "testdata", "reference", "atmosphere", name))
 }
 
 // TestFixtureFluids compares At with python3-fluids' independent implementation
@@ -67,10 +31,9 @@ func readFixture(t *testing.T, name string) [][]float64 {
 // equations do. In that last 46 mm of geopotential height the temperatures differ
 // by up to 5e-7 relative, and the test compares that sliver on its own.
 func TestFixtureFluids(t *testing.T) {
+	t.Parallel()
 	rows := readFixture(t, "atmosphere.csv")
-	if len(rows) < 4*500 {
-		t.Fatalf("fixture has %d rows, want at least 500 altitudes for each of 4 offsets", len(rows))
-	}
+	require.GreaterOrEqual(t, len(rows), 4*500, "fixture rows: at least 500 altitudes for each of 4 offsets")
 	const top = 84852.0 // m', top of the standard's layers
 	regions := []struct {
 		name   string
@@ -94,12 +57,11 @@ func TestFixtureFluids(t *testing.T) {
 	for _, reg := range regions {
 		for _, q := range quantities {
 			t.Run(reg.name+"/"+q.name, func(t *testing.T) {
+				t.Parallel()
 				worst, at, n := 0.0, 0, 0
 				for i, r := range rows {
 					s, err := atmosphere.At(r[0], r[1])
-					if err != nil {
-						t.Fatalf("At(%g, %g): %v", r[0], r[1], err)
-					}
+					require.NoError(t, err, "At(%g, %g)", r[0], r[1])
 					if !reg.inside(s.GeopotentialAltitude) {
 						continue
 					}
@@ -108,12 +70,8 @@ func TestFixtureFluids(t *testing.T) {
 						worst, at = e, i
 					}
 				}
-				if n == 0 {
-					t.Fatal("no fixture rows in this region")
-				}
-				if worst > reg.tol {
-					t.Errorf("worst relative difference %.3g at z = %g m, ΔT = %g K; want ≤ %g", worst, rows[at][0], rows[at][1], reg.tol)
-				}
+				require.NotZero(t, n, "fixture rows in this region")
+				assert.LessOrEqual(t, worst, reg.tol, "worst relative difference from python3-fluids ATMOSPHERE_1976 at z = %g m, ΔT = %g K", rows[at][0], rows[at][1])
 				t.Logf("%d states, worst relative difference %.3g at z = %g m", n, worst, rows[at][0])
 			})
 		}
@@ -121,10 +79,9 @@ func TestFixtureFluids(t *testing.T) {
 }
 
 func TestSeaLevel(t *testing.T) {
+	t.Parallel()
 	s, err := atmosphere.At(0, 0)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	// U.S. Standard Atmosphere 1976, table I at 0 m (from memory), each to the
 	// digits tabulated; ν follows from them.
 	cases := []struct {
@@ -143,14 +100,14 @@ func TestSeaLevel(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			if e := testfixture.RelErr(c.got, c.want); e > c.tol {
-				t.Errorf("got %.8g, want %.8g (relative error %.2g > %.2g)", c.got, c.want, e, c.tol)
-			}
+			t.Parallel()
+			assert.InEpsilon(t, c.want, c.got, c.tol, "U.S. Standard Atmosphere 1976, table I at 0 m (from memory)")
 		})
 	}
 }
 
 func TestStandardTable(t *testing.T) {
+	t.Parallel()
 	// U.S. Standard Atmosphere 1976 values at layer bases and the top (from memory),
 	// by geopotential altitude; temperatures are the molecular-scale temperatures.
 	cases := []struct {
@@ -170,28 +127,23 @@ func TestStandardTable(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			s, err := atmosphere.AtPressureAltitude(c.h, 0)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if e := testfixture.RelErr(s.Temperature, c.temperature); e > c.tol {
-				t.Errorf("temperature %.8g K, want %.8g K", s.Temperature, c.temperature)
-			}
-			if e := testfixture.RelErr(s.Pressure, c.pressure); e > c.tol {
-				t.Errorf("pressure %.8g Pa, want %.8g Pa", s.Pressure, c.pressure)
-			}
+			require.NoError(t, err)
+			assert.InEpsilon(t, c.temperature, s.Temperature, c.tol, "temperature K, U.S. Standard Atmosphere 1976 (from memory)")
+			assert.InEpsilon(t, c.pressure, s.Pressure, c.tol, "pressure Pa, U.S. Standard Atmosphere 1976 (from memory)")
 		})
 	}
 }
 
 func TestNonStandardDay(t *testing.T) {
+	t.Parallel()
 	// Common practice: the offset raises T at the same pressure; ρ scales as 1/T,
 	// a as √T.
-	std, _ := atmosphere.At(5000, 0)
+	std, err := atmosphere.At(5000, 0)
+	require.NoError(t, err)
 	hot, err := atmosphere.At(5000, 20)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	cases := []struct {
 		name      string
 		got, want float64
@@ -205,14 +157,14 @@ func TestNonStandardDay(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			if e := testfixture.RelErr(c.got, c.want); e > c.tol {
-				t.Errorf("got %.12g, want %.12g", c.got, c.want)
-			}
+			t.Parallel()
+			assert.InEpsilon(t, c.want, c.got, c.tol, "non-standard day (common practice)")
 		})
 	}
 }
 
 func TestGeopotentialRoundTrip(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name string
 		z    float64 // m
@@ -226,53 +178,38 @@ func TestGeopotentialRoundTrip(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			h := atmosphere.Geopotential(c.z)
-			if math.Abs(h-c.h) > c.tol {
-				t.Errorf("Geopotential(%g) = %.6f, want %.6f", c.z, h, c.h)
-			}
-			if z := atmosphere.Geometric(h); math.Abs(z-c.z) > 1e-9 {
-				t.Errorf("Geometric(Geopotential(%g)) = %.12g", c.z, z)
-			}
+			assert.InDelta(t, c.h, h, c.tol, "Geopotential(%g), H = r0·z/(r0+z)", c.z)
+			assert.InDelta(t, c.z, atmosphere.Geometric(h), 1e-9, "Geometric(Geopotential(%g))", c.z)
 		})
 	}
 }
 
 func TestPressureAltitudeRoundTrip(t *testing.T) {
+	t.Parallel()
 	// Both directions, every 100 m' and at each layer base, to 1e-9 m and 1e-12
 	// relative in pressure.
 	for h := -5000.0; h <= 84850; h += 100 {
 		s, err := atmosphere.AtPressureAltitude(h, 0)
-		if err != nil {
-			t.Fatalf("AtPressureAltitude(%g): %v", h, err)
-		}
+		require.NoError(t, err, "AtPressureAltitude(%g)", h)
 		got, err := atmosphere.PressureAltitude(s.Pressure)
-		if err != nil {
-			t.Fatalf("PressureAltitude(%g): %v", s.Pressure, err)
-		}
-		if math.Abs(got-h) > 1e-9*math.Max(1, math.Abs(h)) {
-			t.Errorf("h = %g m': pressure %.10g Pa gives back %.12g m'", h, s.Pressure, got)
-		}
+		require.NoError(t, err, "PressureAltitude(%g)", s.Pressure)
+		assert.InDelta(t, h, got, 1e-9*math.Max(1, math.Abs(h)), "h = %g m': pressure %.10g Pa gives back", h, s.Pressure)
 		back, err := atmosphere.AtPressureAltitude(got, 0)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if e := testfixture.RelErr(back.Pressure, s.Pressure); e > 1e-12 {
-			t.Errorf("h = %g m': pressure %.15g → %.15g", h, s.Pressure, back.Pressure)
-		}
+		require.NoError(t, err)
+		assert.InEpsilon(t, s.Pressure, back.Pressure, 1e-12, "h = %g m': pressure round trip", h)
 	}
 	// A flight level is a pressure altitude: FL350 = 35 000 ft = 10 668 m (ICAO;
 	// 1 ft = 0.3048 m exactly). Standard pressure there 23 842 Pa (ICAO Doc 7488
 	// table, from memory).
 	s, err := atmosphere.AtPressureAltitude(10668, 0)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if e := testfixture.RelErr(s.Pressure, 23842); e > 5e-5 {
-		t.Errorf("FL350: %.6g Pa, want 23842 Pa", s.Pressure)
-	}
+	require.NoError(t, err)
+	assert.InEpsilon(t, 23842, s.Pressure, 5e-5, "FL350 pressure Pa, ICAO Doc 7488 (from memory)")
 }
 
 func TestRangeErrors(t *testing.T) {
+	t.Parallel()
 	nan, inf := math.NaN(), math.Inf(1)
 	cases := []struct {
 		name string
@@ -295,30 +232,24 @@ func TestRangeErrors(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			err := c.call()
-			if !errors.Is(err, atmosphere.ErrRange) {
-				t.Fatalf("error %v does not wrap ErrRange", err)
-			}
+			require.ErrorIs(t, err, atmosphere.ErrRange)
 			var re *atmosphere.RangeError
-			if !errors.As(err, &re) {
-				t.Fatalf("error %v is not a *RangeError", err)
-			}
-			if !strings.Contains(err.Error(), c.want) {
-				t.Errorf("error %q does not say %q", err, c.want)
-			}
+			require.ErrorAs(t, err, &re)
+			assert.ErrorContains(t, err, c.want)
 		})
 	}
 }
 
 func TestNoNaNAcrossRange(t *testing.T) {
+	t.Parallel()
 	// Every state in range is finite and positive, with and without the extreme
 	// offsets.
 	for _, dt := range []float64{atmosphere.MinDeltaISA, 0, atmosphere.MaxDeltaISA} {
 		for z := atmosphere.MinAltitude; z <= atmosphere.MaxAltitude; z += 37 {
 			s, err := atmosphere.At(z, dt)
-			if err != nil {
-				t.Fatalf("At(%g, %g): %v", z, dt, err)
-			}
+			require.NoError(t, err, "At(%g, %g)", z, dt)
 			for _, v := range []float64{s.Temperature, s.Pressure, s.Density, s.SpeedOfSound, s.Viscosity, s.KinematicViscosity} {
 				if !(v > 0) || math.IsInf(v, 0) {
 					t.Fatalf("At(%g, %g) = %+v", z, dt, s)
@@ -332,6 +263,7 @@ func TestNoNaNAcrossRange(t *testing.T) {
 // geopotential altitude of 86 km geometric, 84 852.0458 m (6356766·86000/6442766),
 // and that the error states it.
 func TestPressureAltitudeBound(t *testing.T) {
+	t.Parallel()
 	AtPressureAltitude := atmosphere.AtPressureAltitude
 	ErrRange := atmosphere.ErrRange
 	_, err := AtPressureAltitude(84852.045, 0)

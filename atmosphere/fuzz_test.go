@@ -1,9 +1,11 @@
 package atmosphere_test
 
 import (
-	"errors"
 	"math"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/atmosphere"
 )
@@ -23,17 +25,13 @@ func FuzzAirspeeds(f *testing.F) {
 	f.Fuzz(func(t *testing.T, z, dt float64, kind int, v float64) {
 		s, err := atmosphere.At(z, dt)
 		if err != nil {
-			if !errors.Is(err, atmosphere.ErrRange) {
-				t.Fatalf("At(%g, %g): %v does not wrap ErrRange", z, dt, err)
-			}
+			require.ErrorIs(t, err, atmosphere.ErrRange, "At(%g, %g)", z, dt)
 			return
 		}
 		k := atmosphere.SpeedKind(((kind % 4) + 4) % 4)
 		a, err := s.Airspeeds(k, v)
 		if err != nil {
-			if !errors.Is(err, atmosphere.ErrRange) {
-				t.Fatalf("Airspeeds(%v, %g): %v does not wrap ErrRange", k, v, err)
-			}
+			require.ErrorIs(t, err, atmosphere.ErrRange, "Airspeeds(%v, %g)", k, v)
 			return
 		}
 		out := []float64{a.Mach, a.True, a.Calibrated, a.Equivalent, a.DynamicPressure, a.ImpactPressure}
@@ -49,28 +47,23 @@ func FuzzAirspeeds(f *testing.F) {
 }
 
 func TestMach5EdgeAccepted(t *testing.T) {
+	t.Parallel()
 	// The highest speed of each kind, the one that gives exactly Mach 5, is in range
 	// at every altitude and offset; a hair above it is not.
 	for _, z := range []float64{-5000, 0, 11000, 30000, 60000, 86000} {
 		for _, dt := range []float64{-100, 0, 100} {
 			s := mustAt(t, z, dt)
 			edge, err := s.Airspeeds(atmosphere.Mach, atmosphere.MaxMach)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			for k, v := range []float64{edge.Mach, edge.True, edge.Calibrated, edge.Equivalent} {
 				kind := atmosphere.SpeedKind(k)
 				got, err := s.Airspeeds(kind, v)
-				if err != nil {
-					t.Errorf("z %g ΔT %g: %v %.17g at Mach 5: %v", z, dt, kind, v, err)
+				if !assert.NoError(t, err, "z %g ΔT %g: %v %.17g at Mach 5", z, dt, kind, v) {
 					continue
 				}
-				if got.Mach > atmosphere.MaxMach {
-					t.Errorf("z %g ΔT %g: %v gives Mach %.17g", z, dt, kind, got.Mach)
-				}
-				if _, err := s.Airspeeds(kind, v*(1+1e-9)); !errors.Is(err, atmosphere.ErrRange) {
-					t.Errorf("z %g ΔT %g: %v 1e-9 above Mach 5 accepted", z, dt, kind)
-				}
+				assert.LessOrEqual(t, got.Mach, atmosphere.MaxMach, "z %g ΔT %g: %v", z, dt, kind)
+				_, err = s.Airspeeds(kind, v*(1+1e-9))
+				assert.ErrorIs(t, err, atmosphere.ErrRange, "z %g ΔT %g: %v 1e-9 above Mach 5", z, dt, kind)
 			}
 		}
 	}

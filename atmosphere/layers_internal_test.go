@@ -3,6 +3,8 @@ package atmosphere
 import (
 	"math"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
 )
 
 // chain recomputes the base pressures from 101 325 Pa with the standard's pressure
@@ -23,6 +25,7 @@ func chain() []float64 {
 }
 
 func TestBasePressures(t *testing.T) {
+	t.Parallel()
 	chained := chain()
 	// Published base pressures, U.S. Standard Atmosphere 1976 (from memory; also
 	// physics.md §1), each to the number of digits published.
@@ -41,19 +44,14 @@ func TestBasePressures(t *testing.T) {
 	}
 	for i, c := range published {
 		t.Run(c.name, func(t *testing.T) {
-			if got := layers[i].p; math.Abs(got-chained[i]) > 1e-15*chained[i] {
-				t.Errorf("table %.17g, chain %.17g", got, chained[i])
-			}
-			if math.Abs(chained[i]-c.p) > c.tol {
-				t.Errorf("chain %.10g, published %.10g ± %g", chained[i], c.p, c.tol)
-			}
+			t.Parallel()
+			assert.InDelta(t, chained[i], layers[i].p, 1e-15*chained[i], "table against the chained equations 33a/33b")
+			assert.InDelta(t, c.p, chained[i], c.tol, "U.S. Standard Atmosphere 1976 base pressure (from memory)")
 		})
 	}
 	// The base temperatures must follow from the lapse rates too.
 	for i := 1; i < len(layers); i++ {
 		b := layers[i-1]
-		if got := b.t + b.lapse*(layers[i].h-b.h); math.Abs(got-layers[i].t) > 1e-9 {
-			t.Errorf("layer %d: base temperature %.10g, lapse gives %.10g", i, layers[i].t, got)
-		}
+		assert.InDelta(t, layers[i].t, b.t+b.lapse*(layers[i].h-b.h), 1e-9, "layer %d: base temperature from the lapse rate", i)
 	}
 }

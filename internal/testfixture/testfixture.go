@@ -1,13 +1,22 @@
 // Package testfixture holds what the test packages share: the demo-world requests
 // they send, a silent logger and the relative error the physics checks measure
-// with. It imports nothing of the project, so that any package's tests may use it;
-// servers and stores for tests are in testsite. It is imported only by tests.
+// with (RelErr, and InRelative, its assertion). It imports nothing of the project,
+// so that any package's tests may use it; servers and stores for tests are in
+// testsite. It is imported only by tests.
 package testfixture
 
 import (
+	"bufio"
 	"io"
 	"log/slog"
 	"math"
+	"os"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // J16Plan is a plan request for the Orrin J16 of the demo world (docs/demo-world.md)
@@ -51,4 +60,50 @@ func RelErr(got, want float64) float64 {
 		return math.Abs(got)
 	}
 	return math.Abs(got-want) / math.Abs(want)
+}
+
+// InRelative asserts that got is within the relative tolerance tol of want, as
+// RelErr measures it: assert.InEpsilon, or assert.InDelta within tol when want is
+// 0 (where InEpsilon refuses). A NaN got fails unless want is NaN too.
+func InRelative(t assert.TestingT, want, got, tol float64, msgAndArgs ...any) bool {
+	if h, ok := t.(interface{ Helper() }); ok {
+		h.Helper()
+	}
+	if want == 0 {
+		return assert.InDelta(t, want, got, tol, msgAndArgs...)
+	}
+	return assert.InEpsilon(t, want, got, tol, msgAndArgs...)
+}
+
+// ReadCSV reads the numeric rows of a reference fixture under testdata/reference:
+// comment lines (#) and blank lines are skipped, the first other line is the
+// column header, and every row must have as many numbers as the header has names.
+func ReadCSV(t testing.TB, path string) [][]float64 {
+	t.Helper()
+	f, err := os.Open(path)
+	require.NoError(t, err)
+	defer f.Close()
+	var rows [][]float64
+	width := 0 // columns, from the header; 0 until it is read
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		line := sc.Text()
+		if line == "" || strings.HasPrefix(line, "#") {
+			continue
+		}
+		fields := strings.Split(line, ",")
+		if width == 0 {
+			width = len(fields)
+			continue
+		}
+		require.Len(t, fields, width, "%s: %q", path, line)
+		row := make([]float64, width)
+		for i, field := range fields {
+			row[i], err = strconv.ParseFloat(field, 64)
+			require.NoError(t, err, "%s: %q", path, line)
+		}
+		rows = append(rows, row)
+	}
+	require.NoError(t, sc.Err(), path)
+	return rows
 }
