@@ -378,7 +378,9 @@ type Binding struct {
 type Stats struct {
 	// Evaluations is the number of test-section states computed.
 	Evaluations int `json:"evaluations"`
-	// Solves is the number of full optimisations: one, plus one per binding gain.
+	// Solves is the number of full optimisations: one, plus one per binding gain
+	// that needs a re-solve (none when the plan meets the flight's Reynolds
+	// number: every gain is then 0).
 	Solves int `json:"solves"`
 	// RefineEvaluations is the number of objective evaluations (each a candidate at
 	// one Mach number or speed and scale) of the Nelder–Mead refinement
@@ -436,7 +438,7 @@ func Plan(p *Problem, s *Settings) (*Result, error) {
 	}
 	res := sv.result(best)
 	res.Stats.Solves = 1
-	if !s.NoGains {
+	if !s.NoGains && !sv.reynoldsMet(best) {
 		for i := range res.Binding {
 			g, n, err := sv.gain(res.Binding[i].Constraint, best)
 			res.Stats.Evaluations += n

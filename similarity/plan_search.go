@@ -391,6 +391,27 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	return &r, true
 }
 
+// reynoldsMet reports whether the candidate x meets the flight's Reynolds number
+// exactly by the objective: its Reynolds level, and every level before it, is
+// exactly 0 (priority), or the weighted sum with a Reynolds weight is exactly 0.
+// Relaxing a limit only widens the feasible set, so the relaxed optimum is no
+// worse by the objective and meets it too: every binding gain is then 0 with no
+// re-solve.
+func (sv *solver) reynoldsMet(x candidate) bool {
+	if sv.obj.weighted {
+		return sv.obj.w[gReynolds] > 0 && x.k.v[0] == 0
+	}
+	for i, g := range sv.obj.levels {
+		if x.k.v[i] != 0 {
+			return false
+		}
+		if g == gReynolds {
+			return true
+		}
+	}
+	return false
+}
+
 // gain re-solves with the named limit relaxed by 1 % and returns the change of the
 // test Reynolds number in per cent, and the states computed.
 func (sv *solver) gain(name string, best candidate) (float64, int, error) {

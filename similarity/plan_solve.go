@@ -1015,6 +1015,11 @@ func (sv *solver) solveR(c *machSetup, tp topSetting, r float64) (p0, t0 float64
 		return st.ReynoldsPerMeter
 	}
 	warm := func(lo float64) float64 {
+		if c.rloOK && r == c.rlo {
+			// The lowest Re/m is the warmest T0's own: no root to find (the
+			// root finder would only halve its bracket down to tb, where g is 0).
+			return c.tb
+		}
 		return sv.rootHi(func(t float64) float64 { return r - rAt(c.pa, t) }, lo, c.tb, true)
 	}
 	if tp.edge {
