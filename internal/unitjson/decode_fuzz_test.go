@@ -1,15 +1,16 @@
 package unitjson_test
 
 import (
-	"errors"
 	"math"
 	"os"
 	"reflect"
-	"scalematch/internal/check"
 	"testing"
+
+	"github.com/stretchr/testify/require"
 
 	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/internal/unitjson"
 )
 
@@ -73,28 +74,20 @@ func FuzzDecode(f *testing.F) {
 		req.FacilityID = "before"
 		err := unitjson.Decode(body, &req)
 		if err == nil {
-			if p := finiteFloats(reflect.ValueOf(req), "req"); p != "" {
-				t.Fatalf("non-finite float at %s from %q", p, body)
-			}
+			require.Empty(t, finiteFloats(reflect.ValueOf(req), "req"), "non-finite float from %q", body)
 			return
 		}
 		var de *check.Error
-		if !errors.As(err, &de) || de.Code != check.CodeInvalid || len(de.Fields) == 0 {
-			t.Fatalf("error %T %v is not an invalid-input error with fields", err, err)
-		}
+		require.ErrorAs(t, err, &de)
+		require.Equal(t, check.CodeInvalid, de.Code, "an invalid-input error")
+		require.NotEmpty(t, de.Fields, "an invalid-input error with fields")
 		for _, fe := range de.Fields {
-			if fe.Message == "" {
-				t.Fatalf("empty message at %q", fe.Field)
-			}
+			require.NotEmpty(t, fe.Message, "message at %q", fe.Field)
 		}
-		if req.FacilityID != "before" {
-			t.Fatalf("dst changed on error: facility_id %q", req.FacilityID)
-		}
+		require.Equal(t, "before", req.FacilityID, "dst changed on error")
 		var again schema.PlanRequest
 		err2 := unitjson.Decode(body, &again)
-		if err2 == nil || err2.Error() != err.Error() {
-			t.Fatalf("second decode says %v, first said %v", err2, err)
-		}
+		require.EqualError(t, err2, err.Error(), "second decode against the first")
 
 		var fac facilities.Facility
 		_ = unitjson.Decode(body, &fac) // must not panic

@@ -2,15 +2,16 @@ package unitjson_test
 
 import (
 	"encoding/json"
-	"errors"
 	"fmt"
 	"math"
-	"reflect"
-	"scalematch/internal/check"
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
@@ -53,13 +54,12 @@ type decodeTarget struct {
 func decodeOK(t *testing.T, body string) decodeTarget {
 	t.Helper()
 	var d decodeTarget
-	if err := unitjson.Decode([]byte(body), &d); err != nil {
-		t.Fatalf("Decode(%s): %v", body, err)
-	}
+	require.NoError(t, unitjson.Decode([]byte(body), &d), "Decode(%s)", body)
 	return d
 }
 
 func TestDecodeUnits(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name string
 		body string
@@ -100,31 +100,26 @@ func TestDecodeUnits(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			d := decodeOK(t, tc.body)
-			got := tc.get(d)
-			if math.Abs(got-tc.want) > tc.tol*math.Abs(tc.want) {
-				t.Errorf("got %.17g, want %.17g (relative tolerance %g)", got, tc.want, tc.tol)
-			}
+			assert.InDelta(t, tc.want, tc.get(d), tc.tol*math.Abs(tc.want), "relative tolerance %g; the exact conversion is named beside the case", tc.tol)
 		})
 	}
 }
 
 func TestDecodeKeepsOtherKinds(t *testing.T) {
+	t.Parallel()
 	d := decodeOK(t, `{"name":"run 7","points":21,"verbose":true,"extra":{"a":[1,"b"]},
 		"facility":{"medium":{"gas":{"molar_mass":0.028,"gamma":1.4,"viscosity_reference":1.7e-5,"temperature_reference":273,"sutherland_constant":111}}},
 		"flight":{"mach":null}}`)
-	if d.Name != "run 7" || d.Points != 21 || !d.Verbose {
-		t.Errorf("plain fields: got %q %d %v", d.Name, d.Points, d.Verbose)
-	}
-	if d.Flight.Mach != nil {
-		t.Errorf("null Mach: got %v, want nil", *d.Flight.Mach)
-	}
-	want := map[string]any{"a": []any{1.0, "b"}}
-	if !reflect.DeepEqual(d.Extra, want) {
-		t.Errorf("extra: got %#v, want %#v", d.Extra, want)
-	}
-	if d.Facility.Medium.Kind != facilities.MediumGas || d.Facility.Medium.Gas.Gamma != 1.4 {
-		t.Errorf("medium: got %+v", d.Facility.Medium)
+	assert.Equal(t, "run 7", d.Name)
+	assert.Equal(t, 21, d.Points)
+	assert.True(t, d.Verbose)
+	assert.Nil(t, d.Flight.Mach, "null Mach")
+	assert.Equal(t, map[string]any{"a": []any{1.0, "b"}}, d.Extra)
+	assert.Equal(t, facilities.MediumGas, d.Facility.Medium.Kind)
+	if assert.NotNil(t, d.Facility.Medium.Gas) {
+		assert.Equal(t, 1.4, d.Facility.Medium.Gas.Gamma)
 	}
 }
 
@@ -133,16 +128,13 @@ func TestDecodeKeepsOtherKinds(t *testing.T) {
 func fieldsOf(t *testing.T, err error) []check.FieldError {
 	t.Helper()
 	var de *check.Error
-	if !errors.As(err, &de) {
-		t.Fatalf("want *check.Error, got %T %v", err, err)
-	}
-	if de.Code != check.CodeInvalid {
-		t.Fatalf("code %q, want %q", de.Code, check.CodeInvalid)
-	}
+	require.ErrorAs(t, err, &de)
+	require.Equal(t, check.CodeInvalid, de.Code)
 	return de.Fields
 }
 
 func TestDecodeErrors(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name string
 		body string
@@ -195,41 +187,30 @@ func TestDecodeErrors(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			var d decodeTarget
 			d.Name = "before"
 			err := unitjson.Decode([]byte(tc.body), &d)
-			if err == nil {
-				t.Fatalf("Decode(%s) = nil, want errors at %v", tc.body, tc.want)
-			}
+			require.Error(t, err, "want errors at %v", tc.want)
 			fields := fieldsOf(t, err)
 			got := map[string]string{}
 			for _, f := range fields {
-				if _, dup := got[f.Field]; dup {
-					t.Errorf("path %q reported twice", f.Field)
-				}
+				assert.NotContains(t, got, f.Field, "path reported twice")
 				got[f.Field] = f.Message
 			}
 			for path, frag := range tc.want {
-				msg, ok := got[path]
-				if !ok {
-					t.Errorf("no error at %q; got %v", path, fields)
-					continue
-				}
-				if !strings.Contains(msg, frag) {
-					t.Errorf("%s: message %q does not contain %q", path, msg, frag)
+				if assert.Contains(t, got, path, "no error at this path; got %v", fields) {
+					assert.Contains(t, got[path], frag, path)
 				}
 			}
-			if len(got) != len(tc.want) {
-				t.Errorf("got %d errors %v, want %d", len(got), fields, len(tc.want))
-			}
-			if d.Name != "before" {
-				t.Errorf("dst changed on error: name %q", d.Name)
-			}
+			assert.Len(t, got, len(tc.want), "errors %v", fields)
+			assert.Equal(t, "before", d.Name, "dst changed on error")
 		})
 	}
 }
 
 func TestDecodeCapsErrorList(t *testing.T) {
+	t.Parallel()
 	var b strings.Builder
 	b.WriteString(`{"model":{"scales":[`)
 	for i := range 200 {
@@ -242,22 +223,17 @@ func TestDecodeCapsErrorList(t *testing.T) {
 	var d decodeTarget
 	err := unitjson.Decode([]byte(b.String()), &d)
 	fields := fieldsOf(t, err)
-	if len(fields) != 50 {
-		t.Errorf("got %d field errors, want the first 50", len(fields))
-	}
-	if !strings.Contains(err.Error(), "200 fields are invalid") {
-		t.Errorf("message %q does not count all 200", err.Error())
-	}
-	if fields[49].Field != "model.scales[49]" {
-		t.Errorf("50th error at %q, want model.scales[49]", fields[49].Field)
-	}
+	require.Len(t, fields, 50, "the first 50 field errors")
+	assert.ErrorContains(t, err, "200 fields are invalid")
+	assert.Equal(t, "model.scales[49]", fields[49].Field)
 }
 
 func TestDecodeNeedsStructPointer(t *testing.T) {
+	t.Parallel()
 	for _, dst := range []any{nil, decodeTarget{}, new(int), (*decodeTarget)(nil)} {
 		err := unitjson.Decode([]byte(`{}`), dst)
-		if err == nil || check.ErrorCode(err) != "" {
-			t.Errorf("Decode into %T: got %v, want a programming error", dst, err)
+		if assert.Error(t, err, "Decode into %T", dst) {
+			assert.Empty(t, check.ErrorCode(err), "Decode into %T: want a programming error, not a domain error", dst)
 		}
 	}
 }
@@ -265,19 +241,14 @@ func TestDecodeNeedsStructPointer(t *testing.T) {
 // TestDecodeMatchesEncodingJSON checks that SI-only bodies decode exactly as
 // encoding/json decodes them.
 func TestDecodeMatchesEncodingJSON(t *testing.T) {
+	t.Parallel()
 	body := []byte(`{"flight":{"altitude":11000,"delta_isa":5,"mach":0.78},"model":{"scales":[0.04,0.05]},
 		"alpha":{"from":-4,"to":16,"step":1},"offset":{"x":0.1,"z":-0.02},"points":3,"name":"n","loads":{"normal":1},
 		"facility":{"id":"x","medium":"water","stagnation_pressure":{"min":1,"max":2},"balances":[{"id":"b","safety_factor":1.5}]}}`)
 	var got, want decodeTarget
-	if err := unitjson.Decode(body, &got); err != nil {
-		t.Fatal(err)
-	}
-	if err := json.Unmarshal(body, &want); err != nil {
-		t.Fatal(err)
-	}
-	if !reflect.DeepEqual(got, want) {
-		t.Errorf("Decode and encoding/json differ:\n got %+v\nwant %+v", got, want)
-	}
+	require.NoError(t, unitjson.Decode(body, &got))
+	require.NoError(t, json.Unmarshal(body, &want))
+	assert.Equal(t, want, got, "Decode and encoding/json differ")
 }
 
 func ExampleDecode() {
@@ -306,6 +277,7 @@ func ExampleDecode() {
 }
 
 func TestDecodeAnyFieldErrorsInOrder(t *testing.T) {
+	t.Parallel()
 	body := []byte(`{"extra":{"d":1e999,"b":[1,2e999],"a":-1e999,"c":"fine"}}`)
 	want := []string{"extra.a", "extra.b[1]", "extra.d"}
 	for i := range 20 {
@@ -315,8 +287,6 @@ func TestDecodeAnyFieldErrorsInOrder(t *testing.T) {
 		for _, f := range fields {
 			got = append(got, f.Field)
 		}
-		if !reflect.DeepEqual(got, want) {
-			t.Fatalf("try %d: paths %v, want %v", i, got, want)
-		}
+		require.Equal(t, want, got, "try %d: paths", i)
 	}
 }

@@ -7,10 +7,12 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
-	"reflect"
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // stdTree decodes body as Decode did before parseTree: encoding/json with
@@ -37,17 +39,14 @@ func checkTree(t *testing.T, body []byte) {
 		return // encoding/json decides
 	}
 	want, wantOK := stdTree(body)
-	if !wantOK {
-		t.Fatalf("parseTree accepts %q, which encoding/json refuses", body)
-	}
-	if !reflect.DeepEqual(got, want) {
-		t.Fatalf("parseTree(%q) = %#v, encoding/json gives %#v", body, got, want)
-	}
+	require.True(t, wantOK, "parseTree accepts %q, which encoding/json refuses", body)
+	require.Equal(t, want, got, "parseTree(%q) against encoding/json", body)
 }
 
 // TestParseTree compares parseTree with encoding/json on edge cases, on the
 // example requests, and on seeded random documents and their mutations.
 func TestParseTree(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name   string
 		body   string
@@ -80,9 +79,9 @@ func TestParseTree(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			if _, ok := parseTree([]byte(tt.body)); ok != tt.wantOK {
-				t.Errorf("parseTree(%q) ok = %v, want %v", tt.body, ok, tt.wantOK)
-			}
+			t.Parallel()
+			_, ok := parseTree([]byte(tt.body))
+			assert.Equal(t, tt.wantOK, ok, "parseTree(%q) takes it itself", tt.body)
 			checkTree(t, []byte(tt.body))
 		})
 	}
@@ -90,12 +89,9 @@ func TestParseTree(t *testing.T) {
 	files = append(files, "../../api/testdata/load/plan-orrin-j16-tsw-1.json")
 	for _, name := range files {
 		b, err := os.ReadFile(name)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if _, ok := parseTree(b); !ok {
-			t.Errorf("%s: parseTree leaves an example request to encoding/json", name)
-		}
+		require.NoError(t, err)
+		_, ok := parseTree(b)
+		assert.True(t, ok, "%s: parseTree leaves an example request to encoding/json", name)
 		checkTree(t, b)
 	}
 	rng := rand.New(rand.NewPCG(5, 17))
