@@ -17,6 +17,7 @@ import (
 	"scalematch/api"
 	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
 
 // matrixAircraft is one aircraft of the demo world (docs/demo-world.md, "Aircraft"),
@@ -54,7 +55,7 @@ var matrixAircrafts = []matrixAircraft{
 
 // matrixFacility is one demo facility of the matrix with the mass of the model
 // planned in it: the same physical model mass whatever scale the planner picks
-// (facilities.Installation). The masses are hand estimates of a metric model
+// (loads.Installation). The masses are hand estimates of a metric model
 // sized for each section, well inside each balance's normal rating on their own:
 // 40 kg is 392 N against ext-6c's 5600 N and int-a's 2400 N allowed; 2 kg in
 // water is 19.6 N against hyd-s's 120 N allowed and 10 kg is 98 N against hyd-m's
@@ -174,7 +175,7 @@ func matrixPlanBody(a matrixAircraft, f matrixFacility) string {
 // checkMatrixReport checks one balance's load report over the 21-point sweep: every
 // point present at its α, each at or under 1/safety factor (1e-9 relative) when
 // within is set, the worst point and the safe dynamic pressure consistent.
-func checkMatrixReport(t *testing.T, r *facilities.LoadReport, q float64, within bool) {
+func checkMatrixReport(t *testing.T, r *loads.Report, q float64, within bool) {
 	t.Helper()
 	alphas := matrixAlphas()
 	if len(r.Points) != len(alphas) {

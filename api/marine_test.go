@@ -13,6 +13,7 @@ import (
 
 	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
 
 // TestMarineExamplesPlan plans each demo vessel (Tarn A2, Brisa F7) in each demo
@@ -128,11 +129,11 @@ func TestMarineLoads(t *testing.T) {
 	out, _ := io.ReadAll(resp.Body)
 	require.Equal(t, http.StatusOK, resp.StatusCode, "%s", out)
 	var got struct {
-		Test     map[string]any       `json:"test"`
-		Mismatch map[string]any       `json:"mismatch"`
-		Buoyancy *facilities.Buoyancy `json:"buoyancy"`
-		Cautions []string             `json:"cautions"`
-		Flight   map[string]any       `json:"flight"`
+		Test     map[string]any  `json:"test"`
+		Mismatch map[string]any  `json:"mismatch"`
+		Buoyancy *loads.Buoyancy `json:"buoyancy"`
+		Cautions []string        `json:"cautions"`
+		Flight   map[string]any  `json:"flight"`
 	}
 	require.NoError(t, json.Unmarshal(out, &got))
 	assert.Contains(t, got.Test, "cavitation")

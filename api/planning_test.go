@@ -9,6 +9,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"regexp"
+	"scalematch/internal/loads"
 	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
@@ -431,7 +432,7 @@ func TestPlanMatchedAndCautions(t *testing.T) {
 			assert.Greater(t, m.MachTolerance, 0.0)
 			assert.Equal(t, *m.MachDifference <= m.MachTolerance*(1+1e-9) && *m.MachDifference >= -m.MachTolerance*(1+1e-9), *m.MachMatched)
 			assert.Equal(t, m.ReynoldsRatio >= 0.999 && m.ReynoldsRatio <= 1.001, *m.ReynoldsMatched)
-			assert.Contains(t, p.Cautions, facilities.CautionStaticLoads)
+			assert.Contains(t, p.Cautions, loads.CautionStaticLoads)
 			assert.Equal(t, facilities.CautionEstimate, p.Cautions[0])
 		})
 	}

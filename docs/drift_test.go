@@ -328,7 +328,7 @@ func TestDocFields(t *testing.T) {
 	// LoadsValue, an object or a list of reports, in the loads answer).
 	roots := []string{"schema.PlanRequest", "schema.PlanResponse", "schema.LoadsRequest", "schema.LoadsResponse",
 		"schema.ConditionsRequest", "schema.ConditionsResponse", "schema.GroupsRequest", "schema.GroupsResponse",
-		"facilities.Facility", "facilities.LoadReport", "campaign.Request", "campaign.Result"}
+		"facilities.Facility", "loads.Report", "campaign.Request", "campaign.Result"}
 	fileExt := map[string]bool{"db": true, "tsv": true, "py": true, "sh": true, "md": true, "json": true, "go": true, "svg": true, "yaml": true, "png": true}
 	checked := 0
 	for _, doc := range documents {
@@ -347,7 +347,7 @@ func TestDocFields(t *testing.T) {
 				found = found || resolve(r, path)
 			}
 			if !found && path[0] == "loads" {
-				found = resolve("facilities.LoadReport", path[1:])
+				found = resolve("loads.Report", path[1:])
 			}
 			checked++
 			assert.True(t, found, "%s names `%s`, which no request, answer or facility field is (docs/swagger.json)", doc, m[1])

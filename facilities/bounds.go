@@ -102,23 +102,10 @@ var (
 	// BoundMinutes bounds the operations' minutes per run and per change, min
 	// (one week).
 	BoundMinutes = Bound{Min: 0, Max: 10080, Unit: "min"}
-	// BoundModelMass bounds installation.model_mass, kg.
-	BoundModelMass = Bound{Min: 0, Max: 1e5, Unit: "kg"}
-	// BoundOffset bounds each installation offset, m.
-	BoundOffset = Bound{Min: -100, Max: 100, Unit: "m"}
-	// BoundLoadFraction bounds installation.load_fraction, the share of the
-	// allowed load (rating ÷ safety factor) a plan or check may use.
-	BoundLoadFraction = Bound{Min: 0, Max: 1, MinExclusive: true}
-	// BoundResolutionCoefficient bounds a required 2σ resolution of a
-	// coefficient other than C_D (dimensionless).
-	BoundResolutionCoefficient = Bound{Min: 0, Max: 1, MinExclusive: true}
-	// BoundResolutionCounts bounds the required 2σ resolution of C_D in drag
-	// counts (1 count = 0.0001).
-	BoundResolutionCounts = Bound{Min: 0, Max: 10000, MinExclusive: true}
 )
 
-// Bounds returns the documented range of every number of the facility record and
-// the installation, keyed "schema.field" by the OpenAPI schema names
+// Bounds returns the documented range of every number of the facility record,
+// keyed "schema.field" by the OpenAPI schema names
 // ("facilities.TestSection.width"); a Range field's bound applies to its min and
 // max. docs/openapi3 publishes them; TestBoundsCoverEveryNumber checks that every
 // number of a request has one.
@@ -154,17 +141,6 @@ func Bounds() map[string]Bound {
 		"facilities.Operations.minutes_per_run":                BoundMinutes,
 		"facilities.Operations.minutes_per_pressure_change":    BoundMinutes,
 		"facilities.Operations.minutes_per_temperature_change": BoundMinutes,
-		"facilities.Installation.model_mass":                   BoundModelMass,
-		"facilities.Installation.load_fraction":                BoundLoadFraction,
-		"facilities.Resolution.cl":                             BoundResolutionCoefficient,
-		"facilities.Resolution.cd_counts":                      BoundResolutionCounts,
-		"facilities.Resolution.cm":                             BoundResolutionCoefficient,
-		"facilities.Resolution.cy":                             BoundResolutionCoefficient,
-		"facilities.Resolution.cl_roll":                        BoundResolutionCoefficient,
-		"facilities.Resolution.cn":                             BoundResolutionCoefficient,
-		"facilities.Installation.model_volume":                 BoundModelVolume,
-		"facilities.Offset.x":                                  BoundOffset,
-		"facilities.Offset.z":                                  BoundOffset,
 		"facilities.GasProperties.molar_mass":                  {Min: gasMinMolarMass, Max: gasMaxMolarMass, Unit: "kg/mol"},
 		"facilities.GasProperties.gamma":                       {Min: 1, Max: gasMaxGamma, MinExclusive: true},
 		"facilities.GasProperties.viscosity_reference":         {Min: 0, Max: gasMaxViscosity, MinExclusive: true, Unit: "Pa·s"},

@@ -155,16 +155,8 @@ func (a *Accuracy) Of(i int, l *Limits) (float64, bool) {
 	return 0, false
 }
 
-// Load returns the 2σ uncertainty of every component (N, N·m; Of) and which
-// are known.
-func (a *Accuracy) Load(l *Limits) (d Load, known [6]bool) {
-	for k := range d {
-		d[k], known[k] = a.Of(k, l)
-	}
-	return d, known
-}
-
-// limitsArray returns the components of l in Load index order.
+// limitsArray returns the components of l in the order of the load vector
+// (normal, axial, side, rolling, pitching, yawing moment; loads.Index*).
 func limitsArray(l *Limits) [6]*float64 {
 	return [6]*float64{l.Normal, l.Axial, l.Side, l.RollingMoment, l.PitchingMoment, l.YawingMoment}
 }

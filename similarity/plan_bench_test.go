@@ -3,7 +3,6 @@ package similarity_test
 import (
 	"testing"
 
-	"scalematch/facilities"
 	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
@@ -77,7 +76,7 @@ func BenchmarkPlanWithBalance21(b *testing.B) {
 	art.Aero = similarity.Aero{LiftSlope: 4.9, ZeroLiftAlpha: -1.6, CLMax: 1.25, CDMin: 0.022, CLAtCDMin: 0.14,
 		InducedDragFactor: 0.057, CmZero: 0.03, CmSlope: -1.05}
 	fs := planFlight(b, &art, 12000, 0.78, 0)
-	in := facilities.Installation{BalanceID: "int-b1", ModelMass: 20}
+	in := loads.Installation{BalanceID: "int-b1", ModelMass: 20}
 	sweep := similarity.Sweep{From: -4, To: 16, Step: 1}
 	b.ReportAllocs()
 	b.ResetTimer()

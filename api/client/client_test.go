@@ -7,6 +7,7 @@ import (
 	"math"
 	"net/http/httptest"
 	"reflect"
+	"scalematch/internal/loads"
 	"scalematch/internal/testfixture"
 	"scalematch/internal/testfixture/testsite"
 	"slices"
@@ -143,7 +144,7 @@ func TestLoads(t *testing.T) {
 				if out.Loads.One == nil || out.Loads.All != nil {
 					t.Fatalf("want one report, got %+v", out.Loads)
 				}
-				reports = []facilities.LoadReport{*out.Loads.One}
+				reports = []loads.Report{*out.Loads.One}
 			}
 			var ids []string
 			for _, rep := range reports {

@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -129,7 +130,7 @@ type PlanRequest struct {
 	Model similarity.Model `json:"model"`
 	// Installation places the model on the balance: balance_id ("" lets the planner
 	// choose), offsets in m at model scale, model_mass in kg.
-	Installation facilities.Installation `json:"installation"`
+	Installation loads.Installation `json:"installation"`
 	// Alpha is the angle-of-attack sweep in degrees: from, to, step (at most 2001
 	// points).
 	Alpha similarity.Sweep `json:"alpha"`
@@ -148,7 +149,7 @@ type PlanRequest struct {
 	// least q at which a balance resolves them (the constraint "resolution"),
 	// and the balance choice prefers the one that resolves them with the most
 	// margin (docs/loads.md). Absent: no requirement.
-	RequiredResolution *facilities.Resolution `json:"required_resolution,omitempty"`
+	RequiredResolution *loads.Resolution `json:"required_resolution,omitempty"`
 	// CondensationPeakMach is the highest local Mach number expected on the model
 	// at the test attitude (dimensionless, 0.1 to 5), for the condensation rule of
 	// nitrogen, air and custom gases with a critical point: the flow expanded to it
@@ -221,11 +222,11 @@ type PlanResponse struct {
 	// Loads is the balance load check over the α sweep at the test condition: forces
 	// in N and moments in N·m at the balance moment centre, wall corrections and
 	// weight included; null when the facility has no balance.
-	Loads *facilities.LoadReport `json:"loads"`
+	Loads *loads.Report `json:"loads"`
 	// Buoyancy is the model's weight, buoyancy and net weight in N in a water
 	// facility (volume m³, density kg/m³), with the volume given or estimated;
 	// absent in a gas facility.
-	Buoyancy *facilities.Buoyancy `json:"buoyancy,omitempty"`
+	Buoyancy *loads.Buoyancy `json:"buoyancy,omitempty"`
 	// ReynoldsEffects estimates the skin-friction drag change from the Reynolds
 	// mismatch (drag counts, 1 count = 0.0001) and whether to trip the boundary layer.
 	ReynoldsEffects *similarity.ReynoldsEffects `json:"reynolds_effects"`
@@ -276,7 +277,7 @@ type LoadsRequest struct {
 	Model LoadsModel `json:"model"`
 	// Installation places the model on the balance; without balance_id every
 	// balance of the facility is checked.
-	Installation facilities.Installation `json:"installation"`
+	Installation loads.Installation `json:"installation"`
 	// Alpha is the angle-of-attack sweep in degrees.
 	Alpha similarity.Sweep `json:"alpha"`
 	// Beta is an optional sideslip sweep in degrees; nil: β = 0.
@@ -287,7 +288,7 @@ type LoadsRequest struct {
 	// RequiredResolution is the coarsest 2σ uncertainty of each coefficient the
 	// test accepts (see PlanRequest.RequiredResolution): each load report says
 	// whether its balance resolves it, and resolution_state sums it up.
-	RequiredResolution *facilities.Resolution `json:"required_resolution,omitempty"`
+	RequiredResolution *loads.Resolution `json:"required_resolution,omitempty"`
 }
 
 // LoadsModel is the model of a load check: its scale, model length over full-scale
@@ -341,11 +342,11 @@ type LoadsResponse struct {
 	// Loads is a load report (object) or a list of them (array): forces in N,
 	// moments in N·m at the balance moment centre, utilisation as a fraction of the
 	// rating, and max_safe_dynamic_pressure in Pa: where the worst point reaches the
-	// allowed load by this estimate (not a safe limit; see facilities.LoadReport).
+	// allowed load by this estimate (not a safe limit; see loads.Report).
 	Loads LoadsValue `json:"loads" swaggertype:"object"`
 	// Buoyancy is the model's weight, buoyancy and net weight in N in a water
 	// facility (volume m³, density kg/m³); absent in a gas facility.
-	Buoyancy *facilities.Buoyancy `json:"buoyancy,omitempty"`
+	Buoyancy *loads.Buoyancy `json:"buoyancy,omitempty"`
 	// Warnings are notes on the inputs and models.
 	Warnings []string `json:"warnings"`
 	// Cautions are the safety cautions.
@@ -355,8 +356,8 @@ type LoadsResponse struct {
 // LoadsValue holds the loads of a load check: One when a balance was named, else
 // All, one report per balance. In JSON it is an object or an array.
 type LoadsValue struct {
-	One *facilities.LoadReport
-	All []facilities.LoadReport
+	One *loads.Report
+	All []loads.Report
 }
 
 // MarshalJSON writes One as an object, or All as an array.
@@ -378,7 +379,7 @@ func (v *LoadsValue) UnmarshalJSON(b []byte) error {
 		return json.Unmarshal(b, &v.All)
 	}
 	v.All = nil
-	v.One = new(facilities.LoadReport)
+	v.One = new(loads.Report)
 	return json.Unmarshal(b, v.One)
 }
 

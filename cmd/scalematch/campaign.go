@@ -14,9 +14,9 @@ import (
 	"github.com/spf13/cobra"
 	"golang.org/x/term"
 
-	"scalematch/facilities"
 	"scalematch/internal/app"
 	"scalematch/internal/campaign"
+	"scalematch/internal/loads"
 	"scalematch/internal/unitjson"
 )
 
@@ -155,7 +155,7 @@ func isTerminal(w io.Writer) bool {
 // does_not_fit, over_allowed_load, not_verified, within_allowed_loads; within
 // when none is served.
 func worstVerdict(res *campaign.Result) string {
-	worst := facilities.VerdictWithin
+	worst := loads.VerdictWithin
 	for _, c := range res.Conditions {
 		if c.Plan != nil && verdictExit(c.Plan.Verdict) > verdictExit(worst) {
 			worst = c.Plan.Verdict

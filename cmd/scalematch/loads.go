@@ -8,7 +8,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"scalematch/api/schema"
-	"scalematch/facilities"
+	"scalematch/internal/loads"
 	"scalematch/internal/unitjson"
 )
 
@@ -139,7 +139,7 @@ func writeLoadCheck(w io.Writer, r *schema.LoadsResponse, us, rows bool) error {
 
 	reports := r.Loads.All
 	if r.Loads.One != nil {
-		reports = []facilities.LoadReport{*r.Loads.One}
+		reports = []loads.Report{*r.Loads.One}
 	}
 	for _, rep := range reports {
 		writeLoads(w, u, rep)

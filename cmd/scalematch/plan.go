@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -63,7 +64,7 @@ func (o *computeOptions) bind(cmd *cobra.Command, withData bool, jsonOf string) 
 
 // override applies --load-fraction and --resolution to a request's installation
 // and required resolution.
-func (o *computeOptions) override(cmd *cobra.Command, in *facilities.Installation, res **facilities.Resolution) error {
+func (o *computeOptions) override(cmd *cobra.Command, in *loads.Installation, res **loads.Resolution) error {
 	if cmd.Flags().Changed("load-fraction") {
 		v := o.loadFraction
 		in.LoadFraction = &v
@@ -81,8 +82,8 @@ func (o *computeOptions) override(cmd *cobra.Command, in *facilities.Installatio
 
 // parseResolution reads a --resolution value: name=value pairs separated by
 // commas, the names of required_resolution.
-func parseResolution(s string) (*facilities.Resolution, error) {
-	r := &facilities.Resolution{}
+func parseResolution(s string) (*loads.Resolution, error) {
+	r := &loads.Resolution{}
 	for _, kv := range strings.Split(s, ",") {
 		k, v, ok := strings.Cut(strings.TrimSpace(kv), "=")
 		if !ok {
@@ -622,7 +623,7 @@ func writeCorrectionPoints(w io.Writer, c facilities.Corrections) {
 }
 
 // writeLoads prints one balance's load check: a line per test point.
-func writeLoads(w io.Writer, u units, r facilities.LoadReport) {
+func writeLoads(w io.Writer, u units, r loads.Report) {
 	section(w, fmt.Sprintf("Loads on balance %s at q %s (safety factor %.3g: at most %.1f %% of any rating)",
 		r.BalanceID, u.q(r.DynamicPressure, "Pa", 5), r.SafetyFactor, 100*r.AllowedUtilization))
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)

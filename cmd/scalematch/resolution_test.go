@@ -3,12 +3,11 @@ package main
 import (
 	"encoding/json"
 	"fmt"
+	"scalematch/internal/loads"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
-
-	"scalematch/facilities"
 )
 
 // TestLoadsResolutionFlags: --resolution and --load-fraction set the request's
@@ -23,10 +22,10 @@ func TestLoadsResolutionFlags(t *testing.T) {
 	var resp struct {
 		ResolutionState string  `json:"resolution_state"`
 		LoadFraction    float64 `json:"load_fraction"`
-		Loads           facilities.LoadReport
+		Loads           loads.Report
 	}
 	require.NoError(t, json.Unmarshal([]byte(out), &resp), "%v", err)
-	assert.Equal(t, facilities.ResolutionResolved, resp.ResolutionState)
+	assert.Equal(t, loads.ResolutionResolved, resp.ResolutionState)
 	assert.Equal(t, 0.9, resp.LoadFraction)
 	require.NotNil(t, resp.Loads.Resolution)
 	assert.Equal(t, 40.0, *resp.Loads.Resolution.Required.CDCounts)

@@ -7,6 +7,7 @@ import (
 	"text/tabwriter"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
 
 // Exit statuses of scalematch. A load check (scalematch loads) and a plan
@@ -28,11 +29,11 @@ const (
 // verdictExit returns the exit status of a verdict.
 func verdictExit(v string) int {
 	switch v {
-	case facilities.VerdictWithin:
+	case loads.VerdictWithin:
 		return exitOK
-	case facilities.VerdictOver:
+	case loads.VerdictOver:
 		return exitOverAllowed
-	case facilities.VerdictDoesNotFit:
+	case loads.VerdictDoesNotFit:
 		return exitDoesNotFit
 	}
 	return exitNotVerified
@@ -60,11 +61,11 @@ func gate(verdict string) error {
 // verdictWords says a verdict to a reader.
 func verdictWords(v string) string {
 	switch v {
-	case facilities.VerdictWithin:
+	case loads.VerdictWithin:
 		return "within the allowed loads (rating ÷ safety factor) on every rated component and gauge row, by this estimate"
-	case facilities.VerdictOver:
+	case loads.VerdictOver:
 		return "OVER the allowed load: do not run the points marked !"
-	case facilities.VerdictDoesNotFit:
+	case loads.VerdictDoesNotFit:
 		return "DOES NOT FIT the test section: do not install the model"
 	}
 	return "NOT VERIFIED: a loaded component has no rating, the weight was left out, or there is no balance"
@@ -85,7 +86,7 @@ func writeVerdict(w io.Writer, verdict string, broken []facilities.Violation) {
 // writeRows prints every component and gauge row of every point of a report:
 // load, rating, allowed load and share of the allowed load, the limiting row
 // marked *, a row over its allowed load marked !.
-func writeRows(w io.Writer, r facilities.LoadReport) {
+func writeRows(w io.Writer, r loads.Report) {
 	fmt.Fprintf(w, "  every component and gauge row of balance %s (forces N, moments N·m; * limiting, ! over the allowed load)\n", r.BalanceID)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "  α °\tβ °\trow\tload\trating\tallowed\tof allowed %%\t\n")
@@ -120,10 +121,10 @@ func writeRows(w io.Writer, r facilities.LoadReport) {
 func writeResolutionState(w io.Writer, state string, fraction float64) {
 	if state != "" {
 		words := map[string]string{
-			facilities.ResolutionResolved:        "a balance within its allowed loads resolves the required resolution at every point",
-			facilities.ResolutionTooCoarse:       "the balance is too coarse for the required resolution at this dynamic pressure",
-			facilities.ResolutionAccuracyUnknown: "the balance gives no accuracy for a coefficient asked",
-			facilities.ResolutionNoBalance:       "no balance of the facility can both keep within its allowed loads and resolve the test",
+			loads.ResolutionResolved:        "a balance within its allowed loads resolves the required resolution at every point",
+			loads.ResolutionTooCoarse:       "the balance is too coarse for the required resolution at this dynamic pressure",
+			loads.ResolutionAccuracyUnknown: "the balance gives no accuracy for a coefficient asked",
+			loads.ResolutionNoBalance:       "no balance of the facility can both keep within its allowed loads and resolve the test",
 		}[state]
 		fmt.Fprintf(w, "Resolution: %s (%s)\n", state, words)
 	}
@@ -134,7 +135,7 @@ func writeResolutionState(w io.Writer, state string, fraction float64) {
 
 // writeUncertainty prints the range over the sweep of the coefficients' 2σ
 // uncertainty from the balance's accuracy, or that the balance gives none.
-func writeUncertainty(w io.Writer, r facilities.LoadReport) {
+func writeUncertainty(w io.Writer, r loads.Report) {
 	if len(r.Uncertainty) == 0 {
 		fmt.Fprintf(w, "  resolution: not known (balance %s gives no accuracy)\n", r.BalanceID)
 		return
@@ -152,7 +153,7 @@ func writeUncertainty(w io.Writer, r facilities.LoadReport) {
 	}
 	if rc := r.Resolution; rc != nil {
 		switch rc.State {
-		case facilities.ResolutionAccuracyUnknown:
+		case loads.ResolutionAccuracyUnknown:
 			fmt.Fprintf(w, "  required resolution: %s (%s)\n", rc.State, strings.Join(rc.Unknown, ", "))
 		default:
 			fmt.Fprintf(w, "  required resolution: %s; least dynamic pressure %.5g Pa (%s at α %.4g°), margin %.3g\n",

@@ -9,6 +9,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
 
 // demoAircraft are the demo world's four aircraft (full scale: MAC m, S m², span
@@ -70,10 +71,10 @@ func TestVerdictExitCodes(t *testing.T) {
 							assert.NoError(t, err)
 						}
 						if size.ofWidth > 1 {
-							assert.Equal(t, facilities.VerdictDoesNotFit, resp.Verdict)
+							assert.Equal(t, loads.VerdictDoesNotFit, resp.Verdict)
 						}
 						if mass == "" {
-							assert.NotEqual(t, facilities.VerdictWithin, resp.Verdict)
+							assert.NotEqual(t, loads.VerdictWithin, resp.Verdict)
 						}
 						seen[resp.Verdict]++
 					})
@@ -82,7 +83,7 @@ func TestVerdictExitCodes(t *testing.T) {
 		}
 	}
 	t.Logf("verdicts over the demo matrix: %v", seen)
-	for _, v := range []string{facilities.VerdictWithin, facilities.VerdictNotVerified, facilities.VerdictOver, facilities.VerdictDoesNotFit} {
+	for _, v := range []string{loads.VerdictWithin, loads.VerdictNotVerified, loads.VerdictOver, loads.VerdictDoesNotFit} {
 		assert.Positive(t, seen[v], "the demo matrix reaches %s", v)
 	}
 }

@@ -127,12 +127,12 @@ var propertyOverrides = map[string]propertyOverride{
 	// schema.LoadsValue: one report when a balance was named, else one per balance.
 	"schema.LoadsResponse.loads": {schema: func() *openapi3.Schema {
 		return &openapi3.Schema{OneOf: openapi3.SchemaRefs{
-			ref("facilities.LoadReport"),
-			{Value: &openapi3.Schema{Type: typ("array"), Items: ref("facilities.LoadReport")}},
+			ref("loads.Report"),
+			{Value: &openapi3.Schema{Type: typ("array"), Items: ref("loads.Report")}},
 		}}
 	}},
-	// A facilities.Ceiling without a bound is written as null.
-	"facilities.LoadReport.max_safe_dynamic_pressure": {nullable: true},
+	// A loads.Ceiling without a bound is written as null.
+	"loads.Report.max_safe_dynamic_pressure": {nullable: true},
 }
 
 // zeroWhenAbsent lists the bounded numbers, keyed "schema.property", that are

@@ -4,6 +4,7 @@ import (
 	"maps"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -18,11 +19,12 @@ var (
 
 // Bounds returns the documented range of every number a request may carry, keyed
 // "schema.field" by OpenAPI schema name ("schema.TestSettings.mach",
-// "facilities.TestSection.width"): the facilities', the similarity package's and
-// the API's own. docs/openapi3 writes them into the OpenAPI document as minimum
+// "facilities.TestSection.width"): the facilities', the loads', the similarity
+// package's and the API's own. docs/openapi3 writes them into the OpenAPI document as minimum
 // and maximum.
 func Bounds() map[string]facilities.Bound {
 	m := facilities.Bounds()
+	maps.Copy(m, loads.Bounds())
 	maps.Copy(m, similarity.Bounds())
 	for _, schema := range []string{"schema.TestSettings", "schema.ConditionsRequest"} {
 		m[schema+".mach"] = BoundSettingMach

@@ -190,7 +190,7 @@ func checkArticle(a *similarity.Article, fe *check.Fields) {
 
 // checkInstallation adds the problems of an installation in facility f (nil when
 // unresolved) to fe.
-func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *check.Fields) {
+func checkInstallation(in *loads.Installation, f *facilities.Facility, fe *check.Fields) {
 	*fe = append(*fe, in.FieldErrors()...)
 	if f == nil || in.BalanceID == "" {
 		return
@@ -211,7 +211,7 @@ func checkInstallation(in *facilities.Installation, f *facilities.Facility, fe *
 
 // checkResolution adds the problems of a required resolution (nil: none asked)
 // to fe.
-func checkResolution(r *facilities.Resolution, fe *check.Fields) {
+func checkResolution(r *loads.Resolution, fe *check.Fields) {
 	if r != nil {
 		*fe = append(*fe, r.FieldErrors("required_resolution")...)
 	}
@@ -316,7 +316,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	res, err := similarity.Plan(prob, nil)
 	// unresolved: no balance can both carry the loads and resolve the required
 	// resolution at any setting; the plan is then made without the resolution
-	// and says so (facilities.ResolutionNoBalance).
+	// and says so (loads.ResolutionNoBalance).
 	unresolved := false
 	if err != nil && prob.LoadFloor != nil && check.ErrorCode(err) == check.CodeUnprocessable {
 		prob.LoadFloor = nil
@@ -353,7 +353,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 		return nil, err
 	}
 	if unresolved {
-		lr.ResolutionState = facilities.ResolutionNoBalance
+		lr.ResolutionState = loads.ResolutionNoBalance
 	}
 	out.Corrections, out.Verdict, out.FitBroken = lr.Corrections, lr.Verdict, lr.FitBroken
 	out.LoadFraction, out.ResolutionState = req.Installation.Fraction(), lr.ResolutionState
@@ -387,7 +387,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	if out.Loads != nil {
 		// The plan's cautions are facilities.Cautions(f) already: only the load
 		// report's caution can be new, so the facility's are not written again.
-		out.Cautions = appendUnique(out.Cautions, facilities.Cautions(nil, *out.Loads)...)
+		out.Cautions = appendUnique(out.Cautions, loads.Cautions(nil, *out.Loads)...)
 		if f.Medium.IsLiquid() {
 			out.Cautions = appendUnique(out.Cautions, facilities.CautionWaterLoads)
 		}
@@ -396,7 +396,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 		out.Buoyancy = b
 		out.Warnings = append(out.Warnings, b.Note())
 	}
-	out.Cautions = appendUnique(out.Cautions, loads.Cautions(&lr)...)
+	out.Cautions = appendUnique(out.Cautions, lr.Cautions()...)
 	medium := f.Medium.Kind
 	re, err := similarity.ReynoldsEffect(&req.Article, res.Flight.Reynolds, res.Flight.Mach, res.Test.Reynolds, res.Test.Mach, medium)
 	if err != nil {
@@ -437,9 +437,9 @@ func planInputs(top string) string {
 }
 
 // appendCautions adds the cautions of facility f and its load reports
-// (facilities.Cautions), once each.
-func appendCautions(c []string, f *facilities.Facility, reports ...facilities.LoadReport) []string {
-	return appendUnique(c, facilities.Cautions(f, reports...)...)
+// (loads.Cautions), once each.
+func appendCautions(c []string, f *facilities.Facility, reports ...loads.Report) []string {
+	return appendUnique(c, loads.Cautions(f, reports...)...)
 }
 
 // appendUnique appends the notes of add that list does not hold yet, in order.
@@ -565,15 +565,15 @@ func resolveFullScale(fl *similarity.Flight, m *similarity.Marine, l float64) (s
 }
 
 // modelBuoyancy returns the weight, buoyancy and net weight of the model of the
-// given scale in water facility f (facilities.BuoyancyOf), with the model's frontal
+// given scale in water facility f (loads.BuoyancyOf), with the model's frontal
 // area and overall length (the reference length when the article gives none) for
 // the volume estimate; nil in a gas facility.
-func modelBuoyancy(f *facilities.Facility, a *similarity.Article, in facilities.Installation, scale float64) *facilities.Buoyancy {
+func modelBuoyancy(f *facilities.Facility, a *similarity.Article, in loads.Installation, scale float64) *loads.Buoyancy {
 	length := a.Length
 	if length == 0 {
 		length = a.ReferenceLength
 	}
-	return facilities.BuoyancyOf(f, in, a.FrontalArea*scale*scale, length*scale)
+	return loads.BuoyancyOf(f, in, a.FrontalArea*scale*scale, length*scale)
 }
 
 // MaxLabel is the longest label a request may give, in bytes.

@@ -7,8 +7,8 @@ import (
 	"strconv"
 	"strings"
 
-	"scalematch/facilities"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 )
 
 // CheckFinite returns nil when every number in v (a response, walked by its JSON
@@ -35,8 +35,8 @@ func CheckFinite(v any, input func(top string) string) error {
 		Limits:  []string{"finite_result"}}
 }
 
-// ceilingType is facilities.Ceiling, whose +Inf is no bound (JSON null).
-var ceilingType = reflect.TypeFor[facilities.Ceiling]()
+// ceilingType is loads.Ceiling, whose +Inf is no bound (JSON null).
+var ceilingType = reflect.TypeFor[loads.Ceiling]()
 
 // finite reports whether the float v is a finite number or a Ceiling's +Inf.
 func finite(v reflect.Value) bool {

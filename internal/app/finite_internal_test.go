@@ -3,12 +3,11 @@ package app
 import (
 	"math"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
-
-	"scalematch/facilities"
 )
 
 func TestCheckFinite(t *testing.T) {
@@ -67,10 +66,10 @@ func TestCollapseWarnings(t *testing.T) {
 }
 
 // TestCheckFiniteCeiling: a load report without a bound on the dynamic pressure
-// (facilities.Ceiling +Inf, written as null) is finite; a NaN there is not.
+// (loads.Ceiling +Inf, written as null) is finite; a NaN there is not.
 func TestCheckFiniteCeiling(t *testing.T) {
-	r := facilities.LoadReport{MaxSafeDynamicPressure: facilities.Ceiling(math.Inf(1))}
+	r := loads.Report{MaxSafeDynamicPressure: loads.Ceiling(math.Inf(1))}
 	require.NoError(t, CheckFinite(&r, nil))
-	r.MaxSafeDynamicPressure = facilities.Ceiling(math.NaN())
+	r.MaxSafeDynamicPressure = loads.Ceiling(math.NaN())
 	require.Error(t, CheckFinite(&r, nil))
 }

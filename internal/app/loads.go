@@ -113,7 +113,7 @@ func (p *Planner) Loads(ctx context.Context, req *schema.LoadsRequest) (*schema.
 		out.Buoyancy = b
 		out.Warnings = append(out.Warnings, b.Note())
 	}
-	out.Cautions = appendUnique(out.Cautions, loads.Cautions(&res)...)
+	out.Cautions = appendUnique(out.Cautions, res.Cautions()...)
 	out.Warnings = collapseWarnings(out.Warnings)
 	if err := CheckFinite(out, loadsInputs); err != nil {
 		return nil, err
@@ -139,7 +139,7 @@ func loadsInputs(top string) string {
 
 // overloadWarning says that a balance would be loaded beyond its allowed load
 // (rating ÷ safety factor) and that those points must not be run.
-func overloadWarning(r facilities.LoadReport) string {
+func overloadWarning(r loads.Report) string {
 	return fmt.Sprintf("balance %s: %.0f %% of its %s rating at α %.4g°, above the %.0f %% allowed (rating ÷ safety factor): do not run the points above the allowed load",
 		r.BalanceID, 100*r.MaxUtilization, r.Limiting.Component, r.Limiting.Alpha, 100*r.AllowedUtilization)
 }

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"strings"
 
 	"scalematch/api/schema"
@@ -74,20 +75,20 @@ func noChart(name string, plan *schema.PlanResponse, why string) error {
 }
 
 // BalanceRatings compiles the ratings of facility f's balance id.
-func BalanceRatings(f *facilities.Facility, id string) (facilities.Ratings, error) {
+func BalanceRatings(f *facilities.Facility, id string) (loads.Ratings, error) {
 	for i := range f.Balances {
 		if f.Balances[i].ID == id {
-			return f.BalanceRatings(i)
+			return loads.BalanceRatings(f, i)
 		}
 	}
-	return facilities.Ratings{}, &check.Error{Code: check.CodeNotFound,
+	return loads.Ratings{}, &check.Error{Code: check.CodeNotFound,
 		Message: fmt.Sprintf("facility %s has no balance %q", f.ID, id)}
 }
 
 // DecodePlan reads a stored plan's JSON body. A load report's
 // max_safe_dynamic_pressure written as null (no rated load grows with the
 // dynamic pressure) is read back as +Inf, as the planner answered it
-// (facilities.Ceiling).
+// (loads.Ceiling).
 func DecodePlan(body []byte) (*schema.PlanResponse, error) {
 	var p schema.PlanResponse
 	if err := json.Unmarshal(body, &p); err != nil {

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"os"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"slices"
 	"strings"
 	"testing"
@@ -34,10 +35,10 @@ func TestPlanRequiredResolution(t *testing.T) {
 			`"required_resolution": {"cd_counts": 20, "cl": 0.01}, "alpha"`, 1)
 		resp, err := p.Plan(context.Background(), decodePlan(t, body))
 		require.NoError(t, err)
-		assert.Equal(t, facilities.ResolutionResolved, resp.ResolutionState)
+		assert.Equal(t, loads.ResolutionResolved, resp.ResolutionState)
 		require.NotNil(t, resp.Loads)
 		require.NotNil(t, resp.Loads.Resolution)
-		assert.Equal(t, facilities.ResolutionResolved, resp.Loads.Resolution.State)
+		assert.Equal(t, loads.ResolutionResolved, resp.Loads.Resolution.State)
 		assert.GreaterOrEqual(t, resp.Loads.Resolution.Margin, 1-1e-9)
 		require.Len(t, resp.Loads.Uncertainty, len(resp.Loads.Points))
 		for _, u := range resp.Loads.Uncertainty {
@@ -51,8 +52,8 @@ func TestPlanRequiredResolution(t *testing.T) {
 			`"required_resolution": {"cd_counts": 0.5}, "alpha"`, 1)
 		resp, err := p.Plan(context.Background(), decodePlan(t, body))
 		require.NoError(t, err, "the plan is made without the resolution and says so")
-		assert.Equal(t, facilities.ResolutionNoBalance, resp.ResolutionState)
-		assert.Contains(t, resp.Warnings, facilities.ResolutionNoBalanceWarning)
+		assert.Equal(t, loads.ResolutionNoBalance, resp.ResolutionState)
+		assert.Contains(t, resp.Warnings, loads.ResolutionNoBalanceWarning)
 		assert.False(t, slices.ContainsFunc(resp.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintResolution }))
 	})
 }
@@ -128,10 +129,10 @@ func TestPlanResolutionWater(t *testing.T) {
 	plain, err := p.Plan(context.Background(), decodePlan(t, string(b)))
 	require.NoError(t, err)
 	req := decodePlan(t, string(b))
-	req.RequiredResolution = &facilities.Resolution{CDCounts: fptr(200)}
+	req.RequiredResolution = &loads.Resolution{CDCounts: fptr(200)}
 	resp, err := p.Plan(context.Background(), req)
 	require.NoError(t, err)
-	assert.Equal(t, facilities.ResolutionResolved, resp.ResolutionState)
+	assert.Equal(t, loads.ResolutionResolved, resp.ResolutionState)
 	rc := resp.Loads.Resolution
 	require.NotNil(t, rc)
 	assert.Less(t, plain.Test.DynamicPressure, rc.MinDynamicPressure, "the floor is above the plan made without it")

@@ -6,6 +6,7 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -41,7 +42,7 @@ func CheckArticle(a *similarity.Article, fe *check.Fields) { checkArticle(a, fe)
 // CheckInstallation adds the problems of an installation in facility f (nil when
 // unresolved) to fe, under prefix ("facilities[0]" gives
 // "facilities[0].installation.balance_id").
-func CheckInstallation(in *facilities.Installation, f *facilities.Facility, prefix string, fe *check.Fields) {
+func CheckInstallation(in *loads.Installation, f *facilities.Facility, prefix string, fe *check.Fields) {
 	var own check.Fields
 	checkInstallation(in, f, &own)
 	for _, e := range own {

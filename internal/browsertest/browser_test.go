@@ -12,6 +12,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"scalematch/internal/loads"
 	"scalematch/internal/testfixture/testsite"
 	"strings"
 	"sync"
@@ -25,7 +26,6 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api/schema"
-	"scalematch/facilities"
 )
 
 // chromium returns the browser to drive, or skips the test naming what is
@@ -242,7 +242,7 @@ func TestPagesInBrowser(t *testing.T) {
 		// What POST /v1/loads answers for the same request: the page must agree.
 		want := loadsAnswer(t, s.URL)
 		fits := step(t, ctx, chromedp.Text("#verdict-fits"))
-		loads := step(t, ctx, chromedp.Text("#verdict-loads"))
+		loadsText := step(t, ctx, chromedp.Text("#verdict-loads"))
 		if len(want.Violations) == 0 && len(want.FitBroken) == 0 {
 			assert.Contains(t, strings.ToLower(fits), "yes")
 		} else {
@@ -250,12 +250,12 @@ func TestPagesInBrowser(t *testing.T) {
 		}
 		require.NotEmpty(t, want.Verdict)
 		assert.Contains(t, step(t, ctx, chromedp.Text("#verdict-word")), want.Verdict, "the page shows the answer's verdict")
-		if want.Loads.One.Verdict == facilities.VerdictWithin {
-			assert.True(t, strings.HasPrefix(strings.ToLower(loads), "yes"), "%q", loads)
+		if want.Loads.One.Verdict == loads.VerdictWithin {
+			assert.True(t, strings.HasPrefix(strings.ToLower(loadsText), "yes"), "%q", loadsText)
 		} else {
-			assert.True(t, strings.HasPrefix(strings.ToLower(loads), "no"), "%q", loads)
+			assert.True(t, strings.HasPrefix(strings.ToLower(loadsText), "no"), "%q", loadsText)
 		}
-		assert.Contains(t, loads, fmt.Sprintf("largest %.1f %%", 100*want.Loads.One.MaxUtilization))
+		assert.Contains(t, loadsText, fmt.Sprintf("largest %.1f %%", 100*want.Loads.One.MaxUtilization))
 		assert.Contains(t, step(t, ctx, chromedp.Text("#verdict-resolution")), "no balance resolution")
 		cells := step(t, ctx, chromedp.Evaluate[[][]string](`Array.from(document.querySelectorAll("table.loads tbody tr")).map(r => Array.from(r.cells).map(c => c.textContent.trim()))`))
 		require.Len(t, cells, len(want.Loads.One.Points), "one table row per α")

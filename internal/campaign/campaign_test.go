@@ -8,6 +8,7 @@ import (
 	"encoding/json"
 	"os"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"strings"
 	"testing"
 
@@ -81,7 +82,7 @@ func TestRunDemo(t *testing.T) {
 	}
 	assert.Equal(t, lowest, sm.LowestReynoldsRatio)
 	assert.Contains(t, res.Cautions, facilities.CautionEstimate)
-	assert.Contains(t, res.Cautions, facilities.CautionStaticLoads)
+	assert.Contains(t, res.Cautions, loads.CautionStaticLoads)
 	assert.Equal(t, "cruise", res.Conditions[0].Label)
 	assert.Equal(t, "0 m M0.3", res.Conditions[2].Label)
 

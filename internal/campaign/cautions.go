@@ -21,7 +21,7 @@ type cautions struct {
 
 type worstReport struct {
 	ci     int
-	report facilities.LoadReport
+	report loads.Report
 }
 
 func newCautions() *cautions {
@@ -30,7 +30,7 @@ func newCautions() *cautions {
 
 // add takes condition ci's load check in facility f (index key).
 func (c *cautions) add(f *facilities.Facility, key, ci int, lr *loads.Result) {
-	fixed := loads.Cautions(lr)
+	fixed := lr.Cautions()
 	c.mu.Lock()
 	defer c.mu.Unlock()
 	c.fixed = appendUniq(c.fixed, fixed...)
@@ -42,7 +42,7 @@ func (c *cautions) add(f *facilities.Facility, key, ci int, lr *loads.Result) {
 		c.over[key]++
 	}
 	w, ok := c.worst[key]
-	share := func(x facilities.LoadReport) float64 { return x.MaxUtilization / x.AllowedUtilization }
+	share := func(x loads.Report) float64 { return x.MaxUtilization / x.AllowedUtilization }
 	if !ok || share(r) > share(w.report) || share(r) == share(w.report) && ci < w.ci {
 		c.worst[key] = worstReport{ci: ci, report: r}
 	}
@@ -62,8 +62,8 @@ func (c *cautions) list(pr *prepared) []string {
 			out = appendUniq(out, facilities.Cautions(fc.f)...)
 			continue
 		}
-		for _, s := range facilities.Cautions(fc.f, w.report) {
-			if s == facilities.CautionEstimate || s == facilities.CautionStaticLoads || s == facilities.CautionWeightLeftOut {
+		for _, s := range loads.Cautions(fc.f, w.report) {
+			if s == facilities.CautionEstimate || s == loads.CautionStaticLoads || s == loads.CautionWeightLeftOut {
 				out = appendUniq(out, s)
 				continue
 			}

@@ -114,7 +114,7 @@ type FacilityChoice struct {
 	Facility *facilities.Facility `json:"facility,omitempty"`
 	// Installation places the model on the balance; balance_id "" lets the
 	// planner choose for each condition.
-	Installation facilities.Installation `json:"installation"`
+	Installation loads.Installation `json:"installation"`
 	// Scale fixes the model scale in this facility; nil: chosen by the policy.
 	Scale *float64 `json:"scale,omitempty" unit:"scale"`
 }
@@ -167,7 +167,7 @@ type cond struct {
 // fac is one resolved candidate facility.
 type fac struct {
 	f     *facilities.Facility
-	in    facilities.Installation
+	in    loads.Installation
 	fixed *float64
 	geom  float64 // largest scale the test section takes
 	// limits holds the balance load limit of each sweep (nil entries: no balance).

@@ -12,6 +12,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -29,7 +30,7 @@ func testBalance() facilities.Balance {
 // testReport checks a linear lift curve (C_L = 0.08/° · α) over α from −4° to
 // 12° at dynamic pressure q on a model of 0.1 m² and 0.3 m chord with the
 // facilities package itself.
-func testReport(t *testing.T, q float64, betas ...float64) facilities.LoadReport {
+func testReport(t *testing.T, q float64, betas ...float64) loads.Report {
 	t.Helper()
 	if len(betas) == 0 {
 		betas = []float64{0}
@@ -41,17 +42,17 @@ func testReport(t *testing.T, q float64, betas ...float64) facilities.LoadReport
 				Coefficients: facilities.Coefficients{CL: 0.08 * a, CD: 0.02 + 0.001*a*a, Cm: -0.01 * a, CY: 0.01 * b}})
 		}
 	}
-	lc := facilities.LoadCase{ReferenceArea: 0.1, ReferenceLength: 0.3, Points: pts}
+	lc := loads.Setup{ReferenceArea: 0.1, ReferenceLength: 0.3, Points: pts}
 	b := testBalance()
 	r, err := lc.Check(&b, q)
 	require.NoError(t, err)
 	return r
 }
 
-func testRatings(t *testing.T) facilities.Ratings {
+func testRatings(t *testing.T) loads.Ratings {
 	t.Helper()
 	b := testBalance()
-	rs, err := b.Ratings()
+	rs, err := loads.NewRatings(&b)
 	require.NoError(t, err)
 	return rs
 }
@@ -138,7 +139,7 @@ func TestRowUtilization(t *testing.T) {
 }
 
 func TestLoadsChartRefuses(t *testing.T) {
-	_, err := LoadsChart(Loads{Report: facilities.LoadReport{BalanceID: "b"}, Ratings: testRatings(t)})
+	_, err := LoadsChart(Loads{Report: loads.Report{BalanceID: "b"}, Ratings: testRatings(t)})
 	assert.ErrorContains(t, err, "no points")
 	_, err = LoadsChart(Loads{Report: testReport(t, 1000)})
 	assert.ErrorContains(t, err, "rates no component")

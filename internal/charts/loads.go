@@ -3,14 +3,13 @@ package charts
 import (
 	"fmt"
 	"math"
+	"scalematch/internal/loads"
 	"slices"
 	"strings"
 
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
-
-	"scalematch/facilities"
 )
 
 // Loads is what the loads chart draws: one balance's load report (from a plan or
@@ -22,15 +21,15 @@ type Loads struct {
 	// PlanID names the plan the report comes from; "" for a load check.
 	PlanID string
 	// Report is the balance's load report.
-	Report facilities.LoadReport
-	// Ratings are the balance's ratings (facilities.Facility.BalanceRatings).
-	Ratings facilities.Ratings
+	Report loads.Report
+	// Ratings are the balance's ratings (loads.BalanceRatings).
+	Ratings loads.Ratings
 }
 
 // RowUtilization is the utilisation (|load| over the rated load, a fraction,
 // not divided by the safety factor) of every rated row of ratings at each point
 // of report: rows[i][k] is row i at point k.
-func RowUtilization(report facilities.LoadReport, ratings facilities.Ratings) [][]float64 {
+func RowUtilization(report loads.Report, ratings loads.Ratings) [][]float64 {
 	sf := ratings.SafetyFactor
 	if sf == 0 {
 		sf = 1
@@ -47,15 +46,15 @@ func RowUtilization(report facilities.LoadReport, ratings facilities.Ratings) []
 	return rows
 }
 
-// loadOf returns the loads of a point as a facilities.Load.
-func loadOf(p facilities.LoadPoint) facilities.Load {
-	var l facilities.Load
-	l[facilities.IndexNormal] = p.Normal
-	l[facilities.IndexAxial] = p.Axial
-	l[facilities.IndexSide] = p.Side
-	l[facilities.IndexRollingMoment] = p.RollingMoment
-	l[facilities.IndexPitchingMoment] = p.PitchingMoment
-	l[facilities.IndexYawingMoment] = p.YawingMoment
+// loadOf returns the loads of a point as a loads.Vector.
+func loadOf(p loads.PointResult) loads.Vector {
+	var l loads.Vector
+	l[loads.IndexNormal] = p.Normal
+	l[loads.IndexAxial] = p.Axial
+	l[loads.IndexSide] = p.Side
+	l[loads.IndexRollingMoment] = p.RollingMoment
+	l[loads.IndexPitchingMoment] = p.PitchingMoment
+	l[loads.IndexYawingMoment] = p.YawingMoment
 	return l
 }
 

@@ -9,12 +9,12 @@ import (
 )
 
 // CheckAll returns the load check of every balance of facility f, in the
-// facility's order; facilities.ErrNoBalance when it has none.
-func CheckAll(lc *facilities.LoadCase, f *facilities.Facility, q float64) ([]facilities.LoadReport, error) {
+// facility's order; ErrNoBalance when it has none.
+func CheckAll(lc *Setup, f *facilities.Facility, q float64) ([]Report, error) {
 	if len(f.Balances) == 0 {
-		return nil, facilities.ErrNoBalance
+		return nil, ErrNoBalance
 	}
-	out := make([]facilities.LoadReport, len(f.Balances))
+	out := make([]Report, len(f.Balances))
 	for i := range f.Balances {
 		r, err := lc.CheckBalance(f, i, q)
 		if err != nil {
@@ -28,22 +28,22 @@ func CheckAll(lc *facilities.LoadCase, f *facilities.Facility, q float64) ([]fac
 // Choice is the balance a load check settled on, with the reason in a
 // sentence for the plan, and the checks of every balance considered.
 type Choice struct {
-	Report facilities.LoadReport
+	Report Report
 	Reason string
-	All    []facilities.LoadReport
+	All    []Report
 }
 
 // Choose checks the installation's named balance, or, when none is named, picks
 // among the facility's balances: with a required resolution
-// (facilities.LoadCase.Resolution), of the balances that keep every point within
+// (Setup.Resolution), of the balances that keep every point within
 // the allowed loads, the one that resolves it with the most margin; otherwise
 // (or when none resolves it) the one with the highest peak utilisation that
 // still keeps every point at or under the allowed load: the most heavily used
 // balance that is safe resolves the loads best. A named balance that does not exist
 // is a check.CodeInvalid error on installation.balance_id; no balance that can carry the
 // loads is a check.CodeUnprocessable error naming the "balance" limit; a facility without
-// balances is facilities.ErrNoBalance.
-func Choose(lc *facilities.LoadCase, f *facilities.Facility, q float64) (Choice, error) {
+// balances is ErrNoBalance.
+func Choose(lc *Setup, f *facilities.Facility, q float64) (Choice, error) {
 	if id := lc.Installation.BalanceID; id != "" {
 		for i := range f.Balances {
 			if f.Balances[i].ID != id {
@@ -53,7 +53,7 @@ func Choose(lc *facilities.LoadCase, f *facilities.Facility, q float64) (Choice,
 			if err != nil {
 				return Choice{}, err
 			}
-			return Choice{Report: r, Reason: fmt.Sprintf("balance %s as requested", id), All: []facilities.LoadReport{r}}, nil
+			return Choice{Report: r, Reason: fmt.Sprintf("balance %s as requested", id), All: []Report{r}}, nil
 		}
 		ids := make([]string, len(f.Balances))
 		for i, b := range f.Balances {
@@ -100,7 +100,7 @@ func Choose(lc *facilities.LoadCase, f *facilities.Facility, q float64) (Choice,
 
 // finestResolving returns the index of the report within its allowed loads
 // that resolves the required resolution with the most margin, or −1.
-func finestResolving(all []facilities.LoadReport) int {
+func finestResolving(all []Report) int {
 	k := -1
 	for i := range all {
 		if all[i].WithinLimits && resolves(&all[i]) && (k < 0 || all[i].Resolution.Margin > all[k].Resolution.Margin) {
@@ -114,21 +114,21 @@ func finestResolving(all []facilities.LoadReport) int {
 // check ("" when no resolution was asked): resolved when a report within its
 // allowed loads resolves it; else, with one report within its allowed loads,
 // that report's state; else no_balance_resolves.
-func ResolutionState(reports []facilities.LoadReport) string {
+func ResolutionState(reports []Report) string {
 	if len(reports) == 0 || reports[0].Resolution == nil {
 		return ""
 	}
 	if finestResolving(reports) >= 0 {
-		return facilities.ResolutionResolved
+		return ResolutionResolved
 	}
 	if len(reports) == 1 && reports[0].WithinLimits {
 		return reports[0].Resolution.State
 	}
-	return facilities.ResolutionNoBalance
+	return ResolutionNoBalance
 }
 
 // resolves reports whether the report's balance resolves the required
 // resolution.
-func resolves(r *facilities.LoadReport) bool {
-	return r.Resolution != nil && r.Resolution.State == facilities.ResolutionResolved
+func resolves(r *Report) bool {
+	return r.Resolution != nil && r.Resolution.State == ResolutionResolved
 }

@@ -17,9 +17,9 @@ func fptr(v float64) *float64 { return &v }
 
 // j16Case is the 1:24 demo business jet (S = 36.5/576 = 0.0633681 m², c = 0.1 m)
 // at the given points, no wall correction, weight 20 kg.
-func j16Case(res *facilities.Resolution, pts ...facilities.Point) facilities.LoadCase {
-	return facilities.LoadCase{ReferenceArea: 36.5 / 576, ReferenceLength: 0.1,
-		Installation: facilities.Installation{ModelMass: 20}, Points: pts, Resolution: res}
+func j16Case(res *loads.Resolution, pts ...facilities.Point) loads.Setup {
+	return loads.Setup{ReferenceArea: 36.5 / 576, ReferenceLength: 0.1,
+		Installation: loads.Installation{ModelMass: 20}, Points: pts, Resolution: res}
 }
 
 // TestChooseBalance uses the demo facility lsw-2 (ext-6c and int-a, both with a
@@ -29,7 +29,7 @@ func TestChooseBalance(t *testing.T) {
 	if !ok {
 		t.Fatal("demo facility lsw-2 missing")
 	}
-	lc := facilities.LoadCase{ReferenceArea: 0.3, ReferenceLength: 0.25,
+	lc := loads.Setup{ReferenceArea: 0.3, ReferenceLength: 0.25,
 		Points: []facilities.Point{{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.2, CD: 0.03}},
 			{Alpha: 12, Coefficients: facilities.Coefficients{CL: 1.2, CD: 0.08, Cm: -0.1}}}}
 	cases := []struct {
@@ -66,7 +66,7 @@ func TestChooseBalance(t *testing.T) {
 			}
 		})
 	}
-	if _, err := loads.CheckAll(&lc, &facilities.Facility{}, 1000); !errors.Is(err, facilities.ErrNoBalance) {
+	if _, err := loads.CheckAll(&lc, &facilities.Facility{}, 1000); !errors.Is(err, loads.ErrNoBalance) {
 		t.Errorf("no balances: error %v, want ErrNoBalance", err)
 	}
 }
@@ -74,7 +74,7 @@ func TestChooseBalance(t *testing.T) {
 // TestChooseBalancePrefersResolution: without a resolution, the balance choice
 // in tsw-1 takes the most heavily used balance within its allowed loads; with
 // one, of the balances within their allowed loads, the one that resolves it
-// with the most margin, and facilities.ResolutionState says so.
+// with the most margin, and loads.ResolutionState says so.
 func TestChooseBalancePrefersResolution(t *testing.T) {
 	t.Parallel()
 	f, ok := facilities.DemoFacility("tsw-1")
@@ -85,13 +85,13 @@ func TestChooseBalancePrefersResolution(t *testing.T) {
 	plain := j16Case(nil, pts...)
 	all, err := loads.CheckAll(&plain, &f, q)
 	require.NoError(t, err)
-	res := &facilities.Resolution{CDCounts: fptr(30)}
+	res := &loads.Resolution{CDCounts: fptr(30)}
 	lc := j16Case(res, pts...)
 	withRes, err := loads.CheckAll(&lc, &f, q)
 	require.NoError(t, err)
 	best, bestMargin := "", 0.0
 	for _, r := range withRes {
-		if r.WithinLimits && r.Resolution.State == facilities.ResolutionResolved && r.Resolution.Margin > bestMargin {
+		if r.WithinLimits && r.Resolution.State == loads.ResolutionResolved && r.Resolution.Margin > bestMargin {
 			best, bestMargin = r.BalanceID, r.Resolution.Margin
 		}
 	}
@@ -100,12 +100,12 @@ func TestChooseBalancePrefersResolution(t *testing.T) {
 	require.NoError(t, err)
 	assert.Equal(t, best, ch.Report.BalanceID)
 	assert.Contains(t, ch.Reason, "most margin")
-	assert.Equal(t, facilities.ResolutionResolved, loads.ResolutionState(withRes))
+	assert.Equal(t, loads.ResolutionResolved, loads.ResolutionState(withRes))
 	assert.Len(t, all, len(withRes))
 
 	// Finer than either balance resolves at this q: no balance resolves.
-	fine := j16Case(&facilities.Resolution{CDCounts: fptr(0.5)}, pts...)
+	fine := j16Case(&loads.Resolution{CDCounts: fptr(0.5)}, pts...)
 	none, err := loads.CheckAll(&fine, &f, q)
 	require.NoError(t, err)
-	assert.Equal(t, facilities.ResolutionNoBalance, loads.ResolutionState(none))
+	assert.Equal(t, loads.ResolutionNoBalance, loads.ResolutionState(none))
 }

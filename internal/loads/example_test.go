@@ -20,7 +20,7 @@ func ExampleLimit_MaxDynamicPressure() {
 		return
 	}
 	f, _ := facilities.DemoFacility("lsw-2")
-	ll, err := loads.NewLimit(art, &f, facilities.Installation{BalanceID: "int-a", ModelMass: 15}, mx)
+	ll, err := loads.NewLimit(art, &f, loads.Installation{BalanceID: "int-a", ModelMass: 15}, mx)
 	if err != nil {
 		fmt.Println(err)
 		return

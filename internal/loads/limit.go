@@ -57,7 +57,7 @@ type balanceRows struct {
 	weightBreaks bool
 	// needForce and needMoment are, per point, the least q_c·S (N) and
 	// q_c·S·c (N·m) the required resolution asks of this balance
-	// (facilities.Resolution.Need; +Inf when its accuracy is not known); nil
+	// (Resolution.Need; +Inf when its accuracy is not known); nil
 	// when no resolution is asked.
 	needForce, needMoment []float64
 	// live lists, in the order above, the elements i·rows + j that can set the
@@ -73,9 +73,9 @@ var (
 
 // NewLimit returns the load limit of article art on facility f with
 // installation in, over the test matrix mx (from similarity.Aero.Matrix). It returns an error
-// naming the field for bad input or an unknown balance, and facilities.ErrNoBalance
+// naming the field for bad input or an unknown balance, and ErrNoBalance
 // when the facility has no balance.
-func NewLimit(art *similarity.Article, f *facilities.Facility, in facilities.Installation, mx similarity.Matrix) (*Limit, error) {
+func NewLimit(art *similarity.Article, f *facilities.Facility, in Installation, mx similarity.Matrix) (*Limit, error) {
 	fe := art.GeometryErrors("reference_area", "reference_length", "frontal_area")
 	if len(mx.Points) == 0 {
 		fe = append(fe, check.FieldError{Field: "alpha", Message: "the test matrix has no points"})
@@ -90,7 +90,7 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in facilities.Ins
 		return nil, err
 	}
 	if len(f.Balances) == 0 {
-		return nil, facilities.ErrNoBalance
+		return nil, ErrNoBalance
 	}
 	l := &Limit{facility: f, refArea: art.ReferenceArea, refLength: art.ReferenceLength,
 		frontalArea: art.FrontalArea, cd: make([]float64, len(mx.Points)), alpha: make([]float64, len(mx.Points))}
@@ -104,7 +104,7 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in facilities.Ins
 			continue
 		}
 		found = true
-		rs, err := f.BalanceRatings(k)
+		rs, err := BalanceRatings(f, k)
 		if err != nil {
 			return nil, err
 		}
@@ -117,17 +117,17 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in facilities.Ins
 		br.force, br.moment = make([]float64, n), make([]float64, n)
 		br.up, br.down = make([]float64, n), make([]float64, n)
 		for i, p := range mx.Points {
-			body := p.Body()
-			force := facilities.AeroLoads(body, 1, 0, in.BalanceOffset)
-			moment := facilities.AeroLoads(body, 0, 1, in.BalanceOffset)
-			weight := in.WeightLoads(p.Alpha)
+			body := Body(p)
+			force := Aerodynamic(body, 1, 0, in.BalanceOffset)
+			moment := Aerodynamic(body, 0, 1, in.BalanceOffset)
+			weight := in.Weight(p.Alpha)
 			for j := range br.rows {
 				k := i*br.rows + j
 				w := rs.Row(j, &weight)
 				br.force[k] = rs.Row(j, &force)
 				br.moment[k] = rs.Row(j, &moment)
 				br.up[k], br.down[k] = br.allowed[j]-w, br.allowed[j]+w
-				br.weightBreaks = br.weightBreaks || facilities.SafeDynamicPressure(0, w, br.allowed[j]) == 0
+				br.weightBreaks = br.weightBreaks || SafeDynamicPressure(0, w, br.allowed[j]) == 0
 			}
 		}
 		br.prune(l.cd)
@@ -144,12 +144,12 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in facilities.Ins
 func (l *Limit) Name() string { return facilities.ConstraintBalance }
 
 // Resolve makes the limit also a LoadFloor: the least dynamic pressure at which
-// a balance resolves the coefficients to res (facilities.Resolution.Need at every
+// a balance resolves the coefficients to res (Resolution.Need at every
 // point of the matrix), which with its load ceiling gives each balance a window
 // of dynamic pressure (Windows). With a floor, MaxDynamicPressure is the highest
 // ceiling of the balances whose floor is at or under their ceiling (of all when
 // none is). A nil or empty res removes the floor.
-func (l *Limit) Resolve(res *facilities.Resolution) {
+func (l *Limit) Resolve(res *Resolution) {
 	for k := range l.balances {
 		br := &l.balances[k]
 		br.needForce, br.needMoment = nil, nil
@@ -157,10 +157,10 @@ func (l *Limit) Resolve(res *facilities.Resolution) {
 			continue
 		}
 		b := l.facility.Balances[slices.IndexFunc(l.facility.Balances, func(b facilities.Balance) bool { return b.ID == br.id })]
-		var d facilities.Load
+		var d Vector
 		var known [6]bool
 		if b.Accuracy != nil {
-			d, known = b.Accuracy.Load(&b.Limits)
+			d, known = AccuracyOf(&b)
 		}
 		br.needForce, br.needMoment = make([]float64, len(l.alpha)), make([]float64, len(l.alpha))
 		for i, a := range l.alpha {
@@ -303,7 +303,7 @@ func (l *Limit) window(scale, mach float64) (lo, hi float64, k int) {
 
 // maxQ is the largest q keeping every point and row of one balance within its
 // allowance. Each row is affine in q and solved exactly as in
-// facilities.SafeDynamicPressure, q = (allowed − sign(u)·w)/|u|; the minimum over
+// SafeDynamicPressure, q = (allowed − sign(u)·w)/|u|; the minimum over
 // rows is found by comparing the fractions crosswise, with one division per call.
 //
 // Only the live elements are visited, in their order and with the same

@@ -57,7 +57,7 @@ func (l *Limit) bestAll(scale, mach float64) (int, float64) {
 // facility: coefficients of both signs (side force and rolling and yawing
 // moments included), repeated points, points of zero load, combined gauge rows,
 // and weights near a rating.
-func pruneCase(rng *rand.Rand, i int) (*similarity.Article, *facilities.Facility, facilities.Installation, similarity.Matrix) {
+func pruneCase(rng *rand.Rand, i int) (*similarity.Article, *facilities.Facility, Installation, similarity.Matrix) {
 	ids := []string{"lsw-2", "tsw-1", "plp-3", "wtn-04", "cn2-05"}
 	f, _ := facilities.DemoFacility(ids[i%len(ids)])
 	u := func(lo, hi float64) float64 { return lo + (hi-lo)*rng.Float64() }
@@ -83,10 +83,10 @@ func pruneCase(rng *rand.Rand, i int) (*similarity.Article, *facilities.Facility
 			p.CY, p.Cl, p.Cn = u(-0.1, 0.1), u(-0.05, 0.05), u(-0.05, 0.05)
 		}
 	}
-	in := facilities.Installation{ModelMass: u(0, 40)}
+	in := Installation{ModelMass: u(0, 40)}
 	if rng.IntN(2) == 0 {
-		in.BalanceOffset = facilities.Offset{X: u(-0.2, 0.2), Z: u(-0.05, 0.05)}
-		in.CGOffset = facilities.Offset{X: u(-0.2, 0.2), Z: u(-0.05, 0.05)}
+		in.BalanceOffset = Offset{X: u(-0.2, 0.2), Z: u(-0.05, 0.05)}
+		in.CGOffset = Offset{X: u(-0.2, 0.2), Z: u(-0.05, 0.05)}
 	}
 	lim := func(lo, hi float64) *float64 { v := u(lo, hi); return &v }
 	f.Balances = nil
@@ -105,8 +105,8 @@ func pruneCase(rng *rand.Rand, i int) (*similarity.Article, *facilities.Facility
 	if rng.IntN(8) == 0 {
 		// The weight exactly at the normal-force rating over the safety factor.
 		b := &f.Balances[0]
-		in.CGOffset, in.BalanceOffset = facilities.Offset{}, facilities.Offset{}
-		in.ModelMass = *b.Limits.Normal / b.SafetyFactor / 9.80665 // g0 of facilities.WeightLoads
+		in.CGOffset, in.BalanceOffset = Offset{}, Offset{}
+		in.ModelMass = *b.Limits.Normal / b.SafetyFactor / 9.80665 // g0 of Installation.Weight
 	}
 	if rng.IntN(2) == 0 {
 		in.BalanceID = f.Balances[rng.IntN(len(f.Balances))].ID

@@ -21,7 +21,7 @@ import (
 // with every candidate checked from the definitions: the test-section state, the
 // facility's limits (facilities.Violations), nitrogen condensation, the test
 // section's span and blockage rules, and the full balance check
-// (facilities.LoadCase.Check with the wall corrections applied at the candidate's
+// (loads.Setup.Check with the wall corrections applied at the candidate's
 // scale and Mach number, weight included).
 
 // llrSweep is the α sweep of every case: −4° to 16° by 1°, 21 points.
@@ -33,7 +33,7 @@ type llrCase struct {
 	art      *similarity.Article
 	flight   similarity.Flight
 	facility string
-	in       facilities.Installation
+	in       loads.Installation
 	model    similarity.Model
 	// bind, when set, asks that the balance be among the plan's binding limits.
 	bind bool
@@ -45,7 +45,7 @@ type llrCase struct {
 	// balance's resolution floor (BalanceLimit.Resolve), and the search counts a
 	// candidate only where a balance within its allowed loads has a 2σ
 	// uncertainty at or under it at every point.
-	res *facilities.Resolution
+	res *loads.Resolution
 	// tol is the largest |plan Re / search Re − 1| allowed; 0: 0.5 %.
 	tol float64
 }
@@ -109,21 +109,21 @@ func (x *llrFixture) geomMin() float64 {
 }
 
 // loadCheck runs the full balance check of a model of scale s at state st: wall
-// corrections from the section at st's Mach number, then LoadCase.Check on the
+// corrections from the section at st's Mach number, then Setup.Check on the
 // named balance, or, when none is named, on every balance (the case is carried
 // when any one of them carries it, as the planner's choice of balance promises).
 // With a required resolution (and q > 0) a balance carries the case only when
 // its uncertainty meets the resolution at every point (resolvedBy). It returns
 // the carrying report, or ok false.
-func (x *llrFixture) loadCheck(t *testing.T, s float64, st facilities.State) (facilities.LoadReport, bool) {
+func (x *llrFixture) loadCheck(t *testing.T, s float64, st facilities.State) (loads.Report, bool) {
 	a := x.c.art
 	s2 := s * s
 	w := facilities.NewWalls(x.f, a.FrontalArea*s2, a.ReferenceArea*s2, st.Mach)
 	pts := slices.Clone(x.mx.Points)
 	w.Apply(pts)
-	lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * s,
+	lc := loads.Setup{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * s,
 		Installation: x.c.in, Points: pts}
-	var best facilities.LoadReport
+	var best loads.Report
 	found := false
 	for i := range x.f.Balances {
 		b := &x.f.Balances[i]
@@ -145,10 +145,10 @@ func (x *llrFixture) loadCheck(t *testing.T, s float64, st facilities.State) (fa
 }
 
 // resolvedBy reports whether every point's 2σ uncertainty in report r (the
-// formulas of facilities.Uncertainty, docs/loads.md) is at or under the required
+// formulas of loads.Uncertainty, docs/loads.md) is at or under the required
 // resolution res, up to 1e-9 relative; an asked coefficient without an
 // uncertainty is not resolved.
-func resolvedBy(res *facilities.Resolution, r *facilities.LoadReport) bool {
+func resolvedBy(res *loads.Resolution, r *loads.Report) bool {
 	if len(r.Uncertainty) != len(r.Points) {
 		return false
 	}
@@ -445,18 +445,18 @@ func TestLoadLimitPlanAgainstSearch(t *testing.T) {
 		// at α 16°, so the balance binds (the planning example of api/ shows it
 		// binding beside q_max).
 		{name: "Orrin J16 tsw-1 int-b1", art: j16, flight: similarity.Flight{Altitude: llrFloat(12000), Mach: llrFloat(0.78)},
-			facility: "tsw-1", in: facilities.Installation{BalanceID: "int-b1", ModelMass: 20}, bind: true},
+			facility: "tsw-1", in: loads.Installation{BalanceID: "int-b1", ModelMass: 20}, bind: true},
 		// int-c's axial rating binds on the Velmar at M 0.29 (the pressurised
 		// tunnel's top Mach number): the plan sits on q_max and the balance.
 		{name: "Velmar T64 plp-3 int-c", art: t64, flight: similarity.Flight{Altitude: llrFloat(6100), Mach: llrFloat(0.47)},
-			facility: "plp-3", in: facilities.Installation{BalanceID: "int-c", ModelMass: 40}, bind: true},
+			facility: "plp-3", in: loads.Installation{BalanceID: "int-c", ModelMass: 40}, bind: true},
 		// A gauge row invented for this test, added to ext-6c: 0.5·N + 4 m⁻¹·m ≤
 		// 4200 N, so at most 2800 N over the safety factor 1.5. With the moment
 		// reference 0.25 m ahead of the balance centre the normal force adds N·0.25 m
 		// to the pitching moment, and the row binds before any single component
 		// (the test asks that the plan's worst point sits on it).
 		{name: "Pellin P3 lsw-2 ext-6c forward gauge", art: p3, flight: similarity.Flight{Altitude: llrFloat(2100), TrueAirspeed: llrFloat(68)},
-			facility: "lsw-2", in: facilities.Installation{BalanceID: "ext-6c", ModelMass: 30, BalanceOffset: facilities.Offset{X: 0.25}},
+			facility: "lsw-2", in: loads.Installation{BalanceID: "ext-6c", ModelMass: 30, BalanceOffset: loads.Offset{X: 0.25}},
 			edit: func(f *facilities.Facility) {
 				f.Balances[0].Combined = []facilities.CombinedLimit{{Name: "forward gauge",
 					Coefficients: map[string]float64{facilities.ComponentNormal: 0.5, facilities.ComponentPitchingMoment: 4}, Limit: 4200}}
@@ -501,9 +501,9 @@ func llrRandomCase(rng *rand.Rand, i int) *llrCase {
 		wmax = math.Min(wmax, *b.Limits.Normal/b.SafetyFactor)
 	}
 	size := math.Min(f.TestSection.Width, f.TestSection.Height)
-	c.in = facilities.Installation{
-		BalanceOffset: facilities.Offset{X: size * u(-0.05, 0.05), Z: size * u(-0.01, 0.01)},
-		CGOffset:      facilities.Offset{X: size * u(-0.05, 0.05), Z: size * u(-0.01, 0.01)},
+	c.in = loads.Installation{
+		BalanceOffset: loads.Offset{X: size * u(-0.05, 0.05), Z: size * u(-0.01, 0.01)},
+		CGOffset:      loads.Offset{X: size * u(-0.05, 0.05), Z: size * u(-0.01, 0.01)},
 		ModelMass:     u(0, wmax/3/9.80665),
 	}
 	if k := rng.IntN(len(f.Balances) + 1); k < len(f.Balances) {

@@ -33,7 +33,7 @@ var sweep = similarity.Sweep{From: -4, To: 16, Step: 1}
 
 // bisect finds the largest free-stream q at which the full load check (wall
 // corrections applied at the scale) stays within the balance's allowance.
-func bisect(t *testing.T, art *similarity.Article, f *facilities.Facility, in facilities.Installation, mx similarity.Matrix, scale, mach float64) float64 {
+func bisect(t *testing.T, art *similarity.Article, f *facilities.Facility, in loads.Installation, mx similarity.Matrix, scale, mach float64) float64 {
 	t.Helper()
 	ok := func(q float64) bool {
 		res, err := loads.Check(&loads.Case{Facility: f, Article: art, Installation: in, Matrix: mx, Scale: scale,
@@ -75,9 +75,9 @@ func TestLoadLimitAgreesWithBisection(t *testing.T) {
 	}
 	f := demoPtr(t, "lsw-2")
 	for trial := range 24 {
-		in := facilities.Installation{
-			BalanceOffset: facilities.Offset{X: 0.05 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)},
-			CGOffset:      facilities.Offset{X: 0.1 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)},
+		in := loads.Installation{
+			BalanceOffset: loads.Offset{X: 0.05 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)},
+			CGOffset:      loads.Offset{X: 0.1 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)},
 			ModelMass:     60 * rng.Float64(),
 		}
 		if trial%3 != 0 {
@@ -105,7 +105,7 @@ func TestLoadLimitCases(t *testing.T) {
 	}
 	f := demoPtr(t, "lsw-2")
 	st := facilities.State{Mach: 0.2}
-	heavy, err := loads.NewLimit(art, f, facilities.Installation{BalanceID: "int-a", ModelMass: 500}, mx)
+	heavy, err := loads.NewLimit(art, f, loads.Installation{BalanceID: "int-a", ModelMass: 500}, mx)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -113,7 +113,7 @@ func TestLoadLimitCases(t *testing.T) {
 	if q := heavy.MaxDynamicPressure(0.1, st); q != 0 {
 		t.Errorf("weight over the rating: q = %g, want 0", q)
 	}
-	any, err := loads.NewLimit(art, f, facilities.Installation{}, mx)
+	any, err := loads.NewLimit(art, f, loads.Installation{}, mx)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -133,10 +133,10 @@ func TestLoadLimitCases(t *testing.T) {
 			t.Errorf("scale %g: q = %g, want 0", s, q)
 		}
 	}
-	if _, err := loads.NewLimit(art, f, facilities.Installation{BalanceID: "nope"}, mx); !slices.Contains(fieldsOf(t, err), "installation.balance_id") {
+	if _, err := loads.NewLimit(art, f, loads.Installation{BalanceID: "nope"}, mx); !slices.Contains(fieldsOf(t, err), "installation.balance_id") {
 		t.Errorf("unknown balance: %v", err)
 	}
-	if _, err := loads.NewLimit(art, &facilities.Facility{ID: "bare"}, facilities.Installation{}, mx); err != facilities.ErrNoBalance {
+	if _, err := loads.NewLimit(art, &facilities.Facility{ID: "bare"}, loads.Installation{}, mx); err != loads.ErrNoBalance {
 		t.Errorf("no balances: %v, want ErrNoBalance", err)
 	}
 	if n := testing.AllocsPerRun(100, func() { any.MaxDynamicPressure(0.1, st) }); n != 0 {
@@ -155,7 +155,7 @@ func TestCheckCorrectsAndChooses(t *testing.T) {
 	}
 	f := demoPtr(t, "lsw-2")
 	st := facilities.State{Mach: 0.2, DynamicPressure: 2500}
-	c := loads.Case{Facility: f, Article: art, Installation: facilities.Installation{ModelMass: 20}, Matrix: mx, Scale: 0.15, State: st}
+	c := loads.Case{Facility: f, Article: art, Installation: loads.Installation{ModelMass: 20}, Matrix: mx, Scale: 0.15, State: st}
 	res, err := loads.Check(&c)
 	if err != nil {
 		t.Fatal(err)
@@ -182,7 +182,7 @@ func TestCheckCorrectsAndChooses(t *testing.T) {
 		t.Errorf("largest point q %g, want %g", maxQ, 2500*cor.DynamicPressureFactor)
 	}
 	// Too much q for either balance: 422.
-	c.Installation = facilities.Installation{}
+	c.Installation = loads.Installation{}
 	c.State = facilities.State{Mach: 0.2, DynamicPressure: 60000}
 	if _, err := loads.Check(&c); check.ErrorCode(err) != check.CodeUnprocessable {
 		t.Errorf("overload: error %v, want unprocessable", err)
@@ -195,7 +195,7 @@ func benchLimit(b *testing.B, points int) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	ll, err := loads.NewLimit(art, demoPtr(b, "lsw-2"), facilities.Installation{BalanceID: "ext-6c", ModelMass: 20}, mx)
+	ll, err := loads.NewLimit(art, demoPtr(b, "lsw-2"), loads.Installation{BalanceID: "ext-6c", ModelMass: 20}, mx)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -233,7 +233,7 @@ func BenchmarkCheck21(b *testing.B) {
 	b.ReportAllocs()
 	b.ResetTimer()
 	for b.Loop() {
-		if _, err := loads.Check(&loads.Case{Facility: f, Article: art, Installation: facilities.Installation{ModelMass: 20}, Matrix: mx, Scale: 0.15, State: st}); err != nil {
+		if _, err := loads.Check(&loads.Case{Facility: f, Article: art, Installation: loads.Installation{ModelMass: 20}, Matrix: mx, Scale: 0.15, State: st}); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -247,7 +247,7 @@ func TestLoadLimitBadRating(t *testing.T) {
 	}
 	f := demoPtr(t, "lsw-2")
 	f.Balances[1].SafetyFactor = 0.8
-	_, err = loads.NewLimit(art, f, facilities.Installation{}, mx)
+	_, err = loads.NewLimit(art, f, loads.Installation{}, mx)
 	if fs := fieldsOf(t, err); !slices.Contains(fs, "facility.balances[1].safety_factor") {
 		t.Errorf("fields %q, want facility.balances[1].safety_factor", fs)
 	}

@@ -6,11 +6,12 @@
 // resolution, its floor (similarity.LoadLimit and similarity.LoadFloor, the small
 // interfaces similarity declares), and then call Check at the plan's answer; load
 // checks (POST /v1/loads, scalematch loads) call Check alone. The balance
-// choice is Choose. The per-balance primitives (body axes, ratings, the
-// per-balance check and report) are still facilities.LoadCase and
-// facilities.LoadReport.
+// choice is Choose. Under them are the per-balance primitives: the load Vector
+// in body axes (Body, Aerodynamic, Installation.Weight), a balance's compiled
+// Ratings, one balance's check of a Setup (Setup.Check) and its Report, the
+// required Resolution, the model's Buoyancy in water, and the load Cautions.
 //
-// The verdicts, from best to worst (facilities.Verdict*):
+// The verdicts, from best to worst (Verdict*):
 //
 //   - within_allowed_loads: the model fits, and every point keeps every rated
 //     component and gauge row at or under its allowed load (rating ÷ safety
@@ -36,8 +37,8 @@ type Case struct {
 	Facility *facilities.Facility
 	Article  *similarity.Article
 	// Installation places the model on the balance; in water its buoyancy
-	// (facilities.Installation.WithBuoyancy) is added here.
-	Installation facilities.Installation
+	// (Installation.WithBuoyancy) is added here.
+	Installation Installation
 	Matrix       similarity.Matrix
 	// Scale is model length over full-scale length.
 	Scale float64
@@ -49,7 +50,7 @@ type Case struct {
 	// Resolution, when not nil, is the required resolution: every report says
 	// whether its balance resolves it, and the balance choice prefers the one
 	// that resolves it with the most margin.
-	Resolution *facilities.Resolution
+	Resolution *Resolution
 }
 
 // Result is the answer of Check.
@@ -61,14 +62,14 @@ type Result struct {
 	Corrections facilities.Corrections
 	// Reports are the load reports: the named or chosen balance's alone, or
 	// every balance's (Case.Every); nil when the facility has no balance.
-	Reports []facilities.LoadReport
+	Reports []Report
 	// Reason says why the balance was chosen ("" when none was chosen).
 	Reason string
-	// Verdict is the check's verdict (facilities.Verdict*): does_not_fit when
+	// Verdict is the check's verdict (Verdict*): does_not_fit when
 	// FitBroken is not empty, else the best report's (not_verified without one).
 	Verdict string
 	// ResolutionState sums up the reports' resolution checks
-	// (facilities.ResolutionState): "" when no resolution was asked.
+	// (ResolutionState): "" when no resolution was asked.
 	ResolutionState string
 	// Warnings are notes on the corrections and the loads, in order.
 	Warnings []string
@@ -87,7 +88,7 @@ func Check(c *Case) (Result, error) {
 	res.Corrections = w.Summary(pts, a.Aero.CorrectionLiftSlope())
 	res.Warnings = append(res.Warnings, w.Warnings...)
 	if len(f.Balances) > 0 {
-		lc := facilities.LoadCase{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * s,
+		lc := Setup{ReferenceArea: a.ReferenceArea * s2, ReferenceLength: a.ReferenceLength * s,
 			Installation: c.Installation.WithBuoyancy(f), Points: pts, Resolution: c.Resolution}
 		q := c.State.DynamicPressure
 		if c.Every && c.Installation.BalanceID == "" {
@@ -101,7 +102,7 @@ func Check(c *Case) (Result, error) {
 			if err != nil {
 				return Result{}, err
 			}
-			res.Reports = []facilities.LoadReport{ch.Report}
+			res.Reports = []Report{ch.Report}
 			if c.Installation.BalanceID == "" {
 				res.Reason = ch.Reason
 			}
@@ -111,7 +112,7 @@ func Check(c *Case) (Result, error) {
 	if !c.Resolution.Empty() {
 		res.ResolutionState = ResolutionState(res.Reports)
 		if len(res.Reports) == 0 {
-			res.ResolutionState = facilities.ResolutionNoBalance
+			res.ResolutionState = ResolutionNoBalance
 		}
 	}
 	return res, nil
@@ -120,16 +121,16 @@ func Check(c *Case) (Result, error) {
 // verdict is does_not_fit with broken fit limits, not_verified without reports,
 // else the best report's verdict: with every balance checked, the model can go
 // in on the best one.
-func verdict(broken []facilities.Violation, reports []facilities.LoadReport) string {
+func verdict(broken []facilities.Violation, reports []Report) string {
 	if len(broken) > 0 {
-		return facilities.VerdictDoesNotFit
+		return VerdictDoesNotFit
 	}
 	if len(reports) == 0 {
-		return facilities.VerdictNotVerified
+		return VerdictNotVerified
 	}
 	v := reports[0].Verdict
 	for _, r := range reports[1:] {
-		if facilities.VerdictRank(r.Verdict) < facilities.VerdictRank(v) {
+		if VerdictRank(r.Verdict) < VerdictRank(v) {
 			v = r.Verdict
 		}
 	}
@@ -178,17 +179,18 @@ func Fit(f *facilities.Facility, a *similarity.Article, s float64) []facilities.
 // ResolutionWarning returns the note on a result's resolution state other than
 // resolved, naming the first report's balance ("" when resolved or not asked).
 func (r *Result) ResolutionWarning() string {
-	var rc *facilities.ResolutionCheck
+	var rc *ResolutionCheck
 	id := ""
 	if len(r.Reports) > 0 {
 		rc, id = r.Reports[0].Resolution, r.Reports[0].BalanceID
 	}
-	return facilities.ResolutionWarning(r.ResolutionState, rc, id)
+	return ResolutionWarning(r.ResolutionState, rc, id)
 }
 
-// Cautions returns the cautions of a result beyond facilities.Cautions: a model
-// that does not fit, and loads the check cannot vouch for.
-func Cautions(r *Result) []string {
+// Cautions returns the cautions of the result beyond Cautions (of the facility
+// and the reports): a model that does not fit, and loads the check cannot vouch
+// for.
+func (r *Result) Cautions() []string {
 	var out []string
 	if len(r.FitBroken) > 0 {
 		names := make([]string, len(r.FitBroken))
@@ -198,7 +200,7 @@ func Cautions(r *Result) []string {
 		out = append(out, fmt.Sprintf("The model does not fit the test section (%s): do not install it. A model this size would strike or foul the walls or support, or carry wall interference no correction covers; change the model scale and check again.",
 			strings.Join(names, ", ")))
 	}
-	if r.Verdict == facilities.VerdictNotVerified {
+	if r.Verdict == VerdictNotVerified {
 		out = append(out, CautionNotVerified)
 	}
 	return out

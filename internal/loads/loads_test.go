@@ -71,7 +71,7 @@ func TestFit(t *testing.T) {
 
 // checkJet runs Check on the demo business jet in tsw-1 at M 0.78, p0 150 kPa,
 // T0 310 K over α −4…12°.
-func checkJet(t *testing.T, f *facilities.Facility, a similarity.Article, in facilities.Installation, scale float64, beta *similarity.Sweep) loads.Result {
+func checkJet(t *testing.T, f *facilities.Facility, a similarity.Article, in loads.Installation, scale float64, beta *similarity.Sweep) loads.Result {
 	t.Helper()
 	mx, err := a.Aero.Matrix(similarity.Sweep{From: -4, To: 12, Step: 4}, beta)
 	require.NoError(t, err)
@@ -90,28 +90,28 @@ func TestVerdict(t *testing.T) {
 	t.Parallel()
 	tsw := demo(t, "tsw-1")
 	a := orrinJ16()
-	withMass := facilities.Installation{BalanceID: "int-b1", ModelMass: 14}
+	withMass := loads.Installation{BalanceID: "int-b1", ModelMass: 14}
 	cases := []struct {
 		name    string
 		f       facilities.Facility
-		in      facilities.Installation
+		in      loads.Installation
 		scale   float64
 		verdict string
 	}{
-		{"fits and within", tsw, withMass, 1.0 / 26, facilities.VerdictWithin},
-		{"span too wide at 1:22", tsw, withMass, 1.0 / 22, facilities.VerdictDoesNotFit},
-		{"weight left out", tsw, facilities.Installation{BalanceID: "int-b1"}, 1.0 / 26, facilities.VerdictNotVerified},
+		{"fits and within", tsw, withMass, 1.0 / 26, loads.VerdictWithin},
+		{"span too wide at 1:22", tsw, withMass, 1.0 / 22, loads.VerdictDoesNotFit},
+		{"weight left out", tsw, loads.Installation{BalanceID: "int-b1"}, 1.0 / 26, loads.VerdictNotVerified},
 		// A copy of int-b1 with an axial rating of 400 N (allowed 400/1.5 =
 		// 266.7 N): at 1:26 the axial load at α 12° is −345 N (regression
 		// value), 129 % of the allowed load.
-		{"over on a smaller axial rating", withAxial(tsw, 400), withMass, 1.0 / 26, facilities.VerdictOver},
-		{"no balance", withoutBalances(tsw), withMass, 1.0 / 26, facilities.VerdictNotVerified},
+		{"over on a smaller axial rating", withAxial(tsw, 400), withMass, 1.0 / 26, loads.VerdictOver},
+		{"no balance", withoutBalances(tsw), withMass, 1.0 / 26, loads.VerdictNotVerified},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			r := checkJet(t, &tc.f, a, tc.in, tc.scale, nil)
 			assert.Equal(t, tc.verdict, r.Verdict)
-			if tc.verdict == facilities.VerdictOver {
+			if tc.verdict == loads.VerdictOver {
 				require.Len(t, r.Reports, 1)
 				assert.NotEmpty(t, r.Reports[0].OverAllowed)
 				assert.Equal(t, "axial", r.Reports[0].OverAllowed[0].Component)
@@ -148,8 +148,8 @@ func TestUnratedComponents(t *testing.T) {
 	// comes from the drag rotated by β (C_Y,body = −C_D·sin β).
 	a := similarity.Article{ReferenceLength: 0.41, ReferenceArea: 1.4, Span: 3.45, Length: 2.05, FrontalArea: 0.1, WettedArea: 3.9,
 		Aero: similarity.Aero{LiftSlope: 4.95, ZeroLiftAlpha: -2.8, CLMax: 1.35, CDMin: 0.031, CLAtCDMin: 0.28, InducedDragFactor: 0.047, CmZero: 0.06, CmSlope: -0.65}}
-	r := checkJet(t, &f, a, facilities.Installation{ModelMass: 0.5}, 0.1, &similarity.Sweep{From: -4, To: 4, Step: 4})
-	assert.Equal(t, facilities.VerdictNotVerified, r.Verdict)
+	r := checkJet(t, &f, a, loads.Installation{ModelMass: 0.5}, 0.1, &similarity.Sweep{From: -4, To: 4, Step: 4})
+	assert.Equal(t, loads.VerdictNotVerified, r.Verdict)
 	require.Len(t, r.Reports, 1)
 	rep := r.Reports[0]
 	assert.Equal(t, []string{"side"}, rep.UnratedLoaded)
@@ -157,8 +157,8 @@ func TestUnratedComponents(t *testing.T) {
 	for _, p := range rep.Points {
 		require.Len(t, p.Rows, 6)
 		for i, row := range p.Rows {
-			assert.Equal(t, facilities.ComponentName(i), row.Name)
-			assert.Equal(t, i == facilities.IndexNormal || i == facilities.IndexAxial || i == facilities.IndexPitchingMoment, row.Rated, row.Name)
+			assert.Equal(t, loads.ComponentName(i), row.Name)
+			assert.Equal(t, i == loads.IndexNormal || i == loads.IndexAxial || i == loads.IndexPitchingMoment, row.Rated, row.Name)
 		}
 	}
 }

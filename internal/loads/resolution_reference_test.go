@@ -33,7 +33,7 @@ func TestResolutionPlanAgainstSearchRandom(t *testing.T) {
 		c := llrRandomCase(rng, i)
 		c.name = "res-" + c.name
 		u := func(lo, hi float64) float64 { return lo + (hi-lo)*rng.Float64() }
-		c.res = &facilities.Resolution{CDCounts: llrFloat(math.Exp(u(math.Log(8), math.Log(250)))), CL: llrFloat(math.Exp(u(math.Log(0.004), math.Log(0.08))))}
+		c.res = &loads.Resolution{CDCounts: llrFloat(math.Exp(u(math.Log(8), math.Log(250)))), CL: llrFloat(math.Exp(u(math.Log(0.004), math.Log(0.08))))}
 		if rng.IntN(3) == 0 {
 			c.res.Cm = llrFloat(math.Exp(u(math.Log(0.001), math.Log(0.04))))
 		}
@@ -117,7 +117,7 @@ func TestResolutionFloorHand(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	ll, err := loads.NewLimit(art, &f, facilities.Installation{BalanceID: "int-b1", ModelMass: 20}, mx)
+	ll, err := loads.NewLimit(art, &f, loads.Installation{BalanceID: "int-b1", ModelMass: 20}, mx)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -125,7 +125,7 @@ func TestResolutionFloorHand(t *testing.T) {
 		counts, want float64
 	}{{1, 173589}, {2, 86795}} {
 		t.Run(fmt.Sprintf("%g counts", c.counts), func(t *testing.T) {
-			ll.Resolve(&facilities.Resolution{CDCounts: &c.counts})
+			ll.Resolve(&loads.Resolution{CDCounts: &c.counts})
 			st := facilities.State{Mach: 0.3}
 			got := ll.MinDynamicPressure(1.0/24, st)
 			if math.Abs(got/c.want-1) > 1e-5 {

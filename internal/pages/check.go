@@ -6,6 +6,7 @@ import (
 	"math"
 	"net/http"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"slices"
 	"strconv"
 	"strings"
@@ -97,7 +98,7 @@ func checkForm(fs []facilities.Facility) []fieldset {
 // checkResult is the verdict and loads of a check.
 type checkResult struct {
 	FromPlan string
-	// Verdict is the answer's verdict (facilities.Verdict*).
+	// Verdict is the answer's verdict (loads.Verdict*).
 	Verdict string
 	Fits    bool
 	// FitBroken are the test-section limits the model breaks; Violations the
@@ -240,7 +241,7 @@ func (p *Pages) runCheck(r *http.Request, values map[string]string) (*checkResul
 	}
 	reports := resp.Loads.All
 	if resp.Loads.One != nil {
-		reports = []facilities.LoadReport{*resp.Loads.One}
+		reports = []loads.Report{*resp.Loads.One}
 	}
 	res := &checkResult{Verdict: resp.Verdict, Fits: len(resp.FitBroken) == 0 && len(resp.Violations) == 0, FitBroken: resp.FitBroken,
 		Violations: resp.Violations, Cautions: resp.Cautions, Warnings: resp.Warnings}
@@ -266,14 +267,14 @@ func planResult(plan *schema.PlanResponse, f *facilities.Facility) (*checkResult
 		Cautions: plan.Cautions, Warnings: plan.Warnings}
 	res.Test.Mach, res.Test.Speed, res.Test.DynamicPressure, res.Test.Reynolds = plan.Test.Mach, plan.Test.Speed, plan.Test.DynamicPressure, plan.Test.Reynolds
 	res.Model.ReferenceLength, res.Model.Blockage = plan.Model.ReferenceLength, plan.Model.Blockage
-	if err := res.addLoads(f, plan.ID, []facilities.LoadReport{*plan.Loads}); err != nil {
+	if err := res.addLoads(f, plan.ID, []loads.Report{*plan.Loads}); err != nil {
 		return nil, err
 	}
 	return res, nil
 }
 
 // addLoads adds the reports, their verdict and a chart of each.
-func (res *checkResult) addLoads(f *facilities.Facility, planID string, reports []facilities.LoadReport) error {
+func (res *checkResult) addLoads(f *facilities.Facility, planID string, reports []loads.Report) error {
 	res.WithinLoads = len(reports) > 0
 	var parts []string
 	for _, rep := range reports {
@@ -290,12 +291,12 @@ func (res *checkResult) addLoads(f *facilities.Facility, planID string, reports 
 			return err
 		}
 		res.Loads = append(res.Loads, loadsView{Report: rep, Chart: u, ChartTitle: c.Title})
-		res.WithinLoads = res.WithinLoads && rep.Verdict == facilities.VerdictWithin
+		res.WithinLoads = res.WithinLoads && rep.Verdict == loads.VerdictWithin
 		word := "within"
 		switch rep.Verdict {
-		case facilities.VerdictOver:
+		case loads.VerdictOver:
 			word = "OVER"
-		case facilities.VerdictNotVerified:
+		case loads.VerdictNotVerified:
 			word = "NOT VERIFIED"
 			if len(rep.UnratedLoaded) > 0 {
 				word += " (no rating for " + strings.Join(rep.UnratedLoaded, ", ") + ")"

@@ -28,6 +28,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/app"
 	"scalematch/internal/charts"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 
@@ -135,7 +136,7 @@ func funcs() template.FuncMap {
 		"row":     func(s string) string { return strings.ReplaceAll(s, "_", " ") },
 		"verdict": verdictWords,
 		"utc":     func(t time.Time) string { return t.UTC().Format("2006-01-02 15:04:05") },
-		"safeq": func(c facilities.Ceiling) string {
+		"safeq": func(c loads.Ceiling) string {
 			q := float64(c)
 			switch {
 			case math.IsInf(q, 1):
@@ -286,7 +287,7 @@ type chartView struct{ URL, PDF, Alt string }
 // loadsView is one balance's loads: the report, and an inline chart on the
 // load-check page.
 type loadsView struct {
-	Report     facilities.LoadReport
+	Report     loads.Report
 	Chart      template.URL
 	ChartTitle string
 }
@@ -342,15 +343,15 @@ func dataURL(c *charts.Chart) (template.URL, error) {
 	return template.URL("data:image/svg+xml;base64," + base64.StdEncoding.EncodeToString(b)), nil
 }
 
-// verdictWords says a load verdict (facilities.Verdict*) to facility staff,
+// verdictWords says a load verdict (loads.Verdict*) to facility staff,
 // worded to its danger.
 func verdictWords(v string) string {
 	switch v {
-	case facilities.VerdictWithin:
+	case loads.VerdictWithin:
 		return "Within the allowed loads (rating ÷ safety factor) on every rated component and gauge row, by this estimate."
-	case facilities.VerdictOver:
+	case loads.VerdictOver:
 		return "Over the allowed load: do not run the points marked OVER."
-	case facilities.VerdictDoesNotFit:
+	case loads.VerdictDoesNotFit:
 		return "Does not fit the test section: do not install the model."
 	}
 	return "Not verified: a loaded component has no rating, the weight was left out, or there is no balance; do not run until the loads are verified."

@@ -1,9 +1,10 @@
-package facilities_test
+package loads_test
 
 import (
 	"fmt"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
 
 // A 0.3 m² model on the demo balance int-a of lsw-2, its moment reference centre
@@ -11,10 +12,10 @@ import (
 // N = 3000·0.3·0.2 − 12·9.80665 = 180 − 117.68 = 62.32 N; A = 900·0.03 = 27 N;
 // m = 900·0.25·0.04 + 180·0.05 = 9 + 9 = 18 N·m, 18/280 = 0.0643 of the rating. The
 // output below is a regression value (the program's own output), checked by hand at α 0.
-func ExampleLoadCase_Check() {
+func ExampleSetup_Check() {
 	f, _ := facilities.DemoFacility("lsw-2")
-	lc := facilities.LoadCase{ReferenceArea: 0.3, ReferenceLength: 0.25,
-		Installation: facilities.Installation{BalanceOffset: facilities.Offset{X: 0.05}, ModelMass: 12},
+	lc := loads.Setup{ReferenceArea: 0.3, ReferenceLength: 0.25,
+		Installation: loads.Installation{BalanceOffset: loads.Offset{X: 0.05}, ModelMass: 12},
 		Points: []facilities.Point{
 			{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.2, CD: 0.03, Cm: 0.04}},
 			{Alpha: 12, Coefficients: facilities.Coefficients{CL: 1.2, CD: 0.09, Cm: -0.1}},

@@ -1,8 +1,9 @@
-package facilities
+package loads
 
 import (
 	"fmt"
 	"math"
+	"scalematch/facilities"
 )
 
 // Resolution is the coarsest 2σ uncertainty of each coefficient a test can
@@ -73,12 +74,12 @@ func (r *Resolution) Empty() bool { return r == nil || len(r.terms()) == 0 }
 
 // FieldErrors returns the problems of the resolution under prefix (e.g.
 // "required_resolution"): each given figure within its bound, and at least one.
-func (r *Resolution) FieldErrors(prefix string) []FieldError {
-	var fe []FieldError
+func (r *Resolution) FieldErrors(prefix string) []facilities.FieldError {
+	var fe []facilities.FieldError
 	for _, t := range []struct {
 		name string
 		v    *float64
-		b    Bound
+		b    facilities.Bound
 	}{{"cl", r.CL, BoundResolutionCoefficient}, {"cd_counts", r.CDCounts, BoundResolutionCounts},
 		{"cm", r.Cm, BoundResolutionCoefficient}, {"cy", r.CY, BoundResolutionCoefficient},
 		{"cl_roll", r.Cl, BoundResolutionCoefficient}, {"cn", r.Cn, BoundResolutionCoefficient}} {
@@ -87,7 +88,7 @@ func (r *Resolution) FieldErrors(prefix string) []FieldError {
 		}
 	}
 	if r.Empty() {
-		fe = append(fe, FieldError{Field: prefix, Message: "give at least one of cl, cd_counts, cm, cy, cl_roll, cn, or leave it out"})
+		fe = append(fe, facilities.FieldError{Field: prefix, Message: "give at least one of cl, cd_counts, cm, cy, cl_roll, cn, or leave it out"})
 	}
 	return fe
 }
@@ -105,7 +106,7 @@ func (r *Resolution) FieldErrors(prefix string) []FieldError {
 //
 // the larger over the asked coefficients. unknown names the asked coefficients
 // whose uncertainty is not known (then the need is +Inf).
-func (r *Resolution) Need(d Load, known [6]bool, alphaDeg float64) (force, moment float64, unknown []string) {
+func (r *Resolution) Need(d Vector, known [6]bool, alphaDeg float64) (force, moment float64, unknown []string) {
 	u, unk := CoefficientUncertainty(d, known, alphaDeg, 1, 1, 1)
 	for _, t := range r.terms() {
 		var per float64 // uncertainty at q_c·S = 1 N (or q_c·S·c = 1 N·m)
@@ -163,13 +164,13 @@ type ResolutionCheck struct {
 
 // resolution checks the required resolution on balance b at free-stream
 // dynamic pressure q (Pa).
-func (lc *LoadCase) resolution(b *Balance, q float64) *ResolutionCheck {
+func (lc *Setup) resolution(b *facilities.Balance, q float64) *ResolutionCheck {
 	res := lc.Resolution
 	rc := &ResolutionCheck{Required: *res}
-	var d Load
+	var d Vector
 	var known [6]bool
 	if b.Accuracy != nil {
-		d, known = b.Accuracy.Load(&b.Limits)
+		d, known = AccuracyOf(b)
 	}
 	seen := map[string]bool{}
 	for i, p := range lc.Points {
@@ -211,7 +212,7 @@ func (lc *LoadCase) resolution(b *Balance, q float64) *ResolutionCheck {
 
 // limitingName returns the asked coefficient with the largest need at a point:
 // among the force coefficients when force is true, else among the moments.
-func (r *Resolution) limitingName(alphaDeg float64, d Load, known [6]bool, force bool) string {
+func (r *Resolution) limitingName(alphaDeg float64, d Vector, known [6]bool, force bool) string {
 	u, _ := CoefficientUncertainty(d, known, alphaDeg, 1, 1, 1)
 	best, name := -1.0, ""
 	for _, t := range r.terms() {

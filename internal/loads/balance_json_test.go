@@ -1,16 +1,15 @@
-package facilities_test
+package loads_test
 
 import (
 	"bytes"
 	"encoding/json"
 	"math"
 	"math/rand/v2"
+	"scalematch/internal/loads"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
-
-	"scalematch/facilities"
 )
 
 // TestCeilingJSON checks how a load report writes and reads its
@@ -31,31 +30,31 @@ func TestCeilingJSON(t *testing.T) {
 		{"no bound", math.Inf(1), "null"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			r := facilities.LoadReport{BalanceID: "int-b1", MaxSafeDynamicPressure: facilities.Ceiling(c.v),
-				Points: []facilities.LoadPoint{{Alpha: 2}}}
+			r := loads.Report{BalanceID: "int-b1", MaxSafeDynamicPressure: loads.Ceiling(c.v),
+				Points: []loads.PointResult{{Alpha: 2}}}
 			b, err := json.Marshal(&r)
 			require.NoError(t, err)
 			assert.True(t, bytes.HasSuffix(b, []byte(`,"max_safe_dynamic_pressure":`+c.want+"}")), "%s", b)
-			var back facilities.LoadReport
+			var back loads.Report
 			require.NoError(t, json.Unmarshal(b, &back))
 			assert.Equal(t, c.v, float64(back.MaxSafeDynamicPressure))
 		})
 	}
 	for _, v := range []float64{math.NaN(), math.Inf(-1)} {
-		_, err := json.Marshal(facilities.LoadReport{MaxSafeDynamicPressure: facilities.Ceiling(v)})
+		_, err := json.Marshal(loads.Report{MaxSafeDynamicPressure: loads.Ceiling(v)})
 		assert.Error(t, err, "%g", v)
 	}
-	_, err := json.Marshal(facilities.LoadReport{MaxUtilization: math.NaN(), MaxSafeDynamicPressure: facilities.Ceiling(math.Inf(1))})
+	_, err := json.Marshal(loads.Report{MaxUtilization: math.NaN(), MaxSafeDynamicPressure: loads.Ceiling(math.Inf(1))})
 	assert.Error(t, err, "a NaN elsewhere in the report")
 }
 
-// BenchmarkLoadReportJSON encodes a 21-point load report (encoding/json).
-func BenchmarkLoadReportJSON(b *testing.B) {
+// BenchmarkReportJSON encodes a 21-point load report (encoding/json).
+func BenchmarkReportJSON(b *testing.B) {
 	rng := rand.New(rand.NewPCG(1, 2))
-	r := facilities.LoadReport{BalanceID: "int-b1", SafetyFactor: 1.5, AllowedUtilization: 1 / 1.5, DynamicPressure: 54000,
-		MaxSafeDynamicPressure: 54000.00000000001, Points: make([]facilities.LoadPoint, 21)}
+	r := loads.Report{BalanceID: "int-b1", SafetyFactor: 1.5, AllowedUtilization: 1 / 1.5, DynamicPressure: 54000,
+		MaxSafeDynamicPressure: 54000.00000000001, Points: make([]loads.PointResult, 21)}
 	for i := range r.Points {
-		r.Points[i] = facilities.LoadPoint{Alpha: float64(i - 4), DynamicPressure: 54000, Normal: 6000 * rng.Float64(),
+		r.Points[i] = loads.PointResult{Alpha: float64(i - 4), DynamicPressure: 54000, Normal: 6000 * rng.Float64(),
 			Axial: 800 * rng.Float64(), PitchingMoment: 100 * rng.Float64(), Utilization: rng.Float64(), Limiting: "axial"}
 	}
 	b.ReportAllocs()

@@ -1,4 +1,4 @@
-package facilities_test
+package loads_test
 
 import (
 	"math"
@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
 
 // TestBuoyancy checks the weight, buoyancy and net of a model in water, worked by
@@ -24,7 +25,7 @@ func TestBuoyancy(t *testing.T) {
 	tests := []struct {
 		name      string
 		f         *facilities.Facility
-		in        facilities.Installation
+		in        loads.Installation
 		frontal   float64 // m²
 		length    float64 // m
 		nilWant   bool
@@ -35,17 +36,17 @@ func TestBuoyancy(t *testing.T) {
 		loadCheck bool
 	}{
 		// 40 kg, 0.019 m³: W = 392.266 N, B = 994.37·9.80665·0.019 = 185.28 N.
-		{"given volume", water, facilities.Installation{ModelMass: 40, ModelVolume: 0.019}, 0.05, 1.2, false,
+		{"given volume", water, loads.Installation{ModelMass: 40, ModelVolume: 0.019}, 0.05, 1.2, false,
 			0.019, "given", 185.28, 392.266 - 185.28, true},
 		// 0.65·0.02·0.5 = 0.0065 m³: B = 994.37·9.80665·0.0065 = 63.386 N.
-		{"estimated volume", water, facilities.Installation{ModelMass: 5}, 0.02, 0.5, false,
+		{"estimated volume", water, loads.Installation{ModelMass: 5}, 0.02, 0.5, false,
 			0.0065, "estimated", 63.386, 49.033 - 63.386, false},
-		{"gas facility", air, facilities.Installation{ModelMass: 5, ModelVolume: 1}, 0.02, 0.5, true, 0, "", 0, 0, false},
-		{"no volume, no length", water, facilities.Installation{ModelMass: 5}, 0.02, 0, true, 0, "", 0, 0, false},
+		{"gas facility", air, loads.Installation{ModelMass: 5, ModelVolume: 1}, 0.02, 0.5, true, 0, "", 0, 0, false},
+		{"no volume, no length", water, loads.Installation{ModelMass: 5}, 0.02, 0, true, 0, "", 0, 0, false},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			b := facilities.BuoyancyOf(tc.f, tc.in, tc.frontal, tc.length)
+			b := loads.BuoyancyOf(tc.f, tc.in, tc.frontal, tc.length)
 			if tc.nilWant {
 				assert.Nil(t, b)
 				return
@@ -60,9 +61,9 @@ func TestBuoyancy(t *testing.T) {
 		})
 	}
 	// The weight loads carry the net weight: N_w = −(W − B)·cos α at α 10°.
-	in := facilities.Installation{ModelMass: 40, ModelVolume: 0.019}.WithBuoyancy(water)
-	l := in.WeightLoads(10)
-	assert.InDelta(t, -(392.266-185.28)*math.Cos(10*math.Pi/180), l[facilities.IndexNormal], 0.01)
-	dry := facilities.Installation{ModelMass: 40, ModelVolume: 0.019}.WithBuoyancy(air)
-	assert.InDelta(t, -392.266*math.Cos(10*math.Pi/180), dry.WeightLoads(10)[facilities.IndexNormal], 0.001)
+	in := loads.Installation{ModelMass: 40, ModelVolume: 0.019}.WithBuoyancy(water)
+	l := in.Weight(10)
+	assert.InDelta(t, -(392.266-185.28)*math.Cos(10*math.Pi/180), l[loads.IndexNormal], 0.01)
+	dry := loads.Installation{ModelMass: 40, ModelVolume: 0.019}.WithBuoyancy(air)
+	assert.InDelta(t, -392.266*math.Cos(10*math.Pi/180), dry.Weight(10)[loads.IndexNormal], 0.001)
 }

@@ -1,4 +1,4 @@
-package facilities_test
+package loads_test
 
 import (
 	"encoding/json"
@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -38,83 +39,83 @@ func onePoint(alpha float64, c facilities.Coefficients) []facilities.Point {
 func TestLoadsSigns(t *testing.T) {
 	cases := []struct {
 		name string
-		lc   facilities.LoadCase
+		lc   loads.Setup
 		q    float64
-		want facilities.LoadPoint
+		want loads.PointResult
 		tol  float64
 	}{{
 		// Pure lift at α = 0 with the moment reference centre 0.1 m ahead of the
 		// balance: N = 1000 N; m = N·Δx = +100 N·m, nose-up.
 		name: "normal force ahead is nose-up",
-		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: facilities.Installation{BalanceOffset: facilities.Offset{X: 0.1}},
+		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: loads.Installation{BalanceOffset: loads.Offset{X: 0.1}},
 			Points:       onePoint(0, facilities.Coefficients{CL: 1})},
 		q:    1000,
-		want: facilities.LoadPoint{Normal: 1000, PitchingMoment: 100},
+		want: loads.PointResult{Normal: 1000, PitchingMoment: 100},
 		tol:  1e-9,
 	}, {
 		// Pure drag at α = 0 with the reference centre 0.2 m above the balance:
 		// A = 50 N aft; m = A·Δz = +10 N·m (drag above the centre pitches nose-up).
 		name: "axial force above is nose-up",
-		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: facilities.Installation{BalanceOffset: facilities.Offset{Z: 0.2}},
+		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: loads.Installation{BalanceOffset: loads.Offset{Z: 0.2}},
 			Points:       onePoint(0, facilities.Coefficients{CD: 0.05})},
 		q:    1000,
-		want: facilities.LoadPoint{Axial: 50, PitchingMoment: 10},
+		want: loads.PointResult{Axial: 50, PitchingMoment: 10},
 		tol:  1e-9,
 	}, {
 		// Lift at α = 90°: the lift points along −x body, so A = −L = −1000 N, N = 0.
 		name: "lift at 90 degrees is forward axial",
-		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
 			Points: onePoint(90, facilities.Coefficients{CL: 1})},
 		q:    1000,
-		want: facilities.LoadPoint{Alpha: 90, Axial: -1000},
+		want: loads.PointResult{Alpha: 90, Axial: -1000},
 		tol:  1e-9,
 	}, {
 		// Weight alone at α = 0: W = 10 kg·9.80665 = 98.0665 N down, N = −98.0665 N;
 		// CG 0.2 m ahead: m = −98.0665·0.2 = −19.6133 N·m, nose-down.
 		name: "weight at alpha 0",
-		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: facilities.Installation{ModelMass: 10, CGOffset: facilities.Offset{X: 0.2, Z: 0.1}},
+		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: loads.Installation{ModelMass: 10, CGOffset: loads.Offset{X: 0.2, Z: 0.1}},
 			Points:       onePoint(0, facilities.Coefficients{CL: 1, CD: 1})},
 		q:    0,
-		want: facilities.LoadPoint{Normal: -98.0665, PitchingMoment: -19.6133},
+		want: loads.PointResult{Normal: -98.0665, PitchingMoment: -19.6133},
 		tol:  1e-9,
 	}, {
 		// Weight alone at α = 90° (nose up, vertical): A = +98.0665 N (aft along the
 		// body); CG 0.1 m above the balance: m = A·z = +9.80665 N·m.
 		name: "weight at alpha 90",
-		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: facilities.Installation{ModelMass: 10, CGOffset: facilities.Offset{X: 0.2, Z: 0.1}},
+		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: loads.Installation{ModelMass: 10, CGOffset: loads.Offset{X: 0.2, Z: 0.1}},
 			Points:       onePoint(90, facilities.Coefficients{})},
 		q:    0,
-		want: facilities.LoadPoint{Alpha: 90, Axial: 98.0665, PitchingMoment: 9.80665},
+		want: loads.PointResult{Alpha: 90, Axial: 98.0665, PitchingMoment: 9.80665},
 		tol:  1e-9,
 	}, {
 		// Side force ahead of and above the balance: Y = 200 N to starboard,
 		// n = Y·Δx = +60 N·m (nose to starboard), l = Y·Δz = +20 N·m (starboard down).
 		name: "side force transfer",
-		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: facilities.Installation{BalanceOffset: facilities.Offset{X: 0.3, Z: 0.1}},
+		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
+			Installation: loads.Installation{BalanceOffset: loads.Offset{X: 0.3, Z: 0.1}},
 			Points:       onePoint(0, facilities.Coefficients{CY: 0.2})},
 		q:    1000,
-		want: facilities.LoadPoint{Side: 200, YawingMoment: 60, RollingMoment: 20},
+		want: loads.PointResult{Side: 200, YawingMoment: 60, RollingMoment: 20},
 		tol:  1e-9,
 	}, {
 		// Drag at β = 10°: A = D·cos β = 984.808 N, Y = −D·sin β = −173.648 N.
 		name: "drag in sideslip",
-		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
 			Points: []facilities.Point{{Beta: 10, Coefficients: facilities.Coefficients{CD: 1}}}},
 		q:    1000,
-		want: facilities.LoadPoint{Beta: 10, Axial: 984.807753, Side: -173.648178},
+		want: loads.PointResult{Beta: 10, Axial: 984.807753, Side: -173.648178},
 		tol:  1e-6,
 	}, {
 		// Wall correction: q_c = 1.1·q, so N = 1.1·1000 N and the point's q is 1100 Pa.
 		name: "corrected dynamic pressure",
-		lc: facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
 			Points: []facilities.Point{{Coefficients: facilities.Coefficients{CL: 1}, DynamicPressureFactor: 1.1}}},
 		q:    1000,
-		want: facilities.LoadPoint{Normal: 1100},
+		want: loads.PointResult{Normal: 1100},
 		tol:  1e-9,
 	}}
 	b := sixComponent()
@@ -148,7 +149,7 @@ func TestLoadsSigns(t *testing.T) {
 // the forward gauge 0.5·N + 4·m = 3000 + 3200 = 6200 N against 5800 N is 107 %.
 func TestGaugeRowBinds(t *testing.T) {
 	b := sixComponent()
-	lc := facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1,
+	lc := loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
 		Points: onePoint(0, facilities.Coefficients{CL: 6, Cm: 0.8})}
 	r, err := lc.Check(&b, 1000)
 	if err != nil {
@@ -170,14 +171,14 @@ func TestGaugeRowBinds(t *testing.T) {
 }
 
 // randomCase builds a seeded random load case over a 21-point α sweep.
-func randomCase(rng *rand.Rand, scale float64, weight bool) facilities.LoadCase {
-	lc := facilities.LoadCase{ReferenceArea: 85 * scale * scale, ReferenceLength: 3.9 * scale,
-		Installation: facilities.Installation{
-			BalanceOffset: facilities.Offset{X: scale * (rng.Float64() - 0.5), Z: scale * (rng.Float64() - 0.5) * 0.2},
+func randomCase(rng *rand.Rand, scale float64, weight bool) loads.Setup {
+	lc := loads.Setup{ReferenceArea: 85 * scale * scale, ReferenceLength: 3.9 * scale,
+		Installation: loads.Installation{
+			BalanceOffset: loads.Offset{X: scale * (rng.Float64() - 0.5), Z: scale * (rng.Float64() - 0.5) * 0.2},
 		}}
 	if weight {
 		lc.Installation.ModelMass = 5 + 40*rng.Float64()
-		lc.Installation.CGOffset = facilities.Offset{X: 0.1 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)}
+		lc.Installation.CGOffset = loads.Offset{X: 0.1 * (rng.Float64() - 0.5), Z: 0.02 * (rng.Float64() - 0.5)}
 	}
 	for i := range 21 {
 		a := -4 + float64(i)
@@ -261,8 +262,8 @@ func TestMaxSafeDynamicPressure(t *testing.T) {
 func TestWeightAloneBreaks(t *testing.T) {
 	b := facilities.Balance{ID: "small", Limits: facilities.Limits{Normal: ptr(100)}, SafetyFactor: 2}
 	// W = 12 kg·9.80665 = 117.7 N, above 100/2 = 50 N allowed.
-	lc := facilities.LoadCase{ReferenceArea: 0.1, ReferenceLength: 0.2,
-		Installation: facilities.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
+	lc := loads.Setup{ReferenceArea: 0.1, ReferenceLength: 0.2,
+		Installation: loads.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
 	r, err := lc.Check(&b, 10)
 	if err != nil {
 		t.Fatal(err)
@@ -274,7 +275,7 @@ func TestWeightAloneBreaks(t *testing.T) {
 
 func TestUnlimitedJSON(t *testing.T) {
 	b := facilities.Balance{ID: "free"}
-	lc := facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1, Points: onePoint(0, facilities.Coefficients{CL: 1})}
+	lc := loads.Setup{ReferenceArea: 1, ReferenceLength: 1, Points: onePoint(0, facilities.Coefficients{CL: 1})}
 	r, err := lc.Check(&b, 1000)
 	if err != nil {
 		t.Fatal(err)
@@ -295,25 +296,25 @@ func TestUnlimitedJSON(t *testing.T) {
 }
 
 func TestLoadErrors(t *testing.T) {
-	good := func() facilities.LoadCase {
-		return facilities.LoadCase{ReferenceArea: 1, ReferenceLength: 1, Points: onePoint(0, facilities.Coefficients{CL: 1})}
+	good := func() loads.Setup {
+		return loads.Setup{ReferenceArea: 1, ReferenceLength: 1, Points: onePoint(0, facilities.Coefficients{CL: 1})}
 	}
 	cases := []struct {
 		name  string
-		mod   func(*facilities.LoadCase, *facilities.Balance)
+		mod   func(*loads.Setup, *facilities.Balance)
 		q     float64
 		field string
 	}{
-		{"negative mass", func(l *facilities.LoadCase, _ *facilities.Balance) { l.Installation.ModelMass = -1 }, 1, "installation.model_mass"},
-		{"NaN offset", func(l *facilities.LoadCase, _ *facilities.Balance) { l.Installation.CGOffset.X = math.NaN() }, 1, "installation.cg_offset.x"},
-		{"zero area", func(l *facilities.LoadCase, _ *facilities.Balance) { l.ReferenceArea = 0 }, 1, "article.reference_area"},
-		{"negative q", func(*facilities.LoadCase, *facilities.Balance) {}, -5, "test.dynamic_pressure"},
-		{"no points", func(l *facilities.LoadCase, _ *facilities.Balance) { l.Points = nil }, 1, "alpha"},
-		{"unknown gauge component", func(_ *facilities.LoadCase, b *facilities.Balance) {
+		{"negative mass", func(l *loads.Setup, _ *facilities.Balance) { l.Installation.ModelMass = -1 }, 1, "installation.model_mass"},
+		{"NaN offset", func(l *loads.Setup, _ *facilities.Balance) { l.Installation.CGOffset.X = math.NaN() }, 1, "installation.cg_offset.x"},
+		{"zero area", func(l *loads.Setup, _ *facilities.Balance) { l.ReferenceArea = 0 }, 1, "article.reference_area"},
+		{"negative q", func(*loads.Setup, *facilities.Balance) {}, -5, "test.dynamic_pressure"},
+		{"no points", func(l *loads.Setup, _ *facilities.Balance) { l.Points = nil }, 1, "alpha"},
+		{"unknown gauge component", func(_ *loads.Setup, b *facilities.Balance) {
 			b.Combined[0].Coefficients["lift"] = 1
 		}, 1, "balance.combined[0].coefficients.lift"},
-		{"safety factor below 1", func(_ *facilities.LoadCase, b *facilities.Balance) { b.SafetyFactor = 0.5 }, 1, "balance.safety_factor"},
-		{"zero rating", func(_ *facilities.LoadCase, b *facilities.Balance) { b.Limits.Axial = ptr(0) }, 1, "balance.limits.axial"},
+		{"safety factor below 1", func(_ *loads.Setup, b *facilities.Balance) { b.SafetyFactor = 0.5 }, 1, "balance.safety_factor"},
+		{"zero rating", func(_ *loads.Setup, b *facilities.Balance) { b.Limits.Axial = ptr(0) }, 1, "balance.limits.axial"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -335,13 +336,13 @@ func TestLoadErrors(t *testing.T) {
 	}
 }
 
-func benchCase(n int) facilities.LoadCase {
+func benchCase(n int) loads.Setup {
 	lc := randomCase(rand.New(rand.NewPCG(3, 5)), 0.05, true)
 	lc.Points = lc.Points[:min(n, len(lc.Points))]
 	return lc
 }
 
-func BenchmarkCheck21(b *testing.B) {
+func BenchmarkSetupCheck21(b *testing.B) {
 	lc := benchCase(21)
 	bal := sixComponent()
 	b.ReportAllocs()
@@ -356,12 +357,12 @@ func BenchmarkCheck21(b *testing.B) {
 func BenchmarkRatingsMaxDynamicPressure21(b *testing.B) {
 	lc := benchCase(21)
 	bal := sixComponent()
-	rs, err := bal.Ratings()
+	rs, err := loads.NewRatings(&bal)
 	if err != nil {
 		b.Fatal(err)
 	}
-	perQ := make([]facilities.Load, 21)
-	weight := make([]facilities.Load, 21)
+	perQ := make([]loads.Vector, 21)
+	weight := make([]loads.Vector, 21)
 	for i := range perQ {
 		perQ[i], weight[i] = lc.Affine(i)
 	}
@@ -395,7 +396,7 @@ func TestSafeDynamicPressure(t *testing.T) {
 		{"no aerodynamic load", 0, 10, 100, math.Inf(1)},
 	}
 	for _, c := range cases {
-		if got := facilities.SafeDynamicPressure(c.u, c.w, c.allowed); got != c.q {
+		if got := loads.SafeDynamicPressure(c.u, c.w, c.allowed); got != c.q {
 			t.Errorf("%s: q = %g, want %g", c.name, got, c.q)
 		}
 	}
@@ -409,8 +410,8 @@ func TestSafeDynamicPressure(t *testing.T) {
 // = 2353.6 Pa.
 func TestWeightCancelledByLiftIsNotSafe(t *testing.T) {
 	b := facilities.Balance{ID: "small", Limits: facilities.Limits{Normal: ptr(100)}, SafetyFactor: 2}
-	lc := facilities.LoadCase{ReferenceArea: 0.1, ReferenceLength: 0.2,
-		Installation: facilities.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
+	lc := loads.Setup{ReferenceArea: 0.1, ReferenceLength: 0.2,
+		Installation: loads.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
 	q := 12 * 9.80665 / (0.1 * 0.5)
 	r, err := lc.Check(&b, q)
 	if err != nil {
@@ -438,13 +439,13 @@ func TestInstallationValidateBounds(t *testing.T) {
 	t.Parallel()
 	cases := []struct {
 		name  string
-		in    facilities.Installation
+		in    loads.Installation
 		field string
 	}{
-		{"offset beyond 100 m", facilities.Installation{CGOffset: facilities.Offset{X: 1e3}}, "installation.cg_offset.x"},
-		{"balance offset not finite", facilities.Installation{BalanceOffset: facilities.Offset{Z: math.Inf(-1)}}, "installation.balance_offset.z"},
-		{"model mass beyond 1e5 kg", facilities.Installation{ModelMass: 1e9}, "installation.model_mass"},
-		{"negative volume", facilities.Installation{ModelVolume: -1}, "installation.model_volume"},
+		{"offset beyond 100 m", loads.Installation{CGOffset: loads.Offset{X: 1e3}}, "installation.cg_offset.x"},
+		{"balance offset not finite", loads.Installation{BalanceOffset: loads.Offset{Z: math.Inf(-1)}}, "installation.balance_offset.z"},
+		{"model mass beyond 1e5 kg", loads.Installation{ModelMass: 1e9}, "installation.model_mass"},
+		{"negative volume", loads.Installation{ModelVolume: -1}, "installation.model_volume"},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -455,5 +456,5 @@ func TestInstallationValidateBounds(t *testing.T) {
 			assert.Equal(t, tc.field, de.Fields[0].Field)
 		})
 	}
-	assert.NoError(t, facilities.Installation{ModelMass: 20, CGOffset: facilities.Offset{X: 0.1, Z: -0.02}}.Validate())
+	assert.NoError(t, loads.Installation{ModelMass: 20, CGOffset: loads.Offset{X: 0.1, Z: -0.02}}.Validate())
 }

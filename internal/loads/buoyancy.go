@@ -1,13 +1,11 @@
-package facilities
+package loads
 
 import (
 	"fmt"
 	"math"
 	"scalematch/atmosphere"
+	"scalematch/facilities"
 )
-
-// BoundModelVolume bounds installation.model_volume, m³ (0: not given).
-var BoundModelVolume = Bound{Min: 0, Max: 1e3, Unit: "m³"}
 
 // HullVolumeCoefficient is the share of the box "frontal area × overall length" a
 // streamlined hull, strut or foil fills, used to estimate a model's volume when the
@@ -19,17 +17,17 @@ const HullVolumeCoefficient = 0.65
 // highest temperature: the smallest buoyancy over its range (within 0.6 % of any
 // other between 8 and 34 °C), which the planner's load limit and the load report
 // both take, so that they agree. 0 for a gas facility.
-func BuoyancyDensity(f *Facility) float64 {
+func BuoyancyDensity(f *facilities.Facility) float64 {
 	if f == nil || !f.Medium.IsLiquid() {
 		return 0
 	}
-	return WaterDensity(f.StagnationTemperature.Max)
+	return facilities.WaterDensity(f.StagnationTemperature.Max)
 }
 
 // WithBuoyancy returns the installation with its Buoyancy set for facility f: the
 // upthrust ρ·g0·V of its ModelVolume in f's water (BuoyancyDensity); unchanged in
 // a gas facility or without a volume.
-func (in Installation) WithBuoyancy(f *Facility) Installation {
+func (in Installation) WithBuoyancy(f *facilities.Facility) Installation {
 	if rho := BuoyancyDensity(f); rho > 0 && in.ModelVolume > 0 {
 		in.Buoyancy = rho * atmosphere.G0 * in.ModelVolume
 	}
@@ -65,7 +63,7 @@ type Buoyancy struct {
 // when neither a volume nor a length for the estimate exists. The buoyancy acts
 // up at the centre of gravity (cg_offset): a centre of buoyancy elsewhere adds a
 // pitching moment this estimate leaves out.
-func BuoyancyOf(f *Facility, in Installation, frontal, length float64) *Buoyancy {
+func BuoyancyOf(f *facilities.Facility, in Installation, frontal, length float64) *Buoyancy {
 	rho := BuoyancyDensity(f)
 	if rho == 0 {
 		return nil
@@ -95,6 +93,3 @@ func (b *Buoyancy) Note() string {
 	return fmt.Sprintf("buoyancy estimated at %.4g N from a model volume of %.4g m³ (%.2f × frontal area × overall length, an estimate): net weight %.4g N; it is not in the balance loads: give installation.model_volume (m³) to include it",
 		b.Buoyancy, b.ModelVolume, HullVolumeCoefficient, b.Net)
 }
-
-// CautionWaterLoads is the caution of every load check in a water facility.
-const CautionWaterLoads = "These are steady-load estimates in water: cavitation, added-mass and unsteady flow loads can be larger and fluctuate; the balance must be waterproofed and electrically isolated for immersion and checked before filling. The facility's approved limits, procedures and licensed engineering judgement govern."

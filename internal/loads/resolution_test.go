@@ -1,4 +1,4 @@
-package facilities_test
+package loads_test
 
 import (
 	"testing"
@@ -7,16 +7,8 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
-
-func fptr(v float64) *float64 { return &v }
-
-// j16Case is the 1:24 demo business jet (S = 36.5/576 = 0.0633681 m², c = 0.1 m)
-// at the given points, no wall correction, weight 20 kg.
-func j16Case(res *facilities.Resolution, pts ...facilities.Point) facilities.LoadCase {
-	return facilities.LoadCase{ReferenceArea: 36.5 / 576, ReferenceLength: 0.1,
-		Installation: facilities.Installation{ModelMass: 20}, Points: pts, Resolution: res}
-}
 
 // TestResolutionCheckHand works the required resolution on int-b1 (axial
 // 1 100 N, 0.10 % of rating: δA = 1.1 N at 2σ, normal δN = 11 N) by hand at
@@ -36,16 +28,16 @@ func TestResolutionCheckHand(t *testing.T) {
 	pt := facilities.Point{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.3, CD: 0.03}}
 	for _, tc := range []struct {
 		name    string
-		res     facilities.Resolution
+		res     loads.Resolution
 		state   string
 		minQ    float64
 		margin  float64
 		limitBy string
 	}{
-		{"4 counts", facilities.Resolution{CDCounts: fptr(4)}, facilities.ResolutionResolved, 43397, 1.2443, "cd"},
-		{"2 counts", facilities.Resolution{CDCounts: fptr(2)}, facilities.ResolutionTooCoarse, 86795, 0.62216, "cd"},
-		{"cl 0.003", facilities.Resolution{CL: fptr(0.003), CDCounts: fptr(4)}, facilities.ResolutionTooCoarse, 57862, 0.93326, "cl"},
-		{"cy unrated", facilities.Resolution{CY: fptr(0.01)}, facilities.ResolutionResolved, 0, 0, "cy"},
+		{"4 counts", loads.Resolution{CDCounts: fptr(4)}, loads.ResolutionResolved, 43397, 1.2443, "cd"},
+		{"2 counts", loads.Resolution{CDCounts: fptr(2)}, loads.ResolutionTooCoarse, 86795, 0.62216, "cd"},
+		{"cl 0.003", loads.Resolution{CL: fptr(0.003), CDCounts: fptr(4)}, loads.ResolutionTooCoarse, 57862, 0.93326, "cl"},
+		{"cy unrated", loads.Resolution{CY: fptr(0.01)}, loads.ResolutionResolved, 0, 0, "cy"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			lc := j16Case(&tc.res, pt)
@@ -56,7 +48,7 @@ func TestResolutionCheckHand(t *testing.T) {
 			if tc.minQ == 0 {
 				// int-b1 rates the side force, so δY is known: 4.6/3421.88 =
 				// 0.0013443 ≤ 0.01, least q 4.6/(0.01 × 0.0633681) = 7 259 Pa.
-				assert.Equal(t, facilities.ResolutionResolved, rc.State)
+				assert.Equal(t, loads.ResolutionResolved, rc.State)
 				assert.InDelta(t, 7259, rc.MinDynamicPressure, 1)
 				return
 			}
@@ -69,10 +61,10 @@ func TestResolutionCheckHand(t *testing.T) {
 	t.Run("accuracy unknown", func(t *testing.T) {
 		nb := *b
 		nb.Accuracy = nil
-		lc := j16Case(&facilities.Resolution{CDCounts: fptr(4)}, pt)
+		lc := j16Case(&loads.Resolution{CDCounts: fptr(4)}, pt)
 		r, err := lc.Check(&nb, 54000)
 		require.NoError(t, err)
-		assert.Equal(t, facilities.ResolutionAccuracyUnknown, r.Resolution.State)
+		assert.Equal(t, loads.ResolutionAccuracyUnknown, r.Resolution.State)
 		assert.Equal(t, []string{"cd"}, r.Resolution.Unknown)
 	})
 }

@@ -1,4 +1,4 @@
-package facilities_test
+package loads_test
 
 import (
 	"strings"
@@ -21,33 +21,33 @@ func cautionFacility(id string, medium string, p, t facilities.Range) facilities
 // TestCautions checks that each danger gets its own caution, and only its own:
 // fragments that must appear and fragments that must not, per case.
 func TestCautions(t *testing.T) {
-	report := func(u float64, weight bool) facilities.LoadReport {
-		return facilities.LoadReport{BalanceID: "bx", SafetyFactor: 1.5, AllowedUtilization: 1 / 1.5,
+	report := func(u float64, weight bool) loads.Report {
+		return loads.Report{BalanceID: "bx", SafetyFactor: 1.5, AllowedUtilization: 1 / 1.5,
 			MaxUtilization: u, WeightIncluded: weight,
-			Limiting: facilities.Limiting{Component: "pitching_moment", Alpha: 14}}
+			Limiting: loads.Limiting{Component: "pitching_moment", Alpha: 14}}
 	}
 	atm := facilities.Range{Min: 96000, Max: 96000}
 	warm := facilities.Range{Min: 285, Max: 315}
 	cases := []struct {
 		name     string
 		f        *facilities.Facility
-		reports  []facilities.LoadReport
+		reports  []loads.Report
 		want     []string
 		wantNot  []string
 		wantSize int
 	}{
 		{"no facility, no loads", nil, nil,
 			[]string{facilities.CautionEstimate}, []string{"steady, static"}, 1},
-		{"light loads with weight", nil, []facilities.LoadReport{report(0.3, true)},
-			[]string{facilities.CautionStaticLoads}, []string{"do not run", "unconservative"}, 2},
-		{"near the allowed load", nil, []facilities.LoadReport{report(0.6, true)},
+		{"light loads with weight", nil, []loads.Report{report(0.3, true)},
+			[]string{loads.CautionStaticLoads}, []string{"do not run", "unconservative"}, 2},
+		{"near the allowed load", nil, []loads.Report{report(0.6, true)},
 			[]string{"90 % of the 67 % allowed", "within the allowed load by this estimate only", "the safety factor as the only margin left"},
 			[]string{"stepped", "do not run"}, 3},
-		{"148 % of the rating", nil, []facilities.LoadReport{report(1.48, true)},
+		{"148 % of the rating", nil, []loads.Report{report(1.48, true)},
 			[]string{"do not run the points above its allowed load", "148 % of its rating", "beyond the 67 % allowed"},
 			[]string{"stepped", "monitoring"}, 3},
-		{"weight left out", nil, []facilities.LoadReport{report(0.3, false), report(0.2, false)},
-			[]string{facilities.CautionWeightLeftOut}, nil, 3},
+		{"weight left out", nil, []loads.Report{report(0.3, false), report(0.2, false)},
+			[]string{loads.CautionWeightLeftOut}, nil, 3},
 		{"atmospheric air", ptr2(cautionFacility("aa", facilities.MediumAir, atm, warm)), nil,
 			nil, []string{"pressure vessel", "below atmospheric", "cold", "nitrogen", "water circuit"}, 1},
 		{"pressurised air", ptr2(cautionFacility("pa", facilities.MediumAir, facilities.Range{Min: 101325, Max: 400000}, warm)), nil,
@@ -67,7 +67,7 @@ func TestCautions(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			got := facilities.Cautions(c.f, c.reports...)
+			got := loads.Cautions(c.f, c.reports...)
 			require.Len(t, got, c.wantSize, "cautions: %q", got)
 			assert.Equal(t, facilities.CautionEstimate, got[0])
 			joined := strings.Join(got, " | ")
@@ -100,8 +100,8 @@ func TestLoadWording(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			lc := facilities.LoadCase{ReferenceArea: 0.1, ReferenceLength: 0.2,
-				Installation: facilities.Installation{ModelMass: c.mass},
+			lc := loads.Setup{ReferenceArea: 0.1, ReferenceLength: 0.2,
+				Installation: loads.Installation{ModelMass: c.mass},
 				Points:       onePoint(4, facilities.Coefficients{CL: 0.4, CD: 0.03})}
 			ch, err := loads.Choose(&lc, &f, 2000)
 			require.NoError(t, err)

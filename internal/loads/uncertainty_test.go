@@ -1,4 +1,4 @@
-package facilities_test
+package loads_test
 
 import (
 	"testing"
@@ -6,6 +6,7 @@ import (
 	"github.com/stretchr/testify/assert"
 
 	"scalematch/facilities"
+	"scalematch/internal/loads"
 )
 
 // TestCoefficientUncertainty works the demo balance int-b1 (normal 11 000 N,
@@ -33,7 +34,7 @@ func TestCoefficientUncertainty(t *testing.T) {
 	}
 	b := f.Balances[0]
 	assert.Equal(t, "int-b1", b.ID)
-	var d facilities.Load
+	var d loads.Vector
 	var known [6]bool
 	for i := range d {
 		d[i], known[i] = b.Accuracy.Of(i, &b.Limits)
@@ -50,7 +51,7 @@ func TestCoefficientUncertainty(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
-			u, unknown := facilities.CoefficientUncertainty(d, known, tc.alpha, tc.q, s, c)
+			u, unknown := loads.CoefficientUncertainty(d, known, tc.alpha, tc.q, s, c)
 			assert.Empty(t, unknown)
 			assert.InEpsilon(t, tc.cl, u.CL, tc.tol)
 			assert.InEpsilon(t, tc.cdCounts, u.CDCounts, tc.tol)
@@ -63,8 +64,8 @@ func TestCoefficientUncertainty(t *testing.T) {
 	}
 	t.Run("normal force without accuracy", func(t *testing.T) {
 		k := known
-		k[facilities.IndexNormal] = false
-		u, unknown := facilities.CoefficientUncertainty(d, k, 0, 40e3, s, c)
+		k[loads.IndexNormal] = false
+		u, unknown := loads.CoefficientUncertainty(d, k, 0, 40e3, s, c)
 		assert.Equal(t, []string{"cl", "cd"}, unknown)
 		assert.Zero(t, u.CL)
 		assert.Zero(t, u.CDCounts)
