@@ -14,6 +14,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/app"
 	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )
@@ -157,11 +158,11 @@ func alphaPoints(n int) similarity.Sweep {
 // six that each read one component: a force gauge pair reads half the force
 // and the moment over its 0.1 m spacing, with either sign.
 var gaugePairs = [...][2]int{
-	{facilities.IndexNormal, facilities.IndexPitchingMoment},
-	{facilities.IndexSide, facilities.IndexYawingMoment},
-	{facilities.IndexNormal, facilities.IndexRollingMoment},
-	{facilities.IndexSide, facilities.IndexRollingMoment},
-	{facilities.IndexAxial, facilities.IndexPitchingMoment},
+	{loads.IndexNormal, loads.IndexPitchingMoment},
+	{loads.IndexSide, loads.IndexYawingMoment},
+	{loads.IndexNormal, loads.IndexRollingMoment},
+	{loads.IndexSide, loads.IndexRollingMoment},
+	{loads.IndexAxial, loads.IndexPitchingMoment},
 }
 
 // balanceRows returns base with its ratings as n gauge rows (1 to 16): rows 1
@@ -179,7 +180,7 @@ func balanceRows(base facilities.Balance, n int) facilities.Balance {
 	for i := range n {
 		row := facilities.CombinedLimit{Name: fmt.Sprintf("gauge %d", i+1)}
 		if i < 6 {
-			row.Coefficients = map[string]float64{facilities.ComponentName(i): 1}
+			row.Coefficients = map[string]float64{loads.ComponentName(i): 1}
 			row.Limit = rated[i]
 		} else {
 			pr, sign := gaugePairs[(i-6)/2], 1.0
@@ -187,7 +188,7 @@ func balanceRows(base facilities.Balance, n int) facilities.Balance {
 				sign = -1
 			}
 			f, m := pr[0], pr[1]
-			row.Coefficients = map[string]float64{facilities.ComponentName(f): 0.5, facilities.ComponentName(m): sign / 0.1}
+			row.Coefficients = map[string]float64{loads.ComponentName(f): 0.5, loads.ComponentName(m): sign / 0.1}
 			row.Limit = 0.5*rated[f] + rated[m]/0.1
 		}
 		b.Combined = append(b.Combined, row)
