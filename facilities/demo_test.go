@@ -11,6 +11,7 @@ import (
 )
 
 func TestDemoDecodes(t *testing.T) {
+	t.Parallel()
 	got := facilities.Demo()
 	if len(got) != 6 {
 		t.Fatalf("demo catalog has %d facilities, want 6", len(got))
@@ -21,6 +22,7 @@ func TestDemoDecodes(t *testing.T) {
 }
 
 func TestDemoCatalogIsReadOnly(t *testing.T) {
+	t.Parallel()
 	ctx := context.Background()
 	var c facilities.DemoCatalog
 	fs, err := c.Facilities(ctx)
@@ -60,6 +62,7 @@ func TestDemoCatalogIsReadOnly(t *testing.T) {
 // so both give the same Reynolds number per metre and q at the same speed and
 // temperature (identities of the definitions q = ½ρV², Re/m = ρV/μ).
 func TestHeldStaticPressure(t *testing.T) {
+	t.Parallel()
 	cvt, ok := facilities.DemoFacility("cvt-07")
 	require.True(t, ok)
 	wtn, ok := facilities.DemoFacility("wtn-04")

@@ -1,13 +1,16 @@
 package facilities_test
 
 import (
-	"reflect"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
 )
 
 func TestChangedFields(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name          string
 		before, after string
@@ -24,38 +27,27 @@ func TestChangedFields(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
+			t.Parallel()
 			got, err := facilities.ChangedFields([]byte(tt.before), []byte(tt.after))
-			if err != nil {
-				t.Fatal(err)
-			}
-			if !reflect.DeepEqual(got, tt.want) {
-				t.Errorf("ChangedFields = %q, want %q", got, tt.want)
-			}
+			require.NoError(t, err)
+			assert.Equal(t, tt.want, got)
 		})
 	}
 }
 
 func TestChangedFieldsBadDocument(t *testing.T) {
-	if _, err := facilities.ChangedFields([]byte(`{"a":`), []byte(`{}`)); err == nil {
-		t.Error("ChangedFields accepted a truncated document")
-	}
+	t.Parallel()
+	_, err := facilities.ChangedFields([]byte(`{"a":`), []byte(`{}`))
+	assert.Error(t, err, "a truncated document")
 }
 
 func TestCanonicalJSONDropsVersion(t *testing.T) {
-	f, ok := facilities.DemoFacility("lsw-2")
-	if !ok {
-		t.Fatal("demo facility lsw-2 missing")
-	}
+	t.Parallel()
+	f := mustDemo(t, "lsw-2")
 	a, err := facilities.CanonicalJSON(f)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	f.Version = 7
 	b, err := facilities.CanonicalJSON(f)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if string(a) != string(b) {
-		t.Errorf("version leaked into the canonical form:\n%s\n%s", a, b)
-	}
+	require.NoError(t, err)
+	assert.Equal(t, string(a), string(b), "the version stays out of the canonical form")
 }

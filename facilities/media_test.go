@@ -1,15 +1,15 @@
 package facilities_test
 
 import (
-	"bufio"
 	"math"
 	"math/rand/v2"
-	"os"
-	"strconv"
-	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
 var (
@@ -24,9 +24,8 @@ var (
 	}}
 )
 
-func relDev(got, want float64) float64 { return math.Abs(got-want) / math.Abs(want) }
-
 func TestMediumConstants(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name          string
 		m             facilities.Medium
@@ -43,20 +42,16 @@ func TestMediumConstants(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			if g := tc.m.Gamma(); math.Abs(g-tc.gamma) > 1e-12 {
-				t.Errorf("Gamma() = %g, want %g", g, tc.gamma)
-			}
-			if r := tc.m.GasConstant(); math.Abs(r-tc.r) > tc.tol*tc.r {
-				t.Errorf("GasConstant() = %.7g J/(kg·K), want %.7g", r, tc.r)
-			}
-			if l := tc.m.IsLiquid(); l != tc.liquid {
-				t.Errorf("IsLiquid() = %v, want %v", l, tc.liquid)
-			}
+			t.Parallel()
+			assert.InDelta(t, tc.gamma, tc.m.Gamma(), 1e-12, "Gamma()")
+			assert.InDelta(t, tc.r, tc.m.GasConstant(), tc.tol*tc.r, "GasConstant() J/(kg·K), R*/M")
+			assert.Equal(t, tc.liquid, tc.m.IsLiquid(), "IsLiquid()")
 		})
 	}
 }
 
 func TestViscosity(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name    string
 		m       facilities.Medium
@@ -74,15 +69,16 @@ func TestViscosity(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			// At 0.1 MPa: the density matters only to nitrogen's residual term.
-			if got := tc.m.Viscosity(tc.T, tc.m.Density(tc.T, 1e5)); relDev(got, tc.want) > tc.tol {
-				t.Errorf("Viscosity(%g K) = %.6g Pa·s, want %.6g (tolerance %g)", tc.T, got, tc.want, tc.tol)
-			}
+			testfixture.InRelative(t, tc.want, tc.m.Viscosity(tc.T, tc.m.Density(tc.T, 1e5)), tc.tol,
+				"Viscosity(%g K) Pa·s, the source beside the case", tc.T)
 		})
 	}
 }
 
 func TestViscosityWarning(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name string
 		m    facilities.Medium
@@ -98,9 +94,9 @@ func TestViscosityWarning(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			if got := tc.m.ViscosityWarning(tc.T); (got != "") != tc.warn {
-				t.Errorf("ViscosityWarning(%g K) = %q, want a warning: %v", tc.T, got, tc.warn)
-			}
+			t.Parallel()
+			got := tc.m.ViscosityWarning(tc.T)
+			assert.Equal(t, tc.warn, got != "", "ViscosityWarning(%g K) = %q", tc.T, got)
 		})
 	}
 }
@@ -111,6 +107,7 @@ func TestViscosityWarning(t *testing.T) {
 // python3-iapws's docstring of _Viscosity). The critical enhancement, left out,
 // is 1 at all of these points.
 func TestWaterViscosityIAPWS(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name   string
 		T, rho float64 // K, kg/m³
@@ -128,10 +125,9 @@ func TestWaterViscosityIAPWS(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			got := facilities.WaterViscosity(tc.T, tc.rho) * 1e6
-			if math.Abs(got-tc.want) > tc.tol {
-				t.Errorf("WaterViscosity = %.7f µPa·s, want %.6f", got, tc.want)
-			}
+			t.Parallel()
+			assert.InDelta(t, tc.want, facilities.WaterViscosity(tc.T, tc.rho)*1e6, tc.tol,
+				"WaterViscosity µPa·s, IAPWS 2008 verification table 4")
 		})
 	}
 }
@@ -141,41 +137,12 @@ type waterRow struct{ tC, T, rho, mu float64 }
 
 func readWater(t *testing.T) []waterRow {
 	t.Helper()
-	f, err := os.Open("../testdata/reference/water/water.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
 	var rows []waterRow
-	sc := bufio.NewScanner(f)
-	header := true
-	for sc.Scan() {
-		line := sc.Text()
-		if line == "" || strings.HasPrefix(line, "#") {
-			continue
-		}
-		if header {
-			header = false
-			continue
-		}
-		var v [4]float64
-		parts := strings.Split(line, ",")
-		if len(parts) != 4 {
-			t.Fatalf("water.csv: %q: want 4 columns", line)
-		}
-		for i, p := range parts {
-			if v[i], err = strconv.ParseFloat(p, 64); err != nil {
-				t.Fatalf("water.csv: %q: %v", line, err)
-			}
-		}
+	for _, v := range testfixture.ReadCSV(t, "../testdata/reference/water/water.csv") {
+		require.Len(t, v, 4, "water.csv: t °C, T K, ρ kg/m³, µ Pa·s")
 		rows = append(rows, waterRow{v[0], v[1], v[2], v[3]})
 	}
-	if err := sc.Err(); err != nil {
-		t.Fatal(err)
-	}
-	if len(rows) < 80 {
-		t.Fatalf("water.csv has %d rows, want 1–80 °C at least every degree", len(rows))
-	}
+	require.GreaterOrEqual(t, len(rows), 80, "water.csv: 1–80 °C at least every degree")
 	return rows
 }
 
@@ -183,6 +150,7 @@ func readWater(t *testing.T) []waterRow {
 // Kell's density with IAPWS-95 at 0.101325 MPa, 1–80 °C (python3-iapws fixture,
 // testdata/reference/water; physics.md §3 expects density within 1.5e-5).
 func TestWaterAgainstIAPWS95(t *testing.T) {
+	t.Parallel()
 	rows := readWater(t)
 	tests := []struct {
 		name string
@@ -199,16 +167,15 @@ func TestWaterAgainstIAPWS95(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			worst, at := 0.0, 0.0
 			for _, r := range rows {
-				if e := relDev(tc.got(r), tc.want(r)); e > worst {
+				if e := testfixture.RelErr(tc.got(r), tc.want(r)); e > worst {
 					worst, at = e, r.tC
 				}
 			}
 			t.Logf("largest relative difference %.2g at %g °C over %d rows", worst, at, len(rows))
-			if worst > tc.tol {
-				t.Errorf("largest relative difference %.3g at %g °C, want at most %g", worst, at, tc.tol)
-			}
+			assert.LessOrEqual(t, worst, tc.tol, "largest relative difference from IAPWS-95 (python3-iapws fixture), at %g °C", at)
 		})
 	}
 }
@@ -217,10 +184,9 @@ func TestWaterAgainstIAPWS95(t *testing.T) {
 // triple root Zc = 0.30740 (Peng & Robinson 1976, a published property of the
 // equation).
 func TestPengRobinsonCritical(t *testing.T) {
+	t.Parallel()
 	z := mNitrogen.Compressibility(facilities.NitrogenCriticalTemperature, facilities.NitrogenCriticalPressure)
-	if math.Abs(z-0.30740) > 1e-5 {
-		t.Errorf("Z at the critical point = %.6f, want 0.30740", z)
-	}
+	assert.InDelta(t, 0.30740, z, 1e-5, "Z at the critical point, Peng & Robinson 1976")
 }
 
 // tsonopoulosB returns the second virial coefficient in m³/mol of a non-polar gas
@@ -245,6 +211,7 @@ func tsonopoulosB(T, tc, pc, omega float64) float64 {
 // densities, not virial data). There the test bounds what matters, the difference
 // in Z at 100 kPa, which is the relative density difference.
 func TestPengRobinsonLowPressure(t *testing.T) {
+	t.Parallel()
 	const p = 100.0 // Pa: (Z − 1)/p is the slope to 1e-5 of itself
 	tests := []struct {
 		name   string
@@ -261,10 +228,9 @@ func TestPengRobinsonLowPressure(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			z := mNitrogen.Compressibility(tc.T, p)
-			if math.Abs(z-1) > 1e-4 {
-				t.Fatalf("Z(%g K, %g Pa) = %.8f, want 1 to 1e-4", tc.T, p, z)
-			}
+			require.InDelta(t, 1, z, 1e-4, "Z(%g K, %g Pa): an ideal gas as p → 0", tc.T, p)
 			rt := facilities.MolarGasConstant * tc.T
 			bPR := (z - 1) * rt / p // m³/mol
 			bT := tsonopoulosB(tc.T, facilities.NitrogenCriticalTemperature,
@@ -272,21 +238,18 @@ func TestPengRobinsonLowPressure(t *testing.T) {
 			dz := math.Abs(bPR-bT) * 1e5 / rt
 			t.Logf("B: Peng–Robinson %.2f cm³/mol, Tsonopoulos %.2f cm³/mol (%+.1f %%); ΔZ at 100 kPa %.2g",
 				bPR*1e6, bT*1e6, 100*(bPR/bT-1), dz)
-			if tc.relTol > 0 && math.Abs(bPR/bT-1) > tc.relTol {
-				t.Errorf("B: Peng–Robinson %.2f cm³/mol, Tsonopoulos %.2f, want within %g %%", bPR*1e6, bT*1e6, 100*tc.relTol)
+			if tc.relTol > 0 {
+				assert.InEpsilon(t, bT, bPR, tc.relTol, "B m³/mol: Peng–Robinson against Tsonopoulos 1974")
 			}
-			if dz > tc.zTol {
-				t.Errorf("ΔZ at 100 kPa = %.3g, want at most %g", dz, tc.zTol)
-			}
+			assert.LessOrEqual(t, dz, tc.zTol, "ΔZ at 100 kPa against Tsonopoulos 1974")
 		})
 	}
-	if z := mNitrogen.Compressibility(200, 0); z != 1 {
-		t.Errorf("Z at zero pressure = %g, want 1", z)
-	}
+	assert.Equal(t, 1.0, mNitrogen.Compressibility(200, 0), "Z at zero pressure")
 }
 
 // TestNitrogenNIST checks density and viscosity against NIST values (from memory).
 func TestNitrogenNIST(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name      string
 		got, want float64
@@ -297,14 +260,14 @@ func TestNitrogenNIST(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			if relDev(tc.got, tc.want) > tc.tol {
-				t.Errorf("got %.5g, want %.5g within %g", tc.got, tc.want, tc.tol)
-			}
+			t.Parallel()
+			assert.InEpsilon(t, tc.want, tc.got, tc.tol, "NIST (from memory)")
 		})
 	}
 }
 
 func TestNitrogenSaturation(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name      string
 		T, p, tol float64 // K, Pa, relative
@@ -318,26 +281,25 @@ func TestNitrogenSaturation(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			p, ok := mNitrogen.SaturationPressure(tc.T)
-			if !ok || relDev(p, tc.p) > tc.tol {
-				t.Errorf("SaturationPressure(%g K) = %.6g Pa, %v; want %.6g", tc.T, p, ok, tc.p)
-			}
-			T, ok := mNitrogen.SaturationTemperature(p)
-			if tc.T < facilities.NitrogenCriticalTemperature && (!ok || relDev(T, tc.T) > 1e-12) {
-				t.Errorf("SaturationTemperature(%.6g Pa) = %.8g K, %v; want %g", p, T, ok, tc.T)
+			require.True(t, ok, "SaturationPressure(%g K) reports a saturation line", tc.T)
+			assert.InEpsilon(t, tc.p, p, tc.tol, "SaturationPressure(%g K) Pa, the source beside the case", tc.T)
+			if tc.T < facilities.NitrogenCriticalTemperature {
+				T, ok := mNitrogen.SaturationTemperature(p)
+				require.True(t, ok, "SaturationTemperature(%.6g Pa)", p)
+				assert.InEpsilon(t, tc.T, T, 1e-12, "SaturationTemperature(%.6g Pa) K: the inverse of SaturationPressure", p)
 			}
 		})
 	}
-	if _, ok := mNitrogen.SaturationPressure(130); ok {
-		t.Error("SaturationPressure above the critical temperature reports a saturation line")
-	}
-	if T, ok := mNitrogen.SaturationTemperature(4e6); ok || T != facilities.NitrogenCriticalTemperature {
-		t.Errorf("SaturationTemperature above the critical pressure = %g, %v; want Tc, false", T, ok)
-	}
+	_, ok := mNitrogen.SaturationPressure(130)
+	assert.False(t, ok, "SaturationPressure above the critical temperature reports a saturation line")
+	T, ok := mNitrogen.SaturationTemperature(4e6)
+	assert.False(t, ok, "SaturationTemperature above the critical pressure")
+	assert.Equal(t, facilities.NitrogenCriticalTemperature, T, "SaturationTemperature above the critical pressure")
 	for _, m := range []facilities.Medium{mAir, mWater, mArgon} {
-		if _, ok := m.SaturationPressure(100); ok {
-			t.Errorf("%s reports a saturation line", m.Kind)
-		}
+		_, ok := m.SaturationPressure(100)
+		assert.False(t, ok, "%s reports a saturation line", m.Kind)
 	}
 }
 
@@ -346,6 +308,7 @@ func TestNitrogenSaturation(t *testing.T) {
 // returned Z solves the cubic, lies above the co-volume B, and is its largest real
 // root (no root of the cubic above it).
 func TestPengRobinsonRoot(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewPCG(1, 2))
 	const tc, pc, omega = facilities.NitrogenCriticalTemperature, facilities.NitrogenCriticalPressure, facilities.NitrogenAcentricFactor
 	for range 5000 {
@@ -359,14 +322,12 @@ func TestPengRobinsonRoot(t *testing.T) {
 		b := 0.077796073903888456 * pr / tr
 		f := func(z float64) float64 { return z*z*z - (1-b)*z*z + (a-3*b*b-2*b)*z - (a*b - b*b - b*b*b) }
 		scale := 1 + a + b
-		if math.IsNaN(z) || z <= b || math.Abs(f(z)) > 1e-12*scale {
-			t.Fatalf("T %g K, p %g Pa: Z = %g (B = %g), residual %g", T, p, z, b, f(z))
-		}
+		require.Greater(t, z, b, "T %g K, p %g Pa: Z above the co-volume B", T, p)
+		require.InDelta(t, 0, f(z), 1e-12*scale, "T %g K, p %g Pa: Z = %g solves the cubic", T, p, z)
 		// The cubic is positive for every z above its largest root.
 		for _, d := range []float64{1e-6, 1e-3, 0.1, 1, 10} {
-			if zz := z + d*(1+z); f(zz) <= 0 {
-				t.Fatalf("T %g K, p %g Pa: Z = %g is not the largest root (f(%g) = %g)", T, p, z, zz, f(zz))
-			}
+			zz := z + d*(1+z)
+			require.Positive(t, f(zz), "T %g K, p %g Pa: Z = %g is the largest root (f(%g))", T, p, z, zz)
 		}
 	}
 }

@@ -32,6 +32,7 @@ const (
 // the density in nitrogenDensityException. Measured: ρ up to +0.679 %, a up to
 // −0.465 % (110 K, 0.45 MPa), μ up to +0.021 %.
 func TestNitrogenReference(t *testing.T) {
+	t.Parallel()
 	m := facilities.Medium{Kind: facilities.MediumNitrogen}
 	rows := readCSV(t, "../testdata/reference/nitrogen/nitrogen.csv", 5)
 	require.Len(t, rows, 105)
@@ -58,6 +59,7 @@ func TestNitrogenReference(t *testing.T) {
 // of state's own isentropic derivative: a² = (∂p/∂ρ)_s, taken numerically from the
 // model's entropy and pressure (a central difference along s = const), within 1e-6.
 func TestNitrogenSpeedOfSoundIsentropic(t *testing.T) {
+	t.Parallel()
 	m := facilities.Medium{Kind: facilities.MediumNitrogen}
 	for _, c := range []struct{ T, p float64 }{
 		{100, 0.45e6}, {110, 0.3e6}, {130, 2e6}, {200, 0.1e6}, {300, 5e6},
@@ -95,6 +97,7 @@ func TestNitrogenSpeedOfSoundIsentropic(t *testing.T) {
 // temperature and molar density; the critical-enhancement point left out), to their
 // printed digits (half a unit in the last place).
 func TestNitrogenViscosity(t *testing.T) {
+	t.Parallel()
 	const molar = 28.01348 // g/mol, so that mol/dm³ × molar = kg/m³
 	for _, c := range []struct {
 		T, rhoMolar, mu float64 // K, mol/dm³, µPa·s
@@ -118,6 +121,7 @@ func TestNitrogenViscosity(t *testing.T) {
 // virial-equation reference, a = 193.3 m/s (the physics review that found the
 // ideal-gas a = 201.3 m/s), within 0.4 %. a = 192.889 m/s is a regression value.
 func TestStateNitrogenRealGas(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "cn2-05")
 	set := facilities.Setting{Mach: 0.8, StagnationPressure: 450e3, StagnationTemperature: 110}
 	st, err := f.State(set)

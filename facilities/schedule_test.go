@@ -1,9 +1,10 @@
 package facilities_test
 
 import (
-	"errors"
-	"math"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
 )
@@ -11,6 +12,7 @@ import (
 // TestScheduleTest works the demo operations figures by hand (20 s a point, 10 min a
 // run, 30 min a pressure change, 90 min a temperature change; cn2-05: 240 min).
 func TestScheduleTest(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name     string
 		facility string
@@ -38,30 +40,23 @@ func TestScheduleTest(t *testing.T) {
 	}}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			f, ok := facilities.DemoFacility(c.facility)
-			if !ok {
-				t.Fatalf("demo facility %s missing", c.facility)
-			}
+			t.Parallel()
+			f := mustDemo(t, c.facility)
 			got, err := facilities.ScheduleTest(&f, c.test)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if got.Points != c.want.Points || got.Runs != c.want.Runs ||
-				got.PressureChanges != c.want.PressureChanges || got.TemperatureChanges != c.want.TemperatureChanges ||
-				math.Abs(got.Hours-c.want.Hours) > 1e-12 {
-				t.Errorf("schedule %+v, want %+v", got, c.want)
-			}
+			require.NoError(t, err)
+			assert.InDelta(t, c.want.Hours, got.Hours, 1e-12, "hours, worked by hand")
+			got.Hours = c.want.Hours
+			assert.Equal(t, c.want, got, "points, runs and changes, worked by hand")
 		})
 	}
 }
 
 func TestScheduleErrors(t *testing.T) {
-	f, _ := facilities.DemoFacility("lsw-2")
-	if _, err := facilities.ScheduleTest(&f, facilities.Test{AlphaPoints: -1}); facilities.ErrorCode(err) != facilities.CodeInvalid {
-		t.Errorf("negative points: %v, want CodeInvalid", err)
-	}
+	t.Parallel()
+	f := mustDemo(t, "lsw-2")
+	_, err := facilities.ScheduleTest(&f, facilities.Test{AlphaPoints: -1})
+	assert.Equal(t, facilities.CodeInvalid, facilities.ErrorCode(err), "negative points: %v", err)
 	f.Operations = nil
-	if _, err := facilities.ScheduleTest(&f, facilities.Test{AlphaPoints: 3}); !errors.Is(err, facilities.ErrNoOperations) {
-		t.Errorf("no operations: %v, want ErrNoOperations", err)
-	}
+	_, err = facilities.ScheduleTest(&f, facilities.Test{AlphaPoints: 3})
+	assert.ErrorIs(t, err, facilities.ErrNoOperations, "no operations")
 }

@@ -1,47 +1,22 @@
 package facilities_test
 
 import (
-	"bufio"
-	"os"
-	"strconv"
-	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
-// readCSV reads the numeric rows of a reference fixture (comments and the header
-// line skipped), each with want columns.
+// readCSV reads a reference fixture's numeric rows (testfixture.ReadCSV) and
+// checks that they have want columns.
 func readCSV(t *testing.T, path string, want int) [][]float64 {
 	t.Helper()
-	f, err := os.Open(path)
-	require.NoError(t, err)
-	defer f.Close()
-	var rows [][]float64
-	sc := bufio.NewScanner(f)
-	header := true
-	for sc.Scan() {
-		line := sc.Text()
-		if line == "" || strings.HasPrefix(line, "#") {
-			continue
-		}
-		if header {
-			header = false
-			continue
-		}
-		parts := strings.Split(line, ",")
-		require.Len(t, parts, want, "%s: %q", path, line)
-		row := make([]float64, want)
-		for i, p := range parts {
-			row[i], err = strconv.ParseFloat(p, 64)
-			require.NoError(t, err, "%s: %q", path, line)
-		}
-		rows = append(rows, row)
-	}
-	require.NoError(t, sc.Err())
+	rows := testfixture.ReadCSV(t, path)
+	require.NotEmpty(t, rows, path)
+	require.Len(t, rows[0], want, "%s: columns", path)
 	return rows
 }
 
@@ -55,6 +30,7 @@ func sp(s float64) float64 { return s * facilities.ReferenceSalinityRatio }
 // TestSeawaterPublished checks sea-water density and kinematic viscosity against
 // published tables, the source beside each value.
 func TestSeawaterPublished(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name    string
 		T, sa   float64 // K, g/kg
@@ -89,6 +65,7 @@ func TestSeawaterPublished(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			w := facilities.NaturalWater(tc.T, tc.sa)
 			rho := w.Density
 			if tc.density != nil {
@@ -109,12 +86,13 @@ func TestSeawaterPublished(t *testing.T) {
 // fixture, testdata/reference/seawater/seawater.csv) at 10–40 g/kg, 0–40 °C. The two
 // standards agree to a few parts in 1e5 at one atmosphere.
 func TestSeawaterDensityTEOS10(t *testing.T) {
+	t.Parallel()
 	rows := readCSV(t, "../testdata/reference/seawater/seawater.csv", 4)
 	require.GreaterOrEqual(t, len(rows), 200)
 	worst, at := 0.0, []float64(nil)
 	for _, r := range rows {
 		got := facilities.SeawaterDensity(r[2], r[0])
-		if d := relDev(got, r[3]); d > worst {
+		if d := testfixture.RelErr(got, r[3]); d > worst {
 			worst, at = d, r
 		}
 	}
@@ -126,6 +104,7 @@ func TestSeawaterDensityTEOS10(t *testing.T) {
 // release's verification values and python3-iapws (fixture
 // testdata/reference/seawater/vapour.csv, 1–40 °C).
 func TestWaterVapourPressure(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name string
 		T    float64 // K
@@ -140,6 +119,7 @@ func TestWaterVapourPressure(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			assert.InEpsilon(t, tc.want, facilities.WaterVapourPressure(tc.T), tc.tol)
 		})
 	}

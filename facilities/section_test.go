@@ -1,29 +1,38 @@
 package facilities_test
 
 import (
-	"errors"
 	"fmt"
 	"math"
-	"slices"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
 func mustDemo(t testing.TB, id string) facilities.Facility {
 	t.Helper()
 	f, ok := facilities.DemoFacility(id)
-	if !ok {
-		t.Fatalf("demo facility %s missing", id)
-	}
+	require.True(t, ok, "demo facility %s", id)
 	return f
+}
+
+// mustState returns f's test-section state at set, failing the test on an error.
+func mustState(t testing.TB, f *facilities.Facility, set facilities.Setting) facilities.State {
+	t.Helper()
+	st, err := f.State(set)
+	require.NoError(t, err)
+	return st
 }
 
 // TestStateIsentropicNACA1135 checks the air state against the isentropic table of
 // NACA Report 1135 (Ames Research Staff 1953, table I, γ = 1.4), printed to five
 // digits; the table values are from memory.
 func TestStateIsentropicNACA1135(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "tsw-1")
 	const p0, t0 = 150000.0, 310.0
 	rho0 := p0 / (atmosphere.R * t0)
@@ -39,18 +48,12 @@ func TestStateIsentropicNACA1135(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			st, err := f.State(facilities.Setting{Mach: tc.mach, StagnationPressure: p0, StagnationTemperature: t0})
-			if err != nil {
-				t.Fatal(err)
-			}
-			if got := st.Static.Pressure / p0; math.Abs(got-tc.p) > tc.tol {
-				t.Errorf("p/p0 = %.6f, want %.5f", got, tc.p)
-			}
-			if got := st.Static.Temperature / t0; math.Abs(got-tc.T) > tc.tol {
-				t.Errorf("T/T0 = %.6f, want %.5f", got, tc.T)
-			}
-			if got := st.Static.Density / rho0; tc.rho != 0 && math.Abs(got-tc.rho) > tc.tol {
-				t.Errorf("ρ/ρ0 = %.6f, want %.5f", got, tc.rho)
+			t.Parallel()
+			st := mustState(t, &f, facilities.Setting{Mach: tc.mach, StagnationPressure: p0, StagnationTemperature: t0})
+			assert.InDelta(t, tc.p, st.Static.Pressure/p0, tc.tol, "p/p0, NACA 1135 table I")
+			assert.InDelta(t, tc.T, st.Static.Temperature/t0, tc.tol, "T/T0, NACA 1135 table I")
+			if tc.rho != 0 {
+				assert.InDelta(t, tc.rho, st.Static.Density/rho0, tc.tol, "ρ/ρ0, NACA 1135 table I")
 			}
 		})
 	}
@@ -62,6 +65,7 @@ func TestStateIsentropicNACA1135(t *testing.T) {
 // ideal gases also q = γ/2·p·M²; and a Speed setting giving back the Mach number of
 // the state it came from.
 func TestStateIdentities(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name string
 		id   string
@@ -76,6 +80,7 @@ func TestStateIdentities(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			var f facilities.Facility
 			if tc.id == "tsw-1/argon" {
 				f = mustDemo(t, "tsw-1")
@@ -83,10 +88,7 @@ func TestStateIdentities(t *testing.T) {
 			} else {
 				f = mustDemo(t, tc.id)
 			}
-			st, err := f.State(tc.set)
-			if err != nil {
-				t.Fatal(err)
-			}
+			st := mustState(t, &f, tc.set)
 			g, r, s := f.Medium.Gamma(), f.Medium.GasConstant(), st.Static
 			a := math.Sqrt(g * r * s.Temperature)
 			qIdeal := g / 2 * s.Pressure * st.Mach * st.Mach
@@ -108,17 +110,10 @@ func TestStateIdentities(t *testing.T) {
 				{"Z", s.Compressibility, f.Medium.Compressibility(s.Temperature, s.Pressure)},
 			}
 			for _, c := range checks {
-				if relDev(c.got, c.want) > tc.tol {
-					t.Errorf("%s = %.12g, want %.12g", c.what, c.got, c.want)
-				}
+				assert.InEpsilon(t, c.want, c.got, tc.tol, "%s: its definition (physics.md §4–5)", c.what)
 			}
-			back, err := f.State(facilities.Setting{Speed: st.Speed, StagnationPressure: tc.set.StagnationPressure, StagnationTemperature: tc.set.StagnationTemperature})
-			if err != nil {
-				t.Fatal(err)
-			}
-			if relDev(back.Mach, st.Mach) > 1e-12 {
-				t.Errorf("speed %g m/s gives Mach %.15g, want %.15g", st.Speed, back.Mach, st.Mach)
-			}
+			back := mustState(t, &f, facilities.Setting{Speed: st.Speed, StagnationPressure: tc.set.StagnationPressure, StagnationTemperature: tc.set.StagnationTemperature})
+			assert.InEpsilon(t, st.Mach, back.Mach, 1e-12, "Mach number from speed %g m/s", st.Speed)
 		})
 	}
 }
@@ -126,28 +121,22 @@ func TestStateIdentities(t *testing.T) {
 // TestStateNitrogen checks the real-gas density against NIST's (from memory:
 // ρ(300 K, 0.1 MPa) ≈ 1.1233 kg/m³) at a free stream of about those conditions.
 func TestStateNitrogen(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "cn2-05")
 	// M 0.15, T0 and p0 chosen so that the free stream is near 300 K and 0.1 MPa.
 	m := 0.15
 	t0 := 300 * atmosphere.TemperatureRatio(m, 1.4)
 	p0 := 1e5 * atmosphere.PressureRatio(m, 1.4)
-	st, err := f.State(facilities.Setting{Mach: m, StagnationPressure: p0, StagnationTemperature: t0})
-	if err != nil {
-		t.Fatal(err)
-	}
+	st := mustState(t, &f, facilities.Setting{Mach: m, StagnationPressure: p0, StagnationTemperature: t0})
 	// The real-gas isentrope lands within 1e-5 of the ideal-gas ratios here.
-	if relDev(st.Static.Temperature, 300) > 1e-5 || relDev(st.Static.Pressure, 1e5) > 1e-5 {
-		t.Fatalf("free stream %g K, %g Pa; want 300 K, 1e5 Pa", st.Static.Temperature, st.Static.Pressure)
-	}
-	if relDev(st.Static.Density, 1.1233) > 0.005 {
-		t.Errorf("ρ = %.5f kg/m³, want 1.1233 within 0.5 %%", st.Static.Density)
-	}
-	if st.Static.Compressibility >= 1 {
-		t.Errorf("Z = %g at 300 K, 0.1 MPa: want just below 1", st.Static.Compressibility)
-	}
+	require.InEpsilon(t, 300, st.Static.Temperature, 1e-5, "free-stream temperature K")
+	require.InEpsilon(t, 1e5, st.Static.Pressure, 1e-5, "free-stream pressure Pa")
+	assert.InEpsilon(t, 1.1233, st.Static.Density, 0.005, "ρ kg/m³, NIST at 300 K, 0.1 MPa (from memory)")
+	assert.Less(t, st.Static.Compressibility, 1.0, "Z at 300 K, 0.1 MPa: just below 1")
 }
 
 func TestStateWater(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "wtn-04")
 	tests := []struct {
 		name  string
@@ -161,24 +150,17 @@ func TestStateWater(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			st, err := f.State(facilities.Setting{Speed: tc.speed, StagnationPressure: 101000, StagnationTemperature: tc.T})
-			if err != nil {
-				t.Fatal(err)
-			}
+			t.Parallel()
+			st := mustState(t, &f, facilities.Setting{Speed: tc.speed, StagnationPressure: 101000, StagnationTemperature: tc.T})
 			rho := facilities.WaterDensity(tc.T)
 			q := 0.5 * rho * tc.speed * tc.speed
-			if st.Mach != 0 || st.Static.SpeedOfSound != 0 || st.Static.Compressibility != 1 {
-				t.Errorf("Mach %g, a %g, Z %g: want 0, 0, 1 for water", st.Mach, st.Static.SpeedOfSound, st.Static.Compressibility)
-			}
-			if st.Static.Temperature != tc.T || st.Speed != tc.speed {
-				t.Errorf("T %g K, V %g m/s; want %g, %g", st.Static.Temperature, st.Speed, tc.T, tc.speed)
-			}
-			if math.Abs(st.DynamicPressure-q) > tc.tol*(q+1) || math.Abs(st.Static.Pressure-(101000-q)) > tc.tol*101000 {
-				t.Errorf("q %g Pa, p %g Pa; want %g, %g", st.DynamicPressure, st.Static.Pressure, q, 101000-q)
-			}
-			if want := rho * tc.speed / st.Static.Viscosity; math.Abs(st.ReynoldsPerMeter-want) > tc.tol*(want+1) {
-				t.Errorf("Re/m %g, want %g", st.ReynoldsPerMeter, want)
-			}
+			assert.Equal(t, [3]float64{0, 0, 1}, [3]float64{st.Mach, st.Static.SpeedOfSound, st.Static.Compressibility},
+				"Mach, speed of sound, Z of water")
+			assert.Equal(t, [2]float64{tc.T, tc.speed}, [2]float64{st.Static.Temperature, st.Speed}, "T K, V m/s")
+			assert.InDelta(t, q, st.DynamicPressure, tc.tol*(q+1), "q = ½ρV², Pa")
+			assert.InDelta(t, 101000-q, st.Static.Pressure, tc.tol*101000, "p = p0 − q, Pa")
+			want := rho * tc.speed / st.Static.Viscosity
+			assert.InDelta(t, want, st.ReynoldsPerMeter, tc.tol*(want+1), "Re/m = ρV/μ, 1/m")
 		})
 	}
 }
@@ -186,6 +168,7 @@ func TestStateWater(t *testing.T) {
 // TestStateBadSettings checks that every bad setting names its fields, with no
 // state and no NaN.
 func TestStateBadSettings(t *testing.T) {
+	t.Parallel()
 	nan, inf := math.NaN(), math.Inf(1)
 	custom := mustDemo(t, "tsw-1")
 	custom.Medium = facilities.Medium{Kind: facilities.MediumGas, Gas: &facilities.GasProperties{MolarMass: 0, Gamma: 1}}
@@ -223,29 +206,16 @@ func TestStateBadSettings(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			f := tc.f
 			if f == nil {
 				d := mustDemo(t, tc.id)
 				f = &d
 			}
 			st, err := f.State(tc.set)
-			if st != (facilities.State{}) {
-				t.Errorf("State returned %+v with an error", st)
-			}
-			var e *facilities.Error
-			if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
-				t.Fatalf("error %v: want a *facilities.Error with CodeInvalid", err)
-			}
-			var got []string
-			for _, fe := range e.Fields {
-				got = append(got, fe.Field)
-				if fe.Message == "" {
-					t.Errorf("%s: empty message", fe.Field)
-				}
-			}
-			if !slices.Equal(got, tc.want) {
-				t.Errorf("fields %q, want %q (%v)", got, tc.want, err)
-			}
+			assert.Zero(t, st, "State with an error")
+			require.Error(t, err)
+			assert.Equal(t, tc.want, validationFields(t, err), "fields (%v)", err)
 		})
 	}
 }
@@ -254,18 +224,15 @@ func TestStateDoesNotAllocate(t *testing.T) {
 	if testing.Short() {
 		t.Skip("allocation counts are checked in the full run")
 	}
+	// Not parallel: AllocsPerRun counts every goroutine's allocations.
 	for _, c := range sectionCases(t) {
 		t.Run(c.name, func(t *testing.T) {
 			n := testing.AllocsPerRun(100, func() {
 				st, err := c.f.State(c.set)
-				if err != nil {
-					t.Fatal(err)
-				}
+				require.NoError(t, err)
 				_ = c.f.CondensationMargin(st)
 			})
-			if n != 0 {
-				t.Errorf("State and CondensationMargin allocate %g times per call, want 0", n)
-			}
+			assert.Zero(t, n, "allocations per call of State and CondensationMargin")
 		})
 	}
 }
@@ -282,9 +249,8 @@ func lowestT0(t *testing.T, f *facilities.Facility, mach, p0, lo, hi float64) fl
 		}
 		return f.CondensationMargin(st)
 	}
-	if margin(lo) >= 0 || margin(hi) <= 0 {
-		t.Fatalf("no sign change of the margin between %g and %g K", lo, hi)
-	}
+	require.Negative(t, margin(lo), "margin at %g K: a sign change between %g and %g K", lo, lo, hi)
+	require.Positive(t, margin(hi), "margin at %g K: a sign change between %g and %g K", hi, lo, hi)
 	for hi-lo > 1e-9 {
 		mid := 0.5 * (lo + hi)
 		if margin(mid) < 0 {
@@ -304,19 +270,14 @@ func lowestT0(t *testing.T, f *facilities.Facility, mach, p0, lo, hi float64) fl
 // At the facility's lowest p0 (130 kPa) the floor binds instead; the cases record
 // both sides.
 func TestCondensationLowestT0(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "cn2-05")
 	// p0 at which q reaches the facility's limit at M 0.78 and T0 = 104 K.
 	qLimited := func() float64 {
-		st, err := f.State(facilities.Setting{Mach: 0.78, StagnationPressure: 1e5, StagnationTemperature: 104})
-		if err != nil {
-			t.Fatal(err)
-		}
+		st := mustState(t, &f, facilities.Setting{Mach: 0.78, StagnationPressure: 1e5, StagnationTemperature: 104})
 		p0 := 1e5 * *f.MaxDynamicPressure / st.DynamicPressure // q ∝ p0 but for Z
 		for range 20 {
-			st, err = f.State(facilities.Setting{Mach: 0.78, StagnationPressure: p0, StagnationTemperature: 104})
-			if err != nil {
-				t.Fatal(err)
-			}
+			st = mustState(t, &f, facilities.Setting{Mach: 0.78, StagnationPressure: p0, StagnationTemperature: 104})
 			p0 *= *f.MaxDynamicPressure / st.DynamicPressure
 		}
 		return p0
@@ -335,18 +296,14 @@ func TestCondensationLowestT0(t *testing.T) {
 	floor := f.StagnationTemperature.Min
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			t0 := lowestT0(t, &f, 0.78, tc.p0, 80, 200)
 			t.Logf("lowest T0 free of condensation at M 0.78, p0 %.4g kPa: %.2f K (floor %g K)", tc.p0/1000, t0, floor)
-			if (t0 > floor) != tc.aboveFloor {
-				t.Errorf("lowest T0 %.2f K; want above the %g K floor: %v", t0, floor, tc.aboveFloor)
-			}
-			st, err := f.State(facilities.Setting{Mach: 0.78, StagnationPressure: tc.p0, StagnationTemperature: t0 + 1})
-			if err != nil {
-				t.Fatal(err)
-			}
-			if m := f.CondensationMargin(st); !(m > 0 && m < 0.05) {
-				t.Errorf("margin 1 K above the lowest T0 = %g, want small and positive", m)
-			}
+			assert.Equal(t, tc.aboveFloor, t0 > floor, "lowest T0 %.2f K above the %g K floor", t0, floor)
+			st := mustState(t, &f, facilities.Setting{Mach: 0.78, StagnationPressure: tc.p0, StagnationTemperature: t0 + 1})
+			m := f.CondensationMargin(st)
+			assert.Positive(t, m, "margin 1 K above the lowest T0")
+			assert.Less(t, m, 0.05, "margin 1 K above the lowest T0")
 		})
 	}
 }
@@ -355,52 +312,35 @@ func TestCondensationLowestT0(t *testing.T) {
 // air at a wind tunnel's lowest stagnation temperature keeps a wide margin from its
 // dew line (Lemmon et al. 2000), above 1 (more than twice the dew temperature).
 func TestCondensationMarginNoSaturationLine(t *testing.T) {
+	t.Parallel()
 	air := mustDemo(t, "tsw-1")
-	st, err := air.State(facilities.Setting{Mach: 0.5, StagnationPressure: air.StagnationPressure.Min, StagnationTemperature: air.StagnationTemperature.Min})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if m := air.CondensationMargin(st); !(m > 1) || math.IsInf(m, 1) {
-		t.Errorf("tsw-1: margin %g, want finite and above 1", m)
-	}
-	for _, id := range []string{"wtn-04"} {
-		f := mustDemo(t, id)
-		set := facilities.Setting{Mach: 0.5, StagnationPressure: f.StagnationPressure.Min, StagnationTemperature: f.StagnationTemperature.Min}
-		if f.Medium.IsLiquid() {
-			set = facilities.Setting{Speed: 1, StagnationPressure: f.StagnationPressure.Min, StagnationTemperature: f.StagnationTemperature.Min}
-		}
-		st, err := f.State(set)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if m := f.CondensationMargin(st); !math.IsInf(m, 1) {
-			t.Errorf("%s: margin %g, want +Inf", id, m)
-		}
-	}
+	st := mustState(t, &air, facilities.Setting{Mach: 0.5, StagnationPressure: air.StagnationPressure.Min, StagnationTemperature: air.StagnationTemperature.Min})
+	m := air.CondensationMargin(st)
+	assert.Greater(t, m, 1.0, "tsw-1: margin from the dew line (Lemmon et al. 2000)")
+	assert.False(t, math.IsInf(m, 1), "tsw-1: a finite margin")
+	water := mustDemo(t, "wtn-04")
+	st = mustState(t, &water, facilities.Setting{Speed: 1, StagnationPressure: water.StagnationPressure.Min, StagnationTemperature: water.StagnationTemperature.Min})
+	assert.True(t, math.IsInf(water.CondensationMargin(st), 1), "wtn-04: no condensation rule in water, margin +Inf")
 }
 
 // TestCondensationPeakMach: a lower local peak Mach lowers the usable T0, and with
 // the peak at the free-stream Mach the free stream alone decides.
 func TestCondensationPeakMach(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "cn2-05")
 	def := lowestT0(t, &f, 0.8, 390000, 70, 200)
 	peak := 0.8
 	f.CondensationPeakMach = &peak
 	free := lowestT0(t, &f, 0.8, 390000, 70, 200)
-	if !(free < def) {
-		t.Errorf("lowest T0 with peak Mach 0.8 = %.2f K, want below %.2f K (peak 1.4)", free, def)
-	}
+	assert.Less(t, free, def, "lowest T0 K with peak Mach 0.8 against peak 1.4")
 	// There the free stream sits on the saturation line.
-	st, err := f.State(facilities.Setting{Mach: 0.8, StagnationPressure: 390000, StagnationTemperature: free})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if tsat, _ := f.Medium.SaturationTemperature(st.Static.Pressure); relDev(st.Static.Temperature, tsat) > 1e-8 {
-		t.Errorf("lowest T0 with peak Mach 0.8 = %.6f K: free stream %.6f K, want %.6f K (at saturation)", free, st.Static.Temperature, tsat)
-	}
+	st := mustState(t, &f, facilities.Setting{Mach: 0.8, StagnationPressure: 390000, StagnationTemperature: free})
+	tsat, _ := f.Medium.SaturationTemperature(st.Static.Pressure)
+	testfixture.InRelative(t, tsat, st.Static.Temperature, 1e-8, "free stream K at the lowest T0 %.6f K: on the saturation line", free)
 }
 
 func TestWarnings(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "cn2-05")
 	tests := []struct {
 		name string
@@ -419,13 +359,9 @@ func TestWarnings(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			st, err := f.State(tc.set)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if w := f.Warnings(st); len(w) != tc.n {
-				t.Errorf("warnings %q, want %d", w, tc.n)
-			}
+			t.Parallel()
+			st := mustState(t, &f, tc.set)
+			assert.Len(t, f.Warnings(st), tc.n)
 		})
 	}
 }

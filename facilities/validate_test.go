@@ -1,48 +1,48 @@
 package facilities_test
 
 import (
-	"errors"
 	"math"
-	"slices"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
 )
 
 func TestValidateDemo(t *testing.T) {
+	t.Parallel()
 	for _, f := range facilities.Demo() {
 		t.Run(f.ID, func(t *testing.T) {
-			if err := f.Validate(); err != nil {
-				t.Errorf("demo facility is invalid: %v", err)
-			}
+			t.Parallel()
+			assert.NoError(t, f.Validate(), "demo facility")
 		})
 	}
 }
 
 func fp(v float64) *float64 { return &v }
 
-// validationFields returns the field paths of a Validate error, failing the test
-// when it is not a *facilities.Error with CodeInvalid.
+// validationFields returns the field paths of a validation error (nil for no
+// error), failing the test when it is not a *facilities.Error with CodeInvalid
+// or a field has no message.
 func validationFields(t *testing.T, err error) []string {
 	t.Helper()
 	if err == nil {
 		return nil
 	}
 	var e *facilities.Error
-	if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
-		t.Fatalf("error %v: want a *facilities.Error with CodeInvalid", err)
-	}
+	require.ErrorAs(t, err, &e)
+	require.Equal(t, facilities.CodeInvalid, e.Code, "%v", err)
 	var got []string
 	for _, f := range e.Fields {
-		if f.Message == "" {
-			t.Errorf("%s: empty message", f.Field)
-		}
+		assert.NotEmpty(t, f.Message, f.Field)
 		got = append(got, f.Field)
 	}
 	return got
 }
 
 func TestValidateBadFacilities(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name   string
 		id     string // demo facility to start from
@@ -116,12 +116,12 @@ func TestValidateBadFacilities(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			f := mustDemo(t, tc.id)
 			tc.modify(&f)
-			got := validationFields(t, f.Validate())
-			if !slices.Equal(got, tc.want) {
-				t.Errorf("fields %q, want %q", got, tc.want)
-			}
+			err := f.Validate()
+			require.Error(t, err)
+			assert.Equal(t, tc.want, validationFields(t, err), "fields")
 		})
 	}
 }
@@ -129,6 +129,7 @@ func TestValidateBadFacilities(t *testing.T) {
 // TestValidateEverythingAtOnce: a facility with a problem in every part reports all
 // of them in one error, in field order.
 func TestValidateEverythingAtOnce(t *testing.T) {
+	t.Parallel()
 	f := facilities.Facility{
 		ID:                    "Bad Id",
 		Medium:                facilities.Medium{Kind: "plasma"},
@@ -159,10 +160,8 @@ func TestValidateEverythingAtOnce(t *testing.T) {
 		"operations.minutes_per_run",
 	}
 	err := f.Validate()
-	got := validationFields(t, err)
-	if !slices.Equal(got, want) {
-		t.Errorf("fields\n%q\nwant\n%q", got, want)
-	}
+	require.Error(t, err)
+	assert.Equal(t, want, validationFields(t, err), "fields in field order")
 }
 
 // gaugeRow is a combined gauge row invented for the tests (the demo balances have

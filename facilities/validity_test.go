@@ -34,6 +34,7 @@ func hasWarning(ws []string, sub string) bool {
 // warning and no violation (each gave warnings [] and violations []), and two
 // states inside every range that must stay silent.
 func TestValidityEnvelope(t *testing.T) {
+	t.Parallel()
 	air := facilities.Facility{ID: "air-x", Medium: facilities.Medium{Kind: facilities.MediumAir}}
 	water := facilities.Facility{ID: "water-x", Medium: facilities.Medium{Kind: facilities.MediumWater}}
 	tests := []struct {
@@ -72,6 +73,7 @@ func TestValidityEnvelope(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			st, err := tc.f.State(tc.set)
 			require.NoError(t, err)
 			assert.ElementsMatch(t, tc.violations, constraintNames(tc.f.Violations(st)))
@@ -95,6 +97,7 @@ func TestValidityEnvelope(t *testing.T) {
 // (testdata/reference/air/dew.csv, 60–132 K), and the condensation margin against
 // the line it is made of.
 func TestAirDewLine(t *testing.T) {
+	t.Parallel()
 	rows := readCSV(t, "../testdata/reference/air/dew.csv", 2)
 	require.GreaterOrEqual(t, len(rows), 30)
 	for _, r := range rows {
@@ -121,6 +124,7 @@ func TestAirDewLine(t *testing.T) {
 // within 2 % of Lemmon & Jacobsen (2004) inside [AirViscosityMin, AirViscosityMax]
 // and more than 2 % off just outside (python3-iapws, testdata/reference/air/viscosity.csv).
 func TestAirSutherlandRange(t *testing.T) {
+	t.Parallel()
 	air := facilities.Medium{Kind: facilities.MediumAir}
 	rows := readCSV(t, "../testdata/reference/air/viscosity.csv", 2)
 	require.GreaterOrEqual(t, len(rows), 50)
@@ -147,6 +151,7 @@ func abs(x float64) float64 {
 // testdata/reference/air/departure.csv): within 10 % of Z − 1 at the moderate
 // states the warning is meant for, 150–300 K up to 1 MPa.
 func TestVirialDeparture(t *testing.T) {
+	t.Parallel()
 	rows := readCSV(t, "../testdata/reference/air/departure.csv", 3)
 	require.GreaterOrEqual(t, len(rows), 5)
 	for _, r := range rows {
@@ -161,6 +166,7 @@ func TestVirialDeparture(t *testing.T) {
 // ω −0.00219; from memory) within 1 %; water, polar, at 100 °C within 11 % of
 // IAPWS-IF97 (the correlation is for non-polar fluids).
 func TestLeeKesler(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name             string
 		T, tc, pc, omega float64
@@ -172,6 +178,7 @@ func TestLeeKesler(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			assert.InEpsilon(t, tc.want, facilities.LeeKeslerVapourPressure(tc.T, tc.tc, tc.pc, tc.omega), tc.tol)
 		})
 	}
@@ -181,6 +188,7 @@ func TestLeeKesler(t *testing.T) {
 // condensation rule and the near-critical warning; one that does not gets a
 // warning saying so; bad critical constants are refused by field.
 func TestCustomGasEnvelope(t *testing.T) {
+	t.Parallel()
 	tc, pc, om := facilities.NitrogenCriticalTemperature, facilities.NitrogenCriticalPressure, facilities.NitrogenAcentricFactor
 	gas := facilities.GasProperties{MolarMass: 0.0280134, Gamma: 1.4, ViscosityReference: 1.663e-5, TemperatureReference: 273, SutherlandConstant: 107,
 		CriticalTemperature: &tc, CriticalPressure: &pc, AcentricFactor: &om}

@@ -2,8 +2,10 @@ package facilities_test
 
 import (
 	"encoding/json"
-	"slices"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
 )
@@ -11,6 +13,7 @@ import (
 // TestViolations triggers each constraint with a targeted setting and checks the
 // exact list of constraints reported.
 func TestViolations(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name   string
 		id     string
@@ -55,52 +58,38 @@ func TestViolations(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			f := mustDemo(t, tc.id)
 			if tc.modify != nil {
 				tc.modify(&f)
 			}
-			st, err := f.State(tc.set)
-			if err != nil {
-				t.Fatal(err)
-			}
-			v := f.Violations(st)
-			if v == nil {
-				t.Fatal("Violations returned nil, want a non-nil (possibly empty) list")
-			}
+			v := f.Violations(mustState(t, &f, tc.set))
+			require.NotNil(t, v, "Violations: a non-nil (possibly empty) list")
 			var got []string
 			for _, x := range v {
 				got = append(got, x.Constraint)
-				if x.Message == "" {
-					t.Errorf("%s: empty message", x.Constraint)
-				}
+				assert.NotEmpty(t, x.Message, x.Constraint)
 			}
-			if !slices.Equal(got, tc.want) {
-				t.Errorf("constraints %q, want %q (%+v)", got, tc.want, v)
-			}
+			assert.Equal(t, tc.want, got, "constraints (%+v)", v)
 		})
 	}
 }
 
 func TestViolationsEncodeEmptyList(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "tsw-1")
-	st, err := f.State(facilities.Setting{Mach: 0.8, StagnationPressure: 150000, StagnationTemperature: 310})
-	if err != nil {
-		t.Fatal(err)
-	}
+	st := mustState(t, &f, facilities.Setting{Mach: 0.8, StagnationPressure: 150000, StagnationTemperature: 310})
 	b, err := json.Marshal(f.Violations(st))
-	if err != nil || string(b) != "[]" {
-		t.Errorf("encoded %s, %v; want []", b, err)
-	}
+	require.NoError(t, err)
+	assert.JSONEq(t, "[]", string(b))
 }
 
 func TestViolationValues(t *testing.T) {
+	t.Parallel()
 	f := mustDemo(t, "tsw-1")
-	st, err := f.State(facilities.Setting{Mach: 1.1, StagnationPressure: 200000, StagnationTemperature: 310})
-	if err != nil {
-		t.Fatal(err)
-	}
+	st := mustState(t, &f, facilities.Setting{Mach: 1.1, StagnationPressure: 200000, StagnationTemperature: 310})
 	v := f.Violations(st)
-	if len(v) != 1 || v[0].Value != st.DynamicPressure || v[0].Limit != 54000 {
-		t.Errorf("violations %+v: want one at q %g Pa against 54000 Pa", v, st.DynamicPressure)
-	}
+	require.Len(t, v, 1, "%+v", v)
+	assert.Equal(t, st.DynamicPressure, v[0].Value, "q Pa")
+	assert.Equal(t, 54000.0, v[0].Limit, "tsw-1's q limit, Pa")
 }

@@ -28,6 +28,7 @@ func closedSection(w, h float64, walls string) *facilities.Facility {
 //	                                              the incompressible (1+ε)² is 1.0123316)
 //	Δα at C_L = 1.2: 0.125·0.5/5.4·1.2          = 0.0138889 rad
 func TestWallsHandCase(t *testing.T) {
+	t.Parallel()
 	f := closedSection(3.6, 1.5, facilities.WallsClosed)
 	w := facilities.NewWalls(f, 0.1, 0.5, 0.2)
 	cases := []struct {
@@ -53,6 +54,7 @@ func TestWallsHandCase(t *testing.T) {
 }
 
 func TestWallsKinds(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name        string
 		walls       string
@@ -71,6 +73,7 @@ func TestWallsKinds(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			w := facilities.NewWalls(closedSection(3.6, 1.5, c.walls), c.area, 0.5, c.mach)
 			if w.Applied != c.applied {
 				t.Errorf("applied = %v, want %v", w.Applied, c.applied)
@@ -93,6 +96,7 @@ func TestWallsKinds(t *testing.T) {
 }
 
 func TestWallsFacilityDelta(t *testing.T) {
+	t.Parallel()
 	f := closedSection(2.0, 2.0, facilities.WallsClosed)
 	d := 0.11
 	f.LiftInterferenceFactor = &d
@@ -103,6 +107,7 @@ func TestWallsFacilityDelta(t *testing.T) {
 }
 
 func TestWallsSummary(t *testing.T) {
+	t.Parallel()
 	w := facilities.NewWalls(closedSection(3.6, 1.5, facilities.WallsClosed), 0.1, 0.5, 0.2)
 	pts := []facilities.Point{
 		{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.2, CD: 0.03}},
@@ -144,6 +149,7 @@ func TestWallsSummary(t *testing.T) {
 // The corrected Mach number differs from the free stream by 0.0121, more than
 // twice the planner's default Mach tolerance.
 func TestWallsCompressibleHandCase(t *testing.T) {
+	t.Parallel()
 	f := closedSection(2.7, 2.0, facilities.WallsClosed)
 	tau := 0.1
 	f.StreamlineCurvatureFactor = &tau
@@ -176,6 +182,7 @@ func TestWallsCompressibleHandCase(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			assert.InDelta(t, tc.want, tc.got, tc.tol)
 		})
 	}
@@ -186,6 +193,7 @@ func TestWallsCompressibleHandCase(t *testing.T) {
 // TestWallsNotComputed: corrections that are not computed are null with a reason,
 // never zeros.
 func TestWallsNotComputed(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name       string
 		walls      string
@@ -209,6 +217,7 @@ func TestWallsNotComputed(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			f := closedSection(2.7, 2.0, tc.walls)
 			if tc.water {
 				f.Medium.Kind = facilities.MediumWater

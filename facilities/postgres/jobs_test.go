@@ -1,13 +1,9 @@
 package postgres_test
 
 import (
-	"context"
 	"testing"
 
-	"github.com/stretchr/testify/require"
-
 	"scalematch/facilities/postgres"
-	"scalematch/internal/jobs"
 	"scalematch/internal/jobs/jobstest"
 )
 
@@ -20,14 +16,6 @@ func BenchmarkJobs(b *testing.B) {
 	jobstest.Bench(b, openJobs)
 }
 
-// openJobs makes a schema of its own for one test and opens stores on it, as
-// replicas sharing the database would.
-func openJobs(tb testing.TB) func() jobs.Store {
-	url := schemaURL(tb)
-	return func() jobs.Store {
-		db, err := postgres.Open(context.Background(), url)
-		require.NoError(tb, err)
-		tb.Cleanup(func() { require.NoError(tb, db.Close()) })
-		return db
-	}
-}
+// openJobs makes a schema of its own for one test (schemaURL) and opens stores
+// on it, as replicas sharing the database would.
+var openJobs = jobstest.Opener(postgres.Open, schemaURL)

@@ -1,14 +1,10 @@
 package sqlite_test
 
 import (
-	"context"
 	"path/filepath"
 	"testing"
 
-	"github.com/stretchr/testify/require"
-
 	"scalematch/facilities/sqlite"
-	"scalematch/internal/jobs"
 	"scalematch/internal/jobs/jobstest"
 )
 
@@ -24,12 +20,6 @@ func BenchmarkJobs(b *testing.B) {
 
 // openJobs makes a new catalog file for one test and opens stores on it, as
 // processes sharing the file would.
-func openJobs(tb testing.TB) func() jobs.Store {
-	path := filepath.Join(tb.TempDir(), sqlite.FileName)
-	return func() jobs.Store {
-		db, err := sqlite.Open(context.Background(), path)
-		require.NoError(tb, err)
-		tb.Cleanup(func() { require.NoError(tb, db.Close()) })
-		return db
-	}
-}
+var openJobs = jobstest.Opener(sqlite.Open, func(tb testing.TB) string {
+	return filepath.Join(tb.TempDir(), sqlite.FileName)
+})

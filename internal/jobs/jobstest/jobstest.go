@@ -24,6 +24,25 @@ import (
 	"scalematch/internal/jobs"
 )
 
+// Opener returns the open function Run and Bench take for an engine whose
+// stores open with openStore on a place (a file, a schema) that newPlace makes
+// for one test: each call of the function it returns opens one more store on
+// that place, as another process sharing it would, closed when the test ends.
+func Opener[S interface {
+	jobs.Store
+	Close() error
+}](openStore func(ctx context.Context, place string) (S, error), newPlace func(testing.TB) string) func(testing.TB) func() jobs.Store {
+	return func(tb testing.TB) func() jobs.Store {
+		place := newPlace(tb)
+		return func() jobs.Store {
+			s, err := openStore(context.Background(), place)
+			require.NoError(tb, err)
+			tb.Cleanup(func() { require.NoError(tb, s.Close()) })
+			return s
+		}
+	}
+}
+
 // Run runs the suite. open must create a new, empty database for each call
 // (the suite calls it once per subtest) and return a function that opens one
 // more store on that database, as another process would; every store opened
