@@ -292,36 +292,65 @@ func (f *Facility) condensationPeakMach() float64 {
 // +Inf, as does a state with no positive stagnation pressure and temperature.
 // CondensationMargin does not allocate.
 func (f *Facility) CondensationMargin(st State) float64 {
+	return math.Min(f.FreeStreamCondensationMargin(st), f.LocalCondensationMargin(st.StagnationPressure, st.StagnationTemperature))
+}
+
+// condensationMarginFunc returns the margin T/T_sat(p) − 1 of the facility's
+// medium at T in K and p in Pa, or nil when the medium has no saturation line in
+// the model (water, a custom gas without a critical point) or none at p0.
+func (f *Facility) condensationMarginFunc(p0 float64) func(Medium, float64, float64) float64 {
 	m := f.Medium
+	switch m.Kind {
+	case MediumNitrogen:
+		return nitrogenMargin
+	case MediumAir, MediumGas:
+		if _, ok := m.dewTemperature(p0); ok {
+			return Medium.idealGasMargin
+		}
+	}
+	return nil
+}
+
+// FreeStreamCondensationMargin is the free-stream part of CondensationMargin:
+// T/T_sat(p) − 1 at st.Static, +Inf where CondensationMargin is.
+func (f *Facility) FreeStreamCondensationMargin(st State) float64 {
 	if !(st.StagnationTemperature > 0 && st.StagnationPressure > 0) {
 		return math.Inf(1)
 	}
-	margin := nitrogenMargin
-	switch m.Kind {
-	case MediumNitrogen:
-	case MediumAir, MediumGas:
-		if _, ok := m.dewTemperature(st.StagnationPressure); !ok {
-			return math.Inf(1)
-		}
-		margin = Medium.idealGasMargin
-	default:
+	margin := f.condensationMarginFunc(st.StagnationPressure)
+	if margin == nil {
 		return math.Inf(1)
 	}
-	free := margin(m, st.Static.Temperature, st.Static.Pressure)
+	return margin(f.Medium, st.Static.Temperature, st.Static.Pressure)
+}
+
+// LocalCondensationMargin is the local part of CondensationMargin: the margin
+// after an isentropic expansion from stagnation pressure p0 in Pa and
+// temperature t0 in K to the facility's condensation peak Mach number. It does
+// not depend on the test Mach number. For nitrogen an expansion that leaves the
+// gas phase of its equation of state counts as −1; +Inf where
+// CondensationMargin is.
+func (f *Facility) LocalCondensationMargin(p0, t0 float64) float64 {
+	if !(t0 > 0 && p0 > 0) {
+		return math.Inf(1)
+	}
+	m := f.Medium
+	margin := f.condensationMarginFunc(p0)
+	if margin == nil {
+		return math.Inf(1)
+	}
 	peak := f.condensationPeakMach()
 	if m.Kind == MediumNitrogen {
 		// The local expansion follows nitrogen's real-gas isentrope, as the free
 		// stream does; one that leaves the gas phase has condensed.
-		loc, err := nitrogenFreeStream(st.StagnationTemperature, st.StagnationPressure, peak, 0)
+		loc, err := nitrogenFreeStream(t0, p0, peak, 0)
 		if err != nil {
-			return math.Min(free, -1)
+			return -1
 		}
-		return math.Min(free, margin(m, loc.T, loc.p))
+		return margin(m, loc.T, loc.p)
 	}
 	gamma := m.Gamma()
-	tl := st.StagnationTemperature / atmosphere.TemperatureRatio(peak, gamma)
-	pl := st.StagnationPressure / atmosphere.PressureRatio(peak, gamma)
-	return math.Min(free, margin(m, tl, pl))
+	return margin(m, t0/atmosphere.TemperatureRatio(peak, gamma), p0/atmosphere.PressureRatio(peak, gamma))
 }
 
 // nitrogenMargin returns T/T_sat(p) − 1 for nitrogen at temperature T in K and

@@ -338,6 +338,23 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	p := *sv.p
 	r := *sv
 	r.f, r.p, r.evals, r.warnings, r.polishEvals = &f, &p, 0, nil, 0
+	r.memo, r.memoNext = [len(sv.memo)]stateMemo{}, 0
+	switch name {
+	case facilities.ConstraintTempMin, facilities.ConstraintTempMax, facilities.ConstraintCondensation:
+		// The condensation line's bracket or level moves.
+		if sv.cond != nil {
+			r.cond = newCondLineCache()
+		}
+	}
+	switch name {
+	case facilities.ConstraintSpan, facilities.ConstraintBlockage, facilities.ConstraintScaleMin, facilities.ConstraintScaleMax,
+		facilities.ConstraintMachMin, facilities.ConstraintMachMax, sv.loadName, sv.floorName:
+		// A set-up at one Mach number reads none of these: r shares sv's.
+	default:
+		if sv.setups != nil {
+			r.setups = make(map[float64]machSetup, 64)
+		}
+	}
 	up := func(v float64) *float64 { v *= 1.01; return &v }
 	rng := func(x *facilities.Range, lower bool) *facilities.Range {
 		y := *x

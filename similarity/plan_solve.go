@@ -204,6 +204,19 @@ type solver struct {
 	noPolish bool
 	// polishEvals counts the refinement's objective evaluations.
 	polishEvals int
+
+	// memo holds the states computed last (state), memoNext the next to replace.
+	memo     [2]stateMemo
+	memoNext int
+	// cond holds the condensation line of the local expansion found so far
+	// (nitrogen; nil otherwise): it does not depend on the Mach number, so
+	// every set-up, and every re-solve that keeps the T0 range and the
+	// condensation limit, shares it.
+	cond *condLineCache
+	// setups keeps the set-ups prepared, by Mach number (real-gas nitrogen;
+	// nil otherwise): the search, the trade curve and the re-solves that relax
+	// no limit a set-up reads share them.
+	setups map[float64]machSetup
 }
 
 // newSolver validates the problem and sets up the search.
@@ -239,6 +252,12 @@ func newSolver(p *Problem) (*solver, error) {
 	sv.setObjective()
 	if err := sv.setLimits(); err != nil {
 		return nil, err
+	}
+	if sv.f.Medium.Kind == facilities.MediumNitrogen {
+		// A set-up of real-gas nitrogen costs tens of states; one of an ideal
+		// gas or water a few, less than keeping it.
+		sv.cond = newCondLineCache()
+		sv.setups = make(map[float64]machSetup, 64)
 	}
 	return sv, nil
 }
@@ -603,6 +622,28 @@ func (sv *solver) setURange() error {
 // state returns the facility state at machOrSpeed, p0, T0; err reports an unusable setting
 // (for nitrogen: the free stream at saturation).
 func (sv *solver) state(machOrSpeed, p0, t0 float64) (facilities.State, error) {
+	for i := range sv.memo {
+		if m := &sv.memo[i]; m.set && m.u == machOrSpeed && m.p == p0 && m.t == t0 {
+			return m.st, m.err
+		}
+	}
+	st, err := sv.stateNow(machOrSpeed, p0, t0)
+	sv.memo[sv.memoNext] = stateMemo{set: true, u: machOrSpeed, p: p0, t: t0, st: st, err: err}
+	sv.memoNext = (sv.memoNext + 1) % len(sv.memo)
+	return st, err
+}
+
+// stateMemo is one state the solver computed last (solver.memo): the search asks
+// for the state it has just computed again (the T0 floor found, then its state).
+type stateMemo struct {
+	set     bool
+	u, p, t float64
+	st      facilities.State
+	err     error
+}
+
+// stateNow computes the facility state at machOrSpeed, p0, T0 (state).
+func (sv *solver) stateNow(machOrSpeed, p0, t0 float64) (facilities.State, error) {
 	sv.evals++
 	set := facilities.Setting{StagnationPressure: p0, StagnationTemperature: t0}
 	if sv.liquid {
@@ -623,7 +664,7 @@ func (sv *solver) floorMargin(c *machSetup, p0, t0 float64) (float64, string) {
 	if err != nil {
 		return -1, facilities.ConstraintCondensation
 	}
-	m, name := sv.f.CondensationMargin(st)-sv.condMin, facilities.ConstraintCondensation
+	m, name := math.Min(sv.f.FreeStreamCondensationMargin(st), sv.localMargin(p0, t0))-sv.condMin, facilities.ConstraintCondensation
 	if c.vmin > 0 {
 		if v := st.Speed/c.vmin - 1; v < m {
 			m, name = v, facilities.ConstraintSpeedMin
@@ -755,6 +796,18 @@ func (sv *solver) lowestScale(c *machSetup) float64 {
 // prepare works out everything at test Mach number (speed) machOrSpeed that does not depend
 // on the model scale.
 func (sv *solver) prepare(machOrSpeed float64) machSetup {
+	if c, ok := sv.setups[machOrSpeed]; ok {
+		return c
+	}
+	c := sv.prepareNow(machOrSpeed)
+	if sv.setups != nil {
+		sv.setups[machOrSpeed] = c
+	}
+	return c
+}
+
+// prepareNow is prepare without the solver's set-ups kept.
+func (sv *solver) prepareNow(machOrSpeed float64) machSetup {
 	switch {
 	case sv.liquid:
 		return sv.prepareWater(machOrSpeed)
@@ -1144,6 +1197,16 @@ func (sv *solver) tfloor(c *machSetup, p0 float64) float64 {
 	if !c.cond {
 		return c.ta
 	}
+	if c.vmin == 0 && sv.cond != nil {
+		// The condensation line of the local expansion does not depend on the
+		// Mach number: found once per p0 for every set-up, from the nearest p0
+		// found before. It is the floor when the free stream there is usable
+		// too (always, in practice: the local peak Mach number is the higher).
+		t := sv.condLine(p0, c.ta, c.tb)
+		if m, _ := sv.floorMargin(c, p0, t); m >= 0 {
+			return t
+		}
+	}
 	if m, _ := sv.floorMargin(c, p0, c.ta); m >= 0 {
 		return c.ta
 	}
@@ -1390,7 +1453,13 @@ func (sv *solver) rootHi(g func(float64) float64, lo, hi float64, increasing boo
 	if fb < 0 {
 		return hi
 	}
-	a, b := lo, hi
+	return illinois(g, lo, fa, hi, fb)
+}
+
+// illinois narrows the bracket [a, b] of an increasing g, g(a) = fa < 0 ≤ fb =
+// g(b), by the Illinois variant of regula falsi to 1e-13 relative and returns
+// its usable end (rootHi).
+func illinois(g func(float64) float64, a, fa, b, fb float64) float64 {
 	side := 0
 	for i := 0; i < 200 && b-a > 1e-13*math.Max(math.Abs(a), math.Abs(b)); i++ {
 		x := (a*fb - b*fa) / (fb - fa)

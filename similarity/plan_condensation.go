@@ -1,0 +1,137 @@
+package similarity
+
+import (
+	"math"
+	"slices"
+)
+
+// condLineCache is what a solver knows of the condensation line of the local
+// expansion (facilities.Facility.LocalCondensationMargin) of real-gas
+// nitrogen: the margins computed last, by (p0, T0), and the lowest usable T0
+// found at each p0, sorted by p0, from which the next p0 starts.
+type condLineCache struct {
+	local [32]localPoint
+	next  int // the entry of local to replace next
+	line  []condPoint
+	// lo and hi are the T0 range the line was found in.
+	lo, hi float64
+}
+
+// localPoint is the local condensation margin m at (p0, T0) = (p, t).
+type localPoint struct{ p, t, m float64 }
+
+// condPoint is the lowest usable T0 in K at p0 in Pa on the condensation line.
+type condPoint struct{ p, t float64 }
+
+func newCondLineCache() *condLineCache {
+	return &condLineCache{line: make([]condPoint, 0, 64)}
+}
+
+// localMargin returns the facility's local condensation margin at (p0, T0)
+// (facilities.Facility.LocalCondensationMargin), computed once per point.
+func (sv *solver) localMargin(p0, t0 float64) float64 {
+	if sv.cond == nil {
+		return sv.f.LocalCondensationMargin(p0, t0)
+	}
+	cc := sv.cond
+	for _, e := range cc.local {
+		if e.p == p0 && e.t == t0 && p0 > 0 {
+			return e.m
+		}
+	}
+	m := sv.f.LocalCondensationMargin(p0, t0)
+	cc.local[cc.next] = localPoint{p0, t0, m}
+	cc.next = (cc.next + 1) % len(cc.local)
+	return m
+}
+
+// condLine returns the lowest T0 in [lo, hi] at p0 at which the local
+// expansion keeps the condensation margin allowed (sv.condMin), by rootHi's
+// rule: lo when it is usable, hi when nothing is, else the usable side of the
+// crossing within 1e-13 relative. It starts from the line found at the nearest
+// p0 before (rootFrom), and keeps what it finds.
+func (sv *solver) condLine(p0, lo, hi float64) float64 {
+	cc := sv.cond
+	g := func(t float64) float64 { return sv.localMargin(p0, t) - sv.condMin }
+	if len(cc.line) > 0 && (cc.lo != lo || cc.hi != hi) {
+		// Another bracket (not the one the line was found in): no sharing.
+		return sv.rootHi(g, lo, hi, true)
+	}
+	cc.lo, cc.hi = lo, hi
+	i, found := slices.BinarySearchFunc(cc.line, p0, func(c condPoint, p float64) int {
+		switch {
+		case c.p < p:
+			return -1
+		case c.p > p:
+			return 1
+		}
+		return 0
+	})
+	if found {
+		return cc.line[i].t
+	}
+	var t float64
+	switch {
+	case len(cc.line) == 0:
+		t = sv.rootHi(g, lo, hi, true)
+	default:
+		t = sv.rootFrom(g, cc.guess(i, p0), lo, hi)
+	}
+	cc.line = slices.Insert(cc.line, i, condPoint{p0, t})
+	return t
+}
+
+// guess returns the T0 of the line at p0, to be inserted at i, by linear
+// inter- or extrapolation from the nearest two points found.
+func (cc *condLineCache) guess(i int, p0 float64) float64 {
+	n := len(cc.line)
+	if n == 1 {
+		return cc.line[0].t
+	}
+	j := min(max(i-1, 0), n-2)
+	a, b := cc.line[j], cc.line[j+1]
+	return a.t + (b.t-a.t)*(p0-a.p)/(b.p-a.p)
+}
+
+// rootFrom is rootHi for an increasing g started from a guess x0 of the
+// crossing: a step of 1e-4 relative toward it, and steps of half again the
+// secant's distance past it, bracket the crossing; the Illinois iteration then
+// narrows the bracket to 1e-13 relative. It returns what rootHi returns: lo
+// when g(lo) ≥ 0, hi when g(hi) < 0, else the usable end of the final bracket.
+// Without a bracket after 8 steps it falls back to rootHi over [lo, hi].
+func (sv *solver) rootFrom(g func(float64) float64, x0, lo, hi float64) float64 {
+	clamp := func(x float64) float64 { return math.Min(math.Max(x, lo), hi) }
+	x0 = clamp(x0)
+	f0 := g(x0)
+	step := 1e-4 * math.Abs(x0)
+	if step == 0 {
+		step = 1e-4 * (hi - lo)
+	}
+	for range 8 {
+		dir := 1.0
+		if f0 >= 0 {
+			if x0 == lo {
+				return lo
+			}
+			dir = -1
+		} else if x0 == hi {
+			return hi
+		}
+		x1 := clamp(x0 + dir*step)
+		f1 := g(x1)
+		switch {
+		case f0 < 0 && f1 >= 0:
+			return illinois(g, x0, f0, x1, f1)
+		case f0 >= 0 && f1 < 0:
+			return illinois(g, x1, f1, x0, f0)
+		}
+		next := 2 * step
+		if den := f1 - f0; den != 0 && !math.IsInf(den, 0) {
+			if est := -f1 * (x1 - x0) / den; est*dir > 0 {
+				next = 1.5 * math.Abs(est)
+			}
+		}
+		step, x0, f0 = next, x1, f1
+	}
+	return sv.rootHi(g, lo, hi, true)
+}
