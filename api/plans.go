@@ -46,7 +46,7 @@ func (s *Server) postPlan(c *gin.Context) {
 }
 
 // planAnnouncer is a catalog whose group commits gather more plans when told
-// that one is on its way (sqlite.DB.ExpectPlan): postPlan announces its plan
+// that one is on its way (ExpectPlan of the SQLite and PostgreSQL stores): postPlan announces its plan
 // before decoding the request, so that concurrent requests share one commit.
 type planAnnouncer interface {
 	ExpectPlan(ctx context.Context) (context.Context, func())

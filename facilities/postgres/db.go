@@ -62,7 +62,9 @@ var _ facilities.VersionReader = (*DB)(nil)
 // It does not seed; see facilities.SeedDemo.
 //
 // Concurrent SavePlan calls share transactions (group commit): a call that finds
-// no group committing starts a committer goroutine and waits for it.
+// no group committing starts a committer goroutine and waits for it, and a group
+// waits for more plans as the shared store's ExpectPlan says (at most
+// sqlstore.PlanGather).
 func Open(ctx context.Context, url string) (*DB, error) {
 	cfg, err := pgxpool.ParseConfig(url)
 	if err != nil {
@@ -73,7 +75,7 @@ func Open(ctx context.Context, url string) (*DB, error) {
 		return nil, fmt.Errorf("postgres: connecting: %w", err)
 	}
 	s, err := sqlstore.Open(ctx, sqlstore.Config{Dialect: dialect, Driver: pgxDriver{pgxRunner{pool}, pool}, Subject: "the database",
-		GroupCommit: groupcommit.Config[facilities.PlanRecord]{MaxGroup: maxGroup}})
+		GroupCommit: groupcommit.Config[facilities.PlanRecord]{MaxGroup: maxGroup, Gather: sqlstore.PlanGather}})
 	if err != nil {
 		return nil, err
 	}

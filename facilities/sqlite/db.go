@@ -28,13 +28,6 @@ const busyTimeout = 10 * time.Second
 // committed in several groups, one after the other.
 const maxGroup = 512
 
-// maxGather is the longest a group commit waits for the plans announced by
-// ExpectPlan to join it before it commits without them. It is of the order of one
-// commit of a few plan records on this kind of machine (0.3 to 1 ms), so that a
-// group that waits at most doubles its callers' wait, and only when other plans
-// are known to be on their way.
-const maxGather = time.Millisecond
-
 // dialect is SQLite's: ? placeholders, instants as microseconds since 1970 UTC,
 // and no row locks (every write is one BEGIN IMMEDIATE transaction, which holds
 // the whole file).
@@ -51,8 +44,7 @@ type store = sqlstore.Store
 
 // DB is a facility catalog in one SQLite file. It is safe for concurrent use; writes
 // go through a single connection, reads through a small pool. Its methods are the
-// shared store's (package facilities/internal/sqlstore) and ExpectPlan and
-// PlanGroups.
+// shared store's (package facilities/internal/sqlstore).
 type DB struct {
 	*store
 	w, r *sql.DB // the one writer connection; the readers (WAL lets them run beside it)
@@ -71,8 +63,8 @@ func Path(dir string) string { return filepath.Join(dir, FileName) }
 //
 // Writes are durable with synchronous=FULL. Concurrent SavePlan calls share
 // transactions (group commit): a call that finds no group committing commits its
-// own on its goroutine, and a group waits up to maxGather for the plans announced
-// by ExpectPlan.
+// own on its goroutine, and a group waits for more plans as the shared store's
+// ExpectPlan says (at most sqlstore.PlanGather).
 func Open(ctx context.Context, path string) (*DB, error) {
 	if path == "" {
 		return nil, errors.New("sqlite: empty catalog path")
@@ -101,31 +93,9 @@ func Open(ctx context.Context, path string) (*DB, error) {
 	r.SetMaxOpenConns(4)
 	r.SetMaxIdleConns(4)
 	s, err := sqlstore.Open(ctx, sqlstore.Config{Dialect: dialect, Driver: sqlstore.DBSQL(w, r), Subject: path,
-		GroupCommit: groupcommit.Config[facilities.PlanRecord]{MaxGroup: maxGroup, Gather: maxGather, Inline: true}})
+		GroupCommit: groupcommit.Config[facilities.PlanRecord]{MaxGroup: maxGroup, Gather: sqlstore.PlanGather, Inline: true}})
 	if err != nil {
 		return nil, err
 	}
 	return &DB{store: s, w: w, r: r}, nil
-}
-
-// ExpectPlan announces that a SavePlan call with the returned context (or one
-// derived from it) is likely to follow soon, as it does when a plan request has
-// been received and is being planned. A group commit that starts while plans are
-// announced waits for them to be queued, at most maxGather (1 ms), so that they
-// share its transaction and fsync instead of each waiting for one of its own
-// (groupcommit.Committer.Expect). Durability is unchanged: every call is still
-// answered only after its own group has committed.
-//
-// The returned function withdraws the announcement; call it when the plan is
-// finished, stored or not (after SavePlan it does nothing). An announcement that
-// is never withdrawn nor followed by SavePlan delays each group by maxGather.
-func (db *DB) ExpectPlan(ctx context.Context) (context.Context, func()) {
-	return sqlstore.HooksOf(db.store).Plans.Expect(ctx)
-}
-
-// PlanGroups returns how many group commits of plan records this store has run
-// since Open and how many records they held (records/groups is the mean group
-// size; a group whose transaction failed counts too).
-func (db *DB) PlanGroups() (groups, records int64) {
-	return sqlstore.HooksOf(db.store).Plans.Stats()
 }

@@ -63,23 +63,40 @@ func (c *Committer[R]) SetGather(d time.Duration) {
 	c.mu.Unlock()
 }
 
-// gatherAnnounced waits, at most the gathering limit, until as many
-// announcements have settled as were outstanding when it started (or the queue
-// holds a full group, or the Committer is closing). Records announced while it
-// waits are not waited for: they arrive as the group commits and start the next
-// one.
+// gatherAnnounced waits before a group is taken from the queue, so that the
+// group holds more records and one commit serves more callers. It waits while
+// announcements outstanding when it started have not all settled, or while the
+// queue holds fewer records than were in flight when the last group finished (the
+// callers answered by that group are expected back, as a client with several
+// requests in flight sends its next one as soon as it is answered); and it stops
+// when the queue holds a full group, the Committer is closing, or the gathering
+// limit has passed: Config.Gather, and once a group has committed at most the
+// mean time of a commit, so that a group that waits in vain at most doubles
+// its callers' wait. Records announced while it waits are not waited for: they
+// arrive as the group commits and start the next one.
+//
+// Why the records in flight: when commits take longer than planning (a flush
+// to stable storage takes milliseconds on many disks), every caller soon waits
+// in the queue. Without a wait, each group takes what queued during the commit
+// before it, and n callers settle into two groups of about n/2 taking turns;
+// waiting for the callers of the last group to come back makes one group of n.
 func (c *Committer[R]) gatherAnnounced() {
 	var timer *time.Timer
 	c.mu.Lock()
 	target := c.settled + int64(c.coming)
+	want := min(c.inFlight, c.maxGroup)
 	limit := c.gather
+	if c.commitTime > 0 {
+		limit = min(limit, c.commitTime)
+	}
 	c.mu.Unlock()
 	if limit <= 0 {
 		return
 	}
 	for {
 		c.mu.Lock()
-		wait := c.settled < target && c.coming > 0 && len(c.queue) < c.maxGroup && !c.closed
+		announced := c.settled < target && c.coming > 0
+		wait := (announced || len(c.queue) < want) && len(c.queue) < c.maxGroup && !c.closed
 		c.mu.Unlock()
 		if !wait {
 			return

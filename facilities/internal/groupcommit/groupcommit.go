@@ -85,8 +85,11 @@ type Config[R any] struct {
 	// MaxGroup is the most records one group holds; a longer queue is committed
 	// in several groups, one after the other. Zero or less means 512.
 	MaxGroup int
-	// Gather is the longest a group waits for the records announced by Expect to
-	// be queued before it commits without them. Zero turns the wait off.
+	// Gather is the longest a group waits for more records before it commits:
+	// for those announced by Expect, and for as many records as were in flight
+	// when the group before it finished (gatherAnnounced). Once a group has
+	// committed, the wait is also at most the mean time a commit takes. Zero
+	// turns the wait off.
 	Gather time.Duration
 	// Inline lets a call that finds no group committing commit its own group on
 	// its own goroutine, sparing the hand-over to a committer goroutine and back;
@@ -131,6 +134,13 @@ type Committer[R any] struct {
 	settled int64
 	// gather is Config.Gather (SetGather changes it).
 	gather time.Duration
+	// inFlight is how many records were in flight when the last group finished
+	// committing: that group's, those queued behind it and those announced; the
+	// next group waits for as many (gatherAnnounced). commitTime is the mean
+	// wall time of a group's commit (a running mean over about four groups; zero
+	// before the first), which bounds that wait.
+	inFlight   int
+	commitTime time.Duration
 	// arrived (capacity 1) wakes a group gathering its records: a record was
 	// queued, an announcement withdrawn, or the Committer closed.
 	arrived chan struct{}
@@ -268,7 +278,17 @@ func (c *Committer[R]) commitGroup(group []*waiter[R]) {
 	for _, w := range group {
 		recs = append(recs, w.rec)
 	}
+	start := time.Now()
 	err := c.commit(recs)
+	took := time.Since(start)
+	c.mu.Lock()
+	c.inFlight = len(group) + len(c.queue) + c.coming
+	if c.commitTime == 0 {
+		c.commitTime = took
+	} else {
+		c.commitTime += (took - c.commitTime) / 4
+	}
+	c.mu.Unlock()
 	c.groups.Add(1)
 	c.records.Add(int64(len(group)))
 	for i, w := range group {

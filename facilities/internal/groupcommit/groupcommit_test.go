@@ -345,6 +345,53 @@ func TestExpect(t *testing.T) {
 	}
 }
 
+// TestGatherInFlight checks that a group waits for as many records as were in
+// flight when the group before it finished (its own and those queued behind it),
+// so that callers answered by that group join the next one, and that without
+// them it waits no longer than a commit takes.
+func TestGatherInFlight(t *testing.T) {
+	t.Parallel()
+	e := newEngine()
+	c := groupcommit.New(groupcommit.Config[int]{Commit: e.commit, Gather: time.Minute})
+	defer c.Close()
+	ctx := context.Background()
+	results := make(chan result, 5)
+	go submit(c, ctx, 1, results)
+	<-e.entered
+	go submit(c, ctx, 2, results)
+	waitQueued(t, c, 1)
+	go submit(c, ctx, 3, results)
+	waitQueued(t, c, 2)
+	// The first commit takes at least this long, which bounds the waits after it.
+	time.Sleep(500 * time.Millisecond)
+	close(e.release)
+	// Record 1 is answered; three records were in flight, so the next group
+	// waits for a third, which comes back as a caller answered would.
+	if r := <-results; r.rec != 1 || r.outcome != groupcommit.Committed {
+		t.Fatalf("first answer: record %d %v, want record 1 committed", r.rec, r.outcome)
+	}
+	go submit(c, ctx, 4, results)
+	for range 3 {
+		if r := <-results; r.outcome != groupcommit.Committed {
+			t.Errorf("record %d: %v, %v; want committed", r.rec, r.outcome, r.err)
+		}
+	}
+	// Three were in flight again; a lone record waits for the others at most
+	// about a commit's time (the mean of the commits so far), not Gather.
+	start := time.Now()
+	go submit(c, ctx, 5, results)
+	if r := <-results; r.outcome != groupcommit.Committed {
+		t.Errorf("record 5: %v, %v; want committed", r.outcome, r.err)
+	}
+	if waited := time.Since(start); waited > 20*time.Second {
+		t.Errorf("a lone record waited %v for records that never came, want about one commit's time", waited)
+	}
+	want := [][]int{{1}, {2, 3, 4}, {5}}
+	if got := e.committed(); fmt.Sprint(got) != fmt.Sprint(want) {
+		t.Errorf("groups %v, want %v", got, want)
+	}
+}
+
 // TestOutcomeString checks the outcome names.
 func TestOutcomeString(t *testing.T) {
 	tests := []struct {

@@ -41,6 +41,40 @@ func (s *Store) SavePlan(ctx context.Context, p facilities.PlanRecord) (faciliti
 	return facilities.PlanRecord{}, groupcommit.Explain(fmt.Sprintf("%s: saving plan %q", s.d.Name, id), outcome, err, failed, s.closed)
 }
 
+// PlanGather is the longest a group commit of plan records waits for more plans
+// before it commits without them (groupcommit.Config.Gather): for the plans
+// announced by ExpectPlan, and for as many plans as were in flight when the group
+// before it finished. Once groups have committed, the wait is also at most the
+// mean time a commit takes, so a group that waits in vain at most doubles its
+// callers' wait; on a disk whose flush takes milliseconds (3.4 to 5 ms for
+// fsync on the 2-core machine of docs/performance.md) that bound, not this one,
+// is what applies.
+const PlanGather = 10 * time.Millisecond
+
+// ExpectPlan announces that a SavePlan call with the returned context (or one
+// derived from it) is likely to follow soon, as it does when a plan request has
+// been received and is being planned. A group commit that starts while plans are
+// announced waits for them to be queued (at most the engine's gathering limit,
+// PlanGather), so that they share its transaction and flush instead of each
+// waiting for one of its own (groupcommit.Committer.Expect). Durability is
+// unchanged: every call is still answered only after its own group has
+// committed.
+//
+// The returned function withdraws the announcement; call it when the plan is
+// finished, stored or not (after SavePlan it does nothing). An announcement that
+// is never withdrawn nor followed by SavePlan delays each group by the
+// gathering limit.
+func (s *Store) ExpectPlan(ctx context.Context) (context.Context, func()) {
+	return s.plans.Expect(ctx)
+}
+
+// PlanGroups returns how many group commits of plan records this store has run
+// since Open and how many records they held (records/groups is the mean group
+// size; a group whose transaction failed counts too).
+func (s *Store) PlanGroups() (groups, records int64) {
+	return s.plans.Stats()
+}
+
 // commitGroup writes the group's records in one transaction, in the order their
 // calls arrived (so of two records with one id the first is kept), leaving in
 // recs[i] the record as stored; an error fails the whole group. The transaction

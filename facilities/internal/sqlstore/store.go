@@ -219,8 +219,7 @@ type Hooks struct {
 	Closed error
 }
 
-// HooksOf returns s's insides. Engine packages use Plans for what only they
-// offer (ExpectPlan, PlanGroups); the rest is for tests.
+// HooksOf returns s's insides, for the tests of the engine packages.
 func HooksOf(s *Store) Hooks {
 	return Hooks{BeforeCommit: &s.beforeCommit, Plans: s.plans, Closed: s.closed}
 }
