@@ -201,5 +201,6 @@ func (sv *solver) refine(x candidate, ivs []interval) candidate {
 		}
 	}
 	sv.polishEvals += n
+	sv.polishImproved = sv.polishImproved || best.k.less(x.k)
 	return best
 }

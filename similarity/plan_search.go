@@ -272,7 +272,10 @@ func (sv *solver) feasibleMachOrSpeed() ([]interval, []string) {
 
 // solve finds the best plan.
 func (sv *solver) solve() (candidate, error) {
-	ivs, fails := sv.feasibleMachOrSpeed()
+	if !sv.ivsKnown {
+		sv.ivs, sv.ivsFails = sv.feasibleMachOrSpeed()
+	}
+	ivs, fails := sv.ivs, sv.ivsFails
 	if len(ivs) == 0 {
 		what := "Mach number"
 		if sv.liquid {
@@ -319,7 +322,13 @@ func (sv *solver) solve() (candidate, error) {
 		}
 	} else {
 		for _, iv := range ivs {
-			consider(sv.golden(sv.bestOverScales, iv.a, iv.b, 17, tolU))
+			if w := sv.warm; w != nil && w.machOrSpeed >= iv.a && w.machOrSpeed <= iv.b && sv.warmCell > 0 {
+				// A re-solve: the relaxed optimum lies near the one relaxed.
+				a, b := math.Max(iv.a, w.machOrSpeed-sv.warmCell), math.Min(iv.b, w.machOrSpeed+sv.warmCell)
+				consider(sv.golden(sv.bestOverScales, a, b, 3, tolU))
+			} else {
+				consider(sv.golden(sv.bestOverScales, iv.a, iv.b, 17, tolU))
+			}
 			if !sv.liquid && sv.aim >= iv.a && sv.aim <= iv.b {
 				consider(sv.bestOverScales(sv.aim))
 			}
@@ -339,6 +348,7 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	r := *sv
 	r.f, r.p, r.evals, r.warnings, r.polishEvals = &f, &p, 0, nil, 0
 	r.memo, r.memoNext = [len(sv.memo)]stateMemo{}, 0
+	r.ivs, r.ivsFails, r.ivsKnown = nil, nil, false
 	switch name {
 	case facilities.ConstraintTempMin, facilities.ConstraintTempMax, facilities.ConstraintCondensation:
 		// The condensation line's bracket or level moves.
@@ -408,6 +418,18 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	return &r, true
 }
 
+// cellAt returns the width of one cell of the structured search's grid over
+// the feasible interval (of the last solve) that holds machOrSpeed; 0 when none
+// does.
+func (sv *solver) cellAt(machOrSpeed float64) float64 {
+	for _, iv := range sv.ivs {
+		if machOrSpeed >= iv.a && machOrSpeed <= iv.b {
+			return (iv.b - iv.a) / 16
+		}
+	}
+	return 0
+}
+
 // reynoldsMet reports whether the candidate x meets the flight's Reynolds number
 // exactly by the objective: its Reynolds level, and every level before it, is
 // exactly 0 (priority), or the weighted sum with a Reynolds weight is exactly 0.
@@ -436,6 +458,12 @@ func (sv *solver) gain(name string, best candidate) (float64, int, error) {
 	if !ok {
 		return 0, 0, fmt.Errorf("similarity: limit %q cannot be relaxed", name)
 	}
+	// The re-solve starts from the plan found: its grid searches one cell
+	// either side of it, and it refines only when the refinement improved the
+	// plan itself (otherwise the structured search holds the optimum here,
+	// and a 1 % relaxation keeps it so).
+	r.warm, r.warmCell = &best, sv.cellAt(best.machOrSpeed)
+	r.noPolish = sv.noPolish || !sv.polishImproved
 	b2, err := r.solveCorrected()
 	sv.polishEvals += r.polishEvals
 	if err != nil {

@@ -204,6 +204,21 @@ type solver struct {
 	noPolish bool
 	// polishEvals counts the refinement's objective evaluations.
 	polishEvals int
+	// polishImproved: the refinement found a better plan than the structured
+	// search (the binding gains' re-solves refine only then).
+	polishImproved bool
+	// warm is the plan of the problem a re-solve relaxes (nil in a first
+	// solve), and warmCell the width of one cell of the grid that found it:
+	// the re-solve searches the Mach (speed) interval that holds warm from
+	// one cell either side of it (solve).
+	warm     *candidate
+	warmCell float64
+	// ivs are the feasible Mach (speed) intervals of the last solve, ivsFails
+	// the limits that rule out the rest; ivsKnown: the next solve reuses them
+	// (the Mach aim moves, the limits do not).
+	ivs      []interval
+	ivsFails []string
+	ivsKnown bool
 
 	// memo holds the states computed last (state), memoNext the next to replace.
 	memo     [2]stateMemo
@@ -454,16 +469,24 @@ const maxAimSteps = 8
 // scale and Mach number are searched with r held at the plan's value, so a plan at
 // another scale is judged with the plan's blockage, not its own (a difference of
 // the order of the change of ε between the scales times the Mach tolerance).
+//
+// Each solve after the first keeps the feasible intervals and searches from the
+// plan before it, one grid cell either side (a warm start: the aim moves by the
+// change of r, 1e-4 relative at most after the first solve).
 func (sv *solver) solveCorrected() (candidate, error) {
 	best, err := sv.solve()
+	warm, cell := sv.warm, sv.warmCell
 	for i := 0; err == nil && i < maxAimSteps; i++ {
 		r := sv.machRatio(best.machOrSpeed, best.s)
 		if math.Abs(r-sv.aimRatio) <= 1e-14 {
 			break
 		}
 		sv.aimRatio, sv.aim = r, sv.fl.Mach/r
+		prev := best
+		sv.warm, sv.warmCell, sv.ivsKnown = &prev, sv.cellAt(prev.machOrSpeed), true
 		best, err = sv.solve()
 	}
+	sv.warm, sv.warmCell, sv.ivsKnown = warm, cell, false
 	return best, err
 }
 
