@@ -12,13 +12,9 @@ import (
 
 func TestDemoDecodes(t *testing.T) {
 	t.Parallel()
-	got := facilities.Demo()
-	if len(got) != 6 {
-		t.Fatalf("demo catalog has %d facilities, want 6", len(got))
-	}
-	if _, ok := facilities.DemoFacility("tsw-1"); !ok {
-		t.Fatal("tsw-1 missing from the demo catalog")
-	}
+	assert.Len(t, facilities.Demo(), 6, "demo facilities")
+	_, ok := facilities.DemoFacility("tsw-1")
+	assert.True(t, ok, "tsw-1 in the demo catalog")
 }
 
 func TestDemoCatalogIsReadOnly(t *testing.T) {
@@ -26,33 +22,24 @@ func TestDemoCatalogIsReadOnly(t *testing.T) {
 	ctx := context.Background()
 	var c facilities.DemoCatalog
 	fs, err := c.Facilities(ctx)
-	if err != nil || len(fs) != 6 {
-		t.Fatalf("Facilities: %d, %v; want the 6 demo facilities", len(fs), err)
-	}
+	require.NoError(t, err)
+	require.Len(t, fs, 6, "the demo facilities")
 	for i := 1; i < len(fs); i++ {
-		if fs[i-1].ID >= fs[i].ID {
-			t.Errorf("not ordered by id: %q before %q", fs[i-1].ID, fs[i].ID)
-		}
+		assert.Less(t, fs[i-1].ID, fs[i].ID, "ordered by id")
 	}
 	f, err := c.Facility(ctx, "cn2-05")
-	if err != nil || f.Version != 1 {
-		t.Fatalf("Facility(cn2-05): version %d, %v; want version 1", f.Version, err)
-	}
-	if _, err := c.Facility(ctx, "nope"); facilities.ErrorCode(err) != facilities.CodeNotFound {
-		t.Errorf("unknown id: %v, want not_found", err)
-	}
-	if err := c.DeleteFacility(ctx, "cn2-05", 1, "x"); facilities.ErrorCode(err) != facilities.CodeForbidden {
-		t.Errorf("delete: %v, want forbidden", err)
-	}
-	if _, err := c.UpdateFacility(ctx, f, 1, "x"); facilities.ErrorCode(err) != facilities.CodeForbidden {
-		t.Errorf("update: %v, want forbidden", err)
-	}
-	if _, err := c.CreateFacility(ctx, f, "x"); facilities.ErrorCode(err) != facilities.CodeForbidden {
-		t.Errorf("create: %v, want forbidden", err)
-	}
-	if _, err := c.Plan(ctx, "abc"); facilities.ErrorCode(err) != facilities.CodeNotFound {
-		t.Errorf("plan: %v, want not_found", err)
-	}
+	require.NoError(t, err)
+	require.Equal(t, 1, f.Version, "Facility(cn2-05) version")
+	_, err = c.Facility(ctx, "nope")
+	assert.Equal(t, facilities.CodeNotFound, facilities.ErrorCode(err), "unknown id: %v", err)
+	err = c.DeleteFacility(ctx, "cn2-05", 1, "x")
+	assert.Equal(t, facilities.CodeForbidden, facilities.ErrorCode(err), "delete: %v", err)
+	_, err = c.UpdateFacility(ctx, f, 1, "x")
+	assert.Equal(t, facilities.CodeForbidden, facilities.ErrorCode(err), "update: %v", err)
+	_, err = c.CreateFacility(ctx, f, "x")
+	assert.Equal(t, facilities.CodeForbidden, facilities.ErrorCode(err), "create: %v", err)
+	_, err = c.Plan(ctx, "abc")
+	assert.Equal(t, facilities.CodeNotFound, facilities.ErrorCode(err), "plan: %v", err)
 }
 
 // TestHeldStaticPressure checks the water state of a facility that sets its

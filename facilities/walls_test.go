@@ -44,13 +44,10 @@ func TestWallsHandCase(t *testing.T) {
 		{"incompressible solid blockage", facilities.SolidBlockage(0.1, 5.4, 0), 0.25 * 0.1 / 5.4, 1e-15},
 	}
 	for _, c := range cases {
-		if math.Abs(c.got-c.want) > c.tol {
-			t.Errorf("%s = %.10g, want %.10g ± %g", c.name, c.got, c.want, c.tol)
-		}
+		assert.InDelta(t, c.want, c.got, c.tol, "%s, worked by hand (Barlow, Rae & Pope 1999)", c.name)
 	}
-	if !w.Applied || len(w.Warnings) != 0 {
-		t.Errorf("closed walls at M 0.2: applied %v, warnings %q; want applied, none", w.Applied, w.Warnings)
-	}
+	assert.True(t, w.Applied, "closed walls at M 0.2: applied")
+	assert.Empty(t, w.Warnings, "closed walls at M 0.2")
 }
 
 func TestWallsKinds(t *testing.T) {
@@ -75,21 +72,15 @@ func TestWallsKinds(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			t.Parallel()
 			w := facilities.NewWalls(closedSection(3.6, 1.5, c.walls), c.area, 0.5, c.mach)
-			if w.Applied != c.applied {
-				t.Errorf("applied = %v, want %v", w.Applied, c.applied)
+			assert.Equal(t, c.applied, w.Applied, "applied")
+			if !c.applied {
+				assert.Equal(t, 1.0, w.DynamicPressureFactor(0.3), "q factor without a correction")
 			}
-			if !c.applied && w.DynamicPressureFactor(0.3) != 1 {
-				t.Errorf("q factor = %g without a correction, want 1", w.DynamicPressureFactor(0.3))
-			}
-			if math.Abs(w.LiftFactor-c.liftFactor) > 1e-15 {
-				t.Errorf("lift factor = %g, want %g", w.LiftFactor, c.liftFactor)
-			}
-			joined := strings.Join(w.Warnings, " | ")
-			if c.wantWarning == "" && joined != "" {
-				t.Errorf("warnings %q, want none", joined)
-			}
-			if c.wantWarning != "" && !strings.Contains(joined, c.wantWarning) {
-				t.Errorf("warnings %q, want one containing %q", joined, c.wantWarning)
+			assert.InDelta(t, c.liftFactor, w.LiftFactor, 1e-15, "lift factor δ·S/C (Barlow, Rae & Pope 1999)")
+			if c.wantWarning == "" {
+				assert.Empty(t, w.Warnings)
+			} else {
+				assert.Contains(t, strings.Join(w.Warnings, " | "), c.wantWarning)
 			}
 		})
 	}
@@ -101,9 +92,7 @@ func TestWallsFacilityDelta(t *testing.T) {
 	d := 0.11
 	f.LiftInterferenceFactor = &d
 	w := facilities.NewWalls(f, 0.05, 0.4, 0.1)
-	if want := 0.11 * 0.4 / 4; math.Abs(w.LiftFactor-want) > 1e-15 {
-		t.Errorf("lift factor = %g, want %g from the facility's δ", w.LiftFactor, want)
-	}
+	assert.InDelta(t, 0.11*0.4/4, w.LiftFactor, 1e-15, "lift factor from the facility's δ")
 }
 
 func TestWallsSummary(t *testing.T) {
@@ -115,17 +104,12 @@ func TestWallsSummary(t *testing.T) {
 		{Alpha: -4, Coefficients: facilities.Coefficients{CL: -0.3, CD: 0.05}},
 	}
 	c := w.Summary(pts, 5)
-	if want := w.WakePerCD * 0.08; math.Abs(c.WakeBlockage-want) > 1e-15 {
-		t.Errorf("wake blockage = %g, want the largest-C_D point's %g", c.WakeBlockage, want)
-	}
-	if want := 0.0138889 * 180 / math.Pi; math.Abs(c.LiftInterference-want) > 1e-5 || c.LiftInterferenceAlpha != 10 {
-		t.Errorf("lift interference = %g° at α %g, want %g° at 10", c.LiftInterference, c.LiftInterferenceAlpha, want)
-	}
+	assert.InDelta(t, w.WakePerCD*0.08, c.WakeBlockage, 1e-15, "wake blockage: the largest-C_D point's")
+	assert.InDelta(t, 0.0138889*180/math.Pi, c.LiftInterference, 1e-5, "lift interference °, worked by hand in TestWallsHandCase")
+	assert.Equal(t, 10.0, c.LiftInterferenceAlpha, "lift interference at the largest-C_L point, α °")
 	w.Apply(pts)
 	for _, p := range pts {
-		if want := w.DynamicPressureFactor(p.CD); p.DynamicPressureFactor != want {
-			t.Errorf("α %g: q factor %g, want %g", p.Alpha, p.DynamicPressureFactor, want)
-		}
+		assert.Equal(t, w.DynamicPressureFactor(p.CD), p.DynamicPressureFactor, "α %g: q factor", p.Alpha)
 	}
 }
 

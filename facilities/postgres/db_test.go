@@ -11,6 +11,8 @@ import (
 	"time"
 
 	"github.com/jackc/pgx/v5"
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
 	"scalematch/facilities/catalogtest"
@@ -28,9 +30,7 @@ func serverURL(t testing.TB) string {
 		raw = defaultURL
 	}
 	u, err := url.Parse(raw)
-	if err != nil {
-		t.Fatalf("SCALEMATCH_TEST_DATABASE_URL: %v", err)
-	}
+	require.NoError(t, err, "SCALEMATCH_TEST_DATABASE_URL")
 	host := u.Host
 	if u.Port() == "" {
 		host = net.JoinHostPort(u.Hostname(), "5432")
@@ -50,21 +50,16 @@ func schemaURL(t testing.TB) string {
 	raw := serverURL(t)
 	ctx := context.Background()
 	admin, err := pgx.Connect(ctx, raw)
-	if err != nil {
-		t.Fatalf("connecting to the test server: %v", err)
-	}
+	require.NoError(t, err, "connecting to the test server")
+	t.Cleanup(func() { admin.Close(context.Background()) })
 	var b [6]byte
 	rand.Read(b[:])
 	schema := "scalematch_test_" + hex.EncodeToString(b[:])
-	if _, err := admin.Exec(ctx, "CREATE SCHEMA "+schema); err != nil {
-		admin.Close(ctx)
-		t.Fatal(err)
-	}
+	_, err = admin.Exec(ctx, "CREATE SCHEMA "+schema)
+	require.NoError(t, err)
 	t.Cleanup(func() {
-		if _, err := admin.Exec(context.Background(), "DROP SCHEMA "+schema+" CASCADE"); err != nil {
-			t.Errorf("dropping %s: %v", schema, err)
-		}
-		admin.Close(context.Background())
+		_, err := admin.Exec(context.Background(), "DROP SCHEMA "+schema+" CASCADE")
+		assert.NoError(t, err, "dropping %s", schema)
 	})
 	u, _ := url.Parse(raw)
 	q := u.Query()
@@ -77,12 +72,14 @@ func schemaURL(t testing.TB) string {
 var open = catalogtest.Opener(postgres.Open, schemaURL)
 
 func TestCatalog(t *testing.T) {
+	t.Parallel()
 	catalogtest.Run(t, open)
 }
 
 // TestReplicasStartTogether opens several stores on one empty schema at once, as
 // replicas do: the migrations must be applied once and the demo seeded once.
 func TestReplicasStartTogether(t *testing.T) {
+	t.Parallel()
 	const replicas = 4
 	dsn := schemaURL(t)
 	ctx := context.Background()
@@ -107,8 +104,7 @@ func TestReplicasStartTogether(t *testing.T) {
 	seeds := 0
 	for i := 0; i < replicas; i++ {
 		r := <-results
-		if r.err != nil {
-			t.Errorf("replica: %v", r.err)
+		if !assert.NoError(t, r.err, "replica") {
 			continue
 		}
 		dbs = append(dbs, r.db)
@@ -121,34 +117,21 @@ func TestReplicasStartTogether(t *testing.T) {
 			db.Close()
 		}
 	}()
-	if seeds != 1 {
-		t.Errorf("%d replicas seeded the demo catalog, want exactly 1", seeds)
-	}
-	if len(dbs) == 0 {
-		return
-	}
+	assert.Equal(t, 1, seeds, "replicas that seeded the demo catalog")
+	require.NotEmpty(t, dbs, "replicas started")
 	fs, err := dbs[0].Facilities(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if len(fs) != len(facilities.Demo()) {
-		t.Errorf("%d facilities after the replicas started, want %d", len(fs), len(facilities.Demo()))
-	}
+	require.NoError(t, err)
+	assert.Len(t, fs, len(facilities.Demo()), "facilities after the replicas started")
 	conn, err := pgx.Connect(ctx, dsn)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	defer conn.Close(ctx)
 	var rows, versions int
-	if err := conn.QueryRow(ctx, "SELECT count(*), count(DISTINCT version) FROM schema_migrations").Scan(&rows, &versions); err != nil {
-		t.Fatal(err)
-	}
-	if rows != versions || rows != 3 {
-		t.Errorf("schema_migrations has %d rows of %d migrations, want 3 (0001 to 0003, each once)", rows, versions)
-	}
+	require.NoError(t, conn.QueryRow(ctx, "SELECT count(*), count(DISTINCT version) FROM schema_migrations").Scan(&rows, &versions))
+	assert.Equal(t, [2]int{3, 3}, [2]int{rows, versions}, "schema_migrations rows and distinct versions: 0001 to 0003, each once")
 }
 
 func TestOpenErrors(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name string
 		url  string
@@ -158,13 +141,14 @@ func TestOpenErrors(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
+			t.Parallel()
 			ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 			defer cancel()
 			db, err := postgres.Open(ctx, tt.url)
 			if err == nil {
 				db.Close()
-				t.Fatalf("Open(%q) succeeded", tt.url)
 			}
+			assert.Error(t, err, "Open(%q)", tt.url)
 		})
 	}
 }

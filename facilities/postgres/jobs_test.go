@@ -8,6 +8,7 @@ import (
 )
 
 func TestJobs(t *testing.T) {
+	t.Parallel()
 	jobstest.Run(t, openJobs)
 }
 

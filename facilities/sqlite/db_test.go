@@ -7,6 +7,9 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
 	"scalematch/facilities/catalogtest"
 	"scalematch/facilities/sqlite"
@@ -18,62 +21,47 @@ var open = catalogtest.Opener(sqlite.Open, func(tb testing.TB) string {
 })
 
 func TestCatalog(t *testing.T) {
+	t.Parallel()
 	catalogtest.Run(t, open)
 }
 
 // TestReopen checks that a closed store opens again with its data, that the
 // migrations are recorded once, and that a reopened store is not seeded again.
 func TestReopen(t *testing.T) {
+	t.Parallel()
 	ctx := context.Background()
 	path := filepath.Join(t.TempDir(), "nested", "dir", sqlite.FileName)
 	db, err := sqlite.Open(ctx, path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if seeded, err := facilities.SeedDemo(ctx, db, true); err != nil || !seeded {
-		t.Fatalf("first start: seeded %v, %v", seeded, err)
-	}
+	require.NoError(t, err)
+	seeded, err := facilities.SeedDemo(ctx, db, true)
+	require.NoError(t, err)
+	require.True(t, seeded, "first start seeds the demo catalog")
 	f, err := db.Facility(ctx, "tsw-1")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	f.Name = "edited before the restart"
-	if _, err := db.UpdateFacility(ctx, f, f.Version, "staff"); err != nil {
-		t.Fatal(err)
-	}
-	if err := db.Close(); err != nil {
-		t.Fatal(err)
-	}
+	_, err = db.UpdateFacility(ctx, f, f.Version, "staff")
+	require.NoError(t, err)
+	require.NoError(t, db.Close())
 
 	db, err = sqlite.Open(ctx, path)
-	if err != nil {
-		t.Fatalf("reopening: %v", err)
-	}
+	require.NoError(t, err, "reopening")
 	defer db.Close()
-	if seeded, err := facilities.SeedDemo(ctx, db, true); err != nil || seeded {
-		t.Errorf("second start: seeded %v, %v; want no seed", seeded, err)
-	}
+	seeded, err = facilities.SeedDemo(ctx, db, true)
+	require.NoError(t, err)
+	assert.False(t, seeded, "second start: no seed")
 	got, err := db.Facility(ctx, "tsw-1")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if got.Version != 2 || got.Name != f.Name {
-		t.Errorf("after reopening: version %d name %q, want 2 %q", got.Version, got.Name, f.Name)
-	}
+	require.NoError(t, err)
+	assert.Equal(t, 2, got.Version, "version after reopening")
+	assert.Equal(t, f.Name, got.Name, "name after reopening")
 	fs, err := db.Facilities(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if len(fs) != len(facilities.Demo()) {
-		t.Errorf("%d facilities after reopening, want %d", len(fs), len(facilities.Demo()))
-	}
+	require.NoError(t, err)
+	assert.Len(t, fs, len(facilities.Demo()), "facilities after reopening")
 }
 
 func TestOpenErrors(t *testing.T) {
+	t.Parallel()
 	file := filepath.Join(t.TempDir(), "a-file")
-	if err := os.WriteFile(file, []byte(strings.Repeat("not a database file ", 400)), 0o600); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, os.WriteFile(file, []byte(strings.Repeat("not a database file ", 400)), 0o600))
 	tests := []struct {
 		name string
 		path string
@@ -85,17 +73,17 @@ func TestOpenErrors(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
+			t.Parallel()
 			db, err := sqlite.Open(context.Background(), tt.path)
 			if err == nil {
 				db.Close()
-				t.Fatalf("Open(%q) succeeded", tt.path)
 			}
+			assert.Error(t, err, "Open(%q)", tt.path)
 		})
 	}
 }
 
 func TestPath(t *testing.T) {
-	if got, want := sqlite.Path("/srv/data"), filepath.Join("/srv/data", "catalog.db"); got != want {
-		t.Errorf("Path = %q, want %q", got, want)
-	}
+	t.Parallel()
+	assert.Equal(t, filepath.Join("/srv/data", "catalog.db"), sqlite.Path("/srv/data"))
 }

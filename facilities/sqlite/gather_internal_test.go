@@ -5,6 +5,9 @@ import (
 	"testing"
 	"time"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
 )
 
@@ -14,6 +17,7 @@ import (
 // group by the gathering limit and no more, and every announcement is counted
 // out exactly once however it settles.
 func TestExpectPlan(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name      string
 		gatherMax time.Duration
@@ -34,6 +38,7 @@ func TestExpectPlan(t *testing.T) {
 		}, 1, 1, 0},
 		{"outstanding announcement delays by the limit", 30 * time.Millisecond, nil, 1, 1, 30 * time.Millisecond},
 	}
+	// The cases run one after another: each measures how long a group waits.
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			db := openInternal(t)
@@ -62,29 +67,19 @@ func TestExpectPlan(t *testing.T) {
 			} else {
 				second <- nil
 			}
-			if err := <-first; err != nil {
-				t.Fatalf("first plan: %v", err)
-			}
+			require.NoError(t, <-first, "first plan")
 			waited := time.Since(start)
-			if err := <-second; err != nil {
-				t.Fatalf("second announcement: %v", err)
-			}
+			require.NoError(t, <-second, "second announcement")
 			withdrawA()
 			withdrawA()
 			withdrawB()
-			if waited < tt.minWait {
-				t.Errorf("the first plan was stored after %v, want at least %v", waited, tt.minWait)
-			}
-			if waited > tt.gatherMax+5*time.Second {
-				t.Errorf("the first plan was stored after %v, more than the gathering limit %v", waited, tt.gatherMax)
-			}
-			if g, r := db.PlanGroups(); g != tt.wantGroups || r != tt.wantRecords {
-				t.Errorf("%d records in %d groups, want %d in %d", r, g, tt.wantRecords, tt.wantGroups)
-			}
+			assert.GreaterOrEqual(t, waited, tt.minWait, "the first plan's wait")
+			assert.LessOrEqual(t, waited, tt.gatherMax+5*time.Second, "the first plan's wait: the gathering limit and no more")
+			g, r := db.PlanGroups()
+			assert.Equal(t, [2]int64{tt.wantGroups, tt.wantRecords}, [2]int64{g, r}, "groups and records")
 			coming, settled := hooks(db).Plans.Announced()
-			if coming != 0 || settled != 2 {
-				t.Errorf("after settling: %d announcements outstanding, %d settled; want 0 and 2", coming, settled)
-			}
+			assert.Equal(t, 0, coming, "announcements outstanding after settling")
+			assert.Equal(t, int64(2), settled, "announcements settled")
 		})
 	}
 }
@@ -92,6 +87,7 @@ func TestExpectPlan(t *testing.T) {
 // TestExpectPlanLoneCall checks that a SavePlan call with nothing announced
 // besides its own is not delayed by the gathering limit.
 func TestExpectPlanLoneCall(t *testing.T) {
+	t.Parallel()
 	db := openInternal(t)
 	hooks(db).Plans.SetGather(time.Minute)
 	ctx, withdraw := db.ExpectPlan(context.Background())
@@ -103,10 +99,8 @@ func TestExpectPlanLoneCall(t *testing.T) {
 	}()
 	select {
 	case err := <-done:
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 	case <-time.After(30 * time.Second):
-		t.Fatal("a lone announced plan waited for the gathering limit")
+		require.Fail(t, "a lone announced plan waited for the gathering limit")
 	}
 }

@@ -22,9 +22,7 @@ func hooks(db *DB) sqlstore.Hooks { return sqlstore.HooksOf(db.store) }
 func openInternal(t *testing.T) *DB {
 	t.Helper()
 	db, err := Open(context.Background(), filepath.Join(t.TempDir(), FileName))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	t.Cleanup(func() { db.Close() })
 	return db
 }

@@ -9,6 +9,7 @@ import (
 )
 
 func TestJobs(t *testing.T) {
+	t.Parallel()
 	jobstest.Run(t, openJobs)
 }
 

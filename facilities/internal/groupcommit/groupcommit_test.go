@@ -8,6 +8,9 @@ import (
 	"testing"
 	"time"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities/internal/groupcommit"
 )
 
@@ -65,19 +68,15 @@ func submit(c *groupcommit.Committer[int], ctx context.Context, rec int, to chan
 // waitQueued waits until n records are queued (at most 10 s).
 func waitQueued(t *testing.T, c *groupcommit.Committer[int], n int) {
 	t.Helper()
-	deadline := time.Now().Add(10 * time.Second)
-	for c.Queued() != n {
-		if time.Now().After(deadline) {
-			t.Fatalf("%d records queued after 10 s, want %d", c.Queued(), n)
-		}
-		time.Sleep(100 * time.Microsecond)
-	}
+	require.Eventually(t, func() bool { return c.Queued() == n }, 10*time.Second, 100*time.Microsecond,
+		"%d records queued", n)
 }
 
 // TestGrouping holds the first group's commit until more records have queued and
 // checks that they are committed together, in order, in the next group, each
 // answered with its own result; and that MaxGroup splits a longer queue.
 func TestGrouping(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name       string
 		inline     bool
@@ -92,6 +91,7 @@ func TestGrouping(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
+			t.Parallel()
 			e := newEngine()
 			c := groupcommit.New(groupcommit.Config[int]{Commit: e.commit, MaxGroup: tt.maxGroup, Inline: tt.inline})
 			defer c.Close()
@@ -106,42 +106,43 @@ func TestGrouping(t *testing.T) {
 			}
 			close(e.release)
 			for range tt.queued + 1 {
-				r := <-results
-				if r.outcome != groupcommit.Committed || r.err != nil || r.out != 2*r.rec {
-					t.Errorf("record %d: %d, %v, %v; want %d, committed, no error", r.rec, r.out, r.outcome, r.err, 2*r.rec)
-				}
+				assertCommitted(t, <-results)
 			}
 			groups := e.committed()
-			if len(groups) != 1+len(tt.wantGroups) {
-				t.Fatalf("%d groups %v, want %d", len(groups), groups, 1+len(tt.wantGroups))
-			}
+			require.Len(t, groups, 1+len(tt.wantGroups), "groups %v", groups)
 			next := 0
 			for i, want := range tt.wantGroups {
 				g := groups[1+i]
-				if len(g) != want {
-					t.Errorf("group %d holds %d records, want %d", 2+i, len(g), want)
-				}
+				assert.Len(t, g, want, "group %d", 2+i)
 				for _, rec := range g {
-					if rec != next {
-						t.Errorf("group %d: record %d out of order, want %d", 2+i, rec, next)
-					}
+					assert.Equal(t, next, rec, "group %d: records in order", 2+i)
 					next++
 				}
 			}
-			if g, r := c.Stats(); g != int64(len(groups)) || r != int64(tt.queued+1) {
-				t.Errorf("Stats: %d records in %d groups, want %d in %d", r, g, tt.queued+1, len(groups))
-			}
+			g, r := c.Stats()
+			assert.Equal(t, [2]int64{int64(len(groups)), int64(tt.queued + 1)}, [2]int64{g, r}, "Stats: groups and records")
 		})
 	}
+}
+
+// assertCommitted checks that r's record was committed and answered with its
+// own result (the record doubled, by engine.commit).
+func assertCommitted(t *testing.T, r result) {
+	t.Helper()
+	assert.Equal(t, groupcommit.Committed, r.outcome, "record %d", r.rec)
+	assert.NoError(t, r.err, "record %d", r.rec)
+	assert.Equal(t, 2*r.rec, r.out, "record %d: its own result", r.rec)
 }
 
 // TestFailureFailsGroup checks that a group whose commit fails answers every
 // record of that group with the commit's error, and no other group's.
 func TestFailureFailsGroup(t *testing.T) {
+	t.Parallel()
 	const queued = 10
 	injected := errors.New("injected failure")
 	for _, inline := range []bool{true, false} {
 		t.Run(fmt.Sprintf("inline=%v", inline), func(t *testing.T) {
+			t.Parallel()
 			e := newEngine()
 			e.failAt, e.failErr = 2, injected
 			c := groupcommit.New(groupcommit.Config[int]{Commit: e.commit, Inline: inline})
@@ -156,14 +157,12 @@ func TestFailureFailsGroup(t *testing.T) {
 			}
 			waitQueued(t, c, queued)
 			close(e.release)
-			if r := <-first; r.outcome != groupcommit.Committed || r.out != 2000 {
-				t.Errorf("first group: %d, %v, %v; want 2000, committed", r.out, r.outcome, r.err)
-			}
+			assertCommitted(t, <-first)
 			for range queued {
 				r := <-results
-				if r.outcome != groupcommit.Failed || !errors.Is(r.err, injected) || r.out != 0 {
-					t.Errorf("record %d of the failed group: %d, %v, %v; want 0, failed, the injected error", r.rec, r.out, r.outcome, r.err)
-				}
+				assert.Equal(t, groupcommit.Failed, r.outcome, "record %d of the failed group", r.rec)
+				assert.ErrorIs(t, r.err, injected, "record %d of the failed group", r.rec)
+				assert.Zero(t, r.out, "record %d of the failed group: no result", r.rec)
 			}
 		})
 	}
@@ -173,7 +172,9 @@ func TestFailureFailsGroup(t *testing.T) {
 // record is dropped (Abandoned, never committed); while its group commits,
 // Unknown; and a caller that commits its own group inline gets the outcome.
 func TestCancellation(t *testing.T) {
+	t.Parallel()
 	t.Run("while queued", func(t *testing.T) {
+		t.Parallel()
 		e := newEngine()
 		c := groupcommit.New(groupcommit.Config[int]{Commit: e.commit, Inline: true})
 		defer c.Close()
@@ -188,20 +189,16 @@ func TestCancellation(t *testing.T) {
 		go submit(c, context.Background(), 3, kept)
 		waitQueued(t, c, 2)
 		cancel()
-		if r := <-gaveUp; r.outcome != groupcommit.Abandoned || !errors.Is(r.err, context.Canceled) {
-			t.Errorf("cancelled while queued: %v, %v; want abandoned, context.Canceled", r.outcome, r.err)
-		}
+		r := <-gaveUp
+		assert.Equal(t, groupcommit.Abandoned, r.outcome, "cancelled while queued")
+		assert.ErrorIs(t, r.err, context.Canceled, "cancelled while queued")
 		close(e.release)
-		if r := <-kept; r.outcome != groupcommit.Committed || r.out != 6 {
-			t.Errorf("the record queued behind: %d, %v, %v; want 6, committed", r.out, r.outcome, r.err)
-		}
+		assertCommitted(t, <-kept)
 		<-first
-		groups := e.committed()
-		if len(groups) != 2 || len(groups[1]) != 1 || groups[1][0] != 3 {
-			t.Errorf("groups %v, want [[1] [3]]: the abandoned record must not be committed", groups)
-		}
+		assert.Equal(t, [][]int{{1}, {3}}, e.committed(), "groups: the abandoned record is not committed")
 	})
 	t.Run("while committing", func(t *testing.T) {
+		t.Parallel()
 		tests := []struct {
 			name   string
 			inline bool
@@ -212,6 +209,7 @@ func TestCancellation(t *testing.T) {
 		}
 		for _, tt := range tests {
 			t.Run(tt.name, func(t *testing.T) {
+				t.Parallel()
 				e := newEngine()
 				c := groupcommit.New(groupcommit.Config[int]{Commit: e.commit, Inline: tt.inline})
 				defer c.Close()
@@ -229,33 +227,32 @@ func TestCancellation(t *testing.T) {
 				if !tt.inline {
 					close(e.release)
 				}
-				if r.outcome != tt.want {
-					t.Errorf("outcome %v (%v), want %v", r.outcome, r.err, tt.want)
-				}
-				if tt.want == groupcommit.Unknown && !errors.Is(r.err, context.Canceled) {
-					t.Errorf("error %v, want context.Canceled", r.err)
+				assert.Equal(t, tt.want, r.outcome, "outcome (%v)", r.err)
+				if tt.want == groupcommit.Unknown {
+					assert.ErrorIs(t, r.err, context.Canceled)
 				}
 			})
 		}
 	})
 	t.Run("already ended", func(t *testing.T) {
+		t.Parallel()
 		e := newEngine()
 		c := groupcommit.New(groupcommit.Config[int]{Commit: e.commit})
 		defer c.Close()
 		ctx, cancel := context.WithCancel(context.Background())
 		cancel()
-		if _, outcome, err := c.Submit(ctx, 1); outcome != groupcommit.Abandoned || !errors.Is(err, context.Canceled) {
-			t.Errorf("ended context: %v, %v; want abandoned, context.Canceled", outcome, err)
-		}
-		if g, _ := c.Stats(); g != 0 {
-			t.Errorf("%d groups committed, want 0", g)
-		}
+		_, outcome, err := c.Submit(ctx, 1)
+		assert.Equal(t, groupcommit.Abandoned, outcome, "ended context")
+		assert.ErrorIs(t, err, context.Canceled, "ended context")
+		g, _ := c.Stats()
+		assert.Zero(t, g, "groups committed")
 	})
 }
 
 // TestClose checks that Close waits for the running group (and those queued
 // behind it), and that calls made once it has begun are refused with Closed.
 func TestClose(t *testing.T) {
+	t.Parallel()
 	e := newEngine()
 	c := groupcommit.New(groupcommit.Config[int]{Commit: e.commit, Inline: true})
 	results := make(chan result, 2)
@@ -266,44 +263,36 @@ func TestClose(t *testing.T) {
 	closed := make(chan struct{})
 	go func() { c.Close(); close(closed) }()
 	// Close has begun once a new call is refused.
-	deadline := time.Now().Add(10 * time.Second)
-	for {
+	require.Eventually(t, func() bool {
 		// A probe that is queued before Close begins gives up after 1 ms.
 		probe, cancel := context.WithTimeout(context.Background(), time.Millisecond)
+		defer cancel()
 		_, outcome, err := c.Submit(probe, 3)
-		cancel()
-		if outcome == groupcommit.Closed {
-			if err != nil {
-				t.Errorf("refused call: error %v, want nil", err)
-			}
-			break
+		if outcome != groupcommit.Closed {
+			return false
 		}
-		if time.Now().After(deadline) {
-			t.Fatal("calls still accepted 10 s after Close began")
-		}
-		time.Sleep(100 * time.Microsecond)
-	}
+		assert.NoError(t, err, "refused call")
+		return true
+	}, 10*time.Second, 100*time.Microsecond, "calls refused after Close began")
 	select {
 	case <-closed:
-		t.Fatal("Close returned while a group was committing")
+		require.Fail(t, "Close returned while a group was committing")
 	case <-time.After(20 * time.Millisecond):
 	}
 	close(e.release)
 	<-closed
 	for range 2 {
-		if r := <-results; r.outcome != groupcommit.Committed || r.out != 2*r.rec {
-			t.Errorf("record %d accepted before Close: %d, %v, %v; want %d, committed", r.rec, r.out, r.outcome, r.err, 2*r.rec)
-		}
+		assertCommitted(t, <-results)
 	}
-	if _, outcome, _ := c.Submit(context.Background(), 4); outcome != groupcommit.Closed {
-		t.Errorf("call after Close: %v, want closed", outcome)
-	}
+	_, outcome, _ := c.Submit(context.Background(), 4)
+	assert.Equal(t, groupcommit.Closed, outcome, "call after Close")
 	c.Close() // a second Close does nothing more
 }
 
 // TestExpect checks that a group waits for an announced record, which then
 // joins it, and that a withdrawn announcement is counted out once.
 func TestExpect(t *testing.T) {
+	t.Parallel()
 	var mu sync.Mutex
 	var sizes []int
 	c := groupcommit.New(groupcommit.Config[int]{
@@ -328,21 +317,18 @@ func TestExpect(t *testing.T) {
 	second := make(chan result, 1)
 	go submit(c, ctxB, 2, second)
 	for _, ch := range []chan result{first, second} {
-		if r := <-ch; r.outcome != groupcommit.Committed {
-			t.Errorf("record %d: %v, %v; want committed", r.rec, r.outcome, r.err)
-		}
+		r := <-ch
+		assert.Equal(t, groupcommit.Committed, r.outcome, "record %d (%v)", r.rec, r.err)
 	}
 	withdrawA()
 	withdrawB()
 	withdrawB()
 	mu.Lock()
 	defer mu.Unlock()
-	if len(sizes) != 1 || sizes[0] != 2 {
-		t.Errorf("group sizes %v, want [2]", sizes)
-	}
-	if n, settled := c.Announced(); n != 0 || settled != 2 {
-		t.Errorf("%d announcements outstanding, %d settled; want 0 and 2", n, settled)
-	}
+	assert.Equal(t, []int{2}, sizes, "group sizes: the announced record joins the group")
+	n, settled := c.Announced()
+	assert.Equal(t, 0, n, "announcements outstanding")
+	assert.Equal(t, int64(2), settled, "announcements settled")
 }
 
 // TestGatherInFlight checks that a group waits for as many records as were in
@@ -394,6 +380,7 @@ func TestGatherInFlight(t *testing.T) {
 
 // TestOutcomeString checks the outcome names.
 func TestOutcomeString(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		o    groupcommit.Outcome
 		want string
@@ -406,9 +393,7 @@ func TestOutcomeString(t *testing.T) {
 		{groupcommit.Outcome(99), "outcome(?)"},
 	}
 	for _, tt := range tests {
-		if got := tt.o.String(); got != tt.want {
-			t.Errorf("Outcome(%d).String() = %q, want %q", int(tt.o), got, tt.want)
-		}
+		assert.Equal(t, tt.want, tt.o.String(), "Outcome(%d)", int(tt.o))
 	}
 }
 
@@ -436,6 +421,7 @@ func ExampleCommitter() {
 
 // TestExplain checks the error a store answers for each outcome.
 func TestExplain(t *testing.T) {
+	t.Parallel()
 	closedErr := errors.New("the store is closed")
 	groupErr := errors.New("disk full")
 	failed := func(err error) error { return fmt.Errorf("saving plan: %w", err) }
@@ -455,16 +441,14 @@ func TestExplain(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
+			t.Parallel()
 			got := groupcommit.Explain(`store: saving plan "p"`, tt.outcome, tt.err, failed, closedErr)
 			if tt.want == "" {
-				if got != nil {
-					t.Errorf("error %v, want nil", got)
-				}
+				assert.NoError(t, got)
 				return
 			}
-			if got == nil || got.Error() != tt.want || !errors.Is(got, tt.is) {
-				t.Errorf("error %v, want %q wrapping %v", got, tt.want, tt.is)
-			}
+			require.EqualError(t, got, tt.want)
+			assert.ErrorIs(t, got, tt.is)
 		})
 	}
 }
