@@ -215,7 +215,7 @@ func TestStateBadSettings(t *testing.T) {
 			st, err := f.State(tc.set)
 			assert.Zero(t, st, "State with an error")
 			require.Error(t, err)
-			assert.Equal(t, tc.want, validationFields(t, err), "fields (%v)", err)
+			assert.Equal(t, tc.want, testfixture.InvalidFields(t, err), "fields (%v)", err)
 		})
 	}
 }

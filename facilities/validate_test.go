@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
 func TestValidateDemo(t *testing.T) {
@@ -21,25 +22,6 @@ func TestValidateDemo(t *testing.T) {
 }
 
 func fp(v float64) *float64 { return &v }
-
-// validationFields returns the field paths of a validation error (nil for no
-// error), failing the test when it is not a *facilities.Error with CodeInvalid
-// or a field has no message.
-func validationFields(t *testing.T, err error) []string {
-	t.Helper()
-	if err == nil {
-		return nil
-	}
-	var e *facilities.Error
-	require.ErrorAs(t, err, &e)
-	require.Equal(t, facilities.CodeInvalid, e.Code, "%v", err)
-	var got []string
-	for _, f := range e.Fields {
-		assert.NotEmpty(t, f.Message, f.Field)
-		got = append(got, f.Field)
-	}
-	return got
-}
 
 func TestValidateBadFacilities(t *testing.T) {
 	t.Parallel()
@@ -121,7 +103,7 @@ func TestValidateBadFacilities(t *testing.T) {
 			tc.modify(&f)
 			err := f.Validate()
 			require.Error(t, err)
-			assert.Equal(t, tc.want, validationFields(t, err), "fields")
+			assert.Equal(t, tc.want, testfixture.InvalidFields(t, err), "fields")
 		})
 	}
 }
@@ -161,7 +143,7 @@ func TestValidateEverythingAtOnce(t *testing.T) {
 	}
 	err := f.Validate()
 	require.Error(t, err)
-	assert.Equal(t, want, validationFields(t, err), "fields in field order")
+	assert.Equal(t, want, testfixture.InvalidFields(t, err), "fields in field order")
 }
 
 // gaugeRow is a combined gauge row invented for the tests (the demo balances have

@@ -30,6 +30,7 @@ func TestCeilingJSON(t *testing.T) {
 		{"no bound", math.Inf(1), "null"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			r := loads.Report{BalanceID: "int-b1", MaxSafeDynamicPressure: loads.Ceiling(c.v),
 				Points: []loads.PointResult{{Alpha: 2}}}
 			b, err := json.Marshal(&r)

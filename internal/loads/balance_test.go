@@ -2,28 +2,26 @@ package loads_test
 
 import (
 	"encoding/json"
-	"errors"
 	"math"
 	"math/rand/v2"
 	"strings"
 	"testing"
 
-	"scalematch/facilities"
-	"scalematch/internal/loads"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
-)
 
-func ptr(v float64) *float64 { return &v }
+	"scalematch/facilities"
+	"scalematch/internal/loads"
+	"scalematch/internal/testfixture"
+)
 
 // sixComponent is a six-component balance invented for these tests (not a demo
 // balance), with a gauge row.
 func sixComponent() facilities.Balance {
 	return facilities.Balance{
 		ID: "six",
-		Limits: facilities.Limits{Normal: ptr(10000), Axial: ptr(1600), Side: ptr(4400),
-			RollingMoment: ptr(950), PitchingMoment: ptr(1250), YawingMoment: ptr(950)},
+		Limits: facilities.Limits{Normal: fptr(10000), Axial: fptr(1600), Side: fptr(4400),
+			RollingMoment: fptr(950), PitchingMoment: fptr(1250), YawingMoment: fptr(950)},
 		Combined: []facilities.CombinedLimit{{Name: "forward gauge",
 			Coefficients: map[string]float64{"normal": 0.5, "pitching_moment": 4.0}, Limit: 5800}},
 		SafetyFactor: 1.5,
@@ -35,139 +33,90 @@ func onePoint(alpha float64, c facilities.Coefficients) []facilities.Point {
 }
 
 // TestLoadsSigns checks the sign conventions of docs/axes.md on cases worked by hand
-// (S = 1 m², c = 1 m unless noted; g0 = 9.80665 m/s²).
+// (S = 1 m², c = 1 m; g0 = 9.80665 m/s²), to 1e-9 N or N·m unless noted.
 func TestLoadsSigns(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name string
-		lc   loads.Setup
-		q    float64
+		in   loads.Installation
+		pts  []facilities.Point
+		q    float64 // Pa
 		want loads.PointResult
-		tol  float64
-	}{{
+		tol  float64 // 0: 1e-9
+	}{
 		// Pure lift at α = 0 with the moment reference centre 0.1 m ahead of the
 		// balance: N = 1000 N; m = N·Δx = +100 N·m, nose-up.
-		name: "normal force ahead is nose-up",
-		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: loads.Installation{BalanceOffset: loads.Offset{X: 0.1}},
-			Points:       onePoint(0, facilities.Coefficients{CL: 1})},
-		q:    1000,
-		want: loads.PointResult{Normal: 1000, PitchingMoment: 100},
-		tol:  1e-9,
-	}, {
+		{"normal force ahead is nose-up", loads.Installation{BalanceOffset: loads.Offset{X: 0.1}},
+			onePoint(0, facilities.Coefficients{CL: 1}), 1000, loads.PointResult{Normal: 1000, PitchingMoment: 100}, 0},
 		// Pure drag at α = 0 with the reference centre 0.2 m above the balance:
 		// A = 50 N aft; m = A·Δz = +10 N·m (drag above the centre pitches nose-up).
-		name: "axial force above is nose-up",
-		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: loads.Installation{BalanceOffset: loads.Offset{Z: 0.2}},
-			Points:       onePoint(0, facilities.Coefficients{CD: 0.05})},
-		q:    1000,
-		want: loads.PointResult{Axial: 50, PitchingMoment: 10},
-		tol:  1e-9,
-	}, {
+		{"axial force above is nose-up", loads.Installation{BalanceOffset: loads.Offset{Z: 0.2}},
+			onePoint(0, facilities.Coefficients{CD: 0.05}), 1000, loads.PointResult{Axial: 50, PitchingMoment: 10}, 0},
 		// Lift at α = 90°: the lift points along −x body, so A = −L = −1000 N, N = 0.
-		name: "lift at 90 degrees is forward axial",
-		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
-			Points: onePoint(90, facilities.Coefficients{CL: 1})},
-		q:    1000,
-		want: loads.PointResult{Alpha: 90, Axial: -1000},
-		tol:  1e-9,
-	}, {
+		{"lift at 90 degrees is forward axial", loads.Installation{},
+			onePoint(90, facilities.Coefficients{CL: 1}), 1000, loads.PointResult{Alpha: 90, Axial: -1000}, 0},
 		// Weight alone at α = 0: W = 10 kg·9.80665 = 98.0665 N down, N = −98.0665 N;
 		// CG 0.2 m ahead: m = −98.0665·0.2 = −19.6133 N·m, nose-down.
-		name: "weight at alpha 0",
-		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: loads.Installation{ModelMass: 10, CGOffset: loads.Offset{X: 0.2, Z: 0.1}},
-			Points:       onePoint(0, facilities.Coefficients{CL: 1, CD: 1})},
-		q:    0,
-		want: loads.PointResult{Normal: -98.0665, PitchingMoment: -19.6133},
-		tol:  1e-9,
-	}, {
+		{"weight at alpha 0", loads.Installation{ModelMass: 10, CGOffset: loads.Offset{X: 0.2, Z: 0.1}},
+			onePoint(0, facilities.Coefficients{CL: 1, CD: 1}), 0, loads.PointResult{Normal: -98.0665, PitchingMoment: -19.6133}, 0},
 		// Weight alone at α = 90° (nose up, vertical): A = +98.0665 N (aft along the
 		// body); CG 0.1 m above the balance: m = A·z = +9.80665 N·m.
-		name: "weight at alpha 90",
-		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: loads.Installation{ModelMass: 10, CGOffset: loads.Offset{X: 0.2, Z: 0.1}},
-			Points:       onePoint(90, facilities.Coefficients{})},
-		q:    0,
-		want: loads.PointResult{Alpha: 90, Axial: 98.0665, PitchingMoment: 9.80665},
-		tol:  1e-9,
-	}, {
+		{"weight at alpha 90", loads.Installation{ModelMass: 10, CGOffset: loads.Offset{X: 0.2, Z: 0.1}},
+			onePoint(90, facilities.Coefficients{}), 0, loads.PointResult{Alpha: 90, Axial: 98.0665, PitchingMoment: 9.80665}, 0},
 		// Side force ahead of and above the balance: Y = 200 N to starboard,
 		// n = Y·Δx = +60 N·m (nose to starboard), l = Y·Δz = +20 N·m (starboard down).
-		name: "side force transfer",
-		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
-			Installation: loads.Installation{BalanceOffset: loads.Offset{X: 0.3, Z: 0.1}},
-			Points:       onePoint(0, facilities.Coefficients{CY: 0.2})},
-		q:    1000,
-		want: loads.PointResult{Side: 200, YawingMoment: 60, RollingMoment: 20},
-		tol:  1e-9,
-	}, {
+		{"side force transfer", loads.Installation{BalanceOffset: loads.Offset{X: 0.3, Z: 0.1}},
+			onePoint(0, facilities.Coefficients{CY: 0.2}), 1000, loads.PointResult{Side: 200, YawingMoment: 60, RollingMoment: 20}, 0},
 		// Drag at β = 10°: A = D·cos β = 984.808 N, Y = −D·sin β = −173.648 N.
-		name: "drag in sideslip",
-		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
-			Points: []facilities.Point{{Beta: 10, Coefficients: facilities.Coefficients{CD: 1}}}},
-		q:    1000,
-		want: loads.PointResult{Beta: 10, Axial: 984.807753, Side: -173.648178},
-		tol:  1e-6,
-	}, {
+		{"drag in sideslip", loads.Installation{},
+			[]facilities.Point{{Beta: 10, Coefficients: facilities.Coefficients{CD: 1}}}, 1000,
+			loads.PointResult{Beta: 10, Axial: 984.807753, Side: -173.648178}, 1e-6},
 		// Wall correction: q_c = 1.1·q, so N = 1.1·1000 N and the point's q is 1100 Pa.
-		name: "corrected dynamic pressure",
-		lc: loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
-			Points: []facilities.Point{{Coefficients: facilities.Coefficients{CL: 1}, DynamicPressureFactor: 1.1}}},
-		q:    1000,
-		want: loads.PointResult{Normal: 1100},
-		tol:  1e-9,
-	}}
+		{"corrected dynamic pressure", loads.Installation{},
+			[]facilities.Point{{Coefficients: facilities.Coefficients{CL: 1}, DynamicPressureFactor: 1.1}}, 1000,
+			loads.PointResult{Normal: 1100, DynamicPressure: 1100}, 0},
+	}
 	b := sixComponent()
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			r, err := c.lc.Check(&b, c.q)
-			if err != nil {
-				t.Fatal(err)
-			}
+			t.Parallel()
+			lc := loads.Setup{ReferenceArea: 1, ReferenceLength: 1, Installation: c.in, Points: c.pts}
+			r, err := lc.Check(&b, c.q)
+			require.NoError(t, err)
 			got := r.Points[0]
-			for _, f := range []struct {
-				name      string
-				got, want float64
-			}{
-				{"normal", got.Normal, c.want.Normal}, {"axial", got.Axial, c.want.Axial},
-				{"side", got.Side, c.want.Side}, {"rolling", got.RollingMoment, c.want.RollingMoment},
-				{"pitching", got.PitchingMoment, c.want.PitchingMoment}, {"yawing", got.YawingMoment, c.want.YawingMoment},
-			} {
-				if math.Abs(f.got-f.want) > c.tol {
-					t.Errorf("%s = %.9g, want %.9g", f.name, f.got, f.want)
-				}
+			tol := c.tol
+			if tol == 0 {
+				tol = 1e-9
 			}
-			if c.want.DynamicPressure != 0 && got.DynamicPressure != c.want.DynamicPressure {
-				t.Errorf("point q = %g, want %g", got.DynamicPressure, c.want.DynamicPressure)
+			assert.InDeltaSlice(t, components(c.want), components(got), tol,
+				"normal, axial, side, rolling, pitching, yawing (N, N·m), worked by hand")
+			if c.want.DynamicPressure != 0 {
+				assert.Equal(t, c.want.DynamicPressure, got.DynamicPressure, "the point's q, Pa")
 			}
 		})
 	}
 }
 
+// components returns the six loads of p in the order of loads.Vector.
+func components(p loads.PointResult) []float64 {
+	return []float64{p.Normal, p.Axial, p.Side, p.RollingMoment, p.PitchingMoment, p.YawingMoment}
+}
+
 // TestGaugeRowBinds: N = 6000 N (60 % of 10000) and m = 800 N·m (64 % of 1250), but
 // the forward gauge 0.5·N + 4·m = 3000 + 3200 = 6200 N against 5800 N is 107 %.
 func TestGaugeRowBinds(t *testing.T) {
+	t.Parallel()
 	b := sixComponent()
 	lc := loads.Setup{ReferenceArea: 1, ReferenceLength: 1,
 		Points: onePoint(0, facilities.Coefficients{CL: 6, Cm: 0.8})}
 	r, err := lc.Check(&b, 1000)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if r.Limiting.Component != "forward gauge" {
-		t.Errorf("limiting = %q, want the forward gauge", r.Limiting.Component)
-	}
-	if want := 6200.0 / 5800; math.Abs(r.MaxUtilization-want) > 1e-12 {
-		t.Errorf("utilisation = %.12g, want %.12g", r.MaxUtilization, want)
-	}
-	if r.WithinLimits {
-		t.Error("within limits at 107 % of a gauge rating, want not")
-	}
+	require.NoError(t, err)
+	assert.Equal(t, "forward gauge", r.Limiting.Component, "limiting row")
+	assert.InDelta(t, 6200.0/5800, r.MaxUtilization, 1e-12, "utilisation, worked by hand")
+	assert.False(t, r.WithinLimits, "within limits at 107 % of a gauge rating")
 	// The gauge reaches 5800/1.5 = 3866.7 N at q = 3866.7/6.2 Pa.
-	if want := 5800 / 1.5 / 6.2; math.Abs(float64(r.MaxSafeDynamicPressure)-want) > 1e-9 || r.MaxSafeLimiting.Component != "forward gauge" {
-		t.Errorf("max safe q = %.12g by %q, want %.12g by the forward gauge", r.MaxSafeDynamicPressure, r.MaxSafeLimiting.Component, want)
-	}
+	assert.InDelta(t, 5800/1.5/6.2, float64(r.MaxSafeDynamicPressure), 1e-9, "max safe q Pa, worked by hand")
+	assert.Equal(t, "forward gauge", r.MaxSafeLimiting.Component, "the row that sets the max safe q")
 }
 
 // randomCase builds a seeded random load case over a 21-point α sweep.
@@ -193,6 +142,7 @@ func randomCase(rng *rand.Rand, scale float64, weight bool) loads.Setup {
 // TestLoadsScale: with weight and wall corrections off, forces scale exactly with
 // q·s² and moments with q·s³ (offsets scaled with the model).
 func TestLoadsScale(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewPCG(1, 2))
 	b := sixComponent()
 	for trial := range 50 {
@@ -203,13 +153,9 @@ func TestLoadsScale(t *testing.T) {
 		a := randomCase(rand.New(rand.NewPCG(seed, 3)), s, false)
 		c := randomCase(rand.New(rand.NewPCG(seed, 3)), k*s, false)
 		ra, err := a.Check(&b, q)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		rb, err := c.Check(&b, 2*q)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		for i := range ra.Points {
 			pa, pb := ra.Points[i], rb.Points[i]
 			for _, f := range []struct {
@@ -224,9 +170,7 @@ func TestLoadsScale(t *testing.T) {
 				{"pitching", pa.PitchingMoment, pb.PitchingMoment, 2 * k * k * k},
 				{"yawing", pa.YawingMoment, pb.YawingMoment, 2 * k * k * k},
 			} {
-				if math.Abs(f.a*f.factor-f.b) > 1e-12*math.Abs(f.b)+1e-9 {
-					t.Fatalf("trial %d α %g: %s %.15g × %.15g ≠ %.15g", trial, pa.Alpha, f.name, f.a, f.factor, f.b)
-				}
+				require.InDelta(t, f.b, f.a*f.factor, 1e-12*math.Abs(f.b)+1e-9, "trial %d α %g: %s × %.15g, exact scaling", trial, pa.Alpha, f.name, f.factor)
 			}
 		}
 	}
@@ -235,67 +179,56 @@ func TestLoadsScale(t *testing.T) {
 // TestMaxSafeDynamicPressure: at the reported q the worst point sits exactly at
 // 1/safety factor, with weight included.
 func TestMaxSafeDynamicPressure(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewPCG(7, 11))
 	b := sixComponent()
 	for trial := range 100 {
 		lc := randomCase(rng, 0.03+0.1*rng.Float64(), trial%2 == 0)
 		r, err := lc.Check(&b, 1000)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if !(r.MaxSafeDynamicPressure > 0) || math.IsInf(float64(r.MaxSafeDynamicPressure), 0) {
-			t.Fatalf("trial %d: max safe q = %g", trial, r.MaxSafeDynamicPressure)
-		}
+		require.NoError(t, err)
+		require.Positive(t, float64(r.MaxSafeDynamicPressure), "trial %d: max safe q Pa", trial)
+		require.False(t, math.IsInf(float64(r.MaxSafeDynamicPressure), 0), "trial %d: a finite max safe q", trial)
 		at, err := lc.Check(&b, float64(r.MaxSafeDynamicPressure))
-		if err != nil {
-			t.Fatal(err)
-		}
-		if math.Abs(at.MaxUtilization-1/1.5) > 1e-9 {
-			t.Errorf("trial %d: utilisation at max safe q %g = %.12g, want %.12g", trial, r.MaxSafeDynamicPressure, at.MaxUtilization, 1/1.5)
-		}
-		if at.Limiting != r.MaxSafeLimiting {
-			t.Errorf("trial %d: limiting at max safe q %+v, reported %+v", trial, at.Limiting, r.MaxSafeLimiting)
-		}
+		require.NoError(t, err)
+		assert.InDelta(t, 1/1.5, at.MaxUtilization, 1e-9, "trial %d: utilisation at max safe q %g Pa: 1/safety factor", trial, r.MaxSafeDynamicPressure)
+		assert.Equal(t, r.MaxSafeLimiting, at.Limiting, "trial %d: limiting at max safe q", trial)
 	}
+}
+
+// overweight is a 12 kg model (W = 12 kg·9.80665 = 117.7 N) at α 0 on a balance
+// rated for 100 N of normal force over a safety factor of 2: the weight alone is
+// above the 50 N allowed.
+func overweight() (facilities.Balance, loads.Setup) {
+	return facilities.Balance{ID: "small", Limits: facilities.Limits{Normal: fptr(100)}, SafetyFactor: 2},
+		loads.Setup{ReferenceArea: 0.1, ReferenceLength: 0.2,
+			Installation: loads.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
 }
 
 func TestWeightAloneBreaks(t *testing.T) {
-	b := facilities.Balance{ID: "small", Limits: facilities.Limits{Normal: ptr(100)}, SafetyFactor: 2}
-	// W = 12 kg·9.80665 = 117.7 N, above 100/2 = 50 N allowed.
-	lc := loads.Setup{ReferenceArea: 0.1, ReferenceLength: 0.2,
-		Installation: loads.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
+	t.Parallel()
+	b, lc := overweight()
 	r, err := lc.Check(&b, 10)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if r.MaxSafeDynamicPressure != 0 || r.WithinLimits {
-		t.Errorf("max safe q = %g, within %v; want 0, false", r.MaxSafeDynamicPressure, r.WithinLimits)
-	}
+	require.NoError(t, err)
+	assert.Zero(t, r.MaxSafeDynamicPressure, "max safe q Pa")
+	assert.False(t, r.WithinLimits)
 }
 
 func TestUnlimitedJSON(t *testing.T) {
+	t.Parallel()
 	b := facilities.Balance{ID: "free"}
 	lc := loads.Setup{ReferenceArea: 1, ReferenceLength: 1, Points: onePoint(0, facilities.Coefficients{CL: 1})}
 	r, err := lc.Check(&b, 1000)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !math.IsInf(float64(r.MaxSafeDynamicPressure), 1) {
-		t.Fatalf("max safe q = %g with no ratings, want +Inf", r.MaxSafeDynamicPressure)
-	}
+	require.NoError(t, err)
+	require.True(t, math.IsInf(float64(r.MaxSafeDynamicPressure), 1), "max safe q %g with no ratings: +Inf", r.MaxSafeDynamicPressure)
 	out, err := json.Marshal(r)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !strings.Contains(string(out), `"max_safe_dynamic_pressure":null`) || strings.Count(string(out), "max_safe_dynamic_pressure\"") != 1 {
-		t.Errorf("JSON %s: want one max_safe_dynamic_pressure, null", out)
-	}
-	if !strings.Contains(string(out), "model_mass not given") {
-		t.Errorf("JSON %s: want the warning that weight is left out", out)
-	}
+	require.NoError(t, err)
+	assert.Contains(t, string(out), `"max_safe_dynamic_pressure":null`)
+	assert.Equal(t, 1, strings.Count(string(out), "max_safe_dynamic_pressure\""), "max_safe_dynamic_pressure once in %s", out)
+	assert.Contains(t, string(out), "model_mass not given", "the warning that the weight is left out")
 }
 
 func TestLoadErrors(t *testing.T) {
+	t.Parallel()
 	good := func() loads.Setup {
 		return loads.Setup{ReferenceArea: 1, ReferenceLength: 1, Points: onePoint(0, facilities.Coefficients{CL: 1})}
 	}
@@ -314,24 +247,15 @@ func TestLoadErrors(t *testing.T) {
 			b.Combined[0].Coefficients["lift"] = 1
 		}, 1, "balance.combined[0].coefficients.lift"},
 		{"safety factor below 1", func(_ *loads.Setup, b *facilities.Balance) { b.SafetyFactor = 0.5 }, 1, "balance.safety_factor"},
-		{"zero rating", func(_ *loads.Setup, b *facilities.Balance) { b.Limits.Axial = ptr(0) }, 1, "balance.limits.axial"},
+		{"zero rating", func(_ *loads.Setup, b *facilities.Balance) { b.Limits.Axial = fptr(0) }, 1, "balance.limits.axial"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			lc, b := good(), sixComponent()
 			c.mod(&lc, &b)
 			_, err := lc.Check(&b, c.q)
-			var e *facilities.Error
-			if !errors.As(err, &e) || e.Code != facilities.CodeInvalid {
-				t.Fatalf("error %v, want a CodeInvalid *facilities.Error", err)
-			}
-			found := false
-			for _, f := range e.Fields {
-				found = found || f.Field == c.field
-			}
-			if !found {
-				t.Errorf("fields %+v, want %q", e.Fields, c.field)
-			}
+			assert.Contains(t, testfixture.InvalidFields(t, err), c.field)
 		})
 	}
 }
@@ -358,9 +282,7 @@ func BenchmarkRatingsMaxDynamicPressure21(b *testing.B) {
 	lc := benchCase(21)
 	bal := sixComponent()
 	rs, err := loads.NewRatings(&bal)
-	if err != nil {
-		b.Fatal(err)
-	}
+	require.NoError(b, err)
 	perQ := make([]loads.Vector, 21)
 	weight := make([]loads.Vector, 21)
 	for i := range perQ {
@@ -381,6 +303,7 @@ func BenchmarkRatingsMaxDynamicPressure21(b *testing.B) {
 }
 
 func TestSafeDynamicPressure(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name             string
 		u, w, allowed, q float64
@@ -396,9 +319,7 @@ func TestSafeDynamicPressure(t *testing.T) {
 		{"no aerodynamic load", 0, 10, 100, math.Inf(1)},
 	}
 	for _, c := range cases {
-		if got := loads.SafeDynamicPressure(c.u, c.w, c.allowed); got != c.q {
-			t.Errorf("%s: q = %g, want %g", c.name, got, c.q)
-		}
+		assert.Equal(t, c.q, loads.SafeDynamicPressure(c.u, c.w, c.allowed), "%s: q Pa, worked by hand", c.name)
 	}
 }
 
@@ -409,27 +330,15 @@ func TestSafeDynamicPressure(t *testing.T) {
 // factor of 2 allows 50 N; at α = 0, N = q·S·C_L − W = 0 at q = 117.68/(0.1·0.5)
 // = 2353.6 Pa.
 func TestWeightCancelledByLiftIsNotSafe(t *testing.T) {
-	b := facilities.Balance{ID: "small", Limits: facilities.Limits{Normal: ptr(100)}, SafetyFactor: 2}
-	lc := loads.Setup{ReferenceArea: 0.1, ReferenceLength: 0.2,
-		Installation: loads.Installation{ModelMass: 12}, Points: onePoint(0, facilities.Coefficients{CL: 0.5})}
+	t.Parallel()
+	b, lc := overweight()
 	q := 12 * 9.80665 / (0.1 * 0.5)
 	r, err := lc.Check(&b, q)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if r.MaxUtilization > 1e-9 {
-		t.Fatalf("wind-on utilisation %g, want 0 at the cancelling q", r.MaxUtilization)
-	}
-	if r.WithinLimits || r.MaxSafeDynamicPressure != 0 {
-		t.Errorf("within %v, max safe q %g; want false and 0: the weight alone is over the rating", r.WithinLimits, r.MaxSafeDynamicPressure)
-	}
-	found := false
-	for _, w := range r.Warnings {
-		found = found || strings.Contains(w, "weight alone")
-	}
-	if !found {
-		t.Errorf("no warning about the weight alone in %q", r.Warnings)
-	}
+	require.NoError(t, err)
+	require.InDelta(t, 0, r.MaxUtilization, 1e-9, "wind-on utilisation at the cancelling q")
+	assert.False(t, r.WithinLimits, "the weight alone is over the rating")
+	assert.Zero(t, r.MaxSafeDynamicPressure, "max safe q Pa: the weight alone is over the rating")
+	assert.Contains(t, strings.Join(r.Warnings, "\n"), "weight alone", "a warning about the weight alone")
 }
 
 // TestInstallationValidateBounds: the installation's own Validate refuses what the
@@ -449,6 +358,7 @@ func TestInstallationValidateBounds(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			err := tc.in.Validate()
 			var de *facilities.Error
 			require.ErrorAs(t, err, &de)

@@ -16,6 +16,7 @@ import (
 // temperature (34 °C: 994.37 kg/m³, Kell 1975), and that the balance's weight loads
 // carry the net weight.
 func TestBuoyancy(t *testing.T) {
+	t.Parallel()
 	water := &facilities.Facility{ID: "w", Medium: facilities.Medium{Kind: facilities.MediumWater},
 		StagnationTemperature: facilities.Range{Min: 281.15, Max: 307.15}}
 	air := &facilities.Facility{ID: "a", Medium: facilities.Medium{Kind: facilities.MediumAir},
@@ -46,6 +47,7 @@ func TestBuoyancy(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			b := loads.BuoyancyOf(tc.f, tc.in, tc.frontal, tc.length)
 			if tc.nilWant {
 				assert.Nil(t, b)

@@ -21,6 +21,7 @@ func cautionFacility(id string, medium string, p, t facilities.Range) facilities
 // TestCautions checks that each danger gets its own caution, and only its own:
 // fragments that must appear and fragments that must not, per case.
 func TestCautions(t *testing.T) {
+	t.Parallel()
 	report := func(u float64, weight bool) loads.Report {
 		return loads.Report{BalanceID: "bx", SafetyFactor: 1.5, AllowedUtilization: 1 / 1.5,
 			MaxUtilization: u, WeightIncluded: weight,
@@ -67,6 +68,7 @@ func TestCautions(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			got := loads.Cautions(c.f, c.reports...)
 			require.Len(t, got, c.wantSize, "cautions: %q", got)
 			assert.Equal(t, facilities.CautionEstimate, got[0])
@@ -87,8 +89,9 @@ func ptr2(f facilities.Facility) *facilities.Facility { return &f }
 // balance choice says "by this estimate" and names the safety factor as the only
 // margin, and a check without the model's weight says it is unconservative.
 func TestLoadWording(t *testing.T) {
-	bal := facilities.Balance{ID: "bw", Limits: facilities.Limits{Normal: ptr(1000), PitchingMoment: ptr(100)}, SafetyFactor: 1.5}
-	f := facilities.Facility{ID: "fw", Balances: []facilities.Balance{bal, {ID: "bv", Limits: facilities.Limits{Normal: ptr(5000)}, SafetyFactor: 1.5}}}
+	t.Parallel()
+	bal := facilities.Balance{ID: "bw", Limits: facilities.Limits{Normal: fptr(1000), PitchingMoment: fptr(100)}, SafetyFactor: 1.5}
+	f := facilities.Facility{ID: "fw", Balances: []facilities.Balance{bal, {ID: "bv", Limits: facilities.Limits{Normal: fptr(5000)}, SafetyFactor: 1.5}}}
 	cases := []struct {
 		name    string
 		mass    float64
@@ -100,6 +103,7 @@ func TestLoadWording(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			lc := loads.Setup{ReferenceArea: 0.1, ReferenceLength: 0.2,
 				Installation: loads.Installation{ModelMass: c.mass},
 				Points:       onePoint(4, facilities.Coefficients{CL: 0.4, CD: 0.03})}

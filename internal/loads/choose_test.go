@@ -1,15 +1,13 @@
 package loads_test
 
 import (
-	"errors"
-	"scalematch/internal/check"
-	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/internal/loads"
 )
 
@@ -25,10 +23,8 @@ func j16Case(res *loads.Resolution, pts ...facilities.Point) loads.Setup {
 // TestChooseBalance uses the demo facility lsw-2 (ext-6c and int-a, both with a
 // safety factor of 1.5).
 func TestChooseBalance(t *testing.T) {
-	f, ok := facilities.DemoFacility("lsw-2")
-	if !ok {
-		t.Fatal("demo facility lsw-2 missing")
-	}
+	t.Parallel()
+	f := demoPtr(t, "lsw-2")
 	lc := loads.Setup{ReferenceArea: 0.3, ReferenceLength: 0.25,
 		Points: []facilities.Point{{Alpha: 0, Coefficients: facilities.Coefficients{CL: 0.2, CD: 0.03}},
 			{Alpha: 12, Coefficients: facilities.Coefficients{CL: 1.2, CD: 0.08, Cm: -0.1}}}}
@@ -50,25 +46,21 @@ func TestChooseBalance(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
+			lc := lc // each case names its own balance
 			lc.Installation.BalanceID = c.id
-			ch, err := loads.Choose(&lc, &f, c.q)
+			ch, err := loads.Choose(&lc, f, c.q)
 			if c.code != "" {
-				if check.ErrorCode(err) != c.code {
-					t.Fatalf("error %v, want code %s", err, c.code)
-				}
+				assert.Equal(t, c.code, check.ErrorCode(err), "%v", err)
 				return
 			}
-			if err != nil {
-				t.Fatal(err)
-			}
-			if ch.Report.BalanceID != c.want || !strings.Contains(ch.Reason, c.inWords) {
-				t.Errorf("chose %s (%s), want %s", ch.Report.BalanceID, ch.Reason, c.want)
-			}
+			require.NoError(t, err)
+			assert.Equal(t, c.want, ch.Report.BalanceID, "chosen balance (%s)", ch.Reason)
+			assert.Contains(t, ch.Reason, c.inWords)
 		})
 	}
-	if _, err := loads.CheckAll(&lc, &facilities.Facility{}, 1000); !errors.Is(err, loads.ErrNoBalance) {
-		t.Errorf("no balances: error %v, want ErrNoBalance", err)
-	}
+	_, err := loads.CheckAll(&lc, &facilities.Facility{}, 1000)
+	assert.ErrorIs(t, err, loads.ErrNoBalance, "no balances")
 }
 
 // TestChooseBalancePrefersResolution: without a resolution, the balance choice

@@ -5,37 +5,20 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
 	"scalematch/similarity"
 )
 
 // maxQAll is balanceRows.maxQ visiting every element, as before prune: the
 // reference the pruned scan must equal to the bit.
-func (br *balanceRows) maxQAll(cd []float64, mach, solid, wake, qS, qSc float64) float64 {
-	if br.weightBreaks {
-		return 0
+func (br balanceRows) maxQAll(cd []float64, mach, solid, wake, qS, qSc float64) float64 {
+	br.live, br.livePoint = make([]int32, len(br.force)), make([]int32, len(br.force))
+	for k := range br.force {
+		br.live[k], br.livePoint[k] = int32(k), int32(k/br.rows)
 	}
-	num, den := 1.0, 0.0
-	n := br.rows
-	for i, c := range cd {
-		f := facilities.DynamicPressureRatio(mach, solid+wake*c)
-		a, m := f*qS, f*qSc
-		for j := range n {
-			k := i*n + j
-			u := a*br.force[k] + m*br.moment[k]
-			r := br.up[k]
-			if u < 0 {
-				u, r = -u, br.down[k]
-			}
-			if r*den < num*u {
-				num, den = r, u
-			}
-		}
-	}
-	if den == 0 {
-		return math.Inf(1)
-	}
-	return num / den
+	return br.maxQ(cd, mach, solid, wake, qS, qSc)
 }
 
 // bestAll is Limit.best with maxQAll.
@@ -120,6 +103,7 @@ func pruneCase(rng *rand.Rand, i int) (*similarity.Article, *facilities.Facility
 // walls, where it does not), at scales from 1e-4 to 10 and Mach numbers from 0
 // to 1.3: the balance and the ceiling must be equal to the bit.
 func TestPruneExact(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewPCG(17, 3))
 	cases := 400
 	if testing.Short() {
@@ -129,9 +113,7 @@ func TestPruneExact(t *testing.T) {
 	for i := range cases {
 		art, f, in, mx := pruneCase(rng, i)
 		l, err := NewLimit(art, f, in, mx)
-		if err != nil {
-			t.Fatalf("case %d: %v", i, err)
-		}
+		require.NoError(t, err, "case %d", i)
 		for _, br := range l.balances {
 			kept += len(br.live)
 			total += len(br.force)
@@ -144,10 +126,9 @@ func TestPruneExact(t *testing.T) {
 			}
 			k, q := l.best(s, m)
 			ka, qa := l.bestAll(s, m)
-			if k != ka || math.Float64bits(q) != math.Float64bits(qa) {
-				t.Fatalf("case %d (%s, %d points) at scale %.6g, M %.4g: balance %d, q %v; every element: balance %d, q %v",
-					i, f.ID, len(mx.Points), s, m, k, q, ka, qa)
-			}
+			require.Equal(t, [2]uint64{uint64(ka), math.Float64bits(qa)}, [2]uint64{uint64(k), math.Float64bits(q)},
+				"case %d (%s, %d points) at scale %.6g, M %.4g: balance and the bits of q, pruned against every element (q %v, %v)",
+				i, f.ID, len(mx.Points), s, m, q, qa)
 		}
 	}
 	t.Logf("%d cases: %d of %d elements kept (%.1f %%)", cases, kept, total, 100*float64(kept)/float64(total))

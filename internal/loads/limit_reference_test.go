@@ -1,15 +1,17 @@
 package loads_test
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"scalematch/internal/check"
 	"slices"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
@@ -60,25 +62,16 @@ type llrFixture struct {
 
 func llrPrepare(t *testing.T, c *llrCase) *llrFixture {
 	t.Helper()
-	f, ok := facilities.DemoFacility(c.facility)
-	if !ok {
-		t.Fatalf("no demo facility %s", c.facility)
-	}
+	f := demoPtr(t, c.facility)
 	if c.edit != nil {
-		c.edit(&f)
+		c.edit(f)
 	}
 	fl, err := c.flight.Resolve(c.art.ReferenceLength)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	mx, err := c.art.Aero.Matrix(llrSweep, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if len(mx.Points) != 21 {
-		t.Fatalf("%d matrix points, want 21", len(mx.Points))
-	}
-	return &llrFixture{c: c, f: &f, fl: fl, mx: mx}
+	require.NoError(t, err)
+	require.Len(t, mx.Points, 21, "matrix points")
+	return &llrFixture{c: c, f: f, fl: fl, mx: mx}
 }
 
 // geomMax is the largest scale the test section takes: span ≤ fraction·width and
@@ -131,9 +124,7 @@ func (x *llrFixture) loadCheck(t *testing.T, s float64, st facilities.State) (lo
 			continue
 		}
 		r, err := lc.Check(b, st.DynamicPressure)
-		if err != nil {
-			t.Fatalf("load check at s %g, q %g: %v", s, st.DynamicPressure, err)
-		}
+		require.NoError(t, err, "load check at s %g, q %g Pa", s, st.DynamicPressure)
 		if x.c.res != nil && st.DynamicPressure > 0 && !resolvedBy(x.c.res, &r) {
 			continue
 		}
@@ -354,9 +345,7 @@ func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bo
 	t.Helper()
 	x := llrPrepare(t, c)
 	ll, err := loads.NewLimit(c.art, x.f, c.in, x.mx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	prob := &similarity.Problem{Flight: x.fl, Article: c.art, Facility: x.f, Model: c.model, LoadLimit: ll}
 	if c.res != nil {
 		ll.Resolve(c.res)
@@ -364,10 +353,7 @@ func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bo
 	}
 	res, err := similarity.Plan(prob, &similarity.Settings{TradePoints: -1, NoGains: true})
 	if err != nil {
-		var de *check.Error
-		if !errors.As(err, &de) || de.Code != check.CodeUnprocessable {
-			t.Fatalf("planner: %v", err)
-		}
+		require.Equal(t, check.CodeUnprocessable, check.ErrorCode(err), "planner: %v", err)
 		// The planner says no plan exists: the search must find none either, at the
 		// flight Mach number brought into the facility's range, at both ends of the
 		// temperature range.
@@ -376,9 +362,8 @@ func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bo
 			m = math.Min(math.Max(m, x.f.Mach.Min), x.f.Mach.Max)
 		}
 		for _, t0 := range []float64{x.f.StagnationTemperature.Min, x.f.StagnationTemperature.Max} {
-			if ref := x.brute(t, m, t0, ns, np); ref.ok {
-				t.Fatalf("planner: %v; but at M %.4g, T0 %g K the search finds s %.6g, p0 %.6g Pa, Re %.6g", err, m, t0, ref.s, ref.p0, ref.re)
-			}
+			ref := x.brute(t, m, t0, ns, np)
+			require.False(t, ref.ok, "planner: %v; but at M %.4g, T0 %g K the search finds s %.6g, p0 %.6g Pa, Re %.6g", err, m, t0, ref.s, ref.p0, ref.re)
 		}
 		return 0, false
 	}
@@ -386,27 +371,21 @@ func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bo
 	s := res.Model.Scale
 	// Every point at the plan's answer at or under 1/safety factor, by the full check.
 	r, ok := x.loadCheck(t, s, st)
-	if !ok {
-		t.Fatalf("the plan (s %.6g, q %.6g Pa) overloads the balance or misses the required resolution", s, st.DynamicPressure)
-	}
+	require.True(t, ok, "the plan (s %.6g, q %.6g Pa) keeps the balance within its allowed loads and meets the required resolution", s, st.DynamicPressure)
 	for _, p := range r.Points {
-		if p.Utilization > r.AllowedUtilization*(1+1e-9) {
-			t.Errorf("α %g°: %s at %.9g of its rating, above %.9g", p.Alpha, p.Limiting, p.Utilization, r.AllowedUtilization)
-		}
+		assert.LessOrEqual(t, p.Utilization, r.AllowedUtilization*(1+1e-9), "α %g°: %s's share of its rating", p.Alpha, p.Limiting)
 	}
-	if v := x.f.Violations(st); len(v) > 0 {
-		t.Errorf("the plan breaks facility limits: %+v", v)
+	assert.Empty(t, x.f.Violations(st), "the plan's facility limits")
+	if c.bind {
+		assert.True(t, slices.ContainsFunc(res.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintBalance }),
+			"balance among the binding limits %+v", res.Binding)
 	}
-	if c.bind && !slices.ContainsFunc(res.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintBalance }) {
-		t.Errorf("balance not among the binding limits %+v", res.Binding)
-	}
-	if c.row != "" && (r.Limiting.Component != c.row || math.Abs(r.MaxUtilization/r.AllowedUtilization-1) > 1e-6) {
-		t.Errorf("worst point on %s at %.6g of the allowed, want %s at the limit", r.Limiting.Component, r.MaxUtilization/r.AllowedUtilization, c.row)
+	if c.row != "" {
+		assert.Equal(t, c.row, r.Limiting.Component, "the worst point's row")
+		assert.InDelta(t, 1, r.MaxUtilization/r.AllowedUtilization, 1e-6, "the worst point at the allowed load")
 	}
 	ref := x.brute(t, st.Mach, st.StagnationTemperature, ns, np)
-	if !ref.ok {
-		t.Fatalf("the search finds no feasible model at M %.6g, T0 %.6g K; the plan has s %.6g, p0 %.6g Pa", st.Mach, st.StagnationTemperature, s, st.StagnationPressure)
-	}
+	require.True(t, ref.ok, "the search finds a feasible model at M %.6g, T0 %.6g K; the plan has s %.6g, p0 %.6g Pa", st.Mach, st.StagnationTemperature, s, st.StagnationPressure)
 	rel := res.Test.Reynolds/ref.re - 1
 	t.Logf("plan s %.6g, M %.4g, p0 %.6g Pa, q %.6g Pa, Re %.6g; %s at α %g° %.4g of the allowed; search s %.6g, p0 %.6g Pa, Re %.6g",
 		s, st.Mach, st.StagnationPressure, st.DynamicPressure, res.Test.Reynolds, r.Limiting.Component, r.Limiting.Alpha,
@@ -415,10 +394,8 @@ func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bo
 	if tol == 0 {
 		tol = 5e-3
 	}
-	if math.Abs(rel) > tol {
-		t.Errorf("plan Re %.6g (s %.6g, p0 %.6g Pa, q %.6g Pa); search Re %.6g (s %.6g, p0 %.6g Pa, q %.6g Pa): %+.3g %%",
-			res.Test.Reynolds, s, st.StagnationPressure, st.DynamicPressure, ref.re, ref.s, ref.p0, ref.q, 100*rel)
-	}
+	assert.InEpsilon(t, ref.re, res.Test.Reynolds, tol, "plan Re (s %.6g, p0 %.6g Pa, q %.6g Pa) against the search's (s %.6g, p0 %.6g Pa, q %.6g Pa)",
+		s, st.StagnationPressure, st.DynamicPressure, ref.s, ref.p0, ref.q)
 	return rel, true
 }
 
@@ -429,10 +406,9 @@ func llrAero(v ...float64) similarity.Aero {
 		InducedDragFactor: v[5], CmZero: v[6], CmSlope: v[7]}
 }
 
-func llrFloat(v float64) *float64 { return &v }
-
 // TestLoadLimitPlanAgainstSearch covers the named demo cases.
 func TestLoadLimitPlanAgainstSearch(t *testing.T) {
+	t.Parallel()
 	// Demo aircraft, full scale (docs/demo-world.md).
 	j16 := &similarity.Article{ReferenceLength: 2.4, ReferenceArea: 36.5, Span: 16.4, Length: 19.6, FrontalArea: 4.4, WettedArea: 228,
 		Aero: llrAero(4.9, -1.6, 1.25, 0.022, 0.14, 0.057, 0.03, -1.05)}
@@ -444,18 +420,18 @@ func TestLoadLimitPlanAgainstSearch(t *testing.T) {
 		// int-b1's axial rating (1100 N/1.5 = 733 N) caps q on the span-limited J16
 		// at α 16°, so the balance binds (the planning example of api/ shows it
 		// binding beside q_max).
-		{name: "Orrin J16 tsw-1 int-b1", art: j16, flight: similarity.Flight{Altitude: llrFloat(12000), Mach: llrFloat(0.78)},
+		{name: "Orrin J16 tsw-1 int-b1", art: j16, flight: similarity.Flight{Altitude: fptr(12000), Mach: fptr(0.78)},
 			facility: "tsw-1", in: loads.Installation{BalanceID: "int-b1", ModelMass: 20}, bind: true},
 		// int-c's axial rating binds on the Velmar at M 0.29 (the pressurised
 		// tunnel's top Mach number): the plan sits on q_max and the balance.
-		{name: "Velmar T64 plp-3 int-c", art: t64, flight: similarity.Flight{Altitude: llrFloat(6100), Mach: llrFloat(0.47)},
+		{name: "Velmar T64 plp-3 int-c", art: t64, flight: similarity.Flight{Altitude: fptr(6100), Mach: fptr(0.47)},
 			facility: "plp-3", in: loads.Installation{BalanceID: "int-c", ModelMass: 40}, bind: true},
 		// A gauge row invented for this test, added to ext-6c: 0.5·N + 4 m⁻¹·m ≤
 		// 4200 N, so at most 2800 N over the safety factor 1.5. With the moment
 		// reference 0.25 m ahead of the balance centre the normal force adds N·0.25 m
 		// to the pitching moment, and the row binds before any single component
 		// (the test asks that the plan's worst point sits on it).
-		{name: "Pellin P3 lsw-2 ext-6c forward gauge", art: p3, flight: similarity.Flight{Altitude: llrFloat(2100), TrueAirspeed: llrFloat(68)},
+		{name: "Pellin P3 lsw-2 ext-6c forward gauge", art: p3, flight: similarity.Flight{Altitude: fptr(2100), TrueAirspeed: fptr(68)},
 			facility: "lsw-2", in: loads.Installation{BalanceID: "ext-6c", ModelMass: 30, BalanceOffset: loads.Offset{X: 0.25}},
 			edit: func(f *facilities.Facility) {
 				f.Balances[0].Combined = []facilities.CombinedLimit{{Name: "forward gauge",
@@ -466,10 +442,9 @@ func TestLoadLimitPlanAgainstSearch(t *testing.T) {
 	for i := range cases {
 		c := &cases[i]
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			rel, ok := llrCheck(t, c, 161, 81)
-			if !ok {
-				t.Fatalf("no plan")
-			}
+			require.True(t, ok, "a plan")
 			t.Logf("plan Re / search Re − 1 = %+.2e", rel)
 		})
 	}
@@ -488,11 +463,11 @@ func llrRandomCase(rng *rand.Rand, i int) *llrCase {
 		Aero: similarity.Aero{LiftSlope: u(4.5, 6), ZeroLiftAlpha: u(-3, 0), CLMax: u(1.1, 1.7), CDMin: u(0.018, 0.035),
 			CLAtCDMin: u(0, 0.3), InducedDragFactor: u(0.035, 0.06), CmZero: u(-0.05, 0.08), CmSlope: u(-1.3, -0.4)}}
 	c := &llrCase{name: fmt.Sprintf("%02d-%s", i, id), art: art, facility: id}
-	c.flight.Altitude = llrFloat(u(0, 12000))
+	c.flight.Altitude = fptr(u(0, 12000))
 	if id == "lsw-2" || id == "plp-3" {
-		c.flight.Mach = llrFloat(u(0.1, 0.5))
+		c.flight.Mach = fptr(u(0.1, 0.5))
 	} else {
-		c.flight.Mach = llrFloat(u(0.3, 0.95))
+		c.flight.Mach = fptr(u(0.3, 0.95))
 	}
 	// The weight alone at most a third of the weakest rated normal force of the
 	// facility over its safety factor, so that most cases have a plan.
@@ -511,7 +486,7 @@ func llrRandomCase(rng *rand.Rand, i int) *llrCase {
 	}
 	if rng.IntN(3) == 0 {
 		g := 0.65 * f.TestSection.Width / span
-		c.model.ScaleMin, c.model.ScaleMax = llrFloat(g*u(0.05, 0.3)), llrFloat(g*u(0.4, 1.5))
+		c.model.ScaleMin, c.model.ScaleMax = fptr(g*u(0.05, 0.3)), fptr(g*u(0.4, 1.5))
 	}
 	return c
 }
@@ -522,12 +497,14 @@ func llrRandomCase(rng *rand.Rand, i int) *llrCase {
 // exceeds a rating at some α (the axial one at α 16° in cn2-05, mostly): those
 // must be 422 answers that the search confirms.
 func TestLoadLimitPlanAgainstSearchRandom(t *testing.T) {
+	t.Parallel()
 	n := 50
 	if testing.Short() {
 		n = 12
 	}
 	rng := rand.New(rand.NewPCG(7, 2026))
 	planned, worst := 0, 0.0
+	// The cases run one after another: they add to planned and worst.
 	for i := range n {
 		c := llrRandomCase(rng, i)
 		t.Run(c.name, func(t *testing.T) {
@@ -539,7 +516,5 @@ func TestLoadLimitPlanAgainstSearchRandom(t *testing.T) {
 		})
 	}
 	t.Logf("%d cases: %d planned; largest |plan Re / search Re − 1| = %.2e", n, planned, worst)
-	if planned < n*4/5 {
-		t.Errorf("only %d of %d random cases have a plan: the draw no longer exercises the load limit", planned, n)
-	}
+	assert.GreaterOrEqual(t, planned, n*4/5, "random cases with a plan: fewer and the draw no longer exercises the load limit")
 }

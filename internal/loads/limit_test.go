@@ -1,24 +1,24 @@
 package loads_test
 
 import (
-	"errors"
 	"math"
 	"math/rand/v2"
-	"scalematch/internal/check"
-	"slices"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/internal/loads"
+	"scalematch/internal/testfixture"
 	"scalematch/similarity"
 )
 
 func demoPtr(t testing.TB, id string) *facilities.Facility {
 	t.Helper()
 	f, ok := facilities.DemoFacility(id)
-	if !ok {
-		t.Fatalf("demo facility %s missing", id)
-	}
+	require.True(t, ok, "demo facility %s", id)
 	return &f
 }
 
@@ -38,12 +38,10 @@ func bisect(t *testing.T, art *similarity.Article, f *facilities.Facility, in lo
 	ok := func(q float64) bool {
 		res, err := loads.Check(&loads.Case{Facility: f, Article: art, Installation: in, Matrix: mx, Scale: scale,
 			State: facilities.State{Mach: mach, DynamicPressure: q}})
-		if err != nil {
-			if check.ErrorCode(err) == check.CodeUnprocessable {
-				return false
-			}
-			t.Fatal(err)
+		if check.ErrorCode(err) == check.CodeUnprocessable {
+			return false
 		}
+		require.NoError(t, err)
 		return res.Reports[0].WithinLimits
 	}
 	if !ok(0) {
@@ -67,12 +65,10 @@ func bisect(t *testing.T, art *similarity.Article, f *facilities.Facility, in lo
 // bisection on q through the full load check, at seeded random scales, Mach numbers
 // and installations, for a named balance and for the best of all balances.
 func TestLoadLimitAgreesWithBisection(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewPCG(2024, 6))
 	art := pellin()
-	mx, err := art.Aero.Matrix(sweep, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	mx := pellinMatrix(t)
 	f := demoPtr(t, "lsw-2")
 	for trial := range 24 {
 		in := loads.Installation{
@@ -86,107 +82,85 @@ func TestLoadLimitAgreesWithBisection(t *testing.T) {
 		scale := 0.05 + 0.2*rng.Float64()
 		mach := 0.25 * rng.Float64()
 		ll, err := loads.NewLimit(art, f, in, mx)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		got := ll.MaxDynamicPressure(scale, facilities.State{Mach: mach, DynamicPressure: 123})
 		want := bisect(t, art, f, in, mx, scale, mach)
-		if math.Abs(got-want) > 1e-9*want+1e-9 {
-			t.Errorf("trial %d (%q, s %.4f, M %.3f, m %.1f kg): q = %.12g, bisection %.12g", trial, in.BalanceID, scale, mach, in.ModelMass, got, want)
-		}
+		assert.InDelta(t, want, got, 1e-9*want+1e-9, "trial %d (%q, s %.4f, M %.3f, m %.1f kg): q Pa against the bisection",
+			trial, in.BalanceID, scale, mach, in.ModelMass)
 	}
 }
 
+// pellinMatrix is pellin's test matrix over sweep.
+func pellinMatrix(t testing.TB) similarity.Matrix {
+	t.Helper()
+	mx, err := pellin().Aero.Matrix(sweep, nil)
+	require.NoError(t, err)
+	return mx
+}
+
 func TestLoadLimitCases(t *testing.T) {
+	// Not parallel: it counts allocations (AllocsPerRun counts every goroutine's).
 	art := pellin()
-	mx, err := art.Aero.Matrix(sweep, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	mx := pellinMatrix(t)
 	f := demoPtr(t, "lsw-2")
 	st := facilities.State{Mach: 0.2}
 	heavy, err := loads.NewLimit(art, f, loads.Installation{BalanceID: "int-a", ModelMass: 500}, mx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	// 500 kg weighs 4903 N, more than int-a's 3600 N normal rating over 1.5.
-	if q := heavy.MaxDynamicPressure(0.1, st); q != 0 {
-		t.Errorf("weight over the rating: q = %g, want 0", q)
-	}
+	assert.Zero(t, heavy.MaxDynamicPressure(0.1, st), "weight over the rating: q Pa")
 	any, err := loads.NewLimit(art, f, loads.Installation{}, mx)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if any.Name() != facilities.ConstraintBalance {
-		t.Errorf("name %q", any.Name())
-	}
+	require.NoError(t, err)
+	assert.Equal(t, facilities.ConstraintBalance, any.Name())
 	// The external balance is the stronger, so it carries the most at every scale.
-	if id, q := any.Balance(0.1, st); id != "ext-6c" || !(q > 0) {
-		t.Errorf("best balance %s at q %g, want ext-6c", id, q)
-	}
+	id, q := any.Balance(0.1, st)
+	assert.Equal(t, "ext-6c", id, "best balance")
+	assert.Positive(t, q, "the best balance's q, Pa")
 	// Forces grow with s², so the ceiling falls as the model grows (no weight).
-	if q1, q2 := any.MaxDynamicPressure(0.1, st), any.MaxDynamicPressure(0.2, st); !(q2 < q1/3.9) {
-		t.Errorf("q at 0.1 = %g, at 0.2 = %g: want a fall of about 4 or more", q1, q2)
-	}
+	q1, q2 := any.MaxDynamicPressure(0.1, st), any.MaxDynamicPressure(0.2, st)
+	assert.Less(t, q2, q1/3.9, "q Pa at scale 0.2 against 0.1: a fall of about 4 or more")
 	for _, s := range []float64{0, -1, math.NaN()} {
-		if q := any.MaxDynamicPressure(s, st); q != 0 {
-			t.Errorf("scale %g: q = %g, want 0", s, q)
-		}
+		assert.Zero(t, any.MaxDynamicPressure(s, st), "scale %g: q Pa", s)
 	}
-	if _, err := loads.NewLimit(art, f, loads.Installation{BalanceID: "nope"}, mx); !slices.Contains(fieldsOf(t, err), "installation.balance_id") {
-		t.Errorf("unknown balance: %v", err)
-	}
-	if _, err := loads.NewLimit(art, &facilities.Facility{ID: "bare"}, loads.Installation{}, mx); err != loads.ErrNoBalance {
-		t.Errorf("no balances: %v, want ErrNoBalance", err)
-	}
-	if n := testing.AllocsPerRun(100, func() { any.MaxDynamicPressure(0.1, st) }); n != 0 {
-		t.Errorf("MaxDynamicPressure allocates %g times a call, want 0", n)
-	}
+	_, err = loads.NewLimit(art, f, loads.Installation{BalanceID: "nope"}, mx)
+	assert.Contains(t, testfixture.InvalidFields(t, err), "installation.balance_id", "unknown balance")
+	_, err = loads.NewLimit(art, &facilities.Facility{ID: "bare"}, loads.Installation{}, mx)
+	assert.Equal(t, loads.ErrNoBalance, err, "no balances")
+	assert.Zero(t, testing.AllocsPerRun(100, func() { any.MaxDynamicPressure(0.1, st) }), "MaxDynamicPressure allocations per call")
 }
 
 // TestCheckCorrectsAndChooses: the check applies the wall corrections to every
 // point, chooses a balance with a reason, checks every balance with Every, and
 // answers a q no balance carries with a CodeUnprocessable error.
 func TestCheckCorrectsAndChooses(t *testing.T) {
+	t.Parallel()
 	art := pellin()
-	mx, err := art.Aero.Matrix(sweep, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
 	f := demoPtr(t, "lsw-2")
 	st := facilities.State{Mach: 0.2, DynamicPressure: 2500}
-	c := loads.Case{Facility: f, Article: art, Installation: loads.Installation{ModelMass: 20}, Matrix: mx, Scale: 0.15, State: st}
+	c := loads.Case{Facility: f, Article: art, Installation: loads.Installation{ModelMass: 20}, Matrix: pellinMatrix(t), Scale: 0.15, State: st}
 	res, err := loads.Check(&c)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if len(res.Reports) != 1 || res.Reason == "" {
-		t.Fatalf("result %+v: want one report and a reason", res)
-	}
+	require.NoError(t, err)
+	require.Len(t, res.Reports, 1, "the chosen balance's report")
+	require.NotEmpty(t, res.Reason, "the reason for the choice")
 	every := c
 	every.Every = true
 	all, err := loads.Check(&every)
-	if err != nil || len(all.Reports) != 2 {
-		t.Fatalf("every balance: %v, %d reports; want 2", err, len(all.Reports))
-	}
+	require.NoError(t, err, "every balance")
+	assert.Len(t, all.Reports, 2, "every balance of lsw-2")
 	cor := res.Corrections
-	if !cor.Applied || !(cor.DynamicPressureFactor > 1) || !(cor.LiftInterference > 0) {
-		t.Errorf("corrections %+v: want closed-wall blockage and a positive Δα", cor)
-	}
+	assert.True(t, cor.Applied, "closed-wall corrections applied")
+	assert.Greater(t, cor.DynamicPressureFactor, 1.0, "closed-wall blockage raises q")
+	assert.Positive(t, cor.LiftInterference, "closed-wall Δα, °")
 	// The point of largest C_D carries the summary's q factor: its q is q·factor.
 	maxQ := 0.0
 	for _, p := range res.Reports[0].Points {
 		maxQ = math.Max(maxQ, p.DynamicPressure)
 	}
-	if math.Abs(maxQ-2500*cor.DynamicPressureFactor) > 1e-9 {
-		t.Errorf("largest point q %g, want %g", maxQ, 2500*cor.DynamicPressureFactor)
-	}
+	assert.InDelta(t, 2500*cor.DynamicPressureFactor, maxQ, 1e-9, "largest point q, Pa")
 	// Too much q for either balance: 422.
 	c.Installation = loads.Installation{}
 	c.State = facilities.State{Mach: 0.2, DynamicPressure: 60000}
-	if _, err := loads.Check(&c); check.ErrorCode(err) != check.CodeUnprocessable {
-		t.Errorf("overload: error %v, want unprocessable", err)
-	}
+	_, err = loads.Check(&c)
+	assert.Equal(t, check.CodeUnprocessable, check.ErrorCode(err), "overload: %v", err)
 }
 
 func benchLimit(b *testing.B, points int) {
@@ -224,10 +198,7 @@ func BenchmarkLoadLimit(b *testing.B) {
 // similarity.EstimateLoads, the second copy of this assembly).
 func BenchmarkCheck21(b *testing.B) {
 	art := pellin()
-	mx, err := art.Aero.Matrix(sweep, nil)
-	if err != nil {
-		b.Fatal(err)
-	}
+	mx := pellinMatrix(b)
 	f := demoPtr(b, "lsw-2")
 	st := facilities.State{Mach: 0.2, DynamicPressure: 2500}
 	b.ReportAllocs()
@@ -240,29 +211,9 @@ func BenchmarkCheck21(b *testing.B) {
 }
 
 func TestLoadLimitBadRating(t *testing.T) {
-	art := pellin()
-	mx, err := art.Aero.Matrix(sweep, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	t.Parallel()
 	f := demoPtr(t, "lsw-2")
 	f.Balances[1].SafetyFactor = 0.8
-	_, err = loads.NewLimit(art, f, loads.Installation{}, mx)
-	if fs := fieldsOf(t, err); !slices.Contains(fs, "facility.balances[1].safety_factor") {
-		t.Errorf("fields %q, want facility.balances[1].safety_factor", fs)
-	}
-}
-
-// fieldsOf returns the fields a CodeInvalid *check.Error names.
-func fieldsOf(t *testing.T, err error) []string {
-	t.Helper()
-	var e *check.Error
-	if !errors.As(err, &e) || e.Code != check.CodeInvalid {
-		t.Fatalf("error %v, want a CodeInvalid *check.Error", err)
-	}
-	var out []string
-	for _, f := range e.Fields {
-		out = append(out, f.Field)
-	}
-	return out
+	_, err := loads.NewLimit(pellin(), f, loads.Installation{}, pellinMatrix(t))
+	assert.Contains(t, testfixture.InvalidFields(t, err), "facility.balances[1].safety_factor")
 }

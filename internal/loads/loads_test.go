@@ -57,6 +57,7 @@ func TestFit(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			got := loads.Fit(&f, &a, tc.scale)
 			require.Len(t, got, len(tc.want))
 			for i, w := range tc.want {
@@ -109,6 +110,7 @@ func TestVerdict(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			r := checkJet(t, &tc.f, a, tc.in, tc.scale, nil)
 			assert.Equal(t, tc.verdict, r.Verdict)
 			if tc.verdict == loads.VerdictOver {

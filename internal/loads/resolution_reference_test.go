@@ -7,6 +7,9 @@ import (
 	"slices"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
 	"scalematch/internal/loads"
 	"scalematch/similarity"
@@ -23,6 +26,7 @@ import (
 // keep every limit (the full check at its answer), and the resolution must bind
 // in enough cases to exercise the floor.
 func TestResolutionPlanAgainstSearchRandom(t *testing.T) {
+	t.Parallel()
 	n := 60
 	if testing.Short() {
 		n = 12
@@ -33,14 +37,15 @@ func TestResolutionPlanAgainstSearchRandom(t *testing.T) {
 		c := llrRandomCase(rng, i)
 		c.name = "res-" + c.name
 		u := func(lo, hi float64) float64 { return lo + (hi-lo)*rng.Float64() }
-		c.res = &loads.Resolution{CDCounts: llrFloat(math.Exp(u(math.Log(8), math.Log(250)))), CL: llrFloat(math.Exp(u(math.Log(0.004), math.Log(0.08))))}
+		c.res = &loads.Resolution{CDCounts: fptr(math.Exp(u(math.Log(8), math.Log(250)))), CL: fptr(math.Exp(u(math.Log(0.004), math.Log(0.08))))}
 		if rng.IntN(3) == 0 {
-			c.res.Cm = llrFloat(math.Exp(u(math.Log(0.001), math.Log(0.04))))
+			c.res.Cm = fptr(math.Exp(u(math.Log(0.001), math.Log(0.04))))
 		}
 		if rng.IntN(2) == 0 {
-			c.in.LoadFraction = llrFloat(u(0.6, 1))
+			c.in.LoadFraction = fptr(u(0.6, 1))
 		}
 		c.tol = 1e-3
+		// The cases run one after another: they add to planned, bound and worst.
 		t.Run(c.name, func(t *testing.T) {
 			rel, ok := llrCheck(t, c, 81, 41)
 			if !ok {
@@ -54,11 +59,9 @@ func TestResolutionPlanAgainstSearchRandom(t *testing.T) {
 		})
 	}
 	t.Logf("%d cases: %d planned, the resolution binding in %d; largest |plan Re / search Re − 1| = %.2e", n, planned, bound, worst)
-	if planned < n/2 {
-		t.Errorf("only %d of %d random cases have a plan: the draw asks too fine a resolution", planned, n)
-	}
-	if !testing.Short() && bound < 5 {
-		t.Errorf("the resolution binds in only %d of %d plans: the draw no longer exercises the floor", bound, planned)
+	assert.GreaterOrEqual(t, planned, n/2, "random cases with a plan: fewer and the draw asks too fine a resolution")
+	if !testing.Short() {
+		assert.GreaterOrEqual(t, bound, 5, "plans the resolution binds: fewer and the draw no longer exercises the floor")
 	}
 }
 
@@ -69,28 +72,21 @@ func resolutionBinds(t *testing.T, c *llrCase) bool {
 	t.Helper()
 	x := llrPrepare(t, c)
 	ll, err := loads.NewLimit(c.art, x.f, c.in, x.mx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	ll.Resolve(c.res)
 	res, err := similarity.Plan(&similarity.Problem{Flight: x.fl, Article: c.art, Facility: x.f, Model: c.model,
 		LoadLimit: ll, LoadFloor: ll}, &similarity.Settings{TradePoints: -1})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	i := slices.IndexFunc(res.Binding, func(b similarity.Binding) bool { return b.Constraint == facilities.ConstraintResolution })
 	if i < 0 {
 		return false
 	}
 	b := res.Binding[i]
-	if b.Value < b.Limit*(1-1e-9) {
-		t.Errorf("the plan's q %.9g Pa is under the resolution's least q %.9g Pa", b.Value, b.Limit)
-	}
+	assert.GreaterOrEqual(t, b.Value, b.Limit*(1-1e-9), "the plan's q Pa against the resolution's least q")
 	// The gain is negative where the floor forces the Reynolds number above the
 	// flight's (relaxing it brings the test closer), and it must be a number.
-	if math.IsNaN(b.ReynoldsGainPerPercent) || math.IsInf(b.ReynoldsGainPerPercent, 0) {
-		t.Errorf("resolution gain %v", b.ReynoldsGainPerPercent)
-	}
+	assert.False(t, math.IsNaN(b.ReynoldsGainPerPercent) || math.IsInf(b.ReynoldsGainPerPercent, 0),
+		"resolution gain %v: a finite number", b.ReynoldsGainPerPercent)
 	return true
 }
 
@@ -106,31 +102,23 @@ func resolutionBinds(t *testing.T, c *llrCase) bool {
 //
 // With 2 counts asked it halves, 86 795 Pa.
 func TestResolutionFloorHand(t *testing.T) {
-	f, ok := facilities.DemoFacility("tsw-1")
-	if !ok {
-		t.Fatal("no demo facility tsw-1")
-	}
+	t.Parallel()
+	f := demoPtr(t, "tsw-1")
 	f.TestSection.Walls = facilities.WallsOpen
 	art := &similarity.Article{ReferenceLength: 2.4, ReferenceArea: 36.5, Span: 16.4, Length: 19.6, FrontalArea: 4.4, WettedArea: 228,
 		Aero: llrAero(4.9, -1.6, 1.25, 0.022, 0.14, 0.057, 0.03, -1.05)}
 	mx, err := art.Aero.Matrix(similarity.Sweep{From: 0, To: 0, Step: 1}, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	ll, err := loads.NewLimit(art, &f, loads.Installation{BalanceID: "int-b1", ModelMass: 20}, mx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
+	ll, err := loads.NewLimit(art, f, loads.Installation{BalanceID: "int-b1", ModelMass: 20}, mx)
+	require.NoError(t, err)
+	// The cases run one after another: each sets the shared limit's resolution.
 	for _, c := range []struct {
 		counts, want float64
 	}{{1, 173589}, {2, 86795}} {
 		t.Run(fmt.Sprintf("%g counts", c.counts), func(t *testing.T) {
 			ll.Resolve(&loads.Resolution{CDCounts: &c.counts})
 			st := facilities.State{Mach: 0.3}
-			got := ll.MinDynamicPressure(1.0/24, st)
-			if math.Abs(got/c.want-1) > 1e-5 {
-				t.Errorf("least q for %g counts: %.6g Pa, want %.6g Pa (hand arithmetic)", c.counts, got, c.want)
-			}
+			assert.InEpsilon(t, c.want, ll.MinDynamicPressure(1.0/24, st), 1e-5, "least q Pa for %g counts, hand arithmetic", c.counts)
 		})
 	}
 }

@@ -40,6 +40,7 @@ func TestResolutionCheckHand(t *testing.T) {
 		{"cy unrated", loads.Resolution{CY: fptr(0.01)}, loads.ResolutionResolved, 0, 0, "cy"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			lc := j16Case(&tc.res, pt)
 			r, err := lc.Check(b, 54000)
 			require.NoError(t, err)
@@ -59,6 +60,7 @@ func TestResolutionCheckHand(t *testing.T) {
 		})
 	}
 	t.Run("accuracy unknown", func(t *testing.T) {
+		t.Parallel()
 		nb := *b
 		nb.Accuracy = nil
 		lc := j16Case(&loads.Resolution{CDCounts: fptr(4)}, pt)

@@ -51,6 +51,7 @@ func TestCoefficientUncertainty(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			u, unknown := loads.CoefficientUncertainty(d, known, tc.alpha, tc.q, s, c)
 			assert.Empty(t, unknown)
 			assert.InEpsilon(t, tc.cl, u.CL, tc.tol)
@@ -63,6 +64,7 @@ func TestCoefficientUncertainty(t *testing.T) {
 		})
 	}
 	t.Run("normal force without accuracy", func(t *testing.T) {
+		t.Parallel()
 		k := known
 		k[loads.IndexNormal] = false
 		u, unknown := loads.CoefficientUncertainty(d, k, 0, 40e3, s, c)

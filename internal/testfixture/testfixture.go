@@ -1,7 +1,8 @@
 // Package testfixture holds what the test packages share: the demo-world requests
 // they send, a silent logger and the relative error the physics checks measure
-// with (RelErr, and InRelative, its assertion). It imports nothing of the project,
-// so that any package's tests may use it; servers and stores for tests are in
+// with (RelErr, and InRelative, its assertion), and the fields a validation
+// error names (InvalidFields). It imports nothing of the project but
+// internal/check (which imports nothing), so that any package's tests may use it; servers and stores for tests are in
 // testsite. It is imported only by tests.
 package testfixture
 
@@ -17,6 +18,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/check"
 )
 
 // J16Plan is a plan request for the Orrin J16 of the demo world (docs/demo-world.md)
@@ -73,6 +76,22 @@ func InRelative(t assert.TestingT, want, got, tol float64, msgAndArgs ...any) bo
 		return assert.InDelta(t, want, got, tol, msgAndArgs...)
 	}
 	return assert.InEpsilon(t, want, got, tol, msgAndArgs...)
+}
+
+// InvalidFields returns the field paths a validation error names, in its order,
+// failing the test when err is not a *check.Error with CodeInvalid (the error
+// of every layer's validation) or a field comes without a message.
+func InvalidFields(t testing.TB, err error) []string {
+	t.Helper()
+	var e *check.Error
+	require.ErrorAs(t, err, &e)
+	require.Equal(t, check.CodeInvalid, e.Code, "%v", err)
+	var out []string
+	for _, f := range e.Fields {
+		assert.NotEmpty(t, f.Message, f.Field)
+		out = append(out, f.Field)
+	}
+	return out
 }
 
 // ReadCSV reads the numeric rows of a reference fixture under testdata/reference:
