@@ -127,7 +127,13 @@ func (sv *solver) shrink(c *machSetup, x candidate) candidate {
 	if !x.ok || x.rlo < 0 || x.r > x.rlo || x.rlo*x.s*sv.L <= sv.fl.Reynolds {
 		return x
 	}
-	s := math.Max(sv.fl.Reynolds/(sv.L*x.rlo), sv.sLo)
+	s := sv.fl.Reynolds / (sv.L * x.rlo)
+	// The target Re/m there, Re/(s·l), may round to just below the lowest Re/m:
+	// the next smaller scale meets the flight's Re exactly by construction.
+	for i := 0; i < 4 && sv.fl.Reynolds/(s*sv.L) < x.rlo; i++ {
+		s = math.Nextafter(s, 0)
+	}
+	s = math.Max(s, sv.sLo)
 	if y := sv.at(c, s); y.ok && !x.k.less(y.k) {
 		return y
 	}
