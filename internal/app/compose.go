@@ -7,8 +7,10 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 	"sync"
 	"unicode"
@@ -159,16 +161,21 @@ var demoFacilities = sync.OnceValue(func() map[string]facilities.Facility {
 // planID returns the id of a plan: the first 20 hex digits of the SHA-256 of the
 // canonical JSON of the decoded request, the facility's id and its catalog version.
 // The same request against the same facility version gets the same id; a changed
-// facility gets a new one.
+// facility gets a new one. The request is encoded straight into the hash (the
+// encoder's closing newline is the one the hashed text has there); the text
+// hashed is unchanged, so stored plans keep their ids (the golden answers carry
+// them).
 func planID(kind string, req any, f *facilities.Facility) (string, error) {
-	b, err := json.Marshal(req)
-	if err != nil {
+	h := sha256.New()
+	io.WriteString(h, "scalematch/v1 ")
+	io.WriteString(h, kind)
+	h.Write([]byte{'\n'})
+	if err := json.NewEncoder(h).Encode(req); err != nil {
 		return "", err
 	}
-	h := sha256.New()
-	fmt.Fprintf(h, "scalematch/v1 %s\n", kind)
-	h.Write(b)
-	fmt.Fprintf(h, "\n%s@%d\n", f.ID, f.Version)
+	io.WriteString(h, f.ID)
+	h.Write(strconv.AppendInt([]byte{'@'}, int64(f.Version), 10))
+	h.Write([]byte{'\n'})
 	if f.Version == 0 {
 		// An inline facility: its content is part of the request already.
 		fb, err := json.Marshal(f)
@@ -177,7 +184,8 @@ func planID(kind string, req any, f *facilities.Facility) (string, error) {
 		}
 		h.Write(fb)
 	}
-	return hex.EncodeToString(h.Sum(nil))[:20], nil
+	var sum [sha256.Size]byte
+	return hex.EncodeToString(h.Sum(sum[:0])[:10]), nil
 }
 
 // isFinite reports whether v is neither NaN nor infinite.
