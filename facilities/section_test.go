@@ -251,14 +251,7 @@ func lowestT0(t *testing.T, f *facilities.Facility, mach, p0, lo, hi float64) fl
 	}
 	require.Negative(t, margin(lo), "margin at %g K: a sign change between %g and %g K", lo, lo, hi)
 	require.Positive(t, margin(hi), "margin at %g K: a sign change between %g and %g K", hi, lo, hi)
-	for hi-lo > 1e-9 {
-		mid := 0.5 * (lo + hi)
-		if margin(mid) < 0 {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
+	_, hi = testfixture.Bisect(lo, hi, 5e-12, func(t0 float64) bool { return margin(t0) < 0 })
 	return hi
 }
 

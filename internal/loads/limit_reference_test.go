@@ -13,6 +13,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/check"
 	"scalematch/internal/loads"
+	"scalematch/internal/testfixture"
 	"scalematch/similarity"
 )
 
@@ -269,6 +270,19 @@ func (x *llrFixture) brute(t *testing.T, mach, t0 float64, ns, np int) llrPoint 
 	return best
 }
 
+// feasible returns the predicate "the candidate of stagnation pressure p0 at
+// scale s is feasible" for a bisection, keeping the last feasible candidate in
+// *last.
+func (x *llrFixture) feasible(t *testing.T, s, mach, t0 float64, last *llrPoint) func(p0 float64) bool {
+	return func(p0 float64) bool {
+		pt := x.evaluate(t, s, p0, mach, t0)
+		if pt.ok {
+			*last = pt
+		}
+		return pt.ok
+	}
+}
+
 // bestPressure returns the best feasible candidate at scale s over the facility's
 // stagnation pressures: the largest feasible p0 (bisection to 1e-12 relative), or,
 // when that overshoots the flight Reynolds number, the p0 that meets it. With a
@@ -283,16 +297,9 @@ func (x *llrFixture) bestPressure(t *testing.T, s, mach, t0 float64) llrPoint {
 		for i := 1; i <= 40; i++ {
 			p := pLo * math.Pow(pHi/pLo, float64(i)/40)
 			if pt := x.evaluate(t, s, p, mach, t0); pt.ok {
-				a, b := prev, p // infeasible at a, feasible at b
 				lo = pt
-				for b-a > 1e-12*b {
-					m := (a + b) / 2
-					if pm := x.evaluate(t, s, m, mach, t0); pm.ok {
-						b, lo = m, pm
-					} else {
-						a = m
-					}
-				}
+				// Feasible at p, not at prev: lo ends as the lowest feasible p0.
+				testfixture.Bisect(p, prev, 1e-12, x.feasible(t, s, mach, t0, &lo))
 				pLo = lo.p0
 				break
 			}
@@ -304,18 +311,9 @@ func (x *llrFixture) bestPressure(t *testing.T, s, mach, t0 float64) llrPoint {
 	}
 	top := x.evaluate(t, s, pHi, mach, t0)
 	if !top.ok {
-		a, b := pLo, pHi // a feasible, b not
-		for b-a > 1e-12*b {
-			m := (a + b) / 2
-			if pt := x.evaluate(t, s, m, mach, t0); pt.ok {
-				a, top = m, pt
-			} else {
-				b = m
-			}
-		}
-		if !top.ok {
-			top = lo
-		}
+		// Feasible at pLo, not at pHi: top ends as the highest feasible p0.
+		top = lo
+		testfixture.Bisect(pLo, pHi, 1e-12, x.feasible(t, s, mach, t0, &top))
 	}
 	if top.re <= x.fl.Reynolds || lo.re >= x.fl.Reynolds {
 		if x.better(lo, top) {

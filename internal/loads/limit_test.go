@@ -51,13 +51,7 @@ func bisect(t *testing.T, art *similarity.Article, f *facilities.Facility, in lo
 	for ok(hi) {
 		lo, hi = hi, 2*hi
 	}
-	for hi-lo > 1e-11*hi {
-		if mid := (lo + hi) / 2; ok(mid) {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
+	lo, _ = testfixture.Bisect(lo, hi, 1e-11, ok)
 	return lo
 }
 

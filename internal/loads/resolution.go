@@ -45,9 +45,11 @@ const (
 )
 
 // resolutionTerm is one required coefficient: its name (Uncertainty's JSON
-// name), the required value, and whether it is a moment coefficient.
+// name), its index in Uncertainty.figures, the required value, and whether it
+// is a moment coefficient.
 type resolutionTerm struct {
 	name   string
+	index  int
 	v      float64
 	moment bool
 }
@@ -56,17 +58,23 @@ type resolutionTerm struct {
 // order; C_D's requirement is in counts, as its uncertainty is.
 func (r *Resolution) terms() []resolutionTerm {
 	var out []resolutionTerm
-	for _, t := range []struct {
+	for i, t := range []struct {
 		name   string
 		v      *float64
 		moment bool
 	}{{"cl", r.CL, false}, {"cd", r.CDCounts, false}, {"cm", r.Cm, true}, {"cy", r.CY, false},
 		{"cl_roll", r.Cl, true}, {"cn", r.Cn, true}} {
 		if t.v != nil {
-			out = append(out, resolutionTerm{t.name, *t.v, t.moment})
+			out = append(out, resolutionTerm{t.name, i, *t.v, t.moment})
 		}
 	}
 	return out
+}
+
+// figures returns the uncertainty's coefficients in the order of
+// Resolution.terms: C_L, C_D in counts, C_m, C_Y, C_l, C_n.
+func (u *Uncertainty) figures() [6]float64 {
+	return [6]float64{u.CL, u.CDCounts, u.Cm, u.CY, u.Cl, u.Cn}
 }
 
 // Empty reports whether the resolution asks for nothing.
@@ -108,22 +116,9 @@ func (r *Resolution) FieldErrors(prefix string) []facilities.FieldError {
 // whose uncertainty is not known (then the need is +Inf).
 func (r *Resolution) Need(d Vector, known [6]bool, alphaDeg float64) (force, moment float64, unknown []string) {
 	u, unk := CoefficientUncertainty(d, known, alphaDeg, 1, 1, 1)
+	figs := u.figures()
 	for _, t := range r.terms() {
-		var per float64 // uncertainty at q_c·S = 1 N (or q_c·S·c = 1 N·m)
-		switch t.name {
-		case "cl":
-			per = u.CL
-		case "cd":
-			per = u.CDCounts
-		case "cm":
-			per = u.Cm
-		case "cy":
-			per = u.CY
-		case "cl_roll":
-			per = u.Cl
-		case "cn":
-			per = u.Cn
-		}
+		per := figs[t.index] // uncertainty at q_c·S = 1 N (or q_c·S·c = 1 N·m)
 		for _, n := range unk {
 			if n == t.name {
 				unknown = append(unknown, t.name)
@@ -214,13 +209,13 @@ func (lc *Setup) resolution(b *facilities.Balance, q float64) *ResolutionCheck {
 // among the force coefficients when force is true, else among the moments.
 func (r *Resolution) limitingName(alphaDeg float64, d Vector, known [6]bool, force bool) string {
 	u, _ := CoefficientUncertainty(d, known, alphaDeg, 1, 1, 1)
+	figs := u.figures()
 	best, name := -1.0, ""
 	for _, t := range r.terms() {
 		if t.moment == force {
 			continue
 		}
-		per := map[string]float64{"cl": u.CL, "cd": u.CDCounts, "cm": u.Cm, "cy": u.CY, "cl_roll": u.Cl, "cn": u.Cn}[t.name]
-		if v := per / t.v; v > best {
+		if v := figs[t.index] / t.v; v > best {
 			best, name = v, t.name
 		}
 	}

@@ -78,6 +78,22 @@ func InRelative(t assert.TestingT, want, got, tol float64, msgAndArgs ...any) bo
 	return assert.InEpsilon(t, want, got, tol, msgAndArgs...)
 }
 
+// Bisect narrows a bracket of the boundary of a predicate: ok(good) holds and
+// ok(bad) does not (good may lie on either side of bad). It halves the bracket
+// until its width is at most rel (> 0) times the larger magnitude of its ends
+// and returns its ends, the last point where ok held and the last where it did
+// not.
+func Bisect(good, bad, rel float64, ok func(float64) bool) (float64, float64) {
+	for math.Abs(bad-good) > rel*math.Max(math.Abs(good), math.Abs(bad)) {
+		if m := good + (bad-good)/2; ok(m) {
+			good = m
+		} else {
+			bad = m
+		}
+	}
+	return good, bad
+}
+
 // InvalidFields returns the field paths a validation error names, in its order,
 // failing the test when err is not a *check.Error with CodeInvalid (the error
 // of every layer's validation) or a field comes without a message.
