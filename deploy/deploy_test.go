@@ -4,9 +4,12 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"go.yaml.in/yaml/v3"
 )
 
@@ -28,9 +31,7 @@ type compose struct {
 func read(t *testing.T, name string) string {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join("..", name))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return string(b)
 }
 
@@ -38,46 +39,32 @@ func read(t *testing.T, name string) string {
 // the shared-store layout: PostgreSQL with a health check, two replicas given the
 // database URL and write tokens from the environment, a proxy with its config.
 func TestCompose(t *testing.T) {
+	t.Parallel()
 	var c compose
 	dec := yaml.NewDecoder(strings.NewReader(read(t, "docker-compose.yml")))
-	if err := dec.Decode(&c); err != nil {
-		t.Fatalf("docker-compose.yml: %v", err)
-	}
+	require.NoError(t, dec.Decode(&c), "docker-compose.yml")
 	for _, name := range []string{"db", "app", "proxy"} {
-		if _, ok := c.Services[name]; !ok {
-			t.Fatalf("service %q missing", name)
-		}
+		require.Contains(t, c.Services, name, "services")
 	}
-	if c.Services["db"].Healthcheck == nil || c.Services["proxy"].Healthcheck == nil {
-		t.Error("db and proxy need health checks")
-	}
+	assert.NotNil(t, c.Services["db"].Healthcheck, "db needs a health check")
+	assert.NotNil(t, c.Services["proxy"].Healthcheck, "proxy needs a health check")
 	app := c.Services["app"]
-	if app.Deploy.Replicas != 2 {
-		t.Errorf("app replicas = %d, want 2", app.Deploy.Replicas)
-	}
-	if app.Build == nil {
-		t.Error("app is not built from the Dockerfile")
-	}
-	if v := app.Environment["SCALEMATCH_WRITE_TOKENS"]; !strings.HasPrefix(v, "${SCALEMATCH_WRITE_TOKENS") {
-		t.Errorf("SCALEMATCH_WRITE_TOKENS = %q, want it taken from the environment", v)
-	}
-	if !strings.HasPrefix(app.Environment["SCALEMATCH_DATABASE_URL"], "postgres://") ||
-		!strings.Contains(app.Environment["SCALEMATCH_DATABASE_URL"], "@db:5432/") {
-		t.Errorf("SCALEMATCH_DATABASE_URL = %q, want the db service", app.Environment["SCALEMATCH_DATABASE_URL"])
-	}
-	found := false
-	for _, v := range c.Services["proxy"].Volumes {
+	assert.Equal(t, 2, app.Deploy.Replicas, "app replicas")
+	assert.NotNil(t, app.Build, "app is built from the Dockerfile")
+	assert.True(t, strings.HasPrefix(app.Environment["SCALEMATCH_WRITE_TOKENS"], "${SCALEMATCH_WRITE_TOKENS"),
+		"SCALEMATCH_WRITE_TOKENS = %q, want it taken from the environment", app.Environment["SCALEMATCH_WRITE_TOKENS"])
+	dbURL := app.Environment["SCALEMATCH_DATABASE_URL"]
+	assert.True(t, strings.HasPrefix(dbURL, "postgres://"), "SCALEMATCH_DATABASE_URL = %q, want PostgreSQL", dbURL)
+	assert.Contains(t, dbURL, "@db:5432/", "SCALEMATCH_DATABASE_URL names the db service")
+	assert.True(t, slices.ContainsFunc(c.Services["proxy"].Volumes, func(v string) bool {
 		src := strings.SplitN(v, ":", 2)[0]
-		if _, err := os.Stat(filepath.Join("..", src)); err == nil && strings.HasSuffix(src, "nginx.conf") {
-			found = true
-		}
-	}
-	if !found {
-		t.Error("proxy does not mount an existing deploy/nginx.conf")
-	}
+		_, err := os.Stat(filepath.Join("..", src))
+		return err == nil && strings.HasSuffix(src, "nginx.conf")
+	}), "proxy mounts an existing deploy/nginx.conf")
 }
 
 func TestDockerfile(t *testing.T) {
+	t.Parallel()
 	d := read(t, "Dockerfile")
 	tests := []struct {
 		name, pattern string
@@ -91,9 +78,8 @@ func TestDockerfile(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			if !regexp.MustCompile(tt.pattern).MatchString(d) {
-				t.Errorf("Dockerfile lacks %s (%s)", tt.name, tt.pattern)
-			}
+			t.Parallel()
+			assert.Regexp(t, regexp.MustCompile(tt.pattern), d, "Dockerfile")
 		})
 	}
 }
@@ -101,6 +87,7 @@ func TestDockerfile(t *testing.T) {
 // TestNginxBraces is a cheap syntax check of the proxy config: balanced braces,
 // every directive line ended, and the upstream the server proxies to defined.
 func TestNginxBraces(t *testing.T) {
+	t.Parallel()
 	conf := read(t, "deploy/nginx.conf")
 	depth := 0
 	for i, line := range strings.Split(conf, "\n") {
@@ -109,17 +96,11 @@ func TestNginxBraces(t *testing.T) {
 			continue
 		}
 		depth += strings.Count(line, "{") - strings.Count(line, "}")
-		if depth < 0 {
-			t.Fatalf("line %d closes a block never opened", i+1)
-		}
-		if !strings.HasSuffix(line, "{") && !strings.HasSuffix(line, "}") && !strings.HasSuffix(line, ";") {
-			t.Errorf("line %d is not ended by ';': %q", i+1, line)
-		}
+		require.GreaterOrEqual(t, depth, 0, "line %d closes a block never opened", i+1)
+		assert.True(t, strings.HasSuffix(line, "{") || strings.HasSuffix(line, "}") || strings.HasSuffix(line, ";"),
+			"line %d is not ended by ';': %q", i+1, line)
 	}
-	if depth != 0 {
-		t.Errorf("%d blocks left open", depth)
-	}
-	if !strings.Contains(conf, "upstream scalematch") || !strings.Contains(conf, "proxy_pass http://scalematch;") {
-		t.Error("the proxy does not pass to the scalematch upstream")
-	}
+	assert.Zero(t, depth, "blocks left open")
+	assert.Contains(t, conf, "upstream scalematch", "the proxy's upstream")
+	assert.Contains(t, conf, "proxy_pass http://scalematch;", "the proxy passes to the scalematch upstream")
 }

@@ -6,9 +6,13 @@ import (
 	"regexp"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 func TestCheckLoopback(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		url string
 		ok  bool
@@ -21,44 +25,40 @@ func TestCheckLoopback(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.url, func(t *testing.T) {
-			if err := checkLoopback(tc.url); (err == nil) != tc.ok {
-				t.Errorf("checkLoopback(%q) = %v, want ok %v", tc.url, err, tc.ok)
+			t.Parallel()
+			if err := checkLoopback(tc.url); tc.ok {
+				assert.NoError(t, err)
+			} else {
+				assert.Error(t, err)
 			}
 		})
 	}
 }
 
+// TestRunInProcess is not parallel: the tool reports the process's CPU time per
+// request.
 func TestRunInProcess(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs a short load test")
 	}
 	var out bytes.Buffer
 	err := run([]string{"-serve", "-duration", "600ms", "-concurrency", "2", "-plan", "../testdata/load/plan-orrin-j16-tsw-1.json"}, &out)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for _, name := range []string{"repeated", "distinct", "health"} {
 		re := regexp.MustCompile(name + `.*?(\d+\.\d) /s .* (\d+) not 200 .* CPU (\d+) µs/request`)
 		m := re.FindStringSubmatch(out.String())
-		if m == nil {
-			t.Fatalf("no %s line in:\n%s", name, out.String())
-		}
-		if m[1] == "0.0" || m[2] != "0" || m[3] == "0" {
-			t.Errorf("%s: rate %s /s, %s failures, CPU %s µs/request; want a rate, none and some CPU", name, m[1], m[2], m[3])
-		}
+		require.NotNil(t, m, "no %s line", name)
+		assert.NotEqual(t, "0.0", m[1], "%s: rate /s", name)
+		assert.Equal(t, "0", m[2], "%s: answers not 200", name)
+		assert.NotEqual(t, "0", m[3], "%s: CPU µs/request", name)
 	}
-	if !regexp.MustCompile(`plans per health check: repeated \d+\.\d %, distinct \d+\.\d %\n`).MatchString(out.String()) {
-		t.Errorf("no ratio line in:\n%s", out.String())
-	}
-	if !regexp.MustCompile(`distinct plans stored in [1-9]\d* group commits, \d+\.\d\d records each on average\n`).MatchString(out.String()) {
-		t.Errorf("no group commit line in:\n%s", out.String())
-	}
-	if strings.Count(out.String(), "\n") != 6 {
-		t.Errorf("want 6 lines:\n%s", out.String())
-	}
+	assert.Regexp(t, `plans per health check: repeated \d+\.\d %, distinct \d+\.\d %\n`, out.String(), "ratio line")
+	assert.Regexp(t, `distinct plans stored in [1-9]\d* group commits, \d+\.\d\d records each on average\n`, out.String(), "group commit line")
+	assert.Equal(t, 6, strings.Count(out.String(), "\n"), "lines in:\n%s", out.String())
 }
 
 func TestVaried(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name, body string
 		want       []string // the first requests' flight altitudes, as sent
@@ -72,20 +72,22 @@ func TestVaried(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			v, err := newVaried([]byte(tc.body))
-			if (err != nil) != tc.err {
-				t.Fatalf("newVaried: %v, want error %v", err, tc.err)
+			if tc.err {
+				require.Error(t, err)
+			} else {
+				require.NoError(t, err)
 			}
 			for _, want := range tc.want {
 				var req struct {
 					Flight map[string]json.RawMessage `json:"flight"`
 				}
 				b := v.next()
-				if err := json.Unmarshal(b, &req); err != nil {
-					t.Fatalf("%s: %v", b, err)
-				}
-				if got := string(req.Flight["altitude"]); got != want || req.Flight["mach"] == nil && strings.Contains(tc.body, "mach") {
-					t.Errorf("%s: altitude %s, want %s and the rest as given", b, got, want)
+				require.NoError(t, json.Unmarshal(b, &req), "%s", b)
+				assert.Equal(t, want, string(req.Flight["altitude"]), "%s: altitude as sent", b)
+				if strings.Contains(tc.body, "mach") {
+					assert.NotNil(t, req.Flight["mach"], "%s: the rest as given", b)
 				}
 			}
 		})
@@ -93,6 +95,7 @@ func TestVaried(t *testing.T) {
 }
 
 func TestRunRefusesBadFlags(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		args []string
 		want string
@@ -104,8 +107,6 @@ func TestRunRefusesBadFlags(t *testing.T) {
 	}
 	for _, tc := range tests {
 		args := append(tc.args, "-plan", "../testdata/load/plan-orrin-j16-tsw-1.json")
-		if err := run(args, &bytes.Buffer{}); err == nil || !strings.Contains(err.Error(), tc.want) {
-			t.Errorf("run(%v) = %v, want an error about %s", args, err, tc.want)
-		}
+		assert.ErrorContains(t, run(args, &bytes.Buffer{}), tc.want, "run(%v)", args)
 	}
 }
