@@ -49,6 +49,7 @@ func decodePlan(t testing.TB, body string) *schema.PlanRequest {
 // scale is the report's max_safe_dynamic_pressure (where the allowed load is reached by the estimate): the planner and the load
 // report use one load-limit implementation (loads.Limit).
 func TestBalanceBindingAgreesWithLoads(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name    string
 		edit    func(string) string
@@ -70,6 +71,7 @@ func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 	var p app.Planner
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			req := decodePlan(t, tc.edit(j16Plan))
 			resp, err := p.Plan(context.Background(), req)
 			if err != nil {
@@ -121,6 +123,7 @@ func (c *countingCatalog) Facility(ctx context.Context, id string) (facilities.F
 // once however many of its requests name it, and that single plans read it each
 // time.
 func TestBatchReadsEachFacilityOnce(t *testing.T) {
+	t.Parallel()
 	ctx := context.Background()
 	db, err := sqlite.Open(ctx, sqlite.Path(t.TempDir()))
 	if err != nil {
@@ -144,7 +147,7 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 		{"single plan", nil, 1, 0},
 	}
 	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
+		t.Run(tc.name, func(t *testing.T) { // not parallel: the cases share the read counter
 			cat.reads.Store(0)
 			p := app.NewPlanner(cat, 0)
 			if tc.batch == nil {
@@ -177,6 +180,7 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 // from saturation), so the plan's T0 falls and its Reynolds number rises; the
 // plan's id differs, and the answer's warnings and binding list read the same value.
 func TestPlanCondensationPeakMach(t *testing.T) {
+	t.Parallel()
 	body, err := os.ReadFile("../../docs/requests/j16-cn2-05-free.json")
 	require.NoError(t, err)
 	var p app.Planner

@@ -50,6 +50,7 @@ var encoders = []struct {
 // bytes encoding/json writes (float formats, HTML escaping, field order), so
 // that the benchmark compares like with like.
 func TestEncodersAgree(t *testing.T) {
+	t.Parallel()
 	resp := benchPlanAnswer(t)
 	want, err := json.Marshal(resp)
 	require.NoError(t, err)

@@ -19,6 +19,7 @@ import (
 // CheckFinite refuses it: a 422-class error naming the number's path and the
 // input behind it, in the answer's top level and inside the load report.
 func TestEncodePlanNamesNonFinite(t *testing.T) {
+	t.Parallel()
 	body, err := os.ReadFile("../../examples/orrin-j16-tsw-1.json")
 	require.NoError(t, err)
 	var req schema.PlanRequest
@@ -43,6 +44,7 @@ func TestEncodePlanNamesNonFinite(t *testing.T) {
 		{"load report", "loads.max_utilization", "installation", &inLoads},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			_, err := encodePlan(tc.resp)
 			var fe *check.Error
 			require.ErrorAs(t, err, &fe)

@@ -11,6 +11,7 @@ import (
 )
 
 func TestCheckFinite(t *testing.T) {
+	t.Parallel()
 	type inner struct {
 		Values []float64 `json:"values"`
 	}
@@ -33,6 +34,7 @@ func TestCheckFinite(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			err := CheckFinite(tc.v, loadsInputs)
 			if tc.path == "" {
 				require.NoError(t, err)
@@ -49,6 +51,7 @@ func TestCheckFinite(t *testing.T) {
 }
 
 func TestCollapseWarnings(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name string
 		in   []string
@@ -60,6 +63,7 @@ func TestCollapseWarnings(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			assert.Equal(t, tc.want, collapseWarnings(tc.in))
 		})
 	}
@@ -68,6 +72,7 @@ func TestCollapseWarnings(t *testing.T) {
 // TestCheckFiniteCeiling: a load report without a bound on the dynamic pressure
 // (loads.Ceiling +Inf, written as null) is finite; a NaN there is not.
 func TestCheckFiniteCeiling(t *testing.T) {
+	t.Parallel()
 	r := loads.Report{MaxSafeDynamicPressure: loads.Ceiling(math.Inf(1))}
 	require.NoError(t, CheckFinite(&r, nil))
 	r.MaxSafeDynamicPressure = loads.Ceiling(math.NaN())

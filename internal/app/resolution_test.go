@@ -29,8 +29,10 @@ func withInstallation(body, in string) string {
 // 3.2 counts at the tunnel's 54 kPa ceiling at 1:24, docs/loads.md; 0.5 counts
 // would need over six times that q).
 func TestPlanRequiredResolution(t *testing.T) {
+	t.Parallel()
 	var p app.Planner
 	t.Run("resolved", func(t *testing.T) {
+		t.Parallel()
 		body := strings.Replace(withInstallation(j16Plan, `{"model_mass": 20}`), `"alpha"`,
 			`"required_resolution": {"cd_counts": 20, "cl": 0.01}, "alpha"`, 1)
 		resp, err := p.Plan(context.Background(), decodePlan(t, body))
@@ -48,6 +50,7 @@ func TestPlanRequiredResolution(t *testing.T) {
 		assert.Equal(t, 1.0, resp.LoadFraction)
 	})
 	t.Run("no balance resolves", func(t *testing.T) {
+		t.Parallel()
 		body := strings.Replace(withInstallation(j16Plan, `{"model_mass": 20}`), `"alpha"`,
 			`"required_resolution": {"cd_counts": 0.5}, "alpha"`, 1)
 		resp, err := p.Plan(context.Background(), decodePlan(t, body))
@@ -63,6 +66,7 @@ func TestPlanRequiredResolution(t *testing.T) {
 // at 0.9 the worst point sits at 0.9 ÷ 1.5 = 60 % of its rating, and the
 // answer states the fraction.
 func TestPlanLoadFraction(t *testing.T) {
+	t.Parallel()
 	var p app.Planner
 	full, err := p.Plan(context.Background(), decodePlan(t, j16Plan))
 	require.NoError(t, err)
@@ -84,6 +88,7 @@ func TestPlanLoadFraction(t *testing.T) {
 // TestResolutionFieldErrors: bad resolution and margin figures are 400s naming
 // the field.
 func TestResolutionFieldErrors(t *testing.T) {
+	t.Parallel()
 	var p app.Planner
 	for _, tc := range []struct {
 		name, edit, field string
@@ -94,12 +99,14 @@ func TestResolutionFieldErrors(t *testing.T) {
 		{"cm above 1", `"required_resolution": {"cm": 2}, "alpha"`, "required_resolution.cm"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			_, err := p.Plan(context.Background(), decodePlan(t, strings.Replace(j16Plan, `"alpha"`, tc.edit, 1)))
 			requireField(t, err, tc.field)
 		})
 	}
 	for _, f := range []string{"0", "1.5", "-0.2"} {
 		t.Run("load_fraction "+f, func(t *testing.T) {
+			t.Parallel()
 			_, err := p.Plan(context.Background(), decodePlan(t, withInstallation(j16Plan, `{"model_mass": 20, "load_fraction": `+f+`}`)))
 			requireField(t, err, "installation.load_fraction")
 		})
@@ -123,6 +130,7 @@ func requireField(t *testing.T, err error, field string) {
 // lists "resolution" among the binding limits with its Reynolds gain, and every
 // point meets 200 counts.
 func TestPlanResolutionWater(t *testing.T) {
+	t.Parallel()
 	b, err := os.ReadFile("../../examples/tarn-a2-wtn-04.json")
 	require.NoError(t, err)
 	var p app.Planner

@@ -32,6 +32,7 @@ func demoRequest(t *testing.T) campaign.Request {
 }
 
 func TestRunDemo(t *testing.T) {
+	t.Parallel()
 	req := demoRequest(t)
 	var calls, last, total int
 	res, err := campaign.Run(context.Background(), nil, req, func(done, tot int) {
@@ -95,6 +96,7 @@ func TestRunDemo(t *testing.T) {
 }
 
 func TestRunCancelled(t *testing.T) {
+	t.Parallel()
 	req := demoRequest(t)
 	ctx, cancel := context.WithCancel(context.Background())
 	_, err := campaign.Run(ctx, nil, req, func(done, total int) {
@@ -106,6 +108,7 @@ func TestRunCancelled(t *testing.T) {
 }
 
 func TestRunInvalid(t *testing.T) {
+	t.Parallel()
 	for _, c := range []struct {
 		name, body string
 		fields     []string
@@ -126,6 +129,7 @@ func TestRunInvalid(t *testing.T) {
 			[]string{"level_sharing.reynolds_cost_percent"}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			req := demoRequest(t)
 			req.Conditions, req.Grid, req.Facilities = nil, nil, nil
 			require.NoError(t, unitjson.Decode([]byte(c.body), &req))
@@ -146,6 +150,7 @@ func TestRunInvalid(t *testing.T) {
 }
 
 func TestPolicies(t *testing.T) {
+	t.Parallel()
 	base := demoRequest(t)
 	one, err := campaign.Run(context.Background(), nil, base, nil)
 	require.NoError(t, err)
@@ -183,6 +188,7 @@ func TestPolicies(t *testing.T) {
 // saves hours in cn2-05, where the condensation rule puts every condition's
 // temperature somewhere else.
 func TestLevelSharing(t *testing.T) {
+	t.Parallel()
 	req := demoRequest(t)
 	req.Facilities = req.Facilities[1:2] // cn2-05
 	off, err := campaign.Run(context.Background(), nil, req, nil)
@@ -214,6 +220,7 @@ func TestLevelSharing(t *testing.T) {
 }
 
 func TestWriters(t *testing.T) {
+	t.Parallel()
 	req := demoRequest(t)
 	req.Conditions = append(req.Conditions, campaign.Condition{Label: "too fast"})
 	h, m := 0.0, 0.99
@@ -265,6 +272,7 @@ func TestWriters(t *testing.T) {
 }
 
 func TestSmall(t *testing.T) {
+	t.Parallel()
 	req := demoRequest(t) // 22 conditions, 3 facilities
 	assert.True(t, campaign.Small(&req))
 	req.Grid.Altitudes = make([]float64, 60) // 2 + 240 conditions
@@ -274,6 +282,7 @@ func TestSmall(t *testing.T) {
 // TestRunJSON runs the demo request from its bytes and gets the same answer as
 // Run, and a body that does not decode names its field.
 func TestRunJSON(t *testing.T) {
+	t.Parallel()
 	b, err := os.ReadFile("testdata/demo.json")
 	require.NoError(t, err)
 	got, err := campaign.RunJSON(context.Background(), nil, b, nil)

@@ -39,6 +39,7 @@ func demoFacility(t *testing.T, id string) *facilities.Facility {
 // then B E, then A D: pressure changes at F, B, A, D and temperature changes
 // at B and A: 4·30 + 2·240 = 600 min, 674 min = 11.23 h.
 func TestRunOrderCryogenic(t *testing.T) {
+	t.Parallel()
 	f := demoFacility(t, "cn2-05")
 	set := func(tk, pk float64) facilities.RunSet {
 		return facilities.RunSet{Condition: facilities.Condition{StagnationTemperature: tk, StagnationPressure: pk * 1000}, AlphaPoints: 7, BetaValues: 1}
@@ -66,6 +67,7 @@ func TestRunOrderCryogenic(t *testing.T) {
 // hours than the caller's order or the sort by (temperature, pressure), and is
 // a permutation of the sets.
 func TestRunOrderNeverWorse(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewPCG(7, 7))
 	ids := []string{"cn2-05", "tsw-1", "plp-3", "lsw-2", "wtn-04"}
 	better := 0
