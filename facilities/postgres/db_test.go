@@ -17,6 +17,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/facilities/catalogtest"
 	"scalematch/facilities/postgres"
+	"scalematch/internal/jobs/jobstest"
 )
 
 const defaultURL = "postgres://postgres@127.0.0.1:5432/test?sslmode=disable"
@@ -74,6 +75,21 @@ var open = catalogtest.Opener(postgres.Open, schemaURL)
 func TestCatalog(t *testing.T) {
 	t.Parallel()
 	catalogtest.Run(t, open)
+}
+
+// openJobs makes a schema of its own for one test (schemaURL) and opens stores
+// on it, as replicas sharing the database would.
+var openJobs = jobstest.Opener(postgres.Open, schemaURL)
+
+func TestJobs(t *testing.T) {
+	t.Parallel()
+	jobstest.Run(t, openJobs)
+}
+
+// BenchmarkJobs runs the job store benchmarks (jobstest.Bench) on a new schema
+// for each.
+func BenchmarkJobs(b *testing.B) {
+	jobstest.Bench(b, openJobs)
 }
 
 // TestReplicasStartTogether opens several stores on one empty schema at once, as

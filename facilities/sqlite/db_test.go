@@ -13,6 +13,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/facilities/catalogtest"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/jobs/jobstest"
 )
 
 // open opens a new catalog file in a directory of its own for one test.
@@ -23,6 +24,23 @@ var open = catalogtest.Opener(sqlite.Open, func(tb testing.TB) string {
 func TestCatalog(t *testing.T) {
 	t.Parallel()
 	catalogtest.Run(t, open)
+}
+
+// openJobs makes a new catalog file for one test and opens stores on it, as
+// processes sharing the file would.
+var openJobs = jobstest.Opener(sqlite.Open, func(tb testing.TB) string {
+	return filepath.Join(tb.TempDir(), sqlite.FileName)
+})
+
+func TestJobs(t *testing.T) {
+	t.Parallel()
+	jobstest.Run(t, openJobs)
+}
+
+// BenchmarkJobs runs the job store benchmarks (jobstest.Bench); every write
+// waits for its fsync (synchronous=FULL).
+func BenchmarkJobs(b *testing.B) {
+	jobstest.Bench(b, openJobs)
 }
 
 // TestReopen checks that a closed store opens again with its data, that the
