@@ -7,23 +7,26 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 )
 
+// TestFacilitiesCommand and TestFacilitiesCommandJSONIsTheAPIList are not
+// parallel: they clear SCALEMATCH_DATABASE_URL, which the command reads.
 func TestFacilitiesCommand(t *testing.T) {
 	empty := t.TempDir()
 	stored := t.TempDir()
 	db, err := sqlite.Open(context.Background(), sqlite.Path(stored))
-	if err != nil {
-		t.Fatal(err)
-	}
-	f, _ := facilities.DemoFacility("wtn-04")
+	require.NoError(t, err)
+	f, ok := facilities.DemoFacility("wtn-04")
+	require.True(t, ok)
 	f.ID, f.Name = "wtn-05", "second water tunnel"
-	if _, err := db.CreateFacility(context.Background(), f, "staff"); err != nil {
-		t.Fatal(err)
-	}
-	db.Close()
+	_, err = db.CreateFacility(context.Background(), f, "staff")
+	require.NoError(t, err)
+	require.NoError(t, db.Close())
 
 	tests := []struct {
 		name    string
@@ -44,13 +47,13 @@ func TestFacilitiesCommand(t *testing.T) {
 			t.Setenv("SCALEMATCH_DATABASE_URL", "")
 			var out, errOut bytes.Buffer
 			err := run(tt.args, strings.NewReader(""), &out, &errOut)
-			if (err != nil) != tt.wantErr {
-				t.Fatalf("error %v, want error %v", err, tt.wantErr)
+			if tt.wantErr {
+				require.Error(t, err)
+			} else {
+				require.NoError(t, err)
 			}
 			for _, w := range tt.want {
-				if !strings.Contains(out.String(), w) {
-					t.Errorf("output lacks %q:\n%s", w, out.String())
-				}
+				assert.Contains(t, out.String(), w, "output")
 			}
 		})
 	}
@@ -59,18 +62,12 @@ func TestFacilitiesCommand(t *testing.T) {
 func TestFacilitiesCommandJSONIsTheAPIList(t *testing.T) {
 	t.Setenv("SCALEMATCH_DATABASE_URL", "")
 	var out bytes.Buffer
-	if err := run([]string{"facilities", "--json", "--data", t.TempDir()}, strings.NewReader(""), &out, &out); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, run([]string{"facilities", "--json", "--data", t.TempDir()}, strings.NewReader(""), &out, &out))
 	var list struct {
 		Facilities []facilities.Facility `json:"facilities"`
 	}
 	dec := json.NewDecoder(&out)
 	dec.DisallowUnknownFields()
-	if err := dec.Decode(&list); err != nil {
-		t.Fatal(err)
-	}
-	if len(list.Facilities) != len(facilities.Demo()) {
-		t.Errorf("listed %d facilities, want %d", len(list.Facilities), len(facilities.Demo()))
-	}
+	require.NoError(t, dec.Decode(&list))
+	assert.Len(t, list.Facilities, len(facilities.Demo()), "the demo's facilities")
 }

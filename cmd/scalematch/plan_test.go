@@ -3,21 +3,22 @@ package main
 import (
 	"bytes"
 	"context"
-	"io"
-	"log/slog"
 	"net/http"
 	"net/http/httptest"
 	"os"
 	"path/filepath"
-	"scalematch/internal/check"
-	"scalematch/internal/testfixture"
 	"slices"
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/api"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/check"
+	"scalematch/internal/testfixture"
 )
 
 const dragGroups = `{"variables": [{"name": "R", "unit": "N"}, {"name": "rho", "unit": "kg/m^3"},
@@ -36,9 +37,7 @@ func runCmd(t *testing.T, stdin string, args ...string) (string, error) {
 func writeFile(t *testing.T, name, body string) string {
 	t.Helper()
 	p := filepath.Join(t.TempDir(), name)
-	if err := os.WriteFile(p, []byte(body), 0o600); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, os.WriteFile(p, []byte(body), 0o600))
 	return p
 }
 
@@ -46,10 +45,8 @@ func writeFile(t *testing.T, name, body string) string {
 // facilities) and returns the status and the body.
 func postBody(t *testing.T, c facilities.Catalog, path, body string) (int, []byte) {
 	t.Helper()
-	s, err := api.New(api.Config{Catalog: c, Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
+	s, err := api.New(api.Config{Catalog: c, Logger: testfixture.Quiet()})
+	require.NoError(t, err)
 	rec := httptest.NewRecorder()
 	req := httptest.NewRequest(http.MethodPost, path, strings.NewReader(body))
 	req.Header.Set("Content-Type", "application/json")
@@ -57,15 +54,34 @@ func postBody(t *testing.T, c facilities.Catalog, path, body string) (int, []byt
 	return rec.Code, rec.Body.Bytes()
 }
 
+// tableCase is a command line whose output must contain each of want.
+type tableCase struct {
+	name  string
+	args  []string
+	stdin string
+	want  []string
+}
+
+// runTableCases runs each case as a parallel subtest.
+func runTableCases(t *testing.T, cases []tableCase) {
+	t.Helper()
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
+			out, err := runCmd(t, c.stdin, c.args...)
+			require.NoError(t, err)
+			for _, w := range c.want {
+				assert.Contains(t, out, w, "output")
+			}
+		})
+	}
+}
+
 func TestPlanCommandTable(t *testing.T) {
+	t.Parallel()
 	file := writeFile(t, "j16.json", testfixture.J16Plan)
 	noStore := t.TempDir()
-	cases := []struct {
-		name  string
-		args  []string
-		stdin string
-		want  []string
-	}{
+	cases := []tableCase{
 		{"SI from a file", []string{"plan", "--data", noStore, file}, "", []string{
 			"facility tsw-1 (demo catalog, version 1)",
 			"\nFlight\n", "\nModel\n", "\nTest\n", "\nMismatch\n",
@@ -92,24 +108,13 @@ func TestPlanCommandTable(t *testing.T) {
 			"54000 Pa (1127.8 psf)",
 		}},
 	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			out, err := runCmd(t, c.stdin, c.args...)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, w := range c.want {
-				if !strings.Contains(out, w) {
-					t.Errorf("output lacks %q:\n%s", w, out)
-				}
-			}
-		})
-	}
+	runTableCases(t, cases)
 }
 
 // TestCommandJSONIsTheServiceBody checks --json against the service's answer to the
 // same request, byte for byte.
 func TestCommandJSONIsTheServiceBody(t *testing.T) {
+	t.Parallel()
 	noStore := t.TempDir()
 	cases := []struct {
 		name, cmd, path, body string
@@ -122,21 +127,16 @@ func TestCommandJSONIsTheServiceBody(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			code, want := postBody(t, nil, c.path, c.body)
-			if code != http.StatusOK {
-				t.Fatalf("service: status %d: %s", code, want)
-			}
+			require.Equal(t, http.StatusOK, code, "service: %s", want)
 			args := []string{c.cmd, "--json", "-"}
 			if c.cmd != "groups" {
 				args = append(args, "--data", noStore)
 			}
 			out, err := runCmd(t, c.body, args...)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if out != string(want) {
-				t.Errorf("--json differs from the service's body:\n%s\n%s", out, want)
-			}
+			require.NoError(t, err)
+			assert.Equal(t, string(want), out, "--json against the service's body")
 		})
 	}
 }
@@ -145,56 +145,45 @@ func TestCommandJSONIsTheServiceBody(t *testing.T) {
 // --data, that a plan stored by the service is answered with its stored bytes, and
 // that the command line stores nothing.
 func TestPlanCommandStore(t *testing.T) {
+	t.Parallel()
 	ctx := context.Background()
 	dir := t.TempDir()
 	db, err := sqlite.Open(ctx, sqlite.Path(dir))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	defer db.Close()
-	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
-		t.Fatal(err)
-	}
-	f, _ := facilities.DemoFacility("tsw-1")
+	_, err = facilities.SeedDemo(ctx, db, true)
+	require.NoError(t, err)
+	f, ok := facilities.DemoFacility("tsw-1")
+	require.True(t, ok)
 	f.ID, f.Name = "tsw-1x", "transonic tunnel, store-only copy"
-	if _, err := db.CreateFacility(ctx, f, "test"); err != nil {
-		t.Fatal(err)
-	}
+	_, err = db.CreateFacility(ctx, f, "test")
+	require.NoError(t, err)
 	stored := strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"tsw-1x"`, 1)
 	code, want := postBody(t, db, "/v1/plans", stored)
-	if code != http.StatusOK {
-		t.Fatalf("service: status %d: %s", code, want)
-	}
+	require.Equal(t, http.StatusOK, code, "service: %s", want)
 
 	out, err := runCmd(t, "", "plan", "--json", "--data", dir, writeFile(t, "x.json", stored))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if out != string(want) {
-		t.Errorf("--json differs from the stored plan:\n%s\n%s", out, want)
-	}
+	require.NoError(t, err)
+	assert.Equal(t, string(want), out, "--json against the stored plan")
 	out, err = runCmd(t, "", "plan", "--data", dir, writeFile(t, "x.json", stored))
-	if err != nil || !strings.Contains(out, "facility tsw-1x (sqlite "+sqlite.Path(dir)+", version 1)") {
-		t.Errorf("table: %v\n%s", err, out)
+	if assert.NoError(t, err, "table") {
+		assert.Contains(t, out, "facility tsw-1x (sqlite "+sqlite.Path(dir)+", version 1)", "table")
 	}
 	// Without the store the id names nothing.
-	if _, err := runCmd(t, stored, "plan", "--data", t.TempDir(), "-"); check.ErrorCode(err) != check.CodeNotFound {
-		t.Errorf("without the store: %v, want not found", err)
-	}
+	_, err = runCmd(t, stored, "plan", "--data", t.TempDir(), "-")
+	assert.Equal(t, check.CodeNotFound, check.ErrorCode(err), "without the store: %v", err)
 	// A new plan is answered but not stored.
 	fresh := strings.Replace(stored, `"step": 1`, `"step": 2`, 1)
 	out, err = runCmd(t, fresh, "plan", "--json", "--data", dir, "-")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	id := out[strings.Index(out, `"id":"`)+6:]
 	id = id[:strings.IndexByte(id, '"')]
-	if _, err := db.Plan(ctx, id); check.ErrorCode(err) != check.CodeNotFound {
-		t.Errorf("plan %s: %v, want it not stored", id, err)
-	}
+	_, err = db.Plan(ctx, id)
+	assert.Equal(t, check.CodeNotFound, check.ErrorCode(err), "plan %s: want it not stored (%v)", id, err)
 }
 
 func TestCommandErrors(t *testing.T) {
+	t.Parallel()
 	noStore := t.TempDir()
 	cases := []struct {
 		name  string
@@ -236,33 +225,22 @@ func TestCommandErrors(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			out, err := runCmd(t, c.stdin, c.args...)
-			if err == nil {
-				t.Fatalf("no error; output:\n%s", out)
-			}
-			if got := check.ErrorCode(err); got != c.code {
-				t.Errorf("code %q, want %q (%v)", got, c.code, err)
-			}
+			require.Error(t, err, "output:\n%s", out)
+			assert.Equal(t, c.code, check.ErrorCode(err), "%v", err)
 			for _, w := range c.want {
-				if !strings.Contains(err.Error(), w) {
-					t.Errorf("error lacks %q:\n%v", w, err)
-				}
+				assert.ErrorContains(t, err, w)
 			}
-			if out != "" {
-				t.Errorf("stdout not empty on error: %q", out)
-			}
+			assert.Empty(t, out, "stdout on error")
 		})
 	}
 }
 
 func TestLoadsAndGroupsCommandTables(t *testing.T) {
+	t.Parallel()
 	noStore := t.TempDir()
-	cases := []struct {
-		name  string
-		args  []string
-		stdin string
-		want  []string
-	}{
+	cases := []tableCase{
 		{"loads on every balance", []string{"loads", "--data", noStore, "-"}, testfixture.J16Loads, []string{
 			"Load check: facility tsw-1", "Loads on balance int-b1", "Loads on balance int-b2",
 			"Facility limits broken\n  none\n", "\nCautions\n",
@@ -275,28 +253,15 @@ func TestLoadsAndGroupsCommandTables(t *testing.T) {
 			"Π2 = mu rho^-1 V^-1 L^-1  (inverse Reynolds number (1/Re))\n",
 		}},
 	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			out, err := runCmd(t, c.stdin, c.args...)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, w := range c.want {
-				if !strings.Contains(out, w) {
-					t.Errorf("output lacks %q:\n%s", w, out)
-				}
-			}
-		})
-	}
+	runTableCases(t, cases)
 }
 
 // TestExamplesPlan plans every example plan request under examples/ (the
 // campaign requests, campaign-*.json, are run by TestCampaignExamples).
 func TestExamplesPlan(t *testing.T) {
+	t.Parallel()
 	files, err := filepath.Glob(filepath.Join("..", "..", "examples", "*.json"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	files = slices.DeleteFunc(files, func(f string) bool { return strings.HasPrefix(filepath.Base(f), "campaign-") })
 	if len(files) == 0 {
 		t.Skip("no examples/*.json yet")
@@ -304,13 +269,10 @@ func TestExamplesPlan(t *testing.T) {
 	noStore := t.TempDir()
 	for _, f := range files {
 		t.Run(filepath.Base(f), func(t *testing.T) {
+			t.Parallel()
 			out, err := runCmd(t, "", "plan", "--data", noStore, f)
-			if err != nil {
-				t.Fatalf("%v", err)
-			}
-			if !strings.Contains(out, "\nBinding limits") {
-				t.Errorf("no plan printed:\n%s", out)
-			}
+			require.NoError(t, err)
+			assert.Contains(t, out, "\nBinding limits", "a plan printed")
 		})
 	}
 }

@@ -12,12 +12,15 @@ import (
 	"time"
 
 	"github.com/spf13/pflag"
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 )
 
 func TestParseWriteTokens(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name    string
 		in      string
@@ -35,57 +38,42 @@ func TestParseWriteTokens(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			got, _, err := parseWriteTokens(tc.in)
 			if tc.errFrag != "" {
-				if err == nil || !strings.Contains(err.Error(), tc.errFrag) {
-					t.Fatalf("error %v, want one containing %q", err, tc.errFrag)
-				}
+				require.ErrorContains(t, err, tc.errFrag)
 				for tok := range strings.SplitSeq(tc.in, ",") {
-					if _, secret, ok := strings.Cut(tok, ":"); ok && secret != "" && strings.Contains(err.Error(), secret) {
-						t.Errorf("error %q reveals a token", err)
+					if _, secret, ok := strings.Cut(tok, ":"); ok && secret != "" {
+						assert.NotContains(t, err.Error(), secret, "the error reveals a token")
 					}
 				}
 				return
 			}
-			if err != nil {
-				t.Fatal(err)
-			}
-			if len(got) != len(tc.want) {
-				t.Fatalf("got %v, want %v", got, tc.want)
-			}
+			require.NoError(t, err)
+			require.Len(t, got, len(tc.want), "tokens %v", got)
 			for k, v := range tc.want {
-				if got[k] != v {
-					t.Errorf("token %q: name %q, want %q", k, got[k], v)
-				}
+				assert.Equal(t, v, got[k], "token %q", k)
 			}
 		})
 	}
 }
 
 func TestFlagsFromEnv(t *testing.T) {
+	t.Parallel()
 	env := map[string]string{"SCALEMATCH_ADDR": "127.0.0.1:9999", "SCALEMATCH_DATA": "/from/env", "SCALEMATCH_NO_DEMO": "true"}
 	lookup := func(k string) (string, bool) { v, ok := env[k]; return v, ok }
 
 	cmd := newServeCmd()
-	if err := cmd.ParseFlags([]string{"--data", "/from/flag"}); err != nil {
-		t.Fatal(err)
-	}
-	if err := flagsFromEnv(cmd.Flags(), lookup); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, cmd.ParseFlags([]string{"--data", "/from/flag"}))
+	require.NoError(t, flagsFromEnv(cmd.Flags(), lookup))
 	for flag, want := range map[string]string{"addr": "127.0.0.1:9999", "data": "/from/flag", "no-demo": "true"} {
-		if got := cmd.Flags().Lookup(flag).Value.String(); got != want {
-			t.Errorf("--%s = %q, want %q", flag, got, want)
-		}
+		assert.Equal(t, want, cmd.Flags().Lookup(flag).Value.String(), "--%s", flag)
 	}
 
 	env["SCALEMATCH_NO_DEMO"] = "maybe"
 	fs := pflag.NewFlagSet("x", pflag.ContinueOnError)
 	fs.Bool("no-demo", false, "")
-	err := flagsFromEnv(fs, lookup)
-	if err == nil || !strings.Contains(err.Error(), "SCALEMATCH_NO_DEMO") {
-		t.Errorf("error %v, want one naming SCALEMATCH_NO_DEMO", err)
-	}
+	assert.ErrorContains(t, flagsFromEnv(fs, lookup), "SCALEMATCH_NO_DEMO")
 }
 
 type syncWriter struct {
@@ -106,6 +94,7 @@ func (w *syncWriter) String() string {
 }
 
 func TestServeLifecycle(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name       string
 		noDemo     bool
@@ -116,6 +105,7 @@ func TestServeLifecycle(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			dir := t.TempDir()
 			ctx, cancel := context.WithCancel(context.Background())
 			defer cancel()
@@ -137,46 +127,31 @@ func TestServeLifecycle(t *testing.T) {
 			}
 			for _, path := range []string{"/healthz", "/readyz"} {
 				resp, err := http.Get(base + path)
-				if err != nil {
-					t.Fatal(err)
-				}
+				require.NoError(t, err)
 				io.Copy(io.Discard, resp.Body)
 				resp.Body.Close()
-				if resp.StatusCode != 200 {
-					t.Errorf("GET %s: %d", path, resp.StatusCode)
-				}
+				assert.Equal(t, http.StatusOK, resp.StatusCode, "GET %s", path)
 			}
 			cancel()
 			select {
 			case err := <-done:
-				if err != nil {
-					t.Fatalf("serve: %v", err)
-				}
+				require.NoError(t, err, "serve")
 			case <-time.After(40 * time.Second):
 				t.Fatal("serve did not stop")
 			}
-			if !strings.Contains(logs.String(), `"msg":"store closed"`) {
-				t.Errorf("the store was not closed; log:\n%s", logs.String())
-			}
+			assert.Contains(t, logs.String(), `"msg":"store closed"`, "the store was closed")
 			db, err := sqlite.Open(context.Background(), sqlite.Path(dir))
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			defer db.Close()
 			fs, err := db.Facilities(context.Background())
-			if err != nil {
-				t.Fatal(err)
-			}
-			if len(fs) != tc.facilities {
-				t.Errorf("store has %d facilities, want %d", len(fs), tc.facilities)
-			}
+			require.NoError(t, err)
+			assert.Len(t, fs, tc.facilities, "facilities in the store")
 		})
 	}
 }
 
 func TestServeRefusesOtherDatabases(t *testing.T) {
+	t.Parallel()
 	err := serve(context.Background(), serveOptions{addr: "127.0.0.1:0", databaseURL: "mysql://x"}, io.Discard)
-	if err == nil || !strings.Contains(err.Error(), "postgres://") {
-		t.Errorf("error %v, want one asking for a postgres:// URL", err)
-	}
+	assert.ErrorContains(t, err, "postgres://", "asks for a postgres:// URL")
 }
