@@ -910,8 +910,16 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		c.fail = facilities.ConstraintCondensation
 		return c
 	}
-	mLo, _ := sv.floorMargin(&c, pa, ta)
-	if mHi, _ := sv.floorMargin(&c, pb, ta); mHi < 0 || mLo < 0 {
+	// below: (p0, T0) is below the T0 floor; the local expansion alone (the
+	// same at every Mach number) tells when it condenses, before any state.
+	below := func(p, t float64) bool {
+		if sv.localMargin(p, t) < sv.condMin {
+			return true
+		}
+		m, _ := sv.floorMargin(&c, p, t)
+		return m < 0
+	}
+	if below(pa, ta) || below(pb, ta) {
 		c.cond = true
 		if m, name := sv.floorMargin(&c, pb, tb); m < 0 {
 			// Above some p0 even the warmest usable T0 condenses (or is too slow).
