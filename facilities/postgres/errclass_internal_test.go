@@ -16,6 +16,7 @@ import (
 // TestClassify checks the classes by SQLSTATE (PostgreSQL documentation,
 // appendix A) and for connections that cannot be made or were cut.
 func TestClassify(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name string
 		err  error
@@ -33,6 +34,7 @@ func TestClassify(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			got := classify(tc.err)
 			assert.ErrorIs(t, got, tc.err, "the original stays in the chain")
 			for _, class := range []error{facilities.ErrStorageFull, facilities.ErrUnavailable} {

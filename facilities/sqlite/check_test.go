@@ -37,6 +37,7 @@ func fillCatalog(tb testing.TB, n, size int) string {
 // TestIntegrityChecks: damage inside catalog.db went unnoticed until a damaged
 // plan was read; both checks find it at once.
 func TestIntegrityChecks(t *testing.T) {
+	t.Parallel()
 	ctx := context.Background()
 	path := fillCatalog(t, 200, 8000)
 	db, err := sqlite.Open(ctx, path)

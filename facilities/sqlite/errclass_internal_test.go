@@ -21,6 +21,7 @@ import (
 // The plan save that fails is classified facilities.ErrStorageFull, and a read
 // still works.
 func TestFullDatabaseIsStorageFull(t *testing.T) {
+	t.Parallel()
 	db := openInternal(t)
 	ctx := context.Background()
 	var pages int
@@ -50,6 +51,7 @@ func TestFullDatabaseIsStorageFull(t *testing.T) {
 }
 
 func TestClassOf(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name string
 		code int
@@ -65,6 +67,7 @@ func TestClassOf(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			assert.True(t, errors.Is(classOf(tc.code), tc.want) || classOf(tc.code) == tc.want)
 		})
 	}

@@ -30,12 +30,12 @@ func openInternal(t *testing.T) *DB {
 // TestFailureBeforeCommit fails each kind of write after all its statements ran,
 // just before the commit, and checks that nothing of it remains.
 func TestFailureBeforeCommit(t *testing.T) {
+	t.Parallel()
 	ctx := context.Background()
 	db := openInternal(t)
 	f, _ := facilities.DemoFacility("lsw-2")
-	if _, err := db.CreateFacility(ctx, f, "a"); err != nil {
-		t.Fatal(err)
-	}
+	_, err := db.CreateFacility(ctx, f, "a")
+	require.NoError(t, err)
 	injected := errors.New("injected failure")
 	*hooks(db).BeforeCommit = func(string) error { return injected }
 	g, _ := facilities.DemoFacility("tsw-1")
@@ -52,11 +52,11 @@ func TestFailureBeforeCommit(t *testing.T) {
 		}},
 		{"seed", func() error { _, err := db.SeedOnce(ctx, facilities.Demo(), facilities.SeedActor); return err }},
 	}
+	// The cases run one after another on one store: each checks that the one
+	// before it left nothing behind.
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			if err := tt.write(); !errors.Is(err, injected) {
-				t.Fatalf("write error = %v, want the injected failure", err)
-			}
+			require.ErrorIs(t, tt.write(), injected, "write error")
 			var facilitiesRows, versionRows, planRows, metaRows int
 			for q, dst := range map[string]*int{
 				"SELECT count(*) FROM facilities":        &facilitiesRows,
@@ -64,24 +64,21 @@ func TestFailureBeforeCommit(t *testing.T) {
 				"SELECT count(*) FROM plans":             &planRows,
 				"SELECT count(*) FROM store_meta":        &metaRows,
 			} {
-				if err := db.r.QueryRowContext(ctx, q).Scan(dst); err != nil {
-					t.Fatal(err)
-				}
+				require.NoError(t, db.r.QueryRowContext(ctx, q).Scan(dst), q)
 			}
-			if facilitiesRows != 1 || versionRows != 1 || planRows != 0 || metaRows != 0 {
-				t.Errorf("rows after a failed %s: facilities %d, versions %d, plans %d, meta %d; want 1, 1, 0, 0",
-					tt.name, facilitiesRows, versionRows, planRows, metaRows)
-			}
+			assert.Equal(t, [4]int{1, 1, 0, 0}, [4]int{facilitiesRows, versionRows, planRows, metaRows},
+				"rows of facilities, versions, plans, meta after a failed %s", tt.name)
 			cur, err := db.Facility(ctx, "lsw-2")
-			if err != nil || cur.Version != 1 || cur.Name == "changed" {
-				t.Errorf("lsw-2 after a failed %s: %+v, %v; want version 1 unchanged", tt.name, cur.Version, err)
-			}
+			require.NoError(t, err)
+			assert.Equal(t, 1, cur.Version, "lsw-2's version after a failed %s", tt.name)
+			assert.NotEqual(t, "changed", cur.Name, "lsw-2's name after a failed %s", tt.name)
 		})
 	}
 }
 
 // TestDurabilitySettings checks the pragmas that make an acknowledged write durable.
 func TestDurabilitySettings(t *testing.T) {
+	t.Parallel()
 	ctx := context.Background()
 	db := openInternal(t)
 	tests := []struct {
@@ -96,12 +93,8 @@ func TestDurabilitySettings(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.pragma, func(t *testing.T) {
 			var got string
-			if err := db.w.QueryRowContext(ctx, "PRAGMA "+tt.pragma).Scan(&got); err != nil {
-				t.Fatal(err)
-			}
-			if got != tt.want {
-				t.Errorf("writer PRAGMA %s = %s, want %s", tt.pragma, got, tt.want)
-			}
+			require.NoError(t, db.w.QueryRowContext(ctx, "PRAGMA "+tt.pragma).Scan(&got))
+			assert.Equal(t, tt.want, got, "writer PRAGMA %s", tt.pragma)
 		})
 	}
 }
@@ -111,6 +104,7 @@ func TestDurabilitySettings(t *testing.T) {
 // more transaction, and that a failure of a group's transaction fails every call
 // in that group and stores none of them.
 func TestGroupCommit(t *testing.T) {
+	t.Parallel()
 	const queued = 20
 	tests := []struct {
 		name       string
@@ -122,6 +116,7 @@ func TestGroupCommit(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
+			t.Parallel()
 			ctx := context.Background()
 			db := openInternal(t)
 			release := make(chan struct{})
@@ -150,52 +145,40 @@ func TestGroupCommit(t *testing.T) {
 				}()
 			}
 			// Wait until all of them are queued behind the held transaction.
-			for {
-				n := hooks(db).Plans.Queued()
-				if n == queued {
-					break
-				}
-				time.Sleep(time.Millisecond)
-			}
+			require.Eventually(t, func() bool { return hooks(db).Plans.Queued() == queued }, 30*time.Second, time.Millisecond,
+				"%d plans queued", queued)
 			close(release)
-			if err := <-first; err != nil {
-				t.Fatalf("first plan: %v", err)
-			}
+			require.NoError(t, <-first, "first plan")
 			for range queued {
-				err := <-errs
-				if !errors.Is(err, tt.secondErr) || (tt.secondErr == nil) != (err == nil) {
-					t.Errorf("queued plan: error %v, want %v", err, tt.secondErr)
+				if err := <-errs; tt.secondErr == nil {
+					assert.NoError(t, err, "queued plan")
+				} else {
+					assert.ErrorIs(t, err, tt.secondErr, "queued plan")
 				}
 			}
-			if g, r := hooks(db).Plans.Stats(); g != 2 || r != 1+queued {
-				t.Errorf("%d records in %d transactions, want %d in 2", r, g, 1+queued)
-			}
+			g, r := hooks(db).Plans.Stats()
+			assert.Equal(t, [2]int64{2, 1 + queued}, [2]int64{g, r}, "transactions and records")
 			var stored int
-			if err := db.r.QueryRowContext(ctx, "SELECT count(*) FROM plans").Scan(&stored); err != nil {
-				t.Fatal(err)
-			}
-			if stored != tt.wantStored {
-				t.Errorf("%d plans stored, want %d", stored, tt.wantStored)
-			}
+			require.NoError(t, db.r.QueryRowContext(ctx, "SELECT count(*) FROM plans").Scan(&stored))
+			assert.Equal(t, tt.wantStored, stored, "plans stored")
 		})
 	}
 }
 
 // TestSavePlanAfterClose checks that a closed store refuses plans with an error.
 func TestSavePlanAfterClose(t *testing.T) {
+	t.Parallel()
 	db := openInternal(t)
-	if err := db.Close(); err != nil {
-		t.Fatal(err)
-	}
-	if _, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "late", Body: []byte(`{}`)}); !errors.Is(err, hooks(db).Closed) {
-		t.Errorf("SavePlan after Close: %v, want %v", err, hooks(db).Closed)
-	}
+	require.NoError(t, db.Close())
+	_, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "late", Body: []byte(`{}`)})
+	assert.ErrorIs(t, err, hooks(db).Closed, "SavePlan after Close")
 }
 
 // TestPlanStoredBeforeCompression reads a plan row written as the store wrote
 // them before bodies were compressed (the JSON itself in plans.body): it reads
 // back byte for byte, and a new plan's row is compressed.
 func TestPlanStoredBeforeCompression(t *testing.T) {
+	t.Parallel()
 	db := openInternal(t)
 	ctx := context.Background()
 	body := []byte(`{"id":"old","mismatch":{"reynolds_ratio":0.25},"notes":["` + strings.Repeat("an old plan ", 100) + `"]}`)

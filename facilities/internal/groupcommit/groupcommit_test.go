@@ -353,29 +353,20 @@ func TestGatherInFlight(t *testing.T) {
 	close(e.release)
 	// Record 1 is answered; three records were in flight, so the next group
 	// waits for a third, which comes back as a caller answered would.
-	if r := <-results; r.rec != 1 || r.outcome != groupcommit.Committed {
-		t.Fatalf("first answer: record %d %v, want record 1 committed", r.rec, r.outcome)
-	}
+	r := <-results
+	require.Equal(t, 1, r.rec, "the first answer's record")
+	assertCommitted(t, r)
 	go submit(c, ctx, 4, results)
 	for range 3 {
-		if r := <-results; r.outcome != groupcommit.Committed {
-			t.Errorf("record %d: %v, %v; want committed", r.rec, r.outcome, r.err)
-		}
+		assertCommitted(t, <-results)
 	}
 	// Three were in flight again; a lone record waits for the others at most
 	// about a commit's time (the mean of the commits so far), not Gather.
 	start := time.Now()
 	go submit(c, ctx, 5, results)
-	if r := <-results; r.outcome != groupcommit.Committed {
-		t.Errorf("record 5: %v, %v; want committed", r.outcome, r.err)
-	}
-	if waited := time.Since(start); waited > 20*time.Second {
-		t.Errorf("a lone record waited %v for records that never came, want about one commit's time", waited)
-	}
-	want := [][]int{{1}, {2, 3, 4}, {5}}
-	if got := e.committed(); fmt.Sprint(got) != fmt.Sprint(want) {
-		t.Errorf("groups %v, want %v", got, want)
-	}
+	assertCommitted(t, <-results)
+	assert.LessOrEqual(t, time.Since(start), 20*time.Second, "a lone record's wait for records that never came: about one commit's time")
+	assert.Equal(t, [][]int{{1}, {2, 3, 4}, {5}}, e.committed(), "groups")
 }
 
 // TestOutcomeString checks the outcome names.
