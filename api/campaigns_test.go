@@ -3,7 +3,6 @@ package api_test
 import (
 	"encoding/csv"
 	"encoding/json"
-	"io"
 	"net/http"
 	"os"
 	"strings"
@@ -13,24 +12,19 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/internal/campaign"
+	"scalematch/internal/testfixture"
 )
 
 // postAccept posts body to path with an Accept header and returns the status,
 // content type and body.
 func postAccept(t *testing.T, url, accept, body string) (int, string, []byte) {
 	t.Helper()
-	req, err := http.NewRequest(http.MethodPost, url, strings.NewReader(body))
-	require.NoError(t, err)
-	req.Header.Set("Content-Type", "application/json")
+	var header map[string]string
 	if accept != "" {
-		req.Header.Set("Accept", accept)
+		header = map[string]string{"Accept": accept}
 	}
-	resp, err := http.DefaultClient.Do(req)
-	require.NoError(t, err)
-	defer resp.Body.Close()
-	b, err := io.ReadAll(resp.Body)
-	require.NoError(t, err)
-	return resp.StatusCode, resp.Header.Get("Content-Type"), b
+	r := testfixture.Do(t, nil, http.MethodPost, url, header, []byte(body))
+	return r.Status, r.Header.Get("Content-Type"), r.Body
 }
 
 func TestPostCampaign(t *testing.T) {

@@ -61,30 +61,12 @@ type catalogReply struct {
 
 func catalogCall(t *testing.T, ts *httptest.Server, method, path string, header map[string]string, body string) catalogReply {
 	t.Helper()
-	var r io.Reader
+	var b []byte
 	if body != "" {
-		r = strings.NewReader(body)
+		b = []byte(body)
 	}
-	req, err := http.NewRequest(method, ts.URL+path, r)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if body != "" {
-		req.Header.Set("Content-Type", "application/json")
-	}
-	for k, v := range header {
-		req.Header.Set(k, v)
-	}
-	resp, err := ts.Client().Do(req)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer resp.Body.Close()
-	b, err := io.ReadAll(resp.Body)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return catalogReply{resp.StatusCode, resp.Header, b}
+	r := testfixture.Do(t, ts.Client(), method, ts.URL+path, header, b)
+	return catalogReply{r.Status, r.Header, r.Body}
 }
 
 func facilityJSON(t *testing.T, id string, edit func(*facilities.Facility)) string {

@@ -4,8 +4,6 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
-	"io"
-	"log/slog"
 	"math"
 	"net/http"
 	"net/http/httptest"
@@ -14,10 +12,11 @@ import (
 	"strings"
 	"testing"
 
-	"scalematch/api"
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/loads"
+
+	"github.com/stretchr/testify/require"
 )
 
 // matrixAircraft is one aircraft of the demo world (docs/demo-world.md, "Aircraft"),
@@ -90,28 +89,13 @@ var matrixInfeasible = map[string]bool{}
 // matrixServer is the service over the embedded demo catalog.
 func matrixServer(t *testing.T) *httptest.Server {
 	t.Helper()
-	s, err := api.New(api.Config{Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ts := httptest.NewServer(s.Handler())
-	t.Cleanup(ts.Close)
-	return ts
+	return newServer(t)
 }
 
 // matrixPost posts body to path and returns the status, content type and body.
 func matrixPost(t *testing.T, ts *httptest.Server, path, body string) (int, string, []byte) {
 	t.Helper()
-	resp, err := http.Post(ts.URL+path, "application/json", strings.NewReader(body))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer resp.Body.Close()
-	b, err := io.ReadAll(resp.Body)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return resp.StatusCode, resp.Header.Get("Content-Type"), b
+	return postAccept(t, ts.URL+path, "", body)
 }
 
 // matrixFinite walks a JSON document and returns the path of the first number
@@ -282,9 +266,7 @@ func checkMatrixProblem(t *testing.T, code int, ctype string, body []byte) {
 		t.Errorf("content type %q, want application/problem+json", ctype)
 	}
 	var p schema.Problem
-	if err := json.Unmarshal(body, &p); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal(body, &p))
 	if p.Status != 422 || len(p.Limits) == 0 || p.Detail == "" {
 		t.Errorf("422 problem without status, detail or limits: %s", body)
 	}
@@ -294,9 +276,7 @@ func checkMatrixProblem(t *testing.T, code int, ctype string, body []byte) {
 func checkMatrixPlan(t *testing.T, f matrixFacility, body []byte) *schema.PlanResponse {
 	t.Helper()
 	var raw map[string]json.RawMessage
-	if err := json.Unmarshal(body, &raw); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal(body, &raw))
 	for _, k := range []string{"id", "flight", "model", "test", "mismatch", "binding", "corrections", "loads",
 		"reynolds_effects", "schedule", "warnings", "cautions"} {
 		if v, ok := raw[k]; !ok || string(v) == "null" {
@@ -304,9 +284,7 @@ func checkMatrixPlan(t *testing.T, f matrixFacility, body []byte) *schema.PlanRe
 		}
 	}
 	var plan schema.PlanResponse
-	if err := json.Unmarshal(body, &plan); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal(body, &plan))
 	if plan.Loads == nil || plan.ReynoldsEffects == nil || plan.Schedule == nil {
 		t.Fatalf("plan lacks loads, Reynolds effects or schedule: %s", body)
 	}
@@ -371,26 +349,7 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 			strconv.FormatFloat(plan.Test.StagnationTemperature, 'g', -1, 64))
 	}
 	t.Run("loads_named", func(t *testing.T) {
-		code, _, b := matrixPost(t, ts, "/v1/loads", body(fmt.Sprintf(`"balance_id": %q, `, plan.Loads.BalanceID)))
-		if p := matrixFinite(t, b); p != "" {
-			t.Fatalf("non-finite number at %s: %s", p, b)
-		}
-		if code != http.StatusOK {
-			t.Fatalf("status %d: %s", code, b)
-		}
-		var raw struct {
-			Loads json.RawMessage `json:"loads"`
-		}
-		if err := json.Unmarshal(b, &raw); err != nil {
-			t.Fatal(err)
-		}
-		if !bytes.HasPrefix(bytes.TrimSpace(raw.Loads), []byte("{")) {
-			t.Fatalf("loads with balance_id is not one object: %s", raw.Loads)
-		}
-		var out schema.LoadsResponse
-		if err := json.Unmarshal(b, &out); err != nil {
-			t.Fatal(err)
-		}
+		out := matrixLoads(t, ts, body(fmt.Sprintf(`"balance_id": %q, `, plan.Loads.BalanceID)), "{")
 		r := out.Loads.One
 		if r == nil || r.BalanceID != plan.Loads.BalanceID {
 			t.Fatalf("loads %+v, want balance %s", r, plan.Loads.BalanceID)
@@ -423,26 +382,7 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 		}
 	})
 	t.Run("loads_all", func(t *testing.T) {
-		code, _, b := matrixPost(t, ts, "/v1/loads", body(""))
-		if p := matrixFinite(t, b); p != "" {
-			t.Fatalf("non-finite number at %s: %s", p, b)
-		}
-		if code != http.StatusOK {
-			t.Fatalf("status %d: %s", code, b)
-		}
-		var raw struct {
-			Loads json.RawMessage `json:"loads"`
-		}
-		if err := json.Unmarshal(b, &raw); err != nil {
-			t.Fatal(err)
-		}
-		if !bytes.HasPrefix(bytes.TrimSpace(raw.Loads), []byte("[")) {
-			t.Fatalf("loads without balance_id is not a list: %s", raw.Loads)
-		}
-		var out schema.LoadsResponse
-		if err := json.Unmarshal(b, &out); err != nil {
-			t.Fatal(err)
-		}
+		out := matrixLoads(t, ts, body(""), "[")
 		if len(out.Loads.All) != f.balances {
 			t.Fatalf("%d reports, want one per balance of %s (%d)", len(out.Loads.All), f.id, f.balances)
 		}
@@ -466,6 +406,24 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 	})
 }
 
+// matrixLoads posts a load check and returns its answer, which must be a 200
+// with finite numbers whose "loads" is one report ("{", a balance named) or a
+// list of them ("[", every balance).
+func matrixLoads(t *testing.T, ts *httptest.Server, body, open string) schema.LoadsResponse {
+	t.Helper()
+	code, _, b := matrixPost(t, ts, "/v1/loads", body)
+	require.Empty(t, matrixFinite(t, b), "non-finite number in %s", b)
+	require.Equal(t, http.StatusOK, code, "%s", b)
+	var raw struct {
+		Loads json.RawMessage `json:"loads"`
+	}
+	require.NoError(t, json.Unmarshal(b, &raw))
+	require.True(t, bytes.HasPrefix(bytes.TrimSpace(raw.Loads), []byte(open)), "loads does not open with %s: %s", open, raw.Loads)
+	var out schema.LoadsResponse
+	require.NoError(t, json.Unmarshal(b, &out))
+	return out
+}
+
 // TestDemoMatrixInfeasible asks every demo aircraft in every demo facility for two
 // plans no facility can give, and checks that each is a 422 problem naming the
 // limits that conflict: a fixed model scale 2 % above the largest the test section
@@ -480,9 +438,7 @@ func TestDemoMatrixInfeasible(t *testing.T) {
 			Span        float64 `json:"span"`
 			FrontalArea float64 `json:"frontal_area"`
 		}
-		if err := json.Unmarshal([]byte(a.article), &art); err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, json.Unmarshal([]byte(a.article), &art))
 		for _, f := range matrixFacilities {
 			fac, ok := facilities.DemoFacility(f.id)
 			if !ok {
@@ -514,9 +470,7 @@ func TestDemoMatrixInfeasible(t *testing.T) {
 					}
 					checkMatrixProblem(t, code, ctype, body)
 					var p schema.Problem
-					if err := json.Unmarshal(body, &p); err != nil {
-						t.Fatal(err)
-					}
+					require.NoError(t, json.Unmarshal(body, &p))
 					if !slices.Contains(p.Limits, tc.limit) {
 						t.Errorf("limits %q do not name %s: %s", p.Limits, tc.limit, p.Detail)
 					}

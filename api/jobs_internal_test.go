@@ -30,6 +30,7 @@ import (
 	"scalematch/facilities/sqlite"
 	"scalematch/internal/campaign"
 	"scalematch/internal/jobs"
+	"scalematch/internal/testfixture"
 	"scalematch/internal/unitjson"
 )
 
@@ -78,20 +79,12 @@ type reply struct {
 
 func call(t testing.TB, base, method, path, accept string, body []byte) reply {
 	t.Helper()
-	req, err := http.NewRequest(method, base+path, bytes.NewReader(body))
-	require.NoError(t, err)
-	if body != nil {
-		req.Header.Set("Content-Type", "application/json")
-	}
+	var header map[string]string
 	if accept != "" {
-		req.Header.Set("Accept", accept)
+		header = map[string]string{"Accept": accept}
 	}
-	resp, err := http.DefaultClient.Do(req)
-	require.NoError(t, err)
-	defer resp.Body.Close()
-	b, err := io.ReadAll(resp.Body)
-	require.NoError(t, err)
-	return reply{resp.StatusCode, resp.Header, b}
+	r := testfixture.Do(t, nil, method, base+path, header, body)
+	return reply{r.Status, r.Header, r.Body}
 }
 
 // jobServer serves a seeded store with a running job worker.

@@ -39,11 +39,8 @@ func TestMarineExamplesPlan(t *testing.T) {
 		t.Run(tc.file, func(t *testing.T) {
 			body, err := os.ReadFile(tc.file)
 			require.NoError(t, err)
-			resp, err := http.Post(ts.URL+"/v1/plans", "application/json", bytes.NewReader(body))
-			require.NoError(t, err)
-			defer resp.Body.Close()
-			b, _ := io.ReadAll(resp.Body)
-			require.Equal(t, http.StatusOK, resp.StatusCode, "%s", b)
+			code, b := post(t, ts, "/v1/plans", string(body))
+			require.Equal(t, http.StatusOK, code, "%s", b)
 			var raw struct {
 				Flight map[string]any `json:"flight"`
 			}
@@ -123,11 +120,8 @@ func TestMarineLoads(t *testing.T) {
 		"test": map[string]any{"speed": 1.5, "stagnation_temperature": 300}}
 	b, err := json.Marshal(req)
 	require.NoError(t, err)
-	resp, err := http.Post(ts.URL+"/v1/loads", "application/json", bytes.NewReader(b))
-	require.NoError(t, err)
-	defer resp.Body.Close()
-	out, _ := io.ReadAll(resp.Body)
-	require.Equal(t, http.StatusOK, resp.StatusCode, "%s", out)
+	code, out := post(t, ts, "/v1/loads", string(b))
+	require.Equal(t, http.StatusOK, code, "%s", out)
 	var got struct {
 		Test     map[string]any  `json:"test"`
 		Mismatch map[string]any  `json:"mismatch"`

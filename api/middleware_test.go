@@ -16,6 +16,7 @@ import (
 
 	"github.com/gin-gonic/gin"
 	"github.com/prometheus/client_golang/prometheus"
+	"github.com/stretchr/testify/require"
 
 	"scalematch/api/schema"
 	"scalematch/atmosphere"
@@ -44,9 +45,7 @@ func newInternal(t *testing.T) (*Server, *httptest.Server, *syncBuffer) {
 	t.Helper()
 	logs := &syncBuffer{}
 	s, err := New(Config{Registry: prometheus.NewRegistry(), Logger: slog.New(slog.NewJSONHandler(logs, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	g := s.engine.Group("/test")
 	g.GET("/panic", func(c *gin.Context) { panic("wing spar snapped") })
 	g.GET("/error/:kind", func(c *gin.Context) {
@@ -81,9 +80,7 @@ func get(t *testing.T, ts *httptest.Server, method, path string, body io.Reader)
 	}
 	req.Header.Set(HeaderRequestID, "req-"+strings.ReplaceAll(strings.Trim(path, "/"), "/", "-"))
 	resp, err := ts.Client().Do(req)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	defer resp.Body.Close()
 	b, _ := io.ReadAll(resp.Body)
 	var p schema.Problem
@@ -166,9 +163,7 @@ func TestOrdinaryErrorsPassThrough(t *testing.T) {
 
 func TestProblemMapping(t *testing.T) {
 	s, err := New(Config{Registry: prometheus.NewRegistry(), Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	de := func(code check.Code) error {
 		return fmt.Errorf("wrapped: %w", &check.Error{Code: code, Message: string(code)})
 	}
@@ -201,9 +196,7 @@ func TestProblemMapping(t *testing.T) {
 				t.Errorf("status %d, want %d", w.Code, tc.status)
 			}
 			var p schema.Problem
-			if err := json.Unmarshal(w.Body.Bytes(), &p); err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, json.Unmarshal(w.Body.Bytes(), &p))
 			if p.Type != "/problems/"+tc.slug || p.Status != tc.status || p.Title == "" {
 				t.Errorf("problem %+v, want /problems/%s", p, tc.slug)
 			}

@@ -15,6 +15,8 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/contract"
 	"scalematch/internal/testfixture"
+
+	"github.com/stretchr/testify/require"
 )
 
 // The fuzz targets post arbitrary bodies to one endpoint each through the whole
@@ -27,63 +29,57 @@ import (
 // testdata/fuzz holds more (every demo medium, unit strings, broken JSON, huge
 // numbers and NaN-like strings). CI runs each target for 30 s (.ci/run).
 
+// seedEdit sets the number at a dotted path of a seed request.
+type seedEdit struct {
+	path  string
+	value any
+}
+
+// addSeeds adds base with each edit made, one seed an edit.
+func addSeeds(f *testing.F, base string, edits []seedEdit) {
+	f.Helper()
+	for _, e := range edits {
+		f.Add(seed(f, base, e.path, e.value))
+	}
+}
+
 // FuzzPlanEndpoint fuzzes POST /v1/plans.
 func FuzzPlanEndpoint(f *testing.F) {
 	f.Add([]byte(testfixture.J16Plan))
-	for _, s := range []struct {
-		path  string
-		value any
-	}{
+	addSeeds(f, testfixture.J16Plan, []seedEdit{
 		{"article.reference_area", 1e-310},
 		{"article.form_factor", 1e308},
 		{"model.scale", 1e308},
 		{"flight.altitude", -1e308},
-	} {
-		f.Add(seed(f, testfixture.J16Plan, s.path, s.value))
-	}
+	})
 	// An inline facility (tsw-1's record) with one number at an overflowing extreme.
 	inline := inlineFacility(f, testfixture.J16Plan)
-	for _, s := range []struct {
-		path  string
-		value any
-	}{
+	addSeeds(f, inline, []seedEdit{
 		{"facility.stagnation_pressure.min", 5e-324},
 		{"facility.stagnation_temperature.min", 1e-300},
 		{"facility.operations.seconds_per_point", 1e308},
 		{"facility.max_dynamic_pressure", 1e-310},
 		{"facility.test_section.width", 1e308},
-	} {
-		f.Add(seed(f, inline, s.path, s.value))
-	}
+	})
 	fuzzEndpoint(f, "/v1/plans")
 }
 
 // FuzzLoadsEndpoint fuzzes POST /v1/loads.
 func FuzzLoadsEndpoint(f *testing.F) {
 	f.Add([]byte(testfixture.J16Loads))
-	for _, s := range []struct {
-		path  string
-		value any
-	}{
+	addSeeds(f, testfixture.J16Loads, []seedEdit{
 		{"test.stagnation_pressure", 1e308},
 		{"test.stagnation_temperature", 1e-300},
 		{"test.speed", 1e308},
 		{"article.reference_area", 1e-310},
 		{"installation.model_mass", 1e308},
-	} {
-		f.Add(seed(f, testfixture.J16Loads, s.path, s.value))
-	}
+	})
 	inline := inlineFacility(f, testfixture.J16Loads)
-	for _, s := range []struct {
-		path  string
-		value any
-	}{
+	addSeeds(f, inline, []seedEdit{
 		{"facility.balances.0.limits.normal", 1e-310},
 		{"facility.balances.0.limits.pitching_moment", 1e-310},
 		{"facility.balances.0.safety_factor", 1e308},
-	} {
-		f.Add(seed(f, inline, s.path, s.value))
-	}
+	})
 	fuzzEndpoint(f, "/v1/loads")
 }
 
@@ -91,17 +87,12 @@ func FuzzLoadsEndpoint(f *testing.F) {
 func FuzzConditionsEndpoint(f *testing.F) {
 	const base = `{"facility_id": "tsw-1", "mach": 0.8, "stagnation_pressure": "1.5 bar", "stagnation_temperature": 310}`
 	f.Add([]byte(base))
-	for _, s := range []struct {
-		path  string
-		value any
-	}{
+	addSeeds(f, base, []seedEdit{
 		{"stagnation_temperature", 1e308},
 		{"stagnation_temperature", 5e-324},
 		{"stagnation_pressure", 1e308},
 		{"mach", 1e308},
-	} {
-		f.Add(seed(f, base, s.path, s.value))
-	}
+	})
 	fuzzEndpoint(f, "/v1/conditions")
 }
 
@@ -121,25 +112,17 @@ func fuzzEndpoint(f *testing.F, path string) {
 		req := httptest.NewRequest(http.MethodPost, path, strings.NewReader(string(body)))
 		req.Header.Set("Content-Type", "application/json")
 		h.ServeHTTP(rec, req)
-		if rec.Code >= 500 {
-			t.Fatalf("status %d for %q: %s", rec.Code, body, rec.Body)
-		}
-		if !json.Valid(rec.Body.Bytes()) {
-			t.Fatalf("status %d: the answer is not JSON: %q", rec.Code, rec.Body)
-		}
-		if err := v.Response(req, rec.Code, rec.Header(), rec.Body.Bytes()); err != nil {
-			t.Fatalf("for %q: %v", body, err)
-		}
+		require.Less(t, rec.Code, 500, "status for %q: %s", body, rec.Body)
+		require.True(t, json.Valid(rec.Body.Bytes()), "status %d: the answer is not JSON: %q", rec.Code, rec.Body)
+		require.NoError(t, v.Response(req, rec.Code, rec.Header(), rec.Body.Bytes()), "for %q", body)
 		if rec.Code == http.StatusOK {
 			return
 		}
-		if ct := rec.Header().Get("Content-Type"); ct != schema.ContentTypeProblem {
-			t.Fatalf("status %d with Content-Type %q", rec.Code, ct)
-		}
+		require.Equal(t, schema.ContentTypeProblem, rec.Header().Get("Content-Type"), "status %d", rec.Code)
 		var p schema.Problem
-		if err := json.Unmarshal(rec.Body.Bytes(), &p); err != nil || p.Status != rec.Code || p.Type == "" {
-			t.Fatalf("status %d: not a problem: %s (%v)", rec.Code, rec.Body, err)
-		}
+		require.NoError(t, json.Unmarshal(rec.Body.Bytes(), &p), "status %d: not a problem: %s", rec.Code, rec.Body)
+		require.Equal(t, rec.Code, p.Status, "the problem's status: %s", rec.Body)
+		require.NotEmpty(t, p.Type, "the problem's type: %s", rec.Body)
 	})
 }
 

@@ -20,6 +20,9 @@ import (
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 	"scalematch/internal/app"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // replicas serves n services over one seeded SQLite file, as replicas over one
@@ -33,21 +36,16 @@ func replicas(t *testing.T, n int, recheck time.Duration) ([]*httptest.Server, *
 	var first *sqlite.DB
 	for i := range n {
 		db, err := sqlite.Open(ctx, path)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		t.Cleanup(func() { db.Close() })
 		if i == 0 {
 			first = db
-			if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
-				t.Fatal(err)
-			}
+			_, err := facilities.SeedDemo(ctx, db, true)
+			require.NoError(t, err)
 		}
 		s, err := api.New(api.Config{Catalog: db, Logger: slog.New(slog.NewTextHandler(io.Discard, nil)), FacilityRecheck: recheck,
 			WriteTokens: map[string]facilities.Actor{"tok": "tester"}})
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		ts := httptest.NewServer(s.Handler())
 		t.Cleanup(ts.Close)
 		out = append(out, ts)
@@ -67,13 +65,9 @@ type planHead struct {
 func planOK(t *testing.T, ts *httptest.Server, body string) ([]byte, planHead) {
 	t.Helper()
 	status, b := post(t, ts, "/v1/plans", body)
-	if status != http.StatusOK {
-		t.Fatalf("POST /v1/plans: %d %s", status, b)
-	}
+	require.Equal(t, http.StatusOK, status, "POST /v1/plans: %s", b)
 	var h planHead
-	if err := json.Unmarshal(b, &h); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal(b, &h))
 	return b, h
 }
 
@@ -86,38 +80,30 @@ func TestPlanUsesCurrentFacilityVersion(t *testing.T) {
 	rs, db := replicas(t, 2, -1)
 	a, b := rs[0], rs[1]
 	first, h1 := planOK(t, a, testfixture.J16Plan)
-	if h1.FacilityVersion != 1 {
-		t.Fatalf("first plan used tsw-1 version %d, want 1", h1.FacilityVersion)
-	}
+	require.EqualValues(t, 1, h1.FacilityVersion, "the first plan's tsw-1 version")
 	again, _ := planOK(t, a, testfixture.J16Plan)
 	other, _ := planOK(t, b, testfixture.J16Plan)
-	if !bytes.Equal(again, first) || !bytes.Equal(other, first) {
-		t.Fatal("a repeated request was not answered byte for byte as the first")
-	}
+	require.Equal(t, string(first), string(again), "a repeated request, same replica, byte for byte")
+	require.Equal(t, string(first), string(other), "a repeated request, other replica, byte for byte")
 
 	ctx := context.Background()
 	f, err := db.Facility(ctx, "tsw-1")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	q := 40000.0 // below the 54 kPa the first plan sat on
 	f.MaxDynamicPressure = &q
-	if _, err := db.UpdateFacility(ctx, f, f.Version, "test"); err != nil {
-		t.Fatal(err)
-	}
+	_, err = db.UpdateFacility(ctx, f, f.Version, "test")
+	require.NoError(t, err)
 	for name, ts := range map[string]*httptest.Server{"same replica": a, "other replica": b} {
 		_, h2 := planOK(t, ts, testfixture.J16Plan)
-		if h2.FacilityVersion != 2 || h2.ID == h1.ID || h2.Test.DynamicPressure > q*(1+1e-9) {
-			t.Errorf("%s after the update: version %d id %s q %.6g Pa; want version 2, a new id, q ≤ %g Pa",
+		if !assert.EqualValues(t, 2, h2.FacilityVersion, name) || !assert.NotEqual(t, h1.ID, h2.ID, name) ||
+			!assert.LessOrEqual(t, h2.Test.DynamicPressure, q*(1+1e-9), name) {
+			t.Logf("%s after the update: version %d id %s q %.6g Pa; want version 2, a new id, q ≤ %g Pa",
 				name, h2.FacilityVersion, h2.ID, h2.Test.DynamicPressure, q)
 		}
 	}
-	if err := db.DeleteFacility(ctx, "tsw-1", 2, "test"); err != nil {
-		t.Fatal(err)
-	}
-	if status, body := post(t, a, "/v1/plans", testfixture.J16Plan); status != http.StatusNotFound {
-		t.Errorf("plan in a deleted facility: %d %.200s, want 404", status, body)
-	}
+	require.NoError(t, db.DeleteFacility(ctx, "tsw-1", 2, "test"))
+	status, body := post(t, a, "/v1/plans", testfixture.J16Plan)
+	assert.Equal(t, http.StatusNotFound, status, "plan in a deleted facility: %.200s", body)
 }
 
 // TestFacilityRecheck runs two replicas with the default recheck interval: a
@@ -132,25 +118,19 @@ func TestFacilityRecheck(t *testing.T) {
 	planOK(t, b, testfixture.J16Plan)
 	r := catalogCall(t, a, http.MethodGet, "/v1/facilities/tsw-1", nil, "")
 	var f facilities.Facility
-	if err := json.Unmarshal(r.body, &f); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal(r.body, &f))
 	f.Name += " (edited)"
 	body, _ := json.Marshal(f)
 	r = catalogCall(t, a, http.MethodPut, "/v1/facilities/tsw-1", map[string]string{"Authorization": "Bearer tok", "If-Match": `"1"`}, string(body))
-	if r.status != http.StatusOK {
-		t.Fatalf("PUT: %d %s", r.status, r.body)
-	}
-	if _, h := planOK(t, a, testfixture.J16Plan); h.FacilityVersion != 2 {
-		t.Errorf("the replica that made the change planned with version %d, want 2", h.FacilityVersion)
-	}
+	require.Equal(t, http.StatusOK, r.status, "PUT: %s", r.body)
+	_, h := planOK(t, a, testfixture.J16Plan)
+	assert.EqualValues(t, 2, h.FacilityVersion, "the replica that made the change plans with the new version")
 	if _, h := planOK(t, b, testfixture.J16Plan); h.FacilityVersion != 1 && time.Since(asked) < app.DefaultFacilityRecheck {
 		t.Errorf("the other replica planned with version %d within the recheck interval, want its cached 1", h.FacilityVersion)
 	}
 	time.Sleep(app.DefaultFacilityRecheck + 10*time.Millisecond)
-	if _, h := planOK(t, b, testfixture.J16Plan); h.FacilityVersion != 2 {
-		t.Errorf("the other replica planned with version %d after the recheck interval, want 2", h.FacilityVersion)
-	}
+	_, h = planOK(t, b, testfixture.J16Plan)
+	assert.EqualValues(t, 2, h.FacilityVersion, "the other replica after the recheck interval")
 }
 
 // TestStoredPlanStillValidated sends requests whose valid form is stored already:
@@ -168,9 +148,8 @@ func TestStoredPlanStillValidated(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			status, body := post(t, rs[0], "/v1/plans", tt.body)
-			if status != http.StatusBadRequest || !bytes.Contains(body, []byte(`"field":"`+tt.field+`"`)) {
-				t.Errorf("%d %s, want 400 naming %q", status, body, tt.field)
-			}
+			assert.Equal(t, http.StatusBadRequest, status, "%s", body)
+			assert.Contains(t, string(body), `"field":"`+tt.field+`"`, "the 400 names the field")
 		})
 	}
 }
@@ -192,21 +171,16 @@ func TestBatchStoresEveryPlan(t *testing.T) {
 	}
 	sb.WriteString(`]}`)
 	status, body := post(t, rs[0], "/v1/plans/batch", sb.String())
-	if status != http.StatusOK {
-		t.Fatalf("batch: %d %s", status, body)
-	}
+	require.Equal(t, http.StatusOK, status, "batch: %s", body)
 	var out struct {
 		Results []struct {
 			Plan  json.RawMessage `json:"plan"`
 			Error json.RawMessage `json:"error"`
 		} `json:"results"`
 	}
-	if err := json.Unmarshal(body, &out); err != nil || len(out.Results) != n {
-		t.Fatalf("batch answer: %v, %d results", err, len(out.Results))
-	}
-	if !bytes.Equal(out.Results[0].Plan, out.Results[n-1].Plan) {
-		t.Error("two equal requests in one batch were answered differently")
-	}
+	require.NoError(t, json.Unmarshal(body, &out), "batch answer")
+	require.Len(t, out.Results, n, "batch answer")
+	assert.Equal(t, string(out.Results[0].Plan), string(out.Results[n-1].Plan), "two equal requests in one batch")
 	var wg sync.WaitGroup
 	for i, r := range out.Results {
 		if r.Error != nil {
@@ -214,9 +188,7 @@ func TestBatchStoresEveryPlan(t *testing.T) {
 			continue
 		}
 		var h planHead
-		if err := json.Unmarshal(r.Plan, &h); err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, json.Unmarshal(r.Plan, &h))
 		wg.Go(func() {
 			resp, err := http.Get(rs[1].URL + "/v1/plans/" + h.ID)
 			if err != nil {

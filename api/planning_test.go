@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"log/slog"
 	"net/http"
 	"net/http/httptest"
 	"regexp"
@@ -25,10 +24,8 @@ import (
 
 func newServer(t testing.TB) *httptest.Server {
 	t.Helper()
-	s, err := api.New(api.Config{Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
+	s, err := api.New(api.Config{Logger: testfixture.Quiet()})
+	require.NoError(t, err)
 	ts := httptest.NewServer(s.Handler())
 	t.Cleanup(ts.Close)
 	return ts
@@ -36,16 +33,8 @@ func newServer(t testing.TB) *httptest.Server {
 
 func post(t testing.TB, ts *httptest.Server, path, body string) (int, []byte) {
 	t.Helper()
-	resp, err := http.Post(ts.URL+path, "application/json", strings.NewReader(body))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer resp.Body.Close()
-	b, err := io.ReadAll(resp.Body)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return resp.StatusCode, b
+	r := testfixture.Do(t, nil, http.MethodPost, ts.URL+path, nil, []byte(body))
+	return r.Status, r.Body
 }
 
 // problem is the part of a problem response the tests read.
@@ -469,19 +458,9 @@ func TestBatchNDJSON(t *testing.T) {
 	reqs[3] = strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1)
 	body := `{"requests": [` + strings.Join(reqs, ",") + `]}`
 	batch := func(accept string) (string, []byte) {
-		req, err := http.NewRequest(http.MethodPost, ts.URL+"/v1/plans/batch", strings.NewReader(body))
-		require.NoError(t, err)
-		req.Header.Set("Content-Type", "application/json")
-		if accept != "" {
-			req.Header.Set("Accept", accept)
-		}
-		resp, err := http.DefaultClient.Do(req)
-		require.NoError(t, err)
-		defer resp.Body.Close()
-		b, err := io.ReadAll(resp.Body)
-		require.NoError(t, err)
-		require.Equal(t, http.StatusOK, resp.StatusCode, "%s", b)
-		return resp.Header.Get("Content-Type"), b
+		code, ct, b := postAccept(t, ts.URL+"/v1/plans/batch", accept, body)
+		require.Equal(t, http.StatusOK, code, "%s", b)
+		return ct, b
 	}
 	ct, nd := batch("application/json;q=0.5, application/x-ndjson")
 	assert.Equal(t, "application/x-ndjson", ct)

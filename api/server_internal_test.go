@@ -3,24 +3,24 @@ package api
 import (
 	"context"
 	"io"
-	"log/slog"
 	"net"
 	"net/http"
+	"scalematch/internal/testfixture"
 	"testing"
 	"time"
 
 	"github.com/gin-gonic/gin"
 	"github.com/prometheus/client_golang/prometheus"
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // TestServeDrainsInFlight cancels the serving context while a slow request runs:
 // the request must still get its whole answer, new connections must be refused,
 // and Serve must return nil.
 func TestServeDrainsInFlight(t *testing.T) {
-	s, err := New(Config{Registry: prometheus.NewRegistry(), Logger: slog.New(slog.NewTextHandler(io.Discard, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
+	s, err := New(Config{Registry: prometheus.NewRegistry(), Logger: testfixture.Quiet()})
+	require.NoError(t, err)
 	started := make(chan struct{})
 	s.engine.GET("/test/slow", func(c *gin.Context) {
 		close(started)
@@ -28,9 +28,7 @@ func TestServeDrainsInFlight(t *testing.T) {
 		c.String(http.StatusOK, "finished")
 	})
 	ln, err := net.Listen("tcp", "127.0.0.1:0")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	base := "http://" + ln.Addr().String()
 	ctx, cancel := context.WithCancel(context.Background())
 	served := make(chan error, 1)
@@ -55,18 +53,16 @@ func TestServeDrainsInFlight(t *testing.T) {
 	<-started
 	cancel()
 	a := <-got
-	if a.err != nil || a.status != 200 || a.body != "finished" {
-		t.Errorf("in-flight request: %d %q %v, want 200 finished", a.status, a.body, a.err)
+	if assert.NoError(t, a.err, "in-flight request") {
+		assert.Equal(t, http.StatusOK, a.status, "in-flight request")
+		assert.Equal(t, "finished", a.body, "in-flight request")
 	}
 	select {
 	case err := <-served:
-		if err != nil {
-			t.Errorf("Serve: %v", err)
-		}
+		assert.NoError(t, err, "Serve")
 	case <-time.After(ShutdownGrace):
 		t.Fatal("Serve did not return")
 	}
-	if _, err := net.DialTimeout("tcp", ln.Addr().String(), time.Second); err == nil {
-		t.Error("the listener still accepts connections after shutdown")
-	}
+	_, err = net.DialTimeout("tcp", ln.Addr().String(), time.Second)
+	assert.Error(t, err, "the listener still accepts connections after shutdown")
 }

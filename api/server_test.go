@@ -21,6 +21,7 @@ import (
 	"scalematch/api"
 	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
 // fakeCatalog answers Ping with err after delay; its other methods are not used by
@@ -79,28 +80,18 @@ func newTestServer(t *testing.T, cat facilities.Catalog) testServer {
 	return testServer{ts, logs}
 }
 
+// do sends the request and answers the response's status and header (its body
+// already read, and closed) and the body.
 func (ts testServer) do(t *testing.T, method, path string, body io.Reader, header map[string]string) (*http.Response, []byte) {
 	t.Helper()
-	req, err := http.NewRequest(method, ts.URL+path, body)
-	if err != nil {
-		t.Fatal(err)
-	}
+	var b []byte
 	if body != nil {
-		req.Header.Set("Content-Type", "application/json")
+		var err error
+		b, err = io.ReadAll(body)
+		require.NoError(t, err)
 	}
-	for k, v := range header {
-		req.Header.Set(k, v)
-	}
-	resp, err := ts.Client().Do(req)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer resp.Body.Close()
-	b, err := io.ReadAll(resp.Body)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return resp, b
+	r := testfixture.Do(t, ts.Client(), method, ts.URL+path, header, b)
+	return &http.Response{StatusCode: r.Status, Header: r.Header}, r.Body
 }
 
 func decodeProblem(t *testing.T, resp *http.Response, body []byte) schema.Problem {

@@ -1,16 +1,19 @@
 // Package testfixture holds what the test packages share: the demo-world requests
-// they send, a silent logger and the relative error the physics checks measure
-// with (RelErr, and InRelative, its assertion), and the fields a validation
-// error names (InvalidFields). It imports nothing of the project but
-// internal/check (which imports nothing), so that any package's tests may use it; servers and stores for tests are in
-// testsite. It is imported only by tests.
+// they send, a silent logger, the relative error the physics checks measure
+// with (RelErr, and InRelative, its assertion), the reference fixtures' reader
+// (ReadCSV), an HTTP call read whole (Do) and the fields a validation error
+// names (InvalidFields). It imports nothing of the project but internal/check
+// (which imports nothing), so that any package's tests may use it; servers and
+// stores for tests are in testsite. It is imported only by tests.
 package testfixture
 
 import (
 	"bufio"
+	"bytes"
 	"io"
 	"log/slog"
 	"math"
+	"net/http"
 	"os"
 	"strconv"
 	"strings"
@@ -141,4 +144,40 @@ func ReadCSV(t testing.TB, path string) [][]float64 {
 	}
 	require.NoError(t, sc.Err(), path)
 	return rows
+}
+
+// Reply is an HTTP answer read whole.
+type Reply struct {
+	Status int
+	Header http.Header
+	Body   []byte
+}
+
+// Do sends method url with body (none when nil; then Content-Type
+// application/json unless header sets it) and the header's fields, through
+// client (http.DefaultClient when nil), and reads the answer whole. A request
+// that cannot be sent or an answer that cannot be read fails the test.
+func Do(t testing.TB, client *http.Client, method, url string, header map[string]string, body []byte) Reply {
+	t.Helper()
+	var r io.Reader
+	if body != nil {
+		r = bytes.NewReader(body)
+	}
+	req, err := http.NewRequest(method, url, r)
+	require.NoError(t, err)
+	if body != nil {
+		req.Header.Set("Content-Type", "application/json")
+	}
+	for k, v := range header {
+		req.Header.Set(k, v)
+	}
+	if client == nil {
+		client = http.DefaultClient
+	}
+	resp, err := client.Do(req)
+	require.NoError(t, err)
+	defer resp.Body.Close()
+	b, err := io.ReadAll(resp.Body)
+	require.NoError(t, err)
+	return Reply{resp.StatusCode, resp.Header, b}
 }
