@@ -16,6 +16,8 @@ import (
 	"time"
 
 	"scalematch/facilities"
+
+	"github.com/stretchr/testify/require"
 )
 
 // Opener returns the open function of Run and Bench for an engine: where names a
@@ -26,9 +28,7 @@ func Opener[DB facilities.Catalog](open func(context.Context, string) (DB, error
 	return func(tb testing.TB) facilities.Catalog {
 		tb.Helper()
 		db, err := open(context.Background(), where(tb))
-		if err != nil {
-			tb.Fatal(err)
-		}
+		require.NoError(tb, err)
 		tb.Cleanup(func() {
 			if err := db.Close(); err != nil {
 				tb.Errorf("Close: %v", err)
@@ -94,13 +94,9 @@ func ptr(v float64) *float64 { return &v }
 func sameFacility(t *testing.T, got, want facilities.Facility) {
 	t.Helper()
 	a, err := facilities.CanonicalJSON(got)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	b, err := facilities.CanonicalJSON(want)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if !bytes.Equal(a, b) {
 		t.Errorf("facility differs:\n got %s\nwant %s", a, b)
 	}
@@ -116,17 +112,13 @@ func wantCode(t *testing.T, err error, code check.Code) {
 func mustCreate(t *testing.T, c facilities.Catalog, f facilities.Facility, by facilities.Actor) facilities.Facility {
 	t.Helper()
 	out, err := c.CreateFacility(context.Background(), f, by)
-	if err != nil {
-		t.Fatalf("CreateFacility(%s): %v", f.ID, err)
-	}
+	require.NoError(t, err, "CreateFacility(%s)", f.ID)
 	return out
 }
 
 func testEmpty(t *testing.T, c facilities.Catalog) {
 	fs, err := c.Facilities(context.Background())
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if len(fs) != 0 {
 		t.Errorf("a new store lists %d facilities, want 0", len(fs))
 	}
@@ -141,17 +133,13 @@ func testCreateRead(t *testing.T, c facilities.Catalog) {
 		t.Errorf("created version = %d, want 1", got.Version)
 	}
 	read, err := c.Facility(ctx, "tsw-1")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if read.Version != 1 {
 		t.Errorf("read version = %d, want 1", read.Version)
 	}
 	sameFacility(t, read, in)
 	v1, err := c.FacilityVersion(ctx, "tsw-1", 1)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if v1.Version != 1 {
 		t.Errorf("FacilityVersion(1).Version = %d, want 1", v1.Version)
 	}
@@ -179,9 +167,7 @@ func testRefusesOutOfRange(t *testing.T, c facilities.Catalog) {
 	wantCode(t, err, check.CodeInvalid)
 	wantField(t, err, "operations.seconds_per_point")
 	got, err := c.Facility(ctx, bad.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if got.Version != good.Version || got.Operations.SecondsPerPoint != demo(t, "tsw-1").Operations.SecondsPerPoint {
 		t.Errorf("a refused update changed the record: version %d, seconds_per_point %g", got.Version, got.Operations.SecondsPerPoint)
 	}
@@ -208,9 +194,7 @@ func testCreateConflict(t *testing.T, c facilities.Catalog) {
 	_, err := c.CreateFacility(context.Background(), f, "b")
 	wantCode(t, err, check.CodeConflict)
 	vs, err := c.Versions(context.Background(), f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if len(vs) != 1 {
 		t.Errorf("a refused create left %d versions, want 1", len(vs))
 	}
@@ -222,9 +206,7 @@ func testList(t *testing.T, c facilities.Catalog) {
 		mustCreate(t, c, demo(t, id), "a")
 	}
 	fs, err := c.Facilities(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	var ids []string
 	for _, f := range fs {
 		ids = append(ids, f.ID)
@@ -243,16 +225,12 @@ func testUpdate(t *testing.T, c facilities.Catalog) {
 	f.MaxDynamicPressure = ptr(4200)
 	f.Balances[0].Limits.Normal = ptr(8500)
 	got, err := c.UpdateFacility(ctx, f, 1, "bob")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if got.Version != 2 {
 		t.Errorf("updated version = %d, want 2", got.Version)
 	}
 	read, err := c.Facility(ctx, f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if read.Version != 2 || *read.MaxDynamicPressure != 4200 || *read.Balances[0].Limits.Normal != 8500 {
 		t.Errorf("read back version %d, q_max %v, normal %v; want 2, 4200, 8500",
 			read.Version, *read.MaxDynamicPressure, *read.Balances[0].Limits.Normal)
@@ -264,9 +242,7 @@ func testUpdate(t *testing.T, c facilities.Catalog) {
 	_, err = c.UpdateFacility(ctx, other, 1, "carol")
 	wantCode(t, err, check.CodePreconditionFailed)
 	read, err = c.Facility(ctx, f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if read.Version != 2 || read.Name == "stale edit" {
 		t.Errorf("a stale update changed the record: version %d, name %q", read.Version, read.Name)
 	}
@@ -276,9 +252,7 @@ func testUpdate(t *testing.T, c facilities.Catalog) {
 
 	// The first version stays as it was.
 	v1, err := c.FacilityVersion(ctx, f.ID, 1)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	sameFacility(t, v1, demo(t, "lsw-2"))
 }
 
@@ -287,40 +261,29 @@ func testDelete(t *testing.T, c facilities.Catalog) {
 	f := mustCreate(t, c, demo(t, "cn2-05"), "alice")
 	mustCreate(t, c, demo(t, "wtn-04"), "alice")
 	plan := facilities.PlanRecord{ID: "p-before-delete", FacilityID: f.ID, FacilityVersion: 1, Body: []byte(`{"id":"p-before-delete"}`)}
-	if _, err := c.SavePlan(ctx, plan); err != nil {
-		t.Fatal(err)
-	}
+	_, err := c.SavePlan(ctx, plan)
+	require.NoError(t, err)
 
 	wantCode(t, c.DeleteFacility(ctx, f.ID, 2, "bob"), check.CodePreconditionFailed)
-	if err := c.DeleteFacility(ctx, f.ID, 1, "bob"); err != nil {
-		t.Fatal(err)
-	}
-	_, err := c.Facility(ctx, f.ID)
+	require.NoError(t, c.DeleteFacility(ctx, f.ID, 1, "bob"))
+	_, err = c.Facility(ctx, f.ID)
 	wantCode(t, err, check.CodeNotFound)
 	fs, err := c.Facilities(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if len(fs) != 1 || fs[0].ID != "wtn-04" {
 		t.Errorf("after deleting cn2-05 the list is %v, want only wtn-04", fs)
 	}
 	// History and plans stay readable.
 	v1, err := c.FacilityVersion(ctx, f.ID, 1)
-	if err != nil {
-		t.Fatalf("FacilityVersion of a deleted facility: %v", err)
-	}
+	require.NoError(t, err, "FacilityVersion of a deleted facility")
 	sameFacility(t, v1, demo(t, "cn2-05"))
 	p, err := c.Plan(ctx, plan.ID)
-	if err != nil {
-		t.Fatalf("plan of a deleted facility: %v", err)
-	}
+	require.NoError(t, err, "plan of a deleted facility")
 	if !bytes.Equal(p.Body, plan.Body) {
 		t.Errorf("plan body %q, want %q", p.Body, plan.Body)
 	}
 	vs, err := c.Versions(ctx, f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if len(vs) != 2 || vs[1].Action != "delete" || vs[1].By != "bob" || vs[1].Version != 2 || vs[1].Facility != nil {
 		t.Errorf("history after delete = %+v, want a second entry: delete by bob, version 2, no facility", vs)
 	}
@@ -336,29 +299,21 @@ func testDelete(t *testing.T, c facilities.Catalog) {
 func testRecreate(t *testing.T, c facilities.Catalog) {
 	ctx := context.Background()
 	f := mustCreate(t, c, demo(t, "plp-3"), "alice")
-	if err := c.DeleteFacility(ctx, f.ID, 1, "alice"); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, c.DeleteFacility(ctx, f.ID, 1, "alice"))
 	again := demo(t, "plp-3")
 	again.Name = "rebuilt pressurised tunnel"
 	got, err := c.CreateFacility(ctx, again, "dave")
-	if err != nil {
-		t.Fatalf("creating a deleted id again: %v", err)
-	}
+	require.NoError(t, err, "creating a deleted id again")
 	if got.Version != 3 {
 		t.Errorf("re-created version = %d, want 3 (numbers continue after the deletion)", got.Version)
 	}
 	read, err := c.Facility(ctx, f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if read.Version != 3 || read.Name != again.Name {
 		t.Errorf("read version %d name %q, want 3 %q", read.Version, read.Name, again.Name)
 	}
 	vs, err := c.Versions(ctx, f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	var actions []string
 	for _, v := range vs {
 		actions = append(actions, v.Action)
@@ -375,18 +330,13 @@ func testVersions(t *testing.T, c facilities.Catalog) {
 	f.Balances[1].Limits.PitchingMoment = ptr(2500)
 	f.Balances[1].SafetyFactor = 2
 	f, err := c.UpdateFacility(ctx, f, 1, "bob")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	f.Name = "transonic tunnel, rebuilt"
 	f.MaxReynoldsPerMeter = ptr(40e6)
-	if _, err := c.UpdateFacility(ctx, f, 2, "carol"); err != nil {
-		t.Fatal(err)
-	}
+	_, err = c.UpdateFacility(ctx, f, 2, "carol")
+	require.NoError(t, err)
 	vs, err := c.Versions(ctx, f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	want := []struct {
 		version int
 		by      facilities.Actor
@@ -475,18 +425,14 @@ func testPlans(t *testing.T, c facilities.Catalog) {
 	for id, body := range bodies {
 		rec := facilities.PlanRecord{ID: id, FacilityID: "tsw-1", FacilityVersion: 1, CreatedAt: created, Body: body}
 		saved, err := c.SavePlan(ctx, rec)
-		if err != nil {
-			t.Fatalf("SavePlan(%s): %v", id, err)
-		}
+		require.NoError(t, err, "SavePlan(%s)", id)
 		if !bytes.Equal(saved.Body, body) {
 			t.Errorf("SavePlan(%s) returned body %q, want %q", id, saved.Body, body)
 		}
 	}
 	for id, body := range bodies {
 		p, err := c.Plan(ctx, id)
-		if err != nil {
-			t.Fatalf("Plan(%s): %v", id, err)
-		}
+		require.NoError(t, err, "Plan(%s)", id)
 		if !bytes.Equal(p.Body, body) {
 			t.Errorf("Plan(%s) body %q, want %q byte for byte", id, p.Body, body)
 		}
@@ -497,9 +443,7 @@ func testPlans(t *testing.T, c facilities.Catalog) {
 	// A plan against an inline facility has no catalog id; a zero time is set.
 	before := time.Now().Add(-time.Minute)
 	p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "inline", Body: []byte(`{}`)})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if p.CreatedAt.Before(before) || p.CreatedAt.After(time.Now().Add(time.Minute)) {
 		t.Errorf("a zero CreatedAt was stored as %v, want about now", p.CreatedAt)
 	}
@@ -509,24 +453,19 @@ func testPlanIdempotent(t *testing.T, c facilities.Catalog) {
 	ctx := context.Background()
 	first := facilities.PlanRecord{ID: "p1", FacilityID: "tsw-1", FacilityVersion: 1,
 		CreatedAt: time.Date(2031, 1, 1, 0, 0, 0, 0, time.UTC), Body: []byte(`{"id":"p1","n":1}`)}
-	if _, err := c.SavePlan(ctx, first); err != nil {
-		t.Fatal(err)
-	}
+	_, err := c.SavePlan(ctx, first)
+	require.NoError(t, err)
 	second := facilities.PlanRecord{ID: "p1", FacilityID: "tsw-1", FacilityVersion: 2,
 		CreatedAt: time.Date(2032, 1, 1, 0, 0, 0, 0, time.UTC), Body: []byte(`{"id":"p1","n":2}`)}
 	got, err := c.SavePlan(ctx, second)
-	if err != nil {
-		t.Fatalf("saving a plan id again: %v", err)
-	}
+	require.NoError(t, err, "saving a plan id again")
 	for name, p := range map[string]facilities.PlanRecord{"second save": got} {
 		if !bytes.Equal(p.Body, first.Body) || p.FacilityVersion != 1 || !p.CreatedAt.Equal(first.CreatedAt) {
 			t.Errorf("%s returned %q v%d at %v, want the first record", name, p.Body, p.FacilityVersion, p.CreatedAt)
 		}
 	}
 	read, err := c.Plan(ctx, "p1")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if !bytes.Equal(read.Body, first.Body) {
 		t.Errorf("stored body %q, want the first %q", read.Body, first.Body)
 	}
@@ -583,9 +522,7 @@ func testConcurrentUpdates(t *testing.T, c facilities.Catalog) {
 		t.Error(err)
 	}
 	final, err := c.Facility(ctx, f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if want := 1 + writers*each; final.Version != want || len(winners) != writers*each {
 		t.Errorf("final version %d with %d winners, want %d and %d", final.Version, len(winners), want, writers*each)
 	}
@@ -593,9 +530,7 @@ func testConcurrentUpdates(t *testing.T, c facilities.Catalog) {
 		t.Errorf("counter = %v after %d acknowledged increments: an update was lost", got, writers*each)
 	}
 	vs, err := c.Versions(ctx, f.ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for _, v := range vs[1:] {
 		if w, ok := winners[v.Version]; !ok || v.By != facilities.Actor(fmt.Sprintf("writer-%d", w)) {
 			t.Errorf("version %d recorded by %q, acknowledged to writer %d", v.Version, v.By, w)
@@ -635,9 +570,7 @@ func testConcurrentCreates(t *testing.T, c facilities.Catalog) {
 		t.Errorf("%d creates won and %d conflicted, want 1 and %d", wins.Load(), conflicts.Load(), writers-1)
 	}
 	vs, err := c.Versions(ctx, "wtn-04")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if len(vs) != 1 {
 		t.Errorf("%d versions after concurrent creates, want 1", len(vs))
 	}
@@ -662,9 +595,7 @@ func testConcurrentPlans(t *testing.T, c facilities.Catalog) {
 	}
 	wg.Wait()
 	stored, err := c.Plan(ctx, "same")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for w, b := range got {
 		if b != nil && !bytes.Equal(b, stored.Body) {
 			t.Errorf("writer %d was answered %q, but the store keeps %q", w, b, stored.Body)
@@ -739,9 +670,7 @@ func testConcurrentIdenticalPlans(t *testing.T, c facilities.Catalog) {
 		wg.Wait()
 	}
 	stored, err := c.Plan(ctx, "identical")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	var first int
 	if _, err := fmt.Sscanf(string(stored.Body), `{"writer":%d}`, &first); err != nil || first >= writers {
 		t.Errorf("stored body %q is not one of the first round's", stored.Body)
@@ -975,39 +904,27 @@ func testSeed(t *testing.T, c facilities.Catalog) {
 	}
 	ctx := context.Background()
 	seeded, err := facilities.SeedDemo(ctx, c, true)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if !seeded {
 		t.Fatal("the first start of an empty store was not seeded")
 	}
 	fs, err := c.Facilities(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if len(fs) != len(facilities.Demo()) {
 		t.Errorf("seeded %d facilities, want %d", len(fs), len(facilities.Demo()))
 	}
 	vs, err := c.Versions(ctx, fs[0].ID)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if vs[0].By != facilities.SeedActor {
 		t.Errorf("seed recorded as by %q, want %q", vs[0].By, facilities.SeedActor)
 	}
 	for _, f := range fs {
-		if err := c.DeleteFacility(ctx, f.ID, f.Version, "staff"); err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, c.DeleteFacility(ctx, f.ID, f.Version, "staff"))
 	}
 	again, err := s.SeedOnce(ctx, facilities.Demo(), facilities.SeedActor)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	fs, err = c.Facilities(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if again || len(fs) != 0 {
 		t.Errorf("a second start seeded again (%v) and lists %d facilities; deleted demo facilities must stay deleted", again, len(fs))
 	}
@@ -1022,17 +939,13 @@ func testSeedDisabled(t *testing.T, c facilities.Catalog) {
 	ctx := context.Background()
 	for i, demo := range []bool{false, true} {
 		seeded, err := facilities.SeedDemo(ctx, c, demo)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		if seeded {
 			t.Errorf("start %d (demo %v) seeded the demo catalog, want no seed", i+1, demo)
 		}
 	}
 	fs, err := c.Facilities(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if len(fs) != 0 {
 		t.Errorf("%d facilities after a first start with --no-demo, want 0", len(fs))
 	}
@@ -1064,18 +977,15 @@ func testPlanList(t *testing.T, c facilities.Catalog) {
 	}
 	for _, r := range recs {
 		r.Body = []byte(`{"id":"` + r.ID + `"}`)
-		if _, err := c.SavePlan(ctx, r); err != nil {
-			t.Fatal(err)
-		}
+		_, err := c.SavePlan(ctx, r)
+		require.NoError(t, err)
 	}
 	list := func(q facilities.ListQuery) []string {
 		t.Helper()
 		var ids []string
 		for range 20 {
 			page, next, err := pl.Plans(ctx, q)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			for _, p := range page {
 				if p.Body != nil {
 					t.Errorf("listing %s read its body", p.ID)
