@@ -8,7 +8,8 @@
 //	go run ./api/loadtest -url http://127.0.0.1:8080 -duration 20s -concurrency 4
 //
 // or let it start its own server in-process, on a temporary SQLite store seeded
-// with the demo facilities:
+// with the demo facilities (or, when SCALEMATCH_DATABASE_URL is set, on that
+// PostgreSQL database; the schema its search_path names must exist):
 //
 //	go run ./api/loadtest -serve -duration 20s
 //
@@ -30,7 +31,8 @@
 // load generator together) for each phase, and each plan phase's rate as a percentage of the
 // health checks'; with -serve also how many group commits stored the distinct
 // plans and how many records each held on average. -cpuprofile writes a CPU profile of the whole run (with -serve,
-// server and load generator together).
+// server and load generator together); -only distinct (or repeated, health) runs
+// that phase alone, so that the profile is of it alone.
 package main
 
 import (
@@ -59,6 +61,7 @@ import (
 
 	"scalematch/api"
 	"scalematch/facilities"
+	"scalematch/facilities/postgres"
 	"scalematch/facilities/sqlite"
 )
 
@@ -81,6 +84,7 @@ func run(args []string, out io.Writer) error {
 	planFile := fs.String("plan", "api/testdata/load/plan-orrin-j16-tsw-1.json", "plan request body")
 	vary := fs.Bool("vary", true, "also send distinct plan requests (the flight altitude raised by 0.1 mm each)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile of the run to this file")
+	only := fs.String("only", "", "run only this phase (repeated, distinct or health), so that -cpuprofile profiles it alone; no ratio is printed")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
@@ -94,8 +98,11 @@ func run(args []string, out io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if *only != "" && !slices.Contains([]string{"repeated", "distinct", "health"}, *only) {
+		return fmt.Errorf("-only %q: want repeated, distinct or health", *only)
+	}
 	var distinct *varied
-	if *vary {
+	if *vary || *only == "distinct" {
 		if distinct, err = newVaried(plan); err != nil {
 			return fmt.Errorf("-plan %s: %w", *planFile, err)
 		}
@@ -113,7 +120,7 @@ func run(args []string, out io.Writer) error {
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
-	var store *sqlite.DB
+	var store planGrouper
 	if *serve {
 		addr, stop, db, err := startServer(ctx)
 		if err != nil {
@@ -145,6 +152,9 @@ func run(args []string, out io.Writer) error {
 		phases = append(phases, phase{name: "distinct  POST /v1/plans", method: "POST", path: "/v1/plans", body: distinct.next})
 	}
 	phases = append(phases, phase{name: "health    GET /healthz  ", method: "GET", path: "/healthz", body: fixed(nil)})
+	if *only != "" {
+		phases = slices.DeleteFunc(phases, func(p phase) bool { return !strings.HasPrefix(p.name, *only+" ") })
+	}
 	each := *duration / time.Duration(len(phases))
 	fmt.Fprintf(out, "server %s, %d in flight, %v each\n", *base, *concurrency, each)
 	// The phases take turns in slices of about half a second, so that whatever
@@ -162,7 +172,7 @@ func run(args []string, out io.Writer) error {
 			r := hammer(client, *base, p.method, p.path, p.body, *concurrency, each/time.Duration(rounds))
 			r.cpu = cpuTime() - c0
 			results[i].add(r)
-			if store != nil && distinct != nil && i == 1 {
+			if store != nil && strings.HasPrefix(p.name, "distinct ") {
 				g1, r1 := store.PlanGroups()
 				groups, records = groups+g1-g0, records+r1-r0
 			}
@@ -177,12 +187,14 @@ func run(args []string, out io.Writer) error {
 			p.name, rates[i], r.n, r.failed,
 			r.percentile(0.50), r.percentile(0.90), r.percentile(0.99), r.cpuPerRequest())
 	}
-	health := rates[len(rates)-1]
-	fmt.Fprintf(out, "plans per health check: repeated %.1f %%", 100*rates[0]/health)
-	if distinct != nil {
-		fmt.Fprintf(out, ", distinct %.1f %%", 100*rates[1]/health)
+	if *only == "" {
+		health := rates[len(rates)-1]
+		fmt.Fprintf(out, "plans per health check: repeated %.1f %%", 100*rates[0]/health)
+		if distinct != nil {
+			fmt.Fprintf(out, ", distinct %.1f %%", 100*rates[1]/health)
+		}
+		fmt.Fprintln(out)
 	}
-	fmt.Fprintln(out)
 	if groups > 0 {
 		fmt.Fprintf(out, "distinct plans stored in %d group commits, %.2f records each on average\n",
 			groups, float64(records)/float64(groups))
@@ -277,19 +289,43 @@ func checkLoopback(base string) error {
 	return nil
 }
 
-// startServer serves the API on 127.0.0.1 with a temporary SQLite store holding the
-// demo facilities; stop shuts it down and removes the store.
-func startServer(ctx context.Context) (addr string, stop func(), db *sqlite.DB, err error) {
+// planGrouper is a store that counts its group commits of plans (both engines).
+type planGrouper interface {
+	facilities.Catalog
+	PlanGroups() (groups, records int64)
+	Close() error
+}
+
+// openStore opens the in-process server's store: the PostgreSQL database that
+// SCALEMATCH_DATABASE_URL names (its schema, from search_path, must exist), or
+// else a temporary SQLite file; cleanup closes it and removes the file.
+func openStore(ctx context.Context) (db planGrouper, cleanup func(), err error) {
+	if url := os.Getenv("SCALEMATCH_DATABASE_URL"); url != "" {
+		pg, err := postgres.Open(ctx, url)
+		if err != nil {
+			return nil, nil, err
+		}
+		return pg, func() { pg.Close() }, nil
+	}
 	dir, err := os.MkdirTemp("", "scalematch-load-")
 	if err != nil {
-		return "", nil, nil, err
+		return nil, nil, err
 	}
-	db, err = sqlite.Open(ctx, sqlite.Path(dir))
+	lite, err := sqlite.Open(ctx, sqlite.Path(dir))
 	if err != nil {
 		os.RemoveAll(dir)
+		return nil, nil, err
+	}
+	return lite, func() { lite.Close(); os.RemoveAll(dir) }, nil
+}
+
+// startServer serves the API on 127.0.0.1 over openStore's store, seeded with the
+// demo facilities; stop shuts it down and closes the store.
+func startServer(ctx context.Context) (addr string, stop func(), db planGrouper, err error) {
+	db, cleanup, err := openStore(ctx)
+	if err != nil {
 		return "", nil, nil, err
 	}
-	cleanup := func() { db.Close(); os.RemoveAll(dir) }
 	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
 		cleanup()
 		return "", nil, nil, err

@@ -103,6 +103,7 @@ func TestRunRefusesBadFlags(t *testing.T) {
 		{[]string{"-duration", "0s"}, "-duration"},
 		{[]string{"-duration", "1h"}, "-duration"},
 		{[]string{"-concurrency", "0"}, "-concurrency"},
+		{[]string{"-only", "plans"}, "-only"},
 		{[]string{"-url", "http://192.0.2.10:8080", "-duration", "1s"}, "not a loopback address"},
 	}
 	for _, tc := range tests {
