@@ -17,6 +17,7 @@ import (
 
 	"scalematch/facilities"
 
+	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 )
 
@@ -82,9 +83,7 @@ func Run(t *testing.T, open func(testing.TB) facilities.Catalog) {
 func demo(t *testing.T, id string) facilities.Facility {
 	t.Helper()
 	f, ok := facilities.DemoFacility(id)
-	if !ok {
-		t.Fatalf("demo facility %q missing", id)
-	}
+	require.True(t, ok, "demo facility %q", id)
 	return f
 }
 
@@ -97,16 +96,12 @@ func sameFacility(t *testing.T, got, want facilities.Facility) {
 	require.NoError(t, err)
 	b, err := facilities.CanonicalJSON(want)
 	require.NoError(t, err)
-	if !bytes.Equal(a, b) {
-		t.Errorf("facility differs:\n got %s\nwant %s", a, b)
-	}
+	assert.Equal(t, string(b), string(a), "facility, canonical JSON without the version")
 }
 
 func wantCode(t *testing.T, err error, code check.Code) {
 	t.Helper()
-	if got := check.ErrorCode(err); got != code {
-		t.Errorf("error = %v (code %q), want code %q", err, got, code)
-	}
+	assert.Equal(t, code, check.ErrorCode(err), "error code of %v", err)
 }
 
 func mustCreate(t *testing.T, c facilities.Catalog, f facilities.Facility, by facilities.Actor) facilities.Facility {
@@ -119,9 +114,7 @@ func mustCreate(t *testing.T, c facilities.Catalog, f facilities.Facility, by fa
 func testEmpty(t *testing.T, c facilities.Catalog) {
 	fs, err := c.Facilities(context.Background())
 	require.NoError(t, err)
-	if len(fs) != 0 {
-		t.Errorf("a new store lists %d facilities, want 0", len(fs))
-	}
+	assert.Len(t, fs, 0, "a new store lists %d facilities, want 0", len(fs))
 }
 
 func testCreateRead(t *testing.T, c facilities.Catalog) {
@@ -129,20 +122,14 @@ func testCreateRead(t *testing.T, c facilities.Catalog) {
 	in := demo(t, "tsw-1")
 	in.Version = 42 // the store owns versions: a caller's value is ignored
 	got := mustCreate(t, c, in, "facility-staff")
-	if got.Version != 1 {
-		t.Errorf("created version = %d, want 1", got.Version)
-	}
+	assert.Equal(t, 1, got.Version, "created version = %d, want 1", got.Version)
 	read, err := c.Facility(ctx, "tsw-1")
 	require.NoError(t, err)
-	if read.Version != 1 {
-		t.Errorf("read version = %d, want 1", read.Version)
-	}
+	assert.Equal(t, 1, read.Version, "read version = %d, want 1", read.Version)
 	sameFacility(t, read, in)
 	v1, err := c.FacilityVersion(ctx, "tsw-1", 1)
 	require.NoError(t, err)
-	if v1.Version != 1 {
-		t.Errorf("FacilityVersion(1).Version = %d, want 1", v1.Version)
-	}
+	assert.Equal(t, 1, v1.Version, "FacilityVersion(1).Version = %d, want 1", v1.Version)
 	sameFacility(t, v1, in)
 }
 
@@ -177,15 +164,12 @@ func testRefusesOutOfRange(t *testing.T, c facilities.Catalog) {
 func wantField(t *testing.T, err error, field string) {
 	t.Helper()
 	var de *check.Error
-	if !errors.As(err, &de) {
-		t.Fatalf("%v: not a domain error", err)
+	require.ErrorAs(t, err, &de, "a domain error")
+	names := make([]string, len(de.Fields))
+	for i, f := range de.Fields {
+		names[i] = f.Field
 	}
-	for _, f := range de.Fields {
-		if f.Field == field {
-			return
-		}
-	}
-	t.Errorf("%v does not name %s", err, field)
+	assert.Contains(t, names, field, "the fields %v names", err)
 }
 
 func testCreateConflict(t *testing.T, c facilities.Catalog) {
@@ -195,9 +179,7 @@ func testCreateConflict(t *testing.T, c facilities.Catalog) {
 	wantCode(t, err, check.CodeConflict)
 	vs, err := c.Versions(context.Background(), f.ID)
 	require.NoError(t, err)
-	if len(vs) != 1 {
-		t.Errorf("a refused create left %d versions, want 1", len(vs))
-	}
+	assert.Len(t, vs, 1, "a refused create left %d versions, want 1", len(vs))
 }
 
 func testList(t *testing.T, c facilities.Catalog) {
@@ -210,9 +192,7 @@ func testList(t *testing.T, c facilities.Catalog) {
 	var ids []string
 	for _, f := range fs {
 		ids = append(ids, f.ID)
-		if f.Version != 1 {
-			t.Errorf("%s listed at version %d, want 1", f.ID, f.Version)
-		}
+		assert.Equal(t, 1, f.Version, "%s listed at version %d, want 1", f.ID, f.Version)
 	}
 	if want := []string{"cn2-05", "lsw-2", "wtn-04"}; !reflect.DeepEqual(ids, want) {
 		t.Errorf("listed %q, want %q (ordered by id)", ids, want)
@@ -226,9 +206,7 @@ func testUpdate(t *testing.T, c facilities.Catalog) {
 	f.Balances[0].Limits.Normal = ptr(8500)
 	got, err := c.UpdateFacility(ctx, f, 1, "bob")
 	require.NoError(t, err)
-	if got.Version != 2 {
-		t.Errorf("updated version = %d, want 2", got.Version)
-	}
+	assert.Equal(t, 2, got.Version, "updated version = %d, want 2", got.Version)
 	read, err := c.Facility(ctx, f.ID)
 	require.NoError(t, err)
 	if read.Version != 2 || *read.MaxDynamicPressure != 4200 || *read.Balances[0].Limits.Normal != 8500 {
@@ -304,9 +282,7 @@ func testRecreate(t *testing.T, c facilities.Catalog) {
 	again.Name = "rebuilt pressurised tunnel"
 	got, err := c.CreateFacility(ctx, again, "dave")
 	require.NoError(t, err, "creating a deleted id again")
-	if got.Version != 3 {
-		t.Errorf("re-created version = %d, want 3 (numbers continue after the deletion)", got.Version)
-	}
+	assert.Equal(t, 3, got.Version, "re-created version = %d, want 3 (numbers continue after the deletion)", got.Version)
 	read, err := c.Facility(ctx, f.ID)
 	require.NoError(t, err)
 	if read.Version != 3 || read.Name != again.Name {
@@ -571,9 +547,7 @@ func testConcurrentCreates(t *testing.T, c facilities.Catalog) {
 	}
 	vs, err := c.Versions(ctx, "wtn-04")
 	require.NoError(t, err)
-	if len(vs) != 1 {
-		t.Errorf("%d versions after concurrent creates, want 1", len(vs))
-	}
+	assert.Len(t, vs, 1, "%d versions after concurrent creates, want 1", len(vs))
 }
 
 func testConcurrentPlans(t *testing.T, c facilities.Catalog) {
@@ -910,14 +884,10 @@ func testSeed(t *testing.T, c facilities.Catalog) {
 	}
 	fs, err := c.Facilities(ctx)
 	require.NoError(t, err)
-	if len(fs) != len(facilities.Demo()) {
-		t.Errorf("seeded %d facilities, want %d", len(fs), len(facilities.Demo()))
-	}
+	assert.Len(t, fs, len(facilities.Demo()), "seeded %d facilities, want %d", len(fs), len(facilities.Demo()))
 	vs, err := c.Versions(ctx, fs[0].ID)
 	require.NoError(t, err)
-	if vs[0].By != facilities.SeedActor {
-		t.Errorf("seed recorded as by %q, want %q", vs[0].By, facilities.SeedActor)
-	}
+	assert.Equal(t, facilities.SeedActor, vs[0].By, "seed recorded as by %q, want %q", vs[0].By, facilities.SeedActor)
 	for _, f := range fs {
 		require.NoError(t, c.DeleteFacility(ctx, f.ID, f.Version, "staff"))
 	}
@@ -946,9 +916,7 @@ func testSeedDisabled(t *testing.T, c facilities.Catalog) {
 	}
 	fs, err := c.Facilities(ctx)
 	require.NoError(t, err)
-	if len(fs) != 0 {
-		t.Errorf("%d facilities after a first start with --no-demo, want 0", len(fs))
-	}
+	assert.Len(t, fs, 0, "%d facilities after a first start with --no-demo, want 0", len(fs))
 }
 
 func testPing(t *testing.T, c facilities.Catalog) {
@@ -987,9 +955,7 @@ func testPlanList(t *testing.T, c facilities.Catalog) {
 			page, next, err := pl.Plans(ctx, q)
 			require.NoError(t, err)
 			for _, p := range page {
-				if p.Body != nil {
-					t.Errorf("listing %s read its body", p.ID)
-				}
+				assert.Nil(t, p.Body, "listing %s read its body", p.ID)
 				ids = append(ids, p.ID)
 			}
 			if next == "" {
@@ -1002,9 +968,7 @@ func testPlanList(t *testing.T, c facilities.Catalog) {
 	}
 	same := func(name string, got, want []string) {
 		t.Helper()
-		if !reflect.DeepEqual(got, want) {
-			t.Errorf("%s: %v, want %v", name, got, want)
-		}
+		assert.Equal(t, want, got, "%s: %v, want %v", name, got, want)
 	}
 	all := []string{"p4", "p3b", "p3a", "p2", "p1", "p0"}
 	same("all", list(facilities.ListQuery{}), all)
