@@ -8,7 +8,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"reflect"
 	"scalematch/internal/check"
 	"sync"
 	"sync/atomic"
@@ -145,9 +144,8 @@ func testRefusesOutOfRange(t *testing.T, c facilities.Catalog) {
 	_, err := c.CreateFacility(ctx, bad, "a")
 	wantCode(t, err, check.CodeInvalid)
 	wantField(t, err, "operations.seconds_per_point")
-	if _, err := c.Versions(ctx, bad.ID); check.ErrorCode(err) != check.CodeNotFound {
-		t.Errorf("a refused create left a history: %v", err)
-	}
+	_, err = c.Versions(ctx, bad.ID)
+	assert.Equal(t, check.CodeNotFound, check.ErrorCode(err), "a refused create leaves no history: %v", err)
 	good := mustCreate(t, c, demo(t, "tsw-1"), "a")
 	bad.Version = 0
 	_, err = c.UpdateFacility(ctx, bad, good.Version, "a")
@@ -155,9 +153,8 @@ func testRefusesOutOfRange(t *testing.T, c facilities.Catalog) {
 	wantField(t, err, "operations.seconds_per_point")
 	got, err := c.Facility(ctx, bad.ID)
 	require.NoError(t, err)
-	if got.Version != good.Version || got.Operations.SecondsPerPoint != demo(t, "tsw-1").Operations.SecondsPerPoint {
-		t.Errorf("a refused update changed the record: version %d, seconds_per_point %g", got.Version, got.Operations.SecondsPerPoint)
-	}
+	assert.Equal(t, good.Version, got.Version, "a refused update leaves the version")
+	assert.Equal(t, demo(t, "tsw-1").Operations.SecondsPerPoint, got.Operations.SecondsPerPoint, "a refused update leaves seconds_per_point")
 }
 
 // wantField fails unless err is a domain error naming field.
@@ -194,9 +191,7 @@ func testList(t *testing.T, c facilities.Catalog) {
 		ids = append(ids, f.ID)
 		assert.Equal(t, 1, f.Version, "%s listed at version %d, want 1", f.ID, f.Version)
 	}
-	if want := []string{"cn2-05", "lsw-2", "wtn-04"}; !reflect.DeepEqual(ids, want) {
-		t.Errorf("listed %q, want %q (ordered by id)", ids, want)
-	}
+	assert.Equal(t, []string{"cn2-05", "lsw-2", "wtn-04"}, ids, "listed, ordered by id")
 }
 
 func testUpdate(t *testing.T, c facilities.Catalog) {
@@ -209,10 +204,9 @@ func testUpdate(t *testing.T, c facilities.Catalog) {
 	assert.Equal(t, 2, got.Version, "updated version = %d, want 2", got.Version)
 	read, err := c.Facility(ctx, f.ID)
 	require.NoError(t, err)
-	if read.Version != 2 || *read.MaxDynamicPressure != 4200 || *read.Balances[0].Limits.Normal != 8500 {
-		t.Errorf("read back version %d, q_max %v, normal %v; want 2, 4200, 8500",
-			read.Version, *read.MaxDynamicPressure, *read.Balances[0].Limits.Normal)
-	}
+	assert.Equal(t, 2, read.Version, "read back version")
+	assert.Equal(t, 4200.0, *read.MaxDynamicPressure, "read back q_max, Pa")
+	assert.Equal(t, 8500.0, *read.Balances[0].Limits.Normal, "read back normal rating, N")
 
 	// A second editor still holding version 1 must not overwrite the change.
 	other := demo(t, "lsw-2")
@@ -221,9 +215,8 @@ func testUpdate(t *testing.T, c facilities.Catalog) {
 	wantCode(t, err, check.CodePreconditionFailed)
 	read, err = c.Facility(ctx, f.ID)
 	require.NoError(t, err)
-	if read.Version != 2 || read.Name == "stale edit" {
-		t.Errorf("a stale update changed the record: version %d, name %q", read.Version, read.Name)
-	}
+	assert.Equal(t, 2, read.Version, "a stale update leaves the version")
+	assert.NotEqual(t, "stale edit", read.Name, "a stale update leaves the name")
 	// An If-Match ahead of the store is stale too.
 	_, err = c.UpdateFacility(ctx, other, 3, "carol")
 	wantCode(t, err, check.CodePreconditionFailed)
@@ -248,23 +241,20 @@ func testDelete(t *testing.T, c facilities.Catalog) {
 	wantCode(t, err, check.CodeNotFound)
 	fs, err := c.Facilities(ctx)
 	require.NoError(t, err)
-	if len(fs) != 1 || fs[0].ID != "wtn-04" {
-		t.Errorf("after deleting cn2-05 the list is %v, want only wtn-04", fs)
-	}
+	require.Len(t, fs, 1, "facilities after deleting cn2-05")
+	assert.Equal(t, "wtn-04", fs[0].ID, "the facility left after deleting cn2-05")
 	// History and plans stay readable.
 	v1, err := c.FacilityVersion(ctx, f.ID, 1)
 	require.NoError(t, err, "FacilityVersion of a deleted facility")
 	sameFacility(t, v1, demo(t, "cn2-05"))
 	p, err := c.Plan(ctx, plan.ID)
 	require.NoError(t, err, "plan of a deleted facility")
-	if !bytes.Equal(p.Body, plan.Body) {
-		t.Errorf("plan body %q, want %q", p.Body, plan.Body)
-	}
+	assert.Equal(t, string(plan.Body), string(p.Body), "plan body")
 	vs, err := c.Versions(ctx, f.ID)
 	require.NoError(t, err)
-	if len(vs) != 2 || vs[1].Action != "delete" || vs[1].By != "bob" || vs[1].Version != 2 || vs[1].Facility != nil {
-		t.Errorf("history after delete = %+v, want a second entry: delete by bob, version 2, no facility", vs)
-	}
+	require.Len(t, vs, 2, "history after delete")
+	assert.Equal(t, []any{"delete", facilities.Actor("bob"), 2}, []any{vs[1].Action, vs[1].By, vs[1].Version}, "the second entry: action, by, version")
+	assert.Nil(t, vs[1].Facility, "the deletion carries no facility")
 	// The deletion itself has no facility to read.
 	_, err = c.FacilityVersion(ctx, f.ID, 2)
 	wantCode(t, err, check.CodeNotFound)
@@ -285,18 +275,15 @@ func testRecreate(t *testing.T, c facilities.Catalog) {
 	assert.Equal(t, 3, got.Version, "re-created version = %d, want 3 (numbers continue after the deletion)", got.Version)
 	read, err := c.Facility(ctx, f.ID)
 	require.NoError(t, err)
-	if read.Version != 3 || read.Name != again.Name {
-		t.Errorf("read version %d name %q, want 3 %q", read.Version, read.Name, again.Name)
-	}
+	assert.Equal(t, 3, read.Version, "read version")
+	assert.Equal(t, again.Name, read.Name, "read name")
 	vs, err := c.Versions(ctx, f.ID)
 	require.NoError(t, err)
 	var actions []string
 	for _, v := range vs {
 		actions = append(actions, v.Action)
 	}
-	if want := []string{"create", "delete", "create"}; !reflect.DeepEqual(actions, want) {
-		t.Errorf("actions %q, want %q", actions, want)
-	}
+	assert.Equal(t, []string{"create", "delete", "create"}, actions, "actions")
 }
 
 func testVersions(t *testing.T, c facilities.Catalog) {
@@ -328,30 +315,20 @@ func testVersions(t *testing.T, c facilities.Catalog) {
 	}
 	for i, w := range want {
 		v := vs[i]
-		if v.Version != w.version || v.By != w.by || v.Action != w.action {
-			t.Errorf("version %d: got (%d, %q, %q), want (%d, %q, %q)", i, v.Version, v.By, v.Action, w.version, w.by, w.action)
+		assert.Equal(t, []any{w.version, facilities.Actor(w.by), w.action}, []any{v.Version, v.By, v.Action}, "entry %d: version, by, action", i)
+		if w.fields != nil {
+			assert.Equal(t, w.fields, v.Fields, "version %d's changed fields", v.Version)
 		}
-		if w.fields != nil && !reflect.DeepEqual(v.Fields, w.fields) {
-			t.Errorf("version %d changed fields %q, want %q", v.Version, v.Fields, w.fields)
+		if assert.NotNil(t, v.Facility, "version %d carries its record", v.Version) {
+			assert.Equal(t, w.version, v.Facility.Version, "version %d carries the record at that version", v.Version)
 		}
-		if v.Facility == nil || v.Facility.Version != w.version {
-			t.Errorf("version %d carries facility %+v, want the record at that version", v.Version, v.Facility)
-		}
-		if v.At.Before(start) || v.At.After(time.Now().Add(time.Minute)) {
-			t.Errorf("version %d recorded at %v, not around now", v.Version, v.At)
-		}
-		if i > 0 && v.At.Before(vs[i-1].At) {
-			t.Errorf("version %d recorded before version %d", v.Version, vs[i-1].Version)
+		assert.WithinRange(t, v.At, start, time.Now().Add(time.Minute), "version %d recorded around now", v.Version)
+		if i > 0 {
+			assert.False(t, v.At.Before(vs[i-1].At), "version %d recorded before version %d", v.Version, vs[i-1].Version)
 		}
 	}
 	for _, field := range []string{"id", "name", "medium", "test_section", "balances"} {
-		found := false
-		for _, got := range vs[0].Fields {
-			found = found || got == field
-		}
-		if !found {
-			t.Errorf("creation fields %q lack %q", vs[0].Fields, field)
-		}
+		assert.Contains(t, vs[0].Fields, field, "creation fields")
 	}
 	if vs[1].Facility != nil && *vs[1].Facility.Balances[1].Limits.PitchingMoment != 2500 {
 		t.Errorf("version 2 pitching-moment limit = %v N·m, want 2500", *vs[1].Facility.Balances[1].Limits.PitchingMoment)
@@ -402,27 +379,20 @@ func testPlans(t *testing.T, c facilities.Catalog) {
 		rec := facilities.PlanRecord{ID: id, FacilityID: "tsw-1", FacilityVersion: 1, CreatedAt: created, Body: body}
 		saved, err := c.SavePlan(ctx, rec)
 		require.NoError(t, err, "SavePlan(%s)", id)
-		if !bytes.Equal(saved.Body, body) {
-			t.Errorf("SavePlan(%s) returned body %q, want %q", id, saved.Body, body)
-		}
+		assert.Equal(t, string(body), string(saved.Body), "SavePlan(%s) returned body", id)
 	}
 	for id, body := range bodies {
 		p, err := c.Plan(ctx, id)
 		require.NoError(t, err, "Plan(%s)", id)
-		if !bytes.Equal(p.Body, body) {
-			t.Errorf("Plan(%s) body %q, want %q byte for byte", id, p.Body, body)
-		}
-		if p.ID != id || p.FacilityID != "tsw-1" || p.FacilityVersion != 1 || !p.CreatedAt.Equal(created) {
-			t.Errorf("Plan(%s) = {%q %q %d %v}, want {%q tsw-1 1 %v}", id, p.ID, p.FacilityID, p.FacilityVersion, p.CreatedAt, id, created)
-		}
+		assert.Equal(t, string(body), string(p.Body), "Plan(%s) body, byte for byte", id)
+		assert.Equal(t, []any{id, "tsw-1", 1}, []any{p.ID, p.FacilityID, p.FacilityVersion}, "Plan(%s): id, facility, version", id)
+		assert.True(t, p.CreatedAt.Equal(created), "Plan(%s) created at %v, want %v", id, p.CreatedAt, created)
 	}
 	// A plan against an inline facility has no catalog id; a zero time is set.
 	before := time.Now().Add(-time.Minute)
 	p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "inline", Body: []byte(`{}`)})
 	require.NoError(t, err)
-	if p.CreatedAt.Before(before) || p.CreatedAt.After(time.Now().Add(time.Minute)) {
-		t.Errorf("a zero CreatedAt was stored as %v, want about now", p.CreatedAt)
-	}
+	assert.WithinRange(t, p.CreatedAt, before, time.Now().Add(time.Minute), "a zero CreatedAt is stored as about now")
 }
 
 func testPlanIdempotent(t *testing.T, c facilities.Catalog) {
@@ -435,16 +405,12 @@ func testPlanIdempotent(t *testing.T, c facilities.Catalog) {
 		CreatedAt: time.Date(2032, 1, 1, 0, 0, 0, 0, time.UTC), Body: []byte(`{"id":"p1","n":2}`)}
 	got, err := c.SavePlan(ctx, second)
 	require.NoError(t, err, "saving a plan id again")
-	for name, p := range map[string]facilities.PlanRecord{"second save": got} {
-		if !bytes.Equal(p.Body, first.Body) || p.FacilityVersion != 1 || !p.CreatedAt.Equal(first.CreatedAt) {
-			t.Errorf("%s returned %q v%d at %v, want the first record", name, p.Body, p.FacilityVersion, p.CreatedAt)
-		}
-	}
+	assert.Equal(t, string(first.Body), string(got.Body), "a second save answers the first record's body")
+	assert.Equal(t, 1, got.FacilityVersion, "a second save answers the first record's facility version")
+	assert.True(t, got.CreatedAt.Equal(first.CreatedAt), "a second save answers the first record's time, not %v", got.CreatedAt)
 	read, err := c.Plan(ctx, "p1")
 	require.NoError(t, err)
-	if !bytes.Equal(read.Body, first.Body) {
-		t.Errorf("stored body %q, want the first %q", read.Body, first.Body)
-	}
+	assert.Equal(t, string(first.Body), string(read.Body), "the stored body is the first")
 }
 
 // testConcurrentUpdates runs writers that each read, change and write back one
