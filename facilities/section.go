@@ -292,7 +292,15 @@ func (f *Facility) condensationPeakMach() float64 {
 // +Inf, as does a state with no positive stagnation pressure and temperature.
 // CondensationMargin does not allocate.
 func (f *Facility) CondensationMargin(st State) float64 {
-	return math.Min(f.FreeStreamCondensationMargin(st), f.LocalCondensationMargin(st.StagnationPressure, st.StagnationTemperature))
+	if !(st.StagnationTemperature > 0 && st.StagnationPressure > 0) {
+		return math.Inf(1)
+	}
+	margin := f.condensationMarginFunc(st.StagnationPressure)
+	if margin == nil {
+		return math.Inf(1)
+	}
+	return math.Min(margin(f.Medium, st.Static.Temperature, st.Static.Pressure),
+		f.localMargin(margin, st.StagnationPressure, st.StagnationTemperature))
 }
 
 // condensationMarginFunc returns the margin T/T_sat(p) − 1 of the facility's
@@ -334,11 +342,16 @@ func (f *Facility) LocalCondensationMargin(p0, t0 float64) float64 {
 	if !(t0 > 0 && p0 > 0) {
 		return math.Inf(1)
 	}
-	m := f.Medium
 	margin := f.condensationMarginFunc(p0)
 	if margin == nil {
 		return math.Inf(1)
 	}
+	return f.localMargin(margin, p0, t0)
+}
+
+// localMargin is LocalCondensationMargin with the medium's margin function.
+func (f *Facility) localMargin(margin func(Medium, float64, float64) float64, p0, t0 float64) float64 {
+	m := f.Medium
 	peak := f.condensationPeakMach()
 	if m.Kind == MediumNitrogen {
 		// The local expansion follows nitrogen's real-gas isentrope, as the free

@@ -328,9 +328,9 @@ func (sv *solver) solve() (candidate, error) {
 		}
 	} else {
 		for _, iv := range ivs {
-			if w := sv.warm; w != nil && w.machOrSpeed >= iv.a && w.machOrSpeed <= iv.b && sv.warmCell > 0 {
+			if w := sv.warmAt; sv.warmCell > 0 && w >= iv.a && w <= iv.b {
 				// A re-solve: the relaxed optimum lies near the one relaxed.
-				a, b := math.Max(iv.a, w.machOrSpeed-sv.warmCell), math.Min(iv.b, w.machOrSpeed+sv.warmCell)
+				a, b := math.Max(iv.a, w-sv.warmCell), math.Min(iv.b, w+sv.warmCell)
 				consider(sv.golden(sv.bestOverScales, a, b, 3, tolU))
 			} else {
 				consider(sv.golden(sv.bestOverScales, iv.a, iv.b, 17, tolU))
@@ -353,7 +353,10 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	p := *sv.p
 	r := *sv
 	r.f, r.p, r.evals, r.warnings, r.polishEvals = &f, &p, 0, nil, 0
-	r.memo, r.memoNext = [len(sv.memo)]stateMemo{}, 0
+	if sv.memo != nil {
+		// A relaxed facility may hold another static pressure (water).
+		r.memo = &stateMemos{}
+	}
 	r.ivs, r.ivsFails, r.ivsKnown = nil, nil, false
 	switch name {
 	case facilities.ConstraintTempMin, facilities.ConstraintTempMax, facilities.ConstraintCondensation:
@@ -468,7 +471,7 @@ func (sv *solver) gain(name string, best candidate) (float64, int, error) {
 	// either side of it, and it refines only when the refinement improved the
 	// plan itself (otherwise the structured search holds the optimum here,
 	// and a 1 % relaxation keeps it so).
-	r.warm, r.warmCell = &best, sv.cellAt(best.machOrSpeed)
+	r.warmAt, r.warmCell = best.machOrSpeed, sv.cellAt(best.machOrSpeed)
 	r.noPolish = sv.noPolish || !sv.polishImproved
 	b2, err := r.solveCorrected()
 	sv.polishEvals += r.polishEvals

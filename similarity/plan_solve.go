@@ -207,12 +207,11 @@ type solver struct {
 	// polishImproved: the refinement found a better plan than the structured
 	// search (the binding gains' re-solves refine only then).
 	polishImproved bool
-	// warm is the plan of the problem a re-solve relaxes (nil in a first
-	// solve), and warmCell the width of one cell of the grid that found it:
-	// the re-solve searches the Mach (speed) interval that holds warm from
-	// one cell either side of it (solve).
-	warm     *candidate
-	warmCell float64
+	// warmAt is the Mach number (speed) of the plan a re-solve starts from,
+	// and warmCell the width of one cell of the grid that found it (0 in a
+	// first solve): the re-solve searches the interval that holds warmAt
+	// from one cell either side of it (solve).
+	warmAt, warmCell float64
 	// ivs are the feasible Mach (speed) intervals of the last solve, ivsFails
 	// the limits that rule out the rest; ivsKnown: the next solve reuses them
 	// (the Mach aim moves, the limits do not).
@@ -220,9 +219,8 @@ type solver struct {
 	ivsFails []string
 	ivsKnown bool
 
-	// memo holds the states computed last (state), memoNext the next to replace.
-	memo     [2]stateMemo
-	memoNext int
+	// memo holds the states computed last (state; real-gas nitrogen only).
+	memo *stateMemos
 	// cond holds the condensation line of the local expansion found so far
 	// (nitrogen; nil otherwise): it does not depend on the Mach number, so
 	// every set-up, and every re-solve that keeps the T0 range and the
@@ -273,6 +271,7 @@ func newSolver(p *Problem) (*solver, error) {
 		// gas or water a few, less than keeping it.
 		sv.cond = newCondLineCache()
 		sv.setups = make(map[float64]machSetup, 64)
+		sv.memo = &stateMemos{}
 	}
 	return sv, nil
 }
@@ -475,18 +474,17 @@ const maxAimSteps = 8
 // change of r, 1e-4 relative at most after the first solve).
 func (sv *solver) solveCorrected() (candidate, error) {
 	best, err := sv.solve()
-	warm, cell := sv.warm, sv.warmCell
+	warm, cell := sv.warmAt, sv.warmCell
 	for i := 0; err == nil && i < maxAimSteps; i++ {
 		r := sv.machRatio(best.machOrSpeed, best.s)
 		if math.Abs(r-sv.aimRatio) <= 1e-14 {
 			break
 		}
 		sv.aimRatio, sv.aim = r, sv.fl.Mach/r
-		prev := best
-		sv.warm, sv.warmCell, sv.ivsKnown = &prev, sv.cellAt(prev.machOrSpeed), true
+		sv.warmAt, sv.warmCell, sv.ivsKnown = best.machOrSpeed, sv.cellAt(best.machOrSpeed), true
 		best, err = sv.solve()
 	}
-	sv.warm, sv.warmCell, sv.ivsKnown = warm, cell, false
+	sv.warmAt, sv.warmCell, sv.ivsKnown = warm, cell, false
 	return best, err
 }
 
@@ -645,15 +643,26 @@ func (sv *solver) setURange() error {
 // state returns the facility state at machOrSpeed, p0, T0; err reports an unusable setting
 // (for nitrogen: the free stream at saturation).
 func (sv *solver) state(machOrSpeed, p0, t0 float64) (facilities.State, error) {
-	for i := range sv.memo {
-		if m := &sv.memo[i]; m.set && m.u == machOrSpeed && m.p == p0 && m.t == t0 {
+	ms := sv.memo
+	if ms == nil {
+		// An ideal gas's or water's state costs less than keeping it.
+		return sv.stateNow(machOrSpeed, p0, t0)
+	}
+	for i := range ms.e {
+		if m := &ms.e[i]; m.set && m.u == machOrSpeed && m.p == p0 && m.t == t0 {
 			return m.st, m.err
 		}
 	}
 	st, err := sv.stateNow(machOrSpeed, p0, t0)
-	sv.memo[sv.memoNext] = stateMemo{set: true, u: machOrSpeed, p: p0, t: t0, st: st, err: err}
-	sv.memoNext = (sv.memoNext + 1) % len(sv.memo)
+	ms.e[ms.next] = stateMemo{set: true, u: machOrSpeed, p: p0, t: t0, st: st, err: err}
+	ms.next = (ms.next + 1) % len(ms.e)
 	return st, err
+}
+
+// stateMemos are the states a solver computed last, next the one to replace.
+type stateMemos struct {
+	e    [2]stateMemo
+	next int
 }
 
 // stateMemo is one state the solver computed last (solver.memo): the search asks
