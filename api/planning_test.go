@@ -177,17 +177,8 @@ func TestBatch(t *testing.T) {
 	}
 }
 
-const j16Loads = `{
-  "article": {"reference_length": 2.4, "reference_area": 36.5, "span": 16.4,
-    "frontal_area": 4.4, "wetted_area": 228,
-    "aero": {"lift_slope": 4.9, "zero_lift_alpha": -1.6, "cl_max": 1.25, "cd_min": 0.022,
-      "cl_at_cd_min": 0.14, "induced_drag_factor": 0.057, "cm_zero": 0.03, "cm_slope": -1.05}},
-  "facility_id": "tsw-1",
-  "model": {"scale": "1:30"},
-  "installation": {BALANCE "model_mass": 20},
-  "alpha": {"from": -4, "to": 16, "step": 2},
-  "test": {"mach": 0.78, "stagnation_pressure": "1.5 bar", "stagnation_temperature": 310}
-}`
+// j16Loads is testfixture.J16Loads with BALANCE where a balance_id may go.
+var j16Loads = strings.Replace(testfixture.J16Loads, `{"model_mass": 20}`, `{BALANCE "model_mass": 20}`, 1)
 
 func TestLoadsObjectOrList(t *testing.T) {
 	ts := newServer(t)
