@@ -1,13 +1,15 @@
 package similarity_test
 
 import (
-	"errors"
 	"math"
-	"scalematch/internal/check"
 	"strings"
 	"testing"
 
+	"scalematch/internal/testfixture"
 	"scalematch/similarity"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // orrin is the Orrin J16 estimate of the demo world (docs/demo-world.md).
@@ -24,6 +26,7 @@ func orrin() similarity.Aero {
 //	          = 0.0922297;  C_m = 0.03 − 1.05·(16°·π/180) = −0.26321531
 //	α = −20°: 4.9·(−18.4°)·π/180 = −1.574, held at −1.25
 func TestParametric(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name    string
 		alpha   float64
@@ -38,19 +41,13 @@ func TestParametric(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			got, stalled, err := orrin().Coefficients(c.alpha, 0)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if stalled != c.stalled {
-				t.Errorf("stalled = %v, want %v", stalled, c.stalled)
-			}
-			for _, f := range [][3]float64{{got.CL, c.want.CL}, {got.CD, c.want.CD}, {got.Cm, c.want.Cm}} {
-				if math.Abs(f[0]-f[1]) > c.tol {
-					t.Errorf("got %+v, want %+v", got, c.want)
-					break
-				}
-			}
+			require.NoError(t, err)
+			assert.Equal(t, c.stalled, stalled, "stalled")
+			assert.InDelta(t, c.want.CL, got.CL, c.tol, "C_L")
+			assert.InDelta(t, c.want.CD, got.CD, c.tol, "C_D")
+			assert.InDelta(t, c.want.Cm, got.Cm, c.tol, "C_m")
 		})
 	}
 }
@@ -65,6 +62,7 @@ func table() similarity.Aero {
 }
 
 func TestTable(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name        string
 		alpha, beta float64
@@ -81,13 +79,10 @@ func TestTable(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			got, stalled, err := table().Coefficients(c.alpha, c.beta)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if stalled {
-				t.Error("a table is never stalled")
-			}
+			require.NoError(t, err)
+			assert.False(t, stalled, "a table is never stalled")
 			g := [6]float64{got.CL, got.CD, got.Cm, got.CY, got.Cl, got.Cn}
 			w := [6]float64{c.want.CL, c.want.CD, c.want.Cm, c.want.CY, c.want.Cl, c.want.Cn}
 			for i := range g {
@@ -101,26 +96,18 @@ func TestTable(t *testing.T) {
 		name        string
 		alpha, beta float64
 	}{{"alpha above", 12, 0}, {"alpha below", -1, 0}, {"beta above", 5, 6}} {
-		if _, _, err := table().Coefficients(c.alpha, c.beta); !errors.Is(err, similarity.ErrOutsideTable) {
-			t.Errorf("%s: error %v, want ErrOutsideTable", c.name, err)
-		}
+		_, _, err := table().Coefficients(c.alpha, c.beta)
+		assert.ErrorIs(t, err, similarity.ErrOutsideTable, c.name)
 	}
 }
 
 func fieldsOf(t *testing.T, err error) []string {
 	t.Helper()
-	var e *check.Error
-	if !errors.As(err, &e) || e.Code != check.CodeInvalid {
-		t.Fatalf("error %v, want a CodeInvalid *check.Error", err)
-	}
-	var out []string
-	for _, f := range e.Fields {
-		out = append(out, f.Field)
-	}
-	return out
+	return testfixture.InvalidFields(t, err)
 }
 
 func TestAeroValidate(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name string
 		mod  func(*similarity.Aero)
@@ -140,6 +127,7 @@ func TestAeroValidate(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			a := orrin()
 			c.mod(&a)
 			got := fieldsOf(t, a.Validate())
@@ -166,6 +154,7 @@ func contains(list []string, s string) bool {
 }
 
 func TestSweep(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name        string
 		s           similarity.Sweep
@@ -185,6 +174,7 @@ func TestSweep(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			got, err := c.s.Angles("alpha")
 			if c.field != "" {
 				if fs := fieldsOf(t, err); !contains(fs, c.field) {
@@ -192,9 +182,7 @@ func TestSweep(t *testing.T) {
 				}
 				return
 			}
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			if len(got) != c.n || math.Abs(got[0]-c.first) > 1e-12 || math.Abs(got[len(got)-1]-c.last) > 1e-12 {
 				t.Errorf("%d angles %g … %g, want %d, %g … %g", len(got), got[0], got[len(got)-1], c.n, c.first, c.last)
 			}
@@ -203,10 +191,9 @@ func TestSweep(t *testing.T) {
 }
 
 func TestMatrix(t *testing.T) {
+	t.Parallel()
 	mx, err := orrin().Matrix(similarity.Sweep{From: -4, To: 16, Step: 2}, &similarity.Sweep{From: -4, To: 4, Step: 4})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if mx.AlphaPoints != 11 || mx.BetaValues != 3 || len(mx.Points) != 33 {
 		t.Fatalf("matrix %d α × %d β = %d points, want 11 × 3 = 33", mx.AlphaPoints, mx.BetaValues, len(mx.Points))
 	}

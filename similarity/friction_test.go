@@ -15,6 +15,7 @@ import (
 // TestSkinFrictionLaws checks each law against its formula worked by hand and,
 // where named, a published value.
 func TestSkinFrictionLaws(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name      string
 		got, want float64
@@ -55,6 +56,7 @@ func TestSkinFrictionLaws(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			assert.InDelta(t, c.want, c.got, c.tol)
 		})
 	}
@@ -65,6 +67,7 @@ func TestSkinFrictionLaws(t *testing.T) {
 // Re_tr 3·10⁵, 5·10⁵, 10⁶, 3·10⁶ give A = 1050, 1700, 3300, 8700. The formula,
 // which keeps C_f continuous at Re_tr, gives 970, 1614, 3143, 8709: within 8 %.
 func TestTransitionConstantSchlichting(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name      string
 		reTr, a   float64
@@ -77,6 +80,7 @@ func TestTransitionConstantSchlichting(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			got := similarity.TransitionConstant(c.reTr)
 			assert.InDelta(t, 0, 100*(got/c.a-1), c.tolPerCnt, "A = %.1f", got)
 		})
@@ -88,6 +92,7 @@ func TestTransitionConstantSchlichting(t *testing.T) {
 // differ). The old water line jumped from Blasius 1.328/√(5e5) = 0.001878 to ITTC
 // 0.075/(log10 5e5 − 2)² = 0.005482 there (2.92×).
 func TestTransitionalContinuity(t *testing.T) {
+	t.Parallel()
 	kl, kt := similarity.LaminarCompressibilityFactor(0.8), similarity.CompressibilityFactor(0.8)
 	cases := []struct {
 		name   string
@@ -95,6 +100,7 @@ func TestTransitionalContinuity(t *testing.T) {
 	}{{"incompressible", 1, 1}, {"M 0.8", kl, kt}}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			below := similarity.CompressibleTransitionalSkinFriction(similarity.TransitionReynolds*(1-1e-9), c.kl, c.kt)
 			above := similarity.CompressibleTransitionalSkinFriction(similarity.TransitionReynolds*(1+1e-9), c.kl, c.kt)
 			assert.InDelta(t, 0, above/below-1, 1e-8)
@@ -135,6 +141,7 @@ func frictionArticle() *similarity.Article {
 //	ITTC 1957 chosen: C_f,flight = 0.0030,   ΔC_D = −0.0001430627·6.96 = −9.9572 counts;
 //	                  tripped 0.075/16 = 0.0046875: ΔC_D = 0.0016875·6.96 = 117.45 counts
 func TestReynoldsEffect(t *testing.T) {
+	t.Parallel()
 	ittc := frictionArticle()
 	ittc.FrictionLine = similarity.LineITTC1957
 	natural := frictionArticle()
@@ -169,6 +176,7 @@ func TestReynoldsEffect(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			r, err := similarity.ReynoldsEffect(c.art, c.reF, c.mF, c.reT, c.mT, c.medium)
 			require.NoError(t, err)
 			assert.Equal(t, c.line, r.Line)
@@ -203,6 +211,7 @@ func TestReynoldsEffect(t *testing.T) {
 // transitional C_f is 0.0047828697 − 0.0024285714 = 0.0023542983 and ΔC_D −33.00
 // counts, the review's figure.
 func TestReynoldsEffectWaterTransitional(t *testing.T) {
+	t.Parallel()
 	art := &similarity.Article{ReferenceArea: 1, WettedArea: 2.65}
 	ittc := *art
 	ittc.FrictionLine = similarity.LineITTC1957
@@ -216,6 +225,7 @@ func TestReynoldsEffectWaterTransitional(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			r, err := similarity.ReynoldsEffect(c.art, 3.67e6, 0, 7e5, 0, facilities.MediumWater)
 			require.NoError(t, err)
 			assert.InDelta(t, 0.714286, r.NaturalTransitionFraction, 1e-6)
@@ -231,6 +241,7 @@ func TestReynoldsEffectWaterTransitional(t *testing.T) {
 }
 
 func TestReynoldsEffectErrors(t *testing.T) {
+	t.Parallel()
 	a := frictionArticle()
 	a.WettedArea = 0
 	_, err := similarity.ReynoldsEffect(a, 1e7, 0.5, 1e6, 0.5, facilities.MediumAir)
@@ -244,6 +255,7 @@ func TestReynoldsEffectErrors(t *testing.T) {
 }
 
 func TestReynoldsEffectSettingErrors(t *testing.T) {
+	t.Parallel()
 	a := frictionArticle()
 	a.FrictionLine = "schoenherr"
 	a.FullScaleBoundaryLayer = "laminar"

@@ -11,14 +11,14 @@ import (
 	"testing"
 
 	"scalematch/similarity"
+
+	"github.com/stretchr/testify/require"
 )
 
 func mustDim(t testing.TB, s string) similarity.Dimension {
 	t.Helper()
 	d, err := similarity.ParseDimension(s)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return d
 }
 
@@ -32,6 +32,7 @@ func vars(t testing.TB, nameDim ...string) []similarity.Variable {
 }
 
 func TestGroups(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name      string
 		vars      []similarity.Variable
@@ -190,10 +191,9 @@ func TestGroups(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			res, err := similarity.Groups(c.vars, c.repeating)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			if res.Rank != c.rank {
 				t.Errorf("rank %d, want %d", res.Rank, c.rank)
 			}
@@ -217,6 +217,7 @@ func TestGroups(t *testing.T) {
 }
 
 func TestGroupsErrors(t *testing.T) {
+	t.Parallel()
 	base := vars(t, "R", "M L T^-2", "rho", "M L^-3", "V", "L T^-1", "L", "L", "mu", "M L^-1 T^-1")
 	many := make([]similarity.Variable, similarity.MaxVariables+1)
 	for i := range many {
@@ -240,6 +241,7 @@ func TestGroupsErrors(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			_, err := similarity.Groups(c.vars, c.repeating)
 			var fe *check.Error
 			if !errors.As(err, &fe) || fe.Code != check.CodeInvalid {
@@ -314,6 +316,7 @@ func ratRank(rows [][]*big.Rat) int {
 // promises: n − r groups, each dimensionless with one non-repeating variable at
 // exponent 1, and the groups independent (their exponent matrix has rank n − r).
 func TestGroupsProperties(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewPCG(1914, 345))
 	for trial := 0; trial < 500; trial++ {
 		n := 1 + rng.IntN(9)
@@ -335,9 +338,7 @@ func TestGroupsProperties(t *testing.T) {
 		}
 		r := ratRank(dimRows)
 		res, err := similarity.Groups(vs, nil)
-		if err != nil {
-			t.Fatalf("trial %d %v: %v", trial, vs, err)
-		}
+		require.NoError(t, err, "trial %d %v", trial, vs)
 		if res.Rank != r {
 			t.Fatalf("trial %d: rank %d, want %d", trial, res.Rank, r)
 		}
@@ -374,9 +375,7 @@ func TestGroupsProperties(t *testing.T) {
 		}
 		// The chosen repeating variables, given back explicitly, give the same groups.
 		again, err := similarity.Groups(vs, res.Repeating)
-		if err != nil {
-			t.Fatalf("trial %d: with repeating %v: %v", trial, res.Repeating, err)
-		}
+		require.NoError(t, err, "trial %d: with repeating %v", trial, res.Repeating)
 		for gi := range again.Groups {
 			if again.Groups[gi].String() != res.Groups[gi].String() {
 				t.Errorf("trial %d: %s vs %s", trial, again.Groups[gi], res.Groups[gi])
@@ -386,22 +385,17 @@ func TestGroupsProperties(t *testing.T) {
 }
 
 func TestGroupJSON(t *testing.T) {
+	t.Parallel()
 	res, err := similarity.Groups(vars(t, "V", "L T^-1", "g", "L T^-2", "L", "L"), []string{"g", "L"})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	b, err := json.Marshal(res)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	const want = `{"rank":2,"repeating":["g","L"],"groups":[{"exponents":{"V":1,"g":"-1/2","L":"-1/2"},"known_as":"Froude number"}]}`
 	if string(b) != want {
 		t.Errorf("JSON\n  %s\nwant\n  %s", b, want)
 	}
 	var back similarity.GroupsResult
-	if err := json.Unmarshal(b, &back); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal(b, &back))
 	if back.Groups[0].String() != res.Groups[0].String() || back.Groups[0].KnownAs != "Froude number" {
 		t.Errorf("round trip %+v", back)
 	}
@@ -411,6 +405,7 @@ func TestGroupJSON(t *testing.T) {
 }
 
 func TestRational(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		in   string
 		want string
@@ -428,6 +423,7 @@ func TestRational(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.in, func(t *testing.T) {
+			t.Parallel()
 			r, err := similarity.ParseRational(c.in)
 			if c.want == "" {
 				if err == nil || !errors.Is(err, similarity.ErrRational) {

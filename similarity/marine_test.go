@@ -24,6 +24,7 @@ func ptr(v float64) *float64 { return &v }
 //	q   = ½·1025.150·14² = 100464.7 Pa
 //	σ   = (109342.6 − 2022.58)/100464.7 = 1.06824
 func TestBrisaCavitationByHand(t *testing.T) {
+	t.Parallel()
 	m := similarity.Marine{Water: similarity.WaterSea, Salinity: ptr(35), Temperature: 291.15, Depth: 0.8,
 		AtmosphericPressure: ptr(101300), Speed: 14, FreeSurface: similarity.SurfacePiercing}
 	fl, err := m.Resolve(0.42)
@@ -52,6 +53,7 @@ func TestBrisaCavitationByHand(t *testing.T) {
 
 // TestMarineValidate names each bad field of a marine condition.
 func TestMarineValidate(t *testing.T) {
+	t.Parallel()
 	good := func() similarity.Marine {
 		return similarity.Marine{Water: "sea", Temperature: 285.15, Depth: 45, Speed: 2.3}
 	}
@@ -76,6 +78,7 @@ func TestMarineValidate(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
 			m := good()
 			tc.edit(&m)
 			err := m.Validate()

@@ -12,6 +12,7 @@ import (
 // on the edge of the Mach band (ΔM 0.010000000000000009 at a tolerance of 0.01, one
 // rounding error above it, as a plan answer gave) counts as matched.
 func TestMismatchDecide(t *testing.T) {
+	t.Parallel()
 	f := func(v float64) *float64 { return &v }
 	tr, fa := true, false
 	cases := []struct {
@@ -32,6 +33,7 @@ func TestMismatchDecide(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			m := c.m
 			m.Decide(c.tol)
 			assert.Equal(t, c.wantRe, m.ReynoldsMatched)

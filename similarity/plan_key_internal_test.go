@@ -63,6 +63,7 @@ var creepChain = []key{
 // at the top of the chain (level 0) beats every candidate that crept off the
 // plateau, directly and through the chain alike.
 func TestKeyLessChain(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		name     string
 		less     func(a, b key) bool
@@ -73,6 +74,7 @@ func TestKeyLessChain(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			v := weakOrderViolation(c.less, creepChain)
 			if (v == "") != c.wantWeak {
 				t.Errorf("strict weak ordering on the chain: %v (%q), want %v", v == "", v, c.wantWeak)
@@ -91,6 +93,7 @@ func TestKeyLessChain(t *testing.T) {
 // levels, levels a rounding error apart, equal q and infinite values: the ways a
 // comparison can stop being a strict weak ordering.
 func TestKeyLessWeakOrder(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewSource(7))
 	vals := []float64{0, 1e-16, 0.5e-11, 1e-11, 1.5e-11, 2e-11, 1e-3, 0.25, 1, posInf()}
 	qs := []float64{6e4, 6e4 * (1 + 1e-13), 6e4 * (1 - 0.6e-12), 5e4, posInf()}

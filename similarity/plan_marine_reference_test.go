@@ -25,6 +25,7 @@ import (
 // where the levels tie, its Reynolds number within 0.1 %; its plan must break no
 // facility limit and never put the static pressure below the vapour pressure.
 func TestPlanMarineReference(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewSource(13))
 	const cases = 60
 	for i := 0; i < cases; i++ {
@@ -53,6 +54,7 @@ func TestPlanMarineReference(t *testing.T) {
 		require.NoError(t, err)
 		name := fmt.Sprintf("case %d (held %v, σ %.3g)", i, held, fl.Marine.Cavitation)
 		t.Run(name, func(t *testing.T) {
+			t.Parallel()
 			res, err := similarity.Plan(&similarity.Problem{Flight: fl, Article: art, Facility: f},
 				&similarity.Settings{NoGains: true, TradePoints: -1})
 			require.NoError(t, err)

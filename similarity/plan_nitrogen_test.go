@@ -13,6 +13,19 @@ import (
 // machExact is a Mach tolerance of 0: the plan runs at the flight's Mach number.
 var machExact = 0.0
 
+// planAtFlightMach plans a 1:50 Orrin J16 flying at mach at 11 000 m in f, Mach
+// number first (exactly, machExact), then Reynolds number.
+func planAtFlightMach(t *testing.T, f *facilities.Facility, mach float64) *similarity.Result {
+	t.Helper()
+	fs := planFlight(t, &orrinJ16, 11000, mach, 0)
+	scale := 0.02
+	r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: f,
+		Model:     similarity.Model{Scale: &scale},
+		Objective: similarity.Objective{Priority: []string{similarity.GroupMach, similarity.GroupReynolds}, MachTolerance: &machExact}}, nil)
+	require.NoError(t, err)
+	return r
+}
+
 // TestPlanNitrogenWarmingUnderCeiling: with the real-gas speed of sound, nitrogen's
 // q at a fixed Mach number and p0 falls slightly as the gas cools (q/p0 at M 0.8 and
 // 130 kPa: 0.2764 at T0 300 K against 0.2754 at 100 K, from facilities.State), so
@@ -21,6 +34,7 @@ var machExact = 0.0
 // at the floor; a Reynolds-hungry Mach-first plan runs there on the ceiling, and no
 // setting at that Mach number has a higher Re/m (checked on a grid of p0 and T0).
 func TestPlanNitrogenWarmingUnderCeiling(t *testing.T) {
+	t.Parallel()
 	f := planDemo(t, "cn2-05")
 	const mach = 0.8
 	pa := f.StagnationPressure.Min
@@ -34,12 +48,7 @@ func TestPlanNitrogenWarmingUnderCeiling(t *testing.T) {
 	qmax := cold.DynamicPressure * 1.001
 	f.MaxDynamicPressure = &qmax
 
-	fs := planFlight(t, &orrinJ16, 11000, mach, 0)
-	scale := 0.02
-	r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: f,
-		Model:     similarity.Model{Scale: &scale},
-		Objective: similarity.Objective{Priority: []string{similarity.GroupMach, similarity.GroupReynolds}, MachTolerance: &machExact}}, nil)
-	require.NoError(t, err)
+	r := planAtFlightMach(t, f, mach)
 	st := r.Test.State
 	assert.InDelta(t, mach, st.Mach, 1e-12)
 	assert.Empty(t, f.Violations(st))
@@ -64,16 +73,12 @@ func TestPlanNitrogenWarmingUnderCeiling(t *testing.T) {
 // on the lowest speed, exactly: no speed_min violation, speed_min binding, and T0 the
 // lowest LowestStagnationTemperature gives there (naming speed_min).
 func TestPlanNitrogenSpeedRange(t *testing.T) {
+	t.Parallel()
 	f := planDemo(t, "cn2-05")
 	f.MaxDynamicPressure = nil
 	f.Speed = &facilities.Range{Min: 140, Max: 250}
 	const mach = 0.6
-	fs := planFlight(t, &orrinJ16, 11000, mach, 0)
-	scale := 0.02
-	r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: f,
-		Model:     similarity.Model{Scale: &scale},
-		Objective: similarity.Objective{Priority: []string{similarity.GroupMach, similarity.GroupReynolds}, MachTolerance: &machExact}}, nil)
-	require.NoError(t, err)
+	r := planAtFlightMach(t, f, mach)
 	st := r.Test.State
 	assert.Empty(t, f.Violations(st))
 	assert.InDelta(t, f.StagnationPressure.Max, st.StagnationPressure, 1e-9*st.StagnationPressure)

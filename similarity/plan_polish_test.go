@@ -49,16 +49,7 @@ func weightedScenario(rng *rand.Rand, i int) (*scenario, error) {
 	}
 	sc.p.Objective.Weights = w
 	if rng.Intn(3) == 0 {
-		qRef := 20000.0
-		if f.MaxDynamicPressure != nil {
-			qRef = *f.MaxDynamicPressure
-		}
-		if f.Medium.IsLiquid() {
-			qRef = 1000
-		}
-		ql := &quadLoad{K: 1, Limit: qRef * g * g * u(0.1, 1.2)}
-		sc.load = ql
-		sc.p.LoadLimit = ql
+		sc.setLoad(&f, g, u(0.1, 1.2))
 	}
 	sc.name = fmt.Sprintf("%03d-%s", i, id)
 	return sc, nil
@@ -93,6 +84,7 @@ const refineTie = 1e-11
 // and in the gas facilities: the refined plan is never worse by the planner's own
 // order (the weighted sum, then q within refineTie) and breaks no limit.
 func TestRefineNeverWorse(t *testing.T) {
+	t.Parallel()
 	n := 64
 	if testing.Short() {
 		n = 16
@@ -101,10 +93,8 @@ func TestRefineNeverWorse(t *testing.T) {
 	planned, improved, refineEvals := 0, 0, 0
 	for i := 0; i < n; i++ {
 		sc, err := weightedScenario(rng, i)
-		if err != nil {
-			t.Fatalf("scenario %d: %v", i, err)
-		}
-		t.Run(sc.name, func(t *testing.T) {
+		require.NoError(t, err, "scenario %d", i)
+		t.Run(sc.name, func(t *testing.T) { // in turn: the cases add to counts read after the loop
 			a, errA := similarity.PlanSearch(&sc.p, false)
 			b, errB := similarity.PlanSearch(&sc.p, true)
 			if (errA == nil) != (errB == nil) {
@@ -139,6 +129,7 @@ func TestRefineNeverWorse(t *testing.T) {
 // Froude-weighted problems: whatever the simplex visits, the plan it returns breaks
 // no limit by more than 1e-9 relative and is no worse than its start.
 func TestRefineLimits(t *testing.T) {
+	t.Parallel()
 	n := 40
 	if testing.Short() {
 		n = 12
@@ -148,10 +139,8 @@ func TestRefineLimits(t *testing.T) {
 	checked := 0
 	for i := 0; i < n; i++ {
 		sc, err := weightedScenario(rng, i)
-		if err != nil {
-			t.Fatalf("scenario %d: %v", i, err)
-		}
-		t.Run(sc.name, func(t *testing.T) {
+		require.NoError(t, err, "scenario %d", i)
+		t.Run(sc.name, func(t *testing.T) { // in turn: the cases add to counts read after the loop
 			a, err := similarity.PlanSearch(&sc.p, false)
 			if err != nil {
 				return
@@ -194,60 +183,24 @@ func TestRefineLimits(t *testing.T) {
 // which that setting still reaches the flight's Re/m. The structured search alone
 // lands elsewhere on the plateau, at a higher q; the refinement walks to this end.
 func TestRefinePlateau(t *testing.T) {
+	t.Parallel()
 	f := planDemo(t, "plp-3")
 	fs := planFlight(t, &pellinP3, 0, 0, 50)
 	p := &similarity.Problem{Flight: fs, Article: &pellinP3, Facility: f,
 		Objective: similarity.Objective{Weights: map[string]float64{"reynolds": 1}}}
 	r, err := similarity.Plan(p, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	s := 0.8 * f.TestSection.Width / pellinP3.Span
-	target := fs.Reynolds / (s * pellinP3.ReferenceLength)
-	p0, t0 := f.StagnationPressure.Max, f.StagnationTemperature.Min
-	state := func(m float64) facilities.State {
-		st, err := f.State(facilities.Setting{Mach: m, StagnationPressure: p0, StagnationTemperature: t0})
-		if err != nil {
-			t.Fatal(err)
-		}
-		return st
-	}
-	lo, hi := f.Mach.Min, f.Mach.Max
-	for hi-lo > 1e-14 {
-		if m := (lo + hi) / 2; state(m).ReynoldsPerMeter < target {
-			lo = m
-		} else {
-			hi = m
-		}
-	}
-	want := state(hi)
-	cases := []struct {
-		name      string
-		got, want float64
-		tol       float64 // relative
-	}{
-		// The refinement starts at the plateau's end (the structured search finds
-		// it, TestSearchPlateauLowestQ) and keeps the best point by the exact key;
-		// these tolerances leave room for its convergence tolerance.
-		{"scale", r.Model.Scale, s, 1e-6},
-		{"Mach number", r.Test.Mach, want.Mach, 1e-5},
-		{"stagnation pressure, Pa", r.Test.StagnationPressure, p0, 1e-5},
-		{"stagnation temperature, K", r.Test.StagnationTemperature, t0, 1e-9},
-		{"dynamic pressure, Pa", r.Test.DynamicPressure, want.DynamicPressure, 2e-5},
-		{"Reynolds ratio", r.Mismatch.ReynoldsRatio, 1, 1e-5},
-	}
-	for _, c := range cases {
-		if planRel(c.got, c.want) > c.tol {
-			t.Errorf("%s %.9g, want %.9g (tolerance %.0e relative)", c.name, c.got, c.want, c.tol)
-		}
-	}
+	want := plateauEnd(t, f, fs, s)
+	// The refinement starts at the plateau's end (the structured search finds
+	// it, TestSearchPlateauLowestQ) and keeps the best point by the exact key;
+	// these tolerances leave room for its convergence tolerance.
+	checkPlateauEnd(t, f, r, want, s, plateauTolerances{scale: 1e-6, mach: 1e-5, p0: 1e-5, t0: 1e-9, q: 2e-5, reynolds: 1e-5})
 	if r.Stats.RefineEvaluations == 0 {
 		t.Errorf("the refinement did not run")
 	}
 	a, err := similarity.PlanSearch(p, false)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	t.Logf("structured search alone: M %.5g, q %.5g Pa; refined: M %.5g, q %.5g Pa (%d evaluations)",
 		a.Test.Mach, a.Test.DynamicPressure, r.Test.Mach, r.Test.DynamicPressure, r.Stats.RefineEvaluations)
 }
@@ -257,6 +210,7 @@ func TestRefinePlateau(t *testing.T) {
 // simplex is a working local method on these problems, not only a no-op kept
 // behind the structured answer.
 func TestRefineConverges(t *testing.T) {
+	t.Parallel()
 	jet := func(t testing.TB) *similarity.Problem {
 		fs := planFlight(t, &orrinJ16, 12000, 0.78, 0)
 		return &similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: planDemo(t, "tsw-1"),
@@ -275,16 +229,13 @@ func TestRefineConverges(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			p := c.p(t)
 			sc := &scenario{name: c.name, p: *p}
 			a, err := similarity.PlanSearch(p, false)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			start, r, err := similarity.RefineFrom(p, c.u, c.s)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			f0, fa, fr := weightedSum(sc, start), weightedSum(sc, a), weightedSum(sc, r)
 			if planRel(fr, fa) > c.tol {
 				t.Errorf("refined from a sum of %.6g to %.9g in %d evaluations; the structured optimum is %.9g",

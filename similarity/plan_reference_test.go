@@ -10,6 +10,8 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/similarity"
+
+	"github.com/stretchr/testify/require"
 )
 
 // quadLoad is a synthetic load limit for the tests: the balance takes q·s²·K ≤ Limit,
@@ -359,21 +361,26 @@ func randomScenario(rng *rand.Rand, i int) (*scenario, error) {
 		sc.p.Objective.Priority = []string{"reynolds"}
 	}
 	if rng.Intn(2) == 0 {
-		// A force limit that binds near the largest model at a few tens of per cent of
-		// the facility's q range.
-		qRef := 20000.0
-		if f.MaxDynamicPressure != nil {
-			qRef = *f.MaxDynamicPressure
-		}
-		if f.Medium.IsLiquid() {
-			qRef = 1000
-		}
-		ql := &quadLoad{K: 1, Limit: qRef * g * g * u(0.1, 1.2)}
-		sc.load = ql
-		sc.p.LoadLimit = ql
+		sc.setLoad(&f, g, u(0.1, 1.2))
 	}
 	sc.name = fmt.Sprintf("%03d-%s", i, id)
 	return sc, nil
+}
+
+// setLoad gives the scenario a force limit that binds near the largest model
+// (scale g) at a fraction of a reference q: the facility's q ceiling, 20 kPa
+// without one, 1 kPa in a liquid.
+func (sc *scenario) setLoad(f *facilities.Facility, g, fraction float64) {
+	qRef := 20000.0
+	if f.MaxDynamicPressure != nil {
+		qRef = *f.MaxDynamicPressure
+	}
+	if f.Medium.IsLiquid() {
+		qRef = 1000
+	}
+	ql := &quadLoad{K: 1, Limit: qRef * g * g * fraction}
+	sc.load = ql
+	sc.p.LoadLimit = ql
 }
 
 // checkAgainstReference runs the planner and the reference on n seeded scenarios.
@@ -382,10 +389,8 @@ func checkAgainstReference(t *testing.T, n int, seed int64, nu, np, nt, zooms in
 	solved, infeasible := 0, 0
 	for i := 0; i < n; i++ {
 		sc, err := randomScenario(rng, i)
-		if err != nil {
-			t.Fatalf("scenario %d: %v", i, err)
-		}
-		t.Run(sc.name, func(t *testing.T) {
+		require.NoError(t, err, "scenario %d", i)
+		t.Run(sc.name, func(t *testing.T) { // in turn: the cases add to counts read after the loop
 			res, err := similarity.Plan(&sc.p, &similarity.Settings{TradePoints: -1, NoGains: true})
 			ref := reference(sc, nu, np, nt, zooms)
 			if err != nil {
@@ -465,10 +470,12 @@ func planSq(x float64) float64 { return x * x }
 // TestPlanAgainstReference compares the planner with the brute-force reference on
 // 40 seeded random scenarios (a coarse grid); TestPlanAgainstReferenceLong runs 240.
 func TestPlanAgainstReference(t *testing.T) {
+	t.Parallel()
 	checkAgainstReference(t, 40, 1, 25, 13, 7, 14)
 }
 
 func TestPlanAgainstReferenceLong(t *testing.T) {
+	t.Parallel()
 	if testing.Short() {
 		t.Skip("long: 240 scenarios against the brute-force reference")
 	}

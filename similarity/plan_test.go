@@ -11,6 +11,8 @@ import (
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 	"scalematch/similarity"
+
+	"github.com/stretchr/testify/require"
 )
 
 // Demo aircraft of the invented demo world (docs/demo-world.md), full scale.
@@ -41,9 +43,7 @@ func planFlight(t testing.TB, a *similarity.Article, z, mach, tas float64) simil
 		fl.TrueAirspeed = &tas
 	}
 	fs, err := fl.Resolve(a.ReferenceLength)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return fs
 }
 
@@ -58,7 +58,9 @@ func planRel(got, want float64) float64 { return math.Abs(got/want - 1) }
 // TestPlanHandChecks are cases whose answer follows from the physics written out
 // beside each.
 func TestPlanHandChecks(t *testing.T) {
+	t.Parallel()
 	t.Run("atmospheric tunnel: the speed limit sets the Mach number", func(t *testing.T) {
+		t.Parallel()
 		// The Velmar T64 cruises at M 0.47; lsw-2 runs at 4–84 m/s at the site's
 		// ambient p0 = 95.5 kPa. With q_max raised out of the way (to 6 kPa), the
 		// nearest usable Mach number is the one 84 m/s gives in the coldest air, since
@@ -68,9 +70,7 @@ func TestPlanHandChecks(t *testing.T) {
 		f.MaxDynamicPressure = fp(6000)
 		fs := planFlight(t, &velmarT64, 6100, 0.47, 0)
 		r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &velmarT64, Facility: f}, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		const v, t0 = 84.0, 286.0
 		wantM := v / math.Sqrt(1.4*atmosphere.R*t0-0.2*v*v)
 		if math.Abs(r.Test.Mach-wantM) > 1e-9 {
@@ -91,6 +91,7 @@ func TestPlanHandChecks(t *testing.T) {
 	})
 
 	t.Run("pressurised tunnel: flight Reynolds number reached at the lowest q", func(t *testing.T) {
+		t.Parallel()
 		// The Quill U5 at 30 m/s at 1 000 m has M ≈ 0.088 and Re ≈ 7.8e5 on its
 		// 0.41 m chord. In plp-3 (p0 100–340 kPa, q ≤ 12.5 kPa) the largest model
 		// (span limit: 0.8·2.8/3.45 = 0.649) needs Re/m ≈ 2.9e6, about 1.6 times the
@@ -100,9 +101,7 @@ func TestPlanHandChecks(t *testing.T) {
 		f := planDemo(t, "plp-3")
 		fs := planFlight(t, &quillU5, 1000, 0, 30)
 		r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &quillU5, Facility: f}, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		cases := []struct {
 			name      string
 			got, want float64
@@ -122,9 +121,7 @@ func TestPlanHandChecks(t *testing.T) {
 		// Matching Re at the flight's own Mach number costs more q.
 		p0 := r.Test.StagnationPressure
 		hi, err := f.State(facilities.Setting{Mach: fs.Mach, StagnationPressure: p0, StagnationTemperature: 288})
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		qAtFlightMach := hi.DynamicPressure * (r.Test.ReynoldsPerMeter / hi.ReynoldsPerMeter)
 		if !(r.Test.DynamicPressure < qAtFlightMach) {
 			t.Errorf("q %.6g Pa is not below %.6g Pa at the flight Mach number", r.Test.DynamicPressure, qAtFlightMach)
@@ -137,6 +134,7 @@ func TestPlanHandChecks(t *testing.T) {
 	})
 
 	t.Run("q-limited transonic: the lower edge of the Mach band", func(t *testing.T) {
+		t.Parallel()
 		// On the q ceiling Re/m = 2q/(V·μ): at fixed q a higher Mach number means a
 		// faster, so thinner, stream and less Re/m. In tsw-1 at M 0.78 the q limit
 		// (54 kPa) binds before p0 max (205 kPa) does, so the best Mach number inside
@@ -144,9 +142,7 @@ func TestPlanHandChecks(t *testing.T) {
 		f := planDemo(t, "tsw-1")
 		fs := planFlight(t, &orrinJ16, 12000, 0.78, 0)
 		r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: f}, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		if math.Abs(r.Test.Mach-0.775) > 1e-8 {
 			t.Errorf("Mach %.10g, want 0.775", r.Test.Mach)
 		}
@@ -164,6 +160,7 @@ func TestPlanHandChecks(t *testing.T) {
 // (docs/demo-world.md). They are hand estimates with ideal-gas relations, so the
 // tolerances are loose and say so.
 func TestPlanDemo(t *testing.T) {
+	t.Parallel()
 	fs := planFlight(t, &orrinJ16, 12000, 0.78, 0)
 	// "the Orrin J16 at cruise has Re ≈ 12×10⁶ on its MAC" (hand estimate):
 	// within 10 %.
@@ -171,9 +168,7 @@ func TestPlanDemo(t *testing.T) {
 		t.Errorf("Orrin J16 cruise Re %.4g, want about 12e6", fs.Reynolds)
 	}
 	r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: planDemo(t, "tsw-1")}, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	// "in tsw-1 with Mach matched, the span limit gives a scale near 1:24 and q_max
 	// limits p0 (near 190 kPa at T0 300 K), so the model reaches about a fifth of
 	// flight Re" (hand estimate): scale within 5 % of 1/24, p0 within 5 % of
@@ -194,24 +189,18 @@ func TestPlanDemo(t *testing.T) {
 	// within 3 % of 104 K.
 	cn2 := planDemo(t, "cn2-05")
 	rc, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: cn2}, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	p0 := rc.Test.StagnationPressure
 	if planRel(p0, 245e3) > 0.05 || !planBound(rc, facilities.ConstraintDynamic) {
 		t.Errorf("cn2-05: p0 %.4g Pa (binding %v), want about 245 kPa on q_max", p0, rc.Binding)
 	}
 	t0, lim, err := similarity.LowestStagnationTemperature(cn2, rc.Test.Mach, p0)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if lim != facilities.ConstraintCondensation || !(t0 > cn2.StagnationTemperature.Min) || planRel(t0, 104) > 0.03 {
 		t.Errorf("lowest T0 %.5g K set by %s, want condensation near 104 K, above the %g K floor", t0, lim, cn2.StagnationTemperature.Min)
 	}
 	st, err := cn2.State(facilities.Setting{Mach: rc.Test.Mach, StagnationPressure: p0, StagnationTemperature: t0})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	if m := cn2.CondensationMargin(st); m < 0 || m > 1e-9 {
 		t.Errorf("margin at the lowest T0: %g, want 0 (to 1e-9)", m)
 	}
@@ -220,6 +209,7 @@ func TestPlanDemo(t *testing.T) {
 // TestPlanBindingGains re-solves with each binding limit relaxed by 1 %, building
 // the relaxed problem here, and compares the Reynolds gain with the reported one.
 func TestPlanBindingGains(t *testing.T) {
+	t.Parallel()
 	fs := planFlight(t, &orrinJ16, 12000, 0.78, 0)
 	cases := []struct {
 		name string
@@ -236,15 +226,14 @@ func TestPlanBindingGains(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			f := planDemo(t, c.fac)
 			if c.edit != nil {
 				c.edit(f)
 			}
 			p := similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: f, LoadLimit: c.load}
 			r, err := similarity.Plan(&p, &similarity.Settings{TradePoints: -1})
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			if len(r.Binding) == 0 {
 				t.Fatal("no binding limit")
 			}
@@ -270,9 +259,7 @@ func TestPlanBindingGains(t *testing.T) {
 					t.Fatalf("no hand relaxation for %s", b.Constraint)
 				}
 				r2, err := similarity.Plan(&q, &similarity.Settings{TradePoints: -1, NoGains: true})
-				if err != nil {
-					t.Fatal(err)
-				}
+				require.NoError(t, err)
 				want := 100 * (r2.Test.Reynolds/r.Test.Reynolds - 1)
 				if math.Abs(b.ReynoldsGainPerPercent-want) > 1e-6 {
 					t.Errorf("%s: gain %.8g %%, re-solve gives %.8g %%", b.Constraint, b.ReynoldsGainPerPercent, want)
@@ -287,6 +274,7 @@ func TestPlanBindingGains(t *testing.T) {
 
 // TestPlanInfeasible checks the 422 cases and the limits they name.
 func TestPlanInfeasible(t *testing.T) {
+	t.Parallel()
 	fs := planFlight(t, &orrinJ16, 12000, 0.78, 0)
 	cases := []struct {
 		name   string
@@ -314,6 +302,7 @@ func TestPlanInfeasible(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			p := similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: planDemo(t, "tsw-1")}
 			c.edit(&p)
 			_, err := similarity.Plan(&p, nil)
@@ -332,6 +321,7 @@ func TestPlanInfeasible(t *testing.T) {
 
 // TestFlightValidate checks that bad flights name their fields.
 func TestFlightValidate(t *testing.T) {
+	t.Parallel()
 	z, m, v := 1000.0, 0.5, 100.0
 	cases := []struct {
 		name  string
@@ -350,6 +340,7 @@ func TestFlightValidate(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			_, err := c.fl.Resolve(2)
 			var de *check.Error
 			if !errors.As(err, &de) || de.Code != check.CodeInvalid {
@@ -364,13 +355,12 @@ func TestFlightValidate(t *testing.T) {
 
 // TestFlightResolve checks the flight state against the standard atmosphere.
 func TestFlightResolve(t *testing.T) {
+	t.Parallel()
 	// Sea level, standard day, 100 m/s EAS: TAS = EAS (definition), Re = ρVL/μ with
 	// the 1976 standard's sea-level ρ = 1.2250 kg/m³ and μ = 1.7894e-5 Pa·s (from
 	// memory, physics.md §1).
 	fs, err := (&similarity.Flight{Altitude: fp(0), EquivalentAirspeed: fp(100)}).Resolve(2)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	cases := []struct {
 		name      string
 		got, want float64

@@ -38,6 +38,7 @@ func waterLimitPlan(t *testing.T, f *facilities.Facility, allowed bool) *similar
 // facilities.WaterVapourPressure): there it stops, on the named limit cavitation,
 // with no violation. Allowed to cavitate, it warms on to the boiling limit.
 func TestPlanWaterAvoidsCavitation(t *testing.T) {
+	t.Parallel()
 	f := depressurised(t)
 	r := waterLimitPlan(t, f, false)
 	st := r.Test.State
@@ -67,6 +68,7 @@ func TestPlanWaterAvoidsCavitation(t *testing.T) {
 // boiling point (12 kPa: about 49.4 °C by IAPWS-IF97) caps the water temperature,
 // a named binding limit; the plan breaks only the cavitation limit it was allowed.
 func TestPlanWaterAvoidsBoiling(t *testing.T) {
+	t.Parallel()
 	f := depressurised(t)
 	r := waterLimitPlan(t, f, true)
 	st := r.Test.State

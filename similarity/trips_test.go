@@ -24,6 +24,7 @@ func TestBlasiusVelocity(t *testing.T) {
 		{"wall", 0, 0, 0},
 	} {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			assert.InDelta(t, c.want, blasiusVelocity(c.eta), c.tol)
 		})
 	}
@@ -54,6 +55,7 @@ func TestSizeTrip(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
 			tr := SizeTrip(c.re, c.chord, c.tr)
 			if c.height > 0 {
 				assert.InEpsilon(t, c.height, tr.Height, c.tol)

@@ -4,15 +4,16 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/require"
 )
 
 // TestUnitTableCovered makes sure that every unit name of the table is checked
 // against GNU units: each must appear alone in the fixture's quantity column.
 func TestUnitTableCovered(t *testing.T) {
+	t.Parallel()
 	b, err := os.ReadFile("../testdata/reference/units/factors.tsv")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	seen := map[string]bool{}
 	for _, line := range strings.Split(string(b), "\n") {
 		if line == "" || strings.HasPrefix(line, "#") {
