@@ -4,7 +4,6 @@
 package catalogtest
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -330,8 +329,8 @@ func testVersions(t *testing.T, c facilities.Catalog) {
 	for _, field := range []string{"id", "name", "medium", "test_section", "balances"} {
 		assert.Contains(t, vs[0].Fields, field, "creation fields")
 	}
-	if vs[1].Facility != nil && *vs[1].Facility.Balances[1].Limits.PitchingMoment != 2500 {
-		t.Errorf("version 2 pitching-moment limit = %v N·m, want 2500", *vs[1].Facility.Balances[1].Limits.PitchingMoment)
+	if vs[1].Facility != nil {
+		assert.Equal(t, 2500.0, *vs[1].Facility.Balances[1].Limits.PitchingMoment, "version 2's pitching-moment limit, N·m")
 	}
 }
 
@@ -461,22 +460,19 @@ func testConcurrentUpdates(t *testing.T, c facilities.Catalog) {
 	wg.Wait()
 	close(errs)
 	for err := range errs {
-		t.Error(err)
+		assert.NoError(t, err, "writer")
 	}
 	final, err := c.Facility(ctx, f.ID)
 	require.NoError(t, err)
-	if want := 1 + writers*each; final.Version != want || len(winners) != writers*each {
-		t.Errorf("final version %d with %d winners, want %d and %d", final.Version, len(winners), want, writers*each)
-	}
-	if got := final.Operations.SecondsPerPoint; got != writers*each {
-		t.Errorf("counter = %v after %d acknowledged increments: an update was lost", got, writers*each)
-	}
+	assert.Equal(t, 1+writers*each, final.Version, "final version")
+	assert.Len(t, winners, writers*each, "versions with a winner")
+	assert.Equal(t, float64(writers*each), final.Operations.SecondsPerPoint, "counter after every acknowledged increment: none lost")
 	vs, err := c.Versions(ctx, f.ID)
 	require.NoError(t, err)
 	for _, v := range vs[1:] {
-		if w, ok := winners[v.Version]; !ok || v.By != facilities.Actor(fmt.Sprintf("writer-%d", w)) {
-			t.Errorf("version %d recorded by %q, acknowledged to writer %d", v.Version, v.By, w)
-		}
+		w, ok := winners[v.Version]
+		assert.True(t, ok, "version %d acknowledged to a writer", v.Version)
+		assert.Equal(t, facilities.Actor(fmt.Sprintf("writer-%d", w)), v.By, "version %d recorded by the writer it was acknowledged to", v.Version)
 	}
 	t.Logf("%d stale attempts refused", stale.Load())
 }
@@ -508,9 +504,8 @@ func testConcurrentCreates(t *testing.T, c facilities.Catalog) {
 		}(w)
 	}
 	wg.Wait()
-	if wins.Load() != 1 || conflicts.Load() != writers-1 {
-		t.Errorf("%d creates won and %d conflicted, want 1 and %d", wins.Load(), conflicts.Load(), writers-1)
-	}
+	assert.Equal(t, int64(1), wins.Load(), "creates that won")
+	assert.Equal(t, int64(writers-1), conflicts.Load(), "creates that conflicted")
 	vs, err := c.Versions(ctx, "wtn-04")
 	require.NoError(t, err)
 	assert.Len(t, vs, 1, "%d versions after concurrent creates, want 1", len(vs))
@@ -537,8 +532,8 @@ func testConcurrentPlans(t *testing.T, c facilities.Catalog) {
 	stored, err := c.Plan(ctx, "same")
 	require.NoError(t, err)
 	for w, b := range got {
-		if b != nil && !bytes.Equal(b, stored.Body) {
-			t.Errorf("writer %d was answered %q, but the store keeps %q", w, b, stored.Body)
+		if b != nil {
+			assert.Equal(t, string(stored.Body), string(b), "writer %d's answer: the body the store keeps", w)
 		}
 	}
 }
@@ -567,20 +562,15 @@ func testConcurrentDistinctPlans(t *testing.T, c facilities.Catalog) {
 	wg.Wait()
 	for w := range writers {
 		id, body := fmt.Sprintf("distinct-%02d", w), fmt.Sprintf(`{"writer":%d}`, w)
-		if got[w].ID != id || string(got[w].Body) != body || got[w].FacilityVersion != w%3+1 {
-			t.Errorf("writer %d was answered %s %q version %d, want %s %q version %d",
-				w, got[w].ID, got[w].Body, got[w].FacilityVersion, id, body, w%3+1)
-		}
+		assert.Equal(t, []any{id, body, w%3 + 1}, []any{got[w].ID, string(got[w].Body), got[w].FacilityVersion},
+			"writer %d's answer: id, body, facility version", w)
 		stored, err := c.Plan(ctx, id)
-		if err != nil {
-			t.Errorf("plan %s acknowledged but not stored: %v", id, err)
+		if !assert.NoError(t, err, "plan %s acknowledged and stored", id) {
 			continue
 		}
-		if string(stored.Body) != body || stored.FacilityID != "tsw-1" || stored.FacilityVersion != w%3+1 ||
-			!stored.CreatedAt.Equal(got[w].CreatedAt) {
-			t.Errorf("plan %s stored as %q %s@%d at %v, answered %q at %v",
-				id, stored.Body, stored.FacilityID, stored.FacilityVersion, stored.CreatedAt, body, got[w].CreatedAt)
-		}
+		assert.Equal(t, []any{body, "tsw-1", w%3 + 1}, []any{string(stored.Body), stored.FacilityID, stored.FacilityVersion},
+			"plan %s stored: body, facility, version", id)
+		assert.True(t, stored.CreatedAt.Equal(got[w].CreatedAt), "plan %s stored at %v, answered at %v", id, stored.CreatedAt, got[w].CreatedAt)
 	}
 }
 
@@ -612,13 +602,12 @@ func testConcurrentIdenticalPlans(t *testing.T, c facilities.Catalog) {
 	stored, err := c.Plan(ctx, "identical")
 	require.NoError(t, err)
 	var first int
-	if _, err := fmt.Sscanf(string(stored.Body), `{"writer":%d}`, &first); err != nil || first >= writers {
-		t.Errorf("stored body %q is not one of the first round's", stored.Body)
-	}
+	_, err = fmt.Sscanf(string(stored.Body), `{"writer":%d}`, &first)
+	assert.NoError(t, err, "stored body %q", stored.Body)
+	assert.Less(t, first, writers, "the stored body %q is one of the first round's", stored.Body)
 	for i, p := range got {
-		if !bytes.Equal(p.Body, stored.Body) || !p.CreatedAt.Equal(stored.CreatedAt) {
-			t.Errorf("writer %d was answered %q at %v, but the store keeps %q at %v", i, p.Body, p.CreatedAt, stored.Body, stored.CreatedAt)
-		}
+		assert.Equal(t, string(stored.Body), string(p.Body), "writer %d's answer: the body the store keeps", i)
+		assert.True(t, p.CreatedAt.Equal(stored.CreatedAt), "writer %d answered at %v, the store keeps %v", i, p.CreatedAt, stored.CreatedAt)
 	}
 }
 
@@ -649,30 +638,26 @@ func testConcurrentPlansCancelled(t *testing.T, c facilities.Catalog) {
 	for w, err := range errs {
 		id := fmt.Sprintf("maybe-%02d", w)
 		stored, perr := c.Plan(bg, id)
-		switch {
-		case err == nil && perr != nil:
-			t.Errorf("writer %d was acknowledged but %s is not stored: %v", w, id, perr)
-		case err == nil && string(stored.Body) != fmt.Sprintf(`{"w":%d}`, w):
-			t.Errorf("writer %d: stored %q", w, stored.Body)
-		case err != nil && !errors.Is(err, context.Canceled):
-			t.Errorf("writer %d: %v, want success or its context's error", w, err)
-		case err != nil && w%4 > 1:
-			t.Errorf("writer %d was never cancelled but failed: %v", w, err)
+		if err == nil {
+			if assert.NoError(t, perr, "writer %d was acknowledged: %s stored", w, id) {
+				assert.Equal(t, fmt.Sprintf(`{"w":%d}`, w), string(stored.Body), "writer %d's stored body", w)
+			}
+			continue
 		}
+		assert.ErrorIs(t, err, context.Canceled, "writer %d: success or its context's error", w)
+		assert.LessOrEqual(t, w%4, 1, "writer %d was never cancelled but failed: %v", w, err)
 	}
 }
 
 func testCancelledContext(t *testing.T, c facilities.Catalog) {
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	if _, err := c.CreateFacility(ctx, demo(t, "lsw-2"), "a"); err == nil {
-		t.Error("CreateFacility with a cancelled context succeeded")
-	}
-	if _, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "p", Body: []byte(`{}`)}); err == nil {
-		t.Error("SavePlan with a cancelled context succeeded")
-	}
+	_, err := c.CreateFacility(ctx, demo(t, "lsw-2"), "a")
+	assert.Error(t, err, "CreateFacility with a cancelled context")
+	_, err = c.SavePlan(ctx, facilities.PlanRecord{ID: "p", Body: []byte(`{}`)})
+	assert.Error(t, err, "SavePlan with a cancelled context")
 	bg := context.Background()
-	_, err := c.Facility(bg, "lsw-2")
+	_, err = c.Facility(bg, "lsw-2")
 	wantCode(t, err, check.CodeNotFound)
 	_, err = c.Plan(bg, "p")
 	wantCode(t, err, check.CodeNotFound)
