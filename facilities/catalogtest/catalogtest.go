@@ -28,11 +28,7 @@ func Opener[DB facilities.Catalog](open func(context.Context, string) (DB, error
 		tb.Helper()
 		db, err := open(context.Background(), where(tb))
 		require.NoError(tb, err)
-		tb.Cleanup(func() {
-			if err := db.Close(); err != nil {
-				tb.Errorf("Close: %v", err)
-			}
-		})
+		tb.Cleanup(func() { assert.NoError(tb, db.Close(), "Close") })
 		return db
 	}
 }
@@ -309,9 +305,7 @@ func testVersions(t *testing.T, c facilities.Catalog) {
 		{2, "bob", "update", []string{"balances[1].limits.pitching_moment", "balances[1].safety_factor"}},
 		{3, "carol", "update", []string{"max_reynolds_per_meter", "name"}},
 	}
-	if len(vs) != len(want) {
-		t.Fatalf("got %d versions, want %d", len(vs), len(want))
-	}
+	require.Len(t, vs, len(want), "versions")
 	for i, w := range want {
 		v := vs[i]
 		assert.Equal(t, []any{w.version, facilities.Actor(w.by), w.action}, []any{v.Version, v.By, v.Action}, "entry %d: version, by, action", i)
@@ -491,15 +485,13 @@ func testConcurrentCreates(t *testing.T, c facilities.Catalog) {
 			_, err := c.CreateFacility(ctx, f, facilities.Actor(f.Name))
 			switch check.ErrorCode(err) {
 			case "":
-				if err != nil {
-					t.Errorf("writer %d: %v", w, err)
-					return
+				if assert.NoError(t, err, "writer %d", w) {
+					wins.Add(1)
 				}
-				wins.Add(1)
 			case check.CodeConflict:
 				conflicts.Add(1)
 			default:
-				t.Errorf("writer %d: %v", w, err)
+				assert.Fail(t, "a create that neither won nor conflicted", "writer %d: %v", w, err)
 			}
 		}(w)
 	}
@@ -521,8 +513,7 @@ func testConcurrentPlans(t *testing.T, c facilities.Catalog) {
 		go func(w int) {
 			defer wg.Done()
 			p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "same", Body: []byte(fmt.Sprintf(`{"writer":%d}`, w))})
-			if err != nil {
-				t.Errorf("writer %d: %v", w, err)
+			if !assert.NoError(t, err, "writer %d", w) {
 				return
 			}
 			got[w] = p.Body
@@ -552,8 +543,7 @@ func testConcurrentDistinctPlans(t *testing.T, c facilities.Catalog) {
 			defer wg.Done()
 			p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: fmt.Sprintf("distinct-%02d", w), FacilityID: "tsw-1",
 				FacilityVersion: w%3 + 1, Body: []byte(fmt.Sprintf(`{"writer":%d}`, w))})
-			if err != nil {
-				t.Errorf("writer %d: %v", w, err)
+			if !assert.NoError(t, err, "writer %d", w) {
 				return
 			}
 			got[w] = p
@@ -590,8 +580,7 @@ func testConcurrentIdenticalPlans(t *testing.T, c facilities.Catalog) {
 				i := round*writers + w
 				p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: "identical", FacilityID: "lsw-2", FacilityVersion: 1,
 					Body: []byte(fmt.Sprintf(`{"writer":%d}`, i))})
-				if err != nil {
-					t.Errorf("writer %d: %v", i, err)
+				if !assert.NoError(t, err, "writer %d", i) {
 					return
 				}
 				got[i] = p
@@ -701,8 +690,8 @@ func take(t *testing.T, c facilities.Catalog, id, planID string) snapshot {
 	ctx := context.Background()
 	var s snapshot
 	f, err := c.Facility(ctx, id)
-	if err != nil && check.ErrorCode(err) != check.CodeNotFound {
-		t.Fatal(err)
+	if check.ErrorCode(err) != check.CodeNotFound {
+		require.NoError(t, err)
 	}
 	if err == nil {
 		s.version = f.Version
@@ -710,8 +699,8 @@ func take(t *testing.T, c facilities.Catalog, id, planID string) snapshot {
 		s.body = string(b)
 	}
 	vs, err := c.Versions(ctx, id)
-	if err != nil && check.ErrorCode(err) != check.CodeNotFound {
-		t.Fatal(err)
+	if check.ErrorCode(err) != check.CodeNotFound {
+		require.NoError(t, err)
 	}
 	s.versions = len(vs)
 	if len(vs) > 0 && vs[len(vs)-1].Facility != nil {
@@ -719,8 +708,8 @@ func take(t *testing.T, c facilities.Catalog, id, planID string) snapshot {
 		s.lastBody = string(b)
 	}
 	p, err := c.Plan(ctx, planID)
-	if err != nil && check.ErrorCode(err) != check.CodeNotFound {
-		t.Fatal(err)
+	if check.ErrorCode(err) != check.CodeNotFound {
+		require.NoError(t, err)
 	}
 	s.plan = string(p.Body)
 	return s
@@ -743,7 +732,7 @@ func settle(t *testing.T, c facilities.Catalog, id, planID string, err error) sn
 		}
 		s = next
 	}
-	t.Fatalf("the store did not settle within 2 s after a cut write")
+	require.Fail(t, "the store did not settle within 2 s after a cut write")
 	return s
 }
 
@@ -783,9 +772,7 @@ func testFailMidway(t *testing.T, c facilities.Catalog) {
 	for _, w := range writes {
 		t.Run(w.name, func(t *testing.T) {
 			for cut := int64(0); ; cut++ {
-				if cut > 500 {
-					t.Fatal("the write never completed within 500 looks at its context")
-				}
+				require.LessOrEqual(t, cut, int64(500), "looks at its context before the write completed")
 				planID := fmt.Sprintf("cut-%d", n+1)
 				before := take(t, c, base.ID, planID)
 				err := w.do(newCut(cut), before)
@@ -793,21 +780,16 @@ func testFailMidway(t *testing.T, c facilities.Catalog) {
 				changed := after != before
 				switch w.name {
 				case "update":
-					if changed && (after.version != before.version+1 || after.versions != before.versions+1 || after.body != after.lastBody) {
-						t.Fatalf("cut %d left a torn update: before %+v after %+v", cut, before, after)
-					}
+					require.False(t, changed && (after.version != before.version+1 || after.versions != before.versions+1 || after.body != after.lastBody),
+						"cut %d left a torn update: before %+v after %+v", cut, before, after)
 				case "save plan":
-					if changed && (after.plan == "" || after.version != before.version || after.versions != before.versions) {
-						t.Fatalf("cut %d left a torn plan save: before %+v after %+v", cut, before, after)
-					}
+					require.False(t, changed && (after.plan == "" || after.version != before.version || after.versions != before.versions),
+						"cut %d left a torn plan save: before %+v after %+v", cut, before, after)
 				case "delete":
-					if changed && (after.version != 0 || after.versions != before.versions+1) {
-						t.Fatalf("cut %d left a torn delete: before %+v after %+v", cut, before, after)
-					}
+					require.False(t, changed && (after.version != 0 || after.versions != before.versions+1),
+						"cut %d left a torn delete: before %+v after %+v", cut, before, after)
 				}
-				if err == nil && !changed {
-					t.Fatalf("cut %d: the write was acknowledged but is not in the store", cut)
-				}
+				require.False(t, err == nil && !changed, "cut %d: the write was acknowledged but is not in the store", cut)
 				if err != nil && !errors.Is(err, context.Canceled) && check.ErrorCode(err) == "" {
 					t.Logf("cut %d: %v", cut, err)
 				}
@@ -830,9 +812,7 @@ func testSeed(t *testing.T, c facilities.Catalog) {
 	ctx := context.Background()
 	seeded, err := facilities.SeedDemo(ctx, c, true)
 	require.NoError(t, err)
-	if !seeded {
-		t.Fatal("the first start of an empty store was not seeded")
-	}
+	require.True(t, seeded, "the first start of an empty store is seeded")
 	fs, err := c.Facilities(ctx)
 	require.NoError(t, err)
 	assert.Len(t, fs, len(facilities.Demo()), "seeded %d facilities, want %d", len(fs), len(facilities.Demo()))
@@ -846,9 +826,8 @@ func testSeed(t *testing.T, c facilities.Catalog) {
 	require.NoError(t, err)
 	fs, err = c.Facilities(ctx)
 	require.NoError(t, err)
-	if again || len(fs) != 0 {
-		t.Errorf("a second start seeded again (%v) and lists %d facilities; deleted demo facilities must stay deleted", again, len(fs))
-	}
+	assert.False(t, again, "a second start seeds again")
+	assert.Empty(t, fs, "deleted demo facilities stay deleted")
 }
 
 // testSeedDisabled checks that a first start without the demo catalog (--no-demo)
@@ -861,9 +840,7 @@ func testSeedDisabled(t *testing.T, c facilities.Catalog) {
 	for i, demo := range []bool{false, true} {
 		seeded, err := facilities.SeedDemo(ctx, c, demo)
 		require.NoError(t, err)
-		if seeded {
-			t.Errorf("start %d (demo %v) seeded the demo catalog, want no seed", i+1, demo)
-		}
+		assert.False(t, seeded, "start %d (demo %v) seeds the demo catalog", i+1, demo)
 	}
 	fs, err := c.Facilities(ctx)
 	require.NoError(t, err)
@@ -871,9 +848,7 @@ func testSeedDisabled(t *testing.T, c facilities.Catalog) {
 }
 
 func testPing(t *testing.T, c facilities.Catalog) {
-	if err := c.Ping(context.Background()); err != nil {
-		t.Errorf("Ping: %v", err)
-	}
+	assert.NoError(t, c.Ping(context.Background()), "Ping")
 }
 
 // testPlanList: plan records listed newest first by facility, label and
@@ -881,9 +856,7 @@ func testPing(t *testing.T, c facilities.Catalog) {
 func testPlanList(t *testing.T, c facilities.Catalog) {
 	ctx := context.Background()
 	pl, ok := c.(facilities.PlanLister)
-	if !ok {
-		t.Fatalf("%T lists no plans (facilities.PlanLister)", c)
-	}
+	require.True(t, ok, "%T lists plans (facilities.PlanLister)", c)
 	base := time.Date(2031, 4, 2, 9, 0, 0, 0, time.UTC)
 	recs := []facilities.PlanRecord{
 		{ID: "p0", FacilityID: "tsw-1", FacilityVersion: 1, Label: "cruise", CreatedAt: base},
@@ -914,7 +887,7 @@ func testPlanList(t *testing.T, c facilities.Catalog) {
 			}
 			q.Cursor = next
 		}
-		t.Fatal("the listing never ended")
+		require.Fail(t, "the listing never ended")
 		return nil
 	}
 	same := func(name string, got, want []string) {
@@ -931,16 +904,14 @@ func testPlanList(t *testing.T, c facilities.Catalog) {
 	same("cruise in cn2-05", list(facilities.ListQuery{Label: "cruise", Facility: "cn2-05"}), []string{"p1"})
 	same("time range", list(facilities.ListQuery{Since: base.Add(time.Minute), Until: base.Add(3 * time.Minute)}), []string{"p2", "p1"})
 	page, _, err := pl.Plans(ctx, facilities.ListQuery{Limit: 1})
-	if err != nil || len(page) != 1 {
-		t.Fatalf("Plans: %v, %v", page, err)
-	}
-	if p := page[0]; p.ID != "p4" || p.FacilityID != "cn2-05" || p.FacilityVersion != 1 || !p.CreatedAt.Equal(base.Add(4*time.Minute)) {
-		t.Errorf("listed %+v, want p4 of cn2-05 version 1 at %v", p, base.Add(4*time.Minute))
-	}
+	require.NoError(t, err)
+	require.Len(t, page, 1, "a page of one plan")
+	p := page[0]
+	assert.Equal(t, []any{"p4", "cn2-05", 1}, []any{p.ID, p.FacilityID, p.FacilityVersion}, "listed plan: id, facility, version")
+	assert.True(t, p.CreatedAt.Equal(base.Add(4*time.Minute)), "listed plan created at %v, want %v", p.CreatedAt, base.Add(4*time.Minute))
 	got, err := c.Plan(ctx, "p3a")
-	if err != nil || got.Label != "climb" {
-		t.Errorf("Plan(p3a) label %q, %v; want climb", got.Label, err)
-	}
+	assert.NoError(t, err, "Plan(p3a)")
+	assert.Equal(t, "climb", got.Label, "Plan(p3a) label")
 	for _, bad := range []facilities.ListQuery{{Cursor: "!"}, {Limit: -2}, {Limit: facilities.MaxListLimit + 1}} {
 		_, _, err := pl.Plans(ctx, bad)
 		wantCode(t, err, check.CodeInvalid)

@@ -374,7 +374,7 @@ func testList(t *testing.T, open func() jobs.Store) {
 			}
 			q.Cursor = next
 		}
-		t.Fatal("the listing never ended")
+		require.Fail(t, "the listing never ended")
 		return nil
 	}
 	all := []string{"l6", "l5", "l4", "l3", "l2", "l1", "l0"}
@@ -493,9 +493,7 @@ func waitFor(t *testing.T, s jobs.Store, id string, cond func(jobs.Job) bool) jo
 		if cond(j) {
 			return j
 		}
-		if time.Now().After(deadline) {
-			t.Fatalf("job %s: still %s (%d of %d)", id, j.State, j.Done, j.Total)
-		}
+		require.False(t, time.Now().After(deadline), "job %s: still %s (%d of %d) after 20 s", id, j.State, j.Done, j.Total)
 		time.Sleep(5 * time.Millisecond)
 	}
 }
