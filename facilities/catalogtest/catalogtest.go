@@ -8,6 +8,8 @@ import (
 	"errors"
 	"fmt"
 	"scalematch/internal/check"
+	"scalematch/internal/jobs"
+	"scalematch/internal/jobs/jobstest"
 	"sync"
 	"sync/atomic"
 	"testing"
@@ -31,6 +33,21 @@ func Opener[DB facilities.Catalog](open func(context.Context, string) (DB, error
 		tb.Cleanup(func() { assert.NoError(tb, db.Close(), "Close") })
 		return db
 	}
+}
+
+// Engine is what an engine's stores give the shared suites: the catalog and
+// the job queue.
+type Engine interface {
+	facilities.Catalog
+	jobs.Store
+}
+
+// RunEngine runs the catalog suite (Run) and the job queue's (jobstest.Run) on
+// an engine whose stores open with open on a new place (a file, a schema) that
+// newPlace makes for each test.
+func RunEngine[DB Engine](t *testing.T, open func(context.Context, string) (DB, error), newPlace func(testing.TB) string) {
+	t.Run("Catalog", func(t *testing.T) { Run(t, Opener(open, newPlace)) })
+	t.Run("Jobs", func(t *testing.T) { jobstest.Run(t, jobstest.Opener(open, newPlace)) })
 }
 
 // Run runs the suite. open must return a new, empty store for each call (the suite

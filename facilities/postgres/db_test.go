@@ -72,25 +72,16 @@ func schemaURL(t testing.TB) string {
 // open opens a store on a new schema of its own for one test.
 var open = catalogtest.Opener(postgres.Open, schemaURL)
 
-func TestCatalog(t *testing.T) {
+// TestStore runs the shared suites of the catalog and the job queue on a schema
+// of its own for each test (schemaURL), which one or more stores open as
+// replicas sharing the database would; BenchmarkJobs runs the job queue's
+// benchmarks the same way.
+func TestStore(t *testing.T) {
 	t.Parallel()
-	catalogtest.Run(t, open)
+	catalogtest.RunEngine(t, postgres.Open, schemaURL)
 }
 
-// openJobs makes a schema of its own for one test (schemaURL) and opens stores
-// on it, as replicas sharing the database would.
-var openJobs = jobstest.Opener(postgres.Open, schemaURL)
-
-func TestJobs(t *testing.T) {
-	t.Parallel()
-	jobstest.Run(t, openJobs)
-}
-
-// BenchmarkJobs runs the job store benchmarks (jobstest.Bench) on a new schema
-// for each.
-func BenchmarkJobs(b *testing.B) {
-	jobstest.Bench(b, openJobs)
-}
+func BenchmarkJobs(b *testing.B) { jobstest.Bench(b, jobstest.Opener(postgres.Open, schemaURL)) }
 
 // TestReplicasStartTogether opens several stores on one empty schema at once, as
 // replicas do: the migrations must be applied once and the demo seeded once.

@@ -16,32 +16,22 @@ import (
 	"scalematch/internal/jobs/jobstest"
 )
 
-// open opens a new catalog file in a directory of its own for one test.
-var open = catalogtest.Opener(sqlite.Open, func(tb testing.TB) string {
-	return filepath.Join(tb.TempDir(), "data", sqlite.FileName)
-})
+// newFile names a new catalog file in a directory of its own for one test.
+func newFile(tb testing.TB) string { return filepath.Join(tb.TempDir(), "data", sqlite.FileName) }
 
-func TestCatalog(t *testing.T) {
+// open opens a store on a new catalog file for one test.
+var open = catalogtest.Opener(sqlite.Open, newFile)
+
+// TestStore runs the shared suites of the catalog and the job queue, each test
+// on a file of its own that one or more stores open, as processes sharing it
+// would; BenchmarkJobs runs the job queue's benchmarks, every write waiting for
+// its fsync (synchronous=FULL).
+func TestStore(t *testing.T) {
 	t.Parallel()
-	catalogtest.Run(t, open)
+	catalogtest.RunEngine(t, sqlite.Open, newFile)
 }
 
-// openJobs makes a new catalog file for one test and opens stores on it, as
-// processes sharing the file would.
-var openJobs = jobstest.Opener(sqlite.Open, func(tb testing.TB) string {
-	return filepath.Join(tb.TempDir(), sqlite.FileName)
-})
-
-func TestJobs(t *testing.T) {
-	t.Parallel()
-	jobstest.Run(t, openJobs)
-}
-
-// BenchmarkJobs runs the job store benchmarks (jobstest.Bench); every write
-// waits for its fsync (synchronous=FULL).
-func BenchmarkJobs(b *testing.B) {
-	jobstest.Bench(b, openJobs)
-}
+func BenchmarkJobs(b *testing.B) { jobstest.Bench(b, jobstest.Opener(sqlite.Open, newFile)) }
 
 // TestReopen checks that a closed store opens again with its data, that the
 // migrations are recorded once, and that a reopened store is not seeded again.
