@@ -4,6 +4,9 @@ import (
 	"fmt"
 	"math/rand"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // toleranceLess is the planner's former key comparison, kept here only to show
@@ -76,16 +79,16 @@ func TestKeyLessChain(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			t.Parallel()
 			v := weakOrderViolation(c.less, creepChain)
-			if (v == "") != c.wantWeak {
-				t.Errorf("strict weak ordering on the chain: %v (%q), want %v", v == "", v, c.wantWeak)
+			if c.wantWeak {
+				assert.Empty(t, v, "strict weak ordering on the chain")
+			} else {
+				assert.NotEmpty(t, v, "the chain breaks strict weak ordering")
 			}
 		})
 	}
 	for i := 1; i < len(creepChain); i++ {
-		if !creepChain[0].less(creepChain[i]) {
-			t.Errorf("candidate %d (level %.2g, q %.6g) is not worse than the plateau's (level 0, q %.6g)",
-				i, creepChain[i].v[0], creepChain[i].q, creepChain[0].q)
-		}
+		assert.True(t, creepChain[0].less(creepChain[i]), "candidate %d (level %.2g, q %.6g) is not worse than the plateau's (level 0, q %.6g)",
+			i, creepChain[i].v[0], creepChain[i].q, creepChain[0].q)
 	}
 }
 
@@ -105,9 +108,7 @@ func TestKeyLessWeakOrder(t *testing.T) {
 			}
 			ks[i].q = qs[rng.Intn(len(qs))]
 		}
-		if v := weakOrderViolation(key.less, ks); v != "" {
-			t.Fatalf("set %d: %s: %+v", set, v, ks)
-		}
+		require.Empty(t, weakOrderViolation(key.less, ks), "set %d: %+v", set, ks)
 	}
 }
 

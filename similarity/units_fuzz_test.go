@@ -6,6 +6,8 @@ import (
 	"testing"
 
 	"scalematch/similarity"
+
+	"github.com/stretchr/testify/require"
 )
 
 // FuzzParseQuantity checks that no input panics, that every success is finite, that
@@ -23,23 +25,18 @@ func FuzzParseQuantity(f *testing.F) {
 		v, dim, err := similarity.ParseQuantity(s)
 		if err != nil {
 			var ue *similarity.UnitError
-			if !errors.As(err, &ue) || err.Error() == "" {
-				t.Fatalf("ParseQuantity(%q): error %T %q", s, err, err)
-			}
-			if !errors.Is(err, similarity.ErrSyntax) && !errors.Is(err, similarity.ErrUnknownUnit) && !errors.Is(err, similarity.ErrRange) {
-				t.Fatalf("ParseQuantity(%q): unclassified error %q", s, err)
-			}
+			require.ErrorAs(t, err, &ue, "ParseQuantity(%q)", s)
+			require.NotEmpty(t, err.Error(), "ParseQuantity(%q): error message", s)
+			require.True(t, errors.Is(err, similarity.ErrSyntax) || errors.Is(err, similarity.ErrUnknownUnit) || errors.Is(err, similarity.ErrRange),
+				"ParseQuantity(%q): unclassified error %q", s, err)
 			return
 		}
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			t.Fatalf("ParseQuantity(%q) = %v", s, v)
-		}
+		require.False(t, math.IsNaN(v) || math.IsInf(v, 0), "ParseQuantity(%q) = %v", s, v)
 		back, err := similarity.ParseDimension(dim.String())
-		if err != nil || back != dim {
-			t.Fatalf("dimension %v of %q does not round-trip: %v, %v", dim, s, back, err)
-		}
-		if _, err := similarity.ToSI(s, "m"); err == nil && dim != similarity.DimLength {
-			t.Fatalf("ToSI(%q, m) accepted dimension %v", s, dim)
+		require.NoError(t, err, "dimension %v of %q", dim, s)
+		require.Equal(t, dim, back, "dimension of %q round-trips", s)
+		if _, err := similarity.ToSI(s, "m"); err == nil {
+			require.Equal(t, similarity.DimLength, dim, "ToSI(%q, m) accepted it", s)
 		}
 	})
 }
