@@ -16,6 +16,7 @@ import (
 
 	"github.com/gin-gonic/gin"
 	"github.com/prometheus/client_golang/prometheus"
+	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api/schema"
@@ -85,9 +86,7 @@ func get(t *testing.T, ts *httptest.Server, method, path string, body io.Reader)
 	b, _ := io.ReadAll(resp.Body)
 	var p schema.Problem
 	if resp.Header.Get("Content-Type") == schema.ContentTypeProblem {
-		if err := json.Unmarshal(b, &p); err != nil {
-			t.Fatalf("%s: %v", b, err)
-		}
+		require.NoError(t, json.Unmarshal(b, &p), "%s", b)
 	}
 	return resp, p
 }
@@ -95,21 +94,16 @@ func get(t *testing.T, ts *httptest.Server, method, path string, body io.Reader)
 func TestPanicBecomes500(t *testing.T) {
 	_, ts, logs := newInternal(t)
 	resp, p := get(t, ts, "GET", "/test/panic", nil)
-	if resp.StatusCode != 500 || p.Status != 500 || p.Type != "/problems/internal" {
-		t.Fatalf("status %d, problem %+v; want a 500 problem", resp.StatusCode, p)
-	}
-	if p.RequestID != "req-test-panic" || resp.Header.Get(HeaderRequestID) != "req-test-panic" {
-		t.Errorf("request id: problem %q, header %q", p.RequestID, resp.Header.Get(HeaderRequestID))
-	}
-	if p.Detail != "internal error" || strings.Contains(p.Detail, "spar") {
-		t.Errorf("detail %q leaks the panic", p.Detail)
-	}
+	require.Equal(t, http.StatusInternalServerError, resp.StatusCode)
+	require.Equal(t, http.StatusInternalServerError, p.Status, "the problem's status")
+	require.Equal(t, "/problems/internal", p.Type)
+	assert.Equal(t, "req-test-panic", p.RequestID, "the problem's request id")
+	assert.Equal(t, "req-test-panic", resp.Header.Get(HeaderRequestID), "the request id header")
+	assert.Equal(t, "internal error", p.Detail, "the detail does not leak the panic")
 	var panicLine, requestLine map[string]any
 	for _, l := range strings.Split(strings.TrimSpace(logs.String()), "\n") {
 		var m map[string]any
-		if err := json.Unmarshal([]byte(l), &m); err != nil {
-			t.Fatalf("log line %s: %v", l, err)
-		}
+		require.NoError(t, json.Unmarshal([]byte(l), &m), "log line %s", l)
 		switch m["msg"] {
 		case "panic":
 			panicLine = m
@@ -117,19 +111,19 @@ func TestPanicBecomes500(t *testing.T) {
 			requestLine = m
 		}
 	}
-	if panicLine == nil || panicLine["panic"] != "wing spar snapped" || panicLine["request_id"] != "req-test-panic" {
-		t.Errorf("panic log line %v", panicLine)
+	if assert.NotNil(t, panicLine, "panic log line") {
+		assert.Equal(t, "wing spar snapped", panicLine["panic"], "panic log line")
+		assert.Equal(t, "req-test-panic", panicLine["request_id"], "panic log line")
+		st, _ := panicLine["stack"].(string)
+		assert.Contains(t, st, "middleware_test.go", "the panic log's stack runs through the handler")
 	}
-	if st, _ := panicLine["stack"].(string); !strings.Contains(st, "middleware_test.go") {
-		t.Errorf("panic log has no stack through the handler: %.200s", st)
-	}
-	if requestLine == nil || requestLine["status"] != 500.0 || requestLine["level"] != "ERROR" {
-		t.Errorf("request log line %v, want status 500 at ERROR", requestLine)
+	if assert.NotNil(t, requestLine, "request log line") {
+		assert.Equal(t, 500.0, requestLine["status"], "request log line")
+		assert.Equal(t, "ERROR", requestLine["level"], "request log line")
 	}
 	// The server lives on.
-	if resp, _ := get(t, ts, "GET", "/healthz", nil); resp.StatusCode != 200 {
-		t.Errorf("after the panic /healthz answers %d", resp.StatusCode)
-	}
+	resp, _ = get(t, ts, "GET", "/healthz", nil)
+	assert.Equal(t, http.StatusOK, resp.StatusCode, "/healthz after the panic")
 }
 
 func TestOrdinaryErrorsPassThrough(t *testing.T) {
@@ -147,18 +141,14 @@ func TestOrdinaryErrorsPassThrough(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.path, func(t *testing.T) {
 			resp, p := get(t, ts, "GET", tc.path, nil)
-			if resp.StatusCode != tc.status || p.Type != tc.typ || p.Detail != tc.detail {
-				t.Errorf("got %d %+v, want %d %s %q", resp.StatusCode, p, tc.status, tc.typ, tc.detail)
-			}
+			assert.Equal(t, tc.status, resp.StatusCode)
+			assert.Equal(t, tc.typ, p.Type)
+			assert.Equal(t, tc.detail, p.Detail)
 		})
 	}
 	log := logs.String()
-	if !strings.Contains(log, "sql: connection reset by peer") {
-		t.Error("the internal error is not logged in full")
-	}
-	if strings.Contains(log, `"msg":"panic"`) {
-		t.Error("an ordinary error was logged as a panic")
-	}
+	assert.Contains(t, log, "sql: connection reset by peer", "the internal error is logged in full")
+	assert.NotContains(t, log, `"msg":"panic"`, "an ordinary error logged as a panic")
 }
 
 func TestProblemMapping(t *testing.T) {
@@ -192,14 +182,12 @@ func TestProblemMapping(t *testing.T) {
 			c, _ := gin.CreateTestContext(w)
 			c.Request = httptest.NewRequest("GET", "/v1/x", nil)
 			s.fail(c, tc.err)
-			if w.Code != tc.status {
-				t.Errorf("status %d, want %d", w.Code, tc.status)
-			}
+			assert.Equal(t, tc.status, w.Code)
 			var p schema.Problem
 			require.NoError(t, json.Unmarshal(w.Body.Bytes(), &p))
-			if p.Type != "/problems/"+tc.slug || p.Status != tc.status || p.Title == "" {
-				t.Errorf("problem %+v, want /problems/%s", p, tc.slug)
-			}
+			assert.Equal(t, "/problems/"+tc.slug, p.Type)
+			assert.Equal(t, tc.status, p.Status, "the problem's status")
+			assert.NotEmpty(t, p.Title)
 			if got := w.Header().Get("WWW-Authenticate"); (tc.status == 401) != strings.HasPrefix(got, "Bearer") {
 				t.Errorf("WWW-Authenticate %q for status %d", got, tc.status)
 			}
@@ -214,10 +202,8 @@ func TestUnprocessableCarriesLimits(t *testing.T) {
 	c.Request = httptest.NewRequest("POST", "/v1/plans", nil)
 	s.fail(c, &check.Error{Code: check.CodeUnprocessable, Message: "no model fits",
 		Limits: []string{facilities.ConstraintSpan, facilities.ConstraintScaleMin}})
-	want := `"limits":["max_span_fraction","scale_min"]`
-	if w.Code != 422 || !strings.Contains(w.Body.String(), want) {
-		t.Errorf("%d %s, want 422 with %s", w.Code, w.Body.String(), want)
-	}
+	assert.Equal(t, http.StatusUnprocessableEntity, w.Code)
+	assert.Contains(t, w.Body.String(), `"limits":["max_span_fraction","scale_min"]`)
 }
 
 func TestDecodeBody(t *testing.T) {
@@ -237,11 +223,9 @@ func TestDecodeBody(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			resp, p := get(t, ts, "POST", "/test/decode", tc.body)
-			if resp.StatusCode != tc.status {
-				t.Fatalf("status %d, want %d (%+v)", resp.StatusCode, tc.status, p)
-			}
-			if tc.status == 400 && (len(p.Errors) != 1 || p.Errors[0].Field != tc.field) {
-				t.Errorf("errors %+v, want one at %q", p.Errors, tc.field)
+			require.Equal(t, tc.status, resp.StatusCode, "%+v", p)
+			if tc.status == 400 && assert.Len(t, p.Errors, 1, "%+v", p.Errors) {
+				assert.Equal(t, tc.field, p.Errors[0].Field)
 			}
 		})
 	}
