@@ -1,10 +1,10 @@
 package similarity_test
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"scalematch/internal/check"
+	"scalematch/internal/testfixture"
 	"slices"
 	"testing"
 
@@ -12,6 +12,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/similarity"
 
+	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 )
 
@@ -73,16 +74,11 @@ func TestPlanHandChecks(t *testing.T) {
 		require.NoError(t, err)
 		const v, t0 = 84.0, 286.0
 		wantM := v / math.Sqrt(1.4*atmosphere.R*t0-0.2*v*v)
-		if math.Abs(r.Test.Mach-wantM) > 1e-9 {
-			t.Errorf("Mach %.10g, want %.10g", r.Test.Mach, wantM)
-		}
-		if math.Abs(r.Test.Speed-v) > 1e-7 || math.Abs(r.Test.StagnationTemperature-t0) > 1e-7 {
-			t.Errorf("speed %.10g m/s, T0 %.10g K; want 84 m/s at 286 K", r.Test.Speed, r.Test.StagnationTemperature)
-		}
+		assert.InDelta(t, wantM, r.Test.Mach, 1e-9, "Mach number of 84 m/s at T0 286 K")
+		assert.InDelta(t, v, r.Test.Speed, 1e-7, "speed, m/s")
+		assert.InDelta(t, t0, r.Test.StagnationTemperature, 1e-7, "T0, K")
 		// The model sits on the span limit: 0.8·2.6 m / 23.4 m = 0.0889.
-		if want := 0.8 * 2.6 / 23.4; planRel(r.Model.Scale, want) > 1e-12 {
-			t.Errorf("scale %.10g, want %.10g", r.Model.Scale, want)
-		}
+		assert.InEpsilon(t, 0.8*2.6/23.4, r.Model.Scale, 1e-12, "scale on the span limit")
 		for _, c := range []string{facilities.ConstraintSpeedMax, facilities.ConstraintTempMin, facilities.ConstraintSpan} {
 			if !planBound(r, c) {
 				t.Errorf("binding %v lacks %s", r.Binding, c)
@@ -114,9 +110,7 @@ func TestPlanHandChecks(t *testing.T) {
 			{"q = ½·Re/m·μ·V", r.Test.DynamicPressure, 0.5 * r.Test.ReynoldsPerMeter * r.Test.Static.Viscosity * r.Test.Speed, 1e-9},
 		}
 		for _, c := range cases {
-			if planRel(c.got, c.want) > c.tol {
-				t.Errorf("%s: %.10g, want %.10g (tol %g)", c.name, c.got, c.want, c.tol)
-			}
+			assert.InEpsilon(t, c.want, c.got, c.tol, "%s (hand check above)", c.name)
 		}
 		// Matching Re at the flight's own Mach number costs more q.
 		p0 := r.Test.StagnationPressure
@@ -143,16 +137,12 @@ func TestPlanHandChecks(t *testing.T) {
 		fs := planFlight(t, &orrinJ16, 12000, 0.78, 0)
 		r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: f}, nil)
 		require.NoError(t, err)
-		if math.Abs(r.Test.Mach-0.775) > 1e-8 {
-			t.Errorf("Mach %.10g, want 0.775", r.Test.Mach)
-		}
+		assert.InDelta(t, 0.775, r.Test.Mach, 1e-8, "Mach number")
 		if planRel(r.Test.DynamicPressure, 54000) > 1e-9 || !(r.Test.StagnationPressure < 205000) {
 			t.Errorf("q %.8g Pa at p0 %.6g Pa: want the q limit, below p0 max", r.Test.DynamicPressure, r.Test.StagnationPressure)
 		}
 		// q = γ/2·p·M² holds exactly for air.
-		if q := 0.7 * r.Test.Static.Pressure * r.Test.Mach * r.Test.Mach; planRel(q, r.Test.DynamicPressure) > 1e-12 {
-			t.Errorf("γ/2·p·M² = %.10g, q = %.10g", q, r.Test.DynamicPressure)
-		}
+		assert.InEpsilon(t, r.Test.DynamicPressure, 0.7*r.Test.Static.Pressure*r.Test.Mach*r.Test.Mach, 1e-12, "γ/2·p·M² against q")
 	})
 }
 
@@ -307,14 +297,9 @@ func TestPlanInfeasible(t *testing.T) {
 			c.edit(&p)
 			_, err := similarity.Plan(&p, nil)
 			var de *check.Error
-			if !errors.As(err, &de) || de.Code != check.CodeUnprocessable {
-				t.Fatalf("error %v, want unprocessable", err)
-			}
-			for _, l := range c.limits {
-				if !slices.Contains(de.Limits, l) {
-					t.Errorf("limits %v lack %s", de.Limits, l)
-				}
-			}
+			require.ErrorAs(t, err, &de)
+			require.Equal(t, check.CodeUnprocessable, de.Code, "%v", err)
+			assert.Subset(t, de.Limits, c.limits, "the conflicting limits named")
 		})
 	}
 }
@@ -342,13 +327,7 @@ func TestFlightValidate(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			t.Parallel()
 			_, err := c.fl.Resolve(2)
-			var de *check.Error
-			if !errors.As(err, &de) || de.Code != check.CodeInvalid {
-				t.Fatalf("error %v, want invalid", err)
-			}
-			if !slices.ContainsFunc(de.Fields, func(f check.FieldError) bool { return f.Field == c.field }) {
-				t.Errorf("fields %+v lack %s", de.Fields, c.field)
-			}
+			assert.Contains(t, testfixture.InvalidFields(t, err), c.field)
 		})
 	}
 }
@@ -373,9 +352,7 @@ func TestFlightResolve(t *testing.T) {
 		{"dynamic pressure", fs.DynamicPressure, 0.5 * 1.2250 * 100 * 100, 1e-4},
 	}
 	for _, c := range cases {
-		if planRel(c.got, c.want) > c.tol {
-			t.Errorf("%s: %.8g, want %.8g (tol %g)", c.name, c.got, c.want, c.tol)
-		}
+		assert.InEpsilon(t, c.want, c.got, c.tol, "%s: U.S. Standard Atmosphere 1976 sea level (from memory)", c.name)
 	}
 }
 
