@@ -2,7 +2,6 @@ package similarity_test
 
 import (
 	"encoding/json"
-	"errors"
 	"math/big"
 	"math/rand/v2"
 	"scalematch/internal/check"
@@ -12,6 +11,7 @@ import (
 
 	"scalematch/similarity"
 
+	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 )
 
@@ -194,22 +194,12 @@ func TestGroups(t *testing.T) {
 			t.Parallel()
 			res, err := similarity.Groups(c.vars, c.repeating)
 			require.NoError(t, err)
-			if res.Rank != c.rank {
-				t.Errorf("rank %d, want %d", res.Rank, c.rank)
-			}
-			if len(res.Groups) != len(c.want) {
-				t.Fatalf("%d groups %v, want %d %v", len(res.Groups), res.Groups, len(c.want), c.want)
-			}
-			if len(res.Repeating) != res.Rank {
-				t.Errorf("repeating %v, want %d of them", res.Repeating, res.Rank)
-			}
+			assert.Equal(t, c.rank, res.Rank, "rank")
+			require.Len(t, res.Groups, len(c.want), "groups %v, want %v", res.Groups, c.want)
+			assert.Len(t, res.Repeating, res.Rank, "repeating variables, one per rank")
 			for i, g := range res.Groups {
-				if g.String() != c.want[i] {
-					t.Errorf("group %d = %s, want %s", i, g, c.want[i])
-				}
-				if g.KnownAs != c.known[i] {
-					t.Errorf("group %d (%s) known as %q, want %q", i, g, g.KnownAs, c.known[i])
-				}
+				assert.Equal(t, c.want[i], g.String(), "group %d", i)
+				assert.Equal(t, c.known[i], g.KnownAs, "group %d (%s) known as", i, g)
 				checkDimensionless(t, c.vars, g)
 			}
 		})
@@ -244,18 +234,16 @@ func TestGroupsErrors(t *testing.T) {
 			t.Parallel()
 			_, err := similarity.Groups(c.vars, c.repeating)
 			var fe *check.Error
-			if !errors.As(err, &fe) || fe.Code != check.CodeInvalid {
-				t.Fatalf("error %v, want a *check.Error with code invalid", err)
-			}
-			found := false
-			for _, f := range fe.Fields {
-				if f.Field == c.field && strings.Contains(f.Message, c.msg) {
-					found = true
+			require.ErrorAs(t, err, &fe)
+			require.Equal(t, check.CodeInvalid, fe.Code, "%v", err)
+			assert.Condition(t, func() bool {
+				for _, f := range fe.Fields {
+					if f.Field == c.field && strings.Contains(f.Message, c.msg) {
+						return true
+					}
 				}
-			}
-			if !found {
-				t.Errorf("fields %+v, want %s: ...%s...", fe.Fields, c.field, c.msg)
-			}
+				return false
+			}, "fields %+v, want %s: ...%s...", fe.Fields, c.field, c.msg)
 		})
 	}
 }
@@ -276,9 +264,7 @@ func checkDimensionless(t *testing.T, vs []similarity.Variable, g similarity.Gro
 		}
 	}
 	for b := range sum {
-		if sum[b].Sign() != 0 {
-			t.Errorf("group %s is not dimensionless: base %d exponent %s", g, b, sum[b].RatString())
-		}
+		assert.Zero(t, sum[b].Sign(), "group %s is not dimensionless: base %d exponent %s", g, b, sum[b].RatString())
 	}
 }
 
@@ -339,12 +325,8 @@ func TestGroupsProperties(t *testing.T) {
 		r := ratRank(dimRows)
 		res, err := similarity.Groups(vs, nil)
 		require.NoError(t, err, "trial %d %v", trial, vs)
-		if res.Rank != r {
-			t.Fatalf("trial %d: rank %d, want %d", trial, res.Rank, r)
-		}
-		if len(res.Groups) != n-r {
-			t.Fatalf("trial %d: %d groups, want n − r = %d", trial, len(res.Groups), n-r)
-		}
+		require.Equal(t, r, res.Rank, "trial %d: rank", trial)
+		require.Len(t, res.Groups, n-r, "trial %d: groups, want n − r", trial)
 		isRep := map[string]bool{}
 		for _, name := range res.Repeating {
 			isRep[name] = true
@@ -356,30 +338,22 @@ func TestGroupsProperties(t *testing.T) {
 			for _, e := range g.Exponents {
 				if !isRep[e.Name] {
 					nonRep++
-					if e.Power != similarity.Int(1) {
-						t.Errorf("trial %d: group %s: non-repeating %s has exponent %s", trial, g, e.Name, e.Power)
-					}
+					assert.Equal(t, similarity.Int(1), e.Power, "trial %d: group %s: exponent of non-repeating %s", trial, g, e.Name)
 				}
 			}
-			if nonRep != 1 {
-				t.Errorf("trial %d: group %s has %d non-repeating variables", trial, g, nonRep)
-			}
+			assert.Equal(t, 1, nonRep, "trial %d: group %s: non-repeating variables", trial, g)
 			rows[gi] = make([]*big.Rat, n)
 			for i, v := range vs {
 				p := g.Power(v.Name)
 				rows[gi][i] = big.NewRat(p.Num(), p.Den())
 			}
 		}
-		if got := ratRank(rows); got != n-r {
-			t.Errorf("trial %d: groups have rank %d, want %d", trial, got, n-r)
-		}
+		assert.Equal(t, n-r, ratRank(rows), "trial %d: rank of the groups", trial)
 		// The chosen repeating variables, given back explicitly, give the same groups.
 		again, err := similarity.Groups(vs, res.Repeating)
 		require.NoError(t, err, "trial %d: with repeating %v", trial, res.Repeating)
 		for gi := range again.Groups {
-			if again.Groups[gi].String() != res.Groups[gi].String() {
-				t.Errorf("trial %d: %s vs %s", trial, again.Groups[gi], res.Groups[gi])
-			}
+			assert.Equal(t, res.Groups[gi].String(), again.Groups[gi].String(), "trial %d: group %d", trial, gi)
 		}
 	}
 }
@@ -391,17 +365,13 @@ func TestGroupJSON(t *testing.T) {
 	b, err := json.Marshal(res)
 	require.NoError(t, err)
 	const want = `{"rank":2,"repeating":["g","L"],"groups":[{"exponents":{"V":1,"g":"-1/2","L":"-1/2"},"known_as":"Froude number"}]}`
-	if string(b) != want {
-		t.Errorf("JSON\n  %s\nwant\n  %s", b, want)
-	}
+	assert.Equal(t, want, string(b), "JSON, keys in order")
 	var back similarity.GroupsResult
 	require.NoError(t, json.Unmarshal(b, &back))
-	if back.Groups[0].String() != res.Groups[0].String() || back.Groups[0].KnownAs != "Froude number" {
-		t.Errorf("round trip %+v", back)
-	}
-	if got := res.Groups[0].Integer().String(); got != "V^2 g^-1 L^-1" {
-		t.Errorf("Integer() = %s", got)
-	}
+	require.Len(t, back.Groups, 1, "round trip %+v", back)
+	assert.Equal(t, res.Groups[0].String(), back.Groups[0].String(), "round trip")
+	assert.Equal(t, "Froude number", back.Groups[0].KnownAs, "round trip")
+	assert.Equal(t, "V^2 g^-1 L^-1", res.Groups[0].Integer().String(), "Integer()")
 }
 
 func TestRational(t *testing.T) {
@@ -426,26 +396,22 @@ func TestRational(t *testing.T) {
 			t.Parallel()
 			r, err := similarity.ParseRational(c.in)
 			if c.want == "" {
-				if err == nil || !errors.Is(err, similarity.ErrRational) {
-					t.Fatalf("ParseRational(%q) = %v, %v; want ErrRational", c.in, r, err)
-				}
+				require.ErrorIs(t, err, similarity.ErrRational, "ParseRational(%q) = %v", c.in, r)
 				return
 			}
-			if err != nil || r.String() != c.want || r.Float64() != c.f {
-				t.Fatalf("ParseRational(%q) = %v (%g), %v; want %s", c.in, r, r.Float64(), err, c.want)
-			}
-			b, _ := json.Marshal(r)
-			if string(b) != c.json {
-				t.Errorf("JSON %s, want %s", b, c.json)
-			}
+			require.NoError(t, err, "ParseRational(%q)", c.in)
+			require.Equal(t, c.want, r.String(), "ParseRational(%q)", c.in)
+			require.Equal(t, c.f, r.Float64(), "ParseRational(%q) as a float", c.in) // exact: a ratio of small integers
+			b, err := json.Marshal(r)
+			require.NoError(t, err)
+			assert.Equal(t, c.json, string(b), "JSON")
 			var back similarity.Rational
-			if err := json.Unmarshal(b, &back); err != nil || back != r {
-				t.Errorf("round trip %v, %v", back, err)
-			}
+			require.NoError(t, json.Unmarshal(b, &back), "round trip")
+			assert.Equal(t, r, back, "round trip")
 		})
 	}
 	var zero similarity.Rational
-	if zero.Den() != 1 || zero.String() != "0" || zero.Sign() != 0 {
-		t.Errorf("zero value %v/%v", zero.Num(), zero.Den())
-	}
+	assert.Equal(t, int64(1), zero.Den(), "zero value's denominator")
+	assert.Equal(t, "0", zero.String(), "zero value")
+	assert.Zero(t, zero.Sign(), "zero value's sign")
 }
