@@ -97,26 +97,22 @@ func TestRefineNeverWorse(t *testing.T) {
 		t.Run(sc.name, func(t *testing.T) { // in turn: the cases add to counts read after the loop
 			a, errA := similarity.PlanSearch(&sc.p, false)
 			b, errB := similarity.PlanSearch(&sc.p, true)
-			if (errA == nil) != (errB == nil) {
-				t.Fatalf("structured: %v; refined: %v", errA, errB)
-			}
+			require.Equal(t, errA == nil, errB == nil, "structured: %v; refined: %v", errA, errB)
 			if errA != nil {
 				return
 			}
 			planned++
 			refineEvals += b.Stats.RefineEvaluations
-			if b.Stats.RefineEvaluations < 1 || b.Stats.RefineEvaluations > 200 {
-				t.Errorf("%d refinement evaluations, want 1 to 200", b.Stats.RefineEvaluations)
-			}
+			assert.GreaterOrEqual(t, b.Stats.RefineEvaluations, 1, "refinement evaluations")
+			assert.LessOrEqual(t, b.Stats.RefineEvaluations, 200, "refinement evaluations")
 			checkLimits(t, sc, b)
 			fa, fb := weightedSum(sc, a), weightedSum(sc, b)
 			qa, qb := a.Test.DynamicPressure, b.Test.DynamicPressure
-			switch {
-			case fb > fa+refineTie:
-				t.Fatalf("refined sum %.12g above the structured %.12g", fb, fa)
-			case fb > fa-refineTie && qb > qa*(1+1e-12):
-				t.Fatalf("refined sum %.12g ties the structured %.12g at a higher q: %.8g Pa against %.8g Pa", fb, fa, qb, qa)
-			case fb < fa-refineTie || qb < qa*(1-1e-9):
+			require.LessOrEqual(t, fb, fa+refineTie, "refined sum above the structured %.12g", fa)
+			if fb > fa-refineTie {
+				require.LessOrEqual(t, qb, qa*(1+1e-12), "q, Pa, of a refined sum %.12g that ties the structured %.12g", fb, fa)
+			}
+			if fb < fa-refineTie || qb < qa*(1-1e-9) {
 				improved++
 			}
 		})
@@ -156,16 +152,13 @@ func TestRefineLimits(t *testing.T) {
 					continue // the moved start is not a feasible plan
 				}
 				checkLimits(t, sc, r)
-				if f0, f := weightedSum(sc, start), weightedSum(sc, r); f > f0+refineTie {
-					t.Errorf("from u %.6g, s %.6g: refined sum %.12g above the start's %.12g", u0, s0, f, f0)
-				}
+				f0 := weightedSum(sc, start)
+				assert.LessOrEqual(t, weightedSum(sc, r), f0+refineTie, "from u %.6g, s %.6g: refined sum above the start's %.12g", u0, s0, f0)
 				checked++
 			}
 		})
 	}
-	if checked < n/2 {
-		t.Fatalf("only %d refinements from feasible starts checked", checked)
-	}
+	require.GreaterOrEqual(t, checked, n/2, "refinements from feasible starts checked")
 	t.Logf("%d refinements checked", checked)
 }
 
@@ -196,9 +189,7 @@ func TestRefinePlateau(t *testing.T) {
 	// it, TestSearchPlateauLowestQ) and keeps the best point by the exact key;
 	// these tolerances leave room for its convergence tolerance.
 	checkPlateauEnd(t, f, r, want, s, plateauTolerances{scale: 1e-6, mach: 1e-5, p0: 1e-5, t0: 1e-9, q: 2e-5, reynolds: 1e-5})
-	if r.Stats.RefineEvaluations == 0 {
-		t.Errorf("the refinement did not run")
-	}
+	assert.NotZero(t, r.Stats.RefineEvaluations, "refinement evaluations: the refinement did not run")
 	a, err := similarity.PlanSearch(p, false)
 	require.NoError(t, err)
 	t.Logf("structured search alone: M %.5g, q %.5g Pa; refined: M %.5g, q %.5g Pa (%d evaluations)",
@@ -237,10 +228,8 @@ func TestRefineConverges(t *testing.T) {
 			start, r, err := similarity.RefineFrom(p, c.u, c.s)
 			require.NoError(t, err)
 			f0, fa, fr := weightedSum(sc, start), weightedSum(sc, a), weightedSum(sc, r)
-			if planRel(fr, fa) > c.tol {
-				t.Errorf("refined from a sum of %.6g to %.9g in %d evaluations; the structured optimum is %.9g",
-					f0, fr, r.Stats.RefineEvaluations, fa)
-			}
+			assert.InEpsilon(t, fa, fr, c.tol, "weighted sum refined from %.6g in %d evaluations, against the structured optimum",
+				f0, r.Stats.RefineEvaluations)
 			checkLimits(t, sc, r)
 		})
 	}

@@ -1,7 +1,6 @@
 package similarity_test
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"math/rand"
@@ -395,13 +394,10 @@ func checkAgainstReference(t *testing.T, n int, seed int64, nu, np, nt, zooms in
 			ref := reference(sc, nu, np, nt, zooms)
 			if err != nil {
 				var de *check.Error
-				if !errors.As(err, &de) || de.Code != check.CodeUnprocessable {
-					t.Fatalf("planner: %v", err)
-				}
-				if ref.ok {
-					t.Fatalf("planner says infeasible (%v) but the reference found s=%.5g u=%.5g p0=%.6g T0=%.5g key %v",
-						err, ref.s, ref.u, ref.p0, ref.t0, ref.key.levels)
-				}
+				require.ErrorAs(t, err, &de, "planner")
+				require.Equal(t, check.CodeUnprocessable, de.Code, "planner: %v", err)
+				require.False(t, ref.ok, "planner says infeasible (%v) but the reference found s=%.5g u=%.5g p0=%.6g T0=%.5g key %v",
+					err, ref.s, ref.u, ref.p0, ref.t0, ref.key.levels)
 				infeasible++
 				return
 			}
@@ -425,11 +421,10 @@ func checkAgainstReference(t *testing.T, n int, seed int64, nu, np, nt, zooms in
 				if pk.levels[i] < ref.key.levels[i]-1e-12 {
 					break
 				}
-				if pk.levels[i] > ref.key.levels[i]+tol {
-					t.Fatalf("planner level %d = %.9g worse than reference %.9g (tol %.3g); planner s=%.5g M=%.5g V=%.5g p0=%.6g T0=%.5g Re ratio %.6g; reference s=%.5g u=%.5g p0=%.6g T0=%.5g",
-						i, pk.levels[i], ref.key.levels[i], tol, res.Model.Scale, res.Test.Mach, res.Test.Speed, res.Test.StagnationPressure,
-						res.Test.StagnationTemperature, res.Mismatch.ReynoldsRatio, ref.s, ref.u, ref.p0, ref.t0)
-				}
+				require.LessOrEqual(t, pk.levels[i], ref.key.levels[i]+tol,
+					"planner level %d worse than reference %.9g (tol %.3g); planner s=%.5g M=%.5g V=%.5g p0=%.6g T0=%.5g Re ratio %.6g; reference s=%.5g u=%.5g p0=%.6g T0=%.5g",
+					i, ref.key.levels[i], tol, res.Model.Scale, res.Test.Mach, res.Test.Speed, res.Test.StagnationPressure,
+					res.Test.StagnationTemperature, res.Mismatch.ReynoldsRatio, ref.s, ref.u, ref.p0, ref.t0)
 			}
 		})
 	}
@@ -441,28 +436,22 @@ func checkLimits(t *testing.T, sc *scenario, res *similarity.Result) {
 	t.Helper()
 	f := sc.p.Facility
 	st := res.Test.State
-	if v := f.Violations(st); len(v) > 0 {
-		t.Fatalf("plan breaks facility limits: %+v", v)
-	}
-	if m := f.CondensationMargin(st); m < -1e-9 {
-		t.Fatalf("plan condenses: margin %g", m)
-	}
+	require.Empty(t, f.Violations(st), "plan breaks facility limits")
+	require.GreaterOrEqual(t, f.CondensationMargin(st), -1e-9, "condensation margin of the plan")
 	s := res.Model.Scale
-	if s > refGeomMax(sc)*(1+1e-9) {
-		t.Fatalf("scale %g above the test section's %g", s, refGeomMax(sc))
-	}
+	require.LessOrEqual(t, s, refGeomMax(sc)*(1+1e-9), "scale above the test section's %g", refGeomMax(sc))
 	m := sc.p.Model
-	if m.ScaleMin != nil && s < *m.ScaleMin*(1-1e-9) || m.ScaleMax != nil && s > *m.ScaleMax*(1+1e-9) {
-		t.Fatalf("scale %g outside the requested range", s)
+	if m.ScaleMin != nil {
+		require.GreaterOrEqual(t, s, *m.ScaleMin*(1-1e-9), "scale below the requested range")
+	}
+	if m.ScaleMax != nil {
+		require.LessOrEqual(t, s, *m.ScaleMax*(1+1e-9), "scale above the requested range")
 	}
 	if sc.load != nil {
-		if qb := sc.load.MaxDynamicPressure(s, st); st.DynamicPressure > qb*(1+1e-9) {
-			t.Fatalf("q %g above the load limit %g", st.DynamicPressure, qb)
-		}
+		qb := sc.load.MaxDynamicPressure(s, st)
+		require.LessOrEqual(t, st.DynamicPressure, qb*(1+1e-9), "q, Pa, above the load limit")
 	}
-	if math.IsNaN(res.Test.Reynolds) || !(res.Test.Reynolds > 0) {
-		t.Fatalf("test Reynolds number %g", res.Test.Reynolds)
-	}
+	require.Greater(t, res.Test.Reynolds, 0.0, "test Reynolds number")
 }
 
 func planSq(x float64) float64 { return x * x }

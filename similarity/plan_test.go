@@ -27,9 +27,7 @@ var (
 func planDemo(t testing.TB, id string) *facilities.Facility {
 	t.Helper()
 	f, ok := facilities.DemoFacility(id)
-	if !ok {
-		t.Fatalf("no demo facility %q", id)
-	}
+	require.True(t, ok, "no demo facility %q", id)
 	return &f
 }
 
@@ -52,9 +50,6 @@ func planFlight(t testing.TB, a *similarity.Article, z, mach, tas float64) simil
 func planBound(r *similarity.Result, name string) bool {
 	return slices.ContainsFunc(r.Binding, func(b similarity.Binding) bool { return b.Constraint == name })
 }
-
-// planRel is |got/want − 1|.
-func planRel(got, want float64) float64 { return math.Abs(got/want - 1) }
 
 // TestPlanHandChecks are cases whose answer follows from the physics written out
 // beside each.
@@ -80,9 +75,7 @@ func TestPlanHandChecks(t *testing.T) {
 		// The model sits on the span limit: 0.8·2.6 m / 23.4 m = 0.0889.
 		assert.InEpsilon(t, 0.8*2.6/23.4, r.Model.Scale, 1e-12, "scale on the span limit")
 		for _, c := range []string{facilities.ConstraintSpeedMax, facilities.ConstraintTempMin, facilities.ConstraintSpan} {
-			if !planBound(r, c) {
-				t.Errorf("binding %v lacks %s", r.Binding, c)
-			}
+			assert.True(t, planBound(r, c), "binding %v lacks %s", r.Binding, c)
 		}
 	})
 
@@ -117,13 +110,9 @@ func TestPlanHandChecks(t *testing.T) {
 		hi, err := f.State(facilities.Setting{Mach: fs.Mach, StagnationPressure: p0, StagnationTemperature: 288})
 		require.NoError(t, err)
 		qAtFlightMach := hi.DynamicPressure * (r.Test.ReynoldsPerMeter / hi.ReynoldsPerMeter)
-		if !(r.Test.DynamicPressure < qAtFlightMach) {
-			t.Errorf("q %.6g Pa is not below %.6g Pa at the flight Mach number", r.Test.DynamicPressure, qAtFlightMach)
-		}
+		assert.Less(t, r.Test.DynamicPressure, qAtFlightMach, "q, Pa, against q at the flight Mach number")
 		for _, b := range r.Binding {
-			if math.Abs(b.ReynoldsGainPerPercent) > 1e-9 {
-				t.Errorf("%s: gain %g %%, want 0 with the flight Re already met", b.Constraint, b.ReynoldsGainPerPercent)
-			}
+			assert.InDelta(t, 0, b.ReynoldsGainPerPercent, 1e-9, "%s: gain, %%, with the flight Re already met", b.Constraint)
 		}
 	})
 
@@ -138,9 +127,8 @@ func TestPlanHandChecks(t *testing.T) {
 		r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: f}, nil)
 		require.NoError(t, err)
 		assert.InDelta(t, 0.775, r.Test.Mach, 1e-8, "Mach number")
-		if planRel(r.Test.DynamicPressure, 54000) > 1e-9 || !(r.Test.StagnationPressure < 205000) {
-			t.Errorf("q %.8g Pa at p0 %.6g Pa: want the q limit, below p0 max", r.Test.DynamicPressure, r.Test.StagnationPressure)
-		}
+		assert.InEpsilon(t, 54000, r.Test.DynamicPressure, 1e-9, "q, Pa: the q limit")
+		assert.Less(t, r.Test.StagnationPressure, 205000.0, "p0, Pa: below p0 max")
 		// q = γ/2·p·M² holds exactly for air.
 		assert.InEpsilon(t, r.Test.DynamicPressure, 0.7*r.Test.Static.Pressure*r.Test.Mach*r.Test.Mach, 1e-12, "γ/2·p·M² against q")
 	})
@@ -154,24 +142,20 @@ func TestPlanDemo(t *testing.T) {
 	fs := planFlight(t, &orrinJ16, 12000, 0.78, 0)
 	// "the Orrin J16 at cruise has Re ≈ 12×10⁶ on its MAC" (hand estimate):
 	// within 10 %.
-	if planRel(fs.Reynolds, 12e6) > 0.10 {
-		t.Errorf("Orrin J16 cruise Re %.4g, want about 12e6", fs.Reynolds)
-	}
+	assert.InEpsilon(t, 12e6, fs.Reynolds, 0.10, "Orrin J16 cruise Re (demo-world hand estimate)")
 	r, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: planDemo(t, "tsw-1")}, nil)
 	require.NoError(t, err)
 	// "in tsw-1 with Mach matched, the span limit gives a scale near 1:24 and q_max
 	// limits p0 (near 190 kPa at T0 300 K), so the model reaches about a fifth of
 	// flight Re" (hand estimate): scale within 5 % of 1/24, p0 within 5 % of
 	// 190 kPa, Re ratio 0.15–0.25.
-	if planRel(r.Model.Scale, 1.0/24) > 0.05 || !planBound(r, facilities.ConstraintSpan) {
-		t.Errorf("scale %.4g (binding %v), want about 1/24 on the span limit", r.Model.Scale, r.Binding)
-	}
-	if planRel(r.Test.StagnationPressure, 190e3) > 0.05 || r.Test.StagnationTemperature != 300 {
-		t.Errorf("p0 %.4g Pa at T0 %.4g K, want about 190 kPa at 300 K", r.Test.StagnationPressure, r.Test.StagnationTemperature)
-	}
-	if rr := r.Mismatch.ReynoldsRatio; rr < 0.15 || rr > 0.25 || !planBound(r, facilities.ConstraintDynamic) {
-		t.Errorf("Re ratio %.4g (binding %v), want about a fifth, q-limited", rr, r.Binding)
-	}
+	assert.InEpsilon(t, 1.0/24, r.Model.Scale, 0.05, "scale (demo-world hand estimate)")
+	assert.True(t, planBound(r, facilities.ConstraintSpan), "binding %v: want the span limit", r.Binding)
+	assert.InEpsilon(t, 190e3, r.Test.StagnationPressure, 0.05, "p0, Pa (demo-world hand estimate)")
+	assert.Equal(t, 300.0, r.Test.StagnationTemperature, "T0, K")
+	assert.GreaterOrEqual(t, r.Mismatch.ReynoldsRatio, 0.15, "Re ratio: about a fifth (demo-world hand estimate)")
+	assert.LessOrEqual(t, r.Mismatch.ReynoldsRatio, 0.25, "Re ratio: about a fifth (demo-world hand estimate)")
+	assert.True(t, planBound(r, facilities.ConstraintDynamic), "binding %v: want q-limited", r.Binding)
 	// "In cn2-05 at M 0.78, q_max holds p0 near 245 kPa and the condensation rule,
 	// not the 100 K floor, sets the lowest usable T0 (near 104 K)" (hand
 	// estimate): the Mach-first plan sits on q_max with p0 within 5 % of 245 kPa,
@@ -181,19 +165,18 @@ func TestPlanDemo(t *testing.T) {
 	rc, err := similarity.Plan(&similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: cn2}, nil)
 	require.NoError(t, err)
 	p0 := rc.Test.StagnationPressure
-	if planRel(p0, 245e3) > 0.05 || !planBound(rc, facilities.ConstraintDynamic) {
-		t.Errorf("cn2-05: p0 %.4g Pa (binding %v), want about 245 kPa on q_max", p0, rc.Binding)
-	}
+	assert.InEpsilon(t, 245e3, p0, 0.05, "cn2-05: p0, Pa (demo-world hand estimate)")
+	assert.True(t, planBound(rc, facilities.ConstraintDynamic), "cn2-05: binding %v: want q_max", rc.Binding)
 	t0, lim, err := similarity.LowestStagnationTemperature(cn2, rc.Test.Mach, p0)
 	require.NoError(t, err)
-	if lim != facilities.ConstraintCondensation || !(t0 > cn2.StagnationTemperature.Min) || planRel(t0, 104) > 0.03 {
-		t.Errorf("lowest T0 %.5g K set by %s, want condensation near 104 K, above the %g K floor", t0, lim, cn2.StagnationTemperature.Min)
-	}
+	assert.Equal(t, facilities.ConstraintCondensation, lim, "limit that sets the lowest T0")
+	assert.Greater(t, t0, cn2.StagnationTemperature.Min, "lowest T0, K: above the floor")
+	assert.InEpsilon(t, 104, t0, 0.03, "lowest T0, K (demo-world hand estimate)")
 	st, err := cn2.State(facilities.Setting{Mach: rc.Test.Mach, StagnationPressure: p0, StagnationTemperature: t0})
 	require.NoError(t, err)
-	if m := cn2.CondensationMargin(st); m < 0 || m > 1e-9 {
-		t.Errorf("margin at the lowest T0: %g, want 0 (to 1e-9)", m)
-	}
+	m := cn2.CondensationMargin(st)
+	assert.GreaterOrEqual(t, m, 0.0, "condensation margin at the lowest T0")
+	assert.LessOrEqual(t, m, 1e-9, "condensation margin at the lowest T0")
 }
 
 // TestPlanBindingGains re-solves with each binding limit relaxed by 1 %, building
@@ -224,9 +207,7 @@ func TestPlanBindingGains(t *testing.T) {
 			p := similarity.Problem{Flight: fs, Article: &orrinJ16, Facility: f, LoadLimit: c.load}
 			r, err := similarity.Plan(&p, &similarity.Settings{TradePoints: -1})
 			require.NoError(t, err)
-			if len(r.Binding) == 0 {
-				t.Fatal("no binding limit")
-			}
+			require.NotEmpty(t, r.Binding, "binding limits")
 			for _, b := range r.Binding {
 				g := *f
 				q := p
@@ -246,17 +227,13 @@ func TestPlanBindingGains(t *testing.T) {
 				case facilities.ConstraintBalance:
 					q.LoadLimit = quadLoad{K: 1, Limit: 60 * 1.01}
 				default:
-					t.Fatalf("no hand relaxation for %s", b.Constraint)
+					require.FailNow(t, "no hand relaxation", "%s", b.Constraint)
 				}
 				r2, err := similarity.Plan(&q, &similarity.Settings{TradePoints: -1, NoGains: true})
 				require.NoError(t, err)
 				want := 100 * (r2.Test.Reynolds/r.Test.Reynolds - 1)
-				if math.Abs(b.ReynoldsGainPerPercent-want) > 1e-6 {
-					t.Errorf("%s: gain %.8g %%, re-solve gives %.8g %%", b.Constraint, b.ReynoldsGainPerPercent, want)
-				}
-				if !(want > 0) {
-					t.Errorf("%s: relaxing a binding limit gains %.3g %%", b.Constraint, want)
-				}
+				assert.InDelta(t, want, b.ReynoldsGainPerPercent, 1e-6, "%s: gain, %%, against the re-solve", b.Constraint)
+				assert.Greater(t, want, 0.0, "%s: gain, %%, of relaxing a binding limit", b.Constraint)
 			}
 		})
 	}
