@@ -2,7 +2,6 @@ package similarity_test
 
 import (
 	"math"
-	"strings"
 	"testing"
 
 	"scalematch/internal/testfixture"
@@ -85,10 +84,8 @@ func TestTable(t *testing.T) {
 			assert.False(t, stalled, "a table is never stalled")
 			g := [6]float64{got.CL, got.CD, got.Cm, got.CY, got.Cl, got.Cn}
 			w := [6]float64{c.want.CL, c.want.CD, c.want.Cm, c.want.CY, c.want.Cl, c.want.Cn}
-			for i := range g {
-				if math.Abs(g[i]-w[i]) > 1e-12 {
-					t.Fatalf("got %+v, want %+v", got, c.want)
-				}
+			for i, name := range [6]string{"C_L", "C_D", "C_m", "C_Y", "C_l", "C_n"} {
+				assert.InDelta(t, w[i], g[i], 1e-12, "%s (interpolated by hand above)", name)
 			}
 		})
 	}
@@ -130,27 +127,12 @@ func TestAeroValidate(t *testing.T) {
 			t.Parallel()
 			a := orrin()
 			c.mod(&a)
-			got := fieldsOf(t, a.Validate())
-			if !contains(got, c.want) {
-				t.Errorf("fields %q, want %q", got, c.want)
-			}
+			assert.Contains(t, fieldsOf(t, a.Validate()), c.want)
 		})
 	}
-	if err := orrin().Validate(); err != nil {
-		t.Errorf("valid estimate: %v", err)
-	}
-	if fs := fieldsOf(t, (similarity.Aero{}).Validate()); len(fs) < 3 {
-		t.Errorf("zero estimate: fields %q, want lift_slope, cl_max, cd_min at least", fs)
-	}
-}
-
-func contains(list []string, s string) bool {
-	for _, v := range list {
-		if v == s {
-			return true
-		}
-	}
-	return false
+	assert.NoError(t, orrin().Validate(), "valid estimate")
+	assert.GreaterOrEqual(t, len(fieldsOf(t, (similarity.Aero{}).Validate())), 3,
+		"zero estimate: fields, want lift_slope, cl_max, cd_min at least")
 }
 
 func TestSweep(t *testing.T) {
@@ -177,15 +159,13 @@ func TestSweep(t *testing.T) {
 			t.Parallel()
 			got, err := c.s.Angles("alpha")
 			if c.field != "" {
-				if fs := fieldsOf(t, err); !contains(fs, c.field) {
-					t.Errorf("fields %q, want %q", fs, c.field)
-				}
+				assert.Contains(t, fieldsOf(t, err), c.field)
 				return
 			}
 			require.NoError(t, err)
-			if len(got) != c.n || math.Abs(got[0]-c.first) > 1e-12 || math.Abs(got[len(got)-1]-c.last) > 1e-12 {
-				t.Errorf("%d angles %g … %g, want %d, %g … %g", len(got), got[0], got[len(got)-1], c.n, c.first, c.last)
-			}
+			require.Len(t, got, c.n, "angles")
+			assert.InDelta(t, c.first, got[0], 1e-12, "first angle, °")
+			assert.InDelta(t, c.last, got[len(got)-1], 1e-12, "last angle, °")
 		})
 	}
 }
@@ -194,23 +174,21 @@ func TestMatrix(t *testing.T) {
 	t.Parallel()
 	mx, err := orrin().Matrix(similarity.Sweep{From: -4, To: 16, Step: 2}, &similarity.Sweep{From: -4, To: 4, Step: 4})
 	require.NoError(t, err)
-	if mx.AlphaPoints != 11 || mx.BetaValues != 3 || len(mx.Points) != 33 {
-		t.Fatalf("matrix %d α × %d β = %d points, want 11 × 3 = 33", mx.AlphaPoints, mx.BetaValues, len(mx.Points))
-	}
-	if p := mx.Points[11]; p.Alpha != -4 || p.Beta != 0 {
-		t.Errorf("point 11 at α %g β %g, want the second run's first point α −4 β 0", p.Alpha, p.Beta)
-	}
+	require.Equal(t, 11, mx.AlphaPoints, "α points")
+	require.Equal(t, 3, mx.BetaValues, "β values")
+	require.Len(t, mx.Points, 33, "points, 11 × 3")
+	// Point 11 is the second run's first point: α −4°, β 0°.
+	assert.Equal(t, -4.0, mx.Points[11].Alpha, "point 11: α, °")
+	assert.Equal(t, 0.0, mx.Points[11].Beta, "point 11: β, °")
 	// C_L = 1.3 at α ≥ 1.3/(5·π/180) − 1.5 = 13.4°: α 14 and 16 in each of 3 runs.
-	if mx.Stalled != 6 || len(mx.Warnings) != 1 || !strings.Contains(mx.Warnings[0], "α 14° to 16°") {
-		t.Errorf("stalled %d, warnings %q; want 6 and one naming α 14° to 16°", mx.Stalled, mx.Warnings)
+	assert.Equal(t, 6, mx.Stalled, "stalled points")
+	if assert.Len(t, mx.Warnings, 1, "warnings") {
+		assert.Contains(t, mx.Warnings[0], "α 14° to 16°", "stall warning")
 	}
-	if _, err := table().Matrix(similarity.Sweep{From: 0, To: 12, Step: 2}, nil); !contains(fieldsOf(t, err), "alpha") {
-		t.Errorf("sweep beyond the table: %v, want a field error on alpha", err)
-	}
-	if _, err := table().Matrix(similarity.Sweep{From: 0, To: 10, Step: 2}, &similarity.Sweep{From: 0, To: 10, Step: 5}); !contains(fieldsOf(t, err), "beta") {
-		t.Errorf("β beyond the table: %v, want a field error on beta", err)
-	}
-	if _, err := orrin().Matrix(similarity.Sweep{From: -10, To: 10, Step: 0.1}, &similarity.Sweep{From: 0, To: 20, Step: 1}); !contains(fieldsOf(t, err), "beta") {
-		t.Errorf("201 × 21 points: %v, want a field error on beta", err)
-	}
+	_, err = table().Matrix(similarity.Sweep{From: 0, To: 12, Step: 2}, nil)
+	assert.Contains(t, fieldsOf(t, err), "alpha", "sweep beyond the table")
+	_, err = table().Matrix(similarity.Sweep{From: 0, To: 10, Step: 2}, &similarity.Sweep{From: 0, To: 10, Step: 5})
+	assert.Contains(t, fieldsOf(t, err), "beta", "β beyond the table")
+	_, err = orrin().Matrix(similarity.Sweep{From: -10, To: 10, Step: 0.1}, &similarity.Sweep{From: 0, To: 20, Step: 1})
+	assert.Contains(t, fieldsOf(t, err), "beta", "201 × 21 points")
 }

@@ -2,7 +2,6 @@ package similarity_test
 
 import (
 	"bufio"
-	"errors"
 	"math"
 	"os"
 	"scalematch/internal/testfixture"
@@ -38,17 +37,13 @@ func readFactors(t *testing.T) []factorRow {
 			continue
 		}
 		cols := strings.Split(line, "\t")
-		if len(cols) != 4 {
-			t.Fatalf("%s:%d: want 4 tab-separated columns, got %d", factorsFile, n, len(cols))
-		}
+		require.Len(t, cols, 4, "%s:%d: tab-separated columns", factorsFile, n)
 		v, err := strconv.ParseFloat(cols[2], 64)
 		require.NoError(t, err, "%s:%d", factorsFile, n)
 		rows = append(rows, factorRow{quantity: cols[0], si: cols[1], value: v, line: n})
 	}
 	require.NoError(t, sc.Err())
-	if len(rows) < 90 {
-		t.Fatalf("%s has %d rows; the generator writes over 90", factorsFile, len(rows))
-	}
+	require.GreaterOrEqual(t, len(rows), 90, "%s: rows; the generator writes over 90", factorsFile)
 	return rows
 }
 
@@ -177,8 +172,8 @@ func TestParseQuantityErrors(t *testing.T) {
 			require.Error(t, err, "ParseQuantity(%q) = %g", c.in, v)
 			assert.ErrorIs(t, err, c.kind, "ParseQuantity(%q)", c.in)
 			var ue *similarity.UnitError
-			if !errors.As(err, &ue) || ue.Input == "" && c.in != "" {
-				t.Errorf("ParseQuantity(%q) error %T does not carry its input", c.in, err)
+			if assert.ErrorAs(t, err, &ue, "ParseQuantity(%q)", c.in) && c.in != "" {
+				assert.NotEmpty(t, ue.Input, "ParseQuantity(%q): the error's input", c.in)
 			}
 			assert.ErrorContains(t, err, c.msg, "ParseQuantity(%q)", c.in)
 		})
@@ -262,8 +257,10 @@ func TestToSIErrors(t *testing.T) {
 			v, err := similarity.ToSI(c.in, c.field)
 			require.Error(t, err, "ToSI(%q, %q) = %g", c.in, c.field, v)
 			assert.ErrorIs(t, err, c.kind, "ToSI(%q, %q)", c.in, c.field)
-			if c.exact && err.Error() != c.msg || !c.exact && !strings.Contains(err.Error(), c.msg) {
-				t.Errorf("ToSI(%q, %q) error\n  %s\nwant\n  %s", c.in, c.field, err, c.msg)
+			if c.exact {
+				assert.EqualError(t, err, c.msg, "ToSI(%q, %q)", c.in, c.field)
+			} else {
+				assert.ErrorContains(t, err, c.msg, "ToSI(%q, %q)", c.in, c.field)
 			}
 		})
 	}
@@ -298,33 +295,25 @@ func TestDimension(t *testing.T) {
 			assert.Equal(t, c.want, d, "ParseDimension(%q)", c.in)
 			assert.Equal(t, c.str, d.String())
 			back, err := similarity.ParseDimension(d.String())
-			if err != nil || back != d {
-				t.Errorf("ParseDimension(%q) = %v, %v: does not read String back", d.String(), back, err)
-			}
+			require.NoError(t, err, "ParseDimension(%q): String read back", d.String())
+			assert.Equal(t, d, back, "ParseDimension(%q): String read back", d.String())
 		})
 	}
 	for _, bad := range []string{"", "  ", "M L^", "kg m", "M^99", "L^-61", "X", "M L^1.5"} {
-		if d, err := similarity.ParseDimension(bad); err == nil {
-			t.Errorf("ParseDimension(%q) = %v, want an error", bad, d)
-		} else if !errors.Is(err, similarity.ErrDimension) {
-			t.Errorf("ParseDimension(%q) error %q is not ErrDimension", bad, err)
-		}
+		d, err := similarity.ParseDimension(bad)
+		assert.ErrorIs(t, err, similarity.ErrDimension, "ParseDimension(%q) = %v", bad, d)
 	}
 }
 
 func TestDimensionText(t *testing.T) {
 	t.Parallel()
 	var d similarity.Dimension
-	if err := d.UnmarshalText([]byte("M L^-3")); err != nil || d != similarity.DimDensity {
-		t.Fatalf("UnmarshalText = %v, %v", d, err)
-	}
-	b, _ := d.MarshalText()
-	if string(b) != "M L^-3" {
-		t.Errorf("MarshalText = %q", b)
-	}
-	if err := d.UnmarshalText([]byte("Q")); err == nil {
-		t.Errorf("UnmarshalText(Q) succeeded")
-	}
+	require.NoError(t, d.UnmarshalText([]byte("M L^-3")))
+	require.Equal(t, similarity.DimDensity, d, "UnmarshalText")
+	b, err := d.MarshalText()
+	require.NoError(t, err)
+	assert.Equal(t, "M L^-3", string(b), "MarshalText")
+	assert.Error(t, d.UnmarshalText([]byte("Q")), "UnmarshalText(Q)")
 }
 
 // TestMicrometre checks the three spellings of the micrometre (exact: 1e-6 m, SI
@@ -334,8 +323,7 @@ func TestMicrometre(t *testing.T) {
 	for _, u := range []string{"\u00b5m", "\u03bcm", "um"} {
 		v, dim, err := similarity.ParseQuantity("25 " + u)
 		require.NoError(t, err, "%q", u)
-		if math.Abs(v/25e-6-1) > 1e-15 || dim != similarity.DimLength {
-			t.Errorf("25 %s = %g (dim %v), want 2.5e-05 m", u, v, dim)
-		}
+		assert.InEpsilon(t, 25e-6, v, 1e-15, "25 %s, m", u)
+		assert.Equal(t, similarity.DimLength, dim, "25 %s", u)
 	}
 }
