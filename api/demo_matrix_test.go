@@ -7,7 +7,6 @@ import (
 	"math"
 	"net/http"
 	"net/http/httptest"
-	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -16,6 +15,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/loads"
 
+	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 )
 
@@ -106,9 +106,7 @@ func matrixFinite(t *testing.T, body []byte) string {
 	dec := json.NewDecoder(bytes.NewReader(body))
 	dec.UseNumber()
 	var v any
-	if err := dec.Decode(&v); err != nil {
-		t.Fatalf("answer is not JSON: %v: %s", err, body)
-	}
+	require.NoError(t, dec.Decode(&v), "answer is not JSON: %s", body)
 	var walk func(v any, path string) string
 	walk = func(v any, path string) string {
 		switch x := v.(type) {
@@ -162,47 +160,38 @@ func matrixPlanBody(a matrixAircraft, f matrixFacility) string {
 func checkMatrixReport(t *testing.T, r *loads.Report, q float64, within bool) {
 	t.Helper()
 	alphas := matrixAlphas()
-	if len(r.Points) != len(alphas) {
-		t.Fatalf("balance %s: %d load points, want %d", r.BalanceID, len(r.Points), len(alphas))
-	}
+	require.Len(t, r.Points, len(alphas), "balance %s: load points", r.BalanceID)
 	// Safety factors of the demo balances (docs/demo-world.md).
 	wantSF := map[string]float64{"hyd-m": 2.0}[r.BalanceID]
 	if wantSF == 0 {
 		wantSF = 1.5
 	}
-	if r.SafetyFactor != wantSF || math.Abs(r.AllowedUtilization-1/wantSF) > 1e-12 {
-		t.Errorf("balance %s: safety factor %g, allowed %g; want %g (docs/demo-world.md)", r.BalanceID, r.SafetyFactor, r.AllowedUtilization, wantSF)
-	}
+	assert.Equal(t, wantSF, r.SafetyFactor, "balance %s: safety factor (docs/demo-world.md)", r.BalanceID)
+	assert.InDelta(t, 1/wantSF, r.AllowedUtilization, 1e-12, "balance %s: allowed utilisation, 1/safety factor (docs/demo-world.md)", r.BalanceID)
 	worst := 0.0
 	for i, p := range r.Points {
-		if math.Abs(p.Alpha-alphas[i]) > 1e-9 {
-			t.Errorf("balance %s: point %d at α %g°, want %g°", r.BalanceID, i, p.Alpha, alphas[i])
-		}
-		if !(p.Utilization >= 0) || p.Limiting == "" {
-			t.Errorf("balance %s α %g°: utilisation %g on %q", r.BalanceID, p.Alpha, p.Utilization, p.Limiting)
-		}
-		if within && p.Utilization > r.AllowedUtilization*(1+1e-9) {
-			t.Errorf("balance %s α %g°: utilisation %.9g above the allowed %.9g (%s)", r.BalanceID, p.Alpha, p.Utilization, r.AllowedUtilization, p.Limiting)
+		assert.InDelta(t, alphas[i], p.Alpha, 1e-9, "balance %s: point %d: α, °", r.BalanceID, i)
+		assert.GreaterOrEqual(t, p.Utilization, 0.0, "balance %s α %g°: utilisation", r.BalanceID, p.Alpha)
+		assert.NotEmpty(t, p.Limiting, "balance %s α %g°: limiting component", r.BalanceID, p.Alpha)
+		if within {
+			assert.LessOrEqual(t, p.Utilization, r.AllowedUtilization*(1+1e-9), "balance %s α %g°: utilisation on %s against the allowed", r.BalanceID, p.Alpha, p.Limiting)
 		}
 		worst = math.Max(worst, p.Utilization)
 	}
-	if math.Abs(worst-r.MaxUtilization) > 1e-12*worst || r.Limiting.Component == "" {
-		t.Errorf("balance %s: max utilisation %g on %q, the points' largest is %g", r.BalanceID, r.MaxUtilization, r.Limiting.Component, worst)
-	}
-	if r.WithinLimits != within {
-		t.Errorf("balance %s: within limits %v, want %v", r.BalanceID, r.WithinLimits, within)
-	}
-	if math.Abs(r.DynamicPressure-q) > 1e-9*q {
-		t.Errorf("balance %s: checked at q %g Pa, the test is at %g Pa", r.BalanceID, r.DynamicPressure, q)
-	}
+	assert.InDelta(t, worst, r.MaxUtilization, 1e-12*worst, "balance %s: max utilisation against the points' largest", r.BalanceID)
+	assert.NotEmpty(t, r.Limiting.Component, "balance %s: limiting component", r.BalanceID)
+	assert.Equal(t, within, r.WithinLimits, "balance %s: within limits", r.BalanceID)
+	assert.InDelta(t, q, r.DynamicPressure, 1e-9*q, "balance %s: q checked at, Pa, against the test's", r.BalanceID)
 	// Loads are affine in q, so a check within its limits at q has its largest safe
 	// q at or above q, and one beyond them below it.
-	if ms := float64(r.MaxSafeDynamicPressure); math.IsInf(ms, 0) || math.IsNaN(ms) || (within && ms < q*(1-1e-9)) || (!within && ms > q*(1+1e-9)) {
-		t.Errorf("balance %s: max safe dynamic pressure %g Pa against the test's %g Pa (within limits %v)", r.BalanceID, ms, q, within)
+	ms := float64(r.MaxSafeDynamicPressure)
+	assert.False(t, math.IsInf(ms, 0) || math.IsNaN(ms), "balance %s: max safe dynamic pressure %g Pa is not finite", r.BalanceID, ms)
+	if within {
+		assert.GreaterOrEqual(t, ms, q*(1-1e-9), "balance %s within limits: max safe dynamic pressure, Pa, against the test's", r.BalanceID)
+	} else {
+		assert.LessOrEqual(t, ms, q*(1+1e-9), "balance %s beyond limits: max safe dynamic pressure, Pa, against the test's", r.BalanceID)
 	}
-	if !r.WeightIncluded {
-		t.Errorf("balance %s: the model's weight is left out though model_mass is given", r.BalanceID)
-	}
+	assert.True(t, r.WeightIncluded, "balance %s: the model's weight is left out though model_mass is given", r.BalanceID)
 }
 
 // matrixEstimatesCaution is a phrase of the standing caution every load answer
@@ -232,16 +221,12 @@ func TestDemoMatrix(t *testing.T) {
 			name := a.name + " in " + f.id
 			t.Run(strings.ReplaceAll(name, " ", "_"), func(t *testing.T) {
 				code, ctype, body := matrixPost(t, ts, "/v1/plans", matrixPlanBody(a, f))
-				if p := matrixFinite(t, body); p != "" {
-					t.Fatalf("non-finite number at %s: %s", p, body)
-				}
+				require.Empty(t, matrixFinite(t, body), "non-finite number in %s", body)
 				if matrixInfeasible[name] {
 					checkMatrixProblem(t, code, ctype, body)
 					return
 				}
-				if code != http.StatusOK {
-					t.Fatalf("status %d, want a plan: %s", code, body)
-				}
+				require.Equal(t, http.StatusOK, code, "status, want a plan: %s", body)
 				plan := checkMatrixPlan(t, f, body)
 				var binds []string
 				for _, b := range plan.Binding {
@@ -259,17 +244,13 @@ func TestDemoMatrix(t *testing.T) {
 // checkMatrixProblem checks a 422 answer: an RFC 9457 problem naming the limits.
 func checkMatrixProblem(t *testing.T, code int, ctype string, body []byte) {
 	t.Helper()
-	if code != http.StatusUnprocessableEntity {
-		t.Fatalf("status %d, want 422: %s", code, body)
-	}
-	if !strings.HasPrefix(ctype, "application/problem+json") {
-		t.Errorf("content type %q, want application/problem+json", ctype)
-	}
+	require.Equal(t, http.StatusUnprocessableEntity, code, "status: %s", body)
+	assert.True(t, strings.HasPrefix(ctype, "application/problem+json"), "content type %q, want application/problem+json", ctype)
 	var p schema.Problem
 	require.NoError(t, json.Unmarshal(body, &p))
-	if p.Status != 422 || len(p.Limits) == 0 || p.Detail == "" {
-		t.Errorf("422 problem without status, detail or limits: %s", body)
-	}
+	assert.Equal(t, 422, p.Status, "problem's status: %s", body)
+	assert.NotEmpty(t, p.Limits, "problem's limits: %s", body)
+	assert.NotEmpty(t, p.Detail, "problem's detail: %s", body)
 }
 
 // checkMatrixPlan checks one plan answer and returns it decoded.
@@ -279,56 +260,42 @@ func checkMatrixPlan(t *testing.T, f matrixFacility, body []byte) *schema.PlanRe
 	require.NoError(t, json.Unmarshal(body, &raw))
 	for _, k := range []string{"id", "flight", "model", "test", "mismatch", "binding", "corrections", "loads",
 		"reynolds_effects", "schedule", "warnings", "cautions"} {
-		if v, ok := raw[k]; !ok || string(v) == "null" {
-			t.Errorf("plan has no %q", k)
+		if assert.Contains(t, raw, k, "plan") {
+			assert.NotEqual(t, "null", string(raw[k]), "plan's %q", k)
 		}
 	}
 	var plan schema.PlanResponse
 	require.NoError(t, json.Unmarshal(body, &plan))
-	if plan.Loads == nil || plan.ReynoldsEffects == nil || plan.Schedule == nil {
-		t.Fatalf("plan lacks loads, Reynolds effects or schedule: %s", body)
-	}
+	require.NotNil(t, plan.Loads, "plan's loads: %s", body)
+	require.NotNil(t, plan.ReynoldsEffects, "plan's Reynolds effects: %s", body)
+	require.NotNil(t, plan.Schedule, "plan's schedule: %s", body)
 	checkMatrixReport(t, plan.Loads, plan.Test.DynamicPressure, true)
-	if plan.Loads.MaxUtilization > plan.Loads.AllowedUtilization*(1+1e-9) {
-		t.Errorf("plan loads balance %s to %.9g of its rating, above the %.9g allowed", plan.Loads.BalanceID, plan.Loads.MaxUtilization, plan.Loads.AllowedUtilization)
-	}
+	assert.LessOrEqual(t, plan.Loads.MaxUtilization, plan.Loads.AllowedUtilization*(1+1e-9), "plan's utilisation of balance %s against the allowed", plan.Loads.BalanceID)
 	// The reads of the plan that must stay physical: a positive scale, test
 	// Reynolds number and dynamic pressure; a q_c/q of at least 1 (blockage only
 	// speeds the flow up, physics.md §7) or exactly 1 where no correction applies.
-	if !(plan.Model.Scale > 0) || !(plan.Test.Reynolds > 0) || !(plan.Test.DynamicPressure > 0) {
-		t.Errorf("scale %g, test Re %g, q %g Pa", plan.Model.Scale, plan.Test.Reynolds, plan.Test.DynamicPressure)
-	}
+	assert.Greater(t, plan.Model.Scale, 0.0, "scale")
+	assert.Greater(t, plan.Test.Reynolds, 0.0, "test Reynolds number")
+	assert.Greater(t, plan.Test.DynamicPressure, 0.0, "test q, Pa")
 	fac, ok := facilities.DemoFacility(f.id)
-	if !ok {
-		t.Fatalf("no demo facility %s", f.id)
-	}
-	if lim := *fac.MaxSpanFraction * fac.TestSection.Width; plan.Model.Span > lim*(1+1e-9) {
-		t.Errorf("model span %g m above the %g m the section allows", plan.Model.Span, lim)
-	}
-	if plan.Model.Blockage > *fac.MaxBlockage*(1+1e-9) {
-		t.Errorf("blockage %g above the %g allowed", plan.Model.Blockage, *fac.MaxBlockage)
-	}
-	if c := plan.Corrections; c.Walls == "" || c.DynamicPressureFactor < 1 {
-		t.Errorf("corrections %+v", c)
-	}
+	require.True(t, ok, "no demo facility %s", f.id)
+	lim := *fac.MaxSpanFraction * fac.TestSection.Width
+	assert.LessOrEqual(t, plan.Model.Span, lim*(1+1e-9), "model span, m, against the %g m the section allows", lim)
+	assert.LessOrEqual(t, plan.Model.Blockage, *fac.MaxBlockage*(1+1e-9), "blockage against the allowed")
+	assert.NotEmpty(t, plan.Corrections.Walls, "corrections %+v: walls", plan.Corrections)
+	assert.GreaterOrEqual(t, plan.Corrections.DynamicPressureFactor, 1.0, "corrections %+v: q_c/q", plan.Corrections)
 	// 21 α points at one condition (no β sweep): the schedule counts them and takes
 	// some time.
-	if plan.Schedule.Points != 21 || !(plan.Schedule.Hours > 0) {
-		t.Errorf("schedule %+v, want 21 points and hours > 0", plan.Schedule)
-	}
-	if !hasCaution(plan.Cautions, matrixEstimatesCaution) {
-		t.Errorf("cautions %q lack the estimates caution", plan.Cautions)
-	}
-	if plan.Warnings == nil {
-		t.Errorf("warnings is null, want a list")
-	}
-	if f.water != (plan.Mismatch.MachDifference == nil) {
-		t.Errorf("mach difference %v in a water facility %v", plan.Mismatch.MachDifference, f.water)
-	}
-	if re := plan.ReynoldsEffects; !(re.SkinFrictionFlight > 0 && re.SkinFrictionTest > 0) ||
-		!(re.NaturalTransitionFraction >= 0 && re.NaturalTransitionFraction <= 1) {
-		t.Errorf("Reynolds effects %+v", re)
-	}
+	assert.Equal(t, 21, plan.Schedule.Points, "schedule's points")
+	assert.Greater(t, plan.Schedule.Hours, 0.0, "schedule's hours")
+	assert.True(t, hasCaution(plan.Cautions, matrixEstimatesCaution), "cautions %q lack the estimates caution", plan.Cautions)
+	assert.NotNil(t, plan.Warnings, "warnings is null, want a list")
+	assert.Equal(t, f.water, plan.Mismatch.MachDifference == nil, "Mach difference %v is left out exactly in water", plan.Mismatch.MachDifference)
+	re := plan.ReynoldsEffects
+	assert.Greater(t, re.SkinFrictionFlight, 0.0, "Reynolds effects: flight skin friction")
+	assert.Greater(t, re.SkinFrictionTest, 0.0, "Reynolds effects: test skin friction")
+	assert.GreaterOrEqual(t, re.NaturalTransitionFraction, 0.0, "Reynolds effects: natural transition fraction")
+	assert.LessOrEqual(t, re.NaturalTransitionFraction, 1.0, "Reynolds effects: natural transition fraction")
 	return &plan
 }
 
@@ -351,14 +318,11 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 	t.Run("loads_named", func(t *testing.T) {
 		out := matrixLoads(t, ts, body(fmt.Sprintf(`"balance_id": %q, `, plan.Loads.BalanceID)), "{")
 		r := out.Loads.One
-		if r == nil || r.BalanceID != plan.Loads.BalanceID {
-			t.Fatalf("loads %+v, want balance %s", r, plan.Loads.BalanceID)
-		}
+		require.NotNil(t, r, "loads of the named balance")
+		require.Equal(t, plan.Loads.BalanceID, r.BalanceID, "balance")
 		// The same model at the same state: the same test q (1e-9) and the same
 		// loads, point by point, as the plan's (1e-9 relative to the point's largest).
-		if math.Abs(out.Test.DynamicPressure-plan.Test.DynamicPressure) > 1e-9*plan.Test.DynamicPressure {
-			t.Errorf("q %g Pa, the plan's %g Pa", out.Test.DynamicPressure, plan.Test.DynamicPressure)
-		}
+		assert.InDelta(t, plan.Test.DynamicPressure, out.Test.DynamicPressure, 1e-9*plan.Test.DynamicPressure, "q, Pa, against the plan's")
 		checkMatrixReport(t, r, out.Test.DynamicPressure, true)
 		for i, p := range r.Points {
 			w := plan.Loads.Points[i]
@@ -369,40 +333,27 @@ func checkMatrixLoads(t *testing.T, ts *httptest.Server, a matrixAircraft, f mat
 				scale = math.Max(scale, math.Abs(v))
 			}
 			for k := range got {
-				if math.Abs(got[k]-want[k]) > 1e-9*scale+1e-12 {
-					t.Errorf("α %g° component %d: %.12g, the plan's %.12g", p.Alpha, k, got[k], want[k])
-				}
+				assert.InDelta(t, want[k], got[k], 1e-9*scale+1e-12, "α %g° component %d against the plan's", p.Alpha, k)
 			}
 		}
-		if len(out.Violations) != 0 {
-			t.Errorf("the plan's own state breaks facility limits: %+v", out.Violations)
-		}
-		if !hasCaution(out.Cautions, matrixEstimatesCaution) {
-			t.Errorf("cautions %q lack the estimates caution", out.Cautions)
-		}
+		assert.Empty(t, out.Violations, "the plan's own state breaks facility limits")
+		assert.True(t, hasCaution(out.Cautions, matrixEstimatesCaution), "cautions %q lack the estimates caution", out.Cautions)
 	})
 	t.Run("loads_all", func(t *testing.T) {
 		out := matrixLoads(t, ts, body(""), "[")
-		if len(out.Loads.All) != f.balances {
-			t.Fatalf("%d reports, want one per balance of %s (%d)", len(out.Loads.All), f.id, f.balances)
-		}
+		require.Len(t, out.Loads.All, f.balances, "reports, one per balance of %s", f.id)
 		found := false
 		for i := range out.Loads.All {
 			r := &out.Loads.All[i]
 			checkMatrixReport(t, r, out.Test.DynamicPressure, r.MaxUtilization <= r.AllowedUtilization*(1+1e-12))
 			if r.BalanceID == plan.Loads.BalanceID {
 				found = true
-				if !r.WithinLimits || math.Abs(r.MaxUtilization-plan.Loads.MaxUtilization) > 1e-9*plan.Loads.MaxUtilization {
-					t.Errorf("balance %s in the list: %.9g (within %v), the plan's %.9g", r.BalanceID, r.MaxUtilization, r.WithinLimits, plan.Loads.MaxUtilization)
-				}
+				assert.True(t, r.WithinLimits, "balance %s in the list: within limits", r.BalanceID)
+				assert.InDelta(t, plan.Loads.MaxUtilization, r.MaxUtilization, 1e-9*plan.Loads.MaxUtilization, "balance %s in the list: max utilisation against the plan's", r.BalanceID)
 			}
 		}
-		if !found {
-			t.Errorf("the list has no report of the plan's balance %s", plan.Loads.BalanceID)
-		}
-		if !hasCaution(out.Cautions, matrixEstimatesCaution) {
-			t.Errorf("cautions %q lack the estimates caution", out.Cautions)
-		}
+		assert.True(t, found, "the list has no report of the plan's balance %s", plan.Loads.BalanceID)
+		assert.True(t, hasCaution(out.Cautions, matrixEstimatesCaution), "cautions %q lack the estimates caution", out.Cautions)
 	})
 }
 
@@ -441,9 +392,7 @@ func TestDemoMatrixInfeasible(t *testing.T) {
 		require.NoError(t, json.Unmarshal([]byte(a.article), &art))
 		for _, f := range matrixFacilities {
 			fac, ok := facilities.DemoFacility(f.id)
-			if !ok {
-				t.Fatalf("no demo facility %s", f.id)
-			}
+			require.True(t, ok, "no demo facility %s", f.id)
 			sSpan := *fac.MaxSpanFraction * fac.TestSection.Width / art.Span
 			sBlock := math.Sqrt(*fac.MaxBlockage * fac.TestSection.CrossSection() / art.FrontalArea)
 			geom, limit := sSpan, facilities.ConstraintSpan
@@ -465,15 +414,11 @@ func TestDemoMatrixInfeasible(t *testing.T) {
 			for _, tc := range cases {
 				t.Run(strings.ReplaceAll(a.name, " ", "_")+"_in_"+f.id+"/"+tc.name, func(t *testing.T) {
 					code, ctype, body := matrixPost(t, ts, "/v1/plans", tc.body)
-					if p := matrixFinite(t, body); p != "" {
-						t.Fatalf("non-finite number at %s: %s", p, body)
-					}
+					require.Empty(t, matrixFinite(t, body), "non-finite number in %s", body)
 					checkMatrixProblem(t, code, ctype, body)
 					var p schema.Problem
 					require.NoError(t, json.Unmarshal(body, &p))
-					if !slices.Contains(p.Limits, tc.limit) {
-						t.Errorf("limits %q do not name %s: %s", p.Limits, tc.limit, p.Detail)
-					}
+					assert.Contains(t, p.Limits, tc.limit, "limits named: %s", p.Detail)
 				})
 			}
 		}
