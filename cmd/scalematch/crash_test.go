@@ -19,6 +19,9 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 const crashToken = "crash-test-token"
@@ -33,9 +36,7 @@ type crashServer struct {
 func freeAddr(t *testing.T) string {
 	t.Helper()
 	ln, err := net.Listen("tcp", "127.0.0.1:0")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	defer ln.Close()
 	return ln.Addr().String()
 }
@@ -47,9 +48,7 @@ func startServer(t *testing.T, bin, data string) *crashServer {
 	cmd.Env = append(os.Environ(), "SCALEMATCH_WRITE_TOKENS=crash:"+crashToken, "SCALEMATCH_DATABASE_URL=")
 	var log bytes.Buffer
 	cmd.Stdout, cmd.Stderr = &log, &log
-	if err := cmd.Start(); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, cmd.Start())
 	s := &crashServer{cmd: cmd, base: "http://" + addr, log: &log}
 	deadline := time.Now().Add(20 * time.Second)
 	for {
@@ -63,7 +62,7 @@ func startServer(t *testing.T, bin, data string) *crashServer {
 		if time.Now().After(deadline) {
 			cmd.Process.Kill()
 			cmd.Wait()
-			t.Fatalf("the server did not become ready: %v\n%s", err, log.String())
+			require.FailNow(t, "the server did not become ready", "%v\n%s", err, log.String())
 		}
 		time.Sleep(50 * time.Millisecond)
 	}
@@ -107,9 +106,8 @@ func TestCrashKeepsAcknowledgedWrites(t *testing.T) {
 	dir := t.TempDir()
 	bin := filepath.Join(dir, "scalematch")
 	build := exec.Command("go", "build", "-o", bin, ".")
-	if out, err := build.CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
-	}
+	out, err := build.CombinedOutput()
+	require.NoError(t, err, "go build: %s", out)
 	data := filepath.Join(dir, "data")
 	srv := startServer(t, bin, data)
 
@@ -135,11 +133,8 @@ func TestCrashKeepsAcknowledgedWrites(t *testing.T) {
 				f.ID, f.Name, f.Version = id, "created", 0 // no version in the body: If-Match carries it
 				body, _ := json.Marshal(f)
 				status, _, _, err := srv.do(http.MethodPost, "/v1/facilities", "", string(body))
-				if err != nil || status != http.StatusCreated {
-					if err == nil {
-						t.Errorf("create %s: status %d", id, status)
-					}
-					return
+				if err != nil || !assert.Equal(t, http.StatusCreated, status, "create %s: status", id) {
+					return // an error is the kill cutting the request
 				}
 				mu.Lock()
 				created[id], names[id] = 1, f.Name
@@ -148,11 +143,8 @@ func TestCrashKeepsAcknowledgedWrites(t *testing.T) {
 					f.Name = "edit " + strconv.Itoa(v)
 					body, _ = json.Marshal(f)
 					status, _, _, err := srv.do(http.MethodPut, "/v1/facilities/"+id, `"`+strconv.Itoa(v)+`"`, string(body))
-					if err != nil || status != http.StatusOK {
-						if err == nil {
-							t.Errorf("update %s: status %d", id, status)
-						}
-						return
+					if err != nil || !assert.Equal(t, http.StatusOK, status, "update %s: status", id) {
+						return // an error is the kill cutting the request
 					}
 					mu.Lock()
 					created[id], names[id] = v+1, f.Name
@@ -176,28 +168,20 @@ func TestCrashKeepsAcknowledgedWrites(t *testing.T) {
 		}(w)
 	}
 	time.Sleep(1500 * time.Millisecond)
-	if err := srv.cmd.Process.Signal(syscall.SIGKILL); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, srv.cmd.Process.Signal(syscall.SIGKILL))
 	srv.cmd.Wait()
 	close(stop)
 	wg.Wait()
 
 	mu.Lock()
 	defer mu.Unlock()
-	if len(created) == 0 {
-		t.Fatalf("no write was acknowledged before the kill\n%s", srv.log.String())
-	}
+	require.NotEmpty(t, created, "no write was acknowledged before the kill\n%s", srv.log.String())
 	t.Logf("acknowledged before SIGKILL: %d facilities, %d plans", len(created), len(plans))
 
 	// The store opens cleanly on its own...
 	db, err := sqlite.Open(context.Background(), sqlite.Path(data))
-	if err != nil {
-		t.Fatalf("the store does not open after the kill: %v", err)
-	}
-	if err := db.Ping(context.Background()); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err, "the store does not open after the kill")
+	require.NoError(t, db.Ping(context.Background()))
 	db.Close()
 
 	// ...and through a restarted server every acknowledged write is there.
@@ -208,26 +192,23 @@ func TestCrashKeepsAcknowledgedWrites(t *testing.T) {
 	}()
 	for id, version := range created {
 		status, h, body, err := srv.do(http.MethodGet, "/v1/facilities/"+id, "", "")
-		if err != nil || status != http.StatusOK {
-			t.Errorf("facility %s acknowledged at version %d is missing: %d %v", id, version, status, err)
+		if !assert.NoError(t, err, "facility %s acknowledged at version %d", id, version) ||
+			!assert.Equal(t, http.StatusOK, status, "facility %s acknowledged at version %d is missing", id, version) {
 			continue
 		}
 		// A write cut after commit but before its answer may be one version ahead.
 		got, _ := strconv.Atoi(string(bytes.Trim([]byte(h.Get("ETag")), `"`)))
-		if got < version {
-			t.Errorf("facility %s is at version %d, acknowledged %d", id, got, version)
-		}
+		assert.GreaterOrEqual(t, got, version, "facility %s: version against the acknowledged one", id)
 		var f facilities.Facility
-		if err := json.Unmarshal(body, &f); err != nil {
-			t.Errorf("facility %s: %v", id, err)
-		} else if got == version && f.Name != names[id] {
-			t.Errorf("facility %s at version %d is named %q, acknowledged %q", id, version, f.Name, names[id])
+		if assert.NoError(t, json.Unmarshal(body, &f), "facility %s", id) && got == version {
+			assert.Equal(t, names[id], f.Name, "facility %s at version %d: name against the acknowledged one", id, version)
 		}
 	}
 	for id, want := range plans {
 		status, _, body, err := srv.do(http.MethodGet, "/v1/plans/"+id, "", "")
-		if err != nil || status != http.StatusOK || !bytes.Equal(body, want) {
-			t.Errorf("plan %s acknowledged before the kill: %d %v, body equal %v", id, status, err, bytes.Equal(body, want))
+		if assert.NoError(t, err, "plan %s acknowledged before the kill", id) &&
+			assert.Equal(t, http.StatusOK, status, "plan %s acknowledged before the kill", id) {
+			assert.Equal(t, string(want), string(body), "plan %s: body against the acknowledged one", id)
 		}
 	}
 }
