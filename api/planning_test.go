@@ -87,33 +87,18 @@ func TestPlanErrors(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			code, b := post(t, ts, "/v1/plans", tc.body)
-			if code != tc.status {
-				t.Fatalf("status %d, want %d: %s", code, tc.status, b)
-			}
+			require.Equal(t, tc.status, code, "status: %s", b)
 			var p problem
-			if err := json.Unmarshal(b, &p); err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, json.Unmarshal(b, &p))
 			got := fields(p)
 			for _, f := range tc.fields {
-				if !contains(got, f) {
-					t.Errorf("fields %v do not name %q", got, f)
-				}
+				assert.Contains(t, got, f, "fields named")
 			}
-			if tc.status == 422 && len(p.Limits) == 0 {
-				t.Errorf("422 without limits: %s", b)
+			if tc.status == 422 {
+				assert.NotEmpty(t, p.Limits, "422 without limits: %s", b)
 			}
 		})
 	}
-}
-
-func contains(list []string, s string) bool {
-	for _, v := range list {
-		if v == s {
-			return true
-		}
-	}
-	return false
 }
 
 func TestPlanRepeatable(t *testing.T) {
@@ -122,59 +107,46 @@ func TestPlanRepeatable(t *testing.T) {
 	// The same request written differently (unit strings, key order) is the same plan.
 	alt := strings.Replace(testfixture.J16Plan, `"reference_length": 2.4`, `"reference_length": "240 cm"`, 1)
 	c2, b2 := post(t, ts, "/v1/plans", alt)
-	if c1 != 200 || c2 != 200 {
-		t.Fatalf("status %d, %d", c1, c2)
-	}
-	if !bytes.Equal(b1, b2) {
-		t.Errorf("the same plan answered differently:\n%s\n%s", b1, b2)
-	}
+	require.Equal(t, 200, c1, "status: %s", b1)
+	require.Equal(t, 200, c2, "status: %s", b2)
+	assert.Equal(t, string(b1), string(b2), "the same plan answered differently")
 }
 
 func TestPlanTooLarge(t *testing.T) {
 	ts := newServer(t)
 	code, _ := post(t, ts, "/v1/plans", `{"flight": "`+strings.Repeat("x", api.BodyLimit)+`"}`)
-	if code != http.StatusRequestEntityTooLarge {
-		t.Errorf("status %d, want 413", code)
-	}
+	assert.Equal(t, http.StatusRequestEntityTooLarge, code, "status")
 }
 
 func TestBatch(t *testing.T) {
 	ts := newServer(t)
 	bad := strings.Replace(testfixture.J16Plan, `"tsw-1"`, `"no-such"`, 1)
 	code, b := post(t, ts, "/v1/plans/batch", `{"requests": [`+testfixture.J16Plan+`,`+bad+`,`+testfixture.J16Plan+`,{"flight": 3}]}`)
-	if code != 200 {
-		t.Fatalf("status %d: %s", code, b)
-	}
+	require.Equal(t, 200, code, "status: %s", b)
 	var out struct {
 		Results []struct {
 			Plan  json.RawMessage `json:"plan"`
 			Error *problem        `json:"error"`
 		} `json:"results"`
 	}
-	if err := json.Unmarshal(b, &out); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal(b, &out))
 	want := []int{200, 404, 200, 400}
-	if len(out.Results) != len(want) {
-		t.Fatalf("%d results, want %d", len(out.Results), len(want))
-	}
+	require.Len(t, out.Results, len(want), "results")
 	_, single := post(t, ts, "/v1/plans", testfixture.J16Plan)
 	for i, r := range out.Results {
-		switch {
-		case want[i] == 200 && (r.Plan == nil || r.Error != nil):
-			t.Errorf("result %d: want a plan", i)
-		case want[i] == 200 && !bytes.Equal(r.Plan, single):
-			t.Errorf("result %d differs from the single plan", i)
-		case want[i] != 200 && (r.Error == nil || r.Error.Status != want[i]):
-			t.Errorf("result %d: want a problem with status %d, got %+v", i, want[i], r.Error)
+		if want[i] == 200 {
+			if assert.NotNil(t, r.Plan, "result %d: want a plan", i) && assert.Nil(t, r.Error, "result %d: want a plan", i) {
+				assert.Equal(t, string(single), string(r.Plan), "result %d against the single plan", i)
+			}
+		} else if assert.NotNil(t, r.Error, "result %d: want a problem", i) {
+			assert.Equal(t, want[i], r.Error.Status, "result %d: problem's status", i)
 		}
 	}
 	code, b = post(t, ts, "/v1/plans/batch", `{"requests": [`+strings.Repeat(`{},`, schema.MaxBatch)+`{}]}`)
 	var p problem
-	json.Unmarshal(b, &p)
-	if code != 400 || !contains(fields(p), "requests") {
-		t.Errorf("oversized batch: status %d, fields %v", code, fields(p))
-	}
+	require.NoError(t, json.Unmarshal(b, &p))
+	assert.Equal(t, 400, code, "oversized batch: status")
+	assert.Contains(t, fields(p), "requests", "oversized batch: fields")
 }
 
 // j16Loads is testfixture.J16Loads with BALANCE where a balance_id may go.
@@ -193,24 +165,20 @@ func TestLoadsObjectOrList(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			code, b := post(t, ts, "/v1/loads", strings.Replace(j16Loads, "BALANCE", tc.balance, 1))
-			if code != 200 {
-				t.Fatalf("status %d: %s", code, b)
-			}
+			require.Equal(t, 200, code, "status: %s", b)
 			var out struct {
 				Loads json.RawMessage `json:"loads"`
 			}
-			json.Unmarshal(b, &out)
+			require.NoError(t, json.Unmarshal(b, &out))
 			if tc.list == 0 {
 				var one map[string]any
-				if err := json.Unmarshal(out.Loads, &one); err != nil || one["balance_id"] != "int-b2" {
-					t.Errorf("want one object for int-b2, got %s", out.Loads)
-				}
+				require.NoError(t, json.Unmarshal(out.Loads, &one), "want one object, got %s", out.Loads)
+				assert.Equal(t, "int-b2", one["balance_id"], "balance of the one object")
 				return
 			}
 			var list []map[string]any
-			if err := json.Unmarshal(out.Loads, &list); err != nil || len(list) != tc.list {
-				t.Errorf("want a list of %d, got %s", tc.list, out.Loads)
-			}
+			require.NoError(t, json.Unmarshal(out.Loads, &list), "want a list, got %s", out.Loads)
+			assert.Len(t, list, tc.list, "reports")
 		})
 	}
 }
@@ -237,9 +205,7 @@ func TestConditions(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			code, b := post(t, ts, "/v1/conditions", tc.body)
-			if code != tc.status {
-				t.Fatalf("status %d, want %d: %s", code, tc.status, b)
-			}
+			require.Equal(t, tc.status, code, "status: %s", b)
 			if code != 200 {
 				return
 			}
@@ -248,18 +214,14 @@ func TestConditions(t *testing.T) {
 					Constraint string `json:"constraint"`
 				} `json:"violations"`
 			}
-			if !bytes.Contains(b, []byte(`"violations":[`)) {
-				t.Errorf("violations is not a list: %s", b)
-			}
-			json.Unmarshal(b, &out)
+			assert.Contains(t, string(b), `"violations":[`, "violations is not a list")
+			require.NoError(t, json.Unmarshal(b, &out))
 			var got []string
 			for _, v := range out.Violations {
 				got = append(got, v.Constraint)
 			}
 			for _, w := range tc.violations {
-				if !contains(got, w) {
-					t.Errorf("violations %v lack %s", got, w)
-				}
+				assert.Contains(t, got, w, "violations")
 			}
 		})
 	}
@@ -272,26 +234,22 @@ func TestGroups(t *testing.T) {
 	code, b := post(t, ts, "/v1/groups", `{"variables": [{"name": "R", "unit": "N"}, {"name": "rho", "unit": "kg/m^3"},
 		{"name": "V", "unit": "m/s"}, {"name": "L", "unit": "m"}, {"name": "mu", "dimensions": "M L^-1 T^-1"}],
 		"repeating": ["rho", "V", "L"]}`)
-	if code != 200 {
-		t.Fatalf("status %d: %s", code, b)
-	}
+	require.Equal(t, 200, code, "status: %s", b)
 	var out struct {
 		Rank   int `json:"rank"`
 		Groups []struct {
 			Exponents map[string]any `json:"exponents"`
 		} `json:"groups"`
 	}
-	json.Unmarshal(b, &out)
-	if out.Rank != 3 || len(out.Groups) != 2 {
-		t.Fatalf("rank %d, %d groups: %s", out.Rank, len(out.Groups), b)
-	}
-	if e := out.Groups[0].Exponents; e["R"] != 1.0 || e["rho"] != -1.0 || e["V"] != -2.0 || e["L"] != -2.0 {
-		t.Errorf("first group %v", e)
+	require.NoError(t, json.Unmarshal(b, &out))
+	require.Equal(t, 3, out.Rank, "rank: %s", b)
+	require.Len(t, out.Groups, 2, "groups: %s", b)
+	e := out.Groups[0].Exponents
+	for name, want := range map[string]float64{"R": 1, "rho": -1, "V": -2, "L": -2} {
+		assert.Equal(t, want, e[name], "first group %v: exponent of %s", e, name)
 	}
 	code, _ = post(t, ts, "/v1/groups", `{"variables": [{"name": "x", "unit": "furlongs^"}]}`)
-	if code != 400 {
-		t.Errorf("bad unit: status %d", code)
-	}
+	assert.Equal(t, 400, code, "bad unit: status")
 }
 
 func TestAtmosphere(t *testing.T) {
@@ -314,23 +272,17 @@ func TestAtmosphere(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			resp, err := http.Get(ts.URL + "/v1/atmosphere?" + tc.query)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			defer resp.Body.Close()
-			if resp.StatusCode != tc.status {
-				t.Fatalf("status %d, want %d", resp.StatusCode, tc.status)
-			}
+			require.Equal(t, tc.status, resp.StatusCode, "status")
 			if tc.status != 200 {
 				return
 			}
 			var st struct {
 				Temperature float64 `json:"temperature"`
 			}
-			json.NewDecoder(resp.Body).Decode(&st)
-			if d := st.Temperature - tc.temp; d > 1e-3 || d < -1e-3 {
-				t.Errorf("temperature %.6g K, want %.6g K (tolerance 1e-3 K)", st.Temperature, tc.temp)
-			}
+			require.NoError(t, json.NewDecoder(resp.Body).Decode(&st))
+			assert.InDelta(t, tc.temp, st.Temperature, 1e-3, "temperature, K (U.S. Standard Atmosphere 1976 table, from memory)")
 		})
 	}
 }
@@ -351,20 +303,16 @@ func TestEnvelope(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			resp, err := http.Get(ts.URL + tc.path)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			defer resp.Body.Close()
-			b, _ := io.ReadAll(resp.Body)
-			if resp.StatusCode != tc.status {
-				t.Fatalf("status %d, want %d: %s", resp.StatusCode, tc.status, b)
-			}
-			if tc.status == 200 && (resp.Header.Get("Content-Type") != tc.ctype || !bytes.HasPrefix(b, []byte(tc.prefix))) {
-				t.Errorf("content type %q, starts %q", resp.Header.Get("Content-Type"), b[:min(8, len(b))])
-			}
+			b, err := io.ReadAll(resp.Body)
+			require.NoError(t, err)
+			require.Equal(t, tc.status, resp.StatusCode, "status: %s", b)
 			if tc.status != 200 {
 				return
 			}
+			assert.Equal(t, tc.ctype, resp.Header.Get("Content-Type"), "content type")
+			assert.True(t, bytes.HasPrefix(b, []byte(tc.prefix)), "body starts %q, want %q", b[:min(8, len(b))], tc.prefix)
 			// Every chart says it is an estimate and what it leaves out.
 			assert.Equal(t, app.EnvelopeCaution, resp.Header.Get(api.HeaderCaution))
 			assert.Contains(t, app.EnvelopeCaution, "leaves out the model-size limits (span, blockage) and the balance load limits")
