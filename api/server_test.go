@@ -72,9 +72,7 @@ func newTestServer(t *testing.T, cat facilities.Catalog) testServer {
 		Registry: prometheus.NewRegistry(),
 		Logger:   slog.New(slog.NewJSONHandler(logs, nil)),
 	})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	ts := httptest.NewServer(s.Handler())
 	t.Cleanup(ts.Close)
 	return testServer{ts, logs}
@@ -96,28 +94,20 @@ func (ts testServer) do(t *testing.T, method, path string, body io.Reader, heade
 
 func decodeProblem(t *testing.T, resp *http.Response, body []byte) schema.Problem {
 	t.Helper()
-	if ct := resp.Header.Get("Content-Type"); ct != schema.ContentTypeProblem {
-		t.Errorf("Content-Type %q, want %q", ct, schema.ContentTypeProblem)
-	}
+	assert.Equal(t, schema.ContentTypeProblem, resp.Header.Get("Content-Type"), "Content-Type")
 	var p schema.Problem
-	if err := json.Unmarshal(body, &p); err != nil {
-		t.Fatalf("problem body %s: %v", body, err)
-	}
-	if p.Status != resp.StatusCode {
-		t.Errorf("problem status %d, response status %d", p.Status, resp.StatusCode)
-	}
-	if p.RequestID == "" || p.RequestID != resp.Header.Get(api.HeaderRequestID) {
-		t.Errorf("problem request_id %q, header %q", p.RequestID, resp.Header.Get(api.HeaderRequestID))
-	}
+	require.NoError(t, json.Unmarshal(body, &p), "problem body %s", body)
+	assert.Equal(t, resp.StatusCode, p.Status, "problem status against the response's")
+	assert.NotEmpty(t, p.RequestID, "problem request_id")
+	assert.Equal(t, resp.Header.Get(api.HeaderRequestID), p.RequestID, "problem request_id against the header")
 	return p
 }
 
 func TestHealthz(t *testing.T) {
 	ts := newTestServer(t, nil)
 	resp, body := ts.do(t, "GET", "/healthz", nil, nil)
-	if resp.StatusCode != 200 || strings.TrimSpace(string(body)) != `{"status":"ok"}` {
-		t.Errorf("GET /healthz: %d %s", resp.StatusCode, body)
-	}
+	assert.Equal(t, 200, resp.StatusCode, "GET /healthz: status")
+	assert.Equal(t, `{"status":"ok"}`, strings.TrimSpace(string(body)), "GET /healthz: body as written")
 }
 
 // hangingCatalog is a store whose ping never answers: it reports the deadline
@@ -217,15 +207,13 @@ func TestRequestID(t *testing.T) {
 			}
 			resp, _ := ts.do(t, "GET", "/healthz", nil, h)
 			got := resp.Header.Get(api.HeaderRequestID)
-			if tc.echoed && got != tc.incoming {
-				t.Errorf("got %q, want the incoming %q", got, tc.incoming)
+			if tc.echoed {
+				assert.Equal(t, tc.incoming, got, "request id: the incoming one")
+			} else {
+				assert.NotEqual(t, tc.incoming, got, "request id: a new one")
+				assert.Len(t, got, 32, "request id: 32 hex digits")
 			}
-			if !tc.echoed && (got == tc.incoming || len(got) != 32) {
-				t.Errorf("got %q, want a new 32-hex-digit id", got)
-			}
-			if !strings.Contains(ts.log.String(), `"request_id":"`+got+`"`) {
-				t.Errorf("no log line carries request id %q", got)
-			}
+			assert.Contains(t, ts.log.String(), `"request_id":"`+got+`"`, "no log line carries request id %q", got)
 		})
 	}
 }
@@ -236,20 +224,14 @@ func TestRequestLog(t *testing.T) {
 	var line map[string]any
 	for l := range strings.SplitSeq(strings.TrimSpace(ts.log.String()), "\n") {
 		if strings.Contains(l, `"log-check"`) {
-			if err := json.Unmarshal([]byte(l), &line); err != nil {
-				t.Fatalf("log line %s: %v", l, err)
-			}
+			require.NoError(t, json.Unmarshal([]byte(l), &line), "log line %s", l)
 		}
 	}
 	want := map[string]any{"msg": "request", "method": "GET", "route": "/healthz", "status": 200.0, "request_id": "log-check"}
 	for k, v := range want {
-		if line[k] != v {
-			t.Errorf("log %s = %v, want %v (line %v)", k, line[k], v, line)
-		}
+		assert.Equal(t, v, line[k], "log %s (line %v)", k, line)
 	}
-	if _, ok := line["duration_ms"].(float64); !ok {
-		t.Errorf("log line has no duration_ms: %v", line)
-	}
+	assert.IsType(t, 0.0, line["duration_ms"], "log line's duration_ms: %v", line)
 }
 
 func TestUnknownRoutes(t *testing.T) {
@@ -268,15 +250,12 @@ func TestUnknownRoutes(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			resp, body := ts.do(t, tc.method, tc.path, nil, nil)
-			if resp.StatusCode != tc.status {
-				t.Fatalf("status %d, want %d: %s", resp.StatusCode, tc.status, body)
-			}
+			require.Equal(t, tc.status, resp.StatusCode, "status: %s", body)
 			p := decodeProblem(t, resp, body)
-			if p.Type != tc.typ || p.Instance != tc.path {
-				t.Errorf("problem %+v, want type %s instance %s", p, tc.typ, tc.path)
-			}
-			if got := resp.Header.Get("Allow"); tc.allow != "" && !strings.Contains(got, tc.allow) {
-				t.Errorf("Allow %q, want it to name %s", got, tc.allow)
+			assert.Equal(t, tc.typ, p.Type, "problem type")
+			assert.Equal(t, tc.path, p.Instance, "problem instance")
+			if tc.allow != "" {
+				assert.Contains(t, resp.Header.Get("Allow"), tc.allow, "Allow")
 			}
 		})
 	}
@@ -286,13 +265,9 @@ func TestBodyLimitDeclared(t *testing.T) {
 	ts := newTestServer(t, nil)
 	big := bytes.NewReader(make([]byte, api.BodyLimit+1))
 	resp, body := ts.do(t, "POST", "/v1/plans", big, map[string]string{"Content-Type": "application/json"})
-	if resp.StatusCode != http.StatusRequestEntityTooLarge {
-		t.Fatalf("status %d, want 413: %s", resp.StatusCode, body)
-	}
+	require.Equal(t, http.StatusRequestEntityTooLarge, resp.StatusCode, "status: %s", body)
 	p := decodeProblem(t, resp, body)
-	if p.Type != "/problems/body-too-large" {
-		t.Errorf("type %q", p.Type)
-	}
+	assert.Equal(t, "/problems/body-too-large", p.Type, "problem type")
 }
 
 func TestMetrics(t *testing.T) {
@@ -301,9 +276,7 @@ func TestMetrics(t *testing.T) {
 	ts.do(t, "GET", "/healthz", nil, nil)
 	ts.do(t, "GET", "/no/such/thing", nil, nil)
 	resp, body := ts.do(t, "GET", "/metrics", nil, nil)
-	if resp.StatusCode != 200 {
-		t.Fatalf("GET /metrics: %d", resp.StatusCode)
-	}
+	require.Equal(t, 200, resp.StatusCode, "GET /metrics")
 	text := string(body)
 	for _, want := range []string{
 		`scalematch_http_requests_total{method="GET",route="/healthz",status="200"} 2`,
@@ -314,75 +287,54 @@ func TestMetrics(t *testing.T) {
 		"scalematch_http_requests_in_flight 1",
 		"go_goroutines",
 	} {
-		if !strings.Contains(text, want) {
-			t.Errorf("metrics lack %q", want)
-		}
+		assert.Contains(t, text, want, "metrics")
 	}
-	if strings.Contains(text, "/no/such/thing") {
-		t.Error("an unmatched path became a label value")
-	}
+	assert.NotContains(t, text, "/no/such/thing", "an unmatched path became a label value")
 }
 
 func TestTwoServersShareARegistry(t *testing.T) {
 	reg := prometheus.NewRegistry()
 	for i := range 2 {
-		if _, err := api.New(api.Config{Registry: reg}); err != nil {
-			t.Fatalf("server %d: %v", i, err)
-		}
+		_, err := api.New(api.Config{Registry: reg})
+		require.NoError(t, err, "server %d", i)
 	}
 }
 
 func TestOpenAPI(t *testing.T) {
 	ts := newTestServer(t, nil)
 	resp, body := ts.do(t, "GET", "/openapi.json", nil, nil)
-	if resp.StatusCode != 200 {
-		t.Fatalf("GET /openapi.json: %d", resp.StatusCode)
-	}
+	require.Equal(t, 200, resp.StatusCode, "GET /openapi.json")
 	var doc struct {
 		Swagger string                    `json:"swagger"`
 		Paths   map[string]map[string]any `json:"paths"`
 	}
-	if err := json.Unmarshal(body, &doc); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal(body, &doc))
 	for _, p := range []string{"/healthz", "/readyz", "/metrics", "/openapi.json", "/openapi3.json"} {
-		if _, ok := doc.Paths[p]["get"]; !ok {
-			t.Errorf("document lacks GET %s", p)
-		}
+		assert.Contains(t, doc.Paths[p], "get", "document lacks GET %s", p)
 	}
 	resp, body = ts.do(t, "GET", "/openapi3.json", nil, nil)
-	if resp.StatusCode != 200 {
-		t.Fatalf("GET /openapi3.json: %d", resp.StatusCode)
-	}
+	require.Equal(t, 200, resp.StatusCode, "GET /openapi3.json")
 	var doc3 struct {
 		OpenAPI string                    `json:"openapi"`
 		Paths   map[string]map[string]any `json:"paths"`
 	}
-	if err := json.Unmarshal(body, &doc3); err != nil {
-		t.Fatal(err)
-	}
-	if doc3.OpenAPI != "3.0.3" || len(doc3.Paths) != len(doc.Paths) {
-		t.Errorf("OpenAPI 3 document: version %q, %d paths; want 3.0.3 and the %d of the Swagger 2.0 one", doc3.OpenAPI, len(doc3.Paths), len(doc.Paths))
-	}
+	require.NoError(t, json.Unmarshal(body, &doc3))
+	assert.Equal(t, "3.0.3", doc3.OpenAPI, "OpenAPI 3 document: version")
+	assert.Len(t, doc3.Paths, len(doc.Paths), "OpenAPI 3 document: paths, those of the Swagger 2.0 one")
 	resp, body = ts.do(t, "GET", "/docs/", nil, nil)
-	if resp.StatusCode != 200 || !strings.HasPrefix(resp.Header.Get("Content-Type"), "text/html") {
-		t.Fatalf("GET /docs/: %d %s", resp.StatusCode, resp.Header.Get("Content-Type"))
-	}
+	require.Equal(t, 200, resp.StatusCode, "GET /docs/")
+	require.True(t, strings.HasPrefix(resp.Header.Get("Content-Type"), "text/html"), "GET /docs/: Content-Type %q", resp.Header.Get("Content-Type"))
 	page := string(body)
-	if !strings.Contains(page, `fetch("/openapi3.json")`) {
-		t.Error("the page does not read /openapi3.json")
-	}
-	if strings.Contains(page, "https://") || strings.Contains(page, "http://") {
-		t.Error("the page refers to something outside the binary")
-	}
+	assert.Contains(t, page, `fetch("/openapi3.json")`, "the page does not read /openapi3.json")
+	assert.NotContains(t, page, "https://", "the page refers to something outside the binary")
+	assert.NotContains(t, page, "http://", "the page refers to something outside the binary")
 }
 
 func TestHeadProbes(t *testing.T) {
 	ts := newTestServer(t, fakeCatalog{})
 	for _, path := range []string{"/healthz", "/readyz"} {
 		resp, body := ts.do(t, "HEAD", path, nil, nil)
-		if resp.StatusCode != 200 || len(body) != 0 {
-			t.Errorf("HEAD %s: %d with %d body bytes, want 200 and none", path, resp.StatusCode, len(body))
-		}
+		assert.Equal(t, 200, resp.StatusCode, "HEAD %s: status", path)
+		assert.Empty(t, body, "HEAD %s: body", path)
 	}
 }
