@@ -36,18 +36,13 @@ func catalogServerWith(t *testing.T, cfg api.Config) (*httptest.Server, *sqlite.
 	t.Helper()
 	ctx := context.Background()
 	db, err := sqlite.Open(ctx, filepath.Join(t.TempDir(), sqlite.FileName))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	t.Cleanup(func() { db.Close() })
-	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
-		t.Fatal(err)
-	}
+	_, err = facilities.SeedDemo(ctx, db, true)
+	require.NoError(t, err)
 	cfg.Catalog = db
 	s, err := api.New(cfg)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	ts := httptest.NewServer(s.Handler())
 	t.Cleanup(ts.Close)
 	return ts, db
@@ -72,17 +67,13 @@ func catalogCall(t *testing.T, ts *httptest.Server, method, path string, header 
 func facilityJSON(t *testing.T, id string, edit func(*facilities.Facility)) string {
 	t.Helper()
 	f, ok := facilities.DemoFacility("lsw-2")
-	if !ok {
-		t.Fatal("demo facility lsw-2 missing")
-	}
+	require.True(t, ok, "demo facility lsw-2 missing")
 	f.ID, f.Version = id, 0 // a new record's body: the catalog gives the version
 	if edit != nil {
 		edit(&f)
 	}
 	b, err := json.Marshal(f)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return string(b)
 }
 
@@ -136,19 +127,13 @@ func TestCatalogWriteAccess(t *testing.T) {
 				if want == 0 {
 					want = rt.success
 				}
-				if r.status != want {
-					t.Fatalf("status %d, want %d; body %s", r.status, want, r.body)
-				}
-				if want == http.StatusUnauthorized && !strings.HasPrefix(r.header.Get("WWW-Authenticate"), "Bearer") {
-					t.Errorf("401 without WWW-Authenticate: Bearer (got %q)", r.header.Get("WWW-Authenticate"))
+				require.Equal(t, want, r.status, "status: %s", r.body)
+				if want == http.StatusUnauthorized {
+					assert.True(t, strings.HasPrefix(r.header.Get("WWW-Authenticate"), "Bearer"), "401 without WWW-Authenticate: Bearer (got %q)", r.header.Get("WWW-Authenticate"))
 				}
 				if want >= 400 {
-					if ct := r.header.Get("Content-Type"); ct != schema.ContentTypeProblem {
-						t.Errorf("Content-Type %q, want %s", ct, schema.ContentTypeProblem)
-					}
-					if bytes.Contains(r.body, []byte(secret)) {
-						t.Error("the problem repeats the token")
-					}
+					assert.Equal(t, schema.ContentTypeProblem, r.header.Get("Content-Type"), "Content-Type")
+					assert.NotContains(t, string(r.body), secret, "the problem repeats the token")
 				}
 				// The audit names the token's name, never the token.
 				id := strings.TrimPrefix(rt.path, "/v1/facilities/")
@@ -157,21 +142,16 @@ func TestCatalogWriteAccess(t *testing.T) {
 				}
 				vs, err := db.Versions(context.Background(), id)
 				if a.want != 0 {
-					if rt.name == "create" && check.ErrorCode(err) != check.CodeNotFound {
-						t.Errorf("a refused create left history %v, %v", vs, err)
-					}
-					if rt.name != "create" && (err != nil || len(vs) != 1) {
-						t.Errorf("a refused %s changed the history: %d versions, %v", rt.name, len(vs), err)
+					if rt.name == "create" {
+						assert.Equal(t, check.CodeNotFound, check.ErrorCode(err), "a refused create left history %v, %v", vs, err)
+					} else if assert.NoError(t, err, "a refused %s: history", rt.name) {
+						assert.Len(t, vs, 1, "a refused %s changed the history", rt.name)
 					}
 					return
 				}
-				if err != nil {
-					t.Fatal(err)
-				}
-				last := vs[len(vs)-1]
-				if last.By != "facility-staff" {
-					t.Errorf("change recorded as by %q, want the token's name facility-staff", last.By)
-				}
+				require.NoError(t, err)
+				require.NotEmpty(t, vs, "history")
+				assert.Equal(t, facilities.Actor("facility-staff"), vs[len(vs)-1].By, "change recorded as by the token's name")
 			})
 		}
 	}
@@ -191,9 +171,8 @@ func TestCatalogETags(t *testing.T) {
 	ts, _ := catalogServer(t, map[string]facilities.Actor{"tok": "staff"})
 
 	r := catalogCall(t, ts, http.MethodGet, "/v1/facilities/lsw-2", nil, "")
-	if r.status != http.StatusOK || r.header.Get("ETag") != `"1"` {
-		t.Fatalf("GET: status %d ETag %q, want 200 \"1\"", r.status, r.header.Get("ETag"))
-	}
+	require.Equal(t, http.StatusOK, r.status, "GET: status")
+	require.Equal(t, `"1"`, r.header.Get("ETag"), "GET: ETag")
 	edit := facilityJSON(t, "lsw-2", func(f *facilities.Facility) { f.Balances[0].Limits.Normal = catalogPtr(8000) })
 
 	tests := []struct {
@@ -219,24 +198,22 @@ func TestCatalogETags(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			r := catalogCall(t, ts, tt.method, "/v1/facilities/lsw-2", tt.header, tt.body)
-			if r.status != tt.want {
-				t.Fatalf("status %d, want %d; body %s", r.status, tt.want, r.body)
-			}
-			if tt.wantETag != "" && r.header.Get("ETag") != tt.wantETag {
-				t.Errorf("ETag %q, want %q", r.header.Get("ETag"), tt.wantETag)
+			require.Equal(t, tt.want, r.status, "status: %s", r.body)
+			if tt.wantETag != "" {
+				assert.Equal(t, tt.wantETag, r.header.Get("ETag"), "ETag")
 			}
 		})
 	}
 
 	r = catalogCall(t, ts, http.MethodGet, "/v1/facilities/lsw-2/versions", nil, "")
 	var h schema.FacilityHistory
-	if err := json.Unmarshal(r.body, &h); err != nil || r.status != http.StatusOK {
-		t.Fatalf("versions: %d %s %v", r.status, r.body, err)
-	}
-	if len(h.Versions) != 3 || h.Versions[1].By != "staff" || len(h.Versions[1].Fields) != 1 ||
-		h.Versions[1].Fields[0] != "balances[0].limits.normal" || h.Versions[2].Action != "delete" {
-		t.Errorf("history %+v, want seed, update of balances[0].limits.normal by staff, delete", h.Versions)
-	}
+	require.Equal(t, http.StatusOK, r.status, "versions: %s", r.body)
+	require.NoError(t, json.Unmarshal(r.body, &h), "versions")
+	// Seed, update of balances[0].limits.normal by staff, delete.
+	require.Len(t, h.Versions, 3, "history %+v", h.Versions)
+	assert.EqualValues(t, "staff", h.Versions[1].By, "update: by")
+	assert.Equal(t, []string{"balances[0].limits.normal"}, h.Versions[1].Fields, "update: fields")
+	assert.EqualValues(t, "delete", h.Versions[2].Action, "last version: action")
 }
 
 func catalogPtr(v float64) *float64 { return &v }
@@ -246,18 +223,16 @@ func TestCatalogCreateAndValidate(t *testing.T) {
 	auth := map[string]string{"Authorization": "Bearer tok"}
 
 	r := catalogCall(t, ts, http.MethodPost, "/v1/facilities", auth, facilityJSON(t, "lsw-3", func(f *facilities.Facility) { f.Version = 9 }))
-	if r.status != http.StatusCreated || r.header.Get("Location") != "/v1/facilities/lsw-3" || r.header.Get("ETag") != `"1"` {
-		t.Fatalf("create: %d Location %q ETag %q; %s", r.status, r.header.Get("Location"), r.header.Get("ETag"), r.body)
-	}
+	require.Equal(t, http.StatusCreated, r.status, "create: %s", r.body)
+	require.Equal(t, "/v1/facilities/lsw-3", r.header.Get("Location"), "create: Location")
+	require.Equal(t, `"1"`, r.header.Get("ETag"), "create: ETag")
 	// Units in strings are accepted and stored in SI.
 	withUnits := strings.Replace(facilityJSON(t, "lsw-4", nil), `"max_dynamic_pressure":4100`, `"max_dynamic_pressure":"41 hPa"`, 1)
 	r = catalogCall(t, ts, http.MethodPost, "/v1/facilities", auth, withUnits)
-	if r.status != http.StatusCreated {
-		t.Fatalf("create with a unit string: %d %s", r.status, r.body)
-	}
+	require.Equal(t, http.StatusCreated, r.status, "create with a unit string: %s", r.body)
 	var f facilities.Facility
-	if err := json.Unmarshal(r.body, &f); err != nil || f.MaxDynamicPressure == nil || *f.MaxDynamicPressure != 4100 {
-		t.Errorf("41 hPa stored as %v Pa (%v), want 4100", f.MaxDynamicPressure, err)
+	if assert.NoError(t, json.Unmarshal(r.body, &f)) && assert.NotNil(t, f.MaxDynamicPressure, "max dynamic pressure") {
+		assert.Equal(t, 4100.0, *f.MaxDynamicPressure, "41 hPa stored, Pa")
 	}
 
 	tests := []struct {
@@ -287,36 +262,27 @@ func TestCatalogCreateAndValidate(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			r := catalogCall(t, ts, tt.method, tt.path, tt.header, tt.body)
-			if r.status != tt.want {
-				t.Fatalf("status %d, want %d; %s", r.status, tt.want, r.body)
-			}
+			require.Equal(t, tt.want, r.status, "status: %s", r.body)
 			if tt.wantFields == nil {
 				return
 			}
 			var p schema.Problem
-			if err := json.Unmarshal(r.body, &p); err != nil {
-				t.Fatal(err)
+			require.NoError(t, json.Unmarshal(r.body, &p))
+			var named []string
+			for _, e := range p.Errors {
+				named = append(named, e.Field)
 			}
 			for _, want := range tt.wantFields {
-				found := false
-				for _, e := range p.Errors {
-					found = found || e.Field == want
-				}
-				if !found {
-					t.Errorf("problem names %v, lacks %q", p.Errors, want)
-				}
+				assert.Contains(t, named, want, "fields the problem names")
 			}
 		})
 	}
 
 	r = catalogCall(t, ts, http.MethodGet, "/v1/facilities", nil, "")
 	var list schema.FacilityList
-	if err := json.Unmarshal(r.body, &list); err != nil || r.status != http.StatusOK {
-		t.Fatalf("list: %d %v", r.status, err)
-	}
-	if n := len(facilities.Demo()) + 2; len(list.Facilities) != n {
-		t.Errorf("listed %d facilities, want %d", len(list.Facilities), n)
-	}
+	require.Equal(t, http.StatusOK, r.status, "list: %s", r.body)
+	require.NoError(t, json.Unmarshal(r.body, &list), "list")
+	assert.Len(t, list.Facilities, len(facilities.Demo())+2, "listed facilities: the demo ones and two created")
 }
 
 // plannedBody plans testfixture.J16Plan against the facility facilityID on ts and returns
@@ -337,22 +303,18 @@ func TestStoredPlan(t *testing.T) {
 	ts, db := catalogServer(t, nil)
 	body := plannedBody(t, ts, "tsw-1", "p-7")
 	created := time.Date(2031, 5, 6, 7, 8, 9, 0, time.UTC)
-	if _, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "p-7", FacilityID: "tsw-1", FacilityVersion: 1, CreatedAt: created, Body: body}); err != nil {
-		t.Fatal(err)
-	}
+	_, err := db.SavePlan(context.Background(), facilities.PlanRecord{ID: "p-7", FacilityID: "tsw-1", FacilityVersion: 1, CreatedAt: created, Body: body})
+	require.NoError(t, err)
 	r := catalogCall(t, ts, http.MethodGet, "/v1/plans/p-7", nil, "")
-	if r.status != http.StatusOK || !bytes.Equal(r.body, body) {
-		t.Fatalf("status %d body %q, want 200 %q byte for byte", r.status, r.body, body)
-	}
+	require.Equal(t, http.StatusOK, r.status, "status: %s", r.body)
+	require.Equal(t, string(body), string(r.body), "stored plan, byte for byte")
 	for k, want := range map[string]string{
 		api.HeaderFacilityID:      "tsw-1",
 		api.HeaderFacilityVersion: "1",
 		"Last-Modified":           "Tue, 06 May 2031 07:08:09 GMT",
 		"Content-Type":            "application/json; charset=utf-8",
 	} {
-		if got := r.header.Get(k); got != want {
-			t.Errorf("%s = %q, want %q", k, got, want)
-		}
+		assert.Equal(t, want, r.header.Get(k), k)
 	}
 }
 
