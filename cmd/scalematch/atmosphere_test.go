@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"math"
 	"strings"
 	"testing"
 
@@ -41,13 +40,9 @@ func TestAtmosphereCommandTable(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			var out, errOut bytes.Buffer
-			if err := run(c.args, strings.NewReader(""), &out, &errOut); err != nil {
-				t.Fatalf("run: %v (stderr %q)", err, errOut.String())
-			}
+			require.NoError(t, run(c.args, strings.NewReader(""), &out, &errOut), "run (stderr %q)", errOut.String())
 			for _, w := range c.want {
-				if !strings.Contains(out.String(), w) {
-					t.Errorf("output lacks %q:\n%s", w, out.String())
-				}
+				assert.Contains(t, out.String(), w, "output")
 			}
 		})
 	}
@@ -55,35 +50,22 @@ func TestAtmosphereCommandTable(t *testing.T) {
 
 func TestAtmosphereCommandJSON(t *testing.T) {
 	var out bytes.Buffer
-	if err := run([]string{"atmosphere", "--altitude", "11000", "--delta-isa", "-15", "--json"}, strings.NewReader(""), &out, &bytes.Buffer{}); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, run([]string{"atmosphere", "--altitude", "11000", "--delta-isa", "-15", "--json"}, strings.NewReader(""), &out, &bytes.Buffer{}))
 	// Exactly the names of GET /v1/atmosphere, nothing more.
 	var fields map[string]float64
-	if err := json.Unmarshal(out.Bytes(), &fields); err != nil {
-		t.Fatalf("%v in %s", err, out.String())
-	}
+	require.NoError(t, json.Unmarshal(out.Bytes(), &fields), "%s", out.String())
 	names := []string{"altitude", "geopotential_altitude", "pressure_altitude", "delta_isa", "temperature",
 		"pressure", "density", "speed_of_sound", "viscosity", "kinematic_viscosity"}
-	if len(fields) != len(names) {
-		t.Errorf("%d fields, want %d: %s", len(fields), len(names), out.String())
-	}
+	assert.Len(t, fields, len(names), "fields: %s", out.String())
 	want, err := atmosphere.At(11000, -15)
-	if err != nil {
-		t.Fatal(err)
-	}
-	wantJSON, _ := json.Marshal(want)
-	if got := strings.TrimSpace(out.String()); got != string(wantJSON) {
-		t.Errorf("JSON\n%s\nwant\n%s", got, wantJSON)
-	}
+	require.NoError(t, err)
+	wantJSON, err := json.Marshal(want)
+	require.NoError(t, err)
+	assert.Equal(t, string(wantJSON), strings.TrimSpace(out.String()), "JSON")
 	for _, n := range names {
-		if _, ok := fields[n]; !ok {
-			t.Errorf("no %q in %s", n, out.String())
-		}
+		assert.Contains(t, fields, n, "fields")
 	}
-	if math.Abs(fields["temperature"]-(216.77351270445553-15)) > 1e-9 {
-		t.Errorf("temperature %v, want the standard 216.7735 K less 15 K", fields["temperature"])
-	}
+	assert.InDelta(t, 216.77351270445553-15, fields["temperature"], 1e-9, "temperature, K: the standard 216.7735 K less 15 K")
 }
 
 // TestAtmosphereCommandErrors checks that the command reads its flags as GET

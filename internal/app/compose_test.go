@@ -37,9 +37,7 @@ var j16Plan = func() string {
 func decodePlan(t testing.TB, body string) *schema.PlanRequest {
 	t.Helper()
 	var req schema.PlanRequest
-	if err := unitjson.Decode([]byte(body), &req); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, unitjson.Decode([]byte(body), &req))
 	return &req
 }
 
@@ -74,36 +72,24 @@ func TestBalanceBindingAgreesWithLoads(t *testing.T) {
 			t.Parallel()
 			req := decodePlan(t, tc.edit(j16Plan))
 			resp, err := p.Plan(context.Background(), req)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			binds := slices.ContainsFunc(resp.Binding, func(b similarity.Binding) bool {
 				return b.Constraint == facilities.ConstraintBalance
 			})
 			r := resp.Loads
 			atLimit := math.Abs(r.MaxUtilization-r.AllowedUtilization) <= tc.tol*r.AllowedUtilization
-			if binds != tc.binding || atLimit != tc.binding {
-				t.Errorf("balance binding %v, report at its limit %v (%.6g of %.6g on %s); want both %v",
-					binds, atLimit, r.MaxUtilization, r.AllowedUtilization, r.BalanceID, tc.binding)
-			}
-			if r.MaxUtilization > r.AllowedUtilization*(1+tc.tol) {
-				t.Errorf("balance %s loaded to %.6g, above its allowed %.6g", r.BalanceID, r.MaxUtilization, r.AllowedUtilization)
-			}
+			assert.Equal(t, tc.binding, binds, "balance among the binding limits")
+			assert.Equal(t, tc.binding, atLimit, "report at its limit (%.6g of %.6g on %s)", r.MaxUtilization, r.AllowedUtilization, r.BalanceID)
+			assert.LessOrEqual(t, r.MaxUtilization, r.AllowedUtilization*(1+tc.tol), "balance %s: utilisation against its allowed", r.BalanceID)
 			f, _ := facilities.DemoFacility(resp.FacilityID)
 			in := req.Installation
 			in.BalanceID = r.BalanceID
 			mx, err := req.Article.Aero.Matrix(req.Alpha, req.Beta)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			ll, err := loads.NewLimit(&req.Article, &f, in, mx)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			q := ll.MaxDynamicPressure(resp.Model.Scale, resp.Test.State)
-			if math.Abs(q/float64(r.MaxSafeDynamicPressure)-1) > 1e-9 {
-				t.Errorf("load limit %.10g Pa, report's safe q %.10g Pa", q, r.MaxSafeDynamicPressure)
-			}
+			assert.InEpsilon(t, float64(r.MaxSafeDynamicPressure), q, 1e-9, "load limit's q, Pa, against the report's safe q")
 		})
 	}
 }
@@ -126,13 +112,10 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 	t.Parallel()
 	ctx := context.Background()
 	db, err := sqlite.Open(ctx, sqlite.Path(t.TempDir()))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	defer db.Close()
-	if _, err := facilities.SeedDemo(ctx, db, true); err != nil {
-		t.Fatal(err)
-	}
+	_, err = facilities.SeedDemo(ctx, db, true)
+	require.NoError(t, err)
 	cat := &countingCatalog{Catalog: db}
 	cn2 := strings.NewReplacer(`"tsw-1"`, `"cn2-05"`, `"int-b1"`, `"int-k"`).Replace(j16Plan)
 	missing := strings.Replace(j16Plan, `"tsw-1"`, `"no-such"`, 1)
@@ -151,9 +134,8 @@ func TestBatchReadsEachFacilityOnce(t *testing.T) {
 			cat.reads.Store(0)
 			p := app.NewPlanner(cat, 0)
 			if tc.batch == nil {
-				if _, err := p.PlanJSON(ctx, decodePlan(t, j16Plan)); err != nil {
-					t.Fatal(err)
-				}
+				_, err := p.PlanJSON(ctx, decodePlan(t, j16Plan))
+				require.NoError(t, err)
 			} else {
 				raw := make([]json.RawMessage, len(tc.batch))
 				for i, b := range tc.batch {
