@@ -167,21 +167,18 @@ func checkNeverBroken(t *testing.T, what string, rec *httptest.ResponseRecorder)
 	switch rec.Code {
 	case http.StatusOK:
 		var out map[string]any
-		if err := json.Unmarshal(rec.Body.Bytes(), &out); err != nil || len(out) == 0 {
-			t.Errorf("%s: 200 without a JSON body (%d bytes): %v", what, rec.Body.Len(), err)
+		if assert.NoError(t, json.Unmarshal(rec.Body.Bytes(), &out), "%s: 200 without a JSON body (%d bytes)", what, rec.Body.Len()) {
+			assert.NotEmpty(t, out, "%s: 200 with an empty JSON body", what)
 		}
 	case http.StatusBadRequest, http.StatusUnprocessableEntity:
 		var p schema.Problem
-		if err := json.Unmarshal(rec.Body.Bytes(), &p); err != nil {
-			t.Errorf("%s: %d without a problem: %s", what, rec.Code, rec.Body)
+		if !assert.NoError(t, json.Unmarshal(rec.Body.Bytes(), &p), "%s: %d without a problem: %s", what, rec.Code, rec.Body) {
 			return
 		}
-		if len(p.Errors) == 0 && len(p.Limits) == 0 {
-			t.Errorf("%s: %d names no field or limit: %s", what, rec.Code, rec.Body)
-		}
+		assert.False(t, len(p.Errors) == 0 && len(p.Limits) == 0, "%s: %d names no field or limit: %s", what, rec.Code, rec.Body)
 	case http.StatusNotFound:
 	default:
-		t.Errorf("%s: status %d: %.300s", what, rec.Code, rec.Body)
+		assert.Fail(t, "unexpected status", "%s: status %d: %.300s", what, rec.Code, rec.Body)
 	}
 }
 

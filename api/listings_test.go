@@ -82,7 +82,7 @@ func TestPlanListing(t *testing.T) {
 			assert.Equal(t, "<"+last.Next+">; rel=\"next\"", r.header.Get("Link"))
 			path = last.Next
 		}
-		t.Fatal("the listing never ended")
+		require.FailNow(t, "the listing never ended")
 		return nil, last
 	}
 	all, _ := list("")

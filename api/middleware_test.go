@@ -188,9 +188,8 @@ func TestProblemMapping(t *testing.T) {
 			assert.Equal(t, "/problems/"+tc.slug, p.Type)
 			assert.Equal(t, tc.status, p.Status, "the problem's status")
 			assert.NotEmpty(t, p.Title)
-			if got := w.Header().Get("WWW-Authenticate"); (tc.status == 401) != strings.HasPrefix(got, "Bearer") {
-				t.Errorf("WWW-Authenticate %q for status %d", got, tc.status)
-			}
+			got := w.Header().Get("WWW-Authenticate")
+			assert.Equal(t, tc.status == 401, strings.HasPrefix(got, "Bearer"), "WWW-Authenticate %q for status %d: a Bearer challenge exactly on 401", got, tc.status)
 		})
 	}
 }

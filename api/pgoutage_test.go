@@ -77,8 +77,8 @@ func (pg *throwawayPostgres) run(t *testing.T, name string, args ...string) {
 	t.Helper()
 	argv := append(append([]string(nil), pg.asUser...), append([]string{filepath.Join(pg.bin, name)}, args...)...)
 	out, err := exec.Command(argv[0], argv[1:]...).CombinedOutput()
-	if err != nil && !strings.Contains(string(out), "is not running") {
-		t.Fatalf("%s: %v\n%s", strings.Join(argv, " "), err, out)
+	if !strings.Contains(string(out), "is not running") {
+		require.NoError(t, err, "%s\n%s", strings.Join(argv, " "), out)
 	}
 }
 
@@ -140,8 +140,7 @@ func TestPostgresOutage(t *testing.T) {
 				} else {
 					resp, err = http.Get(ts.URL + "/v1/facilities/tsw-1")
 				}
-				if err != nil {
-					t.Errorf("request: %v", err)
+				if !assert.NoError(t, err, "request") {
 					return
 				}
 				io.Copy(io.Discard, resp.Body)
@@ -177,9 +176,7 @@ func TestPostgresOutage(t *testing.T) {
 	t.Logf("statuses by phase (up, stopped, restarted): %v", statuses)
 	for p, m := range statuses {
 		for code, n := range m {
-			if code != 200 && code != 503 {
-				t.Errorf("phase %d: %d answers with status %d", p, n, code)
-			}
+			assert.Contains(t, []int{200, 503}, code, "phase %d: status of %d answers", p, n)
 		}
 	}
 	assert.Zero(t, noRetryAfter.Load(), "503s without Retry-After")

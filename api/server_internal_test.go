@@ -61,7 +61,7 @@ func TestServeDrainsInFlight(t *testing.T) {
 	case err := <-served:
 		assert.NoError(t, err, "Serve")
 	case <-time.After(ShutdownGrace):
-		t.Fatal("Serve did not return")
+		require.FailNow(t, "Serve did not return")
 	}
 	_, err = net.DialTimeout("tcp", ln.Addr().String(), time.Second)
 	assert.Error(t, err, "the listener still accepts connections after shutdown")
