@@ -251,9 +251,8 @@ func TestNoNaNAcrossRange(t *testing.T) {
 			s, err := atmosphere.At(z, dt)
 			require.NoError(t, err, "At(%g, %g)", z, dt)
 			for _, v := range []float64{s.Temperature, s.Pressure, s.Density, s.SpeedOfSound, s.Viscosity, s.KinematicViscosity} {
-				if !(v > 0) || math.IsInf(v, 0) {
-					t.Fatalf("At(%g, %g) = %+v", z, dt, s)
-				}
+				require.Greater(t, v, 0.0, "At(%g, %g) = %+v", z, dt, s)
+				require.False(t, math.IsInf(v, 0), "At(%g, %g) = %+v", z, dt, s)
 			}
 		}
 	}

@@ -62,9 +62,9 @@ func TestServeMetricsAddr(t *testing.T) {
 	case a := <-addrc:
 		base = "http://" + a.String()
 	case err := <-done:
-		t.Fatalf("serve: %v", err)
+		require.FailNow(t, "serve ended before listening", "%v", err)
 	case <-time.After(20 * time.Second):
-		t.Fatal("serve did not start")
+		require.FailNow(t, "serve did not start")
 	}
 	status := func(url string) int {
 		resp, err := http.Get(url)

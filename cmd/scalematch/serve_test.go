@@ -121,9 +121,9 @@ func TestServeLifecycle(t *testing.T) {
 			case a := <-addrc:
 				base = "http://" + a.String()
 			case err := <-done:
-				t.Fatalf("serve ended before listening: %v", err)
+				require.FailNow(t, "serve ended before listening", "%v", err)
 			case <-time.After(20 * time.Second):
-				t.Fatal("serve did not start listening")
+				require.FailNow(t, "serve did not start listening")
 			}
 			for _, path := range []string{"/healthz", "/readyz"} {
 				resp, err := http.Get(base + path)
@@ -137,7 +137,7 @@ func TestServeLifecycle(t *testing.T) {
 			case err := <-done:
 				require.NoError(t, err, "serve")
 			case <-time.After(40 * time.Second):
-				t.Fatal("serve did not stop")
+				require.FailNow(t, "serve did not stop")
 			}
 			assert.Contains(t, logs.String(), `"msg":"store closed"`, "the store was closed")
 			db, err := sqlite.Open(context.Background(), sqlite.Path(dir))

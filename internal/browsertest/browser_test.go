@@ -339,6 +339,6 @@ func checkChart(t *testing.T, url string) {
 		assert.Equal(t, "svg", svg.XMLName.Local, url)
 		assert.Equal(t, [2]string{"576pt", "396pt"}, [2]string{svg.Width, svg.Height}, url)
 	default:
-		t.Errorf("%s: content type %q", url, ct)
+		assert.Fail(t, "unexpected content type", "%s: content type %q", url, ct)
 	}
 }

@@ -19,7 +19,7 @@ func demoFacility(t *testing.T, id string) *facilities.Facility {
 			return &f
 		}
 	}
-	t.Fatalf("no demo facility %s", id)
+	require.FailNow(t, "no demo facility", id)
 	return nil
 }
 
