@@ -4,7 +4,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"net/http"
-	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -13,6 +12,7 @@ import (
 
 	"scalematch/api/schema"
 	"scalematch/internal/app"
+	"scalematch/internal/testfixture"
 )
 
 // TestRequestCaps: a 0.92 MB request with 90,000 scales was planned and stored

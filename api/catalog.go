@@ -10,7 +10,6 @@ import (
 	"fmt"
 	"net/http"
 	"path"
-	"scalematch/internal/check"
 	"strconv"
 	"strings"
 
@@ -19,6 +18,7 @@ import (
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/app"
+	"scalematch/internal/check"
 )
 
 // Catalog response headers.

@@ -9,8 +9,6 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"path/filepath"
-	"scalematch/internal/check"
-	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 	"time"
@@ -22,6 +20,8 @@ import (
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/check"
+	"scalematch/internal/testfixture"
 )
 
 // catalogServer serves a seeded SQLite catalog with the given write tokens.

@@ -11,12 +11,12 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/loads"
-
-	"github.com/stretchr/testify/assert"
-	"github.com/stretchr/testify/require"
 )
 
 // matrixAircraft is one aircraft of the demo world (docs/demo-world.md, "Aircraft"),

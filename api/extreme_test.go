@@ -8,7 +8,6 @@ import (
 	"log/slog"
 	"net/http"
 	"net/http/httptest"
-	"scalematch/internal/testfixture"
 	"sort"
 	"strconv"
 	"strings"
@@ -20,6 +19,7 @@ import (
 	"scalematch/api"
 	"scalematch/api/schema"
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
 // extremeValues are finite numbers at the edges of float64: the largest, the

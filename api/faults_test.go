@@ -10,7 +10,6 @@ import (
 	"net"
 	"net/http"
 	"net/http/httptest"
-	"scalematch/internal/testfixture"
 	"strings"
 	"sync/atomic"
 	"testing"
@@ -22,6 +21,7 @@ import (
 
 	"scalematch/api"
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
 // saveCatalog is the demo catalog whose SavePlan the test controls.

@@ -4,7 +4,6 @@ import (
 	"encoding/json"
 	"io"
 	"net/http"
-	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -12,6 +11,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
 // TestContentTypes: bodies that are not plain JSON were parsed as JSON; they are

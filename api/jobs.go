@@ -10,7 +10,6 @@ import (
 	"fmt"
 	"net/http"
 	"net/url"
-	"scalematch/internal/check"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -20,6 +19,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/app"
 	"scalematch/internal/campaign"
+	"scalematch/internal/check"
 	"scalematch/internal/jobs"
 	"scalematch/internal/unitjson"
 )

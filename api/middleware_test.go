@@ -9,7 +9,6 @@ import (
 	"log/slog"
 	"net/http"
 	"net/http/httptest"
-	"scalematch/internal/check"
 	"strings"
 	"sync"
 	"testing"
@@ -22,6 +21,7 @@ import (
 	"scalematch/api/schema"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 type syncBuffer struct {

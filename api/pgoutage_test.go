@@ -12,7 +12,6 @@ import (
 	"os/exec"
 	"os/user"
 	"path/filepath"
-	"scalematch/internal/testfixture"
 	"strconv"
 	"strings"
 	"sync"
@@ -27,6 +26,7 @@ import (
 	"scalematch/api"
 	"scalematch/facilities"
 	"scalematch/facilities/postgres"
+	"scalematch/internal/testfixture"
 )
 
 // throwawayPostgres is a PostgreSQL server of the test's own: its own data

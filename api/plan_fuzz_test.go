@@ -10,13 +10,13 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/require"
+
 	"scalematch/api"
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/contract"
 	"scalematch/internal/testfixture"
-
-	"github.com/stretchr/testify/require"
 )
 
 // The fuzz targets post arbitrary bodies to one endpoint each through the whole

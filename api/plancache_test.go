@@ -9,19 +9,19 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"path/filepath"
-	"scalematch/internal/testfixture"
 	"strings"
 	"sync"
 	"testing"
 	"time"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"scalematch/api"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 	"scalematch/internal/app"
-
-	"github.com/stretchr/testify/assert"
-	"github.com/stretchr/testify/require"
+	"scalematch/internal/testfixture"
 )
 
 // replicas serves n services over one seeded SQLite file, as replicas over one

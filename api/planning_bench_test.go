@@ -6,7 +6,6 @@ import (
 	"log/slog"
 	"net/http"
 	"net/http/httptest"
-	"scalematch/internal/testfixture"
 	"strconv"
 	"strings"
 	"testing"
@@ -16,6 +15,7 @@ import (
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
 	"scalematch/internal/app"
+	"scalematch/internal/testfixture"
 	"scalematch/internal/unitjson"
 )
 

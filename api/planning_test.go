@@ -8,8 +8,6 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"regexp"
-	"scalematch/internal/loads"
-	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -20,6 +18,8 @@ import (
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/app"
+	"scalematch/internal/loads"
+	"scalematch/internal/testfixture"
 )
 
 func newServer(t testing.TB) *httptest.Server {

@@ -6,7 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"net/http"
-	"scalematch/internal/check"
 	"strconv"
 
 	"github.com/gin-gonic/gin"
@@ -14,6 +13,7 @@ import (
 	"scalematch/api/schema"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // problemKind is one row of the table in schema.Problem's doc comment.

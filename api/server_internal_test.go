@@ -5,7 +5,6 @@ import (
 	"io"
 	"net"
 	"net/http"
-	"scalematch/internal/testfixture"
 	"testing"
 	"time"
 
@@ -13,6 +12,8 @@ import (
 	"github.com/prometheus/client_golang/prometheus"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/testfixture"
 )
 
 // TestServeDrainsInFlight cancels the serving context while a slow request runs:

@@ -6,7 +6,6 @@ import (
 	"log/slog"
 	"net"
 	"net/http"
-	"scalematch/internal/testfixture"
 	"strings"
 	"sync"
 	"testing"
@@ -18,6 +17,7 @@ import (
 
 	"scalematch/api"
 	"scalematch/facilities"
+	"scalematch/internal/testfixture"
 )
 
 // TestShutdownDrains: 2 of 838 requests in flight at SIGTERM were reset. A

@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"net/http"
-	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -13,6 +12,7 @@ import (
 	"scalematch/api"
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // TestStatusOf checks the status the HTML pages answer each kind of error with:

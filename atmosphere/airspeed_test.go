@@ -6,12 +6,11 @@ import (
 	"math/rand/v2"
 	"testing"
 
-	"scalematch/internal/testfixture"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
 	"scalematch/atmosphere"
+	"scalematch/internal/testfixture"
 )
 
 // knot is one international knot in m/s (1852 m per hour, exact; GNU units:

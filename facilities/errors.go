@@ -3,6 +3,7 @@ package facilities
 import (
 	"errors"
 	"fmt"
+
 	"scalematch/internal/check"
 )
 

@@ -4,10 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"scalematch/internal/check"
 	"sort"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // Coefficients are the aerodynamic coefficients of one test point: C_L, C_D in wind

@@ -4,11 +4,11 @@ import (
 	"math"
 	"testing"
 
-	"scalematch/internal/testfixture"
-	"scalematch/similarity"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/testfixture"
+	"scalematch/similarity"
 )
 
 // orrin is the Orrin J16 estimate of the demo world (docs/demo-world.md).

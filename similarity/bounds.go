@@ -2,6 +2,7 @@ package similarity
 
 import (
 	"errors"
+
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 	"scalematch/internal/check"

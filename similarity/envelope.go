@@ -3,9 +3,9 @@ package similarity
 import (
 	"fmt"
 	"math"
-	"scalematch/internal/check"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // TradePoint is one point of a trade curve or envelope: the highest Reynolds number

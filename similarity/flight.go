@@ -4,10 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"scalematch/internal/check"
 
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // Flight is a full-scale flight condition as a plan request gives it: one altitude

@@ -3,9 +3,9 @@ package similarity
 import (
 	"fmt"
 	"math"
-	"scalematch/internal/check"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // TransitionReynolds is the flat-plate transition Reynolds number Re_tr = 5·10⁵ of

@@ -5,9 +5,10 @@ import (
 	"encoding/json"
 	"fmt"
 	"math/big"
-	"scalematch/internal/check"
 	"strconv"
 	"strings"
+
+	"scalematch/internal/check"
 )
 
 // MaxVariables is the largest number of variables Groups accepts.

@@ -4,15 +4,15 @@ import (
 	"encoding/json"
 	"math/big"
 	"math/rand/v2"
-	"scalematch/internal/check"
 	"strconv"
 	"strings"
 	"testing"
 
-	"scalematch/similarity"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/check"
+	"scalematch/similarity"
 )
 
 func mustDim(t testing.TB, s string) similarity.Dimension {

@@ -3,10 +3,10 @@ package similarity
 import (
 	"fmt"
 	"math"
-	"scalematch/internal/check"
 
 	"scalematch/atmosphere"
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // Waters a marine condition can name.

@@ -2,12 +2,12 @@ package similarity_test
 
 import (
 	"encoding/json"
-	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"scalematch/internal/check"
 	"scalematch/similarity"
 )
 

@@ -3,11 +3,11 @@ package similarity_test
 import (
 	"testing"
 
-	"scalematch/facilities"
-	"scalematch/similarity"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+	"scalematch/similarity"
 )
 
 // TestSearchPlateauLowestQ is the Pellin P3 at 50 m/s at sea level (a low-level

@@ -4,13 +4,13 @@ import (
 	"fmt"
 	"math"
 	"math/rand"
-	"scalematch/internal/check"
 	"testing"
 
-	"scalematch/facilities"
-	"scalematch/similarity"
-
 	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+	"scalematch/internal/check"
+	"scalematch/similarity"
 )
 
 // quadLoad is a synthetic load limit for the tests: the balance takes q·s²·K ≤ Limit,

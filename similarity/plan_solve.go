@@ -3,10 +3,10 @@ package similarity
 import (
 	"fmt"
 	"math"
-	"scalematch/internal/check"
 	"sort"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // Scale choices.

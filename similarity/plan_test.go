@@ -3,17 +3,17 @@ package similarity_test
 import (
 	"fmt"
 	"math"
-	"scalematch/internal/check"
-	"scalematch/internal/testfixture"
 	"slices"
 	"testing"
 
-	"scalematch/atmosphere"
-	"scalematch/facilities"
-	"scalematch/similarity"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/atmosphere"
+	"scalematch/facilities"
+	"scalematch/internal/check"
+	"scalematch/internal/testfixture"
+	"scalematch/similarity"
 )
 
 // Demo aircraft of the invented demo world (docs/demo-world.md), full scale.

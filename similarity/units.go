@@ -3,11 +3,12 @@ package similarity
 import (
 	"errors"
 	"math"
-	"scalematch/atmosphere"
 	"strconv"
 	"strings"
 	"unicode"
 	"unicode/utf8"
+
+	"scalematch/atmosphere"
 )
 
 // Exact definitions behind the conversion factors, in SI units. Every factor of the

@@ -5,9 +5,9 @@ import (
 	"math"
 	"testing"
 
-	"scalematch/similarity"
-
 	"github.com/stretchr/testify/require"
+
+	"scalematch/similarity"
 )
 
 // FuzzParseQuantity checks that no input panics, that every success is finite, that

@@ -5,8 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"scalematch/internal/check"
-	"scalematch/similarity"
 	"strings"
 	"text/tabwriter"
 
@@ -14,6 +12,8 @@ import (
 
 	"scalematch/atmosphere"
 	"scalematch/internal/app"
+	"scalematch/internal/check"
+	"scalematch/similarity"
 )
 
 // rankinePerKelvin converts a temperature difference or an absolute temperature

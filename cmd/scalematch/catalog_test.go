@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -10,6 +9,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/testfixture"
 )
 
 // TestEveryCommandReadsTheSameCatalog checks that plan, loads and facilities all

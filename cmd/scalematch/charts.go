@@ -5,12 +5,12 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"scalematch/internal/check"
 
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/app"
 	"scalematch/internal/charts"
+	"scalematch/internal/check"
 )
 
 // writeCharts writes every chart plan has into o.chartDir as NAME.svg, NAME.png

@@ -5,12 +5,13 @@ import (
 	"image/png"
 	"os"
 	"path/filepath"
-	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/testfixture"
 )
 
 func TestPlanCommandCharts(t *testing.T) {

@@ -17,11 +17,11 @@ import (
 	"testing"
 	"time"
 
-	"scalematch/facilities"
-	"scalematch/facilities/sqlite"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
 )
 
 const crashToken = "crash-test-token"

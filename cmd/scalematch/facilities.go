@@ -8,7 +8,6 @@ import (
 	"io"
 	"io/fs"
 	"os"
-	"scalematch/internal/check"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -18,6 +17,7 @@ import (
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/check"
 )
 
 // facilitiesOptions are the facilities command's settings.

@@ -8,8 +8,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"scalematch/internal/check"
-	"scalematch/internal/loads"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -20,6 +18,8 @@ import (
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/app"
+	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )

@@ -3,11 +3,12 @@ package main
 import (
 	"encoding/json"
 	"fmt"
-	"scalematch/internal/loads"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/loads"
 )
 
 // TestLoadsResolutionFlags: --resolution and --load-fraction set the request's

@@ -8,7 +8,6 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"regexp"
-	"scalematch/internal/testfixture"
 	"strings"
 	"testing"
 
@@ -18,6 +17,7 @@ import (
 	"scalematch/api"
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/testfixture"
 )
 
 // TestDemoVersionsAgree checks that the built-in demo catalog shows the same

@@ -2,7 +2,6 @@ package main
 
 import (
 	"net/http"
-	"scalematch/internal/check"
 	"slices"
 	"strings"
 
@@ -13,6 +12,7 @@ import (
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 	"scalematch/internal/campaign"
+	"scalematch/internal/check"
 )
 
 // This file is the one table of what swag's annotations cannot say. Everything

@@ -7,18 +7,18 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"scalematch/internal/check"
-	"scalematch/internal/jobs"
-	"scalematch/internal/jobs/jobstest"
 	"sync"
 	"sync/atomic"
 	"testing"
 	"time"
 
-	"scalematch/facilities"
-
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+	"scalematch/internal/check"
+	"scalematch/internal/jobs"
+	"scalematch/internal/jobs/jobstest"
 )
 
 // Opener returns the open function of Run and Bench for an engine: where names a

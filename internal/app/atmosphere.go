@@ -3,11 +3,11 @@ package app
 import (
 	"errors"
 	"math"
-	"scalematch/internal/check"
 	"strconv"
 	"strings"
 
 	"scalematch/atmosphere"
+	"scalematch/internal/check"
 	"scalematch/similarity"
 )
 

@@ -4,13 +4,13 @@ import (
 	"context"
 	"math"
 	"os"
-	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api/schema"
+	"scalematch/internal/check"
 	"scalematch/internal/unitjson"
 )
 

@@ -2,12 +2,13 @@ package app
 
 import (
 	"math"
-	"scalematch/internal/check"
-	"scalematch/internal/loads"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/check"
+	"scalematch/internal/loads"
 )
 
 func TestCheckFinite(t *testing.T) {

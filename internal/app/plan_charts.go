@@ -4,13 +4,13 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
-	"scalematch/internal/check"
-	"scalematch/internal/loads"
 	"strings"
 
 	"scalematch/api/schema"
 	"scalematch/facilities"
 	"scalematch/internal/charts"
+	"scalematch/internal/check"
+	"scalematch/internal/loads"
 )
 
 // Names of a plan's charts, as in GET /v1/plans/{id}/charts/{name}.{svg,png,pdf}.

@@ -4,8 +4,6 @@ import (
 	"context"
 	"errors"
 	"os"
-	"scalematch/internal/check"
-	"scalematch/internal/loads"
 	"slices"
 	"strings"
 	"testing"
@@ -15,6 +13,8 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/internal/app"
+	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/similarity"
 )
 

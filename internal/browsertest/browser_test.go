@@ -12,8 +12,6 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
-	"scalematch/internal/loads"
-	"scalematch/internal/testfixture/testsite"
 	"strings"
 	"sync"
 	"testing"
@@ -26,6 +24,8 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/api/schema"
+	"scalematch/internal/loads"
+	"scalematch/internal/testfixture/testsite"
 )
 
 // chromium returns the browser to drive, or skips the test naming what is

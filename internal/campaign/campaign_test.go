@@ -7,8 +7,6 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"os"
-	"scalematch/internal/check"
-	"scalematch/internal/loads"
 	"strings"
 	"testing"
 
@@ -17,6 +15,8 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/internal/campaign"
+	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/internal/unitjson"
 )
 

@@ -3,12 +3,12 @@ package campaign
 import (
 	"fmt"
 	"math"
-	"scalematch/internal/check"
 	"slices"
 	"sort"
 	"sync/atomic"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/internal/loads"
 	"scalematch/similarity"
 )

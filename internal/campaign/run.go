@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"math"
 	"runtime"
-	"scalematch/internal/check"
 	"slices"
 	"sort"
 	"sync"
@@ -13,6 +12,7 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/internal/app"
+	"scalematch/internal/check"
 	"scalematch/internal/unitjson"
 	"scalematch/similarity"
 )

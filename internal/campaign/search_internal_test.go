@@ -5,13 +5,13 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"scalematch/internal/check"
 	"testing"
 
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
 	"scalematch/internal/app"
+	"scalematch/internal/check"
 	"scalematch/similarity"
 )
 

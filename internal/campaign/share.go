@@ -2,10 +2,10 @@ package campaign
 
 import (
 	"math"
-	"scalematch/internal/check"
 	"sort"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/similarity"
 )
 

@@ -3,13 +3,14 @@ package charts
 import (
 	"fmt"
 	"math"
-	"scalematch/internal/loads"
 	"slices"
 	"strings"
 
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"scalematch/internal/loads"
 )
 
 // Loads is what the loads chart draws: one balance's load report (from a plan or

@@ -4,8 +4,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"scalematch/facilities"
 	"strings"
+
+	"scalematch/facilities"
 )
 
 // ErrNoBalance is returned when a load check is asked of a facility with no balance.

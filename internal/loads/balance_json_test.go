@@ -5,11 +5,12 @@ import (
 	"encoding/json"
 	"math"
 	"math/rand/v2"
-	"scalematch/internal/loads"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/loads"
 )
 
 // TestCeilingJSON checks how a load report writes and reads its

@@ -2,6 +2,7 @@ package loads
 
 import (
 	"fmt"
+
 	"scalematch/facilities"
 )
 

@@ -2,10 +2,10 @@ package loads
 
 import (
 	"fmt"
-	"scalematch/internal/check"
 	"strings"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // CheckAll returns the load check of every balance of facility f, in the

@@ -4,10 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"scalematch/internal/check"
 	"slices"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/similarity"
 )
 

@@ -3,8 +3,9 @@ package loads
 import (
 	"fmt"
 	"math"
-	"scalematch/facilities"
 	"sort"
+
+	"scalematch/facilities"
 )
 
 // combined gauge row (index −1, coefficients coef).

@@ -3,6 +3,7 @@ package loads
 import (
 	"fmt"
 	"math"
+
 	"scalematch/facilities"
 )
 

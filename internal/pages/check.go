@@ -5,8 +5,6 @@ import (
 	"fmt"
 	"math"
 	"net/http"
-	"scalematch/internal/check"
-	"scalematch/internal/loads"
 	"slices"
 	"strconv"
 	"strings"
@@ -16,6 +14,8 @@ import (
 	"scalematch/facilities"
 	"scalematch/internal/app"
 	"scalematch/internal/charts"
+	"scalematch/internal/check"
+	"scalematch/internal/loads"
 	"scalematch/internal/unitjson"
 )
 

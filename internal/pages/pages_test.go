@@ -4,12 +4,13 @@ import (
 	"io"
 	"net/http"
 	"net/url"
-	"scalematch/internal/testfixture/testsite"
 	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"scalematch/internal/testfixture/testsite"
 )
 
 func TestPages(t *testing.T) {

@@ -6,10 +6,10 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"scalematch/internal/check"
 	"time"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // Facilities lists the current, not deleted facilities ordered by id.

@@ -5,10 +5,10 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
-	"scalematch/internal/check"
 	"strings"
 	"time"
 
+	"scalematch/internal/check"
 	"scalematch/internal/jobs"
 )
 

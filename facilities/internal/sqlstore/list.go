@@ -3,12 +3,12 @@ package sqlstore
 import (
 	"encoding/base64"
 	"fmt"
-	"scalematch/internal/check"
 	"strconv"
 	"strings"
 	"time"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 )
 
 // listing is the WHERE clause of a listing, newest first by (created, id), with

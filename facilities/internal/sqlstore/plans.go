@@ -5,11 +5,11 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
-	"scalematch/internal/check"
 	"time"
 
 	"scalematch/facilities"
 	"scalematch/facilities/internal/groupcommit"
+	"scalematch/internal/check"
 )
 
 // SavePlan stores a plan record; a second save of the same id returns the first.

@@ -11,7 +11,6 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
-	"scalematch/internal/check"
 	"slices"
 	"sync"
 	"testing"
@@ -21,6 +20,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"scalematch/facilities"
+	"scalematch/internal/check"
 	"scalematch/internal/jobs"
 )
 

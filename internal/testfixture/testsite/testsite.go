@@ -13,11 +13,11 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
-	"scalematch/facilities"
-	"scalematch/facilities/sqlite"
 	"testing"
 
 	"scalematch/api"
+	"scalematch/facilities"
+	"scalematch/facilities/sqlite"
 	"scalematch/internal/pages"
 	"scalematch/internal/testfixture"
 )
