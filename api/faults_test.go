@@ -39,9 +39,9 @@ func (c saveCatalog) SavePlan(ctx context.Context, p facilities.PlanRecord) (fac
 
 // faultServer starts a service over cat with a short body read timeout and
 // returns it, its log and its registry.
-func faultServer(t *testing.T, cat facilities.Catalog) (*httptest.Server, *lockedBuffer, *prometheus.Registry) {
+func faultServer(t *testing.T, cat facilities.Catalog) (*httptest.Server, *testfixture.LogBuffer, *prometheus.Registry) {
 	t.Helper()
-	logs := &lockedBuffer{}
+	logs := &testfixture.LogBuffer{}
 	reg := prometheus.NewRegistry()
 	s, err := api.New(api.Config{Catalog: cat, Registry: reg, Logger: slog.New(slog.NewJSONHandler(logs, nil))})
 	require.NoError(t, err)

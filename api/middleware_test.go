@@ -10,7 +10,6 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"strings"
-	"sync"
 	"testing"
 
 	"github.com/gin-gonic/gin"
@@ -22,29 +21,13 @@ import (
 	"scalematch/atmosphere"
 	"scalematch/facilities"
 	"scalematch/internal/check"
+	"scalematch/internal/testfixture"
 )
 
-type syncBuffer struct {
-	mu sync.Mutex
-	b  bytes.Buffer
-}
-
-func (s *syncBuffer) Write(p []byte) (int, error) {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	return s.b.Write(p)
-}
-
-func (s *syncBuffer) String() string {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	return s.b.String()
-}
-
 // newInternal returns a server with extra test routes under /test and its log.
-func newInternal(t *testing.T) (*Server, *httptest.Server, *syncBuffer) {
+func newInternal(t *testing.T) (*Server, *httptest.Server, *testfixture.LogBuffer) {
 	t.Helper()
-	logs := &syncBuffer{}
+	logs := &testfixture.LogBuffer{}
 	s, err := New(Config{Registry: prometheus.NewRegistry(), Logger: slog.New(slog.NewJSONHandler(logs, nil))})
 	require.NoError(t, err)
 	g := s.engine.Group("/test")

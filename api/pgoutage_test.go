@@ -109,7 +109,7 @@ func TestPostgresOutage(t *testing.T) {
 	t.Cleanup(func() { db.Close() })
 	_, err = facilities.SeedDemo(ctx, db, true)
 	require.NoError(t, err)
-	logs := &lockedBuffer{}
+	logs := &testfixture.LogBuffer{}
 	s, err := api.New(api.Config{Catalog: db, Registry: prometheus.NewRegistry(), Logger: slog.New(slog.NewJSONHandler(logs, nil))})
 	require.NoError(t, err)
 	ts := httptest.NewServer(s.Handler())

@@ -10,7 +10,6 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"strings"
-	"sync"
 	"testing"
 	"time"
 
@@ -41,32 +40,14 @@ func (f fakeCatalog) Ping(ctx context.Context) error {
 	}
 }
 
-// lockedBuffer is a log sink that concurrent requests may share.
-type lockedBuffer struct {
-	mu sync.Mutex
-	b  bytes.Buffer
-}
-
-func (l *lockedBuffer) Write(p []byte) (int, error) {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	return l.b.Write(p)
-}
-
-func (l *lockedBuffer) String() string {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	return l.b.String()
-}
-
 type testServer struct {
 	*httptest.Server
-	log *lockedBuffer
+	log *testfixture.LogBuffer
 }
 
 func newTestServer(t *testing.T, cat facilities.Catalog) testServer {
 	t.Helper()
-	logs := &lockedBuffer{}
+	logs := &testfixture.LogBuffer{}
 	s, err := api.New(api.Config{
 		Catalog:  cat,
 		Registry: prometheus.NewRegistry(),

@@ -72,7 +72,7 @@ func TestShutdownDrains(t *testing.T) {
 
 // TestWriteScopes: a write token limited to "tsw-*" changes tsw-9 but not lsw-9.
 func TestWriteScopes(t *testing.T) {
-	logs := &lockedBuffer{}
+	logs := &testfixture.LogBuffer{}
 	ts, _ := catalogServerWith(t, api.Config{
 		WriteTokens: map[string]facilities.Actor{"tok-t": "tunnel-staff", "tok-all": "admin"},
 		WriteScopes: map[string]string{"tok-t": "tsw-*"},

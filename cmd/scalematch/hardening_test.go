@@ -10,7 +10,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -51,21 +50,7 @@ func TestServeMetricsAddr(t *testing.T) {
 	ml.Close()
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
-	addrc := make(chan net.Addr, 1)
-	done := make(chan error, 1)
-	go func() {
-		done <- serve(ctx, serveOptions{addr: "127.0.0.1:0", metricsAddr: maddr, data: t.TempDir(),
-			ready: func(a net.Addr) { addrc <- a }}, io.Discard)
-	}()
-	var base string
-	select {
-	case a := <-addrc:
-		base = "http://" + a.String()
-	case err := <-done:
-		require.FailNow(t, "serve ended before listening", "%v", err)
-	case <-time.After(20 * time.Second):
-		require.FailNow(t, "serve did not start")
-	}
+	base, done := startServe(ctx, t, serveOptions{addr: "127.0.0.1:0", metricsAddr: maddr, data: t.TempDir()}, io.Discard)
 	status := func(url string) int {
 		resp, err := http.Get(url)
 		require.NoError(t, err)

@@ -1,13 +1,11 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"io"
 	"net"
 	"net/http"
 	"strings"
-	"sync"
 	"testing"
 	"time"
 
@@ -17,6 +15,7 @@ import (
 
 	"scalematch/facilities"
 	"scalematch/facilities/sqlite"
+	"scalematch/internal/testfixture"
 )
 
 func TestParseWriteTokens(t *testing.T) {
@@ -76,23 +75,6 @@ func TestFlagsFromEnv(t *testing.T) {
 	assert.ErrorContains(t, flagsFromEnv(fs, lookup), "SCALEMATCH_NO_DEMO")
 }
 
-type syncWriter struct {
-	mu sync.Mutex
-	b  bytes.Buffer
-}
-
-func (w *syncWriter) Write(p []byte) (int, error) {
-	w.mu.Lock()
-	defer w.mu.Unlock()
-	return w.b.Write(p)
-}
-
-func (w *syncWriter) String() string {
-	w.mu.Lock()
-	defer w.mu.Unlock()
-	return w.b.String()
-}
-
 func TestServeLifecycle(t *testing.T) {
 	t.Parallel()
 	tests := []struct {
@@ -109,22 +91,8 @@ func TestServeLifecycle(t *testing.T) {
 			dir := t.TempDir()
 			ctx, cancel := context.WithCancel(context.Background())
 			defer cancel()
-			addrc := make(chan net.Addr, 1)
-			logs := &syncWriter{}
-			done := make(chan error, 1)
-			go func() {
-				done <- serve(ctx, serveOptions{addr: "127.0.0.1:0", data: dir, noDemo: tc.noDemo,
-					ready: func(a net.Addr) { addrc <- a }}, logs)
-			}()
-			var base string
-			select {
-			case a := <-addrc:
-				base = "http://" + a.String()
-			case err := <-done:
-				require.FailNow(t, "serve ended before listening", "%v", err)
-			case <-time.After(20 * time.Second):
-				require.FailNow(t, "serve did not start listening")
-			}
+			logs := &testfixture.LogBuffer{}
+			base, done := startServe(ctx, t, serveOptions{addr: "127.0.0.1:0", data: dir, noDemo: tc.noDemo}, logs)
 			for _, path := range []string{"/healthz", "/readyz"} {
 				resp, err := http.Get(base + path)
 				require.NoError(t, err)
@@ -154,4 +122,23 @@ func TestServeRefusesOtherDatabases(t *testing.T) {
 	t.Parallel()
 	err := serve(context.Background(), serveOptions{addr: "127.0.0.1:0", databaseURL: "mysql://x"}, io.Discard)
 	assert.ErrorContains(t, err, "postgres://", "asks for a postgres:// URL")
+}
+
+// startServe runs serve with opts until ctx ends and returns the API's base URL
+// once it listens, and the channel serve's result arrives on.
+func startServe(ctx context.Context, t *testing.T, opts serveOptions, logs io.Writer) (string, <-chan error) {
+	t.Helper()
+	addrc := make(chan net.Addr, 1)
+	done := make(chan error, 1)
+	opts.ready = func(a net.Addr) { addrc <- a }
+	go func() { done <- serve(ctx, opts, logs) }()
+	select {
+	case a := <-addrc:
+		return "http://" + a.String(), done
+	case err := <-done:
+		require.FailNow(t, "serve ended before listening", "%v", err)
+	case <-time.After(20 * time.Second):
+		require.FailNow(t, "serve did not start listening")
+	}
+	return "", done
 }

@@ -17,6 +17,7 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -180,4 +181,25 @@ func Do(t testing.TB, client *http.Client, method, url string, header map[string
 	b, err := io.ReadAll(resp.Body)
 	require.NoError(t, err)
 	return Reply{resp.StatusCode, resp.Header, b}
+}
+
+// LogBuffer is a log sink that concurrent requests may share: a buffer behind a
+// mutex, read whole by String.
+type LogBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+// Write appends p under the lock.
+func (l *LogBuffer) Write(p []byte) (int, error) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.Write(p)
+}
+
+// String returns what has been written so far.
+func (l *LogBuffer) String() string {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.String()
 }
