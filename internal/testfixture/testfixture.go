@@ -1,8 +1,9 @@
 // Package testfixture holds what the test packages share: the demo-world requests
 // they send, a silent logger, the relative error the physics checks measure
 // with (RelErr, and InRelative, its assertion), the reference fixtures' reader
-// (ReadCSV), an HTTP call read whole (Do) and the fields a validation error
-// names (InvalidFields). It imports nothing of the project but internal/check
+// (ReadCSV), an HTTP call read whole (Do), the fields a validation error
+// names (InvalidFields), one bisection (Bisect) and a log sink that concurrent
+// requests may share (LogBuffer). It imports nothing of the project but internal/check
 // (which imports nothing), so that any package's tests may use it; servers and
 // stores for tests are in testsite. It is imported only by tests.
 package testfixture
