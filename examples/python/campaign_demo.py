@@ -113,8 +113,9 @@ def wait_for_job(base, location, every=0.5):
             print(file=sys.stderr)
             return raw
         job = json.loads(raw)
-        print(f"\r{job.get('state')}: {job.get('done', 0)} of {job.get('total', 0)}",
-              end="", file=sys.stderr, flush=True)
+        # total is 0 until a replica has begun the job: then only the state says anything.
+        steps = f": {job['done']} of {job['total']} steps" if job.get("total") else ""
+        print(f"\r{job.get('state')}{steps}".ljust(40), end="", file=sys.stderr, flush=True)
         time.sleep(every)
 
 
