@@ -1,10 +1,10 @@
 package api
 
 import (
-	"context"
 	"io"
 	"net"
 	"net/http"
+	"strings"
 	"testing"
 	"time"
 
@@ -28,12 +28,7 @@ func TestServeDrainsInFlight(t *testing.T) {
 		time.Sleep(300 * time.Millisecond)
 		c.String(http.StatusOK, "finished")
 	})
-	ln, err := net.Listen("tcp", "127.0.0.1:0")
-	require.NoError(t, err)
-	base := "http://" + ln.Addr().String()
-	ctx, cancel := context.WithCancel(context.Background())
-	served := make(chan error, 1)
-	go func() { served <- s.Serve(ctx, ln) }()
+	base, cancel, served := testfixture.ServeLoopback(t, s.Serve)
 
 	type answer struct {
 		status int
@@ -64,6 +59,6 @@ func TestServeDrainsInFlight(t *testing.T) {
 	case <-time.After(ShutdownGrace):
 		require.FailNow(t, "Serve did not return")
 	}
-	_, err = net.DialTimeout("tcp", ln.Addr().String(), time.Second)
+	_, err = net.DialTimeout("tcp", strings.TrimPrefix(base, "http://"), time.Second)
 	assert.Error(t, err, "the listener still accepts connections after shutdown")
 }

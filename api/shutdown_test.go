@@ -28,12 +28,7 @@ func TestShutdownDrains(t *testing.T) {
 	s, err := api.New(api.Config{Catalog: slow, Registry: prometheus.NewRegistry(),
 		Logger: slog.New(slog.NewTextHandler(io.Discard, nil)), DrainDelay: 400 * time.Millisecond})
 	require.NoError(t, err)
-	ln, err := net.Listen("tcp", "127.0.0.1:0")
-	require.NoError(t, err)
-	base := "http://" + ln.Addr().String()
-	ctx, cancel := context.WithCancel(context.Background())
-	served := make(chan error, 1)
-	go func() { served <- s.Serve(ctx, ln) }()
+	base, cancel, served := testfixture.ServeLoopback(t, s.Serve)
 
 	const inFlight = 12
 	var wg sync.WaitGroup
@@ -66,7 +61,7 @@ func TestShutdownDrains(t *testing.T) {
 		assert.Equal(t, http.StatusOK, statuses[i], "request %d", i)
 	}
 	require.NoError(t, <-served)
-	_, err = net.DialTimeout("tcp", ln.Addr().String(), time.Second)
+	_, err = net.DialTimeout("tcp", strings.TrimPrefix(base, "http://"), time.Second)
 	assert.Error(t, err, "no longer accepting")
 }
 

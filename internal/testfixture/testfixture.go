@@ -2,8 +2,9 @@
 // they send, a silent logger, the relative error the physics checks measure
 // with (RelErr, and InRelative, its assertion), the reference fixtures' reader
 // (ReadCSV), an HTTP call read whole (Do), the fields a validation error
-// names (InvalidFields), one bisection (Bisect) and a log sink that concurrent
-// requests may share (LogBuffer). It imports nothing of the project but internal/check
+// names (InvalidFields), one bisection (Bisect), a log sink that concurrent
+// requests may share (LogBuffer) and a server on a loopback listener
+// (ServeLoopback). It imports nothing of the project but internal/check
 // (which imports nothing), so that any package's tests may use it; servers and
 // stores for tests are in testsite. It is imported only by tests.
 package testfixture
@@ -11,9 +12,11 @@ package testfixture
 import (
 	"bufio"
 	"bytes"
+	"context"
 	"io"
 	"log/slog"
 	"math"
+	"net"
 	"net/http"
 	"os"
 	"strconv"
@@ -203,4 +206,16 @@ func (l *LogBuffer) String() string {
 	l.mu.Lock()
 	defer l.mu.Unlock()
 	return l.b.String()
+}
+
+// ServeLoopback starts serve on a new loopback listener and returns its base
+// URL, the function that ends it, and the channel its result arrives on.
+func ServeLoopback(t testing.TB, serve func(context.Context, net.Listener) error) (base string, stop context.CancelFunc, served <-chan error) {
+	t.Helper()
+	ln, err := net.Listen("tcp", "127.0.0.1:0")
+	require.NoError(t, err)
+	ctx, cancel := context.WithCancel(context.Background())
+	done := make(chan error, 1)
+	go func() { done <- serve(ctx, ln) }()
+	return "http://" + ln.Addr().String(), cancel, done
 }
