@@ -100,22 +100,23 @@ func (f *Facility) State(s Setting) (State, error) {
 	a := math.Sqrt(gamma * r * t)
 	v := mach * a
 	mu := m.Viscosity(t, rho)
+	return gasState(mach, v, p0, t0, Static{Temperature: t, Pressure: p, Density: rho, Viscosity: mu,
+		SpeedOfSound: a, Compressibility: 1}), nil
+}
+
+// gasState is the test-section state of a gas moving at Mach mach and speed v in
+// m/s from stagnation pressure p0 in Pa and temperature t0 in K, with static state
+// st: q = ½ρV² and Re/m = ρV/μ.
+func gasState(mach, v, p0, t0 float64, st Static) State {
 	return State{
 		Mach:                  mach,
 		Speed:                 v,
 		StagnationPressure:    p0,
 		StagnationTemperature: t0,
-		Static: Static{
-			Temperature:     t,
-			Pressure:        p,
-			Density:         rho,
-			Viscosity:       mu,
-			SpeedOfSound:    a,
-			Compressibility: 1,
-		},
-		DynamicPressure:  0.5 * rho * v * v,
-		ReynoldsPerMeter: rho * v / mu,
-	}, nil
+		Static:                st,
+		DynamicPressure:       0.5 * st.Density * v * v,
+		ReynoldsPerMeter:      st.Density * v / st.Viscosity,
+	}
 }
 
 // speedError is the error of a speed beyond Mach MaxSettingMach (or the limiting
@@ -158,22 +159,8 @@ func (f *Facility) nitrogenState(s Setting) (State, error) {
 	}
 	mu := NitrogenViscosity(t, rho)
 	v := fs.speed
-	return State{
-		Mach:                  fs.mach,
-		Speed:                 v,
-		StagnationPressure:    p0,
-		StagnationTemperature: t0,
-		Static: Static{
-			Temperature:     t,
-			Pressure:        p,
-			Density:         rho,
-			Viscosity:       mu,
-			SpeedOfSound:    fs.a,
-			Compressibility: p / (rho * r * t),
-		},
-		DynamicPressure:  0.5 * rho * v * v,
-		ReynoldsPerMeter: rho * v / mu,
-	}, nil
+	return gasState(fs.mach, v, p0, t0, Static{Temperature: t, Pressure: p, Density: rho, Viscosity: mu,
+		SpeedOfSound: fs.a, Compressibility: p / (rho * r * t)}), nil
 }
 
 // speedAtMach returns the free-stream speed in m/s of an ideal gas at Mach number
