@@ -299,7 +299,7 @@ func (f *Facility) condensationMarginFunc(p0 float64) func(Medium, float64, floa
 	case MediumNitrogen:
 		return nitrogenMargin
 	case MediumAir, MediumGas:
-		if _, ok := m.dewTemperature(p0); ok {
+		if m.hasDewLine(p0) {
 			return Medium.idealGasMargin
 		}
 	}
@@ -375,7 +375,11 @@ func (f *Facility) Warnings(st State) []string {
 		w = append(w, msg)
 	}
 	w = append(w, f.rangeWarnings(st)...)
-	if margin := f.CondensationMargin(st); f.Medium.Kind == MediumNitrogen && margin >= 0 && margin < nearSaturation {
+	if f.Medium.Kind != MediumNitrogen {
+		// Only nitrogen's margin is flagged: air's dew line costs a root.
+		return w
+	}
+	if margin := f.CondensationMargin(st); margin >= 0 && margin < nearSaturation {
 		w = append(w, fmt.Sprintf(
 			"the flow comes within %.1f %% of nitrogen's saturation temperature (free stream or local Mach %g): density and the saturation line are least accurate there (about ±2 %%)",
 			100*margin, f.condensationPeakMach()))

@@ -194,6 +194,23 @@ func (m Medium) dewTemperature(p float64) (float64, bool) {
 	return 0, false
 }
 
+// hasDewLine reports whether dewTemperature(p) gives a temperature (its ok),
+// without finding it.
+func (m Medium) hasDewLine(p float64) bool {
+	if !(p > 0) {
+		return false
+	}
+	switch m.Kind {
+	case MediumAir:
+		return true
+	case MediumGas:
+		g := m.Gas
+		return g != nil && g.CriticalTemperature != nil && g.CriticalPressure != nil &&
+			*g.CriticalTemperature > 0 && *g.CriticalPressure > 0
+	}
+	return false
+}
+
 // idealGasMargin returns T/T_dew(p) − 1 for air or a custom gas with a critical
 // point at temperature t in K and pressure p in Pa, +Inf when the medium has no
 // saturation line.
