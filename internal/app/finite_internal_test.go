@@ -2,6 +2,7 @@ package app
 
 import (
 	"math"
+	"reflect"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -78,4 +79,62 @@ func TestCheckFiniteCeiling(t *testing.T) {
 	require.NoError(t, CheckFinite(&r, nil))
 	r.MaxSafeDynamicPressure = loads.Ceiling(math.NaN())
 	require.Error(t, CheckFinite(&r, nil))
+}
+
+// TestAllFiniteShapes: the compiled walk (allFinite) and the path-naming walk
+// (nonFinite) agree on every shape a response takes: interfaces, maps, arrays,
+// recursive types, embedded structs, fields the JSON leaves out, and a Ceiling's
+// +Inf (no bound) against its -Inf.
+func TestAllFiniteShapes(t *testing.T) {
+	t.Parallel()
+	type node struct {
+		V    float64 `json:"v"`
+		Next *node   `json:"next"`
+	}
+	type Embedded struct {
+		E float64 `json:"e"`
+	}
+	type shape struct {
+		Embedded
+		Any     any                `json:"any"`
+		ByName  map[string]float64 `json:"by_name"`
+		Fixed   [2]float64         `json:"fixed"`
+		List    *node              `json:"list"`
+		Skipped float64            `json:"-"`
+		hidden  float64
+		Ceiling loads.Ceiling `json:"ceiling"`
+		Text    []string      `json:"text"`
+	}
+	nan := math.NaN()
+	cases := []struct {
+		name string
+		v    any
+		path string // "" when finite
+	}{
+		{"zero", shape{}, ""},
+		{"nil", nil, ""},
+		{"skipped and unexported are not answered", shape{Skipped: nan, hidden: nan}, ""},
+		{"a ceiling without a bound", shape{Ceiling: loads.Ceiling(math.Inf(1))}, ""},
+		{"a ceiling at -Inf", shape{Ceiling: loads.Ceiling(math.Inf(-1))}, "ceiling"},
+		{"embedded", shape{Embedded: Embedded{E: nan}}, "e"},
+		{"in an interface", shape{Any: []any{1.0, map[string]any{"x": nan}}}, "any[1].x"},
+		{"in a map", shape{ByName: map[string]float64{"a": math.Inf(1)}}, "by_name.a"},
+		{"in an array", shape{Fixed: [2]float64{0, nan}}, "fixed[1]"},
+		{"deep in a recursive type", shape{List: &node{V: 1, Next: &node{V: 2, Next: &node{V: nan}}}}, "list.next.next.v"},
+		{"a bare float", nan, ""},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
+			rv := reflect.ValueOf(tc.v)
+			path, ok := nonFinite(rv, "")
+			assert.Equal(t, ok, allFinite(rv), "allFinite against nonFinite")
+			if tc.name == "a bare float" {
+				assert.False(t, ok)
+				return
+			}
+			assert.Equal(t, tc.path == "", ok)
+			assert.Equal(t, tc.path, path)
+		})
+	}
 }
