@@ -17,13 +17,13 @@ const cavGrid = 17
 // stagnation-pressure range. lo is at least pv unless the problem allows
 // cavitation: the planner does not set a static pressure below the vapour pressure
 // (a negative cavitation number; the free stream itself would boil). ok is false when no such pressure exists or the state fails.
-func (sv *solver) pressureRange(machOrSpeed, p0, t float64) (lo, hi, q, r, pv float64, ok bool) {
-	st, err := sv.state(machOrSpeed, p0, t)
-	if err != nil {
+// wp are the water's properties at t (waterPropsAt).
+func (sv *solver) pressureRange(machOrSpeed, p0, t float64, wp waterProps) (lo, hi, q, r, pv float64, ok bool) {
+	q, r, ok = sv.waterState(machOrSpeed, p0, t, wp)
+	if !ok {
 		return 0, 0, 0, 0, 0, false
 	}
-	q, r = st.DynamicPressure, st.ReynoldsPerMeter
-	pv = facilities.WaterVapourPressure(t)
+	pv = wp.pv
 	if sv.held {
 		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
 	} else {
@@ -33,6 +33,97 @@ func (sv *solver) pressureRange(machOrSpeed, p0, t float64) (lo, hi, q, r, pv fl
 		lo = math.Max(lo, pv)
 	}
 	return lo, hi, q, r, pv, hi >= lo && q > 0
+}
+
+// waterProps are the properties of water at one temperature that the
+// cavitation search reads: density in kg/m³, viscosity in Pa·s and vapour
+// pressure in Pa.
+type waterProps struct{ rho, mu, pv float64 }
+
+// waterPropsAt returns the properties of water at temperature t in K, as
+// facilities.Facility.State and the cavitation search compute them.
+func waterPropsAt(t float64) waterProps {
+	rho := facilities.WaterDensity(t)
+	return waterProps{rho: rho, mu: facilities.WaterViscosity(t, rho), pv: facilities.WaterVapourPressure(t)}
+}
+
+// waterState returns the dynamic pressure q in Pa and Re/m of the water state at
+// speed machOrSpeed, p0 and T0 t, the water's properties at t being wp, and
+// whether the state is usable: facilities.Facility.State for water without its
+// State built, q = ½ρV², Re/m = ρV/μ, usable where the static pressure p0 − q
+// (p + q − q where the facility holds its static pressure p) is positive. A setting
+// State would refuse on its face (a temperature outside the water model, a
+// pressure or speed that is not positive and finite, a stagnation pressure
+// given to a facility that holds its static pressure) is left to State.
+// TestWaterStateMatchesFacility holds the two equal to the bit.
+func (sv *solver) waterState(machOrSpeed, p0, t float64, wp waterProps) (q, r float64, ok bool) {
+	given := p0
+	if sv.held {
+		p0 = sv.f.HeldStaticPressure()
+	}
+	if !(t >= facilities.WaterMinTemperature && t <= facilities.WaterMaxTemperature) ||
+		!(machOrSpeed >= 0) || math.IsInf(machOrSpeed, 1) || !(p0 > 0) || math.IsInf(p0, 1) || (sv.held && given != 0) {
+		st, err := sv.state(machOrSpeed, given, t)
+		if err != nil {
+			return 0, 0, false
+		}
+		return st.DynamicPressure, st.ReynoldsPerMeter, true
+	}
+	sv.evals++
+	v := machOrSpeed
+	q = 0.5 * wp.rho * v * v
+	if sv.held {
+		p0 += q
+	}
+	if !(p0-q > 0) {
+		return 0, 0, false
+	}
+	return q, wp.rho * v / wp.mu, true
+}
+
+// waterGrid holds the water's properties on one temperature grid of
+// atWaterCav, cavGrid points over [ta, tb]: the usable T0 range is the same at
+// most speeds and scales of a plan, and these properties cost more than the
+// rest of a state.
+type waterGrid struct {
+	ta, tb float64
+	wp     [cavGrid]waterProps
+}
+
+// waterGrids are the temperature grids atWaterCav used last (solver.grids),
+// next the one to replace. Water's properties depend on the temperature alone,
+// so the re-solves of the binding gains share them.
+type waterGrids struct {
+	g    [4]waterGrid
+	set  [4]bool
+	next int
+}
+
+// grid returns the water's properties on the grid of cavGrid temperatures
+// over [ta, tb], computing them when they are not kept.
+func (gs *waterGrids) grid(ta, tb float64) *waterGrid {
+	for i := range gs.g {
+		if g := &gs.g[i]; gs.set[i] && g.ta == ta && g.tb == tb {
+			return g
+		}
+	}
+	g := &gs.g[gs.next]
+	gs.set[gs.next] = true
+	gs.next = (gs.next + 1) % len(gs.g)
+	g.ta, g.tb = ta, tb
+	for i := range g.wp {
+		g.wp[i] = waterPropsAt(cavGridT(ta, tb, i))
+	}
+	return g
+}
+
+// cavGridT is the i-th temperature of atWaterCav's grid over [ta, tb].
+func cavGridT(ta, tb float64, i int) float64 {
+	t := ta
+	if cavGrid > 1 && tb > ta {
+		t = ta + (tb-ta)*float64(i)/(cavGrid-1)
+	}
+	return t
 }
 
 // atWaterCav is atWater when the objective looks at the cavitation number: at speed
@@ -75,9 +166,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		}
 	}
 	sf := sv.fl.Marine.Cavitation
-	eval := func(t float64) candidate {
+	evalAt := func(t float64, wp waterProps) candidate {
 		y := candidate{machOrSpeed: c.machOrSpeed, s: s, t0: t, v: c.machOrSpeed, capHi: capHi}
-		lo, hi, q, r, pv, ok := sv.pressureRange(c.machOrSpeed, c.pa, t)
+		lo, hi, q, r, pv, ok := sv.pressureRange(c.machOrSpeed, c.pa, t, wp)
 		if !ok {
 			y.fail, y.k = facilities.ConstraintStaticPressureMin, worst
 			if !sv.held {
@@ -92,6 +183,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		y.k = sv.keyOf(c.machOrSpeed, s, r, q, c.machOrSpeed, false, y.sig)
 		return y
 	}
+	eval := func(t float64) candidate { return evalAt(t, waterPropsAt(t)) }
 	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
 	seen := make([]candidate, 0, 2*cavGrid)
 	consider := func(y candidate) {
@@ -102,14 +194,14 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			best = y
 		}
 	}
+	if sv.grids == nil {
+		sv.grids = &waterGrids{}
+	}
+	wg := sv.grids.grid(ta, tb)
 	var grid [cavGrid]candidate
 	ibest := -1
 	for i := range grid {
-		t := ta
-		if cavGrid > 1 && tb > ta {
-			t = ta + (tb-ta)*float64(i)/(cavGrid-1)
-		}
-		grid[i] = eval(t)
+		grid[i] = evalAt(cavGridT(ta, tb, i), wg.wp[i])
 		if grid[i].ok && (ibest < 0 || grid[i].k.less(grid[ibest].k)) {
 			ibest = i
 		}

@@ -230,6 +230,9 @@ type solver struct {
 	// nil otherwise): the search, the trade curve and the re-solves that relax
 	// no limit a set-up reads share them.
 	setups map[float64]machSetup
+	// grids keeps the water's properties on the temperature grids of the
+	// cavitation search (atWaterCav; nil until it runs).
+	grids *waterGrids
 }
 
 // newSolver validates the problem and sets up the search.
