@@ -1430,49 +1430,61 @@ func (sv *solver) atWater(c *machSetup, s, target float64, w Window) candidate {
 // its level is the distance of sig outside the band σ_full ± cavTol (0 inside),
 // its weighted term (ln(sig/σ_full))².
 func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) key {
-	lnRe := 0.0
-	if !met {
-		lnRe = math.Log(s * sv.L * r / sv.fl.Reynolds)
-	}
-	// The distance of machOrSpeed outside the Mach band [M−tol, M+tol], with the band's ends
-	// computed as solve computes them, so that machOrSpeed on an end (where the search puts
-	// it) is inside by construction and scores exactly 0: |machOrSpeed − M| − tol would
-	// leave a rounding error of either sign there.
-	dM := 0.0
-	if lo, hi := sv.machBand(); !sv.noMach {
-		dM = math.Max(0, math.Max(lo-machOrSpeed, machOrSpeed-hi))
+	// Each logarithm is computed only where the objective reads it: a level of
+	// the priority list or a term of positive weight.
+	lnRe := func() float64 {
+		if met {
+			return 0
+		}
+		return math.Log(s * sv.L * r / sv.fl.Reynolds)
 	}
 	// Fr_test/Fr_flight = (V/√(g·s·L))/(V_f/√(g·L)) = V/(V_f·√s).
-	lnFr := math.Log(v / (sv.fl.Speed() * math.Sqrt(s)))
-	dSig, lnSig := 0.0, 0.0
-	if sv.cav {
-		sf := sv.fl.Marine.Cavitation
-		dSig = sv.cavDistance(sig)
-		lnSig = math.Log(math.Max(sig, 1e-9*sf) / sf)
-	}
+	lnFr := func() float64 { return math.Log(v / (sv.fl.Speed() * math.Sqrt(s))) }
 	k := key{q: q}
 	if sv.obj.weighted {
-		lnM := 0.0
-		if !sv.noMach {
-			lnM = math.Log(machOrSpeed / sv.aim)
-		}
-		for i, l := range [nGroups]float64{gReynolds: lnRe, gMach: lnM, gFroude: lnFr, gCavitation: lnSig} {
-			if w := sv.obj.w[i]; w > 0 {
-				k.v[0] += w * l * l
+		for i := range nGroups {
+			w := sv.obj.w[i]
+			if !(w > 0) {
+				continue
 			}
+			l := 0.0
+			switch i {
+			case gReynolds:
+				l = lnRe()
+			case gMach:
+				if !sv.noMach {
+					l = math.Log(machOrSpeed / sv.aim)
+				}
+			case gFroude:
+				l = lnFr()
+			case gCavitation:
+				if sv.cav {
+					sf := sv.fl.Marine.Cavitation
+					l = math.Log(math.Max(sig, 1e-9*sf) / sf)
+				}
+			}
+			k.v[0] += w * l * l
 		}
 		return k
 	}
 	for i, g := range sv.obj.levels {
 		switch g {
 		case gMach:
-			k.v[i] = dM
+			// The distance of machOrSpeed outside the Mach band [M−tol, M+tol], with the
+			// band's ends computed as solve computes them, so that machOrSpeed on an end
+			// (where the search puts it) is inside by construction and scores exactly 0:
+			// |machOrSpeed − M| − tol would leave a rounding error of either sign there.
+			if lo, hi := sv.machBand(); !sv.noMach {
+				k.v[i] = math.Max(0, math.Max(lo-machOrSpeed, machOrSpeed-hi))
+			}
 		case gReynolds:
-			k.v[i] = math.Abs(lnRe)
+			k.v[i] = math.Abs(lnRe())
 		case gFroude:
-			k.v[i] = math.Abs(lnFr)
+			k.v[i] = math.Abs(lnFr())
 		case gCavitation:
-			k.v[i] = dSig
+			if sv.cav {
+				k.v[i] = sv.cavDistance(sig)
+			}
 		}
 	}
 	return k
