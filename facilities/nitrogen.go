@@ -248,6 +248,37 @@ func nitrogenFreeStream(t0, p0, mach, speed float64) (nitrogenStatic, error) {
 	return st, nil
 }
 
+// nitrogenExpandSlope returns the static temperature T in K and pressure p in Pa
+// of nitrogen expanded from (t0 in K, p0 in Pa) to Mach number mach, as
+// nitrogenFreeStream gives them, and their derivatives in t0 at fixed p0 (dT in
+// K/K, dp in Pa/K). They follow by implicit differentiation: the stagnation
+// density moves as dρ0/dT0 = −(∂p/∂T)/(∂p/∂ρ) at p0, s0 and h0 with it, and the
+// static (T, ρ) as the Jacobian of nitrogenExpand's equations (s = s0, h +
+// M²a²/2 = h0) solved for the change of (s0, h0). ok is false when the
+// expansion leaves the gas.
+func nitrogenExpandSlope(t0, p0, mach float64) (T, p, dT, dp float64, ok bool) {
+	rho0 := nitrogenDensity(t0, p0)
+	n0 := nitrogenAt(t0, rho0)
+	if mach == 0 {
+		return t0, p0, 1, 0, true
+	}
+	T, rho, n, ok := nitrogenExpand(t0, rho0, n0, mach, 0)
+	if !ok {
+		return 0, 0, 0, 0, false
+	}
+	dr0 := -n0.pT / n0.pRho
+	ds0 := n0.cv/t0 - n0.pT/(rho0*rho0)*dr0
+	dh0 := n0.cv + n0.pT/rho0 + (n0.pRho-t0*n0.pT/rho0)/rho0*dr0
+	m2 := mach * mach
+	j11, j12 := n.cv/T, -n.pT/(rho*rho)
+	j21, j22 := n.cv+n.pT/rho+0.5*m2*n.a2T, (n.pRho-T*n.pT/rho)/rho+0.5*m2*n.a2Rho
+	det := j11*j22 - j12*j21
+	dT = (ds0*j22 - dh0*j12) / det
+	dr := (j11*dh0 - j21*ds0) / det
+	dp = n.pT*dT + n.pRho*dr
+	return T, n.p, dT, dp, true
+}
+
 // Lemmon & Jacobsen (2004) constants for nitrogen: ε/k in K, σ in nm, the molar mass
 // in g/mol, and the reducing temperature in K and density in kg/m³ of the residual
 // term (11.1839 mol/dm³).

@@ -149,3 +149,28 @@ func TestStateNitrogenRealGas(t *testing.T) {
 	assert.InDelta(t, 201.3, ideal, 0.05)
 	assert.Greater(t, (ideal-s.SpeedOfSound)/s.SpeedOfSound, 0.04, "the real-gas speed of sound is more than 4 % below the ideal-gas one here")
 }
+
+// TestLocalCondensationMarginSlope: the margin LocalCondensationMarginSlope gives
+// is LocalCondensationMargin's to the last bit, and its derivative in T0 (implicit
+// differentiation along the real-gas isentrope) matches a central difference of
+// LocalCondensationMargin within 1e-6, over the cryogenic tunnel range and at two
+// local peak Mach numbers; an ideal gas gives no derivative (NaN).
+func TestLocalCondensationMarginSlope(t *testing.T) {
+	t.Parallel()
+	for _, peak := range []float64{1.4, 1.1} {
+		f := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumNitrogen}, CondensationPeakMach: &peak}
+		for _, p0 := range []float64{1.3e5, 2.5e5, 4.5e5} {
+			for _, t0 := range []float64{100, 110, 140, 300} {
+				m, dm := f.LocalCondensationMarginSlope(p0, t0)
+				require.Equal(t, f.LocalCondensationMargin(p0, t0), m, "M %g, %g Pa, %g K", peak, p0, t0)
+				const h = 1e-3
+				fd := (f.LocalCondensationMargin(p0, t0+h) - f.LocalCondensationMargin(p0, t0-h)) / (2 * h)
+				assert.InEpsilon(t, fd, dm, 1e-6, "M %g, %g Pa, %g K", peak, p0, t0)
+			}
+		}
+	}
+	air := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumAir}}
+	m, dm := air.LocalCondensationMarginSlope(1e5, 200)
+	assert.Equal(t, air.LocalCondensationMargin(1e5, 200), m)
+	assert.True(t, math.IsNaN(dm))
+}

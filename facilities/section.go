@@ -336,6 +336,33 @@ func (f *Facility) LocalCondensationMargin(p0, t0 float64) float64 {
 	return f.localMargin(margin, p0, t0)
 }
 
+// LocalCondensationMarginSlope returns LocalCondensationMargin at (p0, t0) and
+// its derivative in t0 at fixed p0 in 1/K, for Newton steps along the
+// condensation line. For nitrogen the derivative follows the real-gas isentrope
+// by implicit differentiation (nitrogenExpandSlope); where it is not known
+// (other media, an expansion out of the gas phase) it is NaN. The margin is
+// LocalCondensationMargin's to the last bit.
+func (f *Facility) LocalCondensationMarginSlope(p0, t0 float64) (m, dm float64) {
+	if f.Medium.Kind != MediumNitrogen || !(t0 > 0 && p0 > 0) {
+		return f.LocalCondensationMargin(p0, t0), math.NaN()
+	}
+	t, p, dt, dp, ok := nitrogenExpandSlope(t0, p0, f.condensationPeakMach())
+	if !ok {
+		return -1, math.NaN()
+	}
+	if !(p > 0) {
+		return math.Inf(1), math.NaN()
+	}
+	// m = T/T_sat(p) − 1 with dT_sat/dp = T_sat²/(B·p) below the critical
+	// pressure (SaturationTemperature), 0 above it.
+	tsat, below := f.Medium.SaturationTemperature(p)
+	dm = dt / tsat
+	if below {
+		dm -= t * dp / (nitrogenClausiusB * p)
+	}
+	return nitrogenMargin(f.Medium, t, p), dm
+}
+
 // localMargin is LocalCondensationMargin with the medium's margin function.
 func (f *Facility) localMargin(margin func(Medium, float64, float64) float64, p0, t0 float64) float64 {
 	m := f.Medium

@@ -45,6 +45,18 @@ func (sv *solver) localMargin(p0, t0 float64) float64 {
 	return m
 }
 
+// localMarginSlope is localMargin with the margin's derivative in T0
+// (facilities.Facility.LocalCondensationMarginSlope); the margin is kept as
+// localMargin keeps it.
+func (sv *solver) localMarginSlope(p0, t0 float64) (m, dm float64) {
+	m, dm = sv.f.LocalCondensationMarginSlope(p0, t0)
+	if cc := sv.cond; cc != nil {
+		cc.local[cc.next] = localPoint{p0, t0, m}
+		cc.next = (cc.next + 1) % len(cc.local)
+	}
+	return m, dm
+}
+
 // condLine returns the lowest T0 in [lo, hi] at p0 at which the local
 // expansion keeps the condensation margin allowed (sv.condMin), by rootHi's
 // rule: lo when it is usable, hi when nothing is, else the usable side of the
@@ -54,7 +66,6 @@ func (sv *solver) condLine(p0, lo, hi float64) float64 {
 	cc := sv.cond
 	g := func(t float64) float64 { return sv.localMargin(p0, t) - sv.condMin }
 	if len(cc.line) > 0 && (cc.lo != lo || cc.hi != hi) {
-		// Another bracket (not the one the line was found in): no sharing.
 		return sv.rootHi(g, lo, hi, true)
 	}
 	cc.lo, cc.hi = lo, hi
@@ -75,7 +86,7 @@ func (sv *solver) condLine(p0, lo, hi float64) float64 {
 	case len(cc.line) == 0:
 		t = sv.rootHi(g, lo, hi, true)
 	default:
-		t = sv.rootFrom(g, cc.guess(i, p0), lo, hi)
+		t = sv.newtonFrom(g, p0, cc.guess(i, p0), lo, hi)
 	}
 	cc.line = slices.Insert(cc.line, i, condPoint{p0, t})
 	return t
@@ -91,6 +102,38 @@ func (cc *condLineCache) guess(i int, p0 float64) float64 {
 	j := min(max(i-1, 0), n-2)
 	a, b := cc.line[j], cc.line[j+1]
 	return a.t + (b.t-a.t)*(p0-a.p)/(b.p-a.p)
+}
+
+// newtonFrom is rootFrom for the condensation line at p0 (g the local margin
+// less the allowed minimum): Newton steps with the margin's derivative in T0
+// from the guess x0. Once a step is below 1e-8 relative the iterate is the
+// crossing to within rounding (the error of a Newton step is of the order of its
+// square); the point returned lies 2e-15 relative above it, on the usable side
+// (checked: g ≥ 0 there), well within rootHi's 1e-13. Anything else (no
+// derivative, a step out of [lo, hi], no convergence in 4 steps, the check
+// failing) falls back to rootFrom from x0.
+func (sv *solver) newtonFrom(g func(float64) float64, p0, x0, lo, hi float64) float64 {
+	x := math.Min(math.Max(x0, lo), hi)
+	for range 4 {
+		m, dm := sv.localMarginSlope(p0, x)
+		if !(dm > 0) || math.IsInf(dm, 0) {
+			break
+		}
+		dx := -(m - sv.condMin) / dm
+		xn := x + dx
+		if !(xn > lo && xn < hi) {
+			break
+		}
+		if math.Abs(dx) <= 1e-8*xn {
+			xn *= 1 + 2e-15
+			if xn < hi && g(xn) >= 0 {
+				return xn
+			}
+			break
+		}
+		x = xn
+	}
+	return sv.rootFrom(g, x0, lo, hi)
 }
 
 // rootFrom is rootHi for an increasing g started from a guess x0 of the
