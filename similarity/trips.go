@@ -3,6 +3,7 @@ package similarity
 import (
 	"fmt"
 	"math"
+	"sort"
 	"sync"
 )
 
@@ -71,20 +72,7 @@ type TripSize struct {
 func SizeTrip(reChord, chord, transitionFraction float64) TripSize {
 	x := TripPositionFraction * chord
 	rex := reChord * TripPositionFraction
-	target := TripCriticalRoughnessReynolds / math.Sqrt(rex)
-	lo, hi := 0.0, 1.0
-	for blasiusVelocity(hi)*hi < target {
-		hi *= 2
-	}
-	for range 60 {
-		mid := (lo + hi) / 2
-		if blasiusVelocity(mid)*mid < target {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
-	eta := (lo + hi) / 2
+	eta := tripEta(TripCriticalRoughnessReynolds / math.Sqrt(rex))
 	scale := x / math.Sqrt(rex) // m per unit η
 	t := TripSize{
 		PositionFraction:          TripPositionFraction,
@@ -105,6 +93,81 @@ func SizeTrip(reChord, chord, transitionFraction float64) TripSize {
 		t.Notes = append(t.Notes, fmt.Sprintf("natural transition on the model (near %.1f %% of the chord) is already ahead of the trip position: a trip there does nothing", 100*transitionFraction))
 	}
 	return t
+}
+
+// tripEta returns the η at which η·f'(η) reaches target (> 0): the bracket
+// [0, 1] doubled until it holds the crossing, then 60 bisections, the midpoint
+// of the last bracket. A bisection step whose midpoint lies outside the
+// certified bracket of the crossing (tripBracket) takes the side it is on
+// without evaluating the profile, so only the last steps, inside the bracket,
+// evaluate it: the answer is the plain bisection's to the bit, at about a
+// third of the profile evaluations.
+func tripEta(target float64) float64 {
+	a, b := tripBracket(target)
+	below := func(eta float64) bool {
+		switch {
+		case eta < a:
+			return true
+		case eta > b:
+			return false
+		}
+		return blasiusVelocity(eta)*eta < target
+	}
+	lo, hi := 0.0, 1.0
+	for below(hi) {
+		hi *= 2
+	}
+	for range 60 {
+		mid := (lo + hi) / 2
+		if below(mid) {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return (lo + hi) / 2
+}
+
+// tripBracket returns a < b around the η where η·f'(η) reaches target such
+// that η·f'(η) < target, as computed (blasiusVelocity), at every η below a and
+// at a, and not below it at b and every η above: the crossing is found by
+// Newton's method on the profile (g = η·f', g' = f' + η·f”), and a and b are
+// 1e-12 relative either side of it, checked by evaluating there. η·f' rises
+// steeply enough that 1e-12 relative moves it a thousand times its rounding, so
+// the computed values beyond a and b keep their side. Where a check fails the
+// bracket is (−Inf, +Inf), and every step evaluates.
+func tripBracket(target float64) (a, b float64) {
+	t := blasiusProfile()
+	// Newton from the first tabulated η whose η·f' reaches target.
+	i := sort.Search(len(t), func(i int) bool { return float64(i)*blasiusStep*t[i][1] >= target })
+	eta := blasiusEnd + 0.0
+	if i < len(t) {
+		eta = float64(i) * blasiusStep
+	}
+	for range 20 {
+		g, dg := eta, 1.0
+		if eta < blasiusEnd {
+			j := min(int(eta/blasiusStep), len(t)-1)
+			y := t[j]
+			if h := eta - float64(j)*blasiusStep; h > 0 {
+				y = blasiusRK4(y, h)
+			}
+			g, dg = eta*y[1], y[1]+eta*y[2]
+		}
+		if !(dg > 0) {
+			break
+		}
+		step := (g - target) / dg
+		eta -= step
+		if math.Abs(step) <= 1e-15*eta {
+			break
+		}
+	}
+	a, b = eta*(1-1e-12), eta*(1+1e-12)
+	if !(a > 0) || !(blasiusVelocity(a)*a < target) || blasiusVelocity(b)*b < target {
+		return math.Inf(-1), math.Inf(1)
+	}
+	return a, b
 }
 
 // blasiusStep is the step in η of the tabulated Blasius profile, blasiusEnd

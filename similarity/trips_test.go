@@ -1,6 +1,7 @@
 package similarity
 
 import (
+	"math"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -73,5 +74,43 @@ func TestSizeTrip(t *testing.T) {
 func BenchmarkSizeTrip(b *testing.B) {
 	for b.Loop() {
 		SizeTrip(2e6, 0.1, 0.4)
+	}
+}
+
+// tripEtaBisection is the plain bisection tripEta replays: every step
+// evaluates the profile.
+func tripEtaBisection(target float64) float64 {
+	lo, hi := 0.0, 1.0
+	for blasiusVelocity(hi)*hi < target {
+		hi *= 2
+	}
+	for range 60 {
+		mid := (lo + hi) / 2
+		if blasiusVelocity(mid)*mid < target {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return (lo + hi) / 2
+}
+
+// TestTripEtaBisection: the bisection that skips the steps outside its
+// certified bracket gives the plain bisection's η to the bit, from a trip deep in
+// the boundary layer to one far outside it, at targets spread over nine
+// decades and at the profile's tabulated points and its end.
+func TestTripEtaBisection(t *testing.T) {
+	t.Parallel()
+	targets := []float64{1e-4, 0.01, 0.3, 1, 10, 1e3, 1e5}
+	for re := 1e3; re <= 1e12; re *= 1.37 {
+		targets = append(targets, TripCriticalRoughnessReynolds/math.Sqrt(re*TripPositionFraction))
+	}
+	for _, eta := range []float64{0.01, 0.5, 1, 2.5, 4.91, 9.99, 10} {
+		targets = append(targets, eta*blasiusVelocity(eta))
+	}
+	for _, target := range targets {
+		assert.Equal(t, tripEtaBisection(target), tripEta(target), "η at η·f' = %g", target)
+		a, b := tripBracket(target)
+		assert.Less(t, a, b, "bracket at %g", target)
 	}
 }
