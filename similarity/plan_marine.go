@@ -10,20 +10,14 @@ import (
 // cavGrid is the number of water temperatures atWaterCav samples before refining.
 const cavGrid = 17
 
-// pressureRange returns the test-section static pressures in Pa a water facility can
-// hold at speed machOrSpeed and temperature t, [lo, hi], with the dynamic pressure q in Pa,
-// the Re/m and the vapour pressure pv in Pa there. A facility with a static-pressure
-// range sets it independently of speed; any other has p = p0 − q with p0 in its
+// staticRange returns the test-section static pressures in Pa a water facility can
+// hold at dynamic pressure q in Pa with the vapour pressure pv in Pa, [lo, hi]
+// (empty when hi < lo). A facility with a static-pressure range sets it
+// independently of speed; any other has p = p0 − q with p0 in its
 // stagnation-pressure range. lo is at least pv unless the problem allows
-// cavitation: the planner does not set a static pressure below the vapour pressure
-// (a negative cavitation number; the free stream itself would boil). ok is false when no such pressure exists or the state fails.
-// wp are the water's properties at t (waterPropsAt).
-func (sv *solver) pressureRange(machOrSpeed, p0, t float64, wp waterProps) (lo, hi, q, r, pv float64, ok bool) {
-	q, r, ok = sv.waterState(machOrSpeed, p0, t, wp)
-	if !ok {
-		return 0, 0, 0, 0, 0, false
-	}
-	pv = wp.pv
+// cavitation: the planner does not set a static pressure below the vapour
+// pressure (a negative cavitation number; the free stream itself would boil).
+func (sv *solver) staticRange(q, pv float64) (lo, hi float64) {
 	if sv.held {
 		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
 	} else {
@@ -32,7 +26,7 @@ func (sv *solver) pressureRange(machOrSpeed, p0, t float64, wp waterProps) (lo, 
 	if !sv.cavAllowed {
 		lo = math.Max(lo, pv)
 	}
-	return lo, hi, q, r, pv, hi >= lo && q > 0
+	return lo, hi
 }
 
 // waterProps are the properties of water at one temperature that the
@@ -141,49 +135,76 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	ta, tb := c.ta, c.tb
 	capHi := c.capWaterTop
+	// q and Re/m at temperature t, as waterQ and waterR give them.
+	wq := func(t float64) float64 {
+		q, _, ok := sv.waterState(c.machOrSpeed, c.pa, t, waterPropsAt(t))
+		if !ok {
+			return math.Inf(1)
+		}
+		return q
+	}
+	wr := func(t float64) float64 {
+		_, r, ok := sv.waterState(c.machOrSpeed, c.pa, t, waterPropsAt(t))
+		if !ok {
+			return math.Inf(1)
+		}
+		return r
+	}
 	if c.capWaterTop == facilities.ConstraintReynoldsUnit {
-		tb = sv.rootHi(func(t float64) float64 { return sv.remax - sv.waterR(c.machOrSpeed, c.pa, t) }, ta, tb, false)
+		tb = sv.rootHi(func(t float64) float64 { return sv.remax - wr(t) }, ta, tb, false)
 	}
 	if sv.load != nil {
 		qb := w.Hi
-		if qb < sv.waterQ(c.machOrSpeed, c.pa, tb)*(1-limitSlack) {
+		if qb < wq(tb)*(1-limitSlack) {
 			x.fail, x.k = sv.loadName, worst
 			return x
 		}
-		if sv.waterQ(c.machOrSpeed, c.pa, ta) > qb {
-			ta = sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.machOrSpeed, c.pa, t) }, ta, tb, true)
+		if wq(ta) > qb {
+			ta = sv.rootHi(func(t float64) float64 { return qb - wq(t) }, ta, tb, true)
 		}
 	}
 	if lo := w.Lo; lo > 0 {
 		// The resolution floor caps T0 (q falls as the water warms).
-		if sv.waterQ(c.machOrSpeed, c.pa, ta) < lo*(1-limitSlack) {
+		if wq(ta) < lo*(1-limitSlack) {
 			x.fail, x.k = sv.floorName, worst
 			return x
 		}
-		if sv.waterQ(c.machOrSpeed, c.pa, tb) < lo {
-			tb = sv.rootHi(func(t float64) float64 { return sv.waterQ(c.machOrSpeed, c.pa, t) - lo }, ta, tb, false)
+		if wq(tb) < lo {
+			tb = sv.rootHi(func(t float64) float64 { return wq(t) - lo }, ta, tb, false)
 			capHi = sv.floorName
 		}
 	}
 	sf := sv.fl.Marine.Cavitation
-	evalAt := func(t float64, wp waterProps) candidate {
+	// evalAt returns the candidate at temperature t, the water's properties
+	// there being wp, and the room between the static pressures the facility
+	// can hold there, hi − lo in Pa (NaN where the state fails).
+	evalAt := func(t float64, wp waterProps) (candidate, float64) {
 		y := candidate{machOrSpeed: c.machOrSpeed, s: s, t0: t, v: c.machOrSpeed, capHi: capHi}
-		lo, hi, q, r, pv, ok := sv.pressureRange(c.machOrSpeed, c.pa, t, wp)
+		q, r, ok := sv.waterState(c.machOrSpeed, c.pa, t, wp)
+		room := math.NaN()
+		if ok {
+			lo, hi := sv.staticRange(q, wp.pv)
+			room = hi - lo
+			if !(hi >= lo && q > 0) {
+				ok = false
+			} else {
+				y.ps = math.Min(math.Max(wp.pv+sf*q, lo), hi)
+				y.sig = (y.ps - wp.pv) / q
+				y.q, y.r, y.p0 = q, r, y.ps+q
+			}
+		}
 		if !ok {
 			y.fail, y.k = facilities.ConstraintStaticPressureMin, worst
 			if !sv.held {
 				y.fail = facilities.ConstraintPressureMin
 			}
-			return y
+			return y, room
 		}
-		y.ps = math.Min(math.Max(pv+sf*q, lo), hi)
-		y.sig = (y.ps - pv) / q
-		y.q, y.r, y.p0 = q, r, y.ps+q
 		y.ok = true
 		y.k = sv.keyOf(c.machOrSpeed, s, r, q, c.machOrSpeed, false, y.sig)
-		return y
+		return y, room
 	}
-	eval := func(t float64) candidate { return evalAt(t, waterPropsAt(t)) }
+	eval := func(t float64) candidate { y, _ := evalAt(t, waterPropsAt(t)); return y }
 	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
 	seen := make([]candidate, 0, 2*cavGrid)
 	consider := func(y candidate) {
@@ -199,9 +220,10 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	}
 	wg := sv.grids.grid(ta, tb)
 	var grid [cavGrid]candidate
+	var rooms [cavGrid]float64
 	ibest := -1
 	for i := range grid {
-		grid[i] = evalAt(cavGridT(ta, tb, i), wg.wp[i])
+		grid[i], rooms[i] = evalAt(cavGridT(ta, tb, i), wg.wp[i])
 		if grid[i].ok && (ibest < 0 || grid[i].k.less(grid[ibest].k)) {
 			ibest = i
 		}
@@ -215,38 +237,37 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		return x
 	}
 	// The cavitation level (0 inside the band) and feasibility change at edges
-	// between grid points: find each by bisection, keeping the better side.
+	// between grid points: find each to 1e-12 relative, keeping the better side
+	// (cavEdge).
 	zero := func(y candidate) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
 	for i := 0; i+1 < len(grid); i++ {
 		a, b := grid[i], grid[i+1]
 		if a.ok == b.ok && zero(a) == zero(b) {
 			continue
 		}
-		good, bad := a, b
+		good, bad, rg, rb := a, b, rooms[i], rooms[i+1]
 		if !(a.ok && (zero(a) || !zero(b))) {
-			good, bad = b, a
+			good, bad, rg, rb = b, a, rb, rg
 		}
-		same := func(y candidate) bool { return y.ok == good.ok && zero(y) == zero(good) }
-		for j := 0; j < 60 && math.Abs(good.t0-bad.t0) > 1e-12*good.t0; j++ {
-			m := eval(0.5 * (good.t0 + bad.t0))
-			if same(m) {
-				good = m
-			} else {
-				bad = m
-			}
-		}
-		consider(good)
+		consider(sv.cavEdge(evalAt, good, bad, rg, rb))
 	}
 	// The temperature that meets the target Re/m (Re/m rises with T).
 	if grid[0].ok && grid[len(grid)-1].ok {
 		if r0, r1 := grid[0].r, grid[len(grid)-1].r; target > r0 && target < r1 {
-			t := sv.rootHi(func(t float64) float64 { return sv.waterR(c.machOrSpeed, c.pa, t) - target }, ta, tb, true)
+			t := sv.rootHi(func(t float64) float64 { return wr(t) - target }, ta, tb, true)
 			consider(eval(t))
 		}
 	}
 	// Refine around the best grid point (a smooth weighted objective, or a
-	// cavitation band out of reach).
-	if lo, hi := math.Max(0, float64(ibest-1)), math.Min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta {
+	// cavitation band out of reach). Inside the band a priority of the
+	// cavitation number, then the Reynolds number, has its best at the
+	// temperature that meets the target Re/m or at an end of the band's stretch
+	// that holds it (|ln(Re_test/Re_flight)| falls toward that temperature, since
+	// Re/m rises with T), each considered already when both ends of the range
+	// are usable: no refinement then.
+	settled := !sv.obj.weighted && len(sv.obj.levels) > 1 && sv.obj.levels[0] == gCavitation &&
+		sv.obj.levels[1] == gReynolds && zero(best) && grid[0].ok && grid[len(grid)-1].ok
+	if lo, hi := math.Max(0, float64(ibest-1)), math.Min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta && !settled {
 		g := sv.golden(func(t float64) candidate { return eval(t) },
 			ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1), 3, 1e-12)
 		consider(g)
@@ -271,6 +292,70 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		best.capHi = capHi
 	}
 	return best
+}
+
+// cavEdge narrows the bracket [good, bad] of temperatures (either order) across
+// which a cavitation candidate's feasibility or its cavitation level changes
+// (good is feasible; bad differs in either) to 1e-12 relative and returns the
+// candidate at its good end. eval gives the candidate at a temperature and the
+// room hi − lo between the static pressures the facility can hold there (NaN
+// where the state fails); rg and rb are good's and bad's. The step is regula
+// falsi with the Illinois modification on a margin that changes sign at the edge
+// (the room for a feasibility edge, the distance into the cavitation band for a
+// band edge, the lesser of the two where either may change), which is
+// continuous in the temperature, and a halving where the margin is not
+// defined, disagrees in sign with the candidate's side, or the last step took
+// less than half the bracket away: every point tested keeps the bracket's
+// ends on their sides exactly, as a bisection does, in about a quarter of its
+// steps.
+func (sv *solver) cavEdge(eval func(float64, waterProps) (candidate, float64), good, bad candidate, rg, rb float64) candidate {
+	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
+	inBand := func(y candidate) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
+	band := inBand(good)
+	same := func(y candidate) bool { return y.ok && inBand(y) == band }
+	// margin is ≥ 0 on good's side and < 0 on the other, or NaN.
+	margin := func(y candidate, room float64) float64 {
+		m := room
+		if y.ok {
+			d := math.Min(y.sig-(sf-tol), (sf+tol)-y.sig) // ≥ 0 inside the band
+			if !band {
+				d = -d
+			}
+			m = math.Min(room, d)
+		}
+		if same(y) != (m >= 0) {
+			return math.NaN()
+		}
+		return m
+	}
+	fg, fb := margin(good, rg), margin(bad, rb)
+	side, halve := 0, false
+	for j := 0; j < 100 && math.Abs(good.t0-bad.t0) > 1e-12*good.t0; j++ {
+		w := math.Abs(good.t0 - bad.t0)
+		t := 0.5 * (good.t0 + bad.t0)
+		if !halve && fg-fb > 0 {
+			if x := good.t0 + fg/(fg-fb)*(bad.t0-good.t0); x > math.Min(good.t0, bad.t0) && x < math.Max(good.t0, bad.t0) {
+				t = x
+			}
+		}
+		m, room := eval(t, waterPropsAt(t))
+		f := margin(m, room)
+		if same(m) {
+			good, fg = m, f
+			if side == 1 {
+				fb *= 0.5
+			}
+			side = 1
+		} else {
+			bad, fb = m, f
+			if side == -1 {
+				fg *= 0.5
+			}
+			side = -1
+		}
+		halve = math.Abs(good.t0-bad.t0) > 0.5*w
+	}
+	return good
 }
 
 // cavDistance is the distance of a test cavitation number sig outside the band
