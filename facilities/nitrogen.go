@@ -92,11 +92,20 @@ func nitrogenAt(T, rho float64) n2Props {
 	// τ·∂α⁰/∂τ and −τ²·∂²α⁰/∂τ².
 	tat := g.a1 + g.a3*tau - it*(g.a4+it*(2*g.a5+it*3*g.a6)) + g.a7*g.a8*tau*e/(1-e)
 	cv0 := g.a1 - it*(2*g.a4+it*(6*g.a5+it*12*g.a6)) + g.a7*g.a8*g.a8*tau*tau*e/((1-e)*(1-e))
-	alpha0 := math.Log(rho) + g.a1*math.Log(tau) + g.a3*tau + it*(g.a4+it*(g.a5+it*g.a6)) + g.a7*math.Log(1-e)
+	// ln(1 − e) by its series where e is small (below 480 K: e is 2.5e-15 at
+	// 100 K, 1.4e-5 at 300 K), one logarithm less; and ln ρ − ln(1 − bρ) of s
+	// as one.
+	var ln1e float64
+	if e < 1e-3 {
+		ln1e = -e * (1 + e*(0.5+e*(1.0/3+0.25*e)))
+	} else {
+		ln1e = math.Log(1 - e)
+	}
+	alpha0 := g.a1*math.Log(tau) + g.a3*tau + it*(g.a4+it*(g.a5+it*g.a6)) + g.a7*ln1e
 
 	n.cv = r*cv0 + T*dda*l
 	n.h = rt*(1+tat) + (T*da-aa)*l + n.p/rho - rt
-	n.s = r*(tat-alpha0) + r*math.Log(one) + da*l
+	n.s = r*(tat-alpha0+math.Log(one/rho)) + da*l
 	n.valid = one > 0 && n.pRho > 0 && n.cv > 0 && rho > 0 && n.pT != 0
 	if !n.valid {
 		return n
@@ -153,10 +162,12 @@ const nitrogenMaxSteps = 30
 // (t0 in K, rho0 in kg/m³, with its properties n0) to Mach number mach, or, when
 // speed > 0, to that speed in m/s (mach is then ignored): s(T, ρ) = s0 and
 // h(T, ρ) + V²/2 = h0 with V = M·a(T, ρ) (physics.md §4). Newton's method in (T, ρ)
-// from the ideal-gas ratios (γ = 1.4, ρ/ρ0 = (T/T0)^2.5), with the exact Jacobian
-// (the derivatives of a² included), converges quadratically: two or three steps over
-// the tunnel range, stopping after a step below nitrogenStepTol. ok is false when the iteration leaves the gas-like region or does not
-// converge.
+// from the isentrope of the stagnation state's exponents (below), with the exact
+// Jacobian (the derivatives of a² included), converges quadratically: two or three
+// steps over the tunnel range, stopping after a step below nitrogenStepTol. The
+// properties n returned are those of the last iterate with p and a² carried to
+// the point returned (the rest differ by less than the step). ok is false when
+// the iteration leaves the gas-like region or does not converge.
 func nitrogenExpand(t0, rho0 float64, n0 n2Props, mach, speed float64) (T, rho float64, n n2Props, ok bool) {
 	g := NitrogenGamma
 	if speed > 0 {
@@ -167,11 +178,26 @@ func nitrogenExpand(t0, rho0 float64, n0 n2Props, mach, speed float64) (T, rho f
 		}
 		mach = speed / math.Sqrt(den)
 	}
-	tr := 1 + 0.5*(g-1)*mach*mach
-	T = t0 / tr
-	rho = rho0 * math.Pow(tr, -1/(g-1))
-	v2 := speed * speed
+	// The start: the isentrope of a gas with the stagnation state's isentropic
+	// exponent k = ρa²/p and Grüneisen parameter G = (∂p/∂T)_ρ/(ρ·c_v) held
+	// (p ∝ ρ^k, T ∝ ρ^G, so a² ∝ ρ^(k−1) and h0 − h = ½M²a² gives ρ/ρ0 =
+	// (1 + (k−1)/2·M²)^(−1/(k−1))): the ideal-gas ratios for k = γ, G = γ − 1,
+	// and in cold nitrogen 3 to 10 times closer to the real-gas state than they.
+	k := rho0 * n0.a2 / n0.p
+	gr := n0.pT / (rho0 * n0.cv)
 	m2 := mach * mach
+	if speed > 0 {
+		m2 = speed * speed / (n0.a2 - 0.5*(k-1)*speed*speed)
+	}
+	if k > 1 && gr > 0 && m2 > 0 && !math.IsInf(m2, 0) {
+		x := math.Pow(1+0.5*(k-1)*m2, -1/(k-1))
+		T, rho = t0*math.Pow(x, gr), rho0*x
+	} else {
+		tr := 1 + 0.5*(g-1)*mach*mach
+		T, rho = t0/tr, rho0*math.Pow(tr, -1/(g-1))
+	}
+	v2 := speed * speed
+	m2 = mach * mach
 	for range nitrogenMaxSteps {
 		n = nitrogenAt(T, rho)
 		if !n.valid || !(T > 0) {
@@ -204,10 +230,12 @@ func nitrogenExpand(t0, rho0 float64, n0 n2Props, mach, speed float64) (T, rho f
 		T -= dT
 		rho -= dr
 		// Newton converges quadratically here: after a step of 1e-8 the error is
-		// of the order of 1e-16.
+		// of the order of 1e-16, and so is that of p and a² carried over the
+		// step to first order (no state is computed at the point itself).
 		if math.Abs(dT) <= nitrogenStepTol*T && math.Abs(dr) <= nitrogenStepTol*rho {
-			n = nitrogenAt(T, rho)
-			return T, rho, n, n.valid
+			n.p -= n.pT*dT + n.pRho*dr
+			n.a2 -= n.a2T*dT + n.a2Rho*dr
+			return T, rho, n, n.valid && T > 0 && rho > 0
 		}
 	}
 	return 0, 0, n2Props{}, false
