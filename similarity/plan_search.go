@@ -473,6 +473,12 @@ func (sv *solver) gain(name string, best candidate) (float64, int, error) {
 	// and a 1 % relaxation keeps it so).
 	r.warmAt, r.warmCell = best.machOrSpeed, sv.cellAt(best.machOrSpeed)
 	r.noPolish = sv.noPolish || !sv.polishImproved
+	if sv.bandFeasible() {
+		// The Mach band lies inside a feasible interval of the plan relaxed,
+		// and relaxing a limit only widens the feasible set: the re-solve's
+		// band is the same, and it needs no feasibility scan.
+		r.ivs, r.ivsFails, r.ivsKnown = sv.ivs, sv.ivsFails, true
+	}
 	b2, err := r.solveCorrected()
 	sv.polishEvals += r.polishEvals
 	if err != nil {
@@ -480,6 +486,23 @@ func (sv *solver) gain(name string, best candidate) (float64, int, error) {
 	}
 	re := best.r * best.s
 	return 100 * (b2.r*b2.s/re - 1), r.evals, nil
+}
+
+// bandFeasible reports whether the Mach number comes first in the objective and
+// its whole band lies inside one feasible interval of the last solve: the
+// search then looks at the band alone, and no scan of the feasible set can
+// change it.
+func (sv *solver) bandFeasible() bool {
+	if !sv.machFirst() {
+		return false
+	}
+	lo, hi := sv.machBand()
+	for _, iv := range sv.ivs {
+		if iv.a <= lo && hi <= iv.b {
+			return true
+		}
+	}
+	return false
 }
 
 // sortBindings orders a binding list by constraint name for stable output.
