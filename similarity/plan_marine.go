@@ -243,6 +243,16 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	for i := 0; i+1 < len(grid); i++ {
 		a, b := grid[i], grid[i+1]
 		if a.ok == b.ok && zero(a) == zero(b) {
+			if !sv.obj.weighted && a.ok && !zero(a) && (a.sig < sf) != (b.sig < sf) {
+				// The cavitation number crosses its whole band between two grid
+				// points (a band narrower than a grid cell): a point inside it,
+				// then both its ends.
+				if m, room, ok := sv.cavCrossing(evalAt, a, b); ok {
+					consider(m)
+					consider(sv.cavEdge(evalAt, m, a, room, rooms[i]))
+					consider(sv.cavEdge(evalAt, m, b, room, rooms[i+1]))
+				}
+			}
 			continue
 		}
 		good, bad, rg, rb := a, b, rooms[i], rooms[i+1]
@@ -302,8 +312,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 // where the state fails); rg and rb are good's and bad's. The step is regula
 // falsi with the Illinois modification on a margin that changes sign at the edge
 // (the room for a feasibility edge, the distance into the cavitation band for a
-// band edge, the lesser of the two where either may change), which is
-// continuous in the temperature, and a halving where the margin is not
+// band edge), which is continuous in the temperature, and a halving where the margin is not
 // defined, disagrees in sign with the candidate's side, or the last step took
 // less than half the bracket away: every point tested keeps the bracket's
 // ends on their sides exactly, as a bisection does, in about a quarter of its
@@ -313,15 +322,28 @@ func (sv *solver) cavEdge(eval func(float64, waterProps) (candidate, float64), g
 	inBand := func(y candidate) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
 	band := inBand(good)
 	same := func(y candidate) bool { return y.ok && inBand(y) == band }
-	// margin is ≥ 0 on good's side and < 0 on the other, or NaN.
+	// margin is ≥ 0 on good's side and < 0 on the other, or NaN: the room
+	// where bad is not usable, else the distance from the band's end between
+	// them, σ_full ± cavTol, toward good.
+	byRoom := !bad.ok
+	out := bad.sig // the side of the band the one out of it is on
+	if !band {
+		out = good.sig
+	}
+	edge, dir := sf-tol, 1.0
+	if out > sf {
+		edge, dir = sf+tol, -1
+	}
+	if !band {
+		dir = -dir
+	}
 	margin := func(y candidate, room float64) float64 {
 		m := room
-		if y.ok {
-			d := math.Min(y.sig-(sf-tol), (sf+tol)-y.sig) // ≥ 0 inside the band
-			if !band {
-				d = -d
+		if !byRoom {
+			m = math.NaN()
+			if y.ok {
+				m = dir * (y.sig - edge)
 			}
-			m = math.Min(room, d)
 		}
 		if same(y) != (m >= 0) {
 			return math.NaN()
@@ -329,13 +351,19 @@ func (sv *solver) cavEdge(eval func(float64, waterProps) (candidate, float64), g
 		return m
 	}
 	fg, fb := margin(good, rg), margin(bad, rb)
-	side, halve := 0, false
-	for j := 0; j < 100 && math.Abs(good.t0-bad.t0) > 1e-12*good.t0; j++ {
-		w := math.Abs(good.t0 - bad.t0)
+	side, w0 := 0, math.Abs(good.t0-bad.t0)
+	for j := 1; j <= 100 && math.Abs(good.t0-bad.t0) > 1e-12*good.t0; j++ {
 		t := 0.5 * (good.t0 + bad.t0)
-		if !halve && fg-fb > 0 {
-			if x := good.t0 + fg/(fg-fb)*(bad.t0-good.t0); x > math.Min(good.t0, bad.t0) && x < math.Max(good.t0, bad.t0) {
-				t = x
+		if j%4 == 0 && math.Abs(good.t0-bad.t0) > 0.5*w0 {
+			// The last three steps did not halve the bracket: a halving.
+		} else if fg-fb > 0 {
+			// At least 0.4e-12 relative from either end: once an end is as close
+			// to the edge as the margin resolves, the next point falls past it
+			// and closes the bracket.
+			d := 0.4e-12 * good.t0
+			lo, hi := math.Min(good.t0, bad.t0)+d, math.Max(good.t0, bad.t0)-d
+			if x := good.t0 + fg/(fg-fb)*(bad.t0-good.t0); x >= lo-d && x <= hi+d {
+				t = math.Min(math.Max(x, lo), hi)
 			}
 		}
 		m, room := eval(t, waterPropsAt(t))
@@ -353,9 +381,49 @@ func (sv *solver) cavEdge(eval func(float64, waterProps) (candidate, float64), g
 			}
 			side = -1
 		}
-		halve = math.Abs(good.t0-bad.t0) > 0.5*w
+		if j%4 == 0 {
+			w0 = math.Abs(good.t0 - bad.t0)
+		}
 	}
 	return good
+}
+
+// cavCrossing returns a candidate inside the cavitation band between a and b,
+// feasible candidates on either side of the band at neighbouring temperatures,
+// with the room hi − lo at it (see cavEdge), or false when the search meets an
+// unusable state or narrows [a, b] to 1e-12 relative without landing in the band:
+// regula falsi with the Illinois modification on σ − σ_full, continuous in T.
+func (sv *solver) cavCrossing(eval func(float64, waterProps) (candidate, float64), a, b candidate) (candidate, float64, bool) {
+	sf := sv.fl.Marine.Cavitation
+	fa, fb := a.sig-sf, b.sig-sf
+	side := 0
+	for j := 0; j < 100 && math.Abs(a.t0-b.t0) > 1e-12*math.Abs(a.t0); j++ {
+		t := 0.5 * (a.t0 + b.t0)
+		if x := a.t0 + fa/(fa-fb)*(b.t0-a.t0); x > math.Min(a.t0, b.t0) && x < math.Max(a.t0, b.t0) {
+			t = x
+		}
+		m, room := eval(t, waterPropsAt(t))
+		if !m.ok {
+			return m, room, false
+		}
+		if sv.cavDistance(m.sig) == 0 {
+			return m, room, true
+		}
+		if f := m.sig - sf; (f < 0) == (fa < 0) {
+			a, fa = m, f
+			if side == -1 {
+				fb *= 0.5
+			}
+			side = -1
+		} else {
+			b, fb = m, f
+			if side == 1 {
+				fa *= 0.5
+			}
+			side = 1
+		}
+	}
+	return a, 0, false
 }
 
 // cavDistance is the distance of a test cavitation number sig outside the band
