@@ -230,6 +230,9 @@ type solver struct {
 	// nil otherwise): the search, the trade curve and the re-solves that relax
 	// no limit a set-up reads share them.
 	setups map[float64]machSetup
+	// water keeps water's properties by temperature (a water facility's
+	// plans; nil otherwise), shared with the relaxed copies.
+	water *waterMemo
 	// grids keeps the water's properties on the temperature grids of the
 	// cavitation search (atWaterCav; nil until it runs).
 	grids *waterGrids
@@ -275,6 +278,9 @@ func newSolver(p *Problem) (*solver, error) {
 		sv.cond = newCondLineCache()
 		sv.setups = make(map[float64]machSetup, 64)
 		sv.memo = &stateMemos{}
+	}
+	if sv.liquid {
+		sv.water = &waterMemo{}
 	}
 	return sv, nil
 }
@@ -680,6 +686,11 @@ type stateMemo struct {
 // stateNow computes the facility state at machOrSpeed, p0, T0 (state).
 func (sv *solver) stateNow(machOrSpeed, p0, t0 float64) (facilities.State, error) {
 	sv.evals++
+	if sv.water != nil {
+		if st, ok := sv.waterStateKept(machOrSpeed, p0, t0); ok {
+			return st, nil
+		}
+	}
 	set := facilities.Setting{StagnationPressure: p0, StagnationTemperature: t0}
 	if sv.liquid {
 		set.Speed = machOrSpeed
@@ -1206,9 +1217,9 @@ func (sv *solver) waterMargin(machOrSpeed, p0, t float64) (float64, string) {
 	if err != nil {
 		return -1, facilities.ConstraintBoiling
 	}
-	m, name := sv.f.BoilingMargin(st)-sv.boilMin, facilities.ConstraintBoiling
+	m, name := sv.boilingMargin(st)-sv.boilMin, facilities.ConstraintBoiling
 	if !sv.cavAllowed {
-		if c := sv.f.CavitationMargin(st) - sv.cavMin; c < m {
+		if c := sv.cavitationMargin(st) - sv.cavMin; c < m {
 			m, name = c, facilities.ConstraintCavitation
 		}
 	}

@@ -1,0 +1,97 @@
+package similarity
+
+import (
+	"math"
+
+	"scalematch/facilities"
+)
+
+// waterMemo keeps the properties of water at the temperatures a plan met
+// last, in a small table indexed by a hash of the temperature: water's density,
+// viscosity and vapour pressure depend on the temperature alone, and the
+// planner asks for the same few temperatures (the ends of the usable T0 range)
+// at every speed, in the search, the trade curve and every re-solve. A
+// solver's relaxed copies share it.
+type waterMemo struct {
+	t    [waterMemoSize]float64 // 0: unset (no water state is at 0 K)
+	rho  [waterMemoSize]float64 // kg/m³ (facilities.WaterDensity)
+	mu   [waterMemoSize]float64 // Pa·s (facilities.WaterViscosity)
+	pv   [waterMemoSize]float64 // Pa (facilities.WaterVapourPressure), once pvOK
+	pvOK [waterMemoSize]bool
+}
+
+// waterMemoSize is the number of temperatures a waterMemo keeps.
+const waterMemoSize = 16
+
+// slot returns the index of temperature t in the table, computing the density
+// and viscosity there when t is not kept.
+func (m *waterMemo) slot(t float64) int {
+	i := int((math.Float64bits(t) * 0x9e3779b97f4a7c15) >> (64 - 4))
+	if m.t[i] != t {
+		rho := facilities.WaterDensity(t)
+		m.t[i], m.rho[i], m.mu[i], m.pvOK[i] = t, rho, facilities.WaterViscosity(t, rho), false
+	}
+	return i
+}
+
+// vapourPressure returns facilities.WaterVapourPressure(t), kept.
+func (m *waterMemo) vapourPressure(t float64) float64 {
+	i := m.slot(t)
+	if !m.pvOK[i] {
+		m.pv[i], m.pvOK[i] = facilities.WaterVapourPressure(t), true
+	}
+	return m.pv[i]
+}
+
+// waterStateKept returns facilities.Facility.State of a water facility that
+// does not hold its static pressure, at speed v, stagnation pressure p0 and
+// temperature t, with the water's properties from the memo, and true; false
+// where State would refuse the setting or the facility holds its static
+// pressure (the caller then asks State). The State is built with State's own
+// arithmetic (TestWaterStateKeptMatchesFacility holds the two equal).
+func (sv *solver) waterStateKept(v, p0, t float64) (facilities.State, bool) {
+	if sv.f.StaticPressure != nil || !(p0 > 0) || math.IsInf(p0, 1) || !(v >= 0) || math.IsInf(v, 1) ||
+		!(t >= facilities.WaterMinTemperature && t <= facilities.WaterMaxTemperature) {
+		return facilities.State{}, false
+	}
+	m := sv.water
+	i := m.slot(t)
+	rho, mu := m.rho[i], m.mu[i]
+	q := 0.5 * rho * v * v
+	p := p0 - q
+	if !(p > 0) {
+		return facilities.State{}, false
+	}
+	return facilities.State{
+		Speed:                 v,
+		StagnationPressure:    p0,
+		StagnationTemperature: t,
+		Static: facilities.Static{
+			Temperature:     t,
+			Pressure:        p,
+			Density:         rho,
+			Viscosity:       mu,
+			Compressibility: 1,
+		},
+		DynamicPressure:  q,
+		ReynoldsPerMeter: rho * v / mu,
+	}, true
+}
+
+// boilingMargin is facilities.Facility.BoilingMargin of a water state st, with
+// the vapour pressure from the memo when the solver keeps one.
+func (sv *solver) boilingMargin(st facilities.State) float64 {
+	if sv.water == nil || !(st.StagnationTemperature > 0) {
+		return sv.f.BoilingMargin(st)
+	}
+	return st.StagnationPressure/sv.water.vapourPressure(st.StagnationTemperature) - 1
+}
+
+// cavitationMargin is facilities.Facility.CavitationMargin of a water state
+// st, with the vapour pressure from the memo when the solver keeps one.
+func (sv *solver) cavitationMargin(st facilities.State) float64 {
+	if sv.water == nil || !(st.Static.Temperature > 0) {
+		return sv.f.CavitationMargin(st)
+	}
+	return st.Static.Pressure/sv.water.vapourPressure(st.Static.Temperature) - 1
+}

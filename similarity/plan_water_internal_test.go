@@ -1,0 +1,57 @@
+package similarity
+
+import (
+	"math"
+	"math/rand"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+)
+
+// TestWaterStateKeptMatchesFacility checks the water states the planner builds
+// from its kept properties (waterStateKept, boilingMargin, cavitationMargin)
+// against facilities.Facility.State and its margins: the same usable settings
+// and the same State to the bit, in wtn-04 at random speeds (some with q past
+// p0, some negative), stagnation pressures and temperatures inside and outside
+// the water model, each temperature met several times (the memo's hits) among
+// others that evict it; a facility that holds its static pressure (cvt-07) is
+// left to State.
+func TestWaterStateKeptMatchesFacility(t *testing.T) {
+	rng := rand.New(rand.NewSource(23))
+	f, ok := facilities.DemoFacility("wtn-04")
+	require.True(t, ok)
+	sv := &solver{f: &f, liquid: true, water: &waterMemo{}}
+	temps := make([]float64, 40)
+	for i := range temps {
+		tlo, thi := facilities.WaterMinTemperature-5, facilities.WaterMaxTemperature+5
+		temps[i] = tlo + (thi-tlo)*rng.Float64()
+	}
+	temps = append(temps, facilities.WaterMinTemperature, facilities.WaterMaxTemperature, f.StagnationTemperature.Min, f.StagnationTemperature.Max)
+	for i := 0; i < 5000; i++ {
+		temp := temps[rng.Intn(len(temps))]
+		v := 40 * rng.Float64()
+		if rng.Intn(8) == 0 {
+			v = 20 * (rng.Float64() - 0.5)
+		}
+		p0 := f.StagnationPressure.Min + (f.StagnationPressure.Max-f.StagnationPressure.Min)*rng.Float64()
+		if rng.Intn(16) == 0 {
+			p0 = math.Inf(1)
+		}
+		want, err := f.State(facilities.Setting{Speed: v, StagnationPressure: p0, StagnationTemperature: temp})
+		got, ok := sv.waterStateKept(v, p0, temp)
+		require.Equal(t, err == nil, ok, "wtn-04 at %g m/s, p0 %g Pa, %g K: %v", v, p0, temp, err)
+		if ok {
+			require.Equal(t, want, got, "wtn-04 at %g m/s, p0 %g Pa, %g K", v, p0, temp)
+			require.Equal(t, f.BoilingMargin(want), sv.boilingMargin(got), "boiling margin at %g K", temp)
+			require.Equal(t, f.CavitationMargin(want), sv.cavitationMargin(got), "cavitation margin at %g K", temp)
+		}
+	}
+	held, ok := facilities.DemoFacility("cvt-07")
+	require.True(t, ok)
+	hv := &solver{f: &held, liquid: true, held: true, water: &waterMemo{}}
+	_, ok = hv.waterStateKept(5, held.StagnationPressure.Max, 293.15)
+	assert.False(t, ok, "cvt-07 holds its static pressure: its states are State's")
+}
