@@ -144,6 +144,12 @@ func (sv *solver) shrink(c *machSetup, x candidate) candidate {
 // golden-section search in the bracket around the best of them, to tol relative of
 // the interval's scale. It returns the best candidate seen.
 func (sv *solver) golden(eval func(float64) candidate, a, b float64, n int, tol float64) candidate {
+	return sv.gridMin(eval, a, b, n, tol, false)
+}
+
+// gridMin is golden, with Brent's method (brentMin) instead of the golden
+// section in the bracket when brent is set (a weighted objective: one level).
+func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol float64, brent bool) candidate {
 	best := eval(a)
 	if b <= a {
 		return best
@@ -168,17 +174,25 @@ func (sv *solver) golden(eval func(float64) candidate, a, b float64, n int, tol 
 	eps := tol * math.Max(math.Max(math.Abs(a), math.Abs(b)), b-a)
 	// At an end of the interval, one step inside tells: for a unimodal key, no
 	// improvement there means the end is the optimum.
+	start, fStart := xs[ibest], best
 	switch ibest {
 	case 0:
-		if e := eval(a + eps); !e.k.less(best.k) {
+		e := eval(a + eps)
+		if !e.k.less(best.k) {
 			return best
 		}
+		start, fStart = a+eps, e
 	case n - 1:
-		if e := eval(b - eps); !e.k.less(best.k) {
+		e := eval(b - eps)
+		if !e.k.less(best.k) {
 			return best
 		}
+		start, fStart = b-eps, e
 	}
 	lo, hi := xs[max(ibest-1, 0)], xs[min(ibest+1, n-1)]
+	if brent {
+		return brentMin(eval, lo, hi, start, fStart, eps)
+	}
 	x1 := hi - invPhi*(hi-lo)
 	x2 := lo + invPhi*(hi-lo)
 	f1, f2 := eval(x1), eval(x2)
@@ -205,6 +219,83 @@ func (sv *solver) golden(eval func(float64) candidate, a, b float64, n int, tol 
 		}
 	}
 	return best
+}
+
+// brentMin minimises the key of eval over [lo, hi] from x, an interior point
+// already evaluated (fx), to eps: Brent's method (Brent, R.P. (1973) Algorithms
+// for Minimization without Derivatives, ch. 5), parabolic interpolation through
+// the three best points where it steps inside the bracket and shrinks, golden-
+// section steps elsewhere. The parabola reads the first level of the key (a
+// weighted objective has one; +Inf where infeasible, when a golden step is
+// taken), every comparison the whole key (key.less). It stops when the bracket
+// around the best point is within about eps, and returns the best candidate seen.
+func brentMin(eval func(float64) candidate, lo, hi, x float64, fx candidate, eps float64) candidate {
+	const cg = 1 - 0.6180339887498949 // 1 − 1/φ
+	a, b := lo, hi
+	w, v := x, x
+	fw, fv := fx, fx
+	var d, e float64
+	tol1 := 0.25 * eps
+	for range 200 {
+		m := 0.5 * (a + b)
+		tol2 := 2 * tol1
+		if math.Abs(x-m) <= tol2-0.5*(b-a) {
+			break
+		}
+		parabolic := false
+		if math.Abs(e) > tol1 {
+			r := (x - w) * (fx.k.v[0] - fv.k.v[0])
+			q := (x - v) * (fx.k.v[0] - fw.k.v[0])
+			p := (x-v)*q - (x-w)*r
+			q = 2 * (q - r)
+			if q > 0 {
+				p = -p
+			} else {
+				q = -q
+			}
+			if math.Abs(p) < math.Abs(0.5*q*e) && p > q*(a-x) && p < q*(b-x) {
+				e, d = d, p/q
+				parabolic = true
+				if u := x + d; u-a < tol2 || b-u < tol2 {
+					d = math.Copysign(tol1, m-x)
+				}
+			}
+		}
+		if !parabolic {
+			if x >= m {
+				e = a - x
+			} else {
+				e = b - x
+			}
+			d = cg * e
+		}
+		u := x + d
+		if math.Abs(d) < tol1 {
+			u = x + math.Copysign(tol1, d)
+		}
+		fu := eval(u)
+		if !fx.k.less(fu.k) {
+			if u < x {
+				b = x
+			} else {
+				a = x
+			}
+			v, fv, w, fw, x, fx = w, fw, x, fx, u, fu
+			continue
+		}
+		if u < x {
+			a = u
+		} else {
+			b = u
+		}
+		switch {
+		case !fw.k.less(fu.k) || w == x:
+			v, fv, w, fw = w, fw, u, fu
+		case !fv.k.less(fu.k) || v == x || v == w:
+			v, fv = u, fu
+		}
+	}
+	return fx
 }
 
 // feasibleMachOrSpeed returns the intervals of test Mach number (speed) at which some model
@@ -327,13 +418,16 @@ func (sv *solver) solve() (candidate, error) {
 			consider(sv.golden(sv.bestOverScales, iv.a, iv.b, 3, tolU))
 		}
 	} else {
+		// A set-up of real-gas nitrogen costs tens of states (sv.setups):
+		// Brent's method needs a third of the golden section's Mach numbers.
+		brent := sv.obj.weighted && sv.setups != nil
 		for _, iv := range ivs {
 			if w := sv.warmAt; sv.warmCell > 0 && w >= iv.a && w <= iv.b {
 				// A re-solve: the relaxed optimum lies near the one relaxed.
 				a, b := math.Max(iv.a, w-sv.warmCell), math.Min(iv.b, w+sv.warmCell)
-				consider(sv.golden(sv.bestOverScales, a, b, 3, tolU))
+				consider(sv.gridMin(sv.bestOverScales, a, b, 3, tolU, brent))
 			} else {
-				consider(sv.golden(sv.bestOverScales, iv.a, iv.b, 17, tolU))
+				consider(sv.gridMin(sv.bestOverScales, iv.a, iv.b, 17, tolU, brent))
 			}
 			if !sv.liquid && sv.aim >= iv.a && sv.aim <= iv.b {
 				consider(sv.bestOverScales(sv.aim))
