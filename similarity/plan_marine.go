@@ -37,12 +37,20 @@ type waterProps struct{ rho, mu, pv float64 }
 // waterPropsAt returns the properties of water at temperature t in K, as
 // facilities.Facility.State and the cavitation search compute them.
 func waterPropsAt(t float64) waterProps {
-	rho := facilities.WaterDensity(t)
-	return waterProps{rho: rho, mu: facilities.WaterViscosity(t, rho), pv: facilities.WaterVapourPressure(t)}
+	rho, mu := waterDensityViscosity(t)
+	return waterProps{rho: rho, mu: mu, pv: facilities.WaterVapourPressure(t)}
+}
+
+// waterDensityViscosity returns the density in kg/m³ and the viscosity in Pa·s
+// of water at temperature t in K, as facilities.Facility.State computes them.
+func waterDensityViscosity(t float64) (rho, mu float64) {
+	rho = facilities.WaterDensity(t)
+	return rho, facilities.WaterViscosity(t, rho)
 }
 
 // waterState returns the dynamic pressure q in Pa and Re/m of the water state at
-// speed machOrSpeed, p0 and T0 t, the water's properties at t being wp, and
+// speed machOrSpeed, p0 and T0 t, the water's density and viscosity at t being rho
+// and mu (waterDensityViscosity), and
 // whether the state is usable: facilities.Facility.State for water without its
 // State built, q = ½ρV², Re/m = ρV/μ, usable where the static pressure p0 − q
 // (p + q − q where the facility holds its static pressure p) is positive. A setting
@@ -50,7 +58,7 @@ func waterPropsAt(t float64) waterProps {
 // pressure or speed that is not positive and finite, a stagnation pressure
 // given to a facility that holds its static pressure) is left to State.
 // TestWaterStateMatchesFacility holds the two equal to the bit.
-func (sv *solver) waterState(machOrSpeed, p0, t float64, wp waterProps) (q, r float64, ok bool) {
+func (sv *solver) waterState(machOrSpeed, p0, t, rho, mu float64) (q, r float64, ok bool) {
 	given := p0
 	if sv.held {
 		p0 = sv.f.HeldStaticPressure()
@@ -65,14 +73,14 @@ func (sv *solver) waterState(machOrSpeed, p0, t float64, wp waterProps) (q, r fl
 	}
 	sv.evals++
 	v := machOrSpeed
-	q = 0.5 * wp.rho * v * v
+	q = 0.5 * rho * v * v
 	if sv.held {
 		p0 += q
 	}
 	if !(p0-q > 0) {
 		return 0, 0, false
 	}
-	return q, wp.rho * v / wp.mu, true
+	return q, rho * v / mu, true
 }
 
 // waterGrid holds the water's properties on one temperature grid of
@@ -137,14 +145,16 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	capHi := c.capWaterTop
 	// q and Re/m at temperature t, as waterQ and waterR give them.
 	wq := func(t float64) float64 {
-		q, _, ok := sv.waterState(c.machOrSpeed, c.pa, t, waterPropsAt(t))
+		rho, mu := waterDensityViscosity(t)
+		q, _, ok := sv.waterState(c.machOrSpeed, c.pa, t, rho, mu)
 		if !ok {
 			return math.Inf(1)
 		}
 		return q
 	}
 	wr := func(t float64) float64 {
-		_, r, ok := sv.waterState(c.machOrSpeed, c.pa, t, waterPropsAt(t))
+		rho, mu := waterDensityViscosity(t)
+		_, r, ok := sv.waterState(c.machOrSpeed, c.pa, t, rho, mu)
 		if !ok {
 			return math.Inf(1)
 		}
@@ -180,7 +190,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// can hold there, hi − lo in Pa (NaN where the state fails).
 	evalAt := func(t float64, wp waterProps) (candidate, float64) {
 		y := candidate{machOrSpeed: c.machOrSpeed, s: s, t0: t, v: c.machOrSpeed, capHi: capHi}
-		q, r, ok := sv.waterState(c.machOrSpeed, c.pa, t, wp)
+		q, r, ok := sv.waterState(c.machOrSpeed, c.pa, t, wp.rho, wp.mu)
 		room := math.NaN()
 		if ok {
 			lo, hi := sv.staticRange(q, wp.pv)

@@ -42,7 +42,7 @@ func TestWaterStateMatchesFacility(t *testing.T) {
 				p0 = 150000
 			}
 			st, err := f.State(facilities.Setting{Speed: v, StagnationPressure: p0, StagnationTemperature: temp})
-			q, r, ok := sv.waterState(v, p0, temp, wp)
+			q, r, ok := sv.waterState(v, p0, temp, wp.rho, wp.mu)
 			require.Equal(t, err == nil, ok, "%s at %g m/s, p0 %g Pa, %g K: %v", id, v, p0, temp, err)
 			if ok {
 				require.Equal(t, st.DynamicPressure, q, "%s q at %g m/s, %g K", id, v, temp)

@@ -1415,13 +1415,45 @@ func (sv *solver) atWater(c *machSetup, s, target float64, w Window) candidate {
 	case r >= rhi:
 		x.t0 = tHi
 	default:
-		x.t0 = sv.rootHi(func(t float64) float64 { return sv.waterR(c.machOrSpeed, c.pa, t) - r }, c.ta, tHi, true)
+		// rootHi on waterR − r, from the ends' Re/m where they are known (c.ra
+		// at ta; rhi at tHi unless the Re/m ceiling set tHi), keeping q at the
+		// last temperature tried on the usable side: the root is that one.
+		tq, qq := math.NaN(), 0.0
+		g := func(t float64) float64 {
+			rho, mu := waterDensityViscosity(t)
+			q, re, ok := sv.waterState(c.machOrSpeed, c.pa, t, rho, mu)
+			if !ok {
+				return math.Inf(1)
+			}
+			if d := re - r; d < 0 {
+				return d
+			}
+			tq, qq = t, q
+			return re - r
+		}
+		fa, fb := c.ra-r, rhi-r
+		if capHi == facilities.ConstraintReynoldsUnit {
+			fb = g(tHi)
+		}
+		switch {
+		case fa >= 0:
+			x.t0 = c.ta
+		case fb < 0:
+			x.t0 = tHi
+		default:
+			x.t0 = illinois(g, c.ta, fa, tHi, fb)
+		}
 		if x.t0 > tHi {
 			x.t0 = tHi
 		}
+		if x.t0 == tq {
+			x.q = qq
+		}
 	}
 	x.r = r
-	x.q = sv.waterQ(c.machOrSpeed, c.pa, x.t0)
+	if x.q == 0 {
+		x.q = sv.waterQ(c.machOrSpeed, c.pa, x.t0)
+	}
 	x.v = c.machOrSpeed
 	x.ok = true
 	x.k = sv.keyOf(c.machOrSpeed, s, x.r, x.q, x.v, r == target, 0)
