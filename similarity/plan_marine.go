@@ -241,6 +241,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		if !best.ok && grid[i].fail != "" {
 			best.fail = grid[i].fail
 		}
+		if best.ok && sv.feasOnly {
+			return best
+		}
 	}
 	if ibest < 0 {
 		x.fail, x.k = best.fail, worst

@@ -302,6 +302,8 @@ func brentMin(eval func(float64) candidate, lo, hi, x float64, fx candidate, eps
 // of the allowed scales can run, and the limits that rule out the rest.
 func (sv *solver) feasibleMachOrSpeed() ([]interval, []string) {
 	var fails []string
+	sv.feasOnly = true
+	defer func() { sv.feasOnly = false }()
 	ok := func(machOrSpeed float64) bool {
 		c := sv.prepare(machOrSpeed)
 		if !c.ok {

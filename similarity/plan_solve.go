@@ -233,6 +233,10 @@ type solver struct {
 	// water keeps water's properties by temperature (a water facility's
 	// plans; nil otherwise), shared with the relaxed copies.
 	water *waterMemo
+	// feasOnly: the search asks only whether a candidate exists
+	// (feasibleMachOrSpeed), and the cavitation search (atWaterCav) returns
+	// its first usable one.
+	feasOnly bool
 	// grids keeps the water's properties on the temperature grids of the
 	// cavitation search (atWaterCav; nil until it runs).
 	grids *waterGrids
