@@ -316,6 +316,14 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 	cdMax := math.Inf(-1)
 	maxDA := -1.0
 	mLo, mHi := w.Mach, w.Mach
+	// The points' figures live in one array, at most pointFigures a point,
+	// instead of one allocation each: put never outgrows its capacity.
+	const pointFigures = 9
+	slab := make([]float64, 0, pointFigures*len(pts))
+	put := func(v float64) *float64 {
+		slab = append(slab, v)
+		return &slab[len(slab)-1]
+	}
 	for i, p := range pts {
 		pc := PointCorrection{Alpha: p.Alpha, Beta: p.Beta}
 		if p.CD > cdMax {
@@ -324,9 +332,9 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 		if w.Applied {
 			e := w.Blockage(p.CD)
 			qf, sf, mc := w.DynamicPressureFactor(p.CD), 1+e, w.Mach*w.MachFactor(p.CD)
-			pc.Blockage, pc.DynamicPressureFactor, pc.SpeedFactor = &e, &qf, &sf
+			pc.Blockage, pc.DynamicPressureFactor, pc.SpeedFactor = put(e), put(qf), put(sf)
 			if !w.Liquid {
-				pc.CorrectedMach = &mc
+				pc.CorrectedMach = put(mc)
 			}
 			if i == 0 {
 				mLo, mHi = mc, mc
@@ -341,15 +349,15 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 				c.LiftInterferenceAlpha = p.Alpha
 			}
 			deg, dcd := da*180/math.Pi, w.LiftFactor*p.CL*p.CL
-			pc.DeltaAlphaUpwash, pc.DeltaCDUpwash = &deg, &dcd
+			pc.DeltaAlphaUpwash, pc.DeltaCDUpwash = put(deg), put(dcd)
 		}
 		if w.CurvatureKnown {
 			dsc := w.Curvature * w.LiftInterference(p.CL)
 			deg := dsc * 180 / math.Pi
-			pc.DeltaAlphaCurvature = &deg
+			pc.DeltaAlphaCurvature = put(deg)
 			if curvatureLift {
 				dcl, dcm := -liftSlope*dsc, 0.25*liftSlope*dsc
-				pc.DeltaCLCurvature, pc.DeltaCmCurvature = &dcl, &dcm
+				pc.DeltaCLCurvature, pc.DeltaCmCurvature = put(dcl), put(dcm)
 			}
 		}
 		c.Points[i] = pc

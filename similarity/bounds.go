@@ -161,7 +161,11 @@ func (a *Article) geometryErrors(fields ...string) []check.FieldError {
 		default:
 			panic("similarity: no article geometry field " + f)
 		}
-		b.Check(&fe, "article."+f, v)
+		if msg := b.Problem(v); msg != "" {
+			// The field's name is built only for an error: a valid article
+			// allocates nothing here.
+			fe = append(fe, check.FieldError{Field: "article." + f, Message: msg})
+		}
 	}
 	return fe
 }

@@ -70,7 +70,10 @@ func (in Installation) FieldErrors() []facilities.FieldError {
 		v    float64
 	}{{"balance_offset.x", in.BalanceOffset.X}, {"balance_offset.z", in.BalanceOffset.Z},
 		{"cg_offset.x", in.CGOffset.X}, {"cg_offset.z", in.CGOffset.Z}} {
-		BoundOffset.Check(&fe, "installation."+o.name, o.v)
+		if msg := BoundOffset.Problem(o.v); msg != "" {
+			// The field's name is built only for an error.
+			fe = append(fe, facilities.FieldError{Field: "installation." + o.name, Message: msg})
+		}
 	}
 	return fe
 }
