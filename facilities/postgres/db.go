@@ -96,6 +96,32 @@ func (d pgxDriver) Close() error {
 	return nil
 }
 
+var _ sqlstore.GroupExecer = pgxDriver{}
+
+// ExecGroup sends query once for each set of args in one pipelined batch: one
+// round trip, run by the server as one implicit transaction, which has
+// committed when the batch's results have all been read without an error.
+func (d pgxDriver) ExecGroup(ctx context.Context, query string, args [][]any) ([]int64, error) {
+	var b pgx.Batch
+	for _, a := range args {
+		b.Queue(query, a...)
+	}
+	br := d.pool.SendBatch(ctx, &b)
+	n := make([]int64, len(args))
+	for i := range args {
+		tag, err := br.Exec()
+		if err != nil {
+			br.Close()
+			return nil, err
+		}
+		n[i] = tag.RowsAffected()
+	}
+	if err := br.Close(); err != nil {
+		return nil, err
+	}
+	return n, nil
+}
+
 // Migrate runs fn on one connection while holding a session advisory lock.
 func (d pgxDriver) Migrate(ctx context.Context, fn func(sqlstore.Session) error) error {
 	conn, err := d.pool.Acquire(ctx)

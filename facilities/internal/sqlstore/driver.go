@@ -49,6 +49,16 @@ type Tx interface {
 	Rollback(ctx context.Context) error
 }
 
+// GroupExecer is a Driver that can run one statement with many sets of
+// arguments as a transaction of its own in one round trip to the database
+// (PostgreSQL's pipelined batch, an implicit transaction), returning how many
+// rows each run changed once the transaction has committed; on an error
+// nothing of it is stored. The plan group commit uses it where the driver
+// offers it.
+type GroupExecer interface {
+	ExecGroup(ctx context.Context, query string, args [][]any) ([]int64, error)
+}
+
 // Session is one connection.
 type Session interface {
 	Querier

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"slices"
 
 	"github.com/klauspost/compress/s2"
 )
@@ -35,16 +36,19 @@ const maxBodyBytes = 16 << 20
 
 // storedBody returns body as it is stored, in dst's memory when it has room.
 func storedBody(dst, body []byte) []byte {
+	return nonNil(appendStoredBody(dst[:0], body))
+}
+
+// appendStoredBody appends body as it is stored to dst.
+func appendStoredBody(dst, body []byte) []byte {
 	if len(body) < minCompressed && !bytes.HasPrefix(body, bodyTag) {
-		return nonNil(append(dst[:0], body...))
+		return append(dst, body...)
 	}
-	n := len(bodyTag) + s2.MaxEncodedLen(len(body))
-	if cap(dst) < n {
-		dst = make([]byte, n)
-	}
-	dst = append(dst[:0], bodyTag...)
-	block := s2.Encode(dst[len(bodyTag):n], body)
-	return dst[:len(bodyTag)+len(block)]
+	start := len(dst)
+	dst = slices.Grow(dst, len(bodyTag)+s2.MaxEncodedLen(len(body)))
+	dst = append(dst, bodyTag...)
+	block := s2.Encode(dst[len(dst):cap(dst)], body)
+	return dst[:start+len(bodyTag)+len(block)]
 }
 
 // readBody returns the body that stored holds.

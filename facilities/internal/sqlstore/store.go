@@ -53,9 +53,10 @@ type Store struct {
 	plans *groupcommit.Committer[facilities.PlanRecord]
 	// closed answers SavePlan calls made after Close or still queued when it ran.
 	closed error
-	// packed is the plan group commit's buffer of a compressed body (only one
-	// group commits at a time).
-	packed []byte
+	// packed is the plan group commit's buffer of compressed bodies, and
+	// planArgs its statements' arguments (only one group commits at a time).
+	packed   []byte
+	planArgs [][]any
 
 	now func() time.Time
 	// beforeCommit, when set by a test (Hooks), runs after a write's statements
