@@ -85,7 +85,10 @@ func (m *Model) Validate() error {
 		add("scale_min", fmt.Sprintf("scale_min %g is above scale_max %g", *m.ScaleMin, *m.ScaleMax))
 	}
 	for i, s := range m.Scales {
-		inRange(fmt.Sprintf("scales[%d]", i), s)
+		if !BoundScale.Contains(s) {
+			// The field's name is built only for an error.
+			inRange(fmt.Sprintf("scales[%d]", i), s)
+		}
 	}
 	return check.Invalid("invalid model", fe)
 }

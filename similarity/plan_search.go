@@ -445,10 +445,20 @@ func (sv *solver) solve() (candidate, error) {
 // relaxed returns a copy of the solver with the named limit relaxed by 1 %: a
 // maximum raised, a minimum lowered.
 func (sv *solver) relaxed(name string) (*solver, bool) {
-	f := *sv.f
-	p := *sv.p
 	r := *sv
-	r.f, r.p, r.evals, r.warnings, r.polishEvals = &f, &p, 0, nil, 0
+	r.evals, r.warnings, r.polishEvals = 0, nil, 0
+	// The facility and the problem are copied only where the relaxation
+	// changes them.
+	f, p := sv.f, sv.p
+	switch name {
+	case facilities.ConstraintScaleMin, facilities.ConstraintScaleMax:
+		pc := *sv.p
+		p, r.p = &pc, &pc
+	case facilities.ConstraintCondensation, facilities.ConstraintBoiling, facilities.ConstraintCavitation, sv.loadName, sv.floorName:
+	default:
+		fc := *sv.f
+		f, r.f = &fc, &fc
+	}
 	if sv.memo != nil {
 		// A relaxed facility may hold another static pressure (water).
 		r.memo = &stateMemos{}
