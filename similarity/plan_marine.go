@@ -216,10 +216,14 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	}
 	eval := func(t float64) candidate { y, _ := evalAt(t, waterPropsAt(t)); return y }
 	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
-	seen := make([]candidate, 0, 2*cavGrid)
+	// seen are Re/m and the distance outside the cavitation band of every
+	// usable candidate considered.
+	type rd struct{ r, d float64 }
+	var seenArr [4 * cavGrid]rd
+	seen := seenArr[:0]
 	consider := func(y candidate) {
 		if y.ok {
-			seen = append(seen, y)
+			seen = append(seen, rd{y.r, sv.cavDistance(y.sig)})
 		}
 		if y.ok && (!best.ok || y.k.less(best.k)) {
 			best = y
@@ -253,26 +257,30 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// between grid points: find each to 1e-12 relative, keeping the better side
 	// (cavEdge).
 	zero := func(y candidate) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
+	var zs [cavGrid]bool
+	for i := range grid {
+		zs[i] = zero(grid[i])
+	}
 	for i := 0; i+1 < len(grid); i++ {
-		a, b := grid[i], grid[i+1]
-		if a.ok == b.ok && zero(a) == zero(b) {
-			if !sv.obj.weighted && a.ok && !zero(a) && (a.sig < sf) != (b.sig < sf) {
+		a, b := &grid[i], &grid[i+1]
+		if a.ok == b.ok && zs[i] == zs[i+1] {
+			if !sv.obj.weighted && a.ok && !zs[i] && (a.sig < sf) != (b.sig < sf) {
 				// The cavitation number crosses its whole band between two grid
 				// points (a band narrower than a grid cell): a point inside it,
 				// then both its ends.
-				if m, room, ok := sv.cavCrossing(evalAt, a, b); ok {
+				if m, room, ok := sv.cavCrossing(evalAt, *a, *b); ok {
 					consider(m)
-					consider(sv.cavEdge(evalAt, m, a, room, rooms[i]))
-					consider(sv.cavEdge(evalAt, m, b, room, rooms[i+1]))
+					consider(sv.cavEdge(evalAt, m, *a, room, rooms[i]))
+					consider(sv.cavEdge(evalAt, m, *b, room, rooms[i+1]))
 				}
 			}
 			continue
 		}
 		good, bad, rg, rb := a, b, rooms[i], rooms[i+1]
-		if !(a.ok && (zero(a) || !zero(b))) {
+		if !(a.ok && (zs[i] || !zs[i+1])) {
 			good, bad, rg, rb = b, a, rb, rg
 		}
-		consider(sv.cavEdge(evalAt, good, bad, rg, rb))
+		consider(sv.cavEdge(evalAt, *good, *bad, rg, rb))
 	}
 	// The temperature that meets the target Re/m (Re/m rises with T).
 	if grid[0].ok && grid[len(grid)-1].ok {
@@ -302,8 +310,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// Re/m reachable at this level of the cavitation number: the shrink and knee
 	// rules of the scale search read it.
 	best.rlo, best.rhi = best.r, best.r
+	dBest := sv.cavDistance(best.sig)
 	for _, y := range seen {
-		if sv.cavDistance(y.sig) <= sv.cavDistance(best.sig) {
+		if y.d <= dBest {
 			best.rhi = math.Max(best.rhi, y.r)
 			best.rlo = math.Min(best.rlo, y.r)
 		}
