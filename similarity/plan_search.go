@@ -15,6 +15,9 @@ var invPhi = (math.Sqrt(5) - 1) / 2
 // maxGrid is the most grid points golden takes.
 const maxGrid = 17
 
+// scanGrid is the number of points of the feasibility scan's grid.
+const scanGrid = 9
+
 // interval is a closed range of the test Mach number (speed in water).
 type interval struct{ a, b float64 }
 
@@ -329,7 +332,7 @@ func (sv *solver) feasibleMachOrSpeed() ([]interval, []string) {
 		}
 		return nil, fails
 	}
-	const n = 9
+	const n = scanGrid
 	var xs [n]float64
 	var oks [n]bool
 	for i := range xs {
@@ -579,10 +582,12 @@ func (sv *solver) gain(name string, best candidate) (float64, int, error) {
 	// and a 1 % relaxation keeps it so).
 	r.warmAt, r.warmCell = best.machOrSpeed, sv.cellAt(best.machOrSpeed)
 	r.noPolish = sv.noPolish || !sv.polishImproved
-	if sv.bandFeasible() {
+	if sv.bandFeasible() || sv.wholeRangeFeasible(r) {
 		// The Mach band lies inside a feasible interval of the plan relaxed,
-		// and relaxing a limit only widens the feasible set: the re-solve's
-		// band is the same, and it needs no feasibility scan.
+		// or the whole range searched is feasible and the relaxed range is the
+		// same; relaxing a limit only widens the feasible set, so the
+		// re-solve searches the same Mach numbers (speeds) and needs no
+		// feasibility scan.
 		r.ivs, r.ivsFails, r.ivsKnown = sv.ivs, sv.ivsFails, true
 	}
 	b2, err := r.solveCorrected()
@@ -609,6 +614,23 @@ func (sv *solver) bandFeasible() bool {
 		}
 	}
 	return false
+}
+
+// wholeRangeFeasible reports whether every point of the last feasibility scan
+// was feasible, so that its one interval is the whole grid, and r, a relaxed
+// copy, searches the same range: r's scan would then find the same interval.
+// Not for real-gas nitrogen, whose scan also seeds the condensation line that
+// the re-solve's set-ups start their roots from.
+func (sv *solver) wholeRangeFeasible(r *solver) bool {
+	if sv.cond != nil || len(sv.ivs) != 1 || r.machOrSpeedMin != sv.machOrSpeedMin || r.machOrSpeedMax != sv.machOrSpeedMax {
+		return false
+	}
+	lo, hi := sv.machOrSpeedMin, sv.machOrSpeedMax
+	if hi > lo {
+		// The scan's last grid point, computed as the scan computes it.
+		hi = lo + (hi-lo)*float64(scanGrid-1)/(scanGrid-1)
+	}
+	return sv.ivs[0] == interval{lo, hi}
 }
 
 // sortBindings orders a binding list by constraint name for stable output.
