@@ -133,12 +133,17 @@ func cavGridT(ta, tb float64, i int) float64 {
 // vapour pressure p_v) and the test-section static pressure p, and returns the best
 // candidate by the objective's key. At each T the static pressure is the one whose
 // σ = (p − p_v)/(½ρV²) comes closest to the full scale's, p = p_v + σ_full·q
-// clamped to the pressures the facility can hold (pressureRange); T is searched
+// clamped to the pressures the facility can hold (staticRange); T is searched
 // over the usable range (as atWater: the T0 range, narrowed by a Re/m ceiling and
 // by the balance's dynamic-pressure ceiling at this scale) on a grid of cavGrid
-// points, the edges where the cavitation band becomes reachable or a pressure
-// becomes available (bisection to 1e-12 K), the temperature that meets the target
-// Re/m exactly, and a golden-section refinement around the best grid point.
+// points (the water's properties there kept, waterGrids), the edges where the
+// cavitation band becomes reachable or a pressure becomes available (cavEdge, to
+// 1e-12 relative), with a priority objective the band where it lies wholly
+// between two grid points (cavCrossing), the temperature that meets the target
+// Re/m exactly, and a golden-section refinement around the best grid point,
+// which a priority of the cavitation number, then the Reynolds number, settled
+// inside the band does not need. The feasibility scan (solver.feasOnly) takes
+// the first usable grid point.
 func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidate {
 	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	ta, tb := c.ta, c.tb
