@@ -1061,7 +1061,7 @@ func (sv *solver) highestSetting(c *machSetup, qc float64, name string) topSetti
 		case c.linear:
 			t.p, t.cap = qc/c.k, name
 		case sv.qcurve(c, c.pa) <= qc*(1+limitSlack):
-			t.p = sv.rootHi(func(p float64) float64 { return qc - sv.qcurve(c, p) }, c.pa, c.pTop, false)
+			t.p = sv.rootHiSmooth(func(p float64) float64 { return qc - sv.qcurve(c, p) }, c.pa, c.pTop, false)
 			t.cap = name
 		default:
 			t.p, t.cap, t.edge = c.pa, name, true
@@ -1556,6 +1556,72 @@ func (sv *solver) rootHi(g func(float64) float64, lo, hi float64, increasing boo
 		return hi
 	}
 	return illinois(g, lo, fa, hi, fb)
+}
+
+// rootHiSmooth is rootHi for a smooth g (nitrogen's q along the T0 floor,
+// nearly proportional to p0): secant steps through the last two points where
+// they fall inside the bracket (regula falsi where they do not, and a halving
+// after three steps that neither halve the bracket nor cut |g| tenfold), and a
+// step of half the tolerance across the crossing once a point lies that near
+// an end of the bracket, so that the bracket closes to 1e-13 relative in one
+// more step. On the q ceiling that is four points inside the bracket where the
+// Illinois rule took five (its halved end overshoots once). It returns what
+// rootHi returns.
+func (sv *solver) rootHiSmooth(g func(float64) float64, lo, hi float64, increasing bool) float64 {
+	if !increasing {
+		x := sv.rootHiSmooth(func(x float64) float64 { return g(lo + hi - x) }, lo, hi, true)
+		return math.Min(math.Max(lo+hi-x, lo), hi)
+	}
+	fa := g(lo)
+	if fa >= 0 {
+		return lo
+	}
+	fb := g(hi)
+	if fb < 0 {
+		return hi
+	}
+	return secantBracket(g, lo, fa, hi, fb)
+}
+
+// secantBracket is illinois by secant steps (rootHiSmooth).
+func secantBracket(g func(float64) float64, a, fa, b, fb float64) float64 {
+	x0, f0, x1, f1 := a, fa, b, fb
+	slow := 0
+	for i := 0; i < 200; i++ {
+		tol := 1e-13 * math.Max(math.Abs(a), math.Abs(b))
+		w := b - a
+		if w <= tol {
+			break
+		}
+		x := x1 - f1*(x1-x0)/(f1-f0)
+		if !(x > a && x < b) {
+			x = (a*fb - b*fa) / (fb - fa)
+		}
+		if !(x > a && x < b) || slow >= 3 {
+			x, slow = 0.5*(a+b), 0
+		}
+		if h := 0.5 * tol; x-a < h {
+			x = a + h
+		} else if b-x < h {
+			x = b - h
+		}
+		fx := g(x)
+		if fx == 0 {
+			return x
+		}
+		if fx < 0 {
+			a, fa = x, fx
+		} else {
+			b, fb = x, fx
+		}
+		if b-a > 0.5*w && !(math.Abs(fx) <= 0.1*math.Abs(f1)) {
+			slow++
+		} else {
+			slow = 0
+		}
+		x0, f0, x1, f1 = x1, f1, x, fx
+	}
+	return b
 }
 
 // illinois narrows the bracket [a, b] of an increasing g, g(a) = fa < 0 ≤ fb =
