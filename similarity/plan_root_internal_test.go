@@ -1,0 +1,60 @@
+package similarity
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+)
+
+// TestRootHiSmooth: rootHiSmooth keeps rootHi's contract on smooth monotone
+// functions of either direction (a point on the usable side, g ≥ 0, with the
+// other side within 1e-13 relative of it, or the usable end when g does not
+// change sign), with no more evaluations than rootHi's Illinois rule, and
+// fewer on one shaped like q along the T0 floor (nearly proportional to p0).
+func TestRootHiSmooth(t *testing.T) {
+	t.Parallel()
+	var sv solver
+	cases := []struct {
+		name       string
+		g          func(float64) float64
+		lo, hi     float64
+		increasing bool
+	}{
+		{"nearly linear, falling (a q ceiling)", func(p float64) float64 { return 7e4 - 0.28*p*(1+0.02*math.Sqrt(p/1.3e5)) }, 1.3e5, 3.9e5, false},
+		{"nearly linear, rising", func(p float64) float64 { return 0.28*p*(1+1e-3*math.Log(p)) - 5e4 }, 1.3e5, 3.9e5, true},
+		{"curved", func(x float64) float64 { return math.Exp(x) - 3 }, 0, 5, true},
+		{"steep end", func(x float64) float64 { return math.Pow(x, 9) - 0.2 }, 0.1, 1, true},
+		{"usable throughout", func(x float64) float64 { return x }, 1, 2, true},
+		{"usable nowhere", func(x float64) float64 { return -x }, 1, 2, true},
+	}
+	for _, c := range cases {
+		count := func(n *int) func(float64) float64 {
+			return func(x float64) float64 { *n++; return c.g(x) }
+		}
+		var nSmooth, nIllinois int
+		x := sv.rootHiSmooth(count(&nSmooth), c.lo, c.hi, c.increasing)
+		xi := sv.rootHi(count(&nIllinois), c.lo, c.hi, c.increasing)
+		g0, g1 := c.g(c.lo), c.g(c.hi)
+		if !c.increasing {
+			g0, g1 = g1, g0
+		}
+		switch {
+		case g0 >= 0 || g1 < 0:
+			assert.Equal(t, xi, x, c.name)
+			continue
+		}
+		assert.GreaterOrEqual(t, c.g(x), 0.0, c.name)
+		step := 1e-13 * math.Abs(x)
+		if !c.increasing {
+			step = -step
+		}
+		assert.Less(t, c.g(x-step), 0.0, "%s: the crossing lies within 1e-13 relative", c.name)
+		assert.InEpsilon(t, xi, x, 2e-13, c.name)
+		assert.LessOrEqual(t, nSmooth, nIllinois, "%s: evaluations", c.name)
+		if c.name == cases[0].name {
+			assert.Less(t, nSmooth, nIllinois, "%s: evaluations", c.name)
+		}
+		t.Logf("%s: %d evaluations (Illinois %d)", c.name, nSmooth, nIllinois)
+	}
+}
