@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 
 	"scalematch/facilities"
 	"scalematch/internal/check"
@@ -383,7 +384,16 @@ func (br *balanceRows) prune(cd []float64) {
 		}
 		return
 	}
-	pr := pruner{f: br.force, m: br.moment, inv: make([]float64, 3*n)}
+	// inv is prune's scratch: a pooled buffer, since every load limit (every
+	// plan) prunes once and drops it.
+	buf := pruneScratch.Get().(*[]float64)
+	defer pruneScratch.Put(buf)
+	if cap(*buf) < 3*n {
+		*buf = make([]float64, 3*n)
+	}
+	inv := (*buf)[:3*n]
+	clear(inv)
+	pr := pruner{f: br.force, m: br.moment, inv: inv}
 	for k := range n {
 		if up, down := br.up[k], br.down[k]; up > 0 && down > 0 {
 			pr.inv[3*k], pr.inv[3*k+1], pr.inv[3*k+2] = 1/up, 1/down, 1/math.Min(up, down)
@@ -432,6 +442,9 @@ func (br *balanceRows) prune(cd []float64) {
 		}
 	}
 }
+
+// pruneScratch holds prune's scratch buffers (*[]float64).
+var pruneScratch = sync.Pool{New: func() any { return new([]float64) }}
 
 // pruner holds prune's figures per element k: F and M, and in inv[3k:3k+3] the
 // reciprocals of up, down and min(up, down) (0: not usable).

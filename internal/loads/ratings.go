@@ -94,7 +94,8 @@ func compile(b *facilities.Balance, idx int) (Ratings, error) {
 	case !(sf >= 1) || math.IsInf(sf, 0):
 		fe = append(fe, facilities.FieldError{Field: at(".safety_factor"), Message: fmt.Sprintf("must be at least 1, got %g", sf)})
 	}
-	rs := Ratings{SafetyFactor: sf, Fraction: 1, single: [6]int{-1, -1, -1, -1, -1, -1}}
+	rs := Ratings{SafetyFactor: sf, Fraction: 1, single: [6]int{-1, -1, -1, -1, -1, -1},
+		rows: make([]rating, 0, 6+len(b.Combined))}
 	single := [6]*float64{b.Limits.Normal, b.Limits.Axial, b.Limits.Side,
 		b.Limits.RollingMoment, b.Limits.PitchingMoment, b.Limits.YawingMoment}
 	for i, l := range single {
