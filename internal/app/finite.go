@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"unsafe"
 
 	"scalematch/internal/check"
 	"scalematch/internal/loads"
@@ -66,6 +67,10 @@ type walker struct {
 	// building marks a walker whose type is being compiled (a recursive type
 	// refers to it before its fn is known).
 	building bool
+	// flat are a struct's own float64 fields; flatOnly is set when they are
+	// all the numbers it holds.
+	flat     []flatFloat
+	flatOnly bool
 }
 
 func (w *walker) check(v reflect.Value) bool { return w.fn == nil || w.fn(v) }
@@ -124,17 +129,37 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 	case reflect.Struct:
 		var idx []int
 		var ws []*walker
+		// flat are the float64 fields straight in the struct, read through
+		// the struct's address when it has one (every value reached from a
+		// pointer or a slice does): a reflect.Value per number was most of the
+		// walk (BenchmarkCheckFinite).
+		var flat []flatFloat
 		for i := range t.NumField() {
 			sf := t.Field(i)
 			if !sf.IsExported() || sf.Tag.Get("json") == "-" {
+				continue
+			}
+			if sf.Type.Kind() == reflect.Float64 {
+				flat = append(flat, flatFloat{off: sf.Offset, field: i, ceiling: sf.Type == ceilingType})
 				continue
 			}
 			if e := compileWalker(sf.Type, seen); !e.none() {
 				idx, ws = append(idx, i), append(ws, e)
 			}
 		}
-		if len(idx) > 0 {
-			w.fn = func(v reflect.Value) bool {
+		if len(idx) > 0 || len(flat) > 0 {
+			w.flat, w.fn = flat, func(v reflect.Value) bool {
+				if v.CanAddr() {
+					if !floatsFinite(v.Addr().UnsafePointer(), flat) {
+						return false
+					}
+				} else {
+					for _, f := range flat {
+						if !finiteFloat(v.Field(f.field).Float(), f.ceiling) {
+							return false
+						}
+					}
+				}
 				for k, i := range idx {
 					if !ws[k].check(v.Field(i)) {
 						return false
@@ -142,8 +167,40 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 				}
 				return true
 			}
+			if len(idx) == 0 {
+				w.flatOnly = true
+			}
 		}
-	case reflect.Slice, reflect.Array:
+	case reflect.Slice:
+		e := compileWalker(t.Elem(), seen)
+		if e.flatOnly {
+			// A slice of structs of float64 alone (and numberless fields):
+			// every element's floats read in place.
+			size := t.Elem().Size()
+			w.fn = func(v reflect.Value) bool {
+				n := v.Len()
+				if n == 0 {
+					return true
+				}
+				p := v.UnsafePointer()
+				for i := range n {
+					if !floatsFinite(unsafe.Add(p, uintptr(i)*size), e.flat) {
+						return false
+					}
+				}
+				return true
+			}
+		} else if !e.none() {
+			w.fn = func(v reflect.Value) bool {
+				for i := range v.Len() {
+					if !e.check(v.Index(i)) {
+						return false
+					}
+				}
+				return true
+			}
+		}
+	case reflect.Array:
 		e := compileWalker(t.Elem(), seen)
 		if !e.none() {
 			w.fn = func(v reflect.Value) bool {
@@ -170,6 +227,30 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 		}
 	}
 	return w
+}
+
+// flatFloat is a float64 field of a struct: its offset and index, and whether
+// it is a loads.Ceiling (whose +Inf is no bound).
+type flatFloat struct {
+	off     uintptr
+	field   int
+	ceiling bool
+}
+
+// floatsFinite reports whether the float64 fields flat of the struct at p are
+// finite (a Ceiling's +Inf counting as finite).
+func floatsFinite(p unsafe.Pointer, flat []flatFloat) bool {
+	for _, f := range flat {
+		if !finiteFloat(*(*float64)(unsafe.Add(p, f.off)), f.ceiling) {
+			return false
+		}
+	}
+	return true
+}
+
+// finiteFloat is finite for a number read in place.
+func finiteFloat(x float64, ceiling bool) bool {
+	return !math.IsNaN(x) && !math.IsInf(x, 0) || ceiling && math.IsInf(x, 1)
 }
 
 // nonFinite walks v and returns the JSON path of its first NaN or infinite float,

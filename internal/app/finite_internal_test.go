@@ -94,8 +94,17 @@ func TestAllFiniteShapes(t *testing.T) {
 	type Embedded struct {
 		E float64 `json:"e"`
 	}
+	// row holds numbers alone, read in place in a slice (and behind a pointer).
+	type row struct {
+		Name string        `json:"name"`
+		Load float64       `json:"load"`
+		Top  loads.Ceiling `json:"top"`
+		On   bool          `json:"on"`
+	}
 	type shape struct {
 		Embedded
+		Rows    []row `json:"rows"`
+		One     *row  `json:"one"`
 		Any     any                `json:"any"`
 		ByName  map[string]float64 `json:"by_name"`
 		Fixed   [2]float64         `json:"fixed"`
@@ -121,6 +130,11 @@ func TestAllFiniteShapes(t *testing.T) {
 		{"in a map", shape{ByName: map[string]float64{"a": math.Inf(1)}}, "by_name.a"},
 		{"in an array", shape{Fixed: [2]float64{0, nan}}, "fixed[1]"},
 		{"deep in a recursive type", shape{List: &node{V: 1, Next: &node{V: 2, Next: &node{V: nan}}}}, "list.next.next.v"},
+		{"rows read in place", shape{Rows: []row{{Load: 1, Top: loads.Ceiling(math.Inf(1))}, {Load: 2}}}, ""},
+		{"in a row read in place", shape{Rows: []row{{Load: 1}, {Load: 2}, {Load: nan}}}, "rows[2].load"},
+		{"a row's ceiling at -Inf", shape{Rows: []row{{Top: loads.Ceiling(math.Inf(-1))}}}, "rows[0].top"},
+		{"behind a pointer, read in place", shape{One: &row{Load: math.Inf(1)}}, "one.load"},
+		{"a struct on its own, not addressable", row{Load: nan}, "load"},
 		{"a bare float", nan, ""},
 	}
 	for _, tc := range cases {
