@@ -107,9 +107,8 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 		for k := range l {
 			l[k] = q*perQ[k] + weight[k]
 		}
-		u, row := rs.Utilization(&l)
 		rows := table[i*nrow : (i+1)*nrow : (i+1)*nrow]
-		rs.fillRows(rows, &l, row)
+		u, row := rs.fillRows(rows, &l)
 		for k := range 6 {
 			if !rs.covered[k] && l[k] != 0 {
 				unrated[k] = true

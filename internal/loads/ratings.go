@@ -169,9 +169,12 @@ func countSingle(rs *Ratings) int {
 }
 
 // fillRows writes the six components of load l and then every gauge row into
-// rows (len 6 + gauge rows), marking the rating row limit as limiting.
-func (rs *Ratings) fillRows(rows []Row, l *Vector, limit int) {
-	k := 6
+// rows (len 6 + gauge rows), and returns the load's utilisation and its row as
+// Utilization does, marking that row as limiting: each row's value is
+// computed once for both.
+func (rs *Ratings) fillRows(rows []Row, l *Vector) (u float64, limit int) {
+	limit = -1
+	k, at0 := 6, -1
 	for i := range rs.rows {
 		r := &rs.rows[i]
 		at := k
@@ -182,13 +185,20 @@ func (rs *Ratings) fillRows(rows []Row, l *Vector, limit int) {
 		}
 		v := r.value(l)
 		rows[at] = Row{Name: r.name, Load: v, Rated: true, Covered: true, Rating: r.limit, Allowed: r.allowed,
-			ShareOfAllowed: math.Abs(v) / r.allowed, Limiting: i == limit}
+			ShareOfAllowed: math.Abs(v) / r.allowed}
+		if x := math.Abs(v) / r.limit; x > u || limit < 0 {
+			u, limit, at0 = x, i, at
+		}
+	}
+	if at0 >= 0 {
+		rows[at0].Limiting = true
 	}
 	for c := range 6 {
 		if rs.single[c] < 0 {
 			rows[c] = Row{Name: ComponentName(c), Load: l[c], Covered: rs.covered[c]}
 		}
 	}
+	return u, limit
 }
 
 // RowName returns the name of row i: a component name or a combined row's name.
