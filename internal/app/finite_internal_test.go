@@ -103,8 +103,8 @@ func TestAllFiniteShapes(t *testing.T) {
 	}
 	type shape struct {
 		Embedded
-		Rows    []row `json:"rows"`
-		One     *row  `json:"one"`
+		Rows    []row              `json:"rows"`
+		One     *row               `json:"one"`
 		Any     any                `json:"any"`
 		ByName  map[string]float64 `json:"by_name"`
 		Fixed   [2]float64         `json:"fixed"`
