@@ -21,9 +21,11 @@
 //   - repeated: POST /v1/plans of that one request; after the first it is a stored
 //     plan, which the service answers with the stored bytes after decoding and
 //     validating the request and computing its id;
-//   - distinct: POST /v1/plans with the flight altitude raised by 0.1 mm per
-//     request, so that every request is a new plan that is planned and stored
-//     (-vary=false leaves this phase out);
+//   - distinct: POST /v1/plans with the flight altitude raised by 1 µm per
+//     request, from a start drawn at random for each run (at most 10 m up), so
+//     that every request is a new plan that is planned and stored, also on a
+//     database that earlier runs stored plans in (-vary=false leaves this
+//     phase out);
 //   - health: GET /healthz, the HTTP stack alone.
 //
 // It prints requests per second, latency percentiles, the count of answers that
@@ -44,6 +46,7 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
+	"math/rand/v2"
 	"net"
 	"net/http"
 	"net/url"
@@ -82,7 +85,7 @@ func run(args []string, out io.Writer) error {
 	duration := fs.Duration("duration", 20*time.Second, "total run time, split evenly between plans and health checks")
 	concurrency := fs.Int("concurrency", 4, "requests in flight at once")
 	planFile := fs.String("plan", "api/testdata/load/plan-orrin-j16-tsw-1.json", "plan request body")
-	vary := fs.Bool("vary", true, "also send distinct plan requests (the flight altitude raised by 0.1 mm each)")
+	vary := fs.Bool("vary", true, "also send distinct plan requests (the flight altitude raised by 1 µm each, from a random start)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile of the run to this file")
 	only := fs.String("only", "", "run only this phase (repeated, distinct or health), so that -cpuprofile profiles it alone; no ratio is printed")
 	if err := fs.Parse(args); err != nil {
@@ -103,7 +106,7 @@ func run(args []string, out io.Writer) error {
 	}
 	var distinct *varied
 	if *vary || *only == "distinct" {
-		if distinct, err = newVaried(plan); err != nil {
+		if distinct, err = newVaried(plan, rand.Int64N(startSteps)); err != nil {
 			return fmt.Errorf("-plan %s: %w", *planFile, err)
 		}
 	}
@@ -213,19 +216,31 @@ type phase struct {
 func fixed(b []byte) func() []byte { return func() []byte { return b } }
 
 // varied makes distinct plan requests from one: the same request with the flight
-// altitude raised by 0.1 mm more on each, so every request is a new plan.
+// altitude raised by altitudeStep more on each, so every request is a new plan.
 type varied struct {
 	prefix, suffix []byte
 	altitude       float64 // m
+	start          int64   // steps above altitude before the first request
 	n              atomic.Int64
 }
+
+// altitudeStep is how much higher each distinct request flies than the one
+// before, in m.
+const altitudeStep = 1e-6
+
+// startSteps bounds the random start of a run's distinct requests (10 m): the
+// sequence of one run is not that of the runs before, whose plans a PostgreSQL
+// database may still hold (those would be answered as stored, not planned and
+// stored anew). Two runs of 10 000 requests overlap with probability about
+// 0.2 %.
+const startSteps = 10_000_000
 
 // altitudeMark stands for the altitude while the request is re-encoded.
 const altitudeMark = "\x00altitude\x00"
 
 // newVaried reads the plan request body: its flight.altitude must be a number in m
-// or a string "<number> m".
-func newVaried(body []byte) (*varied, error) {
+// or a string "<number> m". The first request flies start+1 steps higher.
+func newVaried(body []byte, start int64) (*varied, error) {
 	var req map[string]any
 	if err := json.Unmarshal(body, &req); err != nil {
 		return nil, err
@@ -234,7 +249,7 @@ func newVaried(body []byte) (*varied, error) {
 	if !ok {
 		return nil, errors.New("no flight object to vary")
 	}
-	v := &varied{}
+	v := &varied{start: start}
 	switch alt := flight["altitude"].(type) {
 	case float64:
 		v.altitude = alt
@@ -261,7 +276,7 @@ func newVaried(body []byte) (*varied, error) {
 
 // next returns the next distinct request.
 func (v *varied) next() []byte {
-	alt := v.altitude + 1e-4*float64(v.n.Add(1))
+	alt := v.altitude + altitudeStep*float64(v.start+v.n.Add(1))
 	b := make([]byte, 0, len(v.prefix)+len(v.suffix)+24)
 	b = append(b, v.prefix...)
 	b = strconv.AppendFloat(b, alt, 'f', -1, 64)

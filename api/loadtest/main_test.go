@@ -61,19 +61,21 @@ func TestVaried(t *testing.T) {
 	t.Parallel()
 	tests := []struct {
 		name, body string
+		start      int64
 		want       []string // the first requests' flight altitudes, as sent
 		err        bool
 	}{
-		{"number", `{"flight":{"altitude":11000,"mach":0.8},"x":[1]}`, []string{"11000.0001", "11000.0002"}, false},
-		{"metres", `{"flight":{"mach":0.78,"altitude":"12000 m"}}`, []string{"12000.0001", "12000.0002"}, false},
-		{"feet", `{"flight":{"altitude":"39370 ft"}}`, nil, true},
-		{"pressure altitude", `{"flight":{"pressure_altitude":"11 km"}}`, nil, true},
-		{"no flight", `{"facility_id":"tsw-1"}`, nil, true},
+		{"number", `{"flight":{"altitude":11000,"mach":0.8},"x":[1]}`, 0, []string{"11000.000001", "11000.000002"}, false},
+		{"metres", `{"flight":{"mach":0.78,"altitude":"12000 m"}}`, 0, []string{"12000.000001", "12000.000002"}, false},
+		{"started higher", `{"flight":{"altitude":"12000 m"}}`, startSteps - 2, []string{"12009.999999", "12010"}, false},
+		{"feet", `{"flight":{"altitude":"39370 ft"}}`, 0, nil, true},
+		{"pressure altitude", `{"flight":{"pressure_altitude":"11 km"}}`, 0, nil, true},
+		{"no flight", `{"facility_id":"tsw-1"}`, 0, nil, true},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
-			v, err := newVaried([]byte(tc.body))
+			v, err := newVaried([]byte(tc.body), tc.start)
 			if tc.err {
 				require.Error(t, err)
 			} else {
