@@ -1,6 +1,7 @@
 package loads_test
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -184,6 +185,27 @@ func BenchmarkLoadLimit(b *testing.B) {
 		points int
 	}{{"21points", 21}, {"101points", 101}} {
 		b.Run(c.name, func(b *testing.B) { benchLimit(b, c.points) })
+	}
+}
+
+// BenchmarkNewLimit times building the load limit of a plan (the rows of
+// balance ext-6c of lsw-2 projected on every point, and pruned) over α sweeps of
+// 21 and 101 points.
+func BenchmarkNewLimit(b *testing.B) {
+	for _, points := range []int{21, 101} {
+		b.Run(fmt.Sprintf("%dpoints", points), func(b *testing.B) {
+			art := pellin()
+			mx, err := art.Aero.Matrix(similarity.Sweep{From: -4, To: -4 + float64(points-1), Step: 1}, nil)
+			require.NoError(b, err)
+			f := demoPtr(b, "lsw-2")
+			in := loads.Installation{BalanceID: "ext-6c", ModelMass: 20}
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := loads.NewLimit(art, f, in, mx); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 	}
 }
 
