@@ -93,8 +93,10 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in Installation, 
 	if len(f.Balances) == 0 {
 		return nil, ErrNoBalance
 	}
+	np := len(mx.Points)
+	pts := make([]float64, 2*np) // cd and alpha in one allocation
 	l := &Limit{facility: f, refArea: art.ReferenceArea, refLength: art.ReferenceLength,
-		frontalArea: art.FrontalArea, cd: make([]float64, len(mx.Points)), alpha: make([]float64, len(mx.Points))}
+		frontalArea: art.FrontalArea, cd: pts[:np:np], alpha: pts[np:]}
 	for i, p := range mx.Points {
 		l.cd[i], l.alpha[i] = p.CD, p.Alpha
 	}
@@ -115,8 +117,10 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in Installation, 
 			br.allowed[j] = rs.Allowed(j)
 		}
 		n := len(mx.Points) * br.rows
-		br.force, br.moment = make([]float64, n), make([]float64, n)
-		br.up, br.down = make([]float64, n), make([]float64, n)
+		// The four tables in one allocation.
+		tab := make([]float64, 4*n)
+		br.force, br.moment = tab[:n:n], tab[n:2*n:2*n]
+		br.up, br.down = tab[2*n:3*n:3*n], tab[3*n:]
 		for i, p := range mx.Points {
 			body := Body(p)
 			force := Aerodynamic(body, 1, 0, in.BalanceOffset)
@@ -372,16 +376,21 @@ var pruneSamples = [...]float64{0, 0.01, 0.1, 1}
 // drop others.
 func (br *balanceRows) prune(cd []float64) {
 	n := len(br.force)
-	br.live, br.livePoint = make([]int32, 0, n), make([]int32, 0, n)
 	keepAll := br.weightBreaks
 	for k := 0; k < n && !keepAll; k++ {
 		keepAll = math.IsNaN(br.force[k]) || math.IsNaN(br.moment[k])
 	}
+	// ks collects the live elements in a pooled buffer; setLive then keeps
+	// them in one allocation of their final size.
+	kbuf := liveScratch.Get().(*[]int32)
+	defer liveScratch.Put(kbuf)
+	ks := (*kbuf)[:0]
 	if keepAll {
 		for k := range n {
-			br.live = append(br.live, int32(k))
-			br.livePoint = append(br.livePoint, int32(k/br.rows))
+			ks = append(ks, int32(k))
 		}
+		*kbuf = ks
+		br.setLive(ks)
 		return
 	}
 	// inv is prune's scratch: a pooled buffer, since every load limit (every
@@ -437,11 +446,26 @@ func (br *balanceRows) prune(cd []float64) {
 			}
 		}
 		if !dropped {
-			br.live = append(br.live, int32(k))
-			br.livePoint = append(br.livePoint, int32(i))
+			ks = append(ks, int32(k))
 		}
 	}
+	*kbuf = ks
+	br.setLive(ks)
 }
+
+// setLive sets live to the elements ks and livePoint to their points, in one
+// allocation of their final size.
+func (br *balanceRows) setLive(ks []int32) {
+	m := len(ks)
+	both := make([]int32, 2*m)
+	br.live, br.livePoint = both[:m:m], both[m:]
+	for x, k := range ks {
+		br.live[x], br.livePoint[x] = k, k/int32(br.rows)
+	}
+}
+
+// liveScratch holds prune's buffers of live elements (*[]int32).
+var liveScratch = sync.Pool{New: func() any { return new([]int32) }}
 
 // pruneScratch holds prune's scratch buffers (*[]float64).
 var pruneScratch = sync.Pool{New: func() any { return new([]float64) }}
