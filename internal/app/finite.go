@@ -248,9 +248,10 @@ func floatsFinite(p unsafe.Pointer, flat []flatFloat) bool {
 	return true
 }
 
-// finiteFloat is finite for a number read in place.
+// finiteFloat is finite for a number read in place: x − x is 0 for every
+// finite x and NaN for a NaN or an infinity.
 func finiteFloat(x float64, ceiling bool) bool {
-	return !math.IsNaN(x) && !math.IsInf(x, 0) || ceiling && math.IsInf(x, 1)
+	return x-x == 0 || ceiling && x > math.MaxFloat64
 }
 
 // nonFinite walks v and returns the JSON path of its first NaN or infinite float,
