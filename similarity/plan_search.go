@@ -423,9 +423,11 @@ func (sv *solver) solve() (candidate, error) {
 			consider(sv.golden(sv.bestOverScales, iv.a, iv.b, 3, tolU))
 		}
 	} else {
-		// A set-up of real-gas nitrogen costs tens of states (sv.setups):
-		// Brent's method needs a third of the golden section's Mach numbers.
-		brent := sv.obj.weighted && sv.setups != nil
+		// A weighted objective has one level, which Brent's method reads:
+		// in real-gas nitrogen, whose set-up costs tens of states, it needs a
+		// third of the golden section's Mach numbers, and it is cheaper for the
+		// ideal gases and water too (docs/performance.md, Planner).
+		brent := sv.obj.weighted
 		for _, iv := range ivs {
 			if w := sv.warmAt; sv.warmCell > 0 && w >= iv.a && w <= iv.b {
 				// A re-solve: the relaxed optimum lies near the one relaxed.
