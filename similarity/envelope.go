@@ -33,12 +33,20 @@ type TradePoint struct {
 }
 
 // trade returns the trade curve of the chosen model at scale s: n points evenly
-// spread over the facility's Mach (speed) range.
+// spread over the facility's Mach (speed) range. Where set-ups are kept
+// (solver.setups, real-gas nitrogen), a point that the search's scan grid
+// (feasibleMachOrSpeed) also visits is computed as the scan computes it, so
+// that it is the same float64 and reuses the scan's set-up instead of
+// preparing a Mach number one rounding away (0.47 and 0.47000000000000003).
 func (sv *solver) trade(s float64, n int) []TradePoint {
 	pts := make([]TradePoint, n)
 	for i := range pts {
 		u := sv.machOrSpeedMin
-		if n > 1 {
+		switch {
+		case n > 1 && sv.setups != nil && i*(scanGrid-1)%(n-1) == 0:
+			k := i * (scanGrid - 1) / (n - 1)
+			u += (sv.machOrSpeedMax - sv.machOrSpeedMin) * float64(k) / (scanGrid - 1)
+		case n > 1:
 			u += (sv.machOrSpeedMax - sv.machOrSpeedMin) * float64(i) / float64(n-1)
 		}
 		pts[i] = sv.tradePoint(u, s)
