@@ -147,12 +147,14 @@ func (sv *solver) shrink(c *machSetup, x candidate) candidate {
 // golden-section search in the bracket around the best of them, to tol relative of
 // the interval's scale. It returns the best candidate seen.
 func (sv *solver) golden(eval func(float64) candidate, a, b float64, n int, tol float64) candidate {
-	return sv.gridMin(eval, a, b, n, tol, false)
+	return sv.gridMin(eval, a, b, n, tol, false, false)
 }
 
 // gridMin is golden, with Brent's method (brentMin) instead of the golden
-// section in the bracket when brent is set (a weighted objective: one level).
-func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol float64, brent bool) candidate {
+// section in the bracket when brent is set (a weighted objective: one level);
+// with seed too, the grid's neighbours of its best point seed Brent's
+// parabola (a re-solve's warm grid, whose points lie near the optimum).
+func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol float64, brent, seed bool) candidate {
 	best := eval(a)
 	if b <= a {
 		return best
@@ -194,6 +196,11 @@ func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol
 	}
 	lo, hi := xs[max(ibest-1, 0)], xs[min(ibest+1, n-1)]
 	if brent {
+		if seed && ibest > 0 && ibest < n-1 {
+			// The first step is the vertex of the parabola through the
+			// three, not a golden one.
+			return brentSeeded(eval, lo, hi, start, fStart, hi, ks[ibest+1], lo, ks[ibest-1], eps)
+		}
 		return brentMin(eval, lo, hi, start, fStart, eps)
 	}
 	x1 := hi - invPhi*(hi-lo)
@@ -233,11 +240,19 @@ func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol
 // taken), every comparison the whole key (key.less). It stops when the bracket
 // around the best point is within about eps, and returns the best candidate seen.
 func brentMin(eval func(float64) candidate, lo, hi, x float64, fx candidate, eps float64) candidate {
+	return brentSeeded(eval, lo, hi, x, fx, x, fx, x, fx, eps)
+}
+
+// brentSeeded is brentMin with w and v, Brent's second and third best points,
+// given (fw and fv evaluated): when they differ from x, the first step may be
+// the parabola's vertex through the three.
+func brentSeeded(eval func(float64) candidate, lo, hi, x float64, fx candidate, w float64, fw candidate, v float64, fv candidate, eps float64) candidate {
 	const cg = 1 - 0.6180339887498949 // 1 − 1/φ
 	a, b := lo, hi
-	w, v := x, x
-	fw, fv := fx, fx
 	var d, e float64
+	if w != x && v != x && w != v {
+		d, e = 0.5*(hi-lo), 0.5*(hi-lo)
+	}
 	tol1 := 0.25 * eps
 	for range 200 {
 		m := 0.5 * (a + b)
@@ -432,9 +447,13 @@ func (sv *solver) solve() (candidate, error) {
 			if w := sv.warmAt; sv.warmCell > 0 && w >= iv.a && w <= iv.b {
 				// A re-solve: the relaxed optimum lies near the one relaxed.
 				a, b := math.Max(iv.a, w-sv.warmCell), math.Min(iv.b, w+sv.warmCell)
-				consider(sv.gridMin(sv.bestOverScales, a, b, 3, tolU, brent))
+				// In a gas the grid's neighbours seed Brent's parabola
+				// (tsw-1's re-solves 58 → 47 and 110 → 96 evaluations);
+				// in water they cost more (wtn-04 marine 837 → 1161;
+				// docs/performance.md, Planner).
+				consider(sv.gridMin(sv.bestOverScales, a, b, 3, tolU, brent, !sv.liquid))
 			} else {
-				consider(sv.gridMin(sv.bestOverScales, iv.a, iv.b, 17, tolU, brent))
+				consider(sv.gridMin(sv.bestOverScales, iv.a, iv.b, 17, tolU, brent, false))
 			}
 			if !sv.liquid && sv.aim >= iv.a && sv.aim <= iv.b {
 				consider(sv.bestOverScales(sv.aim))
