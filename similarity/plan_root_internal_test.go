@@ -5,6 +5,9 @@ import (
 	"testing"
 
 	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
 )
 
 // TestRootHiSmooth: rootHiSmooth keeps rootHi's contract on smooth monotone
@@ -57,4 +60,27 @@ func TestRootHiSmooth(t *testing.T) {
 		}
 		t.Logf("%s: %d evaluations (Illinois %d)", c.name, nSmooth, nIllinois)
 	}
+}
+
+// TestQcurveKeptAtPa: a nitrogen set-up keeps q at p0 min on the T0 floor
+// (machSetup.qa), and qcurve returns it there: the same value, bit for bit,
+// as the state it stands for, at Mach numbers across cn2-05's range.
+func TestQcurveKeptAtPa(t *testing.T) {
+	t.Parallel()
+	f, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	sv := &solver{f: &f, loadScale: 1, qmax: math.Inf(1), remax: math.Inf(1),
+		cond: newCondLineCache(), memo: &stateMemos{}}
+	kept := 0
+	for m := 0.2; m <= 0.92; m += 0.045 {
+		c := sv.prepareNitrogen(m)
+		if !c.qaOK {
+			continue
+		}
+		kept++
+		computed := c
+		computed.qaOK = false
+		assert.Equal(t, sv.qcurve(&computed, c.pa), sv.qcurve(&c, c.pa), "Mach %g", m)
+	}
+	assert.Positive(t, kept, "set-ups that keep q at p0 min")
 }

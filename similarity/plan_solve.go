@@ -94,8 +94,10 @@ type machSetup struct {
 	tRef        float64
 	rlo         float64 // lowest Re/m, at (pa, tb), once rloOK
 	rloOK       bool
-	ra          float64    // Re/m at (pa, ta)
-	qLow        float64    // the lowest q at this Mach number (at pa), Pa
+	ra          float64 // Re/m at (pa, ta)
+	qLow        float64 // the lowest q at this Mach number (at pa), Pa
+	qa          float64 // real-gas nitrogen with a T0 range: q at pa on the T0 floor, once qaOK (qcurve)
+	qaOK        bool
 	linear      bool       // q and Re/m ∝ p0 along the T0 floor (ideal gas, no condensation)
 	cond        bool       // condensation (or vmin) sets the T0 floor somewhere in [pa, pTop]
 	vmin        float64    // nitrogen: the facility's lowest speed, held in the T0 floor, m/s; 0 for none
@@ -960,6 +962,7 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 			c.fail = facilities.ConstraintCondensation
 			return c
 		}
+		c.qa, c.qaOK = stA.DynamicPressure, true
 	}
 	c.ra = stA.ReynoldsPerMeter
 	c.qLow = math.Min(stA.DynamicPressure, stB.DynamicPressure)
@@ -1041,6 +1044,11 @@ func (sv *solver) lowR(c *machSetup) float64 {
 func (sv *solver) qcurve(c *machSetup, p0 float64) float64 {
 	if c.linear {
 		return c.k * p0
+	}
+	if c.qaOK && p0 == c.pa {
+		// The set-up's state at pa; by the time the q ceiling's root asks
+		// for it, the solver's last two states have moved on to pTop.
+		return c.qa
 	}
 	st, err := sv.state(c.machOrSpeed, p0, sv.tfloor(c, p0))
 	if err != nil {
