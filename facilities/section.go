@@ -230,11 +230,24 @@ func (f *Facility) waterState(s Setting) (State, error) {
 				given, f.ID, ps, p0, v)}})
 		}
 	}
-	p := p0 - q
-	if !(p > 0) {
+	st, ok := LiquidState(v, p0, t, rho, mu)
+	if !ok {
 		return State{}, Invalid(settingMessage, []FieldError{{Field: "speed", Message: fmt.Sprintf(
 			"%g m/s gives a dynamic pressure of %.4g Pa, more than the stagnation pressure %g Pa: the static pressure would not be positive",
 			v, q, s.StagnationPressure)}})
+	}
+	return st, nil
+}
+
+// LiquidState is the test-section state of water moving at speed v (m/s) with
+// stagnation pressure p0 (Pa) and temperature t (K), of density rho (kg/m³) and
+// viscosity mu (Pa·s): q = ½ρv², p = p0 − q, Re/m = ρv/μ, incompressible. It
+// is false where the static pressure would not be positive.
+func LiquidState(v, p0, t, rho, mu float64) (State, bool) {
+	q := 0.5 * rho * v * v
+	p := p0 - q
+	if !(p > 0) {
+		return State{}, false
 	}
 	return State{
 		Speed:                 v,
@@ -249,7 +262,7 @@ func (f *Facility) waterState(s Setting) (State, error) {
 		},
 		DynamicPressure:  q,
 		ReynoldsPerMeter: rho * v / mu,
-	}, nil
+	}, true
 }
 
 // condensationPeakMach returns the facility's local peak Mach number for the

@@ -1551,8 +1551,14 @@ func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) 
 // otherwise it lies toward lo. When g does not change sign, the usable endpoint is
 // returned, or, when neither is usable, the endpoint nearer to being usable.
 func (sv *solver) rootHi(g func(float64) float64, lo, hi float64, increasing bool) float64 {
+	return usableRoot(g, lo, hi, increasing, illinois)
+}
+
+// usableRoot is rootHi with the bracketed root finder inner, called with both
+// ends' values once g changes sign between them.
+func usableRoot(g func(float64) float64, lo, hi float64, increasing bool, inner func(g func(float64) float64, a, fa, b, fb float64) float64) float64 {
 	if !increasing {
-		x := sv.rootHi(func(x float64) float64 { return g(lo + hi - x) }, lo, hi, true)
+		x := usableRoot(func(x float64) float64 { return g(lo + hi - x) }, lo, hi, true, inner)
 		return math.Min(math.Max(lo+hi-x, lo), hi)
 	}
 	fa := g(lo)
@@ -1563,7 +1569,7 @@ func (sv *solver) rootHi(g func(float64) float64, lo, hi float64, increasing boo
 	if fb < 0 {
 		return hi
 	}
-	return illinois(g, lo, fa, hi, fb)
+	return inner(g, lo, fa, hi, fb)
 }
 
 // rootHiSmooth is rootHi for a smooth g (nitrogen's q along the T0 floor,
@@ -1576,19 +1582,7 @@ func (sv *solver) rootHi(g func(float64) float64, lo, hi float64, increasing boo
 // Illinois rule took five (its halved end overshoots once). It returns what
 // rootHi returns.
 func (sv *solver) rootHiSmooth(g func(float64) float64, lo, hi float64, increasing bool) float64 {
-	if !increasing {
-		x := sv.rootHiSmooth(func(x float64) float64 { return g(lo + hi - x) }, lo, hi, true)
-		return math.Min(math.Max(lo+hi-x, lo), hi)
-	}
-	fa := g(lo)
-	if fa >= 0 {
-		return lo
-	}
-	fb := g(hi)
-	if fb < 0 {
-		return hi
-	}
-	return secantBracket(g, lo, fa, hi, fb)
+	return usableRoot(g, lo, hi, increasing, secantBracket)
 }
 
 // secantBracket is illinois by secant steps (rootHiSmooth).

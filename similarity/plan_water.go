@@ -47,8 +47,8 @@ func (m *waterMemo) vapourPressure(t float64) float64 {
 // does not hold its static pressure, at speed v, stagnation pressure p0 and
 // temperature t, with the water's properties from the memo, and true; false
 // where State would refuse the setting or the facility holds its static
-// pressure (the caller then asks State). The State is built with State's own
-// arithmetic (TestWaterStateKeptMatchesFacility holds the two equal).
+// pressure (the caller then asks State). The State is built by
+// facilities.LiquidState, as State builds it (TestWaterStateKeptMatchesFacility).
 func (sv *solver) waterStateKept(v, p0, t float64) (facilities.State, bool) {
 	if sv.f.StaticPressure != nil || !(p0 > 0) || math.IsInf(p0, 1) || !(v >= 0) || math.IsInf(v, 1) ||
 		!(t >= facilities.WaterMinTemperature && t <= facilities.WaterMaxTemperature) {
@@ -56,26 +56,7 @@ func (sv *solver) waterStateKept(v, p0, t float64) (facilities.State, bool) {
 	}
 	m := sv.water
 	i := m.slot(t)
-	rho, mu := m.rho[i], m.mu[i]
-	q := 0.5 * rho * v * v
-	p := p0 - q
-	if !(p > 0) {
-		return facilities.State{}, false
-	}
-	return facilities.State{
-		Speed:                 v,
-		StagnationPressure:    p0,
-		StagnationTemperature: t,
-		Static: facilities.Static{
-			Temperature:     t,
-			Pressure:        p,
-			Density:         rho,
-			Viscosity:       mu,
-			Compressibility: 1,
-		},
-		DynamicPressure:  q,
-		ReynoldsPerMeter: rho * v / mu,
-	}, true
+	return facilities.LiquidState(v, p0, t, m.rho[i], m.mu[i])
 }
 
 // boilingMargin is facilities.Facility.BoilingMargin of a water state st, with
