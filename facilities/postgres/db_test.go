@@ -4,9 +4,7 @@ import (
 	"context"
 	"crypto/rand"
 	"encoding/hex"
-	"net"
 	"net/url"
-	"os"
 	"testing"
 	"time"
 
@@ -20,35 +18,11 @@ import (
 	"scalematch/internal/jobs/jobstest"
 )
 
-const defaultURL = "postgres://postgres@127.0.0.1:5432/test?sslmode=disable"
-
-// serverURL returns the test database URL, skipping the test only when no server
-// answers at its address.
-func serverURL(t testing.TB) string {
-	t.Helper()
-	raw := os.Getenv("SCALEMATCH_TEST_DATABASE_URL")
-	if raw == "" {
-		raw = defaultURL
-	}
-	u, err := url.Parse(raw)
-	require.NoError(t, err, "SCALEMATCH_TEST_DATABASE_URL")
-	host := u.Host
-	if u.Port() == "" {
-		host = net.JoinHostPort(u.Hostname(), "5432")
-	}
-	conn, err := net.DialTimeout("tcp", host, 3*time.Second)
-	if err != nil {
-		t.Skipf("no PostgreSQL server reachable at %s (set SCALEMATCH_TEST_DATABASE_URL): %v", host, err)
-	}
-	conn.Close()
-	return raw
-}
-
 // schemaURL creates a schema of its own for one test and returns a URL whose
 // search_path selects it; the schema is dropped when the test ends.
 func schemaURL(t testing.TB) string {
 	t.Helper()
-	raw := serverURL(t)
+	raw := postgres.ServerURL(t)
 	ctx := context.Background()
 	admin, err := pgx.Connect(ctx, raw)
 	require.NoError(t, err, "connecting to the test server")

@@ -4,11 +4,7 @@ import (
 	"context"
 	"crypto/rand"
 	"encoding/hex"
-	"net"
-	"net/url"
-	"os"
 	"testing"
-	"time"
 
 	"github.com/jackc/pgx/v5/pgxpool"
 	"github.com/stretchr/testify/assert"
@@ -21,21 +17,7 @@ import (
 // one implicit transaction.
 func TestExecGroup(t *testing.T) {
 	t.Parallel()
-	raw := os.Getenv("SCALEMATCH_TEST_DATABASE_URL")
-	if raw == "" {
-		raw = "postgres://postgres@127.0.0.1:5432/test?sslmode=disable"
-	}
-	u, err := url.Parse(raw)
-	require.NoError(t, err, "SCALEMATCH_TEST_DATABASE_URL")
-	host := u.Host
-	if u.Port() == "" {
-		host = net.JoinHostPort(u.Hostname(), "5432")
-	}
-	conn, err := net.DialTimeout("tcp", host, 3*time.Second)
-	if err != nil {
-		t.Skipf("no PostgreSQL server reachable at %s (set SCALEMATCH_TEST_DATABASE_URL): %v", host, err)
-	}
-	conn.Close()
+	raw := serverURL(t)
 
 	ctx := context.Background()
 	pool, err := pgxpool.New(ctx, raw)
