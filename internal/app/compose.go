@@ -1,6 +1,7 @@
 package app
 
 import (
+	"bytes"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -15,6 +16,8 @@ import (
 	"sync"
 	"unicode"
 	"unicode/utf8"
+
+	"github.com/bytedance/sonic"
 
 	"scalematch/api/schema"
 	"scalematch/facilities"
@@ -510,19 +513,46 @@ func (p *Planner) planJSON(ctx context.Context, req *schema.PlanRequest) (planne
 	return pj, nil
 }
 
-// encodePlan encodes a plan answer with encoding/json (BenchmarkEncodePlan
-// measured it against the hand-written writers it replaced and against
-// goccy/go-json and sonic). A non-finite number, which the encoding refuses, is
-// answered as CheckFinite answers it: naming the number and the input behind it.
+// encodePlan encodes a plan answer as encoding/json does, byte for byte, with
+// sonic's encoding/json-compatible configuration (github.com/bytedance/sonic,
+// ConfigStd; on platforms sonic does not compile for, that is encoding/json
+// itself). BenchmarkEncodePlan measures it against encoding/json and
+// goccy/go-json (docs/performance.md). One difference is known and caught: a
+// negative zero in an omitempty field, which encoding/json omits as zero and
+// sonic writes; an answer holding a negative zero anywhere is encoded again by
+// encoding/json (TestSonicFloatsAgree). A non-finite number, which the encoding
+// refuses, is answered as CheckFinite answers it: naming the number and the
+// input behind it.
 func encodePlan(resp *schema.PlanResponse) ([]byte, error) {
-	b, err := json.Marshal(resp)
-	if uve := (*json.UnsupportedValueError)(nil); errors.As(err, &uve) {
+	b, err := sonic.ConfigStd.Marshal(resp)
+	if err == nil && hasNegativeZero(b) {
+		b, err = json.Marshal(resp)
+	}
+	if err != nil {
 		if ferr := CheckFinite(resp, planInputs); ferr != nil {
 			return nil, ferr
 		}
 	}
 	return b, err
 }
+
+// hasNegativeZero reports whether the JSON b holds the number -0 (or, rarely,
+// the same three characters inside a string, which costs only a second
+// encoding).
+func hasNegativeZero(b []byte) bool {
+	for {
+		i := bytes.Index(b, negativeZero)
+		if i < 0 {
+			return false
+		}
+		b = b[i+len(negativeZero):]
+		if len(b) == 0 || b[0] == ',' || b[0] == '}' || b[0] == ']' {
+			return true
+		}
+	}
+}
+
+var negativeZero = []byte("-0")
 
 // MaxPlanBytes is the largest plan answer the service stores and sends, in bytes
 // (4 MiB; a 2001-point sweep on two balances is about 1.5 MiB).
