@@ -234,6 +234,23 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			best = y
 		}
 	}
+	if sv.cavThenReynolds() && !sv.feasOnly && sv.water != nil {
+		// The warmest usable water inside the cavitation band, short of the
+		// flight's Reynolds number, is the best temperature: none is better on
+		// the cavitation level (0 there), and Re/m rises with T, so every
+		// colder one lies farther from the flight's Reynolds number. The
+		// search below would keep Re/m reachable at this level down to the
+		// coldest temperature in the band, which only the shrink rule reads,
+		// and it has nothing to shrink here (Re ≤ the flight's).
+		m := sv.water
+		i := m.slot(tb)
+		wp := waterProps{rho: m.rho[i], mu: m.mu[i], pv: m.vapourPressure(tb)}
+		if y, _ := evalAt(tb, wp); y.ok && sv.cavDistance(y.sig) == 0 &&
+			y.r*s*sv.L <= sv.fl.Reynolds && s*sv.L*y.r/sv.fl.Reynolds <= 1 {
+			y.rlo, y.rhi, y.capHi = y.r, y.r, capHi
+			return y
+		}
+	}
 	if sv.grids == nil {
 		sv.grids = &waterGrids{}
 	}
@@ -301,8 +318,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// that holds it (|ln(Re_test/Re_flight)| falls toward that temperature, since
 	// Re/m rises with T), each considered already when both ends of the range
 	// are usable: no refinement then.
-	settled := !sv.obj.weighted && len(sv.obj.levels) > 1 && sv.obj.levels[0] == gCavitation &&
-		sv.obj.levels[1] == gReynolds && zero(best) && grid[0].ok && grid[len(grid)-1].ok
+	settled := sv.cavThenReynolds() && zero(best) && grid[0].ok && grid[len(grid)-1].ok
 	if lo, hi := math.Max(0, float64(ibest-1)), math.Min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta && !settled {
 		g := sv.golden(func(t float64) candidate { return eval(t) },
 			ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1), 3, 1e-12)
@@ -491,4 +507,10 @@ func (sv *solver) marineNotes(st facilities.State, res *Result) []string {
 			map[string]string{SurfaceNear: "runs near", SurfacePiercing: "pierces"}[m.FreeSurface], sv.fl.Froude, fd))
 	}
 	return w
+}
+
+// cavThenReynolds reports whether the objective is the priority of the
+// cavitation number, then the Reynolds number (a vessel's default).
+func (sv *solver) cavThenReynolds() bool {
+	return sv.cav && !sv.obj.weighted && len(sv.obj.levels) > 1 && sv.obj.levels[0] == gCavitation && sv.obj.levels[1] == gReynolds
 }
