@@ -215,8 +215,16 @@ func nitrogenExpand(t0, rho0 float64, n0 n2Props, mach, speed float64) (T, rho f
 		tr := 1 + 0.5*(g-1)*mach*mach
 		T, rho = t0/tr, rho0*math.Pow(tr, -1/(g-1))
 	}
+	return nitrogenNewton(n0, mach, speed, T, rho)
+}
+
+// nitrogenNewton is nitrogenExpand's Newton iteration from the start (T, rho):
+// the static state on the isentrope through the stagnation state's properties
+// n0 at Mach number mach, or at speed in m/s when speed > 0.
+func nitrogenNewton(n0 n2Props, mach, speed, T, rho float64) (float64, float64, n2Props, bool) {
+	var n n2Props
 	v2 := speed * speed
-	m2 = mach * mach
+	m2 := mach * mach
 	for range nitrogenMaxSteps {
 		n = nitrogenAt(T, rho)
 		if !n.valid || !(T > 0) {

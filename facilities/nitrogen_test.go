@@ -174,3 +174,44 @@ func TestLocalCondensationMarginSlope(t *testing.T) {
 	assert.Equal(t, air.LocalCondensationMargin(1e5, 200), m)
 	assert.True(t, math.IsNaN(dm))
 }
+
+// TestNitrogenFloorSlopes: NitrogenFloorSlopes gives the free stream's q as
+// State gives it and the local margin as LocalCondensationMargin gives it
+// (within 1e-14: q = ½·M²·ρ·a² against ½·ρ·V², rounded otherwise), and their
+// derivatives in p0 and T0 match central differences of those within 1e-6
+// (dq/dT0, which is small, within 1e-7 of q/T0),
+// over the cryogenic tunnel range; started from a nearby stagnation state's
+// figures (prev), the same within 1e-13. An ideal gas gives none (OK false).
+func TestNitrogenFloorSlopes(t *testing.T) {
+	t.Parallel()
+	f := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumNitrogen}}
+	q := func(m, p0, t0 float64) float64 {
+		st, err := f.State(facilities.Setting{Mach: m, StagnationPressure: p0, StagnationTemperature: t0})
+		require.NoError(t, err)
+		return st.DynamicPressure
+	}
+	for _, m := range []float64{0.3, 0.78, 0.92} {
+		for _, p0 := range []float64{1.3e5, 2.5e5, 3.9e5} {
+			for _, t0 := range []float64{112, 140, 300} {
+				s := f.NitrogenFloorSlopes(p0, t0, m, nil)
+				require.True(t, s.OK, "M %g, %g Pa, %g K", m, p0, t0)
+				assert.InEpsilon(t, q(m, p0, t0), s.Q, 1e-14)
+				assert.InEpsilon(t, f.LocalCondensationMargin(p0, t0), s.M, 1e-14)
+				hp, ht := 1e-4*p0, 1e-3
+				assert.InEpsilon(t, (q(m, p0+hp, t0)-q(m, p0-hp, t0))/(2*hp), s.QP, 1e-6, "dq/dp0")
+				// q hardly depends on T0 (dq/dT0 is 1e-3 to 1e-2 of q/T0): within
+				// 1e-7 of q/T0.
+				assert.InDelta(t, (q(m, p0, t0+ht)-q(m, p0, t0-ht))/(2*ht), s.QT, 1e-7*s.Q/t0, "dq/dT0")
+				assert.InEpsilon(t, (f.LocalCondensationMargin(p0+hp, t0)-f.LocalCondensationMargin(p0-hp, t0))/(2*hp), s.MP, 1e-6, "dm/dp0")
+				assert.InEpsilon(t, (f.LocalCondensationMargin(p0, t0+ht)-f.LocalCondensationMargin(p0, t0-ht))/(2*ht), s.MT, 1e-6, "dm/dT0")
+				near := f.NitrogenFloorSlopes(p0*1.003, t0*0.998, m, nil)
+				w := f.NitrogenFloorSlopes(p0, t0, m, &near)
+				require.True(t, w.OK)
+				assert.InEpsilon(t, s.Q, w.Q, 1e-13)
+				assert.InEpsilon(t, s.M, w.M, 1e-13)
+			}
+		}
+	}
+	air := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumAir}}
+	assert.False(t, air.NitrogenFloorSlopes(1e5, 200, 0.5, nil).OK)
+}

@@ -3,6 +3,8 @@ package similarity
 import (
 	"math"
 	"slices"
+
+	"scalematch/facilities"
 )
 
 // condLineCache is what a solver knows of the condensation line of the local
@@ -177,4 +179,97 @@ func (sv *solver) rootFrom(g func(float64) float64, x0, lo, hi float64) float64 
 		step, x0, f0 = next, x1, f1
 	}
 	return sv.rootHi(g, lo, hi, true)
+}
+
+// lineIndex returns where p0 lies in the condensation line found so far: the
+// index of its point, found, or where it would be inserted.
+func (cc *condLineCache) lineIndex(p0 float64) (int, bool) {
+	return slices.BinarySearchFunc(cc.line, p0, func(c condPoint, p float64) int {
+		switch {
+		case c.p < p:
+			return -1
+		case c.p > p:
+			return 1
+		}
+		return 0
+	})
+}
+
+// ceilingJoint returns the p0 at which q on the T0 floor at c's Mach number
+// meets the ceiling qc (qa at p0 min below it, qTop at pTop above it), as
+// highestSetting's root in p0 along the condensation line does, but by
+// Newton's method in (p0, T0) on the two equations together: q(p0, T0) = qc
+// and the local condensation margin = condMin (facilities.NitrogenFloorSlopes
+// gives both with their derivatives), so that the p0 it passes through need
+// no converged point of the line each. It starts from the secant across
+// [pa, pTop] and the line interpolated there, and stops after a step below
+// 1e-8 relative in both (the error is then of the order of its square). The
+// p0 returned lies 4e-15 relative below the crossing, its T0 on the line
+// there 2e-15 relative above it; both are checked as the search checks them
+// (the local margin, the free stream's floorMargin, q ≤ qc, each from its own
+// state), and the point joins the line. ok is false where the T0 floor is not
+// the condensation line alone (a speed range, no condensation, another T0
+// range than the line's), when the iteration leaves [pa, pTop] × [ta, tb] or
+// does not converge in 6 steps, or when a check fails: the caller then finds
+// the root in p0 as before.
+func (sv *solver) ceilingJoint(c *machSetup, qc, qa, qTop float64) (float64, bool) {
+	cc := sv.cond
+	if !c.cond || c.vmin != 0 || cc == nil || len(cc.line) == 0 || cc.lo != c.ta || cc.hi != c.tb || !(qa < qc && qc < qTop) {
+		return 0, false
+	}
+	p := c.pa + (c.pTop-c.pa)*(qc-qa)/(qTop-qa)
+	i, found := cc.lineIndex(p)
+	if found {
+		return 0, false
+	}
+	t := cc.guess(i, p)
+	var fs, prev facilities.FloorSlopes
+	converged := false
+	for k := range 6 {
+		var pp *facilities.FloorSlopes
+		if k > 0 {
+			pp = &prev
+		}
+		fs = sv.f.NitrogenFloorSlopes(p, t, c.machOrSpeed, pp)
+		sv.evals++
+		if !fs.OK {
+			return 0, false
+		}
+		f1, f2 := fs.Q-qc, fs.M-sv.condMin
+		det := fs.QP*fs.MT - fs.QT*fs.MP
+		dp := (f1*fs.MT - f2*fs.QT) / det
+		dt := (fs.QP*f2 - fs.MP*f1) / det
+		if !(det != 0) || math.IsNaN(dp) || math.IsNaN(dt) {
+			return 0, false
+		}
+		p, t = p-dp, t-dt
+		if !(p > c.pa && p < c.pTop && t > c.ta && t < c.tb) {
+			return 0, false
+		}
+		prev = fs
+		if math.Abs(dp) <= 1e-8*p && math.Abs(dt) <= 1e-8*t {
+			converged = true
+			break
+		}
+	}
+	if !converged || !(fs.MT > 0) {
+		return 0, false
+	}
+	pf := p * (1 - 4e-15)
+	tf := (t - fs.MP/fs.MT*(pf-p)) * (1 + 2e-15)
+	if !(pf > c.pa && tf < c.tb) || sv.localMargin(pf, tf) < sv.condMin {
+		return 0, false
+	}
+	if m, _ := sv.floorMargin(c, pf, tf); m < 0 {
+		return 0, false
+	}
+	st, err := sv.state(c.machOrSpeed, pf, tf)
+	if err != nil || st.DynamicPressure > qc {
+		return 0, false
+	}
+	if i, found = cc.lineIndex(pf); found {
+		return 0, false
+	}
+	cc.line = slices.Insert(cc.line, i, condPoint{pf, tf})
+	return pf, true
 }

@@ -84,3 +84,38 @@ func TestQcurveKeptAtPa(t *testing.T) {
 	}
 	assert.Positive(t, kept, "set-ups that keep q at p0 min")
 }
+
+// TestCeilingJoint: on cn2-05's q ceiling (70 kPa) across its Mach range, the
+// joint Newton step in (p0, T0) (ceilingJoint) finds the p0 that the root in
+// p0 along the condensation line (rootHiSmooth, as before it) finds, within
+// 1e-13 relative, on the usable side (q ≤ the ceiling at the T0 floor there),
+// and its T0 is the line's at that p0 within 1e-13.
+func TestCeilingJoint(t *testing.T) {
+	t.Parallel()
+	f, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	qc := *f.MaxDynamicPressure
+	newSv := func() *solver {
+		return &solver{f: &f, loadScale: 1, qmax: math.Inf(1), remax: math.Inf(1),
+			cond: newCondLineCache(), memo: &stateMemos{}}
+	}
+	joint, root := newSv(), newSv()
+	used := 0
+	for m := 0.6; m <= 0.92; m += 0.016 {
+		c := joint.prepareNitrogen(m)
+		require.True(t, c.ok, "Mach %g", m)
+		qTop := joint.qcurve(&c, c.pTop)
+		if !(qTop > qc) {
+			continue
+		}
+		p, ok := joint.ceilingJoint(&c, qc, joint.qcurve(&c, c.pa), qTop)
+		require.True(t, ok, "Mach %g", m)
+		used++
+		cr := root.prepareNitrogen(m)
+		want := root.rootHiSmooth(func(p float64) float64 { return qc - root.qcurve(&cr, p) }, cr.pa, cr.pTop, false)
+		assert.InEpsilon(t, want, p, 1e-13, "Mach %g", m)
+		assert.LessOrEqual(t, joint.qcurve(&c, p), qc, "Mach %g", m)
+		assert.InEpsilon(t, root.tfloor(&cr, p), joint.tfloor(&c, p), 1e-13, "Mach %g", m)
+	}
+	assert.Greater(t, used, 10)
+}

@@ -1069,8 +1069,11 @@ func (sv *solver) highestSetting(c *machSetup, qc float64, name string) topSetti
 		case c.linear:
 			t.p, t.cap = qc/c.k, name
 		case sv.qcurve(c, c.pa) <= qc*(1+limitSlack):
-			t.p = sv.rootHiSmooth(func(p float64) float64 { return qc - sv.qcurve(c, p) }, c.pa, c.pTop, false)
-			t.cap = name
+			p, ok := sv.ceilingJoint(c, qc, sv.qcurve(c, c.pa), qTop)
+			if !ok {
+				p = sv.rootHiSmooth(func(p float64) float64 { return qc - sv.qcurve(c, p) }, c.pa, c.pTop, false)
+			}
+			t.p, t.cap = p, name
 		default:
 			t.p, t.cap, t.edge = c.pa, name, true
 			t.t = sv.rootHi(func(x float64) float64 {

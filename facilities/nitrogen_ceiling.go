@@ -1,0 +1,135 @@
+package facilities
+
+import "math"
+
+// FloorSlopes is what the planner's joint Newton step on the q ceiling along
+// nitrogen's condensation line needs at one stagnation state (p0, T0) and test
+// Mach number (NitrogenFloorSlopes): the free stream's dynamic pressure and the
+// local condensation margin, each with its derivatives in p0 and T0, and the two
+// static states found, from which the next stagnation state's expansions start.
+type FloorSlopes struct {
+	// Q is the free stream's dynamic pressure in Pa, QP its derivative in p0
+	// (Pa/Pa) and QT in T0 (Pa/K).
+	Q, QP, QT float64
+	// M is LocalCondensationMargin, MP its derivative in p0 (1/Pa) and MT in
+	// T0 (1/K).
+	M, MP, MT float64
+	// OK is false when an expansion left the gas phase (or the medium is not
+	// nitrogen): the figures above are then 0.
+	OK bool
+
+	p0, t0 float64
+	free   staticSlopes // the free stream at the test Mach number
+	local  staticSlopes // the local expansion to the condensation peak Mach number
+}
+
+// staticSlopes is a static state (T in K, ρ in kg/m³) of an expansion from
+// (p0, T0) and its derivatives in p0 (…P) and T0 (…T).
+type staticSlopes struct {
+	T, rho, TP, rhoP, TT, rhoT float64
+}
+
+// start returns the start of the next expansion from (p0, t0): the state of s
+// carried to first order, or ok false when there is none.
+func (s *staticSlopes) start(dp, dt float64) (T, rho float64, ok bool) {
+	if !(s.T > 0) {
+		return 0, 0, false
+	}
+	T = s.T + s.TP*dp + s.TT*dt
+	rho = s.rho + s.rhoP*dp + s.rhoT*dt
+	return T, rho, T > 0 && rho > 0
+}
+
+// NitrogenFloorSlopes returns, for nitrogen at stagnation pressure p0 in Pa and
+// temperature t0 in K, the free stream's dynamic pressure at Mach number mach
+// and the local condensation margin (LocalCondensationMargin), each with its
+// derivatives in p0 and t0: the residuals and the Jacobian of a Newton step on
+// the q ceiling along the condensation line. The derivatives follow from the
+// real-gas isentrope by implicit differentiation (as nitrogenExpandSlope's):
+// the stagnation density moves with p0 as 1/(∂p/∂ρ)_T and with T0 as
+// −(∂p/∂T)_ρ/(∂p/∂ρ)_T, the entropy and enthalpy with it, and the static
+// (T, ρ) as the Jacobian of the expansion's equations solved for that change;
+// q = ½·M²·ρ·a². When prev holds the figures of a nearby stagnation state,
+// each expansion starts from prev's static state carried to (p0, t0) to first
+// order, which saves Newton steps; the figures are the same to the expansion's
+// convergence (about 1e-16 relative) either way, not to the bit.
+func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) FloorSlopes {
+	out := FloorSlopes{p0: p0, t0: t0}
+	if f.Medium.Kind != MediumNitrogen || !(t0 > 0 && p0 > 0 && mach > 0) {
+		return out
+	}
+	rho0 := nitrogenDensity(t0, p0)
+	n0 := nitrogenAt(t0, rho0)
+	if !n0.valid {
+		return out
+	}
+	// The stagnation entropy and enthalpy's derivatives in p0 (at fixed T0) and
+	// in T0 (at fixed p0).
+	hRho0 := (n0.pRho - t0*n0.pT/rho0) / rho0
+	drP := 1 / n0.pRho
+	dsP, dhP := -n0.pT/(rho0*rho0)*drP, hRho0*drP
+	drT := -n0.pT / n0.pRho
+	dsT, dhT := n0.cv/t0-n0.pT/(rho0*rho0)*drT, n0.cv+n0.pT/rho0+hRho0*drT
+
+	expand := func(m float64, last *staticSlopes) (staticSlopes, n2Props, bool) {
+		var T, rho float64
+		var n n2Props
+		var ok bool
+		if prev != nil && prev.OK {
+			if T, rho, ok = last.start(p0-prev.p0, t0-prev.t0); ok {
+				T, rho, n, ok = nitrogenNewton(n0, m, 0, T, rho)
+			}
+		}
+		if !ok {
+			T, rho, n, ok = nitrogenExpand(t0, rho0, n0, m, 0)
+		}
+		if !ok {
+			return staticSlopes{}, n, false
+		}
+		m2 := m * m
+		j11, j12 := n.cv/T, -n.pT/(rho*rho)
+		j21, j22 := n.cv+n.pT/rho+0.5*m2*n.a2T, (n.pRho-T*n.pT/rho)/rho+0.5*m2*n.a2Rho
+		det := j11*j22 - j12*j21
+		if det == 0 || math.IsNaN(det) {
+			return staticSlopes{}, n, false
+		}
+		ss := staticSlopes{T: T, rho: rho}
+		ss.TP = (dsP*j22 - dhP*j12) / det
+		ss.rhoP = (j11*dhP - j21*dsP) / det
+		ss.TT = (dsT*j22 - dhT*j12) / det
+		ss.rhoT = (j11*dhT - j21*dsT) / det
+		return ss, n, true
+	}
+	var lastFree, lastLocal *staticSlopes
+	if prev != nil {
+		lastFree, lastLocal = &prev.free, &prev.local
+	}
+	free, nf, ok := expand(mach, lastFree)
+	if !ok {
+		return out
+	}
+	local, nl, ok := expand(f.condensationPeakMach(), lastLocal)
+	if !ok || !(nl.p > 0) {
+		return out
+	}
+	// q = ½·M²·ρ·a², a² = a²(T, ρ).
+	hm2 := 0.5 * mach * mach
+	dq := func(dT, dr float64) float64 {
+		return hm2 * (nf.a2*dr + free.rho*(nf.a2T*dT+nf.a2Rho*dr))
+	}
+	out.Q = hm2 * free.rho * nf.a2
+	out.QP, out.QT = dq(free.TP, free.rhoP), dq(free.TT, free.rhoT)
+	// m = T/T_sat(p) − 1, dT_sat/dp = T_sat²/(B·p) below the critical pressure.
+	tsat, below := f.Medium.SaturationTemperature(nl.p)
+	dm := func(dT, dr float64) float64 {
+		d := dT / tsat
+		if below {
+			d -= local.T * (nl.pT*dT + nl.pRho*dr) / (nitrogenClausiusB * nl.p)
+		}
+		return d
+	}
+	out.M = local.T/tsat - 1
+	out.MP, out.MT = dm(local.TP, local.rhoP), dm(local.TT, local.rhoT)
+	out.free, out.local, out.OK = free, local, true
+	return out
+}
