@@ -99,7 +99,9 @@ func (m *Model) Validate() error {
 //
 //	Σ w·(ln(test/flight))²
 //
-// Ties go to the lowest dynamic pressure in both. The zero value is the priority
+// Ties go to the lowest dynamic pressure in both; with weights, plans that meet
+// every weighted target (the Reynolds number exactly, the others within 1e-9)
+// tie at a sum of 0 (docs/planner.md, Objectives). The zero value is the priority
 // ["mach", "reynolds"] with MachTolerance DefaultMachTolerance; for a water
 // facility, which never targets the Mach number, it is ["reynolds"]; for a marine
 // condition in a water facility it is ["cavitation", "reynolds"] with

@@ -24,17 +24,25 @@ type interval struct{ a, b float64 }
 // bestOverScales returns the best candidate over the model scales at Mach number (speed) machOrSpeed.
 func (sv *solver) bestOverScales(machOrSpeed float64) candidate {
 	c := sv.prepare(machOrSpeed)
+	return sv.bestOverScalesAt(&c, true)
+}
+
+// bestOverScalesAt is bestOverScales on the set-up c. With probe, a
+// Froude-weighted water problem first tries the scale that matches the Froude
+// number (exactAt): where it meets every target, it is the best at this speed
+// (docs/planner.md, Objectives: the tie rule).
+func (sv *solver) bestOverScalesAt(c *machSetup, probe bool) candidate {
 	if !c.ok {
-		return candidate{machOrSpeed: machOrSpeed, fail: c.fail, k: worst}
+		return candidate{machOrSpeed: c.machOrSpeed, fail: c.fail, k: worst}
 	}
 	switch sv.kind {
 	case scaleFixed:
-		return sv.at(&c, sv.scales[0])
+		return sv.at(c, sv.scales[0])
 	case scaleList:
 		var best candidate
 		best.k = worst
 		for _, s := range sv.scales {
-			if x := sv.at(&c, s); x.ok && (!best.ok || x.k.less(best.k)) {
+			if x := sv.at(c, s); x.ok && (!best.ok || x.k.less(best.k)) {
 				best = x
 			} else if !best.ok && best.fail == "" {
 				best.fail = x.fail
@@ -43,10 +51,15 @@ func (sv *solver) bestOverScales(machOrSpeed float64) candidate {
 		return best
 	}
 	if sv.froudeMatters() {
-		return sv.golden(func(ls float64) candidate { return sv.at(&c, math.Exp(ls)) },
+		if probe && sv.froudePlateau() {
+			if x, ok := sv.exactAt(c); ok {
+				return x
+			}
+		}
+		return sv.golden(func(ls float64) candidate { return sv.at(c, math.Exp(ls)) },
 			math.Log(sv.sLo), math.Log(sv.sHi), 9, 1e-10)
 	}
-	return sv.bestInScaleRange(&c)
+	return sv.bestInScaleRange(c)
 }
 
 // bestInScaleRange finds the best scale in [sLo, sHi] at one Mach number when only the
@@ -444,6 +457,15 @@ func (sv *solver) solve() (candidate, error) {
 		// ideal gases and water too (docs/performance.md, Planner).
 		brent := sv.obj.weighted
 		for _, iv := range ivs {
+			// Froude-weighted water: the plan that meets every target at
+			// the lowest speed, where one exists (plateauMin).
+			plateau := sv.froudePlateau()
+			search := func(a, b float64, n int, seed bool) candidate {
+				if plateau {
+					return sv.plateauMin(sv.bestOverScales, a, b, n, tolU, brent, seed)
+				}
+				return sv.gridMin(sv.bestOverScales, a, b, n, tolU, brent, seed)
+			}
 			if w := sv.warmAt; sv.warmCell > 0 && w >= iv.a && w <= iv.b {
 				// A re-solve: the relaxed optimum lies near the one relaxed.
 				a, b := math.Max(iv.a, w-sv.warmCell), math.Min(iv.b, w+sv.warmCell)
@@ -451,9 +473,9 @@ func (sv *solver) solve() (candidate, error) {
 				// (tsw-1's re-solves 58 → 47 and 110 → 96 evaluations);
 				// in water they cost more (wtn-04 marine 837 → 1161;
 				// docs/performance.md, Planner).
-				consider(sv.gridMin(sv.bestOverScales, a, b, 3, tolU, brent, !sv.liquid))
+				consider(search(a, b, 3, !sv.liquid))
 			} else {
-				consider(sv.gridMin(sv.bestOverScales, iv.a, iv.b, 17, tolU, brent, false))
+				consider(search(iv.a, iv.b, 17, false))
 			}
 			if !sv.liquid && sv.aim >= iv.a && sv.aim <= iv.b {
 				consider(sv.bestOverScales(sv.aim))
@@ -462,6 +484,11 @@ func (sv *solver) solve() (candidate, error) {
 	}
 	if !best.ok {
 		return candidate{}, unprocessable("no plan satisfies the facility's limits", fails...)
+	}
+	if sv.froudePlateau() && best.k.v[0] == 0 {
+		// Every target is met: the sum cannot fall, and the tie rule has
+		// chosen among the plans that meet them (plateauMin).
+		return best, nil
 	}
 	return sv.polish(best, ivs), nil
 }

@@ -1500,6 +1500,12 @@ func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) 
 	lnFr := func() float64 { return math.Log(v / (sv.fl.Speed() * math.Sqrt(s))) }
 	k := key{q: q}
 	if sv.obj.weighted {
+		// exact: the Reynolds term, where weighted, is 0 (met: the setting
+		// was solved for it), and every other term of positive weight is
+		// within exactTol; the sum is then exactly 0, so that all plans
+		// meeting every target tie and the lowest q decides (docs/planner.md,
+		// Objectives).
+		exact := true
 		for i := range nGroups {
 			w := sv.obj.w[i]
 			if !(w > 0) {
@@ -1521,7 +1527,13 @@ func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) 
 					l = math.Log(math.Max(sig, 1e-9*sf) / sf)
 				}
 			}
+			if i == gReynolds && l != 0 || math.Abs(l) > exactTol {
+				exact = false
+			}
 			k.v[0] += w * l * l
+		}
+		if exact {
+			k.v[0] = 0
 		}
 		return k
 	}
@@ -1547,6 +1559,16 @@ func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) 
 	}
 	return k
 }
+
+// exactTol is the tolerance within which a weighted Froude, Mach or
+// cavitation target counts as met: when |ln(test/flight)| ≤ 1e-9 for each of
+// positive weight (each ratio within about 1e-9 of 1) and the Reynolds number,
+// where weighted, is met (by construction: its term is then exactly 0), the
+// weighted sum is exactly 0 (keyOf). Such plans meet every target; among them
+// the lowest q wins, as in every tie. The Reynolds term has no tolerance: the
+// planner meets it exactly wherever it is reachable, and a plan a rounding
+// short of it at a limit must not win on q.
+const exactTol = 1e-9
 
 // rootHi finds where a monotone g changes sign in [lo, hi] by the Illinois variant
 // of regula falsi and returns a point on the usable side g ≥ 0 within 1e-13 relative
