@@ -1576,16 +1576,25 @@ const exactTol = 1e-9
 // otherwise it lies toward lo. When g does not change sign, the usable endpoint is
 // returned, or, when neither is usable, the endpoint nearer to being usable.
 func (sv *solver) rootHi(g func(float64) float64, lo, hi float64, increasing bool) float64 {
-	return usableRoot(g, lo, hi, increasing, illinois)
+	return usableRoot(g, lo, hi, increasing, false)
 }
 
-// usableRoot is rootHi with the bracketed root finder inner, called with both
-// ends' values once g changes sign between them.
-func usableRoot(g func(float64) float64, lo, hi float64, increasing bool, inner func(g func(float64) float64, a, fa, b, fb float64) float64) float64 {
+// usableRoot is rootHi with the bracketed root finder illinois, or
+// secantBracket when smooth, called with both ends' values once g changes
+// sign between them. The finders are called directly, not through a function
+// value, so that g does not escape: the callers' closures, and the set-ups
+// and candidates they capture, stay on the stack.
+func usableRoot(g func(float64) float64, lo, hi float64, increasing, smooth bool) float64 {
 	if !increasing {
-		x := usableRoot(func(x float64) float64 { return g(lo + hi - x) }, lo, hi, true, inner)
+		flip := func(x float64) float64 { return g(lo + hi - x) }
+		x := usableRootUp(flip, lo, hi, smooth)
 		return math.Min(math.Max(lo+hi-x, lo), hi)
 	}
+	return usableRootUp(g, lo, hi, smooth)
+}
+
+// usableRootUp is usableRoot for an increasing g.
+func usableRootUp(g func(float64) float64, lo, hi float64, smooth bool) float64 {
 	fa := g(lo)
 	if fa >= 0 {
 		return lo
@@ -1594,7 +1603,10 @@ func usableRoot(g func(float64) float64, lo, hi float64, increasing bool, inner 
 	if fb < 0 {
 		return hi
 	}
-	return inner(g, lo, fa, hi, fb)
+	if smooth {
+		return secantBracket(g, lo, fa, hi, fb)
+	}
+	return illinois(g, lo, fa, hi, fb)
 }
 
 // rootHiSmooth is rootHi for a smooth g (nitrogen's q along the T0 floor,
@@ -1607,7 +1619,7 @@ func usableRoot(g func(float64) float64, lo, hi float64, increasing bool, inner 
 // Illinois rule took five (its halved end overshoots once). It returns what
 // rootHi returns.
 func (sv *solver) rootHiSmooth(g func(float64) float64, lo, hi float64, increasing bool) float64 {
-	return usableRoot(g, lo, hi, increasing, secantBracket)
+	return usableRoot(g, lo, hi, increasing, true)
 }
 
 // secantBracket is illinois by secant steps (rootHiSmooth).
