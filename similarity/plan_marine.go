@@ -205,6 +205,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			} else {
 				y.ps = math.Min(math.Max(wp.pv+sf*q, lo), hi)
 				y.sig = (y.ps - wp.pv) / q
+				y.band = sv.bandDepth(lo, hi, wp.pv, q)
 				y.q, y.r, y.p0 = q, r, y.ps+q
 			}
 		}
@@ -248,6 +249,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		if y, _ := evalAt(tb, wp); y.ok && sv.cavDistance(y.sig) == 0 &&
 			y.r*s*sv.L <= sv.fl.Reynolds && s*sv.L*y.r/sv.fl.Reynolds <= 1 {
 			y.rlo, y.rhi, y.capHi = y.r, y.r, capHi
+			y.top, y.bandOK = true, true
 			return y
 		}
 	}
@@ -343,6 +345,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	}
 	if best.t0 >= tb*(1-limitSlack) {
 		best.capHi = capHi
+	}
+	if top := grid[len(grid)-1]; top.ok {
+		best.band, best.bandOK = top.band, true
 	}
 	return best
 }
@@ -467,6 +472,18 @@ func (sv *solver) cavCrossing(eval func(float64, waterProps) (candidate, float64
 		}
 	}
 	return a, 0, false
+}
+
+// bandDepth is how far the cavitation number can come inside the band
+// σ_full ± cavTol with the static pressures lo to hi in Pa the facility can
+// hold at dynamic pressure q in Pa and vapour pressure pv in Pa: the lesser of
+// σ at hi above the band's lower end and σ at lo below its upper end, ≥ 0
+// where the chosen σ lies in the band and < 0 where it does not. Unlike the
+// chosen σ, which stays at σ_full while the pressure is free, it moves with
+// the speed and the temperature on both sides of a band's end.
+func (sv *solver) bandDepth(lo, hi, pv, q float64) float64 {
+	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
+	return math.Min((hi-pv)/q-(sf-tol), sf+tol-(lo-pv)/q)
 }
 
 // cavDistance is the distance of a test cavitation number sig outside the band

@@ -88,7 +88,7 @@ func (sv *solver) plateauMin(eval func(float64) candidate, a, b float64, n int, 
 		}
 		return eval(u)
 	}
-	best := sv.gridMin(kept, a, b, n, tol, brent, seed)
+	best := sv.gridMin(kept, a, b, n, tol, brent, seed, false)
 	if !best.ok || best.k.v[0] != 0 {
 		return best
 	}

@@ -160,14 +160,20 @@ func (sv *solver) shrink(c *machSetup, x candidate) candidate {
 // golden-section search in the bracket around the best of them, to tol relative of
 // the interval's scale. It returns the best candidate seen.
 func (sv *solver) golden(eval func(float64) candidate, a, b float64, n int, tol float64) candidate {
-	return sv.gridMin(eval, a, b, n, tol, false, false)
+	return sv.gridMin(eval, a, b, n, tol, false, false, false)
 }
 
 // gridMin is golden, with Brent's method (brentMin) instead of the golden
 // section in the bracket when brent is set (a weighted objective: one level);
 // with seed too, the grid's neighbours of its best point seed Brent's
 // parabola (a re-solve's warm grid, whose points lie near the optimum).
-func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol float64, brent, seed bool) candidate {
+//
+// With edge (a vessel's speed search with the priority of the cavitation
+// number, then the Reynolds number), once the golden section's two inner
+// points lie either side of the speed where the warmest usable water leaves
+// the cavitation band (candidate.top, candidate.band) and the one inside is
+// the better, the optimum is that speed: speedEdge finds it.
+func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol float64, brent, seed, edge bool) candidate {
 	best := eval(a)
 	if b <= a {
 		return best
@@ -190,6 +196,21 @@ func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol
 	}
 	best = ks[ibest]
 	eps := tol * math.Max(math.Max(math.Abs(a), math.Abs(b)), b-a)
+	if edge && best.top {
+		// The grid's best lies inside the cavitation band at the warmest
+		// water and a neighbour outside it, the other neighbour (if any)
+		// inside: the optimum is the speed between them where the band ends.
+		for _, j := range [...]int{ibest + 1, ibest - 1} {
+			o := 2*ibest - j
+			if j < 0 || j >= n || ks[j].top || !ks[j].bandOK || !(ks[j].band < 0) || (o >= 0 && o < n && !ks[o].top) {
+				continue
+			}
+			if e := speedEdge(eval, xs[ibest], best, xs[j], ks[j], eps); e.k.less(best.k) {
+				best = e
+			}
+			return best
+		}
+	}
 	// At an end of the interval, one step inside tells: for a unimodal key, no
 	// improvement there means the end is the optimum.
 	start, fStart := xs[ibest], best
@@ -220,6 +241,18 @@ func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol
 	x2 := lo + invPhi*(hi-lo)
 	f1, f2 := eval(x1), eval(x2)
 	for hi-lo > eps {
+		if edge {
+			xg, fg, xb, fb := x1, f1, x2, f2
+			if f2.top {
+				xg, fg, xb, fb = x2, f2, x1, f1
+			}
+			if fg.top && !fb.top && fb.bandOK && fb.band < 0 && fg.k.less(fb.k) {
+				if e := speedEdge(eval, xg, fg, xb, fb, eps); e.k.less(best.k) {
+					best = e
+				}
+				return best
+			}
+		}
 		if f1.k.less(f2.k) {
 			if f1.k.less(best.k) {
 				best = f1
@@ -456,6 +489,7 @@ func (sv *solver) solve() (candidate, error) {
 		// third of the golden section's Mach numbers, and it is cheaper for the
 		// ideal gases and water too (docs/performance.md, Planner).
 		brent := sv.obj.weighted
+		edge := sv.liquid && sv.cavThenReynolds()
 		for _, iv := range ivs {
 			// Froude-weighted water: the plan that meets every target at
 			// the lowest speed, where one exists (plateauMin).
@@ -464,7 +498,7 @@ func (sv *solver) solve() (candidate, error) {
 				if plateau {
 					return sv.plateauMin(sv.bestOverScales, a, b, n, tolU, brent, seed)
 				}
-				return sv.gridMin(sv.bestOverScales, a, b, n, tolU, brent, seed)
+				return sv.gridMin(sv.bestOverScales, a, b, n, tolU, brent, seed, edge)
 			}
 			if w := sv.warmAt; sv.warmCell > 0 && w >= iv.a && w <= iv.b {
 				// A re-solve: the relaxed optimum lies near the one relaxed.
@@ -684,4 +718,63 @@ func (sv *solver) wholeRangeFeasible(r *solver) bool {
 // sortBindings orders a binding list by constraint name for stable output.
 func sortBindings(bs []Binding) {
 	slices.SortFunc(bs, func(a, b Binding) int { return strings.Compare(a.Constraint, b.Constraint) })
+}
+
+// speedEdge returns the best candidate of eval seen while narrowing the
+// bracket of speeds [xg, xb] (either order) to eps: at xg the warmest usable
+// water lies inside the cavitation band (fg.top), at xb it lies outside
+// (fb.band < 0). Inside, that water is the best temperature and the Reynolds
+// number rises toward the band's end; past it, the band holds only colder
+// water with a lower Reynolds number: the optimum is the speed where σ at the
+// warmest water reaches the band's end, a root of candidate.band, continuous
+// in the speed. The step is regula falsi with the Illinois modification
+// (as cavEdge), a halving where band is unknown, disagrees in sign with the
+// candidate's side, or three steps did not halve the bracket.
+func speedEdge(eval func(float64) candidate, xg float64, fg candidate, xb float64, fb candidate, eps float64) candidate {
+	best := fg
+	mg, mb := fg.band, fb.band
+	side, w0 := 0, math.Abs(xg-xb)
+	for j := 1; j <= 100 && math.Abs(xg-xb) > eps; j++ {
+		x := 0.5 * (xg + xb)
+		if j%4 == 0 && math.Abs(xg-xb) > 0.5*w0 {
+			// The last three steps did not halve the bracket: a halving.
+		} else if mg-mb > 0 {
+			d := 0.05 * eps
+			lo, hi := math.Min(xg, xb)+d, math.Max(xg, xb)-d
+			if r := xg + mg/(mg-mb)*(xb-xg); r >= lo-d && r <= hi+d {
+				x = math.Min(math.Max(r, lo), hi)
+			}
+		}
+		f := eval(x)
+		if f.ok && f.k.less(best.k) {
+			best = f
+		}
+		m := math.NaN()
+		if f.bandOK {
+			m = f.band
+		}
+		if f.top {
+			if !(m >= 0) {
+				m = math.NaN()
+			}
+			xg, mg = x, m
+			if side == 1 {
+				mb *= 0.5
+			}
+			side = 1
+		} else {
+			if !(m < 0) {
+				m = math.NaN()
+			}
+			xb, mb = x, m
+			if side == -1 {
+				mg *= 0.5
+			}
+			side = -1
+		}
+		if j%4 == 0 {
+			w0 = math.Abs(xg - xb)
+		}
+	}
+	return best
 }

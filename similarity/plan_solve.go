@@ -142,6 +142,15 @@ type candidate struct {
 	// Water with the cavitation number in the objective: the chosen test-section
 	// static pressure in Pa and the cavitation number there.
 	ps, sig float64
+	// With the priority of the cavitation number, then the Reynolds number
+	// (atWaterCav): top says the candidate is the warmest usable water, inside
+	// the cavitation band and short of the flight's Reynolds number; band is
+	// how far σ at the warmest usable water lies inside the band (< 0 outside
+	// it), bandOK that it is known. The speed search finds the speed where
+	// top ends as a root of band (speedEdge).
+	top    bool
+	band   float64
+	bandOK bool
 }
 
 // solver holds one planning problem in the form the search needs. Relaxed copies
