@@ -24,7 +24,7 @@ func (sv *solver) staticRange(q, pv float64) (lo, hi float64) {
 		lo, hi = sv.f.StagnationPressure.Min-q, sv.f.StagnationPressure.Max-q
 	}
 	if !sv.cavAllowed {
-		lo = math.Max(lo, pv)
+		lo = max(lo, pv)
 	}
 	return lo, hi
 }
@@ -203,7 +203,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			if !(hi >= lo && q > 0) {
 				ok = false
 			} else {
-				y.ps = math.Min(math.Max(wp.pv+sf*q, lo), hi)
+				y.ps = min(max(wp.pv+sf*q, lo), hi)
 				y.sig = (y.ps - wp.pv) / q
 				y.band = sv.bandDepth(lo, hi, wp.pv, q)
 				y.q, y.r, y.p0 = q, r, y.ps+q
@@ -321,7 +321,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// Re/m rises with T), each considered already when both ends of the range
 	// are usable: no refinement then.
 	settled := sv.cavThenReynolds() && zero(best) && grid[0].ok && grid[len(grid)-1].ok
-	if lo, hi := math.Max(0, float64(ibest-1)), math.Min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta && !settled {
+	if lo, hi := max(0, float64(ibest-1)), min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta && !settled {
 		g := sv.golden(func(t float64) candidate { return eval(t) },
 			ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1), 3, 1e-12)
 		consider(g)
@@ -336,8 +336,8 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	dBest := sv.cavDistance(best.sig)
 	for _, y := range seen {
 		if y.d <= dBest {
-			best.rhi = math.Max(best.rhi, y.r)
-			best.rlo = math.Min(best.rlo, y.r)
+			best.rhi = max(best.rhi, y.r)
+			best.rlo = min(best.rlo, y.r)
 		}
 	}
 	if best.r <= best.rlo*(1+limitSlack) {
@@ -409,9 +409,9 @@ func (sv *solver) cavEdge(eval func(float64, waterProps) (candidate, float64), g
 			// to the edge as the margin resolves, the next point falls past it
 			// and closes the bracket.
 			d := 0.4e-12 * good.t0
-			lo, hi := math.Min(good.t0, bad.t0)+d, math.Max(good.t0, bad.t0)-d
+			lo, hi := min(good.t0, bad.t0)+d, max(good.t0, bad.t0)-d
 			if x := good.t0 + fg/(fg-fb)*(bad.t0-good.t0); x >= lo-d && x <= hi+d {
-				t = math.Min(math.Max(x, lo), hi)
+				t = min(max(x, lo), hi)
 			}
 		}
 		m, room := eval(t, waterPropsAt(t))
@@ -447,7 +447,7 @@ func (sv *solver) cavCrossing(eval func(float64, waterProps) (candidate, float64
 	side := 0
 	for j := 0; j < 100 && math.Abs(a.t0-b.t0) > 1e-12*math.Abs(a.t0); j++ {
 		t := 0.5 * (a.t0 + b.t0)
-		if x := a.t0 + fa/(fa-fb)*(b.t0-a.t0); x > math.Min(a.t0, b.t0) && x < math.Max(a.t0, b.t0) {
+		if x := a.t0 + fa/(fa-fb)*(b.t0-a.t0); x > min(a.t0, b.t0) && x < max(a.t0, b.t0) {
 			t = x
 		}
 		m, room := eval(t, waterPropsAt(t))
@@ -483,14 +483,14 @@ func (sv *solver) cavCrossing(eval func(float64, waterProps) (candidate, float64
 // the speed and the temperature on both sides of a band's end.
 func (sv *solver) bandDepth(lo, hi, pv, q float64) float64 {
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
-	return math.Min((hi-pv)/q-(sf-tol), sf+tol-(lo-pv)/q)
+	return min((hi-pv)/q-(sf-tol), sf+tol-(lo-pv)/q)
 }
 
 // cavDistance is the distance of a test cavitation number sig outside the band
 // σ_full ± cavTol: 0 inside it.
 func (sv *solver) cavDistance(sig float64) float64 {
 	sf := sv.fl.Marine.Cavitation
-	return math.Max(0, math.Max(sf-sv.obj.cavTol-sig, sig-(sf+sv.obj.cavTol)))
+	return max(0, max(sf-sv.obj.cavTol-sig, sig-(sf+sv.obj.cavTol)))
 }
 
 // marineNotes returns the plan's notes on a marine condition: the cavitation number

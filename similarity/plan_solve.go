@@ -1183,22 +1183,20 @@ func (sv *solver) prepareWater(machOrSpeed float64) machSetup {
 	c := machSetup{machOrSpeed: machOrSpeed, pa: f.StagnationPressure.Max, pTop: f.StagnationPressure.Max}
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
 	// Boiling at p0 and cavitation in the test section set a T0 ceiling: warmer
-	// water has a higher vapour pressure (waterMargin).
+	// water has a higher vapour pressure (waterMargin). The states at the
+	// range's ends serve both the margins and the set-up.
 	top := facilities.ConstraintTempMax
-	if m, name := sv.waterMargin(machOrSpeed, c.pa, ta); m < 0 {
+	stA, errA := sv.state(machOrSpeed, c.pa, ta)
+	if m, name := sv.waterMarginOf(stA, errA); m < 0 {
 		c.fail = name
 		return c
 	}
-	if m, name := sv.waterMargin(machOrSpeed, c.pa, tb); m < 0 {
+	stB, err := sv.state(machOrSpeed, c.pa, tb)
+	if m, name := sv.waterMarginOf(stB, err); m < 0 {
 		tb = sv.rootHi(func(t float64) float64 { m, _ := sv.waterMargin(machOrSpeed, c.pa, t); return m }, ta, tb, false)
 		top = name
+		stB, err = sv.state(machOrSpeed, c.pa, tb)
 	}
-	stB, err := sv.state(machOrSpeed, c.pa, tb)
-	if err != nil {
-		c.fail = facilities.ConstraintSpeedMax
-		return c
-	}
-	stA, err := sv.state(machOrSpeed, c.pa, ta)
 	if err != nil {
 		c.fail = facilities.ConstraintSpeedMax
 		return c
@@ -1238,6 +1236,12 @@ func (sv *solver) prepareWater(machOrSpeed float64) machSetup {
 // (boiling).
 func (sv *solver) waterMargin(machOrSpeed, p0, t float64) (float64, string) {
 	st, err := sv.state(machOrSpeed, p0, t)
+	return sv.waterMarginOf(st, err)
+}
+
+// waterMarginOf is waterMargin of the state st that sv.state returned with
+// err.
+func (sv *solver) waterMarginOf(st facilities.State, err error) (float64, string) {
 	if err != nil {
 		return -1, facilities.ConstraintBoiling
 	}
