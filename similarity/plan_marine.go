@@ -190,6 +190,11 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		}
 	}
 	sf := sv.fl.Marine.Cavitation
+	// lazyAbove: while the grid runs with the priority of the cavitation
+	// number first, a candidate farther outside the band than the grid's best
+	// so far cannot become the best, and its key keeps the cavitation level
+	// alone (the later levels +Inf), without the Reynolds number's logarithm.
+	lazy, lazyAbove := sv.cavFirst(), math.Inf(1)
 	// evalAt returns the candidate at temperature t, the water's properties
 	// there being wp, and the room between the static pressures the facility
 	// can hold there, hi − lo in Pa (NaN where the state fails).
@@ -217,6 +222,16 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			return y, room
 		}
 		y.ok = true
+		if lazy {
+			if d := sv.cavDistance(y.sig); d > lazyAbove {
+				y.k = key{q: q}
+				y.k.v[0] = d
+				for j := 1; j < len(y.k.v); j++ {
+					y.k.v[j] = math.Inf(1)
+				}
+				return y, room
+			}
+		}
 		y.k = sv.keyOf(c.machOrSpeed, s, r, q, c.machOrSpeed, false, y.sig)
 		return y, room
 	}
@@ -264,6 +279,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		grid[i], rooms[i] = evalAt(cavGridT(ta, tb, i), wg.wp[i])
 		if grid[i].ok && (ibest < 0 || grid[i].k.less(grid[ibest].k)) {
 			ibest = i
+			if lazy {
+				lazyAbove = grid[i].k.v[0]
+			}
 		}
 		consider(grid[i])
 		if !best.ok && grid[i].fail != "" {
@@ -273,6 +291,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			return best
 		}
 	}
+	lazyAbove = math.Inf(1)
 	if ibest < 0 {
 		x.fail, x.k = best.fail, worst
 		return x
@@ -524,6 +543,12 @@ func (sv *solver) marineNotes(st facilities.State, res *Result) []string {
 			map[string]string{SurfaceNear: "runs near", SurfacePiercing: "pierces"}[m.FreeSurface], sv.fl.Froude, fd))
 	}
 	return w
+}
+
+// cavFirst reports whether the objective is a priority whose first level is
+// the cavitation number.
+func (sv *solver) cavFirst() bool {
+	return sv.cav && !sv.obj.weighted && len(sv.obj.levels) > 0 && sv.obj.levels[0] == gCavitation
 }
 
 // cavThenReynolds reports whether the objective is the priority of the
