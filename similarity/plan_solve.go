@@ -106,6 +106,10 @@ type machSetup struct {
 	// Water only.
 	rWaterTop   float64
 	capWaterTop string
+	// qWater holds q at pa at the temperatures qWaterT (the ends of the
+	// usable T0 range, whose states prepareWater computed; 0: unset), for
+	// waterQAt: every candidate at this speed asks for them again.
+	qWater, qWaterT [2]float64
 }
 
 // topSetting is the setting of the highest usable Re/m at one Mach number under a
@@ -835,7 +839,7 @@ func (sv *solver) raiseFloor(c *machSetup, lo float64, tp topSetting) (machSetup
 func (sv *solver) topQ(c *machSetup, s float64) float64 {
 	q := c.facilityTop.q
 	if sv.liquid {
-		q = sv.waterQ(c.machOrSpeed, c.pa, c.ta)
+		q = sv.waterQAt(c, c.ta)
 	}
 	if sv.load != nil {
 		q = math.Min(q, sv.loadQ(s, c.stRef))
@@ -1216,6 +1220,7 @@ func (sv *solver) prepareWater(machOrSpeed float64) machSetup {
 		}
 	}
 	c.ra, c.rlo = stA.ReynoldsPerMeter, stA.ReynoldsPerMeter
+	c.qWater, c.qWaterT = [2]float64{stA.DynamicPressure, stB.DynamicPressure}, [2]float64{c.ta, c.tb}
 	if c.rlo > sv.remax*(1+limitSlack) {
 		c.fail = facilities.ConstraintReynoldsUnit
 		return c
@@ -1261,6 +1266,18 @@ func (sv *solver) waterQ(machOrSpeed, p0, t float64) float64 {
 		return math.Inf(1)
 	}
 	return st.DynamicPressure
+}
+
+// waterQAt is waterQ at c's speed and stagnation pressure (a water set-up's p0
+// never changes), from the set-up where t is an end of its usable T0 range
+// whose state prepareWater computed: the same state, so the same q.
+func (sv *solver) waterQAt(c *machSetup, t float64) float64 {
+	for i, ti := range c.qWaterT {
+		if ti == t && ti != 0 {
+			return c.qWater[i]
+		}
+	}
+	return sv.waterQ(c.machOrSpeed, c.pa, t)
 }
 
 // waterR is Re/m of water at speed machOrSpeed and T0 t.
@@ -1410,12 +1427,12 @@ func (sv *solver) atWater(c *machSetup, s, target float64, w Window) candidate {
 	}
 	if sv.load != nil {
 		qb := w.Hi
-		qt := sv.waterQ(c.machOrSpeed, c.pa, tHi)
+		qt := sv.waterQAt(c, tHi)
 		if qb < qt*(1-limitSlack) {
 			x.fail, x.k = sv.loadName, worst
 			return x
 		}
-		if qa := sv.waterQ(c.machOrSpeed, c.pa, c.ta); qb < qa {
+		if qa := sv.waterQAt(c, c.ta); qb < qa {
 			lo := sv.rootHi(func(t float64) float64 { return qb - sv.waterQ(c.machOrSpeed, c.pa, t) }, c.ta, tHi, true)
 			c2 := *c
 			c2.ta = lo
@@ -1426,11 +1443,11 @@ func (sv *solver) atWater(c *machSetup, s, target float64, w Window) candidate {
 	}
 	if lo := w.Lo; lo > 0 {
 		// The resolution floor: q falls as the water warms, so it caps T0.
-		if sv.waterQ(c.machOrSpeed, c.pa, c.ta) < lo*(1-limitSlack) {
+		if sv.waterQAt(c, c.ta) < lo*(1-limitSlack) {
 			x.fail, x.k = sv.floorName, worst
 			return x
 		}
-		if sv.waterQ(c.machOrSpeed, c.pa, tHi) < lo {
+		if sv.waterQAt(c, tHi) < lo {
 			tHi = sv.rootHi(func(t float64) float64 { return sv.waterQ(c.machOrSpeed, c.pa, t) - lo }, c.ta, tHi, false)
 			rhi, capHi = sv.waterR(c.machOrSpeed, c.pa, tHi), sv.floorName
 		}
@@ -1480,7 +1497,7 @@ func (sv *solver) atWater(c *machSetup, s, target float64, w Window) candidate {
 	}
 	x.r = r
 	if x.q == 0 {
-		x.q = sv.waterQ(c.machOrSpeed, c.pa, x.t0)
+		x.q = sv.waterQAt(c, x.t0)
 	}
 	x.v = c.machOrSpeed
 	x.ok = true
