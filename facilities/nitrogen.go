@@ -278,8 +278,32 @@ type nitrogenStatic struct {
 // speed > 0, along the real-gas isentrope (nitrogenExpand); an error names the field
 // when the expansion leaves the gas.
 func nitrogenFreeStream(t0, p0, mach, speed float64) (nitrogenStatic, error) {
+	g := NitrogenStagnation(p0, t0)
+	return nitrogenFreeStreamFrom(&g, mach, speed)
+}
+
+// Stagnation is nitrogen's stagnation state at (P0 in Pa, T0 in K): its
+// Peng–Robinson density and properties, the start of every expansion from
+// there. A planner that expands the same stagnation state to several Mach
+// numbers computes it once (NitrogenStagnation) and passes it to StateFrom
+// and LocalCondensationMarginFrom, which give what State and
+// LocalCondensationMargin give, to the bit.
+type Stagnation struct {
+	P0, T0 float64
+	rho0   float64
+	n0     n2Props
+}
+
+// NitrogenStagnation returns nitrogen's stagnation state at p0 in Pa and t0 in
+// K (Stagnation).
+func NitrogenStagnation(p0, t0 float64) Stagnation {
 	rho0 := nitrogenDensity(t0, p0)
-	n0 := nitrogenAt(t0, rho0)
+	return Stagnation{P0: p0, T0: t0, rho0: rho0, n0: nitrogenAt(t0, rho0)}
+}
+
+// nitrogenFreeStreamFrom is nitrogenFreeStream from the stagnation state g.
+func nitrogenFreeStreamFrom(g *Stagnation, mach, speed float64) (nitrogenStatic, error) {
+	t0, p0, rho0, n0 := g.T0, g.P0, g.rho0, g.n0
 	if mach == 0 && speed == 0 {
 		return nitrogenStatic{T: t0, p: p0, rho: rho0, a: math.Sqrt(n0.a2)}, nil
 	}

@@ -215,3 +215,31 @@ func TestNitrogenFloorSlopes(t *testing.T) {
 	air := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumAir}}
 	assert.False(t, air.NitrogenFloorSlopes(1e5, 200, 0.5, nil).OK)
 }
+
+// TestStateFromStagnation: a State from a stagnation state computed before
+// (StateFrom) is State's, to the bit, at Mach numbers and speeds from the
+// same (p0, T0), and so is the local condensation margin
+// (LocalCondensationMarginFrom); a stagnation state at another (p0, T0) is
+// not used, and an unusable setting gives State's error.
+func TestStateFromStagnation(t *testing.T) {
+	t.Parallel()
+	f := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumNitrogen}}
+	for _, p0 := range []float64{1.3e5, 2.5e5, 3.9e5} {
+		for _, t0 := range []float64{100, 112, 300} {
+			g := facilities.NitrogenStagnation(p0, t0)
+			assert.Equal(t, f.LocalCondensationMargin(p0, t0), f.LocalCondensationMarginFrom(&g), "%g Pa, %g K", p0, t0)
+			for _, s := range []facilities.Setting{{Mach: 0.2}, {Mach: 0.78}, {Mach: 0.92}, {Speed: 150}} {
+				s.StagnationPressure, s.StagnationTemperature = p0, t0
+				want, wantErr := f.State(s)
+				got, err := f.StateFrom(&g, s)
+				assert.Equal(t, want, got, "%+v", s)
+				assert.Equal(t, wantErr, err, "%+v", s)
+			}
+			other := facilities.NitrogenStagnation(p0*1.1, t0)
+			s := facilities.Setting{Mach: 0.5, StagnationPressure: p0, StagnationTemperature: t0}
+			want, _ := f.State(s)
+			got, _ := f.StateFrom(&other, s)
+			assert.Equal(t, want, got, "another stagnation state is not used")
+		}
+	}
+}

@@ -51,6 +51,23 @@ const settingMessage = "test-section setting is invalid"
 // the dynamic pressure. The facility's own ranges are not checked here: see
 // Violations. State does not allocate when it succeeds.
 func (f *Facility) State(s Setting) (State, error) {
+	return f.state(s, nil)
+}
+
+// StateFrom is State for a setting whose stagnation state g (at s's
+// stagnation pressure and temperature) was computed before
+// (NitrogenStagnation): the same State, to the bit, without computing the
+// stagnation state again. g is used only for nitrogen at g's own p0 and T0;
+// otherwise (or with g nil) StateFrom is State.
+func (f *Facility) StateFrom(g *Stagnation, s Setting) (State, error) {
+	if g != nil && (f.Medium.Kind != MediumNitrogen || g.P0 != s.StagnationPressure || g.T0 != s.StagnationTemperature) {
+		g = nil
+	}
+	return f.state(s, g)
+}
+
+// state is State, from the nitrogen stagnation state g when it is not nil.
+func (f *Facility) state(s Setting, g *Stagnation) (State, error) {
 	if f.Medium.IsLiquid() {
 		return f.waterState(s)
 	}
@@ -80,7 +97,7 @@ func (f *Facility) State(s Setting) (State, error) {
 
 	t0, p0 := s.StagnationTemperature, s.StagnationPressure
 	if m.Kind == MediumNitrogen {
-		return f.nitrogenState(s)
+		return f.nitrogenState(s, g)
 	}
 	mach := s.Mach
 	if mach == 0 && s.Speed > 0 {
@@ -134,7 +151,7 @@ func speedError(speed, gamma, r, t0 float64) error {
 // the speed of sound is that equation's own (nitrogenFreeStream); a speed setting
 // is solved for directly (h = h0 − V²/2) and gives M = V/a. ρ is the Peng–Robinson
 // density, μ the Lemmon & Jacobsen (2004) viscosity at it.
-func (f *Facility) nitrogenState(s Setting) (State, error) {
+func (f *Facility) nitrogenState(s Setting, g *Stagnation) (State, error) {
 	m := f.Medium
 	t0, p0 := s.StagnationTemperature, s.StagnationPressure
 	gamma, r := m.Gamma(), m.GasConstant()
@@ -144,7 +161,13 @@ func (f *Facility) nitrogenState(s Setting) (State, error) {
 			return State{}, speedError(s.Speed, gamma, r, t0)
 		}
 	}
-	fs, err := nitrogenFreeStream(t0, p0, s.Mach, s.Speed)
+	var fs nitrogenStatic
+	var err error
+	if g != nil {
+		fs, err = nitrogenFreeStreamFrom(g, s.Mach, s.Speed)
+	} else {
+		fs, err = nitrogenFreeStream(t0, p0, s.Mach, s.Speed)
+	}
 	if err != nil {
 		return State{}, err
 	}
@@ -347,6 +370,20 @@ func (f *Facility) LocalCondensationMargin(p0, t0 float64) float64 {
 		return math.Inf(1)
 	}
 	return f.localMargin(margin, p0, t0)
+}
+
+// LocalCondensationMarginFrom is LocalCondensationMargin at the stagnation
+// state g computed before (NitrogenStagnation): the same margin, to the bit.
+// For another medium it is LocalCondensationMargin at g's P0 and T0.
+func (f *Facility) LocalCondensationMarginFrom(g *Stagnation) float64 {
+	if f.Medium.Kind != MediumNitrogen || !(g.T0 > 0 && g.P0 > 0) {
+		return f.LocalCondensationMargin(g.P0, g.T0)
+	}
+	loc, err := nitrogenFreeStreamFrom(g, f.condensationPeakMach(), 0)
+	if err != nil {
+		return -1
+	}
+	return nitrogenMargin(f.Medium, loc.T, loc.p)
 }
 
 // LocalCondensationMarginSlope returns LocalCondensationMargin at (p0, t0) and

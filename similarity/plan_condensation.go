@@ -41,7 +41,12 @@ func (sv *solver) localMargin(p0, t0 float64) float64 {
 			return e.m
 		}
 	}
-	m := sv.f.LocalCondensationMargin(p0, t0)
+	var m float64
+	if sv.stags != nil && t0 > 0 && p0 > 0 {
+		m = sv.f.LocalCondensationMarginFrom(sv.stags.at(p0, t0))
+	} else {
+		m = sv.f.LocalCondensationMargin(p0, t0)
+	}
 	cc.local[cc.next] = localPoint{p0, t0, m}
 	cc.next = (cc.next + 1) % len(cc.local)
 	return m

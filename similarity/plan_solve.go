@@ -236,6 +236,10 @@ type solver struct {
 
 	// memo holds the states computed last (state; real-gas nitrogen only).
 	memo *stateMemos
+	// stags holds the stagnation states computed last (real-gas nitrogen
+	// only), shared with the relaxed copies: a stagnation state does not
+	// depend on any limit.
+	stags *stagnations
 	// cond holds the condensation line of the local expansion found so far
 	// (nitrogen; nil otherwise): it does not depend on the Mach number, so
 	// every set-up, and every re-solve that keeps the T0 range and the
@@ -297,6 +301,7 @@ func newSolver(p *Problem) (*solver, error) {
 		sv.cond = newCondLineCache()
 		sv.setups = make(map[float64]machSetup, 64)
 		sv.memo = &stateMemos{}
+		sv.stags = &stagnations{}
 	}
 	if sv.liquid {
 		sv.water = &waterMemo{}
@@ -716,7 +721,33 @@ func (sv *solver) stateNow(machOrSpeed, p0, t0 float64) (facilities.State, error
 	} else {
 		set.Mach = machOrSpeed
 	}
+	if sv.stags != nil {
+		return sv.f.StateFrom(sv.stags.at(p0, t0), set)
+	}
 	return sv.f.State(set)
+}
+
+// stagnations are the nitrogen stagnation states a solver computed last, by
+// (p0, T0): every set-up expands the same few (p0 min and max at the ends of
+// the T0 range and on its floor) to its Mach number, and the local expansion
+// of a setting starts where its free stream does.
+type stagnations struct {
+	e    [8]facilities.Stagnation
+	next int
+}
+
+// at returns the stagnation state at (p0, t0), computed once while it is
+// among the last ones kept.
+func (ss *stagnations) at(p0, t0 float64) *facilities.Stagnation {
+	for i := range ss.e {
+		if g := &ss.e[i]; g.P0 == p0 && g.T0 == t0 && p0 > 0 {
+			return g
+		}
+	}
+	g := &ss.e[ss.next]
+	*g = facilities.NitrogenStagnation(p0, t0)
+	ss.next = (ss.next + 1) % len(ss.e)
+	return g
 }
 
 // floorMargin returns how far the setting (p0, T0) at c's Mach number is above the
