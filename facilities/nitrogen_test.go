@@ -243,3 +243,33 @@ func TestStateFromStagnation(t *testing.T) {
 		}
 	}
 }
+
+// TestFreeStreamMarginAboveLocal: along a nitrogen isentrope T/T_sat(p) falls
+// as the gas expands, so the free stream at a Mach number up to the local
+// peak Mach number is never nearer saturation than the local expansion: its
+// margin (FreeStreamCondensationMargin) is at least LocalCondensationMargin,
+// and where the local margin is 0 or more the free stream is usable (State
+// gives no error), over 0.5 to 5 bar, 90 to 300 K and Mach 0.05 up to the
+// peak (1.4 and 1.1). The planner skips the free stream's state there
+// (similarity's warmMargin).
+func TestFreeStreamMarginAboveLocal(t *testing.T) {
+	t.Parallel()
+	for _, peak := range []float64{1.4, 1.1} {
+		f := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumNitrogen}, CondensationPeakMach: &peak}
+		for _, p0 := range []float64{0.5e5, 1.3e5, 2.5e5, 3.9e5, 5e5} {
+			for t0 := 90.0; t0 <= 300; t0 += 5 {
+				local := f.LocalCondensationMargin(p0, t0)
+				for m := 0.05; m <= peak; m += 0.05 {
+					st, err := f.State(facilities.Setting{Mach: m, StagnationPressure: p0, StagnationTemperature: t0})
+					if local >= 0 {
+						require.NoError(t, err, "M %g, %g Pa, %g K (peak %g)", m, p0, t0, peak)
+					}
+					if err != nil {
+						continue
+					}
+					assert.GreaterOrEqual(t, f.FreeStreamCondensationMargin(st), local, "M %g, %g Pa, %g K (peak %g)", m, p0, t0, peak)
+				}
+			}
+		}
+	}
+}

@@ -290,6 +290,11 @@ func LiquidState(v, p0, t, rho, mu float64) (State, bool) {
 
 // condensationPeakMach returns the facility's local peak Mach number for the
 // condensation check, DefaultCondensationPeakMach when it gives none.
+// CondensationPeak returns the local peak Mach number over the model that
+// the condensation check assumes: CondensationPeakMach, or
+// DefaultCondensationPeakMach when nil.
+func (f *Facility) CondensationPeak() float64 { return f.condensationPeakMach() }
+
 func (f *Facility) condensationPeakMach() float64 {
 	if f.CondensationPeakMach != nil {
 		return *f.CondensationPeakMach

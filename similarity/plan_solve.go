@@ -769,6 +769,25 @@ func (sv *solver) floorMargin(c *machSetup, p0, t0 float64) (float64, string) {
 	return m, name
 }
 
+// warmMargin is floorMargin where only its sign is read (is the warmest T0
+// usable at p0?), without the free stream's state where the local expansion
+// decides: with no speed range, at a test Mach number up to the local peak
+// Mach number, and a local margin of at least the allowed minimum and 0. The
+// free stream then lies on the same isentrope short of the local peak, and
+// along a nitrogen isentrope T/T_sat(p) falls as the gas expands (d ln T/d ln p
+// at constant entropy is about 0.28, d ln T_sat/d ln p = T_sat/B at most 0.18
+// below the critical point), so its margin is at least the local one: usable
+// (TestFreeStreamMarginAboveLocal). It returns the local margin less the
+// minimum there, else floorMargin's.
+func (sv *solver) warmMargin(c *machSetup, p0, t0 float64) (float64, string) {
+	if c.vmin == 0 && sv.f.Medium.Kind == facilities.MediumNitrogen && c.machOrSpeed <= sv.f.CondensationPeak() {
+		if m := sv.localMargin(p0, t0); m >= sv.condMin && m >= 0 {
+			return m - sv.condMin, facilities.ConstraintCondensation
+		}
+	}
+	return sv.floorMargin(c, p0, t0)
+}
+
 // loadQ returns the load limit's dynamic-pressure ceiling at scale s and state st.
 func (sv *solver) loadQ(s float64, st facilities.State) float64 {
 	if sv.load == nil {
@@ -994,7 +1013,7 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	}
 	if below(pa, ta) || below(pb, ta) {
 		c.cond = true
-		if m, name := sv.floorMargin(&c, pb, tb); m < 0 {
+		if m, name := sv.warmMargin(&c, pb, tb); m < 0 {
 			// Above some p0 even the warmest usable T0 condenses (or is too slow).
 			c.pTop = sv.rootHi(func(p float64) float64 { m, _ := sv.floorMargin(&c, p, tb); return m }, pa, pb, false)
 			c.capTop = name
