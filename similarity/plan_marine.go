@@ -148,8 +148,15 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	ta, tb := c.ta, c.tb
 	capHi := c.capWaterTop
-	// q and Re/m at temperature t, as waterQ and waterR give them.
+	// q and Re/m at temperature t, as waterQ and waterR give them; q at the
+	// ends of the usable T0 range from the set-up, which computed their
+	// states (waterQAt: the same q, TestWaterStateMatchesFacility).
 	wq := func(t float64) float64 {
+		for i, ti := range c.qWaterT {
+			if ti == t && ti != 0 {
+				return c.qWater[i]
+			}
+		}
 		rho, mu := waterDensityViscosity(t)
 		q, _, ok := sv.waterState(c.machOrSpeed, c.pa, t, rho, mu)
 		if !ok {
