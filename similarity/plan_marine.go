@@ -218,6 +218,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				y.ps = min(max(wp.pv+sf*q, lo), hi)
 				y.sig = (y.ps - wp.pv) / q
 				y.band = sv.bandDepth(lo, hi, wp.pv, q)
+				y.bandLo = (hi-wp.pv)/q - (sf - sv.obj.cavTol)
 				y.q, y.r, y.p0 = q, r, y.ps+q
 			}
 		}
@@ -373,7 +374,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		best.capHi = capHi
 	}
 	if top := grid[len(grid)-1]; top.ok {
-		best.band, best.bandOK = top.band, true
+		best.band, best.bandLo, best.bandOK = top.band, top.bandLo, true
 	}
 	return best
 }

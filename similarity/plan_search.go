@@ -211,6 +211,37 @@ func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol
 			return best
 		}
 	}
+	if edge {
+		// The warmest water's σ at the highest static pressure reaches the
+		// band's lower end between the grid's best and a neighbour: where
+		// that speed's candidate is the warmest water in the band, the
+		// optimum is there (speedEdge); otherwise the search goes on.
+		for _, j := range [...]int{ibest + 1, ibest - 1} {
+			if j < 0 || j >= n {
+				continue
+			}
+			a, b := ibest, j
+			if xs[a] > xs[b] {
+				a, b = b, a
+			}
+			if !ks[a].bandOK || !ks[b].bandOK || !(ks[a].bandLo >= 0) || !(ks[b].bandLo < 0) {
+				continue
+			}
+			e, g := speedRoot(eval, xs[a], ks[a], xs[b], ks[b], eps, func(f candidate) (bool, float64) {
+				if !f.bandOK {
+					return false, math.NaN()
+				}
+				return f.bandLo >= 0, f.bandLo
+			})
+			if e.k.less(best.k) {
+				best = e
+			}
+			if g.top {
+				return best
+			}
+			break
+		}
+	}
 	// At an end of the interval, one step inside tells: for a unimodal key, no
 	// improvement there means the end is the optimum.
 	start, fStart := xs[ibest], best
@@ -731,9 +762,24 @@ func sortBindings(bs []Binding) {
 // (as cavEdge), a halving where band is unknown, disagrees in sign with the
 // candidate's side, or three steps did not halve the bracket.
 func speedEdge(eval func(float64) candidate, xg float64, fg candidate, xb float64, fb candidate, eps float64) candidate {
+	best, _ := speedRoot(eval, xg, fg, xb, fb, eps, func(f candidate) (bool, float64) {
+		m := math.NaN()
+		if f.bandOK {
+			m = f.band
+		}
+		return f.top, m
+	})
+	return best
+}
+
+// speedRoot is speedEdge on the side and the margin side gives of each
+// candidate (good: the margin is ≥ 0 there, NaN where unknown), and returns
+// the best candidate seen and the bracket's last good end.
+func speedRoot(eval func(float64) candidate, xg float64, fg candidate, xb float64, fb candidate, eps float64, side func(candidate) (bool, float64)) (candidate, candidate) {
 	best := fg
-	mg, mb := fg.band, fb.band
-	side, w0 := 0, math.Abs(xg-xb)
+	_, mg := side(fg)
+	_, mb := side(fb)
+	last, w0 := 0, math.Abs(xg-xb)
 	for j := 1; j <= 100 && math.Abs(xg-xb) > eps; j++ {
 		x := 0.5 * (xg + xb)
 		if j%4 == 0 && math.Abs(xg-xb) > 0.5*w0 {
@@ -749,32 +795,29 @@ func speedEdge(eval func(float64) candidate, xg float64, fg candidate, xb float6
 		if f.ok && f.k.less(best.k) {
 			best = f
 		}
-		m := math.NaN()
-		if f.bandOK {
-			m = f.band
-		}
-		if f.top {
+		good, m := side(f)
+		if good {
 			if !(m >= 0) {
 				m = math.NaN()
 			}
-			xg, mg = x, m
-			if side == 1 {
+			xg, fg, mg = x, f, m
+			if last == 1 {
 				mb *= 0.5
 			}
-			side = 1
+			last = 1
 		} else {
 			if !(m < 0) {
 				m = math.NaN()
 			}
 			xb, mb = x, m
-			if side == -1 {
+			if last == -1 {
 				mg *= 0.5
 			}
-			side = -1
+			last = -1
 		}
 		if j%4 == 0 {
 			w0 = math.Abs(xg - xb)
 		}
 	}
-	return best
+	return best, fg
 }

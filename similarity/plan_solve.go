@@ -155,6 +155,11 @@ type candidate struct {
 	top    bool
 	band   float64
 	bandOK bool
+	// bandLo is σ at the highest static pressure at the warmest usable water
+	// less the band's lower end (known with band): it falls as the speed
+	// rises, and the speed where it reaches 0 ends the warmest water's stretch
+	// in the band.
+	bandLo float64
 }
 
 // solver holds one planning problem in the form the search needs. Relaxed copies
