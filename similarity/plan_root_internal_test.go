@@ -119,3 +119,36 @@ func TestCeilingJoint(t *testing.T) {
 	}
 	assert.Greater(t, used, 10)
 }
+
+// TestSolveRWarmNearLowest: in nitrogen, a target Re/m a rounding above the
+// lowest (at p0 min and T0 max) gives T0 max without a root (solveR), and the
+// root that rootHi finds there (the Illinois rule, run to its end) lies within
+// 1e-13 relative of it; any other target below the set-up's Re/m at p0 min on
+// the floor is a root found by secant steps with Re/m there at most the
+// target, within 1e-13 relative of rootHi's.
+func TestSolveRWarmNearLowest(t *testing.T) {
+	t.Parallel()
+	f, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	sv := &solver{f: &f, loadScale: 1, qmax: math.Inf(1), remax: math.Inf(1),
+		cond: newCondLineCache(), memo: &stateMemos{}, stags: &stagnations{}}
+	for _, m := range []float64{0.3, 0.6, 0.78, 0.92} {
+		c := sv.prepareNitrogen(m)
+		require.True(t, c.ok && c.rloOK, "Mach %g", m)
+		rAt := func(x float64) float64 {
+			st, err := sv.state(m, c.pa, x)
+			require.NoError(t, err)
+			return st.ReynoldsPerMeter
+		}
+		for _, r := range []float64{c.rlo * (1 + 5e-15), c.rlo * 1.2, 0.5 * (c.rlo + c.ra)} {
+			p0, t0 := sv.solveR(&c, c.facilityTop, r)
+			assert.Equal(t, c.pa, p0)
+			want := sv.rootHi(func(x float64) float64 { return r - rAt(x) }, sv.tfloor(&c, c.pa), c.tb, true)
+			assert.InEpsilon(t, want, t0, 1e-13, "Mach %g, Re/m %g", m, r)
+			assert.LessOrEqual(t, rAt(t0), r, "Mach %g, Re/m %g", m, r)
+			if r < c.rlo*(1+1e-14) {
+				assert.Equal(t, c.tb, t0, "Mach %g", m)
+			}
+		}
+	}
+}

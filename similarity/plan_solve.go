@@ -1205,12 +1205,22 @@ func (sv *solver) solveR(c *machSetup, tp topSetting, r float64) (p0, t0 float64
 		return st.ReynoldsPerMeter
 	}
 	warm := func(lo float64) float64 {
-		if c.rloOK && r == c.rlo {
-			// The lowest Re/m is the warmest T0's own: no root to find (the
-			// root finder would only halve its bracket down to tb, where g is 0).
+		if c.rloOK && (r == c.rlo || !c.linear && r > c.rlo && r <= c.rlo*(1+1e-14)) {
+			// The lowest Re/m is the warmest T0's own, or (real-gas nitrogen,
+			// whose roots cost the most) a rounding above it (a model shrunk to
+			// meet the flight's Reynolds number there): no root to find. Re/m falls at least as T0^-0.5 in a gas (ρV ∝
+			// T^-0.5 at a fixed Mach number and p0, μ rising), so the crossing
+			// lies within 2e-14 relative of tb, and g ≥ 0 at tb; the root
+			// finder would only narrow its bracket down to tb.
 			return c.tb
 		}
-		return sv.rootHi(func(t float64) float64 { return r - rAt(c.pa, t) }, lo, c.tb, true)
+		g := func(t float64) float64 { return r - rAt(c.pa, t) }
+		if !c.linear {
+			// Real-gas nitrogen: Re/m is smooth in T0, and secant steps
+			// take fewer of its costly states than the Illinois rule.
+			return sv.rootHiSmooth(g, lo, c.tb, true)
+		}
+		return sv.rootHi(g, lo, c.tb, true)
 	}
 	if tp.edge {
 		return c.pa, warm(tp.t)
