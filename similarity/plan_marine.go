@@ -349,8 +349,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// are usable: no refinement then.
 	settled := sv.cavThenReynolds() && zero(best) && grid[0].ok && grid[len(grid)-1].ok
 	if lo, hi := max(0, float64(ibest-1)), min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta && !settled {
-		g := sv.golden(func(t float64) candidate { return eval(t) },
-			ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1), 3, 1e-12)
+		g := sv.gridMin(eval, ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1), 3, 1e-12, sv.obj.weighted, false, false)
 		consider(g)
 	}
 	if !best.ok {
