@@ -1003,7 +1003,9 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		return c
 	}
 	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
-	if sv.f.CondensationMargin(stB) < sv.condMin {
+	// CondensationMargin(stB), with the local expansion (the same at every
+	// Mach number) kept by localMargin instead of computed again.
+	if math.Min(sv.f.FreeStreamCondensationMargin(stB), sv.localMargin(pa, tb)) < sv.condMin {
 		c.fail = facilities.ConstraintCondensation
 		return c
 	}
