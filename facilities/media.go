@@ -290,6 +290,24 @@ func WaterDensity(T float64) float64 {
 	return num / (1 + 16.879850e-3*t)
 }
 
+// WaterDensitySlope returns dρ/dT in kg/m³/K of WaterDensity at temperature T
+// in K, Kell's equation differentiated: with ρ = N(t)/D(t), D = 1 + 16.879850e-3·t,
+//
+//	dρ/dT = (N′(t)·D − N(t)·16.879850e-3) / D²
+//	N′ = 16.945176 − 2·7.9870401e-3·t − 3·46.170461e-6·t² + 4·105.56302e-9·t³
+//	     − 5·280.54253e-12·t⁴
+//
+// It is positive below water's density maximum near 4 °C and negative above it,
+// and falls with T over the whole 0–150 °C (ρ is concave there;
+// TestWaterSlopesMonotone).
+func WaterDensitySlope(T float64) float64 {
+	t := T - 273.15
+	num := 999.83952 + t*(16.945176+t*(-7.9870401e-3+t*(-46.170461e-6+t*(105.56302e-9+t*(-280.54253e-12)))))
+	dnum := 16.945176 + t*(2*-7.9870401e-3+t*(3*-46.170461e-6+t*(4*105.56302e-9+t*(5*-280.54253e-12))))
+	den := 1 + 16.879850e-3*t
+	return (dnum*den - num*16.879850e-3) / (den * den)
+}
+
 // IAPWS 2008 viscosity reference values: T* = 647.096 K, ρ* = 322 kg/m³,
 // μ* = 1e-6 Pa·s.
 const (

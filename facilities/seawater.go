@@ -116,6 +116,29 @@ func WaterVapourPressure(T float64) float64 {
 	return 1e6 * x * x
 }
 
+// WaterVapourPressureSlope returns dp/dT in Pa/K of WaterVapourPressure at
+// temperature T in K: IAPWS-IF97's saturation equation (IAPWS 2007, eq. 29)
+// A·β² + B·β + C = 0 in β = p^¼ (p in MPa), differentiated implicitly, with A, B,
+// C and θ as in WaterVapourPressure, β = (−B − √(B² − 4AC))/(2A) its root:
+//
+//	dβ/dθ = (A′·β² + B′·β + C′)/√(B² − 4AC), A′ = 2θ + n1, B′ = 2n3·θ + n4, C′ = 2n6·θ + n7
+//	dθ/dT = 1 − n9/(T − n10)², dp/dT = 4β³·dβ/dθ·dθ/dT MPa/K
+//
+// It is positive and rises with T over 0–150 °C (the line is convex there;
+// TestWaterSlopesMonotone).
+func WaterVapourPressureSlope(T float64) float64 {
+	n := &if97N
+	th := T + n[8]/(T-n[9])
+	a := th*th + n[0]*th + n[1]
+	b := n[2]*th*th + n[3]*th + n[4]
+	c := n[5]*th*th + n[6]*th + n[7]
+	r := math.Sqrt(b*b - 4*a*c)
+	beta := 2 * c / (-b + r)
+	dBeta := ((2*th+n[0])*beta*beta + (2*n[2]*th+n[3])*beta + 2*n[5]*th + n[6]) / r
+	dTh := 1 - n[8]/((T-n[9])*(T-n[9]))
+	return 4e6 * beta * beta * beta * dBeta * dTh
+}
+
 // SeawaterVapourPressure returns the vapour pressure of sea water in Pa at
 // temperature T in K and absolute salinity sa in g/kg: the pure-water line
 // (WaterVapourPressure) lowered by the dissolved salts as Sharqawy, Lienhard &

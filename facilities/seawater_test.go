@@ -1,6 +1,7 @@
 package facilities_test
 
 import (
+	"math"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -131,4 +132,41 @@ func TestWaterVapourPressure(t *testing.T) {
 	// Sea water lowers the vapour pressure by 1/(1 + 0.57357·S/(1000 − S)):
 	// 35 g/kg gives 1/1.020803 = 0.979621 (worked by hand).
 	assert.InEpsilon(t, 0.979621, facilities.SeawaterVapourPressure(291.15, 35)/facilities.WaterVapourPressure(291.15), 1e-5)
+}
+
+// TestWaterSlopes checks WaterDensitySlope and WaterVapourPressureSlope against
+// central differences of WaterDensity and WaterVapourPressure (step 1e-3 K: the
+// truncation error, h²/6 of the third derivative, is below 1e-8 relative).
+func TestWaterSlopes(t *testing.T) {
+	t.Parallel()
+	const h = 1e-3
+	for _, T := range []float64{273.15, 277.13, 280, 288.15, 293.15, 303.15, 313.15, 333.15, 373.15, 423.15} {
+		dRho := (facilities.WaterDensity(T+h) - facilities.WaterDensity(T-h)) / (2 * h)
+		assert.InDelta(t, dRho, facilities.WaterDensitySlope(T), 1e-7, "dρ/dT at %g K", T)
+		dPv := (facilities.WaterVapourPressure(T+h) - facilities.WaterVapourPressure(T-h)) / (2 * h)
+		assert.InEpsilon(t, dPv, facilities.WaterVapourPressureSlope(T), 1e-7, "dp_v/dT at %g K", T)
+	}
+	// Near the normal boiling point (373.124 K) the saturation line rises by about
+	// 3.6 kPa/K (steam tables, from memory).
+	assert.InEpsilon(t, 3.6e3, facilities.WaterVapourPressureSlope(373.124), 0.02)
+}
+
+// TestWaterSlopesMonotone holds what the planner's cavitation search assumes
+// of the water model over its whole range, 0–150 °C (similarity, the
+// certificate of an end temperature): the density's slope falls with the
+// temperature (ρ concave) and the vapour pressure's slope is positive and
+// rises (p_v increasing and convex), checked every 0.01 K.
+func TestWaterSlopesMonotone(t *testing.T) {
+	t.Parallel()
+	prevRho, prevPv := math.Inf(1), 0.0
+	for i := 0; ; i++ {
+		T := facilities.WaterMinTemperature + 0.01*float64(i)
+		if T > facilities.WaterMaxTemperature {
+			break
+		}
+		dRho, dPv := facilities.WaterDensitySlope(T), facilities.WaterVapourPressureSlope(T)
+		require.Less(t, dRho, prevRho, "dρ/dT at %g K", T)
+		require.Greater(t, dPv, prevPv, "dp_v/dT at %g K", T)
+		prevRho, prevPv = dRho, dPv
+	}
 }

@@ -90,6 +90,39 @@ func (sv *solver) waterState(machOrSpeed, p0, t, rho, mu float64) (q, r float64,
 type waterGrid struct {
 	ta, tb float64
 	wp     [cavGrid]waterProps
+	// dRho and dPv are the slopes dρ/dT in kg/m³/K and dp_v/dT in Pa/K there
+	// (facilities.WaterDensitySlope, facilities.WaterVapourPressureSlope).
+	dRho, dPv [cavGrid]float64
+}
+
+// falls reports whether (k − p_v(T))/ρ(T), k a pressure in Pa, falls strictly
+// with the temperature T over the grid's whole range, shown cell by cell from
+// the slopes at the cell's ends. Its slope has the sign of
+// −(p_v′·ρ + (k − p_v)·ρ′); over a cell [T1, T2] with k > p_v(T2), p_v′ ≥
+// p_v′(T1) > 0 (p_v rises and is convex), ρ ≥ min(ρ(T1), ρ(T2)) and ρ′ ≥
+// ρ′(T2) (ρ is concave), k − p_v ≤ k − p_v(T1), so
+//
+//	p_v′·ρ + (k − p_v)·ρ′ ≥ p_v′(T1)·min(ρ(T1), ρ(T2)) + (k − p_v(T1))·min(ρ′(T2), 0)
+//
+// and where that is positive in every cell the ratio falls over the range
+// (facilities.TestWaterSlopesMonotone holds the slopes' monotony over the
+// water model's range, outside which falls reports false). Each cell's bound
+// keeps a relative margin of 1e-9 for its own rounding.
+func (g *waterGrid) falls(k float64) bool {
+	if !(g.ta >= facilities.WaterMinTemperature && g.tb <= facilities.WaterMaxTemperature) {
+		return false
+	}
+	for i := 0; i+1 < cavGrid; i++ {
+		a, b := &g.wp[i], &g.wp[i+1]
+		if !(k > b.pv) {
+			return false
+		}
+		up := g.dPv[i] * min(a.rho, b.rho)
+		if !(up+(k-a.pv)*min(g.dRho[i+1], 0) > 1e-9*up) {
+			return false
+		}
+	}
+	return true
 }
 
 // waterGrids are the temperature grids atWaterCav used last (solver.grids),
@@ -114,7 +147,9 @@ func (gs *waterGrids) grid(ta, tb float64) *waterGrid {
 	gs.next = (gs.next + 1) % len(gs.g)
 	g.ta, g.tb = ta, tb
 	for i := range g.wp {
-		g.wp[i] = waterPropsAt(cavGridT(ta, tb, i))
+		t := cavGridT(ta, tb, i)
+		g.wp[i] = waterPropsAt(t)
+		g.dRho[i], g.dPv[i] = facilities.WaterDensitySlope(t), facilities.WaterVapourPressureSlope(t)
 	}
 	return g
 }
@@ -244,6 +279,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		return y, room
 	}
 	eval := func(t float64) candidate { y, _ := evalAt(t, waterPropsAt(t)); return y }
+	// top is the candidate at the grid's warmest temperature, once known.
+	var top candidate
+	haveTop := false
 	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
 	// seen are Re/m and the distance outside the cavitation band of every
 	// usable candidate considered.
@@ -269,17 +307,36 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		m := sv.water
 		i := m.slot(tb)
 		wp := waterProps{rho: m.rho[i], mu: m.mu[i], pv: m.vapourPressure(tb)}
-		if y, _ := evalAt(tb, wp); y.ok && sv.cavDistance(y.sig) == 0 &&
+		y, _ := evalAt(tb, wp)
+		if y.ok && sv.cavDistance(y.sig) == 0 &&
 			y.r*s*sv.L <= sv.fl.Reynolds && s*sv.L*y.r/sv.fl.Reynolds <= 1 {
 			y.rlo, y.rhi, y.capHi = y.r, y.r, capHi
 			y.top, y.bandOK = true, true
 			return y
 		}
+		// The same state as the grid's warmest, where that is tb itself.
+		top, haveTop = y, cavGridT(ta, tb, cavGrid-1) == tb
 	}
 	if sv.grids == nil {
 		sv.grids = &waterGrids{}
 	}
 	wg := sv.grids.grid(ta, tb)
+	if sv.cavFirst() && !sv.feasOnly {
+		if !haveTop {
+			top, _ = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
+			haveTop = true
+		}
+		if y, ok := sv.cavEnd(evalAt, wg, top); ok {
+			y.rlo, y.rhi = y.r, y.r
+			if y.t0 >= tb*(1-limitSlack) {
+				y.capHi = capHi
+			}
+			if top.ok {
+				y.band, y.bandLo, y.bandOK = top.band, top.bandLo, true
+			}
+			return y
+		}
+	}
 	var grid [cavGrid]candidate
 	var rooms [cavGrid]float64
 	ibest := -1
@@ -376,6 +433,38 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		best.band, best.bandLo, best.bandOK = top.band, top.bandLo, true
 	}
 	return best
+}
+
+// cavEnd returns, with the cavitation number first in a priority, the
+// candidate at the coldest or the warmest water of the grid g where the
+// cavitation band lies out of reach over the whole range and that end comes
+// nearest it, and true; false where that is not shown. evalAt is atWaterCav's
+// candidate at one temperature; top is its candidate at g's warmest.
+//
+// At each temperature T the chosen σ lies between σ_lo = (lo − p_v)/q and
+// σ_hi = (hi − p_v)/q, the static pressures lo and hi the facility can hold
+// (staticRange), and q = ½ρV². With k the highest pressure (p0 max, or the
+// static pressure's maximum where the facility holds it), σ_hi =
+// 2(k − p_v)/(ρV²) − c (c = 1 with a stagnation-pressure range, 0 otherwise),
+// and likewise σ_lo ≥ 2(k′ − p_v)/(ρV²) − c with k′ the lowest: both fall with
+// T where (k − p_v)/ρ does (waterGrid.falls), at every speed. Then where σ at
+// the coldest water, σ_hi there, lies below the band, every warmer σ lies
+// lower still, farther from it; and where σ at the warmest, σ_lo there, lies
+// above the band, every colder σ lies higher: that end is strictly the best on
+// the first level, whatever the later levels.
+func (sv *solver) cavEnd(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate) (candidate, bool) {
+	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
+	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
+	if sv.held {
+		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
+	}
+	if top.ok && top.sig > sf+tol && g.falls(lo) {
+		return top, true
+	}
+	if cold, _ := evalAt(cavGridT(g.ta, g.tb, 0), g.wp[0]); cold.ok && cold.sig < sf-tol && g.falls(hi) {
+		return cold, true
+	}
+	return candidate{}, false
 }
 
 // cavEdge narrows the bracket [good, bad] of temperatures (either order) across
