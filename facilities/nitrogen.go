@@ -287,11 +287,38 @@ func nitrogenFreeStream(t0, p0, mach, speed float64) (nitrogenStatic, error) {
 // there. A planner that expands the same stagnation state to several Mach
 // numbers computes it once (NitrogenStagnation) and passes it to StateFrom
 // and LocalCondensationMarginFrom, which give what State and
-// LocalCondensationMargin give, to the bit.
+// LocalCondensationMargin give, to the bit. One from FloorSlopes.StagnationNear
+// also holds starts for its expansions near a state found before: those give
+// the same figures to the expansion's convergence (about 1e-16 relative), not
+// to the bit.
 type Stagnation struct {
 	P0, T0 float64
 	rho0   float64
 	n0     n2Props
+	// starts are static states (T, ρ) near those of the expansions to their
+	// Mach numbers (StagnationNear), from which nitrogenNewton starts instead
+	// of nitrogenExpand's start; T 0 where there is none.
+	starts [2]expansionStart
+}
+
+// expansionStart is a start of the expansion to Mach number mach: the static
+// temperature T in K and density rho in kg/m³ of a nearby solution.
+type expansionStart struct{ mach, T, rho float64 }
+
+// expand is nitrogenExpand from g, or, to the Mach number of one of g's
+// starts (speed 0), nitrogenNewton from that start (nitrogenExpand should it
+// fail).
+func (g *Stagnation) expand(mach, speed float64) (T, rho float64, n n2Props, ok bool) {
+	if speed == 0 {
+		for _, st := range g.starts {
+			if st.T > 0 && st.mach == mach {
+				if T, rho, n, ok = nitrogenNewton(g.n0, mach, 0, st.T, st.rho); ok {
+					return T, rho, n, ok
+				}
+			}
+		}
+	}
+	return nitrogenExpand(g.T0, g.rho0, g.n0, mach, speed)
 }
 
 // NitrogenStagnation returns nitrogen's stagnation state at p0 in Pa and t0 in
@@ -307,7 +334,7 @@ func nitrogenFreeStreamFrom(g *Stagnation, mach, speed float64) (nitrogenStatic,
 	if mach == 0 && speed == 0 {
 		return nitrogenStatic{T: t0, p: p0, rho: rho0, a: math.Sqrt(n0.a2)}, nil
 	}
-	T, rho, n, ok := nitrogenExpand(t0, rho0, n0, mach, speed)
+	T, rho, n, ok := g.expand(mach, speed)
 	if !ok {
 		field, what := "mach", fmt.Sprintf("Mach %g", mach)
 		if speed > 0 {

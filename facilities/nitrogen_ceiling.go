@@ -18,9 +18,35 @@ type FloorSlopes struct {
 	// nitrogen): the figures above are then 0.
 	OK bool
 
-	p0, t0 float64
-	free   staticSlopes // the free stream at the test Mach number
-	local  staticSlopes // the local expansion to the condensation peak Mach number
+	p0, t0     float64
+	mach, peak float64      // the test Mach number and the condensation peak Mach number
+	free       staticSlopes // the free stream at the test Mach number
+	local      staticSlopes // the local expansion to the condensation peak Mach number
+}
+
+// StagnationNear returns the stagnation state at (p0, t0) (NitrogenStagnation)
+// with fs's two static states, the free stream's and the local expansion's,
+// carried to it to first order as the starts of its expansions to the same
+// Mach numbers: StateFrom at fs's Mach number and LocalCondensationMarginFrom
+// from it then take one Newton step each where (p0, t0) is within about 1e-8
+// relative of fs's stagnation state (the first-order start is then within
+// about 1e-16), against two or three from the start of nitrogenExpand. Their
+// figures are the same to the expansion's convergence, not to the bit. Without
+// fs's figures (not OK) it is NitrogenStagnation.
+func (fs *FloorSlopes) StagnationNear(p0, t0 float64) Stagnation {
+	g := NitrogenStagnation(p0, t0)
+	if !fs.OK {
+		return g
+	}
+	for i, s := range [...]struct {
+		mach float64
+		ss   *staticSlopes
+	}{{fs.mach, &fs.free}, {fs.peak, &fs.local}} {
+		if T, rho, ok := s.ss.start(p0-fs.p0, t0-fs.t0); ok {
+			g.starts[i] = expansionStart{mach: s.mach, T: T, rho: rho}
+		}
+	}
+	return g
 }
 
 // staticSlopes is a static state (T in K, ρ in kg/m³) of an expansion from
@@ -108,7 +134,8 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 	if !ok {
 		return out
 	}
-	local, nl, ok := expand(f.condensationPeakMach(), lastLocal)
+	peak := f.condensationPeakMach()
+	local, nl, ok := expand(peak, lastLocal)
 	if !ok || !(nl.p > 0) {
 		return out
 	}
@@ -131,5 +158,6 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 	out.M = local.T/tsat - 1
 	out.MP, out.MT = dm(local.TP, local.rhoP), dm(local.TT, local.rhoT)
 	out.free, out.local, out.OK = free, local, true
+	out.mach, out.peak = mach, peak
 	return out
 }

@@ -244,6 +244,47 @@ func TestStateFromStagnation(t *testing.T) {
 	}
 }
 
+// TestStagnationNear: a stagnation state with the starts of a nearby
+// FloorSlopes (StagnationNear, 3e-9 and 2e-9 relative away in p0 and T0) gives
+// State's figures to within 2e-15 relative at the FloorSlopes' Mach number and
+// the local condensation margin to within 1e-15, and State's to the bit at
+// another Mach number and at a speed (no start there); without the figures of
+// a FloorSlopes it is NitrogenStagnation.
+func TestStagnationNear(t *testing.T) {
+	t.Parallel()
+	f := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumNitrogen}}
+	for _, m := range []float64{0.3, 0.78, 0.92} {
+		for _, p0 := range []float64{1.3e5, 2.5e5, 3.9e5} {
+			for _, t0 := range []float64{112, 140, 300} {
+				fs := f.NitrogenFloorSlopes(p0, t0, m, nil)
+				require.True(t, fs.OK)
+				p1, t1 := p0*(1+3e-9), t0*(1-2e-9)
+				g := fs.StagnationNear(p1, t1)
+				s := facilities.Setting{Mach: m, StagnationPressure: p1, StagnationTemperature: t1}
+				want, err := f.State(s)
+				require.NoError(t, err)
+				got, err := f.StateFrom(&g, s)
+				require.NoError(t, err)
+				for _, c := range [][2]float64{{want.DynamicPressure, got.DynamicPressure}, {want.Speed, got.Speed},
+					{want.ReynoldsPerMeter, got.ReynoldsPerMeter}, {want.Static.Temperature, got.Static.Temperature},
+					{want.Static.Pressure, got.Static.Pressure}, {want.Static.Density, got.Static.Density}} {
+					assert.InEpsilon(t, c[0], c[1], 2e-15, "M %g, %g Pa, %g K", m, p1, t1)
+				}
+				assert.InDelta(t, f.LocalCondensationMargin(p1, t1), f.LocalCondensationMarginFrom(&g), 1e-15)
+				for _, o := range []facilities.Setting{{Mach: 0.5}, {Speed: 150}} {
+					o.StagnationPressure, o.StagnationTemperature = p1, t1
+					want, wantErr := f.State(o)
+					got, err := f.StateFrom(&g, o)
+					assert.Equal(t, want, got, "%+v", o)
+					assert.Equal(t, wantErr, err, "%+v", o)
+				}
+			}
+		}
+	}
+	var none facilities.FloorSlopes
+	assert.Equal(t, facilities.NitrogenStagnation(2e5, 150), none.StagnationNear(2e5, 150))
+}
+
 // TestFreeStreamMarginAboveLocal: along a nitrogen isentrope T/T_sat(p) falls
 // as the gas expands, so the free stream at a Mach number up to the local
 // peak Mach number is never nearer saturation than the local expansion: its

@@ -262,6 +262,11 @@ func (sv *solver) ceilingJoint(c *machSetup, qc, qa, qTop float64) (float64, boo
 	}
 	pf := p * (1 - 4e-15)
 	tf := (t - fs.MP/fs.MT*(pf-p)) * (1 + 2e-15)
+	if sv.stags != nil && pf > 0 && tf > 0 {
+		// The checks' expansions start from the last iterate's, carried to
+		// (pf, tf): one Newton step each instead of two or three.
+		sv.stags.put(fs.StagnationNear(pf, tf))
+	}
 	if !(pf > c.pa && tf < c.tb) || sv.localMargin(pf, tf) < sv.condMin {
 		return 0, false
 	}

@@ -755,6 +755,20 @@ func (ss *stagnations) at(p0, t0 float64) *facilities.Stagnation {
 	return g
 }
 
+// put keeps the stagnation state g, computed elsewhere (as at computes it,
+// or with starts for its expansions: facilities.FloorSlopes.StagnationNear),
+// in place of any kept at the same (p0, T0).
+func (ss *stagnations) put(g facilities.Stagnation) {
+	for i := range ss.e {
+		if e := &ss.e[i]; e.P0 == g.P0 && e.T0 == g.T0 {
+			*e = g
+			return
+		}
+	}
+	ss.e[ss.next] = g
+	ss.next = (ss.next + 1) % len(ss.e)
+}
+
 // floorMargin returns how far the setting (p0, T0) at c's Mach number is above the
 // T0 floor, ≥ 0 where it is usable, and the limit that sets the floor there: the
 // condensation margin less the allowed minimum (condensation), or, for nitrogen
