@@ -44,8 +44,9 @@ type Limit struct {
 	floor bool
 }
 
-// balanceRows holds one balance's rows projected on every point, point-major:
-// element i·rows + j is point i, row j.
+// balanceRows holds one balance's rows projected on the points: the elements
+// (point i, row j) that can set the ceiling at some scale and Mach number
+// (prune), in point-major order, each with its point in livePoint.
 type balanceRows struct {
 	id      string
 	rows    int
@@ -61,10 +62,8 @@ type balanceRows struct {
 	// (Resolution.Need; +Inf when its accuracy is not known); nil
 	// when no resolution is asked.
 	needForce, needMoment []float64
-	// live lists, in the order above, the elements i·rows + j that can set the
-	// ceiling at some scale and Mach number, and livePoint their points i; maxQ
-	// visits only these (prune).
-	live, livePoint []int32
+	// livePoint is the point i of each element kept; maxQ visits only these.
+	livePoint []int32
 }
 
 var (
@@ -77,6 +76,12 @@ var (
 // naming the field for bad input or an unknown balance, and ErrNoBalance
 // when the facility has no balance.
 func NewLimit(art *similarity.Article, f *facilities.Facility, in Installation, mx similarity.Matrix) (*Limit, error) {
+	return newLimit(art, f, in, mx, true)
+}
+
+// newLimit is NewLimit, keeping every element of the balances' tables when
+// prune is false (the reference the pruned tables are tested against).
+func newLimit(art *similarity.Article, f *facilities.Facility, in Installation, mx similarity.Matrix, prune bool) (*Limit, error) {
 	fe := art.GeometryErrors("reference_area", "reference_length", "frontal_area")
 	if len(mx.Points) == 0 {
 		fe = append(fe, check.FieldError{Field: "alpha", Message: "the test matrix has no points"})
@@ -117,8 +122,13 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in Installation, 
 			br.allowed[j] = rs.Allowed(j)
 		}
 		n := len(mx.Points) * br.rows
-		// The four tables in one allocation.
-		tab := make([]float64, 4*n)
+		// The four tables of every element in pooled scratch; prune keeps
+		// those of the live elements in one allocation of their final size.
+		buf := tableScratch.Get().(*[]float64)
+		if cap(*buf) < 4*n {
+			*buf = make([]float64, 4*n)
+		}
+		tab := (*buf)[:4*n]
 		br.force, br.moment = tab[:n:n], tab[n:2*n:2*n]
 		br.up, br.down = tab[2*n:3*n:3*n], tab[3*n:]
 		for i, p := range mx.Points {
@@ -135,7 +145,8 @@ func NewLimit(art *similarity.Article, f *facilities.Facility, in Installation, 
 				br.weightBreaks = br.weightBreaks || SafeDynamicPressure(0, w, br.allowed[j]) == 0
 			}
 		}
-		br.prune(l.cd)
+		br.prune(l.cd, prune)
+		tableScratch.Put(buf)
 		l.balances = append(l.balances, br)
 	}
 	if !found {
@@ -311,7 +322,7 @@ func (l *Limit) window(scale, mach float64) (lo, hi float64, k int) {
 // SafeDynamicPressure, q = (allowed − sign(u)·w)/|u|; the minimum over
 // rows is found by comparing the fractions crosswise, with one division per call.
 //
-// Only the live elements are visited, in their order and with the same
+// Only the live elements are kept, in their order and with the same
 // arithmetic as a visit of every element, so the result is the same to the bit
 // (prune explains why).
 func (br *balanceRows) maxQ(cd []float64, mach, solid, wake, qS, qSc float64) float64 {
@@ -321,16 +332,16 @@ func (br *balanceRows) maxQ(cd []float64, mach, solid, wake, qS, qSc float64) fl
 	num, den := 1.0, 0.0 // +Inf
 	pt := int32(-1)
 	var a, m float64
-	for x, k := range br.live {
-		if i := br.livePoint[x]; i != pt {
+	for x, i := range br.livePoint {
+		if i != pt {
 			pt = i
 			f := facilities.DynamicPressureRatio(mach, solid+wake*cd[i])
 			a, m = f*qS, f*qSc
 		}
-		u := a*br.force[k] + m*br.moment[k]
-		r := br.up[k]
+		u := a*br.force[x] + m*br.moment[x]
+		r := br.up[x]
 		if u < 0 {
-			u, r = -u, br.down[k]
+			u, r = -u, br.down[x]
 		}
 		if r*den < num*u {
 			num, den = r, u
@@ -354,7 +365,7 @@ const pruneMargin = 2e-12
 // every t > 0.
 var pruneSamples = [...]float64{0, 0.01, 0.1, 1}
 
-// prune sets live: the elements that can set the ceiling. Element k's load per
+// prune keeps the live elements: those that can set the ceiling. Element k's load per
 // unit of q is f_i·q·S·(F_k + t·M_k) with F_k = force[k], M_k = moment[k],
 // t = c·s > 0, and f_i = 1 + (2 − M²)·(ε_sb + ε_wb/C_D·C_D,i) the wall correction of its
 // point i; its ceiling is r_k/|load|, r_k = up[k] or down[k] by the load's sign.
@@ -374,9 +385,12 @@ var pruneSamples = [...]float64{0, 0.01, 0.1, 1}
 // same element, with the same arithmetic, as the scan over all. Elements whose r
 // is not positive (a weight exactly at a rating) are always kept and never used to
 // drop others.
-func (br *balanceRows) prune(cd []float64) {
+//
+// The tables then hold the live elements alone, in their order (setLive); with
+// drop false every element is kept.
+func (br *balanceRows) prune(cd []float64, drop bool) {
 	n := len(br.force)
-	keepAll := br.weightBreaks
+	keepAll := br.weightBreaks || !drop
 	for k := 0; k < n && !keepAll; k++ {
 		keepAll = math.IsNaN(br.force[k]) || math.IsNaN(br.moment[k])
 	}
@@ -453,19 +467,27 @@ func (br *balanceRows) prune(cd []float64) {
 	br.setLive(ks)
 }
 
-// setLive sets live to the elements ks and livePoint to their points, in one
-// allocation of their final size.
+// setLive keeps the tables' elements ks (in increasing order) and sets
+// livePoint to their points, in two allocations of their final size: the
+// tables of every element are scratch that NewLimit reuses.
 func (br *balanceRows) setLive(ks []int32) {
 	m := len(ks)
-	both := make([]int32, 2*m)
-	br.live, br.livePoint = both[:m:m], both[m:]
+	tab := make([]float64, 4*m)
+	force, moment := tab[:m:m], tab[m:2*m:2*m]
+	up, down := tab[2*m:3*m:3*m], tab[3*m:]
+	br.livePoint = make([]int32, m)
 	for x, k := range ks {
-		br.live[x], br.livePoint[x] = k, k/int32(br.rows)
+		force[x], moment[x], up[x], down[x] = br.force[k], br.moment[k], br.up[k], br.down[k]
+		br.livePoint[x] = k / int32(br.rows)
 	}
+	br.force, br.moment, br.up, br.down = force, moment, up, down
 }
 
 // liveScratch holds prune's buffers of live elements (*[]int32).
 var liveScratch = sync.Pool{New: func() any { return new([]int32) }}
+
+// tableScratch holds NewLimit's tables of every element (*[]float64).
+var tableScratch = sync.Pool{New: func() any { return new([]float64) }}
 
 // pruneScratch holds prune's scratch buffers (*[]float64).
 var pruneScratch = sync.Pool{New: func() any { return new([]float64) }}

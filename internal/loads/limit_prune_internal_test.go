@@ -11,31 +11,6 @@ import (
 	"scalematch/similarity"
 )
 
-// maxQAll is balanceRows.maxQ visiting every element, as before prune: the
-// reference the pruned scan must equal to the bit.
-func (br balanceRows) maxQAll(cd []float64, mach, solid, wake, qS, qSc float64) float64 {
-	br.live, br.livePoint = make([]int32, len(br.force)), make([]int32, len(br.force))
-	for k := range br.force {
-		br.live[k], br.livePoint[k] = int32(k), int32(k/br.rows)
-	}
-	return br.maxQ(cd, mach, solid, wake, qS, qSc)
-}
-
-// bestAll is Limit.best with maxQAll.
-func (l *Limit) bestAll(scale, mach float64) (int, float64) {
-	s2 := scale * scale
-	area := l.refArea * s2
-	solid, wake, _ := facilities.BlockageFactors(l.facility, l.frontalArea*s2, area, mach)
-	k, q := -1, 0.0
-	for b := range l.balances {
-		qb := l.balances[b].maxQAll(l.cd, mach, solid, wake, area, area*l.refLength*scale)
-		if k < 0 || qb > q {
-			k, q = b, qb
-		}
-	}
-	return k, q
-}
-
 // pruneCase draws a random test matrix, installation and balance set on a demo
 // facility: coefficients of both signs (side force and rolling and yawing
 // moments included), repeated points, points of zero load, combined gauge rows,
@@ -114,9 +89,11 @@ func TestPruneExact(t *testing.T) {
 		art, f, in, mx := pruneCase(rng, i)
 		l, err := NewLimit(art, f, in, mx)
 		require.NoError(t, err, "case %d", i)
-		for _, br := range l.balances {
-			kept += len(br.live)
-			total += len(br.force)
+		all, err := newLimit(art, f, in, mx, false)
+		require.NoError(t, err, "case %d", i)
+		for b, br := range l.balances {
+			kept += len(br.livePoint)
+			total += len(all.balances[b].livePoint)
 		}
 		for range 200 {
 			s := math.Exp(rng.Float64()*math.Log(1e5)) * 1e-4
@@ -125,7 +102,7 @@ func TestPruneExact(t *testing.T) {
 				m = 0
 			}
 			k, q := l.best(s, m)
-			ka, qa := l.bestAll(s, m)
+			ka, qa := all.best(s, m)
 			require.Equal(t, [2]uint64{uint64(ka), math.Float64bits(qa)}, [2]uint64{uint64(k), math.Float64bits(q)},
 				"case %d (%s, %d points) at scale %.6g, M %.4g: balance and the bits of q, pruned against every element (q %v, %v)",
 				i, f.ID, len(mx.Points), s, m, q, qa)
