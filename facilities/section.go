@@ -331,6 +331,23 @@ func (f *Facility) CondensationMargin(st State) float64 {
 		f.localMargin(margin, st.StagnationPressure, st.StagnationTemperature))
 }
 
+// CondensationNear returns CondensationMargin(st) and true when the margin lies
+// within tol of 0 (the state sits on the saturation line), else false. For air
+// and a custom gas it answers false without solving the saturation line when the
+// free stream and the local expansion are both warmer than (1 + tol) times the
+// line's top temperature (air's maxcondentherm, a gas's critical temperature),
+// which bounds T_sat at every pressure: the margin is then above tol.
+func (f *Facility) CondensationNear(st State, tol float64) (float64, bool) {
+	if top, ok := f.Medium.dewTop(); ok && st.StagnationTemperature > 0 && st.StagnationPressure > 0 {
+		local := st.StagnationTemperature / atmosphere.TemperatureRatio(f.condensationPeakMach(), f.Medium.Gamma())
+		if st.Static.Temperature/top-1 > tol && local/top-1 > tol {
+			return 0, false
+		}
+	}
+	m := f.CondensationMargin(st)
+	return m, !math.IsInf(m, 1) && math.Abs(m) <= tol
+}
+
 // condensationMarginFunc returns the margin T/T_sat(p) − 1 of the facility's
 // medium at T in K and p in Pa, or nil when the medium has no saturation line in
 // the model (water, a custom gas without a critical point) or none at p0.

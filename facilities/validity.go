@@ -249,6 +249,21 @@ func (m Medium) dewTemperature(p float64) (float64, bool) {
 	return 0, false
 }
 
+// dewTop returns the highest temperature dewTemperature gives at any pressure
+// (air's maxcondentherm, a custom gas's critical temperature) and true; false
+// for a medium without a dew line.
+func (m Medium) dewTop() (float64, bool) {
+	switch m.Kind {
+	case MediumAir:
+		return airDewTj, true
+	case MediumGas:
+		if m.hasDewLine(1) {
+			return *m.Gas.CriticalTemperature, true
+		}
+	}
+	return 0, false
+}
+
 // hasDewLine reports whether dewTemperature(p) gives a temperature (its ok),
 // without finding it.
 func (m Medium) hasDewLine(p float64) bool {

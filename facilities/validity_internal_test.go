@@ -2,6 +2,7 @@ package facilities
 
 import (
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -55,4 +56,46 @@ func TestSatTemperatureBisection(t *testing.T) {
 			assert.Equal(t, satTemperatureBisection(l.line, p, l.lo, l.hi), satTemperature(l.line, p, l.lo, l.hi), "%s at %g Pa", l.name, p)
 		}
 	}
+}
+
+func TestCondensationNear(t *testing.T) {
+	t.Parallel()
+	// CondensationNear agrees with CondensationMargin within tol of 0, on states
+	// drawn at random and on states set on the saturation line (free stream or
+	// local expansion), for air, a custom gas with a critical point, one
+	// without, and nitrogen.
+	tc, pc := 190.6, 4.6e6
+	media := []Medium{
+		{Kind: MediumAir},
+		{Kind: MediumGas, Gas: &GasProperties{MolarMass: 0.016, Gamma: 1.31, ViscosityReference: 1.1e-5, TemperatureReference: 273, SutherlandConstant: 164, CriticalTemperature: &tc, CriticalPressure: &pc}},
+		{Kind: MediumGas, Gas: &GasProperties{MolarMass: 0.016, Gamma: 1.31, ViscosityReference: 1.1e-5, TemperatureReference: 273, SutherlandConstant: 164}},
+		{Kind: MediumNitrogen},
+	}
+	const tol = 1e-7
+	rng := rand.New(rand.NewPCG(5, 9))
+	near := 0
+	for _, m := range media {
+		f := &Facility{ID: "t", Medium: m}
+		for i := range 4000 {
+			p0 := math.Exp(math.Log(2e3) + rng.Float64()*math.Log(2e3))
+			t0 := 60 + 400*rng.Float64()
+			st := State{StagnationPressure: p0, StagnationTemperature: t0,
+				Static: Static{Temperature: t0 * (0.3 + 0.7*rng.Float64()), Pressure: p0 * (0.05 + 0.95*rng.Float64())}}
+			if td, ok := m.dewTemperature(st.Static.Pressure); ok && i%2 == 0 {
+				// On the line within a few tol, or just outside.
+				st.Static.Temperature = td * (1 + (rng.Float64()-0.5)*6*tol)
+				if i%4 == 0 {
+					st.StagnationTemperature = st.Static.Temperature * (1 + 0.2*rng.Float64())
+				}
+			}
+			want := f.CondensationMargin(st)
+			wantNear := !math.IsInf(want, 1) && math.Abs(want) <= tol
+			got, gotNear := f.CondensationNear(st, tol)
+			if assert.Equal(t, wantNear, gotNear, "%v state %+v: margin %v", m.Kind, st, want) && gotNear {
+				assert.Equal(t, want, got, "%v state %+v", m.Kind, st)
+				near++
+			}
+		}
+	}
+	assert.Greater(t, near, 100, "states on the line")
 }

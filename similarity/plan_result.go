@@ -133,7 +133,7 @@ func (sv *solver) bindings(x candidate, st facilities.State) []Binding {
 			on(sv.loadName, st.DynamicPressure, qb)
 		}
 	}
-	if m := f.CondensationMargin(st); !math.IsInf(m, 1) && math.Abs(m) <= 1e-7 {
+	if m, near := f.CondensationNear(st, 1e-7); near {
 		bs = append(bs, Binding{Constraint: facilities.ConstraintCondensation, Value: m, Limit: 0})
 	}
 	if m := f.BoilingMargin(st); !math.IsInf(m, 1) && math.Abs(m) <= 1e-7 {
