@@ -148,21 +148,29 @@ func Fit(f *facilities.Facility, a *similarity.Article, s float64) []facilities.
 	var out []facilities.Violation
 	ts := f.TestSection
 	if ts.Width > 0 {
-		lim, src := 1.0, "the test-section width"
+		lim := 1.0
 		if f.MaxSpanFraction != nil {
-			lim, src = *f.MaxSpanFraction, fmt.Sprintf("the facility's %.3g of the width", *f.MaxSpanFraction)
+			lim = *f.MaxSpanFraction
 		}
 		if v := a.Span * s / ts.Width; v > lim*(1+1e-12) {
+			src := "the test-section width"
+			if f.MaxSpanFraction != nil {
+				src = fmt.Sprintf("the facility's %.3g of the width", *f.MaxSpanFraction)
+			}
 			out = append(out, facilities.Violation{Constraint: facilities.ConstraintSpan, Value: v, Limit: lim,
 				Message: fmt.Sprintf("the model's span of %.4g m is %.3g of the %.4g m test-section width, above %s", a.Span*s, v, ts.Width, src)})
 		}
 	}
 	if cs := ts.CrossSection(); cs > 0 {
-		lim, src := 1.0, "the whole test section"
+		lim := 1.0
 		if f.MaxBlockage != nil {
-			lim, src = *f.MaxBlockage, fmt.Sprintf("the facility's %.3g %%", 100**f.MaxBlockage)
+			lim = *f.MaxBlockage
 		}
 		if v := a.FrontalArea * s * s / cs; v > lim*(1+1e-12) {
+			src := "the whole test section"
+			if f.MaxBlockage != nil {
+				src = fmt.Sprintf("the facility's %.3g %%", 100**f.MaxBlockage)
+			}
 			out = append(out, facilities.Violation{Constraint: facilities.ConstraintBlockage, Value: v, Limit: lim,
 				Message: fmt.Sprintf("the model's frontal area of %.4g m² blocks %.3g %% of the %.4g m² test section, above %s", a.FrontalArea*s*s, 100*v, cs, src)})
 		}
