@@ -355,3 +355,40 @@ func WaterViscosity(T, rho float64) float64 {
 	}
 	return iapwsMuStar * mu0 * math.Exp(rb*sum)
 }
+
+// WaterViscositySlope returns dμ/dT in Pa·s/K of WaterViscosity at temperature T
+// in K along a liquid line whose density is rho in kg/m³ with slope drho =
+// dρ/dT in kg/m³/K there (WaterDensity and WaterDensitySlope): the IAPWS 2008
+// formulation differentiated, with u = 1/T̄, x = u − 1, y = ρ̄ − 1, D(u) = Σ H_i·u^i
+// and S = Σ_i Σ_j H_ij·x^i·y^j,
+//
+//	d ln μ/dT = (1/(2T̄) + D′(u)·u²/D(u))/T* + S·ρ′/ρ* + ρ̄·(−S_x·u²/T* + S_y·ρ′/ρ*)
+//
+// Along Kell's density, −d ln(μ/ρ)/dT, the rise of Re/m with T, is positive and
+// falls with T over 0–150 °C (TestWaterSlopesMonotone).
+func WaterViscositySlope(T, rho, drho float64) float64 {
+	tb := T / iapwsTStar
+	rb := rho / iapwsRhoStar
+	u := 1 / tb
+	d := 1.67752 + u*(2.20462+u*(0.6366564+u*(-0.241605)))
+	dd := 2.20462 + u*(2*0.6366564+u*(3*-0.241605))
+	x, y := u-1, rb-1
+	var sum, sx, sy, xi, xi1 float64 = 0, 0, 0, 1, 0 // xi1 = i·x^(i−1)
+	for i := range iapwsH {
+		row := &iapwsH[i]
+		inner, dinner := 0.0, 0.0
+		for j := len(row) - 1; j >= 0; j-- {
+			dinner = dinner*y + inner
+			inner = inner*y + row[j]
+		}
+		sum += xi * inner
+		sx += xi1 * inner
+		sy += xi * dinner
+		xi1 = float64(i+1) * xi
+		xi *= x
+	}
+	mu := iapwsMuStar * 100 * math.Sqrt(tb) / d * math.Exp(rb*sum)
+	dRb := drho / iapwsRhoStar
+	dLn := (0.5/tb+dd*u*u/d)/iapwsTStar + sum*dRb + rb*(-sx*u*u/iapwsTStar+sy*dRb)
+	return mu * dLn
+}

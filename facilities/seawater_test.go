@@ -145,6 +145,10 @@ func TestWaterSlopes(t *testing.T) {
 		assert.InDelta(t, dRho, facilities.WaterDensitySlope(T), 1e-7, "dρ/dT at %g K", T)
 		dPv := (facilities.WaterVapourPressure(T+h) - facilities.WaterVapourPressure(T-h)) / (2 * h)
 		assert.InEpsilon(t, dPv, facilities.WaterVapourPressureSlope(T), 1e-7, "dp_v/dT at %g K", T)
+		mu := func(T float64) float64 { return facilities.WaterViscosity(T, facilities.WaterDensity(T)) }
+		dMu := (mu(T+h) - mu(T-h)) / (2 * h)
+		got := facilities.WaterViscositySlope(T, facilities.WaterDensity(T), facilities.WaterDensitySlope(T))
+		assert.InEpsilon(t, dMu, got, 1e-7, "dμ/dT at %g K", T)
 	}
 	// Near the normal boiling point (373.124 K) the saturation line rises by about
 	// 3.6 kPa/K (steam tables, from memory).
@@ -155,10 +159,11 @@ func TestWaterSlopes(t *testing.T) {
 // of the water model over its whole range, 0–150 °C (similarity, the
 // certificate of an end temperature): the density's slope falls with the
 // temperature (ρ concave) and the vapour pressure's slope is positive and
-// rises (p_v increasing and convex), checked every 0.01 K.
+// rises (p_v increasing and convex), and the rise of Re/m, −d ln(μ/ρ)/dT,
+// is positive and falls (ln ν convex), checked every 0.01 K.
 func TestWaterSlopesMonotone(t *testing.T) {
 	t.Parallel()
-	prevRho, prevPv := math.Inf(1), 0.0
+	prevRho, prevPv, prevRe := math.Inf(1), 0.0, math.Inf(1)
 	for i := 0; ; i++ {
 		T := facilities.WaterMinTemperature + 0.01*float64(i)
 		if T > facilities.WaterMaxTemperature {
@@ -167,6 +172,10 @@ func TestWaterSlopesMonotone(t *testing.T) {
 		dRho, dPv := facilities.WaterDensitySlope(T), facilities.WaterVapourPressureSlope(T)
 		require.Less(t, dRho, prevRho, "dρ/dT at %g K", T)
 		require.Greater(t, dPv, prevPv, "dp_v/dT at %g K", T)
-		prevRho, prevPv = dRho, dPv
+		rho := facilities.WaterDensity(T)
+		dRe := dRho/rho - facilities.WaterViscositySlope(T, rho, dRho)/facilities.WaterViscosity(T, rho)
+		require.Greater(t, dRe, 0.0, "d ln(ρ/μ)/dT at %g K", T)
+		require.Less(t, dRe, prevRe, "d ln(ρ/μ)/dT at %g K", T)
+		prevRho, prevPv, prevRe = dRho, dPv, dRe
 	}
 }

@@ -93,6 +93,9 @@ type waterGrid struct {
 	// dRho and dPv are the slopes dρ/dT in kg/m³/K and dp_v/dT in Pa/K there
 	// (facilities.WaterDensitySlope, facilities.WaterVapourPressureSlope).
 	dRho, dPv [cavGrid]float64
+	// dRe0 and dRe1 are d ln(ρ/μ)/dT in 1/K, the rise of Re/m with T, at the
+	// grid's coldest and warmest temperatures (facilities.WaterViscositySlope).
+	dRe0, dRe1 float64
 }
 
 // falls reports whether (k − p_v(T))/ρ(T), k a pressure in Pa, falls strictly
@@ -151,6 +154,11 @@ func (gs *waterGrids) grid(ta, tb float64) *waterGrid {
 		g.wp[i] = waterPropsAt(t)
 		g.dRho[i], g.dPv[i] = facilities.WaterDensitySlope(t), facilities.WaterVapourPressureSlope(t)
 	}
+	dRe := func(i int) float64 {
+		w := &g.wp[i]
+		return g.dRho[i]/w.rho - facilities.WaterViscositySlope(cavGridT(ta, tb, i), w.rho, g.dRho[i])/w.mu
+	}
+	g.dRe0, g.dRe1 = dRe(0), dRe(cavGrid-1)
 	return g
 }
 
@@ -321,13 +329,22 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		sv.grids = &waterGrids{}
 	}
 	wg := sv.grids.grid(ta, tb)
-	if sv.cavFirst() && !sv.feasOnly {
+	if (sv.cavFirst() || sv.obj.weighted) && !sv.feasOnly && !sv.noCavEnd {
 		if !haveTop {
 			top, _ = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
 			haveTop = true
 		}
-		if y, ok := sv.cavEnd(evalAt, wg, top); ok {
+		var y candidate
+		ok := false
+		if sv.obj.weighted {
+			y, ok = sv.cavEndWeighted(evalAt, wg, top, s, target)
+		} else if y, ok = sv.cavEnd(evalAt, wg, top); ok {
 			y.rlo, y.rhi = y.r, y.r
+		}
+		if ok {
+			if y.r <= y.rlo*(1+limitSlack) {
+				y.rlo = y.r
+			}
 			if y.t0 >= tb*(1-limitSlack) {
 				y.capHi = capHi
 			}
@@ -462,6 +479,105 @@ func (sv *solver) cavEnd(evalAt func(float64, waterProps) (candidate, float64), 
 		return top, true
 	}
 	if cold, _ := evalAt(cavGridT(g.ta, g.tb, 0), g.wp[0]); cold.ok && cold.sig < sf-tol && g.falls(hi) {
+		return cold, true
+	}
+	return candidate{}, false
+}
+
+// cavEndWeighted is cavEnd for a weighted objective: the candidate at the
+// coldest or the warmest water of the grid g where that end is shown to be the
+// best, with the Re/m reachable at its cavitation level (rlo, rhi, as
+// atWaterCav's search would find them), and true; false where that is not
+// shown. top is the candidate at g's warmest; s is the scale, target the Re/m
+// atWaterCav looks for.
+//
+// Of the weighted sum only wc·a² + wr·b² moves with the temperature, a =
+// ln(σ/σ_full) and b = ln(Re/Re_full) (the Froude term moves with the speed
+// and scale alone; a Mach term in water is not allowed here). Where
+// (k − p_v)/ρ falls for both the lowest and the highest pressure k
+// (waterGrid.falls), σ_lo and σ_hi fall with T, so the chosen σ (σ_full
+// clamped between them) never rises, and Re/m rises with T. Then:
+//
+//   - σ above σ_full at the warmest water (so at every T) and Re below the
+//     flight's at the warmest (so at every T): both terms fall as T rises;
+//     the warmest is the best.
+//   - σ below σ_full at the coldest water (so σ = σ_hi at every T), and Re
+//     above the flight's at the coldest: both terms rise with T; the coldest
+//     is the best.
+//   - σ below σ_full at the coldest and Re below the flight's at the warmest:
+//     the terms pull apart, W′/2 = wc·a·a′ + wr·b·b′ with a, a′ ≤ 0 < b′ and
+//     b < 0. With a = ln((k − p_v − c·q)/q) − ln σ_full (q = ½ρV², c = 1 with a
+//     stagnation-pressure range, 0 where the static pressure is held),
+//     |a′| = (p_v′ + c·½V²·ρ′)/(k − p_v − c·q) + ρ′/ρ, bounded over the range
+//     from the slopes at its ends (p_v′ rises, ρ′ and ρ′/ρ fall, ρ ≤ ρ(ta) +
+//     max(ρ′(ta), 0)·(tb − ta) and ρ ≥ min(ρ(ta), ρ(tb)) as ρ is concave), and
+//     b′ = d ln(ρ/μ)/dT between its values at the ends (it falls with T:
+//     facilities.TestWaterSlopesMonotone). |a| rises with T and |b| falls, so
+//     where wc·|a(tb)|·max|a′| < wr·|b(tb)|·min b′, W′ < 0 over the whole
+//     range and the warmest is the best; where wc·|a(ta)|·min|a′| >
+//     wr·|b(ta)|·max b′, W′ > 0 and the coldest is.
+//
+// Each test keeps a margin (1e-9 on σ, 1e-6 on the slopes' products) for
+// rounding. Where the target Re/m lies between the ends' the search's root
+// for it is left to the search.
+func (sv *solver) cavEndWeighted(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate, s, target float64) (candidate, bool) {
+	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
+	if !(wc > 0) || !(wr >= 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) || !top.ok {
+		return candidate{}, false
+	}
+	sf := sv.fl.Marine.Cavitation
+	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
+	cq := 1.0
+	if sv.held {
+		lo, hi, cq = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max, 0
+	}
+	if !g.falls(lo) || !g.falls(hi) {
+		return candidate{}, false
+	}
+	cold, _ := evalAt(cavGridT(g.ta, g.tb, 0), g.wp[0])
+	if !cold.ok || (target > cold.r && target < top.r) {
+		return candidate{}, false
+	}
+	lnRe := func(y candidate) float64 { return math.Log(s * sv.L * y.r / sv.fl.Reynolds) }
+	bC, bT := lnRe(cold), lnRe(top)
+	// Where the end found lies outside the cavitation band, no other
+	// temperature reaches its cavitation level (σ moves strictly away from
+	// the band), and the Re/m reachable there is its own.
+	outside := func(y candidate) bool { return sv.cavDistance(y.sig) > 0 }
+	switch {
+	case top.sig > sf*(1+1e-9) && bT < 0 && outside(top):
+		top.rlo, top.rhi = top.r, top.r
+		return top, true
+	case !(cold.sig < sf*(1-1e-9)) || !(top.sig > 1e-6*sf):
+		return candidate{}, false
+	case bC > 0 && outside(cold):
+		cold.rlo, cold.rhi = cold.r, cold.r
+		return cold, true
+	case !(bT < 0):
+		return candidate{}, false
+	}
+	v := cold.machOrSpeed
+	kq := 0.5 * v * v
+	w0, w1 := &g.wp[0], &g.wp[cavGrid-1]
+	r0, r1 := g.dRho[0], g.dRho[cavGrid-1]
+	rhoMin, rhoMax := min(w0.rho, w1.rho), w0.rho+max(r0, 0)*(cavGridT(g.ta, g.tb, cavGrid-1)-g.ta)
+	nLo, nHi := g.dPv[0]+cq*kq*r1, g.dPv[cavGrid-1]+cq*kq*r0
+	gLo, gHi := hi-w1.pv-cq*kq*rhoMax, hi-w0.pv-cq*kq*rhoMin
+	if !(gLo > 0) || !(g.dRe1 > 0) {
+		return candidate{}, false
+	}
+	aLo := max(0, min(nLo/gLo, nLo/gHi)+r1/w1.rho)
+	aHi := max(nHi/gLo, nHi/gHi) + r0/w0.rho
+	aC, aT := -math.Log(cold.sig/sf), -math.Log(top.sig/sf)
+	const m = 1 + 1e-6
+	switch {
+	case wc*aT*aHi*m < wr*-bT*g.dRe1:
+		// W falls over the range: the warmest is the best, and every
+		// colder state lies nearer the band (σ falls with T).
+		top.rlo, top.rhi = cold.r, top.r
+		return top, true
+	case wc*aC*aLo > m*wr*-bC*g.dRe0 && outside(cold):
+		cold.rlo, cold.rhi = cold.r, cold.r
 		return cold, true
 	}
 	return candidate{}, false

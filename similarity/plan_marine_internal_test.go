@@ -100,3 +100,78 @@ func TestWaterGridFalls(t *testing.T) {
 	require.False(t, grids.grid(facilities.WaterMinTemperature-1, 300).falls(1e5))
 	require.False(t, grids.grid(400, facilities.WaterMaxTemperature+1).falls(1e6))
 }
+
+// TestCavEndMatchesGrid checks the cavitation search's certificates of an
+// end temperature (cavEnd, cavEndWeighted) against the full search they
+// replace (noCavEnd): on random vessels in random water tunnels (as
+// TestPlanMarineReference draws them; half hold their static pressure),
+// under the default priority and three weighted objectives, at random speeds
+// and scales with and without a target Re/m, the candidate found is the same,
+// and the certificates settle a good share of the searches. The same means
+// to the bit, or within 1e-10 relative in every figure where the full
+// search's refinement met a tie of its keys by rounding next to the end (a
+// weighted sum whose temperature-dependent part lies below the rounding of a
+// larger constant term: the lower q of a point 1e-12 relative inside wins
+// it).
+func TestCavEndMatchesGrid(t *testing.T) {
+	rng := rand.New(rand.NewSource(29))
+	objectives := []Objective{{}, {Weights: map[string]float64{"reynolds": 1, "cavitation": 4}},
+		{Weights: map[string]float64{"reynolds": 1, "cavitation": 0.05}}, {Weights: map[string]float64{"cavitation": 1, "froude": 1}}}
+	searches, settled, near := 0, 0, 0
+	for i := 0; i < 1000; i++ {
+		held := i%2 == 0
+		f := &facilities.Facility{ID: "w", Name: "random water tunnel", Medium: facilities.Medium{Kind: facilities.MediumWater},
+			TestSection: facilities.TestSection{Width: 0.3 + rng.Float64(), Height: 0.3 + rng.Float64(), Length: 3, Walls: "closed"}}
+		vlo := 0.3 + 2*rng.Float64()
+		f.Speed = &facilities.Range{Min: vlo, Max: vlo + 1 + 15*rng.Float64()}
+		tlo := 278 + 10*rng.Float64()
+		f.StagnationTemperature = facilities.Range{Min: tlo, Max: tlo + 1 + 25*rng.Float64()}
+		if held {
+			f.StaticPressure = &facilities.Range{Min: 5e3 + 4e4*rng.Float64(), Max: 1.2e5 + 3e5*rng.Float64()}
+		} else {
+			plo := 1.5e5 + 1e5*rng.Float64()
+			f.StagnationPressure = facilities.Range{Min: plo, Max: plo * (1 + rng.Float64())}
+		}
+		art := &Article{ReferenceLength: 0.2 + 3*rng.Float64(), ReferenceArea: 0.5, Span: 0.2 + 2*rng.Float64(),
+			FrontalArea: 0.02 + 0.3*rng.Float64(), WettedArea: 2}
+		m := Marine{Water: WaterSea, Temperature: 275 + 30*rng.Float64(), Depth: 50 * rng.Float64() * rng.Float64(), Speed: 1 + 20*rng.Float64()}
+		fl, err := m.Resolve(art.ReferenceLength)
+		require.NoError(t, err)
+		for _, obj := range objectives {
+			sv, err := newSolver(&Problem{Flight: fl, Article: art, Facility: f, Objective: obj})
+			require.NoError(t, err)
+			for j := 0; j < 20; j++ {
+				u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*rng.Float64()
+				s := sv.sLo * math.Pow(sv.sHi/sv.sLo, rng.Float64())
+				target := math.Inf(1)
+				if j%2 == 0 {
+					target = fl.Reynolds / (s * sv.L)
+				}
+				c := sv.prepare(u)
+				e0 := sv.evals
+				got := sv.atTarget(&c, s, target)
+				e1 := sv.evals
+				sv.noCavEnd = true
+				want := sv.atTarget(&c, s, target)
+				sv.noCavEnd = false
+				searches++
+				if got != want {
+					near++
+					require.True(t, got.ok == want.ok && got.fail == want.fail && got.capHi == want.capHi && got.top == want.top && got.bandOK == want.bandOK,
+						"case %d, %+v, %g m/s, scale %g, target %g: %+v, want %+v", i, obj, u, s, target, got, want)
+					for _, f := range [][2]float64{{got.t0, want.t0}, {got.r, want.r}, {got.rlo, want.rlo}, {got.rhi, want.rhi},
+						{got.q, want.q}, {got.p0, want.p0}, {got.ps, want.ps}, {got.sig, want.sig}, {got.band, want.band},
+						{got.bandLo, want.bandLo}, {got.k.v[0], want.k.v[0]}, {got.k.v[1], want.k.v[1]}} {
+						require.InEpsilon(t, f[1]+1, f[0]+1, 1e-10, "case %d, %+v, %g m/s, scale %g, target %g: %+v, want %+v", i, obj, u, s, target, got, want)
+					}
+				}
+				if e1-e0 < sv.evals-e1 {
+					settled++
+				}
+			}
+		}
+	}
+	t.Logf("%d of %d searches settled by a certificate; %d not the same to the bit", settled, searches, near)
+	require.Greater(t, settled, searches/4)
+	require.Less(t, near, searches/100)
+}

@@ -222,6 +222,10 @@ type solver struct {
 	// noPolish skips the joint refinement of a weighted objective (polish), for
 	// the tests that compare the structured search alone with it.
 	noPolish bool
+	// noCavEnd skips the cavitation search's certificates of an end
+	// temperature (cavEnd, cavEndWeighted), for the test that compares the
+	// full search with them.
+	noCavEnd bool
 	// polishEvals counts the refinement's objective evaluations.
 	polishEvals int
 	// polishImproved: the refinement found a better plan than the structured
