@@ -288,34 +288,28 @@ func nitrogenFreeStream(t0, p0, mach, speed float64) (nitrogenStatic, error) {
 // numbers computes it once (NitrogenStagnation) and passes it to StateFrom
 // and LocalCondensationMarginFrom, which give what State and
 // LocalCondensationMargin give, to the bit. One from FloorSlopes.StagnationNear
-// also holds starts for its expansions near a state found before: those give
-// the same figures to the expansion's convergence (about 1e-16 relative), not
-// to the bit.
+// also holds a start for its free stream near a state found before: that
+// gives State's figures to the expansion's convergence, not to the bit.
 type Stagnation struct {
 	P0, T0 float64
 	rho0   float64
 	n0     n2Props
-	// starts are static states (T, ρ) near those of the expansions to their
-	// Mach numbers (StagnationNear), from which nitrogenNewton starts instead
-	// of nitrogenExpand's start; T 0 where there is none.
-	starts [2]expansionStart
+	// start is a static state (T, ρ) near that of the expansion to its Mach
+	// number (StagnationNear), from which nitrogenNewton starts instead of
+	// nitrogenExpand's start; T 0 where there is none.
+	start expansionStart
 }
 
 // expansionStart is a start of the expansion to Mach number mach: the static
 // temperature T in K and density rho in kg/m³ of a nearby solution.
 type expansionStart struct{ mach, T, rho float64 }
 
-// expand is nitrogenExpand from g, or, to the Mach number of one of g's
-// starts (speed 0), nitrogenNewton from that start (nitrogenExpand should it
-// fail).
+// expand is nitrogenExpand from g, or, to the Mach number of g's start
+// (speed 0), nitrogenNewton from that start (nitrogenExpand should it fail).
 func (g *Stagnation) expand(mach, speed float64) (T, rho float64, n n2Props, ok bool) {
-	if speed == 0 {
-		for _, st := range g.starts {
-			if st.T > 0 && st.mach == mach {
-				if T, rho, n, ok = nitrogenNewton(g.n0, mach, 0, st.T, st.rho); ok {
-					return T, rho, n, ok
-				}
-			}
+	if st := g.start; speed == 0 && st.T > 0 && st.mach == mach {
+		if T, rho, n, ok = nitrogenNewton(g.n0, mach, 0, st.T, st.rho); ok {
+			return T, rho, n, ok
 		}
 	}
 	return nitrogenExpand(g.T0, g.rho0, g.n0, mach, speed)

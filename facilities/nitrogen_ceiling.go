@@ -25,26 +25,27 @@ type FloorSlopes struct {
 }
 
 // StagnationNear returns the stagnation state at (p0, t0) (NitrogenStagnation)
-// with fs's two static states, the free stream's and the local expansion's,
-// carried to it to first order as the starts of its expansions to the same
-// Mach numbers: StateFrom at fs's Mach number and LocalCondensationMarginFrom
-// from it then take one Newton step each where (p0, t0) is within about 1e-8
+// with fs's free-stream static state carried to it to first order as the
+// start of its expansion to fs's Mach number: StateFrom at that Mach number
+// from it then takes one Newton step where (p0, t0) is within about 1e-8
 // relative of fs's stagnation state (the first-order start is then within
-// about 1e-16), against two or three from the start of nitrogenExpand. Their
-// figures are the same to the expansion's convergence, not to the bit. Without
-// fs's figures (not OK) it is NitrogenStagnation.
+// about 1e-16), against two or three from the start of nitrogenExpand, and
+// gives State's figures to the expansion's convergence (a few 1e-15
+// relative: the isentrope's resolution in ρ), not to the bit. The local
+// expansion (LocalCondensationMarginFrom) starts as from NitrogenStagnation,
+// and so does the free stream at 0.99 of the condensation peak Mach number
+// and above: a planner puts a setting on the condensation line 2e-15 above
+// the crossing and checks it by its local margin, which must be State's to
+// the bit; up to 0.99 of the peak the free stream's margin lies above the
+// local one by far more than a few 1e-15 (TestFreeStreamMarginAboveLocal).
+// Without fs's figures (not OK) it is NitrogenStagnation.
 func (fs *FloorSlopes) StagnationNear(p0, t0 float64) Stagnation {
 	g := NitrogenStagnation(p0, t0)
-	if !fs.OK {
+	if !fs.OK || !(fs.mach < 0.99*fs.peak) {
 		return g
 	}
-	for i, s := range [...]struct {
-		mach float64
-		ss   *staticSlopes
-	}{{fs.mach, &fs.free}, {fs.peak, &fs.local}} {
-		if T, rho, ok := s.ss.start(p0-fs.p0, t0-fs.t0); ok {
-			g.starts[i] = expansionStart{mach: s.mach, T: T, rho: rho}
-		}
+	if T, rho, ok := fs.free.start(p0-fs.p0, t0-fs.t0); ok {
+		g.start = expansionStart{mach: fs.mach, T: T, rho: rho}
 	}
 	return g
 }

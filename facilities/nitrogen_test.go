@@ -244,12 +244,13 @@ func TestStateFromStagnation(t *testing.T) {
 	}
 }
 
-// TestStagnationNear: a stagnation state with the starts of a nearby
+// TestStagnationNear: a stagnation state with the start of a nearby
 // FloorSlopes (StagnationNear, 3e-9 and 2e-9 relative away in p0 and T0) gives
-// State's figures to within 2e-15 relative at the FloorSlopes' Mach number and
-// the local condensation margin to within 1e-15, and State's to the bit at
-// another Mach number and at a speed (no start there); without the figures of
-// a FloorSlopes it is NitrogenStagnation.
+// State's figures to within 2e-15 relative at the FloorSlopes' Mach number,
+// and State's and LocalCondensationMargin's to the bit at another Mach number,
+// at a speed and to the condensation peak (no start there), and at a Mach
+// number of 0.99 of the peak and above; without the figures of a FloorSlopes
+// it is NitrogenStagnation.
 func TestStagnationNear(t *testing.T) {
 	t.Parallel()
 	f := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumNitrogen}}
@@ -270,7 +271,7 @@ func TestStagnationNear(t *testing.T) {
 					{want.Static.Pressure, got.Static.Pressure}, {want.Static.Density, got.Static.Density}} {
 					assert.InEpsilon(t, c[0], c[1], 2e-15, "M %g, %g Pa, %g K", m, p1, t1)
 				}
-				assert.InDelta(t, f.LocalCondensationMargin(p1, t1), f.LocalCondensationMarginFrom(&g), 1e-15)
+				assert.Equal(t, f.LocalCondensationMargin(p1, t1), f.LocalCondensationMarginFrom(&g))
 				for _, o := range []facilities.Setting{{Mach: 0.5}, {Speed: 150}} {
 					o.StagnationPressure, o.StagnationTemperature = p1, t1
 					want, wantErr := f.State(o)
@@ -280,6 +281,11 @@ func TestStagnationNear(t *testing.T) {
 				}
 			}
 		}
+	}
+	for _, m := range []float64{1.386, 1.4} {
+		fs := f.NitrogenFloorSlopes(2e5, 150, m, nil)
+		require.True(t, fs.OK)
+		assert.Equal(t, facilities.NitrogenStagnation(2e5, 150*(1+1e-9)), fs.StagnationNear(2e5, 150*(1+1e-9)), "M %g", m)
 	}
 	var none facilities.FloorSlopes
 	assert.Equal(t, facilities.NitrogenStagnation(2e5, 150), none.StagnationNear(2e5, 150))
