@@ -556,9 +556,17 @@ func (sv *solver) solve() (candidate, error) {
 }
 
 // relaxed returns a copy of the solver with the named limit relaxed by 1 %: a
-// maximum raised, a minimum lowered.
+// maximum raised, a minimum lowered. The copy, and its facility where the
+// relaxation changes it, are sv's spares, which the next call overwrites: the
+// binding gains re-solve one after another and keep none of a re-solve but
+// its figures.
 func (sv *solver) relaxed(name string) (*solver, bool) {
-	r := *sv
+	if sv.spare == nil {
+		sv.spare, sv.spareFacility = new(solver), new(facilities.Facility)
+	}
+	r, fc := sv.spare, sv.spareFacility
+	*r = *sv
+	r.spare, r.spareFacility = nil, nil
 	r.evals, r.warnings, r.polishEvals = 0, nil, 0
 	// The facility and the problem are copied only where the relaxation
 	// changes them.
@@ -569,8 +577,8 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 		p, r.p = &pc, &pc
 	case facilities.ConstraintCondensation, facilities.ConstraintBoiling, facilities.ConstraintCavitation, sv.loadName, sv.floorName:
 	default:
-		fc := *sv.f
-		f, r.f = &fc, &fc
+		*fc = *sv.f
+		f, r.f = fc, fc
 	}
 	if sv.memo != nil {
 		// A relaxed facility may hold another static pressure (water).
@@ -643,7 +651,7 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	if err := r.setLimits(); err != nil {
 		return nil, false
 	}
-	return &r, true
+	return r, true
 }
 
 // cellAt returns the width of one cell of the structured search's grid over

@@ -268,6 +268,11 @@ type solver struct {
 	// grids keeps the water's properties on the temperature grids of the
 	// cavitation search (atWaterCav; nil until it runs).
 	grids *waterGrids
+	// spare and spareFacility are the relaxed copy of the solver and of its
+	// facility that the binding gains' re-solves reuse (relaxed); nil until
+	// the first.
+	spare         *solver
+	spareFacility *facilities.Facility
 }
 
 // newSolver validates the problem and sets up the search.
