@@ -297,17 +297,17 @@ func (w Walls) Summary(pts []Point, liftSlope float64) Corrections {
 	case w.Kind == WallsClosed:
 		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionBlockage, fmt.Sprintf("closed-wall blockage is not defined at M %.3g (≥ 1) or without a test-section area", w.Mach)})
 	default:
-		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionBlockage, fmt.Sprintf("%s walls: no classical blockage correction; the facility's own wall-interference method governs", w.Kind)})
+		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionBlockage, w.Kind + " walls: no classical blockage correction; the facility's own wall-interference method governs"})
 	}
 	if w.Liquid && w.Applied {
 		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionMach, "water: the Mach number is not a similarity target; q_c and V_c are corrected"})
 	}
 	if !upwash {
-		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionUpwash, fmt.Sprintf("%s walls: no classical lift-interference correction; the facility's own wall-interference method governs", w.Kind)})
+		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionUpwash, w.Kind + " walls: no classical lift-interference correction; the facility's own wall-interference method governs"})
 	}
 	switch {
 	case w.Kind != WallsClosed:
-		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionStreamlineCurvature, fmt.Sprintf("%s walls: the streamline-curvature correction is computed for closed walls only", w.Kind)})
+		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionStreamlineCurvature, w.Kind + " walls: the streamline-curvature correction is computed for closed walls only"})
 	case !w.CurvatureKnown:
 		c.NotComputed = append(c.NotComputed, NotComputed{CorrectionStreamlineCurvature, "the facility gives no streamline-curvature factor τ2 (streamline_curvature_factor, from Barlow, Rae & Pope 1999, ch. 10, for 0.25·c/B of the model)"})
 	case liftSlope == 0:

@@ -53,7 +53,7 @@ func Choose(lc *Setup, f *facilities.Facility, q float64) (Choice, error) {
 			if err != nil {
 				return Choice{}, err
 			}
-			return Choice{Report: r, Reason: fmt.Sprintf("balance %s as requested", id), All: []Report{r}}, nil
+			return Choice{Report: r, Reason: "balance " + id + " as requested", All: []Report{r}}, nil
 		}
 		ids := make([]string, len(f.Balances))
 		for i, b := range f.Balances {
