@@ -31,8 +31,12 @@
 // It prints requests per second, latency percentiles, the count of answers that
 // were not 200 and the process's CPU time per request (with -serve, server and
 // load generator together) for each phase, and each plan phase's rate as a percentage of the
-// health checks'; with -serve also how many group commits stored the distinct
-// plans and how many records each held on average. -cpuprofile writes a CPU profile of the whole run (with -serve,
+// health checks'; with -serve also the ratio of a health check's CPU time to a
+// plan's (where the process runs short of CPU, as on a machine shared with other
+// work, a plan phase's share is about that ratio, and a share well below it is
+// time spent waiting; over PostgreSQL the server's backends' CPU is not in it),
+// and how many group commits stored the distinct plans and
+// how many records each held on average. -cpuprofile writes a CPU profile of the whole run (with -serve,
 // server and load generator together); -only distinct (or repeated, health) runs
 // that phase alone, so that the profile is of it alone.
 package main
@@ -197,6 +201,17 @@ func run(args []string, out io.Writer) error {
 			fmt.Fprintf(out, ", distinct %.1f %%", 100*rates[1]/health)
 		}
 		fmt.Fprintln(out)
+		if *serve {
+			// Where the process runs short of CPU, a plan phase's share is about
+			// this ratio; a share well below it is time the phase spent waiting
+			// (or, over PostgreSQL, its backends' CPU, which is not the process's).
+			hc := results[len(results)-1].cpuPerRequest()
+			fmt.Fprintf(out, "CPU of a health check per CPU of a plan: repeated %.1f %%", 100*hc/results[0].cpuPerRequest())
+			if distinct != nil {
+				fmt.Fprintf(out, ", distinct %.1f %%", 100*hc/results[1].cpuPerRequest())
+			}
+			fmt.Fprintln(out)
+		}
 	}
 	if groups > 0 {
 		fmt.Fprintf(out, "distinct plans stored in %d group commits, %.2f records each on average\n",

@@ -53,8 +53,9 @@ func TestRunInProcess(t *testing.T) {
 		assert.NotEqual(t, "0", m[3], "%s: CPU µs/request", name)
 	}
 	assert.Regexp(t, `plans per health check: repeated \d+\.\d %, distinct \d+\.\d %\n`, out.String(), "ratio line")
+	assert.Regexp(t, `CPU of a health check per CPU of a plan: repeated \d+\.\d %, distinct \d+\.\d %\n`, out.String(), "CPU ratio line")
 	assert.Regexp(t, `distinct plans stored in [1-9]\d* group commits, \d+\.\d\d records each on average\n`, out.String(), "group commit line")
-	assert.Equal(t, 6, strings.Count(out.String(), "\n"), "lines in:\n%s", out.String())
+	assert.Equal(t, 7, strings.Count(out.String(), "\n"), "lines in:\n%s", out.String())
 }
 
 func TestVaried(t *testing.T) {
