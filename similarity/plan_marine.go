@@ -289,7 +289,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	eval := func(t float64) candidate { y, _ := evalAt(t, waterPropsAt(t)); return y }
 	// top is the candidate at the grid's warmest temperature, once known.
 	var top candidate
-	haveTop := false
+	topRoom, haveTop := 0.0, false
 	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
 	// seen are Re/m and the distance outside the cavitation band of every
 	// usable candidate considered.
@@ -315,7 +315,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		m := sv.water
 		i := m.slot(tb)
 		wp := waterProps{rho: m.rho[i], mu: m.mu[i], pv: m.vapourPressure(tb)}
-		y, _ := evalAt(tb, wp)
+		y, room := evalAt(tb, wp)
 		if y.ok && sv.cavDistance(y.sig) == 0 &&
 			y.r*s*sv.L <= sv.fl.Reynolds && s*sv.L*y.r/sv.fl.Reynolds <= 1 {
 			y.rlo, y.rhi, y.capHi = y.r, y.r, capHi
@@ -323,7 +323,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			return y
 		}
 		// The same state as the grid's warmest, where that is tb itself.
-		top, haveTop = y, cavGridT(ta, tb, cavGrid-1) == tb
+		top, topRoom, haveTop = y, room, cavGridT(ta, tb, cavGrid-1) == tb
 	}
 	if sv.grids == nil {
 		sv.grids = &waterGrids{}
@@ -331,15 +331,35 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	wg := sv.grids.grid(ta, tb)
 	if (sv.cavFirst() || sv.obj.weighted) && !sv.feasOnly && !sv.noCavEnd {
 		if !haveTop {
-			top, _ = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
+			top, topRoom = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
 			haveTop = true
+		}
+		// The candidate at the grid's coldest temperature, once asked for.
+		var cold candidate
+		coldRoom, haveCold := 0.0, false
+		coldAt := func() candidate {
+			if !haveCold {
+				cold, coldRoom = evalAt(cavGridT(ta, tb, 0), wg.wp[0])
+				haveCold = true
+			}
+			return cold
 		}
 		var y candidate
 		ok := false
 		if sv.obj.weighted {
-			y, ok = sv.cavEndWeighted(evalAt, wg, top, s, target)
-		} else if y, ok = sv.cavEnd(evalAt, wg, top); ok {
+			y, ok = sv.cavEndWeighted(wg, top, coldAt, s, target)
+		} else if y, ok = sv.cavEnd(wg, top, coldAt); ok {
 			y.rlo, y.rhi = y.r, y.r
+		} else if sv.cavThenReynolds() {
+			// The search's own targets inside the band, where σ falls with T.
+			root := func() (candidate, bool) {
+				if target > coldAt().r && target < top.r {
+					t := sv.rootHi(func(t float64) float64 { return wr(t) - target }, ta, tb, true)
+					return eval(t), true
+				}
+				return candidate{}, false
+			}
+			y, ok = sv.cavBand(evalAt, wg, top, topRoom, coldAt(), coldRoom, s, root)
 		}
 		if ok {
 			if y.r <= y.rlo*(1+limitSlack) {
@@ -455,8 +475,8 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 // cavEnd returns, with the cavitation number first in a priority, the
 // candidate at the coldest or the warmest water of the grid g where the
 // cavitation band lies out of reach over the whole range and that end comes
-// nearest it, and true; false where that is not shown. evalAt is atWaterCav's
-// candidate at one temperature; top is its candidate at g's warmest.
+// nearest it, and true; false where that is not shown. top is atWaterCav's
+// candidate at g's warmest temperature, coldAt gives the one at its coldest.
 //
 // At each temperature T the chosen σ lies between σ_lo = (lo − p_v)/q and
 // σ_hi = (hi − p_v)/q, the static pressures lo and hi the facility can hold
@@ -469,7 +489,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 // lower still, farther from it; and where σ at the warmest, σ_lo there, lies
 // above the band, every colder σ lies higher: that end is strictly the best on
 // the first level, whatever the later levels.
-func (sv *solver) cavEnd(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate) (candidate, bool) {
+func (sv *solver) cavEnd(g *waterGrid, top candidate, coldAt func() candidate) (candidate, bool) {
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
 	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
 	if sv.held {
@@ -478,7 +498,7 @@ func (sv *solver) cavEnd(evalAt func(float64, waterProps) (candidate, float64), 
 	if top.ok && top.sig > sf+tol && g.falls(lo) {
 		return top, true
 	}
-	if cold, _ := evalAt(cavGridT(g.ta, g.tb, 0), g.wp[0]); cold.ok && cold.sig < sf-tol && g.falls(hi) {
+	if cold := coldAt(); cold.ok && cold.sig < sf-tol && g.falls(hi) {
 		return cold, true
 	}
 	return candidate{}, false
@@ -488,8 +508,9 @@ func (sv *solver) cavEnd(evalAt func(float64, waterProps) (candidate, float64), 
 // coldest or the warmest water of the grid g where that end is shown to be the
 // best, with the Re/m reachable at its cavitation level (rlo, rhi, as
 // atWaterCav's search would find them), and true; false where that is not
-// shown. top is the candidate at g's warmest; s is the scale, target the Re/m
-// atWaterCav looks for.
+// shown. top is atWaterCav's candidate at g's warmest temperature, coldAt
+// gives the one at its coldest; s is the scale, target the Re/m atWaterCav
+// looks for.
 //
 // Of the weighted sum only wc·a² + wr·b² moves with the temperature, a =
 // ln(σ/σ_full) and b = ln(Re/Re_full) (the Froude term moves with the speed
@@ -520,7 +541,7 @@ func (sv *solver) cavEnd(evalAt func(float64, waterProps) (candidate, float64), 
 // Each test keeps a margin (1e-9 on σ, 1e-6 on the slopes' products) for
 // rounding. Where the target Re/m lies between the ends' the search's root
 // for it is left to the search.
-func (sv *solver) cavEndWeighted(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate, s, target float64) (candidate, bool) {
+func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() candidate, s, target float64) (candidate, bool) {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	if !(wc > 0) || !(wr >= 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) || !top.ok {
 		return candidate{}, false
@@ -534,7 +555,7 @@ func (sv *solver) cavEndWeighted(evalAt func(float64, waterProps) (candidate, fl
 	if !g.falls(lo) || !g.falls(hi) {
 		return candidate{}, false
 	}
-	cold, _ := evalAt(cavGridT(g.ta, g.tb, 0), g.wp[0])
+	cold := coldAt()
 	if !cold.ok || (target > cold.r && target < top.r) {
 		return candidate{}, false
 	}
@@ -581,6 +602,110 @@ func (sv *solver) cavEndWeighted(evalAt func(float64, waterProps) (candidate, fl
 		return cold, true
 	}
 	return candidate{}, false
+}
+
+// cavBand is atWaterCav's search with the priority of the cavitation number,
+// then the Reynolds number, where σ falls with T over the whole range
+// (waterGrid.falls for both pressure limits) and the range's ends are
+// usable, so that every temperature is: the grid's temperatures inside the
+// band are then those from the first at or below its upper end, ia, to the
+// last at or above its lower end, ib − 1, found by bisection on the grid's
+// indices. The full search's edges lie in the cells (ia − 1, ia) and
+// (ib − 1, ib) (cavEdge), or, where no grid temperature lies in the band,
+// its crossing in the cell (ia − 1, ia) (cavCrossing); with the target Re/m
+// (root) they are its only candidates that can be the best, since Re/m rises
+// with T and the band's level is 0 on the whole stretch between them: where
+// the flight's Re/m lies outside the stretch's, |ln(Re/Re_full)| is least at
+// one of its ends, and every other grid temperature inside the band lies
+// farther from the flight's Reynolds number, every one outside it out of the
+// band. It returns the candidate the full search finds at scale s, with the
+// Re/m it keeps at the band's level (rlo, rhi: the stretch's ends), and true;
+// false where no candidate lands in the band or the flight's Re/m lies inside
+// the stretch (the full search then runs). top and cold are atWaterCav's
+// candidates at g's warmest and coldest temperatures, with their rooms
+// (cavEdge).
+func (sv *solver) cavBand(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate, topRoom float64,
+	cold candidate, coldRoom, s float64, root func() (candidate, bool)) (candidate, bool) {
+	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
+	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
+	if sv.held {
+		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
+	}
+	if !top.ok || !cold.ok || !g.falls(lo) || !g.falls(hi) {
+		return candidate{}, false
+	}
+	var pts [cavGrid]candidate
+	var rooms [cavGrid]float64
+	var have [cavGrid]bool
+	pts[0], rooms[0], have[0] = cold, coldRoom, true
+	pts[cavGrid-1], rooms[cavGrid-1], have[cavGrid-1] = top, topRoom, true
+	at := func(i int) candidate {
+		if !have[i] {
+			pts[i], rooms[i] = evalAt(cavGridT(g.ta, g.tb, i), g.wp[i])
+			have[i] = true
+		}
+		return pts[i]
+	}
+	// first returns the least grid index whose candidate meets in, which
+	// holds from some index on (σ falls with the index); cavGrid for none.
+	first := func(in func(candidate) bool) int {
+		a, b := -1, cavGrid
+		for b-a > 1 {
+			if m := (a + b) / 2; in(at(m)) {
+				b = m
+			} else {
+				a = m
+			}
+		}
+		return b
+	}
+	// The band's ends as cavDistance tests them.
+	ia := first(func(y candidate) bool { return !(y.sig-(sf+tol) > 0) })
+	ib := first(func(y candidate) bool { return sf-tol-y.sig > 0 })
+	best := candidate{k: worst}
+	rlo, rhi := math.Inf(1), math.Inf(-1)
+	consider := func(y candidate) {
+		if !y.ok || sv.cavDistance(y.sig) != 0 {
+			return
+		}
+		rlo, rhi = min(rlo, y.r), max(rhi, y.r)
+		if !best.ok || y.k.less(best.k) {
+			best = y
+		}
+	}
+	switch {
+	case ia < ib:
+		if ia == 0 {
+			consider(cold)
+		}
+		if ib == cavGrid {
+			consider(top)
+		}
+		if ia > 0 {
+			consider(sv.cavEdge(evalAt, at(ia), at(ia-1), rooms[ia], rooms[ia-1]))
+		}
+		if ib < cavGrid {
+			consider(sv.cavEdge(evalAt, at(ib-1), at(ib), rooms[ib-1], rooms[ib]))
+		}
+	case ia > 0 && ia < cavGrid:
+		if a, b := at(ia-1), at(ia); (a.sig < sf) != (b.sig < sf) {
+			if m, room, ok := sv.cavCrossing(evalAt, a, b); ok {
+				consider(m)
+				consider(sv.cavEdge(evalAt, m, a, room, rooms[ia-1]))
+				consider(sv.cavEdge(evalAt, m, b, room, rooms[ia]))
+			}
+		}
+	}
+	if y, ok := root(); ok {
+		consider(y)
+	}
+	// Where the flight's Re/m lies inside the stretch, a grid temperature
+	// nearer it than the target's may be the best: the full search decides.
+	if re := sv.fl.Reynolds / (s * sv.L); !best.ok || (re > rlo && re < rhi) {
+		return candidate{}, false
+	}
+	best.rlo, best.rhi = rlo, rhi
+	return best, true
 }
 
 // cavEdge narrows the bracket [good, bad] of temperatures (either order) across
