@@ -43,19 +43,31 @@ func (m *waterMemo) vapourPressure(t float64) float64 {
 	return m.pv[i]
 }
 
-// waterStateKept returns facilities.Facility.State of a water facility that
-// does not hold its static pressure, at speed v, stagnation pressure p0 and
-// temperature t, with the water's properties from the memo, and true; false
-// where State would refuse the setting or the facility holds its static
-// pressure (the caller then asks State). The State is built by
-// facilities.LiquidState, as State builds it (TestWaterStateKeptMatchesFacility).
+// waterStateKept returns facilities.Facility.State of a water facility at
+// speed v, stagnation pressure p0 and temperature t, with the water's
+// properties from the memo, and true; false where State would refuse the
+// setting or the facility holds its static pressure and p0 is given (the
+// caller then asks State). Where the facility holds its static pressure p
+// (HeldStaticPressure) and p0 is 0, p0 is p + q, as State sets it. The State
+// is built by facilities.LiquidState, as State builds it
+// (TestWaterStateKeptMatchesFacility).
 func (sv *solver) waterStateKept(v, p0, t float64) (facilities.State, bool) {
-	if sv.f.StaticPressure != nil || !(p0 > 0) || math.IsInf(p0, 1) || !(v >= 0) || math.IsInf(v, 1) ||
+	held := sv.f.StaticPressure != nil
+	if held {
+		if p0 != 0 {
+			return facilities.State{}, false
+		}
+		p0 = sv.f.HeldStaticPressure()
+	}
+	if !(p0 > 0) || math.IsInf(p0, 1) || !(v >= 0) || math.IsInf(v, 1) ||
 		!(t >= facilities.WaterMinTemperature && t <= facilities.WaterMaxTemperature) {
 		return facilities.State{}, false
 	}
 	m := sv.water
 	i := m.slot(t)
+	if held {
+		p0 += 0.5 * m.rho[i] * v * v
+	}
 	return facilities.LiquidState(v, p0, t, m.rho[i], m.mu[i])
 }
 

@@ -17,8 +17,8 @@ import (
 // and the same State to the bit, in wtn-04 at random speeds (some with q past
 // p0, some negative), stagnation pressures and temperatures inside and outside
 // the water model, each temperature met several times (the memo's hits) among
-// others that evict it; a facility that holds its static pressure (cvt-07) is
-// left to State.
+// others that evict it; and in cvt-07, which holds its static pressure (p0
+// then follows, p + q), where a stagnation pressure given is left to State.
 func TestWaterStateKeptMatchesFacility(t *testing.T) {
 	rng := rand.New(rand.NewSource(23))
 	f, ok := facilities.DemoFacility("wtn-04")
@@ -52,6 +52,24 @@ func TestWaterStateKeptMatchesFacility(t *testing.T) {
 	held, ok := facilities.DemoFacility("cvt-07")
 	require.True(t, ok)
 	hv := &solver{f: &held, liquid: true, held: true, water: &waterMemo{}}
-	_, ok = hv.waterStateKept(5, held.StagnationPressure.Max, 293.15)
-	assert.False(t, ok, "cvt-07 holds its static pressure: its states are State's")
+	for i := 0; i < 5000; i++ {
+		temp := temps[rng.Intn(len(temps))]
+		v := 40 * rng.Float64()
+		if rng.Intn(8) == 0 {
+			v = 20 * (rng.Float64() - 0.5)
+		}
+		if rng.Intn(32) == 0 {
+			v = math.Inf(1)
+		}
+		want, err := held.State(facilities.Setting{Speed: v, StagnationTemperature: temp})
+		got, ok := hv.waterStateKept(v, 0, temp)
+		require.Equal(t, err == nil, ok, "cvt-07 at %g m/s, %g K: %v", v, temp, err)
+		if ok {
+			require.Equal(t, want, got, "cvt-07 at %g m/s, %g K", v, temp)
+			require.Equal(t, held.BoilingMargin(want), hv.boilingMargin(got), "boiling margin at %g K", temp)
+			require.Equal(t, held.CavitationMargin(want), hv.cavitationMargin(got), "cavitation margin at %g K", temp)
+		}
+	}
+	_, ok = hv.waterStateKept(5, 150000, 293.15)
+	assert.False(t, ok, "cvt-07 holds its static pressure: a stagnation pressure given is State's to check")
 }
