@@ -347,7 +347,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		var y candidate
 		ok := false
 		if sv.obj.weighted {
-			y, ok = sv.cavEndWeighted(wg, top, coldAt, s, target)
+			if y, ok = sv.cavEndWeighted(wg, top, coldAt, s, target); !ok {
+				y, ok = sv.cavTopWeighted(evalAt, wg, top, topRoom, coldAt(), coldRoom, s, target)
+			}
 		} else if y, ok = sv.cavEnd(wg, top, coldAt); ok {
 			y.rlo, y.rhi = y.r, y.r
 		} else if sv.cavThenReynolds() {
@@ -602,6 +604,53 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 		return cold, true
 	}
 	return candidate{}, false
+}
+
+// cavTopWeighted is cavEndWeighted where the warmest water lies inside the
+// cavitation band with σ at σ_full or above it (so at every colder
+// temperature too, σ_hi and σ_lo falling with T: waterGrid.falls) and the
+// Reynolds number below the flight's there (so at every temperature): the
+// cavitation term, ln²(σ/σ_full), never rises with T and the Reynolds term
+// falls, so the warmest is the best, strictly (wr > 0). The Re/m the full
+// search keeps at its cavitation level, 0, run from the band's colder end to
+// the warmest: the coldest grid temperature where it lies in the band, else
+// the edge the full search finds in the grid cell where σ enters the band
+// (bisection on the grid's indices, then cavEdge). Arguments as cavBand's
+// and cavEndWeighted's.
+func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate, topRoom float64,
+	cold candidate, coldRoom, s, target float64) (candidate, bool) {
+	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
+	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
+	if !(wc > 0) || !(wr > 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) || !top.ok || !cold.ok ||
+		sv.cavDistance(top.sig) != 0 || !(top.sig >= sf*(1-1e-12)) || !(s*sv.L*top.r < sv.fl.Reynolds) ||
+		(target > cold.r && target < top.r) {
+		return candidate{}, false
+	}
+	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
+	if sv.held {
+		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
+	}
+	if !g.falls(lo) || !g.falls(hi) {
+		return candidate{}, false
+	}
+	top.rlo, top.rhi = cold.r, top.r
+	if sv.cavDistance(cold.sig) == 0 {
+		return top, true
+	}
+	// The first grid index at or below the band's upper end (σ falls with
+	// the index), as cavDistance tests it; the warmest is one.
+	a, b := 0, cavGrid-1
+	ya, ra, yb, rb := cold, coldRoom, top, topRoom
+	for b-a > 1 {
+		m := (a + b) / 2
+		if y, room := evalAt(cavGridT(g.ta, g.tb, m), g.wp[m]); y.sig-(sf+tol) > 0 {
+			a, ya, ra = m, y, room
+		} else {
+			b, yb, rb = m, y, room
+		}
+	}
+	top.rlo = sv.cavEdge(evalAt, yb, ya, rb, ra).r
+	return top, true
 }
 
 // cavBand is atWaterCav's search with the priority of the cavitation number,
