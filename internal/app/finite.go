@@ -71,6 +71,10 @@ type walker struct {
 	// all the numbers it holds.
 	flat     []flatFloat
 	flatOnly bool
+	// at checks a value of the type at its address without reflect: set for
+	// float64, and for pointers, structs, slices and arrays whose parts all
+	// have one (no interface, map or recursion inside); nil otherwise.
+	at func(unsafe.Pointer) bool
 }
 
 func (w *walker) check(v reflect.Value) bool { return w.fn == nil || w.fn(v) }
@@ -113,10 +117,21 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 	switch t.Kind() {
 	case reflect.Float32, reflect.Float64:
 		w.fn = finite
+		if t.Kind() == reflect.Float64 {
+			ceiling := t == ceilingType
+			w.at = func(p unsafe.Pointer) bool { return finiteFloat(*(*float64)(p), ceiling) }
+		}
 	case reflect.Pointer:
 		e := compileWalker(t.Elem(), seen)
 		if !e.none() {
 			w.fn = func(v reflect.Value) bool { return v.IsNil() || e.check(v.Elem()) }
+			if e.at != nil {
+				w.fn = func(v reflect.Value) bool { return v.IsNil() || e.at(v.UnsafePointer()) }
+				w.at = func(p unsafe.Pointer) bool {
+					q := *(*unsafe.Pointer)(p)
+					return q == nil || e.at(q)
+				}
+			}
 		}
 	case reflect.Interface:
 		w.fn = func(v reflect.Value) bool {
@@ -148,7 +163,12 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 			}
 		}
 		if len(idx) > 0 || len(flat) > 0 {
+			w.at = structAt(t, flat, idx, ws)
+			at := w.at
 			w.flat, w.fn = flat, func(v reflect.Value) bool {
+				if at != nil && v.CanAddr() {
+					return at(v.Addr().UnsafePointer())
+				}
 				if v.CanAddr() {
 					if !floatsFinite(v.Addr().UnsafePointer(), flat) {
 						return false
@@ -190,6 +210,20 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 				}
 				return true
 			}
+			w.at = func(p unsafe.Pointer) bool { return sliceAt(p, size, e.flat) }
+		} else if e.at != nil {
+			// A slice of values that are walked in place.
+			size := t.Elem().Size()
+			w.fn = func(v reflect.Value) bool {
+				if v.Len() == 0 {
+					return true
+				}
+				return sliceEach(v.UnsafePointer(), v.Len(), size, e.at)
+			}
+			w.at = func(p unsafe.Pointer) bool {
+				s := *(*[]byte)(p) // the header of any slice: its data and length
+				return len(s) == 0 || sliceEach(unsafe.Pointer(unsafe.SliceData(s)), len(s), size, e.at)
+			}
 		} else if !e.none() {
 			w.fn = func(v reflect.Value) bool {
 				for i := range v.Len() {
@@ -227,6 +261,58 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 		}
 	}
 	return w
+}
+
+// structAt returns the in-place walk of a struct of type t with the float64
+// fields flat and the other fields idx walked by ws, or nil when one of those
+// has none (or is still being compiled: a recursive type).
+func structAt(t reflect.Type, flat []flatFloat, idx []int, ws []*walker) func(unsafe.Pointer) bool {
+	offs := make([]uintptr, len(idx))
+	ats := make([]func(unsafe.Pointer) bool, len(idx))
+	for k, i := range idx {
+		if ws[k].building || ws[k].at == nil {
+			return nil
+		}
+		offs[k], ats[k] = t.Field(i).Offset, ws[k].at
+	}
+	return func(p unsafe.Pointer) bool {
+		if !floatsFinite(p, flat) {
+			return false
+		}
+		for k, at := range ats {
+			if !at(unsafe.Add(p, offs[k])) {
+				return false
+			}
+		}
+		return true
+	}
+}
+
+// sliceAt reports whether every element of the slice whose header is at p,
+// of elements of size bytes holding the float64 fields flat alone, is finite.
+func sliceAt(p unsafe.Pointer, size uintptr, flat []flatFloat) bool {
+	s := *(*[]byte)(p) // the header of any slice: its data and length
+	if len(s) == 0 {
+		return true
+	}
+	d := unsafe.Pointer(unsafe.SliceData(s))
+	for i := range len(s) {
+		if !floatsFinite(unsafe.Add(d, uintptr(i)*size), flat) {
+			return false
+		}
+	}
+	return true
+}
+
+// sliceEach reports whether at holds for each of the n elements of size bytes
+// from p.
+func sliceEach(p unsafe.Pointer, n int, size uintptr, at func(unsafe.Pointer) bool) bool {
+	for i := range n {
+		if !at(unsafe.Add(p, uintptr(i)*size)) {
+			return false
+		}
+	}
+	return true
 }
 
 // flatFloat is a float64 field of a struct: its offset and index, and whether

@@ -114,7 +114,23 @@ func TestAllFiniteShapes(t *testing.T) {
 		Ceiling loads.Ceiling `json:"ceiling"`
 		Text    []string      `json:"text"`
 	}
+	// point and plain hold no interface, map or array: walked in place
+	// whole, their numbers behind pointers and in slices of slices too.
+	type point struct {
+		V    float64        `json:"v"`
+		Gain *float64       `json:"gain"`
+		Cap  *loads.Ceiling `json:"cap"`
+		Note string         `json:"note"`
+		Rows []row          `json:"rows"`
+	}
+	type plain struct {
+		Points []point `json:"points"`
+		P      *point  `json:"p"`
+		Names  []string
+	}
 	nan := math.NaN()
+	f := func(v float64) *float64 { return &v }
+	c := func(v float64) *loads.Ceiling { x := loads.Ceiling(v); return &x }
 	cases := []struct {
 		name string
 		v    any
@@ -136,6 +152,11 @@ func TestAllFiniteShapes(t *testing.T) {
 		{"behind a pointer, read in place", shape{One: &row{Load: math.Inf(1)}}, "one.load"},
 		{"a struct on its own, not addressable", row{Load: nan}, "load"},
 		{"a bare float", nan, ""},
+		{"in place, finite", &plain{Points: []point{{V: 1, Gain: f(2), Cap: c(math.Inf(1)), Rows: []row{{Load: 3}}}, {}}, P: &point{}}, ""},
+		{"in place, in a row of a point", &plain{Points: []point{{V: 1}, {Rows: []row{{Load: 1}, {Load: nan}}}}}, "points[1].rows[1].load"},
+		{"in place, behind a pointer to a float", &plain{Points: []point{{Gain: f(math.Inf(-1))}}}, "points[0].gain"},
+		{"in place, a ceiling behind a pointer at -Inf", &plain{P: &point{Cap: c(math.Inf(-1))}}, "p.cap"},
+		{"in place, behind a pointer to a struct", plain{P: &point{V: nan}}, "p.v"},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
