@@ -13,15 +13,18 @@ import (
 // isentrope and a² = (∂p/∂ρ)_s of the same equation.
 
 // nitrogenPR holds the Peng–Robinson constants of nitrogen in mass units: a in
-// Pa·m⁶/kg² (without α(T)), b in m³/kg, κ, and R in J/(kg·K).
-var nitrogenPR = func() struct{ a, b, kappa, r float64 } {
+// Pa·m⁶/kg² (without α(T)), b in m³/kg, κ, R in J/(kg·K), and 1/(2√2·b) in
+// kg/m³, the factor of the departure functions' logarithm.
+var nitrogenPR = func() struct{ a, b, kappa, r, iL float64 } {
 	r := MolarGasConstant / NitrogenMolarMass
 	tc, pc, om := NitrogenCriticalTemperature, NitrogenCriticalPressure, NitrogenAcentricFactor
-	return struct{ a, b, kappa, r float64 }{
+	b := prOmegaB * r * tc / pc
+	return struct{ a, b, kappa, r, iL float64 }{
 		a:     prOmegaA * r * r * tc * tc / pc,
-		b:     prOmegaB * r * tc / pc,
+		b:     b,
 		kappa: 0.37464 + om*(1.54226-0.26992*om),
 		r:     r,
+		iL:    1 / (2 * math.Sqrt2 * b),
 	}
 }()
 
@@ -33,6 +36,7 @@ var nitrogenPR = func() struct{ a, b, kappa, r float64 } {
 //
 // so that c_v⁰/R = −τ²·∂²α⁰/∂τ² (2.5 plus small terms, 3.5 for c_p⁰/R). a2, the
 // entropy constant, is left out: only differences of entropy are used.
+// nitrogenAt takes a1 = 2.5 as τ^2.5 = τ²·√τ in the entropy.
 var spanIdeal = struct{ a1, a3, a4, a5, a6, a7, a8 float64 }{
 	a1: 2.5, a3: -0.00784163, a4: -1.934819e-4, a5: -1.247742e-5, a6: 6.678326e-8,
 	a7: 1.012941, a8: 26.65788,
@@ -66,63 +70,70 @@ type n2Props struct {
 func nitrogenAt(T, rho float64) n2Props {
 	c := &nitrogenPR
 	r, b := c.r, c.b
+	// The reciprocals used more than once, each a division once: a division
+	// costs several multiplications.
+	iT, iRho := 1/T, 1/rho
 	// α(T) = (1 + κ(1 − √T_r))² and its T derivatives.
-	sq := math.Sqrt(T / NitrogenCriticalTemperature)
+	sq := math.Sqrt(T * (1 / NitrogenCriticalTemperature))
 	m := 1 + c.kappa*(1-sq)
 	aa := c.a * m * m
-	da := -c.a * c.kappa * m * sq / T                          // (aα)′
-	dda := c.a * c.kappa * sq / (2 * T * T) * (c.kappa*sq + m) // (aα)″
+	da := -c.a * c.kappa * m * sq * iT                             // (aα)′
+	dda := c.a * c.kappa * sq * (0.5 * iT * iT) * (c.kappa*sq + m) // (aα)″
 
 	br := b * rho
 	one := 1 - br
 	d := 1 + br*(2-br)
-	const s2 = math.Sqrt2
-	l := prLog(br) / (2 * s2 * b)
+	iOne, iD := 1/one, 1/d
+	l := prLog(br) * c.iL
 	rt := r * T
 	var n n2Props
-	n.p = rho*rt/one - aa*rho*rho/d
-	n.pRho = rt/(one*one) - 2*aa*rho*(1+br)/(d*d)
-	n.pT = rho*r/one - da*rho*rho/d
+	n.p = rho*rt*iOne - aa*rho*rho*iD
+	n.pRho = rt*iOne*iOne - 2*aa*rho*(1+br)*iD*iD
+	n.pT = rho*r*iOne - da*rho*rho*iD
 
 	// Ideal-gas parts of Span et al. (2000) in τ = Tc/T.
 	g := &spanIdeal
-	tau := NitrogenCriticalTemperature / T
-	it := 1 / tau
+	tau := NitrogenCriticalTemperature * iT
+	it := T * (1 / NitrogenCriticalTemperature)
 	e := math.Exp(-g.a8 * tau)
+	ie := 1 / (1 - e)
+	ee := e * ie // e/(1 − e)
 	// τ·∂α⁰/∂τ and −τ²·∂²α⁰/∂τ².
-	tat := g.a1 + g.a3*tau - it*(g.a4+it*(2*g.a5+it*3*g.a6)) + g.a7*g.a8*tau*e/(1-e)
-	cv0 := g.a1 - it*(2*g.a4+it*(6*g.a5+it*12*g.a6)) + g.a7*g.a8*g.a8*tau*tau*e/((1-e)*(1-e))
+	tat := g.a1 + g.a3*tau - it*(g.a4+it*(2*g.a5+it*3*g.a6)) + g.a7*g.a8*tau*ee
+	cv0 := g.a1 - it*(2*g.a4+it*(6*g.a5+it*12*g.a6)) + g.a7*g.a8*g.a8*tau*tau*ee*ie
 	// ln(1 − e) by its series where e is small (below 480 K: e is 2.5e-15 at
-	// 100 K, 1.4e-5 at 300 K), one logarithm less; and ln ρ − ln(1 − bρ) of s
-	// as one.
+	// 100 K, 1.4e-5 at 300 K), one logarithm less; and the logarithms of s,
+	// ln(1 − bρ) − ln ρ − a1·ln τ with a1 = 2.5, as one: τ^2.5 = τ²/sq
+	// (sq = √(T/Tc) = τ^−½).
 	var ln1e float64
 	if e < 1e-3 {
 		ln1e = -e * (1 + e*(0.5+e*(1.0/3+0.25*e)))
 	} else {
 		ln1e = math.Log(1 - e)
 	}
-	alpha0 := g.a1*math.Log(tau) + g.a3*tau + it*(g.a4+it*(g.a5+it*g.a6)) + g.a7*ln1e
+	alpha0 := g.a3*tau + it*(g.a4+it*(g.a5+it*g.a6)) + g.a7*ln1e // less a1·ln τ
 
 	n.cv = r*cv0 + T*dda*l
-	n.h = rt*(1+tat) + (T*da-aa)*l + n.p/rho - rt
-	n.s = r*(tat-alpha0+math.Log(one/rho)) + da*l
+	n.h = rt*(1+tat) + (T*da-aa)*l + n.p*iRho - rt
+	n.s = r*(tat-alpha0+math.Log(one*sq*iRho*it*it)) + da*l
 	n.valid = one > 0 && n.pRho > 0 && n.cv > 0 && rho > 0 && n.pT != 0
 	if !n.valid {
 		return n
 	}
 	// a² = (∂p/∂ρ)_T + X, X = T·(∂p/∂T)²/(ρ²·c_v), and its derivatives for the
 	// Newton steps of nitrogenExpand. (aα)‴ = −1.5·(aα)″/T.
-	x := T * n.pT * n.pT / (rho * rho * n.cv)
+	iCv, iPT := 1/n.cv, 1/n.pT
+	x := T * n.pT * n.pT * iRho * iRho * iCv
 	n.a2 = n.pRho + x
-	pRhoT := r/(one*one) - 2*da*rho*(1+br)/(d*d)
-	pRhoRho := 2*b*rt/(one*one*one) - 2*aa*((1+2*br)/(d*d)-4*b*rho*(1+br)*one/(d*d*d))
-	pTT := -dda * rho * rho / d
+	pRhoT := r*iOne*iOne - 2*da*rho*(1+br)*iD*iD
+	pRhoRho := 2*b*rt*iOne*iOne*iOne - 2*aa*((1+2*br)*iD*iD-4*b*rho*(1+br)*one*iD*iD*iD)
+	pTT := -dda * rho * rho * iD
 	dcv0 := 2*g.a4*it*it + it*it*it*(12*g.a5+36*g.a6*it) +
-		g.a7*g.a8*g.a8*(2*tau*e/((1-e)*(1-e))-g.a8*tau*tau*e*(1+e)/((1-e)*(1-e)*(1-e)))
-	cvT := -r*tau/T*dcv0 - 0.5*dda*l
-	cvRho := T * dda / d
-	n.a2T = pRhoT + x/T + x*(2*pTT/n.pT-cvT/n.cv)
-	n.a2Rho = pRhoRho + x*(2*pRhoT/n.pT-2/rho-cvRho/n.cv)
+		g.a7*g.a8*g.a8*(2*tau*ee*ie-g.a8*tau*tau*ee*(1+e)*ie*ie)
+	cvT := -r*tau*iT*dcv0 - 0.5*dda*l
+	cvRho := T * dda * iD
+	n.a2T = pRhoT + x*iT + x*(2*pTT*iPT-cvT*iCv)
+	n.a2Rho = pRhoRho + x*(2*pRhoT*iPT-2*iRho-cvRho*iCv)
 	return n
 }
 
