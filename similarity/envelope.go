@@ -40,6 +40,8 @@ type TradePoint struct {
 // preparing a Mach number one rounding away (0.47 and 0.47000000000000003).
 func (sv *solver) trade(s float64, n int) []TradePoint {
 	pts := make([]TradePoint, n)
+	sv.slopeRoot = true
+	defer func() { sv.slopeRoot = false }()
 	for i := range pts {
 		u := sv.machOrSpeedMin
 		switch {

@@ -445,8 +445,12 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// are usable: no refinement then.
 	settled := sv.cavThenReynolds() && zero(best) && grid[0].ok && grid[len(grid)-1].ok
 	if lo, hi := max(0, float64(ibest-1)), min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta && !settled {
-		g := sv.gridMin(eval, ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1), 3, 1e-12, sv.obj.weighted, false, false)
-		consider(g)
+		a, b := ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1)
+		if t, ok := sv.cavSlopeRoot(wg, grid[int(lo)], s, a, b); ok && ibest > 0 && ibest < cavGrid-1 {
+			consider(eval(t))
+		} else {
+			consider(sv.gridMin(eval, a, b, 3, 1e-12, sv.obj.weighted, false, false))
+		}
 	}
 	if !best.ok {
 		x.fail, x.k = best.fail, worst
@@ -651,6 +655,91 @@ func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, fl
 	}
 	top.rlo = sv.cavEdge(evalAt, yb, ya, rb, ra).r
 	return top, true
+}
+
+// cavSlopeRoot returns the temperature in [a, b] where the weighted sum's
+// slope in T is 0, and true, where a weighted cavitation search's best grid
+// temperature lies inside [a, b] (its neighbours) with σ below σ_full at a
+// (so σ = σ_hi over [a, b], σ_hi falling with T: waterGrid.falls) and the
+// slope changes sign from a to b; false otherwise (the search then refines by
+// Brent's method, gridMin) or the solver does not ask for it (slopeRoot:
+// the trade curve's points). ya is the grid's candidate at a; s the scale.
+// Of the weighted sum only W = wc·A² + wr·B² moves with T, A = ln(σ_hi/σ_full),
+// B = ln(Re/Re_full), so
+//
+//	W′/2 = wc·A·A′ + wr·B·B′
+//	A′ = −(p_v′ + c·½V²·ρ′)/(k − p_v − c·½V²·ρ) − ρ′/ρ, B′ = ρ′/ρ − μ′/μ
+//
+// (k the highest pressure, c = 1 with a stagnation-pressure range and 0
+// where the static pressure is held), from the water's slopes
+// (facilities.WaterDensitySlope, WaterVapourPressureSlope,
+// WaterViscositySlope). Its root is found by regula falsi with the Illinois
+// modification to 1e-13 relative: W′ is computed to about 1e-15 relative
+// where W itself, flat at its minimum, places the minimum only to about 1e-8
+// (the square root of the rounding), which Brent's method on W spent some 30
+// states to reach.
+func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s, a, b float64) (float64, bool) {
+	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
+	sf := sv.fl.Marine.Cavitation
+	if !sv.obj.weighted || !sv.slopeRoot || !(wc > 0) || !(wr >= 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) ||
+		!ya.ok || !(ya.sig < sf*(1-1e-9)) || !(b > a) {
+		return 0, false
+	}
+	k, cq := sv.f.StagnationPressure.Max, 1.0
+	lo := sv.f.StagnationPressure.Min
+	if sv.held {
+		k, lo, cq = sv.f.StaticPressure.Max, sv.f.StaticPressure.Min, 0
+	}
+	if !g.falls(k) || !g.falls(lo) {
+		return 0, false
+	}
+	v := ya.machOrSpeed
+	kq := 0.5 * v * v
+	re := s * sv.L * v / sv.fl.Reynolds
+	slope := func(t float64) float64 {
+		sv.evals++ // the water's properties and slopes at t, counted as a state
+		rho, dRho := facilities.WaterDensity(t), facilities.WaterDensitySlope(t)
+		mu, dMu := facilities.WaterViscosity(t, rho), facilities.WaterViscositySlope(t, rho, dRho)
+		pv, dPv := facilities.WaterVapourPressure(t), facilities.WaterVapourPressureSlope(t)
+		room := k - pv - cq*kq*rho
+		sig := room / (kq * rho)
+		if !(room > 0) || !(sig > 1e-9*sf) {
+			return math.NaN()
+		}
+		dA := -(dPv+cq*kq*dRho)/room - dRho/rho
+		return wc*math.Log(sig/sf)*dA + wr*math.Log(re*rho/mu)*(dRho/rho-dMu/mu)
+	}
+	fa, fb := slope(a), slope(b)
+	if !(fa < 0) || !(fb > 0) {
+		return 0, false
+	}
+	side := 0
+	for j := 0; j < 100 && b-a > 1e-13*b; j++ {
+		t := a - fa*(b-a)/(fb-fa)
+		if !(t > a && t < b) {
+			t = 0.5 * (a + b)
+		}
+		f := slope(t)
+		switch {
+		case f == 0:
+			return t, true
+		case !(f == f):
+			return 0, false
+		case f < 0:
+			a, fa = t, f
+			if side == -1 {
+				fb *= 0.5
+			}
+			side = -1
+		default:
+			b, fb = t, f
+			if side == 1 {
+				fa *= 0.5
+			}
+			side = 1
+		}
+	}
+	return a - fa*(b-a)/(fb-fa), true
 }
 
 // cavBand is atWaterCav's search with the priority of the cavitation number,

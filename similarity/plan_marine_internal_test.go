@@ -121,28 +121,8 @@ func TestCavEndMatchesGrid(t *testing.T) {
 		{Weights: map[string]float64{"reynolds": 1, "cavitation": 0.05}}, {Weights: map[string]float64{"cavitation": 1, "froude": 1}}}
 	searches, settled, near := 0, 0, 0
 	for i := 0; i < 1000; i++ {
-		held := i%2 == 0
-		f := &facilities.Facility{ID: "w", Name: "random water tunnel", Medium: facilities.Medium{Kind: facilities.MediumWater},
-			TestSection: facilities.TestSection{Width: 0.3 + rng.Float64(), Height: 0.3 + rng.Float64(), Length: 3, Walls: "closed"}}
-		vlo := 0.3 + 2*rng.Float64()
-		f.Speed = &facilities.Range{Min: vlo, Max: vlo + 1 + 15*rng.Float64()}
-		tlo := 278 + 10*rng.Float64()
-		f.StagnationTemperature = facilities.Range{Min: tlo, Max: tlo + 1 + 25*rng.Float64()}
-		if held {
-			f.StaticPressure = &facilities.Range{Min: 5e3 + 4e4*rng.Float64(), Max: 1.2e5 + 3e5*rng.Float64()}
-		} else {
-			plo := 1.5e5 + 1e5*rng.Float64()
-			f.StagnationPressure = facilities.Range{Min: plo, Max: plo * (1 + rng.Float64())}
-			if i%4 == 1 {
-				// A fixed stagnation pressure: σ crosses the band as T moves.
-				f.StagnationPressure.Max = plo
-			}
-		}
-		art := &Article{ReferenceLength: 0.2 + 3*rng.Float64(), ReferenceArea: 0.5, Span: 0.2 + 2*rng.Float64(),
-			FrontalArea: 0.02 + 0.3*rng.Float64(), WettedArea: 2}
-		m := Marine{Water: WaterSea, Temperature: 275 + 30*rng.Float64(), Depth: 50 * rng.Float64() * rng.Float64(), Speed: 1 + 20*rng.Float64()}
-		fl, err := m.Resolve(art.ReferenceLength)
-		require.NoError(t, err)
+		f, art, fl := randomVessel(t, rng, i)
+		held := f.StaticPressure != nil
 		for _, obj := range objectives {
 			sv, err := newSolver(&Problem{Flight: fl, Article: art, Facility: f, Objective: obj})
 			require.NoError(t, err)
@@ -202,4 +182,81 @@ func TestCavEndMatchesGrid(t *testing.T) {
 	t.Logf("%d of %d searches settled by a certificate; %d not the same to the bit", settled, searches, near)
 	require.Greater(t, settled, searches/4)
 	require.Less(t, near, searches/100)
+}
+
+// randomVessel draws the i-th random vessel and water tunnel of the tests
+// below, as TestPlanMarineReference draws them: half hold their static
+// pressure (i even), a quarter have a fixed stagnation pressure (i = 1 mod 4).
+func randomVessel(t *testing.T, rng *rand.Rand, i int) (*facilities.Facility, *Article, FlightState) {
+	t.Helper()
+	held := i%2 == 0
+	f := &facilities.Facility{ID: "w", Name: "random water tunnel", Medium: facilities.Medium{Kind: facilities.MediumWater},
+		TestSection: facilities.TestSection{Width: 0.3 + rng.Float64(), Height: 0.3 + rng.Float64(), Length: 3, Walls: "closed"}}
+	vlo := 0.3 + 2*rng.Float64()
+	f.Speed = &facilities.Range{Min: vlo, Max: vlo + 1 + 15*rng.Float64()}
+	tlo := 278 + 10*rng.Float64()
+	f.StagnationTemperature = facilities.Range{Min: tlo, Max: tlo + 1 + 25*rng.Float64()}
+	if held {
+		f.StaticPressure = &facilities.Range{Min: 5e3 + 4e4*rng.Float64(), Max: 1.2e5 + 3e5*rng.Float64()}
+	} else {
+		plo := 1.5e5 + 1e5*rng.Float64()
+		f.StagnationPressure = facilities.Range{Min: plo, Max: plo * (1 + rng.Float64())}
+		if i%4 == 1 {
+			// A fixed stagnation pressure: σ crosses the band as T moves.
+			f.StagnationPressure.Max = plo
+		}
+	}
+	art := &Article{ReferenceLength: 0.2 + 3*rng.Float64(), ReferenceArea: 0.5, Span: 0.2 + 2*rng.Float64(),
+		FrontalArea: 0.02 + 0.3*rng.Float64(), WettedArea: 2}
+	m := Marine{Water: WaterSea, Temperature: 275 + 30*rng.Float64(), Depth: 50 * rng.Float64() * rng.Float64(), Speed: 1 + 20*rng.Float64()}
+	fl, err := m.Resolve(art.ReferenceLength)
+	require.NoError(t, err)
+	return f, art, fl
+}
+
+// TestCavSlopeRoot checks the trade curve's refinement of a weighted
+// cavitation search (cavSlopeRoot, slopeRoot) against Brent's method on the
+// weighted sum it replaces: on random vessels and tunnels (randomVessel), two
+// weighted objectives, random speeds and scales, the candidate found has a
+// weighted sum no higher than Brent's but for its rounding (1e-12 relative)
+// and lies within 1e-6 relative of it in temperature (the flat minimum's
+// position, which W places only to about 1e-8 relative, the slope to about
+// 1e-13), and the root settles some of the searches (the others: an end, or
+// the band reached).
+func TestCavSlopeRoot(t *testing.T) {
+	rng := rand.New(rand.NewSource(31))
+	objectives := []Objective{{Weights: map[string]float64{"reynolds": 1, "cavitation": 4}},
+		{Weights: map[string]float64{"reynolds": 1, "cavitation": 0.05, "froude": 0.5}}}
+	searches, rooted, worst := 0, 0, 0.0
+	for i := 0; i < 300; i++ {
+		f, art, fl := randomVessel(t, rng, i)
+		for _, obj := range objectives {
+			sv, err := newSolver(&Problem{Flight: fl, Article: art, Facility: f, Objective: obj})
+			require.NoError(t, err)
+			for j := 0; j < 20; j++ {
+				u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*rng.Float64()
+				s := sv.sLo * math.Pow(sv.sHi/sv.sLo, rng.Float64())
+				c := sv.prepare(u)
+				sv.slopeRoot = true
+				e0 := sv.evals
+				got := sv.atTarget(&c, s, math.Inf(1))
+				e1 := sv.evals
+				sv.slopeRoot = false
+				want := sv.atTarget(&c, s, math.Inf(1))
+				searches++
+				if got == want {
+					continue
+				}
+				if e1-e0 < sv.evals-e1 {
+					rooted++
+				}
+				require.Equal(t, want.ok, got.ok)
+				require.LessOrEqual(t, got.k.v[0], want.k.v[0]*(1+1e-12), "case %d, %+v, %g m/s, scale %g: %+v, want %+v", i, obj, u, s, got, want)
+				require.InEpsilon(t, want.t0, got.t0, 1e-6, "case %d, %+v, %g m/s, scale %g", i, obj, u, s)
+				worst = max(worst, math.Abs(got.t0/want.t0-1))
+			}
+		}
+	}
+	t.Logf("%d of %d searches refined by the slope's root with fewer states; temperatures within %.2g relative of Brent's", rooted, searches, worst)
+	require.Greater(t, rooted, 50)
 }

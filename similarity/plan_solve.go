@@ -226,6 +226,14 @@ type solver struct {
 	// temperature (cavEnd, cavEndWeighted), for the test that compares the
 	// full search with them.
 	noCavEnd bool
+	// slopeRoot: a weighted cavitation search refines an interior grid
+	// temperature by the root of the weighted sum's slope (cavSlopeRoot)
+	// instead of Brent's method: set while the trade curve is computed,
+	// whose points stand alone (in the search, the refinement's figure at
+	// one speed is compared with others' to the rounding of a flat minimum,
+	// and where a continuum of settings meets every target, which the
+	// rounding picks moves the plan).
+	slopeRoot bool
 	// polishEvals counts the refinement's objective evaluations.
 	polishEvals int
 	// polishImproved: the refinement found a better plan than the structured
