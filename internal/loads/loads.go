@@ -26,6 +26,7 @@ package loads
 import (
 	"fmt"
 	"strings"
+	"sync"
 
 	"scalematch/facilities"
 	"scalematch/similarity"
@@ -83,7 +84,14 @@ func Check(c *Case) (Result, error) {
 	s2 := s * s
 	res := Result{FitBroken: Fit(f, a, s)}
 	w := facilities.NewWalls(f, a.FrontalArea*s2, a.ReferenceArea*s2, c.State.Mach)
-	pts := append([]facilities.Point(nil), c.Matrix.Points...)
+	// The points with their wall corrections are scratch: the answer copies
+	// what it shows of them.
+	buf := pointScratch.Get().(*[]facilities.Point)
+	pts := append((*buf)[:0], c.Matrix.Points...)
+	defer func() {
+		*buf = pts[:0]
+		pointScratch.Put(buf)
+	}()
 	w.Apply(pts)
 	res.Corrections = w.Summary(pts, a.Aero.CorrectionLiftSlope())
 	res.Warnings = append(res.Warnings, w.Warnings...)
@@ -117,6 +125,10 @@ func Check(c *Case) (Result, error) {
 	}
 	return res, nil
 }
+
+// pointScratch holds Check's corrected points (*[]facilities.Point, no
+// pointers in them).
+var pointScratch = sync.Pool{New: func() any { return new([]facilities.Point) }}
 
 // verdict is does_not_fit with broken fit limits, not_verified without reports,
 // else the best report's verdict: with every balance checked, the model can go
