@@ -433,10 +433,16 @@ func Plan(p *Problem, s *Settings) (*Result, error) {
 	if s == nil {
 		s = &Settings{}
 	}
-	sv, err := newSolver(p)
+	sc := scratchPool.Get().(*planScratch)
+	defer func() {
+		*sc = planScratch{}
+		scratchPool.Put(sc)
+	}()
+	sv, err := newSolverIn(&sc.sv, p)
 	if err != nil {
 		return nil, err
 	}
+	sv.scratch = sc
 	best, err := sv.solveCorrected()
 	if err != nil {
 		return nil, err

@@ -561,12 +561,16 @@ func (sv *solver) solve() (candidate, error) {
 // binding gains re-solve one after another and keep none of a re-solve but
 // its figures.
 func (sv *solver) relaxed(name string) (*solver, bool) {
-	if sv.spare == nil {
+	switch {
+	case sv.spare != nil:
+	case sv.scratch != nil:
+		sv.spare, sv.spareFacility = &sv.scratch.spare, &sv.scratch.facility
+	default:
 		sv.spare, sv.spareFacility = new(solver), new(facilities.Facility)
 	}
 	r, fc := sv.spare, sv.spareFacility
 	*r = *sv
-	r.spare, r.spareFacility = nil, nil
+	r.spare, r.spareFacility, r.scratch = nil, nil, nil
 	r.evals, r.warnings, r.polishEvals = 0, nil, 0
 	// The facility and the problem are copied only where the relaxation
 	// changes them.

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"sync"
 
 	"scalematch/facilities"
 	"scalematch/internal/check"
@@ -278,17 +279,33 @@ type solver struct {
 	grids *waterGrids
 	// spare and spareFacility are the relaxed copy of the solver and of its
 	// facility that the binding gains' re-solves reuse (relaxed); nil until
-	// the first.
+	// the first, or the plan's scratch's.
 	spare         *solver
 	spareFacility *facilities.Facility
+	// scratch is the plan's pooled scratch (Plan), nil outside Plan.
+	scratch *planScratch
 }
 
+// planScratch is the memory of a plan's solver and of the relaxed copy its
+// binding gains reuse: Plan takes it from scratchPool and returns it cleared,
+// since nothing of a plan's answer points into a solver (the answer copies
+// its figures, notes and lists).
+type planScratch struct {
+	sv, spare solver
+	facility  facilities.Facility
+}
+
+var scratchPool = sync.Pool{New: func() any { return new(planScratch) }}
+
 // newSolver validates the problem and sets up the search.
-func newSolver(p *Problem) (*solver, error) {
+func newSolver(p *Problem) (*solver, error) { return newSolverIn(new(solver), p) }
+
+// newSolverIn is newSolver in sv, a zero solver.
+func newSolverIn(sv *solver, p *Problem) (*solver, error) {
 	if p == nil || p.Facility == nil || p.Article == nil {
 		return nil, check.Invalid("incomplete problem", []check.FieldError{{Field: "facility", Message: "a problem needs a flight, an article and a facility"}})
 	}
-	sv := &solver{p: p, f: p.Facility, fl: p.Flight, art: p.Article, L: p.Article.ReferenceLength,
+	*sv = solver{p: p, f: p.Facility, fl: p.Flight, art: p.Article, L: p.Article.ReferenceLength,
 		loadScale: 1, load: p.LoadLimit, floor: p.LoadFloor, floorScale: 1, aim: p.Flight.Mach, aimRatio: 1}
 	if err := sv.checkInput(); err != nil {
 		return nil, err
