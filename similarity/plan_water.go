@@ -7,11 +7,11 @@ import (
 )
 
 // waterMemo keeps the properties of water at the temperatures a plan met
-// last, in a small table indexed by a hash of the temperature: water's density,
-// viscosity and vapour pressure depend on the temperature alone, and the
-// planner asks for the same few temperatures (the ends of the usable T0 range)
-// at every speed, in the search, the trade curve and every re-solve. A
-// solver's relaxed copies share it.
+// last, in a small table indexed by a hash of the temperature, two ways to a
+// set: water's density, viscosity and vapour pressure depend on the
+// temperature alone, and the planner asks for the same few temperatures (the
+// ends of the usable T0 range) at every speed, in the search, the trade curve
+// and every re-solve. A solver's relaxed copies share it.
 type waterMemo struct {
 	t    [waterMemoSize]float64 // 0: unset (no water state is at 0 K)
 	rho  [waterMemoSize]float64 // kg/m³ (facilities.WaterDensity)
@@ -24,13 +24,22 @@ type waterMemo struct {
 const waterMemoSize = 16
 
 // slot returns the index of temperature t in the table, computing the density
-// and viscosity there when t is not kept.
+// and viscosity there when t is not kept. A temperature hashes to a set of two
+// slots, 2h and 2h + 1: a new one takes the first, its former occupant moves
+// to the second, so that two temperatures of one set asked for in turn (cvt-07's
+// ends of the T0 range, 281.15 and 307.15 K) both stay kept.
 func (m *waterMemo) slot(t float64) int {
-	i := int((math.Float64bits(t) * 0x9e3779b97f4a7c15) >> (64 - 4))
-	if m.t[i] != t {
-		rho := facilities.WaterDensity(t)
-		m.t[i], m.rho[i], m.mu[i], m.pvOK[i] = t, rho, facilities.WaterViscosity(t, rho), false
+	i := int((math.Float64bits(t)*0x9e3779b97f4a7c15)>>(64-3)) * 2
+	switch t {
+	case m.t[i]:
+		return i
+	case m.t[i+1]:
+		return i + 1
 	}
+	j := i + 1
+	m.t[j], m.rho[j], m.mu[j], m.pv[j], m.pvOK[j] = m.t[i], m.rho[i], m.mu[i], m.pv[i], m.pvOK[i]
+	rho := facilities.WaterDensity(t)
+	m.t[i], m.rho[i], m.mu[i], m.pvOK[i] = t, rho, facilities.WaterViscosity(t, rho), false
 	return i
 }
 

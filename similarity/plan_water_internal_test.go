@@ -73,3 +73,43 @@ func TestWaterStateKeptMatchesFacility(t *testing.T) {
 	_, ok = hv.waterStateKept(5, 150000, 293.15)
 	assert.False(t, ok, "cvt-07 holds its static pressure: a stagnation pressure given is State's to check")
 }
+
+// TestWaterMemoKeepsTwoOfASet checks that two temperatures of one set of the
+// water memo, asked for in turn, both stay kept (the second way), with their
+// properties the memo's own to the bit: the pairs of 2000 random
+// temperatures that share a set, and cvt-07's ends of the T0 range.
+func TestWaterMemoKeepsTwoOfASet(t *testing.T) {
+	rng := rand.New(rand.NewSource(37))
+	set := func(temp float64) int { return (&waterMemo{}).slot(temp) }
+	pairs := [][2]float64{{281.15, 307.15}}
+	byset := map[int]float64{}
+	for range 2000 {
+		temp := 273.15 + 150*rng.Float64()
+		if u, ok := byset[set(temp)]; ok {
+			pairs = append(pairs, [2]float64{u, temp})
+		}
+		byset[set(temp)] = temp
+	}
+	require.Greater(t, len(pairs), 100)
+	for _, p := range pairs {
+		m := &waterMemo{}
+		for range 3 {
+			for _, temp := range p {
+				i := m.slot(temp)
+				require.Equal(t, temp, m.t[i])
+				require.Equal(t, facilities.WaterDensity(temp), m.rho[i])
+				require.Equal(t, facilities.WaterViscosity(temp, m.rho[i]), m.mu[i])
+				require.Equal(t, facilities.WaterVapourPressure(temp), m.vapourPressure(temp))
+			}
+		}
+		if set(p[0]) == set(p[1]) {
+			kept := 0
+			for _, u := range m.t {
+				if u == p[0] || u == p[1] {
+					kept++
+				}
+			}
+			require.Equal(t, 2, kept, "%g and %g K", p[0], p[1])
+		}
+	}
+}
