@@ -79,7 +79,10 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 	if err := lc.validate(q); err != nil {
 		return Report{}, err
 	}
-	rs, err := compile(b, idx)
+	// The ratings are the check's own: their rows live on its stack when the
+	// balance has at most ten.
+	var buf [10]rating
+	rs, err := compileIn(buf[:], b, idx)
 	if err != nil {
 		return Report{}, err
 	}

@@ -112,7 +112,8 @@ func newLimit(art *similarity.Article, f *facilities.Facility, in Installation, 
 			continue
 		}
 		found = true
-		rs, err := BalanceRatings(f, k)
+		var rbuf [10]rating
+		rs, err := compileIn(rbuf[:], b, k)
 		if err != nil {
 			return nil, err
 		}

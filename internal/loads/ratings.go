@@ -79,6 +79,12 @@ func balancePath(i int) string {
 // ratings compiles the limits of the balance at balancePath(idx); the path is
 // written only when there is an error to name.
 func compile(b *facilities.Balance, idx int) (Ratings, error) {
+	return compileIn(nil, b, idx)
+}
+
+// compileIn is compile with the rows appended to buf[:0] (a caller's array
+// for the usual six components and a few gauge rows; nil: allocated).
+func compileIn(buf []rating, b *facilities.Balance, idx int) (Ratings, error) {
 	var fe []facilities.FieldError
 	path := ""
 	at := func(field string) string {
@@ -94,8 +100,10 @@ func compile(b *facilities.Balance, idx int) (Ratings, error) {
 	case !(sf >= 1) || math.IsInf(sf, 0):
 		fe = append(fe, facilities.FieldError{Field: at(".safety_factor"), Message: fmt.Sprintf("must be at least 1, got %g", sf)})
 	}
-	rs := Ratings{SafetyFactor: sf, Fraction: 1, single: [6]int{-1, -1, -1, -1, -1, -1},
-		rows: make([]rating, 0, 6+len(b.Combined))}
+	rs := Ratings{SafetyFactor: sf, Fraction: 1, single: [6]int{-1, -1, -1, -1, -1, -1}, rows: buf[:0]}
+	if cap(buf) < 6+len(b.Combined) {
+		rs.rows = make([]rating, 0, 6+len(b.Combined))
+	}
 	single := [6]*float64{b.Limits.Normal, b.Limits.Axial, b.Limits.Side,
 		b.Limits.RollingMoment, b.Limits.PitchingMoment, b.Limits.YawingMoment}
 	for i, l := range single {
