@@ -443,12 +443,18 @@ func NitrogenViscosity(T, rho float64) float64 {
 	d := rho / ljRhoc
 	d2 := d * d
 	d10 := d2 * d2 * d2 * d2 * d2
-	lnTau := math.Log(tau)
-	pw := func(x float64) float64 { return math.Exp(x * lnTau) }
-	mur := 10.72*pw(0.1)*d2 +
-		(0.03989*pw(0.25)*d10+0.001208*pw(3.2)*d10*d2)*math.Exp(-d) +
-		-7.402*pw(0.9)*d2*math.Exp(-d2) +
-		4.620*pw(0.3)*d*math.Exp(-d2*d)
+	// The powers of τ from one exponential, τ^0.1 (ln τ = ln(Tc/(ε/k)) −
+	// ln T*, no second logarithm), and two square roots: τ^0.3 = (τ^0.1)³,
+	// τ^0.9 = (τ^0.3)³, τ^3.2 = τ³·(τ^0.1)², τ^0.25 = √√τ.
+	t01 := math.Exp(0.1 * (math.Log(ljTc/ljEpsK) - lt))
+	t03 := t01 * t01 * t01
+	t09 := t03 * t03 * t03
+	t32 := tau * tau * tau * t01 * t01
+	t025 := math.Sqrt(math.Sqrt(tau))
+	mur := 10.72*t01*d2 +
+		(0.03989*t025*d10+0.001208*t32*d10*d2)*math.Exp(-d) +
+		-7.402*t09*d2*math.Exp(-d2) +
+		4.620*t03*d*math.Exp(-d2*d)
 	return 1e-6 * (mu0 + mur)
 }
 
