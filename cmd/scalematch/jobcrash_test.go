@@ -15,18 +15,20 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-// longCampaign is examples/campaign-j16.json over a 50 × 50 grid: 2505
-// conditions in three facilities, a few seconds of planning.
+// longCampaign is examples/campaign-j16.json over a 90 × 90 grid: 8105
+// conditions in three facilities, a few seconds of planning (a 50 × 50 grid
+// could finish, on a busy machine, before the test saw it running).
 func longCampaign(t *testing.T) string {
 	t.Helper()
 	b, err := os.ReadFile("../../examples/campaign-j16.json")
 	require.NoError(t, err)
 	var req map[string]any
 	require.NoError(t, json.Unmarshal(b, &req))
-	alts, machs := make([]float64, 50), make([]float64, 50)
+	const n = 90
+	alts, machs := make([]float64, n), make([]float64, n)
 	for i := range alts {
-		alts[i] = 500 + 12000*float64(i)/49
-		machs[i] = 0.4 + 0.42*float64(i)/49
+		alts[i] = 500 + 12000*float64(i)/(n-1)
+		machs[i] = 0.4 + 0.42*float64(i)/(n-1)
 	}
 	req["grid"] = map[string]any{"altitudes": alts, "machs": machs}
 	out, err := json.Marshal(req)
