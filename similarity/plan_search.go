@@ -777,17 +777,22 @@ func (sv *solver) speedEdge(eval func(float64) candidate, xg float64, fg candida
 	return best
 }
 
-// bandLoMargin is ln(σ_hi/(σ_full − cavTol)), σ_hi being σ at the warmest
-// usable water and the highest static pressure (candidate.bandLo): ≥ 0 where
-// the band's lower end is reachable there, NaN where unknown. σ_hi falls about
-// as 1/V² (the pressure room over ½ρV²), so its logarithm is nearly linear in
-// the speed's, and regula falsi on it takes about half the steps it takes on
-// σ_hi itself (cvt-07: 8 → 4).
+// bandLoMargin is ln((σ_hi + c)/(σ_full − cavTol + c)), σ_hi being σ at the
+// warmest usable water and the highest static pressure (candidate.bandLo), c
+// = 1 with a stagnation-pressure range and 0 where the static pressure is
+// held: ≥ 0 where the band's lower end is reachable there, NaN where unknown.
+// σ_hi + c = 2(k − p_v)/(ρV²) at that water (k the highest pressure), so the
+// margin is exactly linear in ln V where the warmest water does not move with
+// the speed, and speedRoot, which interpolates in ln V, lands on the band's
+// end in one step.
 func (sv *solver) bandLoMargin(f candidate) float64 {
 	if !f.bandOK {
 		return math.NaN()
 	}
 	lower := sv.fl.Marine.Cavitation - sv.obj.cavTol
+	if !sv.held {
+		lower++
+	}
 	if !(lower > 0) {
 		return f.bandLo
 	}
@@ -810,9 +815,10 @@ func speedRoot(eval func(float64) candidate, xg float64, fg candidate, xb float6
 		if j%4 == 0 && math.Abs(xg-xb) > 0.5*w0 {
 			// The last three steps did not halve the bracket: a halving.
 		} else if mg-mb > 0 {
+			// Regula falsi in ln x (the margin is nearly linear there).
 			d := 0.05 * eps
 			lo, hi := math.Min(xg, xb)+d, math.Max(xg, xb)-d
-			if r := xg + mg/(mg-mb)*(xb-xg); r >= lo-d && r <= hi+d {
+			if r := xg * math.Exp(mg/(mg-mb)*math.Log(xb/xg)); r >= lo-d && r <= hi+d {
 				x = math.Min(math.Max(r, lo), hi)
 			}
 		}
