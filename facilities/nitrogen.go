@@ -266,17 +266,20 @@ func nitrogenNewton(n0 n2Props, mach, speed, T, rho float64) (float64, float64, 
 			kT, kRho = 0.5*m2*n.a2T, 0.5*m2*n.a2Rho
 		}
 		// Jacobian: ∂s/∂T = c_v/T, ∂s/∂ρ = −(∂p/∂T)/ρ², ∂h/∂T = c_v + (∂p/∂T)/ρ,
-		// ∂h/∂ρ = ((∂p/∂ρ) − T·(∂p/∂T)/ρ)/ρ.
-		j11, j12 := n.cv/T, -n.pT/(rho*rho)
-		j21, j22 := n.cv+n.pT/rho+kT, (n.pRho-T*n.pT/rho)/rho+kRho
+		// ∂h/∂ρ = ((∂p/∂ρ) − T·(∂p/∂T)/ρ)/ρ; three divisions (1/T, 1/ρ and
+		// 1/det), the rest multiplications.
+		iT, iRho := 1/T, 1/rho
+		j11, j12 := n.cv*iT, -n.pT*iRho*iRho
+		j21, j22 := n.cv+n.pT*iRho+kT, (n.pRho-T*n.pT*iRho)*iRho+kRho
 		det := j11*j22 - j12*j21
 		if det == 0 || math.IsNaN(det) {
 			return 0, 0, n2Props{}, false
 		}
-		dT := (f1*j22 - f2*j12) / det
-		dr := (j11*f2 - j21*f1) / det
+		iDet := 1 / det
+		dT := (f1*j22 - f2*j12) * iDet
+		dr := (j11*f2 - j21*f1) * iDet
 		// Keep the step inside the gas: at most a fifth of T and of ρ.
-		if k := math.Max(math.Abs(dT)/(0.2*T), math.Abs(dr)/(0.2*rho)); k > 1 {
+		if k := 5 * math.Max(math.Abs(dT)*iT, math.Abs(dr)*iRho); k > 1 {
 			dT /= k
 			dr /= k
 		}
