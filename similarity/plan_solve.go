@@ -813,13 +813,28 @@ func (sv *solver) floorMargin(c *machSetup, p0, t0 float64) (float64, string) {
 	if err != nil {
 		return -1, facilities.ConstraintCondensation
 	}
-	m, name := math.Min(sv.f.FreeStreamCondensationMargin(st), sv.localMargin(p0, t0))-sv.condMin, facilities.ConstraintCondensation
+	m, name := sv.condMargin(c.machOrSpeed, st, p0, t0)-sv.condMin, facilities.ConstraintCondensation
 	if c.vmin > 0 {
 		if v := st.Speed/c.vmin - 1; v < m {
 			m, name = v, facilities.ConstraintSpeedMin
 		}
 	}
 	return m, name
+}
+
+// condMargin returns the condensation margin of the state st at Mach number
+// (speed) u from (p0, T0): the lower of the free stream's and the local
+// expansion's (kept by localMargin). In nitrogen up to the local peak Mach
+// number it is the local one, the free stream's not computed: along a
+// nitrogen isentrope T/T_sat(p) falls as the gas expands, so the free stream,
+// on the same isentrope short of the peak, has at least the local margin
+// (TestFreeStreamMarginAboveLocal; warmMargin below).
+func (sv *solver) condMargin(u float64, st facilities.State, p0, t0 float64) float64 {
+	local := sv.localMargin(p0, t0)
+	if sv.f.Medium.Kind == facilities.MediumNitrogen && !sv.liquid && u <= sv.f.CondensationPeak() {
+		return local
+	}
+	return math.Min(sv.f.FreeStreamCondensationMargin(st), local)
 }
 
 // warmMargin is floorMargin where only its sign is read (is the warmest T0
@@ -1053,7 +1068,7 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
 	// CondensationMargin(stB), with the local expansion (the same at every
 	// Mach number) kept by localMargin instead of computed again.
-	if math.Min(sv.f.FreeStreamCondensationMargin(stB), sv.localMargin(pa, tb)) < sv.condMin {
+	if sv.condMargin(machOrSpeed, stB, pa, tb) < sv.condMin {
 		c.fail = facilities.ConstraintCondensation
 		return c
 	}
