@@ -347,8 +347,8 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		var y candidate
 		ok := false
 		if sv.obj.weighted {
-			if y, ok = sv.cavEndWeighted(wg, top, coldAt, s, target); !ok {
-				y, ok = sv.cavTopWeighted(evalAt, wg, top, topRoom, coldAt(), coldRoom, s, target)
+			if y, ok = sv.cavEndWeighted(wg, top, coldAt, s); !ok {
+				y, ok = sv.cavTopWeighted(evalAt, wg, top, topRoom, coldAt(), coldRoom, s)
 			}
 		} else if y, ok = sv.cavEnd(wg, top, coldAt); ok {
 			y.rlo, y.rhi = y.r, y.r
@@ -515,8 +515,7 @@ func (sv *solver) cavEnd(g *waterGrid, top candidate, coldAt func() candidate) (
 // best, with the Re/m reachable at its cavitation level (rlo, rhi, as
 // atWaterCav's search would find them), and true; false where that is not
 // shown. top is atWaterCav's candidate at g's warmest temperature, coldAt
-// gives the one at its coldest; s is the scale, target the Re/m atWaterCav
-// looks for.
+// gives the one at its coldest; s is the scale.
 //
 // Of the weighted sum only wc·a² + wr·b² moves with the temperature, a =
 // ln(σ/σ_full) and b = ln(Re/Re_full) (the Froude term moves with the speed
@@ -531,23 +530,26 @@ func (sv *solver) cavEnd(g *waterGrid, top candidate, coldAt func() candidate) (
 //   - σ below σ_full at the coldest water (so σ = σ_hi at every T), and Re
 //     above the flight's at the coldest: both terms rise with T; the coldest
 //     is the best.
-//   - σ below σ_full at the coldest and Re below the flight's at the warmest:
-//     the terms pull apart, W′/2 = wc·a·a′ + wr·b·b′ with a, a′ ≤ 0 < b′ and
-//     b < 0. With a = ln((k − p_v − c·q)/q) − ln σ_full (q = ½ρV², c = 1 with a
+//   - σ below σ_full at the coldest and Re below the flight's at the coldest:
+//     the terms pull apart where b < 0, W′/2 = wc·a·a′ + wr·b·b′ with a, a′ ≤
+//     0 < b′. With a = ln((k − p_v − c·q)/q) − ln σ_full (q = ½ρV², c = 1 with a
 //     stagnation-pressure range, 0 where the static pressure is held),
 //     |a′| = (p_v′ + c·½V²·ρ′)/(k − p_v − c·q) + ρ′/ρ, bounded over the range
 //     from the slopes at its ends (p_v′ rises, ρ′ and ρ′/ρ fall, ρ ≤ ρ(ta) +
 //     max(ρ′(ta), 0)·(tb − ta) and ρ ≥ min(ρ(ta), ρ(tb)) as ρ is concave), and
 //     b′ = d ln(ρ/μ)/dT between its values at the ends (it falls with T:
 //     facilities.TestWaterSlopesMonotone). |a| rises with T and |b| falls, so
-//     where wc·|a(tb)|·max|a′| < wr·|b(tb)|·min b′, W′ < 0 over the whole
-//     range and the warmest is the best; where wc·|a(ta)|·min|a′| >
-//     wr·|b(ta)|·max b′, W′ > 0 and the coldest is.
+//     where Re stays below the flight's up to the warmest and wc·|a(tb)|·max|a′|
+//     < wr·|b(tb)|·min b′, W′ < 0 over the whole range and the warmest is the
+//     best; where wc·|a(ta)|·min|a′| > wr·|b(ta)|·max b′ (b′·b > 0 where Re
+//     has passed the flight's), W′ > 0 and the coldest is.
 //
 // Each test keeps a margin (1e-9 on σ, 1e-6 on the slopes' products) for
-// rounding. Where the target Re/m lies between the ends' the search's root
-// for it is left to the search.
-func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() candidate, s, target float64) (candidate, bool) {
+// rounding. The search's other candidates, the temperature that meets a
+// target Re/m among them, then lie strictly behind the end on the weighted
+// sum, and where they reach the end's cavitation level (the Re/m it keeps)
+// between the ends' Re/m.
+func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() candidate, s float64) (candidate, bool) {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	if !(wc > 0) || !(wr >= 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) || !top.ok {
 		return candidate{}, false
@@ -562,7 +564,7 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 		return candidate{}, false
 	}
 	cold := coldAt()
-	if !cold.ok || (target > cold.r && target < top.r) {
+	if !cold.ok {
 		return candidate{}, false
 	}
 	lnRe := func(y candidate) float64 { return math.Log(s * sv.L * y.r / sv.fl.Reynolds) }
@@ -580,8 +582,6 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 	case bC > 0 && outside(cold):
 		cold.rlo, cold.rhi = cold.r, cold.r
 		return cold, true
-	case !(bT < 0):
-		return candidate{}, false
 	}
 	v := cold.machOrSpeed
 	kq := 0.5 * v * v
@@ -598,12 +598,12 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 	aC, aT := -math.Log(cold.sig/sf), -math.Log(top.sig/sf)
 	const m = 1 + 1e-6
 	switch {
-	case wc*aT*aHi*m < wr*-bT*g.dRe1:
+	case bT < 0 && wc*aT*aHi*m < wr*-bT*g.dRe1:
 		// W falls over the range: the warmest is the best, and every
 		// colder state lies nearer the band (σ falls with T).
 		top.rlo, top.rhi = cold.r, top.r
 		return top, true
-	case wc*aC*aLo > m*wr*-bC*g.dRe0 && outside(cold):
+	case wc*aC*aLo > m*wr*max(-bC, 0)*g.dRe0 && outside(cold):
 		cold.rlo, cold.rhi = cold.r, cold.r
 		return cold, true
 	}
@@ -622,12 +622,11 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 // (bisection on the grid's indices, then cavEdge). Arguments as cavBand's
 // and cavEndWeighted's.
 func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate, topRoom float64,
-	cold candidate, coldRoom, s, target float64) (candidate, bool) {
+	cold candidate, coldRoom, s float64) (candidate, bool) {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
 	if !(wc > 0) || !(wr > 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) || !top.ok || !cold.ok ||
-		sv.cavDistance(top.sig) != 0 || !(top.sig >= sf*(1-1e-12)) || !(s*sv.L*top.r < sv.fl.Reynolds) ||
-		(target > cold.r && target < top.r) {
+		sv.cavDistance(top.sig) != 0 || !(top.sig >= sf*(1-1e-12)) || !(s*sv.L*top.r < sv.fl.Reynolds) {
 		return candidate{}, false
 	}
 	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
