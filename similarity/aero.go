@@ -323,6 +323,12 @@ type Matrix struct {
 // when beta is nil) with the estimate's coefficients at each point. Errors are
 // *check.Error values naming "alpha", "beta" or "article.aero" fields.
 func (a Aero) Matrix(alpha Sweep, beta *Sweep) (Matrix, error) {
+	return a.MatrixIn(nil, alpha, beta)
+}
+
+// MatrixIn is Matrix with the points appended to points[:0], a caller's
+// buffer used when it holds them all (nil: allocated).
+func (a Aero) MatrixIn(points []facilities.Point, alpha Sweep, beta *Sweep) (Matrix, error) {
 	m, err := newAeroModel(a)
 	if err != nil {
 		return Matrix{}, err
@@ -341,7 +347,10 @@ func (a Aero) Matrix(alpha Sweep, beta *Sweep) (Matrix, error) {
 		return Matrix{}, check.Invalid("test matrix too large", []check.FieldError{{Field: "beta",
 			Message: fmt.Sprintf("%d α × %d β = %d points, more than the %d allowed", len(as), len(bs), len(as)*len(bs), MaxSweepPoints)}})
 	}
-	mx := Matrix{Points: make([]facilities.Point, 0, len(as)*len(bs)), AlphaPoints: len(as), BetaValues: len(bs)}
+	mx := Matrix{Points: points[:0], AlphaPoints: len(as), BetaValues: len(bs)}
+	if cap(points) < len(as)*len(bs) {
+		mx.Points = make([]facilities.Point, 0, len(as)*len(bs))
+	}
 	var stallAt []float64
 	for _, b := range bs {
 		for _, al := range as {

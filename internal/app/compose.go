@@ -237,6 +237,7 @@ func (p *Planner) Plan(ctx context.Context, req *schema.PlanRequest) (*schema.Pl
 	if err != nil {
 		return nil, err
 	}
+	defer pr.release()
 	return pr.plan()
 }
 
@@ -253,6 +254,23 @@ type preparedPlan struct {
 	// number, so plan leaves CheckFinite to the encoding's failure (planJSON)
 	// instead of walking every number of every answer.
 	encoded bool
+	// points is the pooled buffer of mx.Points (matrixScratch), which release
+	// returns: the answer copies what it shows of the points.
+	points *[]facilities.Point
+}
+
+// matrixScratch holds the buffers of prepared plans' test points
+// (*[]facilities.Point, no pointers in them).
+var matrixScratch = sync.Pool{New: func() any { return new([]facilities.Point) }}
+
+// release returns the test points' buffer once the plan is made; the prepared
+// plan is not used after.
+func (pp *preparedPlan) release() {
+	if pp.points != nil {
+		*pp.points = pp.mx.Points[:0]
+		matrixScratch.Put(pp.points)
+		pp.points, pp.mx.Points = nil, nil
+	}
 }
 
 // prepare validates req, resolves its facility, flight and test matrix and
@@ -281,7 +299,8 @@ func (p *Planner) prepare(ctx context.Context, req *schema.PlanRequest) (*prepar
 			fe.Add("condensation_peak_mach", "%s", msg)
 		}
 	}
-	mx, err := req.Article.Aero.Matrix(req.Alpha, req.Beta)
+	points := matrixScratch.Get().(*[]facilities.Point)
+	mx, err := req.Article.Aero.MatrixIn(*points, req.Alpha, req.Beta)
 	if err != nil && !fe.Merge("", err) {
 		return nil, err
 	}
@@ -303,7 +322,7 @@ func (p *Planner) prepare(ctx context.Context, req *schema.PlanRequest) (*prepar
 		fc.CondensationPeakMach = v
 		f = &fc
 	}
-	return &preparedPlan{req: req, f: f, flight: flight, mx: mx, id: id}, nil
+	return &preparedPlan{req: req, f: f, flight: flight, mx: mx, id: id, points: points}, nil
 }
 
 // plan runs the planner on a prepared request and assembles the answer.
@@ -493,6 +512,7 @@ func (p *Planner) planJSON(ctx context.Context, req *schema.PlanRequest) (planne
 	if err != nil {
 		return plannedJSON{}, err
 	}
+	defer pr.release()
 	pj := plannedJSON{id: pr.id, facilityID: pr.f.ID, facilityVersion: pr.f.Version, label: req.Label}
 	if pj.body, pj.stored = p.stored.get(pr.id); pj.stored {
 		return pj, nil
