@@ -1030,3 +1030,71 @@ func (sv *solver) cavFirst() bool {
 func (sv *solver) cavThenReynolds() bool {
 	return sv.cav && !sv.obj.weighted && len(sv.obj.levels) > 1 && sv.obj.levels[0] == gCavitation && sv.obj.levels[1] == gReynolds
 }
+
+// cavSpeedCut is the weighted speed search's evaluation of a vessel's grid
+// speed u (solver.gridCut): bestOverScales, unless a lower bound on the
+// weighted sum of every candidate at u (cavSpeedBound) lies above best's, the
+// grid's best so far; the speed then cannot be the grid's best, and it is
+// returned unsearched, not usable, its key the bound. Every later step of the
+// search reads only the grid's best and its neighbours' speeds, so the answer
+// is the same.
+func (sv *solver) cavSpeedCut(u float64, best candidate) candidate {
+	c := sv.prepare(u)
+	if best.ok && c.ok {
+		if lb := sv.cavSpeedBound(&c); lb > best.k.v[0] {
+			x := candidate{machOrSpeed: u, fail: facilities.ConstraintStaticPressureMax, k: key{q: math.Inf(1)}}
+			x.k.v[0] = lb
+			return x
+		}
+	}
+	return sv.bestOverScalesAt(&c, true)
+}
+
+// cavSpeedBound returns a lower bound on the weighted sum of every candidate
+// of a vessel's weighted cavitation search at the set-up c, at any
+// temperature in its usable range [ta, tb] and any scale up to sHi; 0 where
+// none is shown. Of the sum's terms (each ≥ 0) it bounds two:
+//
+//   - the cavitation number. The chosen σ is at most σ_hi = (k − p_v)/q − c
+//     (k the highest pressure, c = 1 with a stagnation-pressure range, 0
+//     where the static pressure is held; staticRange); p_v rises with T and
+//     q = ½ρV² is least at an end of the range (ρ concave), so σ_hi ≤
+//     (k − p_v(ta))/min(q(ta), q(tb)) − c over the range, and where that lies
+//     below σ_full the term is at least wc·ln²(that/σ_full);
+//   - the Reynolds number. Re/m = ρV/μ rises with T, so it is at most its
+//     value at tb (or the Re/m ceiling, rWaterTop), and the Reynolds number
+//     at most that on the largest model; where it falls short of the
+//     flight's the term is at least wr·ln²(Re/Re_full).
+//
+// The water model's monotony and concavity over its range are held by
+// facilities.TestWaterSlopesMonotone; outside that range the bound is 0. The
+// bound keeps a relative margin of 1e-9 for its rounding, and a term counts
+// only where it is above the rounding of a target met (exactTol).
+func (sv *solver) cavSpeedBound(c *machSetup) float64 {
+	if !sv.obj.weighted || sv.water == nil || !(c.ta >= facilities.WaterMinTemperature && c.tb <= facilities.WaterMaxTemperature) ||
+		c.qWaterT[0] != c.ta || c.qWaterT[1] != c.tb || !(c.qWater[0] > 0) || !(c.qWater[1] > 0) {
+		return 0
+	}
+	lb := 0.0
+	if wc := sv.obj.w[gCavitation]; wc > 0 {
+		sf := sv.fl.Marine.Cavitation
+		k, cq := sv.f.StagnationPressure.Max, 1.0
+		if sv.held {
+			k, cq = sv.f.StaticPressure.Max, 0
+		}
+		if pv := sv.water.vapourPressure(c.ta); k > pv {
+			if sig := (k-pv)/min(c.qWater[0], c.qWater[1]) - cq; sig < sf {
+				if l := math.Log(math.Max(sig, 1e-9*sf) / sf); -l > 2*exactTol {
+					lb += wc * l * l
+				}
+			}
+		}
+	}
+	if wr := sv.obj.w[gReynolds]; wr > 0 {
+		if re := c.rWaterTop * sv.sHi * sv.L; re > 0 && re < sv.fl.Reynolds*(1-1e-9) {
+			l := math.Log(re / sv.fl.Reynolds)
+			lb += wr * l * l
+		}
+	}
+	return lb * (1 - 1e-9)
+}

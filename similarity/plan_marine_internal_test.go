@@ -260,3 +260,74 @@ func TestCavSlopeRoot(t *testing.T) {
 	t.Logf("%d of %d searches refined by the slope's root with fewer states; temperatures within %.2g relative of Brent's", rooted, searches, worst)
 	require.Greater(t, rooted, 50)
 }
+
+// TestCavSpeedBound checks the weighted speed search's bound (cavSpeedBound)
+// and its cut (cavSpeedCut): on random vessels and tunnels (randomVessel),
+// three weighted objectives and random speeds, the bound never exceeds the
+// weighted sum the search finds at that speed, so that a speed cut could not
+// have been the grid's best; and whole solves with their binding gains' re-solves
+// give the same plans and gains to the bit with the cut and without it
+// (noSpeedCut), with fewer states.
+func TestCavSpeedBound(t *testing.T) {
+	rng := rand.New(rand.NewSource(37))
+	objectives := []Objective{{Weights: map[string]float64{"reynolds": 1, "cavitation": 4}},
+		{Weights: map[string]float64{"reynolds": 1, "cavitation": 0.05}}, {Weights: map[string]float64{"reynolds": 1, "cavitation": 1, "froude": 0.5}}}
+	bounded, speeds, plans, fewer := 0, 0, 0, 0
+	for i := 0; i < 120; i++ {
+		f, art, fl := randomVessel(t, rng, i)
+		for _, obj := range objectives {
+			p := &Problem{Flight: fl, Article: art, Facility: f, Objective: obj}
+			sv, err := newSolver(p)
+			require.NoError(t, err)
+			for j := 0; j < 10; j++ {
+				u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*rng.Float64()
+				c := sv.prepare(u)
+				if !c.ok {
+					continue
+				}
+				lb := sv.cavSpeedBound(&c)
+				x := sv.bestOverScalesAt(&c, true)
+				speeds++
+				if !x.ok {
+					continue
+				}
+				require.LessOrEqual(t, lb, x.k.v[0], "case %d, %+v, %g m/s", i, obj, u)
+				if lb > 0 {
+					bounded++
+				}
+			}
+			solve := func(noCut bool) (candidate, []float64, int) {
+				sv, err := newSolver(p)
+				require.NoError(t, err)
+				sv.noSpeedCut = noCut
+				best, err := sv.solveCorrected()
+				if err != nil {
+					return candidate{}, nil, sv.evals
+				}
+				res := sv.result(best)
+				var gains []float64
+				n := sv.evals
+				for _, b := range res.Binding {
+					g, e, err := sv.gain(b.Constraint, best)
+					if err == nil {
+						gains = append(gains, g)
+					}
+					n += e
+				}
+				return best, gains, n
+			}
+			got, gotGains, gotN := solve(false)
+			want, wantGains, wantN := solve(true)
+			require.Equal(t, want, got, "case %d, %+v", i, obj)
+			require.Equal(t, wantGains, gotGains, "case %d, %+v", i, obj)
+			require.LessOrEqual(t, gotN, wantN, "case %d, %+v", i, obj)
+			plans++
+			if gotN < wantN {
+				fewer++
+			}
+		}
+	}
+	t.Logf("%d of %d speeds bounded above 0; %d of %d solves with fewer states", bounded, speeds, fewer, plans)
+	require.Greater(t, bounded, speeds/10)
+	require.Greater(t, fewer, plans/4)
+}

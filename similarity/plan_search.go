@@ -174,6 +174,8 @@ func (sv *solver) golden(eval func(float64) candidate, a, b float64, n int, tol 
 // the cavitation band (candidate.top, candidate.band) and the one inside is
 // the better, the optimum is that speed: speedEdge finds it.
 func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol float64, brent, seed, edge bool) candidate {
+	cut := sv.gridCut
+	sv.gridCut = nil
 	best := eval(a)
 	if b <= a {
 		return best
@@ -189,7 +191,11 @@ func (sv *solver) gridMin(eval func(float64) candidate, a, b float64, n int, tol
 			ks[i] = best
 			continue
 		}
-		ks[i] = eval(xs[i])
+		if cut != nil {
+			ks[i] = cut(xs[i], ks[ibest])
+		} else {
+			ks[i] = eval(xs[i])
+		}
 		if ks[i].k.less(ks[ibest].k) {
 			ibest = i
 		}
@@ -525,6 +531,11 @@ func (sv *solver) solve() (candidate, error) {
 			search := func(a, b float64, n int, seed bool) candidate {
 				if plateau {
 					return sv.plateauMin(sv.bestOverScales, a, b, n, tolU, brent, seed)
+				}
+				if brent && sv.cav && sv.liquid && !sv.noSpeedCut {
+					// A speed whose weighted sum is bounded above the
+					// grid's best so far is not searched (cavSpeedCut).
+					sv.gridCut = sv.cavSpeedCut
 				}
 				return sv.gridMin(sv.bestOverScales, a, b, n, tolU, brent, seed, edge)
 			}

@@ -235,6 +235,14 @@ type solver struct {
 	// and where a continuum of settings meets every target, which the
 	// rounding picks moves the plan).
 	slopeRoot bool
+	// gridCut, where set, evaluates the grid of the next gridMin call, given
+	// the grid's best candidate so far; gridMin takes it (and clears it, so
+	// that the searches nested inside an evaluation do not see it). A
+	// vessel's weighted speed search sets it (cavSpeedCut).
+	gridCut func(machOrSpeed float64, best candidate) candidate
+	// noSpeedCut keeps every speed of the weighted speed search's grid
+	// (cavSpeedCut off), for the test that compares the search with it.
+	noSpeedCut bool
 	// polishEvals counts the refinement's objective evaluations.
 	polishEvals int
 	// polishImproved: the refinement found a better plan than the structured
