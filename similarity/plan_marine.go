@@ -673,7 +673,10 @@ func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, fl
 // where the static pressure is held), from the water's slopes
 // (facilities.WaterDensitySlope, WaterVapourPressureSlope,
 // WaterViscositySlope). Its root is found by regula falsi with the Illinois
-// modification to 1e-13 relative: W′ is computed to about 1e-15 relative
+// modification to 1e-13 relative (or to a point whose secant step, at the
+// bracket's slope, lies within that: where W′ there is down to its rounding,
+// the steps land on it again, and only halvings would close the bracket's far
+// end, some 20 of them): W′ is computed to about 1e-15 relative
 // where W itself, flat at its minimum, places the minimum only to about 1e-8
 // (the square root of the rounding), which Brent's method on W spent some 30
 // states to reach.
@@ -720,7 +723,11 @@ func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s, a, b float64) (flo
 		}
 		f := slope(t)
 		switch {
-		case f == 0:
+		case math.Abs(f)*(b-a) <= 1e-13*t*math.Abs(fb-fa):
+			// The secant step from t, at the bracket's slope, lies within
+			// the tolerance: t is the root to it. (Where W′ at t is down to
+			// its rounding, the steps would land on t again, and the
+			// bracket's far end would close in by halvings alone.)
 			return t, true
 		case !(f == f):
 			return 0, false
