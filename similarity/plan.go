@@ -435,14 +435,17 @@ func Plan(p *Problem, s *Settings) (*Result, error) {
 	}
 	sc := scratchPool.Get().(*planScratch)
 	defer func() {
+		setups, spare := sc.setups, sc.spareSetups
+		line, spareLine := sc.cond.line, sc.spareCond.line
 		*sc = planScratch{}
+		sc.setups, sc.spareSetups = setups, spare
+		sc.cond.line, sc.spareCond.line = line, spareLine
 		scratchPool.Put(sc)
 	}()
-	sv, err := newSolverIn(&sc.sv, p)
+	sv, err := newSolverIn(&sc.sv, p, sc)
 	if err != nil {
 		return nil, err
 	}
-	sv.scratch = sc
 	best, err := sv.solveCorrected()
 	if err != nil {
 		return nil, err

@@ -26,7 +26,18 @@ type localPoint struct{ p, t, m float64 }
 type condPoint struct{ p, t float64 }
 
 func newCondLineCache() *condLineCache {
-	return &condLineCache{line: make([]condPoint, 0, 64)}
+	cc := new(condLineCache)
+	cc.reset()
+	return cc
+}
+
+// reset empties cc, keeping the memory of its line.
+func (cc *condLineCache) reset() {
+	line := cc.line[:0]
+	if cap(line) == 0 {
+		line = make([]condPoint, 0, 64)
+	}
+	*cc = condLineCache{line: line}
 }
 
 // localMargin returns the facility's local condensation margin at (p0, T0)
@@ -36,9 +47,18 @@ func (sv *solver) localMargin(p0, t0 float64) float64 {
 		return sv.f.LocalCondensationMargin(p0, t0)
 	}
 	cc := sv.cond
-	for _, e := range cc.local {
-		if e.p == p0 && e.t == t0 && p0 > 0 {
-			return e.m
+	if p0 > 0 {
+		// The latest first: a point asked for again was mostly computed
+		// lately. A point is kept once, so the order finds the same entry.
+		for i := cc.next - 1; i >= 0; i-- {
+			if e := &cc.local[i]; e.p == p0 && e.t == t0 {
+				return e.m
+			}
+		}
+		for i := len(cc.local) - 1; i >= cc.next; i-- {
+			if e := &cc.local[i]; e.p == p0 && e.t == t0 {
+				return e.m
+			}
 		}
 	}
 	var m float64

@@ -598,6 +598,10 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	if sv.memo != nil {
 		// A relaxed facility may hold another static pressure (water).
 		r.memo = &stateMemos{}
+		if sv.scratch != nil {
+			r.memo = &sv.scratch.spareMemo
+			*r.memo = stateMemos{}
+		}
 	}
 	r.ivs, r.ivsFails, r.ivsKnown = nil, nil, false
 	switch name {
@@ -605,6 +609,10 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 		// The condensation line's bracket or level moves.
 		if sv.cond != nil {
 			r.cond = newCondLineCache()
+			if sv.scratch != nil {
+				r.cond = &sv.scratch.spareCond
+				r.cond.reset()
+			}
 		}
 	}
 	switch name {
@@ -613,7 +621,11 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 		// A set-up at one Mach number reads none of these: r shares sv's.
 	default:
 		if sv.setups != nil {
-			r.setups = make(map[float64]machSetup, 64)
+			r.setups = new(setupCache)
+			if sv.scratch != nil {
+				r.setups = &sv.scratch.spareSetups
+				r.setups.reset()
+			}
 		}
 	}
 	up := func(v float64) *float64 { v *= 1.01; return &v }

@@ -1,8 +1,10 @@
 package similarity
 
 import (
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"sync"
 
@@ -274,7 +276,7 @@ type solver struct {
 	// setups keeps the set-ups prepared, by Mach number (real-gas nitrogen;
 	// nil otherwise): the search, the trade curve and the re-solves that relax
 	// no limit a set-up reads share them.
-	setups map[float64]machSetup
+	setups *setupCache
 	// water keeps water's properties by temperature (a water facility's
 	// plans; nil otherwise), shared with the relaxed copies.
 	water *waterMemo
@@ -295,26 +297,83 @@ type solver struct {
 }
 
 // planScratch is the memory of a plan's solver and of the relaxed copy its
-// binding gains reuse: Plan takes it from scratchPool and returns it cleared,
-// since nothing of a plan's answer points into a solver (the answer copies
-// its figures, notes and lists).
+// binding gains reuse: Plan takes it from scratchPool and returns it cleared
+// but for the set-ups' memory, emptied, since nothing of a plan's answer
+// points into a solver (the answer copies its figures, notes and lists).
 type planScratch struct {
 	sv, spare solver
 	facility  facilities.Facility
+	// The memory of a nitrogen plan's solver (sv.setups, cond, memo, stags)
+	// and of the relaxed copies that keep their own (spare...): the set-ups'
+	// and the condensation line's slices are emptied, not cleared, between
+	// plans, so that their memory is reused.
+	setups, spareSetups setupCache
+	cond, spareCond     condLineCache
+	memo, spareMemo     stateMemos
+	stags               stagnations
+}
+
+// setupCache keeps a solver's set-ups by Mach number (speed): keys sorted by
+// it, each with the index of its set-up in kept, kept in the order prepared.
+// A map from Mach number to set-up allocated every set-up apart (a value
+// larger than 128 bytes is held out of line), 53 a nitrogen plan.
+type setupCache struct {
+	keys []setupKey
+	kept []machSetup
+}
+
+// setupKey is where the set-up at Mach number (speed) u lies in
+// setupCache.kept.
+type setupKey struct {
+	u float64
+	i int
+}
+
+// reset empties sc, keeping its memory.
+func (sc *setupCache) reset() { sc.keys, sc.kept = sc.keys[:0], sc.kept[:0] }
+
+// find returns where u lies in sc.keys: its index, found, or where it would
+// be inserted.
+func (sc *setupCache) find(u float64) (int, bool) {
+	return slices.BinarySearchFunc(sc.keys, u, func(k setupKey, u float64) int { return cmp.Compare(k.u, u) })
+}
+
+// get returns the set-up kept at u.
+func (sc *setupCache) get(u float64) (*machSetup, bool) {
+	if i, ok := sc.find(u); ok && u == u {
+		return &sc.kept[sc.keys[i].i], true
+	}
+	return nil, false
+}
+
+// put keeps c as the set-up at u (not NaN, never found as a map's key).
+func (sc *setupCache) put(u float64, c *machSetup) {
+	if u != u {
+		return
+	}
+	i, ok := sc.find(u)
+	if ok {
+		sc.kept[sc.keys[i].i] = *c
+		return
+	}
+	sc.kept = append(sc.kept, *c)
+	sc.keys = slices.Insert(sc.keys, i, setupKey{u, len(sc.kept) - 1})
 }
 
 var scratchPool = sync.Pool{New: func() any { return new(planScratch) }}
 
 // newSolver validates the problem and sets up the search.
-func newSolver(p *Problem) (*solver, error) { return newSolverIn(new(solver), p) }
+func newSolver(p *Problem) (*solver, error) { return newSolverIn(new(solver), p, nil) }
 
-// newSolverIn is newSolver in sv, a zero solver.
-func newSolverIn(sv *solver, p *Problem) (*solver, error) {
+// newSolverIn is newSolver in sv, a zero solver, with the plan's scratch sc
+// (nil outside Plan), whose memory keeps a nitrogen plan's states and
+// set-ups.
+func newSolverIn(sv *solver, p *Problem, sc *planScratch) (*solver, error) {
 	if p == nil || p.Facility == nil || p.Article == nil {
 		return nil, check.Invalid("incomplete problem", []check.FieldError{{Field: "facility", Message: "a problem needs a flight, an article and a facility"}})
 	}
 	*sv = solver{p: p, f: p.Facility, fl: p.Flight, art: p.Article, L: p.Article.ReferenceLength,
-		loadScale: 1, load: p.LoadLimit, floor: p.LoadFloor, floorScale: 1, aim: p.Flight.Mach, aimRatio: 1}
+		loadScale: 1, load: p.LoadLimit, floor: p.LoadFloor, floorScale: 1, aim: p.Flight.Mach, aimRatio: 1, scratch: sc}
 	if err := sv.checkInput(); err != nil {
 		return nil, err
 	}
@@ -345,10 +404,17 @@ func newSolverIn(sv *solver, p *Problem) (*solver, error) {
 	if sv.f.Medium.Kind == facilities.MediumNitrogen {
 		// A set-up of real-gas nitrogen costs tens of states; one of an ideal
 		// gas or water a few, less than keeping it.
-		sv.cond = newCondLineCache()
-		sv.setups = make(map[float64]machSetup, 64)
-		sv.memo = &stateMemos{}
-		sv.stags = &stagnations{}
+		if sc != nil {
+			sc.cond.reset()
+			sc.setups.reset()
+			sc.memo, sc.stags = stateMemos{}, stagnations{}
+			sv.cond, sv.setups, sv.memo, sv.stags = &sc.cond, &sc.setups, &sc.memo, &sc.stags
+		} else {
+			sv.cond = newCondLineCache()
+			sv.setups = new(setupCache)
+			sv.memo = &stateMemos{}
+			sv.stags = &stagnations{}
+		}
 	}
 	if sv.liquid {
 		sv.water = &waterMemo{}
@@ -987,13 +1053,14 @@ func (sv *solver) lowestScale(c *machSetup) float64 {
 // prepare works out everything at test Mach number (speed) machOrSpeed that does not depend
 // on the model scale.
 func (sv *solver) prepare(machOrSpeed float64) machSetup {
-	if c, ok := sv.setups[machOrSpeed]; ok {
-		return c
+	if sv.setups == nil {
+		return sv.prepareNow(machOrSpeed)
+	}
+	if c, ok := sv.setups.get(machOrSpeed); ok {
+		return *c
 	}
 	c := sv.prepareNow(machOrSpeed)
-	if sv.setups != nil {
-		sv.setups[machOrSpeed] = c
-	}
+	sv.setups.put(machOrSpeed, &c)
 	return c
 }
 
