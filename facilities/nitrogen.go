@@ -216,10 +216,6 @@ func nitrogenExpand(t0, rho0 float64, n0 n2Props, mach, speed float64) (T, rho f
 	// T follows ρ^G along the same relation with the exponent of a² along the
 	// isentrope at the stagnation state, n = (ρ/a²)·(∂a²/∂ρ)_s, in place of
 	// k − 1 (the two differ by up to 3 % in cold dense nitrogen): closer in T,
-	// while ρ is closer with k − 1.
-	// T follows ρ^G along the same relation with the exponent of a² along the
-	// isentrope at the stagnation state, n = (ρ/a²)·(∂a²/∂ρ)_s, in place of
-	// k − 1 (the two differ by up to 3 % in cold dense nitrogen): closer in T,
 	// and ρ is closer with k − 1 (over 1.3–3.9 bar, 100–300 K and Mach 0.2–1.4
 	// the start then needs two Newton steps in 81 % of the cases, 46 % before).
 	k := rho0 * n0.a2 / n0.p
