@@ -104,6 +104,25 @@ func cpuTime() time.Duration {
 // most 2× the cruise case.
 func BenchmarkPlanKinds(b *testing.B) {
 	var p app.Planner
+	for _, c := range planKindCases(b) {
+		b.Run(c.name, func(b *testing.B) { benchPlan(b, &p, c.req) })
+	}
+}
+
+// planKindCase is one plan of BenchmarkPlanKinds: its name (facility,
+// objective, condition) and its request.
+type planKindCase struct {
+	name string
+	req  *schema.PlanRequest
+}
+
+// planKindCases returns the plans of BenchmarkPlanKinds: every demo facility
+// kind with its example's priority objective and with weights, at the example's
+// flight condition (cruise) and at 45 km altitude (alt45km; the same Mach number
+// or airspeed); a vessel has no altitude, its one condition is marine.
+func planKindCases(tb testing.TB) []planKindCase {
+	tb.Helper()
+	var cases []planKindCase
 	for _, k := range planKinds {
 		conds := []string{"cruise", "alt45km"}
 		if k.marine {
@@ -111,20 +130,19 @@ func BenchmarkPlanKinds(b *testing.B) {
 		}
 		for _, obj := range []string{"priority", "weighted"} {
 			for _, cond := range conds {
-				b.Run(k.facility+"/"+obj+"/"+cond, func(b *testing.B) {
-					req := readPlanRequest(b, k.file)
-					if obj == "weighted" {
-						req.Objective = schemaObjective(k.weights)
-					}
-					if cond == "alt45km" {
-						alt := 45000.0
-						req.Flight.Altitude, req.Flight.PressureAltitude = &alt, nil
-					}
-					benchPlan(b, &p, req)
-				})
+				req := readPlanRequest(tb, k.file)
+				if obj == "weighted" {
+					req.Objective = schemaObjective(k.weights)
+				}
+				if cond == "alt45km" {
+					alt := 45000.0
+					req.Flight.Altitude, req.Flight.PressureAltitude = &alt, nil
+				}
+				cases = append(cases, planKindCase{k.facility + "/" + obj + "/" + cond, req})
 			}
 		}
 	}
+	return cases
 }
 
 // schemaObjective returns the weighted objective of a copy of w.

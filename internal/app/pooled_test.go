@@ -24,30 +24,7 @@ import (
 // writing into another's scratch is a data race the race detector reports.
 func TestPlansAgreeUnderConcurrency(t *testing.T) {
 	t.Parallel()
-	type planCase struct {
-		name string
-		req  *schema.PlanRequest
-	}
-	var cases []planCase
-	for _, k := range planKinds {
-		conds := []string{"cruise", "alt45km"}
-		if k.marine {
-			conds = []string{"marine"}
-		}
-		for _, obj := range []string{"priority", "weighted"} {
-			for _, cond := range conds {
-				req := readPlanRequest(t, k.file)
-				if obj == "weighted" {
-					req.Objective = schemaObjective(k.weights)
-				}
-				if cond == "alt45km" {
-					alt := 45000.0
-					req.Flight.Altitude, req.Flight.PressureAltitude = &alt, nil
-				}
-				cases = append(cases, planCase{k.facility + "/" + obj + "/" + cond, req})
-			}
-		}
-	}
+	cases := planKindCases(t)
 	var p app.Planner
 	ctx := context.Background()
 	alone := make([][]byte, len(cases))
