@@ -106,14 +106,22 @@ var if97N = [10]float64{
 //	θ = T + n9/(T − n10), A = θ² + n1·θ + n2, B = n3·θ² + n4·θ + n5,
 //	C = n6·θ² + n7·θ + n8, p = [2C/(−B + √(B² − 4AC))]⁴ MPa
 func WaterVapourPressure(T float64) float64 {
-	n := &if97N
-	th := T + n[8]/(T-n[9])
-	a := th*th + n[0]*th + n[1]
-	b := n[2]*th*th + n[3]*th + n[4]
-	c := n[5]*th*th + n[6]*th + n[7]
+	_, a, b, c := if97Coefficients(T)
 	x := 2 * c / (-b + math.Sqrt(b*b-4*a*c))
 	x *= x
 	return 1e6 * x * x
+}
+
+// if97Coefficients returns θ and the coefficients A, B and C of IAPWS-IF97's
+// saturation equation (IAPWS 2007, eqs. 29 and 30) at temperature T in K, as
+// WaterVapourPressure defines them.
+func if97Coefficients(T float64) (th, a, b, c float64) {
+	n := &if97N
+	th = T + n[8]/(T-n[9])
+	a = th*th + n[0]*th + n[1]
+	b = n[2]*th*th + n[3]*th + n[4]
+	c = n[5]*th*th + n[6]*th + n[7]
+	return th, a, b, c
 }
 
 // WaterVapourPressureSlope returns dp/dT in Pa/K of WaterVapourPressure at
@@ -128,10 +136,7 @@ func WaterVapourPressure(T float64) float64 {
 // TestWaterSlopesMonotone).
 func WaterVapourPressureSlope(T float64) float64 {
 	n := &if97N
-	th := T + n[8]/(T-n[9])
-	a := th*th + n[0]*th + n[1]
-	b := n[2]*th*th + n[3]*th + n[4]
-	c := n[5]*th*th + n[6]*th + n[7]
+	th, a, b, c := if97Coefficients(T)
 	r := math.Sqrt(b*b - 4*a*c)
 	beta := 2 * c / (-b + r)
 	dBeta := ((2*th+n[0])*beta*beta + (2*n[2]*th+n[3])*beta + 2*n[5]*th + n[6]) / r
