@@ -286,9 +286,16 @@ func largestCubicRoot(c2, c1, c0 float64) float64 {
 //	     + 105.56302e-9·t⁴ − 280.54253e-12·t⁵) / (1 + 16.879850e-3·t)
 func WaterDensity(T float64) float64 {
 	t := T - 273.15
-	num := 999.83952 + t*(16.945176+t*(-7.9870401e-3+t*(-46.170461e-6+t*(105.56302e-9+t*(-280.54253e-12)))))
-	return num / (1 + 16.879850e-3*t)
+	return kellNumerator(t) / (1 + kellB*t)
 }
+
+// kellNumerator is the numerator of Kell's equation (WaterDensity) at t in °C,
+// in kg/m³, and kellB its denominator's coefficient in 1/°C.
+func kellNumerator(t float64) float64 {
+	return 999.83952 + t*(16.945176+t*(-7.9870401e-3+t*(-46.170461e-6+t*(105.56302e-9+t*(-280.54253e-12)))))
+}
+
+const kellB = 16.879850e-3
 
 // WaterDensitySlope returns dρ/dT in kg/m³/K of WaterDensity at temperature T
 // in K, Kell's equation differentiated: with ρ = N(t)/D(t), D = 1 + 16.879850e-3·t,
@@ -302,10 +309,9 @@ func WaterDensity(T float64) float64 {
 // TestWaterSlopesMonotone).
 func WaterDensitySlope(T float64) float64 {
 	t := T - 273.15
-	num := 999.83952 + t*(16.945176+t*(-7.9870401e-3+t*(-46.170461e-6+t*(105.56302e-9+t*(-280.54253e-12)))))
 	dnum := 16.945176 + t*(2*-7.9870401e-3+t*(3*-46.170461e-6+t*(4*105.56302e-9+t*(5*-280.54253e-12))))
-	den := 1 + 16.879850e-3*t
-	return (dnum*den - num*16.879850e-3) / (den * den)
+	den := 1 + kellB*t
+	return (dnum*den - kellNumerator(t)*kellB) / (den * den)
 }
 
 // IAPWS 2008 viscosity reference values: T* = 647.096 K, ρ* = 322 kg/m³,
@@ -327,6 +333,12 @@ var iapwsH = [6][7]float64{
 	{0, 1.20573e-1, 0, 0, 0, 0, -5.93264e-4},
 }
 
+// iapwsMu0Sum is Σ_{i=0..3} H_i·u^i, the denominator of μ̄₀ (WaterViscosity),
+// at u = 1/T̄.
+func iapwsMu0Sum(u float64) float64 {
+	return 1.67752 + u*(2.20462+u*(0.6366564+u*(-0.241605)))
+}
+
 // WaterViscosity returns the dynamic viscosity of water in Pa·s at temperature T in
 // K and density rho in kg/m³, by the IAPWS 2008 formulation (Huber et al. 2009,
 // J. Phys. Chem. Ref. Data 38:101) without its critical enhancement, which matters
@@ -341,7 +353,7 @@ func WaterViscosity(T, rho float64) float64 {
 	tb := T / iapwsTStar
 	rb := rho / iapwsRhoStar
 	inv := 1 / tb
-	mu0 := 100 * math.Sqrt(tb) / (1.67752 + inv*(2.20462+inv*(0.6366564+inv*(-0.241605))))
+	mu0 := 100 * math.Sqrt(tb) / iapwsMu0Sum(inv)
 	x, y := inv-1, rb-1
 	var sum, xi float64 = 0, 1
 	for i := range iapwsH {
@@ -370,7 +382,7 @@ func WaterViscositySlope(T, rho, drho float64) float64 {
 	tb := T / iapwsTStar
 	rb := rho / iapwsRhoStar
 	u := 1 / tb
-	d := 1.67752 + u*(2.20462+u*(0.6366564+u*(-0.241605)))
+	d := iapwsMu0Sum(u)
 	dd := 2.20462 + u*(2*0.6366564+u*(3*-0.241605))
 	x, y := u-1, rb-1
 	var sum, sx, sy, xi, xi1 float64 = 0, 0, 0, 1, 0 // xi1 = i·x^(i−1)

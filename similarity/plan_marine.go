@@ -29,6 +29,18 @@ func (sv *solver) staticRange(q, pv float64) (lo, hi float64) {
 	return lo, hi
 }
 
+// cavPressures returns the lowest and highest pressures lo and hi in Pa that
+// bound σ at any speed and temperature, and c: σ_lo = 2(lo − p_v)/(ρV²) − c
+// and σ_hi = 2(hi − p_v)/(ρV²) − c, the stagnation-pressure range with c = 1,
+// or the static-pressure range where the facility holds it, with c = 0
+// (staticRange).
+func (sv *solver) cavPressures() (lo, hi, c float64) {
+	if sv.held {
+		return sv.f.StaticPressure.Min, sv.f.StaticPressure.Max, 0
+	}
+	return sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max, 1
+}
+
 // waterProps are the properties of water at one temperature that the
 // cavitation search reads: density in kg/m³, viscosity in Pa·s and vapour
 // pressure in Pa.
@@ -497,10 +509,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 // the first level, whatever the later levels.
 func (sv *solver) cavEnd(g *waterGrid, top candidate, coldAt func() candidate) (candidate, bool) {
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
-	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
-	if sv.held {
-		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
-	}
+	lo, hi, _ := sv.cavPressures()
 	if top.ok && top.sig > sf+tol && g.falls(lo) {
 		return top, true
 	}
@@ -555,11 +564,7 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 		return candidate{}, false
 	}
 	sf := sv.fl.Marine.Cavitation
-	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
-	cq := 1.0
-	if sv.held {
-		lo, hi, cq = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max, 0
-	}
+	lo, hi, cq := sv.cavPressures()
 	if !g.falls(lo) || !g.falls(hi) {
 		return candidate{}, false
 	}
@@ -629,10 +634,7 @@ func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, fl
 		sv.cavDistance(top.sig) != 0 || !(top.sig >= sf*(1-1e-12)) || !(s*sv.L*top.r < sv.fl.Reynolds) {
 		return candidate{}, false
 	}
-	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
-	if sv.held {
-		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
-	}
+	lo, hi, _ := sv.cavPressures()
 	if !g.falls(lo) || !g.falls(hi) {
 		return candidate{}, false
 	}
@@ -687,11 +689,7 @@ func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s, a, b float64) (flo
 		!ya.ok || !(ya.sig < sf*(1-1e-9)) || !(b > a) {
 		return 0, false
 	}
-	k, cq := sv.f.StagnationPressure.Max, 1.0
-	lo := sv.f.StagnationPressure.Min
-	if sv.held {
-		k, lo, cq = sv.f.StaticPressure.Max, sv.f.StaticPressure.Min, 0
-	}
+	lo, k, cq := sv.cavPressures()
 	if !g.falls(k) || !g.falls(lo) {
 		return 0, false
 	}
@@ -771,10 +769,7 @@ func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s, a, b float64) (flo
 func (sv *solver) cavBand(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate, topRoom float64,
 	cold candidate, coldRoom, s float64, root func() (candidate, bool)) (candidate, bool) {
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
-	lo, hi := sv.f.StagnationPressure.Min, sv.f.StagnationPressure.Max
-	if sv.held {
-		lo, hi = sv.f.StaticPressure.Min, sv.f.StaticPressure.Max
-	}
+	lo, hi, _ := sv.cavPressures()
 	if !top.ok || !cold.ok || !g.falls(lo) || !g.falls(hi) {
 		return candidate{}, false
 	}
@@ -1085,10 +1080,7 @@ func (sv *solver) cavSpeedBound(c *machSetup) float64 {
 	lb := 0.0
 	if wc := sv.obj.w[gCavitation]; wc > 0 {
 		sf := sv.fl.Marine.Cavitation
-		k, cq := sv.f.StagnationPressure.Max, 1.0
-		if sv.held {
-			k, cq = sv.f.StaticPressure.Max, 0
-		}
+		_, k, cq := sv.cavPressures()
 		if pv := sv.water.vapourPressure(c.ta); k > pv {
 			if sig := (k-pv)/min(c.qWater[0], c.qWater[1]) - cq; sig < sf {
 				if l := math.Log(math.Max(sig, 1e-9*sf) / sf); -l > 2*exactTol {

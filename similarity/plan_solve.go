@@ -340,7 +340,7 @@ func (sc *setupCache) find(u float64) (int, bool) {
 
 // get returns the set-up kept at u.
 func (sc *setupCache) get(u float64) (*machSetup, bool) {
-	if i, ok := sc.find(u); ok && u == u {
+	if i, ok := sc.find(u); ok {
 		return &sc.kept[sc.keys[i].i], true
 	}
 	return nil, false
