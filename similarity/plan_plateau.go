@@ -119,3 +119,58 @@ func (sv *solver) plateauEdge(lo float64, hi candidate, eps float64) candidate {
 	}
 	return hi
 }
+
+// froudeScaled reports whether the best scale at a speed can come from
+// froudeScale: water, a weighted objective whose terms are the Reynolds and
+// Froude numbers alone (the Mach number is no target in water), both
+// weighted, a range of scales, no load floor, a flight that moves.
+func (sv *solver) froudeScaled() bool {
+	return sv.liquid && !sv.cav && sv.obj.weighted && sv.obj.w[gReynolds] > 0 && sv.obj.w[gFroude] > 0 &&
+		sv.floor == nil && sv.kind == scaleRange && sv.fl.Speed() > 0 && !sv.noFroudeScale
+}
+
+// froudeScale returns the best candidate over the scales at c's speed for a
+// water problem weighted on the Reynolds and Froude numbers alone (no
+// cavitation term, no load floor), and true; false where it cannot tell, and
+// bestOverScalesAt's golden section decides.
+//
+// With λ = ln s, the Froude term is w_F·(a − λ/2)², a = ln(V/V_f). The
+// Reynolds term is w_R·d(λ)², d the signed distance of λ from [λ1, λ2], the
+// scales whose flight Re/m, Re/(s·l), the speed reaches in its usable water
+// (λ1 = ln(Re/(l·Re/m_top)), λ2 = ln(Re/(l·Re/m_low)); atWater meets the
+// target there and caps it at the nearer end outside). Both terms are convex
+// in λ, the Froude term strictly: the sum has one minimum, at λ = 2a (the
+// Froude scale) where that lies in [λ1, λ2], else at the root of the slope on
+// the side it lies, (2·w_R·λi + w_F·a)/(2·w_R + w_F/2), and over [ln sLo,
+// ln sHi] at that point moved into the range. A load ceiling can only raise
+// the lowest usable Re/m at a scale (warmer water, ρ/μ rising) or rule the
+// scale out, so it never lowers the sum: where it leaves the candidate at
+// that scale as it is (the ceiling at or above q in the coolest usable
+// water), that candidate is the best over the scales with the limit too.
+func (sv *solver) froudeScale(c *machSetup) (candidate, bool) {
+	if !sv.froudeScaled() || !c.ok || !(c.rlo > 0) || !(c.rlo < c.rWaterTop) {
+		return candidate{}, false
+	}
+	wR, wF, vf := sv.obj.w[gReynolds], sv.obj.w[gFroude], sv.fl.Speed()
+	v := c.machOrSpeed
+	a := math.Log(v / vf)
+	l1 := math.Log(sv.fl.Reynolds / (sv.L * c.rWaterTop))
+	l2 := math.Log(sv.fl.Reynolds / (sv.L * c.rlo))
+	var s float64
+	switch lf := 2 * a; {
+	case lf < l1:
+		s = math.Exp((2*wR*l1 + wF*a) / (2*wR + wF/2))
+	case lf > l2:
+		s = math.Exp((2*wR*l2 + wF*a) / (2*wR + wF/2))
+	default:
+		// The Froude scale, as exactAt takes it.
+		s = sq(v / vf)
+	}
+	s = math.Min(math.Max(s, sv.sLo), sv.sHi)
+	qb := sv.loadQ(s, c.stRef)
+	if qb < sv.waterQAt(c, c.ta) {
+		return candidate{}, false
+	}
+	x := sv.atWindow(c, s, sv.fl.Reynolds/(s*sv.L), Window{Lo: 0, Hi: qb})
+	return x, x.ok
+}

@@ -13,6 +13,12 @@ func PlanSearch(p *Problem, refine bool) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	if refine && sv.polishEvals == 0 {
+		// The search skipped the refinement (a Froude-weighted water
+		// problem whose scales came from froudeScale): the tests of the
+		// refinement run it all the same.
+		best = sv.polish(best, sv.ivs)
+	}
 	res := sv.result(best)
 	res.Stats.Solves = 1
 	res.Stats.Evaluations = sv.evals

@@ -56,6 +56,10 @@ func (sv *solver) bestOverScalesAt(c *machSetup, probe bool) candidate {
 				return x
 			}
 		}
+		if x, ok := sv.froudeScale(c); ok {
+			return x
+		}
+		sv.scaleGolden++
 		return sv.golden(func(ls float64) candidate { return sv.at(c, math.Exp(ls)) },
 			math.Log(sv.sLo), math.Log(sv.sHi), 9, 1e-10)
 	}
@@ -481,6 +485,7 @@ func (sv *solver) solve() (candidate, error) {
 		return candidate{}, unprocessable(fmt.Sprintf("no %s in the facility's range can run a model of the allowed size within its limits", what), fails...)
 	}
 	tolU := 1e-9
+	sv.scaleGolden = 0
 	best := candidate{k: worst}
 	consider := func(x candidate) {
 		if x.ok && (!best.ok || x.k.less(best.k)) {
@@ -561,6 +566,13 @@ func (sv *solver) solve() (candidate, error) {
 	if sv.froudePlateau() && best.k.v[0] == 0 {
 		// Every target is met: the sum cannot fall, and the tie rule has
 		// chosen among the plans that meet them (plateauMin).
+		return best, nil
+	}
+	if sv.froudeScaled() && sv.scaleGolden == 0 {
+		// Every speed's best scale came from froudeScale, exact where the
+		// golden section is to 1e-10: the problem is one of the speed alone,
+		// which the search has minimised to 1e-9, and the joint refinement
+		// would have nothing to move (as with one free coordinate, refine).
 		return best, nil
 	}
 	return sv.polish(best, ivs), nil
