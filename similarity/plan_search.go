@@ -82,6 +82,7 @@ func (sv *solver) bestInScaleRange(c *machSetup) candidate {
 	// shrinks (q_min ∝ 1/s²), so the rules above, which shrink a model that
 	// overshoots the flight's Reynolds number, can miss: a golden-section
 	// search over the scales that reach the floor decides between them.
+	sv.scaleGolden++
 	g := sv.golden(func(ls float64) candidate { return sv.at(c, math.Exp(ls)) },
 		math.Log(sv.lowestScale(c)), math.Log(sv.sHi), 9, 1e-10)
 	if g.ok && (!x.ok || g.k.less(x.k)) {
@@ -133,6 +134,7 @@ func (sv *solver) bestInScaleRangeRules(c *machSetup) candidate {
 	}
 	if x2 := sv.at(c, sk*(1+1e-7)); x2.ok && x2.k.less(xk.k) {
 		// Unusual load limit: Re still rises past the knee.
+		sv.scaleGolden++
 		g := sv.golden(func(ls float64) candidate { return sv.at(c, math.Exp(ls)) }, math.Log(sk), math.Log(sv.sHi), 5, 1e-10)
 		if g.ok && g.k.less(xk.k) {
 			return g
@@ -568,11 +570,11 @@ func (sv *solver) solve() (candidate, error) {
 		// chosen among the plans that meet them (plateauMin).
 		return best, nil
 	}
-	if sv.froudeScaled() && sv.scaleGolden == 0 {
-		// Every speed's best scale came from froudeScale, exact where the
-		// golden section is to 1e-10: the problem is one of the speed alone,
-		// which the search has minimised to 1e-9, and the joint refinement
-		// would have nothing to move (as with one free coordinate, refine).
+	if !sv.noExactScale && sv.scaleGolden == 0 && (sv.froudeScaled() || sv.rulesScaled(best)) {
+		// Every speed's (Mach number's) best scale came exactly, not from a
+		// golden section: the problem is one of the speed alone, which the
+		// search has minimised to 1e-9, and the joint refinement would have
+		// nothing to move (as with one free coordinate, refine).
 		return best, nil
 	}
 	return sv.polish(best, ivs), nil

@@ -245,10 +245,11 @@ type solver struct {
 	// noSpeedCut keeps every speed of the weighted speed search's grid
 	// (cavSpeedCut off), for the test that compares the search with it.
 	noSpeedCut bool
-	// noFroudeScale searches the scales at each speed by the golden section
-	// where froudeScale would give the best directly, for the test that
-	// compares the two.
-	noFroudeScale bool
+	// noExactScale searches as before froudeScale and rulesScaled: the
+	// scales at each speed by the golden section where froudeScale would
+	// give the best directly, and the joint refinement always, for the tests
+	// that compare the two.
+	noExactScale bool
 	// scaleGolden counts the golden sections over the scales a Froude-weighted
 	// search ran since its solve began (bestOverScalesAt): none where every
 	// speed's best scale came from froudeScale.
