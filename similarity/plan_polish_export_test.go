@@ -14,9 +14,9 @@ func PlanSearch(p *Problem, refine bool) (*Result, error) {
 		return nil, err
 	}
 	if refine && sv.polishEvals == 0 {
-		// The search skipped the refinement (a Froude-weighted water
-		// problem whose scales came from froudeScale): the tests of the
-		// refinement run it all the same.
+		// The search skipped the refinement (its scales came exactly:
+		// froudeScaled, rulesScaled): the tests of the refinement run it
+		// all the same.
 		best = sv.polish(best, sv.ivs)
 	}
 	res := sv.result(best)

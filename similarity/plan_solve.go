@@ -250,9 +250,10 @@ type solver struct {
 	// give the best directly, and the joint refinement always, for the tests
 	// that compare the two.
 	noExactScale bool
-	// scaleGolden counts the golden sections over the scales a Froude-weighted
-	// search ran since its solve began (bestOverScalesAt): none where every
-	// speed's best scale came from froudeScale.
+	// scaleGolden counts the golden sections over the scales the search ran
+	// since its solve began (bestOverScalesAt, bestInScaleRange): none where
+	// every speed's (Mach number's) best scale came exactly, from froudeScale
+	// or the scale's rules.
 	scaleGolden int
 	// polishEvals counts the refinement's objective evaluations.
 	polishEvals int
