@@ -68,43 +68,59 @@ type n2Props struct {
 //
 // with the ideal-gas parts h⁰, s⁰, c_v⁰ from spanIdeal.
 func nitrogenAt(T, rho float64) n2Props {
+	var n n2Props
+	n.at(T, rho)
+	return n
+}
+
+// at sets n to nitrogen's properties at T in K and rho in kg/m³ (nitrogenAt).
+// The exponential and the logarithm come first, while few values are live
+// across their calls (each call spills every live register), and prLog's
+// series is written out here; the arithmetic is nitrogenAt's, to the bit.
+func (n *n2Props) at(T, rho float64) {
 	c := &nitrogenPR
+	g := &spanIdeal
 	r, b := c.r, c.b
 	// The reciprocals used more than once, each a division once: a division
 	// costs several multiplications.
 	iT, iRho := 1/T, 1/rho
+	tau := NitrogenCriticalTemperature * iT
+	e := math.Exp(-g.a8 * tau)
+	it := T * (1 / NitrogenCriticalTemperature)
+	sq := math.Sqrt(it) // √(T/Tc)
+	br := b * rho
+	one := 1 - br
+	// The logarithms of s, ln(1 − bρ) − ln ρ − a1·ln τ with a1 = 2.5, as one:
+	// τ^2.5 = τ²/sq (sq = τ^−½).
+	lns := math.Log(one * sq * iRho * it * it)
+	var l float64 // L of the departure functions: prLog(bρ)/(2√2·b)
+	if u := math.Sqrt2 * br / (1 + br); u >= 0 && u < 0.05 {
+		l = 2 * u * prSeries(u*u) * c.iL
+	} else {
+		l = prLog(br) * c.iL
+	}
+
 	// α(T) = (1 + κ(1 − √T_r))² and its T derivatives.
-	sq := math.Sqrt(T * (1 / NitrogenCriticalTemperature))
 	m := 1 + c.kappa*(1-sq)
 	aa := c.a * m * m
 	da := -c.a * c.kappa * m * sq * iT                             // (aα)′
 	dda := c.a * c.kappa * sq * (0.5 * iT * iT) * (c.kappa*sq + m) // (aα)″
 
-	br := b * rho
-	one := 1 - br
 	d := 1 + br*(2-br)
 	iOne, iD := 1/one, 1/d
-	l := prLog(br) * c.iL
 	rt := r * T
-	var n n2Props
 	n.p = rho*rt*iOne - aa*rho*rho*iD
 	n.pRho = rt*iOne*iOne - 2*aa*rho*(1+br)*iD*iD
 	n.pT = rho*r*iOne - da*rho*rho*iD
 
 	// Ideal-gas parts of Span et al. (2000) in τ = Tc/T.
-	g := &spanIdeal
-	tau := NitrogenCriticalTemperature * iT
-	it := T * (1 / NitrogenCriticalTemperature)
-	e := math.Exp(-g.a8 * tau)
 	ie := 1 / (1 - e)
 	ee := e * ie // e/(1 − e)
 	// τ·∂α⁰/∂τ and −τ²·∂²α⁰/∂τ².
 	tat := g.a1 + g.a3*tau - it*(g.a4+it*(2*g.a5+it*3*g.a6)) + g.a7*g.a8*tau*ee
 	cv0 := g.a1 - it*(2*g.a4+it*(6*g.a5+it*12*g.a6)) + g.a7*g.a8*g.a8*tau*tau*ee*ie
 	// ln(1 − e) by its series where e is small (below 480 K: e is 2.5e-15 at
-	// 100 K, 1.4e-5 at 300 K), one logarithm less; and the logarithms of s,
-	// ln(1 − bρ) − ln ρ − a1·ln τ with a1 = 2.5, as one: τ^2.5 = τ²/sq
-	// (sq = √(T/Tc) = τ^−½).
+	// 100 K, 1.4e-5 at 300 K), one logarithm less.
 	var ln1e float64
 	if e < 1e-3 {
 		ln1e = -e * (1 + e*(0.5+e*(1.0/3+0.25*e)))
@@ -115,10 +131,11 @@ func nitrogenAt(T, rho float64) n2Props {
 
 	n.cv = r*cv0 + T*dda*l
 	n.h = rt*(1+tat) + (T*da-aa)*l + n.p*iRho - rt
-	n.s = r*(tat-alpha0+math.Log(one*sq*iRho*it*it)) + da*l
+	n.s = r*(tat-alpha0+lns) + da*l
 	n.valid = one > 0 && n.pRho > 0 && n.cv > 0 && rho > 0 && n.pT != 0
 	if !n.valid {
-		return n
+		n.a2, n.a2T, n.a2Rho = 0, 0, 0
+		return
 	}
 	// a² = (∂p/∂ρ)_T + X, X = T·(∂p/∂T)²/(ρ²·c_v), and its derivatives for the
 	// Newton steps of nitrogenExpand. (aα)‴ = −1.5·(aα)″/T.
@@ -134,7 +151,6 @@ func nitrogenAt(T, rho float64) n2Props {
 	cvRho := T * dda * iD
 	n.a2T = pRhoT + x*iT + x*(2*pTT*iPT-cvT*iCv)
 	n.a2Rho = pRhoRho + x*(2*pRhoT*iPT-2*iRho-cvRho*iCv)
-	return n
 }
 
 // prLog returns ln[(1 + (1+√2)x)/(1 + (1−√2)x)] for x = bρ ≥ 0, the logarithm
@@ -148,12 +164,13 @@ func prLog(x float64) float64 {
 	if !(u >= 0 && u < 0.05) {
 		return math.Log((1 + (1+math.Sqrt2)*x) / (1 + (1-math.Sqrt2)*x))
 	}
-	u2 := u * u
-	s := 1.0 / 15
-	for _, c := range [...]float64{1.0 / 13, 1.0 / 11, 1.0 / 9, 1.0 / 7, 1.0 / 5, 1.0 / 3, 1} {
-		s = c + u2*s
-	}
-	return 2 * u * s
+	return 2 * u * prSeries(u*u)
+}
+
+// prSeries returns 1 + u²/3 + u⁴/5 + … + u¹⁴/15 for u2 = u², prLog's series
+// over 2u, by Horner's rule.
+func prSeries(u2 float64) float64 {
+	return 1 + u2*(1.0/3+u2*(1.0/5+u2*(1.0/7+u2*(1.0/9+u2*(1.0/11+u2*(1.0/13+u2*(1.0/15)))))))
 }
 
 // NitrogenSpeedOfSound returns the speed of sound in m/s of nitrogen at temperature T
@@ -248,7 +265,7 @@ func nitrogenNewton(n0 n2Props, mach, speed, T, rho float64) (float64, float64, 
 	v2 := speed * speed
 	m2 := mach * mach
 	for range nitrogenMaxSteps {
-		n = nitrogenAt(T, rho)
+		n.at(T, rho)
 		if !n.valid || !(T > 0) {
 			return 0, 0, n2Props{}, false
 		}
@@ -274,8 +291,14 @@ func nitrogenNewton(n0 n2Props, mach, speed, T, rho float64) (float64, float64, 
 		iDet := 1 / det
 		dT := (f1*j22 - f2*j12) * iDet
 		dr := (j11*f2 - j21*f1) * iDet
-		// Keep the step inside the gas: at most a fifth of T and of ρ.
-		if k := 5 * math.Max(math.Abs(dT)*iT, math.Abs(dr)*iRho); k > 1 {
+		// Keep the step inside the gas: at most a fifth of T and of ρ. (The
+		// larger of the two by a comparison, not math.Max, a call on amd64; a
+		// NaN step is not scaled either way, and the next state is invalid.)
+		k := math.Abs(dT) * iT
+		if kr := math.Abs(dr) * iRho; kr > k {
+			k = kr
+		}
+		if k *= 5; k > 1 {
 			dT /= k
 			dr /= k
 		}
