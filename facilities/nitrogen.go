@@ -15,17 +15,21 @@ import (
 // nitrogenPR holds the Peng–Robinson constants of nitrogen in mass units: a in
 // Pa·m⁶/kg² (without α(T)), b in m³/kg, κ, R in J/(kg·K), and 1/(2√2·b) in
 // kg/m³, the factor of the departure functions' logarithm.
-var nitrogenPR = func() struct{ a, b, kappa, r, iL float64 } {
+// ak is a·κ, the leading factor of (aα)′ and (aα)″, multiplied once here in
+// float64 as nitrogenAt's products would multiply it.
+var nitrogenPR = func() struct{ a, b, kappa, r, iL, ak float64 } {
 	r := MolarGasConstant / NitrogenMolarMass
 	tc, pc, om := NitrogenCriticalTemperature, NitrogenCriticalPressure, NitrogenAcentricFactor
 	b := prOmegaB * r * tc / pc
-	return struct{ a, b, kappa, r, iL float64 }{
+	c := struct{ a, b, kappa, r, iL, ak float64 }{
 		a:     prOmegaA * r * r * tc * tc / pc,
 		b:     b,
 		kappa: 0.37464 + om*(1.54226-0.26992*om),
 		r:     r,
 		iL:    1 / (2 * math.Sqrt2 * b),
 	}
+	c.ak = c.a * c.kappa
+	return c
 }()
 
 // spanIdeal holds the ideal-gas Helmholtz energy of nitrogen of Span et al. (2000,
@@ -36,11 +40,20 @@ var nitrogenPR = func() struct{ a, b, kappa, r, iL float64 } {
 //
 // so that c_v⁰/R = −τ²·∂²α⁰/∂τ² (2.5 plus small terms, 3.5 for c_p⁰/R). a2, the
 // entropy constant, is left out: only differences of entropy are used.
-// nitrogenAt takes a1 = 2.5 as τ^2.5 = τ²·√τ in the entropy.
-var spanIdeal = struct{ a1, a3, a4, a5, a6, a7, a8 float64 }{
-	a1: 2.5, a3: -0.00784163, a4: -1.934819e-4, a5: -1.247742e-5, a6: 6.678326e-8,
-	a7: 1.012941, a8: 26.65788,
-}
+// nitrogenAt takes a1 = 2.5 as τ^2.5 = τ²·√τ in the entropy. The products of
+// coefficients its terms take (3·a6, 6·a5, 12·a6, 12·a5, 36·a6, a7·a8 and
+// a7·a8·a8) are multiplied once, in float64 as nitrogenAt multiplied them
+// (constant expressions would be exact, and round differently).
+var spanIdeal = func() struct{ a1, a3, a4, a5, a6, a7, a8, a6x3, a5x6, a6x12, a5x12, a6x36, a78, a788 float64 } {
+	g := struct{ a1, a3, a4, a5, a6, a7, a8, a6x3, a5x6, a6x12, a5x12, a6x36, a78, a788 float64 }{
+		a1: 2.5, a3: -0.00784163, a4: -1.934819e-4, a5: -1.247742e-5, a6: 6.678326e-8,
+		a7: 1.012941, a8: 26.65788,
+	}
+	g.a6x3, g.a5x6, g.a6x12, g.a5x12, g.a6x36 = 3*g.a6, 6*g.a5, 12*g.a6, 12*g.a5, 36*g.a6
+	g.a78 = g.a7 * g.a8
+	g.a788 = g.a78 * g.a8
+	return g
+}()
 
 // n2Props are nitrogen's properties at a temperature and density.
 type n2Props struct {
@@ -103,8 +116,8 @@ func (n *n2Props) at(T, rho float64) {
 	// α(T) = (1 + κ(1 − √T_r))² and its T derivatives.
 	m := 1 + c.kappa*(1-sq)
 	aa := c.a * m * m
-	da := -c.a * c.kappa * m * sq * iT                             // (aα)′
-	dda := c.a * c.kappa * sq * (0.5 * iT * iT) * (c.kappa*sq + m) // (aα)″
+	da := -c.ak * m * sq * iT                             // (aα)′
+	dda := c.ak * sq * (0.5 * iT * iT) * (c.kappa*sq + m) // (aα)″
 
 	d := 1 + br*(2-br)
 	iOne, iD := 1/one, 1/d
@@ -117,8 +130,8 @@ func (n *n2Props) at(T, rho float64) {
 	ie := 1 / (1 - e)
 	ee := e * ie // e/(1 − e)
 	// τ·∂α⁰/∂τ and −τ²·∂²α⁰/∂τ².
-	tat := g.a1 + g.a3*tau - it*(g.a4+it*(2*g.a5+it*3*g.a6)) + g.a7*g.a8*tau*ee
-	cv0 := g.a1 - it*(2*g.a4+it*(6*g.a5+it*12*g.a6)) + g.a7*g.a8*g.a8*tau*tau*ee*ie
+	tat := g.a1 + g.a3*tau - it*(g.a4+it*(2*g.a5+it*g.a6x3)) + g.a78*tau*ee
+	cv0 := g.a1 - it*(2*g.a4+it*(g.a5x6+it*g.a6x12)) + g.a788*tau*tau*ee*ie
 	// ln(1 − e) by its series where e is small (below 480 K: e is 2.5e-15 at
 	// 100 K, 1.4e-5 at 300 K), one logarithm less.
 	var ln1e float64
@@ -145,8 +158,8 @@ func (n *n2Props) at(T, rho float64) {
 	pRhoT := r*iOne*iOne - 2*da*rho*(1+br)*iD*iD
 	pRhoRho := 2*b*rt*iOne*iOne*iOne - 2*aa*((1+2*br)*iD*iD-4*b*rho*(1+br)*one*iD*iD*iD)
 	pTT := -dda * rho * rho * iD
-	dcv0 := 2*g.a4*it*it + it*it*it*(12*g.a5+36*g.a6*it) +
-		g.a7*g.a8*g.a8*(2*tau*ee*ie-g.a8*tau*tau*ee*(1+e)*ie*ie)
+	dcv0 := 2*g.a4*it*it + it*it*it*(g.a5x12+g.a6x36*it) +
+		g.a788*(2*tau*ee*ie-g.a8*tau*tau*ee*(1+e)*ie*ie)
 	cvT := -r*tau*iT*dcv0 - 0.5*dda*l
 	cvRho := T * dda * iD
 	n.a2T = pRhoT + x*iT + x*(2*pTT*iPT-cvT*iCv)
