@@ -256,7 +256,13 @@ func largestCubicRoot(c2, c1, c0 float64) float64 {
 		// Three real roots: t_k = 2√(−p/3)·cos(φ/3 − 2πk/3); k = 0 is the largest.
 		m := math.Sqrt(-p / 3)
 		c := -0.5 * q / (m * m * m)
-		c = math.Max(-1, math.Min(1, c))
+		// Clamped to [−1, 1] by comparisons (math.Min and math.Max are calls
+		// on amd64; a NaN stays NaN either way).
+		if c > 1 {
+			c = 1
+		} else if c < -1 {
+			c = -1
+		}
 		t = 2 * m * math.Cos(math.Acos(c)/3)
 	default:
 		// p = q = 0: a triple root.

@@ -453,6 +453,9 @@ const (
 	ljRhoc  = 11.1839 * ljMolar
 )
 
+// ljLnTcEps is ln(Tc/(ε/k)) of NitrogenViscosity's powers of τ, taken once.
+var ljLnTcEps = math.Log(ljTc / ljEpsK)
+
 // NitrogenViscosity returns the viscosity of nitrogen in Pa·s at temperature T in K
 // and density rho in kg/m³ by Lemmon & Jacobsen (2004, Int. J. Thermophys.
 // 25:21), the dilute-gas term with its collision integral and the residual term,
@@ -481,7 +484,7 @@ func NitrogenViscosity(T, rho float64) float64 {
 	// The powers of τ from one exponential, τ^0.1 (ln τ = ln(Tc/(ε/k)) −
 	// ln T*, no second logarithm), and two square roots: τ^0.3 = (τ^0.1)³,
 	// τ^0.9 = (τ^0.3)³, τ^3.2 = τ³·(τ^0.1)², τ^0.25 = √√τ.
-	t01 := math.Exp(0.1 * (math.Log(ljTc/ljEpsK) - lt))
+	t01 := math.Exp(0.1 * (ljLnTcEps - lt))
 	t03 := t01 * t01 * t01
 	t09 := t03 * t03 * t03
 	t32 := tau * tau * tau * t01 * t01
