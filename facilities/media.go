@@ -236,7 +236,35 @@ func PengRobinsonZ(T, p, tc, pc, omega float64) float64 {
 	s := 1 + kappa*(1-math.Sqrt(tr))
 	a := prOmegaA * s * s * pr / (tr * tr)
 	b := prOmegaB * pr / tr
-	return largestCubicRoot(-(1 - b), a-b*(3*b+2), -b*(a-b-b*b))
+	c2, c1, c0 := -(1 - b), a-b*(3*b+2), -b*(a-b-b*b)
+	// Newton's method from the second-virial estimate Z = 1 + B − A (within
+	// about 1e-3 in a gas: three or four steps), Cardano's formula where that
+	// does not reach the largest root.
+	if z, ok := largestCubicRootFrom(c2, c1, c0, 1+b-a); ok {
+		return z
+	}
+	return largestCubicRoot(c2, c1, c0)
+}
+
+// largestCubicRootFrom returns the root of z³ + c2·z² + c1·z + c0 that
+// Newton's method reaches from z, stopping after a step below 1e-15 relative
+// (at most 8 steps), and true when that root is the largest: past the cubic's
+// inflection point (z > −c2/3) with a positive slope, so past both its turning
+// points. Otherwise ok is false (the caller takes Cardano's formula).
+func largestCubicRootFrom(c2, c1, c0, z float64) (float64, bool) {
+	for range 8 {
+		f := ((z+c2)*z+c1)*z + c0
+		d := (3*z+2*c2)*z + c1
+		if !(d > 0) {
+			return 0, false
+		}
+		step := f / d
+		z -= step
+		if math.Abs(step) <= 1e-15*math.Abs(z) {
+			return z, 3*z+c2 > 0 && (3*z+2*c2)*z+c1 > 0
+		}
+	}
+	return 0, false
 }
 
 // largestCubicRoot returns the largest real root of z³ + c2·z² + c1·z + c0 by
