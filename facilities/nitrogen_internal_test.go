@@ -149,3 +149,58 @@ func TestPengRobinsonZNewton(t *testing.T) {
 	}
 	assert.Greater(t, newton, 70000)
 }
+
+// nitrogenBenchStates are 64 stagnation states over 1.5–4 bar and 95–300 K,
+// the range of the demo nitrogen tunnel's plans, for the benchmarks below.
+func nitrogenBenchStates() []Stagnation {
+	var gs []Stagnation
+	for i := range 8 {
+		for j := range 8 {
+			gs = append(gs, NitrogenStagnation(1.5e5+float64(i)*0.35e5, 95+float64(j)*29))
+		}
+	}
+	return gs
+}
+
+// BenchmarkNitrogenAt measures one real-gas property evaluation (nitrogenAt)
+// at the 64 stagnation states in turn, 0.8 of their density.
+func BenchmarkNitrogenAt(b *testing.B) {
+	gs := nitrogenBenchStates()
+	var sink float64
+	i := 0
+	for b.Loop() {
+		g := &gs[i&63]
+		sink += nitrogenAt(g.T0, 0.8*g.rho0).a2
+		i++
+	}
+	_ = sink
+}
+
+// BenchmarkNitrogenStagnation measures one stagnation state (the
+// Peng–Robinson density and nitrogenAt) at the 64 states in turn.
+func BenchmarkNitrogenStagnation(b *testing.B) {
+	gs := nitrogenBenchStates()
+	var sink float64
+	i := 0
+	for b.Loop() {
+		g := &gs[i&63]
+		sink += NitrogenStagnation(g.P0, g.T0).rho0
+		i++
+	}
+	_ = sink
+}
+
+// BenchmarkNitrogenExpand measures one expansion from its own start
+// (nitrogenExpand) from the 64 stagnation states in turn to Mach 0.3–1.0.
+func BenchmarkNitrogenExpand(b *testing.B) {
+	gs := nitrogenBenchStates()
+	var sink float64
+	i := 0
+	for b.Loop() {
+		g := &gs[i&63]
+		T, _, _, _ := nitrogenExpand(g.T0, g.rho0, g.n0, 0.3+0.1*float64(i&7), 0)
+		sink += T
+		i++
+	}
+	_ = sink
+}
