@@ -217,9 +217,12 @@ const (
 //
 // Where the cubic has three real roots (inside the equation's two-phase dome) the
 // largest is returned: the vapour root, the one a gas-phase test medium has, also
-// in a supersaturated (metastable) state; elsewhere the single real root. The roots
-// come from Cardano's formula (trigonometric form for three real roots) polished by
-// Newton steps. p ≤ 0 gives 1 (the ideal-gas limit); T ≤ 0 gives 0.
+// in a supersaturated (metastable) state; elsewhere the single real root. The root
+// comes from Newton's method started at the second-virial estimate Z = 1 + B − A,
+// kept where it lies past both turning points of the cubic (so it is the largest),
+// else from Cardano's formula (trigonometric form for three real roots) polished by
+// Newton steps; the two agree within 1e-15 relative (TestPengRobinsonZNewton).
+// p ≤ 0 gives 1 (the ideal-gas limit); T ≤ 0 gives 0.
 //
 // Accuracy: a few per cent in density for nitrogen away from saturation; it is
 // worst close to the saturation line and the critical point (several per cent in
