@@ -108,6 +108,12 @@ type waterGrid struct {
 	// dRe0 and dRe1 are d ln(ρ/μ)/dT in 1/K, the rise of Re/m with T, at the
 	// grid's coldest and warmest temperatures (facilities.WaterViscositySlope).
 	dRe0, dRe1 float64
+	// fallsK and fallsV are the pressures falls was asked about on this grid
+	// and its answers, fallsN of them kept: a plan asks about two (the
+	// lowest and highest pressures, cavPressures) at every search.
+	fallsK [2]float64
+	fallsV [2]bool
+	fallsN int
 }
 
 // falls reports whether (k − p_v(T))/ρ(T), k a pressure in Pa, falls strictly
@@ -124,6 +130,25 @@ type waterGrid struct {
 // water model's range, outside which falls reports false). Each cell's bound
 // keeps a relative margin of 1e-9 for its own rounding.
 func (g *waterGrid) falls(k float64) bool {
+	for i := range g.fallsN {
+		if g.fallsK[i] == k {
+			return g.fallsV[i]
+		}
+	}
+	v := g.fallsNow(k)
+	i := g.fallsN
+	if i == len(g.fallsK) {
+		i = 0
+		g.fallsK[1], g.fallsV[1] = g.fallsK[0], g.fallsV[0]
+	} else {
+		g.fallsN++
+	}
+	g.fallsK[i], g.fallsV[i] = k, v
+	return v
+}
+
+// fallsNow is falls computed, not looked up.
+func (g *waterGrid) fallsNow(k float64) bool {
 	if !(g.ta >= facilities.WaterMinTemperature && g.tb <= facilities.WaterMaxTemperature) {
 		return false
 	}
@@ -161,6 +186,7 @@ func (gs *waterGrids) grid(ta, tb float64) *waterGrid {
 	gs.set[gs.next] = true
 	gs.next = (gs.next + 1) % len(gs.g)
 	g.ta, g.tb = ta, tb
+	g.fallsN = 0
 	for i := range g.wp {
 		t := cavGridT(ta, tb, i)
 		g.wp[i] = waterPropsAt(t)
@@ -302,20 +328,6 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// top is the candidate at the grid's warmest temperature, once known.
 	var top candidate
 	topRoom, haveTop := 0.0, false
-	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
-	// seen are Re/m and the distance outside the cavitation band of every
-	// usable candidate considered.
-	type rd struct{ r, d float64 }
-	var seenArr [4 * cavGrid]rd
-	seen := seenArr[:0]
-	consider := func(y candidate) {
-		if y.ok {
-			seen = append(seen, rd{y.r, sv.cavDistance(y.sig)})
-		}
-		if y.ok && (!best.ok || y.k.less(best.k)) {
-			best = y
-		}
-	}
 	if sv.cavThenReynolds() && !sv.feasOnly && sv.water != nil {
 		// The warmest usable water inside the cavitation band, short of the
 		// flight's Reynolds number, is the best temperature: none is better on
@@ -386,6 +398,20 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				y.band, y.bandLo, y.bandOK = top.band, top.bandLo, true
 			}
 			return y
+		}
+	}
+	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
+	// seen are Re/m and the distance outside the cavitation band of every
+	// usable candidate considered.
+	type rd struct{ r, d float64 }
+	var seenArr [4 * cavGrid]rd
+	seen := seenArr[:0]
+	consider := func(y candidate) {
+		if y.ok {
+			seen = append(seen, rd{y.r, sv.cavDistance(y.sig)})
+		}
+		if y.ok && (!best.ok || y.k.less(best.k)) {
+			best = y
 		}
 	}
 	var grid [cavGrid]candidate
