@@ -441,3 +441,60 @@ func WaterViscositySlope(T, rho, drho float64) float64 {
 	dLn := (0.5/tb+dd*u*u/d)/iapwsTStar + sum*dRb + rb*(-sx*u*u/iapwsTStar+sy*dRb)
 	return mu * dLn
 }
+
+// WaterPropertiesAndSlopes returns, at temperature T in K, the density ρ in
+// kg/m³, the viscosity μ in Pa·s and the vapour pressure p_v in Pa of pure
+// water with their slopes in T (per K): the values WaterDensity,
+// WaterDensitySlope, WaterViscosity, WaterViscositySlope (along Kell's
+// density), WaterVapourPressure and WaterVapourPressureSlope give, to the
+// bit, with the terms they share computed once (Kell's numerator and
+// denominator, the IAPWS 2008 sums, the square root and the exponential, the
+// IF97 coefficients and discriminant). TestWaterPropertiesAndSlopes holds
+// them equal.
+func WaterPropertiesAndSlopes(T float64) (rho, dRho, mu, dMu, pv, dPv float64) {
+	// Kell's equation (WaterDensity, WaterDensitySlope).
+	t := T - 273.15
+	num, den := kellNumerator(t), 1+kellB*t
+	rho = num / den
+	dnum := 16.945176 + t*(2*-7.9870401e-3+t*(3*-46.170461e-6+t*(4*105.56302e-9+t*(5*-280.54253e-12))))
+	dRho = (dnum*den - num*kellB) / (den * den)
+	// IAPWS 2008 (WaterViscosity, WaterViscositySlope).
+	tb := T / iapwsTStar
+	rb := rho / iapwsRhoStar
+	u := 1 / tb
+	d := iapwsMu0Sum(u)
+	dd := 2.20462 + u*(2*0.6366564+u*(3*-0.241605))
+	x, y := u-1, rb-1
+	var sum, sx, sy, xi, xi1 float64 = 0, 0, 0, 1, 0 // xi1 = i·x^(i−1)
+	for i := range iapwsH {
+		row := &iapwsH[i]
+		inner, dinner := 0.0, 0.0
+		for j := len(row) - 1; j >= 0; j-- {
+			dinner = dinner*y + inner
+			inner = inner*y + row[j]
+		}
+		sum += xi * inner
+		sx += xi1 * inner
+		sy += xi * dinner
+		xi1 = float64(i+1) * xi
+		xi *= x
+	}
+	sq, ex := math.Sqrt(tb), math.Exp(rb*sum)
+	mu0 := 100 * sq / d
+	mu = iapwsMuStar * mu0 * ex
+	muS := iapwsMuStar * 100 * sq / d * ex
+	dRb := dRho / iapwsRhoStar
+	dLn := (0.5/tb+dd*u*u/d)/iapwsTStar + sum*dRb + rb*(-sx*u*u/iapwsTStar+sy*dRb)
+	dMu = muS * dLn
+	// IAPWS-IF97 (WaterVapourPressure, WaterVapourPressureSlope).
+	n := &if97N
+	th, a, b, c := if97Coefficients(T)
+	r := math.Sqrt(b*b - 4*a*c)
+	beta := 2 * c / (-b + r)
+	p := beta * beta
+	pv = 1e6 * p * p
+	dBeta := ((2*th+n[0])*beta*beta + (2*n[2]*th+n[3])*beta + 2*n[5]*th + n[6]) / r
+	dTh := 1 - n[8]/((T-n[9])*(T-n[9]))
+	dPv = 4e6 * beta * beta * beta * dBeta * dTh
+	return rho, dRho, mu, dMu, pv, dPv
+}

@@ -179,3 +179,30 @@ func TestWaterSlopesMonotone(t *testing.T) {
 		prevRho, prevPv, prevRe = dRho, dPv, dRe
 	}
 }
+
+// TestWaterPropertiesAndSlopes holds WaterPropertiesAndSlopes equal, to the
+// bit, to the six functions it stands for (its documented contract), every
+// 0.001 K over the water model's range and at its ends.
+func TestWaterPropertiesAndSlopes(t *testing.T) {
+	t.Parallel()
+	n := 0
+	for i := 0; ; i++ {
+		T := facilities.WaterMinTemperature + 0.001*float64(i)
+		if T > facilities.WaterMaxTemperature {
+			T = facilities.WaterMaxTemperature
+		}
+		rho, dRho, mu, dMu, pv, dPv := facilities.WaterPropertiesAndSlopes(T)
+		wantRho, wantDRho := facilities.WaterDensity(T), facilities.WaterDensitySlope(T)
+		require.Equal(t, math.Float64bits(wantRho), math.Float64bits(rho), "ρ at %v K", T)
+		require.Equal(t, math.Float64bits(wantDRho), math.Float64bits(dRho), "dρ/dT at %v K", T)
+		require.Equal(t, math.Float64bits(facilities.WaterViscosity(T, wantRho)), math.Float64bits(mu), "μ at %v K", T)
+		require.Equal(t, math.Float64bits(facilities.WaterViscositySlope(T, wantRho, wantDRho)), math.Float64bits(dMu), "dμ/dT at %v K", T)
+		require.Equal(t, math.Float64bits(facilities.WaterVapourPressure(T)), math.Float64bits(pv), "p_v at %v K", T)
+		require.Equal(t, math.Float64bits(facilities.WaterVapourPressureSlope(T)), math.Float64bits(dPv), "dp_v/dT at %v K", T)
+		n++
+		if T == facilities.WaterMaxTemperature {
+			break
+		}
+	}
+	require.Greater(t, n, 150000)
+}

@@ -102,9 +102,11 @@ func (sv *solver) waterState(machOrSpeed, p0, t, rho, mu float64) (q, r float64,
 type waterGrid struct {
 	ta, tb float64
 	wp     [cavGrid]waterProps
-	// dRho and dPv are the slopes dρ/dT in kg/m³/K and dp_v/dT in Pa/K there
-	// (facilities.WaterDensitySlope, facilities.WaterVapourPressureSlope).
-	dRho, dPv [cavGrid]float64
+	// dRho, dMu and dPv are the slopes dρ/dT in kg/m³/K, dμ/dT in Pa·s/K and
+	// dp_v/dT in Pa/K there (facilities.WaterPropertiesAndSlopes); dMu only
+	// where dMuSet has its bit (viscositySlope), at the ends from the start.
+	dRho, dMu, dPv [cavGrid]float64
+	dMuSet         uint32
 	// dRe0 and dRe1 are d ln(ρ/μ)/dT in 1/K, the rise of Re/m with T, at the
 	// grid's coldest and warmest temperatures (facilities.WaterViscositySlope).
 	dRe0, dRe1 float64
@@ -189,15 +191,32 @@ func (gs *waterGrids) grid(ta, tb float64) *waterGrid {
 	g.fallsN = 0
 	for i := range g.wp {
 		t := cavGridT(ta, tb, i)
+		if i == 0 || i == cavGrid-1 {
+			w := &g.wp[i]
+			w.rho, g.dRho[i], w.mu, g.dMu[i], w.pv, g.dPv[i] = facilities.WaterPropertiesAndSlopes(t)
+			continue
+		}
 		g.wp[i] = waterPropsAt(t)
 		g.dRho[i], g.dPv[i] = facilities.WaterDensitySlope(t), facilities.WaterVapourPressureSlope(t)
 	}
+	g.dMuSet = 1 | 1<<(cavGrid-1)
 	dRe := func(i int) float64 {
 		w := &g.wp[i]
-		return g.dRho[i]/w.rho - facilities.WaterViscositySlope(cavGridT(ta, tb, i), w.rho, g.dRho[i])/w.mu
+		return g.dRho[i]/w.rho - g.dMu[i]/w.mu
 	}
 	g.dRe0, g.dRe1 = dRe(0), dRe(cavGrid-1)
 	return g
+}
+
+// viscositySlope returns dμ/dT in Pa·s/K at the grid's i-th temperature,
+// computed once (facilities.WaterViscositySlope, as
+// facilities.WaterPropertiesAndSlopes gives it).
+func (g *waterGrid) viscositySlope(i int) float64 {
+	if g.dMuSet&(1<<i) == 0 {
+		g.dMu[i] = facilities.WaterViscositySlope(cavGridT(g.ta, g.tb, i), g.wp[i].rho, g.dRho[i])
+		g.dMuSet |= 1 << i
+	}
+	return g.dMu[i]
 }
 
 // cavGridT is the i-th temperature of atWaterCav's grid over [ta, tb].
@@ -484,7 +503,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	settled := sv.cavThenReynolds() && zero(best) && grid[0].ok && grid[len(grid)-1].ok
 	if lo, hi := max(0, float64(ibest-1)), min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta && !settled {
 		a, b := ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1)
-		if t, ok := sv.cavSlopeRoot(wg, grid[int(lo)], s, a, b); ok && ibest > 0 && ibest < cavGrid-1 {
+		if t, ok := sv.cavSlopeRoot(wg, grid[int(lo)], s, int(lo), int(hi)); ok && ibest > 0 && ibest < cavGrid-1 {
 			consider(eval(t))
 		} else {
 			consider(sv.gridMin(eval, a, b, 3, 1e-12, sv.obj.weighted, false, false))
@@ -688,7 +707,8 @@ func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, fl
 // slope in T is 0, and true, where a weighted cavitation search's best grid
 // temperature lies inside [a, b] (its neighbours) with σ below σ_full at a
 // (so σ = σ_hi over [a, b], σ_hi falling with T: waterGrid.falls) and the
-// slope changes sign from a to b; false otherwise (the search then refines by
+// slope changes sign from a to b (the grid's temperatures ia and ib, whose
+// properties and slopes g keeps); false otherwise (the search then refines by
 // Brent's method, gridMin) or the solver does not ask for it (slopeRoot:
 // the trade curve's points). ya is the grid's candidate at a; s the scale.
 // Of the weighted sum only W = wc·A² + wr·B² moves with T, A = ln(σ_hi/σ_full),
@@ -708,9 +728,10 @@ func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, fl
 // where W itself, flat at its minimum, places the minimum only to about 1e-8
 // (the square root of the rounding), which Brent's method on W spent some 30
 // states to reach.
-func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s, a, b float64) (float64, bool) {
+func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s float64, ia, ib int) (float64, bool) {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	sf := sv.fl.Marine.Cavitation
+	a, b := cavGridT(g.ta, g.tb, ia), cavGridT(g.ta, g.tb, ib)
 	if !sv.obj.weighted || !sv.slopeRoot || !(wc > 0) || !(wr >= 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) ||
 		!ya.ok || !(ya.sig < sf*(1-1e-9)) || !(b > a) {
 		return 0, false
@@ -722,11 +743,9 @@ func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s, a, b float64) (flo
 	v := ya.machOrSpeed
 	kq := 0.5 * v * v
 	re := s * sv.L * v / sv.fl.Reynolds
-	slope := func(t float64) float64 {
-		sv.evals++ // the water's properties and slopes at t, counted as a state
-		rho, dRho := facilities.WaterDensity(t), facilities.WaterDensitySlope(t)
-		mu, dMu := facilities.WaterViscosity(t, rho), facilities.WaterViscositySlope(t, rho, dRho)
-		pv, dPv := facilities.WaterVapourPressure(t), facilities.WaterVapourPressureSlope(t)
+	// slopeOf is W′/2 from the water's properties and slopes at a
+	// temperature; NaN where σ_hi is not positive.
+	slopeOf := func(rho, dRho, mu, dMu, pv, dPv float64) float64 {
 		room := k - pv - cq*kq*rho
 		sig := room / (kq * rho)
 		if !(room > 0) || !(sig > 1e-9*sf) {
@@ -735,7 +754,16 @@ func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s, a, b float64) (flo
 		dA := -(dPv+cq*kq*dRho)/room - dRho/rho
 		return wc*math.Log(sig/sf)*dA + wr*math.Log(re*rho/mu)*(dRho/rho-dMu/mu)
 	}
-	fa, fb := slope(a), slope(b)
+	slope := func(t float64) float64 {
+		sv.evals++ // the water's properties and slopes at t, counted as a state
+		return slopeOf(facilities.WaterPropertiesAndSlopes(t))
+	}
+	// At the bracket's ends, grid temperatures, the grid keeps them.
+	slopeAt := func(i int) float64 {
+		w := &g.wp[i]
+		return slopeOf(w.rho, g.dRho[i], w.mu, g.viscositySlope(i), w.pv, g.dPv[i])
+	}
+	fa, fb := slopeAt(ia), slopeAt(ib)
 	if !(fa < 0) || !(fb > 0) {
 		return 0, false
 	}
