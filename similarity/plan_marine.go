@@ -372,14 +372,14 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		sv.grids = &waterGrids{}
 	}
 	wg := sv.grids.grid(ta, tb)
+	// The candidate at the grid's coldest temperature, once asked for.
+	var cold candidate
+	coldRoom, haveCold := 0.0, false
 	if (sv.cavFirst() || sv.obj.weighted) && !sv.feasOnly && !sv.noCavEnd {
 		if !haveTop {
 			top, topRoom = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
 			haveTop = true
 		}
-		// The candidate at the grid's coldest temperature, once asked for.
-		var cold candidate
-		coldRoom, haveCold := 0.0, false
 		coldAt := func() candidate {
 			if !haveCold {
 				cold, coldRoom = evalAt(cavGridT(ta, tb, 0), wg.wp[0])
@@ -437,7 +437,17 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	var rooms [cavGrid]float64
 	ibest := -1
 	for i := range grid {
-		grid[i], rooms[i] = evalAt(cavGridT(ta, tb, i), wg.wp[i])
+		// The grid's ends where the certificates asked for them already: the
+		// same states (at the first, nothing is lazy yet; at the last, a
+		// lazy key and the full one compare alike with the grid's best).
+		switch {
+		case i == 0 && haveCold:
+			grid[i], rooms[i] = cold, coldRoom
+		case i == cavGrid-1 && haveTop && !lazy:
+			grid[i], rooms[i] = top, topRoom
+		default:
+			grid[i], rooms[i] = evalAt(cavGridT(ta, tb, i), wg.wp[i])
+		}
 		if grid[i].ok && (ibest < 0 || grid[i].k.less(grid[ibest].k)) {
 			ibest = i
 			if lazy {
