@@ -369,7 +369,11 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		top, topRoom, haveTop = y, room, cavGridT(ta, tb, cavGrid-1) == tb
 	}
 	if sv.grids == nil {
-		sv.grids = &waterGrids{}
+		if sv.scratch != nil {
+			sv.grids = &sv.scratch.grids
+		} else {
+			sv.grids = &waterGrids{}
+		}
 	}
 	wg := sv.grids.grid(ta, tb)
 	// The candidate at the grid's coldest temperature, once asked for.

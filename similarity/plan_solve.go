@@ -321,6 +321,9 @@ type planScratch struct {
 	cond, spareCond     condLineCache
 	memo, spareMemo     stateMemos
 	stags               stagnations
+	// The water's properties on a vessel plan's temperature grids
+	// (solver.grids), shared by its relaxed copies.
+	grids waterGrids
 }
 
 // setupCache keeps a solver's set-ups by Mach number (speed): keys sorted by
