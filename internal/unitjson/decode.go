@@ -78,8 +78,8 @@ func Decode(body []byte, dst any) error {
 	// The walk fills a copy, so that dst is changed only when all is well.
 	fresh := reflect.New(rv.Elem().Type()).Elem()
 	fresh.Set(rv.Elem())
-	w := walker{}
-	w.walk(tree, fresh, "", "")
+	w := walker{path: make([]byte, 0, 64)}
+	w.walk(tree, fresh, "")
 	if len(w.errs) > 0 {
 		msg := check.InvalidCount(len(w.errs) + w.dropped)
 		if w.dropped > 0 {
@@ -378,26 +378,42 @@ func syntaxMessage(err error) string {
 type walker struct {
 	errs    []check.FieldError
 	dropped int
+	// path is the JSON path of the value being walked ("article.aero",
+	// "alpha.values[3]"), extended on the way down (key, index) and cut back on
+	// the way up (up): a problem's path is made a string only when one is found.
+	path []byte
 }
 
-func (w *walker) add(path, msg string) {
+// add records a problem at the current path.
+func (w *walker) add(msg string) {
 	if len(w.errs) >= check.MaxListed {
 		w.dropped++
 		return
 	}
-	w.errs = append(w.errs, check.FieldError{Field: path, Message: msg})
+	w.errs = append(w.errs, check.FieldError{Field: string(w.path), Message: msg})
 }
 
-func joinKey(path, key string) string {
-	if path == "" {
-		return key
+// key extends the path by an object key and returns the length to go back to.
+func (w *walker) key(k string) int {
+	n := len(w.path)
+	if n > 0 {
+		w.path = append(w.path, '.')
 	}
-	return path + "." + key
+	w.path = append(w.path, k...)
+	return n
 }
 
-func joinIndex(path string, i int) string {
-	return path + "[" + strconv.Itoa(i) + "]"
+// index extends the path by an array index and returns the length to go back to.
+func (w *walker) index(i int) int {
+	n := len(w.path)
+	w.path = append(w.path, '[')
+	w.path = strconv.AppendInt(w.path, int64(i), 10)
+	w.path = append(w.path, ']')
+	return n
 }
+
+// up cuts the path back to length n (what key or index returned).
+func (w *walker) up(n int) { w.path = w.path[:n] }
 
 // jsonKind names a decoded JSON value's type for messages.
 func jsonKind(v any) string {
@@ -421,10 +437,40 @@ var (
 	textUnmarshaler = reflect.TypeFor[encoding.TextUnmarshaler]()
 )
 
+// How a type's values are read: by the walk, or by the type's own
+// UnmarshalJSON or UnmarshalText (on its pointer).
+const (
+	byWalk = iota
+	byJSON
+	byText
+)
+
+// unmarshalers holds unmarshalerOf's answer for each type seen (reflect.Type →
+// int); like fieldCache it only grows, by the request types' few dozen types.
+var unmarshalers sync.Map
+
+// unmarshalerOf says how values of type t are read (byWalk, byJSON or byText),
+// once per type: reflect.PointerTo and Implements cost more than the walk of
+// most values.
+func unmarshalerOf(t reflect.Type) int {
+	if u, ok := unmarshalers.Load(t); ok {
+		return u.(int)
+	}
+	u := byWalk
+	switch pt := reflect.PointerTo(t); {
+	case pt.Implements(jsonUnmarshaler):
+		u = byJSON
+	case pt.Implements(textUnmarshaler):
+		u = byText
+	}
+	unmarshalers.Store(t, u)
+	return u
+}
+
 // walk stores the JSON value v in dst, a settable value. unit is the unit tag in
 // force ("" none). JSON null sets pointers, slices, maps and interfaces to nil and
 // leaves other kinds as they are.
-func (w *walker) walk(v any, dst reflect.Value, unit, path string) {
+func (w *walker) walk(v any, dst reflect.Value, unit string) {
 	t := dst.Type()
 	if v == nil {
 		switch t.Kind() {
@@ -441,26 +487,27 @@ func (w *walker) walk(v any, dst reflect.Value, unit, path string) {
 			p.Elem().Set(dst.Elem())
 		}
 		dst.Set(p)
-		w.walk(v, p.Elem(), unit, path)
+		w.walk(v, p.Elem(), unit)
 		return
 	}
-	if pt := reflect.PointerTo(t); pt.Implements(jsonUnmarshaler) {
+	switch unmarshalerOf(t) {
+	case byJSON:
 		raw, err := json.Marshal(v)
 		if err == nil {
 			err = dst.Addr().Interface().(json.Unmarshaler).UnmarshalJSON(raw)
 		}
 		if err != nil {
-			w.add(path, err.Error())
+			w.add(err.Error())
 		}
 		return
-	} else if pt.Implements(textUnmarshaler) {
+	case byText:
 		s, ok := v.(string)
 		if !ok {
-			w.add(path, "want a string, got "+jsonKind(v))
+			w.add("want a string, got " + jsonKind(v))
 			return
 		}
 		if err := dst.Addr().Interface().(encoding.TextUnmarshaler).UnmarshalText([]byte(s)); err != nil {
-			w.add(path, err.Error())
+			w.add(err.Error())
 		}
 		return
 	}
@@ -468,57 +515,57 @@ func (w *walker) walk(v any, dst reflect.Value, unit, path string) {
 	case reflect.Bool:
 		b, ok := v.(bool)
 		if !ok {
-			w.add(path, "want true or false, got "+jsonKind(v))
+			w.add("want true or false, got " + jsonKind(v))
 			return
 		}
 		dst.SetBool(b)
 	case reflect.String:
 		s, ok := v.(string)
 		if !ok {
-			w.add(path, "want a string, got "+jsonKind(v))
+			w.add("want a string, got " + jsonKind(v))
 			return
 		}
 		dst.SetString(s)
 	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64:
 		n, ok := v.(json.Number)
 		if !ok {
-			w.add(path, "want an integer, got "+jsonKind(v))
+			w.add("want an integer, got " + jsonKind(v))
 			return
 		}
 		i, err := strconv.ParseInt(string(n), 10, t.Bits())
 		if err != nil {
-			w.add(path, fmt.Sprintf("want an integer from %d to %d, got %s", int64(-1)<<(t.Bits()-1), uint64(1)<<(t.Bits()-1)-1, n))
+			w.add(fmt.Sprintf("want an integer from %d to %d, got %s", int64(-1)<<(t.Bits()-1), uint64(1)<<(t.Bits()-1)-1, n))
 			return
 		}
 		dst.SetInt(i)
 	case reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64, reflect.Uintptr:
 		n, ok := v.(json.Number)
 		if !ok {
-			w.add(path, "want an integer, got "+jsonKind(v))
+			w.add("want an integer, got " + jsonKind(v))
 			return
 		}
 		u, err := strconv.ParseUint(string(n), 10, t.Bits())
 		if err != nil {
-			w.add(path, fmt.Sprintf("want an integer from 0 to %d, got %s", uint64(math.MaxUint64)>>(64-t.Bits()), n))
+			w.add(fmt.Sprintf("want an integer from 0 to %d, got %s", uint64(math.MaxUint64)>>(64-t.Bits()), n))
 			return
 		}
 		dst.SetUint(u)
 	case reflect.Float32, reflect.Float64:
-		if f, ok := w.float(v, t.Bits(), unit, path); ok {
+		if f, ok := w.float(v, t.Bits(), unit); ok {
 			dst.SetFloat(f)
 		}
 	case reflect.Struct:
-		w.object(v, dst, unit, path)
+		w.object(v, dst, unit)
 	case reflect.Slice:
 		if t.Elem().Kind() == reflect.Uint8 {
 			s, ok := v.(string)
 			if !ok {
-				w.add(path, "want a base64 string, got "+jsonKind(v))
+				w.add("want a base64 string, got " + jsonKind(v))
 				return
 			}
 			b, err := base64.StdEncoding.DecodeString(s)
 			if err != nil {
-				w.add(path, "want a base64 string: "+err.Error())
+				w.add("want a base64 string: " + err.Error())
 				return
 			}
 			dst.SetBytes(b)
@@ -526,48 +573,52 @@ func (w *walker) walk(v any, dst reflect.Value, unit, path string) {
 		}
 		a, ok := v.([]any)
 		if !ok {
-			w.add(path, "want an array, got "+jsonKind(v))
+			w.add("want an array, got " + jsonKind(v))
 			return
 		}
 		s := reflect.MakeSlice(t, len(a), len(a))
 		for i, e := range a {
-			w.walk(e, s.Index(i), unit, joinIndex(path, i))
+			n := w.index(i)
+			w.walk(e, s.Index(i), unit)
+			w.up(n)
 		}
 		dst.Set(s)
 	case reflect.Array:
 		a, ok := v.([]any)
 		if !ok {
-			w.add(path, "want an array, got "+jsonKind(v))
+			w.add("want an array, got " + jsonKind(v))
 			return
 		}
 		if len(a) > t.Len() {
-			w.add(path, fmt.Sprintf("want at most %d elements, got %d", t.Len(), len(a)))
+			w.add(fmt.Sprintf("want at most %d elements, got %d", t.Len(), len(a)))
 			return
 		}
 		dst.SetZero()
 		for i, e := range a {
-			w.walk(e, dst.Index(i), unit, joinIndex(path, i))
+			n := w.index(i)
+			w.walk(e, dst.Index(i), unit)
+			w.up(n)
 		}
 	case reflect.Map:
-		w.mapValue(v, dst, unit, path)
+		w.mapValue(v, dst, unit)
 	case reflect.Interface:
 		if t.NumMethod() > 0 {
-			w.add(path, "this field cannot be set from JSON")
+			w.add("this field cannot be set from JSON")
 			return
 		}
-		if x, ok := w.plain(v, path); ok {
+		if x, ok := w.plain(v); ok {
 			dst.Set(reflect.ValueOf(&x).Elem())
 		}
 	default:
-		w.add(path, "this field cannot be set from JSON")
+		w.add("this field cannot be set from JSON")
 	}
 }
 
 // mapValue stores a JSON object in a map, into a copy of the map dst holds.
-func (w *walker) mapValue(v any, dst reflect.Value, unit, path string) {
+func (w *walker) mapValue(v any, dst reflect.Value, unit string) {
 	m, ok := v.(map[string]any)
 	if !ok {
-		w.add(path, "want an object, got "+jsonKind(v))
+		w.add("want an object, got " + jsonKind(v))
 		return
 	}
 	t := dst.Type()
@@ -584,20 +635,19 @@ func (w *walker) mapValue(v any, dst reflect.Value, unit, path string) {
 	}
 	sort.Strings(keys)
 	for _, k := range keys {
-		kp := joinKey(path, k)
-		key, ok := w.mapKey(k, t.Key(), kp)
-		if !ok {
-			continue
+		n := w.key(k)
+		if key, ok := w.mapKey(k, t.Key()); ok {
+			elem := reflect.New(t.Elem()).Elem()
+			w.walk(m[k], elem, unit)
+			nm.SetMapIndex(key, elem)
 		}
-		elem := reflect.New(t.Elem()).Elem()
-		w.walk(m[k], elem, unit, kp)
-		nm.SetMapIndex(key, elem)
+		w.up(n)
 	}
 	dst.Set(nm)
 }
 
 // mapKey converts an object key to a map key of type kt.
-func (w *walker) mapKey(k string, kt reflect.Type, path string) (reflect.Value, bool) {
+func (w *walker) mapKey(k string, kt reflect.Type) (reflect.Value, bool) {
 	key := reflect.New(kt).Elem()
 	var err error
 	switch {
@@ -619,7 +669,7 @@ func (w *walker) mapKey(k string, kt reflect.Type, path string) (reflect.Value, 
 		err = errors.New("this key type cannot be set from JSON")
 	}
 	if err != nil {
-		w.add(path, "bad key: "+err.Error())
+		w.add("bad key: " + err.Error())
 		return key, false
 	}
 	return key, true
@@ -627,12 +677,12 @@ func (w *walker) mapKey(k string, kt reflect.Type, path string) (reflect.Value, 
 
 // plain converts a decoded JSON value to what encoding/json stores in an any:
 // float64 numbers, map[string]any, []any, string, bool.
-func (w *walker) plain(v any, path string) (any, bool) {
+func (w *walker) plain(v any) (any, bool) {
 	switch x := v.(type) {
 	case json.Number:
 		f, err := strconv.ParseFloat(string(x), 64)
 		if err != nil {
-			w.add(path, fmt.Sprintf("the number %s is out of range", x))
+			w.add(fmt.Sprintf("the number %s is out of range", x))
 			return nil, false
 		}
 		return f, true
@@ -645,7 +695,9 @@ func (w *walker) plain(v any, path string) (any, bool) {
 		sort.Strings(keys) // errors in a stable order
 		for _, k := range keys {
 			var eok bool
-			x[k], eok = w.plain(x[k], joinKey(path, k))
+			n := w.key(k)
+			x[k], eok = w.plain(x[k])
+			w.up(n)
 			ok = ok && eok
 		}
 		return x, ok
@@ -653,7 +705,9 @@ func (w *walker) plain(v any, path string) (any, bool) {
 		ok := true
 		for i, e := range x {
 			var eok bool
-			x[i], eok = w.plain(e, joinIndex(path, i))
+			n := w.index(i)
+			x[i], eok = w.plain(e)
+			w.up(n)
 			ok = ok && eok
 		}
 		return x, ok
@@ -663,12 +717,12 @@ func (w *walker) plain(v any, path string) (any, bool) {
 
 // float reads a number, or converts a unit string, for a float field of the given
 // size in bits.
-func (w *walker) float(v any, bits int, unit, path string) (float64, bool) {
+func (w *walker) float(v any, bits int, unit string) (float64, bool) {
 	switch x := v.(type) {
 	case json.Number:
 		f, err := strconv.ParseFloat(string(x), bits)
 		if err != nil {
-			w.add(path, fmt.Sprintf("the number %s is out of range", x))
+			w.add(fmt.Sprintf("the number %s is out of range", x))
 			return 0, false
 		}
 		return f, true
@@ -677,7 +731,7 @@ func (w *walker) float(v any, bits int, unit, path string) (float64, bool) {
 		var err error
 		switch unit {
 		case "", UnitNone:
-			w.add(path, "want a number, got a string")
+			w.add("want a number, got a string")
 			return 0, false
 		case UnitScale:
 			f, err = parseScale(x)
@@ -685,22 +739,22 @@ func (w *walker) float(v any, bits int, unit, path string) (float64, bool) {
 			f, err = similarity.ToSI(x, unit)
 		}
 		if err != nil {
-			w.add(path, err.Error())
+			w.add(err.Error())
 			return 0, false
 		}
 		if math.IsNaN(f) || math.IsInf(f, 0) || (bits == 32 && math.Abs(f) > math.MaxFloat32) {
-			w.add(path, fmt.Sprintf("%q is out of range", x))
+			w.add(fmt.Sprintf("%q is out of range", x))
 			return 0, false
 		}
 		return f, true
 	}
 	switch unit {
 	case "", UnitNone:
-		w.add(path, "want a number, got "+jsonKind(v))
+		w.add("want a number, got " + jsonKind(v))
 	case UnitScale:
-		w.add(path, `want a number or a ratio such as "1:16", got `+jsonKind(v))
+		w.add(`want a number or a ratio such as "1:16", got ` + jsonKind(v))
 	default:
-		w.add(path, fmt.Sprintf("want a number (in %s) or a string with a unit, got %s", unit, jsonKind(v)))
+		w.add(fmt.Sprintf("want a number (in %s) or a string with a unit, got %s", unit, jsonKind(v)))
 	}
 	return 0, false
 }
@@ -719,10 +773,10 @@ func parseScale(s string) (float64, error) {
 }
 
 // object stores a JSON object in struct dst.
-func (w *walker) object(v any, dst reflect.Value, unit, path string) {
+func (w *walker) object(v any, dst reflect.Value, unit string) {
 	m, ok := v.(map[string]any)
 	if !ok {
-		w.add(path, "want an object, got "+jsonKind(v))
+		w.add("want an object, got " + jsonKind(v))
 		return
 	}
 	fields := structFields(dst.Type())
@@ -737,16 +791,15 @@ func (w *walker) object(v any, dst reflect.Value, unit, path string) {
 		if !f.tagged {
 			u = unit
 		}
-		fp := joinKey(path, f.name)
-		if n := jsonLen(fv); n > f.maxItems {
-			w.add(fp, fmt.Sprintf("%d items: at most %d", n, f.maxItems))
-			continue
-		}
-		if fd, ok := fieldAlloc(dst, f.index); ok && fd.CanSet() {
-			w.walk(fv, fd, u, fp)
+		n := w.key(f.name)
+		if items := jsonLen(fv); items > f.maxItems {
+			w.add(fmt.Sprintf("%d items: at most %d", items, f.maxItems))
+		} else if fd, ok := fieldAlloc(dst, f.index); ok && fd.CanSet() {
+			w.walk(fv, fd, u)
 		} else {
-			w.add(fp, "this field cannot be set from JSON")
+			w.add("this field cannot be set from JSON")
 		}
+		w.up(n)
 	}
 	if seen < len(m) {
 		var unknown []string
@@ -757,7 +810,9 @@ func (w *walker) object(v any, dst reflect.Value, unit, path string) {
 		}
 		sort.Strings(unknown)
 		for _, k := range unknown {
-			w.add(joinKey(path, k), "unknown field")
+			n := w.key(k)
+			w.add("unknown field")
+			w.up(n)
 		}
 	}
 }
