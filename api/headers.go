@@ -113,6 +113,11 @@ func checkJSONBody(r *http.Request) error {
 		return unsupported(fmt.Sprintf("Content-Encoding %q is not accepted: send the JSON body unencoded", truncate(ce, maxEchoField)))
 	}
 	ct := r.Header.Get("Content-Type")
+	if ct == "application/json" || ct == "application/json; charset=utf-8" {
+		// The two forms clients send, accepted without mime.ParseMediaType's
+		// parameter map: every other form is parsed below.
+		return nil
+	}
 	if ct == "" {
 		return unsupported("the request has no Content-Type: send the body as application/json")
 	}
