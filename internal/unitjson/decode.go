@@ -8,12 +8,14 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"reflect"
 	"sort"
 	"strconv"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"unicode/utf8"
 
 	"scalematch/internal/check"
@@ -141,7 +143,7 @@ func (p *treeParser) value(depth int) (any, bool) {
 	case c == '[':
 		return p.array(depth + 1)
 	case c == '"':
-		return p.str()
+		return p.str(false)
 	case c == '-' || ('0' <= c && c <= '9'):
 		return p.number()
 	case c == 't':
@@ -178,7 +180,7 @@ func (p *treeParser) object(depth int) (any, bool) {
 		if p.i >= len(p.b) || p.b[p.i] != '"' {
 			return nil, false
 		}
-		k, ok := p.str()
+		k, ok := p.str(true)
 		if !ok {
 			return nil, false
 		}
@@ -241,8 +243,10 @@ func (p *treeParser) array(depth int) (any, bool) {
 	}
 }
 
-// str reads a string without \u escapes whose bytes are valid UTF-8.
-func (p *treeParser) str() (string, bool) {
+// str reads a string without \u escapes whose bytes are valid UTF-8. An
+// object key (key) that names a field of a struct type decoded before is the
+// name kept in keyNames, not a new string.
+func (p *treeParser) str(key bool) (string, bool) {
 	p.i++ // "
 	start := p.i
 	ascii := true
@@ -252,6 +256,13 @@ func (p *treeParser) str() (string, bool) {
 		case c == '"':
 			s := p.b[start:p.i]
 			p.i++
+			if key {
+				if names := keyNames.Load(); names != nil {
+					if name, ok := (*names)[string(s)]; ok {
+						return name, true
+					}
+				}
+			}
 			if !ascii && !utf8.Valid(s) {
 				return "", false
 			}
@@ -881,8 +892,34 @@ func structFields(t reflect.Type) *fieldSet {
 	}
 	fs := &fieldSet{byName: map[string]int{}}
 	collectFields(t, nil, fs, map[reflect.Type]bool{})
-	actual, _ := fieldCache.LoadOrStore(t, fs)
+	actual, loaded := fieldCache.LoadOrStore(t, fs)
+	if !loaded {
+		addKeyNames(fs)
+	}
 	return actual.(*fieldSet)
+}
+
+// keyNames holds the field names of every struct type structFields has met,
+// each by itself: parseTree takes an object key that is one of them without
+// allocating a string for it. It is replaced, never changed, when a type
+// brings new names (a few dozen types, once each).
+var keyNames atomic.Pointer[map[string]string]
+
+// addKeyNames adds the field names of fs to keyNames.
+func addKeyNames(fs *fieldSet) {
+	for {
+		old := keyNames.Load()
+		names := map[string]string{}
+		if old != nil {
+			maps.Copy(names, *old)
+		}
+		for _, f := range fs.list {
+			names[f.name] = f.name
+		}
+		if keyNames.CompareAndSwap(old, &names) {
+			return
+		}
+	}
 }
 
 // collectFields adds t's fields to fs; fields of embedded structs follow the
