@@ -40,8 +40,9 @@ type TradePoint struct {
 // preparing a Mach number one rounding away (0.47 and 0.47000000000000003).
 func (sv *solver) trade(s float64, n int) []TradePoint {
 	pts := make([]TradePoint, n)
-	sv.slopeRoot = true
-	defer func() { sv.slopeRoot = false }()
+	sv.slopeRoot, sv.topOnly = true, true
+	sv.ceilHist.reset()
+	defer func() { sv.slopeRoot, sv.topOnly = false, false }()
 	for i := range pts {
 		u := sv.machOrSpeedMin
 		switch {
@@ -63,6 +64,16 @@ func (sv *solver) tradePoint(u, s float64) TradePoint {
 		tp.Mach, tp.Speed = 0, u
 	}
 	c := sv.prepare(u)
+	if c.partial && sv.load != nil && !(sv.loadQ(s, c.stRef) >= c.facilityTop.q) {
+		// The load limit caps q under the top setting here: the candidate
+		// reads the whole set-up.
+		sv.topOnly = false
+		c = sv.prepare(u)
+		sv.topOnly = true
+	}
+	if t := c.facilityTop; c.ok && t.cap == facilities.ConstraintDynamic && !t.edge && !t.fail {
+		sv.ceilHist.add(u, sv.qmax, t.p, t.t)
+	}
 	x := sv.atTarget(&c, s, math.Inf(1))
 	if !x.ok {
 		tp.Limit = x.fail
@@ -157,4 +168,87 @@ func LowestStagnationTemperature(f *facilities.Facility, mach, p0 float64) (floa
 		return t, facilities.ConstraintSpeedMin, nil
 	}
 	return t, facilities.ConstraintTempMin, nil
+}
+
+// topPartial is the top setting of a trade point's nitrogen set-up c
+// (solver.topOnly) without the state at (pa, the T0 floor), which a trade
+// point reads only for the start of the q ceiling's root: its p0 comes from
+// the curve's last q-ceiling roots instead (ceilingHistory.predict), or the
+// top lies on p0 max. Along the T0 floor q rises with p0
+// (TestQAlongFloorRises), so either way q at (pa, the floor) lies at or under
+// the ceiling and the set-up is usable there: on p0 max, q there is at most
+// q at pTop, itself at most the ceiling; on the ceiling, at most q at the
+// root found above pa, which its own state puts at or under the ceiling
+// (ceilingJointFrom). ok is false when neither holds (the caller then
+// completes the set-up as any other).
+func (sv *solver) topPartial(c *machSetup) (topSetting, bool) {
+	qc := sv.qmax
+	if p, t, ok := sv.ceilHist.predict(c.machOrSpeed, qc); ok && p > c.pa && p < c.pTop {
+		if pf, ok := sv.ceilingJointFrom(c, qc, p, t); ok {
+			t := sv.topFinish(c, topSetting{p: pf, cap: facilities.ConstraintDynamic}, qc)
+			return t, !t.fail
+		}
+	}
+	if sv.qcurve(c, c.pTop) <= qc {
+		t := sv.highestSetting(c, qc, facilities.ConstraintDynamic)
+		return t, !t.fail
+	}
+	return topSetting{}, false
+}
+
+// ceilingHistory is the trade curve's last q-ceiling roots (p0, T0), at
+// rising Mach numbers: p0 as y = ln p0 less the logarithm of the p0 at which
+// an ideal gas (γ = 1.4) has the ceiling's q at that Mach number, a slowly
+// varying remainder (the real gas, the T0 floor), and T0 as ln T0, which
+// predict extrapolates.
+type ceilingHistory struct {
+	n       int
+	m, y, z [3]float64
+}
+
+// idealCeilingLog returns ln p0 at which an ideal gas with γ = 1.4 has the
+// dynamic pressure qc at Mach number m: q = 0.7·p0·M²·(1 + 0.2·M²)^−3.5.
+func idealCeilingLog(m, qc float64) float64 {
+	return math.Log(qc/(0.7*m*m)) + 3.5*math.Log1p(0.2*m*m)
+}
+
+// reset empties h.
+func (h *ceilingHistory) reset() { *h = ceilingHistory{} }
+
+// add keeps the q-ceiling root (p0, t0) at Mach number m (ceiling qc), the
+// oldest of three dropped.
+func (h *ceilingHistory) add(m, qc, p0, t0 float64) {
+	if h.n > 0 && !(m > h.m[h.n-1]) {
+		h.reset()
+	}
+	if h.n == len(h.m) {
+		copy(h.m[:], h.m[1:])
+		copy(h.y[:], h.y[1:])
+		copy(h.z[:], h.z[1:])
+		h.n--
+	}
+	h.m[h.n], h.y[h.n], h.z[h.n] = m, math.Log(p0)-idealCeilingLog(m, qc), math.Log(t0)
+	h.n++
+}
+
+// predict returns the q-ceiling root (p0, t0) at Mach number m beyond the
+// roots kept, extrapolated through the last three (a parabola) or two (a
+// line); ok false with fewer.
+func (h *ceilingHistory) predict(m, qc float64) (p0, t0 float64, ok bool) {
+	if h.n < 2 || !(m > h.m[h.n-1]) {
+		return 0, 0, false
+	}
+	var y, z float64
+	for i := range h.n {
+		l := 1.0
+		for j := range h.n {
+			if j != i {
+				l *= (m - h.m[j]) / (h.m[i] - h.m[j])
+			}
+		}
+		y += l * h.y[i]
+		z += l * h.z[i]
+	}
+	p0, t0 = math.Exp(y+idealCeilingLog(m, qc)), math.Exp(z)
+	return p0, t0, p0 > 0 && t0 > 0 && !math.IsInf(p0, 0) && !math.IsInf(t0, 0)
 }

@@ -238,16 +238,26 @@ func (cc *condLineCache) lineIndex(p0 float64) (int, bool) {
 // does not converge in 6 steps, or when a check fails: the caller then finds
 // the root in p0 as before.
 func (sv *solver) ceilingJoint(c *machSetup, qc, qa, qTop float64) (float64, bool) {
-	cc := sv.cond
-	if !c.cond || c.vmin != 0 || cc == nil || len(cc.line) == 0 || cc.lo != c.ta || cc.hi != c.tb || !(qa < qc && qc < qTop) {
+	if !(qa < qc && qc < qTop) {
 		return 0, false
 	}
-	p := c.pa + (c.pTop-c.pa)*(qc-qa)/(qTop-qa)
+	return sv.ceilingJointFrom(c, qc, c.pa+(c.pTop-c.pa)*(qc-qa)/(qTop-qa), math.NaN())
+}
+
+// ceilingJointFrom is ceilingJoint's Newton iteration and checks from the
+// start (p, t) in (p0, T0); t NaN: the line interpolated at p.
+func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64) (float64, bool) {
+	cc := sv.cond
+	if !c.cond || c.vmin != 0 || cc == nil || len(cc.line) == 0 || cc.lo != c.ta || cc.hi != c.tb {
+		return 0, false
+	}
 	i, found := cc.lineIndex(p)
 	if found {
 		return 0, false
 	}
-	t := cc.guess(i, p)
+	if !(t > c.ta && t < c.tb) {
+		t = cc.guess(i, p)
+	}
 	var fs, prev facilities.FloorSlopes
 	converged := false
 	for k := range 6 {

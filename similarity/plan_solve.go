@@ -105,6 +105,10 @@ type machSetup struct {
 	cond        bool       // condensation (or vmin) sets the T0 floor somewhere in [pa, pTop]
 	vmin        float64    // nitrogen: the facility's lowest speed, held in the T0 floor, m/s; 0 for none
 	facilityTop topSetting // the highest usable Re/m within the facility's own limits
+	// partial: a trade point's set-up (solver.topOnly) that holds its top
+	// setting and reference state but not the state at (pa, the T0 floor):
+	// qa, ra and qLow are unset (topPartial).
+	partial bool
 
 	// Water only.
 	rWaterTop   float64
@@ -237,6 +241,16 @@ type solver struct {
 	// and where a continuum of settings meets every target, which the
 	// rounding picks moves the plan).
 	slopeRoot bool
+	// topOnly: set while the trade curve is computed (trade), whose points
+	// read a new set-up for its top setting alone (atTarget with no target
+	// Re/m): a nitrogen set-up there may be partial (topPartial).
+	topOnly bool
+	// ceilHist holds the trade curve's last q-ceiling roots, from which
+	// topPartial predicts the next one.
+	ceilHist ceilingHistory
+	// noPartial keeps every set-up whole (no topPartial), for the test that
+	// compares the trade curve with and without partial set-ups.
+	noPartial bool
 	// gridCut, where set, evaluates the grid of the next gridMin call, given
 	// the grid's best candidate so far; gridMin takes it (and clears it, so
 	// that the searches nested inside an evaluation do not see it). A
@@ -1073,7 +1087,9 @@ func (sv *solver) prepare(machOrSpeed float64) machSetup {
 		return *c
 	}
 	c := sv.prepareNow(machOrSpeed)
-	sv.setups.put(machOrSpeed, &c)
+	if !c.partial {
+		sv.setups.put(machOrSpeed, &c)
+	}
 	return c
 }
 
@@ -1161,12 +1177,15 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		return c
 	}
 	// below: (p0, T0) is below the T0 floor; the local expansion alone (the
-	// same at every Mach number) tells when it condenses, before any state.
+	// same at every Mach number) tells when it condenses, before any state,
+	// and, where it decides (warmMargin), that it does not: the state at
+	// (pa, ta), whose free stream is then usable, is computed only where the
+	// set-up reads it (stA), not by a trade point's partial set-up.
 	below := func(p, t float64) bool {
 		if sv.localMargin(p, t) < sv.condMin {
 			return true
 		}
-		m, _ := sv.floorMargin(&c, p, t)
+		m, _ := sv.warmMargin(&c, p, t)
 		return m < 0
 	}
 	if below(pa, ta) || below(pb, ta) {
@@ -1175,6 +1194,12 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 			// Above some p0 even the warmest usable T0 condenses (or is too slow).
 			c.pTop = sv.rootHi(func(p float64) float64 { m, _ := sv.floorMargin(&c, p, tb); return m }, pa, pb, false)
 			c.capTop = name
+		}
+	}
+	if sv.topOnly && !sv.noPartial && c.cond && ta != tb && c.vmin == 0 && sv.floor == nil && sv.cond != nil && machOrSpeed <= f.CondensationPeak() {
+		if top, ok := sv.topPartial(&c); ok {
+			c.facilityTop, c.partial, c.ok = top, true, true
+			return c
 		}
 	}
 	stA := stB
@@ -1306,6 +1331,13 @@ func (sv *solver) highestSetting(c *machSetup, qc float64, name string) topSetti
 			}, sv.tfloor(c, c.pa), c.tb, true)
 		}
 	}
+	return sv.topFinish(c, t, qc)
+}
+
+// topFinish completes the top setting t whose p0 (and, on an edge, T0)
+// highestSetting has found under the q ceiling qc: its T0 on the floor, its
+// Re/m, q and speed, and the Re/m ceiling.
+func (sv *solver) topFinish(c *machSetup, t topSetting, qc float64) topSetting {
 	if !t.edge {
 		t.t = sv.tfloor(c, t.p)
 	}

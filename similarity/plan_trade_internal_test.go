@@ -1,0 +1,107 @@
+package similarity
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+)
+
+// tradeSolver returns a solver of the trade curve of a 1 m model in f (as
+// Envelope's) with a nitrogen plan's memory: set-ups, condensation line,
+// state memos and stagnation states kept.
+func tradeSolver(t *testing.T, f *facilities.Facility) *solver {
+	t.Helper()
+	sv := &solver{f: f, L: 1, loadScale: 1, art: &Article{ReferenceLength: 1}, qmax: math.Inf(1), remax: math.Inf(1),
+		cond: newCondLineCache(), setups: new(setupCache), memo: &stateMemos{}, stags: &stagnations{}}
+	if f.MaxDynamicPressure != nil {
+		sv.qmax = *f.MaxDynamicPressure
+	}
+	require.NoError(t, sv.setURange())
+	return sv
+}
+
+// TestQAlongFloorRises: in cn2-05 (the condensation line as its T0 floor),
+// q on the floor rises with p0 at every Mach number of its range, the
+// property topPartial relies on to know q at p0 min under the ceiling
+// without its state (checked on a grid of 40 p0 at 19 Mach numbers; from
+// facilities.State: q ≈ p0·q/p0, the last nearly flat along the floor).
+func TestQAlongFloorRises(t *testing.T) {
+	t.Parallel()
+	f, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	f.MaxDynamicPressure = nil
+	for m := 0.2; m <= 0.92+1e-9; m += 0.04 {
+		floor := 0.0
+		prev := 0.0
+		for i := range 40 {
+			p0 := f.StagnationPressure.Min + (f.StagnationPressure.Max-f.StagnationPressure.Min)*float64(i)/39
+			t0, _, err := LowestStagnationTemperature(&f, m, p0)
+			require.NoError(t, err, "Mach %g, p0 %g Pa", m, p0)
+			require.GreaterOrEqual(t, t0, floor, "the floor rises with p0: Mach %g, p0 %g Pa", m, p0)
+			floor = t0
+			st, err := f.State(facilities.Setting{Mach: m, StagnationPressure: p0, StagnationTemperature: t0})
+			require.NoError(t, err, "Mach %g, p0 %g Pa", m, p0)
+			assert.Greater(t, st.DynamicPressure, prev, "Mach %g, p0 %g Pa", m, p0)
+			prev = st.DynamicPressure
+		}
+	}
+}
+
+// TestTradePartialSetups: the trade curve with partial set-ups (topPartial:
+// no state at p0 min on the floor, the q ceiling's root started from the
+// curve's last roots) against the same curve with every set-up whole, in
+// cn2-05 under q ceilings from 30 to 120 kPa, condensation margins of 0 and
+// 0.02 and two p0 ranges: the same limits and points within 2e-13 relative
+// (the roots' 1e-13: the condensation line's points are found from others,
+// and alone, without a plan's scan before it, the curve's first line point
+// is p0 max's, found by rootHi to 1e-13, up to 9.5e-14 from the whole
+// curve's in T0, which Re/m follows as T0^-1.4 and the q ceiling's root in p0
+// with it), each
+// point's setting usable by the facility's own check (Violations of its
+// State), and partial set-ups used (the regression guard of the saving).
+func TestTradePartialSetups(t *testing.T) {
+	t.Parallel()
+	base, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	partials := 0
+	for _, qmax := range []float64{30e3, 50e3, 70e3, 90e3, 120e3} {
+		for _, cond := range []float64{0, 0.02} {
+			for _, pr := range []facilities.Range{base.StagnationPressure, {Min: 110e3, Max: 450e3}} {
+				f := base
+				f.MaxDynamicPressure = &qmax
+				f.StagnationPressure = pr
+				whole, part := tradeSolver(t, &f), tradeSolver(t, &f)
+				whole.noPartial = true
+				whole.condMin, part.condMin = cond, cond
+				want := whole.trade(1, 41)
+				// Count the partial set-ups: they are not kept.
+				got := part.trade(1, 41)
+				partials += 41 - len(part.setups.keys)
+				for i, w := range want {
+					g := got[i]
+					require.Equal(t, w.Limit, g.Limit, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+					for _, v := range [][2]float64{{w.Reynolds, g.Reynolds}, {w.StagnationPressure, g.StagnationPressure},
+						{w.StagnationTemperature, g.StagnationTemperature}, {w.DynamicPressure, g.DynamicPressure}, {w.Speed, g.Speed}} {
+						if v[0] != v[1] {
+							assert.InEpsilon(t, v[0], v[1], 2e-13, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+						}
+					}
+					if g.Reynolds == 0 {
+						continue
+					}
+					st, err := f.State(facilities.Setting{Mach: g.Mach, StagnationPressure: g.StagnationPressure, StagnationTemperature: g.StagnationTemperature})
+					require.NoError(t, err)
+					if cond == 0 {
+						assert.Empty(t, f.Violations(st), "q max %g, p0 %v, point %d", qmax, pr, i)
+					}
+					assert.LessOrEqual(t, st.DynamicPressure, qmax, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+				}
+			}
+		}
+	}
+	assert.Greater(t, partials, 200, "partial set-ups")
+}
