@@ -184,7 +184,7 @@ func LowestStagnationTemperature(f *facilities.Facility, mach, p0 float64) (floa
 func (sv *solver) topPartial(c *machSetup) (topSetting, bool) {
 	qc := sv.qmax
 	if p, t, ok := sv.ceilHist.predict(c.machOrSpeed, qc); ok && p > c.pa && p < c.pTop {
-		if pf, ok := sv.ceilingJointFrom(c, qc, p, t); ok {
+		if pf, ok := sv.ceilingJointFrom(c, qc, p, t, nil); ok {
 			t := sv.topFinish(c, topSetting{p: pf, cap: facilities.ConstraintDynamic}, qc)
 			return t, !t.fail
 		}

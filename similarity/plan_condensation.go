@@ -241,12 +241,64 @@ func (sv *solver) ceilingJoint(c *machSetup, qc, qa, qTop float64) (float64, boo
 	if !(qa < qc && qc < qTop) {
 		return 0, false
 	}
-	return sv.ceilingJointFrom(c, qc, c.pa+(c.pTop-c.pa)*(qc-qa)/(qTop-qa), math.NaN())
+	if j := sv.joints.near(sv, c.machOrSpeed, qc); j != nil {
+		// A point found lately lies at a Mach number within 1e-6 relative:
+		// its iterate is within about 3e-6 of this root, and its expansions
+		// start this one's.
+		if p, ok := sv.ceilingJointFrom(c, qc, j.p, j.t, &j.fs); ok {
+			return p, true
+		}
+	}
+	return sv.ceilingJointFrom(c, qc, c.pa+(c.pTop-c.pa)*(qc-qa)/(qTop-qa), math.NaN(), nil)
+}
+
+// jointNear is the largest relative distance in Mach number from the last
+// q-ceiling point found at which ceilingJoint starts from it (jointMemo).
+const jointNear = 1e-6
+
+// jointMemos are the last q-ceiling points ceilingJointFrom found, next the
+// one to replace.
+type jointMemos struct {
+	e    [4]jointMemo
+	next int
+}
+
+// near returns the point kept nearest to Mach number m, for the ceiling qc
+// and sv's condensation limit and line, within jointNear; nil for none.
+func (js *jointMemos) near(sv *solver, m, qc float64) *jointMemo {
+	var best *jointMemo
+	for i := range js.e {
+		j := &js.e[i]
+		if j.ok && j.cond == sv.cond && j.qc == qc && j.condMin == sv.condMin && math.Abs(m-j.mach) <= jointNear*m &&
+			(best == nil || math.Abs(m-j.mach) < math.Abs(m-best.mach)) {
+			best = j
+		}
+	}
+	return best
+}
+
+// put keeps j in place of the oldest.
+func (js *jointMemos) put(j jointMemo) {
+	js.e[js.next] = j
+	js.next = (js.next + 1) % len(js.e)
+}
+
+// jointMemo is a q-ceiling point ceilingJointFrom found: the Mach
+// number, ceiling, condensation limit and line it was found for, its last
+// iterate (p, t) and the figures of its last iteration, from which the
+// expansions of a start there begin (facilities.NitrogenFloorSlopes' prev).
+type jointMemo struct {
+	ok                bool
+	mach, qc, condMin float64
+	cond              *condLineCache
+	p, t              float64
+	fs                facilities.FloorSlopes
 }
 
 // ceilingJointFrom is ceilingJoint's Newton iteration and checks from the
-// start (p, t) in (p0, T0); t NaN: the line interpolated at p.
-func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64) (float64, bool) {
+// start (p, t) in (p0, T0) (t NaN: the line interpolated at p), the first
+// iteration's expansions started from from's where given.
+func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilities.FloorSlopes) (float64, bool) {
 	cc := sv.cond
 	if !c.cond || c.vmin != 0 || cc == nil || len(cc.line) == 0 || cc.lo != c.ta || cc.hi != c.tb {
 		return 0, false
@@ -261,7 +313,7 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64) (float64, boo
 	var fs, prev facilities.FloorSlopes
 	converged := false
 	for k := range 6 {
-		var pp *facilities.FloorSlopes
+		pp := from
 		if k > 0 {
 			pp = &prev
 		}
@@ -311,5 +363,6 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64) (float64, boo
 		return 0, false
 	}
 	cc.line = slices.Insert(cc.line, i, condPoint{pf, tf})
+	sv.joints.put(jointMemo{ok: true, mach: c.machOrSpeed, qc: qc, condMin: sv.condMin, cond: cc, p: p, t: t, fs: fs})
 	return pf, true
 }

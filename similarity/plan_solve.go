@@ -248,6 +248,9 @@ type solver struct {
 	// ceilHist holds the trade curve's last q-ceiling roots, from which
 	// topPartial predicts the next one.
 	ceilHist ceilingHistory
+	// joints are the last q-ceiling points of the joint step (ceilingJoint),
+	// which start the next one at a Mach number within jointNear.
+	joints jointMemos
 	// noPartial keeps every set-up whole (no topPartial), for the test that
 	// compares the trade curve with and without partial set-ups.
 	noPartial bool

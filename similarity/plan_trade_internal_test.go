@@ -105,3 +105,57 @@ func TestTradePartialSetups(t *testing.T) {
 	}
 	assert.Greater(t, partials, 200, "partial set-ups")
 }
+
+// TestCeilingJointNear: on cn2-05's q ceiling, the joint step started from a
+// point found at a Mach number within jointNear (jointMemos) finds the root
+// that the step from the secant start finds, within 1e-13 relative, on the
+// usable side (q ≤ the ceiling at the floor there), in no more iterations
+// (one, with the point's own state, where the Mach numbers lie 1e-9 apart;
+// regression values).
+func TestCeilingJointNear(t *testing.T) {
+	t.Parallel()
+	f, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	qc := *f.MaxDynamicPressure
+	newSv := func() *solver {
+		return &solver{f: &f, loadScale: 1, qmax: math.Inf(1), remax: math.Inf(1),
+			cond: newCondLineCache(), memo: &stateMemos{}, stags: &stagnations{}}
+	}
+	near, cold := newSv(), newSv()
+	used := 0
+	for _, m0 := range []float64{0.65, 0.72, 0.775, 0.85, 0.91} {
+		for _, d := range []float64{0, 1e-9, -3e-8, 5e-7} {
+			m := m0 * (1 + d)
+			c := near.prepareNitrogen(m)
+			require.True(t, c.ok, "Mach %g", m)
+			qTop := near.qcurve(&c, c.pTop)
+			require.Greater(t, qTop, qc, "Mach %g", m)
+			j := near.joints.near(near, m, qc)
+			if d == 0 {
+				near.joints = jointMemos{}
+				j = nil
+			}
+			e0 := near.evals
+			p, ok := near.ceilingJoint(&c, qc, near.qcurve(&c, c.pa), qTop)
+			require.True(t, ok, "Mach %g", m)
+			evals := near.evals - e0
+			cold.joints = jointMemos{}
+			cc := cold.prepareNitrogen(m)
+			e0 = cold.evals
+			want, ok := cold.ceilingJoint(&cc, qc, cold.qcurve(&cc, cc.pa), cold.qcurve(&cc, cc.pTop))
+			require.True(t, ok, "Mach %g", m)
+			if d != 0 {
+				require.NotNil(t, j, "Mach %g: a point within jointNear", m)
+				used++
+				assert.LessOrEqual(t, evals, cold.evals-e0, "Mach %g: evaluations", m)
+				if math.Abs(d) <= 1e-9 {
+					// One iteration and the point's own state.
+					assert.Equal(t, 2, evals, "Mach %g: evaluations", m)
+				}
+			}
+			assert.InEpsilon(t, want, p, 1e-13, "Mach %g", m)
+			assert.LessOrEqual(t, near.qcurve(&c, p), qc, "Mach %g", m)
+		}
+	}
+	assert.Equal(t, 15, used)
+}
