@@ -1643,9 +1643,22 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 	}
 	r = math.Min(r, tp.r)
 	x.r = r
-	if r >= tp.r {
+	switch {
+	case r >= tp.r:
 		x.p0, x.t0, x.q, x.v = tp.p, tp.t, tp.q, tp.v
-	} else {
+	case sv.feasOnly && !c.linear:
+		// Real-gas nitrogen in the feasibility scan, which reads only that a
+		// candidate exists: solveR's setting for an Re/m under the top's lies
+		// on the T0 floor between p0 min and the top's p0, or at p0 min
+		// between the floor and the warmest T0 (the top's T0 on an edge),
+		// and the q ceiling's warming below keeps to [the floor, that T0]:
+		// each a state no colder than the floor at its p0, where the gas is
+		// usable, so the candidate exists and the roots that place it (about
+		// 15 states where a small model's target lies under Re/m at p0 min, as
+		// at 45 km) are not found. Its setting is left unsolved (zero).
+		x.ok, x.k = true, worst
+		return x
+	default:
 		x.p0, x.t0 = sv.solveR(c, tp, r)
 		x.q, x.v = sv.qAt(c, x.p0, x.t0)
 		if !c.linear && x.q > qc*(1+limitSlack) {

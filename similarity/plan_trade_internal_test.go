@@ -159,3 +159,49 @@ func TestCeilingJointNear(t *testing.T) {
 	}
 	assert.Equal(t, 15, used)
 }
+
+// TestFeasibleUnderTop: in nitrogen, every target Re/m under the top
+// setting's has a usable candidate (atTarget ok), the certificate by which
+// the feasibility scan takes such a candidate without solving its setting
+// (atWindow with solver.feasOnly): in cn2-05 under q ceilings of 50 and 70 kPa
+// and none, condensation minimums 0 and 0.02, over its Mach range, for
+// targets from half the lowest Re/m to just under the top's, each solved
+// candidate is ok, and the scan's is ok too.
+func TestFeasibleUnderTop(t *testing.T) {
+	t.Parallel()
+	base, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	solved := 0
+	for _, qmax := range []float64{50e3, 70e3, math.Inf(1)} {
+		for _, cond := range []float64{0, 0.02} {
+			f := base
+			f.MaxDynamicPressure = nil
+			if !math.IsInf(qmax, 1) {
+				f.MaxDynamicPressure = &qmax
+			}
+			sv := tradeSolver(t, &f)
+			sv.condMin = cond
+			for m := 0.2; m <= 0.92; m += 0.06 {
+				c := sv.prepare(m)
+				if !c.ok {
+					continue
+				}
+				rlo, rtop := sv.lowR(&c), c.facilityTop.r
+				for _, r := range []float64{0.5 * rlo, rlo * (1 + 1e-15), 0.5 * (rlo + c.ra), c.ra, 0.5 * (c.ra + rtop), rtop * (1 - 1e-9)} {
+					if !(r < rtop) {
+						continue
+					}
+					x := sv.atTarget(&c, 1, r)
+					require.True(t, x.ok, "q max %g, cond %g, Mach %g, Re/m %g: %s", qmax, cond, m, r, x.fail)
+					solved++
+					sv.feasOnly = true
+					y := sv.atTarget(&c, 1, r)
+					sv.feasOnly = false
+					assert.True(t, y.ok, "scan: q max %g, cond %g, Mach %g, Re/m %g", qmax, cond, m, r)
+				}
+			}
+		}
+	}
+	t.Logf("%d candidates", solved)
+	assert.Greater(t, solved, 300)
+}
