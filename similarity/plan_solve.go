@@ -1405,7 +1405,12 @@ func (sv *solver) solveR(c *machSetup, tp topSetting, r float64) (p0, t0 float64
 		g := func(t float64) float64 { return r - rAt(c.pa, t) }
 		if !c.linear {
 			// Real-gas nitrogen: Re/m is smooth in T0, and secant steps
-			// take fewer of its costly states than the Illinois rule.
+			// take fewer of its costly states than the Illinois rule. Re/m at
+			// tb is the set-up's lowest, rlo, once known: the same state's,
+			// which the solver's last two states have mostly let go.
+			if c.rloOK {
+				return usableRootUpHi(g, lo, c.tb, r-c.rlo, true)
+			}
 			return sv.rootHiSmooth(g, lo, c.tb, true)
 		}
 		return sv.rootHi(g, lo, c.tb, true)
@@ -1895,7 +1900,21 @@ func usableRootUp(g func(float64) float64, lo, hi float64, smooth bool) float64 
 	if fa >= 0 {
 		return lo
 	}
-	fb := g(hi)
+	return usableRootBracket(g, lo, fa, hi, g(hi), smooth)
+}
+
+// usableRootUpHi is usableRootUp with g(hi) = fb known.
+func usableRootUpHi(g func(float64) float64, lo, hi, fb float64, smooth bool) float64 {
+	fa := g(lo)
+	if fa >= 0 {
+		return lo
+	}
+	return usableRootBracket(g, lo, fa, hi, fb, smooth)
+}
+
+// usableRootBracket is usableRootUp once g(lo) = fa < 0 and g(hi) = fb are
+// known.
+func usableRootBracket(g func(float64) float64, lo, fa, hi, fb float64, smooth bool) float64 {
 	if fb < 0 {
 		return hi
 	}
