@@ -178,15 +178,10 @@ func (sv *solver) refine(x candidate, ivs []interval) candidate {
 		}
 		verts[i+1], vals[i+1] = v, eval(v)
 	}
-	nm := &optimize.NelderMead{InitialVertices: verts, InitialValues: vals}
-	settings := &optimize.Settings{
-		InitValues:      &optimize.Location{F: f0},
-		FuncEvaluations: polishEvals - n - dim, // dim: the tries on the bounds
-		Converger:       polishConverge(),
-	}
-	// The error reports only why the simplex stopped (the evaluation bound, or a
-	// start the method rejects); the best candidate seen stands either way.
-	_, _ = optimize.Minimize(optimize.Problem{Func: eval}, z0, settings, nm)
+	// The best candidate seen stands however the simplex stops (the evaluation
+	// bound, convergence, or a start the method rejects).
+	simplex(eval, z0, f0, polishEvals-n-dim, polishConverge(), // dim: the tries on the bounds
+		&optimize.NelderMead{InitialVertices: verts, InitialValues: vals})
 	// The simplex approaches a bound it should sit on (a span limit, the top of the
 	// speed range) only to within its last step: try each coordinate at the bound it
 	// is within polishSnap of, so that a binding limit binds exactly and is listed.
