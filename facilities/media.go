@@ -422,7 +422,18 @@ func WaterViscositySlope(T, rho, drho float64) float64 {
 	d := iapwsMu0Sum(u)
 	dd := 2.20462 + u*(2*0.6366564+u*(3*-0.241605))
 	x, y := u-1, rb-1
-	var sum, sx, sy, xi, xi1 float64 = 0, 0, 0, 1, 0 // xi1 = i·x^(i−1)
+	sum, sx, sy := iapwsSums(x, y)
+	mu := iapwsMuStar * 100 * math.Sqrt(tb) / d * math.Exp(rb*sum)
+	dRb := drho / iapwsRhoStar
+	dLn := (0.5/tb+dd*u*u/d)/iapwsTStar + sum*dRb + rb*(-sx*u*u/iapwsTStar+sy*dRb)
+	return mu * dLn
+}
+
+// iapwsSums returns S = Σ_i Σ_j H_ij·x^i·y^j of IAPWS 2008's μ̄₁ and its
+// partial derivatives S_x and S_y (WaterViscositySlope,
+// WaterPropertiesAndSlopes), at x = 1/T̄ − 1, y = ρ̄ − 1.
+func iapwsSums(x, y float64) (sum, sx, sy float64) {
+	var xi, xi1 float64 = 1, 0 // xi1 = i·x^(i−1)
 	for i := range iapwsH {
 		row := &iapwsH[i]
 		inner, dinner := 0.0, 0.0
@@ -436,10 +447,7 @@ func WaterViscositySlope(T, rho, drho float64) float64 {
 		xi1 = float64(i+1) * xi
 		xi *= x
 	}
-	mu := iapwsMuStar * 100 * math.Sqrt(tb) / d * math.Exp(rb*sum)
-	dRb := drho / iapwsRhoStar
-	dLn := (0.5/tb+dd*u*u/d)/iapwsTStar + sum*dRb + rb*(-sx*u*u/iapwsTStar+sy*dRb)
-	return mu * dLn
+	return sum, sx, sy
 }
 
 // WaterPropertiesAndSlopes returns, at temperature T in K, the density ρ in
@@ -465,20 +473,7 @@ func WaterPropertiesAndSlopes(T float64) (rho, dRho, mu, dMu, pv, dPv float64) {
 	d := iapwsMu0Sum(u)
 	dd := 2.20462 + u*(2*0.6366564+u*(3*-0.241605))
 	x, y := u-1, rb-1
-	var sum, sx, sy, xi, xi1 float64 = 0, 0, 0, 1, 0 // xi1 = i·x^(i−1)
-	for i := range iapwsH {
-		row := &iapwsH[i]
-		inner, dinner := 0.0, 0.0
-		for j := len(row) - 1; j >= 0; j-- {
-			dinner = dinner*y + inner
-			inner = inner*y + row[j]
-		}
-		sum += xi * inner
-		sx += xi1 * inner
-		sy += xi * dinner
-		xi1 = float64(i+1) * xi
-		xi *= x
-	}
+	sum, sx, sy := iapwsSums(x, y)
 	sq, ex := math.Sqrt(tb), math.Exp(rb*sum)
 	mu0 := 100 * sq / d
 	mu = iapwsMuStar * mu0 * ex
