@@ -1,10 +1,6 @@
 package similarity
 
-import (
-	"math"
-
-	"scalematch/facilities"
-)
+import "math"
 
 // A Froude-weighted plan in water can meet every target exactly: at speed V the
 // scale s = (V/V_flight)² matches the Froude number, and where the water's
@@ -133,20 +129,25 @@ func (sv *solver) froudeScaled() bool {
 		sv.floor == nil && sv.kind == scaleRange && sv.fl.Speed() > 0 && !sv.noExactScale
 }
 
-// rulesScaled reports whether, in an ideal gas with a weighted objective
-// that has no Froude term, over a range of scales, the best scale at each
-// Mach number came exactly from bestInScaleRange's rules (where no golden
-// section ran, solve's scaleGolden), and x, the search's best, misses the
-// flight's Reynolds number by more than 1e-9 in ln Re. The Mach term does not
-// depend on the scale (the aim is held through a search), so at one Mach
-// number the best scale by the weighted sum is the best by the Reynolds
-// number, then q, which the rules find; and where x misses the Reynolds
-// number, it is the one scale that comes closest there, no tie on the sum
-// that a lower q could win elsewhere (where the flight's Re is met, a band
-// of scales can meet it and the refinement looks along it for a lower q:
-// TestRefinePlateau).
+// rulesScaled reports whether, in a gas (an ideal gas or real-gas nitrogen)
+// with a weighted objective that has no Froude term, over a range of scales,
+// the best scale at each Mach number came exactly from bestInScaleRange's
+// rules (where no golden section ran, solve's scaleGolden), and x, the
+// search's best, misses the flight's Reynolds number by more than 1e-9 in ln
+// Re. The Mach term does not depend on the scale (the aim is held through a
+// search), so at one Mach number the best scale by the weighted sum is the
+// best by the Reynolds number, then q, which the rules find; and where x
+// misses the Reynolds number, it is the one scale that comes closest there,
+// no tie on the sum that a lower q could win elsewhere (where the flight's Re
+// is met, a band of scales can meet it and the refinement looks along it for
+// a lower q: TestRefinePlateau; in nitrogen q is not even monotone along
+// that band, warming at p0 min raising it slightly). In nitrogen too the
+// set-up at a Mach number does not depend on the scale, and the highest Re/m
+// at a scale is its top setting, lowered only by a load limit as the model
+// grows: the rules' scale is where s·Re/m is highest, as in an ideal gas
+// (TestRulesScaledSkipsRefinementNitrogen).
 func (sv *solver) rulesScaled(x candidate) bool {
-	return !sv.liquid && sv.f.Medium.Kind != facilities.MediumNitrogen && sv.obj.weighted && !sv.froudeMatters() &&
+	return !sv.liquid && sv.obj.weighted && !sv.froudeMatters() &&
 		sv.kind == scaleRange && x.ok && math.Abs(math.Log(x.s*sv.L*x.r/sv.fl.Reynolds)) > 1e-9
 }
 

@@ -203,7 +203,13 @@ func TestFroudeScaleMatchesGolden(t *testing.T) {
 // range, q ceiling (a quarter) and force-limited balance (a third).
 func randomGasProblem(t *testing.T, rng *rand.Rand, i int) *Problem {
 	t.Helper()
-	ids := []string{"lsw-2", "plp-3", "tsw-1"}
+	return randomGasProblemIn(t, rng, i, []string{"lsw-2", "plp-3", "tsw-1"})
+}
+
+// randomGasProblemIn is randomGasProblem in the demo tunnels ids, taken in
+// turn.
+func randomGasProblemIn(t *testing.T, rng *rand.Rand, i int, ids []string) *Problem {
+	t.Helper()
 	f, ok := facilities.DemoFacility(ids[i%len(ids)])
 	require.True(t, ok)
 	u := func(lo, hi float64) float64 { return lo + (hi-lo)*rng.Float64() }
@@ -245,6 +251,27 @@ func TestRulesScaledSkipsRefinement(t *testing.T) {
 	var m planMoves
 	for i := 0; i < 300; i++ {
 		m.compare(t, fmt.Sprintf("case %d", i), randomGasProblem(t, rng, i), 1e-9, 1e-6)
+	}
+	m.log(t)
+	require.Greater(t, m.unrefined, m.plans/10)
+}
+
+// TestRulesScaledSkipsRefinementNitrogen is TestRulesScaledSkipsRefinement in
+// the cryogenic nitrogen tunnel cn2-05 (randomGasProblemIn: the same draws of
+// article, flight, scale range, q ceiling and balance): plans made with the
+// joint refinement always and without it where rulesScaled holds have the
+// same weighted sum but for rounding, Mach number, scale, T0 and p0 within
+// 1e-9 relative (the Mach search's tolerance) and binding gains within 1e-6
+// percentage points; where the plan meets the flight's Reynolds number the
+// refinement still runs.
+func TestRulesScaledSkipsRefinementNitrogen(t *testing.T) {
+	if testing.Short() {
+		t.Skip("120 nitrogen plans made twice, with their binding gains")
+	}
+	rng := rand.New(rand.NewSource(29))
+	var m planMoves
+	for i := 0; i < 120; i++ {
+		m.compare(t, fmt.Sprintf("case %d", i), randomGasProblemIn(t, rng, i, []string{"cn2-05"}), 1e-9, 1e-5)
 	}
 	m.log(t)
 	require.Greater(t, m.unrefined, m.plans/10)
