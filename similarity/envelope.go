@@ -64,14 +64,14 @@ func (sv *solver) tradePoint(u, s float64) TradePoint {
 		tp.Mach, tp.Speed = 0, u
 	}
 	c := sv.prepare(u)
-	if c.partial && sv.load != nil && !(sv.loadQ(s, c.stRef) >= c.facilityTop.q) {
+	if c.partial && sv.load != nil && !(sv.loadQ(s, c.stRef) >= sv.top(&c).q) {
 		// The load limit caps q under the top setting here: the candidate
 		// reads the whole set-up.
 		sv.topOnly = false
 		c = sv.prepare(u)
 		sv.topOnly = true
 	}
-	if t := c.facilityTop; c.ok && t.cap == facilities.ConstraintDynamic && !t.edge && !t.fail {
+	if t := sv.top(&c); c.ok && t.cap == facilities.ConstraintDynamic && !t.edge && !t.fail {
 		sv.ceilHist.add(u, sv.qmax, t.p, t.t)
 	}
 	x := sv.atTarget(&c, s, math.Inf(1))
@@ -95,7 +95,7 @@ func (sv *solver) tradePoint(u, s float64) TradePoint {
 	}
 	tp.StagnationTemperature = x.t0
 	tp.DynamicPressure = x.q
-	tp.Limit = x.capHi
+	_, tp.Limit = sv.hiOf(&c, x)
 	return tp
 }
 

@@ -141,7 +141,7 @@ func TestSolveRWarmNearLowest(t *testing.T) {
 			return st.ReynoldsPerMeter
 		}
 		for _, r := range []float64{c.rlo * (1 + 5e-15), c.rlo * 1.2, 0.5 * (c.rlo + c.ra)} {
-			p0, t0 := sv.solveR(&c, c.facilityTop, r)
+			p0, t0 := sv.solveR(&c, sv.top(&c), r)
 			assert.Equal(t, c.pa, p0)
 			want := sv.rootHi(func(x float64) float64 { return r - rAt(x) }, sv.tfloor(&c, c.pa), c.tb, true)
 			assert.InEpsilon(t, want, t0, 1e-13, "Mach %g, Re/m %g", m, r)

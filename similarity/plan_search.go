@@ -107,7 +107,7 @@ func (sv *solver) bestInScaleRangeRules(c *machSetup) candidate {
 	if lo.capHi != sv.loadName {
 		// The knee: the load limit's q ceiling falls to the q of the best setting
 		// within the facility's own limits.
-		qNeed := c.facilityTop.q
+		qNeed := sv.top(c).q
 		if sv.cav {
 			// Water with the cavitation number in the objective: the model's
 			// loads must fit at this speed at the lowest q (warmest water).
@@ -119,7 +119,7 @@ func (sv *solver) bestInScaleRangeRules(c *machSetup) candidate {
 	if !xk.ok {
 		return lo
 	}
-	re := func(x candidate) float64 { return x.rhi * x.s * sv.L }
+	re := func(x candidate) float64 { rhi, _ := sv.hiOf(c, x); return rhi * x.s * sv.L }
 	if re(xk) >= sv.fl.Reynolds*(1-limitSlack) {
 		// The flight's Re is reachable at the knee: the largest model that still
 		// reaches it needs the least q.

@@ -105,6 +105,9 @@ type machSetup struct {
 	cond        bool       // condensation (or vmin) sets the T0 floor somewhere in [pa, pTop]
 	vmin        float64    // nitrogen: the facility's lowest speed, held in the T0 floor, m/s; 0 for none
 	facilityTop topSetting // the highest usable Re/m within the facility's own limits
+	// topLazy: facilityTop is not computed yet (real-gas nitrogen); the
+	// solver's top computes it where a reader asks for it.
+	topLazy bool
 	// partial: a trade point's set-up (solver.topOnly) that holds its top
 	// setting and reference state but not the state at (pa, the T0 floor):
 	// qa, ra and qLow are unset (topPartial).
@@ -149,7 +152,11 @@ type candidate struct {
 	q              float64
 	v              float64 // speed, m/s
 	capHi          string  // what limits rhi
-	k              key
+	// hiLazy: rhi and capHi are the set-up's top setting, not computed
+	// (machSetup.topLazy; the solver's hiOf gives them). The load limit does
+	// not cap them (capHi is not its name).
+	hiLazy bool
+	k      key
 	// Water with the cavitation number in the objective: the chosen test-section
 	// static pressure in Pa and the cavitation number there.
 	ps, sig float64
@@ -254,6 +261,9 @@ type solver struct {
 	// noPartial keeps every set-up whole (no topPartial), for the test that
 	// compares the trade curve with and without partial set-ups.
 	noPartial bool
+	// noLazyTop computes every nitrogen set-up's top setting in prepare (no
+	// topLazy), for the test that compares candidates and plans both ways.
+	noLazyTop bool
 	// gridCut, where set, evaluates the grid of the next gridMin call, given
 	// the grid's best candidate so far; gridMin takes it (and clears it, so
 	// that the searches nested inside an evaluation do not see it). A
@@ -1059,7 +1069,7 @@ func (sv *solver) raiseFloor(c *machSetup, lo float64, tp topSetting) (machSetup
 // topQ returns the highest dynamic pressure in Pa the facility and the load
 // limit allow at c's Mach number (speed) and scale s, the Re/m ceiling aside.
 func (sv *solver) topQ(c *machSetup, s float64) float64 {
-	q := c.facilityTop.q
+	q := sv.top(c).q
 	if sv.liquid {
 		q = sv.waterQAt(c, c.ta)
 	}
@@ -1219,6 +1229,15 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		c.fail = facilities.ConstraintDynamic
 		return c
 	}
+	if math.IsInf(sv.remax, 1) && c.qaOK && c.qa <= sv.qmax*(1+limitSlack) && !sv.topOnly && !sv.noLazyTop {
+		// The top setting (the q ceiling's joint step, about 17 states) is
+		// computed where a candidate reads it (top): a candidate under Re/m
+		// at (p0 min, the T0 floor) does not (atWindow). Without an Re/m
+		// ceiling it cannot fail, and with q at (p0 min, the floor) under
+		// the ceiling it lies on the floor at p0 min or above.
+		c.topLazy, c.ok = true, true
+		return c
+	}
 	c.facilityTop = sv.highestSetting(&c, sv.qmax, facilities.ConstraintDynamic)
 	if c.facilityTop.fail {
 		c.fail = facilities.ConstraintReynoldsUnit
@@ -1226,6 +1245,52 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	}
 	c.ok = true
 	return c
+}
+
+// top returns c's top setting, facilityTop, computed here where prepare
+// left it to its readers (topLazy), and then kept in the solver's set-up at
+// c's Mach number too.
+func (sv *solver) top(c *machSetup) topSetting {
+	if c.topLazy {
+		c.facilityTop, c.topLazy = sv.highestSetting(c, sv.qmax, facilities.ConstraintDynamic), false
+		if sv.setups != nil {
+			if k, ok := sv.setups.get(c.machOrSpeed); ok && k.topLazy {
+				k.facilityTop, k.topLazy = c.facilityTop, false
+			}
+		}
+	}
+	return c.facilityTop
+}
+
+// underTop reports whether the candidate at target Re/m in load window w on
+// c, a set-up whose top setting is not computed (topLazy), lies under it
+// without reading it: no load floor above q at p0 min, no load ceiling
+// under the q ceiling (the top's q is at most the ceiling), and Re/m, the
+// target or the lowest at p0 min and the warmest T0 (rlo), under Re/m at
+// (p0 min, the T0 floor), which the top's is at least (it lies on the floor
+// at p0 min or above, and Re/m rises with p0 along the floor; no Re/m
+// ceiling, no edge: prepareNitrogen). solveR then finds the setting at p0 min
+// by its root in T0 without the top, and the q ceiling's warming in atWindow
+// reads the ceiling alone.
+func (sv *solver) underTop(c *machSetup, target float64, w Window) bool {
+	if w.Lo > c.qLow || sv.load != nil && !(w.Hi > sv.qmax*(1+limitSlack)) {
+		return false
+	}
+	ra := c.ra
+	if c.cond {
+		ra = sv.rcurve(c, c.pa) // as solveR reads it
+	}
+	return math.Max(target, sv.lowR(c)) < ra
+}
+
+// hiOf returns x's rhi and capHi, from the top setting of its set-up c where
+// atWindow left them (hiLazy).
+func (sv *solver) hiOf(c *machSetup, x candidate) (rhi float64, capHi string) {
+	if x.hiLazy {
+		t := sv.top(c)
+		return t.r, t.cap
+	}
+	return x.rhi, x.capHi
 }
 
 // prepareIdeal is prepare for an ideal gas (Z = 1): at a fixed Mach number q and
@@ -1605,6 +1670,12 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 	if sv.liquid {
 		return sv.atWater(c, s, target, w)
 	}
+	// lazy: the candidate does not read the set-up's top setting, which is
+	// then left uncomputed (underTop).
+	lazy := c.topLazy && sv.underTop(c, target, w)
+	if c.topLazy && !lazy {
+		sv.top(c)
+	}
 	tp := c.facilityTop
 	qc := sv.qmax // the q ceiling at this scale
 	if sv.load != nil {
@@ -1638,7 +1709,7 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 			pinned = true
 		}
 	}
-	x.rhi, x.rlo, x.capHi = tp.r, -1, tp.cap
+	x.rhi, x.rlo, x.capHi, x.hiLazy = tp.r, -1, tp.cap, lazy
 	r := target
 	if pinned {
 		x.rlo, r = tp.r, tp.r
@@ -1646,10 +1717,12 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 		x.rlo = sv.lowR(c)
 		r = math.Max(r, x.rlo)
 	}
-	r = math.Min(r, tp.r)
+	if !lazy {
+		r = math.Min(r, tp.r)
+	}
 	x.r = r
 	switch {
-	case r >= tp.r:
+	case !lazy && r >= tp.r:
 		x.p0, x.t0, x.q, x.v = tp.p, tp.t, tp.q, tp.v
 	case sv.feasOnly && !c.linear:
 		// Real-gas nitrogen in the feasibility scan, which reads only that a

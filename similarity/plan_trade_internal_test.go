@@ -186,7 +186,7 @@ func TestFeasibleUnderTop(t *testing.T) {
 				if !c.ok {
 					continue
 				}
-				rlo, rtop := sv.lowR(&c), c.facilityTop.r
+				rlo, rtop := sv.lowR(&c), sv.top(&c).r
 				for _, r := range []float64{0.5 * rlo, rlo * (1 + 1e-15), 0.5 * (rlo + c.ra), c.ra, 0.5 * (c.ra + rtop), rtop * (1 - 1e-9)} {
 					if !(r < rtop) {
 						continue
