@@ -416,6 +416,14 @@ func WaterViscosity(T, rho float64) float64 {
 // Along Kell's density, −d ln(μ/ρ)/dT, the rise of Re/m with T, is positive and
 // falls with T over 0–150 °C (TestWaterSlopesMonotone).
 func WaterViscositySlope(T, rho, drho float64) float64 {
+	_, dMu := iapwsViscosityAndSlope(T, rho, drho)
+	return dMu
+}
+
+// iapwsViscosityAndSlope returns the IAPWS 2008 viscosity at T in K and
+// density rho in kg/m³ (WaterViscosity's value, to the bit) and its slope in T
+// along a density whose own slope is drho (WaterViscositySlope).
+func iapwsViscosityAndSlope(T, rho, drho float64) (mu, dMu float64) {
 	tb := T / iapwsTStar
 	rb := rho / iapwsRhoStar
 	u := 1 / tb
@@ -423,10 +431,13 @@ func WaterViscositySlope(T, rho, drho float64) float64 {
 	dd := 2.20462 + u*(2*0.6366564+u*(3*-0.241605))
 	x, y := u-1, rb-1
 	sum, sx, sy := iapwsSums(x, y)
-	mu := iapwsMuStar * 100 * math.Sqrt(tb) / d * math.Exp(rb*sum)
+	sq, ex := math.Sqrt(tb), math.Exp(rb*sum)
+	mu0 := 100 * sq / d
+	mu = iapwsMuStar * mu0 * ex
+	muS := iapwsMuStar * 100 * sq / d * ex
 	dRb := drho / iapwsRhoStar
 	dLn := (0.5/tb+dd*u*u/d)/iapwsTStar + sum*dRb + rb*(-sx*u*u/iapwsTStar+sy*dRb)
-	return mu * dLn
+	return mu, muS * dLn
 }
 
 // iapwsSums returns S = Σ_i Σ_j H_ij·x^i·y^j of IAPWS 2008's μ̄₁ and its
@@ -467,20 +478,7 @@ func WaterPropertiesAndSlopes(T float64) (rho, dRho, mu, dMu, pv, dPv float64) {
 	dnum := 16.945176 + t*(2*-7.9870401e-3+t*(3*-46.170461e-6+t*(4*105.56302e-9+t*(5*-280.54253e-12))))
 	dRho = (dnum*den - num*kellB) / (den * den)
 	// IAPWS 2008 (WaterViscosity, WaterViscositySlope).
-	tb := T / iapwsTStar
-	rb := rho / iapwsRhoStar
-	u := 1 / tb
-	d := iapwsMu0Sum(u)
-	dd := 2.20462 + u*(2*0.6366564+u*(3*-0.241605))
-	x, y := u-1, rb-1
-	sum, sx, sy := iapwsSums(x, y)
-	sq, ex := math.Sqrt(tb), math.Exp(rb*sum)
-	mu0 := 100 * sq / d
-	mu = iapwsMuStar * mu0 * ex
-	muS := iapwsMuStar * 100 * sq / d * ex
-	dRb := dRho / iapwsRhoStar
-	dLn := (0.5/tb+dd*u*u/d)/iapwsTStar + sum*dRb + rb*(-sx*u*u/iapwsTStar+sy*dRb)
-	dMu = muS * dLn
+	mu, dMu = iapwsViscosityAndSlope(T, rho, dRho)
 	// IAPWS-IF97 (WaterVapourPressure, WaterVapourPressureSlope).
 	n := &if97N
 	th, a, b, c := if97Coefficients(T)

@@ -85,6 +85,22 @@ func TestQcurveKeptAtPa(t *testing.T) {
 	assert.Positive(t, kept, "set-ups that keep q at p0 min")
 }
 
+// cn2Solvers returns cn2-05's q ceiling in Pa and a maker of bare solvers in
+// it (no load limit, no Re/m cap; with the stagnation states' cache where
+// stags), for the tests of the q ceiling's steps.
+func cn2Solvers(t *testing.T, stags bool) (float64, func() *solver) {
+	f, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	return *f.MaxDynamicPressure, func() *solver {
+		sv := &solver{f: &f, loadScale: 1, qmax: math.Inf(1), remax: math.Inf(1),
+			cond: newCondLineCache(), memo: &stateMemos{}}
+		if stags {
+			sv.stags = &stagnations{}
+		}
+		return sv
+	}
+}
+
 // TestCeilingJoint: on cn2-05's q ceiling (70 kPa) across its Mach range, the
 // joint Newton step in (p0, T0) (ceilingJoint) finds the p0 that the root in
 // p0 along the condensation line (rootHiSmooth, as before it) finds, within
@@ -92,13 +108,7 @@ func TestQcurveKeptAtPa(t *testing.T) {
 // and its T0 is the line's at that p0 within 1e-13.
 func TestCeilingJoint(t *testing.T) {
 	t.Parallel()
-	f, ok := facilities.DemoFacility("cn2-05")
-	require.True(t, ok)
-	qc := *f.MaxDynamicPressure
-	newSv := func() *solver {
-		return &solver{f: &f, loadScale: 1, qmax: math.Inf(1), remax: math.Inf(1),
-			cond: newCondLineCache(), memo: &stateMemos{}}
-	}
+	qc, newSv := cn2Solvers(t, false)
 	joint, root := newSv(), newSv()
 	used := 0
 	for m := 0.6; m <= 0.92; m += 0.016 {

@@ -114,13 +114,7 @@ func TestTradePartialSetups(t *testing.T) {
 // regression values).
 func TestCeilingJointNear(t *testing.T) {
 	t.Parallel()
-	f, ok := facilities.DemoFacility("cn2-05")
-	require.True(t, ok)
-	qc := *f.MaxDynamicPressure
-	newSv := func() *solver {
-		return &solver{f: &f, loadScale: 1, qmax: math.Inf(1), remax: math.Inf(1),
-			cond: newCondLineCache(), memo: &stateMemos{}, stags: &stagnations{}}
-	}
+	qc, newSv := cn2Solvers(t, true)
 	near, cold := newSv(), newSv()
 	used := 0
 	for _, m0 := range []float64{0.65, 0.72, 0.775, 0.85, 0.91} {
