@@ -240,6 +240,9 @@ type solver struct {
 	// temperature (cavEnd, cavEndWeighted), for the test that compares the
 	// full search with them.
 	noCavEnd bool
+	// loadMemo keeps the load limit's last answers (loadQ); a relaxed copy
+	// shares the limit, and so the answers, and scales its own.
+	loadMemo loadMemo
 	// slopeRoot: a weighted cavitation search refines an interior grid
 	// temperature by the root of the weighted sum's slope (cavSlopeRoot)
 	// instead of Brent's method: set while the trade curve is computed,
@@ -971,12 +974,37 @@ func (sv *solver) warmMargin(c *machSetup, p0, t0 float64) (float64, string) {
 }
 
 // loadQ returns the load limit's dynamic-pressure ceiling at scale s and state st.
+// The limit's answers at the last two scales and Mach numbers asked are kept
+// (loadMemo): LoadLimit reads the state's Mach number and medium alone, and
+// the medium is the facility's, so the same scale and Mach number give the
+// same answer; a plan asks at few of them (a vessel's 80 to 120 calls a plan
+// at 2 to 8 scales).
 func (sv *solver) loadQ(s float64, st facilities.State) float64 {
 	if sv.load == nil {
 		return math.Inf(1)
 	}
-	return sv.loadScale * sv.load.MaxDynamicPressure(s, st)
+	m := &sv.loadMemo
+	for i := range m.n {
+		if e := &m.e[i]; e.s == s && e.mach == st.Mach {
+			return sv.loadScale * e.q
+		}
+	}
+	q := sv.load.MaxDynamicPressure(s, st)
+	m.e[1] = m.e[0]
+	m.e[0] = loadMemoEntry{s: s, mach: st.Mach, q: q}
+	m.n = min(m.n+1, len(m.e))
+	return sv.loadScale * q
 }
+
+// loadMemo keeps the load limit's last answers for loadQ, the latest first.
+type loadMemo struct {
+	e [2]loadMemoEntry
+	n int
+}
+
+// loadMemoEntry is LoadLimit.MaxDynamicPressure's answer q in Pa at scale s
+// and Mach number mach.
+type loadMemoEntry struct{ s, mach, q float64 }
 
 // windows returns the load windows at scale s and state st: with a load floor,
 // each balance's (LoadFloor.Windows, the floor scaled by floorScale and the
