@@ -302,6 +302,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// so far cannot become the best, and its key keeps the cavitation level
 	// alone (the later levels +Inf), without the Reynolds number's logarithm.
 	lazy, lazyAbove := sv.cavFirst(), math.Inf(1)
+	// With a weighted objective evalAt keeps in ln the logarithms of the
+	// Reynolds and cavitation ratios its key read (cavKey).
+	var ln [2]float64
 	// evalAt returns the candidate at temperature t, the water's properties
 	// there being wp, and the room between the static pressures the facility
 	// can hold there, hi − lo in Pa (NaN where the state fails).
@@ -339,6 +342,10 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				}
 				return y, room
 			}
+		}
+		if sv.obj.weighted {
+			y.k, ln[0], ln[1] = sv.cavKey(c.machOrSpeed, s, r, q, c.machOrSpeed, y.sig)
+			return y, room
 		}
 		y.k = sv.keyOf(c.machOrSpeed, s, r, q, c.machOrSpeed, false, y.sig)
 		return y, room
@@ -380,21 +387,25 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	var cold candidate
 	coldRoom, haveCold := 0.0, false
 	if (sv.cavFirst() || sv.obj.weighted) && !sv.feasOnly && !sv.noCavEnd {
+		// The logarithms the ends' keys read (weighted: evalAt's ln).
+		topLn, coldLn := [2]float64{math.NaN(), math.NaN()}, [2]float64{math.NaN(), math.NaN()}
 		if !haveTop {
+			ln = [2]float64{math.NaN(), math.NaN()}
 			top, topRoom = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
-			haveTop = true
+			haveTop, topLn = true, ln
 		}
 		coldAt := func() candidate {
 			if !haveCold {
+				ln = [2]float64{math.NaN(), math.NaN()}
 				cold, coldRoom = evalAt(cavGridT(ta, tb, 0), wg.wp[0])
-				haveCold = true
+				haveCold, coldLn = true, ln
 			}
 			return cold
 		}
 		var y candidate
 		ok := false
 		if sv.obj.weighted {
-			if y, ok = sv.cavEndWeighted(wg, top, coldAt, s); !ok {
+			if y, ok = sv.cavEndWeighted(wg, top, coldAt, s, &topLn, &coldLn); !ok {
 				y, ok = sv.cavTopWeighted(evalAt, wg, top, topRoom, coldAt(), coldRoom, s)
 			}
 		} else if y, ok = sv.cavEnd(wg, top, coldAt); ok {
@@ -583,7 +594,9 @@ func (sv *solver) cavEnd(g *waterGrid, top candidate, coldAt func() candidate) (
 // best, with the Re/m reachable at its cavitation level (rlo, rhi, as
 // atWaterCav's search would find them), and true; false where that is not
 // shown. top is atWaterCav's candidate at g's warmest temperature, coldAt
-// gives the one at its coldest; s is the scale.
+// gives the one at its coldest; s is the scale. topLn and coldLn are the
+// logarithms their keys read (cavKey's lnRe and lnSig, NaN where not read;
+// coldLn filled by coldAt), taken here instead of computed again.
 //
 // Of the weighted sum only wc·a² + wr·b² moves with the temperature, a =
 // ln(σ/σ_full) and b = ln(Re/Re_full) (the Froude term moves with the speed
@@ -617,7 +630,7 @@ func (sv *solver) cavEnd(g *waterGrid, top candidate, coldAt func() candidate) (
 // target Re/m among them, then lie strictly behind the end on the weighted
 // sum, and where they reach the end's cavitation level (the Re/m it keeps)
 // between the ends' Re/m.
-func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() candidate, s float64) (candidate, bool) {
+func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() candidate, s float64, topLn, coldLn *[2]float64) (candidate, bool) {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	if !(wc > 0) || !(wr >= 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) || !top.ok {
 		return candidate{}, false
@@ -631,8 +644,13 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 	if !cold.ok {
 		return candidate{}, false
 	}
-	lnRe := func(y candidate) float64 { return math.Log(s * sv.L * y.r / sv.fl.Reynolds) }
-	bC, bT := lnRe(cold), lnRe(top)
+	lnRe := func(y candidate, ln *[2]float64) float64 {
+		if l := ln[0]; l == l {
+			return l // the same logarithm (cavKey)
+		}
+		return math.Log(s * sv.L * y.r / sv.fl.Reynolds)
+	}
+	bC, bT := lnRe(cold, coldLn), lnRe(top, topLn)
 	// Where the end found lies outside the cavitation band, no other
 	// temperature reaches its cavitation level (σ moves strictly away from
 	// the band), and the Re/m reachable there is its own.
@@ -659,7 +677,15 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 	}
 	aLo := max(0, min(nLo/gLo, nLo/gHi)+r1/w1.rho)
 	aHi := max(nHi/gLo, nHi/gHi) + r0/w0.rho
-	aC, aT := -math.Log(cold.sig/sf), -math.Log(top.sig/sf)
+	// −ln(σ/σ_full), from the keys' ln(max(σ, 1e-9·σ_full)/σ_full) where σ
+	// is at least 1e-9·σ_full (the same logarithm).
+	lnSig := func(y candidate, ln *[2]float64) float64 {
+		if l := ln[1]; l == l && y.sig >= 1e-9*sf {
+			return -l
+		}
+		return -math.Log(y.sig / sf)
+	}
+	aC, aT := lnSig(cold, coldLn), lnSig(top, topLn)
 	const m = 1 + 1e-6
 	switch {
 	case bT < 0 && wc*aT*aHi*m < wr*-bT*g.dRe1:
@@ -1164,4 +1190,48 @@ func (sv *solver) cavSpeedBound(c *machSetup) float64 {
 		}
 	}
 	return lb * (1 - 1e-9)
+}
+
+// cavKey is keyOf for a weighted objective at a water state of the
+// cavitation search (met false), the same key to the bit
+// (TestCavKeyMatchesKeyOf), with the logarithms its Reynolds and cavitation
+// terms read: lnRe = ln(Re/Re_full) and lnSig = ln(max(σ, 1e-9·σ_full)/σ_full),
+// each NaN where the objective does not read it (no weight), for
+// cavEndWeighted, which reads them at the range's ends again.
+func (sv *solver) cavKey(machOrSpeed, s, r, q, v, sig float64) (k key, lnRe, lnSig float64) {
+	lnRe, lnSig = math.NaN(), math.NaN()
+	k = key{q: q}
+	exact := true
+	for i := range nGroups {
+		w := sv.obj.w[i]
+		if !(w > 0) {
+			continue
+		}
+		l := 0.0
+		switch i {
+		case gReynolds:
+			l = math.Log(s * sv.L * r / sv.fl.Reynolds)
+			lnRe = l
+		case gMach:
+			if !sv.noMach {
+				l = math.Log(machOrSpeed / sv.aim)
+			}
+		case gFroude:
+			l = math.Log(v / (sv.fl.Speed() * math.Sqrt(s)))
+		case gCavitation:
+			if sv.cav {
+				sf := sv.fl.Marine.Cavitation
+				l = math.Log(math.Max(sig, 1e-9*sf) / sf)
+				lnSig = l
+			}
+		}
+		if i == gReynolds && l != 0 || math.Abs(l) > exactTol {
+			exact = false
+		}
+		k.v[0] += w * l * l
+	}
+	if exact {
+		k.v[0] = 0
+	}
+	return k, lnRe, lnSig
 }

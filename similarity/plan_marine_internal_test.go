@@ -331,3 +331,60 @@ func TestCavSpeedBound(t *testing.T) {
 	require.Greater(t, bounded, speeds/10)
 	require.Greater(t, fewer, plans/4)
 }
+
+// TestCavKeyMatchesKeyOf holds cavKey to keyOf (the same key to the bit) and
+// its logarithms to the ones the Reynolds and cavitation terms read: random
+// vessels (randomVessel), four weighted objectives, random speeds, scales,
+// Re/m and cavitation numbers, an eighth of them within 1e-6 of both targets,
+// others exactly on one, or with σ below the key's floor of 1e-9·σ_full.
+func TestCavKeyMatchesKeyOf(t *testing.T) {
+	rng := rand.New(rand.NewSource(41))
+	objectives := []Objective{{Weights: map[string]float64{"reynolds": 1, "cavitation": 4}},
+		{Weights: map[string]float64{"reynolds": 1, "cavitation": 0.05, "froude": 0.5}},
+		{Weights: map[string]float64{"cavitation": 1, "froude": 1}}, {Weights: map[string]float64{"reynolds": 2}}}
+	exact, keys := 0, 0
+	for i := 0; i < 200; i++ {
+		f, art, fl := randomVessel(t, rng, i)
+		for _, obj := range objectives {
+			sv, err := newSolver(&Problem{Flight: fl, Article: art, Facility: f, Objective: obj})
+			require.NoError(t, err)
+			sf := fl.Marine.Cavitation
+			for j := 0; j < 50; j++ {
+				u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*rng.Float64()
+				s := sv.sLo * math.Pow(sv.sHi/sv.sLo, rng.Float64())
+				ref := fl.Reynolds / (s * sv.L)
+				r, sig := ref*math.Exp(4*(rng.Float64()-0.5)), sf*math.Exp(6*(rng.Float64()-0.5))
+				switch j % 8 {
+				case 0:
+					r, sig = ref*(1+1e-6*(rng.Float64()-0.5)), sf*(1+1e-6*(rng.Float64()-0.5))
+				case 1:
+					r = ref
+				case 2:
+					sig = sf
+				case 3:
+					sig = 1e-12 * sf * rng.Float64()
+				}
+				q := 1e3 + 1e5*rng.Float64()
+				want := sv.keyOf(u, s, r, q, u, false, sig)
+				got, lnRe, lnSig := sv.cavKey(u, s, r, q, u, sig)
+				keys++
+				require.Equal(t, want, got, "case %d, %+v", i, obj)
+				if obj.Weights["reynolds"] > 0 {
+					require.Equal(t, math.Log(s*sv.L*r/sv.fl.Reynolds), lnRe)
+				} else {
+					require.True(t, math.IsNaN(lnRe))
+				}
+				if obj.Weights["cavitation"] > 0 {
+					require.Equal(t, math.Log(math.Max(sig, 1e-9*sf)/sf), lnSig)
+				} else {
+					require.True(t, math.IsNaN(lnSig))
+				}
+				if got.v[0] == 0 {
+					exact++
+				}
+			}
+		}
+	}
+	t.Logf("%d of %d keys exactly 0 (every target met)", exact, keys)
+	require.Positive(t, exact)
+}
