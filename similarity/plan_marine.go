@@ -1192,46 +1192,9 @@ func (sv *solver) cavSpeedBound(c *machSetup) float64 {
 	return lb * (1 - 1e-9)
 }
 
-// cavKey is keyOf for a weighted objective at a water state of the
-// cavitation search (met false), the same key to the bit
-// (TestCavKeyMatchesKeyOf), with the logarithms its Reynolds and cavitation
-// terms read: lnRe = ln(Re/Re_full) and lnSig = ln(max(σ, 1e-9·σ_full)/σ_full),
-// each NaN where the objective does not read it (no weight), for
-// cavEndWeighted, which reads them at the range's ends again.
+// cavKey is keyOf's weighted key at a water state of the cavitation search
+// (met false) with the logarithms its Reynolds and cavitation terms read
+// (weightedKey), for cavEndWeighted (TestCavKeyMatchesKeyOf).
 func (sv *solver) cavKey(machOrSpeed, s, r, q, v, sig float64) (k key, lnRe, lnSig float64) {
-	lnRe, lnSig = math.NaN(), math.NaN()
-	k = key{q: q}
-	exact := true
-	for i := range nGroups {
-		w := sv.obj.w[i]
-		if !(w > 0) {
-			continue
-		}
-		l := 0.0
-		switch i {
-		case gReynolds:
-			l = math.Log(s * sv.L * r / sv.fl.Reynolds)
-			lnRe = l
-		case gMach:
-			if !sv.noMach {
-				l = math.Log(machOrSpeed / sv.aim)
-			}
-		case gFroude:
-			l = math.Log(v / (sv.fl.Speed() * math.Sqrt(s)))
-		case gCavitation:
-			if sv.cav {
-				sf := sv.fl.Marine.Cavitation
-				l = math.Log(math.Max(sig, 1e-9*sf) / sf)
-				lnSig = l
-			}
-		}
-		if i == gReynolds && l != 0 || math.Abs(l) > exactTol {
-			exact = false
-		}
-		k.v[0] += w * l * l
-	}
-	if exact {
-		k.v[0] = 0
-	}
-	return k, lnRe, lnSig
+	return sv.weightedKey(machOrSpeed, s, r, q, v, false, sig)
 }

@@ -1900,45 +1900,11 @@ func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) 
 	}
 	// Fr_test/Fr_flight = (V/√(g·s·L))/(V_f/√(g·L)) = V/(V_f·√s).
 	lnFr := func() float64 { return math.Log(v / (sv.fl.Speed() * math.Sqrt(s))) }
-	k := key{q: q}
 	if sv.obj.weighted {
-		// exact: the Reynolds term, where weighted, is 0 (met: the setting
-		// was solved for it), and every other term of positive weight is
-		// within exactTol; the sum is then exactly 0, so that all plans
-		// meeting every target tie and the lowest q decides (docs/planner.md,
-		// Objectives).
-		exact := true
-		for i := range nGroups {
-			w := sv.obj.w[i]
-			if !(w > 0) {
-				continue
-			}
-			l := 0.0
-			switch i {
-			case gReynolds:
-				l = lnRe()
-			case gMach:
-				if !sv.noMach {
-					l = math.Log(machOrSpeed / sv.aim)
-				}
-			case gFroude:
-				l = lnFr()
-			case gCavitation:
-				if sv.cav {
-					sf := sv.fl.Marine.Cavitation
-					l = math.Log(math.Max(sig, 1e-9*sf) / sf)
-				}
-			}
-			if i == gReynolds && l != 0 || math.Abs(l) > exactTol {
-				exact = false
-			}
-			k.v[0] += w * l * l
-		}
-		if exact {
-			k.v[0] = 0
-		}
+		k, _, _ := sv.weightedKey(machOrSpeed, s, r, q, v, met, sig)
 		return k
 	}
+	k := key{q: q}
 	for i, g := range sv.obj.levels {
 		switch g {
 		case gMach:
@@ -1960,6 +1926,55 @@ func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) 
 		}
 	}
 	return k
+}
+
+// weightedKey is keyOf for a weighted objective, with the logarithms its
+// Reynolds and cavitation terms read (for cavEndWeighted, which reads them
+// again at the range's ends): lnRe = ln(Re/Re_full) (0 where met) and lnSig =
+// ln(max(σ, 1e-9·σ_full)/σ_full), each NaN where the objective does not read
+// it (no weight). exact: the Reynolds term, where weighted, is 0 (met: the
+// setting was solved for it), and every other term of positive weight is
+// within exactTol; the sum is then exactly 0, so that all plans meeting every
+// target tie and the lowest q decides (docs/planner.md, Objectives).
+func (sv *solver) weightedKey(machOrSpeed, s, r, q, v float64, met bool, sig float64) (k key, lnRe, lnSig float64) {
+	lnRe, lnSig = math.NaN(), math.NaN()
+	k = key{q: q}
+	exact := true
+	for i := range nGroups {
+		w := sv.obj.w[i]
+		if !(w > 0) {
+			continue
+		}
+		l := 0.0
+		switch i {
+		case gReynolds:
+			if !met {
+				l = math.Log(s * sv.L * r / sv.fl.Reynolds)
+			}
+			lnRe = l
+		case gMach:
+			if !sv.noMach {
+				l = math.Log(machOrSpeed / sv.aim)
+			}
+		case gFroude:
+			// Fr_test/Fr_flight = V/(V_f·√s), as keyOf's lnFr.
+			l = math.Log(v / (sv.fl.Speed() * math.Sqrt(s)))
+		case gCavitation:
+			if sv.cav {
+				sf := sv.fl.Marine.Cavitation
+				l = math.Log(math.Max(sig, 1e-9*sf) / sf)
+				lnSig = l
+			}
+		}
+		if i == gReynolds && l != 0 || math.Abs(l) > exactTol {
+			exact = false
+		}
+		k.v[0] += w * l * l
+	}
+	if exact {
+		k.v[0] = 0
+	}
+	return k, lnRe, lnSig
 }
 
 // exactTol is the tolerance within which a weighted Froude, Mach or
