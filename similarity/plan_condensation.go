@@ -14,13 +14,28 @@ import (
 type condLineCache struct {
 	local [32]localPoint
 	next  int // the entry of local to replace next
-	line  []condPoint
+	// index holds, by a hash of (p0, T0) (localSlot), 1 + the entry of
+	// local kept last at a point of that hash (0: none), and count how many
+	// entries of local have that hash, so that a margin kept is mostly found,
+	// and one not kept mostly known to be missing, without scanning local
+	// (about 570 look-ups a cn2-05 priority plan, most of them hits deep in
+	// the ring).
+	index, count [localSlots]uint8
+	line         []condPoint
 	// lo and hi are the T0 range the line was found in.
 	lo, hi float64
 }
 
-// localPoint is the local condensation margin m at (p0, T0) = (p, t).
-type localPoint struct{ p, t, m float64 }
+// localPoint is the local condensation margin m at (p0, T0) = (p, t); set:
+// the entry holds a point, whose slot of condLineCache.index is h.
+type localPoint struct {
+	p, t, m float64
+	h       uint8
+	set     bool
+}
+
+// localSlots is the number of slots of condLineCache.index.
+const localSlots = 256
 
 // condPoint is the lowest usable T0 in K at p0 in Pa on the condensation line.
 type condPoint struct{ p, t float64 }
@@ -47,7 +62,16 @@ func (sv *solver) localMargin(p0, t0 float64) float64 {
 		return sv.f.LocalCondensationMargin(p0, t0)
 	}
 	cc := sv.cond
-	if p0 > 0 {
+	h := localSlot(p0, t0)
+	if p0 > 0 && cc.count[h] > 0 {
+		// The entry the index names is the latest kept at (p0, T0) where it
+		// holds that point: the one the scan below finds first. With no
+		// entry of (p0, T0)'s hash there is none to find.
+		if k := cc.index[h]; k > 0 {
+			if e := &cc.local[k-1]; e.p == p0 && e.t == t0 {
+				return e.m
+			}
+		}
 		// The latest first: a point asked for again was mostly computed
 		// lately. A point is kept once, so the order finds the same entry.
 		for i := cc.next - 1; i >= 0; i-- {
@@ -67,9 +91,28 @@ func (sv *solver) localMargin(p0, t0 float64) float64 {
 	} else {
 		m = sv.f.LocalCondensationMargin(p0, t0)
 	}
-	cc.local[cc.next] = localPoint{p0, t0, m}
-	cc.next = (cc.next + 1) % len(cc.local)
+	cc.keep(h, p0, t0, m)
 	return m
+}
+
+// keep puts the margin m at (p0, T0), whose slot is h (localSlot), in place
+// of the oldest local margin kept, and names it in the index.
+func (cc *condLineCache) keep(h uint8, p0, t0, m float64) {
+	e := &cc.local[cc.next]
+	if e.set {
+		cc.count[e.h]--
+	}
+	*e = localPoint{p: p0, t: t0, m: m, h: h, set: true}
+	cc.count[h]++
+	cc.index[h] = uint8(cc.next + 1)
+	cc.next = (cc.next + 1) % len(cc.local)
+}
+
+// localSlot is the slot of condLineCache.index for the point (p0, T0): the
+// high bits of a multiplicative hash of their bits.
+func localSlot(p0, t0 float64) uint8 {
+	x := math.Float64bits(p0)*0x9e3779b97f4a7c15 ^ math.Float64bits(t0)*0xc2b2ae3d27d4eb4f
+	return uint8(x >> 56)
 }
 
 // localMarginSlope is localMargin with the margin's derivative in T0
@@ -78,8 +121,7 @@ func (sv *solver) localMargin(p0, t0 float64) float64 {
 func (sv *solver) localMarginSlope(p0, t0 float64) (m, dm float64) {
 	m, dm = sv.f.LocalCondensationMarginSlope(p0, t0)
 	if cc := sv.cond; cc != nil {
-		cc.local[cc.next] = localPoint{p0, t0, m}
-		cc.next = (cc.next + 1) % len(cc.local)
+		cc.keep(localSlot(p0, t0), p0, t0, m)
 	}
 	return m, dm
 }
