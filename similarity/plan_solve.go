@@ -267,6 +267,10 @@ type solver struct {
 	// noLazyTop computes every nitrogen set-up's top setting in prepare (no
 	// topLazy), for the test that compares candidates and plans both ways.
 	noLazyTop bool
+	// keepRef computes a trade point's reference state at (p0 min, the
+	// warmest T0) where prepareNitrogen would leave it (noRef), for the test
+	// that compares the trade curve both ways.
+	keepRef bool
 	// gridCut, where set, evaluates the grid of the next gridMin call, given
 	// the grid's best candidate so far; gridMin takes it (and clears it, so
 	// that the searches nested inside an evaluation do not see it). A
@@ -1163,11 +1167,30 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
 	pa, pb := f.StagnationPressure.Min, f.StagnationPressure.Max
 	c.pa = pa
-	stB, err := sv.state(machOrSpeed, pa, tb)
-	if err != nil {
+	// noRef: a trade point's set-up that may be partial (topPartial) without
+	// an Re/m ceiling leaves its reference state at (pa, tb) uncomputed
+	// (about 2.6 nitrogenAt calls of a trade point's 4 on p0 max): its top
+	// setting alone is read, and its reference state's Mach number (the load
+	// limit's, which reads the state's Mach number alone: LoadLimit). Where
+	// the local margin at (pa, tb) is at least 0 and the allowed minimum, the
+	// free stream there is usable at any Mach number up to the local peak
+	// (TestFreeStreamMarginAboveLocal), so the set-up cannot fail on it.
+	noRef := sv.topOnly && !sv.noPartial && !sv.keepRef && ta != tb && f.Speed == nil && sv.floor == nil && sv.cond != nil &&
+		math.IsInf(sv.remax, 1) && machOrSpeed <= f.CondensationPeak() && f.Medium.Kind == facilities.MediumNitrogen
+	if noRef {
+		m := sv.localMargin(pa, tb)
+		noRef = m >= 0 && m >= sv.condMin
+	}
+	var stB facilities.State
+	if noRef {
+		stB = facilities.State{Mach: machOrSpeed}
+	} else if st, err := sv.state(machOrSpeed, pa, tb); err == nil {
+		stB = st
+	} else {
 		c.fail = facilities.ConstraintCondensation
 		return c
 	}
+	var err error
 	if sp := f.Speed; sp != nil {
 		vAt := func(p, t float64) float64 {
 			st, err := sv.state(machOrSpeed, p, t)
@@ -1205,7 +1228,7 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	}
 	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stB, tb
 	c.k = stB.DynamicPressure / pa
-	c.rlo, c.rloOK = stB.ReynoldsPerMeter, true
+	c.rlo, c.rloOK = stB.ReynoldsPerMeter, !noRef
 	if c.rlo > sv.remax*(1+limitSlack) {
 		c.fail = facilities.ConstraintReynoldsUnit
 		return c
@@ -1242,6 +1265,15 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 			c.facilityTop, c.partial, c.ok = top, true, true
 			return c
 		}
+	}
+	if noRef {
+		// The whole set-up after all: its reference state, as above.
+		if stB, err = sv.state(machOrSpeed, pa, tb); err != nil {
+			c.fail = facilities.ConstraintCondensation
+			return c
+		}
+		c.stRef, c.k = stB, stB.DynamicPressure/pa
+		c.rlo, c.rloOK = stB.ReynoldsPerMeter, true
 	}
 	stA := stB
 	if ta != tb {
@@ -1741,6 +1773,10 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 	r := target
 	if pinned {
 		x.rlo, r = tp.r, tp.r
+	} else if c.partial && !c.rloOK && math.IsInf(target, 1) {
+		// A trade point's partial set-up without its reference state
+		// (prepareNitrogen's noRef): with no target the candidate is the
+		// top setting, below, and its lowest Re/m is not read (rlo unknown).
 	} else if target < c.ra || !c.linear {
 		x.rlo = sv.lowR(c)
 		r = math.Max(r, x.rlo)

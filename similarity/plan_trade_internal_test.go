@@ -106,6 +106,52 @@ func TestTradePartialSetups(t *testing.T) {
 	assert.Greater(t, partials, 200, "partial set-ups")
 }
 
+// machLoad is a balance for TestTradeWithoutReference whose q ceiling in Pa
+// at scale s depends on the state's Mach number, which LoadLimit may read
+// (and on nothing else of it): q·s²·(1 + M²) ≤ limit.
+type machLoad struct{ limit float64 }
+
+func (l machLoad) Name() string { return facilities.ConstraintBalance }
+
+func (l machLoad) MaxDynamicPressure(s float64, st facilities.State) float64 {
+	return l.limit / (s * s * (1 + st.Mach*st.Mach))
+}
+
+// TestTradeWithoutReference: a trade point's partial set-up without its
+// reference state at (p0 min, the warmest T0) (prepareNitrogen's noRef)
+// gives the trade curve of the set-ups with it, to the bit, in cn2-05 under
+// q ceilings from 30 to 120 kPa, condensation margins of 0 and 0.02, two p0
+// ranges, and without and with a balance whose ceiling depends on the Mach
+// number (below and above the q ceiling in parts of the range); and it saves
+// states (regression guard of the saving: 608 states over the 24 curves, regression value).
+func TestTradeWithoutReference(t *testing.T) {
+	t.Parallel()
+	base, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	saved := 0
+	for _, qmax := range []float64{30e3, 70e3, 120e3} {
+		for _, cond := range []float64{0, 0.02} {
+			for _, pr := range []facilities.Range{base.StagnationPressure, {Min: 110e3, Max: 450e3}} {
+				for _, load := range []LoadLimit{nil, machLoad{limit: 80e3}} {
+					f := base
+					f.MaxDynamicPressure = &qmax
+					f.StagnationPressure = pr
+					with, without := tradeSolver(t, &f), tradeSolver(t, &f)
+					with.keepRef = true
+					with.condMin, without.condMin = cond, cond
+					with.load, without.load = load, load
+					want := with.trade(1, 41)
+					got := without.trade(1, 41)
+					require.Equal(t, want, got, "q max %g, cond %g, p0 %v, load %v", qmax, cond, pr, load)
+					saved += with.evals - without.evals
+				}
+			}
+		}
+	}
+	t.Logf("%d states saved", saved)
+	assert.Greater(t, saved, 500, "states saved")
+}
+
 // TestCeilingJointNear: on cn2-05's q ceiling, the joint step started from a
 // point found at a Mach number within jointNear (jointMemos) finds the root
 // that the step from the secant start finds, within 1e-13 relative, on the
