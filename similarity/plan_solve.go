@@ -1,7 +1,6 @@
 package similarity
 
 import (
-	"cmp"
 	"fmt"
 	"math"
 	"slices"
@@ -381,8 +380,23 @@ func (sc *setupCache) reset() { sc.keys, sc.kept = sc.keys[:0], sc.kept[:0] }
 
 // find returns where u lies in sc.keys: its index, found, or where it would
 // be inserted.
+// It is slices.BinarySearchFunc by cmp.Compare written out (a NaN, never
+// kept, is found nowhere and goes first).
 func (sc *setupCache) find(u float64) (int, bool) {
-	return slices.BinarySearchFunc(sc.keys, u, func(k setupKey, u float64) int { return cmp.Compare(k.u, u) })
+	if u != u {
+		return 0, false
+	}
+	keys := sc.keys
+	i, j := 0, len(keys)
+	for i < j {
+		h := int(uint(i+j) >> 1)
+		if keys[h].u < u {
+			i = h + 1
+		} else {
+			j = h
+		}
+	}
+	return i, i < len(keys) && keys[i].u == u
 }
 
 // get returns the set-up kept at u.
