@@ -1139,6 +1139,11 @@ func (sv *solver) lowestScale(c *machSetup) float64 {
 // prepare works out everything at test Mach number (speed) machOrSpeed that does not depend
 // on the model scale.
 func (sv *solver) prepare(machOrSpeed float64) machSetup {
+	if sv.liquid {
+		// prepareNow's case, without its copy of the 384-byte set-up on the
+		// way back (about 200 instructions, 84 set-ups a vessel plan).
+		return sv.prepareWater(machOrSpeed)
+	}
 	if sv.setups == nil {
 		return sv.prepareNow(machOrSpeed)
 	}
@@ -1732,6 +1737,13 @@ func (sv *solver) at(c *machSetup, s float64) candidate {
 func (sv *solver) atTarget(c *machSetup, s, target float64) candidate {
 	if !c.ok {
 		return candidate{machOrSpeed: c.machOrSpeed, s: s, fail: c.fail, k: worst}
+	}
+	if sv.floor == nil && sv.liquid && sv.cav {
+		// bestOfWindows' one window, atWindow and atWater straight to the
+		// cavitation search: each level copied the 208-byte candidate on
+		// its way back (about 450 instructions a call, 96 calls a vessel
+		// plan).
+		return sv.atWaterCav(c, s, target, Window{Lo: 0, Hi: sv.loadQ(s, c.stRef)})
 	}
 	return sv.bestOfWindows(c, s, func(w Window) candidate { return sv.atWindow(c, s, target, w) })
 }
