@@ -1,0 +1,74 @@
+package similarity
+
+import (
+	"math"
+	"math/rand"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"scalematch/facilities"
+)
+
+// fixedLoad is a load limit whose q ceiling in Pa the test sets at each
+// search.
+type fixedLoad struct{ q float64 }
+
+func (l *fixedLoad) Name() string { return facilities.ConstraintBalance }
+
+func (l *fixedLoad) MaxDynamicPressure(float64, facilities.State) float64 { return l.q }
+
+// TestVesselShortcutsMatch checks the vessel's short paths against the
+// general ones they skip (common practice: a shortcut held to the path it
+// replaces, to the bit): prepare's water set-up against prepareNow's, and
+// atTarget's candidate, straight from the cavitation search, against
+// bestOfWindows over atWindow (its one window without a load floor). Random
+// vessels and tunnels (randomVessel) with the vessel's priority and a
+// weighted objective, at random speeds, scales and targets; half the
+// searches without a load limit, half with a q ceiling drawn around the
+// search's q range (below it, inside it, above it).
+func TestVesselShortcutsMatch(t *testing.T) {
+	rng := rand.New(rand.NewSource(41))
+	objectives := []Objective{{}, {Weights: map[string]float64{"reynolds": 1, "cavitation": 4}}}
+	searches, inside, below := 0, 0, 0
+	for i := 0; i < 300; i++ {
+		f, art, fl := randomVessel(t, rng, i)
+		for _, obj := range objectives {
+			load := &fixedLoad{q: math.Inf(1)}
+			sv, err := newSolver(&Problem{Flight: fl, Article: art, Facility: f, Objective: obj, LoadLimit: load})
+			require.NoError(t, err)
+			require.True(t, sv.liquid && sv.cav && sv.floor == nil, "case %d: not a vessel's cavitation search", i)
+			for j := 0; j < 10; j++ {
+				u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*rng.Float64()
+				s := sv.sLo * math.Pow(sv.sHi/sv.sLo, rng.Float64())
+				target := math.Inf(1)
+				if j%2 == 0 {
+					target = fl.Reynolds / (s * sv.L)
+				}
+				c := sv.prepare(u)
+				require.True(t, c == sv.prepareNow(u), "case %d, %g m/s: set-up %+v", i, u, c)
+				load.q, sv.loadMemo = math.Inf(1), loadMemo{}
+				if j >= 5 && c.ok {
+					// q falls as the water warms: from q at the warmest water
+					// less 1 % to q at the coldest plus 1 %.
+					lo, hi := 0.99*c.qWater[1], 1.01*c.qWater[0]
+					load.q = lo + (hi-lo)*rng.Float64()
+					switch {
+					case load.q < c.qWater[1]:
+						below++
+					case load.q < c.qWater[0]:
+						inside++
+					}
+				}
+				got := sv.atTarget(&c, s, target)
+				want := sv.bestOfWindows(&c, s, func(w Window) candidate { return sv.atWindow(&c, s, target, w) })
+				require.True(t, got == want, "case %d, %+v, %g m/s, scale %g, target %g, q ceiling %g Pa: %+v, want %+v",
+					i, obj, u, s, target, load.q, got, want)
+				searches++
+			}
+		}
+	}
+	t.Logf("%d searches; q ceiling below the search's q range in %d, inside it in %d", searches, below, inside)
+	require.Greater(t, below, searches/50, "too few searches the load limit rules out")
+	require.Greater(t, inside, searches/50, "too few searches the load limit narrows")
+}
