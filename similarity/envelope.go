@@ -63,16 +63,21 @@ func (sv *solver) tradePoint(u, s float64) TradePoint {
 	if sv.liquid {
 		tp.Mach, tp.Speed = 0, u
 	}
-	c := sv.prepare(u)
+	var c machSetup
+	sv.prepareIn(&c, u)
 	if c.partial && sv.load != nil && !(sv.loadQ(s, c.stRef) >= sv.top(&c).q) {
 		// The load limit caps q under the top setting here: the candidate
 		// reads the whole set-up.
 		sv.topOnly = false
-		c = sv.prepare(u)
+		sv.prepareIn(&c, u)
 		sv.topOnly = true
 	}
-	if t := sv.top(&c); c.ok && t.cap == facilities.ConstraintDynamic && !t.edge && !t.fail {
-		sv.ceilHist.add(u, sv.qmax, t.p, t.t)
+	if !sv.liquid && sv.f.Medium.Kind == facilities.MediumNitrogen {
+		// The q-ceiling roots kept for topPartial, which only a real-gas
+		// nitrogen set-up asks (prepareNitrogen).
+		if t := sv.top(&c); c.ok && t.cap == facilities.ConstraintDynamic && !t.edge && !t.fail {
+			sv.ceilHist.add(u, sv.qmax, t.p, t.t)
+		}
 	}
 	x := sv.atTarget(&c, s, math.Inf(1))
 	if !x.ok {

@@ -23,7 +23,8 @@ type interval struct{ a, b float64 }
 
 // bestOverScales returns the best candidate over the model scales at Mach number (speed) machOrSpeed.
 func (sv *solver) bestOverScales(machOrSpeed float64) candidate {
-	c := sv.prepare(machOrSpeed)
+	var c machSetup
+	sv.prepareIn(&c, machOrSpeed)
 	return sv.bestOverScalesAt(&c, true)
 }
 
@@ -409,7 +410,8 @@ func (sv *solver) feasibleMachOrSpeed() ([]interval, []string) {
 	sv.feasOnly = true
 	defer func() { sv.feasOnly = false }()
 	ok := func(machOrSpeed float64) bool {
-		c := sv.prepare(machOrSpeed)
+		var c machSetup
+		sv.prepareIn(&c, machOrSpeed)
 		if !c.ok {
 			fails = append(fails, c.fail)
 			return false

@@ -1138,34 +1138,49 @@ func (sv *solver) lowestScale(c *machSetup) float64 {
 
 // prepare works out everything at test Mach number (speed) machOrSpeed that does not depend
 // on the model scale.
-func (sv *solver) prepare(machOrSpeed float64) machSetup {
+func (sv *solver) prepare(machOrSpeed float64) (c machSetup) {
 	if sv.liquid {
 		// prepareNow's case, without its copy of the 384-byte set-up on the
 		// way back (about 200 instructions, 84 set-ups a vessel plan).
 		return sv.prepareWater(machOrSpeed)
 	}
-	if sv.setups == nil {
-		return sv.prepareNow(machOrSpeed)
-	}
-	if c, ok := sv.setups.get(machOrSpeed); ok {
-		return *c
-	}
-	c := sv.prepareNow(machOrSpeed)
-	if !c.partial {
-		sv.setups.put(machOrSpeed, &c)
-	}
+	sv.prepareIn(&c, machOrSpeed)
 	return c
 }
 
+// prepareIn is prepare into c. A set-up is 384 bytes: the planner's hot
+// callers (the feasibility scan, the search's Mach numbers, the trade curve)
+// keep it in their own frame, and an ideal gas's is built there, instead of
+// copying it out of each of three calls (about 400 instructions a set-up,
+// 112 set-ups an lsw-2 priority plan).
+func (sv *solver) prepareIn(c *machSetup, machOrSpeed float64) {
+	if sv.setups != nil {
+		if k, ok := sv.setups.get(machOrSpeed); ok {
+			*c = *k
+			return
+		}
+	}
+	sv.prepareNowIn(c, machOrSpeed)
+	if sv.setups != nil && !c.partial {
+		sv.setups.put(machOrSpeed, c)
+	}
+}
+
 // prepareNow is prepare without the solver's set-ups kept.
-func (sv *solver) prepareNow(machOrSpeed float64) machSetup {
+func (sv *solver) prepareNow(machOrSpeed float64) (c machSetup) {
+	sv.prepareNowIn(&c, machOrSpeed)
+	return c
+}
+
+// prepareNowIn is prepareNow into c.
+func (sv *solver) prepareNowIn(c *machSetup, machOrSpeed float64) {
 	switch {
 	case sv.liquid:
-		return sv.prepareWater(machOrSpeed)
+		*c = sv.prepareWater(machOrSpeed)
 	case sv.f.Medium.Kind == facilities.MediumNitrogen:
-		return sv.prepareNitrogen(machOrSpeed)
+		*c = sv.prepareNitrogen(machOrSpeed)
 	default:
-		return sv.prepareIdeal(machOrSpeed)
+		sv.prepareIdeal(c, machOrSpeed)
 	}
 }
 
@@ -1375,29 +1390,30 @@ func (sv *solver) hiOf(c *machSetup, x candidate) (rhi float64, capHi string) {
 // prepareIdeal is prepare for an ideal gas (Z = 1): at a fixed Mach number q and
 // Re/m are proportional to p0, q does not depend on T0, and Re/m is highest at the
 // lowest T0, so one state at (pa, ta) gives the rest in closed form. The state at
-// (pa, tb), the lowest Re/m, is computed only when needed (lowR).
-func (sv *solver) prepareIdeal(machOrSpeed float64) machSetup {
+// (pa, tb), the lowest Re/m, is computed only when needed (lowR). It writes
+// the set-up into c.
+func (sv *solver) prepareIdeal(c *machSetup, machOrSpeed float64) {
 	f := sv.f
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
 	pa, pb := f.StagnationPressure.Min, f.StagnationPressure.Max
-	c := machSetup{machOrSpeed: machOrSpeed, pa: pa}
+	*c = machSetup{machOrSpeed: machOrSpeed, pa: pa}
 	stA, err := sv.state(machOrSpeed, pa, ta)
 	if err != nil {
 		c.fail = facilities.ConstraintMachMax
-		return c
+		return
 	}
 	if f.Speed != nil {
 		tlo, thi, fail := speedWindow(f.Speed, stA.Speed, ta, ta, tb)
 		if fail != "" {
 			c.fail = fail
-			return c
+			return
 		}
 		tb = math.Min(tb, thi)
 		if tlo > ta {
 			ta = tlo
 			if stA, err = sv.state(machOrSpeed, pa, ta); err != nil {
 				c.fail = facilities.ConstraintSpeedMin
-				return c
+				return
 			}
 		}
 	}
@@ -1406,18 +1422,18 @@ func (sv *solver) prepareIdeal(machOrSpeed float64) machSetup {
 	c.qLow = stA.DynamicPressure
 	if stA.DynamicPressure > sv.qmax*(1+limitSlack) {
 		c.fail = facilities.ConstraintDynamic
-		return c
+		return
 	}
 	c.ra = stA.ReynoldsPerMeter
-	if !math.IsInf(sv.remax, 1) && sv.lowR(&c) > sv.remax*(1+limitSlack) {
+	if !math.IsInf(sv.remax, 1) && sv.lowR(c) > sv.remax*(1+limitSlack) {
 		c.fail = facilities.ConstraintReynoldsUnit
-		return c
+		return
 	}
 	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
 	c.linear = true
-	c.facilityTop = sv.highestSetting(&c, sv.qmax, facilities.ConstraintDynamic)
+	c.facilityTop = sv.highestSetting(c, sv.qmax, facilities.ConstraintDynamic)
 	c.ok = true
-	return c
+	return
 }
 
 // lowR returns the lowest Re/m at c's Mach number, at (pa, tb).
@@ -1738,12 +1754,16 @@ func (sv *solver) atTarget(c *machSetup, s, target float64) candidate {
 	if !c.ok {
 		return candidate{machOrSpeed: c.machOrSpeed, s: s, fail: c.fail, k: worst}
 	}
-	if sv.floor == nil && sv.liquid && sv.cav {
-		// bestOfWindows' one window, atWindow and atWater straight to the
-		// cavitation search: each level copied the 208-byte candidate on
-		// its way back (about 450 instructions a call, 96 calls a vessel
-		// plan).
-		return sv.atWaterCav(c, s, target, Window{Lo: 0, Hi: sv.loadQ(s, c.stRef)})
+	if sv.floor == nil {
+		if sv.liquid && sv.cav {
+			// bestOfWindows' one window, atWindow and atWater straight to the
+			// cavitation search: each level copied the 208-byte candidate on
+			// its way back (about 450 instructions a call, 96 calls a vessel
+			// plan).
+			return sv.atWaterCav(c, s, target, Window{Lo: 0, Hi: sv.loadQ(s, c.stRef)})
+		}
+		// One window, as bestOfWindows takes it, without its closure.
+		return sv.atWindow(c, s, target, Window{Lo: 0, Hi: sv.loadQ(s, c.stRef)})
 	}
 	return sv.bestOfWindows(c, s, func(w Window) candidate { return sv.atWindow(c, s, target, w) })
 }
@@ -1845,7 +1865,11 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 		}
 	}
 	x.ok = true
-	x.k = sv.keyOf(c.machOrSpeed, s, x.r, x.q, x.v, r == target, 0)
+	if !sv.topOnly || sv.floor != nil {
+		// A trade point (topOnly) reads the setting and its figures, not
+		// the key; only the choice among load windows would.
+		x.k = sv.keyOf(c.machOrSpeed, s, x.r, x.q, x.v, r == target, 0)
+	}
 	return x
 }
 
