@@ -437,7 +437,9 @@ func Plan(p *Problem, s *Settings) (*Result, error) {
 	defer func() {
 		setups, spare := sc.setups, sc.spareSetups
 		line, spareLine := sc.cond.line, sc.spareCond.line
+		kept := sc.kept
 		*sc = planScratch{}
+		sc.kept = kept
 		sc.setups, sc.spareSetups = setups, spare
 		sc.cond.line, sc.spareCond.line = line, spareLine
 		scratchPool.Put(sc)

@@ -23,9 +23,20 @@ type interval struct{ a, b float64 }
 
 // bestOverScales returns the best candidate over the model scales at Mach number (speed) machOrSpeed.
 func (sv *solver) bestOverScales(machOrSpeed float64) candidate {
+	if sv.kept != nil {
+		if x, g, ok := sv.kept.get(sv, machOrSpeed); ok {
+			sv.scaleGolden += g
+			return x
+		}
+	}
 	var c machSetup
 	sv.prepareIn(&c, machOrSpeed)
-	return sv.bestOverScalesAt(&c, true)
+	g := sv.scaleGolden
+	x := sv.bestOverScalesAt(&c, true)
+	if sv.kept != nil {
+		sv.kept.put(sv, machOrSpeed, &x, sv.scaleGolden-g)
+	}
+	return x
 }
 
 // bestOverScalesAt is bestOverScales on the set-up c. With probe, a
@@ -417,6 +428,11 @@ func (sv *solver) feasibleMachOrSpeed() ([]interval, []string) {
 			return false
 		}
 		x := sv.at(&c, sv.lowestScale(&c))
+		if sv.kept != nil && sv.kind == scaleFixed && sv.floor == nil {
+			// bestOverScales' candidate at this Mach number: the one scale's
+			// (the scan's feasOnly changes nothing in an ideal gas).
+			sv.kept.put(sv, machOrSpeed, &x, 0)
+		}
 		if !x.ok && sv.floor != nil && sv.kind == scaleRange {
 			// A load floor in real-gas nitrogen may be reached only by the
 			// larger models: try the largest.
@@ -610,6 +626,15 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 	default:
 		*fc = *sv.f
 		f, r.f = fc, fc
+	}
+	if sv.kept != nil {
+		// The relaxed limits move the candidates.
+		if sv.scratch != nil {
+			r.kept = &sv.scratch.kept[1]
+			r.kept.reset()
+		} else {
+			r.kept = new(keptCandidates)
+		}
 	}
 	if sv.memo != nil {
 		// A relaxed facility may hold another static pressure (water).

@@ -337,6 +337,10 @@ type solver struct {
 	spareFacility *facilities.Facility
 	// scratch is the plan's pooled scratch (Plan), nil outside Plan.
 	scratch *planScratch
+	// kept holds the best candidates over the scales found at the last Mach
+	// numbers (bestOverScales; an ideal gas with a priority objective, nil
+	// otherwise); a relaxed copy keeps its own.
+	kept *keptCandidates
 }
 
 // planScratch is the memory of a plan's solver and of the relaxed copy its
@@ -357,6 +361,10 @@ type planScratch struct {
 	// The water's properties on a vessel plan's temperature grids
 	// (solver.grids), shared by its relaxed copies.
 	grids waterGrids
+	// The best candidates kept by an ideal-gas plan's solver and by the
+	// relaxed copy (solver.kept), allocated once: Plan's clearing of the
+	// scratch keeps the pointer, the solvers empty them.
+	kept *[2]keptCandidates
 }
 
 // setupCache keeps a solver's set-ups by Mach number (speed): keys sorted by
@@ -480,7 +488,101 @@ func newSolverIn(sv *solver, p *Problem, sc *planScratch) (*solver, error) {
 	if sv.liquid {
 		sv.water = &waterMemo{}
 	}
+	if sv.keepsCandidates() {
+		if sc != nil {
+			if sc.kept == nil {
+				sc.kept = new([2]keptCandidates)
+			}
+			sv.kept = &sc.kept[0]
+			sv.kept.reset()
+		} else {
+			sv.kept = new(keptCandidates)
+		}
+	}
 	return sv, nil
+}
+
+// keepsCandidates reports whether the solver keeps its best candidates over
+// the scales by Mach number (kept): in an ideal gas with a priority
+// objective that does not name the Froude number, where the search meets a
+// Mach number again: a fixed scale without a load floor (the search's grid
+// holds the feasibility scan's nine Mach numbers, whose candidates are the
+// scan's), or closed walls and a test matrix's drag range (the wall
+// correction moves the Mach aim, and the re-solve looks again at the cells
+// and the end the solve before it looked at last; solveCorrected). There a
+// candidate's setting depends on the solver's limits alone, not on the
+// Mach aim, and so does the best over the scales at one Mach number (its
+// Mach level is the same at every scale); only its key reads the aim (the
+// Mach band), and a candidate kept from an earlier aim gets its key again
+// (keptCandidates.get). In nitrogen a set-up starts roots from the states
+// found before it (jointMemos, the condensation line), so one computed again
+// may differ in rounding, and a weighted sum adds the Mach term to the
+// others before they are compared.
+func (sv *solver) keepsCandidates() bool {
+	if sv.liquid || sv.f.Medium.Kind == facilities.MediumNitrogen || sv.obj.weighted || sv.froudeMatters() {
+		return false
+	}
+	return sv.kind == scaleFixed && sv.floor == nil ||
+		sv.p.MatrixDrag != nil && sv.f.TestSection.Walls == facilities.WallsClosed && !sv.noMach
+}
+
+// keptCandidates are the best candidates over the scales a solver found at
+// its first Mach numbers (bestOverScales, and the feasibility scan's with a
+// fixed scale), with the Mach aim their keys were computed at and the
+// golden sections over the scales that found them.
+type keptCandidates struct {
+	n int
+	u [keptSize]float64 // the Mach numbers, apart for a quick look
+	e [keptSize]keptCandidate
+}
+
+// keptSize is how many candidates keptCandidates holds: a fixed-scale
+// solve's nine scan points, its seventeen grid points (eight of them new),
+// the end's neighbour and the aim, and the re-solves' new points, with room.
+const keptSize = 32
+
+// keptCandidate is one entry of keptCandidates.
+type keptCandidate struct {
+	aim, aimRatio float64 // the solver's when x.k was computed
+	golden        int     // the golden sections over the scales that found x
+	x             candidate
+}
+
+// reset empties kc.
+func (kc *keptCandidates) reset() { kc.n = 0 }
+
+// put keeps x, the best candidate over the scales at Mach number u found
+// with golden sections over the scales, whose key sv computed; once kc is
+// full, nothing more.
+func (kc *keptCandidates) put(sv *solver, u float64, x *candidate, golden int) {
+	if kc.n == keptSize {
+		return
+	}
+	kc.u[kc.n] = u
+	e := &kc.e[kc.n]
+	e.aim, e.aimRatio, e.golden, e.x = sv.aim, sv.aimRatio, golden, *x
+	kc.n++
+}
+
+// get returns the candidate kept at Mach number u, with its key computed
+// again where the solver's Mach aim has moved since (keyOf, as atWindow
+// computes it: the flight's Re/m at the candidate's scale met where the
+// setting reached it), and the golden sections that found it.
+func (kc *keptCandidates) get(sv *solver, u float64) (candidate, int, bool) {
+	for i := kc.n - 1; i >= 0; i-- {
+		if kc.u[i] != u {
+			continue
+		}
+		e := &kc.e[i]
+		if e.x.ok && (e.aim != sv.aim || e.aimRatio != sv.aimRatio) {
+			x := &e.x
+			met := x.r == sv.fl.Reynolds/(x.s*sv.L)
+			x.k = sv.keyOf(x.machOrSpeed, x.s, x.r, x.q, x.v, met, 0)
+			e.aim, e.aimRatio = sv.aim, sv.aimRatio
+		}
+		return e.x, e.golden, true
+	}
+	return candidate{}, 0, false
 }
 
 // checkInput validates the parts of the problem the planner reads.
