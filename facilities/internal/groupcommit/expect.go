@@ -43,8 +43,11 @@ func (e *expectation[R]) withdraw() {
 	e.c.mu.Lock()
 	e.c.coming--
 	e.c.settled++
+	wake := e.c.gathering && !e.c.gatherWaits()
 	e.c.mu.Unlock()
-	e.c.signal()
+	if wake {
+		e.c.signal()
+	}
 }
 
 // Announced returns how many announcements are outstanding (neither submitted
@@ -95,8 +98,9 @@ func (c *Committer[R]) gatherAnnounced() {
 	}
 	for {
 		c.mu.Lock()
-		announced := c.settled < target && c.coming > 0
-		wait := (announced || len(c.queue) < want) && len(c.queue) < c.maxGroup && !c.closed
+		c.gatherTarget, c.gatherWant = target, want
+		wait := c.gatherWaits()
+		c.gathering = wait
 		c.mu.Unlock()
 		if !wait {
 			return
@@ -108,7 +112,18 @@ func (c *Committer[R]) gatherAnnounced() {
 		select {
 		case <-c.arrived:
 		case <-timer.C:
+			c.mu.Lock()
+			c.gathering = false
+			c.mu.Unlock()
 			return
 		}
 	}
+}
+
+// gatherWaits reports whether a gathering group still waits (c.mu held): for
+// the announcements it was told of, until they are settled, or for gatherWant
+// records, while the queue holds less than a group and the Committer is open.
+func (c *Committer[R]) gatherWaits() bool {
+	announced := c.settled < c.gatherTarget && c.coming > 0
+	return (announced || len(c.queue) < c.gatherWant) && len(c.queue) < c.maxGroup && !c.closed
 }
