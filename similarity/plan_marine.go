@@ -305,6 +305,10 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// With a weighted objective evalAt keeps in ln the logarithms of the
 	// Reynolds and cavitation ratios its key read (cavKey).
 	var ln [2]float64
+	// keyless: evalAt leaves the candidate's key unset (the warmest water's
+	// state below, whose key a priority plan reads only where that state is
+	// the answer; keyTop sets it).
+	keyless := false
 	// evalAt returns the candidate at temperature t, the water's properties
 	// there being wp, and the room between the static pressures the facility
 	// can hold there, hi − lo in Pa (NaN where the state fails).
@@ -333,6 +337,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			return y, room
 		}
 		y.ok = true
+		if keyless {
+			return y, room
+		}
 		if lazy {
 			if d := sv.cavDistance(y.sig); d > lazyAbove {
 				y.k = key{q: q}
@@ -354,6 +361,15 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// top is the candidate at the grid's warmest temperature, once known.
 	var top candidate
 	topRoom, haveTop := 0.0, false
+	// topKeyless: top is usable and its key not yet set (keyless); keyTop
+	// sets it, as evalAt would have (no lazy key yet, and not weighted).
+	topKeyless := false
+	keyTop := func() {
+		if topKeyless {
+			top.k = sv.keyOf(c.machOrSpeed, s, top.r, top.q, c.machOrSpeed, false, top.sig)
+			topKeyless = false
+		}
+	}
 	if sv.cavThenReynolds() && !sv.feasOnly && sv.water != nil {
 		// The warmest usable water inside the cavitation band, short of the
 		// flight's Reynolds number, is the best temperature: none is better on
@@ -365,15 +381,18 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		m := sv.water
 		i := m.slot(tb)
 		wp := waterProps{rho: m.rho[i], mu: m.mu[i], pv: m.vapourPressure(tb)}
+		keyless = true
 		y, room := evalAt(tb, wp)
+		keyless = false
 		if y.ok && sv.cavDistance(y.sig) == 0 &&
 			y.r*s*sv.L <= sv.fl.Reynolds && s*sv.L*y.r/sv.fl.Reynolds <= 1 {
+			y.k = sv.keyOf(c.machOrSpeed, s, y.r, y.q, c.machOrSpeed, false, y.sig)
 			y.rlo, y.rhi, y.capHi = y.r, y.r, capHi
 			y.top, y.bandOK = true, true
 			return y
 		}
 		// The same state as the grid's warmest, where that is tb itself.
-		top, topRoom, haveTop = y, room, cavGridT(ta, tb, cavGrid-1) == tb
+		top, topRoom, haveTop, topKeyless = y, room, cavGridT(ta, tb, cavGrid-1) == tb, y.ok
 	}
 	if sv.grids == nil {
 		if sv.scratch != nil {
@@ -392,7 +411,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		if !haveTop {
 			ln = [2]float64{math.NaN(), math.NaN()}
 			top, topRoom = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
-			haveTop, topLn = true, ln
+			haveTop, topLn, topKeyless = true, ln, false
 		}
 		coldAt := func() candidate {
 			if !haveCold {
@@ -408,9 +427,16 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			if y, ok = sv.cavEndWeighted(wg, top, coldAt, s, &topLn, &coldLn); !ok {
 				y, ok = sv.cavTopWeighted(evalAt, wg, top, topRoom, coldAt(), coldRoom, s)
 			}
-		} else if y, ok = sv.cavEnd(wg, top, coldAt); ok {
-			y.rlo, y.rhi = y.r, y.r
-		} else if sv.cavThenReynolds() {
+		} else {
+			if top.ok && top.sig > sv.fl.Marine.Cavitation+sv.obj.cavTol {
+				keyTop() // cavEnd may answer with the warmest water
+			}
+			if y, ok = sv.cavEnd(wg, top, coldAt); ok {
+				y.rlo, y.rhi = y.r, y.r
+			}
+		}
+		if !ok && !sv.obj.weighted && sv.cavThenReynolds() {
+			keyTop()
 			// The search's own targets inside the band, where σ falls with T.
 			root := func() (candidate, bool) {
 				if target > coldAt().r && target < top.r {
@@ -434,6 +460,10 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			return y
 		}
 	}
+	// The grid reads top only without lazy keys (a keyless top comes with the
+	// priority of the cavitation number first, whose keys are lazy): set
+	// anyway, as evalAt would.
+	keyTop()
 	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
 	// seen are Re/m and the distance outside the cavitation band of every
 	// usable candidate considered.
