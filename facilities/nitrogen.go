@@ -394,6 +394,9 @@ type Stagnation struct {
 	// number (StagnationNear), from which nitrogenNewton starts instead of
 	// nitrogenExpand's start; T 0 where there is none.
 	start expansionStart
+	// local is a start of the local expansion to the condensation peak Mach
+	// number (StagnationNearLocal); T 0 where there is none.
+	local expansionStart
 }
 
 // expansionStart is a start of the expansion to Mach number mach: the static
@@ -404,6 +407,11 @@ type expansionStart struct{ mach, T, rho float64 }
 // (speed 0), nitrogenNewton from that start (nitrogenExpand should it fail).
 func (g *Stagnation) expand(mach, speed float64) (T, rho float64, n n2Props, ok bool) {
 	if st := g.start; speed == 0 && st.T > 0 && st.mach == mach {
+		if T, rho, n, ok = nitrogenNewton(g.n0, mach, 0, st.T, st.rho); ok {
+			return T, rho, n, ok
+		}
+	}
+	if st := g.local; speed == 0 && st.T > 0 && st.mach == mach {
 		if T, rho, n, ok = nitrogenNewton(g.n0, mach, 0, st.T, st.rho); ok {
 			return T, rho, n, ok
 		}

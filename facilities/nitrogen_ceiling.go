@@ -50,6 +50,26 @@ func (fs *FloorSlopes) StagnationNear(p0, t0 float64) Stagnation {
 	return g
 }
 
+// StagnationNearLocal is StagnationNear with the local expansion's static
+// state of fs carried to (p0, t0) to first order as well, the start of the
+// expansion to the condensation peak Mach number: LocalCondensationMarginFrom
+// from it takes one Newton step where (p0, t0) is within about 1e-8 relative
+// of fs's stagnation state, against two or three from its own start, and
+// gives LocalCondensationMargin's figure to the expansion's convergence
+// (within 2e-15: TestStagnationNearLocal), not to the bit. A planner that
+// checks a setting by it puts the setting further above the condensation
+// line than that (similarity's ceilingJointFrom: 2e-14 relative in T0).
+func (fs *FloorSlopes) StagnationNearLocal(p0, t0 float64) Stagnation {
+	g := fs.StagnationNear(p0, t0)
+	if !fs.OK {
+		return g
+	}
+	if T, rho, ok := fs.local.start(p0-fs.p0, t0-fs.t0); ok {
+		g.local = expansionStart{mach: fs.peak, T: T, rho: rho}
+	}
+	return g
+}
+
 // staticSlopes is a static state (T in K, ρ in kg/m³) of an expansion from
 // (p0, T0) and its derivatives in p0 (…P) and T0 (…T).
 type staticSlopes struct {

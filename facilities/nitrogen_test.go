@@ -294,6 +294,45 @@ func TestStagnationNear(t *testing.T) {
 	assert.Equal(t, facilities.NitrogenStagnation(2e5, 150), none.StagnationNear(2e5, 150))
 }
 
+// TestStagnationNearLocal: a stagnation state with the starts of a nearby
+// FloorSlopes' free stream and local expansion (StagnationNearLocal, up to
+// 1e-8 relative away in p0 and T0, the joint step's last step) gives
+// LocalCondensationMargin within 2e-15 (the expansion's convergence; the
+// bound the planner's jointAbove of 2e-14 in T0 keeps clear of, from
+// memory of the isentrope's resolution, measured value logged), the free
+// stream as StagnationNear's does, and with no figures NitrogenStagnation.
+func TestStagnationNearLocal(t *testing.T) {
+	t.Parallel()
+	f := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumNitrogen}}
+	worst := 0.0
+	for _, m := range []float64{0.3, 0.78, 0.92} {
+		for _, p0 := range []float64{1.3e5, 2.5e5, 3.9e5} {
+			for _, t0 := range []float64{100, 112, 140, 300} {
+				fs := f.NitrogenFloorSlopes(p0, t0, m, nil)
+				require.True(t, fs.OK)
+				for _, d := range [][2]float64{{3e-9, -2e-9}, {1e-8, 1e-8}, {-1e-8, 4e-9}, {-4e-15, 2e-14}} {
+					p1, t1 := p0*(1+d[0]), t0*(1+d[1])
+					g := fs.StagnationNearLocal(p1, t1)
+					want := f.LocalCondensationMargin(p1, t1)
+					got := f.LocalCondensationMarginFrom(&g)
+					assert.InDelta(t, want, got, 2e-15, "M %g, %g Pa, %g K", m, p1, t1)
+					worst = math.Max(worst, math.Abs(want-got))
+					s := facilities.Setting{Mach: m, StagnationPressure: p1, StagnationTemperature: t1}
+					near := fs.StagnationNear(p1, t1)
+					wantSt, err := f.StateFrom(&near, s)
+					require.NoError(t, err)
+					gotSt, err := f.StateFrom(&g, s)
+					require.NoError(t, err)
+					assert.Equal(t, wantSt, gotSt, "M %g, %g Pa, %g K", m, p1, t1)
+				}
+			}
+		}
+	}
+	t.Logf("local margin from the carried start: largest difference %.3g", worst)
+	var none facilities.FloorSlopes
+	assert.Equal(t, facilities.NitrogenStagnation(2e5, 150), none.StagnationNearLocal(2e5, 150))
+}
+
 // TestFreeStreamMarginAboveLocal: along a nitrogen isentrope T/T_sat(p) falls
 // as the gas expands, so the free stream at a Mach number up to the local
 // peak Mach number is never nearer saturation than the local expansion: its

@@ -269,9 +269,10 @@ func (cc *condLineCache) lineIndex(p0 float64) (int, bool) {
 // [pa, pTop] and the line interpolated there, and stops after a step below
 // 1e-8 relative in both (the error is then of the order of its square). The
 // p0 returned lies 4e-15 relative below the crossing, its T0 on the line
-// there 2e-15 relative above it; both are checked as the search checks them
-// (the local margin, the free stream's floorMargin, q ≤ qc, each from its own
-// state), and the point joins the line. ok is false where the T0 floor is not
+// there jointAbove relative above it; both are checked as the search checks
+// them (the local margin, the free stream's floorMargin, q ≤ qc, each from
+// its own state, whose expansions start from the last iterate's), and the
+// point joins the line. ok is false where the T0 floor is not
 // the condensation line alone (a speed range, no condensation, another T0
 // range than the line's), when the iteration leaves [pa, pTop] × [ta, tb] or
 // does not converge in 6 steps, or when a check fails: the caller then finds
@@ -290,6 +291,14 @@ func (sv *solver) ceilingJoint(c *machSetup, qc, qa, qTop float64) (float64, boo
 	}
 	return sv.ceilingJointFrom(c, qc, c.pa+(c.pTop-c.pa)*(qc-qa)/(qTop-qa), math.NaN(), nil)
 }
+
+// jointAbove is how far, relative, ceilingJointFrom puts its point's T0
+// above the condensation line: the check's local margin comes from an
+// expansion started from the last iterate's (StagnationNearLocal), which
+// agrees with LocalCondensationMargin's own start to within 2e-15
+// (facilities' TestStagnationNearLocal; 1.3e-15 measured), so the point lies
+// on the line's usable side by either; 2e-14 is inside the roots' 1e-13.
+const jointAbove = 2e-14
 
 // jointNear is the largest relative distance in Mach number from the last
 // q-ceiling point found at which ceilingJoint starts from it (jointMemo).
@@ -382,11 +391,12 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilit
 		return 0, false
 	}
 	pf := p * (1 - 4e-15)
-	tf := (t - fs.MP/fs.MT*(pf-p)) * (1 + 2e-15)
+	tf := (t - fs.MP/fs.MT*(pf-p)) * (1 + jointAbove)
 	if sv.stags != nil && pf > 0 && tf > 0 {
-		// The checks' expansions start from the last iterate's, carried to
-		// (pf, tf): one Newton step each instead of two or three.
-		sv.stags.put(fs.StagnationNear(pf, tf))
+		// The checks' expansions (the free stream and the local one) start
+		// from the last iterate's, carried to (pf, tf): one Newton step each
+		// instead of two or three.
+		sv.stags.put(fs.StagnationNearLocal(pf, tf))
 	}
 	if !(pf > c.pa && tf < c.tb) || sv.localMargin(pf, tf) < sv.condMin {
 		return 0, false
