@@ -413,14 +413,15 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			top, topRoom = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
 			haveTop, topLn, topKeyless = true, ln, false
 		}
-		coldAt := func() candidate {
+		coldPtr := func() *candidate {
 			if !haveCold {
 				ln = [2]float64{math.NaN(), math.NaN()}
 				cold, coldRoom = evalAt(cavGridT(ta, tb, 0), wg.wp[0])
 				haveCold, coldLn = true, ln
 			}
-			return cold
+			return &cold
 		}
+		coldAt := func() candidate { return *coldPtr() }
 		var y candidate
 		ok := false
 		if sv.obj.weighted {
@@ -431,7 +432,8 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			if top.ok && top.sig > sv.fl.Marine.Cavitation+sv.obj.cavTol {
 				keyTop() // cavEnd may answer with the warmest water
 			}
-			if y, ok = sv.cavEnd(wg, top, coldAt); ok {
+			if e := sv.cavEnd(wg, &top, coldPtr); e != nil {
+				y, ok = *e, true
 				y.rlo, y.rhi = y.r, y.r
 			}
 		}
@@ -593,8 +595,10 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 // cavEnd returns, with the cavitation number first in a priority, the
 // candidate at the coldest or the warmest water of the grid g where the
 // cavitation band lies out of reach over the whole range and that end comes
-// nearest it, and true; false where that is not shown. top is atWaterCav's
-// candidate at g's warmest temperature, coldAt gives the one at its coldest.
+// nearest it (top or coldAt's, not a copy: a 208-byte candidate passed and
+// returned by value cost more than the test); nil where that is not shown.
+// top is atWaterCav's candidate at g's warmest temperature, coldAt gives the
+// one at its coldest.
 //
 // At each temperature T the chosen σ lies between σ_lo = (lo − p_v)/q and
 // σ_hi = (hi − p_v)/q, the static pressures lo and hi the facility can hold
@@ -607,16 +611,16 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 // lower still, farther from it; and where σ at the warmest, σ_lo there, lies
 // above the band, every colder σ lies higher: that end is strictly the best on
 // the first level, whatever the later levels.
-func (sv *solver) cavEnd(g *waterGrid, top candidate, coldAt func() candidate) (candidate, bool) {
+func (sv *solver) cavEnd(g *waterGrid, top *candidate, coldAt func() *candidate) *candidate {
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
 	lo, hi, _ := sv.cavPressures()
 	if top.ok && top.sig > sf+tol && g.falls(lo) {
-		return top, true
+		return top
 	}
 	if cold := coldAt(); cold.ok && cold.sig < sf-tol && g.falls(hi) {
-		return cold, true
+		return cold
 	}
-	return candidate{}, false
+	return nil
 }
 
 // cavEndWeighted is cavEnd for a weighted objective: the candidate at the
