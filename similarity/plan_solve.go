@@ -927,25 +927,25 @@ func (sv *solver) setURange() error {
 		mlo, mhi := math.Inf(1), 0.0
 		for _, p0 := range []float64{f.StagnationPressure.Min, f.StagnationPressure.Max} {
 			if st, err := f.State(facilities.Setting{Speed: f.Speed.Min, StagnationPressure: p0, StagnationTemperature: f.StagnationTemperature.Max}); err == nil {
-				mlo = math.Min(mlo, st.Mach)
+				mlo = min(mlo, st.Mach)
 			}
 			if st, err := f.State(facilities.Setting{Speed: f.Speed.Max, StagnationPressure: p0, StagnationTemperature: f.StagnationTemperature.Min}); err == nil {
-				mhi = math.Max(mhi, st.Mach)
+				mhi = max(mhi, st.Mach)
 			}
 			sv.evals += 2
 		}
 		if !math.IsInf(mlo, 1) {
-			lo = math.Max(lo, mlo)
+			lo = max(lo, mlo)
 		}
 		if mhi > 0 {
-			hi = math.Min(hi, mhi)
+			hi = min(hi, mhi)
 		}
 	}
 	if !(lo <= hi) || hi <= 0 {
 		return unprocessable("the facility's Mach and speed ranges do not overlap at any stagnation temperature",
 			facilities.ConstraintMachMin, facilities.ConstraintMachMax, facilities.ConstraintSpeedMin, facilities.ConstraintSpeedMax)
 	}
-	sv.machOrSpeedMin, sv.machOrSpeedMax = math.Max(lo, 1e-6), hi
+	sv.machOrSpeedMin, sv.machOrSpeedMax = max(lo, 1e-6), hi
 	return nil
 }
 
@@ -1071,7 +1071,7 @@ func (sv *solver) condMargin(u float64, st facilities.State, p0, t0 float64) flo
 	if sv.f.Medium.Kind == facilities.MediumNitrogen && !sv.liquid && u <= sv.f.CondensationPeak() {
 		return local
 	}
-	return math.Min(sv.f.FreeStreamCondensationMargin(st), local)
+	return min(sv.f.FreeStreamCondensationMargin(st), local)
 }
 
 // warmMargin is floorMargin where only its sign is read (is the warmest T0
@@ -1151,7 +1151,7 @@ func (sv *solver) floorQ(s float64, st facilities.State) float64 {
 	lo := math.Inf(1)
 	for _, w := range sv.windows(s, st) {
 		if w.Lo <= w.Hi*(1+limitSlack) {
-			lo = math.Min(lo, w.Lo)
+			lo = min(lo, w.Lo)
 		}
 	}
 	return lo
@@ -1200,7 +1200,7 @@ func (sv *solver) raiseFloor(c *machSetup, lo float64, tp topSetting) (machSetup
 		if err != nil {
 			return -1
 		}
-		return math.Min(st.DynamicPressure, sv.qcurve(c, p)) - lo
+		return min(st.DynamicPressure, sv.qcurve(c, p)) - lo
 	}
 	p := sv.rootHi(qLowAt, c.pa, tp.p, true)
 	st, err := sv.state(c.machOrSpeed, p, c.tb)
@@ -1222,7 +1222,7 @@ func (sv *solver) topQ(c *machSetup, s float64) float64 {
 		q = sv.waterQAt(c, c.ta)
 	}
 	if sv.load != nil {
-		q = math.Min(q, sv.loadQ(s, c.stRef))
+		q = min(q, sv.loadQ(s, c.stRef))
 	}
 	return q
 }
@@ -1420,7 +1420,7 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		c.qa, c.qaOK = stA.DynamicPressure, true
 	}
 	c.ra = stA.ReynoldsPerMeter
-	c.qLow = math.Min(stA.DynamicPressure, stB.DynamicPressure)
+	c.qLow = min(stA.DynamicPressure, stB.DynamicPressure)
 	if c.qLow > sv.qmax*(1+limitSlack) {
 		c.fail = facilities.ConstraintDynamic
 		return c
@@ -1476,7 +1476,7 @@ func (sv *solver) underTop(c *machSetup, target float64, w Window) bool {
 	if c.cond {
 		ra = sv.rcurve(c, c.pa) // as solveR reads it
 	}
-	return math.Max(target, sv.lowR(c)) < ra
+	return max(target, sv.lowR(c)) < ra
 }
 
 // hiOf returns x's rhi and capHi, from the top setting of its set-up c where
@@ -1510,7 +1510,7 @@ func (sv *solver) prepareIdeal(c *machSetup, machOrSpeed float64) {
 			c.fail = fail
 			return
 		}
-		tb = math.Min(tb, thi)
+		tb = min(tb, thi)
 		if tlo > ta {
 			ta = tlo
 			if stA, err = sv.state(machOrSpeed, pa, ta); err != nil {
@@ -1691,7 +1691,7 @@ func (sv *solver) solveR(c *machSetup, tp topSetting, r float64) (p0, t0 float64
 	case r >= tp.r:
 		p0 = tp.p
 	case c.linear:
-		p0 = math.Min(c.pa*r/c.ra, tp.p)
+		p0 = min(c.pa*r/c.ra, tp.p)
 	default:
 		p0 = sv.rootHi(func(p float64) float64 { return sv.rcurve(c, p) - r }, c.pa, tp.p, true)
 	}
@@ -1888,7 +1888,7 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 	qc := sv.qmax // the q ceiling at this scale
 	if sv.load != nil {
 		qb := w.Hi
-		qc = math.Min(qc, qb)
+		qc = min(qc, qb)
 		if qb < tp.q {
 			if qb < c.qLow*(1-limitSlack) {
 				x.fail, x.k = sv.loadName, worst
@@ -1911,7 +1911,7 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 			x.fail, x.k = sv.floorName, worst
 			return x
 		}
-		if c2, ok := sv.raiseFloor(c, math.Min(lo, tp.q), tp); ok && !tp.edge {
+		if c2, ok := sv.raiseFloor(c, min(lo, tp.q), tp); ok && !tp.edge {
 			c = &c2
 		} else {
 			pinned = true
@@ -1927,10 +1927,10 @@ func (sv *solver) atWindow(c *machSetup, s, target float64, w Window) candidate 
 		// top setting, below, and its lowest Re/m is not read (rlo unknown).
 	} else if target < c.ra || !c.linear {
 		x.rlo = sv.lowR(c)
-		r = math.Max(r, x.rlo)
+		r = max(r, x.rlo)
 	}
 	if !lazy {
-		r = math.Min(r, tp.r)
+		r = min(r, tp.r)
 	}
 	x.r = r
 	switch {
@@ -2013,7 +2013,7 @@ func (sv *solver) atWater(c *machSetup, s, target float64, w Window) candidate {
 		}
 	}
 	x.rhi, x.rlo, x.capHi = rhi, c.rlo, capHi
-	r := math.Min(math.Max(target, c.rlo), rhi)
+	r := min(max(target, c.rlo), rhi)
 	switch {
 	case r <= c.rlo:
 		x.t0 = c.ta
@@ -2101,7 +2101,7 @@ func (sv *solver) keyOf(machOrSpeed, s, r, q, v float64, met bool, sig float64) 
 			// (where the search puts it) is inside by construction and scores exactly 0:
 			// |machOrSpeed − M| − tol would leave a rounding error of either sign there.
 			if lo, hi := sv.machBand(); !sv.noMach {
-				k.v[i] = math.Max(0, math.Max(lo-machOrSpeed, machOrSpeed-hi))
+				k.v[i] = max(0, max(lo-machOrSpeed, machOrSpeed-hi))
 			}
 		case gReynolds:
 			k.v[i] = math.Abs(lnRe())
@@ -2150,7 +2150,7 @@ func (sv *solver) weightedKey(machOrSpeed, s, r, q, v float64, met bool, sig flo
 		case gCavitation:
 			if sv.cav {
 				sf := sv.fl.Marine.Cavitation
-				l = math.Log(math.Max(sig, 1e-9*sf) / sf)
+				l = math.Log(max(sig, 1e-9*sf) / sf)
 				lnSig = l
 			}
 		}
@@ -2193,7 +2193,7 @@ func usableRoot(g func(float64) float64, lo, hi float64, increasing, smooth bool
 	if !increasing {
 		flip := func(x float64) float64 { return g(lo + hi - x) }
 		x := usableRootUp(flip, lo, hi, smooth)
-		return math.Min(math.Max(lo+hi-x, lo), hi)
+		return min(max(lo+hi-x, lo), hi)
 	}
 	return usableRootUp(g, lo, hi, smooth)
 }
@@ -2246,7 +2246,7 @@ func secantBracket(g func(float64) float64, a, fa, b, fb float64) float64 {
 	x0, f0, x1, f1 := a, fa, b, fb
 	slow := 0
 	for i := 0; i < 200; i++ {
-		tol := 1e-13 * math.Max(math.Abs(a), math.Abs(b))
+		tol := 1e-13 * max(math.Abs(a), math.Abs(b))
 		w := b - a
 		if w <= tol {
 			break
@@ -2287,7 +2287,7 @@ func secantBracket(g func(float64) float64, a, fa, b, fb float64) float64 {
 // its usable end (rootHi).
 func illinois(g func(float64) float64, a, fa, b, fb float64) float64 {
 	side := 0
-	for i := 0; i < 200 && b-a > 1e-13*math.Max(math.Abs(a), math.Abs(b)); i++ {
+	for i := 0; i < 200 && b-a > 1e-13*max(math.Abs(a), math.Abs(b)); i++ {
 		x := (a*fb - b*fa) / (fb - fa)
 		if !(x > a && x < b) {
 			x = 0.5 * (a + b)

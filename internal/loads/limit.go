@@ -420,7 +420,7 @@ func (br *balanceRows) prune(cd []float64, drop bool) {
 	pr := pruner{f: br.force, m: br.moment, inv: inv}
 	for k := range n {
 		if up, down := br.up[k], br.down[k]; up > 0 && down > 0 {
-			pr.inv[3*k], pr.inv[3*k+1], pr.inv[3*k+2] = 1/up, 1/down, 1/math.Min(up, down)
+			pr.inv[3*k], pr.inv[3*k+1], pr.inv[3*k+2] = 1/up, 1/down, 1/min(up, down)
 		}
 	}
 	usable := func(k int) bool { return pr.inv[3*k] > 0 }
