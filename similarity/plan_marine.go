@@ -413,15 +413,14 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			top, topRoom = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
 			haveTop, topLn, topKeyless = true, ln, false
 		}
-		coldPtr := func() *candidate {
+		coldAt := func() candidate {
 			if !haveCold {
 				ln = [2]float64{math.NaN(), math.NaN()}
 				cold, coldRoom = evalAt(cavGridT(ta, tb, 0), wg.wp[0])
 				haveCold, coldLn = true, ln
 			}
-			return &cold
+			return cold
 		}
-		coldAt := func() candidate { return *coldPtr() }
 		var y candidate
 		ok := false
 		if sv.obj.weighted {
@@ -429,11 +428,19 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				y, ok = sv.cavTopWeighted(evalAt, wg, top, topRoom, coldAt(), coldRoom, s)
 			}
 		} else {
-			if top.ok && top.sig > sv.fl.Marine.Cavitation+sv.obj.cavTol {
-				keyTop() // cavEnd may answer with the warmest water
+			// cavEnd: the warmest or the coldest water, where shown.
+			if sv.cavEndTop(wg, &top) {
+				keyTop()
+				y, ok = top, true
+			} else if !haveCold {
+				ln = [2]float64{math.NaN(), math.NaN()}
+				cold, coldRoom = evalAt(cavGridT(ta, tb, 0), wg.wp[0])
+				haveCold, coldLn = true, ln
 			}
-			if e := sv.cavEnd(wg, &top, coldPtr); e != nil {
-				y, ok = *e, true
+			if !ok && sv.cavEndCold(wg, &cold) {
+				y, ok = cold, true
+			}
+			if ok {
 				y.rlo, y.rhi = y.r, y.r
 			}
 		}
@@ -592,13 +599,15 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	return best
 }
 
-// cavEnd returns, with the cavitation number first in a priority, the
-// candidate at the coldest or the warmest water of the grid g where the
-// cavitation band lies out of reach over the whole range and that end comes
-// nearest it (top or coldAt's, not a copy: a 208-byte candidate passed and
-// returned by value cost more than the test); nil where that is not shown.
-// top is atWaterCav's candidate at g's warmest temperature, coldAt gives the
-// one at its coldest.
+// cavEndTop and cavEndCold are cavEnd, the ends' certificate: they report,
+// with the cavitation number first in a priority, which end of the grid g is
+// shown to be the best, where the cavitation band lies
+// out of reach over the whole range and that end comes nearest it: the
+// warmest water (cavEndTop, top being atWaterCav's candidate at g's warmest
+// temperature), or else the coldest (cavEndCold, cold the one at its
+// coldest). The candidates are read through pointers, not copied (a 208-byte
+// candidate passed and returned by value cost more than the test), and the
+// coldest is computed only where the warmest is not shown.
 //
 // At each temperature T the chosen σ lies between σ_lo = (lo − p_v)/q and
 // σ_hi = (hi − p_v)/q, the static pressures lo and hi the facility can hold
@@ -611,16 +620,15 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 // lower still, farther from it; and where σ at the warmest, σ_lo there, lies
 // above the band, every colder σ lies higher: that end is strictly the best on
 // the first level, whatever the later levels.
-func (sv *solver) cavEnd(g *waterGrid, top *candidate, coldAt func() *candidate) *candidate {
-	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
-	lo, hi, _ := sv.cavPressures()
-	if top.ok && top.sig > sf+tol && g.falls(lo) {
-		return top
-	}
-	if cold := coldAt(); cold.ok && cold.sig < sf-tol && g.falls(hi) {
-		return cold
-	}
-	return nil
+func (sv *solver) cavEndTop(g *waterGrid, top *candidate) bool {
+	lo, _, _ := sv.cavPressures()
+	return top.ok && top.sig > sv.fl.Marine.Cavitation+sv.obj.cavTol && g.falls(lo)
+}
+
+// cavEndCold is cavEnd's test of the coldest water (cavEndTop).
+func (sv *solver) cavEndCold(g *waterGrid, cold *candidate) bool {
+	_, hi, _ := sv.cavPressures()
+	return cold.ok && cold.sig < sv.fl.Marine.Cavitation-sv.obj.cavTol && g.falls(hi)
 }
 
 // cavEndWeighted is cavEnd for a weighted objective: the candidate at the

@@ -72,3 +72,25 @@ func TestVesselShortcutsMatch(t *testing.T) {
 	require.Greater(t, below, searches/50, "too few searches the load limit rules out")
 	require.Greater(t, inside, searches/50, "too few searches the load limit narrows")
 }
+
+// TestVesselSearchAllocatesNothing checks that a vessel's cavitation search
+// keeps its candidates on the stack (regression value: a pointer to the
+// coldest water's candidate returned through a function value moved it to
+// the heap, one allocation a search, 86 more a Tarn A2 plan): atTarget on
+// random vessels and tunnels, with the vessel's priority and a weighted
+// objective, allocates nothing once its grids exist.
+func TestVesselSearchAllocatesNothing(t *testing.T) {
+	rng := rand.New(rand.NewSource(43))
+	for i := 0; i < 40; i++ {
+		f, art, fl := randomVessel(t, rng, i)
+		for _, obj := range []Objective{{}, {Weights: map[string]float64{"reynolds": 1, "cavitation": 4}}} {
+			sv, err := newSolver(&Problem{Flight: fl, Article: art, Facility: f, Objective: obj})
+			require.NoError(t, err)
+			u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*rng.Float64()
+			s := sv.sLo * math.Pow(sv.sHi/sv.sLo, rng.Float64())
+			c := sv.prepare(u)
+			allocs := testing.AllocsPerRun(20, func() { sv.atTarget(&c, s, fl.Reynolds/(s*sv.L)) })
+			require.Zero(t, allocs, "case %d, %+v, %g m/s, scale %g: allocations a search", i, obj, u, s)
+		}
+	}
+}
