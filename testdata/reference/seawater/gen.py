@@ -17,7 +17,7 @@ equation, region 4) from python3-iapws, every 1 degC from 1 to 40 degC:
   /usr/bin/python3 gen.py          rewrite both files next to this script
   /usr/bin/python3 gen.py --check  regenerate into a temporary directory and compare with
                                    the committed files; exit 1 when a number differs by
-                                   more than 1e-12 relative or the rows differ
+                                   more than 1e-11 relative or the rows differ
 """
 import os
 import platform
@@ -30,7 +30,11 @@ from iapws.iapws97 import _PSat_T
 HERE = os.path.dirname(os.path.abspath(__file__))
 sys.path.insert(0, os.path.dirname(HERE))
 import fixturecheck  # noqa: E402  (testdata/reference/fixturecheck.py)
-REL_TOL = 1e-12
+# The figures are printed to 12 significant digits, so where the library's last
+# bits differ between CPUs (its libm) a printed last digit can flip: one unit in
+# the 12th significant digit is between 1e-12 and 1e-11 relative. The drift check
+# allows that one unit and nothing more.
+REL_TOL = 1e-11
 SALINITIES = (10, 20, 30, 35, 40)
 
 

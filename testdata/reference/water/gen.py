@@ -10,7 +10,7 @@ liquid water at 0.101325 MPa, every 0.5 degC from 1 to 80 degC, from python3-iap
   /usr/bin/python3 gen.py          rewrite water.csv next to this script
   /usr/bin/python3 gen.py --check  regenerate into a temporary file and compare with the
                                    committed one; exit 1 when a number differs by more
-                                   than 1e-12 relative or the rows differ
+                                   than 1e-11 relative or the rows differ
 """
 import os
 import platform
@@ -23,7 +23,11 @@ import iapws
 HERE = os.path.dirname(os.path.abspath(__file__))
 NAME = "water.csv"
 PRESSURE_MPA = 0.101325
-REL_TOL = 1e-12
+# The figures are printed to 12 significant digits, so where the library's last
+# bits differ between CPUs (its libm) a printed last digit can flip: one unit in
+# the 12th significant digit is between 1e-12 and 1e-11 relative. The drift check
+# allows that one unit and nothing more.
+REL_TOL = 1e-11
 
 
 def debian_version():
