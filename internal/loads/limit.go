@@ -416,52 +416,65 @@ func (br *balanceRows) prune(cd []float64, drop bool) {
 		*buf = make([]float64, 3*n)
 	}
 	inv := (*buf)[:3*n]
-	clear(inv)
 	pr := pruner{f: br.force, m: br.moment, inv: inv}
 	for k := range n {
 		if up, down := br.up[k], br.down[k]; up > 0 && down > 0 {
-			pr.inv[3*k], pr.inv[3*k+1], pr.inv[3*k+2] = 1/up, 1/down, 1/min(up, down)
+			// 1/min(up, down) is the reciprocal of one of the two, the
+			// same division: it is taken, not computed again.
+			iu, id := 1/up, 1/down
+			im := id
+			if up <= down {
+				im = iu
+			}
+			inv[3*k], inv[3*k+1], inv[3*k+2] = iu, id, im
+		} else {
+			inv[3*k], inv[3*k+1], inv[3*k+2] = 0, 0, 0
 		}
 	}
-	usable := func(k int) bool { return pr.inv[3*k] > 0 }
-	// The candidates: the element with the largest g at each sample t and the one
-	// with the steepest rise in t, among the usable ones.
-	var cands [len(pruneSamples) + 1]int
-	nc := 0
-	add := func(k int) {
-		if k < 0 || slices.Contains(cands[:nc], k) {
-			return
+	// The candidates: the usable element with the largest g at each sample t and
+	// the one with the steepest rise in t (the first such in element order), all
+	// found in one pass over the elements.
+	var bestAt [len(pruneSamples) + 1]int
+	var bgAt [len(pruneSamples) + 1]float64
+	for s := range bestAt {
+		bestAt[s] = -1
+	}
+	for k := range n {
+		if !(inv[3*k] > 0) {
+			continue // not usable
 		}
-		cands[nc] = k
+		for s, t := range pruneSamples {
+			if g := pr.g(k, t); g > bgAt[s] {
+				bestAt[s], bgAt[s] = k, g
+			}
+		}
+		if sl := pr.slope(k); sl > bgAt[len(pruneSamples)] {
+			bestAt[len(pruneSamples)], bgAt[len(pruneSamples)] = k, sl
+		}
+	}
+	var cands [len(pruneSamples) + 1]pruneCand
+	nc := 0
+	for _, d := range bestAt {
+		if d < 0 || slices.ContainsFunc(cands[:nc], func(c pruneCand) bool { return c.d == d }) {
+			continue
+		}
+		cands[nc] = pr.cand(d, d/br.rows)
 		nc++
 	}
-	for _, t := range pruneSamples {
-		best, bg := -1, 0.0
-		for k := range n {
-			if g := pr.g(k, t); usable(k) && g > bg {
-				best, bg = k, g
+	for i := range n / br.rows {
+		for k := i * br.rows; k < (i+1)*br.rows; k++ {
+			dropped := false
+			if inv[3*k] > 0 {
+				for c := range cands[:nc] {
+					if d := &cands[c]; d.d != k && (i == d.j || (cd[d.j] >= cd[i] && cd[i] >= 0)) && pr.dominates(d, k) {
+						dropped = true
+						break
+					}
+				}
 			}
-		}
-		add(best)
-	}
-	best, bs := -1, 0.0
-	for k := range n {
-		if sl := pr.slope(k); usable(k) && sl > bs {
-			best, bs = k, sl
-		}
-	}
-	add(best)
-	for k := range n {
-		i := k / br.rows
-		dropped := false
-		for _, d := range cands[:nc] {
-			if j := d / br.rows; d != k && usable(k) && (i == j || (cd[j] >= cd[i] && cd[i] >= 0)) && pr.dominates(d, k) {
-				dropped = true
-				break
+			if !dropped {
+				ks = append(ks, int32(k))
 			}
-		}
-		if !dropped {
-			ks = append(ks, int32(k))
 		}
 	}
 	*kbuf = ks
@@ -525,37 +538,64 @@ func (p *pruner) slope(k int) float64 {
 	return 0
 }
 
-// gap returns g_d − g_k − pruneMargin·(h_d + h_k) at t.
-func (p *pruner) gap(d, k int, t float64) float64 {
-	return p.g(d, t) - p.g(k, t) - pruneMargin*(p.h(d, t)+p.h(k, t))
+// pruneCand is a candidate element d of prune with the figures dominates
+// reads of it for every element k, computed once: they are the same numbers,
+// computed with the same arithmetic, as computed afresh for each k.
+type pruneCand struct {
+	d, j   int     // the element and its point
+	f, m   float64 // F_d and M_d
+	g0, h0 float64 // g_d(0) and h_d(0)
+	slope  float64 // slope(d)
+	hm     float64 // |M_d|/min(up, down)
+	// kink is set when d's F + t·M changes sign at some t > 0: at that t,
+	// gk and hk are g_d(t) and h_d(t).
+	kink       bool
+	tk, gk, hk float64
 }
 
-// dominates reports whether element d's g exceeds element k's by more than
-// pruneMargin·(h_d + h_k) at every t > 0.
-func (p *pruner) dominates(d, k int) bool {
+// cand returns candidate d (of point j) with its figures.
+func (p *pruner) cand(d, j int) pruneCand {
+	c := pruneCand{d: d, j: j, f: p.f[d], m: p.m[d], g0: p.g(d, 0), h0: p.h(d, 0), slope: p.slope(d),
+		hm: math.Abs(p.m[d]) * p.inv[3*d+2]}
+	if c.m != 0 {
+		if t := -c.f / c.m; t > 0 {
+			c.kink, c.tk, c.gk, c.hk = true, t, p.g(d, t), p.h(d, t)
+		}
+	}
+	return c
+}
+
+// dominates reports whether candidate d's g exceeds element k's by more than
+// pruneMargin·(h_d + h_k) at every t > 0: the gap g_d − g_k − pruneMargin·(h_d
+// + h_k) is checked at t = 0, at both elements' kinks and beyond the last.
+func (p *pruner) dominates(d *pruneCand, k int) bool {
 	// At t = 0 the gap must be positive, or exactly 0 because neither element has a
 	// part that does not grow with t (then the slope decides near 0).
-	g0 := p.gap(d, k, 0)
-	if !(g0 > 0) && !(p.f[d] == 0 && p.f[k] == 0) {
+	g0 := d.g0 - p.g(k, 0) - pruneMargin*(d.h0+p.h(k, 0))
+	if !(g0 > 0) && !(d.f == 0 && p.f[k] == 0) {
 		return false
 	}
 	// Beyond the last kink both sides are linear: the gap must not fall.
 	rise := 0.0
-	if p.m[d] != 0 || p.m[k] != 0 {
-		rise = p.slope(d) - p.slope(k) - pruneMargin*(math.Abs(p.m[d])*p.inv[3*d+2]+math.Abs(p.m[k])*p.inv[3*k+2])
+	if d.m != 0 || p.m[k] != 0 {
+		rise = d.slope - p.slope(k) - pruneMargin*(d.hm+math.Abs(p.m[k])*p.inv[3*k+2])
 		if !(rise >= 0) {
 			return false
 		}
 	}
 	kinked := false
-	for _, x := range [2]int{d, k} {
-		if f, m := p.f[x], p.m[x]; m != 0 {
-			if t := -f / m; t > 0 {
-				if !(p.gap(d, k, t) > 0) {
-					return false
-				}
-				kinked = true
+	if d.kink {
+		if t := d.tk; !(d.gk-p.g(k, t)-pruneMargin*(d.hk+p.h(k, t)) > 0) {
+			return false
+		}
+		kinked = true
+	}
+	if f, m := p.f[k], p.m[k]; m != 0 {
+		if t := -f / m; t > 0 {
+			if !(p.g(d.d, t)-p.g(k, t)-pruneMargin*(p.h(d.d, t)+p.h(k, t)) > 0) {
+				return false
 			}
+			kinked = true
 		}
 	}
 	// Without a kink the gap is linear from t = 0: it must start positive or rise.
