@@ -198,13 +198,14 @@ func planID(kind string, req any, f *facilities.Facility) (string, error) {
 // (ConfigStd, as encodePlan), in about half the time of encoding/json's
 // reflection for a plan request (BenchmarkPlanID). As in encodePlan, a value
 // holding a negative zero (which sonic writes in an omitempty field where
-// encoding/json omits it) and a value sonic refuses (a NaN or an infinity) are
+// encoding/json omits it) or a backspace or form feed in a string
+// (sonicMayDiffer), and a value sonic refuses (a NaN or an infinity), are
 // encoded by encoding/json itself, so that such a request keeps its id and
 // gets encoding/json's error. TestIDJSONAgrees and FuzzIDJSON hold the two
 // encodings equal.
 func idJSON(v any) ([]byte, error) {
 	b, err := sonic.ConfigStd.Marshal(v)
-	if err != nil || hasNegativeZero(b) {
+	if err != nil || sonicMayDiffer(b) {
 		return json.Marshal(v)
 	}
 	return b, nil
@@ -556,15 +557,16 @@ func (p *Planner) planJSON(ctx context.Context, req *schema.PlanRequest) (planne
 // sonic's encoding/json-compatible configuration (github.com/bytedance/sonic,
 // ConfigStd; on platforms sonic does not compile for, that is encoding/json
 // itself). BenchmarkEncodePlan measures it against encoding/json and
-// goccy/go-json (docs/performance.md). One difference is known and caught: a
+// goccy/go-json (docs/performance.md). Two differences are known and caught: a
 // negative zero in an omitempty field, which encoding/json omits as zero and
-// sonic writes; an answer holding a negative zero anywhere is encoded again by
-// encoding/json (TestSonicFloatsAgree). A non-finite number, which the encoding
+// sonic writes, and a backspace or form feed in a string (sonicMayDiffer); an
+// answer holding either anywhere is encoded again by encoding/json
+// (TestSonicFloatsAgree). A non-finite number, which the encoding
 // refuses, is answered as CheckFinite answers it: naming the number and the
 // input behind it.
 func encodePlan(resp *schema.PlanResponse) ([]byte, error) {
 	b, err := sonic.ConfigStd.Marshal(resp)
-	if err == nil && hasNegativeZero(b) {
+	if err == nil && sonicMayDiffer(b) {
 		b, err = json.Marshal(resp)
 	}
 	if err != nil {
@@ -574,6 +576,17 @@ func encodePlan(resp *schema.PlanResponse) ([]byte, error) {
 	}
 	return b, err
 }
+
+// sonicMayDiffer reports whether sonic's encoding b may differ from
+// encoding/json's: where it holds the number -0 (hasNegativeZero), or a
+// backspace or form feed, which sonic writes as \u0008 and \u000c and
+// encoding/json (since Go 1.22) as \b and \f (or, rarely, the same six
+// characters after an escaped backslash, which costs only a second encoding).
+func sonicMayDiffer(b []byte) bool {
+	return hasNegativeZero(b) || bytes.Contains(b, escBackspace) || bytes.Contains(b, escFormFeed)
+}
+
+var escBackspace, escFormFeed = []byte(`\u0008`), []byte(`\u000c`)
 
 // hasNegativeZero reports whether the JSON b holds the number -0 (or, rarely,
 // the same three characters inside a string, which costs only a second

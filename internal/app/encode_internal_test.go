@@ -62,7 +62,8 @@ func TestEncodePlanNamesNonFinite(t *testing.T) {
 // often differ: the switch between plain and exponent notation at 1e-6 and
 // 1e21 (encoding/json's rule), the shortest round-trip digits, negative zero,
 // the smallest and largest doubles, and strings with HTML characters, U+2028,
-// U+2029, control characters and invalid UTF-8.
+// U+2029, control characters (a backspace and a form feed among them, which
+// encoding/json writes as \b and \f since Go 1.22) and invalid UTF-8.
 func TestSonicFloatsAgree(t *testing.T) {
 	t.Parallel()
 	body, err := os.ReadFile("../../examples/orrin-j16-tsw-1.json")
@@ -81,7 +82,7 @@ func TestSonicFloatsAgree(t *testing.T) {
 		r := *resp
 		r.Flight.Mach = x            // omitempty
 		r.Flight.Static.Pressure = x // not omitempty
-		r.Warnings = []string{"<a href=\"x\">&amp;</a>", "line\u2028sep\u2029para", "ctl\x00\x01\x1f\t\n\r\\", "bad \xff\xfe utf-8", "ünïcödé ✓"}
+		r.Warnings = []string{"<a href=\"x\">&amp;</a>", "line\u2028sep\u2029para", "ctl\x00\x01\x1f\t\n\r\\", "backspace \b form feed \f", "escaped \\u000c", "bad \xff\xfe utf-8", "ünïcödé ✓"}
 		want, err := json.Marshal(&r)
 		require.NoError(t, err)
 		got, err := encodePlan(&r)

@@ -131,9 +131,11 @@ var idJSONFuzzFloats = []float64{0, math.Copysign(0, -1), 1e-6, 9.99999999999999
 	-0.0050000000000000044, 123e-20, math.NaN(), math.Inf(1), math.Inf(-1)}
 
 // idJSONFuzzStrings are strings with HTML characters, U+2028 and U+2029,
-// control characters, invalid UTF-8 and other unicode.
+// control characters (a backspace and a form feed: FuzzIDJSON found sonic
+// writing \u000c where encoding/json writes \f), invalid UTF-8 and other
+// unicode.
 var idJSONFuzzStrings = []string{"", "int-b1", "<a href=\"x\">&amp;</a>", "line\u2028sep\u2029para",
-	"ctl\x00\x01\x1f\t\n\r\\", "bad \xff\xfe utf-8", "ünïcödé ✓ 𝄞", "\"quoted\" and /slash/"}
+	"ctl\x00\x01\x1f\t\n\r\\", "\b\f", "\\u000c", "bad \xff\xfe utf-8", "ünïcödé ✓ 𝄞", "\"quoted\" and /slash/"}
 
 // idJSONCase sets the fuzzed numbers and strings into the load tool's request:
 // a number in a pointer field, in omitempty fields, in fields always written,
