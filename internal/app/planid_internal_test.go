@@ -90,7 +90,7 @@ func repoPlanRequests(t *testing.T) map[string]*schema.PlanRequest {
 	return reqs
 }
 
-// TestIDJSONAgrees requires idJSON (sonic's ConfigStd) to write encoding/json's
+// TestIDJSONAgrees requires appendIDJSON (sonic) to write encoding/json's
 // bytes for every plan request the repository ships and their variants, and
 // for every demo facility given inline; and planID to give the id planIDBefore
 // gives, the id stored plans have (the golden answers carry it as well).
@@ -99,7 +99,7 @@ func TestIDJSONAgrees(t *testing.T) {
 	for name, req := range repoPlanRequests(t) {
 		want, err := json.Marshal(req)
 		require.NoError(t, err, name)
-		got, err := idJSON(req)
+		got, err := appendIDJSON(nil, req)
 		require.NoError(t, err, name)
 		require.Equal(t, string(want), string(got), name)
 		var p Planner
@@ -115,7 +115,7 @@ func TestIDJSONAgrees(t *testing.T) {
 		f.Version = 0
 		want, err := json.Marshal(&f)
 		require.NoError(t, err, f.ID)
-		got, err := idJSON(&f)
+		got, err := appendIDJSON(nil, &f)
 		require.NoError(t, err, f.ID)
 		require.Equal(t, string(want), string(got), f.ID)
 	}
@@ -156,12 +156,12 @@ func idJSONCase(base schema.PlanRequest, x, y, z float64, key, label string) *sc
 	return &req
 }
 
-// requireIDJSONAgrees requires idJSON to write json.Marshal's bytes for req, or
+// requireIDJSONAgrees requires appendIDJSON to write json.Marshal's bytes for req, or
 // to fail with its error.
 func requireIDJSONAgrees(t *testing.T, req *schema.PlanRequest) {
 	t.Helper()
 	want, werr := json.Marshal(req)
-	got, gerr := idJSON(req)
+	got, gerr := appendIDJSON(nil, req)
 	if werr != nil {
 		require.EqualError(t, gerr, werr.Error())
 		return
@@ -185,7 +185,7 @@ func TestIDJSONSeeds(t *testing.T) {
 	}
 }
 
-// FuzzIDJSON compares idJSON with encoding/json on random numbers and strings
+// FuzzIDJSON compares appendIDJSON with encoding/json on random numbers and strings
 // set into the load tool's request (idJSONCase):
 //
 //	go test ./internal/app/ -run X -fuzz FuzzIDJSON -fuzztime 60s
@@ -214,20 +214,21 @@ func loadToolRequest(tb testing.TB) *schema.PlanRequest {
 }
 
 // BenchmarkPlanID times the plan id of the load tool's request: planID (the
-// request by idJSON) against planIDBefore (encoding/json's Encoder into the
+// request by appendIDJSON) against planIDBefore (encoding/json's Encoder into the
 // hash), and the two encodings alone.
 func BenchmarkPlanID(b *testing.B) {
 	req := loadToolRequest(b)
 	var p Planner
 	f, err := p.facility(context.Background(), req.Facility, req.FacilityID, nil)
 	require.NoError(b, err)
+	buf := make([]byte, 0, 2048)
 	for _, c := range []struct {
 		name string
 		fn   func() error
 	}{
 		{"planID", func() error { _, err := planID("plan", req, f); return err }},
 		{"before", func() error { _, err := planIDBefore("plan", req, f); return err }},
-		{"idJSON", func() error { _, err := idJSON(req); return err }},
+		{"appendIDJSON", func() error { _, err := appendIDJSON(buf[:0], req); return err }},
 		{"json.Marshal", func() error { _, err := json.Marshal(req); return err }},
 	} {
 		b.Run(c.name, func(b *testing.B) {
