@@ -196,8 +196,9 @@ func planID(kind string, req any, f *facilities.Facility) (string, error) {
 	return hex.EncodeToString(h.Sum(sum[:0])[:10]), nil
 }
 
-// idScratch holds planID's buffers for the encoded request (*[]byte).
-var idScratch = sync.Pool{New: func() any { b := make([]byte, 0, 2048); return &b }}
+// idScratch holds planID's buffers for the encoded request (*[]byte; 1 kB
+// holds the load tool's request, 0.7 kB).
+var idScratch = sync.Pool{New: func() any { b := make([]byte, 0, 1024); return &b }}
 
 // idOptions are sonic's options of appendIDJSON: ConfigStd's (encoding/json's
 // map key order, compacted Marshaler output, invalid UTF-8 replaced by
