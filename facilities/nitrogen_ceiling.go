@@ -11,6 +11,9 @@ type FloorSlopes struct {
 	// Q is the free stream's dynamic pressure in Pa, QP its derivative in p0
 	// (Pa/Pa) and QT in T0 (Pa/K).
 	Q, QP, QT float64
+	// QM is the free stream's dynamic pressure's derivative in the test Mach
+	// number at fixed p0 and T0 (Pa).
+	QM float64
 	// M is LocalCondensationMargin, MP its derivative in p0 (1/Pa) and MT in
 	// T0 (1/K).
 	M, MP, MT float64
@@ -74,6 +77,8 @@ func (fs *FloorSlopes) StagnationNearLocal(p0, t0 float64) Stagnation {
 // (p0, T0) and its derivatives in p0 (…P) and T0 (…T).
 type staticSlopes struct {
 	T, rho, TP, rhoP, TT, rhoT float64
+	// TM and rhoM are the derivatives in the Mach number.
+	TM, rhoM float64
 }
 
 // start returns the start of the next expansion from (p0, t0): the state of s
@@ -96,7 +101,9 @@ func (s *staticSlopes) start(dp, dt float64) (T, rho float64, ok bool) {
 // the stagnation density moves with p0 as 1/(∂p/∂ρ)_T and with T0 as
 // −(∂p/∂T)_ρ/(∂p/∂ρ)_T, the entropy and enthalpy with it, and the static
 // (T, ρ) as the Jacobian of the expansion's equations solved for that change;
-// q = ½·M²·ρ·a². When prev holds the figures of a nearby stagnation state,
+// q = ½·M²·ρ·a². q's derivative in the Mach number (QM) follows the same way
+// from the energy equation's ½M²a² (the trade curve's prediction of its next
+// q-ceiling root uses it). When prev holds the figures of a nearby stagnation state,
 // each expansion starts from prev's static state carried to (p0, t0) to first
 // order, which saves Newton steps; the figures are the same to the expansion's
 // convergence (about 1e-16 relative) either way, not to the bit.
@@ -145,6 +152,11 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 		ss.rhoP = (j11*dhP - j21*dsP) / det
 		ss.TT = (dsT*j22 - dhT*j12) / det
 		ss.rhoT = (j11*dhT - j21*dsT) / det
+		// In the Mach number at fixed (s0, h0): the energy equation's
+		// ½M²a² moves by M·a².
+		ma2 := m * n.a2
+		ss.TM = ma2 * j12 / det
+		ss.rhoM = -j11 * ma2 / det
 		return ss, n, true
 	}
 	var lastFree, lastLocal *staticSlopes
@@ -167,6 +179,7 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 	}
 	out.Q = hm2 * free.rho * nf.a2
 	out.QP, out.QT = dq(free.TP, free.rhoP), dq(free.TT, free.rhoT)
+	out.QM = 2*out.Q/mach + dq(free.TM, free.rhoM)
 	// m = T/T_sat(p) − 1, dT_sat/dp = T_sat²/(B·p) below the critical pressure.
 	tsat, below := f.Medium.SaturationTemperature(nl.p)
 	dm := func(dT, dr float64) float64 {

@@ -178,7 +178,8 @@ func TestLocalCondensationMarginSlope(t *testing.T) {
 // TestNitrogenFloorSlopes: NitrogenFloorSlopes gives the free stream's q as
 // State gives it and the local margin as LocalCondensationMargin gives it
 // (within 1e-14: q = ½·M²·ρ·a² against ½·ρ·V², rounded otherwise), and their
-// derivatives in p0 and T0 match central differences of those within 1e-6
+// derivatives in p0 and T0 (and q's in the Mach number) match central
+// differences of those within 1e-6
 // (dq/dT0, which is small, within 1e-7 of q/T0),
 // over the cryogenic tunnel range; started from a nearby stagnation state's
 // figures (prev), the same within 1e-13. An ideal gas gives none (OK false).
@@ -204,6 +205,8 @@ func TestNitrogenFloorSlopes(t *testing.T) {
 				assert.InDelta(t, (q(m, p0, t0+ht)-q(m, p0, t0-ht))/(2*ht), s.QT, 1e-7*s.Q/t0, "dq/dT0")
 				assert.InEpsilon(t, (f.LocalCondensationMargin(p0+hp, t0)-f.LocalCondensationMargin(p0-hp, t0))/(2*hp), s.MP, 1e-6, "dm/dp0")
 				assert.InEpsilon(t, (f.LocalCondensationMargin(p0, t0+ht)-f.LocalCondensationMargin(p0, t0-ht))/(2*ht), s.MT, 1e-6, "dm/dT0")
+				hm := 1e-4 * m
+				assert.InEpsilon(t, (q(m+hm, p0, t0)-q(m-hm, p0, t0))/(2*hm), s.QM, 1e-6, "dq/dM")
 				near := f.NitrogenFloorSlopes(p0*1.003, t0*0.998, m, nil)
 				w := f.NitrogenFloorSlopes(p0, t0, m, &near)
 				require.True(t, w.OK)

@@ -76,7 +76,7 @@ func (sv *solver) tradePoint(u, s float64) TradePoint {
 		// The q-ceiling roots kept for topPartial, which only a real-gas
 		// nitrogen set-up asks (prepareNitrogen).
 		if t := sv.top(&c); c.ok && t.cap == facilities.ConstraintDynamic && !t.edge && !t.fail {
-			sv.ceilHist.add(u, sv.qmax, t.p, t.t)
+			sv.ceilHist.add(u, sv.qmax, t.p, t.t, sv.joints.at(sv, u, sv.qmax, t.p))
 		}
 	}
 	x := sv.atTarget(&c, s, math.Inf(1))
@@ -202,14 +202,32 @@ func (sv *solver) topPartial(c *machSetup) (topSetting, bool) {
 }
 
 // ceilingHistory is the trade curve's last q-ceiling roots (p0, T0), at
-// rising Mach numbers: p0 as y = ln p0 less the logarithm of the p0 at which
-// an ideal gas (γ = 1.4) has the ceiling's q at that Mach number, a slowly
-// varying remainder (the real gas, the T0 floor), and T0 as ln T0, which
-// predict extrapolates.
+// rising Mach numbers, from which predict extrapolates the next. p0 is kept
+// as y = ln p0 less the logarithm of the p0 at which an ideal gas (γ = 1.4)
+// has the ceiling's q at that Mach number, a slowly varying remainder (the
+// real gas, the T0 floor), with its derivative in the Mach number where the
+// root's joint step is known (jointMemo: from its Jacobian and q's
+// derivative in the Mach number, by the implicit function theorem; NaN
+// elsewhere). T0 is kept as ln T0 against ln p0 with the condensation
+// line's slope there (−MP/MT): on the q ceiling the point lies on the line,
+// which does not depend on the Mach number, so T0 is a function of p0.
 type ceilingHistory struct {
-	n       int
-	m, y, z [3]float64
+	n int
+	// m the Mach numbers, y and yd the remainder and its derivative in m;
+	// lp, lt and lts ln p0, ln T0 and d ln T0 / d ln p0 along the line.
+	m, y, yd, lp, lt, lts [ceilingNodes]float64
 }
+
+// ceilingNodes is how many roots a ceilingHistory keeps. With four, at the
+// trade curve's spacing (Mach 0.018), the prediction lies 1e-11 to 1e-8
+// relative from the root in the cn2-05 plans' curves (the parabola through
+// three roots' ln T0 before: 1e-7 to 1e-5), within the joint step's stop
+// (1e-8), so that the step converges in one iteration instead of two; 1e-7
+// where the roots before lack derivatives (a scan's set-up whose joint point
+// is no longer kept), and up to 3e-8 where the derivatives come from an
+// iteration up to 1e-8 from its root (TestCeilingHistoryPredicts). With
+// three, 1e-10 to 1e-7.
+const ceilingNodes = 4
 
 // idealCeilingLog returns ln p0 at which an ideal gas with γ = 1.4 has the
 // dynamic pressure qc at Mach number m: q = 0.7·p0·M²·(1 + 0.2·M²)^−3.5.
@@ -217,43 +235,114 @@ func idealCeilingLog(m, qc float64) float64 {
 	return math.Log(qc/(0.7*m*m)) + 3.5*math.Log1p(0.2*m*m)
 }
 
+// idealCeilingLogSlope is idealCeilingLog's derivative in m.
+func idealCeilingLogSlope(m float64) float64 {
+	return -2/m + 1.4*m/(1+0.2*m*m)
+}
+
 // reset empties h.
 func (h *ceilingHistory) reset() { *h = ceilingHistory{} }
 
 // add keeps the q-ceiling root (p0, t0) at Mach number m (ceiling qc), the
-// oldest of three dropped.
-func (h *ceilingHistory) add(m, qc, p0, t0 float64) {
+// oldest of ceilingNodes dropped; j is the joint step's point found there
+// (its figures give the derivatives), or nil.
+func (h *ceilingHistory) add(m, qc, p0, t0 float64, j *jointMemo) {
 	if h.n > 0 && !(m > h.m[h.n-1]) {
 		h.reset()
 	}
 	if h.n == len(h.m) {
 		copy(h.m[:], h.m[1:])
 		copy(h.y[:], h.y[1:])
-		copy(h.z[:], h.z[1:])
+		copy(h.yd[:], h.yd[1:])
+		copy(h.lp[:], h.lp[1:])
+		copy(h.lt[:], h.lt[1:])
+		copy(h.lts[:], h.lts[1:])
 		h.n--
 	}
-	h.m[h.n], h.y[h.n], h.z[h.n] = m, math.Log(p0)-idealCeilingLog(m, qc), math.Log(t0)
+	k := h.n
+	h.m[k], h.y[k], h.lp[k], h.lt[k] = m, math.Log(p0)-idealCeilingLog(m, qc), math.Log(p0), math.Log(t0)
+	h.yd[k], h.lts[k] = math.NaN(), math.NaN()
+	if j != nil && j.fs.OK {
+		fs := &j.fs
+		// On the root: QP·dp + QT·dT = −QM·dM and MP·dp + MT·dT = 0.
+		dp := -fs.QM * fs.MT / (fs.QP*fs.MT - fs.QT*fs.MP)
+		if yd := dp/j.p - idealCeilingLogSlope(m); !math.IsNaN(yd) && !math.IsInf(yd, 0) {
+			h.yd[k] = yd
+		}
+		if s := -fs.MP / fs.MT * j.p / j.t; !math.IsNaN(s) && !math.IsInf(s, 0) {
+			h.lts[k] = s
+		}
+	}
 	h.n++
 }
 
 // predict returns the q-ceiling root (p0, t0) at Mach number m beyond the
-// roots kept, extrapolated through the last three (a parabola) or two (a
-// line); ok false with fewer.
+// roots kept: y extrapolated in m, then ln T0 in ln p0, each by the Hermite
+// polynomial through the roots kept (their values, and their derivatives
+// where known); ok false with fewer than two.
 func (h *ceilingHistory) predict(m, qc float64) (p0, t0 float64, ok bool) {
 	if h.n < 2 || !(m > h.m[h.n-1]) {
 		return 0, 0, false
 	}
-	var y, z float64
-	for i := range h.n {
-		l := 1.0
-		for j := range h.n {
-			if j != i {
-				l *= (m - h.m[j]) / (h.m[i] - h.m[j])
-			}
-		}
-		y += l * h.y[i]
-		z += l * h.z[i]
+	y, ok := hermiteAt(h.m[:h.n], h.y[:h.n], h.yd[:h.n], m)
+	if !ok {
+		return 0, 0, false
 	}
-	p0, t0 = math.Exp(y+idealCeilingLog(m, qc)), math.Exp(z)
+	lp := y + idealCeilingLog(m, qc)
+	z, ok := hermiteAt(h.lp[:h.n], h.lt[:h.n], h.lts[:h.n], lp)
+	if !ok {
+		return 0, 0, false
+	}
+	p0, t0 = math.Exp(lp), math.Exp(z)
 	return p0, t0, p0 > 0 && t0 > 0 && !math.IsInf(p0, 0) && !math.IsInf(t0, 0)
+}
+
+// hermiteAt returns at x the Hermite interpolating polynomial through the
+// nodes xs with values fs and, where ds is not NaN, derivatives ds, by
+// Newton's divided differences with each node that has a derivative taken
+// twice (Burden & Faires, Numerical Analysis, §3.4); ok false when two nodes
+// coincide or the result is not finite. At most ceilingNodes nodes.
+func hermiteAt(xs, fs, ds []float64, x float64) (float64, bool) {
+	var z, c [2 * ceilingNodes]float64
+	n := 0
+	for i := range xs {
+		z[n], c[n] = xs[i], fs[i]
+		n++
+		if !math.IsNaN(ds[i]) {
+			z[n], c[n] = xs[i], fs[i]
+			n++
+		}
+	}
+	// The first differences: a node's derivative where it is taken twice.
+	for i := n - 1; i >= 1; i-- {
+		if z[i] == z[i-1] {
+			c[i] = derivativeAt(xs, ds, z[i])
+		} else {
+			c[i] = (c[i] - c[i-1]) / (z[i] - z[i-1])
+		}
+	}
+	for k := 2; k < n; k++ {
+		for i := n - 1; i >= k; i-- {
+			d := z[i] - z[i-k]
+			if d == 0 {
+				return 0, false
+			}
+			c[i] = (c[i] - c[i-1]) / d
+		}
+	}
+	r := c[n-1]
+	for i := n - 2; i >= 0; i-- {
+		r = r*(x-z[i]) + c[i]
+	}
+	return r, !math.IsNaN(r) && !math.IsInf(r, 0)
+}
+
+// derivativeAt returns ds at the node xs equal to x.
+func derivativeAt(xs, ds []float64, x float64) float64 {
+	for i := range xs {
+		if xs[i] == x {
+			return ds[i]
+		}
+	}
+	return math.NaN()
 }

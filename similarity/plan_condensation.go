@@ -325,6 +325,19 @@ func (js *jointMemos) near(sv *solver, m, qc float64) *jointMemo {
 	return best
 }
 
+// at returns the point kept at Mach number m exactly, for the ceiling qc and
+// sv's condensation limit and line, whose p0 is p within 1e-12 relative (the
+// root a set-up's top setting holds); nil for none.
+func (js *jointMemos) at(sv *solver, m, qc, p float64) *jointMemo {
+	for i := range js.e {
+		j := &js.e[i]
+		if j.ok && j.mach == m && j.cond == sv.cond && j.qc == qc && j.condMin == sv.condMin && math.Abs(j.p-p) <= 1e-12*p {
+			return j
+		}
+	}
+	return nil
+}
+
 // put keeps j in place of the oldest.
 func (js *jointMemos) put(j jointMemo) {
 	js.e[js.next] = j

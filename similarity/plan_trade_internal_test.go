@@ -245,3 +245,83 @@ func TestFeasibleUnderTop(t *testing.T) {
 	t.Logf("%d candidates", solved)
 	assert.Greater(t, solved, 300)
 }
+
+// TestCeilingHistoryPredicts: on cn2-05's q ceiling (70 kPa), the trade
+// curve's prediction of its next q-ceiling root (ceilingHistory.predict from
+// the last four roots, with the joint step's derivatives) lies within 5e-8
+// relative of the root in p0 and T0 at the curve's spacing (Mach 0.018; 3e-8
+// found; the parabola through the last three roots' ln T0 before was 1e-7 to
+// 1e-5 off), mostly within the joint step's stop (1e-8), so that the step
+// from it takes one iteration and the point's own state (2 evaluations) at
+// four of the six points (regression value; two iterations from farther),
+// and finds the root the step from the secant start finds within the roots'
+// 1e-13.
+func TestCeilingHistoryPredicts(t *testing.T) {
+	t.Parallel()
+	qc, newSv := cn2Solvers(t, true)
+	sv, cold := newSv(), newSv()
+	var h ceilingHistory
+	predicted, once := 0, 0
+	for k := range 10 {
+		m := 0.7 + 0.018*float64(k)
+		c := sv.prepareNitrogen(m)
+		require.True(t, c.ok, "Mach %g", m)
+		qa, qTop := sv.qcurve(&c, c.pa), sv.qcurve(&c, c.pTop)
+		p0, t0, ok := h.predict(m, qc)
+		require.Equal(t, k >= 2, ok, "Mach %g", m)
+		var p float64
+		if k >= ceilingNodes {
+			e0 := sv.evals
+			p, ok = sv.ceilingJointFrom(&c, qc, p0, t0, nil)
+			require.True(t, ok, "Mach %g", m)
+			if sv.evals-e0 == 2 {
+				once++ // one iteration and the point's own state
+			}
+			cold.joints = jointMemos{}
+			cc := cold.prepareNitrogen(m)
+			want, ok := cold.ceilingJoint(&cc, qc, cold.qcurve(&cc, cc.pa), cold.qcurve(&cc, cc.pTop))
+			require.True(t, ok, "Mach %g", m)
+			assert.InEpsilon(t, want, p, 1e-13, "Mach %g", m)
+			predicted++
+		} else {
+			p, ok = sv.ceilingJoint(&c, qc, qa, qTop)
+			require.True(t, ok, "Mach %g", m)
+		}
+		j := sv.joints.at(sv, m, qc, p)
+		require.NotNil(t, j, "Mach %g", m)
+		if k >= ceilingNodes {
+			assert.InDelta(t, 0, p0/j.p-1, 5e-8, "Mach %g: p0", m)
+			assert.InDelta(t, 0, t0/j.t-1, 5e-8, "Mach %g: T0", m)
+		}
+		h.add(m, qc, p, j.t, j)
+	}
+	assert.Equal(t, 6, predicted)
+	assert.GreaterOrEqual(t, once, 4, "points found in one iteration")
+}
+
+// TestHermiteAt: hermiteAt reproduces a polynomial of the degree its nodes
+// determine (one less than the values and derivatives given), here
+// x⁵ − 2x³ + x − 3 through three nodes with derivatives and the cubic
+// part through nodes with a derivative at one of them only (Burden & Faires,
+// Numerical Analysis, §3.4: the Hermite interpolant is unique), beyond the
+// nodes as well; two nodes at one x give ok false.
+func TestHermiteAt(t *testing.T) {
+	f := func(x float64) float64 { return x*x*x*x*x - 2*x*x*x + x - 3 }
+	d := func(x float64) float64 { return 5*x*x*x*x - 6*x*x + 1 }
+	xs := []float64{0.5, 0.8, 1.1}
+	fs := []float64{f(0.5), f(0.8), f(1.1)}
+	ds := []float64{d(0.5), d(0.8), d(1.1)}
+	for _, x := range []float64{0.6, 1.1, 1.3, 1.6} {
+		got, ok := hermiteAt(xs, fs, ds, x)
+		require.True(t, ok)
+		assert.InEpsilon(t, f(x), got, 1e-12, "x %g", x)
+	}
+	g := func(x float64) float64 { return 2*x*x*x - x*x + 4 }
+	gd := func(x float64) float64 { return 6*x*x - 2*x }
+	nan := math.NaN()
+	got, ok := hermiteAt([]float64{1, 2, 3}, []float64{g(1), g(2), g(3)}, []float64{nan, nan, gd(3)}, 3.7)
+	require.True(t, ok)
+	assert.InEpsilon(t, g(3.7), got, 1e-13)
+	_, ok = hermiteAt([]float64{1, 1}, []float64{1, 2}, []float64{nan, nan}, 2)
+	assert.False(t, ok)
+}
