@@ -77,8 +77,6 @@ func (fs *FloorSlopes) StagnationNearLocal(p0, t0 float64) Stagnation {
 // (p0, T0) and its derivatives in p0 (…P) and T0 (…T).
 type staticSlopes struct {
 	T, rho, TP, rhoP, TT, rhoT float64
-	// TM and rhoM are the derivatives in the Mach number.
-	TM, rhoM float64
 }
 
 // start returns the start of the next expansion from (p0, t0): the state of s
@@ -152,11 +150,6 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 		ss.rhoP = (j11*dhP - j21*dsP) / det
 		ss.TT = (dsT*j22 - dhT*j12) / det
 		ss.rhoT = (j11*dhT - j21*dsT) / det
-		// In the Mach number at fixed (s0, h0): the energy equation's
-		// ½M²a² moves by M·a².
-		ma2 := m * n.a2
-		ss.TM = ma2 * j12 / det
-		ss.rhoM = -j11 * ma2 / det
 		return ss, n, true
 	}
 	var lastFree, lastLocal *staticSlopes
@@ -179,7 +172,16 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 	}
 	out.Q = hm2 * free.rho * nf.a2
 	out.QP, out.QT = dq(free.TP, free.rhoP), dq(free.TT, free.rhoT)
-	out.QM = 2*out.Q/mach + dq(free.TM, free.rhoM)
+	// In the Mach number at fixed (s0, h0) the energy equation's ½M²a² moves
+	// by M·a²: the free stream's (T, ρ) by the expansion's Jacobian (as in
+	// expand) solved for that.
+	{
+		T, rho := free.T, free.rho
+		j11, j12 := nf.cv/T, -nf.pT/(rho*rho)
+		j21, j22 := nf.cv+nf.pT/rho+hm2*nf.a2T, (nf.pRho-T*nf.pT/rho)/rho+hm2*nf.a2Rho
+		ma2 := mach * nf.a2 / (j11*j22 - j12*j21)
+		out.QM = 2*out.Q/mach + dq(ma2*j12, -j11*ma2)
+	}
 	// m = T/T_sat(p) − 1, dT_sat/dp = T_sat²/(B·p) below the critical pressure.
 	tsat, below := f.Medium.SaturationTemperature(nl.p)
 	dm := func(dT, dr float64) float64 {

@@ -218,16 +218,16 @@ type ceilingHistory struct {
 	m, y, yd, lp, lt, lts [ceilingNodes]float64
 }
 
-// ceilingNodes is how many roots a ceilingHistory keeps. With four, at the
+// ceilingNodes is how many roots a ceilingHistory keeps. With three, at the
 // trade curve's spacing (Mach 0.018), the prediction lies 1e-11 to 1e-8
-// relative from the root in the cn2-05 plans' curves (the parabola through
-// three roots' ln T0 before: 1e-7 to 1e-5), within the joint step's stop
-// (1e-8), so that the step converges in one iteration instead of two; 1e-7
-// where the roots before lack derivatives (a scan's set-up whose joint point
-// is no longer kept), and up to 3e-8 where the derivatives come from an
-// iteration up to 1e-8 from its root (TestCeilingHistoryPredicts). With
-// three, 1e-10 to 1e-7.
-const ceilingNodes = 4
+// relative from the root in cn2-05's curves (TestCeilingHistoryPredicts; the
+// parabola through three roots' ln T0 before: 1e-7 to 1e-5), within the
+// joint step's stop (1e-8), so that the step converges in one iteration
+// instead of two; farther where the roots before lack derivatives (a scan's
+// set-up whose joint point is no longer kept). With two, 1e-8 to 1e-7;
+// with four no closer in the plans (the derivatives come from the last
+// iteration, up to 1e-8 from its root) at twice the arithmetic.
+const ceilingNodes = 3
 
 // idealCeilingLog returns ln p0 at which an ideal gas with γ = 1.4 has the
 // dynamic pressure qc at Mach number m: q = 0.7·p0·M²·(1 + 0.2·M²)^−3.5.
@@ -260,7 +260,8 @@ func (h *ceilingHistory) add(m, qc, p0, t0 float64, j *jointMemo) {
 		h.n--
 	}
 	k := h.n
-	h.m[k], h.y[k], h.lp[k], h.lt[k] = m, math.Log(p0)-idealCeilingLog(m, qc), math.Log(p0), math.Log(t0)
+	lp := math.Log(p0)
+	h.m[k], h.y[k], h.lp[k], h.lt[k] = m, lp-idealCeilingLog(m, qc), lp, math.Log(t0)
 	h.yd[k], h.lts[k] = math.NaN(), math.NaN()
 	if j != nil && j.fs.OK {
 		fs := &j.fs
@@ -301,33 +302,31 @@ func (h *ceilingHistory) predict(m, qc float64) (p0, t0 float64, ok bool) {
 // nodes xs with values fs and, where ds is not NaN, derivatives ds, by
 // Newton's divided differences with each node that has a derivative taken
 // twice (Burden & Faires, Numerical Analysis, §3.4); ok false when two nodes
-// coincide or the result is not finite. At most ceilingNodes nodes.
+// coincide or the result is not finite, or with more than ceilingNodes nodes.
 func hermiteAt(xs, fs, ds []float64, x float64) (float64, bool) {
-	var z, c [2 * ceilingNodes]float64
+	if len(xs) > ceilingNodes || len(fs) < len(xs) || len(ds) < len(xs) {
+		return 0, false
+	}
+	// z the nodes, each with a derivative twice; v their values; c the
+	// divided differences, first the first ones (a node's derivative
+	// between its two copies).
+	var z, v, c [2 * ceilingNodes]float64
 	n := 0
-	for i := range xs {
-		z[n], c[n] = xs[i], fs[i]
+	for i, xi := range xs {
+		z[n], v[n] = xi, fs[i]
+		if n > 0 {
+			c[n] = (v[n] - v[n-1]) / (xi - z[n-1])
+		}
 		n++
-		if !math.IsNaN(ds[i]) {
-			z[n], c[n] = xs[i], fs[i]
+		if d := ds[i]; d == d {
+			z[n], v[n], c[n] = xi, fs[i], d
 			n++
 		}
 	}
-	// The first differences: a node's derivative where it is taken twice.
-	for i := n - 1; i >= 1; i-- {
-		if z[i] == z[i-1] {
-			c[i] = derivativeAt(xs, ds, z[i])
-		} else {
-			c[i] = (c[i] - c[i-1]) / (z[i] - z[i-1])
-		}
-	}
+	c[0] = v[0]
 	for k := 2; k < n; k++ {
 		for i := n - 1; i >= k; i-- {
-			d := z[i] - z[i-k]
-			if d == 0 {
-				return 0, false
-			}
-			c[i] = (c[i] - c[i-1]) / d
+			c[i] = (c[i] - c[i-1]) / (z[i] - z[i-k])
 		}
 	}
 	r := c[n-1]
@@ -335,14 +334,4 @@ func hermiteAt(xs, fs, ds []float64, x float64) (float64, bool) {
 		r = r*(x-z[i]) + c[i]
 	}
 	return r, !math.IsNaN(r) && !math.IsInf(r, 0)
-}
-
-// derivativeAt returns ds at the node xs equal to x.
-func derivativeAt(xs, ds []float64, x float64) float64 {
-	for i := range xs {
-		if xs[i] == x {
-			return ds[i]
-		}
-	}
-	return math.NaN()
 }
