@@ -219,7 +219,7 @@ type ceilingHistory struct {
 }
 
 // ceilingNodes is how many roots a ceilingHistory keeps. With three, at the
-// trade curve's spacing (Mach 0.018), the prediction lies 1e-11 to 1e-8
+// trade curve's spacing (Mach 0.018), the prediction lies 1e-10 to 1e-8
 // relative from the root in cn2-05's curves (TestCeilingHistoryPredicts; the
 // parabola through three roots' ln T0 before: 1e-7 to 1e-5), within the
 // joint step's stop (1e-8), so that the step converges in one iteration
