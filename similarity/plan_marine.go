@@ -228,6 +228,94 @@ func cavGridT(ta, tb float64, i int) float64 {
 	return t
 }
 
+// cavEval is atWaterCav's evaluation of a candidate at one water
+// temperature, at a set-up's speed u and stagnation pressure pa and the scale
+// s. Its method at writes the candidate into its caller's (a grid's cell, the
+// search's ends), where a closure returning the 208-byte candidate copied it
+// out and again into place (about 150 instructions a candidate, some 200
+// candidates a vessel plan). The searches below atWaterCav (cavBand, cavEdge,
+// cavCrossing, cavTopWeighted) take it by pointer and call at directly: a
+// pointer handed to a function value would move the candidate to the heap.
+type cavEval struct {
+	sv    *solver
+	u, pa float64
+	s     float64
+	capHi string
+	sf    float64
+	// lazy and lazyAbove: while the grid runs with the priority of the
+	// cavitation number first, a candidate farther outside the band than
+	// lazyAbove (the grid's best so far) gets a key of the cavitation level
+	// alone (atWaterCav).
+	lazy      bool
+	lazyAbove float64
+	// keyless: at leaves the candidate's key unset (the warmest water's
+	// state, whose key a priority plan reads only where that state is the
+	// answer; atWaterCav's keyTop sets it).
+	keyless bool
+	// ln: with a weighted objective, the logarithms of the Reynolds and
+	// cavitation ratios the last key read (cavKey).
+	ln [2]float64
+}
+
+// at sets *y to the candidate at temperature t, the water's properties there
+// being wp, and returns the room between the static pressures the facility
+// can hold there, hi − lo in Pa (NaN where the state fails).
+func (e *cavEval) at(y *candidate, t float64, wp waterProps) float64 {
+	sv, s := e.sv, e.s
+	*y = candidate{machOrSpeed: e.u, s: s, t0: t, v: e.u, capHi: e.capHi}
+	q, r, ok := sv.waterState(e.u, e.pa, t, wp.rho, wp.mu)
+	room := math.NaN()
+	if ok {
+		lo, hi := sv.staticRange(q, wp.pv)
+		room = hi - lo
+		if !(hi >= lo && q > 0) {
+			ok = false
+		} else {
+			sf := e.sf
+			y.ps = min(max(wp.pv+sf*q, lo), hi)
+			y.sig = (y.ps - wp.pv) / q
+			y.band = sv.bandDepth(lo, hi, wp.pv, q)
+			y.bandLo = (hi-wp.pv)/q - (sf - sv.obj.cavTol)
+			y.q, y.r, y.p0 = q, r, y.ps+q
+		}
+	}
+	if !ok {
+		y.fail, y.k = facilities.ConstraintStaticPressureMin, worst
+		if !sv.held {
+			y.fail = facilities.ConstraintPressureMin
+		}
+		return room
+	}
+	y.ok = true
+	if e.keyless {
+		return room
+	}
+	if e.lazy {
+		if d := sv.cavDistance(y.sig); d > e.lazyAbove {
+			y.k = key{q: q}
+			y.k.v[0] = d
+			for j := 1; j < len(y.k.v); j++ {
+				y.k.v[j] = math.Inf(1)
+			}
+			return room
+		}
+	}
+	if sv.obj.weighted {
+		y.k, e.ln[0], e.ln[1] = sv.cavKey(e.u, s, r, q, e.u, y.sig)
+		return room
+	}
+	y.k = sv.keyOf(e.u, s, r, q, e.u, false, y.sig)
+	return room
+}
+
+// atNew returns the candidate at temperature t (at, the water's properties
+// computed there) and the room there.
+func (e *cavEval) atNew(t float64) (candidate, float64) {
+	var y candidate
+	room := e.at(&y, t, waterPropsAt(t))
+	return y, room
+}
+
 // atWaterCav is atWater when the objective looks at the cavitation number: at speed
 // c.u and scale s it chooses the water temperature T (which moves ν, ρ and the
 // vapour pressure p_v) and the test-section static pressure p, and returns the best
@@ -297,72 +385,20 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		}
 	}
 	sf := sv.fl.Marine.Cavitation
-	// lazyAbove: while the grid runs with the priority of the cavitation
-	// number first, a candidate farther outside the band than the grid's best
-	// so far cannot become the best, and its key keeps the cavitation level
-	// alone (the later levels +Inf), without the Reynolds number's logarithm.
-	lazy, lazyAbove := sv.cavFirst(), math.Inf(1)
-	// With a weighted objective evalAt keeps in ln the logarithms of the
-	// Reynolds and cavitation ratios its key read (cavKey).
-	var ln [2]float64
-	// keyless: evalAt leaves the candidate's key unset (the warmest water's
-	// state below, whose key a priority plan reads only where that state is
-	// the answer; keyTop sets it).
-	keyless := false
-	// evalAt returns the candidate at temperature t, the water's properties
-	// there being wp, and the room between the static pressures the facility
-	// can hold there, hi − lo in Pa (NaN where the state fails).
-	evalAt := func(t float64, wp waterProps) (candidate, float64) {
-		y := candidate{machOrSpeed: c.machOrSpeed, s: s, t0: t, v: c.machOrSpeed, capHi: capHi}
-		q, r, ok := sv.waterState(c.machOrSpeed, c.pa, t, wp.rho, wp.mu)
-		room := math.NaN()
-		if ok {
-			lo, hi := sv.staticRange(q, wp.pv)
-			room = hi - lo
-			if !(hi >= lo && q > 0) {
-				ok = false
-			} else {
-				y.ps = min(max(wp.pv+sf*q, lo), hi)
-				y.sig = (y.ps - wp.pv) / q
-				y.band = sv.bandDepth(lo, hi, wp.pv, q)
-				y.bandLo = (hi-wp.pv)/q - (sf - sv.obj.cavTol)
-				y.q, y.r, y.p0 = q, r, y.ps+q
-			}
-		}
-		if !ok {
-			y.fail, y.k = facilities.ConstraintStaticPressureMin, worst
-			if !sv.held {
-				y.fail = facilities.ConstraintPressureMin
-			}
-			return y, room
-		}
-		y.ok = true
-		if keyless {
-			return y, room
-		}
-		if lazy {
-			if d := sv.cavDistance(y.sig); d > lazyAbove {
-				y.k = key{q: q}
-				y.k.v[0] = d
-				for j := 1; j < len(y.k.v); j++ {
-					y.k.v[j] = math.Inf(1)
-				}
-				return y, room
-			}
-		}
-		if sv.obj.weighted {
-			y.k, ln[0], ln[1] = sv.cavKey(c.machOrSpeed, s, r, q, c.machOrSpeed, y.sig)
-			return y, room
-		}
-		y.k = sv.keyOf(c.machOrSpeed, s, r, q, c.machOrSpeed, false, y.sig)
-		return y, room
-	}
-	eval := func(t float64) candidate { y, _ := evalAt(t, waterPropsAt(t)); return y }
+	// e evaluates the candidates at temperatures into the caller's candidate
+	// (cavEval.at). lazy: while the grid runs with the priority of the
+	// cavitation number first, a candidate farther outside the band than the
+	// grid's best so far (e.lazyAbove) cannot become the best, and its key
+	// keeps the cavitation level alone (the later levels +Inf), without the
+	// Reynolds number's logarithm.
+	lazy := sv.cavFirst()
+	e := &cavEval{sv: sv, u: c.machOrSpeed, pa: c.pa, s: s, capHi: capHi, sf: sf, lazy: lazy, lazyAbove: math.Inf(1)}
+	eval := func(t float64) candidate { y, _ := e.atNew(t); return y }
 	// top is the candidate at the grid's warmest temperature, once known.
 	var top candidate
 	topRoom, haveTop := 0.0, false
 	// topKeyless: top is usable and its key not yet set (keyless); keyTop
-	// sets it, as evalAt would have (no lazy key yet, and not weighted).
+	// sets it, as e.at would have (no lazy key yet, and not weighted).
 	topKeyless := false
 	keyTop := func() {
 		if topKeyless {
@@ -381,18 +417,18 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		m := sv.water
 		i := m.slot(tb)
 		wp := waterProps{rho: m.rho[i], mu: m.mu[i], pv: m.vapourPressure(tb)}
-		keyless = true
-		y, room := evalAt(tb, wp)
-		keyless = false
-		if y.ok && sv.cavDistance(y.sig) == 0 &&
+		e.keyless = true
+		room := e.at(&top, tb, wp)
+		e.keyless = false
+		if y := &top; y.ok && sv.cavDistance(y.sig) == 0 &&
 			y.r*s*sv.L <= sv.fl.Reynolds && s*sv.L*y.r/sv.fl.Reynolds <= 1 {
 			y.k = sv.keyOf(c.machOrSpeed, s, y.r, y.q, c.machOrSpeed, false, y.sig)
 			y.rlo, y.rhi, y.capHi = y.r, y.r, capHi
 			y.top, y.bandOK = true, true
-			return y
+			return *y
 		}
 		// The same state as the grid's warmest, where that is tb itself.
-		top, topRoom, haveTop, topKeyless = y, room, cavGridT(ta, tb, cavGrid-1) == tb, y.ok
+		topRoom, haveTop, topKeyless = room, cavGridT(ta, tb, cavGrid-1) == tb, top.ok
 	}
 	if sv.grids == nil {
 		if sv.scratch != nil {
@@ -406,18 +442,18 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	var cold candidate
 	coldRoom, haveCold := 0.0, false
 	if (sv.cavFirst() || sv.obj.weighted) && !sv.feasOnly && !sv.noCavEnd {
-		// The logarithms the ends' keys read (weighted: evalAt's ln).
+		// The logarithms the ends' keys read (weighted: e.ln).
 		topLn, coldLn := [2]float64{math.NaN(), math.NaN()}, [2]float64{math.NaN(), math.NaN()}
 		if !haveTop {
-			ln = [2]float64{math.NaN(), math.NaN()}
-			top, topRoom = evalAt(cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
-			haveTop, topLn, topKeyless = true, ln, false
+			e.ln = [2]float64{math.NaN(), math.NaN()}
+			topRoom = e.at(&top, cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
+			haveTop, topLn, topKeyless = true, e.ln, false
 		}
 		coldAt := func() candidate {
 			if !haveCold {
-				ln = [2]float64{math.NaN(), math.NaN()}
-				cold, coldRoom = evalAt(cavGridT(ta, tb, 0), wg.wp[0])
-				haveCold, coldLn = true, ln
+				e.ln = [2]float64{math.NaN(), math.NaN()}
+				coldRoom = e.at(&cold, cavGridT(ta, tb, 0), wg.wp[0])
+				haveCold, coldLn = true, e.ln
 			}
 			return cold
 		}
@@ -425,7 +461,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		ok := false
 		if sv.obj.weighted {
 			if y, ok = sv.cavEndWeighted(wg, top, coldAt, s, &topLn, &coldLn); !ok {
-				y, ok = sv.cavTopWeighted(evalAt, wg, top, topRoom, coldAt(), coldRoom, s)
+				y, ok = sv.cavTopWeighted(e, wg, top, topRoom, coldAt(), coldRoom, s)
 			}
 		} else {
 			// cavEnd: the warmest or the coldest water, where shown.
@@ -433,9 +469,9 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				keyTop()
 				y, ok = top, true
 			} else if !haveCold {
-				ln = [2]float64{math.NaN(), math.NaN()}
-				cold, coldRoom = evalAt(cavGridT(ta, tb, 0), wg.wp[0])
-				haveCold, coldLn = true, ln
+				e.ln = [2]float64{math.NaN(), math.NaN()}
+				coldRoom = e.at(&cold, cavGridT(ta, tb, 0), wg.wp[0])
+				haveCold, coldLn = true, e.ln
 			}
 			if !ok && sv.cavEndCold(wg, &cold) {
 				y, ok = cold, true
@@ -454,7 +490,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				}
 				return candidate{}, false
 			}
-			y, ok = sv.cavBand(evalAt, wg, top, topRoom, coldAt(), coldRoom, s, root)
+			y, ok = sv.cavBand(e, wg, top, topRoom, coldAt(), coldRoom, s, root)
 		}
 		if ok {
 			if y.r <= y.rlo*(1+limitSlack) {
@@ -471,7 +507,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	}
 	// The grid reads top only without lazy keys (a keyless top comes with the
 	// priority of the cavitation number first, whose keys are lazy): set
-	// anyway, as evalAt would.
+	// anyway, as e.at would.
 	keyTop()
 	best := candidate{k: worst, fail: facilities.ConstraintStaticPressureMin}
 	// seen are Re/m and the distance outside the cavitation band of every
@@ -500,12 +536,12 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		case i == cavGrid-1 && haveTop && !lazy:
 			grid[i], rooms[i] = top, topRoom
 		default:
-			grid[i], rooms[i] = evalAt(cavGridT(ta, tb, i), wg.wp[i])
+			rooms[i] = e.at(&grid[i], cavGridT(ta, tb, i), wg.wp[i])
 		}
 		if grid[i].ok && (ibest < 0 || grid[i].k.less(grid[ibest].k)) {
 			ibest = i
 			if lazy {
-				lazyAbove = grid[i].k.v[0]
+				e.lazyAbove = grid[i].k.v[0]
 			}
 		}
 		consider(grid[i])
@@ -516,7 +552,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			return best
 		}
 	}
-	lazyAbove = math.Inf(1)
+	e.lazyAbove = math.Inf(1)
 	if ibest < 0 {
 		x.fail, x.k = best.fail, worst
 		return x
@@ -536,10 +572,10 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				// The cavitation number crosses its whole band between two grid
 				// points (a band narrower than a grid cell): a point inside it,
 				// then both its ends.
-				if m, room, ok := sv.cavCrossing(evalAt, *a, *b); ok {
+				if m, room, ok := sv.cavCrossing(e, *a, *b); ok {
 					consider(m)
-					consider(sv.cavEdge(evalAt, m, *a, room, rooms[i]))
-					consider(sv.cavEdge(evalAt, m, *b, room, rooms[i+1]))
+					consider(sv.cavEdge(e, m, *a, room, rooms[i]))
+					consider(sv.cavEdge(e, m, *b, room, rooms[i+1]))
 				}
 			}
 			continue
@@ -548,7 +584,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		if !(a.ok && (zs[i] || !zs[i+1])) {
 			good, bad, rg, rb = b, a, rb, rg
 		}
-		consider(sv.cavEdge(evalAt, *good, *bad, rg, rb))
+		consider(sv.cavEdge(e, *good, *bad, rg, rb))
 	}
 	// The temperature that meets the target Re/m (Re/m rises with T).
 	if grid[0].ok && grid[len(grid)-1].ok {
@@ -753,7 +789,7 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 // the edge the full search finds in the grid cell where σ enters the band
 // (bisection on the grid's indices, then cavEdge). Arguments as cavBand's
 // and cavEndWeighted's.
-func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate, topRoom float64,
+func (sv *solver) cavTopWeighted(e *cavEval, g *waterGrid, top candidate, topRoom float64,
 	cold candidate, coldRoom, s float64) (candidate, bool) {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
@@ -775,13 +811,14 @@ func (sv *solver) cavTopWeighted(evalAt func(float64, waterProps) (candidate, fl
 	ya, ra, yb, rb := cold, coldRoom, top, topRoom
 	for b-a > 1 {
 		m := (a + b) / 2
-		if y, room := evalAt(cavGridT(g.ta, g.tb, m), g.wp[m]); y.sig-(sf+tol) > 0 {
+		var y candidate
+		if room := e.at(&y, cavGridT(g.ta, g.tb, m), g.wp[m]); y.sig-(sf+tol) > 0 {
 			a, ya, ra = m, y, room
 		} else {
 			b, yb, rb = m, y, room
 		}
 	}
-	top.rlo = sv.cavEdge(evalAt, yb, ya, rb, ra).r
+	top.rlo = sv.cavEdge(e, yb, ya, rb, ra).r
 	return top, true
 }
 
@@ -902,7 +939,7 @@ func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s float64, ia, ib int
 // the stretch (the full search then runs). top and cold are atWaterCav's
 // candidates at g's warmest and coldest temperatures, with their rooms
 // (cavEdge).
-func (sv *solver) cavBand(evalAt func(float64, waterProps) (candidate, float64), g *waterGrid, top candidate, topRoom float64,
+func (sv *solver) cavBand(e *cavEval, g *waterGrid, top candidate, topRoom float64,
 	cold candidate, coldRoom, s float64, root func() (candidate, bool)) (candidate, bool) {
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
 	lo, hi, _ := sv.cavPressures()
@@ -916,7 +953,7 @@ func (sv *solver) cavBand(evalAt func(float64, waterProps) (candidate, float64),
 	pts[cavGrid-1], rooms[cavGrid-1], have[cavGrid-1] = top, topRoom, true
 	at := func(i int) candidate {
 		if !have[i] {
-			pts[i], rooms[i] = evalAt(cavGridT(g.ta, g.tb, i), g.wp[i])
+			rooms[i] = e.at(&pts[i], cavGridT(g.ta, g.tb, i), g.wp[i])
 			have[i] = true
 		}
 		return pts[i]
@@ -957,17 +994,17 @@ func (sv *solver) cavBand(evalAt func(float64, waterProps) (candidate, float64),
 			consider(top)
 		}
 		if ia > 0 {
-			consider(sv.cavEdge(evalAt, at(ia), at(ia-1), rooms[ia], rooms[ia-1]))
+			consider(sv.cavEdge(e, at(ia), at(ia-1), rooms[ia], rooms[ia-1]))
 		}
 		if ib < cavGrid {
-			consider(sv.cavEdge(evalAt, at(ib-1), at(ib), rooms[ib-1], rooms[ib]))
+			consider(sv.cavEdge(e, at(ib-1), at(ib), rooms[ib-1], rooms[ib]))
 		}
 	case ia > 0 && ia < cavGrid:
 		if a, b := at(ia-1), at(ia); (a.sig < sf) != (b.sig < sf) {
-			if m, room, ok := sv.cavCrossing(evalAt, a, b); ok {
+			if m, room, ok := sv.cavCrossing(e, a, b); ok {
 				consider(m)
-				consider(sv.cavEdge(evalAt, m, a, room, rooms[ia-1]))
-				consider(sv.cavEdge(evalAt, m, b, room, rooms[ia]))
+				consider(sv.cavEdge(e, m, a, room, rooms[ia-1]))
+				consider(sv.cavEdge(e, m, b, room, rooms[ia]))
 			}
 		}
 	}
@@ -986,7 +1023,7 @@ func (sv *solver) cavBand(evalAt func(float64, waterProps) (candidate, float64),
 // cavEdge narrows the bracket [good, bad] of temperatures (either order) across
 // which a cavitation candidate's feasibility or its cavitation level changes
 // (good is feasible; bad differs in either) to 1e-12 relative and returns the
-// candidate at its good end. eval gives the candidate at a temperature and the
+// candidate at its good end. e gives the candidate at a temperature (cavEval.at) and the
 // room hi − lo between the static pressures the facility can hold there (NaN
 // where the state fails); rg and rb are good's and bad's. The step is regula
 // falsi with the Illinois modification on a margin that changes sign at the edge
@@ -996,7 +1033,7 @@ func (sv *solver) cavBand(evalAt func(float64, waterProps) (candidate, float64),
 // less than half the bracket away: every point tested keeps the bracket's
 // ends on their sides exactly, as a bisection does, in about a quarter of its
 // steps.
-func (sv *solver) cavEdge(eval func(float64, waterProps) (candidate, float64), good, bad candidate, rg, rb float64) candidate {
+func (sv *solver) cavEdge(e *cavEval, good, bad candidate, rg, rb float64) candidate {
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
 	inBand := func(y candidate) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
 	band := inBand(good)
@@ -1045,7 +1082,8 @@ func (sv *solver) cavEdge(eval func(float64, waterProps) (candidate, float64), g
 				t = min(max(x, lo), hi)
 			}
 		}
-		m, room := eval(t, waterPropsAt(t))
+		var m candidate
+		room := e.at(&m, t, waterPropsAt(t))
 		f := margin(m, room)
 		if same(m) {
 			good, fg = m, f
@@ -1072,7 +1110,7 @@ func (sv *solver) cavEdge(eval func(float64, waterProps) (candidate, float64), g
 // with the room hi − lo at it (see cavEdge), or false when the search meets an
 // unusable state or narrows [a, b] to 1e-12 relative without landing in the band:
 // regula falsi with the Illinois modification on σ − σ_full, continuous in T.
-func (sv *solver) cavCrossing(eval func(float64, waterProps) (candidate, float64), a, b candidate) (candidate, float64, bool) {
+func (sv *solver) cavCrossing(e *cavEval, a, b candidate) (candidate, float64, bool) {
 	sf := sv.fl.Marine.Cavitation
 	fa, fb := a.sig-sf, b.sig-sf
 	side := 0
@@ -1081,7 +1119,8 @@ func (sv *solver) cavCrossing(eval func(float64, waterProps) (candidate, float64
 		if x := a.t0 + fa/(fa-fb)*(b.t0-a.t0); x > min(a.t0, b.t0) && x < max(a.t0, b.t0) {
 			t = x
 		}
-		m, room := eval(t, waterPropsAt(t))
+		var m candidate
+		room := e.at(&m, t, waterPropsAt(t))
 		if !m.ok {
 			return m, room, false
 		}
