@@ -991,6 +991,30 @@ func (sv *solver) stateNow(machOrSpeed, p0, t0 float64) (facilities.State, error
 			return st, nil
 		}
 	}
+	return sv.stateFacility(machOrSpeed, p0, t0)
+}
+
+// stateIn is state into *st, for a water facility without the solver's
+// states kept (solver.memo nil) straight from the water's properties kept
+// (waterStateKeptIn), without the three copies of the 96-byte State on
+// its way back through state, stateNow and waterStateKept.
+func (sv *solver) stateIn(st *facilities.State, machOrSpeed, p0, t0 float64) error {
+	if sv.memo != nil || sv.water == nil {
+		var err error
+		*st, err = sv.state(machOrSpeed, p0, t0)
+		return err
+	}
+	sv.evals++ // stateNow's count
+	if sv.waterStateKeptIn(st, machOrSpeed, p0, t0) {
+		return nil
+	}
+	var err error
+	*st, err = sv.stateFacility(machOrSpeed, p0, t0)
+	return err
+}
+
+// stateFacility is stateNow from the facility's own model (facilities.Facility.State).
+func (sv *solver) stateFacility(machOrSpeed, p0, t0 float64) (facilities.State, error) {
 	set := facilities.Setting{StagnationPressure: p0, StagnationTemperature: t0}
 	if sv.liquid {
 		set.Speed = machOrSpeed
@@ -1241,18 +1265,13 @@ func (sv *solver) lowestScale(c *machSetup) float64 {
 // prepare works out everything at test Mach number (speed) machOrSpeed that does not depend
 // on the model scale.
 func (sv *solver) prepare(machOrSpeed float64) (c machSetup) {
-	if sv.liquid {
-		// prepareNow's case, without its copy of the 384-byte set-up on the
-		// way back (about 200 instructions, 84 set-ups a vessel plan).
-		return sv.prepareWater(machOrSpeed)
-	}
 	sv.prepareIn(&c, machOrSpeed)
 	return c
 }
 
 // prepareIn is prepare into c. A set-up is 384 bytes: the planner's hot
 // callers (the feasibility scan, the search's Mach numbers, the trade curve)
-// keep it in their own frame, and an ideal gas's is built there, instead of
+// keep it in their own frame, and an ideal gas's and water's are built there, instead of
 // copying it out of each of three calls (about 400 instructions a set-up,
 // 112 set-ups an lsw-2 priority plan).
 func (sv *solver) prepareIn(c *machSetup, machOrSpeed float64) {
@@ -1278,7 +1297,7 @@ func (sv *solver) prepareNow(machOrSpeed float64) (c machSetup) {
 func (sv *solver) prepareNowIn(c *machSetup, machOrSpeed float64) {
 	switch {
 	case sv.liquid:
-		*c = sv.prepareWater(machOrSpeed)
+		sv.prepareWater(c, machOrSpeed)
 	case sv.f.Medium.Kind == facilities.MediumNitrogen:
 		*c = sv.prepareNitrogen(machOrSpeed)
 	default:
@@ -1698,59 +1717,62 @@ func (sv *solver) solveR(c *machSetup, tp topSetting, r float64) (p0, t0 float64
 	return p0, sv.tfloor(c, p0)
 }
 
-// prepareWater is prepare for water: machOrSpeed is the speed, p0 is held at its maximum
+// prepareWater is prepare for water, into c (its caller's set-up: building
+// the 384-byte set-up and returning it by value copied it twice on the way,
+// about 170 instructions of a set-up's 1100, 84 set-ups a vessel plan):
+// machOrSpeed is the speed, p0 is held at its maximum
 // (the most margin against cavitation; nothing else depends on it), and the
 // stagnation temperature is the free variable: warmer water is less viscous, so
 // Re/m rises with T0, and slightly lighter, so q falls.
-func (sv *solver) prepareWater(machOrSpeed float64) machSetup {
+func (sv *solver) prepareWater(c *machSetup, machOrSpeed float64) {
 	f := sv.f
-	c := machSetup{machOrSpeed: machOrSpeed, pa: f.StagnationPressure.Max, pTop: f.StagnationPressure.Max}
+	*c = machSetup{machOrSpeed: machOrSpeed, pa: f.StagnationPressure.Max, pTop: f.StagnationPressure.Max}
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
 	// Boiling at p0 and cavitation in the test section set a T0 ceiling: warmer
 	// water has a higher vapour pressure (waterMargin). The states at the
 	// range's ends serve both the margins and the set-up.
 	top := facilities.ConstraintTempMax
-	stA, errA := sv.state(machOrSpeed, c.pa, ta)
-	if m, name := sv.waterMarginOf(stA, errA); m < 0 {
+	var stA, stB facilities.State
+	errA := sv.stateIn(&stA, machOrSpeed, c.pa, ta)
+	if m, name := sv.waterMarginOf(&stA, errA); m < 0 {
 		c.fail = name
-		return c
+		return
 	}
-	stB, err := sv.state(machOrSpeed, c.pa, tb)
-	if m, name := sv.waterMarginOf(stB, err); m < 0 {
+	err := sv.stateIn(&stB, machOrSpeed, c.pa, tb)
+	if m, name := sv.waterMarginOf(&stB, err); m < 0 {
 		tb = sv.rootHi(func(t float64) float64 { m, _ := sv.waterMargin(machOrSpeed, c.pa, t); return m }, ta, tb, false)
 		top = name
-		stB, err = sv.state(machOrSpeed, c.pa, tb)
+		err = sv.stateIn(&stB, machOrSpeed, c.pa, tb)
 	}
 	if err != nil {
 		c.fail = facilities.ConstraintSpeedMax
-		return c
+		return
 	}
 	c.ta, c.tb, c.stRef, c.tRef = ta, tb, stB, tb
 	c.rloOK = true
 	c.k = stB.DynamicPressure
 	if stB.DynamicPressure > sv.qmax*(1+limitSlack) {
 		c.fail = facilities.ConstraintDynamic
-		return c
+		return
 	}
 	if stA.DynamicPressure > sv.qmax {
 		c.ta = sv.rootHi(func(t float64) float64 { return sv.qmax - sv.waterQ(machOrSpeed, c.pa, t) }, ta, tb, true)
-		if stA, err = sv.state(machOrSpeed, c.pa, c.ta); err != nil {
+		if err = sv.stateIn(&stA, machOrSpeed, c.pa, c.ta); err != nil {
 			c.fail = facilities.ConstraintSpeedMax
-			return c
+			return
 		}
 	}
 	c.ra, c.rlo = stA.ReynoldsPerMeter, stA.ReynoldsPerMeter
 	c.qWater, c.qWaterT = [2]float64{stA.DynamicPressure, stB.DynamicPressure}, [2]float64{c.ta, c.tb}
 	if c.rlo > sv.remax*(1+limitSlack) {
 		c.fail = facilities.ConstraintReynoldsUnit
-		return c
+		return
 	}
 	c.rWaterTop, c.capWaterTop = stB.ReynoldsPerMeter, top
 	if c.rWaterTop > sv.remax {
 		c.rWaterTop, c.capWaterTop = sv.remax, facilities.ConstraintReynoldsUnit
 	}
 	c.ok = true
-	return c
 }
 
 // waterMargin returns how far water at speed machOrSpeed, p0 and T0 t stays from
@@ -1760,13 +1782,14 @@ func (sv *solver) prepareWater(machOrSpeed float64) machSetup {
 // less cavMin). Both fall as the water warms. An unusable state counts as −1
 // (boiling).
 func (sv *solver) waterMargin(machOrSpeed, p0, t float64) (float64, string) {
-	st, err := sv.state(machOrSpeed, p0, t)
-	return sv.waterMarginOf(st, err)
+	var st facilities.State
+	err := sv.stateIn(&st, machOrSpeed, p0, t)
+	return sv.waterMarginOf(&st, err)
 }
 
 // waterMarginOf is waterMargin of the state st that sv.state returned with
 // err.
-func (sv *solver) waterMarginOf(st facilities.State, err error) (float64, string) {
+func (sv *solver) waterMarginOf(st *facilities.State, err error) (float64, string) {
 	if err != nil {
 		return -1, facilities.ConstraintBoiling
 	}

@@ -94,3 +94,63 @@ func TestVesselSearchAllocatesNothing(t *testing.T) {
 		}
 	}
 }
+
+// TestWaterStateInMatchesState checks the water set-up's straight state
+// (stateIn, written into its caller's State) against the general path it
+// skips, state through stateNow (common practice: a shortcut held to the path
+// it replaces, to the bit): random vessels and tunnels (randomVessel), half
+// holding their static pressure, at random speeds, stagnation pressures (0,
+// as a held static pressure's set-ups give it, and given ones, which State
+// refuses there) and temperatures inside and outside the water model's range;
+// the state, its error and the states counted (solver.evals) the same. Then
+// whole set-ups (prepareWater) with the solver's states kept (memo set: every
+// state through state) against without (the straight path).
+func TestWaterStateInMatchesState(t *testing.T) {
+	rng := rand.New(rand.NewSource(47))
+	states, refused, setups, failed := 0, 0, 0, 0
+	for i := 0; i < 200; i++ {
+		f, art, fl := randomVessel(t, rng, i)
+		sv, err := newSolver(&Problem{Flight: fl, Article: art, Facility: f})
+		require.NoError(t, err)
+		require.True(t, sv.water != nil && sv.memo == nil, "case %d: not the straight path's solver", i)
+		for j := 0; j < 20; j++ {
+			u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*rng.Float64()
+			if j == 0 {
+				u = sv.machOrSpeedMax * (1 + rng.Float64()) // fast enough to fail somewhere
+			}
+			p0 := f.StagnationPressure.Min + (f.StagnationPressure.Max-f.StagnationPressure.Min)*rng.Float64()
+			if f.StaticPressure != nil && j%2 == 0 {
+				p0 = 0
+			}
+			temp := f.StagnationTemperature.Min - 5 + (f.StagnationTemperature.Max-f.StagnationTemperature.Min+10)*rng.Float64()
+			if j%5 == 4 {
+				temp = facilities.WaterMaxTemperature + 1 + 20*rng.Float64()
+			}
+			e0 := sv.evals
+			want, wantErr := sv.state(u, p0, temp)
+			e1 := sv.evals
+			var got facilities.State
+			gotErr := sv.stateIn(&got, u, p0, temp)
+			require.Equal(t, e1-e0, sv.evals-e1, "case %d: states counted", i)
+			require.True(t, got == want, "case %d, %g m/s, p0 %g Pa, %g K: %+v, want %+v", i, u, p0, temp, got, want)
+			require.Equal(t, wantErr, gotErr, "case %d, %g m/s, p0 %g Pa, %g K", i, u, p0, temp)
+			states++
+			if wantErr != nil {
+				refused++
+			}
+			var straight, general machSetup
+			sv.prepareWater(&straight, u)
+			sv.memo = &stateMemos{}
+			sv.prepareWater(&general, u)
+			sv.memo = nil
+			require.True(t, straight == general, "case %d, %g m/s: set-up %+v, want %+v", i, u, straight, general)
+			setups++
+			if !straight.ok {
+				failed++
+			}
+		}
+	}
+	t.Logf("%d states, %d refused; %d set-ups, %d failed", states, refused, setups, failed)
+	require.Greater(t, refused, states/20, "too few states refused")
+	require.Greater(t, failed, 5, "too few set-ups fail")
+}

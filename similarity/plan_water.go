@@ -61,39 +61,50 @@ func (m *waterMemo) vapourPressure(t float64) float64 {
 // is built by facilities.LiquidState, as State builds it
 // (TestWaterStateKeptMatchesFacility).
 func (sv *solver) waterStateKept(v, p0, t float64) (facilities.State, bool) {
+	var st facilities.State
+	ok := sv.waterStateKeptIn(&st, v, p0, t)
+	return st, ok
+}
+
+// waterStateKeptIn is waterStateKept into *st, which it leaves as it was
+// where it returns false.
+func (sv *solver) waterStateKeptIn(st *facilities.State, v, p0, t float64) bool {
 	held := sv.f.StaticPressure != nil
 	if held {
 		if p0 != 0 {
-			return facilities.State{}, false
+			return false
 		}
 		p0 = sv.f.HeldStaticPressure()
 	}
 	if !(p0 > 0) || math.IsInf(p0, 1) || !(v >= 0) || math.IsInf(v, 1) ||
 		!(t >= facilities.WaterMinTemperature && t <= facilities.WaterMaxTemperature) {
-		return facilities.State{}, false
+		return false
 	}
 	m := sv.water
 	i := m.slot(t)
 	if held {
 		p0 += 0.5 * m.rho[i] * v * v
 	}
-	return facilities.LiquidState(v, p0, t, m.rho[i], m.mu[i])
+	var ok bool
+	*st, ok = facilities.LiquidState(v, p0, t, m.rho[i], m.mu[i])
+	return ok
 }
 
 // boilingMargin is facilities.Facility.BoilingMargin of a water state st, with
-// the vapour pressure from the memo when the solver keeps one.
-func (sv *solver) boilingMargin(st facilities.State) float64 {
+// the vapour pressure from the memo when the solver keeps one (st read
+// through a pointer: a State passed by value is twelve numbers copied).
+func (sv *solver) boilingMargin(st *facilities.State) float64 {
 	if sv.water == nil || !(st.StagnationTemperature > 0) {
-		return sv.f.BoilingMargin(st)
+		return sv.f.BoilingMargin(*st)
 	}
 	return st.StagnationPressure/sv.water.vapourPressure(st.StagnationTemperature) - 1
 }
 
 // cavitationMargin is facilities.Facility.CavitationMargin of a water state
 // st, with the vapour pressure from the memo when the solver keeps one.
-func (sv *solver) cavitationMargin(st facilities.State) float64 {
+func (sv *solver) cavitationMargin(st *facilities.State) float64 {
 	if sv.water == nil || !(st.Static.Temperature > 0) {
-		return sv.f.CavitationMargin(st)
+		return sv.f.CavitationMargin(*st)
 	}
 	return st.Static.Pressure/sv.water.vapourPressure(st.Static.Temperature) - 1
 }

@@ -45,8 +45,8 @@ func TestWaterStateKeptMatchesFacility(t *testing.T) {
 		require.Equal(t, err == nil, ok, "wtn-04 at %g m/s, p0 %g Pa, %g K: %v", v, p0, temp, err)
 		if ok {
 			require.Equal(t, want, got, "wtn-04 at %g m/s, p0 %g Pa, %g K", v, p0, temp)
-			require.Equal(t, f.BoilingMargin(want), sv.boilingMargin(got), "boiling margin at %g K", temp)
-			require.Equal(t, f.CavitationMargin(want), sv.cavitationMargin(got), "cavitation margin at %g K", temp)
+			require.Equal(t, f.BoilingMargin(want), sv.boilingMargin(&got), "boiling margin at %g K", temp)
+			require.Equal(t, f.CavitationMargin(want), sv.cavitationMargin(&got), "cavitation margin at %g K", temp)
 		}
 	}
 	held, ok := facilities.DemoFacility("cvt-07")
@@ -66,8 +66,8 @@ func TestWaterStateKeptMatchesFacility(t *testing.T) {
 		require.Equal(t, err == nil, ok, "cvt-07 at %g m/s, %g K: %v", v, temp, err)
 		if ok {
 			require.Equal(t, want, got, "cvt-07 at %g m/s, %g K", v, temp)
-			require.Equal(t, held.BoilingMargin(want), hv.boilingMargin(got), "boiling margin at %g K", temp)
-			require.Equal(t, held.CavitationMargin(want), hv.cavitationMargin(got), "cavitation margin at %g K", temp)
+			require.Equal(t, held.BoilingMargin(want), hv.boilingMargin(&got), "boiling margin at %g K", temp)
+			require.Equal(t, held.CavitationMargin(want), hv.cavitationMargin(&got), "cavitation margin at %g K", temp)
 		}
 	}
 	_, ok = hv.waterStateKept(5, 150000, 293.15)
