@@ -262,7 +262,10 @@ type cavEval struct {
 // can hold there, hi − lo in Pa (NaN where the state fails).
 func (e *cavEval) at(y *candidate, t float64, wp waterProps) float64 {
 	sv, s := e.sv, e.s
-	*y = candidate{machOrSpeed: e.u, s: s, t0: t, v: e.u, capHi: e.capHi}
+	// Zeroed, then set: a composite literal is built on the stack and
+	// copied into *y (about 50 instructions more a candidate).
+	*y = candidate{}
+	y.machOrSpeed, y.s, y.t0, y.v, y.capHi = e.u, s, t, e.u, e.capHi
 	q, r, ok := sv.waterState(e.u, e.pa, t, wp.rho, wp.mu)
 	room := math.NaN()
 	if ok {
@@ -333,7 +336,6 @@ func (e *cavEval) atNew(t float64) (candidate, float64) {
 // inside the band does not need. The feasibility scan (solver.feasOnly) takes
 // the first usable grid point.
 func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidate {
-	x := candidate{machOrSpeed: c.machOrSpeed, s: s}
 	ta, tb := c.ta, c.tb
 	capHi := c.capWaterTop
 	// q and Re/m at temperature t, as waterQ and waterR give them; q at the
@@ -366,8 +368,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	if sv.load != nil {
 		qb := w.Hi
 		if qb < wq(tb)*(1-limitSlack) {
-			x.fail, x.k = sv.loadName, worst
-			return x
+			return candidate{machOrSpeed: c.machOrSpeed, s: s, fail: sv.loadName, k: worst}
 		}
 		if wq(ta) > qb {
 			ta = sv.rootHi(func(t float64) float64 { return qb - wq(t) }, ta, tb, true)
@@ -376,8 +377,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	if lo := w.Lo; lo > 0 {
 		// The resolution floor caps T0 (q falls as the water warms).
 		if wq(ta) < lo*(1-limitSlack) {
-			x.fail, x.k = sv.floorName, worst
-			return x
+			return candidate{machOrSpeed: c.machOrSpeed, s: s, fail: sv.floorName, k: worst}
 		}
 		if wq(tb) < lo {
 			tb = sv.rootHi(func(t float64) float64 { return wq(t) - lo }, ta, tb, false)
@@ -449,38 +449,42 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			topRoom = e.at(&top, cavGridT(ta, tb, cavGrid-1), wg.wp[cavGrid-1])
 			haveTop, topLn, topKeyless = true, e.ln, false
 		}
-		coldAt := func() candidate {
+		needCold := func() {
 			if !haveCold {
 				e.ln = [2]float64{math.NaN(), math.NaN()}
 				coldRoom = e.at(&cold, cavGridT(ta, tb, 0), wg.wp[0])
 				haveCold, coldLn = true, e.ln
 			}
-			return cold
 		}
-		var y candidate
-		ok := false
+		coldAt := func() candidate { needCold(); return cold }
+		// y is the answer where an end or the band settles the search: top
+		// or cold themselves, or res, not copied on the way.
+		var y *candidate
 		if sv.obj.weighted {
-			if y, ok = sv.cavEndWeighted(wg, top, coldAt, s, &topLn, &coldLn); !ok {
-				y, ok = sv.cavTopWeighted(e, wg, top, topRoom, coldAt(), coldRoom, s)
+			var res candidate
+			ok := false
+			if res, ok = sv.cavEndWeighted(wg, top, coldAt, s, &topLn, &coldLn); !ok {
+				res, ok = sv.cavTopWeighted(e, wg, top, topRoom, coldAt(), coldRoom, s)
+			}
+			if ok {
+				y = &res
 			}
 		} else {
 			// cavEnd: the warmest or the coldest water, where shown.
 			if sv.cavEndTop(wg, &top) {
 				keyTop()
-				y, ok = top, true
-			} else if !haveCold {
-				e.ln = [2]float64{math.NaN(), math.NaN()}
-				coldRoom = e.at(&cold, cavGridT(ta, tb, 0), wg.wp[0])
-				haveCold, coldLn = true, e.ln
+				y = &top
+			} else {
+				needCold()
 			}
-			if !ok && sv.cavEndCold(wg, &cold) {
-				y, ok = cold, true
+			if y == nil && sv.cavEndCold(wg, &cold) {
+				y = &cold
 			}
-			if ok {
+			if y != nil {
 				y.rlo, y.rhi = y.r, y.r
 			}
 		}
-		if !ok && !sv.obj.weighted && sv.cavThenReynolds() {
+		if y == nil && !sv.obj.weighted && sv.cavThenReynolds() {
 			keyTop()
 			// The search's own targets inside the band, where σ falls with T.
 			root := func() (candidate, bool) {
@@ -490,9 +494,12 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				}
 				return candidate{}, false
 			}
-			y, ok = sv.cavBand(e, wg, top, topRoom, coldAt(), coldRoom, s, root)
+			needCold()
+			if res, ok := sv.cavBand(e, wg, &top, topRoom, &cold, coldRoom, s, root); ok {
+				y = &res
+			}
 		}
-		if ok {
+		if y != nil {
 			if y.r <= y.rlo*(1+limitSlack) {
 				y.rlo = y.r
 			}
@@ -502,7 +509,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			if top.ok {
 				y.band, y.bandLo, y.bandOK = top.band, top.bandLo, true
 			}
-			return y
+			return *y
 		}
 	}
 	// The grid reads top only without lazy keys (a keyless top comes with the
@@ -554,8 +561,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	}
 	e.lazyAbove = math.Inf(1)
 	if ibest < 0 {
-		x.fail, x.k = best.fail, worst
-		return x
+		return candidate{machOrSpeed: c.machOrSpeed, s: s, fail: best.fail, k: worst}
 	}
 	// The cavitation level (0 inside the band) and feasibility change at edges
 	// between grid points: find each to 1e-12 relative, keeping the better side
@@ -610,8 +616,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		}
 	}
 	if !best.ok {
-		x.fail, x.k = best.fail, worst
-		return x
+		return candidate{machOrSpeed: c.machOrSpeed, s: s, fail: best.fail, k: worst}
 	}
 	// Re/m reachable at this level of the cavitation number: the shrink and knee
 	// rules of the scale search read it.
@@ -939,8 +944,8 @@ func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s float64, ia, ib int
 // the stretch (the full search then runs). top and cold are atWaterCav's
 // candidates at g's warmest and coldest temperatures, with their rooms
 // (cavEdge).
-func (sv *solver) cavBand(e *cavEval, g *waterGrid, top candidate, topRoom float64,
-	cold candidate, coldRoom, s float64, root func() (candidate, bool)) (candidate, bool) {
+func (sv *solver) cavBand(e *cavEval, g *waterGrid, top *candidate, topRoom float64,
+	cold *candidate, coldRoom, s float64, root func() (candidate, bool)) (candidate, bool) {
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
 	lo, hi, _ := sv.cavPressures()
 	if !top.ok || !cold.ok || !g.falls(lo) || !g.falls(hi) {
@@ -949,21 +954,30 @@ func (sv *solver) cavBand(e *cavEval, g *waterGrid, top candidate, topRoom float
 	var pts [cavGrid]candidate
 	var rooms [cavGrid]float64
 	var have [cavGrid]bool
-	pts[0], rooms[0], have[0] = cold, coldRoom, true
-	pts[cavGrid-1], rooms[cavGrid-1], have[cavGrid-1] = top, topRoom, true
-	at := func(i int) candidate {
+	pts[0], rooms[0], have[0] = *cold, coldRoom, true
+	pts[cavGrid-1], rooms[cavGrid-1], have[cavGrid-1] = *top, topRoom, true
+	// at returns the grid's i-th candidate, in pts (not copied out).
+	at := func(i int) *candidate {
 		if !have[i] {
 			rooms[i] = e.at(&pts[i], cavGridT(g.ta, g.tb, i), g.wp[i])
 			have[i] = true
 		}
-		return pts[i]
+		return &pts[i]
 	}
-	// first returns the least grid index whose candidate meets in, which
-	// holds from some index on (σ falls with the index); cavGrid for none.
-	first := func(in func(candidate) bool) int {
+	// first returns the least grid index whose candidate lies at or below
+	// the band's upper end (lower false) or below its lower end (lower
+	// true), as cavDistance tests them, each of which holds from some index
+	// on (σ falls with the index); cavGrid for none.
+	first := func(lower bool) int {
 		a, b := -1, cavGrid
 		for b-a > 1 {
-			if m := (a + b) / 2; in(at(m)) {
+			m := (a + b) / 2
+			y := at(m)
+			in := !(y.sig-(sf+tol) > 0)
+			if lower {
+				in = sf-tol-y.sig > 0
+			}
+			if in {
 				b = m
 			} else {
 				a = m
@@ -972,17 +986,17 @@ func (sv *solver) cavBand(e *cavEval, g *waterGrid, top candidate, topRoom float
 		return b
 	}
 	// The band's ends as cavDistance tests them.
-	ia := first(func(y candidate) bool { return !(y.sig-(sf+tol) > 0) })
-	ib := first(func(y candidate) bool { return sf-tol-y.sig > 0 })
+	ia := first(false)
+	ib := first(true)
 	best := candidate{k: worst}
 	rlo, rhi := math.Inf(1), math.Inf(-1)
-	consider := func(y candidate) {
+	consider := func(y *candidate) {
 		if !y.ok || sv.cavDistance(y.sig) != 0 {
 			return
 		}
 		rlo, rhi = min(rlo, y.r), max(rhi, y.r)
 		if !best.ok || y.k.less(best.k) {
-			best = y
+			best = *y
 		}
 	}
 	switch {
@@ -994,22 +1008,26 @@ func (sv *solver) cavBand(e *cavEval, g *waterGrid, top candidate, topRoom float
 			consider(top)
 		}
 		if ia > 0 {
-			consider(sv.cavEdge(e, at(ia), at(ia-1), rooms[ia], rooms[ia-1]))
+			y := sv.cavEdge(e, *at(ia), *at(ia - 1), rooms[ia], rooms[ia-1])
+			consider(&y)
 		}
 		if ib < cavGrid {
-			consider(sv.cavEdge(e, at(ib-1), at(ib), rooms[ib-1], rooms[ib]))
+			y := sv.cavEdge(e, *at(ib - 1), *at(ib), rooms[ib-1], rooms[ib])
+			consider(&y)
 		}
 	case ia > 0 && ia < cavGrid:
 		if a, b := at(ia-1), at(ia); (a.sig < sf) != (b.sig < sf) {
-			if m, room, ok := sv.cavCrossing(e, a, b); ok {
-				consider(m)
-				consider(sv.cavEdge(e, m, a, room, rooms[ia-1]))
-				consider(sv.cavEdge(e, m, b, room, rooms[ia]))
+			if m, room, ok := sv.cavCrossing(e, *a, *b); ok {
+				consider(&m)
+				y := sv.cavEdge(e, m, *a, room, rooms[ia-1])
+				consider(&y)
+				y = sv.cavEdge(e, m, *b, room, rooms[ia])
+				consider(&y)
 			}
 		}
 	}
 	if y, ok := root(); ok {
-		consider(y)
+		consider(&y)
 	}
 	// Where the flight's Re/m lies inside the stretch, a grid temperature
 	// nearer it than the target's may be the best: the full search decides.
