@@ -1726,7 +1726,10 @@ func (sv *solver) solveR(c *machSetup, tp topSetting, r float64) (p0, t0 float64
 // Re/m rises with T0, and slightly lighter, so q falls.
 func (sv *solver) prepareWater(c *machSetup, machOrSpeed float64) {
 	f := sv.f
-	*c = machSetup{machOrSpeed: machOrSpeed, pa: f.StagnationPressure.Max, pTop: f.StagnationPressure.Max}
+	// Zeroed, then set: a composite literal is built on the stack and
+	// copied into *c.
+	*c = machSetup{}
+	c.machOrSpeed, c.pa, c.pTop = machOrSpeed, f.StagnationPressure.Max, f.StagnationPressure.Max
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
 	// Boiling at p0 and cavitation in the test section set a T0 ceiling: warmer
 	// water has a higher vapour pressure (waterMargin). The states at the
@@ -1792,6 +1795,19 @@ func (sv *solver) waterMargin(machOrSpeed, p0, t float64) (float64, string) {
 func (sv *solver) waterMarginOf(st *facilities.State, err error) (float64, string) {
 	if err != nil {
 		return -1, facilities.ConstraintBoiling
+	}
+	if w := sv.water; w != nil && st.StagnationTemperature > 0 && st.Static.Temperature == st.StagnationTemperature {
+		// A water state's static and stagnation temperatures are one
+		// (facilities.LiquidState): boilingMargin's and cavitationMargin's
+		// vapour pressure looked up once (TestWaterMarginOfMatchesMargins).
+		pv := w.vapourPressure(st.StagnationTemperature)
+		m, name := st.StagnationPressure/pv-1-sv.boilMin, facilities.ConstraintBoiling
+		if !sv.cavAllowed {
+			if c := st.Static.Pressure/pv - 1 - sv.cavMin; c < m {
+				m, name = c, facilities.ConstraintCavitation
+			}
+		}
+		return m, name
 	}
 	m, name := sv.boilingMargin(st)-sv.boilMin, facilities.ConstraintBoiling
 	if !sv.cavAllowed {

@@ -154,3 +154,47 @@ func TestWaterStateInMatchesState(t *testing.T) {
 	require.Greater(t, refused, states/20, "too few states refused")
 	require.Greater(t, failed, 5, "too few set-ups fail")
 }
+
+// TestWaterMarginOfMatchesMargins checks waterMarginOf's water states, whose
+// vapour pressure it looks up once, against boilingMargin and
+// cavitationMargin less their minimums (the rule it shortcuts), to the bit:
+// random vessels and tunnels (randomVessel), with cavitation in the test
+// section allowed and not, the minimums 0 and lowered, at random speeds and temperatures inside and
+// outside the usable range, so that either margin binds or neither does.
+func TestWaterMarginOfMatchesMargins(t *testing.T) {
+	rng := rand.New(rand.NewSource(53))
+	names := map[string]int{}
+	for i := 0; i < 200; i++ {
+		f, art, fl := randomVessel(t, rng, i)
+		sv, err := newSolver(&Problem{Flight: fl, Article: art, Facility: f})
+		require.NoError(t, err)
+		for j := 0; j < 20; j++ {
+			sv.cavAllowed = j%2 == 1
+			// The minimums as given or as a relaxed copy lowers them
+			// (relaxed: 0.01 less).
+			sv.boilMin, sv.cavMin = 0, 0
+			if j%4 >= 2 {
+				sv.boilMin, sv.cavMin = -0.01*rng.Float64(), -0.01*rng.Float64()
+			}
+			u := sv.machOrSpeedMin + (sv.machOrSpeedMax*1.5-sv.machOrSpeedMin)*rng.Float64()
+			temp := f.StagnationTemperature.Min + (facilities.WaterMaxTemperature-f.StagnationTemperature.Min)*rng.Float64()
+			var st facilities.State
+			if sv.stateIn(&st, u, f.StagnationPressure.Max, temp) != nil {
+				continue
+			}
+			m, name := sv.waterMarginOf(&st, nil)
+			want, wantName := sv.boilingMargin(&st)-sv.boilMin, facilities.ConstraintBoiling
+			if c := sv.cavitationMargin(&st) - sv.cavMin; !sv.cavAllowed && c < want {
+				want, wantName = c, facilities.ConstraintCavitation
+			}
+			require.Equal(t, math.Float64bits(want), math.Float64bits(m), "case %d, %g m/s, %g K: margin %g, want %g", i, u, temp, m, want)
+			require.Equal(t, wantName, name, "case %d, %g m/s, %g K", i, u, temp)
+			if m < 0 {
+				names[name]++
+			}
+		}
+	}
+	t.Logf("binding below 0: %v", names)
+	require.Positive(t, names[facilities.ConstraintBoiling], "no state boils")
+	require.Positive(t, names[facilities.ConstraintCavitation], "no state cavitates")
+}
