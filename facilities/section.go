@@ -267,25 +267,26 @@ func (f *Facility) waterState(s Setting) (State, error) {
 // viscosity mu (Pa·s): q = ½ρv², p = p0 − q, Re/m = ρv/μ, incompressible. It
 // is false where the static pressure would not be positive.
 func LiquidState(v, p0, t, rho, mu float64) (State, bool) {
+	var st State
+	ok := LiquidStateIn(&st, v, p0, t, rho, mu)
+	return st, ok
+}
+
+// LiquidStateIn is LiquidState into *st, which it sets to the zero State where
+// it reports false: a caller that keeps the state in a larger value writes it
+// there without the State's copy on the way back.
+func LiquidStateIn(st *State, v, p0, t, rho, mu float64) bool {
 	q := 0.5 * rho * v * v
 	p := p0 - q
 	if !(p > 0) {
-		return State{}, false
+		*st = State{}
+		return false
 	}
-	return State{
-		Speed:                 v,
-		StagnationPressure:    p0,
-		StagnationTemperature: t,
-		Static: Static{
-			Temperature:     t,
-			Pressure:        p,
-			Density:         rho,
-			Viscosity:       mu,
-			Compressibility: 1,
-		},
-		DynamicPressure:  q,
-		ReynoldsPerMeter: rho * v / mu,
-	}, true
+	*st = State{}
+	st.Speed, st.StagnationPressure, st.StagnationTemperature = v, p0, t
+	st.Static.Temperature, st.Static.Pressure, st.Static.Density, st.Static.Viscosity, st.Static.Compressibility = t, p, rho, mu, 1
+	st.DynamicPressure, st.ReynoldsPerMeter = q, rho*v/mu
+	return true
 }
 
 // condensationPeakMach returns the facility's local peak Mach number for the

@@ -445,3 +445,34 @@ func BenchmarkCondensationMargin(b *testing.B) {
 		})
 	}
 }
+
+// TestLiquidStateInOverwrites checks LiquidStateIn, which writes a water
+// state into its caller's State, against the state written out from its
+// definition (q = ½ρv², p = p0 − q, Re/m = ρv/μ, incompressible; Mach 0 and
+// no speed of sound kept), over a State whose every field held something
+// before: each field is set, none left over, and a state whose static
+// pressure would not be positive leaves the zero State and false.
+func TestLiquidStateInOverwrites(t *testing.T) {
+	stale := facilities.State{Mach: 1, Speed: 2, StagnationPressure: 3, StagnationTemperature: 4,
+		Static:          facilities.Static{Temperature: 5, Pressure: 6, Density: 7, Viscosity: 8, SpeedOfSound: 9, Compressibility: 10},
+		DynamicPressure: 11, ReynoldsPerMeter: 12}
+	for _, c := range []struct{ v, p0, t, rho, mu float64 }{
+		{5, 2e5, 293.15, 998.2, 1.0016e-3},
+		{0, 1e5, 280, 999.9, 1.43e-3},
+		{12.5, 3.1e5, 305.5, 995.1, 7.7e-4},
+	} {
+		st := stale
+		require.True(t, facilities.LiquidStateIn(&st, c.v, c.p0, c.t, c.rho, c.mu), "%+v", c)
+		q := 0.5 * c.rho * c.v * c.v
+		want := facilities.State{Speed: c.v, StagnationPressure: c.p0, StagnationTemperature: c.t,
+			Static:          facilities.Static{Temperature: c.t, Pressure: c.p0 - q, Density: c.rho, Viscosity: c.mu, Compressibility: 1},
+			DynamicPressure: q, ReynoldsPerMeter: c.rho * c.v / c.mu}
+		require.Equal(t, want, st, "%+v", c)
+		got, ok := facilities.LiquidState(c.v, c.p0, c.t, c.rho, c.mu)
+		require.True(t, ok)
+		require.Equal(t, want, got, "%+v", c)
+	}
+	st := stale
+	require.False(t, facilities.LiquidStateIn(&st, 30, 1e5, 293.15, 998.2, 1.0016e-3), "q above p0")
+	require.Equal(t, facilities.State{}, st)
+}

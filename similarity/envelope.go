@@ -65,7 +65,7 @@ func (sv *solver) tradePoint(u, s float64) TradePoint {
 	}
 	var c machSetup
 	sv.prepareIn(&c, u)
-	if c.partial && sv.load != nil && !(sv.loadQ(s, c.stRef) >= sv.top(&c).q) {
+	if c.partial && sv.load != nil && !(sv.loadQ(s, &c.stRef) >= sv.top(&c).q) {
 		// The load limit caps q under the top setting here: the candidate
 		// reads the whole set-up.
 		sv.topOnly = false

@@ -189,7 +189,7 @@ func (sv *solver) froudeScale(c *machSetup) (candidate, bool) {
 		s = sq(v / vf)
 	}
 	s = math.Min(math.Max(s, sv.sLo), sv.sHi)
-	qb := sv.loadQ(s, c.stRef)
+	qb := sv.loadQ(s, &c.stRef)
 	if qb < sv.waterQAt(c, c.ta) {
 		return candidate{}, false
 	}

@@ -125,7 +125,7 @@ func (sv *solver) bestInScaleRangeRules(c *machSetup) candidate {
 			// loads must fit at this speed at the lowest q (warmest water).
 			qNeed = sv.waterQ(c.machOrSpeed, c.pa, c.tb)
 		}
-		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, c.stRef) - qNeed }, sLo, sv.sHi, false)
+		sk = sv.rootHi(func(s float64) float64 { return sv.loadQ(s, &c.stRef) - qNeed }, sLo, sv.sHi, false)
 	}
 	xk := sv.at(c, sk)
 	if !xk.ok {

@@ -1122,8 +1122,9 @@ func (sv *solver) warmMargin(c *machSetup, p0, t0 float64) (float64, string) {
 // (loadMemo): LoadLimit reads the state's Mach number and medium alone, and
 // the medium is the facility's, so the same scale and Mach number give the
 // same answer; a plan asks at few of them (a vessel's 80 to 120 calls a plan
-// at 2 to 8 scales).
-func (sv *solver) loadQ(s float64, st facilities.State) float64 {
+// at 2 to 8 scales). st is read through a pointer, and copied only to ask the
+// limit: a State passed by value is twelve numbers loaded at every call.
+func (sv *solver) loadQ(s float64, st *facilities.State) float64 {
 	if sv.load == nil {
 		return math.Inf(1)
 	}
@@ -1133,7 +1134,7 @@ func (sv *solver) loadQ(s float64, st facilities.State) float64 {
 			return sv.loadScale * e.q
 		}
 	}
-	q := sv.load.MaxDynamicPressure(s, st)
+	q := sv.load.MaxDynamicPressure(s, *st)
 	m.e[1] = m.e[0]
 	m.e[0] = loadMemoEntry{s: s, mach: st.Mach, q: q}
 	m.n = min(m.n+1, len(m.e))
@@ -1156,7 +1157,7 @@ type loadMemoEntry struct{ s, mach, q float64 }
 // ceiling (+Inf without a load limit).
 func (sv *solver) windows(s float64, st facilities.State) []Window {
 	if sv.floor == nil {
-		return []Window{{Lo: 0, Hi: sv.loadQ(s, st)}}
+		return []Window{{Lo: 0, Hi: sv.loadQ(s, &st)}}
 	}
 	ws := sv.floor.Windows(nil, s, st)
 	for i := range ws {
@@ -1185,7 +1186,7 @@ func (sv *solver) floorQ(s float64, st facilities.State) float64 {
 // scale s (one window without a load floor).
 func (sv *solver) bestOfWindows(c *machSetup, s float64, at func(Window) candidate) candidate {
 	if sv.floor == nil {
-		return at(Window{Lo: 0, Hi: sv.loadQ(s, c.stRef)})
+		return at(Window{Lo: 0, Hi: sv.loadQ(s, &c.stRef)})
 	}
 	best := candidate{machOrSpeed: c.machOrSpeed, s: s, k: worst, fail: sv.floorName}
 	for _, w := range sv.windows(s, c.stRef) {
@@ -1246,7 +1247,7 @@ func (sv *solver) topQ(c *machSetup, s float64) float64 {
 		q = sv.waterQAt(c, c.ta)
 	}
 	if sv.load != nil {
-		q = min(q, sv.loadQ(s, c.stRef))
+		q = min(q, sv.loadQ(s, &c.stRef))
 	}
 	return q
 }
@@ -1901,10 +1902,10 @@ func (sv *solver) atTarget(c *machSetup, s, target float64) candidate {
 			// cavitation search: each level copied the 208-byte candidate on
 			// its way back (about 450 instructions a call, 96 calls a vessel
 			// plan).
-			return sv.atWaterCav(c, s, target, Window{Lo: 0, Hi: sv.loadQ(s, c.stRef)})
+			return sv.atWaterCav(c, s, target, Window{Lo: 0, Hi: sv.loadQ(s, &c.stRef)})
 		}
 		// One window, as bestOfWindows takes it, without its closure.
-		return sv.atWindow(c, s, target, Window{Lo: 0, Hi: sv.loadQ(s, c.stRef)})
+		return sv.atWindow(c, s, target, Window{Lo: 0, Hi: sv.loadQ(s, &c.stRef)})
 	}
 	return sv.bestOfWindows(c, s, func(w Window) candidate { return sv.atWindow(c, s, target, w) })
 }

@@ -66,8 +66,8 @@ func (sv *solver) waterStateKept(v, p0, t float64) (facilities.State, bool) {
 	return st, ok
 }
 
-// waterStateKeptIn is waterStateKept into *st, which it leaves as it was
-// where it returns false.
+// waterStateKeptIn is waterStateKept into *st (facilities.LiquidStateIn);
+// where it returns false, *st is not the state (left as it was, or zero).
 func (sv *solver) waterStateKeptIn(st *facilities.State, v, p0, t float64) bool {
 	held := sv.f.StaticPressure != nil
 	if held {
@@ -85,9 +85,7 @@ func (sv *solver) waterStateKeptIn(st *facilities.State, v, p0, t float64) bool 
 	if held {
 		p0 += 0.5 * m.rho[i] * v * v
 	}
-	var ok bool
-	*st, ok = facilities.LiquidState(v, p0, t, m.rho[i], m.mu[i])
-	return ok
+	return facilities.LiquidStateIn(st, v, p0, t, m.rho[i], m.mu[i])
 }
 
 // boilingMargin is facilities.Facility.BoilingMargin of a water state st, with
