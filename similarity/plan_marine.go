@@ -456,18 +456,15 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				haveCold, coldLn = true, e.ln
 			}
 		}
-		coldAt := func() candidate { needCold(); return cold }
 		// y is the answer where an end or the band settles the search: top
 		// or cold themselves, or res, not copied on the way.
 		var y *candidate
 		if sv.obj.weighted {
-			var res candidate
-			ok := false
-			if res, ok = sv.cavEndWeighted(wg, top, coldAt, s, &topLn, &coldLn); !ok {
-				res, ok = sv.cavTopWeighted(e, wg, top, topRoom, coldAt(), coldRoom, s)
-			}
-			if ok {
-				y = &res
+			if y = sv.cavEndWeighted(wg, &top, &cold, needCold, s, &topLn, &coldLn); y == nil {
+				needCold()
+				if sv.cavTopWeighted(e, wg, &top, topRoom, &cold, coldRoom, s) {
+					y = &top
+				}
 			}
 		} else {
 			// cavEnd: the warmest or the coldest water, where shown.
@@ -488,7 +485,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 			keyTop()
 			// The search's own targets inside the band, where σ falls with T.
 			root := func() (candidate, bool) {
-				if target > coldAt().r && target < top.r {
+				if needCold(); target > cold.r && target < top.r {
 					t := sv.rootHi(func(t float64) float64 { return wr(t) - target }, ta, tb, true)
 					return eval(t), true
 				}
@@ -522,12 +519,14 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	type rd struct{ r, d float64 }
 	var seenArr [4 * cavGrid]rd
 	seen := seenArr[:0]
-	consider := func(y candidate) {
+	// consider reads the candidate through a pointer (a 208-byte copy a
+	// call by value).
+	consider := func(y *candidate) {
 		if y.ok {
 			seen = append(seen, rd{y.r, sv.cavDistance(y.sig)})
 		}
 		if y.ok && (!best.ok || y.k.less(best.k)) {
-			best = y
+			best = *y
 		}
 	}
 	var grid [cavGrid]candidate
@@ -551,7 +550,7 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				e.lazyAbove = grid[i].k.v[0]
 			}
 		}
-		consider(grid[i])
+		consider(&grid[i])
 		if !best.ok && grid[i].fail != "" {
 			best.fail = grid[i].fail
 		}
@@ -566,10 +565,10 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// The cavitation level (0 inside the band) and feasibility change at edges
 	// between grid points: find each to 1e-12 relative, keeping the better side
 	// (cavEdge).
-	zero := func(y candidate) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
+	zero := func(y *candidate) bool { return y.ok && sv.cavDistance(y.sig) == 0 }
 	var zs [cavGrid]bool
 	for i := range grid {
-		zs[i] = zero(grid[i])
+		zs[i] = zero(&grid[i])
 	}
 	for i := 0; i+1 < len(grid); i++ {
 		a, b := &grid[i], &grid[i+1]
@@ -579,9 +578,11 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 				// points (a band narrower than a grid cell): a point inside it,
 				// then both its ends.
 				if m, room, ok := sv.cavCrossing(e, *a, *b); ok {
-					consider(m)
-					consider(sv.cavEdge(e, m, *a, room, rooms[i]))
-					consider(sv.cavEdge(e, m, *b, room, rooms[i+1]))
+					consider(&m)
+					y := sv.cavEdge(e, m, *a, room, rooms[i])
+					consider(&y)
+					y = sv.cavEdge(e, m, *b, room, rooms[i+1])
+					consider(&y)
 				}
 			}
 			continue
@@ -590,13 +591,16 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 		if !(a.ok && (zs[i] || !zs[i+1])) {
 			good, bad, rg, rb = b, a, rb, rg
 		}
-		consider(sv.cavEdge(e, *good, *bad, rg, rb))
+		y := sv.cavEdge(e, *good, *bad, rg, rb)
+		consider(&y)
 	}
 	// The temperature that meets the target Re/m (Re/m rises with T).
 	if grid[0].ok && grid[len(grid)-1].ok {
 		if r0, r1 := grid[0].r, grid[len(grid)-1].r; target > r0 && target < r1 {
 			t := sv.rootHi(func(t float64) float64 { return wr(t) - target }, ta, tb, true)
-			consider(eval(t))
+			var y candidate
+			e.at(&y, t, waterPropsAt(t))
+			consider(&y)
 		}
 	}
 	// Refine around the best grid point (a smooth weighted objective, or a
@@ -606,14 +610,16 @@ func (sv *solver) atWaterCav(c *machSetup, s, target float64, w Window) candidat
 	// that holds it (|ln(Re_test/Re_flight)| falls toward that temperature, since
 	// Re/m rises with T), each considered already when both ends of the range
 	// are usable: no refinement then.
-	settled := sv.cavThenReynolds() && zero(best) && grid[0].ok && grid[len(grid)-1].ok
+	settled := sv.cavThenReynolds() && zero(&best) && grid[0].ok && grid[len(grid)-1].ok
 	if lo, hi := max(0, float64(ibest-1)), min(float64(len(grid)-1), float64(ibest+1)); hi > lo && tb > ta && !settled {
 		a, b := ta+(tb-ta)*lo/(cavGrid-1), ta+(tb-ta)*hi/(cavGrid-1)
-		if t, ok := sv.cavSlopeRoot(wg, grid[int(lo)], s, int(lo), int(hi)); ok && ibest > 0 && ibest < cavGrid-1 {
-			consider(eval(t))
+		var y candidate
+		if t, ok := sv.cavSlopeRoot(wg, &grid[int(lo)], s, int(lo), int(hi)); ok && ibest > 0 && ibest < cavGrid-1 {
+			e.at(&y, t, waterPropsAt(t))
 		} else {
-			consider(sv.gridMin(eval, a, b, 3, 1e-12, sv.obj.weighted, false, false))
+			y = sv.gridMin(eval, a, b, 3, 1e-12, sv.obj.weighted, false, false)
 		}
+		consider(&y)
 	}
 	if !best.ok {
 		return candidate{machOrSpeed: c.machOrSpeed, s: s, fail: best.fail, k: worst}
@@ -675,11 +681,13 @@ func (sv *solver) cavEndCold(g *waterGrid, cold *candidate) bool {
 // cavEndWeighted is cavEnd for a weighted objective: the candidate at the
 // coldest or the warmest water of the grid g where that end is shown to be the
 // best, with the Re/m reachable at its cavitation level (rlo, rhi, as
-// atWaterCav's search would find them), and true; false where that is not
-// shown. top is atWaterCav's candidate at g's warmest temperature, coldAt
-// gives the one at its coldest; s is the scale. topLn and coldLn are the
+// atWaterCav's search would find them, set in it): top or cold itself; nil
+// where that is not shown. top is atWaterCav's candidate at g's warmest
+// temperature, cold the one at its coldest once needCold has run (it
+// computes it where not yet known); s is the scale. topLn and coldLn are the
 // logarithms their keys read (cavKey's lnRe and lnSig, NaN where not read;
-// coldLn filled by coldAt), taken here instead of computed again.
+// coldLn filled by needCold), taken here instead of computed again. The
+// candidates are read and answered through pointers, not copied.
 //
 // Of the weighted sum only wc·a² + wr·b² moves with the temperature, a =
 // ln(σ/σ_full) and b = ln(Re/Re_full) (the Froude term moves with the speed
@@ -713,21 +721,21 @@ func (sv *solver) cavEndCold(g *waterGrid, cold *candidate) bool {
 // target Re/m among them, then lie strictly behind the end on the weighted
 // sum, and where they reach the end's cavitation level (the Re/m it keeps)
 // between the ends' Re/m.
-func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() candidate, s float64, topLn, coldLn *[2]float64) (candidate, bool) {
+func (sv *solver) cavEndWeighted(g *waterGrid, top, cold *candidate, needCold func(), s float64, topLn, coldLn *[2]float64) *candidate {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	if !(wc > 0) || !(wr >= 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) || !top.ok {
-		return candidate{}, false
+		return nil
 	}
 	sf := sv.fl.Marine.Cavitation
 	lo, hi, cq := sv.cavPressures()
 	if !g.falls(lo) || !g.falls(hi) {
-		return candidate{}, false
+		return nil
 	}
-	cold := coldAt()
+	needCold()
 	if !cold.ok {
-		return candidate{}, false
+		return nil
 	}
-	lnRe := func(y candidate, ln *[2]float64) float64 {
+	lnRe := func(y *candidate, ln *[2]float64) float64 {
 		if l := ln[0]; l == l {
 			return l // the same logarithm (cavKey)
 		}
@@ -737,16 +745,16 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 	// Where the end found lies outside the cavitation band, no other
 	// temperature reaches its cavitation level (σ moves strictly away from
 	// the band), and the Re/m reachable there is its own.
-	outside := func(y candidate) bool { return sv.cavDistance(y.sig) > 0 }
+	outside := func(y *candidate) bool { return sv.cavDistance(y.sig) > 0 }
 	switch {
 	case top.sig > sf*(1+1e-9) && bT < 0 && outside(top):
 		top.rlo, top.rhi = top.r, top.r
-		return top, true
+		return top
 	case !(cold.sig < sf*(1-1e-9)) || !(top.sig > 1e-6*sf):
-		return candidate{}, false
+		return nil
 	case bC > 0 && outside(cold):
 		cold.rlo, cold.rhi = cold.r, cold.r
-		return cold, true
+		return cold
 	}
 	v := cold.machOrSpeed
 	kq := 0.5 * v * v
@@ -756,13 +764,13 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 	nLo, nHi := g.dPv[0]+cq*kq*r1, g.dPv[cavGrid-1]+cq*kq*r0
 	gLo, gHi := hi-w1.pv-cq*kq*rhoMax, hi-w0.pv-cq*kq*rhoMin
 	if !(gLo > 0) || !(g.dRe1 > 0) {
-		return candidate{}, false
+		return nil
 	}
 	aLo := max(0, min(nLo/gLo, nLo/gHi)+r1/w1.rho)
 	aHi := max(nHi/gLo, nHi/gHi) + r0/w0.rho
 	// −ln(σ/σ_full), from the keys' ln(max(σ, 1e-9·σ_full)/σ_full) where σ
 	// is at least 1e-9·σ_full (the same logarithm).
-	lnSig := func(y candidate, ln *[2]float64) float64 {
+	lnSig := func(y *candidate, ln *[2]float64) float64 {
 		if l := ln[1]; l == l && y.sig >= 1e-9*sf {
 			return -l
 		}
@@ -775,12 +783,12 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 		// W falls over the range: the warmest is the best, and every
 		// colder state lies nearer the band (σ falls with T).
 		top.rlo, top.rhi = cold.r, top.r
-		return top, true
+		return top
 	case wc*aC*aLo > m*wr*max(-bC, 0)*g.dRe0 && outside(cold):
 		cold.rlo, cold.rhi = cold.r, cold.r
-		return cold, true
+		return cold
 	}
-	return candidate{}, false
+	return nil
 }
 
 // cavTopWeighted is cavEndWeighted where the warmest water lies inside the
@@ -792,28 +800,29 @@ func (sv *solver) cavEndWeighted(g *waterGrid, top candidate, coldAt func() cand
 // search keeps at its cavitation level, 0, run from the band's colder end to
 // the warmest: the coldest grid temperature where it lies in the band, else
 // the edge the full search finds in the grid cell where σ enters the band
-// (bisection on the grid's indices, then cavEdge). Arguments as cavBand's
-// and cavEndWeighted's.
-func (sv *solver) cavTopWeighted(e *cavEval, g *waterGrid, top candidate, topRoom float64,
-	cold candidate, coldRoom, s float64) (candidate, bool) {
+// (bisection on the grid's indices, then cavEdge). It sets that range in top
+// and reports true where top is the answer; false otherwise, top unchanged.
+// Arguments as cavBand's and cavEndWeighted's.
+func (sv *solver) cavTopWeighted(e *cavEval, g *waterGrid, top *candidate, topRoom float64,
+	cold *candidate, coldRoom, s float64) bool {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	sf, tol := sv.fl.Marine.Cavitation, sv.obj.cavTol
 	if !(wc > 0) || !(wr > 0) || (sv.obj.w[gMach] > 0 && !sv.noMach) || !top.ok || !cold.ok ||
 		sv.cavDistance(top.sig) != 0 || !(top.sig >= sf*(1-1e-12)) || !(s*sv.L*top.r < sv.fl.Reynolds) {
-		return candidate{}, false
+		return false
 	}
 	lo, hi, _ := sv.cavPressures()
 	if !g.falls(lo) || !g.falls(hi) {
-		return candidate{}, false
+		return false
 	}
 	top.rlo, top.rhi = cold.r, top.r
 	if sv.cavDistance(cold.sig) == 0 {
-		return top, true
+		return true
 	}
 	// The first grid index at or below the band's upper end (σ falls with
 	// the index), as cavDistance tests it; the warmest is one.
 	a, b := 0, cavGrid-1
-	ya, ra, yb, rb := cold, coldRoom, top, topRoom
+	ya, ra, yb, rb := *cold, coldRoom, *top, topRoom
 	for b-a > 1 {
 		m := (a + b) / 2
 		var y candidate
@@ -824,7 +833,7 @@ func (sv *solver) cavTopWeighted(e *cavEval, g *waterGrid, top candidate, topRoo
 		}
 	}
 	top.rlo = sv.cavEdge(e, yb, ya, rb, ra).r
-	return top, true
+	return true
 }
 
 // cavSlopeRoot returns the temperature in [a, b] where the weighted sum's
@@ -852,7 +861,7 @@ func (sv *solver) cavTopWeighted(e *cavEval, g *waterGrid, top candidate, topRoo
 // where W itself, flat at its minimum, places the minimum only to about 1e-8
 // (the square root of the rounding), which Brent's method on W spent some 30
 // states to reach.
-func (sv *solver) cavSlopeRoot(g *waterGrid, ya candidate, s float64, ia, ib int) (float64, bool) {
+func (sv *solver) cavSlopeRoot(g *waterGrid, ya *candidate, s float64, ia, ib int) (float64, bool) {
 	wc, wr := sv.obj.w[gCavitation], sv.obj.w[gReynolds]
 	sf := sv.fl.Marine.Cavitation
 	a, b := cavGridT(g.ta, g.tb, ia), cavGridT(g.ta, g.tb, ib)
