@@ -991,30 +991,6 @@ func (sv *solver) stateNow(machOrSpeed, p0, t0 float64) (facilities.State, error
 			return st, nil
 		}
 	}
-	return sv.stateFacility(machOrSpeed, p0, t0)
-}
-
-// stateIn is state into *st, for a water facility without the solver's
-// states kept (solver.memo nil) straight from the water's properties kept
-// (waterStateKeptIn), without the three copies of the 96-byte State on
-// its way back through state, stateNow and waterStateKept.
-func (sv *solver) stateIn(st *facilities.State, machOrSpeed, p0, t0 float64) error {
-	if sv.memo != nil || sv.water == nil {
-		var err error
-		*st, err = sv.state(machOrSpeed, p0, t0)
-		return err
-	}
-	sv.evals++ // stateNow's count
-	if sv.waterStateKeptIn(st, machOrSpeed, p0, t0) {
-		return nil
-	}
-	var err error
-	*st, err = sv.stateFacility(machOrSpeed, p0, t0)
-	return err
-}
-
-// stateFacility is stateNow from the facility's own model (facilities.Facility.State).
-func (sv *solver) stateFacility(machOrSpeed, p0, t0 float64) (facilities.State, error) {
 	set := facilities.Setting{StagnationPressure: p0, StagnationTemperature: t0}
 	if sv.liquid {
 		set.Speed = machOrSpeed
@@ -1025,6 +1001,22 @@ func (sv *solver) stateFacility(machOrSpeed, p0, t0 float64) (facilities.State, 
 		return sv.f.StateFrom(sv.stags.at(p0, t0), set)
 	}
 	return sv.f.State(set)
+}
+
+// stateIn is state into *st, for a water facility without the solver's
+// states kept (solver.memo nil) straight from the water's properties kept
+// (waterStateKeptIn), without the three copies of the 96-byte State on
+// its way back through state, stateNow and waterStateKept.
+func (sv *solver) stateIn(st *facilities.State, machOrSpeed, p0, t0 float64) error {
+	if sv.memo == nil && sv.water != nil && sv.waterStateKeptIn(st, machOrSpeed, p0, t0) {
+		sv.evals++ // stateNow's count
+		return nil
+	}
+	// Refused (State decides) or kept states: the general path, which asks
+	// waterStateKept again where it applies.
+	var err error
+	*st, err = sv.state(machOrSpeed, p0, t0)
+	return err
 }
 
 // stagnations are the nitrogen stagnation states a solver computed last, by
