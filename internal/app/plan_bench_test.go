@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"maps"
 	"os"
-	"syscall"
 	"testing"
 	"time"
 
@@ -72,7 +71,7 @@ func benchPlan(b *testing.B, p *app.Planner, req *schema.PlanRequest) {
 		b.Fatal(err)
 	}
 	b.ReportAllocs()
-	cpu0 := cpuTime()
+	cpu0 := app.ProcessCPU()
 	for b.Loop() {
 		if _, err := p.Plan(ctx, req); err != nil {
 			b.Fatal(err)
@@ -80,17 +79,7 @@ func benchPlan(b *testing.B, p *app.Planner, req *schema.PlanRequest) {
 	}
 	// The process's CPU time per plan: on a shared machine the wall time
 	// also counts the waits for a core, the CPU time does not.
-	b.ReportMetric(float64((cpuTime()-cpu0).Nanoseconds())/float64(b.N), "cpu-ns/op")
-}
-
-// cpuTime returns the CPU time, user and system, this process has used so far
-// (0 where getrusage fails).
-func cpuTime() time.Duration {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
+	b.ReportMetric(float64((app.ProcessCPU()-cpu0).Nanoseconds())/float64(b.N), "cpu-ns/op")
 }
 
 // BenchmarkPlanKinds times the whole plan without HTTP (app.Planner.Plan: the
