@@ -375,9 +375,7 @@ func (a Aero) MatrixIn(points []facilities.Point, alpha Sweep, beta *Sweep) (Mat
 		for _, v := range stallAt {
 			lo, hi = math.Min(lo, v), math.Max(hi, v)
 		}
-		mx.Warnings = append(mx.Warnings, fmt.Sprintf(
-			"the lift estimate is held at ±C_Lmax = %g past the stall at %d of %d points (α %g° to %g°); post-stall drag and pitching moment are not modelled, so loads there are rough",
-			a.CLMax, mx.Stalled, len(mx.Points), lo, hi))
+		mx.Warnings = append(mx.Warnings, stallNote(a.CLMax, mx.Stalled, len(mx.Points), lo, hi))
 	}
 	return mx, nil
 }

@@ -294,16 +294,16 @@ func ReynoldsEffect(art *Article, reFlight, machFlight, reTest, machTest float64
 	flightTurbulent := r.FullScaleBoundaryLayer == BoundaryLayerTurbulent || r.FlightTransitionFraction < TripFlightFraction
 	r.TripsRecommended = r.NaturalTransitionFraction > TripModelFraction && flightTurbulent
 	if r.TripsRecommended {
-		where := fmt.Sprintf("%.1f %%", 100*r.FlightTransitionFraction)
+		var where string
 		if r.FullScaleBoundaryLayer == BoundaryLayerTurbulent {
 			where = "the leading edge (turbulent full scale)"
+		} else {
+			where = flightTransitionAt(100 * r.FlightTransitionFraction)
 		}
-		r.Notes = append(r.Notes, fmt.Sprintf(
-			"natural transition on the model near %.0f %% of the reference length against %s at full scale: fix transition with trips near the leading edges (common practice); the tripped estimate is %+.1f counts",
-			100*r.NaturalTransitionFraction, where, r.DeltaCDCountsTripped))
+		r.Notes = append(r.Notes, transitionNote(100*r.NaturalTransitionFraction, where, r.DeltaCDCountsTripped))
 	}
 	if reTest < TransitionReynolds {
-		r.Notes = append(r.Notes, fmt.Sprintf("the model's Reynolds number %.3g is below the flat-plate transition value %.0e: trips may not hold a turbulent boundary layer and size them with care", reTest, TransitionReynolds))
+		r.Notes = append(r.Notes, lowReynoldsNote(reTest))
 	}
 	if r.Line == LineITTC1957 {
 		r.Notes = append(r.Notes, "fully turbulent friction (full scale, tripped model) on the ITTC 1957 line as chosen; natural transition on the model on the transitional Prandtl–Schlichting law")

@@ -1,7 +1,6 @@
 package similarity
 
 import (
-	"fmt"
 	"math"
 
 	"scalematch/facilities"
@@ -1201,24 +1200,25 @@ func (sv *solver) marineNotes(st facilities.State, res *Result) []string {
 	var w []string
 	switch {
 	case !sv.liquid:
-		w = append(w, fmt.Sprintf("a vessel in a gas facility: only the Reynolds number is matched; the cavitation number (full scale %.4g) and the free surface are not represented", m.Cavitation))
+		w = append(w, gasVesselNote(m.Cavitation))
 	case res.Mismatch.CavitationMatched != nil && !*res.Mismatch.CavitationMatched:
 		what := "the facility's pressure range cannot hold it at any usable speed and temperature"
 		if !sv.held && sv.f.StagnationPressure.Fixed() {
 			what = "the facility does not set its test-section pressure: σ follows from the speed"
 		}
-		w = append(w, fmt.Sprintf("the cavitation number is not matched: the test reaches σ %.4g against %.4g at full scale (%s); cavitation inception and extent will differ",
-			*res.Test.Cavitation, m.Cavitation, what))
+		w = append(w, cavUnmatchedNote(*res.Test.Cavitation, m.Cavitation, what))
 	case res.Test.Cavitation != nil && !sv.cav:
-		w = append(w, fmt.Sprintf("the cavitation number is not in the objective: the test runs at σ %.4g against %.4g at full scale", *res.Test.Cavitation, m.Cavitation))
+		w = append(w, cavOutsideObjectiveNote(*res.Test.Cavitation, m.Cavitation))
 	}
 	if sv.liquid && m.FreeSurface != SurfaceSubmerged {
-		fd := ""
-		if m.FroudeDepth != nil {
-			fd = fmt.Sprintf(", on depth %.4g", *m.FroudeDepth)
+		var verb string // "" for any other surface, as the lookup it replaces gave
+		switch m.FreeSurface {
+		case SurfaceNear:
+			verb = "runs near"
+		case SurfacePiercing:
+			verb = "pierces"
 		}
-		w = append(w, fmt.Sprintf("the vessel %s the free surface (full-scale Froude number on length %.4g%s), but a closed water tunnel has none: the Froude number cannot be matched and waves, spray and ventilation are not reproduced",
-			map[string]string{SurfaceNear: "runs near", SurfacePiercing: "pierces"}[m.FreeSurface], sv.fl.Froude, fd))
+		w = append(w, freeSurfaceNote(verb, sv.fl.Froude, m.FroudeDepth))
 	}
 	return w
 }

@@ -1,7 +1,6 @@
 package similarity
 
 import (
-	"fmt"
 	"math"
 
 	"scalematch/facilities"
@@ -180,22 +179,20 @@ func (sv *solver) notes(x candidate, st facilities.State, res *Result) []string 
 	var w []string
 	if !sv.noMach {
 		if dc := res.Mismatch.CorrectedMachDifference; dc != nil {
-			w = append(w, fmt.Sprintf("the Mach number is compared with the flight's after the closed-wall correction: free stream M %.4f, corrected M_c %.4f (blockage at the middle of the matrix's drag range; each point's M_c is in the corrections)",
-				st.Mach, sv.fl.Mach+*dc))
+			w = append(w, machCorrectedNote(st.Mach, sv.fl.Mach+*dc))
 		}
 		if !*res.Mismatch.MachMatched && !sv.obj.weighted && sv.obj.levels[0] == gMach {
 			nearest := st.Mach
 			if dc := res.Mismatch.CorrectedMachDifference; dc != nil {
 				nearest = sv.fl.Mach + *dc
 			}
-			w = append(w, fmt.Sprintf("the flight Mach number %.4g is out of the facility's reach: the nearest usable is %.4g", sv.fl.Mach, nearest))
+			w = append(w, machReachNote(sv.fl.Mach, nearest))
 		}
 	}
 	if r := res.Mismatch.ReynoldsRatio; r < 1-RatioMatchBand {
-		w = append(w, fmt.Sprintf("the model reaches %.3g of the flight Reynolds number (%.4g against %.4g): expect a Reynolds-number effect on drag and maximum lift",
-			r, res.Test.Reynolds, sv.fl.Reynolds))
+		w = append(w, reynoldsShortNote(r, res.Test.Reynolds, sv.fl.Reynolds))
 	} else if r > 1+RatioMatchBand {
-		w = append(w, fmt.Sprintf("the test Reynolds number is %.3g times the flight's: the facility cannot go lower with the allowed models", r))
+		w = append(w, reynoldsOverNote(r))
 	}
 	w = append(w, sv.marineNotes(st, res)...)
 	if sv.liquid && !sv.cav {

@@ -1,7 +1,6 @@
 package similarity
 
 import (
-	"fmt"
 	"math"
 	"sort"
 	"sync"
@@ -84,13 +83,12 @@ func SizeTrip(reChord, chord, transitionFraction float64) TripSize {
 		ExceedsBoundaryLayer:      eta > blasiusEdgeEta,
 		Pointless:                 transitionFraction <= TripPositionFraction,
 	}
-	t.Notes = append(t.Notes, fmt.Sprintf("trip at %.0f %% of the reference chord (%.3g mm from the leading edge), roughness height %.3g mm for Re_k = %d (Braslow & Knox 1958, NACA TN 4363), local flow from a flat-plate laminar (Blasius) profile at the free-stream speed",
-		100*t.PositionFraction, t.Position, t.Height, TripCriticalRoughnessReynolds))
+	t.Notes = append(t.Notes, tripNote(100*t.PositionFraction, t.Position, t.Height, TripCriticalRoughnessReynolds))
 	if t.ExceedsBoundaryLayer {
-		t.Notes = append(t.Notes, fmt.Sprintf("the trip height %.3g mm exceeds the local laminar boundary-layer thickness %.3g mm: it over-trips, adding drag and thickening the boundary layer; move it aft or accept the penalty knowingly", t.Height, t.BoundaryLayerThickness))
+		t.Notes = append(t.Notes, overTripNote(t.Height, t.BoundaryLayerThickness))
 	}
 	if t.Pointless {
-		t.Notes = append(t.Notes, fmt.Sprintf("natural transition on the model (near %.1f %% of the chord) is already ahead of the trip position: a trip there does nothing", 100*transitionFraction))
+		t.Notes = append(t.Notes, pointlessTripNote(100*transitionFraction))
 	}
 	return t
 }
