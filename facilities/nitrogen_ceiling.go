@@ -129,11 +129,11 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 		var ok bool
 		if prev != nil && prev.OK {
 			if T, rho, ok = last.start(p0-prev.p0, t0-prev.t0); ok {
-				T, rho, n, ok = nitrogenNewton(n0, m, 0, T, rho)
+				T, rho, n, ok = nitrogenNewton(n0, m, 0, T, rho, nitrogenMaxSteps)
 			}
 		}
 		if !ok {
-			T, rho, n, ok = nitrogenExpand(t0, rho0, n0, m, 0)
+			T, rho, n, ok = nitrogenExpand(t0, rho0, n0, m, 0, nitrogenMaxSteps)
 		}
 		if !ok {
 			return staticSlopes{}, n, false
