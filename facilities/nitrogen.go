@@ -231,13 +231,13 @@ const nitrogenMaxSteps = 30
 // the point returned (the rest differ by less than the step). ok is false when
 // the iteration leaves the gas-like region or does not converge within steps
 // states (nitrogenMaxSteps; TestChebyshevStepSaves asks for two).
-func nitrogenExpand(t0, rho0 float64, n0 n2Props, mach, speed float64, steps int) (T, rho float64, n n2Props, ok bool) {
+func nitrogenExpand(t0, rho0 float64, n0 *n2Props, mach, speed float64, steps int, n *n2Props) (T, rho float64, ok bool) {
 	g := NitrogenGamma
 	if speed > 0 {
 		// The ideal-gas Mach number of this speed, as a start.
 		den := g*nitrogenPR.r*t0 - 0.5*(g-1)*speed*speed
 		if !(den > 0) {
-			return 0, 0, n2Props{}, false
+			return 0, 0, false
 		}
 		mach = speed / math.Sqrt(den)
 	}
@@ -276,7 +276,7 @@ func nitrogenExpand(t0, rho0 float64, n0 n2Props, mach, speed float64, steps int
 		tr := 1 + 0.5*(g-1)*mach*mach
 		T, rho = t0/tr, rho0*math.Pow(tr, -1/(g-1))
 	}
-	return nitrogenNewton(n0, mach, speed, T, rho, steps)
+	return nitrogenNewton(n0, mach, speed, T, rho, steps, n)
 }
 
 // startLog1p returns ln(1 + y) for nitrogenExpand's start: for 0 ≤ y ≤ 0.5
@@ -310,14 +310,13 @@ func startExp(x float64) float64 {
 // the static state on the isentrope through the stagnation state's properties
 // n0 at Mach number mach, or at speed in m/s when speed > 0, in at most steps
 // states (nitrogenMaxSteps but in tests).
-func nitrogenNewton(n0 n2Props, mach, speed, T, rho float64, steps int) (float64, float64, n2Props, bool) {
-	var n n2Props
+func nitrogenNewton(n0 *n2Props, mach, speed, T, rho float64, steps int, n *n2Props) (float64, float64, bool) {
 	v2 := speed * speed
 	m2 := mach * mach
 	for range steps {
 		n.at(T, rho)
 		if !n.valid || !(T > 0) {
-			return 0, 0, n2Props{}, false
+			return 0, 0, false
 		}
 		f1 := n.s - n0.s
 		f2 := n.h - n0.h
@@ -336,7 +335,7 @@ func nitrogenNewton(n0 n2Props, mach, speed, T, rho float64, steps int) (float64
 		j21, j22 := n.cv+n.pT*iRho+kT, (n.pRho-T*n.pT*iRho)*iRho+kRho
 		det := j11*j22 - j12*j21
 		if det == 0 || math.IsNaN(det) {
-			return 0, 0, n2Props{}, false
+			return 0, 0, false
 		}
 		iDet := 1 / det
 		dT := (f1*j22 - f2*j12) * iDet
@@ -381,10 +380,10 @@ func nitrogenNewton(n0 n2Props, mach, speed, T, rho float64, steps int) (float64
 		if math.Abs(dT) <= nitrogenStepTol*T && math.Abs(dr) <= nitrogenStepTol*rho {
 			n.p -= n.pT*dT + n.pRho*dr
 			n.a2 -= n.a2T*dT + n.a2Rho*dr
-			return T, rho, n, n.valid && T > 0 && rho > 0
+			return T, rho, n.valid && T > 0 && rho > 0
 		}
 	}
-	return 0, 0, n2Props{}, false
+	return 0, 0, false
 }
 
 // nitrogenStatic is the static state of nitrogen in the test section.
@@ -428,18 +427,18 @@ type expansionStart struct{ mach, T, rho float64 }
 
 // expand is nitrogenExpand from g, or, to the Mach number of g's start
 // (speed 0), nitrogenNewton from that start (nitrogenExpand should it fail).
-func (g *Stagnation) expand(mach, speed float64) (T, rho float64, n n2Props, ok bool) {
+func (g *Stagnation) expand(mach, speed float64, n *n2Props) (T, rho float64, ok bool) {
 	if st := g.start; speed == 0 && st.T > 0 && st.mach == mach {
-		if T, rho, n, ok = nitrogenNewton(g.n0, mach, 0, st.T, st.rho, nitrogenMaxSteps); ok {
-			return T, rho, n, ok
+		if T, rho, ok = nitrogenNewton(&g.n0, mach, 0, st.T, st.rho, nitrogenMaxSteps, n); ok {
+			return T, rho, ok
 		}
 	}
 	if st := g.local; speed == 0 && st.T > 0 && st.mach == mach {
-		if T, rho, n, ok = nitrogenNewton(g.n0, mach, 0, st.T, st.rho, nitrogenMaxSteps); ok {
-			return T, rho, n, ok
+		if T, rho, ok = nitrogenNewton(&g.n0, mach, 0, st.T, st.rho, nitrogenMaxSteps, n); ok {
+			return T, rho, ok
 		}
 	}
-	return nitrogenExpand(g.T0, g.rho0, g.n0, mach, speed, nitrogenMaxSteps)
+	return nitrogenExpand(g.T0, g.rho0, &g.n0, mach, speed, nitrogenMaxSteps, n)
 }
 
 // NitrogenStagnation returns nitrogen's stagnation state at p0 in Pa and t0 in
@@ -451,11 +450,12 @@ func NitrogenStagnation(p0, t0 float64) Stagnation {
 
 // nitrogenFreeStreamFrom is nitrogenFreeStream from the stagnation state g.
 func nitrogenFreeStreamFrom(g *Stagnation, mach, speed float64) (nitrogenStatic, error) {
-	t0, p0, rho0, n0 := g.T0, g.P0, g.rho0, g.n0
+	t0, p0 := g.T0, g.P0
 	if mach == 0 && speed == 0 {
-		return nitrogenStatic{T: t0, p: p0, rho: rho0, a: math.Sqrt(n0.a2)}, nil
+		return nitrogenStatic{T: t0, p: p0, rho: g.rho0, a: math.Sqrt(g.n0.a2)}, nil
 	}
-	T, rho, n, ok := g.expand(mach, speed)
+	var n n2Props
+	T, rho, ok := g.expand(mach, speed, &n)
 	if !ok {
 		field, what := "mach", fmt.Sprintf("Mach %g", mach)
 		if speed > 0 {
@@ -489,7 +489,8 @@ func nitrogenExpandSlope(t0, p0, mach float64) (T, p, dT, dp float64, ok bool) {
 	if mach == 0 {
 		return t0, p0, 1, 0, true
 	}
-	T, rho, n, ok := nitrogenExpand(t0, rho0, n0, mach, 0, nitrogenMaxSteps)
+	var n n2Props
+	T, rho, ok := nitrogenExpand(t0, rho0, &n0, mach, 0, nitrogenMaxSteps, &n)
 	if !ok {
 		return 0, 0, 0, 0, false
 	}

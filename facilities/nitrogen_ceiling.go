@@ -123,47 +123,51 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 	drT := -n0.pT / n0.pRho
 	dsT, dhT := n0.cv/t0-n0.pT/(rho0*rho0)*drT, n0.cv+n0.pT/rho0+hRho0*drT
 
-	expand := func(m float64, last *staticSlopes) (staticSlopes, n2Props, bool) {
+	// expand writes the static state at Mach number m and its slopes into
+	// ss, its properties into n (both the caller's: a 48-byte staticSlopes
+	// and an 88-byte n2Props returned by value were copied on the way).
+	expand := func(m float64, last *staticSlopes, ss *staticSlopes, n *n2Props) bool {
 		var T, rho float64
-		var n n2Props
 		var ok bool
 		if prev != nil && prev.OK {
 			if T, rho, ok = last.start(p0-prev.p0, t0-prev.t0); ok {
-				T, rho, n, ok = nitrogenNewton(n0, m, 0, T, rho, nitrogenMaxSteps)
+				T, rho, ok = nitrogenNewton(&n0, m, 0, T, rho, nitrogenMaxSteps, n)
 			}
 		}
 		if !ok {
-			T, rho, n, ok = nitrogenExpand(t0, rho0, n0, m, 0, nitrogenMaxSteps)
+			T, rho, ok = nitrogenExpand(t0, rho0, &n0, m, 0, nitrogenMaxSteps, n)
 		}
 		if !ok {
-			return staticSlopes{}, n, false
+			return false
 		}
 		m2 := m * m
 		j11, j12 := n.cv/T, -n.pT/(rho*rho)
 		j21, j22 := n.cv+n.pT/rho+0.5*m2*n.a2T, (n.pRho-T*n.pT/rho)/rho+0.5*m2*n.a2Rho
 		det := j11*j22 - j12*j21
 		if det == 0 || math.IsNaN(det) {
-			return staticSlopes{}, n, false
+			return false
 		}
-		ss := staticSlopes{T: T, rho: rho}
+		ss.T, ss.rho = T, rho
 		ss.TP = (dsP*j22 - dhP*j12) / det
 		ss.rhoP = (j11*dhP - j21*dsP) / det
 		ss.TT = (dsT*j22 - dhT*j12) / det
 		ss.rhoT = (j11*dhT - j21*dsT) / det
-		return ss, n, true
+		return true
 	}
 	var lastFree, lastLocal *staticSlopes
 	if prev != nil {
 		lastFree, lastLocal = &prev.free, &prev.local
 	}
-	free, nf, ok := expand(mach, lastFree)
-	if !ok {
-		return out
+	// The static states are written in place, in out (as failed, without
+	// them, where an expansion fails).
+	var nf, nl n2Props
+	free, local := &out.free, &out.local
+	if !expand(mach, lastFree, free, &nf) {
+		return FloorSlopes{p0: p0, t0: t0}
 	}
 	peak := f.condensationPeakMach()
-	local, nl, ok := expand(peak, lastLocal)
-	if !ok || !(nl.p > 0) {
-		return out
+	if !expand(peak, lastLocal, local, &nl) || !(nl.p > 0) {
+		return FloorSlopes{p0: p0, t0: t0}
 	}
 	// q = ½·M²·ρ·a², a² = a²(T, ρ).
 	hm2 := 0.5 * mach * mach
@@ -193,7 +197,7 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 	}
 	out.M = local.T/tsat - 1
 	out.MP, out.MT = dm(local.TP, local.rhoP), dm(local.TT, local.rhoT)
-	out.free, out.local, out.OK = free, local, true
+	out.OK = true
 	out.mach, out.peak = mach, peak
 	return out
 }

@@ -64,7 +64,7 @@ func expandBefore(t0, p0, mach, speed float64) (rho0, T, rho float64, n n2Props,
 		tr := 1 + 0.5*(g-1)*mach*mach
 		T, rho = t0/tr, rho0*math.Pow(tr, -1/(g-1))
 	}
-	T, rho, n, ok = nitrogenNewton(n0, mach, speed, T, rho, nitrogenMaxSteps)
+	T, rho, ok = nitrogenNewton(&n0, mach, speed, T, rho, nitrogenMaxSteps, &n)
 	return rho0, T, rho, n, ok
 }
 
@@ -90,7 +90,8 @@ func TestExpansionStartBound(t *testing.T) {
 				}
 				rho0, tb, rb, nb, okb := expandBefore(t0, p0, mach, speed)
 				worstRho0 = math.Max(worstRho0, rel(g.rho0, rho0))
-				T, rho, n, ok := nitrogenExpand(g.T0, g.rho0, g.n0, mach, speed, nitrogenMaxSteps)
+				var n n2Props
+				T, rho, ok := nitrogenExpand(g.T0, g.rho0, &g.n0, mach, speed, nitrogenMaxSteps, &n)
 				require.Equal(t, okb, ok, "p0 %g t0 %g mach %g speed %g", p0, t0, mach, speed)
 				if !ok {
 					continue
@@ -199,7 +200,8 @@ func BenchmarkNitrogenExpand(b *testing.B) {
 	i := 0
 	for b.Loop() {
 		g := &gs[i&63]
-		T, _, _, _ := nitrogenExpand(g.T0, g.rho0, g.n0, 0.3+0.1*float64(i&7), 0, nitrogenMaxSteps)
+		var n n2Props
+		T, _, _ := nitrogenExpand(g.T0, g.rho0, &g.n0, 0.3+0.1*float64(i&7), 0, nitrogenMaxSteps, &n)
 		sink += T
 		i++
 	}
@@ -270,10 +272,11 @@ func TestChebyshevStepSaves(t *testing.T) {
 			g := NitrogenStagnation(p0, t0)
 			for i := 0; i <= 24; i++ {
 				mach := 0.2 + 0.05*float64(i)
-				T, rho, _, ok := nitrogenExpand(g.T0, g.rho0, g.n0, mach, 0, nitrogenMaxSteps)
+				var n n2Props
+				T, rho, ok := nitrogenExpand(g.T0, g.rho0, &g.n0, mach, 0, nitrogenMaxSteps, &n)
 				require.True(t, ok, "p0 %g t0 %g mach %g", p0, t0, mach)
 				all++
-				if T2, rho2, _, ok2 := nitrogenExpand(g.T0, g.rho0, g.n0, mach, 0, 2); ok2 {
+				if T2, rho2, ok2 := nitrogenExpand(g.T0, g.rho0, &g.n0, mach, 0, 2, &n); ok2 {
 					two++
 					require.Equal(t, T, T2)
 					require.Equal(t, rho, rho2)
@@ -306,7 +309,8 @@ func TestChebyshevStepSaves(t *testing.T) {
 			mach = DefaultCondensationPeakMach
 		}
 		g := NitrogenStagnation(p0, t0)
-		T, rho, n, ok := nitrogenExpand(g.T0, g.rho0, g.n0, mach, speed, nitrogenMaxSteps)
+		var n n2Props
+		T, rho, ok := nitrogenExpand(g.T0, g.rho0, &g.n0, mach, speed, nitrogenMaxSteps, &n)
 		tb, rb, nb, okb := expandWith(&g, mach, speed, nitrogenMaxSteps)
 		require.Equal(t, okb, ok, "p0 %g t0 %g mach %g speed %g", p0, t0, mach, speed)
 		if !ok {
