@@ -89,7 +89,7 @@ type LoadLimit interface {
 
 // LoadFloor is a lower limit on the test's dynamic pressure that depends on the
 // model scale and on the balance: the least q at which a balance resolves the
-// coefficients the test needs (internal/loads.Limit.Resolve). Each balance the test may
+// coefficients the test needs (internal/loads.Limit.Resolved). Each balance the test may
 // use has its own window of dynamic pressure, from its floor up to its load
 // ceiling; the plan keeps within one of them, honours it like any facility
 // limit, and reports the floor by FloorName in its binding list.

@@ -380,15 +380,17 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	var err error
 	prob := &similarity.Problem{Flight: flight, Article: &req.Article, Facility: f, Model: req.Model, Objective: req.Objective,
 		MatrixDrag: mx.DragRange(), CavitationAllowed: req.CavitationAllowed}
-	var ll *loads.Limit
+	// base is the load limit without the required resolution, for the plan
+	// made without it below.
+	var base *loads.Limit
 	if len(f.Balances) > 0 {
-		ll, err = loads.NewLimit(&req.Article, f, req.Installation.WithBuoyancy(f), mx)
+		var ll *loads.Limit
+		base, ll, err = loadLimits.Limits(&req.Article, f, req.Installation.WithBuoyancy(f), mx, req.RequiredResolution)
 		if err != nil {
 			return nil, err
 		}
 		prob.LoadLimit = ll
 		if !req.RequiredResolution.Empty() {
-			ll.Resolve(req.RequiredResolution)
 			prob.LoadFloor = ll
 		}
 	}
@@ -398,8 +400,7 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	// and says so (loads.ResolutionNoBalance).
 	unresolved := false
 	if err != nil && prob.LoadFloor != nil && check.ErrorCode(err) == check.CodeUnprocessable {
-		prob.LoadFloor = nil
-		ll.Resolve(nil)
+		prob.LoadLimit, prob.LoadFloor = base, nil
 		res, err = similarity.Plan(prob, nil)
 		unresolved = true
 	}
@@ -496,6 +497,12 @@ func (pp *preparedPlan) plan() (*schema.PlanResponse, error) {
 	}
 	return out, nil
 }
+
+// loadLimits keeps the load limits of the last plans (loads.LimitCache): the
+// plans of a campaign, or the load tool's, differ in their flight condition
+// alone, which the limit does not read, and build it once. 32 entries of a
+// plan's usual size (17 points, two balances) hold about 150 kB.
+var loadLimits = loads.NewLimitCache(32)
 
 // planInputs names the request field that feeds each top-level field of a plan
 // answer, for CheckFinite.

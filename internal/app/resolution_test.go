@@ -2,10 +2,12 @@ package app_test
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"os"
 	"slices"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -154,3 +156,43 @@ func TestPlanResolutionWater(t *testing.T) {
 }
 
 func fptr(v float64) *float64 { return &v }
+
+// TestPlanLoadLimitShared plans the J16 in tsw-1 with a resolution every plan
+// meets, one no balance resolves (the plan is then made again on the limit
+// without it) and none, each first on its own (the load limit built: its
+// installation, 20.5 kg, is this test's alone) and then again and again from
+// six goroutines at once (the limit shared from the planner's cache): every
+// answer is the first one, byte for byte. Run with -race.
+func TestPlanLoadLimitShared(t *testing.T) {
+	t.Parallel()
+	var p app.Planner
+	ctx := context.Background()
+	var reqs []string
+	for _, res := range []string{`"required_resolution": {"cd_counts": 20, "cl": 0.01}, `, `"required_resolution": {"cd_counts": 0.5}, `, ``} {
+		reqs = append(reqs, strings.Replace(withInstallation(j16Plan, `{"model_mass": 20.5}`), `"alpha"`, res+`"alpha"`, 1))
+	}
+	first := make([][]byte, len(reqs))
+	for i, body := range reqs {
+		resp, err := p.Plan(ctx, decodePlan(t, body))
+		require.NoError(t, err)
+		first[i], err = json.Marshal(resp)
+		require.NoError(t, err)
+	}
+	require.Contains(t, string(first[1]), loads.ResolutionNoBalance, "the second plan falls back to the limit without the resolution")
+	var wg sync.WaitGroup
+	for w := range 6 {
+		wg.Go(func() {
+			for k := range 9 {
+				i := (w + k) % len(reqs)
+				resp, err := p.Plan(ctx, decodePlan(t, reqs[i]))
+				if !assert.NoError(t, err) {
+					return
+				}
+				got, err := json.Marshal(resp)
+				assert.NoError(t, err)
+				assert.Equal(t, string(first[i]), string(got), "request %d, goroutine %d", i, w)
+			}
+		})
+	}
+	wg.Wait()
+}

@@ -32,14 +32,21 @@ import (
 //
 // The coefficients and their body-axis projections onto every rated row are
 // computed once by NewLimit; MaxDynamicPressure allocates nothing.
+//
+// A Limit is never written once NewLimit (or Resolved) has returned it, and it
+// keeps no pointer into its inputs (the facility's test section and balance
+// accuracies are copied in), so one limit may serve any number of concurrent
+// plans (LimitCache).
 type Limit struct {
 	balances []balanceRows
 	cd       []float64 // drag coefficient per point, for the wake blockage
-	facility *facilities.Facility
+	// section holds the facility's test section alone (its area copied too),
+	// which is all of the facility the blockage factors read.
+	section facilities.Facility
 	// Full-scale geometry of the article.
 	refArea, refLength, frontalArea float64
 	// alpha are the points' angles of attack in degrees; floor is set when a
-	// required resolution bounds q from below (Resolve).
+	// required resolution bounds q from below (Resolved).
 	alpha []float64
 	floor bool
 }
@@ -57,6 +64,11 @@ type balanceRows struct {
 	down    []float64 // allowed + w: the same for a load falling with q
 	// weightBreaks is set when the weight alone exceeds a row's allowance.
 	weightBreaks bool
+	// accuracy and known are the 2σ uncertainties of the balance's
+	// components (AccuracyOf; none known without an accuracy), which
+	// Resolved reads.
+	accuracy Vector
+	known    [6]bool
 	// needForce and needMoment are, per point, the least q_c·S (N) and
 	// q_c·S·c (N·m) the required resolution asks of this balance
 	// (Resolution.Need; +Inf when its accuracy is not known); nil
@@ -100,8 +112,13 @@ func newLimit(art *similarity.Article, f *facilities.Facility, in Installation, 
 	}
 	np := len(mx.Points)
 	pts := make([]float64, 2*np) // cd and alpha in one allocation
-	l := &Limit{facility: f, refArea: art.ReferenceArea, refLength: art.ReferenceLength,
+	l := &Limit{refArea: art.ReferenceArea, refLength: art.ReferenceLength,
 		frontalArea: art.FrontalArea, cd: pts[:np:np], alpha: pts[np:]}
+	l.section.TestSection = f.TestSection
+	if a := f.TestSection.Area; a != nil {
+		area := *a
+		l.section.TestSection.Area = &area
+	}
 	for i, p := range mx.Points {
 		l.cd[i], l.alpha[i] = p.CD, p.Alpha
 	}
@@ -119,6 +136,11 @@ func newLimit(art *similarity.Article, f *facilities.Facility, in Installation, 
 		}
 		rs.Derate(in.Fraction())
 		br := balanceRows{id: b.ID, rows: rs.Rows(), allowed: make([]float64, rs.Rows())}
+		// The accuracy of the first balance of this id, as the floor always
+		// took it (ids are unique in a valid facility).
+		if a := &f.Balances[slices.IndexFunc(f.Balances, func(a facilities.Balance) bool { return a.ID == b.ID })]; a.Accuracy != nil {
+			br.accuracy, br.known = AccuracyOf(a)
+		}
 		for j := range br.allowed {
 			br.allowed[j] = rs.Allowed(j)
 		}
@@ -160,31 +182,32 @@ func newLimit(art *similarity.Article, f *facilities.Facility, in Installation, 
 // Name returns facilities.ConstraintBalance, the constraint's name in a plan.
 func (l *Limit) Name() string { return facilities.ConstraintBalance }
 
-// Resolve makes the limit also a LoadFloor: the least dynamic pressure at which
-// a balance resolves the coefficients to res (Resolution.Need at every
+// Resolved returns the limit as a LoadFloor as well: the least dynamic pressure at
+// which a balance resolves the coefficients to res (Resolution.Need at every
 // point of the matrix), which with its load ceiling gives each balance a window
 // of dynamic pressure (Windows). With a floor, MaxDynamicPressure is the highest
 // ceiling of the balances whose floor is at or under their ceiling (of all when
-// none is). A nil or empty res removes the floor.
-func (l *Limit) Resolve(res *Resolution) {
-	for k := range l.balances {
-		br := &l.balances[k]
+// none is). A nil or empty res gives the limit without a floor.
+//
+// l itself is not changed: the new limit shares its tables, which neither
+// writes, so a limit in use by other plans may be resolved.
+func (l *Limit) Resolved(res *Resolution) *Limit {
+	r := *l
+	r.balances = slices.Clone(l.balances)
+	empty := res.Empty()
+	for k := range r.balances {
+		br := &r.balances[k]
 		br.needForce, br.needMoment = nil, nil
-		if res.Empty() {
+		if empty {
 			continue
-		}
-		b := l.facility.Balances[slices.IndexFunc(l.facility.Balances, func(b facilities.Balance) bool { return b.ID == br.id })]
-		var d Vector
-		var known [6]bool
-		if b.Accuracy != nil {
-			d, known = AccuracyOf(&b)
 		}
 		br.needForce, br.needMoment = make([]float64, len(l.alpha)), make([]float64, len(l.alpha))
 		for i, a := range l.alpha {
-			br.needForce[i], br.needMoment[i], _ = res.Need(d, known, a)
+			br.needForce[i], br.needMoment[i], _ = res.Need(br.accuracy, br.known, a)
 		}
 	}
-	l.floor = !res.Empty()
+	r.floor = !empty
+	return &r
 }
 
 // FloorName returns facilities.ConstraintResolution, the floor's name in a plan.
@@ -218,7 +241,7 @@ type scaled struct{ mach, solid, wake, qS, qSc float64 }
 func (l *Limit) geometry(scale, mach float64) scaled {
 	s2 := scale * scale
 	area := l.refArea * s2
-	solid, wake, _ := facilities.BlockageFactors(l.facility, l.frontalArea*s2, area, mach)
+	solid, wake, _ := facilities.BlockageFactors(&l.section, l.frontalArea*s2, area, mach)
 	return scaled{mach: mach, solid: solid, wake: wake, qS: area, qSc: area * l.refLength * scale}
 }
 
@@ -276,7 +299,7 @@ func (l *Limit) best(scale, mach float64) (k int, q float64) {
 	}
 	s2 := scale * scale
 	area := l.refArea * s2
-	solid, wake, _ := facilities.BlockageFactors(l.facility, l.frontalArea*s2, area, mach)
+	solid, wake, _ := facilities.BlockageFactors(&l.section, l.frontalArea*s2, area, mach)
 	qS := area
 	qSc := area * l.refLength * scale
 	k = -1
@@ -289,7 +312,7 @@ func (l *Limit) best(scale, mach float64) (k int, q float64) {
 	return k, q
 }
 
-// window returns, under a required resolution (Resolve), the least floor lo of
+// window returns, under a required resolution (Resolved), the least floor lo of
 // the balances whose floor is at or under their ceiling (+Inf when none is), and
 // the highest ceiling hi with its balance k: of those balances, or, when there
 // is none, of all.

@@ -45,7 +45,7 @@ type llrCase struct {
 	// edit, when not nil, changes the demo facility for the case.
 	edit func(*facilities.Facility)
 	// res, when not nil, is the required resolution: the plan gets the
-	// balance's resolution floor (BalanceLimit.Resolve), and the search counts a
+	// balance's resolution floor (Limit.Resolved), and the search counts a
 	// candidate only where a balance within its allowed loads has a 2σ
 	// uncertainty at or under it at every point.
 	res *loads.Resolution
@@ -346,8 +346,8 @@ func llrCheck(t *testing.T, c *llrCase, ns, np int) (reRatio float64, planned bo
 	require.NoError(t, err)
 	prob := &similarity.Problem{Flight: x.fl, Article: c.art, Facility: x.f, Model: c.model, LoadLimit: ll}
 	if c.res != nil {
-		ll.Resolve(c.res)
-		prob.LoadFloor = ll
+		ll = ll.Resolved(c.res)
+		prob.LoadLimit, prob.LoadFloor = ll, ll
 	}
 	res, err := similarity.Plan(prob, &similarity.Settings{TradePoints: -1, NoGains: true})
 	if err != nil {

@@ -73,7 +73,7 @@ func resolutionBinds(t *testing.T, c *llrCase) bool {
 	x := llrPrepare(t, c)
 	ll, err := loads.NewLimit(c.art, x.f, c.in, x.mx)
 	require.NoError(t, err)
-	ll.Resolve(c.res)
+	ll = ll.Resolved(c.res)
 	res, err := similarity.Plan(&similarity.Problem{Flight: x.fl, Article: c.art, Facility: x.f, Model: c.model,
 		LoadLimit: ll, LoadFloor: ll}, &similarity.Settings{TradePoints: -1})
 	require.NoError(t, err)
@@ -111,14 +111,14 @@ func TestResolutionFloorHand(t *testing.T) {
 	require.NoError(t, err)
 	ll, err := loads.NewLimit(art, f, loads.Installation{BalanceID: "int-b1", ModelMass: 20}, mx)
 	require.NoError(t, err)
-	// The cases run one after another: each sets the shared limit's resolution.
+	// Each case resolves the one limit to its own resolution.
 	for _, c := range []struct {
 		counts, want float64
 	}{{1, 173589}, {2, 86795}} {
 		t.Run(fmt.Sprintf("%g counts", c.counts), func(t *testing.T) {
-			ll.Resolve(&loads.Resolution{CDCounts: &c.counts})
+			lr := ll.Resolved(&loads.Resolution{CDCounts: &c.counts})
 			st := facilities.State{Mach: 0.3}
-			assert.InEpsilon(t, c.want, ll.MinDynamicPressure(1.0/24, st), 1e-5, "least q Pa for %g counts, hand arithmetic", c.counts)
+			assert.InEpsilon(t, c.want, lr.MinDynamicPressure(1.0/24, st), 1e-5, "least q Pa for %g counts, hand arithmetic", c.counts)
 		})
 	}
 }
