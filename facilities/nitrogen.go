@@ -444,8 +444,19 @@ func (g *Stagnation) expand(mach, speed float64, n *n2Props) (T, rho float64, ok
 // NitrogenStagnation returns nitrogen's stagnation state at p0 in Pa and t0 in
 // K (Stagnation).
 func NitrogenStagnation(p0, t0 float64) Stagnation {
-	rho0 := nitrogenDensity(t0, p0)
-	return Stagnation{P0: p0, T0: t0, rho0: rho0, n0: nitrogenAt(t0, rho0)}
+	var g Stagnation
+	NitrogenStagnationIn(&g, p0, t0)
+	return g
+}
+
+// NitrogenStagnationIn sets *g to NitrogenStagnation(p0, t0), in place: a
+// planner that keeps stagnation states writes each into its slot instead of
+// copying the 160-byte Stagnation there on its way back.
+func NitrogenStagnationIn(g *Stagnation, p0, t0 float64) {
+	g.P0, g.T0 = p0, t0
+	g.rho0 = nitrogenDensity(t0, p0)
+	g.n0.at(t0, g.rho0)
+	g.start, g.local = expansionStart{}, expansionStart{}
 }
 
 // nitrogenFreeStreamFrom is nitrogenFreeStream from the stagnation state g.

@@ -43,14 +43,20 @@ type FloorSlopes struct {
 // local one by far more than a few 1e-15 (TestFreeStreamMarginAboveLocal).
 // Without fs's figures (not OK) it is NitrogenStagnation.
 func (fs *FloorSlopes) StagnationNear(p0, t0 float64) Stagnation {
-	g := NitrogenStagnation(p0, t0)
+	var g Stagnation
+	fs.stagnationNearIn(&g, p0, t0)
+	return g
+}
+
+// stagnationNearIn sets *g to StagnationNear(p0, t0), in place.
+func (fs *FloorSlopes) stagnationNearIn(g *Stagnation, p0, t0 float64) {
+	NitrogenStagnationIn(g, p0, t0)
 	if !fs.OK || !(fs.mach < 0.99*fs.peak) {
-		return g
+		return
 	}
 	if T, rho, ok := fs.free.start(p0-fs.p0, t0-fs.t0); ok {
 		g.start = expansionStart{mach: fs.mach, T: T, rho: rho}
 	}
-	return g
 }
 
 // StagnationNearLocal is StagnationNear with the local expansion's static
@@ -63,14 +69,21 @@ func (fs *FloorSlopes) StagnationNear(p0, t0 float64) Stagnation {
 // checks a setting by it puts the setting further above the condensation
 // line than that (similarity's ceilingJointFrom: 2e-14 relative in T0).
 func (fs *FloorSlopes) StagnationNearLocal(p0, t0 float64) Stagnation {
-	g := fs.StagnationNear(p0, t0)
+	var g Stagnation
+	fs.StagnationNearLocalIn(&g, p0, t0)
+	return g
+}
+
+// StagnationNearLocalIn sets *g to StagnationNearLocal(p0, t0), in place
+// (NitrogenStagnationIn).
+func (fs *FloorSlopes) StagnationNearLocalIn(g *Stagnation, p0, t0 float64) {
+	fs.stagnationNearIn(g, p0, t0)
 	if !fs.OK {
-		return g
+		return
 	}
 	if T, rho, ok := fs.local.start(p0-fs.p0, t0-fs.t0); ok {
 		g.local = expansionStart{mach: fs.peak, T: T, rho: rho}
 	}
-	return g
 }
 
 // staticSlopes is a static state (T in K, ρ in kg/m³) of an expansion from
@@ -111,7 +124,8 @@ func (f *Facility) NitrogenFloorSlopes(p0, t0, mach float64, prev *FloorSlopes) 
 		return out
 	}
 	rho0 := nitrogenDensity(t0, p0)
-	n0 := nitrogenAt(t0, rho0)
+	var n0 n2Props
+	n0.at(t0, rho0)
 	if !n0.valid {
 		return out
 	}

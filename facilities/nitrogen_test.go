@@ -365,3 +365,30 @@ func TestFreeStreamMarginAboveLocal(t *testing.T) {
 		}
 	}
 }
+
+// TestStagnationInOverwrites: NitrogenStagnationIn and StagnationNearLocalIn
+// write every field of the Stagnation they are given: over one holding
+// another state with both starts set, they leave exactly what
+// NitrogenStagnation and StagnationNearLocal return (fails with a start, the
+// density or a property left over).
+func TestStagnationInOverwrites(t *testing.T) {
+	t.Parallel()
+	f := &facilities.Facility{Medium: facilities.Medium{Kind: facilities.MediumNitrogen}}
+	old := f.NitrogenFloorSlopes(3.1e5, 131, 0.6, nil)
+	require.True(t, old.OK)
+	for _, m := range []float64{0.45, 0.78} {
+		for _, p0 := range []float64{1.4e5, 3.6e5} {
+			for _, t0 := range []float64{104, 250} {
+				fs := f.NitrogenFloorSlopes(p0, t0, m, nil)
+				require.True(t, fs.OK)
+				p1, t1 := p0*(1+3e-9), t0*(1-2e-9)
+				g := old.StagnationNearLocal(3.1e5*(1+1e-9), 131)
+				facilities.NitrogenStagnationIn(&g, p1, t1)
+				assert.Equal(t, facilities.NitrogenStagnation(p1, t1), g)
+				g = old.StagnationNearLocal(3.1e5*(1+1e-9), 131)
+				fs.StagnationNearLocalIn(&g, p1, t1)
+				assert.Equal(t, fs.StagnationNearLocal(p1, t1), g)
+			}
+		}
+	}
+}

@@ -409,7 +409,7 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilit
 		// The checks' expansions (the free stream and the local one) start
 		// from the last iterate's, carried to (pf, tf): one Newton step each
 		// instead of two or three.
-		sv.stags.put(fs.StagnationNearLocal(pf, tf))
+		fs.StagnationNearLocalIn(sv.stags.slot(pf, tf), pf, tf)
 	}
 	if !(pf > c.pa && tf < c.tb) || sv.localMargin(pf, tf) < sv.condMin {
 		return 0, false

@@ -1037,23 +1037,24 @@ func (ss *stagnations) at(p0, t0 float64) *facilities.Stagnation {
 		}
 	}
 	g := &ss.e[ss.next]
-	*g = facilities.NitrogenStagnation(p0, t0)
+	facilities.NitrogenStagnationIn(g, p0, t0)
 	ss.next = (ss.next + 1) % len(ss.e)
 	return g
 }
 
-// put keeps the stagnation state g, computed elsewhere (as at computes it,
-// or with starts for its expansions: facilities.FloorSlopes.StagnationNear),
-// in place of any kept at the same (p0, T0).
-func (ss *stagnations) put(g facilities.Stagnation) {
+// slot returns where to keep a stagnation state at (p0, t0) computed
+// elsewhere (as at computes it, or with starts for its expansions:
+// facilities.FloorSlopes.StagnationNearLocalIn), written there in place: the
+// one kept at the same (p0, T0), else the next to replace.
+func (ss *stagnations) slot(p0, t0 float64) *facilities.Stagnation {
 	for i := range ss.e {
-		if e := &ss.e[i]; e.P0 == g.P0 && e.T0 == g.T0 {
-			*e = g
-			return
+		if e := &ss.e[i]; e.P0 == p0 && e.T0 == t0 {
+			return e
 		}
 	}
-	ss.e[ss.next] = g
+	e := &ss.e[ss.next]
 	ss.next = (ss.next + 1) % len(ss.e)
+	return e
 }
 
 // floorMargin returns how far the setting (p0, T0) at c's Mach number is above the
