@@ -56,14 +56,22 @@ func (lc *Setup) validate(q float64) error {
 // free-stream q (the point's wall correction q_c/q included), weight the model's
 // weight.
 func (lc *Setup) Affine(i int) (perQ, weight Vector) {
-	p := lc.Points[i]
+	sa, ca := math.Sincos(lc.Points[i].Alpha * math.Pi / 180)
+	return lc.affineAt(i, sa, ca)
+}
+
+// affineAt is Affine with the sine and cosine of point i's α given (Sincos of
+// α·π/180, which Body and Installation.Weight each took before): the same
+// loads to the bit, with one Sincos a point instead of two.
+func (lc *Setup) affineAt(i int, sa, ca float64) (perQ, weight Vector) {
+	p := &lc.Points[i]
 	f := p.DynamicPressureFactor
 	if f == 0 {
 		f = 1
 	}
 	qS := f * lc.ReferenceArea
-	perQ = Aerodynamic(Body(p), qS, qS*lc.ReferenceLength, lc.Installation.BalanceOffset)
-	weight = lc.Installation.Weight(p.Alpha)
+	perQ = Aerodynamic(bodyAt(p, sa, ca), qS, qS*lc.ReferenceLength, lc.Installation.BalanceOffset)
+	weight = lc.Installation.weightAt(sa, ca)
 	return perQ, weight
 }
 
@@ -104,8 +112,18 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 	nrow := 6 + len(rs.rows) - countSingle(&rs)
 	table := make([]Row, len(lc.Points)*nrow)
 	var unrated [6]bool
+	// The uncertainties are computed with each point's loads, from the same
+	// sine and cosine of α (the figures as CoefficientUncertainty gives them).
+	var d Vector
+	var known [6]bool
+	uncertain := b.Accuracy != nil && q > 0
+	if uncertain {
+		d, known = AccuracyOf(b)
+		r.Uncertainty = make([]Uncertainty, len(lc.Points))
+	}
 	for i, p := range lc.Points {
-		perQ, weight := lc.Affine(i)
+		sa, ca := math.Sincos(p.Alpha * math.Pi / 180)
+		perQ, weight := lc.affineAt(i, sa, ca)
 		var l Vector
 		for k := range l {
 			l[k] = q*perQ[k] + weight[k]
@@ -141,6 +159,11 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 			r.MaxSafeDynamicPressure = Ceiling(qs)
 			r.MaxSafeLimiting = Limiting{rs.RowName(row), p.Alpha, p.Beta}
 		}
+		if uncertain {
+			r.Uncertainty[i], r.UncertaintyUnknown = coefficientUncertaintyAt(d, known, sa, ca, r.Points[i].DynamicPressure,
+				lc.ReferenceArea, lc.ReferenceLength)
+			r.Uncertainty[i].Alpha, r.Uncertainty[i].Beta = p.Alpha, p.Beta
+		}
 	}
 	r.WithinLimits = r.MaxUtilization <= r.AllowedUtilization*(1+1e-12) &&
 		q <= float64(r.MaxSafeDynamicPressure)*(1+1e-12)
@@ -151,15 +174,6 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 	}
 	if lc.Resolution != nil {
 		r.Resolution = lc.resolution(b, q)
-	}
-	if b.Accuracy != nil && q > 0 {
-		d, known := AccuracyOf(b)
-		r.Uncertainty = make([]Uncertainty, len(lc.Points))
-		for i, p := range lc.Points {
-			r.Uncertainty[i], r.UncertaintyUnknown = CoefficientUncertainty(d, known, p.Alpha, r.Points[i].DynamicPressure,
-				lc.ReferenceArea, lc.ReferenceLength)
-			r.Uncertainty[i].Alpha, r.Uncertainty[i].Beta = p.Alpha, p.Beta
-		}
 	}
 	switch {
 	case !r.WithinLimits:

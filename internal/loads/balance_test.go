@@ -368,3 +368,40 @@ func TestInstallationValidateBounds(t *testing.T) {
 	}
 	assert.NoError(t, loads.Installation{ModelMass: 20, CGOffset: loads.Offset{X: 0.1, Z: -0.02}}.Validate())
 }
+
+// TestCheckMatchesPublicParts: Setup.Check, which takes each point's sine and
+// cosine of α once for its loads, weight and uncertainty, gives each point's
+// loads as q·perQ + weight from Affine and each uncertainty as
+// CoefficientUncertainty, to the bit, over seeded random cases with and
+// without weight (some points at q factor 0, which means 1).
+func TestCheckMatchesPublicParts(t *testing.T) {
+	t.Parallel()
+	rng := rand.New(rand.NewPCG(31, 7))
+	b := sixComponent()
+	b.Accuracy = &facilities.Accuracy{FractionOfRating: 0.001, Components: &facilities.Limits{Side: fptr(3)}}
+	for trial := range 40 {
+		lc := randomCase(rng, 0.02+0.1*rng.Float64(), trial%2 == 0)
+		for i := range lc.Points {
+			if rng.IntN(3) > 0 {
+				lc.Points[i].DynamicPressureFactor = 1 + 0.02*rng.Float64()
+			}
+		}
+		q := 2e4 * rng.Float64()
+		r, err := lc.Check(&b, q)
+		require.NoError(t, err)
+		d, known := loads.AccuracyOf(&b)
+		require.Len(t, r.Uncertainty, len(lc.Points))
+		for i, p := range lc.Points {
+			perQ, w := lc.Affine(i)
+			got := [6]float64{r.Points[i].Normal, r.Points[i].Axial, r.Points[i].Side,
+				r.Points[i].RollingMoment, r.Points[i].PitchingMoment, r.Points[i].YawingMoment}
+			for k := range got {
+				assert.Equal(t, math.Float64bits(q*perQ[k]+w[k]), math.Float64bits(got[k]), "trial %d point %d component %d", trial, i, k)
+			}
+			u, unk := loads.CoefficientUncertainty(d, known, p.Alpha, r.Points[i].DynamicPressure, lc.ReferenceArea, lc.ReferenceLength)
+			u.Alpha, u.Beta = p.Alpha, p.Beta
+			assert.Equal(t, u, r.Uncertainty[i], "trial %d point %d", trial, i)
+			assert.Equal(t, unk, r.UncertaintyUnknown)
+		}
+	}
+}

@@ -99,8 +99,17 @@ func (in Installation) Weight(alphaDeg float64) Vector {
 	if in.ModelMass == 0 && in.Buoyancy == 0 {
 		return Vector{}
 	}
-	w := in.ModelMass*atmosphere.G0 - in.Buoyancy
 	sa, ca := math.Sincos(alphaDeg * math.Pi / 180)
+	return in.weightAt(sa, ca)
+}
+
+// weightAt is Weight with the sine and cosine of α given (Sincos of
+// α·π/180, as Weight takes them).
+func (in *Installation) weightAt(sa, ca float64) Vector {
+	if in.ModelMass == 0 && in.Buoyancy == 0 {
+		return Vector{}
+	}
+	w := in.ModelMass*atmosphere.G0 - in.Buoyancy
 	n := -w * ca
 	a := w * sa
 	return Vector{

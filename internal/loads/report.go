@@ -214,10 +214,16 @@ type Uncertainty struct {
 // reference area s (m²) and length c (m), and the names of the coefficients not
 // known.
 func CoefficientUncertainty(d Vector, known [6]bool, alphaDeg, qc, s, c float64) (Uncertainty, []string) {
+	sa, ca := math.Sincos(alphaDeg * math.Pi / 180)
+	return coefficientUncertaintyAt(d, known, sa, ca, qc, s, c)
+}
+
+// coefficientUncertaintyAt is CoefficientUncertainty with the sine and cosine
+// of α given (Sincos of α·π/180, as CoefficientUncertainty takes them).
+func coefficientUncertaintyAt(d Vector, known [6]bool, sa, ca, qc, s, c float64) (Uncertainty, []string) {
 	u := Uncertainty{}
 	var unknown []string
 	qs := qc * s
-	sa, ca := math.Sincos(alphaDeg * math.Pi / 180)
 	if known[IndexNormal] && known[IndexAxial] {
 		u.CL = math.Hypot(d[IndexNormal]*ca, d[IndexAxial]*sa) / qs
 		u.CDCounts = 1e4 * math.Hypot(d[IndexAxial]*ca, d[IndexNormal]*sa) / qs

@@ -65,6 +65,12 @@ func componentIndex(name string) int {
 // C_Y, C_l, C_n are taken as given in body axes. At β = 0 these are physics.md §8.
 func Body(p facilities.Point) Vector {
 	sa, ca := math.Sincos(p.Alpha * math.Pi / 180)
+	return bodyAt(&p, sa, ca)
+}
+
+// bodyAt is Body with the sine and cosine of the point's α given (Sincos of
+// α·π/180, as Body takes them), for a caller that needs them again.
+func bodyAt(p *facilities.Point, sa, ca float64) Vector {
 	sb, cb := math.Sincos(p.Beta * math.Pi / 180)
 	return Vector{
 		IndexNormal:         p.CL*ca + p.CD*sa*cb,
