@@ -2,6 +2,7 @@ package similarity
 
 import (
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -161,4 +162,52 @@ func TestSolveRWarmNearLowest(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestUsableRootPower: usableRootPower, the secant in (ln T0, ln Re/m) that
+// solveR takes for nitrogen's Re/m along T0 at one p0, keeps rootHi's
+// contract (a point on the usable side, g ≥ 0, the crossing within 1e-13
+// relative below it) and finds the root usableRootUpHi's secant in (T0, g)
+// finds, within 2e-13 relative, over random Mach numbers, stagnation
+// pressures and targets in cn2-05 (the states are facilities.Facility.State's),
+// with fewer states in all: the reason it is there.
+func TestUsableRootPower(t *testing.T) {
+	t.Parallel()
+	f, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	rng := rand.New(rand.NewPCG(17, 45))
+	var nPower, nSecant, cases int
+	for range 300 {
+		m := 0.2 + 0.7*rng.Float64()
+		p0 := f.StagnationPressure.Min + rng.Float64()*(f.StagnationPressure.Max-f.StagnationPressure.Min)
+		lo, hi := 120+20*rng.Float64(), f.StagnationTemperature.Max
+		reAt := func(t0 float64) float64 {
+			st, err := f.State(facilities.Setting{Mach: m, StagnationPressure: p0, StagnationTemperature: t0})
+			if err != nil {
+				return 0
+			}
+			return st.ReynoldsPerMeter
+		}
+		ra, rb := reAt(lo), reAt(hi)
+		if !(ra > rb && rb > 0) {
+			continue
+		}
+		// Targets across the range, most of them near its warm end, where
+		// the planner's roots lie (a model shrunk to meet the flight's Re).
+		r := rb * math.Pow(ra/rb, math.Pow(rng.Float64(), 3))
+		g := func(n *int) func(float64) float64 {
+			return func(t0 float64) float64 { *n++; return r - reAt(t0) }
+		}
+		x := usableRootPower(g(&nPower), lo, hi, r, rb)
+		xs := usableRootUpHi(g(&nSecant), lo, hi, r-rb, true)
+		cases++
+		require.GreaterOrEqual(t, r-reAt(x), 0.0, "usable side, M %v p0 %v r %v", m, p0, r)
+		if x > lo {
+			assert.Less(t, r-reAt(x-1e-13*x), 0.0, "the crossing within 1e-13 below, M %v p0 %v r %v", m, p0, r)
+		}
+		assert.InEpsilon(t, xs, x, 2e-13, "M %v p0 %v r %v", m, p0, r)
+	}
+	require.Greater(t, cases, 250)
+	t.Logf("%d roots: %d states (secant in T0: %d)", cases, nPower, nSecant)
+	assert.Less(t, float64(nPower), 0.85*float64(nSecant), "states")
 }

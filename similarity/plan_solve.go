@@ -1684,7 +1684,7 @@ func (sv *solver) solveR(c *machSetup, tp topSetting, r float64) (p0, t0 float64
 			// tb is the set-up's lowest, rlo, once known: the same state's,
 			// which the solver's last two states have mostly let go.
 			if c.rloOK {
-				return usableRootUpHi(g, lo, c.tb, r-c.rlo, true)
+				return usableRootPower(g, lo, c.tb, r, c.rlo)
 			}
 			return sv.rootHiSmooth(g, lo, c.tb, true)
 		}
@@ -2247,6 +2247,74 @@ func usableRootUpHi(g func(float64) float64, lo, hi, fb float64, smooth bool) fl
 		return lo
 	}
 	return usableRootBracket(g, lo, fa, hi, fb, smooth)
+}
+
+// usableRootPower is usableRootUpHi for g(t) = r − R(t), R > 0 falling with
+// t and R(hi) = rhi known (nitrogen's Re/m along T0 at one p0, solveR): the
+// secant's steps are taken in ln t and ln R (secantPower), where Re/m, which
+// falls about as T0^−1.7 there, is nearly a straight line, instead of in t
+// and R, where the first step from the T0 floor (100 K) toward the warmest T0
+// landed several kelvin off a root near the top of the range. The root is
+// found to the same 1e-13, on the same usable side.
+func usableRootPower(g func(float64) float64, lo, hi, r, rhi float64) float64 {
+	fa := g(lo)
+	if fa >= 0 {
+		return lo
+	}
+	fb := r - rhi
+	if fb < 0 {
+		return hi
+	}
+	return secantPower(g, lo, fa, hi, fb, r)
+}
+
+// secantPower is secantBracket for g(t) = r − R(t) with R > 0 and t > 0,
+// with each secant step through the last two points taken in (ln t, ln(r/R))
+// rather than (t, g): ln(r/R) has g's sign, so the bracket and the usable side
+// are secantBracket's. Where the step is not finite or leaves the bracket it
+// falls back as secantBracket does (regula falsi, then a halving), and so do
+// its slow-step rule and its last step across the crossing.
+func secantPower(g func(float64) float64, a, fa, b, fb, r float64) float64 {
+	h := func(f float64) float64 { return math.Log(r / (r - f)) }
+	l0, h0 := math.Log(a), h(fa)
+	l1, h1, f1 := math.Log(b), h(fb), fb
+	slow := 0
+	for i := 0; i < 200; i++ {
+		tol := 1e-13 * max(math.Abs(a), math.Abs(b))
+		w := b - a
+		if w <= tol {
+			break
+		}
+		x := math.Exp(l1 - h1*(l1-l0)/(h1-h0))
+		if !(x > a && x < b) {
+			x = (a*fb - b*fa) / (fb - fa)
+		}
+		if !(x > a && x < b) || slow >= 3 {
+			x, slow = 0.5*(a+b), 0
+		}
+		if hh := 0.5 * tol; x-a < hh {
+			x = a + hh
+		} else if b-x < hh {
+			x = b - hh
+		}
+		fx := g(x)
+		if fx == 0 {
+			return x
+		}
+		if fx < 0 {
+			a, fa = x, fx
+		} else {
+			b, fb = x, fx
+		}
+		if b-a > 0.5*w && !(math.Abs(fx) <= 0.1*math.Abs(f1)) {
+			slow++
+		} else {
+			slow = 0
+		}
+		l0, h0 = l1, h1
+		l1, h1, f1 = math.Log(x), h(fx), fx
+	}
+	return b
 }
 
 // usableRootBracket is usableRootUp once g(lo) = fa < 0 and g(hi) = fb are
