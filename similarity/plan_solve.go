@@ -2251,7 +2251,7 @@ func usableRootUpHi(g func(float64) float64, lo, hi, fb float64, smooth bool) fl
 
 // usableRootPower is usableRootUpHi for g(t) = r − R(t), R > 0 falling with
 // t and R(hi) = rhi known (nitrogen's Re/m along T0 at one p0, solveR): the
-// secant's steps are taken in ln t and ln R (secantPower), where Re/m, which
+// secant's steps are taken in ln t and ln(r/R) (secantBracket with r), where Re/m, which
 // falls about as T0^−1.7 there, is nearly a straight line, instead of in t
 // and R, where the first step from the T0 floor (100 K) toward the warmest T0
 // landed several kelvin off a root near the top of the range. The root is
@@ -2265,56 +2265,7 @@ func usableRootPower(g func(float64) float64, lo, hi, r, rhi float64) float64 {
 	if fb < 0 {
 		return hi
 	}
-	return secantPower(g, lo, fa, hi, fb, r)
-}
-
-// secantPower is secantBracket for g(t) = r − R(t) with R > 0 and t > 0,
-// with each secant step through the last two points taken in (ln t, ln(r/R))
-// rather than (t, g): ln(r/R) has g's sign, so the bracket and the usable side
-// are secantBracket's. Where the step is not finite or leaves the bracket it
-// falls back as secantBracket does (regula falsi, then a halving), and so do
-// its slow-step rule and its last step across the crossing.
-func secantPower(g func(float64) float64, a, fa, b, fb, r float64) float64 {
-	h := func(f float64) float64 { return math.Log(r / (r - f)) }
-	l0, h0 := math.Log(a), h(fa)
-	l1, h1, f1 := math.Log(b), h(fb), fb
-	slow := 0
-	for i := 0; i < 200; i++ {
-		tol := 1e-13 * max(math.Abs(a), math.Abs(b))
-		w := b - a
-		if w <= tol {
-			break
-		}
-		x := math.Exp(l1 - h1*(l1-l0)/(h1-h0))
-		if !(x > a && x < b) {
-			x = (a*fb - b*fa) / (fb - fa)
-		}
-		if !(x > a && x < b) || slow >= 3 {
-			x, slow = 0.5*(a+b), 0
-		}
-		if hh := 0.5 * tol; x-a < hh {
-			x = a + hh
-		} else if b-x < hh {
-			x = b - hh
-		}
-		fx := g(x)
-		if fx == 0 {
-			return x
-		}
-		if fx < 0 {
-			a, fa = x, fx
-		} else {
-			b, fb = x, fx
-		}
-		if b-a > 0.5*w && !(math.Abs(fx) <= 0.1*math.Abs(f1)) {
-			slow++
-		} else {
-			slow = 0
-		}
-		l0, h0 = l1, h1
-		l1, h1, f1 = math.Log(x), h(fx), fx
-	}
-	return b
+	return secantBracket(g, lo, fa, hi, fb, r)
 }
 
 // usableRootBracket is usableRootUp once g(lo) = fa < 0 and g(hi) = fb are
@@ -2324,7 +2275,7 @@ func usableRootBracket(g func(float64) float64, lo, fa, hi, fb float64, smooth b
 		return hi
 	}
 	if smooth {
-		return secantBracket(g, lo, fa, hi, fb)
+		return secantBracket(g, lo, fa, hi, fb, 0)
 	}
 	return illinois(g, lo, fa, hi, fb)
 }
@@ -2342,9 +2293,19 @@ func (sv *solver) rootHiSmooth(g func(float64) float64, lo, hi float64, increasi
 	return usableRoot(g, lo, hi, increasing, true)
 }
 
-// secantBracket is illinois by secant steps (rootHiSmooth).
-func secantBracket(g func(float64) float64, a, fa, b, fb float64) float64 {
-	x0, f0, x1, f1 := a, fa, b, fb
+// secantBracket is illinois by secant steps (rootHiSmooth). With r > 0, for
+// g(t) = r − R(t) with R > 0 and t > 0 (usableRootPower), each secant step
+// through the last two points is taken in (ln t, ln(r/R)) instead of (t, g):
+// ln(r/R) has g's sign, so the bracket, the fallbacks (regula falsi, then a
+// halving), the slow-step rule and the last step across the crossing are
+// the same.
+func secantBracket(g func(float64) float64, a, fa, b, fb, r float64) float64 {
+	// (u0, v0) and (u1, v1) are the secant's last two points, in (t, g) or
+	// with r > 0 in (ln t, ln(r/R)); f1 is g at the last.
+	u0, v0, u1, v1, f1 := a, fa, b, fb, fb
+	if r > 0 {
+		u0, v0, u1, v1 = math.Log(a), math.Log(r/(r-fa)), math.Log(b), math.Log(r/(r-fb))
+	}
 	slow := 0
 	for i := 0; i < 200; i++ {
 		tol := 1e-13 * max(math.Abs(a), math.Abs(b))
@@ -2352,7 +2313,10 @@ func secantBracket(g func(float64) float64, a, fa, b, fb float64) float64 {
 		if w <= tol {
 			break
 		}
-		x := x1 - f1*(x1-x0)/(f1-f0)
+		x := u1 - v1*(u1-u0)/(v1-v0)
+		if r > 0 {
+			x = math.Exp(x)
+		}
 		if !(x > a && x < b) {
 			x = (a*fb - b*fa) / (fb - fa)
 		}
@@ -2378,7 +2342,10 @@ func secantBracket(g func(float64) float64, a, fa, b, fb float64) float64 {
 		} else {
 			slow = 0
 		}
-		x0, f0, x1, f1 = x1, f1, x, fx
+		u0, v0, u1, v1, f1 = u1, v1, x, fx, fx
+		if r > 0 {
+			u1, v1 = math.Log(x), math.Log(r/(r-fx))
+		}
 	}
 	return b
 }
