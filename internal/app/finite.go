@@ -67,9 +67,11 @@ type walker struct {
 	// building marks a walker whose type is being compiled (a recursive type
 	// refers to it before its fn is known).
 	building bool
-	// flat are a struct's own float64 fields; flatOnly is set when they are
-	// all the numbers it holds.
+	// flat are a struct's own float64 fields, and floats those with its
+	// *float64 fields as the in-place walk reads them (floatLayout);
+	// flatOnly is set when they are all the numbers it holds.
 	flat     []flatFloat
+	floats   floatLayout
 	flatOnly bool
 	// at checks a value of the type at its address without reflect: set for
 	// float64, and for pointers, structs, slices and arrays whose parts all
@@ -148,7 +150,9 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 		// the struct's address when it has one (every value reached from a
 		// pointer or a slice does): a reflect.Value per number was most of the
 		// walk (BenchmarkCheckFinite).
-		var flat []flatFloat
+		// ptrs are the *float64 fields (not *Ceiling), read in place too:
+		// a wall correction's nine optional figures were a call each.
+		var flat, ptrs []flatFloat
 		for i := range t.NumField() {
 			sf := t.Field(i)
 			if !sf.IsExported() || sf.Tag.Get("json") == "-" {
@@ -158,24 +162,34 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 				flat = append(flat, flatFloat{off: sf.Offset, field: i, ceiling: sf.Type == ceilingType})
 				continue
 			}
+			if sf.Type.Kind() == reflect.Pointer && sf.Type.Elem().Kind() == reflect.Float64 && sf.Type.Elem() != ceilingType {
+				ptrs = append(ptrs, flatFloat{off: sf.Offset, field: i})
+				continue
+			}
 			if e := compileWalker(sf.Type, seen); !e.none() {
 				idx, ws = append(idx, i), append(ws, e)
 			}
 		}
-		if len(idx) > 0 || len(flat) > 0 {
-			w.at = structAt(t, flat, idx, ws)
+		if len(idx) > 0 || len(flat) > 0 || len(ptrs) > 0 {
+			lay := newFloatLayout(flat, ptrs, t.Size())
+			w.at = structAt(t, lay, idx, ws)
 			at := w.at
-			w.flat, w.fn = flat, func(v reflect.Value) bool {
+			w.flat, w.floats, w.fn = flat, lay, func(v reflect.Value) bool {
 				if at != nil && v.CanAddr() {
 					return at(v.Addr().UnsafePointer())
 				}
 				if v.CanAddr() {
-					if !floatsFinite(v.Addr().UnsafePointer(), flat) {
+					if !lay.finite(v.Addr().UnsafePointer()) {
 						return false
 					}
 				} else {
 					for _, f := range flat {
 						if !finiteFloat(v.Field(f.field).Float(), f.ceiling) {
+							return false
+						}
+					}
+					for _, f := range ptrs {
+						if x := v.Field(f.field); !x.IsNil() && !finiteFloat(x.Elem().Float(), false) {
 							return false
 						}
 					}
@@ -194,23 +208,19 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 	case reflect.Slice:
 		e := compileWalker(t.Elem(), seen)
 		if e.flatOnly {
-			// A slice of structs of float64 alone (and numberless fields):
-			// every element's floats read in place.
-			size := t.Elem().Size()
+			// A slice of structs of float64 and *float64 alone (and
+			// numberless fields): every element's floats read in place.
+			size, lay := t.Elem().Size(), e.floats
 			w.fn = func(v reflect.Value) bool {
-				n := v.Len()
-				if n == 0 {
+				if v.Len() == 0 {
 					return true
 				}
-				p := v.UnsafePointer()
-				for i := range n {
-					if !floatsFinite(unsafe.Add(p, uintptr(i)*size), e.flat) {
-						return false
-					}
-				}
-				return true
+				return lay.sliceFinite(v.UnsafePointer(), v.Len(), size)
 			}
-			w.at = func(p unsafe.Pointer) bool { return sliceAt(p, size, e.flat) }
+			w.at = func(p unsafe.Pointer) bool {
+				s := *(*[]byte)(p) // the header of any slice: its data and length
+				return len(s) == 0 || lay.sliceFinite(unsafe.Pointer(unsafe.SliceData(s)), len(s), size)
+			}
 		} else if e.at != nil {
 			// A slice of values that are walked in place.
 			size := t.Elem().Size()
@@ -264,9 +274,9 @@ func compileWalker(t reflect.Type, seen map[reflect.Type]*walker) *walker {
 }
 
 // structAt returns the in-place walk of a struct of type t with the float64
-// fields flat and the other fields idx walked by ws, or nil when one of those
+// fields lay and the other fields idx walked by ws, or nil when one of those
 // has none (or is still being compiled: a recursive type).
-func structAt(t reflect.Type, flat []flatFloat, idx []int, ws []*walker) func(unsafe.Pointer) bool {
+func structAt(t reflect.Type, lay floatLayout, idx []int, ws []*walker) func(unsafe.Pointer) bool {
 	offs := make([]uintptr, len(idx))
 	ats := make([]func(unsafe.Pointer) bool, len(idx))
 	for k, i := range idx {
@@ -276,7 +286,7 @@ func structAt(t reflect.Type, flat []flatFloat, idx []int, ws []*walker) func(un
 		offs[k], ats[k] = t.Field(i).Offset, ws[k].at
 	}
 	return func(p unsafe.Pointer) bool {
-		if !floatsFinite(p, flat) {
+		if !lay.finite(p) {
 			return false
 		}
 		for k, at := range ats {
@@ -286,22 +296,6 @@ func structAt(t reflect.Type, flat []flatFloat, idx []int, ws []*walker) func(un
 		}
 		return true
 	}
-}
-
-// sliceAt reports whether every element of the slice whose header is at p,
-// of elements of size bytes holding the float64 fields flat alone, is finite.
-func sliceAt(p unsafe.Pointer, size uintptr, flat []flatFloat) bool {
-	s := *(*[]byte)(p) // the header of any slice: its data and length
-	if len(s) == 0 {
-		return true
-	}
-	d := unsafe.Pointer(unsafe.SliceData(s))
-	for i := range len(s) {
-		if !floatsFinite(unsafe.Add(d, uintptr(i)*size), flat) {
-			return false
-		}
-	}
-	return true
 }
 
 // sliceEach reports whether at holds for each of the n elements of size bytes
@@ -323,11 +317,137 @@ type flatFloat struct {
 	ceiling bool
 }
 
-// floatsFinite reports whether the float64 fields flat of the struct at p are
-// finite (a Ceiling's +Inf counting as finite).
-func floatsFinite(p unsafe.Pointer, flat []flatFloat) bool {
+// floatLayout is a struct's float64 fields as the in-place walk reads them:
+// the offsets of the fields that are not a Ceiling (as one run when they are
+// adjacent), and the Ceilings' offsets. The fields are summed as x − x (see
+// runSum) with one test a struct, or a slice of structs, instead of one a
+// field: the walk per field, with its offset and Ceiling flag, cost about 20
+// instructions a number. A plan answer's numbers sit mostly in such structs
+// (a trade point's seven figures in a run, a load row's four, an
+// uncertainty's eight filling the struct, so that a slice of them is one run).
+type floatLayout struct {
+	offs []uintptr
+	// run is offs as one run of adjacent fields, when they are (run.n > 0):
+	// one loop over the run costs less than one over the offsets.
+	run  floatRun
+	ceil []uintptr
+	// ptrs are the offsets of the *float64 fields (not *Ceiling).
+	ptrs []uintptr
+	// whole is set when the run covers the whole struct (no Ceiling, no
+	// other field, no padding): a slice of it is one run.
+	whole bool
+	n     int // the float64 fields, Ceilings included
+}
+
+// floatRun is n adjacent float64 fields from offset off.
+type floatRun struct {
+	off uintptr
+	n   int
+}
+
+// newFloatLayout returns the layout of the float64 fields flat (in field
+// order, so by increasing offset) and the *float64 fields ptrs of a struct of
+// size bytes.
+func newFloatLayout(flat, ptrs []flatFloat, size uintptr) floatLayout {
+	var l floatLayout
+	for _, f := range ptrs {
+		l.ptrs = append(l.ptrs, f.off)
+	}
 	for _, f := range flat {
-		if !finiteFloat(*(*float64)(unsafe.Add(p, f.off)), f.ceiling) {
+		l.n++
+		if f.ceiling {
+			l.ceil = append(l.ceil, f.off)
+			continue
+		}
+		l.offs = append(l.offs, f.off)
+	}
+	if k := len(l.offs); k > 0 && l.offs[k-1]-l.offs[0] == uintptr(k-1)*8 {
+		l.run = floatRun{off: l.offs[0], n: k}
+	}
+	l.whole = len(l.ceil) == 0 && len(l.ptrs) == 0 && l.run.n > 0 && l.run.off == 0 && uintptr(l.run.n)*8 == size
+	return l
+}
+
+// sum returns acc plus x − x for each float64 field of the struct at p that
+// is not a Ceiling, and for each *float64 field that is not nil (see runSum).
+func (l *floatLayout) sum(acc float64, p unsafe.Pointer) float64 {
+	if l.run.n > 0 {
+		acc = runSum(acc, unsafe.Add(p, l.run.off), l.run.n)
+	} else {
+		for _, off := range l.offs {
+			x := *(*float64)(unsafe.Add(p, off))
+			acc += x - x
+		}
+	}
+	for _, off := range l.ptrs {
+		if q := *(*unsafe.Pointer)(unsafe.Add(p, off)); q != nil {
+			x := *(*float64)(q)
+			acc += x - x
+		}
+	}
+	return acc
+}
+
+// finite reports whether the float64 fields of the struct at p are finite
+// (a Ceiling's +Inf counting as finite).
+func (l *floatLayout) finite(p unsafe.Pointer) bool {
+	return l.sum(0, p) == 0 && ceilingsFinite(p, l.ceil)
+}
+
+// sliceFinite reports whether every element of the n elements of size bytes
+// from p, of a struct whose numbers are the layout's alone, is finite.
+func (l *floatLayout) sliceFinite(p unsafe.Pointer, n int, size uintptr) bool {
+	if l.whole {
+		return runSum(0, p, n*l.n) == 0
+	}
+	var acc float64
+	if l.run.n > 0 && len(l.ptrs) == 0 && len(l.ceil) == 0 {
+		// One run an element (a trade point): summed without a call.
+		for i := range n {
+			acc = runSum(acc, unsafe.Add(p, uintptr(i)*size+l.run.off), l.run.n)
+		}
+		return acc == 0
+	}
+	if len(l.ptrs) == 0 && len(l.ceil) == 0 {
+		// Fields apart (a load row's four): summed without a call too.
+		for i := range n {
+			e := unsafe.Add(p, uintptr(i)*size)
+			for _, off := range l.offs {
+				x := *(*float64)(unsafe.Add(e, off))
+				acc += x - x
+			}
+		}
+		return acc == 0
+	}
+	for i := range n {
+		e := unsafe.Add(p, uintptr(i)*size)
+		acc = l.sum(acc, e)
+		if len(l.ceil) > 0 && !ceilingsFinite(e, l.ceil) {
+			return false
+		}
+	}
+	return acc == 0
+}
+
+// runSum returns acc plus x − x for each of the n float64s from p: x − x is
+// +0 for every finite x and NaN for a NaN or an infinity, and a NaN stays in
+// the sum, so the sum is 0 exactly when acc is and every x is finite. One
+// sum in place of a test a number: the walk branches once a run.
+func runSum(acc float64, p unsafe.Pointer, n int) float64 {
+	// Offsets, not unsafe.Slice, whose length checks cost more than a short
+	// run's sum.
+	for k, end := uintptr(0), uintptr(n)*8; k < end; k += 8 {
+		x := *(*float64)(unsafe.Add(p, k))
+		acc += x - x
+	}
+	return acc
+}
+
+// ceilingsFinite reports whether the Ceilings at offsets ceil of the struct
+// at p are finite numbers or +Inf (no bound).
+func ceilingsFinite(p unsafe.Pointer, ceil []uintptr) bool {
+	for _, off := range ceil {
+		if !finiteFloat(*(*float64)(unsafe.Add(p, off)), true) {
 			return false
 		}
 	}

@@ -1,15 +1,19 @@
 package app
 
 import (
+	"context"
 	"math"
+	"os"
 	"reflect"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"scalematch/api/schema"
 	"scalematch/internal/check"
 	"scalematch/internal/loads"
+	"scalematch/internal/unitjson"
 )
 
 func TestCheckFinite(t *testing.T) {
@@ -157,6 +161,8 @@ func TestAllFiniteShapes(t *testing.T) {
 		{"in place, behind a pointer to a float", &plain{Points: []point{{Gain: f(math.Inf(-1))}}}, "points[0].gain"},
 		{"in place, a ceiling behind a pointer at -Inf", &plain{P: &point{Cap: c(math.Inf(-1))}}, "p.cap"},
 		{"in place, behind a pointer to a struct", plain{P: &point{V: nan}}, "p.v"},
+		{"behind a pointer to a float, not addressable", point{Gain: f(nan)}, "gain"},
+		{"a ceiling behind a pointer, not addressable", point{Cap: c(math.Inf(1))}, ""},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -171,5 +177,76 @@ func TestAllFiniteShapes(t *testing.T) {
 			assert.Equal(t, tc.path == "", ok)
 			assert.Equal(t, tc.path, path)
 		})
+	}
+}
+
+// TestAllFiniteEveryNumberOfAnswers: in the plan answers of the examples (an
+// aircraft in air, a vessel in water, with a required resolution) every
+// number the answer writes, set in turn to NaN, +Inf, −Inf and back, makes the
+// compiled walk (allFinite, which reads runs of fields and whole slices of
+// them in place) agree with the path-naming walk (nonFinite) and name that
+// number: no field of a run, an element of a slice read whole, nor a Ceiling
+// is skipped or read as another.
+func TestAllFiniteEveryNumberOfAnswers(t *testing.T) {
+	// Not parallel: the answers are written in place while the test runs.
+	for _, file := range []string{"examples/orrin-j16-tsw-1.json", "examples/tarn-a2-wtn-04.json",
+		"examples/pellin-p3-lsw-2.json"} {
+		t.Run(file, func(t *testing.T) {
+			body, err := os.ReadFile("../../" + file)
+			require.NoError(t, err)
+			var req schema.PlanRequest
+			require.NoError(t, unitjson.Decode(body, &req))
+			resp, err := (&Planner{}).Plan(context.Background(), &req)
+			require.NoError(t, err)
+			rv := reflect.ValueOf(resp)
+			require.True(t, allFinite(rv))
+			var nums []reflect.Value
+			answeredFloats(rv, &nums)
+			require.Greater(t, len(nums), 500)
+			ceilings := 0
+			for _, x := range nums {
+				old := x.Float()
+				for _, bad := range []float64{math.NaN(), math.Inf(1), math.Inf(-1), -math.MaxFloat64} {
+					x.SetFloat(bad)
+					_, ok := nonFinite(rv, "")
+					if !assert.Equal(t, ok, allFinite(rv), "%v in a %s", bad, x.Type()) {
+						return
+					}
+					if x.Type() == ceilingType && math.IsInf(bad, 1) {
+						ceilings++
+						require.True(t, ok, "a Ceiling's +Inf is no bound")
+					} else {
+						require.Equal(t, math.Abs(bad) == math.MaxFloat64, ok)
+					}
+				}
+				x.SetFloat(old)
+			}
+			require.Positive(t, ceilings)
+			require.True(t, allFinite(rv))
+		})
+	}
+}
+
+// answeredFloats appends every settable float64 the JSON writes in v.
+func answeredFloats(v reflect.Value, out *[]reflect.Value) {
+	switch v.Kind() {
+	case reflect.Float64:
+		if v.CanSet() {
+			*out = append(*out, v)
+		}
+	case reflect.Pointer, reflect.Interface:
+		if !v.IsNil() {
+			answeredFloats(v.Elem(), out)
+		}
+	case reflect.Struct:
+		for i := range v.NumField() {
+			if sf := v.Type().Field(i); sf.IsExported() && sf.Tag.Get("json") != "-" {
+				answeredFloats(v.Field(i), out)
+			}
+		}
+	case reflect.Slice, reflect.Array:
+		for i := range v.Len() {
+			answeredFloats(v.Index(i), out)
+		}
 	}
 }
