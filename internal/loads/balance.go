@@ -129,13 +129,16 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 			l[k] = q*perQ[k] + weight[k]
 		}
 		rows := table[i*nrow : (i+1)*nrow : (i+1)*nrow]
-		u, row := rs.fillRows(rows, &l)
+		u, row, over := rs.fillRows(rows, &l)
 		for k := range 6 {
 			if !rs.covered[k] && l[k] != 0 {
 				unrated[k] = true
 			}
 		}
 		for j := range rows {
+			if !over {
+				break // no row is over: none to list
+			}
 			if rows[j].ShareOfAllowed > 1+1e-12 {
 				r.OverAllowed = append(r.OverAllowed, Limiting{rows[j].Name, p.Alpha, p.Beta})
 			}

@@ -177,10 +177,14 @@ func countSingle(rs *Ratings) int {
 }
 
 // fillRows writes the six components of load l and then every gauge row into
-// rows (len 6 + gauge rows), and returns the load's utilisation and its row as
-// Utilization does, marking that row as limiting: each row's value is
-// computed once for both.
-func (rs *Ratings) fillRows(rows []Row, l *Vector) (u float64, limit int) {
+// rows (len 6 + gauge rows, every Row zero), and returns the load's
+// utilisation and its row as Utilization does, marking that row as limiting:
+// each row's value is computed once for both. over reports that a row's
+// ShareOfAllowed is above 1 + 1e-12 (the check then lists the rows over).
+//
+// The rows are written field by field into the zero rows: a Row literal was
+// built on the stack and copied, 64 bytes twice, for every row of every point.
+func (rs *Ratings) fillRows(rows []Row, l *Vector) (u float64, limit int, over bool) {
 	limit = -1
 	k, at0 := 6, -1
 	for i := range rs.rows {
@@ -192,10 +196,12 @@ func (rs *Ratings) fillRows(rows []Row, l *Vector) (u float64, limit int) {
 			k++
 		}
 		v := r.value(l)
-		rows[at] = Row{Name: r.name, Load: v, Rated: true, Covered: true, Rating: r.limit, Allowed: r.allowed,
-			ShareOfAllowed: math.Abs(v) / r.allowed}
-		if x := math.Abs(v) / r.limit; x > u || limit < 0 {
-			u, limit, at0 = x, i, at
+		x := &rows[at]
+		x.Name, x.Load, x.Rated, x.Covered, x.Rating, x.Allowed = r.name, v, true, true, r.limit, r.allowed
+		x.ShareOfAllowed = math.Abs(v) / r.allowed
+		over = over || x.ShareOfAllowed > 1+1e-12
+		if y := math.Abs(v) / r.limit; y > u || limit < 0 {
+			u, limit, at0 = y, i, at
 		}
 	}
 	if at0 >= 0 {
@@ -203,10 +209,11 @@ func (rs *Ratings) fillRows(rows []Row, l *Vector) (u float64, limit int) {
 	}
 	for c := range 6 {
 		if rs.single[c] < 0 {
-			rows[c] = Row{Name: ComponentName(c), Load: l[c], Covered: rs.covered[c]}
+			x := &rows[c]
+			x.Name, x.Load, x.Covered = ComponentName(c), l[c], rs.covered[c]
 		}
 	}
-	return u, limit
+	return u, limit, over
 }
 
 // RowName returns the name of row i: a component name or a combined row's name.
@@ -254,7 +261,18 @@ func (rs *Ratings) MaxDynamicPressure(perQ, weight *Vector) (q float64, row int)
 	q, row = math.Inf(1), -1
 	for i := range rs.rows {
 		r := &rs.rows[i]
-		qi := SafeDynamicPressure(r.value(perQ), r.value(weight), r.allowed)
+		// SafeDynamicPressure, written out: the call a row was a fifth of
+		// the check's time in it.
+		u, w := r.value(perQ), r.value(weight)
+		var qi float64
+		switch {
+		case math.Abs(w) > r.allowed:
+			qi = 0
+		case u == 0:
+			qi = math.Inf(1)
+		default:
+			qi = (r.allowed - math.Copysign(1, u)*w) / math.Abs(u)
+		}
 		if qi < q {
 			q, row = qi, i
 		}
