@@ -121,6 +121,10 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 		d, known = AccuracyOf(b)
 		r.Uncertainty = make([]Uncertainty, len(lc.Points))
 	}
+	var rr *resolutionRun
+	if lc.Resolution != nil {
+		rr = lc.newResolutionRun(b)
+	}
 	for i, p := range lc.Points {
 		sa, ca := math.Sincos(p.Alpha * math.Pi / 180)
 		perQ, weight := lc.affineAt(i, sa, ca)
@@ -167,6 +171,9 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 				lc.ReferenceArea, lc.ReferenceLength)
 			r.Uncertainty[i].Alpha, r.Uncertainty[i].Beta = p.Alpha, p.Beta
 		}
+		if rr != nil {
+			rr.point(i, sa, ca)
+		}
 	}
 	r.WithinLimits = r.MaxUtilization <= r.AllowedUtilization*(1+1e-12) &&
 		q <= float64(r.MaxSafeDynamicPressure)*(1+1e-12)
@@ -175,8 +182,8 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 			r.UnratedLoaded = append(r.UnratedLoaded, ComponentName(k))
 		}
 	}
-	if lc.Resolution != nil {
-		r.Resolution = lc.resolution(b, q)
+	if rr != nil {
+		r.Resolution = rr.finish(q)
 	}
 	switch {
 	case !r.WithinLimits:

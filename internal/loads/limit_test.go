@@ -226,6 +226,25 @@ func BenchmarkCheck21(b *testing.B) {
 	}
 }
 
+// BenchmarkCheck21Resolution is BenchmarkCheck21 with a required resolution
+// (C_L 0.005, C_D 1 count): every balance's report says whether it resolves
+// it.
+func BenchmarkCheck21Resolution(b *testing.B) {
+	art := pellin()
+	mx := pellinMatrix(b)
+	f := demoPtr(b, "lsw-2")
+	st := facilities.State{Mach: 0.2, DynamicPressure: 2500}
+	cl, cd := 0.005, 1.0
+	res := &loads.Resolution{CL: &cl, CDCounts: &cd}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := loads.Check(&loads.Case{Facility: f, Article: art, Installation: loads.Installation{ModelMass: 20}, Matrix: mx, Scale: 0.15, State: st, Resolution: res}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
 func TestLoadLimitBadRating(t *testing.T) {
 	t.Parallel()
 	f := demoPtr(t, "lsw-2")

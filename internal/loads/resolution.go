@@ -116,13 +116,29 @@ func (r *Resolution) FieldErrors(prefix string) []facilities.FieldError {
 // the larger over the asked coefficients. unknown names the asked coefficients
 // whose uncertainty is not known (then the need is +Inf).
 func (r *Resolution) Need(d Vector, known [6]bool, alphaDeg float64) (force, moment float64, unknown []string) {
-	u, unk := CoefficientUncertainty(d, known, alphaDeg, 1, 1, 1)
-	figs := u.figures()
-	for _, t := range r.terms() {
+	sa, ca := math.Sincos(alphaDeg * math.Pi / 180)
+	terms := r.terms()
+	force, moment, unk, _ := needAt(terms, d, known, sa, ca)
+	for _, t := range terms {
+		if unk&(1<<t.index) != 0 {
+			unknown = append(unknown, t.name)
+		}
+	}
+	return force, moment, unknown
+}
+
+// needAt is Need for the asked terms with the sine and cosine of α given
+// (Sincos of α·π/180, as Need takes them); unknown has bit t.index set for
+// each asked term whose uncertainty is not known, and figs are the
+// uncertainty's figures at q_c·S = 1 N, which limitingName reads.
+func needAt(terms []resolutionTerm, d Vector, known [6]bool, sa, ca float64) (force, moment float64, unknown uint8, figs [6]float64) {
+	u, unk := coefficientUncertaintyAt(d, known, sa, ca, 1, 1, 1)
+	figs = u.figures()
+	for _, t := range terms {
 		per := figs[t.index] // uncertainty at q_c·S = 1 N (or q_c·S·c = 1 N·m)
 		for _, n := range unk {
 			if n == t.name {
-				unknown = append(unknown, t.name)
+				unknown |= 1 << t.index
 				per = math.Inf(1)
 			}
 		}
@@ -132,7 +148,7 @@ func (r *Resolution) Need(d Vector, known [6]bool, alphaDeg float64) (force, mom
 			force = math.Max(force, per/t.v)
 		}
 	}
-	return force, moment, unknown
+	return force, moment, unknown, figs
 }
 
 // ResolutionCheck is whether one balance resolves the required resolution over
@@ -158,40 +174,61 @@ type ResolutionCheck struct {
 	Unknown []string `json:"unknown,omitempty"`
 }
 
-// resolution checks the required resolution on balance b at free-stream
-// dynamic pressure q (Pa).
-func (lc *Setup) resolution(b *facilities.Balance, q float64) *ResolutionCheck {
-	res := lc.Resolution
-	rc := &ResolutionCheck{Required: *res}
-	var d Vector
-	var known [6]bool
+// resolutionRun builds one balance's ResolutionCheck point by point, within
+// Setup.check's loop over the points: each point's need is taken from the sine
+// and cosine of α the check took for its loads, and the asked terms are listed
+// once a check. (The check once took them again for each point, twice: in
+// Need and in limitingName, with a Sincos and the terms' slice each time.)
+type resolutionRun struct {
+	lc    *Setup
+	terms []resolutionTerm
+	d     Vector
+	known [6]bool
+	// seen marks, by term index, the unknown terms already in rc.Unknown.
+	seen uint8
+	rc   *ResolutionCheck
+}
+
+// newResolutionRun starts the check of the required resolution on balance b.
+func (lc *Setup) newResolutionRun(b *facilities.Balance) *resolutionRun {
+	rr := &resolutionRun{lc: lc, terms: lc.Resolution.terms(), rc: &ResolutionCheck{Required: *lc.Resolution}}
 	if b.Accuracy != nil {
-		d, known = AccuracyOf(b)
+		rr.d, rr.known = AccuracyOf(b)
 	}
-	seen := map[string]bool{}
-	for i, p := range lc.Points {
-		force, moment, unk := res.Need(d, known, p.Alpha)
-		for _, n := range unk {
-			if !seen[n] {
-				seen[n] = true
-				rc.Unknown = append(rc.Unknown, n)
+	return rr
+}
+
+// point adds point i with the sine and cosine of its α (Sincos of α·π/180).
+func (rr *resolutionRun) point(i int, sa, ca float64) {
+	lc, rc := rr.lc, rr.rc
+	p := &lc.Points[i]
+	force, moment, unk, figs := needAt(rr.terms, rr.d, rr.known, sa, ca)
+	if unk != 0 {
+		for _, t := range rr.terms {
+			if bit := uint8(1) << t.index; unk&bit != 0 && rr.seen&bit == 0 {
+				rr.seen |= bit
+				rc.Unknown = append(rc.Unknown, t.name)
 			}
 		}
-		if len(unk) > 0 {
-			continue
-		}
-		f := lc.Points[i].DynamicPressureFactor
-		if f == 0 {
-			f = 1
-		}
-		qf := force / (f * lc.ReferenceArea)
-		qm := moment / (f * lc.ReferenceArea * lc.ReferenceLength)
-		name := res.limitingName(p.Alpha, d, known, qf >= qm)
-		if qn := math.Max(qf, qm); qn > rc.MinDynamicPressure {
-			rc.MinDynamicPressure = qn
-			rc.Limiting = Limiting{Component: name, Alpha: p.Alpha, Beta: p.Beta}
-		}
+		return
 	}
+	f := p.DynamicPressureFactor
+	if f == 0 {
+		f = 1
+	}
+	qf := force / (f * lc.ReferenceArea)
+	qm := moment / (f * lc.ReferenceArea * lc.ReferenceLength)
+	name := limitingName(rr.terms, &figs, qf >= qm)
+	if qn := math.Max(qf, qm); qn > rc.MinDynamicPressure {
+		rc.MinDynamicPressure = qn
+		rc.Limiting = Limiting{Component: name, Alpha: p.Alpha, Beta: p.Beta}
+	}
+}
+
+// finish returns the check at free-stream dynamic pressure q (Pa) once every
+// point is in.
+func (rr *resolutionRun) finish(q float64) *ResolutionCheck {
+	rc := rr.rc
 	switch {
 	case len(rc.Unknown) > 0:
 		rc.State, rc.MinDynamicPressure, rc.Limiting = ResolutionAccuracyUnknown, 0, Limiting{}
@@ -206,13 +243,12 @@ func (lc *Setup) resolution(b *facilities.Balance, q float64) *ResolutionCheck {
 	return rc
 }
 
-// limitingName returns the asked coefficient with the largest need at a point:
-// among the force coefficients when force is true, else among the moments.
-func (r *Resolution) limitingName(alphaDeg float64, d Vector, known [6]bool, force bool) string {
-	u, _ := CoefficientUncertainty(d, known, alphaDeg, 1, 1, 1)
-	figs := u.figures()
+// limitingName returns the asked coefficient with the largest need at a point
+// whose uncertainty figures (at q_c·S = 1 N) are figs: among the force
+// coefficients when force is true, else among the moments.
+func limitingName(terms []resolutionTerm, figs *[6]float64, force bool) string {
 	best, name := -1.0, ""
-	for _, t := range r.terms() {
+	for _, t := range terms {
 		if t.moment == force {
 			continue
 		}
