@@ -84,6 +84,31 @@ func (lc *Setup) Check(b *facilities.Balance, q float64) (Report, error) {
 }
 
 func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error) {
+	return lc.checkWith(b, q, idx, nil)
+}
+
+// pointLoads are one point's sine and cosine of α (Sincos of α·π/180) and
+// its loads as Affine gives them, which do not depend on the balance.
+type pointLoads struct {
+	sa, ca       float64
+	perQ, weight Vector
+}
+
+// pointsLoads returns every point's pointLoads, for the checks of several
+// balances over the same points (CheckAll).
+func (lc *Setup) pointsLoads() []pointLoads {
+	out := make([]pointLoads, len(lc.Points))
+	for i := range out {
+		pl := &out[i]
+		pl.sa, pl.ca = math.Sincos(lc.Points[i].Alpha * math.Pi / 180)
+		pl.perQ, pl.weight = lc.affineAt(i, pl.sa, pl.ca)
+	}
+	return out
+}
+
+// checkWith is check with every point's sines and loads in pre when it is
+// not nil (lc.pointsLoads()), taken rather than computed again.
+func (lc *Setup) checkWith(b *facilities.Balance, q float64, idx int, pre []pointLoads) (Report, error) {
 	if err := lc.validate(q); err != nil {
 		return Report{}, err
 	}
@@ -126,8 +151,15 @@ func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error
 		rr = lc.newResolutionRun(b)
 	}
 	for i, p := range lc.Points {
-		sa, ca := math.Sincos(p.Alpha * math.Pi / 180)
-		perQ, weight := lc.affineAt(i, sa, ca)
+		var sa, ca float64
+		var perQ, weight Vector
+		if pre != nil {
+			pl := &pre[i]
+			sa, ca, perQ, weight = pl.sa, pl.ca, pl.perQ, pl.weight
+		} else {
+			sa, ca = math.Sincos(p.Alpha * math.Pi / 180)
+			perQ, weight = lc.affineAt(i, sa, ca)
+		}
 		var l Vector
 		for k := range l {
 			l[k] = q*perQ[k] + weight[k]

@@ -15,8 +15,15 @@ func CheckAll(lc *Setup, f *facilities.Facility, q float64) ([]Report, error) {
 		return nil, ErrNoBalance
 	}
 	out := make([]Report, len(f.Balances))
+	// The points' sines and loads do not depend on the balance: with
+	// several balances they are taken once for all (each check took them
+	// again).
+	var pre []pointLoads
+	if len(f.Balances) > 1 {
+		pre = lc.pointsLoads()
+	}
 	for i := range f.Balances {
-		r, err := lc.CheckBalance(f, i, q)
+		r, err := lc.checkWith(&f.Balances[i], q, i, pre)
 		if err != nil {
 			return nil, err
 		}

@@ -124,3 +124,48 @@ func (lc *Setup) resolutionByNeed(b *facilities.Balance, q float64) *ResolutionC
 	}
 	return rc
 }
+
+// TestCheckAllMatchesEachBalance: CheckAll, which takes every point's sines
+// and loads once for all the balances (pointsLoads), gives each balance the
+// report its own check gives (CheckBalance), to the bit, over 500 random
+// set-ups on a facility of three balances (a gauge row, accuracies or none,
+// a required resolution or none).
+func TestCheckAllMatchesEachBalance(t *testing.T) {
+	t.Parallel()
+	rng := rand.New(rand.NewPCG(7, 17))
+	f := func(v float64) *float64 { return &v }
+	fac := facilities.Facility{ID: "f", Balances: []facilities.Balance{
+		{ID: "a", SafetyFactor: 1.5, Limits: facilities.Limits{Normal: f(5000), Axial: f(900), PitchingMoment: f(400)},
+			Accuracy: &facilities.Accuracy{FractionOfRating: 5e-4}},
+		{ID: "b", Limits: facilities.Limits{Normal: f(900), Axial: f(200), Side: f(300)},
+			Combined: []facilities.CombinedLimit{{Name: "fwd", Limit: 700, Coefficients: map[string]float64{"normal": 0.5, "pitching_moment": 8}}}},
+		{ID: "c", SafetyFactor: 2, Limits: facilities.Limits{Normal: f(20000), Axial: f(3000), Side: f(8000),
+			RollingMoment: f(900), PitchingMoment: f(1500), YawingMoment: f(900)},
+			Accuracy: &facilities.Accuracy{Components: &facilities.Limits{Normal: f(2), Axial: f(0.5), PitchingMoment: f(0.3)}}},
+	}}
+	for range 500 {
+		lc := Setup{ReferenceArea: 0.01 + rng.Float64(), ReferenceLength: 0.05 + rng.Float64(),
+			Installation: Installation{ModelMass: 20 * rng.Float64(), CGOffset: Offset{X: 0.1 * rng.NormFloat64(), Z: 0.02 * rng.NormFloat64()},
+				BalanceOffset: Offset{X: 0.1 * rng.NormFloat64()}}}
+		for range 1 + rng.IntN(25) {
+			p := facilities.Point{Alpha: 40 * (rng.Float64() - 0.3), Beta: 10 * (rng.Float64() - 0.5)}
+			p.CL, p.CD, p.Cm, p.CY = rng.NormFloat64(), 0.05*rng.Float64(), 0.1*rng.NormFloat64(), 0.1*rng.NormFloat64()
+			if rng.IntN(3) > 0 {
+				p.DynamicPressureFactor = 1 + 0.05*rng.Float64()
+			}
+			lc.Points = append(lc.Points, p)
+		}
+		if rng.IntN(2) == 0 {
+			lc.Resolution = &Resolution{CL: f(0.01), CDCounts: f(2)}
+		}
+		q := math.Exp(2 + 8*rng.Float64())
+		all, err := CheckAll(&lc, &fac, q)
+		require.NoError(t, err)
+		require.Len(t, all, len(fac.Balances))
+		for i := range fac.Balances {
+			r, err := lc.CheckBalance(&fac, i, q)
+			require.NoError(t, err)
+			require.Equal(t, r, all[i], "balance %d", i)
+		}
+	}
+}
