@@ -175,6 +175,22 @@ func LowestStagnationTemperature(f *facilities.Facility, mach, p0 float64) (floa
 	return t, facilities.ConstraintTempMin, nil
 }
 
+// topPredicted is the top setting of a trade point's nitrogen set-up c on
+// the q ceiling, its p0 the joint step's root started from the curve's last
+// q-ceiling roots (ceilingHistory.predict); ok is false when there is no
+// prediction inside (pa, pTop) or the step from it fails. q at pTop is not
+// asked: it lies above the ceiling when a root lies under pTop, q rising
+// with p0 along the T0 floor (TestQAlongFloorRises).
+func (sv *solver) topPredicted(c *machSetup) (topSetting, bool) {
+	qc := sv.qmax
+	if p, t, ok := sv.ceilHist.predict(c.machOrSpeed, qc); ok && p > c.pa && p < c.pTop {
+		if pf, ok := sv.ceilingJointFrom(c, qc, p, t, nil); ok {
+			return sv.topFinish(c, topSetting{p: pf, cap: facilities.ConstraintDynamic}, qc), true
+		}
+	}
+	return topSetting{}, false
+}
+
 // topPartial is the top setting of a trade point's nitrogen set-up c
 // (solver.topOnly) without the state at (pa, the T0 floor), which a trade
 // point reads only for the start of the q ceiling's root: its p0 comes from
@@ -188,11 +204,8 @@ func LowestStagnationTemperature(f *facilities.Facility, mach, p0 float64) (floa
 // completes the set-up as any other).
 func (sv *solver) topPartial(c *machSetup) (topSetting, bool) {
 	qc := sv.qmax
-	if p, t, ok := sv.ceilHist.predict(c.machOrSpeed, qc); ok && p > c.pa && p < c.pTop {
-		if pf, ok := sv.ceilingJointFrom(c, qc, p, t, nil); ok {
-			t := sv.topFinish(c, topSetting{p: pf, cap: facilities.ConstraintDynamic}, qc)
-			return t, !t.fail
-		}
+	if t, ok := sv.topPredicted(c); ok {
+		return t, !t.fail
 	}
 	if sv.qcurve(c, c.pTop) <= qc {
 		t := sv.highestSetting(c, qc, facilities.ConstraintDynamic)

@@ -289,6 +289,19 @@ func (sv *solver) ceilingJoint(c *machSetup, qc, qa, qTop float64) (float64, boo
 			return p, true
 		}
 	}
+	if sv.topOnly && !sv.noTopPredict {
+		// A trade point whose set-up was not partial (a scan's set-up kept
+		// with its top left to its readers, or one above the condensation
+		// peak): the trade curve's last roots predict this one as they do
+		// for topPartial, within the step's stop where they have their
+		// derivatives, where the secant across [pa, pTop] is 1e-3 to 1e-2
+		// off and takes two or three iterations.
+		if p, t, ok := sv.ceilHist.predict(c.machOrSpeed, qc); ok && p > c.pa && p < c.pTop {
+			if p, ok := sv.ceilingJointFrom(c, qc, p, t, nil); ok {
+				return p, true
+			}
+		}
+	}
 	return sv.ceilingJointFrom(c, qc, c.pa+(c.pTop-c.pa)*(qc-qa)/(qTop-qa), math.NaN(), nil)
 }
 

@@ -263,6 +263,11 @@ type solver struct {
 	// noPartial keeps every set-up whole (no topPartial), for the test that
 	// compares the trade curve with and without partial set-ups.
 	noPartial bool
+	// noTopPredict starts a trade point's q-ceiling root outside topPartial
+	// (a scan's set-up with its top left to its readers, a whole set-up)
+	// from the secant across [pa, pTop] instead of the curve's last roots,
+	// for the test that compares the two.
+	noTopPredict bool
 	// noLazyTop computes every nitrogen set-up's top setting in prepare (no
 	// topLazy), for the test that compares candidates and plans both ways.
 	noLazyTop bool
@@ -1461,14 +1466,30 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 // c's Mach number too.
 func (sv *solver) top(c *machSetup) topSetting {
 	if c.topLazy {
-		c.facilityTop, c.topLazy = sv.highestSetting(c, sv.qmax, facilities.ConstraintDynamic), false
-		if sv.setups != nil {
-			if k, ok := sv.setups.get(c.machOrSpeed); ok && k.topLazy {
-				k.facilityTop, k.topLazy = c.facilityTop, false
-			}
-		}
+		sv.topNow(c)
 	}
 	return c.facilityTop
+}
+
+// topNow is top's computation, apart so that top's own path, taken by
+// every candidate, stays short.
+func (sv *solver) topNow(c *machSetup) {
+	ok := false
+	if sv.topOnly && !sv.noTopPredict && c.cond && c.qaOK && c.qa < sv.qmax {
+		// A trade point at a scan's set-up: its top from the curve's last
+		// roots as a partial set-up's (topPartial), without q at pTop and
+		// the secant's two or three iterations.
+		c.facilityTop, ok = sv.topPredicted(c)
+	}
+	if !ok {
+		c.facilityTop = sv.highestSetting(c, sv.qmax, facilities.ConstraintDynamic)
+	}
+	c.topLazy = false
+	if sv.setups != nil {
+		if k, ok := sv.setups.get(c.machOrSpeed); ok && k.topLazy {
+			k.facilityTop, k.topLazy = c.facilityTop, false
+		}
+	}
 }
 
 // underTop reports whether the candidate at target Re/m in load window w on
@@ -1496,10 +1517,19 @@ func (sv *solver) underTop(c *machSetup, target float64, w Window) bool {
 // atWindow left them (hiLazy).
 func (sv *solver) hiOf(c *machSetup, x candidate) (rhi float64, capHi string) {
 	if x.hiLazy {
-		t := sv.top(c)
-		return t.r, t.cap
+		return sv.lazyHi(c)
 	}
 	return x.rhi, x.capHi
+}
+
+// lazyHi is hiOf's reading of the top setting, out of line: with top
+// inlined here hiOf was no longer inlined in its callers (about 0.6k
+// instructions a tsw-1 plan, which never reads a lazy top).
+//
+//go:noinline
+func (sv *solver) lazyHi(c *machSetup) (float64, string) {
+	t := sv.top(c)
+	return t.r, t.cap
 }
 
 // prepareIdeal is prepare for an ideal gas (Z = 1): at a fixed Mach number q and

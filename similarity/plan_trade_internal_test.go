@@ -324,3 +324,68 @@ func TestHermiteAt(t *testing.T) {
 	_, ok = hermiteAt([]float64{1, 1}, []float64{1, 2}, []float64{nan, nan}, 2)
 	assert.False(t, ok)
 }
+
+// TestTradePredictsScanTops: a trade point at a scan's set-up, whose top
+// setting the search left to its readers (topLazy), or at a whole set-up,
+// starts its q-ceiling root from the curve's last roots
+// (ceilingHistory.predict, as topPartial) instead of the secant across
+// [pa, pTop]: in cn2-05 under q ceilings from 30 to 120 kPa, condensation
+// margins of 0 and 0.02 and two p0 ranges, each curve after the scan's nine
+// set-ups (prepared as the feasibility scan prepares them) has the limits
+// and points of the curve with the secant starts (noTopPredict) within
+// 2e-13 relative (the roots' 1e-13), each point usable by the facility's
+// own check, and costs fewer states (the regression guard of the saving).
+func TestTradePredictsScanTops(t *testing.T) {
+	t.Parallel()
+	base, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	saved, lazy := 0, 0
+	for _, qmax := range []float64{30e3, 50e3, 70e3, 90e3, 120e3} {
+		for _, cond := range []float64{0, 0.02} {
+			for _, pr := range []facilities.Range{base.StagnationPressure, {Min: 110e3, Max: 450e3}} {
+				f := base
+				f.MaxDynamicPressure = &qmax
+				f.StagnationPressure = pr
+				secant, predicted := tradeSolver(t, &f), tradeSolver(t, &f)
+				secant.noTopPredict = true
+				secant.condMin, predicted.condMin = cond, cond
+				for _, sv := range []*solver{secant, predicted} {
+					for k := range scanGrid {
+						u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*float64(k)/(scanGrid-1)
+						var c machSetup
+						sv.prepareIn(&c, u)
+						if sv == predicted && c.topLazy {
+							lazy++
+						}
+					}
+				}
+				e0, e1 := secant.evals, predicted.evals
+				want := secant.trade(1, 41)
+				got := predicted.trade(1, 41)
+				saved += (secant.evals - e0) - (predicted.evals - e1)
+				for i, w := range want {
+					g := got[i]
+					require.Equal(t, w.Limit, g.Limit, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+					for _, v := range [][2]float64{{w.Reynolds, g.Reynolds}, {w.StagnationPressure, g.StagnationPressure},
+						{w.StagnationTemperature, g.StagnationTemperature}, {w.DynamicPressure, g.DynamicPressure}, {w.Speed, g.Speed}} {
+						if v[0] != v[1] {
+							assert.InEpsilon(t, v[0], v[1], 2e-13, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+						}
+					}
+					if g.Reynolds == 0 {
+						continue
+					}
+					st, err := f.State(facilities.Setting{Mach: g.Mach, StagnationPressure: g.StagnationPressure, StagnationTemperature: g.StagnationTemperature})
+					require.NoError(t, err)
+					if cond == 0 {
+						assert.Empty(t, f.Violations(st), "q max %g, p0 %v, point %d", qmax, pr, i)
+					}
+					assert.LessOrEqual(t, st.DynamicPressure, qmax, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+				}
+			}
+		}
+	}
+	t.Logf("%d states saved, %d lazy tops", saved, lazy)
+	assert.Greater(t, lazy, 50, "scan set-ups with their tops left to the trade curve")
+	assert.Greater(t, saved, 100, "states saved")
+}
