@@ -219,3 +219,43 @@ func TestRelaxedLineSkipsScan(t *testing.T) {
 	t.Logf("%d re-solves without the scan; largest difference: gain %.3g percentage points, Mach number or scale %.3g relative", n, worstGain, worstAt)
 	require.Greater(t, n, 20)
 }
+
+// TestQGainSetupsFromPlan: the q ceiling's gain re-solves with the set-ups
+// of the plan's own solver where they hold (qSetupFrom: their top setting
+// left to its readers) instead of preparing them anew (noQSetups): over 60
+// random problems in cn2-05 (randomGasProblemIn), the gain is the same to
+// the bit, and the re-solves compute fewer states (the regression guard of
+// the saving).
+func TestQGainSetupsFromPlan(t *testing.T) {
+	rng := rand.New(rand.NewSource(47))
+	n, withStates, anewStates := 0, 0, 0
+	for i := 0; i < 60; i++ {
+		p := randomGasProblemIn(t, rng, i, []string{"cn2-05"})
+		var gains [2]float64
+		var errs [2]error
+		for k, anew := range []bool{false, true} {
+			sv, err := newSolver(p)
+			require.NoError(t, err)
+			sv.noQSetups = anew
+			best, err := sv.solveCorrected()
+			if err != nil {
+				break
+			}
+			g, states, err := sv.gain(facilities.ConstraintDynamic, best)
+			gains[k], errs[k] = g, err
+			if anew {
+				anewStates += states
+			} else {
+				withStates += states
+			}
+		}
+		require.Equal(t, errs[1] == nil, errs[0] == nil, "case %d", i)
+		assert.Equal(t, gains[1], gains[0], "case %d", i)
+		if errs[0] == nil {
+			n++
+		}
+	}
+	t.Logf("%d gains; states %d against %d anew", n, withStates, anewStates)
+	require.Greater(t, n, 30)
+	assert.Less(t, withStates, anewStates)
+}

@@ -669,6 +669,14 @@ func (sv *solver) relaxed(name string) (*solver, bool) {
 			}
 		}
 	}
+	// A set-up reads the q ceiling only in its check of q at p0 min and in
+	// its top setting: the relaxed copy takes this solver's set-ups with
+	// the top left to its readers (qSetupFrom) instead of preparing them
+	// anew (cn2-05 priority cruise: the q gain's 66 nitrogenAt calls 56).
+	r.qSetups = nil
+	if name == facilities.ConstraintDynamic && !sv.noQSetups && sv.setups != nil && r.setups != sv.setups && sv.f.Medium.Kind == facilities.MediumNitrogen && !sv.liquid {
+		r.qSetups = sv.setups
+	}
 	up := func(v float64) *float64 { v *= 1.01; return &v }
 	rng := func(x *facilities.Range, lower bool) *facilities.Range {
 		y := *x

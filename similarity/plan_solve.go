@@ -325,6 +325,14 @@ type solver struct {
 	// nil otherwise): the search, the trade curve and the re-solves that relax
 	// no limit a set-up reads share them.
 	setups *setupCache
+	// qSetups are the set-ups of the solver this one relaxes the q ceiling
+	// of (nil otherwise): a set-up reads the ceiling only in its check of q
+	// at p0 min and in its top setting, so one of them that the search
+	// left to its readers (topLazy) is this solver's as it stands.
+	qSetups *setupCache
+	// noQSetups prepares a q ceiling's relaxed copy's set-ups anew (no
+	// qSetups), for the test that compares the two.
+	noQSetups bool
 	// water keeps water's properties by temperature (a water facility's
 	// plans; nil otherwise), shared with the relaxed copies.
 	water *waterMemo
@@ -1279,11 +1287,36 @@ func (sv *solver) prepareIn(c *machSetup, machOrSpeed float64) {
 			*c = *k
 			return
 		}
+		if sv.qSetups != nil && sv.qSetupFrom(c, machOrSpeed) {
+			sv.setups.put(machOrSpeed, c)
+			return
+		}
 	}
 	sv.prepareNowIn(c, machOrSpeed)
 	if sv.setups != nil && !c.partial {
 		sv.setups.put(machOrSpeed, c)
 	}
+}
+
+// qSetupFrom sets *c to the set-up at machOrSpeed of the solver whose q
+// ceiling sv relaxes (qSetups), with its top setting left to its readers
+// (topLazy), where prepareNitrogen would leave it so: without an Re/m
+// ceiling, with q at (p0 min, the T0 floor) under sv's ceiling. Its states,
+// T0 floor and other limits do not read the ceiling, and its check of q at
+// p0 min passed under a lower one, so the rest is sv's set-up as prepare
+// computes it. false where the solver relaxed holds none usable there:
+// prepare then computes it.
+func (sv *solver) qSetupFrom(c *machSetup, machOrSpeed float64) bool {
+	if sv.topOnly || sv.noLazyTop || !math.IsInf(sv.remax, 1) {
+		return false
+	}
+	k, ok := sv.qSetups.get(machOrSpeed)
+	if !ok || !k.ok || k.partial || !k.qaOK || !(k.qa <= sv.qmax*(1+limitSlack)) {
+		return false
+	}
+	*c = *k
+	c.facilityTop, c.topLazy = topSetting{}, true
+	return true
 }
 
 // prepareNow is prepare without the solver's set-ups kept.
