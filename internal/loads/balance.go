@@ -80,11 +80,7 @@ func (lc *Setup) affineAt(i int, sa, ca float64) (perQ, weight Vector) {
 // free-stream dynamic pressure at which the worst point reaches the allowed load by
 // this estimate (MaxSafeDynamicPressure). Bad input is a *Error naming the field.
 func (lc *Setup) Check(b *facilities.Balance, q float64) (Report, error) {
-	return lc.check(b, q, -1)
-}
-
-func (lc *Setup) check(b *facilities.Balance, q float64, idx int) (Report, error) {
-	return lc.checkWith(b, q, idx, nil)
+	return lc.checkWith(b, q, -1, nil)
 }
 
 // pointLoads are one point's sine and cosine of α (Sincos of α·π/180) and
@@ -106,8 +102,11 @@ func (lc *Setup) pointsLoads() []pointLoads {
 	return out
 }
 
-// checkWith is check with every point's sines and loads in pre when it is
-// not nil (lc.pointsLoads()), taken rather than computed again.
+// checkWith is Check of balance b, naming bad balance fields under
+// balancePath(idx), with every point's sines and loads taken from pre when it
+// is not nil (lc.pointsLoads()) rather than computed again. Check,
+// CheckBalance and Choose call it straight: a wrapper between them copied
+// the Report once more.
 func (lc *Setup) checkWith(b *facilities.Balance, q float64, idx int, pre []pointLoads) (Report, error) {
 	if err := lc.validate(q); err != nil {
 		return Report{}, err
@@ -241,5 +240,5 @@ func (lc *Setup) checkWith(b *facilities.Balance, q float64, idx int, pre []poin
 // "facility.balances[i]". The balance choice over a facility's balances is
 // internal/loads' (loads.Choose).
 func (lc *Setup) CheckBalance(f *facilities.Facility, i int, q float64) (Report, error) {
-	return lc.check(&f.Balances[i], q, i)
+	return lc.checkWith(&f.Balances[i], q, i, nil)
 }

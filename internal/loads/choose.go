@@ -56,7 +56,7 @@ func Choose(lc *Setup, f *facilities.Facility, q float64) (Choice, error) {
 			if f.Balances[i].ID != id {
 				continue
 			}
-			r, err := lc.CheckBalance(f, i, q)
+			r, err := lc.checkWith(&f.Balances[i], q, i, nil)
 			if err != nil {
 				return Choice{}, err
 			}
