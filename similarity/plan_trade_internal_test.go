@@ -24,6 +24,55 @@ func tradeSolver(t *testing.T, f *facilities.Facility) *solver {
 	return sv
 }
 
+// forTradeCases runs one case of the trade curve's tests for each q ceiling
+// in Pa, condensation margin (0 or 2 %) and stagnation pressure range (the
+// facility's own and a narrower one) of cn2-05, on a copy of the facility
+// with that ceiling and range.
+func forTradeCases(t *testing.T, run func(f *facilities.Facility, qmax, cond float64, pr facilities.Range)) {
+	t.Helper()
+	base, ok := facilities.DemoFacility("cn2-05")
+	require.True(t, ok)
+	for _, qmax := range []float64{30e3, 50e3, 70e3, 90e3, 120e3} {
+		for _, cond := range []float64{0, 0.02} {
+			for _, pr := range []facilities.Range{base.StagnationPressure, {Min: 110e3, Max: 450e3}} {
+				f := base
+				f.MaxDynamicPressure = &qmax
+				f.StagnationPressure = pr
+				run(&f, qmax, cond, pr)
+			}
+		}
+	}
+}
+
+// requireSameTrade holds the trade curve got to want: the same limit at each
+// point, Reynolds number, stagnation pressure and temperature, dynamic
+// pressure and speed within 2e-13 relative (the roots' 1e-13), and each
+// point's setting usable by the facility's own check (no violations where
+// no condensation margin is asked) and under the q ceiling qmax.
+func requireSameTrade(t *testing.T, f *facilities.Facility, want, got []TradePoint, qmax, cond float64, pr facilities.Range) {
+	t.Helper()
+	require.Len(t, got, len(want))
+	for i, w := range want {
+		g := got[i]
+		require.Equal(t, w.Limit, g.Limit, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+		for _, v := range [][2]float64{{w.Reynolds, g.Reynolds}, {w.StagnationPressure, g.StagnationPressure},
+			{w.StagnationTemperature, g.StagnationTemperature}, {w.DynamicPressure, g.DynamicPressure}, {w.Speed, g.Speed}} {
+			if v[0] != v[1] {
+				assert.InEpsilon(t, v[0], v[1], 2e-13, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+			}
+		}
+		if g.Reynolds == 0 {
+			continue
+		}
+		st, err := f.State(facilities.Setting{Mach: g.Mach, StagnationPressure: g.StagnationPressure, StagnationTemperature: g.StagnationTemperature})
+		require.NoError(t, err)
+		if cond == 0 {
+			assert.Empty(t, f.Violations(st), "q max %g, p0 %v, point %d", qmax, pr, i)
+		}
+		assert.LessOrEqual(t, st.DynamicPressure, qmax, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+	}
+}
+
 // TestQAlongFloorRises: in cn2-05 (the condensation line as its T0 floor),
 // q on the floor rises with p0 at every Mach number of its range, the
 // property topPartial relies on to know q at p0 min under the ceiling
@@ -65,44 +114,17 @@ func TestQAlongFloorRises(t *testing.T) {
 // State), and partial set-ups used (the regression guard of the saving).
 func TestTradePartialSetups(t *testing.T) {
 	t.Parallel()
-	base, ok := facilities.DemoFacility("cn2-05")
-	require.True(t, ok)
 	partials := 0
-	for _, qmax := range []float64{30e3, 50e3, 70e3, 90e3, 120e3} {
-		for _, cond := range []float64{0, 0.02} {
-			for _, pr := range []facilities.Range{base.StagnationPressure, {Min: 110e3, Max: 450e3}} {
-				f := base
-				f.MaxDynamicPressure = &qmax
-				f.StagnationPressure = pr
-				whole, part := tradeSolver(t, &f), tradeSolver(t, &f)
-				whole.noPartial = true
-				whole.condMin, part.condMin = cond, cond
-				want := whole.trade(1, 41)
-				// Count the partial set-ups: they are not kept.
-				got := part.trade(1, 41)
-				partials += 41 - len(part.setups.keys)
-				for i, w := range want {
-					g := got[i]
-					require.Equal(t, w.Limit, g.Limit, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
-					for _, v := range [][2]float64{{w.Reynolds, g.Reynolds}, {w.StagnationPressure, g.StagnationPressure},
-						{w.StagnationTemperature, g.StagnationTemperature}, {w.DynamicPressure, g.DynamicPressure}, {w.Speed, g.Speed}} {
-						if v[0] != v[1] {
-							assert.InEpsilon(t, v[0], v[1], 2e-13, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
-						}
-					}
-					if g.Reynolds == 0 {
-						continue
-					}
-					st, err := f.State(facilities.Setting{Mach: g.Mach, StagnationPressure: g.StagnationPressure, StagnationTemperature: g.StagnationTemperature})
-					require.NoError(t, err)
-					if cond == 0 {
-						assert.Empty(t, f.Violations(st), "q max %g, p0 %v, point %d", qmax, pr, i)
-					}
-					assert.LessOrEqual(t, st.DynamicPressure, qmax, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
-				}
-			}
-		}
-	}
+	forTradeCases(t, func(f *facilities.Facility, qmax, cond float64, pr facilities.Range) {
+		whole, part := tradeSolver(t, f), tradeSolver(t, f)
+		whole.noPartial = true
+		whole.condMin, part.condMin = cond, cond
+		want := whole.trade(1, 41)
+		// Count the partial set-ups: they are not kept.
+		got := part.trade(1, 41)
+		partials += 41 - len(part.setups.keys)
+		requireSameTrade(t, f, want, got, qmax, cond, pr)
+	})
 	assert.Greater(t, partials, 200, "partial set-ups")
 }
 
@@ -337,54 +359,27 @@ func TestHermiteAt(t *testing.T) {
 // own check, and costs fewer states (the regression guard of the saving).
 func TestTradePredictsScanTops(t *testing.T) {
 	t.Parallel()
-	base, ok := facilities.DemoFacility("cn2-05")
-	require.True(t, ok)
 	saved, lazy := 0, 0
-	for _, qmax := range []float64{30e3, 50e3, 70e3, 90e3, 120e3} {
-		for _, cond := range []float64{0, 0.02} {
-			for _, pr := range []facilities.Range{base.StagnationPressure, {Min: 110e3, Max: 450e3}} {
-				f := base
-				f.MaxDynamicPressure = &qmax
-				f.StagnationPressure = pr
-				secant, predicted := tradeSolver(t, &f), tradeSolver(t, &f)
-				secant.noTopPredict = true
-				secant.condMin, predicted.condMin = cond, cond
-				for _, sv := range []*solver{secant, predicted} {
-					for k := range scanGrid {
-						u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*float64(k)/(scanGrid-1)
-						var c machSetup
-						sv.prepareIn(&c, u)
-						if sv == predicted && c.topLazy {
-							lazy++
-						}
-					}
-				}
-				e0, e1 := secant.evals, predicted.evals
-				want := secant.trade(1, 41)
-				got := predicted.trade(1, 41)
-				saved += (secant.evals - e0) - (predicted.evals - e1)
-				for i, w := range want {
-					g := got[i]
-					require.Equal(t, w.Limit, g.Limit, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
-					for _, v := range [][2]float64{{w.Reynolds, g.Reynolds}, {w.StagnationPressure, g.StagnationPressure},
-						{w.StagnationTemperature, g.StagnationTemperature}, {w.DynamicPressure, g.DynamicPressure}, {w.Speed, g.Speed}} {
-						if v[0] != v[1] {
-							assert.InEpsilon(t, v[0], v[1], 2e-13, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
-						}
-					}
-					if g.Reynolds == 0 {
-						continue
-					}
-					st, err := f.State(facilities.Setting{Mach: g.Mach, StagnationPressure: g.StagnationPressure, StagnationTemperature: g.StagnationTemperature})
-					require.NoError(t, err)
-					if cond == 0 {
-						assert.Empty(t, f.Violations(st), "q max %g, p0 %v, point %d", qmax, pr, i)
-					}
-					assert.LessOrEqual(t, st.DynamicPressure, qmax, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+	forTradeCases(t, func(f *facilities.Facility, qmax, cond float64, pr facilities.Range) {
+		secant, predicted := tradeSolver(t, f), tradeSolver(t, f)
+		secant.noTopPredict = true
+		secant.condMin, predicted.condMin = cond, cond
+		for _, sv := range []*solver{secant, predicted} {
+			for k := range scanGrid {
+				u := sv.machOrSpeedMin + (sv.machOrSpeedMax-sv.machOrSpeedMin)*float64(k)/(scanGrid-1)
+				var c machSetup
+				sv.prepareIn(&c, u)
+				if sv == predicted && c.topLazy {
+					lazy++
 				}
 			}
 		}
-	}
+		e0, e1 := secant.evals, predicted.evals
+		want := secant.trade(1, 41)
+		got := predicted.trade(1, 41)
+		saved += (secant.evals - e0) - (predicted.evals - e1)
+		requireSameTrade(t, f, want, got, qmax, cond, pr)
+	})
 	t.Logf("%d states saved, %d lazy tops", saved, lazy)
 	assert.Greater(t, lazy, 50, "scan set-ups with their tops left to the trade curve")
 	assert.Greater(t, saved, 100, "states saved")
