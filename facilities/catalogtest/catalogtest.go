@@ -7,6 +7,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"testing"
@@ -549,17 +550,25 @@ func testConcurrentPlans(t *testing.T, c facilities.Catalog) {
 // testConcurrentDistinctPlans saves many different plans at once, as the writers of
 // a busy service or a batch do (a store may commit them together): every writer
 // is answered with its own record, and every record is stored byte for byte.
+// Every third body is as long as a plan answer's part, so that a store which
+// compresses bodies in buffers it reuses is held to each body as well.
 func testConcurrentDistinctPlans(t *testing.T, c facilities.Catalog) {
-	const writers = 64
+	const writers = 96
 	ctx := context.Background()
 	got := make([]facilities.PlanRecord, writers)
+	body := func(w int) string {
+		if w%3 == 0 {
+			return fmt.Sprintf(`{"writer":%d,"rows":"%s"}`, w, strings.Repeat(fmt.Sprintf("%d:%x;", w, w*w), 400+w))
+		}
+		return fmt.Sprintf(`{"writer":%d}`, w)
+	}
 	var wg sync.WaitGroup
 	for w := range writers {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			p, err := c.SavePlan(ctx, facilities.PlanRecord{ID: fmt.Sprintf("distinct-%02d", w), FacilityID: "tsw-1",
-				FacilityVersion: w%3 + 1, Body: []byte(fmt.Sprintf(`{"writer":%d}`, w))})
+				FacilityVersion: w%3 + 1, Body: []byte(body(w))})
 			if !assert.NoError(t, err, "writer %d", w) {
 				return
 			}
@@ -568,7 +577,7 @@ func testConcurrentDistinctPlans(t *testing.T, c facilities.Catalog) {
 	}
 	wg.Wait()
 	for w := range writers {
-		id, body := fmt.Sprintf("distinct-%02d", w), fmt.Sprintf(`{"writer":%d}`, w)
+		id, body := fmt.Sprintf("distinct-%02d", w), body(w)
 		assert.Equal(t, []any{id, body, w%3 + 1}, []any{got[w].ID, string(got[w].Body), got[w].FacilityVersion},
 			"writer %d's answer: id, body, facility version", w)
 		stored, err := c.Plan(ctx, id)

@@ -75,7 +75,7 @@ func Open(ctx context.Context, url string) (*DB, error) {
 		return nil, fmt.Errorf("postgres: connecting: %w", err)
 	}
 	s, err := sqlstore.Open(ctx, sqlstore.Config{Dialect: dialect, Driver: pgxDriver{pgxRunner{pool}, pool}, Subject: "the database",
-		GroupCommit: groupcommit.Config[facilities.PlanRecord]{MaxGroup: maxGroup, Gather: sqlstore.PlanGather}})
+		GroupCommit: groupcommit.Config[sqlstore.QueuedPlan]{MaxGroup: maxGroup, Gather: sqlstore.PlanGather}})
 	if err != nil {
 		return nil, err
 	}

@@ -93,7 +93,7 @@ func Open(ctx context.Context, path string) (*DB, error) {
 	r.SetMaxOpenConns(4)
 	r.SetMaxIdleConns(4)
 	s, err := sqlstore.Open(ctx, sqlstore.Config{Dialect: dialect, Driver: sqlstore.DBSQL(w, r), Subject: path,
-		GroupCommit: groupcommit.Config[facilities.PlanRecord]{MaxGroup: maxGroup, Gather: sqlstore.PlanGather, Inline: true}})
+		GroupCommit: groupcommit.Config[sqlstore.QueuedPlan]{MaxGroup: maxGroup, Gather: sqlstore.PlanGather, Inline: true}})
 	if err != nil {
 		return nil, err
 	}

@@ -5,6 +5,7 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
+	"sync"
 	"time"
 
 	"scalematch/facilities"
@@ -32,14 +33,35 @@ func (s *Store) SavePlan(ctx context.Context, p facilities.PlanRecord) (faciliti
 	if p.CreatedAt.IsZero() {
 		p.CreatedAt = s.now()
 	}
-	out, outcome, err := s.plans.Submit(ctx, p)
+	// The body is compressed here, on the caller's goroutine, so that callers
+	// compress in parallel and the group commit, which runs one at a time,
+	// only writes (docs/performance.md).
+	buf := packedPool.Get().(*[]byte)
+	q := QueuedPlan{Record: p, stored: storedBody(*buf, nonNil(p.Body))}
+	out, outcome, err := s.plans.Submit(ctx, q)
+	if outcome != groupcommit.Unknown {
+		// The group is done with q (Unknown: it may still be writing it).
+		*buf = q.stored[:0]
+		packedPool.Put(buf)
+	}
 	if outcome == groupcommit.Committed {
-		return out, nil
+		return out.Record, nil
 	}
 	id := p.ID
 	failed := func(err error) error { return s.wrap("saving plan", id, err) }
 	return facilities.PlanRecord{}, groupcommit.Explain(fmt.Sprintf("%s: saving plan %q", s.d.Name, id), outcome, err, failed, s.closed)
 }
+
+// QueuedPlan is a plan record queued for a group commit with its body as
+// stored (planbody.go), compressed by SavePlan before it queued.
+type QueuedPlan struct {
+	Record facilities.PlanRecord
+	stored []byte
+}
+
+// packedPool holds SavePlan's buffers of compressed bodies (*[]byte), each
+// about as long as a plan answer's S2 block may be.
+var packedPool = sync.Pool{New: func() any { return new([]byte) }}
 
 // PlanGather is the longest a group commit of plan records waits for more plans
 // before it commits without them (groupcommit.Config.Gather): for the plans
@@ -80,21 +102,20 @@ func (s *Store) PlanGroups() (groups, records int64) {
 // recs[i] the record as stored; an error fails the whole group. The transaction
 // does not use any caller's context: one caller giving up must not abort the
 // others' writes.
-func (s *Store) commitGroup(recs []facilities.PlanRecord) error {
+func (s *Store) commitGroup(recs []QueuedPlan) error {
 	ctx := context.Background()
 	if g, ok := s.db.(GroupExecer); ok && s.beforeCommit == nil {
 		return s.execGroup(ctx, g, recs)
 	}
 	return s.tx(ctx, "save_plan", func(tx Tx) error {
 		for i := range recs {
-			p := &recs[i]
+			p := &recs[i].Record
 			p.Body = nonNil(p.Body)
 			// Instants are kept to the microsecond: store and answer the same one.
 			p.CreatedAt = p.CreatedAt.UTC().Truncate(time.Microsecond)
 			// The body is stored compressed (planbody.go); the record answered
 			// keeps it as given.
-			s.packed = storedBody(s.packed, p.Body)
-			n, err := tx.Exec(ctx, s.q.planInsert, p.ID, p.FacilityID, p.FacilityVersion, p.Label, s.packed, s.d.Instant(p.CreatedAt))
+			n, err := tx.Exec(ctx, s.q.planInsert, p.ID, p.FacilityID, p.FacilityVersion, p.Label, recs[i].stored, s.d.Instant(p.CreatedAt))
 			if err != nil {
 				return err
 			}
@@ -113,27 +134,14 @@ func (s *Store) commitGroup(recs []facilities.PlanRecord) error {
 // execGroup is commitGroup through a driver that sends the group's inserts in
 // one round trip as a transaction of their own (GroupExecer), instead of one
 // round trip for each insert and two for the transaction.
-func (s *Store) execGroup(ctx context.Context, g GroupExecer, recs []facilities.PlanRecord) error {
-	// The group's compressed bodies follow one another in s.packed; ends[i]
-	// is where the i-th ends.
-	packed, ends := s.packed[:0], make([]int, len(recs))
-	for i := range recs {
-		p := &recs[i]
-		p.Body = nonNil(p.Body)
-		p.CreatedAt = p.CreatedAt.UTC().Truncate(time.Microsecond)
-		packed = appendStoredBody(packed, p.Body)
-		ends[i] = len(packed)
-	}
-	s.packed = packed
+func (s *Store) execGroup(ctx context.Context, g GroupExecer, recs []QueuedPlan) error {
 	args := s.planArgs[:0]
 	defer func() { clear(args); s.planArgs = args[:0] }()
 	for i := range recs {
-		p := &recs[i]
-		start := 0
-		if i > 0 {
-			start = ends[i-1]
-		}
-		args = append(args, []any{p.ID, p.FacilityID, p.FacilityVersion, p.Label, nonNil(packed[start:ends[i]:ends[i]]), s.d.Instant(p.CreatedAt)})
+		p := &recs[i].Record
+		p.Body = nonNil(p.Body)
+		p.CreatedAt = p.CreatedAt.UTC().Truncate(time.Microsecond)
+		args = append(args, []any{p.ID, p.FacilityID, p.FacilityVersion, p.Label, recs[i].stored, s.d.Instant(p.CreatedAt)})
 	}
 	inserted, err := g.ExecGroup(ctx, s.q.planInsert, args)
 	if err != nil {
@@ -145,7 +153,7 @@ func (s *Store) execGroup(ctx context.Context, g GroupExecer, recs []facilities.
 		}
 		// The id was stored before: answer with the first record, which has
 		// committed (stored plans are never changed nor deleted).
-		if recs[i], err = scanPlan(s.db.QueryRow(ctx, s.q.plan, recs[i].ID)); err != nil {
+		if recs[i].Record, err = scanPlan(s.db.QueryRow(ctx, s.q.plan, recs[i].Record.ID)); err != nil {
 			return err
 		}
 	}

@@ -40,7 +40,7 @@ type Config struct {
 	// Subject is what Ping's error names: the file, or "the database".
 	Subject string
 	// GroupCommit configures the plan group commit; Commit is the store's own.
-	GroupCommit groupcommit.Config[facilities.PlanRecord]
+	GroupCommit groupcommit.Config[QueuedPlan]
 }
 
 // Store is a facility catalog in one SQL database. It is safe for concurrent use.
@@ -50,12 +50,11 @@ type Store struct {
 	subject string
 	db      Driver
 	// plans commits SavePlan calls in groups (plans.go).
-	plans *groupcommit.Committer[facilities.PlanRecord]
+	plans *groupcommit.Committer[QueuedPlan]
 	// closed answers SavePlan calls made after Close or still queued when it ran.
 	closed error
-	// packed is the plan group commit's buffer of compressed bodies, and
-	// planArgs its statements' arguments (only one group commits at a time).
-	packed   []byte
+	// planArgs is the plan group commit's statements' arguments (only one
+	// group commits at a time).
 	planArgs [][]any
 
 	now func() time.Time
@@ -215,7 +214,7 @@ type Hooks struct {
 	// commit; an error aborts the write.
 	BeforeCommit *func(op string) error
 	// Plans is the plan group committer.
-	Plans *groupcommit.Committer[facilities.PlanRecord]
+	Plans *groupcommit.Committer[QueuedPlan]
 	// Closed is the error of a SavePlan call after Close.
 	Closed error
 }
