@@ -111,6 +111,13 @@ type machSetup struct {
 	// setting and reference state but not the state at (pa, the T0 floor):
 	// qa, ra and qLow are unset (topPartial).
 	partial bool
+	// floorP and floorT: the T0 floor at p0 floorP, found (tfloor) where the
+	// set-up computed its state at (pa, the floor): real-gas nitrogen with a
+	// T0 range; floorP 0 otherwise. raFloor: ra is Re/m on the T0 floor at pa
+	// (rcurve at pa), from that state. Every candidate's Re/m root asks for
+	// both again (solveR), about 250 times a weighted cn2-05 plan.
+	floorP, floorT float64
+	raFloor        bool
 
 	// Water only.
 	rWaterTop   float64
@@ -333,6 +340,11 @@ type solver struct {
 	// noQSetups prepares a q ceiling's relaxed copy's set-ups anew (no
 	// qSetups), for the test that compares the two.
 	noQSetups bool
+	// noSetupStates asks the solver's states for the T0 floor at p0 min,
+	// Re/m on it and q and V at the reference state again where a nitrogen
+	// set-up holds them (floorP, raFloor, stRef), for the test that compares
+	// the two.
+	noSetupStates bool
 	// water keeps water's properties by temperature (a water facility's
 	// plans; nil otherwise), shared with the relaxed copies.
 	water *waterMemo
@@ -1241,7 +1253,9 @@ func (sv *solver) raiseFloor(c *machSetup, lo float64, tp topSetting) (machSetup
 	c2.pa, c2.stRef, c2.tRef, c2.k = p, st, c.tb, st.DynamicPressure/p
 	c2.qLow = lo + qLowAt(p)
 	c2.rlo, c2.rloOK = st.ReynoldsPerMeter, true
+	c2.raFloor = false // ra is at the old pa until rcurve's below
 	c2.ra = sv.rcurve(&c2, p)
+	c2.raFloor = !sv.noSetupStates
 	return c2, true
 }
 
@@ -1464,11 +1478,13 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	}
 	stA := stB
 	if ta != tb {
-		if stA, err = sv.state(machOrSpeed, pa, sv.tfloor(&c, pa)); err != nil {
+		tf := sv.tfloor(&c, pa)
+		if stA, err = sv.state(machOrSpeed, pa, tf); err != nil {
 			c.fail = facilities.ConstraintCondensation
 			return c
 		}
 		c.qa, c.qaOK = stA.DynamicPressure, true
+		c.floorP, c.floorT, c.raFloor = pa, tf, !sv.noSetupStates
 	}
 	c.ra = stA.ReynoldsPerMeter
 	c.qLow = min(stA.DynamicPressure, stB.DynamicPressure)
@@ -1712,6 +1728,13 @@ func (sv *solver) qAt(c *machSetup, p0, t0 float64) (q, v float64) {
 	if c.linear {
 		return c.k * p0, c.stRef.Speed * math.Sqrt(t0/c.tRef)
 	}
+	if st := &c.stRef; p0 == st.StagnationPressure && t0 == st.StagnationTemperature && !sv.noSetupStates {
+		// The set-up's reference state (at pa and the warmest T0, where a
+		// candidate's Re/m root ends at the set-up's lowest Re/m), whose
+		// state the solver's last two have mostly let go; a reference
+		// state left uncomputed (prepareNitrogen's noRef) holds p0 0.
+		return st.DynamicPressure, st.Speed
+	}
 	st, err := sv.state(c.machOrSpeed, p0, t0)
 	if err != nil {
 		return math.Inf(1), 0
@@ -1912,6 +1935,9 @@ func (sv *solver) tfloor(c *machSetup, p0 float64) float64 {
 	if !c.cond {
 		return c.ta
 	}
+	if p0 == c.floorP && !sv.noSetupStates {
+		return c.floorT
+	}
 	if c.vmin == 0 && sv.cond != nil {
 		// The condensation line of the local expansion does not depend on the
 		// Mach number: found once per p0 for every set-up, from the nearest p0
@@ -1932,6 +1958,9 @@ func (sv *solver) tfloor(c *machSetup, p0 float64) float64 {
 func (sv *solver) rcurve(c *machSetup, p0 float64) float64 {
 	if c.linear {
 		return c.ra * p0 / c.pa
+	}
+	if c.raFloor && p0 == c.pa {
+		return c.ra
 	}
 	st, err := sv.state(c.machOrSpeed, p0, sv.tfloor(c, p0))
 	if err != nil {
