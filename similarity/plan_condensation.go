@@ -313,6 +313,26 @@ func (sv *solver) ceilingJoint(c *machSetup, qc, qa, qTop float64) (float64, boo
 // on the line's usable side by either; 2e-14 is inside the roots' 1e-13.
 const jointAbove = 2e-14
 
+// jointTradeStop is ceilingJointFrom's stop, the relative step after which
+// it ends, on the trade curve (sv.topOnly; 1e-8 elsewhere). The curve is a
+// chart of each Mach number's highest Reynolds number, read to a few
+// figures: Newton's error after a step of 1e-6 is of the order of 1e-12,
+// and its points lie within 1e-12 relative of those stopped at 1e-8
+// (TestTradeJointStop; moved jointTradeInside inside), while a third of the curve's
+// q-ceiling roots end an iteration sooner (those started from the secant
+// across [pa, pTop] and from a prediction 1e-8 to 1e-6 off). The checks
+// after the iteration (the local margin, the free stream's, q under the
+// ceiling, each from its own state) are the same either way, so that
+// every point stays usable.
+const jointTradeStop = 1e-6
+
+// jointTradeInside is how far, relative, a trade point's q-ceiling root
+// stopped at jointTradeStop is moved inside (p0 below the root, T0 above
+// the line), in place of 4e-15 and jointAbove: the root's error, up to
+// about 1e-13 (5.5e-14 found), and the own-start expansions' of a reader's
+// check (facilities.State), kept on the usable side.
+const jointTradeInside = 1.5e-13
+
 // jointNear is the largest relative distance in Mach number from the last
 // q-ceiling point found at which ceilingJoint starts from it (jointMemo).
 const jointNear = 1e-6
@@ -386,6 +406,8 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilit
 	}
 	var fs, prev facilities.FloorSlopes
 	converged := false
+	loose := sv.topOnly && !sv.noTradeStop
+	below, above := 4e-15, jointAbove
 	for k := range 6 {
 		pp := from
 		if k > 0 {
@@ -408,7 +430,11 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilit
 			return 0, false
 		}
 		prev = fs
-		if math.Abs(dp) <= 1e-8*p && math.Abs(dt) <= 1e-8*t {
+		stop := 1e-8
+		if loose {
+			stop = jointTradeStop
+		}
+		if math.Abs(dp) <= stop*p && math.Abs(dt) <= stop*t {
 			converged = true
 			break
 		}
@@ -416,8 +442,13 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilit
 	if !converged || !(fs.MT > 0) {
 		return 0, false
 	}
-	pf := p * (1 - 4e-15)
-	tf := (t - fs.MP/fs.MT*(pf-p)) * (1 + jointAbove)
+	if loose {
+		// The root's error after the looser stop, up to about 1e-13, kept
+		// on the usable side.
+		below, above = jointTradeInside, jointTradeInside
+	}
+	pf := p * (1 - below)
+	tf := (t - fs.MP/fs.MT*(pf-p)) * (1 + above)
 	if sv.stags != nil && pf > 0 && tf > 0 {
 		// The checks' expansions (the free stream and the local one) start
 		// from the last iterate's, carried to (pf, tf): one Newton step each

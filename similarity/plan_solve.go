@@ -275,6 +275,10 @@ type solver struct {
 	// from the secant across [pa, pTop] instead of the curve's last roots,
 	// for the test that compares the two.
 	noTopPredict bool
+	// noTradeStop stops the trade curve's q-ceiling roots as the search's
+	// (ceilingJointFrom's 1e-8, not jointTradeStop): the reference of
+	// TestTradeJointStop.
+	noTradeStop bool
 	// noLazyTop computes every nitrogen set-up's top setting in prepare (no
 	// topLazy), for the test that compares candidates and plans both ways.
 	noLazyTop bool
