@@ -66,6 +66,31 @@ func (f *Facility) StateFrom(g *Stagnation, s Setting) (State, error) {
 	return f.state(s, g)
 }
 
+// StateFromIn is StateFrom into *st (State{} where it fails): a real-gas
+// nitrogen state is written there in place, without the copies of the
+// 96-byte State on its way back through state and nitrogenState and the
+// caller's (a planner keeps its states, some 240 of them a cryogenic plan).
+// Other media are StateFrom's, copied into *st.
+func (f *Facility) StateFromIn(st *State, g *Stagnation, s Setting) error {
+	if f.Medium.Kind != MediumNitrogen {
+		var err error
+		*st, err = f.StateFrom(g, s)
+		return err
+	}
+	if g != nil && (g.P0 != s.StagnationPressure || g.T0 != s.StagnationTemperature) {
+		g = nil
+	}
+	if !settingOK(s) {
+		*st = State{}
+		return Invalid(settingMessage, settingErrors(s, nil))
+	}
+	if err := f.nitrogenStateIn(st, s, g); err != nil {
+		*st = State{}
+		return err
+	}
+	return nil
+}
+
 // state is State, from the nitrogen stagnation state g when it is not nil.
 func (f *Facility) state(s Setting, g *Stagnation) (State, error) {
 	if f.Medium.IsLiquid() {
@@ -81,15 +106,8 @@ func (f *Facility) state(s Setting, g *Stagnation) (State, error) {
 	default:
 		errs = append(errs, unknownMediumError(m.Kind))
 	}
-	errs = checkStagnation(s, errs)
-	if !(s.Mach >= 0 && s.Mach <= MaxSettingMach) {
-		errs = append(errs, FieldError{Field: "mach", Message: fmt.Sprintf("%g is outside 0 to %g", s.Mach, MaxSettingMach)})
-	}
-	if !(s.Speed >= 0) || math.IsInf(s.Speed, 1) {
-		errs = append(errs, FieldError{Field: "speed", Message: fmt.Sprintf("%g m/s: must be 0 m/s or more and finite", s.Speed)})
-	}
-	if s.Mach > 0 && s.Speed > 0 {
-		errs = append(errs, FieldError{Field: "speed", Message: "give mach or speed, not both"})
+	if !settingOK(s) {
+		errs = settingErrors(s, errs)
 	}
 	if len(errs) > 0 {
 		return State{}, Invalid(settingMessage, errs)
@@ -97,7 +115,11 @@ func (f *Facility) state(s Setting, g *Stagnation) (State, error) {
 
 	t0, p0 := s.StagnationTemperature, s.StagnationPressure
 	if m.Kind == MediumNitrogen {
-		return f.nitrogenState(s, g)
+		var st State
+		if err := f.nitrogenStateIn(&st, s, g); err != nil {
+			return State{}, err
+		}
+		return st, nil
 	}
 	mach := s.Mach
 	if mach == 0 && s.Speed > 0 {
@@ -119,6 +141,34 @@ func (f *Facility) state(s Setting, g *Stagnation) (State, error) {
 	mu := m.Viscosity(t, rho)
 	return gasState(mach, v, p0, t0, Static{Temperature: t, Pressure: p, Density: rho, Viscosity: mu,
 		SpeedOfSound: a, Compressibility: 1}), nil
+}
+
+// settingOK reports whether settingErrors finds nothing wrong with s: the
+// test of every setting, inlined, without the call.
+// (Positive and finite is above 0 and at most MaxFloat64, false for a NaN;
+// of a Mach number and a speed each 0 or more, one is 0 unless both are
+// above 0.)
+func settingOK(s Setting) bool {
+	return s.StagnationPressure > 0 && s.StagnationPressure <= math.MaxFloat64 &&
+		s.StagnationTemperature > 0 && s.StagnationTemperature <= math.MaxFloat64 &&
+		s.Mach >= 0 && s.Mach <= MaxSettingMach && s.Speed >= 0 && s.Speed <= math.MaxFloat64 &&
+		(s.Mach == 0 || s.Speed == 0)
+}
+
+// settingErrors appends the errors of a gas setting's stagnation pressure
+// and temperature (checkStagnation), Mach number and speed to errs.
+func settingErrors(s Setting, errs []FieldError) []FieldError {
+	errs = checkStagnation(s, errs)
+	if !(s.Mach >= 0 && s.Mach <= MaxSettingMach) {
+		errs = append(errs, FieldError{Field: "mach", Message: fmt.Sprintf("%g is outside 0 to %g", s.Mach, MaxSettingMach)})
+	}
+	if !(s.Speed >= 0) || math.IsInf(s.Speed, 1) {
+		errs = append(errs, FieldError{Field: "speed", Message: fmt.Sprintf("%g m/s: must be 0 m/s or more and finite", s.Speed)})
+	}
+	if s.Mach > 0 && s.Speed > 0 {
+		errs = append(errs, FieldError{Field: "speed", Message: "give mach or speed, not both"})
+	}
+	return errs
 }
 
 // gasState is the test-section state of a gas moving at Mach mach and speed v in
@@ -146,19 +196,20 @@ func speedError(speed, gamma, r, t0 float64) error {
 		speed, speedAtMach(MaxSettingMach, gamma, r, t0), MaxSettingMach, t0, vmax)}})
 }
 
-// nitrogenState is State for nitrogen, a real gas: the static state lies on the
+// nitrogenStateIn is State for nitrogen, a real gas: the static state lies on the
 // isentrope of nitrogen's equation of state through (p0, T0) with h0 = h + V²/2, and
 // the speed of sound is that equation's own (nitrogenFreeStream); a speed setting
 // is solved for directly (h = h0 − V²/2) and gives M = V/a. ρ is the Peng–Robinson
-// density, μ the Lemmon & Jacobsen (2004) viscosity at it.
-func (f *Facility) nitrogenState(s Setting, g *Stagnation) (State, error) {
+// density, μ the Lemmon & Jacobsen (2004) viscosity at it. It writes the state
+// into *st, in place, and leaves *st as it was where it fails.
+func (f *Facility) nitrogenStateIn(st *State, s Setting, g *Stagnation) error {
 	m := f.Medium
 	t0, p0 := s.StagnationTemperature, s.StagnationPressure
 	gamma, r := m.Gamma(), m.GasConstant()
 	if s.Speed > 0 {
 		// The ideal-gas limit as a first screen: beyond it no real-gas state either.
 		if den := gamma*r*t0 - 0.5*(gamma-1)*s.Speed*s.Speed; !(den > 0) || s.Speed/math.Sqrt(den) > 1.05*MaxSettingMach {
-			return State{}, speedError(s.Speed, gamma, r, t0)
+			return speedError(s.Speed, gamma, r, t0)
 		}
 	}
 	var fs nitrogenStatic
@@ -169,21 +220,22 @@ func (f *Facility) nitrogenState(s Setting, g *Stagnation) (State, error) {
 		fs, err = nitrogenFreeStream(t0, p0, s.Mach, s.Speed)
 	}
 	if err != nil {
-		return State{}, err
+		return err
 	}
 	if fs.mach > MaxSettingMach {
-		return State{}, speedError(s.Speed, gamma, r, t0)
+		return speedError(s.Speed, gamma, r, t0)
 	}
 	t, p, rho := fs.T, fs.p, fs.rho
 	if margin := nitrogenMargin(m, t, p); margin < 0 {
-		return State{}, Invalid(settingMessage, []FieldError{{Field: "stagnation_temperature", Message: fmt.Sprintf(
+		return Invalid(settingMessage, []FieldError{{Field: "stagnation_temperature", Message: fmt.Sprintf(
 			"%g K gives a free stream of %.4g K at %.4g Pa, below nitrogen's saturation temperature %.4g K there: raise the stagnation temperature or lower the Mach number or pressure",
 			t0, t, p, t/(1+margin))}})
 	}
 	mu := NitrogenViscosity(t, rho)
 	v := fs.speed
-	return gasState(fs.mach, v, p0, t0, Static{Temperature: t, Pressure: p, Density: rho, Viscosity: mu,
-		SpeedOfSound: fs.a, Compressibility: p / (rho * r * t)}), nil
+	*st = gasState(fs.mach, v, p0, t0, Static{Temperature: t, Pressure: p, Density: rho, Viscosity: mu,
+		SpeedOfSound: fs.a, Compressibility: p / (rho * r * t)})
+	return nil
 }
 
 // speedAtMach returns the free-stream speed in m/s of an ideal gas at Mach number
