@@ -114,3 +114,39 @@ func TestSetupStatesPlans(t *testing.T) {
 	require.Greater(t, floors, 10)
 	assert.Less(t, evals, evalsAgain)
 }
+
+// TestPrepareNitrogenInOverwrites: prepareNitrogenIn into a set-up that
+// holds another Mach number's (every field set, a partial or failed one
+// among them) leaves nothing of it: over 40 random cn2-05 problems
+// (randomGasProblemIn) at 9 Mach numbers each, the set-up is the one
+// prepareNitrogen builds in a zero set-up of its own, field for field, in
+// a second solver asked the same set-ups in the same order.
+func TestPrepareNitrogenInOverwrites(t *testing.T) {
+	rng := rand.New(rand.NewSource(59))
+	n := 0
+	for i := 0; i < 40; i++ {
+		p := randomGasProblemIn(t, rng, i, []string{"cn2-05"})
+		if i%3 == 2 {
+			p.Facility.Speed = &facilities.Range{Min: 60 + 60*rng.Float64(), Max: 200 + 60*rng.Float64()}
+		}
+		a, err := newSolver(p)
+		require.NoError(t, err)
+		b, err := newSolver(p)
+		require.NoError(t, err)
+		a.topOnly, b.topOnly = i%2 == 1, i%2 == 1 // partial set-ups too
+		c := a.prepareNitrogen(a.machOrSpeedMax)
+		require.Equal(t, b.prepareNitrogen(b.machOrSpeedMax), c)
+		for j := range 9 {
+			m := a.machOrSpeedMin + (a.machOrSpeedMax-a.machOrSpeedMin)*float64(j)/8
+			c.floorP, c.floorT, c.raFloor, c.qWater, c.qWaterT = 1, 2, true, [2]float64{3, 4}, [2]float64{5, 6}
+			c.rWaterTop, c.capWaterTop, c.linear = 7, "x", true
+			a.prepareNitrogenIn(&c, m)
+			want := b.prepareNitrogen(m)
+			require.Equal(t, want, c, "case %d, Mach %g", i, m)
+			if c.ok {
+				n++
+			}
+		}
+	}
+	require.Greater(t, n, 100)
+}

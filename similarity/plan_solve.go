@@ -1382,13 +1382,22 @@ func (sv *solver) prepareNowIn(c *machSetup, machOrSpeed float64) {
 	case sv.liquid:
 		sv.prepareWater(c, machOrSpeed)
 	case sv.f.Medium.Kind == facilities.MediumNitrogen:
-		*c = sv.prepareNitrogen(machOrSpeed)
+		sv.prepareNitrogenIn(c, machOrSpeed)
 	default:
 		sv.prepareIdeal(c, machOrSpeed)
 	}
 }
 
-// prepareNitrogen is prepare for nitrogen, a real gas that can condense: its
+// prepareNitrogen is prepareNitrogenIn into a set-up of its own.
+func (sv *solver) prepareNitrogen(machOrSpeed float64) (c machSetup) {
+	sv.prepareNitrogenIn(&c, machOrSpeed)
+	return c
+}
+
+// prepareNitrogenIn is prepare for nitrogen into c (its caller's set-up:
+// built in its own frame and returned by value, the set-up was copied on
+// its way back into prepareNowIn's, about 270 instructions of each of a
+// weighted cn2-05 plan's 80 set-ups), a real gas that can condense: its
 // speed of sound, q and Re/m come from its equation of state along the real-gas
 // isentrope, so nothing is proportional to p0 or √T0 and the floor and the q and
 // Re/m curves are evaluated state by state. At a fixed Mach number q falls slightly
@@ -1399,9 +1408,9 @@ func (sv *solver) prepareNowIn(c *machSetup, machOrSpeed float64) {
 // held at every p0 (warm settings are used at p0 min only); the lowest speed joins
 // the condensation rule in the T0 floor at each p0 (floorMargin), and raises p0 min
 // when even the warmest T0 is too slow there.
-func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
+func (sv *solver) prepareNitrogenIn(c *machSetup, machOrSpeed float64) {
 	f := sv.f
-	c := machSetup{machOrSpeed: machOrSpeed}
+	*c = machSetup{machOrSpeed: machOrSpeed}
 	ta, tb := f.StagnationTemperature.Min, f.StagnationTemperature.Max
 	pa, pb := f.StagnationPressure.Min, f.StagnationPressure.Max
 	c.pa = pa
@@ -1426,7 +1435,7 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		stB = st
 	} else {
 		c.fail = facilities.ConstraintCondensation
-		return c
+		return
 	}
 	var err error
 	if sp := f.Speed; sp != nil {
@@ -1442,24 +1451,24 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 			// sound rises with p0, so a higher p0 may do: p0 min moves up to it.
 			if vAt(pb, tb) < sp.Min*(1-limitSlack) {
 				c.fail = facilities.ConstraintSpeedMin
-				return c
+				return
 			}
 			pa = sv.rootHi(func(p float64) float64 { return vAt(p, tb) - sp.Min }, pa, pb, true)
 			c.pa = pa
 			if stB, err = sv.state(machOrSpeed, pa, tb); err != nil {
 				c.fail = facilities.ConstraintCondensation
-				return c
+				return
 			}
 		}
 		if vAt(pa, ta) > sp.Max*(1+limitSlack) {
 			c.fail = facilities.ConstraintSpeedMax
-			return c
+			return
 		}
 		if stB.Speed > sp.Max {
 			tb = sv.rootHi(func(t float64) float64 { return sp.Max - vAt(pa, t) }, ta, tb, false)
 			if stB, err = sv.state(machOrSpeed, pa, tb); err != nil {
 				c.fail = facilities.ConstraintCondensation
-				return c
+				return
 			}
 		}
 		c.vmin = sp.Min
@@ -1469,14 +1478,14 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	c.rlo, c.rloOK = stB.ReynoldsPerMeter, !noRef
 	if c.rlo > sv.remax*(1+limitSlack) {
 		c.fail = facilities.ConstraintReynoldsUnit
-		return c
+		return
 	}
 	c.pTop, c.capTop = pb, facilities.ConstraintPressureMax
 	// CondensationMargin(stB), with the local expansion (the same at every
 	// Mach number) kept by localMargin instead of computed again.
 	if sv.condMargin(machOrSpeed, &stB, pa, tb) < sv.condMin {
 		c.fail = facilities.ConstraintCondensation
-		return c
+		return
 	}
 	// below: (p0, T0) is below the T0 floor; the local expansion alone (the
 	// same at every Mach number) tells when it condenses, before any state,
@@ -1487,38 +1496,38 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		if sv.localMargin(p, t) < sv.condMin {
 			return true
 		}
-		m, _ := sv.warmMargin(&c, p, t)
+		m, _ := sv.warmMargin(c, p, t)
 		return m < 0
 	}
 	if below(pa, ta) || below(pb, ta) {
 		c.cond = true
-		if m, name := sv.warmMargin(&c, pb, tb); m < 0 {
+		if m, name := sv.warmMargin(c, pb, tb); m < 0 {
 			// Above some p0 even the warmest usable T0 condenses (or is too slow).
-			c.pTop = sv.rootHi(func(p float64) float64 { m, _ := sv.floorMargin(&c, p, tb); return m }, pa, pb, false)
+			c.pTop = sv.rootHi(func(p float64) float64 { m, _ := sv.floorMargin(c, p, tb); return m }, pa, pb, false)
 			c.capTop = name
 		}
 	}
 	if sv.topOnly && !sv.noPartial && c.cond && ta != tb && c.vmin == 0 && sv.floor == nil && sv.cond != nil && machOrSpeed <= f.CondensationPeak() {
-		if top, ok := sv.topPartial(&c); ok {
+		if top, ok := sv.topPartial(c); ok {
 			c.facilityTop, c.partial, c.ok = top, true, true
-			return c
+			return
 		}
 	}
 	if noRef {
 		// The whole set-up after all: its reference state, as above.
 		if stB, err = sv.state(machOrSpeed, pa, tb); err != nil {
 			c.fail = facilities.ConstraintCondensation
-			return c
+			return
 		}
 		c.stRef, c.k = stB, stB.DynamicPressure/pa
 		c.rlo, c.rloOK = stB.ReynoldsPerMeter, true
 	}
 	stA := stB
 	if ta != tb {
-		tf := sv.tfloor(&c, pa)
+		tf := sv.tfloor(c, pa)
 		if stA, err = sv.state(machOrSpeed, pa, tf); err != nil {
 			c.fail = facilities.ConstraintCondensation
-			return c
+			return
 		}
 		c.qa, c.qaOK = stA.DynamicPressure, true
 		c.floorP, c.floorT, c.raFloor = pa, tf, !sv.noSetupStates
@@ -1527,7 +1536,7 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 	c.qLow = min(stA.DynamicPressure, stB.DynamicPressure)
 	if c.qLow > sv.qmax*(1+limitSlack) {
 		c.fail = facilities.ConstraintDynamic
-		return c
+		return
 	}
 	if math.IsInf(sv.remax, 1) && c.qaOK && c.qa <= sv.qmax*(1+limitSlack) && !sv.topOnly && !sv.noLazyTop {
 		// The top setting (the q ceiling's joint step, about 17 states) is
@@ -1536,15 +1545,15 @@ func (sv *solver) prepareNitrogen(machOrSpeed float64) machSetup {
 		// ceiling it cannot fail, and with q at (p0 min, the floor) under
 		// the ceiling it lies on the floor at p0 min or above.
 		c.topLazy, c.ok = true, true
-		return c
+		return
 	}
-	c.facilityTop = sv.highestSetting(&c, sv.qmax, facilities.ConstraintDynamic)
+	c.facilityTop = sv.highestSetting(c, sv.qmax, facilities.ConstraintDynamic)
 	if c.facilityTop.fail {
 		c.fail = facilities.ConstraintReynoldsUnit
-		return c
+		return
 	}
 	c.ok = true
-	return c
+	return
 }
 
 // top returns c's top setting, facilityTop, computed here where prepare
