@@ -408,6 +408,7 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilit
 	converged := false
 	loose := sv.topOnly && !sv.noTradeStop
 	below, above := 4e-15, jointAbove
+	var pk, tk, last float64 // where fs was found, and the last step
 	for k := range 6 {
 		pp := from
 		if k > 0 {
@@ -425,7 +426,9 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilit
 		if !(det != 0) || math.IsNaN(dp) || math.IsNaN(dt) {
 			return 0, false
 		}
+		pk, tk = p, t
 		p, t = p-dp, t-dt
+		last = max(math.Abs(dp)/p, math.Abs(dt)/t)
 		if !(p > c.pa && p < c.pTop && t > c.ta && t < c.tb) {
 			return 0, false
 		}
@@ -455,7 +458,22 @@ func (sv *solver) ceilingJointFrom(c *machSetup, qc, p, t float64, from *facilit
 		// instead of two or three.
 		fs.StagnationNearLocalIn(sv.stags.slot(pf, tf), pf, tf)
 	}
-	if !(pf > c.pa && tf < c.tb) || sv.localMargin(pf, tf) < sv.condMin {
+	if !(pf > c.pa && tf < c.tb) {
+		return 0, false
+	}
+	if loose && last <= 1e-8 {
+		// On the trade curve, after a last step the search's stop would also
+		// have ended on, the local margin at the point is the iteration's
+		// carried to it to first order (the error of the order of the
+		// step's square, 1e-16, against the point's jointTradeInside on the
+		// usable side), kept for the point's readers, instead of its own
+		// expansion: one state a point.
+		m := fs.M + fs.MP*(pf-pk) + fs.MT*(tf-tk)
+		if !(m >= sv.condMin) {
+			return 0, false
+		}
+		cc.keep(localSlot(pf, tf), pf, tf, m)
+	} else if sv.localMargin(pf, tf) < sv.condMin {
 		return 0, false
 	}
 	if m, _ := sv.floorMargin(c, pf, tf); m < 0 {

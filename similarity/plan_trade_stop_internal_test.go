@@ -63,6 +63,11 @@ func TestTradeJointStop(t *testing.T) {
 				assert.Empty(t, f.Violations(st), "q max %g, p0 %v, point %d", qmax, pr, i)
 			}
 			assert.LessOrEqual(t, st.DynamicPressure, qmax, "q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
+			// On the usable side of the condensation line by the facility's
+			// own local margin (from its own start), whether the point's check
+			// computed its local margin or carried it from the iteration.
+			assert.GreaterOrEqual(t, f.LocalCondensationMargin(g.StagnationPressure, g.StagnationTemperature), cond,
+				"q max %g, cond %g, p0 %v, point %d", qmax, cond, pr, i)
 		}
 	}
 	forTradeCases(t, check)
