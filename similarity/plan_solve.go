@@ -1290,6 +1290,8 @@ func (sv *solver) raiseFloor(c *machSetup, lo float64, tp topSetting) (machSetup
 	c2.pa, c2.stRef, c2.tRef, c2.k = p, st, c.tb, st.DynamicPressure/p
 	c2.qLow = lo + qLowAt(p)
 	c2.rlo, c2.rloOK = st.ReynoldsPerMeter, true
+	// qa was q at the old pa: qcurve must not answer it for the new one.
+	c2.qa, c2.qaOK = 0, false
 	c2.raFloor = false // ra is at the old pa until rcurve's below
 	c2.ra = sv.rcurve(&c2, p)
 	c2.raFloor = !sv.noSetupStates
