@@ -1555,7 +1555,6 @@ func (sv *solver) prepareNitrogenIn(c *machSetup, machOrSpeed float64) {
 		return
 	}
 	c.ok = true
-	return
 }
 
 // top returns c's top setting, facilityTop, computed here where prepare
